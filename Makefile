@@ -1,0 +1,105 @@
+# coterie: build, test, benchmark, install.
+#   make                 build ./coterie
+#   make check           unit tests, command tests and explorer tests
+#   make bench           benchmarks (print figures, assert nothing)
+#   make deps            install the Debian packages needed (as root)
+#   make install PREFIX=/usr/local
+#   make SANITIZE=address,undefined check    sanitizer build in build-address-undefined/
+#   make SANITIZE=thread check
+#   make DEVELOPER=1     warnings become errors
+
+CC       ?= cc
+PREFIX   ?= /usr/local
+PKGS     := igraph ncursesw cmocka jansson zlib
+DEB_PKGS := build-essential pkg-config libigraph-dev libncurses-dev libcmocka-dev \
+            libjansson-dev zlib1g-dev tmux python3 python3-networkx python3-igraph \
+            python3-sklearn
+
+comma := ,
+ifeq ($(SANITIZE),)
+BUILD := build
+BIN   := coterie
+SANFLAGS :=
+else
+BUILD := build-$(subst $(comma),-,$(SANITIZE))
+BIN   := $(BUILD)/coterie
+SANFLAGS := -fsanitize=$(SANITIZE) -fno-omit-frame-pointer
+endif
+
+WARN := -Wall -Wextra -Wshadow -Wstrict-prototypes -Wmissing-prototypes \
+        -Wwrite-strings -Wformat=2 -Wvla
+ifeq ($(DEVELOPER),1)
+WARN += -Werror
+endif
+
+PKG_CFLAGS := $(shell pkg-config --cflags $(PKGS) 2>/dev/null)
+PKG_LIBS   := $(shell pkg-config --libs igraph ncursesw jansson zlib 2>/dev/null)
+CMOCKA_LIBS := $(shell pkg-config --libs cmocka 2>/dev/null)
+
+CFLAGS   ?= -O2 -g
+ALL_CFLAGS := -std=c11 -D_POSIX_C_SOURCE=200809L -D_DEFAULT_SOURCE -D_XOPEN_SOURCE=700 \
+              -pthread -Iinclude $(PKG_CFLAGS) $(WARN) $(CFLAGS) $(SANFLAGS) -MMD -MP
+ALL_LDFLAGS := -pthread $(SANFLAGS) $(LDFLAGS)
+LIBS := $(PKG_LIBS) -lm
+
+CORE_SRC := $(wildcard src/*.c)
+APP_SRC  := $(wildcard src/cli/*.c src/tui/*.c)
+TEST_SRC := $(wildcard tests/test_*.c)
+
+CORE_OBJ := $(CORE_SRC:%.c=$(BUILD)/%.o)
+APP_OBJ  := $(APP_SRC:%.c=$(BUILD)/%.o)
+TEST_BIN := $(TEST_SRC:tests/%.c=$(BUILD)/tests/%)
+TEST_HELPER_OBJ := $(BUILD)/tests/helpers.o
+LIB := $(BUILD)/libcoterie.a
+
+.PHONY: all check unit bench install clean deps demo fuzz
+
+all: $(BIN)
+
+$(BUILD)/%.o: %.c
+	@mkdir -p $(dir $@)
+	$(CC) $(ALL_CFLAGS) -c $< -o $@
+
+$(LIB): $(CORE_OBJ)
+	@mkdir -p $(dir $@)
+	rm -f $@
+	ar rcs $@ $^
+
+$(BIN): $(APP_OBJ) $(LIB)
+	$(CC) $(ALL_LDFLAGS) -o $@ $(APP_OBJ) $(LIB) $(LIBS)
+
+$(TEST_HELPER_OBJ): tests/helpers.c tests/helpers.h
+	@mkdir -p $(dir $@)
+	$(CC) $(ALL_CFLAGS) -c $< -o $@
+
+$(BUILD)/tests/test_%: tests/test_%.c $(TEST_HELPER_OBJ) $(LIB)
+	@mkdir -p $(dir $@)
+	$(CC) $(ALL_CFLAGS) $(ALL_LDFLAGS) -o $@ $< $(TEST_HELPER_OBJ) $(LIB) $(LIBS) $(CMOCKA_LIBS)
+
+# Unit tests only (fast while working on the core).
+unit: $(TEST_BIN)
+	@COTERIE_BIN=$(abspath $(BIN)) tests/run.sh --unit $(TEST_BIN)
+
+check: $(BIN) $(TEST_BIN)
+	@COTERIE_BIN=$(abspath $(BIN)) tests/run.sh $(TEST_BIN)
+
+bench: $(BIN)
+	@COTERIE_BIN=$(abspath $(BIN)) tests/bench/run.sh
+
+demo: $(BIN)
+	./$(BIN) explore samples/town/edges.tsv -k 12
+
+deps:
+	apt-get update
+	DEBIAN_FRONTEND=noninteractive apt-get install -y --no-install-recommends $(DEB_PKGS)
+
+install: $(BIN)
+	install -d $(DESTDIR)$(PREFIX)/bin $(DESTDIR)$(PREFIX)/share/man/man1 $(DESTDIR)$(PREFIX)/share/man/man5
+	install -m 755 $(BIN) $(DESTDIR)$(PREFIX)/bin/coterie
+	install -m 644 man/coterie.1 $(DESTDIR)$(PREFIX)/share/man/man1/coterie.1
+	install -m 644 man/coterie-files.5 $(DESTDIR)$(PREFIX)/share/man/man5/coterie-files.5
+
+clean:
+	rm -rf build build-* coterie
+
+-include $(shell find build* -name '*.d' 2>/dev/null)

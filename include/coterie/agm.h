@@ -1,0 +1,68 @@
+/*
+ * agm: the fit read back as an Affiliation Graph Model (Yang & Leskovec,
+ * ICDM 2012): memberships, and for each community its link probability p_c
+ * estimated by maximum likelihood with the memberships held fixed.
+ *
+ * A pair sharing the set S of communities is linked with probability
+ *     P = 1 - (1 - epsilon) prod_{c in S} (1 - p_c) = 1 - exp(-(qeps + sum_S q_c))
+ * where q_c = -ln(1 - p_c) and qeps = -ln(1 - epsilon). The log-likelihood
+ *     L(q) = sum_{uv in E} log(1 - exp(-Q_uv)) - sum_{uv not in E} Q_uv
+ * is concave in q, so p has a unique maximum; agm_estimate_p() finds it by
+ * cyclic one-dimensional Newton steps with safeguards.
+ *
+ * Community ids are the model's column numbers, so they stay the same from
+ * sweep to sweep and across a resume; communities are listed largest first
+ * (ties by id). Empty columns are not listed.
+ */
+#ifndef COTERIE_AGM_H
+#define COTERIE_AGM_H
+
+#include <stdint.h>
+
+#include "cover.h"
+
+struct graph;
+struct fcsr;
+
+#define AGM_QMAX 30.0 /* q is capped here: p <= 1 - 1e-13 */
+
+struct agm_community {
+	uint32_t id;             /* model column */
+	uint32_t size;           /* members */
+	uint64_t internal_edges; /* edges with both ends inside */
+	uint64_t volume;         /* sum of member degrees */
+	uint64_t cut;            /* edges with one end inside */
+	double density;          /* internal / (size choose 2); 0 below 2 members */
+	double conductance;      /* cut / min(volume, 2m - volume); 1 if undefined */
+	double p;                /* AGM link probability (MLE) */
+};
+
+struct agm {
+	uint32_t n;
+	double epsilon;
+	struct cover cover;          /* community i of comms[] is cover community i */
+	double *strength;            /* parallel to cover.mem: F[u][c] (1.0 for plain covers) */
+	struct agm_community *comms; /* cover.k entries, largest first */
+	double loglik;               /* AGM log-likelihood of the answer */
+	uint32_t covered;            /* nodes in at least one community */
+	uint32_t overlapping;        /* nodes in two or more */
+};
+
+/* Memberships F[u][c] >= delta, figures and p for every non-empty column
+ * of F. g and F borrowed. Returns 0 or -1; release with agm_release(). */
+int agm_from_strengths(struct agm *out, const struct graph *g, const struct fcsr *F,
+		       double epsilon, double delta);
+
+/* Figures and p for a given cover (copied). Returns 0 or -1. */
+int agm_from_cover(struct agm *out, const struct graph *g, const struct cover *c, double epsilon);
+
+/* Maximum-likelihood p for fixed memberships into p (c->k values,
+ * borrowed). Returns 0 or -1. */
+int agm_estimate_p(const struct graph *g, const struct cover *c, double epsilon, double *p);
+
+/* The AGM log-likelihood of graph g under cover c with probabilities p. */
+double agm_loglik(const struct graph *g, const struct cover *c, const double *p, double epsilon);
+
+void agm_release(struct agm *a);
+
+#endif

@@ -1,0 +1,50 @@
+/*
+ * cover: a set of possibly overlapping communities over nodes 0..n-1.
+ *
+ * Rules (tests: assert_cover_sane()):
+ *   - off[0] == 0, off[k] == total memberships, non-decreasing;
+ *   - mem[off[c] .. off[c+1]) is strictly increasing, every id < n;
+ *   - label[c] is a NUL-terminated name of community c (may be "").
+ * Empty communities are allowed in a cover but dropped by the scores.
+ */
+#ifndef COTERIE_COVER_H
+#define COTERIE_COVER_H
+
+#include <stdint.h>
+
+struct graph;
+
+struct cover {
+	uint32_t n;     /* nodes in the universe */
+	uint32_t k;     /* communities */
+	uint64_t *off;  /* k + 1 */
+	uint32_t *mem;  /* off[k] node ids */
+	char **label;   /* k labels, owned */
+};
+
+/* Build from a partition: membership[u] is u's community (>= 0), or < 0
+ * for "in none". Communities are numbered in order of first appearance.
+ * Returns 0 or -1. Release with cover_release(). */
+int cover_from_membership(struct cover *out, uint32_t n, const int64_t *membership);
+
+/* Build from (node, community) pairs; communities are numbered by their
+ * first appearance; duplicate pairs are merged. Returns 0 or -1. */
+int cover_from_pairs(struct cover *out, uint32_t n, const uint32_t *node,
+		     const uint32_t *comm, uint64_t npairs);
+
+/*
+ * Read a cover file: "node<TAB>community" per line, '#' comments, a node
+ * on as many lines as it has communities. Node names are looked up in g
+ * (borrowed); unknown names are an error naming file and line. Community
+ * labels are arbitrary strings. Returns 0 or -1.
+ */
+int cover_load(struct cover *out, const char *path, const struct graph *g);
+
+void cover_release(struct cover *c);
+
+static inline uint32_t cover_size(const struct cover *c, uint32_t i)
+{
+	return (uint32_t)(c->off[i + 1] - c->off[i]);
+}
+
+#endif

@@ -1,0 +1,128 @@
+/*
+ * fit: the fitting engine. Owns the working model, runs sweeps on its own
+ * thread with a pool of worker threads, and publishes an immutable
+ * snapshot after every sweep for readers (the batch command, the explorer).
+ *
+ * Determinism: each sweep visits the nodes in a permutation drawn from
+ * (seed, sweep) and cuts it into fixed blocks; the rows of a block are
+ * computed in parallel from the state at the start of the block and then
+ * applied in order. Nothing depends on the thread count, so the same seed
+ * gives the same bytes for any -j.
+ *
+ * All locking lives in fit.c. Control calls (pause, resume, stop, extend)
+ * are safe from any thread and never block on a sweep.
+ */
+#ifndef COTERIE_FIT_H
+#define COTERIE_FIT_H
+
+#include <stdint.h>
+
+#include "agm.h"
+#include "model.h"
+#include "seed.h"
+
+struct graph;
+
+enum fit_state {
+	FIT_READY = 0, /* made, not started */
+	FIT_SEEDING,
+	FIT_FITTING,
+	FIT_PAUSED,
+	FIT_LEVELLED, /* ended: the plateau rule fired */
+	FIT_STOPPED,  /* ended: asked to stop; the model is kept */
+	FIT_FINISHED, /* ended: reached max_sweeps */
+	FIT_FAILED,   /* ended: an error (reported through error()) */
+};
+
+const char *fit_state_name(enum fit_state s);
+/* 1 for the states in which the thread has ended. */
+int fit_state_ended(enum fit_state s);
+
+struct fit_params {
+	uint32_t k;          /* communities (columns) */
+	unsigned threads;    /* workers, >= 1 */
+	uint64_t seed;
+	double tol;          /* plateau: relative gain per sweep below this ... */
+	unsigned patience;   /* ... for this many sweeps in a row */
+	unsigned max_sweeps; /* hard limit on the sweep count (total, resumes included) */
+	double epsilon;      /* background; <= 0 picks model_default_epsilon() */
+	int past_plateau;    /* 1: do not stop at a plateau, only mark it */
+};
+
+/* Defaults: k 10, 1 thread, seed 1, tol 1e-4, patience 3, 500 sweeps. */
+void fit_params_default(struct fit_params *p);
+
+struct trace_point {
+	uint32_t sweep;   /* 0 is the seeded model */
+	double seconds;   /* since the fit began, resumes included */
+	double loglik;    /* l(F) after the sweep */
+};
+
+/* An immutable picture of the fit after a sweep. Take one with
+ * fit_snapshot() and give it back with snapshot_release(). */
+struct snapshot {
+	uint32_t sweep;
+	enum fit_state state;
+	int plateau;             /* the plateau rule has fired */
+	uint32_t plateau_sweep;  /* where it first fired (0: not yet) */
+	double seconds;          /* elapsed, resumes included */
+	double sweeps_per_sec;   /* over the last few sweeps */
+	double epsilon, delta;
+	uint32_t ntrace;
+	struct trace_point *trace;
+	struct fcsr F;           /* a copy of the strengths */
+	struct agm agm;          /* memberships and figures read from F */
+	struct seed_report seeds;
+	/* private */
+	int refs_;
+};
+
+void snapshot_release(struct snapshot *s);
+
+/* Where a resumed fit starts; all borrowed and copied by fit_new(). */
+struct fit_origin {
+	const struct fcsr *F;
+	const struct trace_point *trace;
+	uint32_t ntrace;
+	uint32_t sweep;
+	double seconds;
+	uint32_t plateau_sweep;
+};
+
+struct fit;
+
+/* Make a fit of g (borrowed; must outlive the fit). origin NULL seeds a
+ * new model; otherwise the fit continues from it (its shape must match:
+ * n == g->n, k == p->k). Returns NULL on failure. Free with fit_free(). */
+struct fit *fit_new(const struct graph *g, const struct fit_params *p,
+		    const struct fit_origin *origin);
+/* Stops and joins the thread if running, then frees. fit_free(NULL) is a no-op. */
+void fit_free(struct fit *f);
+
+/* Launch the fitting thread. Returns 0 or -1. */
+int fit_start(struct fit *f);
+void fit_pause(struct fit *f);
+void fit_resume(struct fit *f);
+/* Ask the fit to end after the current block; the model so far is kept
+ * and a final snapshot published. */
+void fit_stop(struct fit *f);
+/* Let a fit that levelled off (or is about to) run on until stopped or
+ * max_sweeps. Has no effect after the thread ended. */
+void fit_extend(struct fit *f);
+
+/* Wait for the thread to end; returns the final state. */
+enum fit_state fit_wait(struct fit *f);
+enum fit_state fit_get_state(struct fit *f);
+
+/* The newest snapshot (never NULL after fit_new(): the seeded or resumed
+ * model is published first). Caller releases with snapshot_release(). */
+struct snapshot *fit_snapshot(struct fit *f);
+
+/* A descriptor that becomes readable when something new is published;
+ * call fit_drain_wake() after poll() says so. */
+int fit_wake_fd(struct fit *f);
+void fit_drain_wake(struct fit *f);
+
+const struct fit_params *fit_get_params(const struct fit *f);
+
+#endif

@@ -1,0 +1,91 @@
+/*
+ * graph: an undirected simple graph in compressed sparse rows, with the
+ * node names of the file it came from.
+ *
+ * Rules (checked by the tests' assert_graph_sane()):
+ *   - off[0] == 0, off[n] == 2 * m, off is non-decreasing;
+ *   - adj[off[u] .. off[u+1]) holds u's neighbours, strictly increasing,
+ *     never u itself; v is in u's row exactly when u is in v's row;
+ *   - names[u] is a NUL-terminated string, distinct for distinct u;
+ *     graph_find(g, names[u]) == u.
+ * Node ids are 32-bit: a graph with 2^32 - 1 nodes or more is refused.
+ * Ids are given in order of first appearance in the file.
+ */
+#ifndef COTERIE_GRAPH_H
+#define COTERIE_GRAPH_H
+
+#include <stdint.h>
+
+enum graph_format {
+	GRAPH_FORMAT_AUTO = 0, /* by extension, ".gz" stripped first; else edges */
+	GRAPH_FORMAT_EDGES,    /* two names per line, tab/space/comma */
+	GRAPH_FORMAT_GML,
+	GRAPH_FORMAT_GRAPHML,
+	GRAPH_FORMAT_PAJEK,
+};
+
+/* What loading found; also written to run.json. */
+struct graph_report {
+	enum graph_format format;  /* the format actually read */
+	uint64_t lines;            /* lines read (edge lists) */
+	uint64_t edges_read;       /* edge records before cleaning */
+	uint64_t self_loops;       /* dropped */
+	uint64_t duplicates;       /* merged (including u-v after v-u) */
+	uint64_t extra_columns;    /* lines whose extra columns were ignored */
+	uint64_t isolated;         /* nodes of degree 0 (kept) */
+	int directed_input;        /* the file declared a directed graph */
+};
+
+struct nametable; /* opaque: name -> id hash map */
+
+struct graph {
+	uint32_t n;        /* nodes */
+	uint64_t m;        /* undirected edges, each counted once */
+	uint64_t *off;     /* n + 1 row offsets */
+	uint32_t *adj;     /* 2 * m neighbour ids */
+	char **names;      /* n names; point into the graph's own storage */
+	struct nametable *index;
+	struct graph_report report;
+	char *source;      /* the path it was loaded from ("-" for stdin) */
+};
+
+/* Parse a --format value ("edges", "gml", "graphml", "pajek", "auto").
+ * Returns 0, or -1 (with error()) for an unknown name. */
+int graph_format_parse(const char *s, enum graph_format *out);
+const char *graph_format_name(enum graph_format f);
+
+/*
+ * Load a graph. path "-" reads standard input (edge-list format unless fmt
+ * says otherwise). Edge lists ending in ".gz" (or starting with gzip's
+ * magic bytes) are decompressed on the fly. Errors name the file and line
+ * and return NULL. Notices (counts) go through notice().
+ * Caller frees with graph_free().
+ */
+struct graph *graph_load(const char *path, enum graph_format fmt);
+
+/*
+ * Build a graph from id pairs (tests, simulation). names may be NULL, in
+ * which case node u is named by its decimal id. Self-loops and duplicates
+ * are cleaned as by graph_load(). pairs is borrowed (2 * npairs ids < n).
+ * Caller frees with graph_free(); NULL on failure.
+ */
+struct graph *graph_from_pairs(uint32_t n, const uint32_t *pairs, uint64_t npairs,
+			       const char *const *names);
+
+void graph_free(struct graph *g);
+
+static inline uint32_t graph_degree(const struct graph *g, uint32_t u)
+{
+	return (uint32_t)(g->off[u + 1] - g->off[u]);
+}
+
+/* Id of a node by exact name, or -1. */
+int64_t graph_find(const struct graph *g, const char *name);
+/* 1 when u and v are linked (binary search of the shorter row). */
+int graph_has_edge(const struct graph *g, uint32_t u, uint32_t v);
+
+/* A fingerprint of the structure and the names: equal graphs, equal
+ * fingerprints. Used to refuse resuming a checkpoint on another graph. */
+uint64_t graph_fingerprint(const struct graph *g);
+
+#endif

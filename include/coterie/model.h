@@ -1,0 +1,126 @@
+/*
+ * model: the nonnegative relaxation of the affiliation model (Yang &
+ * Leskovec, WSDM 2013), held as sparse rows of strengths.
+ *
+ * Each node u has strengths F[u][c] >= 0; only positive ones are stored.
+ * With background epsilon (a community everyone shares, as in the AGM) and
+ * qeps = -ln(1 - epsilon), the probability of a link is
+ *     P(u,v) = 1 - exp(-(F_u . F_v + qeps))
+ * and the log-likelihood of the graph is
+ *     l(F) = sum_{uv in E} log(1 - exp(-(x_uv + qeps)))
+ *            - sum_{uv not in E} (x_uv + qeps),     x_uv = F_u . F_v.
+ * With epsilon = 0 this is exactly the relaxed objective of DESIGN.md; the
+ * background keeps every term finite (no log(0) for an edge whose ends
+ * share nothing) and adds only a constant to the non-edge part.
+ *
+ * Rules (tests: assert_model_sane()):
+ *   - every row's entries are sorted by community, strictly increasing;
+ *   - every stored value v satisfies 0 < v <= MODEL_FMAX;
+ *   - colsum[c] equals the sum of column c (up to rounding).
+ */
+#ifndef COTERIE_MODEL_H
+#define COTERIE_MODEL_H
+
+#include <stdint.h>
+
+struct graph;
+
+#define MODEL_FMAX 1000.0 /* strengths are capped here */
+#define MODEL_MAX_K 1000000u
+
+struct fentry {
+	uint32_t c; /* community column */
+	double v;   /* strength, > 0 */
+};
+
+struct frow {
+	uint32_t nnz, cap;
+	struct fentry *e;
+};
+
+struct model {
+	uint32_t n, k;
+	double epsilon; /* background link probability */
+	double qeps;    /* -ln(1 - epsilon) */
+	double delta;   /* membership threshold sqrt(qeps) */
+	struct frow *rows; /* n rows */
+	double *colsum;    /* k column sums */
+};
+
+/* Immutable strengths in compressed rows: what snapshots, checkpoints and
+ * the AGM estimate read. off[n] entries in e; colsum has k values. */
+struct fcsr {
+	uint32_t n, k;
+	uint64_t *off;
+	struct fentry *e;
+	double *colsum;
+};
+
+/* The default background: the graph's density 2m / (n (n - 1)), kept
+ * within [1e-12, 0.5]. */
+double model_default_epsilon(const struct graph *g);
+
+/* Set up an all-zero model. epsilon in [0, 1). Returns 0 or -1. */
+int model_init(struct model *m, uint32_t n, uint32_t k, double epsilon);
+void model_release(struct model *m);
+
+/* Replace row u by the nnz entries e (borrowed; sorted, positive, capped
+ * on the way in) and keep colsum up to date. Returns 0 or -1. */
+int model_set_row(struct model *m, uint32_t u, const struct fentry *e, uint32_t nnz);
+
+/* Recompute colsum from the rows (after loading a checkpoint, say). */
+void model_recount(struct model *m);
+
+/* Sparse dot product of two sorted rows. */
+double model_dot(const struct fentry *a, uint32_t na, const struct fentry *b, uint32_t nb);
+
+/* log(1 - exp(-x)) for x > 0, computed as log(-expm1(-x)); -inf at 0. */
+double model_log1mexp(double x);
+
+/* The whole-graph log-likelihood l(F) above, in O(m nnz + n nnz). */
+double model_loglik(const struct model *m, const struct graph *g);
+
+/* Copy the model into compressed rows. Returns 0 or -1. Release the copy
+ * with fcsr_release(). */
+int model_export(const struct model *m, struct fcsr *out);
+/* Load compressed rows into an initialised model of the same shape. */
+int model_import(struct model *m, const struct fcsr *in);
+void fcsr_release(struct fcsr *f);
+
+/*
+ * One node's update. A struct model_work holds a thread's scratch space
+ * (dense arrays of length k, reused across rows). The update reads the
+ * model (neighbour rows, colsum) and never writes it, so many threads may
+ * compute rows at once; the caller applies the result with
+ * model_set_row(). The neighbour rows could as well be borrowed copies
+ * from another process: nothing but m->rows[v] for v in N(u) and
+ * m->colsum is read.
+ */
+struct model_work;
+struct model_work *model_work_new(uint32_t k);
+void model_work_free(struct model_work *w);
+
+/* The row objective of u if its row were r (nnz entries): the terms of
+ * l(F) that involve u, namely
+ *   sum_{v in N(u)} log(1 - exp(-(r . F_v + qeps))) - r . (colsum - F_u - sum_{v in N(u)} F_v)
+ * where F_u is u's current row in the model. */
+double model_row_objective(const struct model *m, const struct graph *g, uint32_t u,
+			   const struct fentry *r, uint32_t nnz, struct model_work *w);
+
+/* The gradient of the row objective at u's current row, for every
+ * community c, into grad (k doubles, borrowed). */
+void model_row_gradient(const struct model *m, const struct graph *g, uint32_t u,
+			struct model_work *w, double *grad);
+
+/*
+ * Projected gradient step with Armijo backtracking: F_u <- max(0, F_u + a g),
+ * capped at MODEL_FMAX, trying a = 1, 1/2, 1/4, ... until the objective
+ * rises by at least 1e-4 * g . (new - old). On success *out points into
+ * w's storage (valid until the next call with w) with *out_nnz entries and
+ * the function returns 1; it returns 0 when no step improves the row (the
+ * caller keeps the old row).
+ */
+int model_update_row(const struct model *m, const struct graph *g, uint32_t u,
+		     struct model_work *w, const struct fentry **out, uint32_t *out_nnz);
+
+#endif

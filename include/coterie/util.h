@@ -1,0 +1,71 @@
+/*
+ * util: messages, the three levels of error, and small helpers shared by
+ * every core module.
+ *
+ * Library code reports with error(), which prints one line and returns -1;
+ * callers propagate. Only the command layer exits (see cli/cli.h die()).
+ * Messages are lower case, problem first, no full stop.
+ */
+#ifndef COTERIE_UTIL_H
+#define COTERIE_UTIL_H
+
+#include <stddef.h>
+#include <stdint.h>
+#include <stdio.h>
+
+#if defined(__GNUC__)
+#define COTERIE_PRINTF(a, b) __attribute__((format(printf, a, b)))
+#define COTERIE_NORETURN __attribute__((noreturn))
+#else
+#define COTERIE_PRINTF(a, b)
+#define COTERIE_NORETURN
+#endif
+
+/* Where messages go. The default sink writes "coterie: MSG\n" to stderr.
+ * The explorer installs its own while curses owns the screen. The sink
+ * receives a message without prefix or newline; it must be thread safe. */
+typedef void (*util_sink_fn)(int level, const char *msg);
+enum { UTIL_ERROR = 0, UTIL_WARNING = 1, UTIL_NOTICE = 2 };
+void util_set_sink(util_sink_fn fn);
+
+/* Print an error through the sink; always returns -1. */
+int error(const char *fmt, ...) COTERIE_PRINTF(1, 2);
+/* A warning (something was ignored or changed); returns nothing. */
+void warning(const char *fmt, ...) COTERIE_PRINTF(1, 2);
+/* A notice (counts, what was done); suppressed by util_set_quiet(1). */
+void notice(const char *fmt, ...) COTERIE_PRINTF(1, 2);
+void util_set_quiet(int quiet);
+int util_quiet(void);
+
+/* For states that cannot happen: prints file and line and aborts. */
+#define BUG(...) util_bug(__FILE__, __LINE__, __VA_ARGS__)
+COTERIE_NORETURN void util_bug(const char *file, int line, const char *fmt, ...)
+    COTERIE_PRINTF(3, 4);
+
+/* Allocation that reports through error() and returns NULL on failure
+ * (and on a size overflow in the n * size product). Caller frees with free(). */
+void *util_calloc(size_t n, size_t size);
+void *util_malloc(size_t n, size_t size);
+void *util_realloc(void *p, size_t n, size_t size);
+char *util_strdup(const char *s);
+
+/*
+ * Make a string from an unvetted file safe for a terminal: printable UTF-8
+ * passes through, everything else (C0/C1 controls, DEL, ESC, invalid UTF-8,
+ * backslash) is shown as a C-style escape (\t, \n, \e, \x1b, \\).
+ * Writes at most cap bytes including the NUL into buf (borrowed) and returns
+ * buf. ascii_only escapes every non-ASCII byte too (for non-UTF-8 locales).
+ */
+char *util_escape(const char *s, char *buf, size_t cap, int ascii_only);
+/* The same, into a newly allocated string; caller frees with free(). */
+char *util_escape_dup(const char *s, int ascii_only);
+
+/* Monotonic seconds, for progress and traces. */
+double util_now(void);
+
+/* 64-bit FNV-1a over a buffer, continuing from h (start with
+ * UTIL_FNV_INIT). Used for graph fingerprints and checkpoint checksums. */
+#define UTIL_FNV_INIT 0xcbf29ce484222325ULL
+uint64_t util_fnv1a(uint64_t h, const void *buf, size_t len);
+
+#endif

@@ -1,0 +1,121 @@
+/* Shared test helpers; see helpers.h. */
+#include "helpers.h"
+
+#include <errno.h>
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <unistd.h>
+
+#include "coterie/cover.h"
+#include "coterie/graph.h"
+#include "coterie/model.h"
+
+void assert_graph_sane(const struct graph *g)
+{
+	assert_non_null(g);
+	assert_int_equal(g->off[0], 0);
+	assert_int_equal(g->off[g->n], 2 * g->m);
+	for (uint32_t u = 0; u < g->n; u++) {
+		assert_true(g->off[u] <= g->off[u + 1]);
+		for (uint64_t i = g->off[u]; i < g->off[u + 1]; i++) {
+			uint32_t v = g->adj[i];
+			assert_true(v < g->n);
+			assert_true(v != u);
+			if (i > g->off[u])
+				assert_true(g->adj[i - 1] < v);
+			assert_true(graph_has_edge(g, v, u));
+		}
+		assert_non_null(g->names[u]);
+		assert_int_equal(graph_find(g, g->names[u]), u);
+	}
+}
+
+void assert_model_sane(const struct model *m)
+{
+	double *sum = calloc(m->k ? m->k : 1, sizeof *sum);
+	assert_non_null(sum);
+	for (uint32_t u = 0; u < m->n; u++) {
+		const struct frow *r = &m->rows[u];
+		assert_true(r->nnz <= r->cap || r->nnz == 0);
+		for (uint32_t i = 0; i < r->nnz; i++) {
+			assert_true(r->e[i].c < m->k);
+			if (i)
+				assert_true(r->e[i - 1].c < r->e[i].c);
+			assert_true(r->e[i].v > 0 && r->e[i].v <= MODEL_FMAX);
+			sum[r->e[i].c] += r->e[i].v;
+		}
+	}
+	for (uint32_t c = 0; c < m->k; c++)
+		assert_true(fabs(sum[c] - m->colsum[c]) <= 1e-9 * (1.0 + fabs(sum[c])));
+	free(sum);
+}
+
+void assert_fcsr_sane(const struct fcsr *f)
+{
+	assert_int_equal(f->off[0], 0);
+	for (uint32_t u = 0; u < f->n; u++) {
+		assert_true(f->off[u] <= f->off[u + 1]);
+		for (uint64_t i = f->off[u]; i < f->off[u + 1]; i++) {
+			assert_true(f->e[i].c < f->k);
+			if (i > f->off[u])
+				assert_true(f->e[i - 1].c < f->e[i].c);
+			assert_true(f->e[i].v > 0 && f->e[i].v <= MODEL_FMAX);
+		}
+	}
+}
+
+void assert_cover_sane(const struct cover *c)
+{
+	assert_int_equal(c->off[0], 0);
+	for (uint32_t i = 0; i < c->k; i++) {
+		assert_true(c->off[i] <= c->off[i + 1]);
+		for (uint64_t j = c->off[i]; j < c->off[i + 1]; j++) {
+			assert_true(c->mem[j] < c->n);
+			if (j > c->off[i])
+				assert_true(c->mem[j - 1] < c->mem[j]);
+		}
+		assert_non_null(c->label[i]);
+	}
+}
+
+const char *test_data(const char *rel)
+{
+	static char buf[4096];
+	const char *root = getenv("COTERIE_TEST_DATA");
+	snprintf(buf, sizeof buf, "%s/%s", root ? root : "tests/data", rel);
+	return buf;
+}
+
+const char *test_tmpdir(void)
+{
+	static char buf[256];
+	const char *t = getenv("TMPDIR");
+	snprintf(buf, sizeof buf, "%s/coterie-test-XXXXXX", t ? t : "/tmp");
+	if (!mkdtemp(buf))
+		fail_msg("mkdtemp: %s", strerror(errno));
+	return buf;
+}
+
+void test_rmtree(const char *dir)
+{
+	char cmd[4200];
+	if (!dir || !strstr(dir, "coterie-test-"))
+		return;
+	snprintf(cmd, sizeof cmd, "rm -rf '%s'", dir);
+	if (system(cmd) != 0)
+		fprintf(stderr, "warning: could not remove %s\n", dir);
+}
+
+const char *test_write_file(const char *dir, const char *name, const char *text)
+{
+	static char path[4096];
+	snprintf(path, sizeof path, "%s/%s", dir, name);
+	FILE *f = fopen(path, "wb");
+	if (!f)
+		fail_msg("cannot write %s: %s", path, strerror(errno));
+	fputs(text, f);
+	fclose(f);
+	return path;
+}
