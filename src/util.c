@@ -99,7 +99,7 @@ void *util_malloc(size_t n, size_t size)
 		error("out of memory: %zu x %zu bytes", n, size);
 		return NULL;
 	}
-	void *p = malloc(n * size ? n * size : 1);
+	void *p = malloc((n * size) != 0 ? n * size : 1);
 	if (!p)
 		error("out of memory: %zu bytes", n * size);
 	return p;
@@ -119,7 +119,7 @@ void *util_realloc(void *old, size_t n, size_t size)
 		error("out of memory: %zu x %zu bytes", n, size);
 		return NULL;
 	}
-	void *p = realloc(old, n * size ? n * size : 1);
+	void *p = realloc(old, (n * size) != 0 ? n * size : 1);
 	if (!p)
 		error("out of memory: %zu bytes", n * size);
 	return p;
