@@ -35,7 +35,8 @@ enum fit_state {
 };
 
 const char *fit_state_name(enum fit_state s);
-/* 1 for the states in which the thread has ended. */
+/* 1 for the states that end a fit: LEVELLED (even while holding, the
+ * model is final unless extended), STOPPED, FINISHED, FAILED. */
 int fit_state_ended(enum fit_state s);
 
 struct fit_params {
@@ -47,6 +48,8 @@ struct fit_params {
 	unsigned max_sweeps; /* hard limit on the sweep count (total, resumes included) */
 	double epsilon;      /* background; <= 0 picks model_default_epsilon() */
 	int past_plateau;    /* 1: do not stop at a plateau, only mark it */
+	int hold_at_plateau; /* 1: at a plateau wait (state LEVELLED) for
+			      * fit_extend() or fit_stop() instead of ending */
 };
 
 /* Defaults: k 10, 1 thread, seed 1, tol 1e-4, patience 3, 500 sweeps. */
@@ -107,7 +110,8 @@ void fit_resume(struct fit *f);
  * and a final snapshot published. */
 void fit_stop(struct fit *f);
 /* Let a fit that levelled off (or is about to) run on until stopped or
- * max_sweeps. Has no effect after the thread ended. */
+ * max_sweeps: a fit holding at a plateau goes on fitting. Has no effect
+ * after the thread ended. */
 void fit_extend(struct fit *f);
 
 /* Wait for the thread to end; returns the final state. */

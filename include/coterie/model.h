@@ -21,6 +21,7 @@
 #ifndef COTERIE_MODEL_H
 #define COTERIE_MODEL_H
 
+#include <stddef.h>
 #include <stdint.h>
 
 struct graph;
@@ -74,11 +75,25 @@ void model_recount(struct model *m);
 /* Sparse dot product of two sorted rows. */
 double model_dot(const struct fentry *a, uint32_t na, const struct fentry *b, uint32_t nb);
 
-/* log(1 - exp(-x)) for x > 0, computed as log(-expm1(-x)); -inf at 0. */
+/* log(1 - exp(-x)) for x > 0: log(-expm1(-x)) for small x, log1p(-exp(-x))
+ * for large; -inf at 0. */
 double model_log1mexp(double x);
 
 /* The whole-graph log-likelihood l(F) above, in O(m nnz + n nnz). */
 double model_loglik(const struct model *m, const struct graph *g);
+
+/* The same in pieces, so threads can share the work: the parts over nodes
+ * [u0, u1) (edges counted from their smaller end), then combined. Summing
+ * parts of fixed ranges in a fixed order gives the same bits every time. */
+struct model_llpart {
+	double edge_log; /* sum over edges of log(1 - exp(-(x + qeps))) */
+	double edge_dot; /* sum over edges of x */
+	double self_sq;  /* sum over nodes of F_u . F_u */
+};
+void model_loglik_range(const struct model *m, const struct graph *g, uint32_t u0, uint32_t u1,
+			struct model_llpart *part);
+double model_loglik_combine(const struct model *m, const struct graph *g,
+			    const struct model_llpart *parts, size_t nparts);
 
 /* Copy the model into compressed rows. Returns 0 or -1. Release the copy
  * with fcsr_release(). */

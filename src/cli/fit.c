@@ -1,0 +1,322 @@
+/*
+ * cli/fit: `coterie fit GRAPH -k N -o DIR`.
+ *
+ * The main thread loads the graph, proves the output folder writable,
+ * starts the fitting thread and then only watches: it poll()s the fit's
+ * wake-up pipe and the signal pipe, prints progress, writes a checkpoint
+ * now and then, and writes the result folder at the end. An interrupt
+ * (Ctrl-C, SIGTERM, a lost terminal) stops the fit, saves, and exits 130.
+ */
+#include <getopt.h>
+#include <math.h>
+#include <poll.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <unistd.h>
+
+#include "cli.h"
+#include "coterie/fit.h"
+#include "coterie/graph.h"
+#include "coterie/result.h"
+
+static void fit_usage(FILE *out)
+{
+	fprintf(out,
+		"usage: coterie fit GRAPH -k N -o DIR [options]\n"
+		"       coterie fit [GRAPH] --resume DIR [-o DIR] [options]\n"
+		"\n"
+		"Fit N overlapping communities to GRAPH and write a result folder.\n"
+		"GRAPH is an edge list (.gz too; - for standard input), GML, GraphML or Pajek.\n"
+		"\n"
+		"  -k, --communities N   number of communities to fit (required)\n"
+		"  -o, --output DIR      result folder (made if missing; required)\n"
+		"  -j, --threads N       worker threads (default: every core)\n"
+		"      --seed N          random seed (default 1); same seed, same result\n"
+		"      --tol X           plateau: relative gain per sweep below X ...\n"
+		"      --patience N      ... for N sweeps in a row (defaults 1e-4, 3)\n"
+		"      --max-sweeps N    stop after N sweeps in all (default 500)\n"
+		"      --past-plateau    do not stop at a plateau; run to --max-sweeps\n"
+		"      --epsilon X       background link probability (default: the density)\n"
+		"      --format F        edges, gml, graphml or pajek (default: by extension)\n"
+		"      --resume DIR      continue the fit saved in DIR (same graph only)\n"
+		"      --save-every S    write a checkpoint every S seconds (default 120)\n"
+		"  -q, --quiet           no progress or notices\n"
+		"  -h, --help            this text\n");
+}
+
+struct progress {
+	int tty;
+	int quiet;
+	double last_print;
+	uint32_t last_sweep;
+	int line_open;
+};
+
+static void progress_show(struct progress *pr, const struct snapshot *s, int final)
+{
+	if (pr->quiet || s->ntrace == 0)
+		return;
+	double now = util_now();
+	const struct trace_point *t = &s->trace[s->ntrace - 1];
+	double gain = 0.0;
+	if (s->ntrace >= 2) {
+		double prev = s->trace[s->ntrace - 2].loglik;
+		gain = (t->loglik - prev) / (fabs(prev) > 0 ? fabs(prev) : 1.0);
+	}
+	char line[256];
+	snprintf(line, sizeof line,
+		 "sweep %u  loglik %.6g  gain %.2e  %.2f sweeps/s  %.1f s%s", s->sweep, t->loglik,
+		 gain, s->sweeps_per_sec, s->seconds, s->plateau ? "  [levelled]" : "");
+	if (pr->tty) {
+		fprintf(stderr, "\r\033[K%s", line);
+		pr->line_open = 1;
+		if (final) {
+			fputc('\n', stderr);
+			pr->line_open = 0;
+		}
+	} else if (final || s->sweep != pr->last_sweep) {
+		if (final || now - pr->last_print >= 1.0 || s->sweep <= 1) {
+			fprintf(stderr, "coterie: %s\n", line);
+			pr->last_print = now;
+		}
+	}
+	pr->last_sweep = s->sweep;
+	fflush(stderr);
+}
+
+static void progress_break(struct progress *pr)
+{
+	if (pr->line_open) {
+		fputc('\n', stderr);
+		pr->line_open = 0;
+	}
+}
+
+enum {
+	OPT_SEED = 256,
+	OPT_TOL,
+	OPT_PATIENCE,
+	OPT_MAX_SWEEPS,
+	OPT_PAST_PLATEAU,
+	OPT_EPSILON,
+	OPT_FORMAT,
+	OPT_RESUME,
+	OPT_SAVE_EVERY,
+};
+
+int cmd_fit(int argc, char **argv)
+{
+	static const struct option opts[] = {
+		{ "communities", required_argument, NULL, 'k' },
+		{ "output", required_argument, NULL, 'o' },
+		{ "threads", required_argument, NULL, 'j' },
+		{ "seed", required_argument, NULL, OPT_SEED },
+		{ "tol", required_argument, NULL, OPT_TOL },
+		{ "patience", required_argument, NULL, OPT_PATIENCE },
+		{ "max-sweeps", required_argument, NULL, OPT_MAX_SWEEPS },
+		{ "past-plateau", no_argument, NULL, OPT_PAST_PLATEAU },
+		{ "epsilon", required_argument, NULL, OPT_EPSILON },
+		{ "format", required_argument, NULL, OPT_FORMAT },
+		{ "resume", required_argument, NULL, OPT_RESUME },
+		{ "save-every", required_argument, NULL, OPT_SAVE_EVERY },
+		{ "quiet", no_argument, NULL, 'q' },
+		{ "help", no_argument, NULL, 'h' },
+		{ NULL, 0, NULL, 0 },
+	};
+	struct fit_params p;
+	fit_params_default(&p);
+	long cores = sysconf(_SC_NPROCESSORS_ONLN);
+	p.threads = cores > 0 ? (unsigned)(cores > 256 ? 256 : cores) : 1;
+	int have_k = 0, have_tol = 0, have_pat = 0, have_max = 0, have_eps = 0,
+	    have_seed = 0, quiet = 0;
+	const char *out = NULL, *resume = NULL;
+	enum graph_format fmt = GRAPH_FORMAT_AUTO;
+	double save_every = 120.0;
+	int c;
+	optind = 1;
+	while ((c = getopt_long(argc, argv, "k:o:j:qh", opts, NULL)) != -1) {
+		switch (c) {
+		case 'k': p.k = cli_u32("-k", optarg, 1, MODEL_MAX_K); have_k = 1; break;
+		case 'o': out = optarg; break;
+		case 'j': p.threads = cli_u32("-j", optarg, 1, 256); break;
+		case OPT_SEED: p.seed = cli_u64("--seed", optarg); have_seed = 1; break;
+		case OPT_TOL: p.tol = cli_double("--tol", optarg, 0.0, 1.0); have_tol = 1; break;
+		case OPT_PATIENCE: p.patience = cli_u32("--patience", optarg, 1, 1000); have_pat = 1; break;
+		case OPT_MAX_SWEEPS:
+			p.max_sweeps = cli_u32("--max-sweeps", optarg, 0, 100000000);
+			have_max = 1;
+			break;
+		case OPT_PAST_PLATEAU: p.past_plateau = 1; break;
+		case OPT_EPSILON: p.epsilon = cli_double("--epsilon", optarg, 1e-300, 0.5); have_eps = 1; break;
+		case OPT_FORMAT:
+			if (graph_format_parse(optarg, &fmt))
+				return EXIT_USAGE;
+			break;
+		case OPT_RESUME: resume = optarg; break;
+		case OPT_SAVE_EVERY: save_every = cli_double("--save-every", optarg, 1.0, 1e9); break;
+		case 'q': quiet = 1; break;
+		case 'h': fit_usage(stdout); return 0;
+		default: fit_usage(stderr); return EXIT_USAGE;
+		}
+	}
+	if (argc - optind > 1)
+		die(EXIT_USAGE, "fit takes one graph, not %d", argc - optind);
+	const char *gpath = optind < argc ? argv[optind] : NULL;
+	if (!gpath && !resume) {
+		fit_usage(stderr);
+		die(EXIT_USAGE, "fit needs a graph file (or - for standard input)");
+	}
+	if (!resume && !have_k)
+		die(EXIT_USAGE, "fit needs the number of communities: -k N");
+	if (!out)
+		out = resume;
+	if (!out)
+		die(EXIT_USAGE, "fit needs an output folder: -o DIR");
+	util_set_quiet(quiet);
+
+	/* refuse early: a long fit whose result cannot be written is lost work */
+	if (result_prepare_dir(out))
+		return 1;
+	if (cli_signals_install())
+		return 1;
+
+	double t_begin = util_now();
+	struct checkpoint ck;
+	memset(&ck, 0, sizeof ck);
+	struct graph *g = NULL;
+	struct fit_origin origin, *orig = NULL;
+	if (resume) {
+		char path[4096];
+		snprintf(path, sizeof path, "%s/%s", resume, RESULT_CHECKPOINT);
+		if (result_read_checkpoint(path, &ck))
+			return 1;
+		if (gpath) {
+			g = graph_load(gpath, fmt);
+			if (!g) {
+				checkpoint_release(&ck);
+				return 1;
+			}
+			if (graph_fingerprint(g) != ck.fingerprint) {
+				error("'%s' is not the graph the fit in '%s' was made on; refusing to resume",
+				      gpath, resume);
+				graph_free(g);
+				checkpoint_release(&ck);
+				return 1;
+			}
+		}
+		if (have_k && p.k != ck.params.k)
+			die(EXIT_USAGE, "the saved fit has %u communities; -k %u cannot change that",
+			    ck.params.k, p.k);
+		struct fit_params saved = ck.params;
+		saved.threads = p.threads; /* this machine's choice, not the saved one */
+		if (have_tol)
+			saved.tol = p.tol;
+		if (have_pat)
+			saved.patience = p.patience;
+		if (have_max)
+			saved.max_sweeps = p.max_sweeps;
+		if (have_eps && p.epsilon != saved.epsilon)
+			die(EXIT_USAGE, "--epsilon cannot change when resuming");
+		if (have_seed && p.seed != saved.seed)
+			warning("--seed is ignored when resuming; the fit keeps seed %llu",
+				(unsigned long long)saved.seed);
+		saved.past_plateau = saved.past_plateau || p.past_plateau;
+		p = saved;
+		p.hold_at_plateau = 0;
+		if (ck.state == FIT_LEVELLED && !p.past_plateau)
+			notice("the saved fit had levelled off; it goes on until it levels off again");
+		checkpoint_origin(&ck, &origin);
+		orig = &origin;
+	} else {
+		g = graph_load(gpath, fmt);
+		if (!g)
+			return 1;
+	}
+	const struct graph *graph = g ? g : ck.graph;
+
+	struct fit *f = fit_new(graph, &p, orig);
+	if (!f) {
+		graph_free(g);
+		checkpoint_release(&ck);
+		return 1;
+	}
+	if (!quiet)
+		notice("fitting %u communities on %u nodes and %llu edges with %u thread%s",
+		       p.k, graph->n, (unsigned long long)graph->m, p.threads,
+		       p.threads == 1 ? "" : "s");
+	if (fit_start(f)) {
+		fit_free(f);
+		graph_free(g);
+		checkpoint_release(&ck);
+		return 1;
+	}
+
+	struct progress pr = { isatty(2), quiet, 0, 0, 0 };
+	double last_save = util_now();
+	int interrupted = 0;
+	char ckpath[4096];
+	snprintf(ckpath, sizeof ckpath, "%s/%s", out, RESULT_CHECKPOINT);
+	for (;;) {
+		struct pollfd pfd[2] = {
+			{ fit_wake_fd(f), POLLIN, 0 },
+			{ cli_signal_fd(), POLLIN, 0 },
+		};
+		poll(pfd, 2, 500);
+		fit_drain_wake(f);
+		if (cli_signal_caught() && !interrupted) {
+			interrupted = 1;
+			progress_break(&pr);
+			notice("interrupted: stopping the fit and saving to '%s'", out);
+			fit_stop(f);
+		}
+		enum fit_state st = fit_get_state(f);
+		struct snapshot *s = fit_snapshot(f);
+		if (fit_state_ended(st) && s->state == st) {
+			snapshot_release(s);
+			break;
+		}
+		progress_show(&pr, s, 0);
+		if (util_now() - last_save >= save_every && s->ntrace > 0) {
+			if (result_write_checkpoint(ckpath, graph, &p, s) == 0)
+				last_save = util_now();
+			else
+				last_save = util_now(); /* reported; try again later */
+		}
+		snapshot_release(s);
+	}
+	enum fit_state st = fit_wait(f);
+	struct snapshot *s = fit_snapshot(f);
+	progress_show(&pr, s, 1);
+
+	const char *status = interrupted ? "interrupted" : fit_state_name(st);
+	struct result_meta meta = {
+		.command_line = cli_command_line(),
+		.graph_path = gpath ? gpath : (ck.graph ? ck.graph->source : ""),
+		.wall_seconds = util_now() - t_begin,
+		.peak_rss_kb = cli_peak_rss_kb(),
+		.status = status,
+	};
+	int rc = 0;
+	if (st == FIT_FAILED || s->ntrace == 0) {
+		error("the fit failed; nothing written to '%s'", out);
+		rc = 1;
+	} else if (result_write(out, graph, &p, s, &meta)) {
+		rc = 1;
+	} else if (!quiet) {
+		const char *how = st == FIT_LEVELLED ? "levelled off" :
+				  st == FIT_FINISHED ? "reached the sweep limit" :
+				  interrupted ? "was interrupted" : "was stopped";
+		notice("the fit %s after %u sweeps in %.1f s: %u communities, %u of %u nodes "
+		       "in at least one, %u in two or more; results in '%s'",
+		       how, s->sweep, s->seconds, s->agm.cover.k, s->agm.covered, graph->n,
+		       s->agm.overlapping, out);
+	}
+	snapshot_release(s);
+	fit_free(f);
+	graph_free(g);
+	checkpoint_release(&ck);
+	if (rc)
+		return rc;
+	return interrupted ? EXIT_INTERRUPTED : 0;
+}

@@ -1,0 +1,51 @@
+/* main: dispatch to a subcommand. */
+#include <locale.h>
+#include <stdio.h>
+#include <string.h>
+
+#include <igraph.h>
+
+#include "cli.h"
+
+static const struct {
+	const char *name;
+	int (*fn)(int, char **);
+	const char *what;
+} commands[] = {
+	{ "fit", cmd_fit, "fit overlapping communities to a graph and write a result folder" },
+};
+
+static void usage(FILE *out)
+{
+	fprintf(out, "usage: coterie COMMAND [options]\n\ncommands:\n");
+	for (size_t i = 0; i < sizeof commands / sizeof commands[0]; i++)
+		fprintf(out, "  %-8s %s\n", commands[i].name, commands[i].what);
+	fprintf(out, "\n'coterie COMMAND --help' describes a command; man coterie has it all.\n");
+}
+
+int main(int argc, char **argv)
+{
+	setlocale(LC_ALL, "");
+	igraph_set_error_handler(igraph_error_handler_printignore);
+	igraph_set_warning_handler(igraph_warning_handler_ignore);
+	cli_set_command_line(argc, argv);
+	if (argc < 2) {
+		usage(stderr);
+		return EXIT_USAGE;
+	}
+	if (!strcmp(argv[1], "--help") || !strcmp(argv[1], "-h") || !strcmp(argv[1], "help")) {
+		usage(stdout);
+		return 0;
+	}
+	if (!strcmp(argv[1], "--version") || !strcmp(argv[1], "-V")) {
+		printf("coterie %s\n", COTERIE_VERSION);
+		return 0;
+	}
+	for (size_t i = 0; i < sizeof commands / sizeof commands[0]; i++)
+		if (!strcmp(argv[1], commands[i].name))
+			return commands[i].fn(argc - 1, argv + 1);
+	char buf[256];
+	error("unknown command '%s'", util_escape(argv[1], buf, sizeof buf, 1));
+	usage(stderr);
+	return EXIT_USAGE;
+}

@@ -1,0 +1,694 @@
+/*
+ * fit: the fitting engine and its threads.
+ *
+ * Threads. fit_start() launches the fitting thread, which owns the working
+ * model; it runs sweeps with a pool of (threads - 1) workers plus itself.
+ * Readers never touch the model: after every sweep (and on pause, stop and
+ * at the end) the fitting thread builds an immutable, reference-counted
+ * snapshot and swaps it in under `lock`; fit_snapshot() takes a reference
+ * under the same lock, so readers wait at most for a pointer swap. A byte
+ * written to a pipe wakes a reader that poll()s fit_wake_fd().
+ *
+ * Determinism. Sweep s visits the nodes in a permutation drawn from
+ * (seed, s). The permutation is cut into blocks whose boundaries depend
+ * only on degrees; every row of a block is computed from the model as it
+ * was at the start of the block (so it does not matter which thread
+ * computes which row), and the new rows are applied in permutation order.
+ * The likelihood is summed over fixed node ranges in a fixed order. So the
+ * bytes out depend on the seed, never on the thread count.
+ *
+ * Control. pause/stop/extend are atomics read between blocks; a paused or
+ * holding fit sleeps on a condition variable. The one thing a newcomer
+ * gets wrong: workers read the model while the fitting thread applies
+ * rows, so rows are applied only between the two pool barriers.
+ */
+#include "coterie/fit.h"
+
+#include <errno.h>
+#include <fcntl.h>
+#include <math.h>
+#include <pthread.h>
+#include <signal.h>
+#include <stdatomic.h>
+#include <stdlib.h>
+#include <string.h>
+#include <unistd.h>
+
+#include "coterie/graph.h"
+#include "coterie/rng.h"
+#include "coterie/util.h"
+
+#define BLOCK_WORK 4096u  /* a block closes when sum(deg + 1) reaches this */
+#define BLOCK_NODES 1024u /* ... or when it has this many nodes */
+#define LL_CHUNK 2048u    /* nodes per likelihood part */
+#define RATE_WINDOW 5u    /* sweeps per second over this many sweeps */
+
+const char *fit_state_name(enum fit_state s)
+{
+	switch (s) {
+	case FIT_READY: return "ready";
+	case FIT_SEEDING: return "seeding";
+	case FIT_FITTING: return "fitting";
+	case FIT_PAUSED: return "paused";
+	case FIT_LEVELLED: return "levelled";
+	case FIT_STOPPED: return "stopped";
+	case FIT_FINISHED: return "finished";
+	case FIT_FAILED: return "failed";
+	}
+	return "unknown";
+}
+
+int fit_state_ended(enum fit_state s)
+{
+	return s == FIT_LEVELLED || s == FIT_STOPPED || s == FIT_FINISHED || s == FIT_FAILED;
+}
+
+void fit_params_default(struct fit_params *p)
+{
+	memset(p, 0, sizeof *p);
+	p->k = 10;
+	p->threads = 1;
+	p->seed = 1;
+	p->tol = 1e-4;
+	p->patience = 3;
+	p->max_sweeps = 500;
+	p->epsilon = 0.0;
+}
+
+/* A row computed in a block: where its entries sit in a worker's arena. */
+struct rowres {
+	uint32_t nnz;
+	int changed;
+	unsigned owner;
+	size_t at;
+};
+
+struct arena {
+	struct fentry *e;
+	size_t len, cap;
+};
+
+enum job { JOB_ROWS, JOB_LOGLIK, JOB_QUIT };
+
+struct fit {
+	const struct graph *g;
+	struct fit_params p;
+	struct model m;
+
+	/* published state, under lock */
+	pthread_mutex_t lock;
+	pthread_cond_t cond;
+	struct snapshot *latest;
+	enum fit_state state;
+
+	atomic_int stop_req, pause_req, extend_req;
+	int wake[2];
+
+	pthread_t thread;
+	int started, joined;
+
+	/* fitting-thread state */
+	struct trace_point *trace;
+	uint32_t ntrace, trace_cap;
+	uint32_t sweep;
+	uint32_t plateau_sweep;
+	unsigned streak;
+	double seconds_base, t0;
+	struct seed_report seeds;
+	int resumed;
+
+	/* the pool */
+	unsigned nthreads;
+	pthread_t *workers;
+	unsigned nworkers_started;
+	pthread_barrier_t bar_start, bar_end;
+	int barriers;
+	enum job job;
+	const uint32_t *block;
+	uint32_t block_len;
+	atomic_uint next;
+	struct model_work **work;
+	struct arena *arena;
+	struct rowres *res;
+	struct model_llpart *parts;
+	uint32_t nparts;
+	atomic_int worker_failed;
+};
+
+/* ---- snapshots ---- */
+
+void snapshot_release(struct snapshot *s)
+{
+	if (!s)
+		return;
+	if (__atomic_sub_fetch(&s->refs_, 1, __ATOMIC_ACQ_REL) > 0)
+		return;
+	free(s->trace);
+	fcsr_release(&s->F);
+	agm_release(&s->agm);
+	free(s);
+}
+
+static double rate_of(const struct trace_point *t, uint32_t n)
+{
+	if (n < 2)
+		return 0.0;
+	uint32_t back = n - 1 < RATE_WINDOW ? n - 1 : RATE_WINDOW;
+	const struct trace_point *a = &t[n - 1 - back], *b = &t[n - 1];
+	double dt = b->seconds - a->seconds;
+	return dt > 0 ? (double)(b->sweep - a->sweep) / dt : 0.0;
+}
+
+static double elapsed(const struct fit *f)
+{
+	return f->seconds_base + (util_now() - f->t0);
+}
+
+/* Build a snapshot of the current model and swap it in. */
+static int publish(struct fit *f, enum fit_state state)
+{
+	struct snapshot *s = util_calloc(1, sizeof *s);
+	if (!s)
+		return -1;
+	s->refs_ = 1;
+	s->sweep = f->sweep;
+	s->state = state;
+	s->plateau_sweep = f->plateau_sweep;
+	s->plateau = f->plateau_sweep > 0;
+	s->seconds = elapsed(f);
+	s->epsilon = f->m.epsilon;
+	s->delta = f->m.delta;
+	s->seeds = f->seeds;
+	s->ntrace = f->ntrace;
+	s->trace = util_malloc(f->ntrace ? f->ntrace : 1, sizeof *s->trace);
+	if (!s->trace)
+		goto fail;
+	memcpy(s->trace, f->trace, f->ntrace * sizeof *s->trace);
+	s->sweeps_per_sec = rate_of(f->trace, f->ntrace);
+	if (model_export(&f->m, &s->F))
+		goto fail;
+	if (agm_from_strengths(&s->agm, f->g, &s->F, f->m.epsilon, f->m.delta))
+		goto fail;
+
+	pthread_mutex_lock(&f->lock);
+	struct snapshot *old = f->latest;
+	f->latest = s;
+	f->state = state;
+	pthread_cond_broadcast(&f->cond);
+	pthread_mutex_unlock(&f->lock);
+	snapshot_release(old);
+	char byte = 1;
+	ssize_t w = write(f->wake[1], &byte, 1); /* full pipe: a wake-up is pending anyway */
+	(void)w;
+	return 0;
+fail:
+	snapshot_release(s);
+	return -1;
+}
+
+static void set_state(struct fit *f, enum fit_state st)
+{
+	pthread_mutex_lock(&f->lock);
+	f->state = st;
+	pthread_mutex_unlock(&f->lock);
+}
+
+/* ---- the pool ---- */
+
+static int arena_push(struct arena *a, const struct fentry *e, uint32_t nnz, size_t *at)
+{
+	if (a->len + nnz > a->cap) {
+		size_t cap = a->cap ? a->cap * 2 : 1024;
+		while (cap < a->len + nnz)
+			cap *= 2;
+		struct fentry *ne = realloc(a->e, cap * sizeof *ne);
+		if (!ne)
+			return -1;
+		a->e = ne;
+		a->cap = cap;
+	}
+	memcpy(a->e + a->len, e, nnz * sizeof *e);
+	*at = a->len;
+	a->len += nnz;
+	return 0;
+}
+
+/* The share of the current job done by thread tid. */
+static void run_job(struct fit *f, unsigned tid)
+{
+	if (f->job == JOB_ROWS) {
+		for (;;) {
+			uint32_t i = atomic_fetch_add(&f->next, 1);
+			if (i >= f->block_len)
+				break;
+			uint32_t u = f->block[i];
+			const struct fentry *row;
+			uint32_t nnz;
+			struct rowres *r = &f->res[i];
+			r->changed = 0;
+			if (model_update_row(&f->m, f->g, u, f->work[tid], &row, &nnz)) {
+				if (arena_push(&f->arena[tid], row, nnz, &r->at)) {
+					atomic_store(&f->worker_failed, 1);
+					continue;
+				}
+				r->changed = 1;
+				r->nnz = nnz;
+				r->owner = tid;
+			}
+		}
+	} else if (f->job == JOB_LOGLIK) {
+		for (;;) {
+			uint32_t i = atomic_fetch_add(&f->next, 1);
+			if (i >= f->nparts)
+				break;
+			uint32_t u0 = i * LL_CHUNK;
+			uint32_t u1 = u0 + LL_CHUNK < f->g->n ? u0 + LL_CHUNK : f->g->n;
+			model_loglik_range(&f->m, f->g, u0, u1, &f->parts[i]);
+		}
+	}
+}
+
+static void *worker_main(void *arg)
+{
+	void **pack = arg;
+	struct fit *f = pack[0];
+	unsigned tid = (unsigned)(uintptr_t)pack[1];
+	free(pack);
+	for (;;) {
+		pthread_barrier_wait(&f->bar_start);
+		if (f->job == JOB_QUIT)
+			break;
+		run_job(f, tid);
+		pthread_barrier_wait(&f->bar_end);
+	}
+	return NULL;
+}
+
+/* Run the current job on every thread; returns when all are done. */
+static void pool_run(struct fit *f)
+{
+	atomic_store(&f->next, 0);
+	if (f->nthreads > 1)
+		pthread_barrier_wait(&f->bar_start);
+	run_job(f, 0);
+	if (f->nthreads > 1)
+		pthread_barrier_wait(&f->bar_end);
+}
+
+static int pool_start(struct fit *f)
+{
+	if (f->nthreads <= 1)
+		return 0;
+	if (pthread_barrier_init(&f->bar_start, NULL, f->nthreads) ||
+	    pthread_barrier_init(&f->bar_end, NULL, f->nthreads))
+		return error("cannot set up the worker threads");
+	f->barriers = 1;
+	f->workers = util_calloc(f->nthreads, sizeof *f->workers);
+	if (!f->workers)
+		return -1;
+	for (unsigned t = 1; t < f->nthreads; t++) {
+		void **pack = util_malloc(2, sizeof *pack);
+		if (!pack)
+			return -1;
+		pack[0] = f;
+		pack[1] = (void *)(uintptr_t)t;
+		if (pthread_create(&f->workers[t], NULL, worker_main, pack)) {
+			free(pack);
+			/* run with the workers we have: rebuild barriers for them */
+			return error("cannot start worker thread %u", t);
+		}
+		f->nworkers_started++;
+	}
+	return 0;
+}
+
+static void pool_stop(struct fit *f)
+{
+	if (f->nworkers_started > 0) {
+		f->job = JOB_QUIT;
+		pthread_barrier_wait(&f->bar_start);
+		for (unsigned t = 1; t <= f->nworkers_started; t++)
+			pthread_join(f->workers[t], NULL);
+		f->nworkers_started = 0;
+	}
+	if (f->barriers) {
+		pthread_barrier_destroy(&f->bar_start);
+		pthread_barrier_destroy(&f->bar_end);
+		f->barriers = 0;
+	}
+}
+
+/* ---- sweeps ---- */
+
+static double compute_loglik(struct fit *f)
+{
+	f->job = JOB_LOGLIK;
+	pool_run(f);
+	return model_loglik_combine(&f->m, f->g, f->parts, f->nparts);
+}
+
+static int trace_add(struct fit *f, double ll)
+{
+	if (f->ntrace == f->trace_cap) {
+		uint32_t cap = f->trace_cap ? f->trace_cap * 2 : 64;
+		struct trace_point *nt = util_realloc(f->trace, cap, sizeof *nt);
+		if (!nt)
+			return -1;
+		f->trace = nt;
+		f->trace_cap = cap;
+	}
+	f->trace[f->ntrace++] = (struct trace_point){ f->sweep, elapsed(f), ll };
+	return 0;
+}
+
+/* Sleep while paused; returns 1 when asked to stop meanwhile. */
+static int wait_while_paused(struct fit *f)
+{
+	if (!atomic_load(&f->pause_req))
+		return atomic_load(&f->stop_req);
+	publish(f, FIT_PAUSED);
+	pthread_mutex_lock(&f->lock);
+	while (atomic_load(&f->pause_req) && !atomic_load(&f->stop_req))
+		pthread_cond_wait(&f->cond, &f->lock);
+	f->state = FIT_FITTING;
+	pthread_mutex_unlock(&f->lock);
+	return atomic_load(&f->stop_req);
+}
+
+/* One sweep; returns 1 if interrupted by a stop request, -1 on error. */
+static int sweep_once(struct fit *f, uint32_t *perm)
+{
+	uint32_t n = f->g->n;
+	struct rng r;
+	rng_init(&r, f->p.seed * 0x9e3779b97f4a7c15ULL + f->sweep);
+	for (uint32_t i = 0; i < n; i++)
+		perm[i] = i;
+	rng_shuffle_u32(&r, perm, n);
+
+	uint32_t i = 0;
+	while (i < n) {
+		if (wait_while_paused(f))
+			return 1;
+		uint32_t b = i, work = 0;
+		while (i < n && i - b < BLOCK_NODES && work < BLOCK_WORK)
+			work += graph_degree(f->g, perm[i++]) + 1;
+		f->block = perm + b;
+		f->block_len = i - b;
+		for (unsigned t = 0; t < f->nthreads; t++)
+			f->arena[t].len = 0;
+		f->job = JOB_ROWS;
+		pool_run(f);
+		if (atomic_load(&f->worker_failed))
+			return error("out of memory while fitting");
+		for (uint32_t j = 0; j < f->block_len; j++) {
+			const struct rowres *rr = &f->res[j];
+			if (!rr->changed)
+				continue;
+			if (model_set_row(&f->m, f->block[j], f->arena[rr->owner].e + rr->at, rr->nnz))
+				return -1;
+		}
+	}
+	return 0;
+}
+
+static void recount_colsum(struct fit *f)
+{
+	/* rounding drift in colsum from millions of incremental updates */
+	model_recount(&f->m);
+}
+
+static void *fit_main(void *arg)
+{
+	struct fit *f = arg;
+	enum fit_state final = FIT_FAILED;
+	uint32_t *perm = util_malloc(f->g->n ? f->g->n : 1, sizeof *perm);
+	f->t0 = util_now();
+	if (!perm || pool_start(f))
+		goto out;
+
+	if (!f->resumed) {
+		set_state(f, FIT_SEEDING);
+		if (seed_model(f->g, &f->m, f->p.seed, &f->seeds))
+			goto out;
+		if (trace_add(f, compute_loglik(f)))
+			goto out;
+	}
+	publish(f, FIT_FITTING);
+
+	final = FIT_FINISHED;
+	while (f->sweep < f->p.max_sweeps) {
+		if (atomic_load(&f->stop_req)) {
+			final = FIT_STOPPED;
+			break;
+		}
+		int rc = sweep_once(f, perm);
+		if (rc < 0) {
+			final = FIT_FAILED;
+			break;
+		}
+		f->sweep++;
+		if (f->sweep % 16 == 0)
+			recount_colsum(f);
+		double ll = compute_loglik(f);
+		double prev = f->ntrace ? f->trace[f->ntrace - 1].loglik : ll;
+		if (trace_add(f, ll)) {
+			final = FIT_FAILED;
+			break;
+		}
+		if (rc == 1) {
+			final = FIT_STOPPED;
+			break;
+		}
+		double gain = (ll - prev) / (fabs(prev) > 0 ? fabs(prev) : 1.0);
+		f->streak = gain < f->p.tol ? f->streak + 1 : 0;
+		int fired = f->streak >= f->p.patience;
+		if (fired && f->plateau_sweep == 0)
+			f->plateau_sweep = f->sweep;
+		if (fired && !f->p.past_plateau && !atomic_load(&f->extend_req)) {
+			if (!f->p.hold_at_plateau) {
+				final = FIT_LEVELLED;
+				break;
+			}
+			publish(f, FIT_LEVELLED);
+			pthread_mutex_lock(&f->lock);
+			while (!atomic_load(&f->extend_req) && !atomic_load(&f->stop_req))
+				pthread_cond_wait(&f->cond, &f->lock);
+			pthread_mutex_unlock(&f->lock);
+			if (!atomic_load(&f->extend_req)) {
+				final = FIT_LEVELLED;
+				break;
+			}
+			set_state(f, FIT_FITTING);
+			continue;
+		}
+		publish(f, FIT_FITTING);
+	}
+out:
+	pool_stop(f);
+	free(perm);
+	if (publish(f, final)) {
+		set_state(f, FIT_FAILED);
+		char byte = 1;
+		ssize_t w = write(f->wake[1], &byte, 1);
+		(void)w;
+	}
+	return NULL;
+}
+
+/* ---- the public face ---- */
+
+struct fit *fit_new(const struct graph *g, const struct fit_params *p,
+		    const struct fit_origin *origin)
+{
+	if (p->k == 0 || p->k > MODEL_MAX_K) {
+		error("the number of communities must be between 1 and %u", MODEL_MAX_K);
+		return NULL;
+	}
+	if (g->n < 2) {
+		error("a graph of %u node%s has no communities to find", g->n, g->n == 1 ? "" : "s");
+		return NULL;
+	}
+	struct fit *f = util_calloc(1, sizeof *f);
+	if (!f)
+		return NULL;
+	f->g = g;
+	f->p = *p;
+	f->wake[0] = f->wake[1] = -1;
+	if (f->p.threads < 1)
+		f->p.threads = 1;
+	if (f->p.patience < 1)
+		f->p.patience = 1;
+	f->nthreads = f->p.threads;
+	double eps = p->epsilon > 0 ? p->epsilon : model_default_epsilon(g);
+	f->p.epsilon = eps;
+	pthread_mutex_init(&f->lock, NULL);
+	pthread_cond_init(&f->cond, NULL);
+	if (model_init(&f->m, g->n, p->k, eps))
+		goto fail;
+	if (pipe(f->wake)) {
+		error("cannot make a pipe: %s", strerror(errno));
+		goto fail;
+	}
+	for (int i = 0; i < 2; i++) {
+		fcntl(f->wake[i], F_SETFL, fcntl(f->wake[i], F_GETFL) | O_NONBLOCK);
+		fcntl(f->wake[i], F_SETFD, FD_CLOEXEC);
+	}
+	f->work = util_calloc(f->nthreads, sizeof *f->work);
+	f->arena = util_calloc(f->nthreads, sizeof *f->arena);
+	f->res = util_calloc(BLOCK_NODES, sizeof *f->res);
+	f->nparts = (g->n + LL_CHUNK - 1) / LL_CHUNK;
+	f->parts = util_calloc(f->nparts, sizeof *f->parts);
+	if (!f->work || !f->arena || !f->res || !f->parts)
+		goto fail;
+	for (unsigned t = 0; t < f->nthreads; t++)
+		if (!(f->work[t] = model_work_new(p->k)))
+			goto fail;
+	if (origin) {
+		if (origin->F->n != g->n || origin->F->k != p->k) {
+			error("the saved fit is %u x %u but the graph and -k ask for %u x %u",
+			      origin->F->n, origin->F->k, g->n, p->k);
+			goto fail;
+		}
+		if (model_import(&f->m, origin->F))
+			goto fail;
+		f->resumed = 1;
+		f->sweep = origin->sweep;
+		f->seconds_base = origin->seconds;
+		f->plateau_sweep = origin->plateau_sweep;
+		for (uint32_t i = 0; i < origin->ntrace; i++) {
+			if (trace_add(f, 0))
+				goto fail;
+			f->trace[i] = origin->trace[i];
+		}
+	}
+	/* the first snapshot: the resumed model, or an empty one before seeding */
+	f->t0 = util_now();
+	if (publish(f, FIT_READY))
+		goto fail;
+	return f;
+fail:
+	fit_free(f);
+	return NULL;
+}
+
+int fit_start(struct fit *f)
+{
+	if (f->started)
+		return error("the fit is already running");
+	/* the fitting thread and its workers take no signals: the command
+	 * layer handles them on its own thread */
+	sigset_t all, old;
+	sigfillset(&all);
+	pthread_sigmask(SIG_BLOCK, &all, &old);
+	int rc = pthread_create(&f->thread, NULL, fit_main, f);
+	pthread_sigmask(SIG_SETMASK, &old, NULL);
+	if (rc)
+		return error("cannot start the fitting thread: %s", strerror(rc));
+	f->started = 1;
+	return 0;
+}
+
+static void poke(struct fit *f)
+{
+	pthread_mutex_lock(&f->lock);
+	pthread_cond_broadcast(&f->cond);
+	pthread_mutex_unlock(&f->lock);
+}
+
+void fit_pause(struct fit *f)
+{
+	atomic_store(&f->pause_req, 1);
+	poke(f);
+}
+
+void fit_resume(struct fit *f)
+{
+	atomic_store(&f->pause_req, 0);
+	poke(f);
+}
+
+void fit_stop(struct fit *f)
+{
+	atomic_store(&f->stop_req, 1);
+	poke(f);
+}
+
+void fit_extend(struct fit *f)
+{
+	atomic_store(&f->extend_req, 1);
+	poke(f);
+}
+
+enum fit_state fit_wait(struct fit *f)
+{
+	if (f->started && !f->joined) {
+		pthread_join(f->thread, NULL);
+		f->joined = 1;
+	}
+	return fit_get_state(f);
+}
+
+enum fit_state fit_get_state(struct fit *f)
+{
+	pthread_mutex_lock(&f->lock);
+	enum fit_state s = f->state;
+	pthread_mutex_unlock(&f->lock);
+	return s;
+}
+
+struct snapshot *fit_snapshot(struct fit *f)
+{
+	pthread_mutex_lock(&f->lock);
+	struct snapshot *s = f->latest;
+	if (s)
+		__atomic_add_fetch(&s->refs_, 1, __ATOMIC_ACQ_REL);
+	pthread_mutex_unlock(&f->lock);
+	return s;
+}
+
+int fit_wake_fd(struct fit *f)
+{
+	return f->wake[0];
+}
+
+void fit_drain_wake(struct fit *f)
+{
+	char buf[256];
+	while (read(f->wake[0], buf, sizeof buf) > 0)
+		;
+}
+
+const struct fit_params *fit_get_params(const struct fit *f)
+{
+	return &f->p;
+}
+
+void fit_free(struct fit *f)
+{
+	if (!f)
+		return;
+	if (f->started && !f->joined) {
+		fit_stop(f);
+		fit_wait(f);
+	}
+	snapshot_release(f->latest);
+	model_release(&f->m);
+	if (f->work)
+		for (unsigned t = 0; t < f->nthreads; t++)
+			model_work_free(f->work[t]);
+	free(f->work);
+	if (f->arena)
+		for (unsigned t = 0; t < f->nthreads; t++)
+			free(f->arena[t].e);
+	free(f->arena);
+	free(f->res);
+	free(f->parts);
+	free(f->trace);
+	free(f->workers);
+	for (int i = 0; i < 2; i++)
+		if (f->wake[i] >= 0)
+			close(f->wake[i]);
+	pthread_mutex_destroy(&f->lock);
+	pthread_cond_destroy(&f->cond);
+	free(f);
+}

@@ -1,0 +1,476 @@
+/*
+ * model: strengths as sparse rows, the log-likelihood, and one node's
+ * projected gradient step.
+ *
+ * The idea: the non-edge part of a row's objective would cost O(n), but
+ *     sum_{v not in N(u), v != u} F_v = colsum - F_u - sum_{v in N(u)} F_v
+ * so with the column sums kept current a row costs O(deg(u) * nnz).
+ * Only communities present in u's row or in a neighbour's row can get a
+ * positive gradient (elsewhere the gradient is -colsum[c] <= 0 at a zero
+ * strength, and the projection keeps it at zero), so the update works on
+ * that candidate set with dense scratch arrays of length k, reset after
+ * each row through the candidate list.
+ *
+ * The one thing a newcomer gets wrong: colsum includes u's own current
+ * row. The "others" sum must subtract the current row, not the trial one.
+ */
+#include "coterie/model.h"
+
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "coterie/graph.h"
+#include "coterie/util.h"
+
+#define ARMIJO_SIGMA 1e-4
+#define ARMIJO_TRIES 16
+#define X_FLOOR 1e-12 /* smallest x + qeps used in a gradient weight */
+
+double model_default_epsilon(const struct graph *g)
+{
+	double n = g->n;
+	double eps = n > 1 ? 2.0 * (double)g->m / (n * (n - 1.0)) : 0.0;
+	if (!(eps >= 1e-12))
+		eps = 1e-12;
+	if (eps > 0.5)
+		eps = 0.5;
+	return eps;
+}
+
+static void set_epsilon(struct model *m, double epsilon)
+{
+	m->epsilon = epsilon;
+	m->qeps = -log1p(-epsilon);
+	m->delta = sqrt(m->qeps);
+}
+
+int model_init(struct model *m, uint32_t n, uint32_t k, double epsilon)
+{
+	memset(m, 0, sizeof *m);
+	if (k == 0 || k > MODEL_MAX_K)
+		return error("the number of communities must be between 1 and %u, not %u",
+			     MODEL_MAX_K, k);
+	if (!(epsilon >= 0.0 && epsilon < 1.0))
+		return error("the background probability must be in [0, 1), not %g", epsilon);
+	m->n = n;
+	m->k = k;
+	set_epsilon(m, epsilon);
+	m->rows = util_calloc(n, sizeof *m->rows);
+	m->colsum = util_calloc(k, sizeof *m->colsum);
+	if (!m->rows || !m->colsum) {
+		model_release(m);
+		return -1;
+	}
+	return 0;
+}
+
+void model_release(struct model *m)
+{
+	if (!m)
+		return;
+	if (m->rows)
+		for (uint32_t u = 0; u < m->n; u++)
+			free(m->rows[u].e);
+	free(m->rows);
+	free(m->colsum);
+	memset(m, 0, sizeof *m);
+}
+
+int model_set_row(struct model *m, uint32_t u, const struct fentry *e, uint32_t nnz)
+{
+	struct frow *r = &m->rows[u];
+	for (uint32_t i = 0; i < r->nnz; i++)
+		m->colsum[r->e[i].c] -= r->e[i].v;
+	if (nnz > r->cap) {
+		uint32_t cap = nnz < 4 ? 4 : nnz + nnz / 2;
+		if (cap > m->k)
+			cap = m->k;
+		struct fentry *ne = util_realloc(r->e, cap, sizeof *ne);
+		if (!ne) {
+			for (uint32_t i = 0; i < r->nnz; i++)
+				m->colsum[r->e[i].c] += r->e[i].v;
+			return -1;
+		}
+		r->e = ne;
+		r->cap = cap;
+	}
+	uint32_t o = 0;
+	for (uint32_t i = 0; i < nnz; i++) {
+		double v = e[i].v;
+		if (!(v > 0.0))
+			continue;
+		if (v > MODEL_FMAX)
+			v = MODEL_FMAX;
+		r->e[o].c = e[i].c;
+		r->e[o].v = v;
+		m->colsum[e[i].c] += v;
+		o++;
+	}
+	r->nnz = o;
+	return 0;
+}
+
+void model_recount(struct model *m)
+{
+	memset(m->colsum, 0, m->k * sizeof *m->colsum);
+	for (uint32_t u = 0; u < m->n; u++)
+		for (uint32_t i = 0; i < m->rows[u].nnz; i++)
+			m->colsum[m->rows[u].e[i].c] += m->rows[u].e[i].v;
+}
+
+double model_dot(const struct fentry *a, uint32_t na, const struct fentry *b, uint32_t nb)
+{
+	double s = 0.0;
+	uint32_t i = 0, j = 0;
+	while (i < na && j < nb) {
+		if (a[i].c == b[j].c)
+			s += a[i++].v * b[j++].v;
+		else if (a[i].c < b[j].c)
+			i++;
+		else
+			j++;
+	}
+	return s;
+}
+
+/* Maechler (2012), "Accurately computing log(1 - exp(-|a|))", CRAN Rmpfr
+ * vignette: log(-expm1(-x)) below ln 2, log1p(-exp(-x)) above. */
+double model_log1mexp(double x)
+{
+	if (x <= 0.0)
+		return -INFINITY;
+	if (x <= 0.693147180559945309)
+		return log(-expm1(-x));
+	return log1p(-exp(-x));
+}
+
+void model_loglik_range(const struct model *m, const struct graph *g, uint32_t u0, uint32_t u1,
+			struct model_llpart *part)
+{
+	part->edge_log = part->edge_dot = part->self_sq = 0.0;
+	for (uint32_t u = u0; u < u1; u++) {
+		const struct frow *ru = &m->rows[u];
+		for (uint32_t i = 0; i < ru->nnz; i++)
+			part->self_sq += ru->e[i].v * ru->e[i].v;
+		for (uint64_t i = g->off[u]; i < g->off[u + 1]; i++) {
+			uint32_t v = g->adj[i];
+			if (v < u)
+				continue;
+			const struct frow *rv = &m->rows[v];
+			double x = model_dot(ru->e, ru->nnz, rv->e, rv->nnz);
+			part->edge_log += model_log1mexp(x + m->qeps);
+			part->edge_dot += x;
+		}
+	}
+}
+
+double model_loglik_combine(const struct model *m, const struct graph *g,
+			    const struct model_llpart *parts, size_t nparts)
+{
+	double edge_log = 0.0, edge_dot = 0.0, self_sq = 0.0, col_sq = 0.0;
+	for (size_t i = 0; i < nparts; i++) {
+		edge_log += parts[i].edge_log;
+		edge_dot += parts[i].edge_dot;
+		self_sq += parts[i].self_sq;
+	}
+	for (uint32_t c = 0; c < m->k; c++)
+		col_sq += m->colsum[c] * m->colsum[c];
+	/* sum over all pairs u<v of x_uv = (|colsum|^2 - sum_u |F_u|^2) / 2 */
+	double all_dot = 0.5 * (col_sq - self_sq);
+	double nonedge_dot = all_dot - edge_dot;
+	if (nonedge_dot < 0.0)
+		nonedge_dot = 0.0; /* rounding only */
+	double n = g->n;
+	double nonedges = 0.5 * n * (n - 1.0) - (double)g->m;
+	return edge_log - nonedge_dot - m->qeps * nonedges;
+}
+
+double model_loglik(const struct model *m, const struct graph *g)
+{
+	struct model_llpart part;
+	model_loglik_range(m, g, 0, g->n, &part);
+	return model_loglik_combine(m, g, &part, 1);
+}
+
+int model_export(const struct model *m, struct fcsr *out)
+{
+	memset(out, 0, sizeof *out);
+	out->n = m->n;
+	out->k = m->k;
+	out->off = util_malloc((size_t)m->n + 1, sizeof *out->off);
+	out->colsum = util_malloc(m->k, sizeof *out->colsum);
+	if (!out->off || !out->colsum)
+		goto fail;
+	uint64_t nnz = 0;
+	out->off[0] = 0;
+	for (uint32_t u = 0; u < m->n; u++) {
+		nnz += m->rows[u].nnz;
+		out->off[u + 1] = nnz;
+	}
+	out->e = util_malloc(nnz, sizeof *out->e);
+	if (!out->e)
+		goto fail;
+	for (uint32_t u = 0; u < m->n; u++)
+		if (m->rows[u].nnz)
+			memcpy(out->e + out->off[u], m->rows[u].e, m->rows[u].nnz * sizeof *out->e);
+	memcpy(out->colsum, m->colsum, m->k * sizeof *out->colsum);
+	return 0;
+fail:
+	fcsr_release(out);
+	return -1;
+}
+
+int model_import(struct model *m, const struct fcsr *in)
+{
+	if (in->n != m->n || in->k != m->k)
+		return error("saved strengths are %u x %u, the model is %u x %u", in->n, in->k,
+			     m->n, m->k);
+	for (uint32_t u = 0; u < m->n; u++)
+		if (model_set_row(m, u, in->e + in->off[u], (uint32_t)(in->off[u + 1] - in->off[u])))
+			return -1;
+	model_recount(m);
+	return 0;
+}
+
+void fcsr_release(struct fcsr *f)
+{
+	if (!f)
+		return;
+	free(f->off);
+	free(f->e);
+	free(f->colsum);
+	memset(f, 0, sizeof *f);
+}
+
+/* ---- one row ---- */
+
+struct model_work {
+	uint32_t k;
+	double *cur;      /* dense F_u over candidates */
+	double *trial;    /* dense trial row over candidates */
+	double *nbrsum;   /* dense sum of neighbour rows */
+	double *acc;      /* dense gradient accumulator */
+	uint32_t *stamp;  /* candidate marks */
+	uint32_t epoch;
+	uint32_t *cand;   /* candidate list */
+	uint32_t ncand;
+	double *wv;       /* per-neighbour weights */
+	size_t wv_cap;
+	struct fentry *out; /* the accepted row */
+};
+
+struct model_work *model_work_new(uint32_t k)
+{
+	struct model_work *w = util_calloc(1, sizeof *w);
+	if (!w)
+		return NULL;
+	w->k = k;
+	w->cur = util_calloc(k, sizeof *w->cur);
+	w->trial = util_calloc(k, sizeof *w->trial);
+	w->nbrsum = util_calloc(k, sizeof *w->nbrsum);
+	w->acc = util_calloc(k, sizeof *w->acc);
+	w->stamp = util_calloc(k, sizeof *w->stamp);
+	w->cand = util_calloc(k, sizeof *w->cand);
+	w->out = util_calloc(k, sizeof *w->out);
+	if (!w->cur || !w->trial || !w->nbrsum || !w->acc || !w->stamp || !w->cand || !w->out) {
+		model_work_free(w);
+		return NULL;
+	}
+	return w;
+}
+
+void model_work_free(struct model_work *w)
+{
+	if (!w)
+		return;
+	free(w->cur);
+	free(w->trial);
+	free(w->nbrsum);
+	free(w->acc);
+	free(w->stamp);
+	free(w->cand);
+	free(w->wv);
+	free(w->out);
+	free(w);
+}
+
+static void add_candidate(struct model_work *w, uint32_t c)
+{
+	if (w->stamp[c] != w->epoch) {
+		w->stamp[c] = w->epoch;
+		w->cand[w->ncand++] = c;
+		w->cur[c] = 0.0;
+		w->trial[c] = 0.0;
+		w->nbrsum[c] = 0.0;
+		w->acc[c] = 0.0;
+	}
+}
+
+/* Gather the candidate set of u, its current row (dense) and the sum of
+ * its neighbours' rows. */
+static void gather(const struct model *m, const struct graph *g, uint32_t u, struct model_work *w)
+{
+	if (++w->epoch == 0) { /* wrapped: clear marks */
+		memset(w->stamp, 0, w->k * sizeof *w->stamp);
+		w->epoch = 1;
+	}
+	w->ncand = 0;
+	const struct frow *ru = &m->rows[u];
+	for (uint32_t i = 0; i < ru->nnz; i++) {
+		add_candidate(w, ru->e[i].c);
+		w->cur[ru->e[i].c] = ru->e[i].v;
+	}
+	for (uint64_t i = g->off[u]; i < g->off[u + 1]; i++) {
+		const struct frow *rv = &m->rows[g->adj[i]];
+		for (uint32_t j = 0; j < rv->nnz; j++) {
+			add_candidate(w, rv->e[j].c);
+			w->nbrsum[rv->e[j].c] += rv->e[j].v;
+		}
+	}
+}
+
+/* Dot of a dense row (over candidates) with a sparse neighbour row. */
+static double dense_dot(const double *dense, const struct frow *rv)
+{
+	double s = 0.0;
+	for (uint32_t j = 0; j < rv->nnz; j++)
+		s += dense[rv->e[j].c] * rv->e[j].v;
+	return s;
+}
+
+/* Row objective with the trial row given densely; gather() must have run. */
+static double objective_dense(const struct model *m, const struct graph *g, uint32_t u,
+			      const struct model_work *w, const double *row)
+{
+	double f = 0.0;
+	for (uint64_t i = g->off[u]; i < g->off[u + 1]; i++)
+		f += model_log1mexp(dense_dot(row, &m->rows[g->adj[i]]) + m->qeps);
+	for (uint32_t i = 0; i < w->ncand; i++) {
+		uint32_t c = w->cand[i];
+		if (row[c] != 0.0)
+			f -= row[c] * (m->colsum[c] - w->cur[c] - w->nbrsum[c]);
+	}
+	return f;
+}
+
+double model_row_objective(const struct model *m, const struct graph *g, uint32_t u,
+			   const struct fentry *r, uint32_t nnz, struct model_work *w)
+{
+	gather(m, g, u, w);
+	/* entries of r outside the candidate set still count in the linear term */
+	for (uint32_t i = 0; i < nnz; i++)
+		add_candidate(w, r[i].c);
+	for (uint32_t i = 0; i < nnz; i++)
+		w->trial[r[i].c] = r[i].v;
+	double f = objective_dense(m, g, u, w, w->trial);
+	for (uint32_t i = 0; i < w->ncand; i++)
+		w->trial[w->cand[i]] = 0.0;
+	return f;
+}
+
+/* Gradient at the current row over the candidates into w->acc; also
+ * returns the objective at the current row. */
+static double gradient(const struct model *m, const struct graph *g, uint32_t u,
+		       struct model_work *w)
+{
+	uint32_t deg = graph_degree(g, u);
+	if (deg > w->wv_cap) {
+		double *nw = realloc(w->wv, deg * sizeof *nw);
+		if (nw) {
+			w->wv = nw;
+			w->wv_cap = deg;
+		}
+	}
+	double f = 0.0;
+	for (uint32_t i = 0; i < deg; i++) {
+		const struct frow *rv = &m->rows[g->adj[g->off[u] + i]];
+		double x = dense_dot(w->cur, rv) + m->qeps;
+		f += model_log1mexp(x);
+		double wt = 1.0 / expm1(x > X_FLOOR ? x : X_FLOOR);
+		if (w->wv_cap >= deg) {
+			w->wv[i] = wt;
+		} else { /* no scratch: accumulate directly */
+			for (uint32_t j = 0; j < rv->nnz; j++)
+				w->acc[rv->e[j].c] += rv->e[j].v * wt;
+		}
+	}
+	if (w->wv_cap >= deg)
+		for (uint32_t i = 0; i < deg; i++) {
+			const struct frow *rv = &m->rows[g->adj[g->off[u] + i]];
+			double wt = w->wv[i];
+			for (uint32_t j = 0; j < rv->nnz; j++)
+				w->acc[rv->e[j].c] += rv->e[j].v * wt;
+		}
+	for (uint32_t i = 0; i < w->ncand; i++) {
+		uint32_t c = w->cand[i];
+		double others = m->colsum[c] - w->cur[c] - w->nbrsum[c];
+		w->acc[c] -= others;
+		f -= w->cur[c] * others;
+	}
+	return f;
+}
+
+void model_row_gradient(const struct model *m, const struct graph *g, uint32_t u,
+			struct model_work *w, double *grad)
+{
+	gather(m, g, u, w);
+	gradient(m, g, u, w);
+	/* outside the candidates the gradient is -(colsum - F_u - nbrsum) = -colsum */
+	for (uint32_t c = 0; c < m->k; c++)
+		grad[c] = -m->colsum[c];
+	for (uint32_t i = 0; i < w->ncand; i++)
+		grad[w->cand[i]] = w->acc[w->cand[i]];
+}
+
+static int cmp_u32(const void *a, const void *b)
+{
+	uint32_t x = *(const uint32_t *)a, y = *(const uint32_t *)b;
+	return (x > y) - (x < y);
+}
+
+int model_update_row(const struct model *m, const struct graph *g, uint32_t u,
+		     struct model_work *w, const struct fentry **out, uint32_t *out_nnz)
+{
+	gather(m, g, u, w);
+	if (w->ncand == 0)
+		return 0;
+	double f0 = gradient(m, g, u, w);
+	int accepted = 0;
+	double step = 1.0;
+	for (int t = 0; t < ARMIJO_TRIES && !accepted; t++, step *= 0.5) {
+		double gd = 0.0;
+		int moved = 0;
+		for (uint32_t i = 0; i < w->ncand; i++) {
+			uint32_t c = w->cand[i];
+			double v = w->cur[c] + step * w->acc[c];
+			if (v < 0.0)
+				v = 0.0;
+			if (v > MODEL_FMAX)
+				v = MODEL_FMAX;
+			w->trial[c] = v;
+			gd += w->acc[c] * (v - w->cur[c]);
+			moved |= v != w->cur[c];
+		}
+		if (!moved)
+			break;
+		double f1 = objective_dense(m, g, u, w, w->trial);
+		if (f1 >= f0 + ARMIJO_SIGMA * gd && f1 > f0)
+			accepted = 1;
+	}
+	if (!accepted)
+		return 0;
+	qsort(w->cand, w->ncand, sizeof *w->cand, cmp_u32);
+	uint32_t o = 0;
+	for (uint32_t i = 0; i < w->ncand; i++) {
+		uint32_t c = w->cand[i];
+		if (w->trial[c] > 0.0) {
+			w->out[o].c = c;
+			w->out[o].v = w->trial[c];
+			o++;
+		}
+	}
+	*out = w->out;
+	*out_nnz = o;
+	return 1;
+}

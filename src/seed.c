@@ -1,0 +1,216 @@
+/*
+ * seed: starting communities from locally minimal ego-nets (Gleich &
+ * Seshadhri, KDD 2012).
+ *
+ * Triangles come from the forward algorithm: rank nodes by (degree, id),
+ * orient every edge towards the higher rank, and for each oriented edge
+ * u->v count the common out-neighbours; each triangle is found once, from
+ * its lowest-ranked corner, in O(m^1.5) total.
+ *
+ * Ties: in a clique every node's ego-net is the same set, so every node
+ * is a local minimum. A seed is therefore skipped when its centre lies in
+ * the ego-net of a seed already taken; otherwise k seeds could all be one
+ * clique.
+ */
+#include "coterie/seed.h"
+
+#include <stdlib.h>
+#include <string.h>
+
+#include "coterie/graph.h"
+#include "coterie/model.h"
+#include "coterie/rng.h"
+#include "coterie/util.h"
+
+int seed_triangles(const struct graph *g, uint64_t *tri)
+{
+	uint32_t n = g->n;
+	memset(tri, 0, (size_t)n * sizeof *tri);
+	if (n == 0)
+		return 0;
+	uint64_t *ooff = util_malloc((size_t)n + 1, sizeof *ooff);
+	uint32_t *oadj = util_malloc(g->m ? g->m : 1, sizeof *oadj);
+	uint32_t *mark = util_calloc(n, sizeof *mark);
+	if (!ooff || !oadj || !mark) {
+		free(ooff);
+		free(oadj);
+		free(mark);
+		return -1;
+	}
+	/* u -> v when (deg u, u) < (deg v, v) */
+	uint64_t o = 0;
+	for (uint32_t u = 0; u < n; u++) {
+		ooff[u] = o;
+		uint32_t du = graph_degree(g, u);
+		for (uint64_t i = g->off[u]; i < g->off[u + 1]; i++) {
+			uint32_t v = g->adj[i];
+			uint32_t dv = graph_degree(g, v);
+			if (du < dv || (du == dv && u < v))
+				oadj[o++] = v;
+		}
+	}
+	ooff[n] = o;
+	for (uint32_t u = 0; u < n; u++) {
+		for (uint64_t i = ooff[u]; i < ooff[u + 1]; i++)
+			mark[oadj[i]] = u + 1;
+		for (uint64_t i = ooff[u]; i < ooff[u + 1]; i++) {
+			uint32_t v = oadj[i];
+			for (uint64_t j = ooff[v]; j < ooff[v + 1]; j++) {
+				uint32_t w = oadj[j];
+				if (mark[w] == u + 1) {
+					tri[u]++;
+					tri[v]++;
+					tri[w]++;
+				}
+			}
+		}
+	}
+	free(ooff);
+	free(oadj);
+	free(mark);
+	return 0;
+}
+
+int seed_conductance(const struct graph *g, double *phi)
+{
+	uint64_t *tri = util_malloc(g->n ? g->n : 1, sizeof *tri);
+	if (!tri || seed_triangles(g, tri)) {
+		free(tri);
+		return -1;
+	}
+	uint64_t total = 2 * g->m;
+	for (uint32_t u = 0; u < g->n; u++) {
+		uint64_t du = graph_degree(g, u);
+		if (du == 0) {
+			phi[u] = 1.0;
+			continue;
+		}
+		uint64_t vol = du;
+		for (uint64_t i = g->off[u]; i < g->off[u + 1]; i++)
+			vol += graph_degree(g, g->adj[i]);
+		uint64_t internal = du + tri[u];
+		uint64_t cut = vol - 2 * internal;
+		uint64_t den = vol < total - vol ? vol : total - vol;
+		phi[u] = den == 0 ? 1.0 : (double)cut / (double)den;
+	}
+	free(tri);
+	return 0;
+}
+
+struct ranked {
+	double phi;
+	uint32_t u;
+};
+
+static int cmp_ranked(const void *a, const void *b)
+{
+	const struct ranked *x = a, *y = b;
+	if (x->phi != y->phi)
+		return x->phi < y->phi ? -1 : 1;
+	return (x->u > y->u) - (x->u < y->u);
+}
+
+int seed_model(const struct graph *g, struct model *m, uint64_t seed, struct seed_report *rep)
+{
+	struct seed_report local = { 0, 0, 0 };
+	uint32_t n = g->n, k = m->k;
+	int rc = -1;
+	double *phi = util_malloc(n ? n : 1, sizeof *phi);
+	struct ranked *cand = util_malloc(n ? n : 1, sizeof *cand);
+	uint32_t *centre = util_malloc(k, sizeof *centre);
+	uint8_t *taken = util_calloc(n ? n : 1, 1); /* 1: in a chosen ego-net, 2: a centre */
+	uint32_t *cnt = NULL;
+	uint64_t *roff = NULL;
+	struct fentry *ent = NULL;
+	if (!phi || !cand || !centre || !taken || seed_conductance(g, phi))
+		goto out;
+
+	uint32_t nc = 0;
+	for (uint32_t u = 0; u < n; u++) {
+		if (graph_degree(g, u) == 0)
+			continue;
+		int minimal = 1;
+		for (uint64_t i = g->off[u]; i < g->off[u + 1] && minimal; i++)
+			if (phi[g->adj[i]] < phi[u])
+				minimal = 0;
+		if (minimal)
+			cand[nc++] = (struct ranked){ phi[u], u };
+	}
+	local.local_minima = nc;
+	qsort(cand, nc, sizeof *cand, cmp_ranked);
+
+	uint32_t ns = 0;
+	for (uint32_t i = 0; i < nc && ns < k; i++) {
+		uint32_t u = cand[i].u;
+		if (taken[u])
+			continue;
+		centre[ns++] = u;
+		taken[u] = 2;
+		for (uint64_t j = g->off[u]; j < g->off[u + 1]; j++)
+			if (!taken[g->adj[j]])
+				taken[g->adj[j]] = 1;
+	}
+	local.used_minima = ns;
+
+	/* fill with ego-nets of random nodes, centres not reused while possible */
+	struct rng r;
+	rng_init(&r, seed ^ 0x5eed5eed5eedULL);
+	uint32_t with_edges = 0;
+	for (uint32_t u = 0; u < n; u++)
+		with_edges += graph_degree(g, u) > 0;
+	while (ns < k && n > 0) {
+		uint32_t u = (uint32_t)rng_below(&r, n);
+		int fresh = taken[u] != 2;
+		if (graph_degree(g, u) == 0 && with_edges > 0)
+			continue;
+		if (!fresh && ns < with_edges)
+			continue;
+		centre[ns++] = u;
+		taken[u] = 2;
+		local.random++;
+	}
+
+	/* rows: column c holds 1 for every node of seed c's ego-net; filling
+	 * columns in order keeps each row sorted */
+	cnt = util_calloc(n ? n : 1, sizeof *cnt);
+	roff = util_malloc((size_t)n + 1, sizeof *roff);
+	if (!cnt || !roff)
+		goto out;
+	for (uint32_t c = 0; c < ns; c++) {
+		uint32_t u = centre[c];
+		cnt[u]++;
+		for (uint64_t j = g->off[u]; j < g->off[u + 1]; j++)
+			cnt[g->adj[j]]++;
+	}
+	roff[0] = 0;
+	for (uint32_t u = 0; u < n; u++)
+		roff[u + 1] = roff[u] + cnt[u];
+	ent = util_malloc(roff[n] ? roff[n] : 1, sizeof *ent);
+	if (!ent)
+		goto out;
+	memset(cnt, 0, (size_t)n * sizeof *cnt);
+	for (uint32_t c = 0; c < ns; c++) {
+		uint32_t u = centre[c];
+		ent[roff[u] + cnt[u]++] = (struct fentry){ c, 1.0 };
+		for (uint64_t j = g->off[u]; j < g->off[u + 1]; j++) {
+			uint32_t v = g->adj[j];
+			ent[roff[v] + cnt[v]++] = (struct fentry){ c, 1.0 };
+		}
+	}
+	for (uint32_t u = 0; u < n; u++)
+		if (model_set_row(m, u, ent + roff[u], cnt[u]))
+			goto out;
+	model_recount(m);
+	rc = 0;
+out:
+	if (rep)
+		*rep = local;
+	free(phi);
+	free(cand);
+	free(centre);
+	free(taken);
+	free(cnt);
+	free(roff);
+	free(ent);
+	return rc;
+}
