@@ -32,7 +32,7 @@ ifeq ($(DEVELOPER),1)
 WARN += -Werror
 endif
 
-PKG_CFLAGS := $(shell pkg-config --cflags $(PKGS) 2>/dev/null)
+PKG_CFLAGS := $(filter-out -D_XOPEN_SOURCE=% -D_DEFAULT_SOURCE,$(shell pkg-config --cflags $(PKGS) 2>/dev/null))
 PKG_LIBS   := $(shell pkg-config --libs igraph ncursesw jansson zlib 2>/dev/null)
 CMOCKA_LIBS := $(shell pkg-config --libs cmocka 2>/dev/null)
 

@@ -11,9 +11,15 @@
  *
  * Determinism. Sweep s visits the nodes in a permutation drawn from
  * (seed, s). The permutation is cut into blocks whose boundaries depend
- * only on degrees; every row of a block is computed from the model as it
+ * only on the graph; every row of a block is computed from the model as it
  * was at the start of the block (so it does not matter which thread
  * computes which row), and the new rows are applied in permutation order.
+ *
+ * Blocks are independent sets (a block closes before a node adjacent to
+ * one already in it) of at most n/256 nodes, so the rows computed together
+ * interact only through the column sums, and only by a small share of
+ * them. Updating linked nodes together (Jacobi) oscillates on small dense
+ * graphs; this keeps the sweep close to one-node-at-a-time (Gauss-Seidel).
  * The likelihood is summed over fixed node ranges in a fixed order. So the
  * bytes out depend on the seed, never on the thread count.
  *
@@ -38,8 +44,8 @@
 #include "coterie/rng.h"
 #include "coterie/util.h"
 
-#define BLOCK_WORK 4096u  /* a block closes when sum(deg + 1) reaches this */
-#define BLOCK_NODES 1024u /* ... or when it has this many nodes */
+#define BLOCK_NODES 1024u /* a block has at most this many nodes ... */
+#define BLOCK_SHARE 256u  /* ... and at most n / BLOCK_SHARE (at least 1) */
 #define LL_CHUNK 2048u    /* nodes per likelihood part */
 #define RATE_WINDOW 5u    /* sweeps per second over this many sweeps */
 
@@ -130,6 +136,8 @@ struct fit {
 	struct model_work **work;
 	struct arena *arena;
 	struct rowres *res;
+	uint32_t *mark; /* block membership and neighbourhood marks */
+	uint32_t epoch;
 	struct model_llpart *parts;
 	uint32_t nparts;
 	atomic_int worker_failed;
@@ -385,13 +393,26 @@ static int sweep_once(struct fit *f, uint32_t *perm)
 		perm[i] = i;
 	rng_shuffle_u32(&r, perm, n);
 
+	uint32_t cap = n / BLOCK_SHARE;
+	if (cap < 1)
+		cap = 1;
+	if (cap > BLOCK_NODES)
+		cap = BLOCK_NODES;
 	uint32_t i = 0;
 	while (i < n) {
 		if (wait_while_paused(f))
 			return 1;
-		uint32_t b = i, work = 0;
-		while (i < n && i - b < BLOCK_NODES && work < BLOCK_WORK)
-			work += graph_degree(f->g, perm[i++]) + 1;
+		uint32_t b = i;
+		if (++f->epoch == 0) {
+			memset(f->mark, 0, n * sizeof *f->mark);
+			f->epoch = 1;
+		}
+		while (i < n && i - b < cap && f->mark[perm[i]] != f->epoch) {
+			uint32_t u = perm[i++];
+			f->mark[u] = f->epoch;
+			for (uint64_t e = f->g->off[u]; e < f->g->off[u + 1]; e++)
+				f->mark[f->g->adj[e]] = f->epoch;
+		}
 		f->block = perm + b;
 		f->block_len = i - b;
 		for (unsigned t = 0; t < f->nthreads; t++)
@@ -538,7 +559,8 @@ struct fit *fit_new(const struct graph *g, const struct fit_params *p,
 	f->res = util_calloc(BLOCK_NODES, sizeof *f->res);
 	f->nparts = (g->n + LL_CHUNK - 1) / LL_CHUNK;
 	f->parts = util_calloc(f->nparts, sizeof *f->parts);
-	if (!f->work || !f->arena || !f->res || !f->parts)
+	f->mark = util_calloc(g->n, sizeof *f->mark);
+	if (!f->work || !f->arena || !f->res || !f->parts || !f->mark)
 		goto fail;
 	for (unsigned t = 0; t < f->nthreads; t++)
 		if (!(f->work[t] = model_work_new(p->k)))
@@ -683,6 +705,7 @@ void fit_free(struct fit *f)
 	free(f->arena);
 	free(f->res);
 	free(f->parts);
+	free(f->mark);
 	free(f->trace);
 	free(f->workers);
 	for (int i = 0; i < 2; i++)

@@ -7,6 +7,13 @@
  * u->v count the common out-neighbours; each triangle is found once, from
  * its lowest-ranked corner, in O(m^1.5) total.
  *
+ * Small components: an ego-net that is a whole connected component has
+ * conductance 0 and would win every seed; graphs such as e-mail networks
+ * have hundreds of tiny components, and k seeds spent there leave the
+ * giant component unseeded (nothing spreads into a region no seed
+ * touches). Such seeds are therefore taken after every other local
+ * minimum; on a graph made only of components they still come in order.
+ *
  * Ties: in a clique every node's ego-net is the same set, so every node
  * is a local minimum. A seed is therefore skipped when its centre lies in
  * the ego-net of a seed already taken; otherwise k seeds could all be one
@@ -100,11 +107,14 @@ int seed_conductance(const struct graph *g, double *phi)
 struct ranked {
 	double phi;
 	uint32_t u;
+	int whole; /* the ego-net is a whole connected component (cut 0) */
 };
 
 static int cmp_ranked(const void *a, const void *b)
 {
 	const struct ranked *x = a, *y = b;
+	if (x->whole != y->whole)
+		return x->whole - y->whole;
 	if (x->phi != y->phi)
 		return x->phi < y->phi ? -1 : 1;
 	return (x->u > y->u) - (x->u < y->u);
@@ -134,7 +144,7 @@ int seed_model(const struct graph *g, struct model *m, uint64_t seed, struct see
 			if (phi[g->adj[i]] < phi[u])
 				minimal = 0;
 		if (minimal)
-			cand[nc++] = (struct ranked){ phi[u], u };
+			cand[nc++] = (struct ranked){ phi[u], u, phi[u] == 0.0 };
 	}
 	local.local_minima = nc;
 	qsort(cand, nc, sizeof *cand, cmp_ranked);

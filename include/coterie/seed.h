@@ -32,7 +32,9 @@ int seed_conductance(const struct graph *g, double *phi);
 
 /* Seed an all-zero model of m->k columns: column c gets strength 1 for
  * every node of the c-th seed ego-net. Seeds are the locally minimal
- * ego-nets by increasing conductance (ties by node id), then ego-nets of
+ * ego-nets by increasing conductance (ties by node id; ego-nets that are a
+ * whole connected component after all others; a centre inside an ego-net
+ * already chosen is skipped), then ego-nets of
  * randomly drawn nodes (rng seeded by seed) until k. rep may be NULL.
  * Returns 0 or -1. */
 int seed_model(const struct graph *g, struct model *m, uint64_t seed, struct seed_report *rep);
