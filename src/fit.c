@@ -434,7 +434,10 @@ static int sweep_once(struct fit *f, uint32_t *perm)
 
 static void recount_colsum(struct fit *f)
 {
-	/* rounding drift in colsum from millions of incremental updates */
+	/* rounding drift in colsum from millions of incremental updates; done
+	 * after every sweep (O(nnz), small beside the sweep) so that a fit
+	 * resumed from a checkpoint, whose colsum is recounted on import,
+	 * continues bit for bit as the uninterrupted fit would */
 	model_recount(&f->m);
 }
 
@@ -468,8 +471,7 @@ static void *fit_main(void *arg)
 			break;
 		}
 		f->sweep++;
-		if (f->sweep % 16 == 0)
-			recount_colsum(f);
+		recount_colsum(f);
 		double ll = compute_loglik(f);
 		double prev = f->ntrace ? f->trace[f->ntrace - 1].loglik : ll;
 		if (trace_add(f, ll)) {

@@ -1,0 +1,338 @@
+/*
+ * test_fit: the fitting engine end to end: determinism, the thread API,
+ * and recovery of known communities.
+ *
+ * References: the football network and its conference labels (Girvan &
+ * Newman, PNAS 99, 7821 (2002), via /work/shared/datasets, see
+ * tests/data/README.md); igraph's Leiden (igraph C library 0.10.2, the
+ * Debian libigraph-dev this suite builds against) as the partition method
+ * to beat; overlapping NMI in the max form of McDaid, Greene & Hurley
+ * (2011), computed by score.c.
+ */
+#include "helpers.h"
+
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include <igraph.h>
+
+#include "coterie/cover.h"
+#include "coterie/fit.h"
+#include "coterie/graph.h"
+#include "coterie/rng.h"
+#include "coterie/score.h"
+
+/* struct fentry has padding bytes: compare the fields */
+static void assert_same_strengths(const struct fcsr *a, const struct fcsr *b)
+{
+	assert_int_equal(a->n, b->n);
+	assert_memory_equal(a->off, b->off, ((size_t)a->n + 1) * sizeof *a->off);
+	for (uint64_t i = 0; i < a->off[a->n]; i++) {
+		assert_int_equal(a->e[i].c, b->e[i].c);
+		assert_true(a->e[i].v == b->e[i].v);
+	}
+}
+
+static struct snapshot *run_fit(const struct graph *g, uint32_t k, unsigned threads,
+				uint64_t seed, unsigned max_sweeps)
+{
+	struct fit_params p;
+	fit_params_default(&p);
+	p.k = k;
+	p.threads = threads;
+	p.seed = seed;
+	p.max_sweeps = max_sweeps;
+	struct fit *f = fit_new(g, &p, NULL);
+	assert_non_null(f);
+	assert_int_equal(fit_start(f), 0);
+	enum fit_state st = fit_wait(f);
+	assert_true(st == FIT_LEVELLED || st == FIT_FINISHED);
+	struct snapshot *s = fit_snapshot(f);
+	assert_int_equal(s->state, st);
+	fit_free(f);
+	return s;
+}
+
+/* Leiden on modularity (node weights = degrees, resolution 1/2m, as
+ * python-igraph does for objective="modularity"), seed 42, into a cover. */
+static void leiden_cover(const struct graph *g, struct cover *out)
+{
+	igraph_t ig;
+	igraph_vector_int_t edges, membership;
+	igraph_vector_t weights;
+	igraph_vector_int_init(&edges, 0);
+	for (uint32_t u = 0; u < g->n; u++)
+		for (uint64_t i = g->off[u]; i < g->off[u + 1]; i++)
+			if (g->adj[i] > u) {
+				igraph_vector_int_push_back(&edges, u);
+				igraph_vector_int_push_back(&edges, g->adj[i]);
+			}
+	assert_int_equal(igraph_create(&ig, &edges, g->n, IGRAPH_UNDIRECTED), IGRAPH_SUCCESS);
+	igraph_vector_init(&weights, g->n);
+	for (uint32_t u = 0; u < g->n; u++)
+		VECTOR(weights)[u] = graph_degree(g, u);
+	igraph_vector_int_init(&membership, g->n);
+	igraph_rng_seed(igraph_rng_default(), 42);
+	igraph_integer_t nclusters;
+	igraph_real_t quality;
+	assert_int_equal(igraph_community_leiden(&ig, NULL, &weights, 1.0 / (2.0 * (double)g->m),
+						 0.01, 0, -1, &membership, &nclusters, &quality),
+			 IGRAPH_SUCCESS);
+	int64_t *mem = malloc(sizeof *mem * g->n);
+	for (uint32_t u = 0; u < g->n; u++)
+		mem[u] = VECTOR(membership)[u];
+	assert_int_equal(cover_from_membership(out, g->n, mem), 0);
+	free(mem);
+	igraph_vector_int_destroy(&membership);
+	igraph_vector_destroy(&weights);
+	igraph_vector_int_destroy(&edges);
+	igraph_destroy(&ig);
+}
+
+static void test_same_seed_gives_same_bytes_for_any_thread_count(void **state)
+{
+	(void)state;
+	struct graph *g = graph_load(test_data("football/edges.tsv"), GRAPH_FORMAT_AUTO);
+	assert_non_null(g);
+	struct snapshot *a = run_fit(g, 12, 2, 7, 40);
+	struct snapshot *b = run_fit(g, 12, 2, 7, 40);
+	struct snapshot *c = run_fit(g, 12, 1, 7, 40);
+	struct snapshot *d = run_fit(g, 12, 2, 8, 40);
+	const struct snapshot *same[] = { b, c };
+	for (int i = 0; i < 2; i++) {
+		const struct snapshot *s = same[i];
+		assert_int_equal(a->sweep, s->sweep);
+		assert_same_strengths(&a->F, &s->F);
+		for (uint32_t t = 0; t < a->ntrace; t++)
+			assert_true(a->trace[t].loglik == s->trace[t].loglik);
+		assert_int_equal(a->agm.cover.k, s->agm.cover.k);
+		assert_memory_equal(a->agm.cover.mem, s->agm.cover.mem,
+				    a->agm.cover.off[a->agm.cover.k] * sizeof *a->agm.cover.mem);
+	}
+	/* another seed gives another fit (a check that the seed is used) */
+	int differs = d->F.off[g->n] != a->F.off[g->n];
+	for (uint64_t i = 0; !differs && i < a->F.off[g->n]; i++)
+		differs = a->F.e[i].c != d->F.e[i].c || a->F.e[i].v != d->F.e[i].v;
+	assert_true(differs);
+	snapshot_release(a);
+	snapshot_release(b);
+	snapshot_release(c);
+	snapshot_release(d);
+	graph_free(g);
+}
+
+static void test_likelihood_climbs_and_snapshot_is_consistent(void **state)
+{
+	(void)state;
+	struct graph *g = graph_load(test_data("karate/edges.tsv"), GRAPH_FORMAT_AUTO);
+	assert_non_null(g);
+	struct snapshot *s = run_fit(g, 3, 2, 1, 200);
+	assert_true(s->ntrace >= 2);
+	assert_int_equal(s->trace[0].sweep, 0);
+	assert_int_equal(s->trace[s->ntrace - 1].sweep, s->sweep);
+	assert_true(s->trace[s->ntrace - 1].loglik > s->trace[0].loglik);
+	/* block-parallel sweeps are not guaranteed monotone, but a sweep that
+	 * loses more than a sliver would mean a broken update */
+	for (uint32_t t = 1; t < s->ntrace; t++)
+		assert_true(s->trace[t].loglik >= s->trace[t - 1].loglik -
+						      1e-6 * fabs(s->trace[t - 1].loglik));
+	assert_fcsr_sane(&s->F);
+	assert_cover_sane(&s->agm.cover);
+	snapshot_release(s);
+	graph_free(g);
+}
+
+static void test_stop_keeps_the_model_and_pause_holds(void **state)
+{
+	(void)state;
+	struct graph *g = graph_load(test_data("football/edges.tsv"), GRAPH_FORMAT_AUTO);
+	struct fit_params p;
+	fit_params_default(&p);
+	p.k = 12;
+	p.threads = 2;
+	p.past_plateau = 1;
+	p.max_sweeps = 100000;
+	struct fit *f = fit_new(g, &p, NULL);
+	assert_non_null(f);
+	struct snapshot *s0 = fit_snapshot(f);
+	assert_non_null(s0);
+	assert_int_equal(s0->state, FIT_READY);
+	snapshot_release(s0);
+	assert_int_equal(fit_start(f), 0);
+	/* wait for a few sweeps through the wake-up pipe */
+	for (;;) {
+		struct snapshot *s = fit_snapshot(f);
+		uint32_t sw = s->sweep;
+		snapshot_release(s);
+		if (sw >= 3)
+			break;
+		fit_drain_wake(f);
+		struct timespec ts = { 0, 2000000 };
+		nanosleep(&ts, NULL);
+	}
+	fit_pause(f);
+	for (int i = 0; i < 2000 && fit_get_state(f) != FIT_PAUSED; i++) {
+		struct timespec ts = { 0, 1000000 };
+		nanosleep(&ts, NULL);
+	}
+	assert_int_equal(fit_get_state(f), FIT_PAUSED);
+	struct snapshot *a = fit_snapshot(f);
+	struct timespec ts = { 0, 50000000 };
+	nanosleep(&ts, NULL);
+	struct snapshot *b = fit_snapshot(f);
+	assert_true(a == b); /* nothing new while paused */
+	snapshot_release(a);
+	snapshot_release(b);
+	fit_resume(f);
+	fit_stop(f);
+	assert_int_equal(fit_wait(f), FIT_STOPPED);
+	struct snapshot *s = fit_snapshot(f);
+	assert_int_equal(s->state, FIT_STOPPED);
+	assert_true(s->sweep >= 3 && s->sweep < 100000);
+	assert_true(s->F.off[g->n] > 0); /* the model is kept */
+	assert_true(s->agm.cover.k > 0);
+	snapshot_release(s);
+	fit_free(f);
+	graph_free(g);
+}
+
+static void test_resume_continues_from_the_saved_state(void **state)
+{
+	(void)state;
+	/* 10 sweeps, then 10 more from its snapshot, equal 20 in one go: the
+	 * permutation of sweep s depends only on (seed, s) */
+	struct graph *g = graph_load(test_data("football/edges.tsv"), GRAPH_FORMAT_AUTO);
+	struct fit_params p;
+	fit_params_default(&p);
+	p.k = 12;
+	p.past_plateau = 1;
+	p.max_sweeps = 10;
+	struct fit *f = fit_new(g, &p, NULL);
+	fit_start(f);
+	fit_wait(f);
+	struct snapshot *half = fit_snapshot(f);
+	fit_free(f);
+	struct fit_origin o = { &half->F, half->trace, half->ntrace, half->sweep, half->seconds, 0 };
+	p.max_sweeps = 20;
+	f = fit_new(g, &p, &o);
+	assert_non_null(f);
+	fit_start(f);
+	fit_wait(f);
+	struct snapshot *two = fit_snapshot(f);
+	fit_free(f);
+	struct snapshot *one = run_fit(g, 12, 1, 1, 20);
+	assert_int_equal(two->sweep, 20);
+	assert_int_equal(one->sweep, 20);
+	assert_int_equal(two->ntrace, one->ntrace);
+	assert_same_strengths(&two->F, &one->F);
+	snapshot_release(half);
+	snapshot_release(two);
+	snapshot_release(one);
+	graph_free(g);
+}
+
+static void test_football_fit_rivals_leiden_on_conferences(void **state)
+{
+	(void)state;
+	struct graph *g = graph_load(test_data("football/edges.tsv"), GRAPH_FORMAT_AUTO);
+	assert_non_null(g);
+	struct cover truth, leiden;
+	/* 12 conferences, Girvan & Newman's labels (PNAS 2002) */
+	assert_int_equal(cover_load(&truth, test_data("football/truth.tsv"), g), 0);
+	leiden_cover(g, &leiden);
+	struct snapshot *s = run_fit(g, 12, 2, 1, 500);
+	double ours = score_onmi_max(&truth, &s->agm.cover);
+	double theirs = score_onmi_max(&truth, &leiden);
+	printf("football: overlapping NMI (max form) coterie %.4f, igraph Leiden %.4f\n", ours,
+	       theirs);
+	/* the acceptance rule of issue 2: at least 0.95 times Leiden's score */
+	assert_true(ours >= 0.95 * theirs);
+	snapshot_release(s);
+	cover_release(&truth);
+	cover_release(&leiden);
+	graph_free(g);
+}
+
+/*
+ * A small AGM sampler: 8 communities of 60 nodes on a ring of 400, each
+ * overlapping the next by 10 nodes, so 80 nodes are in two communities.
+ * Each community links its members with probability 0.3, every pair with
+ * background 0.002 (P = 1 - (1 - eps) prod (1 - p_c), as in the AGM).
+ */
+static struct graph *planted(struct cover *truth, uint64_t seed)
+{
+	const uint32_t n = 400, k = 8, size = 60, step = 50;
+	const double pc = 0.3, eps = 0.002;
+	uint32_t *node = malloc(sizeof *node * k * size), *comm = malloc(sizeof *comm * k * size);
+	for (uint32_t c = 0; c < k; c++)
+		for (uint32_t i = 0; i < size; i++) {
+			node[c * size + i] = (c * step + i) % n;
+			comm[c * size + i] = c;
+		}
+	assert_int_equal(cover_from_pairs(truth, n, node, comm, (uint64_t)k * size), 0);
+	free(node);
+	free(comm);
+	struct rng r;
+	rng_init(&r, seed);
+	uint32_t *pairs = malloc(sizeof *pairs * n * n);
+	uint64_t np = 0;
+	for (uint32_t u = 0; u < n; u++)
+		for (uint32_t v = u + 1; v < n; v++) {
+			double stay = 1.0 - eps;
+			for (uint32_t c = 0; c < k; c++) {
+				uint32_t lo = c * step, hi = lo + size; /* ring interval [lo, hi) */
+				int iu = (u >= lo && u < hi) || (u + n >= lo && u + n < hi);
+				int iv = (v >= lo && v < hi) || (v + n >= lo && v + n < hi);
+				if (iu && iv)
+					stay *= 1.0 - pc;
+			}
+			if (rng_uniform(&r) < 1.0 - stay) {
+				pairs[2 * np] = u;
+				pairs[2 * np + 1] = v;
+				np++;
+			}
+		}
+	struct graph *g = graph_from_pairs(n, pairs, np, NULL);
+	free(pairs);
+	return g;
+}
+
+static void test_planted_overlapping_cover_is_recovered(void **state)
+{
+	(void)state;
+	struct cover truth, leiden;
+	struct graph *g = planted(&truth, 2026);
+	assert_non_null(g);
+	assert_cover_sane(&truth);
+	struct snapshot *s = run_fit(g, 8, 2, 1, 500);
+	leiden_cover(g, &leiden);
+	double ours = score_onmi_max(&truth, &s->agm.cover);
+	double theirs = score_onmi_max(&truth, &leiden);
+	printf("planted: overlapping NMI coterie %.4f, igraph Leiden %.4f; %u nodes in 2+ "
+	       "communities (80 planted)\n", ours, theirs, s->agm.overlapping);
+	/* our acceptance threshold for a clean planted case (communities 30x
+	 * denser inside than out): not from a paper */
+	assert_true(ours >= 0.8);
+	/* a partition cannot place the 80 shared nodes in two groups */
+	assert_true(ours > theirs);
+	snapshot_release(s);
+	cover_release(&truth);
+	cover_release(&leiden);
+	graph_free(g);
+}
+
+int main(void)
+{
+	const struct CMUnitTest tests[] = {
+		cmocka_unit_test(test_same_seed_gives_same_bytes_for_any_thread_count),
+		cmocka_unit_test(test_likelihood_climbs_and_snapshot_is_consistent),
+		cmocka_unit_test(test_stop_keeps_the_model_and_pause_holds),
+		cmocka_unit_test(test_resume_continues_from_the_saved_state),
+		cmocka_unit_test(test_football_fit_rivals_leiden_on_conferences),
+		cmocka_unit_test(test_planted_overlapping_cover_is_recovered),
+	};
+	igraph_set_error_handler(igraph_error_handler_printignore);
+	return cmocka_run_group_tests(tests, NULL, NULL);
+}
