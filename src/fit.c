@@ -191,7 +191,8 @@ static int publish(struct fit *f, enum fit_state state)
 	s->trace = util_malloc(f->ntrace ? f->ntrace : 1, sizeof *s->trace);
 	if (!s->trace)
 		goto fail;
-	memcpy(s->trace, f->trace, f->ntrace * sizeof *s->trace);
+	if (f->ntrace)
+		memcpy(s->trace, f->trace, f->ntrace * sizeof *s->trace);
 	s->sweeps_per_sec = rate_of(f->trace, f->ntrace);
 	if (model_export(&f->m, &s->F))
 		goto fail;
@@ -235,7 +236,8 @@ static int arena_push(struct arena *a, const struct fentry *e, uint32_t nnz, siz
 		a->e = ne;
 		a->cap = cap;
 	}
-	memcpy(a->e + a->len, e, nnz * sizeof *e);
+	if (nnz)
+		memcpy(a->e + a->len, e, nnz * sizeof *e);
 	*at = a->len;
 	a->len += nnz;
 	return 0;

@@ -1,0 +1,1453 @@
+/*
+ * result: the result folder and the checkpoint.
+ *
+ * The idea: every file is produced by a fill function that writes into a
+ * buffered descriptor (struct wfile) opened on DIR/.NAME.tmp-PID; the
+ * descriptor is flushed, fsync()ed and closed with every return value
+ * checked, then renamed onto NAME and the folder fsync()ed. Any failure
+ * removes the temporary file and leaves the old NAME as it was.
+ *
+ * result_write() writes checkpoint.cot first and run.json last. The
+ * checkpoint is the one file that cannot be rebuilt from the others (it
+ * alone holds the strengths), so it is saved before anything that might
+ * fail for lack of space; run.json, written last, marks a folder whose
+ * files all belong to the same snapshot.
+ *
+ * The one thing a newcomer gets wrong: a checkpoint is hostile input like
+ * any other file. The reader decodes from a bounded cursor that checks
+ * every count against the bytes left *before* allocating, then validates
+ * with the same functions the writer uses, so the writer can never save a
+ * file the reader would refuse.
+ *
+ * ---- File formats (copied into man/coterie-files.5) ----
+ *
+ * Text files are TAB-separated with one header line; lines end in LF.
+ * Node names are written as the bytes they had in the input file (so
+ * UTF-8 when the input was), apart from the escapes below.
+ *
+ * memberships.tsv   header: node community strength
+ *   One row per membership (strength >= delta). Rows are grouped by
+ *   community in the order of communities.tsv (largest first, ties by id);
+ *   within a community, members by decreasing strength (ties by node order
+ *   in the graph).
+ *   node       the node name. Four bytes are written as C escapes so that
+ *              a row is always one line of three fields: TAB as \t,
+ *              newline as \n, carriage return as \r, backslash as \\.
+ *              Every other byte is written as it is. To read a name back,
+ *              replace \t \n \r \\ by the byte they stand for.
+ *   community  the community id: the model's column number, 0 .. k-1. Ids
+ *              stay the same from sweep to sweep and across a resume; an
+ *              id whose column is empty is not listed, so ids can skip.
+ *   strength   the affiliation strength F[u][c] (%.6g).
+ *
+ * communities.tsv   header: community size internal_edges density
+ *                           conductance p volume cut
+ *   One row per community, largest first (ties by id).
+ *   community       the id, as in memberships.tsv
+ *   size            members
+ *   internal_edges  edges with both ends in the community
+ *   density         internal_edges / (size choose 2); 0 below 2 members (%.6g)
+ *   conductance     cut / min(volume, 2m - volume); 1 when undefined (%.6g)
+ *   p               the AGM link probability p_c, maximum likelihood with
+ *                   the memberships fixed (%.9g)
+ *   volume          sum of the members' degrees
+ *   cut             edges with exactly one end in the community
+ *
+ * trace.tsv   header: sweep seconds loglik
+ *   One row per trace point; sweep 0 is the seeded model.
+ *   sweep    sweeps done
+ *   seconds  since the fit began, resumes included (%.3f)
+ *   loglik   l(F) after the sweep (%.17g, enough digits to read back the
+ *            exact double)
+ *
+ * run.json   one JSON object, keys in this order:
+ *   coterie.format    1 (this layout)
+ *   command           the command line as typed, or null
+ *   graph             path, format, nodes, edges, fingerprint (16 hex
+ *                     digits), lines, self_loops, duplicates,
+ *                     extra_columns, isolated, directed_input (boolean)
+ *   parameters        k, threads, seed (an integer; a decimal string when
+ *                     above 2^63 - 1), tol, patience, max_sweeps, epsilon
+ *                     (the background actually used), delta (the
+ *                     membership threshold), past_plateau (boolean)
+ *   fit               status, state, sweeps, plateau_sweep (null before
+ *                     the plateau rule fired), seconds, loglik (last
+ *                     trace value), agm_loglik, communities (non-empty
+ *                     ones), covered_nodes, overlapping_nodes
+ *   run               wall_seconds, peak_rss_kb (null when unknown)
+ *   A number that is not finite is written as null. A string that is
+ *   not valid UTF-8 is written with C escapes, in ASCII.
+ *
+ * checkpoint.cot   binary, every integer and double little-endian
+ *   (doubles as their IEEE-754 bit pattern):
+ *     magic "COTERIE\x1a" (8 bytes), u32 version (1), u32 reserved (0),
+ *     u64 graph fingerprint,
+ *     five sections, in this order, each framed as 4 ASCII tag bytes and
+ *     a u64 payload length:
+ *       "PARM": u32 k, u32 threads, u64 seed, f64 tol, u32 patience,
+ *               u32 max_sweeps, f64 epsilon (as given; <= 0 means the
+ *               default), u32 past_plateau (0 or 1). hold_at_plateau is
+ *               how a session waits, not part of the fit: not stored,
+ *               read back as 0.
+ *       "STAT": u32 sweep, u32 plateau_sweep, u32 state (enum fit_state),
+ *               f64 seconds, f64 epsilon (the background in use)
+ *       "TRAC": u32 count, then count x (u32 sweep, f64 seconds, f64 loglik)
+ *       "GRPH": u32 n, u64 m, n x (u32 length, name bytes), then the m
+ *               edges as (u32 u, u32 v) with u < v, sorted by u then v
+ *       "STRN": u32 n, u32 k, u64 nnz, (n + 1) x u64 row offsets,
+ *               nnz x (u32 community, f64 strength)
+ *     u64 FNV-1a checksum of every byte before it.
+ *   The reader refuses: a wrong magic, a newer version, a checksum
+ *   mismatch, any count larger than the bytes that hold it, names that
+ *   repeat or hold a NUL, edges out of order, repeated, with an id >= n or
+ *   a self-loop, a graph whose fingerprint differs from the header, and
+ *   strengths not in (0, MODEL_FMAX], not sorted, or with a community >= k.
+ */
+#include "coterie/result.h"
+
+#include <errno.h>
+#include <fcntl.h>
+#include <inttypes.h>
+#include <limits.h>
+#include <math.h>
+#include <stdarg.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <sys/stat.h>
+#include <sys/types.h>
+#include <unistd.h>
+
+#include <jansson.h>
+
+#include "coterie/agm.h"
+#include "coterie/graph.h"
+#include "coterie/model.h"
+#include "coterie/util.h"
+
+#define CK_MAGIC "COTERIE\x1a"
+#define CK_MAGIC_LEN 8
+#define CK_HEADER_LEN 24   /* magic, version, reserved, fingerprint */
+#define CK_SUM_LEN 8
+#define CK_SECTION_HEAD 12 /* tag and u64 length */
+#define CK_PARM_LEN 44
+#define CK_STAT_LEN 28
+#define CK_TRACE_POINT 20
+#define CK_ENTRY 12
+#define CK_MAX_THREADS 65536u /* a sanity bound on a stored thread count */
+
+#if JSON_INTEGER_IS_LONG_LONG
+#define J_INT_MAX LLONG_MAX
+#else
+#define J_INT_MAX LONG_MAX
+#endif
+
+/* ------------------------------------------------------------------ */
+/* Paths */
+
+/* dir + "/" + name, without doubling a trailing slash. Caller frees. */
+static char *path_join(const char *dir, const char *name)
+{
+	size_t dl = strlen(dir), nl = strlen(name);
+	int slash = dl > 0 && dir[dl - 1] != '/';
+	char *p = util_malloc(dl + (size_t)slash + nl + 1, 1);
+	if (!p)
+		return NULL;
+	memcpy(p, dir, dl);
+	if (slash)
+		p[dl] = '/';
+	memcpy(p + dl + (size_t)slash, name, nl + 1);
+	return p;
+}
+
+/* Split path into its folder (".", when it has none) and its last part.
+ * Both newly allocated; returns 0 or -1. */
+static int path_split(const char *path, char **dir, char **base)
+{
+	const char *slash = strrchr(path, '/');
+	*dir = *base = NULL;
+	if (!slash) {
+		*dir = util_strdup(".");
+		*base = util_strdup(path);
+	} else {
+		size_t dl = (size_t)(slash - path);
+		*dir = util_malloc(dl ? dl + 1 : 2, 1);
+		if (*dir) {
+			if (dl) {
+				memcpy(*dir, path, dl);
+				(*dir)[dl] = '\0';
+			} else {
+				strcpy(*dir, "/");
+			}
+		}
+		*base = util_strdup(slash + 1);
+	}
+	if (!*dir || !*base || !**base) {
+		if (*dir && *base)
+			error("'%s' names a folder, not a file", path);
+		free(*dir);
+		free(*base);
+		*dir = *base = NULL;
+		return -1;
+	}
+	return 0;
+}
+
+/* mkdir -p with mode 0777 (the umask applies). */
+static int make_dirs(const char *dir)
+{
+	struct stat st;
+	if (!*dir)
+		return error("the result folder name is empty");
+	char *p = util_strdup(dir);
+	if (!p)
+		return -1;
+	size_t len = strlen(p);
+	for (size_t i = 1; i <= len; i++) {
+		if (p[i] != '/' && p[i] != '\0')
+			continue;
+		if (p[i - 1] == '/')
+			continue; /* repeated slash */
+		char keep = p[i];
+		p[i] = '\0';
+		if (mkdir(p, 0777) != 0) {
+			int e = errno;
+			if (e != EEXIST) {
+				error("cannot create folder '%s': %s", p, strerror(e));
+				free(p);
+				return -1;
+			}
+			if (stat(p, &st) != 0 || !S_ISDIR(st.st_mode)) {
+				error("cannot create folder '%s': '%s' exists and is not a folder",
+				      dir, p);
+				free(p);
+				return -1;
+			}
+		}
+		p[i] = keep;
+	}
+	free(p);
+	return 0;
+}
+
+/* fsync a folder so a rename in it is durable. Filesystems that cannot
+ * sync a folder (EINVAL) are tolerated. */
+static int sync_dir(const char *dir)
+{
+	int fd = open(dir, O_RDONLY | O_DIRECTORY | O_CLOEXEC);
+	if (fd < 0)
+		return error("cannot open folder '%s': %s", dir, strerror(errno));
+	int rc = 0;
+	if (fsync(fd) != 0 && errno != EINVAL && errno != ENOTSUP)
+		rc = error("cannot sync folder '%s': %s", dir, strerror(errno));
+	close(fd);
+	return rc;
+}
+
+int result_prepare_dir(const char *dir)
+{
+	struct stat st;
+	if (!dir || !*dir)
+		return error("the result folder name is empty");
+	if (stat(dir, &st) == 0) {
+		if (!S_ISDIR(st.st_mode))
+			return error("cannot use '%s' as the result folder: it exists and is not a folder",
+				     dir);
+	} else if (make_dirs(dir) != 0) {
+		return -1;
+	}
+	char name[64];
+	snprintf(name, sizeof name, ".coterie-probe-%ld", (long)getpid());
+	char *probe = path_join(dir, name);
+	if (!probe)
+		return -1;
+	int fd = open(probe, O_WRONLY | O_CREAT | O_EXCL | O_CLOEXEC | O_NOFOLLOW, 0666);
+	if (fd < 0 && errno == EEXIST) {
+		unlink(probe); /* left by a crashed process with our pid */
+		fd = open(probe, O_WRONLY | O_CREAT | O_EXCL | O_CLOEXEC | O_NOFOLLOW, 0666);
+	}
+	if (fd < 0) {
+		int e = errno;
+		free(probe);
+		return error("cannot write to '%s': %s", dir, strerror(e));
+	}
+	close(fd);
+	int rc = 0;
+	if (unlink(probe) != 0)
+		rc = error("cannot remove '%s': %s", probe, strerror(errno));
+	free(probe);
+	return rc;
+}
+
+/* ------------------------------------------------------------------ */
+/* Buffered output with a running checksum */
+
+struct wfile {
+	int fd;
+	int err;        /* errno of the first failure, 0 if none */
+	uint64_t sum;   /* FNV-1a of every byte written */
+	size_t len;
+	unsigned char buf[1 << 16];
+};
+
+static void wf_flush(struct wfile *w)
+{
+	size_t done = 0;
+	while (!w->err && done < w->len) {
+		ssize_t k = write(w->fd, w->buf + done, w->len - done);
+		if (k < 0) {
+			if (errno == EINTR)
+				continue;
+			w->err = errno;
+		} else if (k == 0) {
+			w->err = EIO;
+		} else {
+			done += (size_t)k;
+		}
+	}
+	w->len = 0;
+}
+
+static void wf_write(struct wfile *w, const void *data, size_t n)
+{
+	const unsigned char *p = data;
+	w->sum = util_fnv1a(w->sum, p, n);
+	while (n > 0 && !w->err) {
+		size_t room = sizeof w->buf - w->len;
+		size_t k = n < room ? n : room;
+		memcpy(w->buf + w->len, p, k);
+		w->len += k;
+		p += k;
+		n -= k;
+		if (w->len == sizeof w->buf)
+			wf_flush(w);
+	}
+}
+
+static void wf_printf(struct wfile *w, const char *fmt, ...) COTERIE_PRINTF(2, 3);
+static void wf_printf(struct wfile *w, const char *fmt, ...)
+{
+	char small[256];
+	va_list ap;
+	va_start(ap, fmt);
+	int k = vsnprintf(small, sizeof small, fmt, ap);
+	va_end(ap);
+	if (k < 0) {
+		if (!w->err)
+			w->err = EINVAL;
+		return;
+	}
+	if ((size_t)k < sizeof small) {
+		wf_write(w, small, (size_t)k);
+		return;
+	}
+	char *big = malloc((size_t)k + 1);
+	if (!big) {
+		if (!w->err)
+			w->err = ENOMEM;
+		return;
+	}
+	va_start(ap, fmt);
+	vsnprintf(big, (size_t)k + 1, fmt, ap);
+	va_end(ap);
+	wf_write(w, big, (size_t)k);
+	free(big);
+}
+
+static void wf_str(struct wfile *w, const char *s)
+{
+	wf_write(w, s, strlen(s));
+}
+
+/* Little-endian encoders, byte by byte. */
+static void wf_u32(struct wfile *w, uint32_t x)
+{
+	unsigned char b[4];
+	for (int i = 0; i < 4; i++)
+		b[i] = (unsigned char)(x >> (8 * i));
+	wf_write(w, b, 4);
+}
+
+static void wf_u64(struct wfile *w, uint64_t x)
+{
+	unsigned char b[8];
+	for (int i = 0; i < 8; i++)
+		b[i] = (unsigned char)(x >> (8 * i));
+	wf_write(w, b, 8);
+}
+
+static void wf_f64(struct wfile *w, double x)
+{
+	uint64_t bits;
+	memcpy(&bits, &x, sizeof bits);
+	wf_u64(w, bits);
+}
+
+/* A node name for a TSV field: TAB, LF, CR and backslash as C escapes. */
+static void wf_tsv_name(struct wfile *w, const char *s)
+{
+	const char *run = s;
+	for (; *s; s++) {
+		const char *esc = NULL;
+		switch (*s) {
+		case '\t': esc = "\\t"; break;
+		case '\n': esc = "\\n"; break;
+		case '\r': esc = "\\r"; break;
+		case '\\': esc = "\\\\"; break;
+		default: continue;
+		}
+		wf_write(w, run, (size_t)(s - run));
+		wf_write(w, esc, 2);
+		run = s + 1;
+	}
+	wf_write(w, run, (size_t)(s - run));
+}
+
+/* ------------------------------------------------------------------ */
+/* Atomic replacement */
+
+typedef int (*fill_fn)(struct wfile *w, const void *arg);
+
+/*
+ * Write path through fill (which reports its own errors and returns -1;
+ * I/O errors are collected in w->err and reported here). The bytes go to
+ * DIR/.NAME.tmp-PID, which is synced, closed and renamed onto path.
+ */
+static int atomic_write(const char *path, fill_fn fill, const void *arg)
+{
+	char *dir, *base;
+	if (path_split(path, &dir, &base) != 0)
+		return -1;
+	char *tmpname = util_malloc(strlen(base) + 32, 1);
+	char *tmp = NULL;
+	struct wfile *w = NULL;
+	int fd = -1, rc = -1, made = 0;
+	if (!tmpname)
+		goto out;
+	snprintf(tmpname, strlen(base) + 32, ".%s.tmp-%ld", base, (long)getpid());
+	tmp = path_join(dir, tmpname);
+	w = util_malloc(1, sizeof *w);
+	if (!tmp || !w)
+		goto out;
+	fd = open(tmp, O_WRONLY | O_CREAT | O_TRUNC | O_CLOEXEC | O_NOFOLLOW, 0666);
+	if (fd < 0) {
+		error("cannot write '%s': %s", path, strerror(errno));
+		goto out;
+	}
+	made = 1;
+	w->fd = fd;
+	w->err = 0;
+	w->sum = UTIL_FNV_INIT;
+	w->len = 0;
+	if (fill(w, arg) != 0)
+		goto out;
+	wf_flush(w);
+	if (w->err) {
+		error("cannot write '%s': %s", path, strerror(w->err));
+		goto out;
+	}
+	if (fsync(fd) != 0) {
+		error("cannot write '%s': %s", path, strerror(errno));
+		goto out;
+	}
+	int cfd = fd;
+	fd = -1;
+	if (close(cfd) != 0) {
+		error("cannot write '%s': %s", path, strerror(errno));
+		goto out;
+	}
+	if (rename(tmp, path) != 0) {
+		error("cannot replace '%s': %s", path, strerror(errno));
+		goto out;
+	}
+	made = 0;
+	rc = sync_dir(dir);
+out:
+	if (fd >= 0)
+		close(fd);
+	if (made)
+		unlink(tmp);
+	free(w);
+	free(tmp);
+	free(tmpname);
+	free(dir);
+	free(base);
+	return rc;
+}
+
+/* ------------------------------------------------------------------ */
+/* Validation shared by the writer and the reader. Each returns NULL when
+ * all is well, or a description of the first problem written into why. */
+
+static const char *check_params(const struct fit_params *p, char *why, size_t cap)
+{
+	if (p->k == 0 || p->k > MODEL_MAX_K)
+		snprintf(why, cap, "k is %" PRIu32 ", not between 1 and %u", p->k, MODEL_MAX_K);
+	else if (p->threads == 0 || p->threads > CK_MAX_THREADS)
+		snprintf(why, cap, "thread count %u is not between 1 and %u", p->threads,
+			 CK_MAX_THREADS);
+	else if (!isfinite(p->tol) || p->tol < 0)
+		snprintf(why, cap, "tolerance %g is not a finite number >= 0", p->tol);
+	else if (!isfinite(p->epsilon) || p->epsilon >= 1.0)
+		snprintf(why, cap, "background %g is not a finite number below 1", p->epsilon);
+	else if (p->past_plateau != 0 && p->past_plateau != 1)
+		snprintf(why, cap, "past_plateau is %d, not 0 or 1", p->past_plateau);
+	else
+		return NULL;
+	return why;
+}
+
+static const char *check_state(uint32_t sweep, uint32_t plateau_sweep, uint32_t state,
+			       double seconds, double epsilon, char *why, size_t cap)
+{
+	if (plateau_sweep > sweep)
+		snprintf(why, cap, "plateau at sweep %" PRIu32 " after the last sweep %" PRIu32,
+			 plateau_sweep, sweep);
+	else if (state > FIT_FAILED)
+		snprintf(why, cap, "unknown fit state %" PRIu32, state);
+	else if (!isfinite(seconds) || seconds < 0)
+		snprintf(why, cap, "elapsed time %g is not a finite number >= 0", seconds);
+	else if (!(epsilon >= 0.0 && epsilon < 1.0))
+		snprintf(why, cap, "background %g is not in [0, 1)", epsilon);
+	else
+		return NULL;
+	return why;
+}
+
+static const char *check_trace(const struct trace_point *t, uint32_t n, uint32_t sweep,
+			       char *why, size_t cap)
+{
+	for (uint32_t i = 0; i < n; i++) {
+		if (i > 0 && t[i].sweep <= t[i - 1].sweep) {
+			snprintf(why, cap, "trace point %" PRIu32 " (sweep %" PRIu32
+				 ") does not follow sweep %" PRIu32, i, t[i].sweep, t[i - 1].sweep);
+			return why;
+		}
+		if (t[i].sweep > sweep) {
+			snprintf(why, cap, "trace point %" PRIu32 " is for sweep %" PRIu32
+				 ", after the last sweep %" PRIu32, i, t[i].sweep, sweep);
+			return why;
+		}
+		if (!isfinite(t[i].seconds) || t[i].seconds < 0 || !isfinite(t[i].loglik)) {
+			snprintf(why, cap, "trace point %" PRIu32 " has time %g and log-likelihood %g",
+				 i, t[i].seconds, t[i].loglik);
+			return why;
+		}
+	}
+	return NULL;
+}
+
+/* Strengths: shape, offsets, and every entry. colsum is not read. */
+static const char *check_strengths(const struct fcsr *F, char *why, size_t cap)
+{
+	if (F->k == 0 || F->k > MODEL_MAX_K) {
+		snprintf(why, cap, "k is %" PRIu32 ", not between 1 and %u", F->k, MODEL_MAX_K);
+		return why;
+	}
+	if (!F->off || (F->off[F->n] > 0 && !F->e)) {
+		snprintf(why, cap, "strengths are missing");
+		return why;
+	}
+	if (F->off[0] != 0) {
+		snprintf(why, cap, "the first row offset is %" PRIu64 ", not 0", F->off[0]);
+		return why;
+	}
+	for (uint32_t u = 0; u < F->n; u++) {
+		if (F->off[u + 1] < F->off[u]) {
+			snprintf(why, cap, "row offsets decrease at node %" PRIu32, u);
+			return why;
+		}
+		for (uint64_t i = F->off[u]; i < F->off[u + 1]; i++) {
+			uint32_t c = F->e[i].c;
+			double v = F->e[i].v;
+			if (c >= F->k) {
+				snprintf(why, cap, "node %" PRIu32 " has community %" PRIu32
+					 " but k is %" PRIu32, u, c, F->k);
+				return why;
+			}
+			if (i > F->off[u] && F->e[i - 1].c >= c) {
+				snprintf(why, cap, "the strengths of node %" PRIu32
+					 " are not sorted by community", u);
+				return why;
+			}
+			if (!(v > 0.0 && v <= MODEL_FMAX)) {
+				snprintf(why, cap, "node %" PRIu32 " has strength %g in community %" PRIu32
+					 ", not in (0, %g]", u, v, c, MODEL_FMAX);
+				return why;
+			}
+		}
+	}
+	return NULL;
+}
+
+/* ------------------------------------------------------------------ */
+/* The checkpoint writer */
+
+struct ck_args {
+	const struct graph *g;
+	const struct fit_params *p;
+	const struct snapshot *s;
+};
+
+static void wf_section(struct wfile *w, const char *tag, uint64_t len)
+{
+	wf_write(w, tag, 4);
+	wf_u64(w, len);
+}
+
+static int fill_checkpoint(struct wfile *w, const void *arg)
+{
+	const struct ck_args *a = arg;
+	const struct graph *g = a->g;
+	const struct fit_params *p = a->p;
+	const struct snapshot *s = a->s;
+	const struct fcsr *F = &s->F;
+
+	wf_write(w, CK_MAGIC, CK_MAGIC_LEN);
+	wf_u32(w, RESULT_CHECKPOINT_VERSION);
+	wf_u32(w, 0);
+	wf_u64(w, graph_fingerprint(g));
+
+	wf_section(w, "PARM", CK_PARM_LEN);
+	wf_u32(w, p->k);
+	wf_u32(w, p->threads);
+	wf_u64(w, p->seed);
+	wf_f64(w, p->tol);
+	wf_u32(w, p->patience);
+	wf_u32(w, p->max_sweeps);
+	wf_f64(w, p->epsilon);
+	wf_u32(w, (uint32_t)p->past_plateau);
+
+	wf_section(w, "STAT", CK_STAT_LEN);
+	wf_u32(w, s->sweep);
+	wf_u32(w, s->plateau_sweep);
+	wf_u32(w, (uint32_t)s->state);
+	wf_f64(w, s->seconds);
+	wf_f64(w, s->epsilon);
+
+	wf_section(w, "TRAC", 4 + (uint64_t)s->ntrace * CK_TRACE_POINT);
+	wf_u32(w, s->ntrace);
+	for (uint32_t i = 0; i < s->ntrace; i++) {
+		wf_u32(w, s->trace[i].sweep);
+		wf_f64(w, s->trace[i].seconds);
+		wf_f64(w, s->trace[i].loglik);
+	}
+
+	uint64_t glen = 4 + 8 + (uint64_t)g->n * 4 + g->m * 8;
+	for (uint32_t u = 0; u < g->n; u++)
+		glen += strlen(g->names[u]);
+	wf_section(w, "GRPH", glen);
+	wf_u32(w, g->n);
+	wf_u64(w, g->m);
+	for (uint32_t u = 0; u < g->n; u++) {
+		size_t len = strlen(g->names[u]);
+		wf_u32(w, (uint32_t)len);
+		wf_write(w, g->names[u], len);
+	}
+	uint64_t written = 0;
+	for (uint32_t u = 0; u < g->n; u++)
+		for (uint64_t i = g->off[u]; i < g->off[u + 1]; i++)
+			if (g->adj[i] > u) {
+				wf_u32(w, u);
+				wf_u32(w, g->adj[i]);
+				written++;
+			}
+	if (written != g->m)
+		return error("cannot write checkpoint: the graph lists %" PRIu64
+			     " edges but holds %" PRIu64, g->m, written);
+
+	uint64_t nnz = F->off[F->n];
+	wf_section(w, "STRN", 4 + 4 + 8 + ((uint64_t)F->n + 1) * 8 + nnz * CK_ENTRY);
+	wf_u32(w, F->n);
+	wf_u32(w, F->k);
+	wf_u64(w, nnz);
+	for (uint32_t u = 0; u <= F->n; u++)
+		wf_u64(w, F->off[u]);
+	for (uint64_t i = 0; i < nnz; i++) {
+		wf_u32(w, F->e[i].c);
+		wf_f64(w, F->e[i].v);
+	}
+
+	wf_u64(w, w->sum);
+	return 0;
+}
+
+int result_write_checkpoint(const char *path, const struct graph *g,
+			    const struct fit_params *p, const struct snapshot *s)
+{
+	char why[256];
+	const char *bad = NULL;
+	if (s->F.n != g->n)
+		return error("cannot write checkpoint '%s': the strengths have %" PRIu32
+			     " rows for a graph of %" PRIu32 " nodes", path, s->F.n, g->n);
+	if (s->F.k != p->k)
+		return error("cannot write checkpoint '%s': the strengths have %" PRIu32
+			     " columns but k is %" PRIu32, path, s->F.k, p->k);
+	if (s->ntrace > 0 && !s->trace)
+		return error("cannot write checkpoint '%s': the trace is missing", path);
+	for (uint32_t u = 0; u < g->n && !bad; u++)
+		if (strlen(g->names[u]) > UINT32_MAX)
+			bad = "a node name is longer than 4 GiB";
+	if (!bad)
+		bad = check_params(p, why, sizeof why);
+	if (!bad)
+		bad = check_state(s->sweep, s->plateau_sweep, (uint32_t)s->state, s->seconds,
+				  s->epsilon, why, sizeof why);
+	if (!bad)
+		bad = check_trace(s->trace, s->ntrace, s->sweep, why, sizeof why);
+	if (!bad)
+		bad = check_strengths(&s->F, why, sizeof why);
+	if (bad)
+		return error("cannot write checkpoint '%s': %s", path, bad);
+	struct ck_args a = { g, p, s };
+	return atomic_write(path, fill_checkpoint, &a);
+}
+
+/* ------------------------------------------------------------------ */
+/* The checkpoint reader */
+
+/* A cursor over bytes that are all in memory; every take is bounded. */
+struct rd {
+	const unsigned char *p;
+	size_t left;
+};
+
+static int rd_take(struct rd *r, size_t n, const unsigned char **out)
+{
+	if (n > r->left)
+		return -1;
+	*out = r->p;
+	r->p += n;
+	r->left -= n;
+	return 0;
+}
+
+static uint32_t dec_u32(const unsigned char *b)
+{
+	uint32_t x = 0;
+	for (int i = 3; i >= 0; i--)
+		x = (x << 8) | b[i];
+	return x;
+}
+
+static uint64_t dec_u64(const unsigned char *b)
+{
+	uint64_t x = 0;
+	for (int i = 7; i >= 0; i--)
+		x = (x << 8) | b[i];
+	return x;
+}
+
+static double dec_f64(const unsigned char *b)
+{
+	uint64_t bits = dec_u64(b);
+	double x;
+	memcpy(&x, &bits, sizeof x);
+	return x;
+}
+
+/* Readers for fields whose space the caller has checked (against the
+ * section length, or a count against r->left): running short here is a
+ * bug in this file, not a damaged checkpoint. */
+static const unsigned char *rd_must(struct rd *r, size_t n)
+{
+	const unsigned char *b;
+	if (rd_take(r, n, &b))
+		BUG("checkpoint reader overran its bounds (%zu > %zu)", n, r->left);
+	return b;
+}
+
+static uint32_t rd_u32(struct rd *r)
+{
+	return dec_u32(rd_must(r, 4));
+}
+
+static uint64_t rd_u64(struct rd *r)
+{
+	return dec_u64(rd_must(r, 8));
+}
+
+static double rd_f64(struct rd *r)
+{
+	return dec_f64(rd_must(r, 8));
+}
+
+/* Every failure after the checksum goes through here. */
+static int damaged(const char *path, const char *fmt, ...) COTERIE_PRINTF(2, 3);
+static int damaged(const char *path, const char *fmt, ...)
+{
+	char msg[512];
+	va_list ap;
+	va_start(ap, fmt);
+	vsnprintf(msg, sizeof msg, fmt, ap);
+	va_end(ap);
+	return error("%s is damaged: %s", path, msg);
+}
+
+/* Open the next section, which must carry tag; sec covers its payload. */
+static int rd_section(const char *path, struct rd *r, const char *tag, struct rd *sec)
+{
+	const unsigned char *b;
+	if (rd_take(r, CK_SECTION_HEAD, &b))
+		return damaged(path, "the '%s' section is missing", tag);
+	if (memcmp(b, tag, 4) != 0)
+		return damaged(path, "expected the '%s' section", tag);
+	uint64_t len = dec_u64(b + 4);
+	if (len > r->left)
+		return damaged(path, "the '%s' section claims %" PRIu64 " bytes, %zu are left",
+			       tag, len, r->left);
+	sec->p = r->p;
+	sec->left = (size_t)len;
+	r->p += len;
+	r->left -= (size_t)len;
+	return 0;
+}
+
+static int rd_section_end(const char *path, const struct rd *sec, const char *tag)
+{
+	if (sec->left != 0)
+		return damaged(path, "the '%s' section has %zu bytes too many", tag, sec->left);
+	return 0;
+}
+
+/* Slurp a regular file. */
+static int read_whole(const char *path, unsigned char **data, size_t *size)
+{
+	*data = NULL;
+	*size = 0;
+	int fd = open(path, O_RDONLY | O_CLOEXEC);
+	if (fd < 0)
+		return error("cannot open '%s': %s", path, strerror(errno));
+	struct stat st;
+	if (fstat(fd, &st) != 0) {
+		int e = errno;
+		close(fd);
+		return error("cannot read '%s': %s", path, strerror(e));
+	}
+	if (!S_ISREG(st.st_mode)) {
+		close(fd);
+		return error("cannot read '%s': not a regular file", path);
+	}
+	if (st.st_size < CK_HEADER_LEN + CK_SUM_LEN) {
+		close(fd);
+		return error("%s is not a coterie checkpoint (only %lld bytes)", path,
+			     (long long)st.st_size);
+	}
+	if ((uintmax_t)st.st_size > (uintmax_t)(SIZE_MAX / 2)) {
+		close(fd);
+		return error("%s is too large to be read (%lld bytes)", path,
+			     (long long)st.st_size);
+	}
+	size_t n = (size_t)st.st_size;
+	unsigned char *buf = util_malloc(n, 1);
+	if (!buf) {
+		close(fd);
+		return -1;
+	}
+	size_t got = 0;
+	while (got < n) {
+		ssize_t k = read(fd, buf + got, n - got);
+		if (k < 0 && errno == EINTR)
+			continue;
+		if (k < 0) {
+			int e = errno;
+			free(buf);
+			close(fd);
+			return error("cannot read '%s': %s", path, strerror(e));
+		}
+		if (k == 0)
+			break;
+		got += (size_t)k;
+	}
+	close(fd);
+	if (got != n) {
+		free(buf);
+		return error("cannot read '%s': it changed while being read", path);
+	}
+	*data = buf;
+	*size = n;
+	return 0;
+}
+
+static int cmp_name(const void *a, const void *b)
+{
+	return strcmp(*(char *const *)a, *(char *const *)b);
+}
+
+/* The GRPH section: names and edges, rebuilt into a graph. */
+static int read_graph(const char *path, struct rd *sec, uint64_t fingerprint,
+		      struct graph **out)
+{
+	uint32_t n;
+	uint64_t m;
+	char why[300];
+	*out = NULL;
+	if (sec->left < 12)
+		return damaged(path, "the graph section is too short");
+	n = rd_u32(sec);
+	m = rd_u64(sec);
+	if (n >= UINT32_MAX)
+		return damaged(path, "the graph has %" PRIu32 " nodes", n);
+	/* each name takes at least its 4-byte length, each edge 8 bytes */
+	if (n > sec->left / 4 || m > (sec->left - (size_t)n * 4) / 8)
+		return damaged(path, "the graph claims %" PRIu32 " nodes and %" PRIu64
+			       " edges in %zu bytes", n, m, sec->left);
+
+	/* names: lengths first, to size one block for all of them */
+	struct rd walk = *sec;
+	size_t total = 0;
+	for (uint32_t u = 0; u < n; u++) {
+		const unsigned char *b;
+		if (walk.left < 4)
+			return damaged(path, "the name of node %" PRIu32 " runs past the section", u);
+		uint32_t len = rd_u32(&walk);
+		if (rd_take(&walk, len, &b))
+			return damaged(path, "the name of node %" PRIu32 " runs past the section", u);
+		if (memchr(b, '\0', len))
+			return damaged(path, "the name of node %" PRIu32 " holds a NUL byte", u);
+		total += (size_t)len + 1;
+	}
+	if (m > walk.left / 8)
+		return damaged(path, "the graph claims %" PRIu64 " edges in %zu bytes", m, walk.left);
+
+	char *block = util_malloc(total ? total : 1, 1);
+	char **names = util_malloc(n, sizeof *names);
+	char **sorted = util_malloc(n, sizeof *sorted);
+	uint32_t *pairs = util_malloc((size_t)m * 2, sizeof *pairs);
+	struct graph *g = NULL;
+	int rc = -1;
+	if (!block || !names || !sorted || !pairs)
+		goto out;
+	size_t o = 0;
+	for (uint32_t u = 0; u < n; u++) {
+		uint32_t len = rd_u32(sec);
+		const unsigned char *b = rd_must(sec, len);
+		memcpy(block + o, b, len);
+		block[o + len] = '\0';
+		names[u] = sorted[u] = block + o;
+		o += (size_t)len + 1;
+	}
+	if (n > 1)
+		qsort(sorted, n, sizeof *sorted, cmp_name);
+	for (uint32_t u = 1; u < n; u++)
+		if (strcmp(sorted[u - 1], sorted[u]) == 0) {
+			damaged(path, "node name '%s' is given twice",
+				util_escape(sorted[u], why, sizeof why, 0));
+			goto out;
+		}
+
+	uint32_t pu = 0, pv = 0;
+	for (uint64_t i = 0; i < m; i++) {
+		uint32_t u = rd_u32(sec);
+		uint32_t v = rd_u32(sec);
+		if (u >= n || v >= n) {
+			damaged(path, "edge %" PRIu64 " names node %" PRIu32 " of %" PRIu32, i,
+				u >= n ? u : v, n);
+			goto out;
+		}
+		if (u == v) {
+			damaged(path, "edge %" PRIu64 " is a self-loop on node %" PRIu32, i, u);
+			goto out;
+		}
+		if (u > v) {
+			damaged(path, "edge %" PRIu64 " is stored as %" PRIu32 "-%" PRIu32
+				", the larger id first", i, u, v);
+			goto out;
+		}
+		if (i > 0 && (u < pu || (u == pu && v <= pv))) {
+			damaged(path, "edge %" PRIu64 " (%" PRIu32 "-%" PRIu32
+				") is out of order or repeated", i, u, v);
+			goto out;
+		}
+		pairs[2 * i] = u;
+		pairs[2 * i + 1] = v;
+		pu = u;
+		pv = v;
+	}
+	if (rd_section_end(path, sec, "GRPH"))
+		goto out;
+
+	g = graph_from_pairs(n, pairs, m, (const char *const *)names);
+	if (!g) {
+		error("%s: cannot rebuild the graph", path);
+		goto out;
+	}
+	if (g->n != n || g->m != m) {
+		damaged(path, "the graph rebuilt has %" PRIu32 " nodes and %" PRIu64
+			" edges, the file lists %" PRIu32 " and %" PRIu64, g->n, g->m, n, m);
+		goto out;
+	}
+	uint64_t fp = graph_fingerprint(g);
+	if (fp != fingerprint) {
+		damaged(path, "the graph's fingerprint is %016" PRIx64 ", the header says %016" PRIx64,
+			fp, fingerprint);
+		goto out;
+	}
+	/* the graph came from the checkpoint, not from "(pairs)" */
+	char *src = util_strdup(path);
+	if (!src)
+		goto out;
+	free(g->source);
+	g->source = src;
+	*out = g;
+	g = NULL;
+	rc = 0;
+out:
+	graph_free(g);
+	free(pairs);
+	free(sorted);
+	free(names);
+	free(block);
+	return rc;
+}
+
+/* The STRN section, into F (allocated here). */
+static int read_strengths(const char *path, struct rd *sec, struct fcsr *F)
+{
+	uint32_t n, k;
+	uint64_t nnz;
+	if (sec->left < 16)
+		return damaged(path, "the strengths section is too short");
+	n = rd_u32(sec);
+	k = rd_u32(sec);
+	nnz = rd_u64(sec);
+	if (k == 0 || k > MODEL_MAX_K)
+		return damaged(path, "the strengths have %" PRIu32 " columns, not 1 to %u", k,
+			       MODEL_MAX_K);
+	if ((uint64_t)n + 1 > sec->left / 8 ||
+	    nnz > (sec->left - ((size_t)n + 1) * 8) / CK_ENTRY)
+		return damaged(path, "the strengths claim %" PRIu32 " rows and %" PRIu64
+			       " entries in %zu bytes", n, nnz, sec->left);
+	F->n = n;
+	F->k = k;
+	F->off = util_malloc((size_t)n + 1, sizeof *F->off);
+	F->e = util_malloc((size_t)nnz, sizeof *F->e);
+	F->colsum = util_calloc(k, sizeof *F->colsum);
+	if (!F->off || !F->e || !F->colsum)
+		return -1;
+	for (uint32_t u = 0; u <= n; u++)
+		F->off[u] = rd_u64(sec);
+	if (F->off[n] != nnz)
+		return damaged(path, "the last row offset is %" PRIu64 ", not %" PRIu64, F->off[n],
+			       nnz);
+	for (uint64_t i = 0; i < nnz; i++) {
+		F->e[i].c = rd_u32(sec);
+		F->e[i].v = rd_f64(sec);
+	}
+	if (rd_section_end(path, sec, "STRN"))
+		return -1;
+	char why[256];
+	const char *bad = check_strengths(F, why, sizeof why);
+	if (bad)
+		return damaged(path, "%s", bad);
+	for (uint64_t i = 0; i < nnz; i++)
+		F->colsum[F->e[i].c] += F->e[i].v;
+	return 0;
+}
+
+static int read_body(const char *path, struct rd *body, struct checkpoint *ck)
+{
+	struct rd sec;
+	char why[256];
+	const char *bad;
+
+	if (rd_section(path, body, "PARM", &sec))
+		return -1;
+	if (sec.left != CK_PARM_LEN)
+		return damaged(path, "the parameters take %zu bytes, not %d", sec.left, CK_PARM_LEN);
+	uint32_t threads, pp;
+	struct fit_params *p = &ck->params;
+	p->k = rd_u32(&sec);
+	threads = rd_u32(&sec);
+	p->seed = rd_u64(&sec);
+	p->tol = rd_f64(&sec);
+	p->patience = rd_u32(&sec);
+	p->max_sweeps = rd_u32(&sec);
+	p->epsilon = rd_f64(&sec);
+	pp = rd_u32(&sec);
+	if (threads == 0 || threads > CK_MAX_THREADS || pp > 1) {
+		return damaged(path, "threads %" PRIu32 " or past_plateau %" PRIu32
+			       " out of range", threads, pp);
+	}
+	p->threads = threads;
+	p->past_plateau = (int)pp;
+	if ((bad = check_params(p, why, sizeof why)))
+		return damaged(path, "%s", bad);
+
+	if (rd_section(path, body, "STAT", &sec))
+		return -1;
+	if (sec.left != CK_STAT_LEN)
+		return damaged(path, "the state takes %zu bytes, not %d", sec.left, CK_STAT_LEN);
+	uint32_t state;
+	ck->sweep = rd_u32(&sec);
+	ck->plateau_sweep = rd_u32(&sec);
+	state = rd_u32(&sec);
+	ck->seconds = rd_f64(&sec);
+	ck->epsilon = rd_f64(&sec);
+	if ((bad = check_state(ck->sweep, ck->plateau_sweep, state, ck->seconds, ck->epsilon,
+			       why, sizeof why)))
+		return damaged(path, "%s", bad);
+	ck->state = (enum fit_state)state;
+
+	if (rd_section(path, body, "TRAC", &sec))
+		return -1;
+	uint32_t nt;
+	if (sec.left < 4)
+		return damaged(path, "the trace section is too short");
+	nt = rd_u32(&sec);
+	if (nt > sec.left / CK_TRACE_POINT)
+		return damaged(path, "the trace claims %" PRIu32 " points in %zu bytes", nt,
+			       sec.left);
+	ck->trace = util_malloc(nt, sizeof *ck->trace);
+	if (!ck->trace)
+		return -1;
+	ck->ntrace = nt;
+	for (uint32_t i = 0; i < nt; i++) {
+		ck->trace[i].sweep = rd_u32(&sec);
+		ck->trace[i].seconds = rd_f64(&sec);
+		ck->trace[i].loglik = rd_f64(&sec);
+	}
+	if (rd_section_end(path, &sec, "TRAC"))
+		return -1;
+	if ((bad = check_trace(ck->trace, nt, ck->sweep, why, sizeof why)))
+		return damaged(path, "%s", bad);
+
+	if (rd_section(path, body, "GRPH", &sec))
+		return -1;
+	if (read_graph(path, &sec, ck->fingerprint, &ck->graph))
+		return -1;
+
+	if (rd_section(path, body, "STRN", &sec))
+		return -1;
+	if (read_strengths(path, &sec, &ck->F))
+		return -1;
+	if (ck->F.n != ck->graph->n)
+		return damaged(path, "the strengths have %" PRIu32 " rows for %" PRIu32 " nodes",
+			       ck->F.n, ck->graph->n);
+	if (ck->F.k != p->k)
+		return damaged(path, "the strengths have %" PRIu32 " columns but k is %" PRIu32,
+			       ck->F.k, p->k);
+	if (body->left != 0)
+		return damaged(path, "%zu unexpected bytes after the last section", body->left);
+	return 0;
+}
+
+int result_read_checkpoint(const char *path, struct checkpoint *out)
+{
+	unsigned char *data;
+	size_t size;
+	memset(out, 0, sizeof *out);
+	if (read_whole(path, &data, &size))
+		return -1;
+	int rc = -1;
+	if (memcmp(data, CK_MAGIC, CK_MAGIC_LEN) != 0) {
+		error("%s is not a coterie checkpoint", path);
+		goto out;
+	}
+	uint32_t version = dec_u32(data + 8);
+	if (version > RESULT_CHECKPOINT_VERSION) {
+		error("%s was made by a newer coterie (checkpoint format %" PRIu32
+		      "; this one reads format %u)", path, version, RESULT_CHECKPOINT_VERSION);
+		goto out;
+	}
+	if (util_fnv1a(UTIL_FNV_INIT, data, size - CK_SUM_LEN) != dec_u64(data + size - CK_SUM_LEN)) {
+		error("%s is damaged (checksum mismatch)", path);
+		goto out;
+	}
+	if (version == 0) {
+		damaged(path, "unknown checkpoint format 0");
+		goto out;
+	}
+	if (dec_u32(data + 12) != 0) {
+		damaged(path, "the reserved header field is not 0");
+		goto out;
+	}
+	out->fingerprint = dec_u64(data + 16);
+	struct rd body = { data + CK_HEADER_LEN, size - CK_HEADER_LEN - CK_SUM_LEN };
+	rc = read_body(path, &body, out);
+out:
+	free(data);
+	if (rc)
+		checkpoint_release(out);
+	return rc;
+}
+
+void checkpoint_release(struct checkpoint *ck)
+{
+	if (!ck)
+		return;
+	graph_free(ck->graph);
+	free(ck->trace);
+	fcsr_release(&ck->F);
+	memset(ck, 0, sizeof *ck);
+}
+
+void checkpoint_origin(const struct checkpoint *ck, struct fit_origin *o)
+{
+	memset(o, 0, sizeof *o);
+	o->F = &ck->F;
+	o->trace = ck->trace;
+	o->ntrace = ck->ntrace;
+	o->sweep = ck->sweep;
+	o->seconds = ck->seconds;
+	o->plateau_sweep = ck->plateau_sweep;
+}
+
+/* ------------------------------------------------------------------ */
+/* Text files */
+
+struct tsv_args {
+	const struct graph *g;
+	const struct snapshot *s;
+};
+
+struct ranked {
+	double strength;
+	uint32_t node;
+};
+
+static int cmp_ranked(const void *a, const void *b)
+{
+	const struct ranked *x = a, *y = b;
+	if (x->strength != y->strength)
+		return x->strength > y->strength ? -1 : 1;
+	return (x->node > y->node) - (x->node < y->node);
+}
+
+static int fill_memberships(struct wfile *w, const void *arg)
+{
+	const struct tsv_args *a = arg;
+	const struct agm *agm = &a->s->agm;
+	const struct cover *cv = &agm->cover;
+	uint32_t most = 0;
+	for (uint32_t i = 0; i < cv->k; i++)
+		if (cover_size(cv, i) > most)
+			most = cover_size(cv, i);
+	struct ranked *r = util_malloc(most, sizeof *r);
+	if (!r)
+		return -1;
+	wf_str(w, "node\tcommunity\tstrength\n");
+	for (uint32_t i = 0; i < cv->k && !w->err; i++) {
+		uint32_t size = cover_size(cv, i);
+		for (uint32_t j = 0; j < size; j++) {
+			uint64_t at = cv->off[i] + j;
+			r[j].node = cv->mem[at];
+			r[j].strength = agm->strength ? agm->strength[at] : 1.0;
+		}
+		qsort(r, size, sizeof *r, cmp_ranked);
+		for (uint32_t j = 0; j < size; j++) {
+			wf_tsv_name(w, a->g->names[r[j].node]);
+			wf_printf(w, "\t%" PRIu32 "\t%.6g\n", agm->comms[i].id, r[j].strength);
+		}
+	}
+	free(r);
+	return 0;
+}
+
+static int fill_communities(struct wfile *w, const void *arg)
+{
+	const struct tsv_args *a = arg;
+	const struct agm *agm = &a->s->agm;
+	wf_str(w, "community\tsize\tinternal_edges\tdensity\tconductance\tp\tvolume\tcut\n");
+	for (uint32_t i = 0; i < agm->cover.k && !w->err; i++) {
+		const struct agm_community *c = &agm->comms[i];
+		wf_printf(w, "%" PRIu32 "\t%" PRIu32 "\t%" PRIu64 "\t%.6g\t%.6g\t%.9g\t%" PRIu64
+			  "\t%" PRIu64 "\n", c->id, c->size, c->internal_edges, c->density,
+			  c->conductance, c->p, c->volume, c->cut);
+	}
+	return 0;
+}
+
+static int fill_trace(struct wfile *w, const void *arg)
+{
+	const struct tsv_args *a = arg;
+	wf_str(w, "sweep\tseconds\tloglik\n");
+	for (uint32_t i = 0; i < a->s->ntrace && !w->err; i++) {
+		const struct trace_point *t = &a->s->trace[i];
+		wf_printf(w, "%" PRIu32 "\t%.3f\t%.17g\n", t->sweep, t->seconds, t->loglik);
+	}
+	return 0;
+}
+
+/* ------------------------------------------------------------------ */
+/* run.json */
+
+static json_t *j_real(double x)
+{
+	return isfinite(x) ? json_real(x) : json_null();
+}
+
+static json_t *j_uint(uint64_t x)
+{
+	return x <= (uint64_t)J_INT_MAX ? json_integer((json_int_t)x) : NULL;
+}
+
+/* A string, or its ASCII escape when it is not valid UTF-8; null for NULL. */
+static json_t *j_str(const char *s)
+{
+	if (!s)
+		return json_null();
+	json_t *j = json_string(s);
+	if (j)
+		return j;
+	char *esc = util_escape_dup(s, 1);
+	if (!esc)
+		return NULL;
+	j = json_string(esc);
+	free(esc);
+	return j;
+}
+
+static void j_set(json_t *o, const char *key, json_t *v, int *bad)
+{
+	if (json_object_set_new(o, key, v) != 0)
+		*bad = 1;
+}
+
+static char *run_json(const struct graph *g, const struct fit_params *p,
+		      const struct snapshot *s, const struct result_meta *meta)
+{
+	int bad = 0;
+	json_t *root = json_object();
+	json_t *jc = json_object(), *jg = json_object(), *jp = json_object();
+	json_t *jf = json_object(), *jr = json_object();
+	char hex[17];
+	if (!root) {
+		json_decref(jc);
+		json_decref(jg);
+		json_decref(jp);
+		json_decref(jf);
+		json_decref(jr);
+		error("out of memory building run.json");
+		return NULL;
+	}
+
+	j_set(jc, "format", json_integer(1), &bad);
+	j_set(root, "coterie", jc, &bad);
+	j_set(root, "command", j_str(meta ? meta->command_line : NULL), &bad);
+
+	const struct graph_report *r = &g->report;
+	snprintf(hex, sizeof hex, "%016" PRIx64, graph_fingerprint(g));
+	j_set(jg, "path", j_str(meta && meta->graph_path ? meta->graph_path : g->source), &bad);
+	j_set(jg, "format", j_str(graph_format_name(r->format)), &bad);
+	j_set(jg, "nodes", j_uint(g->n), &bad);
+	j_set(jg, "edges", j_uint(g->m), &bad);
+	j_set(jg, "fingerprint", json_string(hex), &bad);
+	j_set(jg, "lines", j_uint(r->lines), &bad);
+	j_set(jg, "self_loops", j_uint(r->self_loops), &bad);
+	j_set(jg, "duplicates", j_uint(r->duplicates), &bad);
+	j_set(jg, "extra_columns", j_uint(r->extra_columns), &bad);
+	j_set(jg, "isolated", j_uint(r->isolated), &bad);
+	j_set(jg, "directed_input", json_boolean(r->directed_input), &bad);
+	j_set(root, "graph", jg, &bad);
+
+	j_set(jp, "k", j_uint(p->k), &bad);
+	j_set(jp, "threads", j_uint(p->threads), &bad);
+	if (p->seed <= (uint64_t)J_INT_MAX) {
+		j_set(jp, "seed", j_uint(p->seed), &bad);
+	} else {
+		char dec[24];
+		snprintf(dec, sizeof dec, "%" PRIu64, p->seed);
+		j_set(jp, "seed", json_string(dec), &bad);
+	}
+	j_set(jp, "tol", j_real(p->tol), &bad);
+	j_set(jp, "patience", j_uint(p->patience), &bad);
+	j_set(jp, "max_sweeps", j_uint(p->max_sweeps), &bad);
+	j_set(jp, "epsilon", j_real(s->epsilon), &bad);
+	j_set(jp, "delta", j_real(s->delta), &bad);
+	j_set(jp, "past_plateau", json_boolean(p->past_plateau), &bad);
+	j_set(root, "parameters", jp, &bad);
+
+	uint32_t nonempty = 0;
+	for (uint32_t i = 0; i < s->agm.cover.k; i++)
+		if (cover_size(&s->agm.cover, i) > 0)
+			nonempty++;
+	j_set(jf, "status", j_str(meta ? meta->status : NULL), &bad);
+	j_set(jf, "state", j_str(fit_state_name(s->state)), &bad);
+	j_set(jf, "sweeps", j_uint(s->sweep), &bad);
+	j_set(jf, "plateau_sweep", s->plateau_sweep ? j_uint(s->plateau_sweep) : json_null(),
+	      &bad);
+	j_set(jf, "seconds", j_real(s->seconds), &bad);
+	j_set(jf, "loglik", s->ntrace ? j_real(s->trace[s->ntrace - 1].loglik) : json_null(),
+	      &bad);
+	j_set(jf, "agm_loglik", j_real(s->agm.loglik), &bad);
+	j_set(jf, "communities", j_uint(nonempty), &bad);
+	j_set(jf, "covered_nodes", j_uint(s->agm.covered), &bad);
+	j_set(jf, "overlapping_nodes", j_uint(s->agm.overlapping), &bad);
+	j_set(root, "fit", jf, &bad);
+
+	j_set(jr, "wall_seconds", meta ? j_real(meta->wall_seconds) : json_null(), &bad);
+	j_set(jr, "peak_rss_kb", meta && meta->peak_rss_kb ? j_uint(meta->peak_rss_kb) : json_null(),
+	      &bad);
+	j_set(root, "run", jr, &bad);
+
+	char *text = bad ? NULL : json_dumps(root, JSON_INDENT(2));
+	json_decref(root);
+	if (!text)
+		error("out of memory building run.json");
+	return text;
+}
+
+static int fill_text(struct wfile *w, const void *arg)
+{
+	wf_str(w, arg);
+	wf_str(w, "\n");
+	return 0;
+}
+
+/* ------------------------------------------------------------------ */
+
+/* The snapshot's memberships must fit the graph before names are read. */
+static int check_agm(const struct graph *g, const struct snapshot *s)
+{
+	const struct agm *a = &s->agm;
+	if (a->cover.k > 0 && (!a->comms || !a->cover.off ||
+			       (a->cover.off[a->cover.k] > 0 && !a->cover.mem)))
+		return error("cannot write results: the communities are missing");
+	for (uint32_t i = 0; i < a->cover.k; i++) {
+		if (a->cover.off[i + 1] < a->cover.off[i])
+			return error("cannot write results: community %" PRIu32 " is malformed", i);
+		for (uint64_t j = a->cover.off[i]; j < a->cover.off[i + 1]; j++)
+			if (a->cover.mem[j] >= g->n)
+				return error("cannot write results: community %" PRIu32
+					     " holds node %" PRIu32 " of %" PRIu32, a->comms[i].id,
+					     a->cover.mem[j], g->n);
+	}
+	if (s->ntrace > 0 && !s->trace)
+		return error("cannot write results: the trace is missing");
+	return 0;
+}
+
+int result_write(const char *dir, const struct graph *g, const struct fit_params *p,
+		 const struct snapshot *s, const struct result_meta *meta)
+{
+	static const struct {
+		const char *name;
+		fill_fn fill;
+	} tsv[] = {
+		{ "memberships.tsv", fill_memberships },
+		{ "communities.tsv", fill_communities },
+		{ "trace.tsv", fill_trace },
+	};
+	if (check_agm(g, s) || make_dirs(dir))
+		return -1;
+	char *path = path_join(dir, RESULT_CHECKPOINT);
+	if (!path)
+		return -1;
+	int rc = result_write_checkpoint(path, g, p, s);
+	free(path);
+	struct tsv_args a = { g, s };
+	for (size_t i = 0; rc == 0 && i < sizeof tsv / sizeof tsv[0]; i++) {
+		path = path_join(dir, tsv[i].name);
+		rc = path ? atomic_write(path, tsv[i].fill, &a) : -1;
+		free(path);
+	}
+	if (rc)
+		return -1;
+	char *text = run_json(g, p, s, meta);
+	path = text ? path_join(dir, "run.json") : NULL;
+	rc = path ? atomic_write(path, fill_text, text) : -1;
+	free(path);
+	free(text);
+	return rc;
+}
