@@ -49,18 +49,25 @@ struct agm {
 };
 
 /* Memberships F[u][c] >= delta, figures and p for every non-empty column
- * of F. g and F borrowed. Returns 0 or -1; release with agm_release(). */
+ * of F. g and F borrowed. Cover labels are the column numbers in decimal.
+ * Returns 0 or -1; release with agm_release(). */
 int agm_from_strengths(struct agm *out, const struct graph *g, const struct fcsr *F,
 		       double epsilon, double delta);
 
-/* Figures and p for a given cover (copied). Returns 0 or -1. */
+/* Figures and p for a given cover (copied; borrowed c is not changed).
+ * The copy is reordered largest first and loses empty communities;
+ * comms[i].id is the index in c, labels are kept, strengths are 1.0.
+ * Returns 0 or -1; release with agm_release(). */
 int agm_from_cover(struct agm *out, const struct graph *g, const struct cover *c, double epsilon);
 
 /* Maximum-likelihood p for fixed memberships into p (c->k values,
  * borrowed). Returns 0 or -1. */
 int agm_estimate_p(const struct graph *g, const struct cover *c, double epsilon, double *p);
 
-/* The AGM log-likelihood of graph g under cover c with probabilities p. */
+/* The AGM log-likelihood of graph g under cover c with probabilities p
+ * (c->k values in [0, 1], borrowed), in O(m * overlap + n + k). -INFINITY
+ * when some edge has probability 0 (epsilon = 0 and its ends share no
+ * community with p > 0); NAN (with error()) on bad input. */
 double agm_loglik(const struct graph *g, const struct cover *c, const double *p, double epsilon);
 
 void agm_release(struct agm *a);

@@ -33,10 +33,13 @@ int cover_from_pairs(struct cover *out, uint32_t n, const uint32_t *node,
 		     const uint32_t *comm, uint64_t npairs);
 
 /*
- * Read a cover file: "node<TAB>community" per line, '#' comments, a node
- * on as many lines as it has communities. Node names are looked up in g
- * (borrowed); unknown names are an error naming file and line. Community
- * labels are arbitrary strings. Returns 0 or -1.
+ * Read a cover file: "node<TAB>community" per line, a node on as many
+ * lines as it has communities. Lines starting with '#' and blank lines are
+ * skipped; columns after the community (a further TAB) are ignored; a
+ * first line "node<TAB>community" naming no node is a header. Node
+ * names are looked up in g (borrowed); unknown names are an error naming
+ * file and line. Community labels are arbitrary strings, numbered by
+ * first appearance. Returns 0 or -1.
  */
 int cover_load(struct cover *out, const char *path, const struct graph *g);
 

@@ -4,9 +4,11 @@
  * Overlapping NMI in the max-normalised form (McDaid, Greene & Hurley,
  * arXiv:1110.2515, 2011) and in the form of Lancichinetti, Fortunato &
  * Kertesz (New J. Phys. 11, 033015, 2009). Both treat each community as a
- * binary variable over the n nodes; empty communities are ignored. Values
- * are in [0, 1]; 1 for identical covers. Two covers with no non-empty
- * community score 1 when both are empty, 0 otherwise.
+ * binary variable over the n nodes; empty communities are ignored, and so
+ * are communities of all n nodes (both are constant: zero entropy). Values
+ * are in [0, 1]; 1 for identical covers. Two covers with nothing left
+ * score 1 when they have the same non-empty communities (none, or the
+ * whole node set), 0 otherwise; 0 when only one of them has nothing left.
  */
 #ifndef COTERIE_SCORE_H
 #define COTERIE_SCORE_H

@@ -1,0 +1,649 @@
+/*
+ * agm: memberships read back as an Affiliation Graph Model, the maximum-
+ * likelihood link probability of every community, and the figures shown
+ * for each community.
+ *
+ * The idea. With q_c = -ln(1 - p_c) and Q_uv = qeps + sum_{c shared} q_c,
+ *     L(q) = sum_{uv in E} log(1 - exp(-Q_uv)) - sum_{uv not in E} Q_uv.
+ * The non-edge sum never needs the O(n^2) pairs: a non-edge inside c
+ * contributes q_c once for each community it shares, so
+ *     sum_{uv not in E} Q_uv = qeps (N2 - m) + sum_c q_c (pairs_c - m_c)
+ * (swap the order of summation: sum over non-edge pairs of the sum over
+ * their shared communities = sum over communities of q_c times the number
+ * of non-edge pairs inside c, which is pairs_c - m_c), with N2 = n(n-1)/2,
+ * pairs_c = |c|(|c|-1)/2 and m_c the edges inside c. Only the edge term
+ * couples communities, and only through edges that share at least one
+ * community, so everything costs O(sum over edges of the communities they
+ * share) plus O(n + k): an index node -> communities (sorted) is built,
+ * and each edge's shared set is the merge of its two ends' lists.
+ *
+ * L is concave in q (log(1 - exp(-x)) is concave and Q is linear in q).
+ * agm_estimate_p() does cyclic coordinate ascent: for one community at a
+ * time a Newton step on
+ *     f_c(q) = sum_{e in c} log(1 - exp(-Q_e)) - q (pairs_c - m_c),
+ *     f_c'   = sum_{e in c} w(Q_e) - (pairs_c - m_c),  w(Q) = 1/expm1(Q),
+ *     f_c''  = -sum_{e in c} exp(Q)/expm1(Q)^2,
+ * projected onto [lo, AGM_QMAX] and halved until f_c rises. The rise is
+ * computed as a difference, term by term,
+ *     log(1 - e^{-(Q+d)}) - log(1 - e^{-Q}) = log1p(w(Q) (1 - e^{-d})),
+ * so it stays exact near the optimum where f_c itself is flat.
+ *
+ * The one thing a newcomer gets wrong: an edge whose only positive term is
+ * q_c has w = 1/q_c, infinite at q_c = 0. A community with internal edges
+ * therefore keeps q_c >= AGM_QLO (p about 1e-12), never 0; communities
+ * without internal edges sit at 0 and cliques at AGM_QMAX, both exactly.
+ * With epsilon = 0 an edge sharing nothing has probability 0: its term is
+ * -inf but does not depend on q, so it is left out of the estimate and
+ * agm_loglik() honestly returns -INFINITY.
+ */
+#include "coterie/agm.h"
+
+#include <inttypes.h>
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "coterie/graph.h"
+#include "coterie/model.h"
+#include "coterie/util.h"
+
+#define AGM_QLO 1e-12     /* lower bound of q for a community with edges */
+#define AGM_PASSES 200    /* coordinate passes at most */
+/* Newton steps per community per pass: one was fastest on planted graphs
+ * (the neighbours move a community again anyway). */
+#define AGM_INNER 1
+#define AGM_RELTOL 1e-10  /* stop when no q moves more than this, relatively */
+#define AGM_HALVINGS 60
+
+/* Node -> communities, and the shared sets of edges sharing something. */
+struct index {
+	uint32_t n, k;
+	uint64_t *noff;  /* n + 1 */
+	uint32_t *ncom;  /* u's communities, increasing */
+	uint64_t *mc;    /* k: edges inside each community */
+	uint64_t lonely; /* edges whose ends share no community */
+	uint64_t ne;     /* edges sharing at least one */
+	uint64_t *eoff;  /* ne + 1 */
+	uint32_t *ecom;  /* shared communities of each such edge */
+	uint64_t *coff;  /* k + 1: community -> its edges */
+	uint64_t *cedge;
+};
+
+static void index_release(struct index *ix)
+{
+	free(ix->noff);
+	free(ix->ncom);
+	free(ix->mc);
+	free(ix->eoff);
+	free(ix->ecom);
+	free(ix->coff);
+	free(ix->cedge);
+	memset(ix, 0, sizeof *ix);
+}
+
+static int check_input(const struct graph *g, const struct cover *c, double epsilon)
+{
+	if (!(epsilon >= 0.0 && epsilon < 1.0))
+		return error("background probability %g out of range [0, 1)", epsilon);
+	if (c->n != g->n)
+		return error("cover has %" PRIu32 " nodes, graph has %" PRIu32, c->n, g->n);
+	if (c->off[0] != 0)
+		return error("malformed cover: first offset %" PRIu64, c->off[0]);
+	for (uint32_t i = 0; i < c->k; i++) {
+		if (c->off[i + 1] < c->off[i])
+			return error("malformed cover: offsets decrease at community %" PRIu32, i);
+		for (uint64_t j = c->off[i]; j < c->off[i + 1]; j++) {
+			if (c->mem[j] >= c->n)
+				return error("malformed cover: node %" PRIu32 " out of range",
+					     c->mem[j]);
+			if (j > c->off[i] && c->mem[j] <= c->mem[j - 1])
+				return error("malformed cover: community %" PRIu32
+					     " not strictly increasing", i);
+		}
+	}
+	return 0;
+}
+
+static int index_nodes(struct index *ix, const struct cover *c)
+{
+	ix->n = c->n;
+	ix->k = c->k;
+	ix->noff = util_calloc((size_t)c->n + 1, sizeof *ix->noff);
+	ix->ncom = util_malloc((size_t)c->off[c->k], sizeof *ix->ncom);
+	ix->mc = util_calloc(c->k, sizeof *ix->mc);
+	if (!ix->noff || !ix->ncom || !ix->mc)
+		return -1;
+	for (uint64_t j = 0; j < c->off[c->k]; j++)
+		ix->noff[c->mem[j] + 1]++;
+	for (uint32_t u = 0; u < c->n; u++)
+		ix->noff[u + 1] += ix->noff[u];
+	uint64_t *at = util_malloc(c->n, sizeof *at);
+	if (!at)
+		return -1;
+	memcpy(at, ix->noff, (size_t)c->n * sizeof *at);
+	for (uint32_t i = 0; i < c->k; i++) /* increasing i: lists come out sorted */
+		for (uint64_t j = c->off[i]; j < c->off[i + 1]; j++)
+			ix->ncom[at[c->mem[j]]++] = i;
+	free(at);
+	return 0;
+}
+
+/* Communities shared by u and v (merge of two sorted lists) into out when
+ * not NULL; returns how many. */
+static uint32_t shared(const struct index *ix, uint32_t u, uint32_t v, uint32_t *out)
+{
+	const uint32_t *a = ix->ncom + ix->noff[u], *ae = ix->ncom + ix->noff[u + 1];
+	const uint32_t *b = ix->ncom + ix->noff[v], *be = ix->ncom + ix->noff[v + 1];
+	uint32_t count = 0;
+	while (a < ae && b < be) {
+		if (*a < *b) {
+			a++;
+		} else if (*b < *a) {
+			b++;
+		} else {
+			if (out)
+				out[count] = *a;
+			count++;
+			a++;
+			b++;
+		}
+	}
+	return count;
+}
+
+/* Shared sets of every edge, internal edge counts and community -> edges. */
+static int index_edges(struct index *ix, const struct graph *g)
+{
+	uint64_t total = 0;
+	ix->ne = 0;
+	ix->lonely = 0;
+	for (uint32_t u = 0; u < g->n; u++)
+		for (uint64_t i = g->off[u]; i < g->off[u + 1]; i++) {
+			uint32_t v = g->adj[i];
+			if (v <= u)
+				continue;
+			uint32_t s = shared(ix, u, v, NULL);
+			if (s) {
+				ix->ne++;
+				total += s;
+			} else {
+				ix->lonely++;
+			}
+		}
+	ix->eoff = util_malloc((size_t)ix->ne + 1, sizeof *ix->eoff);
+	ix->ecom = util_malloc((size_t)total, sizeof *ix->ecom);
+	ix->coff = util_calloc((size_t)ix->k + 1, sizeof *ix->coff);
+	ix->cedge = util_malloc((size_t)total, sizeof *ix->cedge);
+	if (!ix->eoff || !ix->ecom || !ix->coff || !ix->cedge)
+		return -1;
+	uint64_t e = 0, at = 0;
+	ix->eoff[0] = 0;
+	for (uint32_t u = 0; u < g->n; u++)
+		for (uint64_t i = g->off[u]; i < g->off[u + 1]; i++) {
+			uint32_t v = g->adj[i];
+			if (v <= u)
+				continue;
+			uint32_t s = shared(ix, u, v, ix->ecom + at);
+			if (!s)
+				continue;
+			for (uint32_t j = 0; j < s; j++)
+				ix->mc[ix->ecom[at + j]]++;
+			at += s;
+			ix->eoff[++e] = at;
+		}
+	for (uint32_t c = 0; c < ix->k; c++)
+		ix->coff[c + 1] = ix->coff[c] + ix->mc[c];
+	uint64_t *cur = util_malloc((size_t)ix->k + 1, sizeof *cur);
+	if (!cur)
+		return -1;
+	memcpy(cur, ix->coff, ((size_t)ix->k + 1) * sizeof *cur);
+	for (e = 0; e < ix->ne; e++)
+		for (uint64_t j = ix->eoff[e]; j < ix->eoff[e + 1]; j++)
+			ix->cedge[cur[ix->ecom[j]]++] = e;
+	free(cur);
+	return 0;
+}
+
+static int index_build(struct index *ix, const struct graph *g, const struct cover *c)
+{
+	memset(ix, 0, sizeof *ix);
+	if (index_nodes(ix, c) < 0 || index_edges(ix, g) < 0) {
+		index_release(ix);
+		return -1;
+	}
+	return 0;
+}
+
+static double pairs_of(uint64_t size)
+{
+	return size < 2 ? 0.0 : (double)(size * (size - 1) / 2);
+}
+
+static double log1mexp(double x)
+{
+	return log(-expm1(-x)); /* log(1 - e^{-x}); -inf at 0, 0 at +inf */
+}
+
+/* L(q) from the index: the edge terms plus the per-community non-edge
+ * decomposition of the header comment. */
+static double loglik_index(const struct index *ix, const struct cover *c, const double *q,
+			   double qeps, uint64_t m)
+{
+	double sum = 0.0;
+	for (uint64_t e = 0; e < ix->ne; e++) {
+		double Q = qeps;
+		for (uint64_t j = ix->eoff[e]; j < ix->eoff[e + 1]; j++)
+			Q += q[ix->ecom[j]];
+		sum += log1mexp(Q);
+	}
+	if (ix->lonely)
+		sum += (double)ix->lonely * log1mexp(qeps);
+	uint64_t n = ix->n;
+	uint64_t n2 = n < 2 ? 0 : n * (n - 1) / 2;
+	if (qeps > 0.0)
+		sum -= qeps * (double)(n2 - m);
+	for (uint32_t i = 0; i < c->k; i++) {
+		double coef = pairs_of(cover_size(c, i)) - (double)ix->mc[i];
+		if (coef > 0.0)
+			sum -= q[i] * coef;
+	}
+	return sum;
+}
+
+/* w(Q) = 1/expm1(Q) and e^Q/expm1(Q)^2 with one exponential, without
+ * cancellation: below 1 from expm1(-Q), above it from exp(-Q). */
+static void weights(double x, double *w, double *hterm)
+{
+	double t, d; /* e^{-x}, 1 - e^{-x} */
+	if (x < 1.0) {
+		d = -expm1(-x);
+		t = 1.0 - d;
+	} else {
+		t = exp(-x);
+		d = 1.0 - t;
+	}
+	*w = t / d;
+	*hterm = *w / d;
+}
+
+/* One community's Newton steps (at most AGM_INNER); Q is kept in step.
+ * w is scratch space for m_c values. Returns the largest relative change. */
+static double newton_community(const struct index *ix, uint32_t c, double nonedge,
+			       double *q, double *Q, double *w)
+{
+	const uint64_t *edge = ix->cedge + ix->coff[c];
+	uint64_t mcount = ix->mc[c];
+	double worst = 0.0;
+
+	for (int it = 0; it < AGM_INNER; it++) {
+		double g = -nonedge, hs = 0.0;
+		for (uint64_t j = 0; j < mcount; j++) {
+			double hterm;
+			weights(Q[edge[j]], &w[j], &hterm);
+			g += w[j];
+			hs += hterm;
+		}
+		double qc = q[c], target;
+		if (hs > 0.0 && isfinite(hs) && isfinite(g))
+			target = qc + g / hs;
+		else
+			target = g > 0.0 ? AGM_QMAX : AGM_QLO;
+		if (!(target >= AGM_QLO)) /* also NaN */
+			target = AGM_QLO;
+		if (target > AGM_QMAX)
+			target = AGM_QMAX;
+		double dq = target - qc;
+		int ok = 0;
+		for (int h = 0; h < AGM_HALVINGS && dq != 0.0; h++) {
+			double shrink = -expm1(-dq); /* 1 - e^{-dq} */
+			double rise = -dq * nonedge;
+			for (uint64_t j = 0; j < mcount; j++)
+				rise += log1p(shrink * w[j]);
+			if (rise > 0.0) {
+				ok = 1;
+				break;
+			}
+			dq *= 0.5;
+		}
+		if (!ok)
+			break;
+		q[c] = qc + dq;
+		for (uint64_t j = 0; j < mcount; j++)
+			Q[edge[j]] += dq;
+		double rel = fabs(dq) / fmax(q[c], AGM_QLO);
+		if (rel > worst)
+			worst = rel;
+		if (rel < AGM_RELTOL)
+			break;
+	}
+	return worst;
+}
+
+/* The maximum-likelihood q for the index; q has ix->k values. */
+static int estimate_q(const struct index *ix, const struct cover *c, double qeps, double *q)
+{
+	uint64_t most = 0;
+	for (uint32_t i = 0; i < ix->k; i++)
+		if (ix->mc[i] > most)
+			most = ix->mc[i];
+	uint32_t *active = util_malloc(ix->k, sizeof *active);
+	double *Q = util_malloc((size_t)ix->ne, sizeof *Q);
+	double *w = util_malloc((size_t)most, sizeof *w);
+	if (!active || !Q || !w) {
+		free(active);
+		free(Q);
+		free(w);
+		return -1;
+	}
+	uint32_t nact = 0;
+	for (uint32_t i = 0; i < ix->k; i++) {
+		double P = pairs_of(cover_size(c, i)), m = (double)ix->mc[i];
+		if (m == 0.0) {
+			q[i] = 0.0; /* no edges inside (or < 2 members): p = 0 */
+		} else if (m >= P) {
+			q[i] = AGM_QMAX; /* a clique: L rises with q_c everywhere */
+		} else {
+			/* Start from the answer without overlaps (test_agm.c derives it). */
+			double q0 = -log1p(-m / P) - qeps;
+			q[i] = fmin(fmax(q0, AGM_QLO), AGM_QMAX);
+			active[nact++] = i;
+		}
+	}
+	for (int pass = 0; pass < AGM_PASSES && nact; pass++) {
+		for (uint64_t e = 0; e < ix->ne; e++) { /* afresh: no drift */
+			double x = qeps;
+			for (uint64_t j = ix->eoff[e]; j < ix->eoff[e + 1]; j++)
+				x += q[ix->ecom[j]];
+			Q[e] = x;
+		}
+		double worst = 0.0;
+		for (uint32_t a = 0; a < nact; a++) {
+			uint32_t i = active[a];
+			double nonedge = pairs_of(cover_size(c, i)) - (double)ix->mc[i];
+			double r = newton_community(ix, i, nonedge, q, Q, w);
+			if (r > worst)
+				worst = r;
+		}
+		if (worst < AGM_RELTOL)
+			break;
+	}
+	free(active);
+	free(Q);
+	free(w);
+	return 0;
+}
+
+int agm_estimate_p(const struct graph *g, const struct cover *c, double epsilon, double *p)
+{
+	struct index ix;
+	if (check_input(g, c, epsilon) < 0 || index_build(&ix, g, c) < 0)
+		return -1;
+	int rc = estimate_q(&ix, c, -log1p(-epsilon), p);
+	if (rc == 0)
+		for (uint32_t i = 0; i < c->k; i++)
+			p[i] = -expm1(-p[i]);
+	index_release(&ix);
+	return rc;
+}
+
+double agm_loglik(const struct graph *g, const struct cover *c, const double *p, double epsilon)
+{
+	struct index ix;
+	memset(&ix, 0, sizeof ix);
+	if (check_input(g, c, epsilon) < 0 || index_nodes(&ix, c) < 0) {
+		index_release(&ix);
+		return NAN;
+	}
+	double *q = util_malloc(c->k, sizeof *q);
+	if (!q) {
+		index_release(&ix);
+		return NAN;
+	}
+	for (uint32_t i = 0; i < c->k; i++)
+		q[i] = -log1p(-p[i]);
+	double qeps = -log1p(-epsilon), sum = 0.0;
+	uint64_t lonely = 0;
+	/* One pass over the edges, shared sets merged on the fly (nothing stored). */
+	for (uint32_t u = 0; u < g->n; u++) {
+		const uint32_t *cu = ix.ncom + ix.noff[u], *cue = ix.ncom + ix.noff[u + 1];
+		for (uint64_t i = g->off[u]; i < g->off[u + 1]; i++) {
+			uint32_t v = g->adj[i];
+			if (v <= u)
+				continue;
+			const uint32_t *a = cu, *b = ix.ncom + ix.noff[v];
+			const uint32_t *be = ix.ncom + ix.noff[v + 1];
+			double Q = qeps;
+			int any = 0;
+			while (a < cue && b < be) {
+				if (*a < *b) {
+					a++;
+				} else if (*b < *a) {
+					b++;
+				} else {
+					Q += q[*a];
+					ix.mc[*a]++;
+					any = 1;
+					a++;
+					b++;
+				}
+			}
+			if (any)
+				sum += log1mexp(Q);
+			else
+				lonely++;
+		}
+	}
+	ix.lonely = lonely;
+	ix.ne = 0; /* the edge terms are already in sum */
+	sum += loglik_index(&ix, c, q, qeps, g->m);
+	free(q);
+	index_release(&ix);
+	return sum;
+}
+
+struct order {
+	uint32_t id, size;
+};
+
+static int order_cmp(const void *pa, const void *pb)
+{
+	const struct order *a = pa, *b = pb;
+	if (a->size != b->size)
+		return a->size > b->size ? -1 : 1;
+	return (a->id > b->id) - (a->id < b->id);
+}
+
+/* Everything after out->cover (largest first), out->strength and the ids
+ * are in place: p, figures, the log-likelihood and node counts. */
+static int finish(struct agm *out, const struct graph *g, const uint32_t *ids)
+{
+	const struct cover *c = &out->cover;
+	struct index ix;
+	if (index_build(&ix, g, c) < 0)
+		return -1;
+	double qeps = -log1p(-out->epsilon);
+	double *q = util_malloc(c->k, sizeof *q);
+	out->comms = util_calloc(c->k, sizeof *out->comms);
+	if (!q || !out->comms || estimate_q(&ix, c, qeps, q) < 0) {
+		free(q);
+		index_release(&ix);
+		return -1;
+	}
+	for (uint32_t i = 0; i < c->k; i++) {
+		struct agm_community *ac = &out->comms[i];
+		ac->id = ids[i];
+		ac->size = cover_size(c, i);
+		ac->internal_edges = ix.mc[i];
+		for (uint64_t j = c->off[i]; j < c->off[i + 1]; j++)
+			ac->volume += graph_degree(g, c->mem[j]);
+		ac->cut = ac->volume - 2 * ac->internal_edges;
+		double P = pairs_of(ac->size);
+		ac->density = P > 0.0 ? (double)ac->internal_edges / P : 0.0;
+		uint64_t rest = 2 * g->m - ac->volume;
+		uint64_t den = ac->volume < rest ? ac->volume : rest;
+		ac->conductance = den ? (double)ac->cut / (double)den : 1.0;
+		ac->p = -expm1(-q[i]);
+	}
+	out->loglik = loglik_index(&ix, c, q, qeps, g->m);
+	for (uint32_t u = 0; u < c->n; u++) {
+		uint64_t d = ix.noff[u + 1] - ix.noff[u];
+		out->covered += d >= 1;
+		out->overlapping += d >= 2;
+	}
+	free(q);
+	index_release(&ix);
+	return 0;
+}
+
+static int agm_begin(struct agm *out, const struct graph *g, double epsilon)
+{
+	memset(out, 0, sizeof *out);
+	if (!(epsilon >= 0.0 && epsilon < 1.0))
+		return error("background probability %g out of range [0, 1)", epsilon);
+	out->n = g->n;
+	out->epsilon = epsilon;
+	out->cover.n = g->n;
+	return 0;
+}
+
+int agm_from_strengths(struct agm *out, const struct graph *g, const struct fcsr *F,
+		       double epsilon, double delta)
+{
+	struct order *ord = NULL;
+	uint32_t *slot = NULL, *ids = NULL;
+	uint64_t *at = NULL;
+
+	if (agm_begin(out, g, epsilon) < 0)
+		return -1;
+	if (F->n != g->n)
+		return error("strengths have %" PRIu32 " rows, graph has %" PRIu32 " nodes", F->n,
+			     g->n);
+	ord = util_calloc(F->k, sizeof *ord);
+	slot = util_malloc(F->k, sizeof *slot);
+	if (!ord || !slot)
+		goto fail;
+	for (uint32_t c = 0; c < F->k; c++)
+		ord[c].id = c;
+	for (uint64_t j = 0; j < F->off[F->n]; j++) {
+		if (F->e[j].c >= F->k) {
+			error("strength entry %" PRIu64 ": community %" PRIu32 " out of range", j,
+			      F->e[j].c);
+			goto fail;
+		}
+		if (F->e[j].v >= delta)
+			ord[F->e[j].c].size++;
+	}
+	qsort(ord, F->k, sizeof *ord, order_cmp);
+	uint32_t k = 0;
+	while (k < F->k && ord[k].size > 0)
+		k++;
+	struct cover *cv = &out->cover;
+	cv->k = k;
+	cv->off = util_calloc((size_t)k + 1, sizeof *cv->off);
+	cv->label = util_calloc(k, sizeof *cv->label);
+	ids = util_malloc(k, sizeof *ids);
+	at = util_malloc((size_t)k + 1, sizeof *at);
+	if (!cv->off || !cv->label || !ids || !at)
+		goto fail;
+	for (uint32_t c = 0; c < F->k; c++)
+		slot[c] = UINT32_MAX;
+	for (uint32_t i = 0; i < k; i++) {
+		char buf[16];
+		ids[i] = ord[i].id;
+		slot[ord[i].id] = i;
+		cv->off[i + 1] = cv->off[i] + ord[i].size;
+		snprintf(buf, sizeof buf, "%" PRIu32, ord[i].id);
+		if (!(cv->label[i] = util_strdup(buf)))
+			goto fail;
+	}
+	cv->mem = util_malloc((size_t)cv->off[k], sizeof *cv->mem);
+	out->strength = util_malloc((size_t)cv->off[k], sizeof *out->strength);
+	if (!cv->mem || !out->strength)
+		goto fail;
+	memcpy(at, cv->off, ((size_t)k + 1) * sizeof *at);
+	for (uint32_t u = 0; u < F->n; u++) /* increasing u: members come out sorted */
+		for (uint64_t j = F->off[u]; j < F->off[u + 1]; j++) {
+			if (!(F->e[j].v >= delta))
+				continue;
+			uint64_t pos = at[slot[F->e[j].c]]++;
+			cv->mem[pos] = u;
+			out->strength[pos] = F->e[j].v;
+		}
+	if (finish(out, g, ids) < 0)
+		goto fail;
+	free(ord);
+	free(slot);
+	free(ids);
+	free(at);
+	return 0;
+fail:
+	free(ord);
+	free(slot);
+	free(ids);
+	free(at);
+	agm_release(out);
+	return -1;
+}
+
+int agm_from_cover(struct agm *out, const struct graph *g, const struct cover *c, double epsilon)
+{
+	struct order *ord = NULL;
+	uint32_t *ids = NULL;
+
+	if (agm_begin(out, g, epsilon) < 0 || check_input(g, c, epsilon) < 0)
+		return -1;
+	ord = util_malloc(c->k, sizeof *ord);
+	if (!ord)
+		return -1;
+	for (uint32_t i = 0; i < c->k; i++)
+		ord[i] = (struct order){ i, cover_size(c, i) };
+	qsort(ord, c->k, sizeof *ord, order_cmp);
+	uint32_t k = 0;
+	while (k < c->k && ord[k].size > 0) /* empty communities are not listed */
+		k++;
+	struct cover *cv = &out->cover;
+	cv->k = k;
+	cv->off = util_calloc((size_t)k + 1, sizeof *cv->off);
+	cv->label = util_calloc(k, sizeof *cv->label);
+	ids = util_malloc(k, sizeof *ids);
+	if (!cv->off || !cv->label || !ids)
+		goto fail;
+	for (uint32_t i = 0; i < k; i++) {
+		ids[i] = ord[i].id;
+		cv->off[i + 1] = cv->off[i] + ord[i].size;
+		if (!(cv->label[i] = util_strdup(c->label[ord[i].id])))
+			goto fail;
+	}
+	cv->mem = util_malloc((size_t)cv->off[k], sizeof *cv->mem);
+	out->strength = util_malloc((size_t)cv->off[k], sizeof *out->strength);
+	if (!cv->mem || !out->strength)
+		goto fail;
+	for (uint32_t i = 0; i < k; i++) {
+		uint32_t src = ord[i].id;
+		memcpy(cv->mem + cv->off[i], c->mem + c->off[src],
+		       (size_t)ord[i].size * sizeof *cv->mem);
+	}
+	for (uint64_t j = 0; j < cv->off[k]; j++)
+		out->strength[j] = 1.0;
+	if (finish(out, g, ids) < 0)
+		goto fail;
+	free(ord);
+	free(ids);
+	return 0;
+fail:
+	free(ord);
+	free(ids);
+	agm_release(out);
+	return -1;
+}
+
+void agm_release(struct agm *a)
+{
+	if (!a)
+		return;
+	cover_release(&a->cover);
+	free(a->strength);
+	free(a->comms);
+	memset(a, 0, sizeof *a);
+}

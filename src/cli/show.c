@@ -1,0 +1,646 @@
+/*
+ * cli/show: `coterie show DIR [--node NAME | --community ID |
+ * --weak-edges ID [--missing]] [--limit N] [--json]`.
+ *
+ * Reopens a result folder from its checkpoint, reads the strengths back
+ * as an AGM and prints one view: the summary and the communities table,
+ * a node, a community and its members, or the edges a community explains
+ * least well (or, with --missing, the member pairs it predicts most
+ * strongly that are not linked). The numbers come from inspect.c, the
+ * same code behind the explorer's panes, so the two always agree.
+ *
+ * Text is for people: aligned columns, names last where they can be, and
+ * every node name (and the folder name) passed through util_escape() so
+ * no byte from a file reaches the terminal raw; ASCII-only escaping when
+ * the locale is not UTF-8. JSON carries the same data; jansson escapes.
+ *
+ * Exit status: 0, 1 (unreadable folder, unknown node or community, write
+ * error), 2 (bad usage). Nothing here calls exit().
+ */
+#include <errno.h>
+#include <getopt.h>
+#include <inttypes.h>
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <wchar.h>
+
+#include <jansson.h>
+
+#include "cli.h"
+#include "coterie/agm.h"
+#include "coterie/fit.h"
+#include "coterie/graph.h"
+#include "coterie/inspect.h"
+#include "coterie/result.h"
+
+#define SHOW_DEFAULT_LIMIT 20u
+#define NAME_CAP 1024       /* bytes of an escaped name in text mode */
+#define NAME_COL_MAX 40     /* widest padded name column */
+
+static void show_usage_short(FILE *out)
+{
+	fprintf(out,
+		"usage: coterie show DIR [--node NAME | --community ID | --weak-edges ID [--missing]]\n"
+		"                        [--limit N] [--json]\n");
+}
+
+static void show_usage(FILE *out)
+{
+	show_usage_short(out);
+	fprintf(out,
+		"\n"
+		"Print what the result folder DIR holds. With no choice: a summary and the\n"
+		"communities, largest first.\n"
+		"\n"
+		"      --node NAME       the node's strength in every community, and how many\n"
+		"                        of its edges each community explains\n"
+		"      --community ID    a community's figures and its members by strength\n"
+		"      --weak-edges ID   the edges touching the community's members that the\n"
+		"                        model explains least (lowest probability first)\n"
+		"      --missing         with --weak-edges: the member pairs that are not linked\n"
+		"                        but are predicted most strongly\n"
+		"      --limit N         show at most N rows (default %u; 0 shows all)\n"
+		"      --json            the same data as JSON\n"
+		"  -h, --help            this text\n",
+		SHOW_DEFAULT_LIMIT);
+}
+
+struct show {
+	const char *dir;
+	struct checkpoint ck;
+	struct agm agm;
+	double delta;
+	size_t limit; /* rows; SIZE_MAX for all */
+	int json;
+	int ascii;    /* escape every non-ASCII byte */
+};
+
+/* ---- small helpers ---------------------------------------------------- */
+
+/* A whole number in [0, hi]; -1 with a usage message otherwise. */
+static int parse_u32(const char *opt, const char *s, uint32_t hi, uint32_t *out)
+{
+	char *end;
+	errno = 0;
+	unsigned long long v = strtoull(s, &end, 10);
+	if (errno || end == s || *end || s[0] == '-' || s[0] == '+' || v > hi) {
+		char buf[256];
+		return error("%s expects a whole number from 0 to %" PRIu32 ", not '%s'", opt, hi,
+			     util_escape(s, buf, sizeof buf, 1));
+	}
+	*out = (uint32_t)v;
+	return 0;
+}
+
+static const char *esc(const struct show *s, const char *name, char *buf)
+{
+	return util_escape(name, buf, NAME_CAP, s->ascii);
+}
+
+/* Columns an escaped (hence printable) string takes on the terminal. */
+static int text_width(const char *t, int ascii)
+{
+	size_t len = strlen(t);
+	if (ascii)
+		return len > INT32_MAX ? INT32_MAX : (int)len;
+	mbstate_t st;
+	memset(&st, 0, sizeof st);
+	int w = 0;
+	while (*t) {
+		wchar_t wc;
+		size_t n = mbrtowc(&wc, t, len, &st);
+		if (n == (size_t)-1 || n == (size_t)-2 || n == 0) {
+			memset(&st, 0, sizeof st);
+			n = 1;
+			w++;
+		} else {
+			int cw = wcwidth(wc);
+			w += cw < 0 ? 1 : cw;
+		}
+		t += n;
+		len -= n;
+	}
+	return w;
+}
+
+static void put_padded(const char *t, int width, int ascii)
+{
+	int w = text_width(t, ascii);
+	fputs(t, stdout);
+	if (w < width)
+		printf("%*s", width - w, "");
+}
+
+static int digits(uint64_t v)
+{
+	int d = 1;
+	while (v >= 10) {
+		v /= 10;
+		d++;
+	}
+	return d;
+}
+
+static int maxi(int a, int b)
+{
+	return a > b ? a : b;
+}
+
+static size_t shown(size_t n, size_t limit)
+{
+	return n < limit ? n : limit;
+}
+
+static void more_note(size_t total, size_t n)
+{
+	if (total > n)
+		printf("  ... %zu more (--limit 0 shows all)\n", total - n);
+}
+
+/* JSON: a node name (jansson wants UTF-8; a name that is not valid UTF-8
+ * goes out escaped), a number that may not be finite (as null). */
+static json_t *jname(const char *name)
+{
+	json_t *j = json_string(name);
+	if (j)
+		return j;
+	char *e = util_escape_dup(name, 1);
+	j = e ? json_string(e) : NULL;
+	free(e);
+	return j ? j : json_null();
+}
+
+static json_t *jreal(double x)
+{
+	return isfinite(x) ? json_real(x) : json_null();
+}
+
+static json_t *jint(uint64_t v)
+{
+	return json_integer(v > (uint64_t)INT64_MAX ? (json_int_t)INT64_MAX : (json_int_t)v);
+}
+
+static int json_out(json_t *root)
+{
+	if (!root)
+		return error("out of memory");
+	int rc = json_dumpf(root, stdout, JSON_INDENT(2));
+	json_decref(root);
+	if (rc)
+		return error("cannot write the output");
+	putchar('\n');
+	return 0;
+}
+
+static json_t *jcommunity(const struct agm_community *c)
+{
+	json_t *o = json_object();
+	json_object_set_new(o, "id", jint(c->id));
+	json_object_set_new(o, "size", jint(c->size));
+	json_object_set_new(o, "internal_edges", jint(c->internal_edges));
+	json_object_set_new(o, "volume", jint(c->volume));
+	json_object_set_new(o, "cut", jint(c->cut));
+	json_object_set_new(o, "density", jreal(c->density));
+	json_object_set_new(o, "conductance", jreal(c->conductance));
+	json_object_set_new(o, "p", jreal(c->p));
+	return o;
+}
+
+/* ---- the summary ------------------------------------------------------ */
+
+static int show_summary(const struct show *s)
+{
+	const struct checkpoint *ck = &s->ck;
+	const struct agm *a = &s->agm;
+	const struct graph *g = ck->graph;
+	int have_ll = ck->ntrace > 0;
+	double ll = have_ll ? ck->trace[ck->ntrace - 1].loglik : NAN;
+	size_t n = shown(a->cover.k, s->limit);
+
+	if (s->json) {
+		json_t *root = json_object();
+		json_t *list = json_array();
+		json_object_set_new(root, "dir", jname(s->dir));
+		json_object_set_new(root, "nodes", jint(g->n));
+		json_object_set_new(root, "edges", jint(g->m));
+		json_object_set_new(root, "k", jint(ck->params.k));
+		json_object_set_new(root, "ncommunities", jint(a->cover.k));
+		json_object_set_new(root, "covered", jint(a->covered));
+		json_object_set_new(root, "overlapping", jint(a->overlapping));
+		json_object_set_new(root, "sweep", jint(ck->sweep));
+		json_object_set_new(root, "state", json_string(fit_state_name(ck->state)));
+		json_object_set_new(root, "seconds", jreal(ck->seconds));
+		json_object_set_new(root, "loglik", have_ll ? jreal(ll) : json_null());
+		json_object_set_new(root, "agm_loglik", jreal(a->loglik));
+		json_object_set_new(root, "epsilon", jreal(ck->epsilon));
+		json_object_set_new(root, "delta", jreal(s->delta));
+		for (size_t i = 0; i < n; i++)
+			json_array_append_new(list, jcommunity(&a->comms[i]));
+		json_object_set_new(root, "communities", list);
+		return json_out(root);
+	}
+
+	char buf[NAME_CAP];
+	printf("result       %s\n", esc(s, s->dir, buf));
+	printf("nodes        %" PRIu32 "\n", g->n);
+	printf("edges        %" PRIu64 "\n", g->m);
+	printf("communities  %" PRIu32 " (k = %" PRIu32 ")\n", a->cover.k, ck->params.k);
+	printf("covered      %" PRIu32 " nodes in at least one, %" PRIu32 " in two or more\n",
+	       a->covered, a->overlapping);
+	printf("sweep        %" PRIu32 " (%.1f s)\n", ck->sweep, ck->seconds);
+	printf("state        %s\n", fit_state_name(ck->state));
+	if (have_ll)
+		printf("loglik       %.10g\n", ll);
+	else
+		printf("loglik       -\n");
+	printf("agm loglik   %.10g\n", a->loglik);
+	printf("epsilon      %.6g (membership at strength %.6g)\n", ck->epsilon, s->delta);
+	if (a->cover.k == 0) {
+		printf("\nno community has a member\n");
+		return 0;
+	}
+
+	uint32_t mid = 0, msize = 0;
+	uint64_t medges = 0;
+	for (size_t i = 0; i < n; i++) {
+		const struct agm_community *c = &a->comms[i];
+		mid = c->id > mid ? c->id : mid;
+		msize = c->size > msize ? c->size : msize;
+		medges = c->internal_edges > medges ? c->internal_edges : medges;
+	}
+	int wi = maxi(2, digits(mid)), ws = maxi(4, digits(msize)), we = maxi(5, digits(medges));
+	printf("\n  %*s  %*s  %*s  %7s  %11s  %6s\n", wi, "id", ws, "size", we, "edges",
+	       "density", "conductance", "p");
+	for (size_t i = 0; i < n; i++) {
+		const struct agm_community *c = &a->comms[i];
+		printf("  %*" PRIu32 "  %*" PRIu32 "  %*" PRIu64 "  %7.4f  %11.4f  %6.4f\n", wi,
+		       c->id, ws, c->size, we, c->internal_edges, c->density, c->conductance,
+		       c->p);
+	}
+	more_note(a->cover.k, n);
+	return 0;
+}
+
+/* ---- a node ----------------------------------------------------------- */
+
+static int show_node(const struct show *s, const char *name)
+{
+	const struct graph *g = s->ck.graph;
+	int64_t u = graph_find(g, name);
+	if (u < 0) {
+		char b1[NAME_CAP], b2[NAME_CAP];
+		return error("no node named '%s' in %s", util_escape(name, b1, sizeof b1, s->ascii),
+			     util_escape(s->dir, b2, sizeof b2, s->ascii));
+	}
+	struct inspect_node nv;
+	if (inspect_node(&nv, g, &s->ck.F, s->delta, (uint32_t)u) < 0)
+		return -1;
+	size_t n = shown(nv.naffil, s->limit);
+	int rc;
+
+	if (s->json) {
+		json_t *root = json_object();
+		json_t *list = json_array();
+		json_object_set_new(root, "node", jname(g->names[u]));
+		json_object_set_new(root, "id", jint((uint64_t)u));
+		json_object_set_new(root, "degree", jint(nv.degree));
+		json_object_set_new(root, "memberships", jint(nv.nmember));
+		json_object_set_new(root, "naffiliations", jint(nv.naffil));
+		json_object_set_new(root, "unexplained", jint(nv.unexplained));
+		json_object_set_new(root, "delta", jreal(s->delta));
+		for (size_t i = 0; i < n; i++) {
+			const struct inspect_affil *f = &nv.affil[i];
+			json_t *o = json_object();
+			json_object_set_new(o, "community", jint(f->comm));
+			json_object_set_new(o, "strength", jreal(f->strength));
+			json_object_set_new(o, "member", json_boolean(f->member));
+			json_object_set_new(o, "explained", jint(f->explained));
+			json_array_append_new(list, o);
+		}
+		json_object_set_new(root, "affiliations", list);
+		rc = json_out(root);
+		inspect_node_release(&nv);
+		return rc;
+	}
+
+	char buf[NAME_CAP];
+	printf("node         %s\n", esc(s, g->names[u], buf));
+	printf("degree       %" PRIu32 "\n", nv.degree);
+	printf("memberships  %" PRIu32 " (strength %.6g or more)\n", nv.nmember, s->delta);
+	printf("unexplained  %" PRIu32 " edge%s explained by no community\n", nv.unexplained,
+	       nv.unexplained == 1 ? "" : "s");
+	if (nv.naffil == 0) {
+		printf("\nno strength in any community\n");
+	} else {
+		uint32_t mc = 0, mx = 0;
+		for (size_t i = 0; i < n; i++) {
+			mc = nv.affil[i].comm > mc ? nv.affil[i].comm : mc;
+			mx = nv.affil[i].explained > mx ? nv.affil[i].explained : mx;
+		}
+		int wc = maxi(9, digits(mc)), wx = maxi(8, digits(mx));
+		printf("\n  %*s  %10s  %6s  %*s\n", wc, "community", "strength", "member", wx,
+		       "explains");
+		for (size_t i = 0; i < n; i++) {
+			const struct inspect_affil *f = &nv.affil[i];
+			printf("  %*" PRIu32 "  %10.4f  %-6s  %*" PRIu32 "\n", wc, f->comm,
+			       f->strength, f->member ? "yes" : "no", wx, f->explained);
+		}
+		more_note(nv.naffil, n);
+	}
+	inspect_node_release(&nv);
+	return 0;
+}
+
+/* ---- a community ------------------------------------------------------ */
+
+/* Index of community id, or -1 with a message. */
+static int64_t find_comm(const struct show *s, uint32_t id)
+{
+	int64_t i = inspect_find_community(&s->agm, id);
+	if (i >= 0)
+		return i;
+	char buf[NAME_CAP];
+	if (id < s->ck.F.k)
+		error("community %" PRIu32 " has no members in %s", id, esc(s, s->dir, buf));
+	else
+		error("no community %" PRIu32 " in %s (ids run from 0 to %" PRIu32 ")", id,
+		      esc(s, s->dir, buf), s->ck.F.k ? s->ck.F.k - 1 : 0);
+	return -1;
+}
+
+static int show_community(const struct show *s, uint32_t id)
+{
+	int64_t ix = find_comm(s, id);
+	if (ix < 0)
+		return -1;
+	const struct agm *a = &s->agm;
+	const struct agm_community *c = &a->comms[ix];
+	const struct graph *g = s->ck.graph;
+	uint32_t size = cover_size(&a->cover, (uint32_t)ix);
+	uint32_t *order = util_malloc((size_t)size + 1, sizeof *order);
+	double *str = util_malloc((size_t)size + 1, sizeof *str);
+	if (!order || !str) {
+		free(order);
+		free(str);
+		return -1;
+	}
+	inspect_members(a, (uint32_t)ix, order, str);
+	size_t n = shown(size, s->limit);
+	int rc = 0;
+
+	if (s->json) {
+		json_t *root = jcommunity(c);
+		json_t *list = json_array();
+		for (size_t i = 0; i < n; i++) {
+			json_t *o = json_object();
+			json_object_set_new(o, "node", jname(g->names[order[i]]));
+			json_object_set_new(o, "strength", jreal(str[i]));
+			json_array_append_new(list, o);
+		}
+		json_object_set_new(root, "members", list);
+		rc = json_out(root);
+	} else {
+		printf("community    %" PRIu32 "\n", c->id);
+		printf("members      %" PRIu32 "\n", c->size);
+		printf("edges        %" PRIu64 " inside, %" PRIu64 " leaving, volume %" PRIu64 "\n",
+		       c->internal_edges, c->cut, c->volume);
+		printf("density      %.4f\n", c->density);
+		printf("conductance  %.4f\n", c->conductance);
+		printf("p            %.6g\n", c->p);
+		int wr = maxi(4, digits(n));
+		printf("\n  %*s  %10s  %s\n", wr, "rank", "strength", "node");
+		char buf[NAME_CAP];
+		for (size_t i = 0; i < n; i++)
+			printf("  %*zu  %10.4f  %s\n", wr, i + 1, str[i],
+			       esc(s, g->names[order[i]], buf));
+		more_note(size, n);
+	}
+	free(order);
+	free(str);
+	return rc;
+}
+
+/* ---- weak edges and missing links ------------------------------------- */
+
+static int show_pairs(const struct show *s, uint32_t id, int missing)
+{
+	int64_t ix = find_comm(s, id);
+	if (ix < 0)
+		return -1;
+	const struct graph *g = s->ck.graph;
+	const struct fcsr *F = &s->ck.F;
+	const struct agm *a = &s->agm;
+	struct inspect_pair *p = NULL;
+	size_t n = 0, total = 0;
+	int rc = missing ? inspect_missing_links(g, F, a, (uint32_t)ix, 0, s->limit, &p, &n, &total)
+			 : inspect_weak_edges(g, F, a, (uint32_t)ix, 0, s->limit, &p, &n, &total);
+	if (rc < 0)
+		return -1;
+	uint32_t size = cover_size(&a->cover, (uint32_t)ix);
+	uint32_t pool = size < INSPECT_MISSING_POOL ? size : INSPECT_MISSING_POOL;
+
+	if (s->json) {
+		json_t *root = json_object();
+		json_t *list = json_array();
+		json_object_set_new(root, "community", jint(id));
+		json_object_set_new(root, "members", jint(size));
+		if (missing)
+			json_object_set_new(root, "pool", jint(pool));
+		json_object_set_new(root, "total", jint(total));
+		for (size_t i = 0; i < n; i++) {
+			json_t *o = json_object();
+			if (missing) {
+				json_object_set_new(o, "u", jname(g->names[p[i].u]));
+				json_object_set_new(o, "v", jname(g->names[p[i].v]));
+			} else {
+				int64_t e = inspect_explaining_community(F, p[i].u, p[i].v);
+				json_object_set_new(o, "member", jname(g->names[p[i].u]));
+				json_object_set_new(o, "other", jname(g->names[p[i].v]));
+				json_object_set_new(o, "explained_by",
+						    e < 0 ? json_null() : jint((uint64_t)e));
+			}
+			json_object_set_new(o, "prob", jreal(p[i].prob));
+			json_array_append_new(list, o);
+		}
+		json_object_set_new(root, missing ? "pairs" : "edges", list);
+		rc = json_out(root);
+		free(p);
+		return rc;
+	}
+
+	if (missing) {
+		printf("community %" PRIu32 ": %zu member pair%s not linked", id, total,
+		       total == 1 ? "" : "s");
+		if (pool < size)
+			printf(" among its %" PRIu32 " strongest of %" PRIu32 " members", pool, size);
+		printf(", the most strongly predicted first\n");
+	} else {
+		printf("community %" PRIu32 ": %zu edge%s touching its %" PRIu32
+		       " members, the least explained first\n",
+		       id, total, total == 1 ? "" : "s", size);
+	}
+	if (n == 0) {
+		printf("\n  (none)\n");
+		free(p);
+		return 0;
+	}
+	/* the first name column is padded to the widest name shown */
+	char b1[NAME_CAP], b2[NAME_CAP];
+	int wn = 4;
+	for (size_t i = 0; i < n; i++)
+		wn = maxi(wn, text_width(esc(s, g->names[p[i].u], b1), s->ascii));
+	if (wn > NAME_COL_MAX)
+		wn = NAME_COL_MAX;
+	int wr = maxi(4, digits(n));
+	if (missing) {
+		printf("\n  %*s  %11s  ", wr, "rank", "probability");
+		put_padded("node", wn, 1);
+		printf("  node\n");
+	} else {
+		printf("\n  %*s  %11s  %12s  ", wr, "rank", "probability", "explained by");
+		put_padded("member", wn, 1);
+		printf("  neighbour\n");
+	}
+	for (size_t i = 0; i < n; i++) {
+		printf("  %*zu  %11.4g  ", wr, i + 1, p[i].prob);
+		if (!missing) {
+			int64_t e = inspect_explaining_community(F, p[i].u, p[i].v);
+			if (e < 0)
+				printf("%12s  ", "none");
+			else
+				printf("%12" PRId64 "  ", e);
+		}
+		put_padded(esc(s, g->names[p[i].u], b1), wn, s->ascii);
+		printf("  %s\n", esc(s, g->names[p[i].v], b2));
+	}
+	more_note(total, n);
+	free(p);
+	return 0;
+}
+
+/* ---- the command ------------------------------------------------------ */
+
+enum {
+	OPT_NODE = 256,
+	OPT_COMMUNITY,
+	OPT_WEAK,
+	OPT_MISSING,
+	OPT_LIMIT,
+	OPT_JSON,
+};
+
+int cmd_show(int argc, char **argv)
+{
+	static const struct option opts[] = {
+		{ "node", required_argument, NULL, OPT_NODE },
+		{ "community", required_argument, NULL, OPT_COMMUNITY },
+		{ "weak-edges", required_argument, NULL, OPT_WEAK },
+		{ "missing", no_argument, NULL, OPT_MISSING },
+		{ "limit", required_argument, NULL, OPT_LIMIT },
+		{ "json", no_argument, NULL, OPT_JSON },
+		{ "help", no_argument, NULL, 'h' },
+		{ NULL, 0, NULL, 0 },
+	};
+	const char *node = NULL;
+	uint32_t comm = 0, weak = 0, limit = SHOW_DEFAULT_LIMIT;
+	int have_comm = 0, have_weak = 0, missing = 0, json = 0, c;
+	char buf[NAME_CAP];
+
+	optind = 1;
+	opterr = 0;
+	while ((c = getopt_long(argc, argv, ":h", opts, NULL)) != -1) {
+		switch (c) {
+		case OPT_NODE: node = optarg; break;
+		case OPT_COMMUNITY:
+			if (parse_u32("--community", optarg, UINT32_MAX - 1, &comm))
+				return EXIT_USAGE;
+			have_comm = 1;
+			break;
+		case OPT_WEAK:
+			if (parse_u32("--weak-edges", optarg, UINT32_MAX - 1, &weak))
+				return EXIT_USAGE;
+			have_weak = 1;
+			break;
+		case OPT_MISSING: missing = 1; break;
+		case OPT_LIMIT:
+			if (parse_u32("--limit", optarg, UINT32_MAX, &limit))
+				return EXIT_USAGE;
+			break;
+		case OPT_JSON: json = 1; break;
+		case 'h': show_usage(stdout); return 0;
+		case ':':
+			error("option '%s' needs a value",
+			      util_escape(argv[optind - 1], buf, sizeof buf, 1));
+			show_usage_short(stderr);
+			return EXIT_USAGE;
+		default:
+			if (optopt && optopt != '?')
+				error("unknown option '-%c'", (optopt > 32 && optopt < 127) ? optopt : '?');
+			else
+				error("unknown option '%s'",
+				      util_escape(argv[optind - 1], buf, sizeof buf, 1));
+			show_usage_short(stderr);
+			return EXIT_USAGE;
+		}
+	}
+	if (argc - optind != 1) {
+		if (argc - optind == 0)
+			error("show needs a result folder");
+		else
+			error("show takes one result folder, not %d", argc - optind);
+		show_usage_short(stderr);
+		return EXIT_USAGE;
+	}
+	if ((node != NULL) + have_comm + have_weak > 1) {
+		error("choose one of --node, --community and --weak-edges");
+		show_usage_short(stderr);
+		return EXIT_USAGE;
+	}
+	if (missing && !have_weak) {
+		error("--missing goes with --weak-edges ID");
+		show_usage_short(stderr);
+		return EXIT_USAGE;
+	}
+
+	struct show s;
+	memset(&s, 0, sizeof s);
+	s.dir = argv[optind];
+	s.json = json;
+	s.ascii = !cli_utf8();
+	s.limit = limit == 0 ? SIZE_MAX : limit;
+
+	char path[4096];
+	int w = snprintf(path, sizeof path, "%s/%s", s.dir, RESULT_CHECKPOINT);
+	if (w < 0 || (size_t)w >= sizeof path) {
+		error("the folder name is too long: %s", util_escape(s.dir, buf, sizeof buf, 1));
+		return 1;
+	}
+	if (result_read_checkpoint(path, &s.ck))
+		return 1;
+	s.delta = sqrt(-log1p(-s.ck.epsilon));
+	if (agm_from_strengths(&s.agm, s.ck.graph, &s.ck.F, s.ck.epsilon, s.delta)) {
+		checkpoint_release(&s.ck);
+		return 1;
+	}
+
+	int rc;
+	if (node)
+		rc = show_node(&s, node);
+	else if (have_comm)
+		rc = show_community(&s, comm);
+	else if (have_weak)
+		rc = show_pairs(&s, weak, missing);
+	else
+		rc = show_summary(&s);
+
+	if (fflush(stdout) || ferror(stdout)) {
+		if (rc == 0)
+			error("cannot write the output: %s", strerror(errno));
+		rc = -1;
+	}
+	agm_release(&s.agm);
+	checkpoint_release(&s.ck);
+	return rc ? 1 : 0;
+}

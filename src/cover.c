@@ -1,0 +1,347 @@
+/*
+ * cover: building covers from partitions, from (node, community) pairs and
+ * from cover files.
+ *
+ * Every builder goes through one path: a list of (key, node, position)
+ * records, sorted by (key, node). Records with the same key form a
+ * community; equal (key, node) records are merged; communities are then
+ * ordered by the smallest position at which their key appeared, which is
+ * "numbered by first appearance". Sorting makes members strictly
+ * increasing for free, which is what struct cover promises.
+ *
+ * Cover files: a '#' only starts a comment at the start of a line (node
+ * names may contain '#'); the line ends at "\n" or "\r\n"; the community is
+ * the text between the first TAB and the next one, and a first line
+ * "node<TAB>community..." naming no node is a header, so a result's
+ * memberships.tsv (node, community, strength) reads as a cover. Community names are interned
+ * in a small hash table in order of first appearance, which is then the
+ * key order, so the labels line up with the communities.
+ *
+ * The one thing a newcomer gets wrong: "first appearance" is the first
+ * record of a key in input order, not the smallest node of the community;
+ * after the sort the first record of a group is the smallest node, so the
+ * group's first position must be taken as the minimum over the group.
+ */
+#include "coterie/cover.h"
+
+#include <errno.h>
+#include <inttypes.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "coterie/graph.h"
+#include "coterie/util.h"
+
+struct rec {
+	int64_t key;
+	uint32_t node;
+	uint64_t pos;
+};
+
+struct group {
+	uint64_t first; /* smallest input position of the key */
+	uint64_t start; /* first record of the group in the sorted array */
+	uint64_t end;   /* one past the last record */
+	uint64_t size;  /* distinct nodes */
+};
+
+static int rec_cmp(const void *pa, const void *pb)
+{
+	const struct rec *a = pa, *b = pb;
+	if (a->key != b->key)
+		return a->key < b->key ? -1 : 1;
+	if (a->node != b->node)
+		return a->node < b->node ? -1 : 1;
+	return (a->pos > b->pos) - (a->pos < b->pos);
+}
+
+static int group_cmp(const void *pa, const void *pb)
+{
+	const struct group *a = pa, *b = pb;
+	return (a->first > b->first) - (a->first < b->first);
+}
+
+/*
+ * Turn nrec records (taken: sorted and freed here) into a cover over n
+ * nodes. names, when not NULL, gives the label of key i as names[i]
+ * (borrowed, copied); otherwise labels are the keys in decimal.
+ */
+static int build(struct cover *out, uint32_t n, struct rec *r, uint64_t nrec,
+		 const char *const *names)
+{
+	struct group *grp = NULL;
+	uint64_t ngrp = 0, total = 0;
+
+	memset(out, 0, sizeof *out);
+	out->n = n;
+	if (nrec)
+		qsort(r, (size_t)nrec, sizeof *r, rec_cmp);
+	for (uint64_t i = 0; i < nrec; i++)
+		if (i == 0 || r[i].key != r[i - 1].key)
+			ngrp++;
+	if (ngrp >= UINT32_MAX) {
+		free(r);
+		return error("too many communities: %" PRIu64, ngrp);
+	}
+	grp = util_calloc((size_t)ngrp, sizeof *grp);
+	if (!grp)
+		goto fail;
+	ngrp = 0;
+	for (uint64_t i = 0; i < nrec; i++) {
+		if (i == 0 || r[i].key != r[i - 1].key) {
+			grp[ngrp].first = r[i].pos;
+			grp[ngrp].start = i;
+			grp[ngrp].size = 0;
+			ngrp++;
+		}
+		struct group *gp = &grp[ngrp - 1];
+		gp->end = i + 1;
+		if (r[i].pos < gp->first)
+			gp->first = r[i].pos;
+		if (i == gp->start || r[i].node != r[i - 1].node) {
+			gp->size++;
+			total++;
+		}
+	}
+	if (ngrp)
+		qsort(grp, (size_t)ngrp, sizeof *grp, group_cmp);
+
+	out->k = (uint32_t)ngrp;
+	out->off = util_calloc((size_t)ngrp + 1, sizeof *out->off);
+	out->mem = util_malloc((size_t)total, sizeof *out->mem);
+	out->label = util_calloc((size_t)ngrp, sizeof *out->label);
+	if (!out->off || !out->mem || !out->label)
+		goto fail;
+	uint64_t at = 0;
+	for (uint64_t c = 0; c < ngrp; c++) {
+		const struct group *gp = &grp[c];
+		out->off[c] = at;
+		for (uint64_t i = gp->start; i < gp->end; i++)
+			if (i == gp->start || r[i].node != r[i - 1].node)
+				out->mem[at++] = r[i].node;
+		int64_t key = r[gp->start].key;
+		if (names) {
+			out->label[c] = util_strdup(names[key]);
+		} else {
+			char buf[32];
+			snprintf(buf, sizeof buf, "%" PRId64, key);
+			out->label[c] = util_strdup(buf);
+		}
+		if (!out->label[c])
+			goto fail;
+	}
+	out->off[ngrp] = at;
+	free(grp);
+	free(r);
+	return 0;
+fail:
+	free(grp);
+	free(r);
+	cover_release(out);
+	out->n = n;
+	return -1;
+}
+
+int cover_from_membership(struct cover *out, uint32_t n, const int64_t *membership)
+{
+	uint64_t nrec = 0;
+	memset(out, 0, sizeof *out);
+	for (uint32_t u = 0; u < n; u++)
+		if (membership[u] >= 0)
+			nrec++;
+	struct rec *r = util_malloc((size_t)nrec, sizeof *r);
+	if (!r)
+		return -1;
+	nrec = 0;
+	for (uint32_t u = 0; u < n; u++)
+		if (membership[u] >= 0)
+			r[nrec++] = (struct rec){ membership[u], u, u };
+	return build(out, n, r, nrec, NULL);
+}
+
+int cover_from_pairs(struct cover *out, uint32_t n, const uint32_t *node,
+		     const uint32_t *comm, uint64_t npairs)
+{
+	memset(out, 0, sizeof *out);
+	if (npairs > SIZE_MAX / sizeof(struct rec))
+		return error("too many memberships: %" PRIu64, npairs);
+	for (uint64_t i = 0; i < npairs; i++)
+		if (node[i] >= n)
+			return error("membership %" PRIu64 ": node %" PRIu32 " out of range (%" PRIu32
+				     " nodes)", i, node[i], n);
+	struct rec *r = util_malloc((size_t)npairs, sizeof *r);
+	if (!r)
+		return -1;
+	for (uint64_t i = 0; i < npairs; i++)
+		r[i] = (struct rec){ comm[i], node[i], i };
+	return build(out, n, r, npairs, NULL);
+}
+
+/* Community names of a cover file, interned: name -> index in order of
+ * first appearance, by open addressing (slots hold index + 1, 0 = free). */
+struct names {
+	char **name;
+	uint32_t count, cap;
+	uint32_t *slot;
+	uint64_t nslot; /* power of two */
+};
+
+static void names_release(struct names *t)
+{
+	for (uint32_t i = 0; i < t->count; i++)
+		free(t->name[i]);
+	free(t->name);
+	free(t->slot);
+}
+
+static int names_grow(struct names *t)
+{
+	uint64_t ns = t->nslot ? t->nslot * 2 : 64;
+	uint32_t *slot = util_calloc((size_t)ns, sizeof *slot);
+	if (!slot)
+		return -1;
+	for (uint32_t i = 0; i < t->count; i++) {
+		uint64_t h = util_fnv1a(UTIL_FNV_INIT, t->name[i], strlen(t->name[i]));
+		uint64_t j = h & (ns - 1);
+		while (slot[j])
+			j = (j + 1) & (ns - 1);
+		slot[j] = i + 1;
+	}
+	free(t->slot);
+	t->slot = slot;
+	t->nslot = ns;
+	return 0;
+}
+
+/* Index of s, added when new; -1 on failure. */
+static int64_t names_intern(struct names *t, const char *s)
+{
+	if ((uint64_t)t->count * 2 >= t->nslot && names_grow(t) < 0)
+		return -1;
+	size_t len = strlen(s);
+	uint64_t j = util_fnv1a(UTIL_FNV_INIT, s, len) & (t->nslot - 1);
+	while (t->slot[j]) {
+		uint32_t i = t->slot[j] - 1;
+		if (strcmp(t->name[i], s) == 0)
+			return i;
+		j = (j + 1) & (t->nslot - 1);
+	}
+	if (t->count == UINT32_MAX - 1)
+		return error("too many communities");
+	if (t->count == t->cap) {
+		uint32_t nc = t->cap ? (t->cap > UINT32_MAX / 2 ? UINT32_MAX - 1 : t->cap * 2) : 16;
+		char **nn = util_realloc(t->name, nc, sizeof *nn);
+		if (!nn)
+			return -1;
+		t->name = nn;
+		t->cap = nc;
+	}
+	char *copy = util_strdup(s);
+	if (!copy)
+		return -1;
+	t->name[t->count] = copy;
+	t->slot[j] = t->count + 1;
+	return t->count++;
+}
+
+static int blank(const char *s)
+{
+	for (; *s; s++)
+		if (*s != ' ' && *s != '\t' && *s != '\r' && *s != '\n')
+			return 0;
+	return 1;
+}
+
+int cover_load(struct cover *out, const char *path, const struct graph *g)
+{
+	struct names nm = { 0 };
+	struct rec *r = NULL;
+	uint64_t nrec = 0, cap = 0, lineno = 0, data = 0;
+	char *line = NULL;
+	size_t linecap = 0;
+	ssize_t len;
+	char where[512], what[256];
+	int rc = -1;
+
+	memset(out, 0, sizeof *out);
+	util_escape(path, where, sizeof where, 0);
+	FILE *f = fopen(path, "r");
+	if (!f)
+		return error("cannot open '%s': %s", where, strerror(errno));
+	errno = 0;
+	while ((len = getline(&line, &linecap, f)) >= 0) {
+		lineno++;
+		if ((size_t)len != strlen(line)) {
+			error("%s:%" PRIu64 ": NUL byte in line", where, lineno);
+			goto out;
+		}
+		while (len > 0 && (line[len - 1] == '\n' || line[len - 1] == '\r'))
+			line[--len] = '\0';
+		if (line[0] == '#' || blank(line))
+			continue;
+		char *tab = strchr(line, '\t');
+		if (!tab) {
+			error("%s:%" PRIu64 ": expected node<TAB>community, found no tab", where,
+			      lineno);
+			goto out;
+		}
+		*tab = '\0';
+		char *comm = tab + 1;
+		char *end = strchr(comm, '\t'); /* further columns are ignored */
+		if (end)
+			*end = '\0';
+		if (!*comm) {
+			error("%s:%" PRIu64 ": expected a community name after the tab", where,
+			      lineno);
+			goto out;
+		}
+		int64_t u = graph_find(g, line);
+		int first = data++ == 0;
+		if (u < 0 && first && !strcmp(line, "node") && !strcmp(comm, "community"))
+			continue; /* a header line */
+		if (u < 0) {
+			error("%s:%" PRIu64 ": unknown node '%s'", where, lineno,
+			      util_escape(line, what, sizeof what, 0));
+			goto out;
+		}
+		int64_t c = names_intern(&nm, comm);
+		if (c < 0)
+			goto out;
+		if (nrec == cap) {
+			uint64_t nc = cap ? cap * 2 : 256;
+			struct rec *nr = util_realloc(r, (size_t)nc, sizeof *nr);
+			if (!nr)
+				goto out;
+			r = nr;
+			cap = nc;
+		}
+		r[nrec] = (struct rec){ c, (uint32_t)u, nrec };
+		nrec++;
+	}
+	if (ferror(f)) {
+		error("cannot read '%s': %s", where, strerror(errno));
+		goto out;
+	}
+	rc = build(out, g->n, r, nrec, (const char *const *)nm.name);
+	r = NULL; /* taken by build() */
+out:
+	free(r);
+	free(line);
+	fclose(f);
+	names_release(&nm);
+	return rc;
+}
+
+void cover_release(struct cover *c)
+{
+	if (!c)
+		return;
+	if (c->label)
+		for (uint32_t i = 0; i < c->k; i++)
+			free(c->label[i]);
+	free(c->label);
+	free(c->off);
+	free(c->mem);
+	memset(c, 0, sizeof *c);
+}

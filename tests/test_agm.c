@@ -1,0 +1,575 @@
+/* Tests for agm: the AGM log-likelihood, the maximum-likelihood p_c and the
+ * per-community figures. */
+#include "helpers.h"
+
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "coterie/agm.h"
+#include "coterie/cover.h"
+#include "coterie/graph.h"
+#include "coterie/model.h"
+#include "coterie/rng.h"
+
+/* A cover from k member lists laid end to end (sizes[i] members each). */
+static void make_cover(struct cover *c, uint32_t n, uint32_t k, const uint32_t *sizes,
+		       const uint32_t *members)
+{
+	uint64_t total = 0;
+	for (uint32_t i = 0; i < k; i++)
+		total += sizes[i];
+	uint32_t *comm = malloc((total + 1) * sizeof *comm);
+	assert_non_null(comm);
+	uint64_t at = 0;
+	for (uint32_t i = 0; i < k; i++)
+		for (uint32_t j = 0; j < sizes[i]; j++)
+			comm[at++] = i;
+	assert_int_equal(cover_from_pairs(c, n, members, comm, total), 0);
+	assert_int_equal(c->k, k);
+	assert_cover_sane(c);
+	free(comm);
+}
+
+static struct graph *make_graph(uint32_t n, const uint32_t *pairs, uint64_t np)
+{
+	struct graph *g = graph_from_pairs(n, pairs, np, NULL);
+	assert_non_null(g);
+	assert_graph_sane(g);
+	return g;
+}
+
+/*
+ * The worked example. n = 5, A = {0,1,2,3}, B = {2,3,4},
+ * edges 0-1, 0-2, 1-2, 2-3, 3-4, 1-4; epsilon = 0.1, p_A = 0.5, p_B = 0.4.
+ * P(u,v) = 1 - (1 - epsilon) prod_{c shared} (1 - p_c) (Yang & Leskovec,
+ * ICDM 2012, with epsilon as an all-pairs community):
+ *   pair  shared  P                          edge?  factor    log
+ *   0-1   A       1 - 0.9*0.5     = 0.55     yes    0.55      -0.5978370008
+ *   0-2   A       0.55                       yes    0.55      -0.5978370008
+ *   1-2   A       0.55                       yes    0.55      -0.5978370008
+ *   2-3   A,B     1 - 0.9*0.5*0.6 = 0.73     yes    0.73      -0.3147107448
+ *   3-4   B       1 - 0.9*0.6     = 0.46     yes    0.46      -0.7765287895
+ *   1-4   -       0.1                        yes    0.1       -2.3025850930
+ *   0-3   A       0.55                       no     0.45      -0.7985076962
+ *   1-3   A       0.55                       no     0.45      -0.7985076962
+ *   2-4   B       0.46                       no     0.54      -0.6161861394
+ *   0-4   -       0.1                        no     0.9       -0.1053605157
+ * Sum: 3(-0.5978370008) - 0.3147107448 - 0.7765287895 - 2.3025850930
+ *      + 2(-0.7985076962) - 0.6161861394 - 0.1053605157 = -7.5058976771.
+ */
+static const uint32_t ex_edges[] = { 0, 1, 0, 2, 1, 2, 2, 3, 3, 4, 1, 4 };
+static const uint32_t ex_sizes[] = { 4, 3 };
+static const uint32_t ex_members[] = { 0, 1, 2, 3, 2, 3, 4 };
+
+static void test_loglik_matches_hand_computed_example(void **state)
+{
+	(void)state;
+	struct graph *g = make_graph(5, ex_edges, 6);
+	struct cover c;
+	make_cover(&c, 5, 2, ex_sizes, ex_members);
+	double p[2] = { 0.5, 0.4 };
+	/* Hand-worked table above: the product of the ten factors. */
+	double want = 3 * log(0.55) + log(0.73) + log(0.46) + log(0.1) + 2 * log(0.45) +
+		      log(0.54) + log(0.9);
+	double got = agm_loglik(g, &c, p, 0.1);
+	assert_true(fabs(got - want) <= 1e-12);
+	assert_true(fabs(got - -7.5058976771) < 1e-9); /* the sum written out above */
+	cover_release(&c);
+	graph_free(g);
+}
+
+/*
+ * Closed form without overlapping pairs. If every pair shares at most one
+ * community, L splits into one function per community:
+ *     L_c(q) = m_c log(1 - exp(-(q + qeps))) - (pairs_c - m_c)(q + qeps) + const.
+ * dL/dq = m_c w(q + qeps) - (pairs_c - m_c) with w(Q) = 1/(e^Q - 1); zero when
+ *     e^Q - 1 = m_c / (pairs_c - m_c)  =>  e^{-Q} = 1 - m_c/pairs_c.
+ * With epsilon = 0, Q = q and 1 - exp(-q) = p_c = m_c / pairs_c.
+ * With epsilon > 0, e^{-Q} = (1 - epsilon)(1 - p_c), so
+ *     p_c = 1 - (1 - m_c/pairs_c) / (1 - epsilon),
+ * and when that is negative (m_c/pairs_c < epsilon) dL/dq < 0 already at
+ * q = 0 (concave L), so the maximum is on the boundary, p_c = 0.
+ *
+ * Graph: A = {0,1,2,3} (pairs 6) with edges 0-1 0-2 1-2 (m 3);
+ * B = {3,4,5,6,7} (pairs 10; shares node 3 with A, no pair) with edges
+ * 3-4 4-5 5-6 6-7 (m 4); C = {8,9,10,11} (pairs 6) with edge 8-9 (m 1);
+ * edges 0-7 and 2-5 share no community.
+ */
+static const uint32_t cf_edges[] = { 0, 1, 0, 2, 1, 2, 3, 4, 4, 5, 5, 6, 6, 7, 8, 9, 0, 7, 2, 5 };
+static const uint32_t cf_sizes[] = { 4, 5, 4 };
+static const uint32_t cf_members[] = { 0, 1, 2, 3, 3, 4, 5, 6, 7, 8, 9, 10, 11 };
+
+static void test_p_closed_form_without_background(void **state)
+{
+	(void)state;
+	struct graph *g = make_graph(12, cf_edges, 10);
+	struct cover c;
+	make_cover(&c, 12, 3, cf_sizes, cf_members);
+	double p[3];
+	assert_int_equal(agm_estimate_p(g, &c, 0.0, p), 0);
+	assert_true(fabs(p[0] - 3.0 / 6.0) < 1e-10);  /* m/pairs, derived above */
+	assert_true(fabs(p[1] - 4.0 / 10.0) < 1e-10); /* m/pairs */
+	assert_true(fabs(p[2] - 1.0 / 6.0) < 1e-10);  /* m/pairs */
+	/* Edges 0-7 and 2-5 share nothing: probability 0 with epsilon = 0. */
+	assert_true(isinf(agm_loglik(g, &c, p, 0.0)) && agm_loglik(g, &c, p, 0.0) < 0);
+	cover_release(&c);
+	graph_free(g);
+}
+
+static void test_p_closed_form_with_background(void **state)
+{
+	(void)state;
+	struct graph *g = make_graph(12, cf_edges, 10);
+	struct cover c;
+	make_cover(&c, 12, 3, cf_sizes, cf_members);
+	double p[3], eps = 0.2;
+	assert_int_equal(agm_estimate_p(g, &c, eps, p), 0);
+	/* 1 - (1 - m/pairs)/(1 - epsilon), derived above */
+	assert_true(fabs(p[0] - (1.0 - (1.0 - 3.0 / 6.0) / (1.0 - eps))) < 1e-10); /* 0.375 */
+	assert_true(fabs(p[1] - (1.0 - (1.0 - 4.0 / 10.0) / (1.0 - eps))) < 1e-10); /* 0.25 */
+	/* m/pairs = 1/6 < epsilon: the boundary maximum p = 0 (derived above) */
+	assert_true(p[2] >= 0.0 && p[2] < 1e-9);
+	assert_true(isfinite(agm_loglik(g, &c, p, eps)));
+	cover_release(&c);
+	graph_free(g);
+}
+
+/* Every p_c moved by +-1e-4 and +-1e-2 (staying in [0, 1)) must not raise
+ * the likelihood: p is a maximum (the likelihood is concave in q, DESIGN.md). */
+static void assert_p_is_maximum(const struct graph *g, const struct cover *c, const double *p,
+				double eps)
+{
+	const double steps[] = { 1e-4, -1e-4, 1e-2, -1e-2 };
+	double best = agm_loglik(g, c, p, eps);
+	assert_true(isfinite(best));
+	double *t = malloc(c->k * sizeof *t);
+	assert_non_null(t);
+	for (uint32_t i = 0; i < c->k; i++)
+		for (size_t s = 0; s < sizeof steps / sizeof *steps; s++) {
+			memcpy(t, p, c->k * sizeof *t);
+			t[i] = p[i] + steps[s];
+			if (t[i] < 0.0 || t[i] >= 1.0)
+				continue;
+			double l = agm_loglik(g, c, t, eps);
+			assert_true(l <= best + 1e-12 * fabs(best));
+		}
+	free(t);
+}
+
+static void test_p_is_a_maximum_with_overlaps(void **state)
+{
+	(void)state;
+	/* The worked example: pair 2-3 shares both A and B. */
+	struct graph *g = make_graph(5, ex_edges, 6);
+	struct cover c;
+	make_cover(&c, 5, 2, ex_sizes, ex_members);
+	double p[2];
+	assert_int_equal(agm_estimate_p(g, &c, 0.1, p), 0);
+	assert_true(p[0] > 0.0 && p[0] < 1.0 && p[1] > 0.0 && p[1] < 1.0);
+	assert_p_is_maximum(g, &c, p, 0.1);
+	cover_release(&c);
+	graph_free(g);
+}
+
+/*
+ * Figures for a hand-drawn graph: triangles 0-1-2 and 3-4-5 joined by 2-3,
+ * and a pendant 5-6. n = 7, m = 8, degrees 2 2 3 3 2 3 1 (2m = 16).
+ * Cover: C0 = {0,1,2}, C1 = {3,4,5,6}, C2 = {2,3}, C3 = {6}, C4 = {} (empty).
+ *   C0: size 3, internal 3 (0-1 0-2 1-2), volume 2+2+3 = 7, cut 7-6 = 1,
+ *       density 3/3 = 1, conductance 1/min(7, 9) = 1/7;
+ *   C1: size 4, internal 4 (3-4 3-5 4-5 5-6), volume 3+2+3+1 = 9,
+ *       cut 9-8 = 1, density 4/6, conductance 1/min(9, 7) = 1/7;
+ *   C2: size 2, internal 1 (2-3), volume 6, cut 4, density 1,
+ *       conductance 4/min(6, 10) = 2/3;
+ *   C3: size 1, internal 0, volume 1, cut 1, density 0 (fewer than two
+ *       members), conductance 1/min(1, 15) = 1.
+ * Largest first: C1, C0, C2, C3; C4 is empty and not listed.
+ * Covered nodes: all 7; in two or more: 2 (C0, C2), 3 (C1, C2), 6 (C1, C3).
+ * p: C0 and C2 are cliques (the likelihood rises with q everywhere, so
+ * q = AGM_QMAX); C3 has no pair (p = 0); C1 shares no pair with another
+ * community, so p = 1 - (1 - 4/6)/(1 - epsilon) (closed form above).
+ */
+static void test_figures_match_hand_drawn_graph(void **state)
+{
+	(void)state;
+	const uint32_t e[] = { 0, 1, 0, 2, 1, 2, 3, 4, 3, 5, 4, 5, 2, 3, 5, 6 };
+	struct graph *g = make_graph(7, e, 8);
+	const uint32_t sizes[] = { 3, 4, 2, 1 };
+	const uint32_t mem[] = { 0, 1, 2, 3, 4, 5, 6, 2, 3, 6 };
+	struct cover base, c;
+	make_cover(&base, 7, 4, sizes, mem);
+	/* Append an empty community C4 by hand. */
+	c = base;
+	c.k = 5;
+	c.off = malloc(6 * sizeof *c.off);
+	c.label = malloc(5 * sizeof *c.label);
+	assert_non_null(c.off);
+	assert_non_null(c.label);
+	memcpy(c.off, base.off, 5 * sizeof *c.off);
+	c.off[5] = c.off[4];
+	memcpy(c.label, base.label, 4 * sizeof *c.label);
+	c.label[4] = (char *)"empty";
+	assert_cover_sane(&c);
+
+	double eps = 0.05;
+	struct agm a;
+	assert_int_equal(agm_from_cover(&a, g, &c, eps), 0);
+	assert_cover_sane(&a.cover);
+	assert_int_equal(a.cover.k, 4);
+	const uint32_t want_id[] = { 1, 0, 2, 3 };
+	const uint32_t want_size[] = { 4, 3, 2, 1 };
+	const uint64_t want_int[] = { 4, 3, 1, 0 };
+	const uint64_t want_vol[] = { 9, 7, 6, 1 };
+	const uint64_t want_cut[] = { 1, 1, 4, 1 };
+	const double want_den[] = { 4.0 / 6.0, 1.0, 1.0, 0.0 };
+	const double want_cond[] = { 1.0 / 7.0, 1.0 / 7.0, 2.0 / 3.0, 1.0 };
+	for (uint32_t i = 0; i < 4; i++) { /* hand-worked table above */
+		assert_int_equal(a.comms[i].id, want_id[i]);
+		assert_int_equal(a.comms[i].size, want_size[i]);
+		assert_int_equal(cover_size(&a.cover, i), want_size[i]);
+		assert_int_equal(a.comms[i].internal_edges, want_int[i]);
+		assert_int_equal(a.comms[i].volume, want_vol[i]);
+		assert_int_equal(a.comms[i].cut, want_cut[i]);
+		assert_true(fabs(a.comms[i].density - want_den[i]) < 1e-15);
+		assert_true(fabs(a.comms[i].conductance - want_cond[i]) < 1e-15);
+		assert_string_equal(a.cover.label[i], c.label[want_id[i]]);
+		/* members are the input community's members */
+		for (uint64_t j = 0; j < want_size[i]; j++)
+			assert_int_equal(a.cover.mem[a.cover.off[i] + j],
+					 c.mem[c.off[want_id[i]] + j]);
+	}
+	for (uint64_t j = 0; j < a.cover.off[a.cover.k]; j++)
+		assert_true(a.strength[j] == 1.0);
+	assert_true(fabs(a.comms[0].p - (1.0 - (1.0 - 4.0 / 6.0) / (1.0 - eps))) < 1e-10);
+	assert_true(a.comms[1].p == -expm1(-AGM_QMAX)); /* clique */
+	assert_true(a.comms[2].p == -expm1(-AGM_QMAX)); /* clique */
+	assert_true(a.comms[3].p == 0.0);               /* no pair */
+	assert_int_equal(a.covered, 7);
+	assert_int_equal(a.overlapping, 3);
+	assert_int_equal(a.n, 7);
+	assert_true(a.epsilon == eps);
+	/* The stored log-likelihood is that of the reported p. */
+	double p[4];
+	for (uint32_t i = 0; i < 4; i++)
+		p[i] = a.comms[i].p;
+	double l = agm_loglik(g, &a.cover, p, eps);
+	assert_true(fabs(a.loglik - l) <= 1e-9 * fabs(l));
+	agm_release(&a);
+	agm_release(&a); /* released twice: a no-op the second time */
+
+	free(c.off);
+	free(c.label);
+	cover_release(&base);
+	graph_free(g);
+}
+
+static void test_communities_listed_largest_first_ties_by_id(void **state)
+{
+	(void)state;
+	const uint32_t e[] = { 0, 1, 1, 2, 2, 3, 3, 4, 4, 5 };
+	struct graph *g = make_graph(6, e, 5);
+	/* sizes 2, 3, 3, 1, 3: order ids 1, 2, 4 (size 3, by id), 0, 3 */
+	const uint32_t sizes[] = { 2, 3, 3, 1, 3 };
+	const uint32_t mem[] = { 0, 1, 0, 1, 2, 3, 4, 5, 5, 1, 2, 3 };
+	struct cover c;
+	make_cover(&c, 6, 5, sizes, mem);
+	struct agm a;
+	assert_int_equal(agm_from_cover(&a, g, &c, 0.01), 0);
+	const uint32_t want[] = { 1, 2, 4, 0, 3 };
+	assert_int_equal(a.cover.k, 5);
+	for (uint32_t i = 0; i < 5; i++) /* DESIGN: largest first, ties by id */
+		assert_int_equal(a.comms[i].id, want[i]);
+	agm_release(&a);
+	cover_release(&c);
+	graph_free(g);
+}
+
+/*
+ * Strengths by hand, n = 4, k = 4, delta = 0.5:
+ *   u0: c0 0.5 (exactly delta: member), c2 0.3
+ *   u1: c0 0.8, c3 0.49999 (below)
+ *   u2: c2 1.2, c3 0.7
+ *   u3: c0 0.1, c2 0.6
+ * Column 1 is empty. Members: c0 {0,1}, c2 {2,3}, c3 {2}; sizes 2 2 1, so
+ * the order is c0, c2 (tie by id), c3. Edges 0-1 1-2 2-3: c0 and c2 hold
+ * one pair each, both linked (cliques), c3 has no pair.
+ */
+static void test_from_strengths_thresholds_at_delta_inclusive(void **state)
+{
+	(void)state;
+	const uint32_t e[] = { 0, 1, 1, 2, 2, 3 };
+	struct graph *g = make_graph(4, e, 3);
+	struct fentry ent[] = {
+		{ 0, 0.5 }, { 2, 0.3 }, { 0, 0.8 }, { 3, 0.49999 },
+		{ 2, 1.2 }, { 3, 0.7 }, { 0, 0.1 }, { 2, 0.6 },
+	};
+	uint64_t off[] = { 0, 2, 4, 6, 8 };
+	double colsum[] = { 1.4, 0.0, 2.1, 1.19999 };
+	struct fcsr F = { 4, 4, off, ent, colsum };
+	assert_fcsr_sane(&F);
+	struct agm a;
+	assert_int_equal(agm_from_strengths(&a, g, &F, 0.01, 0.5), 0);
+	assert_cover_sane(&a.cover);
+	assert_int_equal(a.cover.k, 3);
+	assert_int_equal(a.comms[0].id, 0);
+	assert_int_equal(a.comms[1].id, 2);
+	assert_int_equal(a.comms[2].id, 3);
+	assert_string_equal(a.cover.label[0], "0");
+	assert_string_equal(a.cover.label[1], "2");
+	assert_string_equal(a.cover.label[2], "3");
+	const uint32_t want_mem[] = { 0, 1, 2, 3, 2 };
+	const double want_str[] = { 0.5, 0.8, 1.2, 0.6, 0.7 };
+	assert_int_equal(a.cover.off[3], 5);
+	for (int j = 0; j < 5; j++) {
+		assert_int_equal(a.cover.mem[j], want_mem[j]);
+		assert_true(a.strength[j] == want_str[j]);
+	}
+	assert_int_equal(a.comms[0].internal_edges, 1);
+	assert_int_equal(a.comms[1].internal_edges, 1);
+	assert_true(a.comms[0].p == -expm1(-AGM_QMAX)); /* one pair, linked */
+	assert_true(a.comms[2].p == 0.0);               /* no pair */
+	assert_int_equal(a.covered, 4);
+	assert_int_equal(a.overlapping, 1); /* node 2: c2 and c3 */
+	agm_release(&a);
+
+	struct fcsr bad = { 3, 4, off, ent, colsum }; /* 3 rows, 4 nodes */
+	assert_int_equal(agm_from_strengths(&a, g, &bad, 0.01, 0.5), -1);
+	graph_free(g);
+}
+
+/* ---- brute force, O(n^2), written independently of src/agm.c ---- */
+
+struct brute {
+	uint32_t n, k;
+	uint32_t *mask; /* per pair (u < v, row-major): bit c when both in c */
+	uint8_t *edge;
+	uint64_t npairs;
+};
+
+static void brute_init(struct brute *b, const struct graph *g, const struct cover *c)
+{
+	assert_true(c->k <= 32);
+	b->n = g->n;
+	b->k = c->k;
+	b->npairs = (uint64_t)g->n * (g->n - 1) / 2;
+	b->mask = calloc(b->npairs, sizeof *b->mask);
+	b->edge = calloc(b->npairs, 1);
+	uint32_t *nodemask = calloc(g->n, sizeof *nodemask);
+	assert_true(b->mask && b->edge && nodemask);
+	for (uint32_t i = 0; i < c->k; i++)
+		for (uint64_t j = c->off[i]; j < c->off[i + 1]; j++)
+			nodemask[c->mem[j]] |= 1u << i;
+	uint64_t at = 0;
+	for (uint32_t u = 0; u < g->n; u++)
+		for (uint32_t v = u + 1; v < g->n; v++, at++) {
+			b->mask[at] = nodemask[u] & nodemask[v];
+			b->edge[at] = (uint8_t)graph_has_edge(g, u, v);
+		}
+	free(nodemask);
+}
+
+/* The AGM likelihood straight from its definition (DESIGN.md): the
+ * product over all pairs of P or 1 - P, P = 1 - (1-eps) prod (1 - p_c). */
+static double brute_loglik(const struct brute *b, const double *p, double eps)
+{
+	double sum = 0.0;
+	for (uint64_t i = 0; i < b->npairs; i++) {
+		double keep = 1.0 - eps;
+		for (uint32_t c = 0; c < b->k; c++)
+			if (b->mask[i] >> c & 1)
+				keep *= 1.0 - p[c];
+		sum += b->edge[i] ? log(1.0 - keep) : log(keep);
+	}
+	return sum;
+}
+
+/* dL/dq_c: edges sharing c contribute 1/expm1(Q), non-edges -1. */
+static double brute_grad(const struct brute *b, const double *q, double qeps, uint32_t c)
+{
+	double g = 0.0;
+	for (uint64_t i = 0; i < b->npairs; i++) {
+		if (!(b->mask[i] >> c & 1))
+			continue;
+		if (!b->edge[i]) {
+			g -= 1.0;
+			continue;
+		}
+		double Q = qeps;
+		for (uint32_t d = 0; d < b->k; d++)
+			if (b->mask[i] >> d & 1)
+				Q += q[d];
+		g += 1.0 / expm1(Q);
+	}
+	return g;
+}
+
+/* Maximise the brute likelihood over p by cyclic golden-section search
+ * on each p_c in [0, 1 - 1e-13] (a maximiser independent of src/agm.c). */
+static void brute_maximise(const struct brute *b, double eps, double *p)
+{
+	const double gr = (sqrt(5.0) - 1.0) / 2.0;
+	for (uint32_t c = 0; c < b->k; c++)
+		p[c] = 0.5;
+	for (int cycle = 0; cycle < 300; cycle++) {
+		double moved = 0.0;
+		for (uint32_t c = 0; c < b->k; c++) {
+			double lo = 0.0, hi = 1.0 - 1e-13, old = p[c];
+			double x1 = hi - gr * (hi - lo), x2 = lo + gr * (hi - lo);
+			p[c] = x1;
+			double f1 = brute_loglik(b, p, eps);
+			p[c] = x2;
+			double f2 = brute_loglik(b, p, eps);
+			while (hi - lo > 1e-12) {
+				if (f1 < f2) {
+					lo = x1;
+					x1 = x2;
+					f1 = f2;
+					x2 = lo + gr * (hi - lo);
+					p[c] = x2;
+					f2 = brute_loglik(b, p, eps);
+				} else {
+					hi = x2;
+					x2 = x1;
+					f2 = f1;
+					x1 = hi - gr * (hi - lo);
+					p[c] = x1;
+					f1 = brute_loglik(b, p, eps);
+				}
+			}
+			p[c] = 0.5 * (lo + hi);
+			if (fabs(p[c] - old) > moved)
+				moved = fabs(p[c] - old);
+		}
+		if (moved < 1e-11)
+			break;
+	}
+}
+
+static void brute_release(struct brute *b)
+{
+	free(b->mask);
+	free(b->edge);
+}
+
+/* A planted AGM on 40 nodes: 4 overlapping communities, each node in each
+ * with probability 0.3, pairs linked as the model says. */
+static struct graph *planted(struct rng *r, uint32_t n, struct cover *c, double eps0)
+{
+	const double ptrue[4] = { 0.5, 0.3, 0.6, 0.2 };
+	uint32_t node[400], comm[400], np = 0, nodemask[64] = { 0 };
+	assert_true(n <= 64);
+	for (uint32_t k = 0; k < 4; k++)
+		for (uint32_t u = 0; u < n; u++)
+			if (rng_uniform(r) < 0.3) {
+				node[np] = u;
+				comm[np++] = k;
+				nodemask[u] |= 1u << k;
+			}
+	assert_int_equal(cover_from_pairs(c, n, node, comm, np), 0);
+	assert_int_equal(c->k, 4);
+	uint32_t *pairs = malloc((size_t)n * n * sizeof *pairs);
+	assert_non_null(pairs);
+	uint64_t ne = 0;
+	for (uint32_t u = 0; u < n; u++)
+		for (uint32_t v = u + 1; v < n; v++) {
+			double keep = 1.0 - eps0;
+			for (uint32_t k = 0; k < 4; k++)
+				if ((nodemask[u] & nodemask[v]) >> k & 1)
+					keep *= 1.0 - ptrue[k];
+			if (rng_uniform(r) < 1.0 - keep) {
+				pairs[2 * ne] = u;
+				pairs[2 * ne + 1] = v;
+				ne++;
+			}
+		}
+	struct graph *g = make_graph(n, pairs, ne);
+	free(pairs);
+	return g;
+}
+
+static void test_random_graph_matches_brute_force(void **state)
+{
+	(void)state;
+	struct rng r;
+	rng_init(&r, 20240611);
+	for (int trial = 0; trial < 3; trial++) {
+		struct cover c;
+		double eps = 0.02;
+		struct graph *g = planted(&r, 40, &c, eps);
+		struct brute b;
+		brute_init(&b, g, &c);
+
+		/* Log-likelihood at arbitrary p: the O(n^2) definition. */
+		for (int t = 0; t < 5; t++) {
+			double p[4];
+			for (int i = 0; i < 4; i++)
+				p[i] = 0.05 + 0.9 * rng_uniform(&r);
+			double want = brute_loglik(&b, p, eps), got = agm_loglik(g, &c, p, eps);
+			assert_true(fabs(got - want) <= 1e-10 * fabs(want));
+		}
+
+		/* The estimate: agrees with an independent maximiser, is a
+		 * stationary point of the brute-force likelihood, and a maximum. */
+		double p[4], pb[4], q[4], qeps = -log1p(-eps);
+		assert_int_equal(agm_estimate_p(g, &c, eps, p), 0);
+		brute_maximise(&b, eps, pb);
+		for (int i = 0; i < 4; i++) {
+			assert_true(fabs(p[i] - pb[i]) < 1e-6);
+			q[i] = -log1p(-p[i]);
+		}
+		for (uint32_t i = 0; i < 4; i++) {
+			double gr = brute_grad(&b, q, qeps, i);
+			if (p[i] > 1e-9 && p[i] < 1.0 - 1e-9)
+				assert_true(fabs(gr) < 1e-7 * (1.0 + cover_size(&c, i) * cover_size(&c, i)));
+		}
+		assert_p_is_maximum(g, &c, p, eps);
+		double lb = brute_loglik(&b, p, eps);
+		assert_true(fabs(agm_loglik(g, &c, p, eps) - lb) <= 1e-10 * fabs(lb));
+
+		struct agm a;
+		assert_int_equal(agm_from_cover(&a, g, &c, eps), 0);
+		assert_true(fabs(a.loglik - lb) <= 1e-9 * fabs(lb));
+		agm_release(&a);
+		brute_release(&b);
+		cover_release(&c);
+		graph_free(g);
+	}
+}
+
+static void test_rejects_bad_input(void **state)
+{
+	(void)state;
+	struct graph *g = make_graph(5, ex_edges, 6);
+	struct cover c;
+	make_cover(&c, 5, 2, ex_sizes, ex_members);
+	double p[2];
+	assert_int_equal(agm_estimate_p(g, &c, 1.0, p), -1);  /* epsilon must be < 1 */
+	assert_int_equal(agm_estimate_p(g, &c, -0.1, p), -1);
+	assert_int_equal(agm_estimate_p(g, &c, NAN, p), -1);
+	c.n = 6; /* a cover of another node set */
+	assert_int_equal(agm_estimate_p(g, &c, 0.1, p), -1);
+	assert_true(isnan(agm_loglik(g, &c, p, 0.1)));
+	struct agm a;
+	assert_int_equal(agm_from_cover(&a, g, &c, 0.1), -1);
+	c.n = 5;
+	agm_release(NULL);
+	cover_release(&c);
+	graph_free(g);
+}
+
+int main(void)
+{
+	const struct CMUnitTest tests[] = {
+		cmocka_unit_test(test_loglik_matches_hand_computed_example),
+		cmocka_unit_test(test_p_closed_form_without_background),
+		cmocka_unit_test(test_p_closed_form_with_background),
+		cmocka_unit_test(test_p_is_a_maximum_with_overlaps),
+		cmocka_unit_test(test_figures_match_hand_drawn_graph),
+		cmocka_unit_test(test_communities_listed_largest_first_ties_by_id),
+		cmocka_unit_test(test_from_strengths_thresholds_at_delta_inclusive),
+		cmocka_unit_test(test_random_graph_matches_brute_force),
+		cmocka_unit_test(test_rejects_bad_input),
+	};
+	return cmocka_run_group_tests(tests, NULL, NULL);
+}

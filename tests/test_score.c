@@ -1,0 +1,425 @@
+/* Tests for score: overlapping NMI, max form (McDaid, Greene & Hurley,
+ * arXiv:1110.2515) and LFK form (Lancichinetti, Fortunato & Kertesz, New J.
+ * Phys. 11, 033015, 2009). */
+#include "helpers.h"
+
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "coterie/cover.h"
+#include "coterie/rng.h"
+#include "coterie/score.h"
+
+/* A cover from k member lists laid end to end. */
+static void make_cover(struct cover *c, uint32_t n, uint32_t k, const uint32_t *sizes,
+		       const uint32_t *members)
+{
+	uint64_t total = 0;
+	for (uint32_t i = 0; i < k; i++)
+		total += sizes[i];
+	uint32_t *comm = malloc((total + 1) * sizeof *comm);
+	assert_non_null(comm);
+	uint64_t at = 0;
+	for (uint32_t i = 0; i < k; i++)
+		for (uint32_t j = 0; j < sizes[i]; j++)
+			comm[at++] = i;
+	assert_int_equal(cover_from_pairs(c, n, members, comm, total), 0);
+	assert_cover_sane(c);
+	free(comm);
+}
+
+/* Random cover: k communities, community i of size sizes[i] drawn
+ * uniformly without replacement (members may overlap across communities). */
+static void random_cover(struct cover *c, struct rng *r, uint32_t n, uint32_t k,
+			 const uint32_t *sizes)
+{
+	uint32_t *perm = malloc(n * sizeof *perm);
+	uint64_t total = 0;
+	for (uint32_t i = 0; i < k; i++)
+		total += sizes[i];
+	uint32_t *node = malloc((total + 1) * sizeof *node);
+	uint32_t *comm = malloc((total + 1) * sizeof *comm);
+	assert_true(perm && node && comm);
+	for (uint32_t u = 0; u < n; u++)
+		perm[u] = u;
+	uint64_t at = 0;
+	for (uint32_t i = 0; i < k; i++) {
+		rng_shuffle_u32(r, perm, n);
+		for (uint32_t j = 0; j < sizes[i]; j++) {
+			node[at] = perm[j];
+			comm[at++] = i;
+		}
+	}
+	assert_int_equal(cover_from_pairs(c, n, node, comm, total), 0);
+	assert_cover_sane(c);
+	free(perm);
+	free(node);
+	free(comm);
+}
+
+static const double L3 = 1.5849625007211562; /* log2(3) */
+
+static void test_identical_covers_score_one(void **state)
+{
+	(void)state;
+	struct rng r;
+	rng_init(&r, 7);
+	const uint32_t sizes[] = { 30, 5, 60, 12, 12, 1, 99 };
+	struct cover a;
+	random_cover(&a, &r, 100, 7, sizes);
+	/* 1 for identical covers: both papers' definitions */
+	assert_true(fabs(score_onmi_max(&a, &a) - 1.0) < 1e-12);
+	assert_true(fabs(score_onmi_lfk(&a, &a) - 1.0) < 1e-12);
+	cover_release(&a);
+}
+
+/*
+ * Hand-worked, n = 8, h(w) = -(w/8) log2(w/8):
+ *   X = { X1 = {0,1,2,3}, X2 = {4,5} },  Y = { Y1 = {0,1} }.
+ *   H(X1) = h(4) + h(4) = 0.5 + 0.5 = 1
+ *   H(X2) = h(2) + h(6) = 0.5 + 0.75 log2(4/3) = 2 - 0.75 log2 3 = 0.8112781
+ *   H(Y1) = H(X2) = 0.8112781
+ *   X1 vs Y1: a = 8-4 = 4, b = 0, c = 2, d = 2;
+ *     h(a)+h(d) = 1 >= h(b)+h(c) = 0.5: accepted;
+ *     H(X1,Y1) = 0.5 + 0 + 0.5 + 0.5 = 1.5
+ *     H(X1|Y1) = 1.5 - 0.8112781 = 0.75 log2 3 - 0.5 = 0.6887219
+ *     H(Y1|X1) = 1.5 - 1 = 0.5
+ *   X2 vs Y1: a = 8-4 = 4, b = 2, c = 2, d = 0;
+ *     h(a)+h(d) = 0.5 < h(b)+h(c) = 1: rejected, H(X2|Y) = H(X2),
+ *     and Y1 given X2 likewise H(Y1).
+ *   H(X|Y) = 0.6887219 + 0.8112781 = 1.5;  H(Y|X) = min(0.5, 0.8112781) = 0.5
+ *   H(X) = 1.8112781, H(Y) = 0.8112781
+ *   I = (1.8112781 - 1.5 + 0.8112781 - 0.5)/2 = 0.3112781 = 1.5 - 0.75 log2 3
+ *   max form: I / max(H(X), H(Y)) = 0.3112781 / 1.8112781 = 0.1718555
+ *   LFK form: 1 - (((0.6887219/1 + 0.8112781/0.8112781)/2) + 0.5/0.8112781)/2
+ *           = 1 - (0.8443609 + 0.6163110)/2 = 0.2696638
+ */
+static void test_max_form_matches_hand_worked_example(void **state)
+{
+	(void)state;
+	struct cover x, y;
+	make_cover(&x, 8, 2, (const uint32_t[]){ 4, 2 }, (const uint32_t[]){ 0, 1, 2, 3, 4, 5 });
+	make_cover(&y, 8, 1, (const uint32_t[]){ 2 }, (const uint32_t[]){ 0, 1 });
+	double hy = 2.0 - 0.75 * L3;
+	double want_max = (1.5 - 0.75 * L3) / (1.0 + hy);                       /* above */
+	double want_lfk = 1.0 - 0.5 * (((0.75 * L3 - 0.5) + 1.0) / 2.0 + 0.5 / hy); /* above */
+	assert_true(fabs(score_onmi_max(&x, &y) - want_max) < 1e-12);
+	assert_true(fabs(score_onmi_max(&x, &y) - 0.1718555) < 1e-7);
+	assert_true(fabs(score_onmi_lfk(&x, &y) - want_lfk) < 1e-12);
+	assert_true(fabs(score_onmi_lfk(&x, &y) - 0.2696638) < 1e-7);
+	cover_release(&x);
+	cover_release(&y);
+}
+
+/*
+ * Two partitions of n = 8, worked by hand as above:
+ *   X = { {0..3}, {4..7} },  Y = { Y1 = {0..5}, Y2 = {6,7} }.
+ *   H(X1) = H(X2) = 1; H(Y1) = H(Y2) = h(6) + h(2) = 2 - 0.75 log2 3.
+ *   X1|Y1: a=2 b=2 c=0 d=4, 1 >= 0.5, H = 1.5 - H(Y1) = 0.75 log2 3 - 0.5
+ *   X1|Y2: a=2 b=2 c=4 d=0, 0.5 < 1 rejected
+ *   X2|Y1: a=0 b=4 c=2 d=2, 0.5 < 1 rejected
+ *   X2|Y2: a=4 b=0 c=2 d=2, 1 >= 0.5, H = 0.75 log2 3 - 0.5
+ *   Y1|X1 = 1.5 - 1 = 0.5, Y2|X2 = 0.5 (the others rejected)
+ *   I = (2 - 2(0.75 log2 3 - 0.5) + 2 H(Y1) - 1)/2 = 3 - 1.5 log2 3
+ *   max form: I / max(2, 2 H(Y1)) = 1.5 - 0.75 log2 3 = 0.3112781
+ *   LFK form: 1 - ((0.75 log2 3 - 0.5) + 0.5/H(Y1))/2 = 0.3474833
+ */
+static void test_partitions_match_hand_worked_example(void **state)
+{
+	(void)state;
+	struct cover x, y;
+	make_cover(&x, 8, 2, (const uint32_t[]){ 4, 4 },
+		   (const uint32_t[]){ 0, 1, 2, 3, 4, 5, 6, 7 });
+	make_cover(&y, 8, 2, (const uint32_t[]){ 6, 2 },
+		   (const uint32_t[]){ 0, 1, 2, 3, 4, 5, 6, 7 });
+	double hy = 2.0 - 0.75 * L3;
+	assert_true(fabs(score_onmi_max(&x, &y) - (1.5 - 0.75 * L3)) < 1e-12);  /* above */
+	assert_true(fabs(score_onmi_max(&x, &y) - 0.3112781) < 1e-7);
+	assert_true(fabs(score_onmi_lfk(&x, &y) - (1.0 - 0.5 * ((0.75 * L3 - 0.5) + 0.5 / hy))) <
+		    1e-12); /* above */
+	assert_true(fabs(score_onmi_lfk(&x, &y) - 0.3474833) < 1e-7);
+	cover_release(&x);
+	cover_release(&y);
+}
+
+/*
+ * A community disjoint from X1 can still inform about it (the LFK
+ * condition accepts it), so the pairs with no common node must be
+ * evaluated. n = 100, X1 = {0..59}, Y1 = {99}:
+ *   a = 39, b = 1, c = 60, d = 0 (b and c swap for Y given X)
+ *   h(a) + h(d) = -0.39 log2 0.39 = 0.5297970
+ *   h(b) + h(c) = -0.01 log2 0.01 - 0.6 log2 0.6 = 0.0664386 + 0.4421793 = 0.5086179
+ *   accepted both ways. J = H(X1,Y1) = 0.5297970 + 0.0664386 + 0.4421793 = 1.0384150
+ *   H(X1) = h(60) + h(40) = 0.9709506, H(Y1) = h(1) + h(99) = 0.0807931
+ *   H(X1|Y1) = J - H(Y1) = 0.9576218; H(Y1|X1) = J - H(X1) = 0.0674644
+ *   I = H(X1) + H(Y1) - J = 0.0133288; max form I / 0.9709506 = 0.0137275
+ *   LFK: 1 - (0.9576218/0.9709506 + 0.0674644/0.0807931)/2 = 0.0893507
+ * And the complement: X1 = {0..3}, Y1 = {4..7} of n = 8 gives a = 0,
+ * b = c = 4, d = 0: h(a)+h(d) = 0 < 1, rejected both ways, so both forms
+ * score 0 (LFK 2009, appendix: a complement carries no credit).
+ */
+static void test_disjoint_communities_are_scored_by_the_lfk_condition(void **state)
+{
+	(void)state;
+	uint32_t m60[60];
+	for (uint32_t i = 0; i < 60; i++)
+		m60[i] = i;
+	struct cover x, y;
+	make_cover(&x, 100, 1, (const uint32_t[]){ 60 }, m60);
+	make_cover(&y, 100, 1, (const uint32_t[]){ 1 }, (const uint32_t[]){ 99 });
+	assert_true(fabs(score_onmi_max(&x, &y) - 0.0137275) < 1e-7); /* worked above */
+	assert_true(fabs(score_onmi_lfk(&x, &y) - 0.0893507) < 1e-7); /* worked above */
+	cover_release(&x);
+	cover_release(&y);
+
+	make_cover(&x, 8, 1, (const uint32_t[]){ 4 }, (const uint32_t[]){ 0, 1, 2, 3 });
+	make_cover(&y, 8, 1, (const uint32_t[]){ 4 }, (const uint32_t[]){ 4, 5, 6, 7 });
+	assert_true(score_onmi_max(&x, &y) == 0.0); /* rejected: worked above */
+	assert_true(score_onmi_lfk(&x, &y) == 0.0);
+	cover_release(&x);
+	cover_release(&y);
+}
+
+/* ---- the definition over all pairs, written independently of src/score.c ---- */
+
+static double hb(double w, double n)
+{
+	return w > 0 ? -(w / n) * log2(w / n) : 0.0;
+}
+
+static uint8_t *dense(const struct cover *c)
+{
+	uint8_t *d = calloc((size_t)c->k * c->n + 1, 1);
+	assert_non_null(d);
+	for (uint32_t i = 0; i < c->k; i++)
+		for (uint64_t j = c->off[i]; j < c->off[i + 1]; j++)
+			d[(size_t)i * c->n + c->mem[j]] = 1;
+	return d;
+}
+
+/* H(X_i|Y) for every informative X_i over every Y_j (non-constant ones);
+ * returns the number of informative X_i, entropies in hx, conditionals in cx. */
+static uint32_t brute_cond(const struct cover *a, const struct cover *b, double *hx, double *cx)
+{
+	uint8_t *da = dense(a), *db = dense(b);
+	double n = a->n;
+	uint32_t cnt = 0;
+	for (uint32_t i = 0; i < a->k; i++) {
+		double x = cover_size(a, i);
+		if (x == 0 || x == n)
+			continue;
+		double H = hb(x, n) + hb(n - x, n), best = H;
+		for (uint32_t j = 0; j < b->k; j++) {
+			double y = cover_size(b, j);
+			if (y == 0 || y == n)
+				continue;
+			double A = 0, B = 0, C = 0, D = 0;
+			for (uint32_t u = 0; u < a->n; u++) {
+				int xi = da[(size_t)i * a->n + u], yj = db[(size_t)j * b->n + u];
+				A += !xi && !yj;
+				B += !xi && yj;
+				C += xi && !yj;
+				D += xi && yj;
+			}
+			if (hb(A, n) + hb(D, n) >= hb(B, n) + hb(C, n)) {
+				double v = hb(A, n) + hb(B, n) + hb(C, n) + hb(D, n) -
+					   (hb(y, n) + hb(n - y, n));
+				if (v < best)
+					best = v;
+			}
+		}
+		hx[cnt] = H;
+		cx[cnt] = best;
+		cnt++;
+	}
+	free(da);
+	free(db);
+	return cnt;
+}
+
+static void brute_scores(const struct cover *a, const struct cover *b, double *mx, double *lfk)
+{
+	double *ha = malloc((a->k + 1) * sizeof *ha), *ca = malloc((a->k + 1) * sizeof *ca);
+	double *hb_ = malloc((b->k + 1) * sizeof *hb_), *cb = malloc((b->k + 1) * sizeof *cb);
+	assert_true(ha && ca && hb_ && cb);
+	uint32_t ka = brute_cond(a, b, ha, ca), kb = brute_cond(b, a, hb_, cb);
+	assert_true(ka > 0 && kb > 0);
+	double HX = 0, HY = 0, sx = 0, sy = 0, rx = 0, ry = 0;
+	for (uint32_t i = 0; i < ka; i++) {
+		HX += ha[i];
+		sx += ca[i];
+		rx += ca[i] / ha[i];
+	}
+	for (uint32_t j = 0; j < kb; j++) {
+		HY += hb_[j];
+		sy += cb[j];
+		ry += cb[j] / hb_[j];
+	}
+	*mx = 0.5 * (HX - sx + HY - sy) / (HX > HY ? HX : HY); /* McDaid et al. */
+	*lfk = 1.0 - 0.5 * (rx / ka + ry / kb);                /* LFK 2009 */
+	free(ha);
+	free(ca);
+	free(hb_);
+	free(cb);
+}
+
+static void test_sparse_evaluation_matches_all_pairs(void **state)
+{
+	(void)state;
+	struct rng r;
+	rng_init(&r, 99);
+	for (int trial = 0; trial < 20; trial++) {
+		uint32_t n = 20 + (uint32_t)rng_below(&r, 100);
+		uint32_t ka = 1 + (uint32_t)rng_below(&r, 12), kb = 1 + (uint32_t)rng_below(&r, 12);
+		uint32_t sa[16], sb[16];
+		/* sizes from tiny to nearly everything, repeats included */
+		for (uint32_t i = 0; i < ka; i++)
+			sa[i] = 1 + (uint32_t)rng_below(&r, i % 3 == 0 ? n - 1 : n / 4 + 1);
+		for (uint32_t i = 0; i < kb; i++)
+			sb[i] = 1 + (uint32_t)rng_below(&r, i % 3 == 1 ? n - 1 : n / 4 + 1);
+		struct cover a, b;
+		random_cover(&a, &r, n, ka, sa);
+		random_cover(&b, &r, n, kb, sb);
+		double mx, lfk;
+		brute_scores(&a, &b, &mx, &lfk);
+		assert_true(fabs(score_onmi_max(&a, &b) - mx) < 1e-12);
+		assert_true(fabs(score_onmi_lfk(&a, &b) - lfk) < 1e-12);
+		cover_release(&a);
+		cover_release(&b);
+	}
+}
+
+static void test_scores_are_symmetric_and_in_unit_range(void **state)
+{
+	(void)state;
+	struct rng r;
+	rng_init(&r, 5);
+	for (int trial = 0; trial < 10; trial++) {
+		uint32_t sa[6], sb[9];
+		for (int i = 0; i < 6; i++)
+			sa[i] = 1 + (uint32_t)rng_below(&r, 80);
+		for (int i = 0; i < 9; i++)
+			sb[i] = 1 + (uint32_t)rng_below(&r, 40);
+		struct cover a, b;
+		random_cover(&a, &r, 150, 6, sa);
+		random_cover(&b, &r, 150, 9, sb);
+		double m1 = score_onmi_max(&a, &b), m2 = score_onmi_max(&b, &a);
+		double l1 = score_onmi_lfk(&a, &b), l2 = score_onmi_lfk(&b, &a);
+		/* both definitions are symmetric in X and Y by construction */
+		assert_true(fabs(m1 - m2) < 1e-12);
+		assert_true(fabs(l1 - l2) < 1e-12);
+		assert_true(m1 >= 0.0 && m1 <= 1.0 && l1 >= 0.0 && l1 <= 1.0);
+		cover_release(&a);
+		cover_release(&b);
+	}
+}
+
+/*
+ * Planted communities against random ones of the same sizes. Under
+ * independence the mutual information of every pair is 0 in expectation;
+ * what remains is the finite-sample bias of the plug-in entropies, of
+ * order 1/n per pair, so with n = 2000 both forms stay far below the 0.05
+ * used here. The sizes (300 to 900) are large enough for many pairs to
+ * pass the LFK condition, so the conditional entropies are really
+ * computed, not all rejected. A copy of the truth with 5% of each
+ * community's members swapped for outsiders must score far higher.
+ */
+static void test_random_cover_of_same_sizes_scores_low(void **state)
+{
+	(void)state;
+	struct rng r;
+	rng_init(&r, 31337);
+	uint32_t sizes[20];
+	for (int i = 0; i < 20; i++)
+		sizes[i] = 300 + 150 * (uint32_t)(i % 5);
+	struct cover truth, found;
+	random_cover(&truth, &r, 2000, 20, sizes);
+	random_cover(&found, &r, 2000, 20, sizes);
+	double rm = score_onmi_max(&truth, &found), rl = score_onmi_lfk(&truth, &found);
+	assert_true(rm >= 0.0 && rm < 0.05);
+	assert_true(rl >= 0.0 && rl < 0.05);
+
+	/* the noisy copy: member j of community i replaced when j % 20 == 0 */
+	uint64_t total = truth.off[truth.k];
+	uint32_t *node = malloc(total * sizeof *node), *comm = malloc(total * sizeof *comm);
+	uint8_t *in = malloc(2000);
+	assert_true(node && comm && in);
+	uint64_t at = 0;
+	for (uint32_t i = 0; i < truth.k; i++) {
+		memset(in, 0, 2000);
+		for (uint64_t j = truth.off[i]; j < truth.off[i + 1]; j++)
+			in[truth.mem[j]] = 1;
+		for (uint64_t j = truth.off[i]; j < truth.off[i + 1]; j++) {
+			uint32_t u = truth.mem[j];
+			if ((j - truth.off[i]) % 20 == 0) {
+				do
+					u = (uint32_t)rng_below(&r, 2000);
+				while (in[u]);
+				in[u] = 1;
+			}
+			node[at] = u;
+			comm[at++] = i;
+		}
+	}
+	struct cover noisy;
+	assert_int_equal(cover_from_pairs(&noisy, 2000, node, comm, at), 0);
+	assert_true(score_onmi_max(&truth, &noisy) > rm + 0.3);
+	assert_true(score_onmi_lfk(&truth, &noisy) > rl + 0.3);
+	free(node);
+	free(comm);
+	free(in);
+	cover_release(&noisy);
+	cover_release(&truth);
+	cover_release(&found);
+}
+
+/* Empty communities and a community of every node are constant variables
+ * (H = 0) and are ignored; two covers with nothing left score 1 when they
+ * have the same non-empty communities, else 0 (score.h). */
+static void test_constant_communities_and_mismatched_covers(void **state)
+{
+	(void)state;
+	struct cover x, y, none, all;
+	make_cover(&x, 8, 2, (const uint32_t[]){ 4, 2 }, (const uint32_t[]){ 0, 1, 2, 3, 4, 5 });
+	/* the same communities plus one of all 8 nodes */
+	make_cover(&y, 8, 3, (const uint32_t[]){ 4, 8, 2 },
+		   (const uint32_t[]){ 0, 1, 2, 3, 0, 1, 2, 3, 4, 5, 6, 7, 4, 5 });
+	assert_true(fabs(score_onmi_max(&x, &y) - 1.0) < 1e-12);
+	assert_true(fabs(score_onmi_lfk(&x, &y) - 1.0) < 1e-12);
+
+	make_cover(&none, 8, 0, NULL, NULL);
+	make_cover(&all, 8, 1, (const uint32_t[]){ 8 },
+		   (const uint32_t[]){ 0, 1, 2, 3, 4, 5, 6, 7 });
+	assert_true(score_onmi_max(&none, &none) == 1.0);
+	assert_true(score_onmi_lfk(&none, &none) == 1.0);
+	assert_true(score_onmi_max(&all, &all) == 1.0);
+	assert_true(score_onmi_max(&none, &all) == 0.0);
+	assert_true(score_onmi_max(&none, &x) == 0.0);
+	assert_true(score_onmi_lfk(&x, &none) == 0.0);
+
+	struct cover other;
+	make_cover(&other, 9, 1, (const uint32_t[]){ 2 }, (const uint32_t[]){ 0, 1 });
+	assert_true(score_onmi_max(&x, &other) == -1.0); /* different n */
+	assert_true(score_onmi_lfk(&other, &x) == -1.0);
+	cover_release(&x);
+	cover_release(&y);
+	cover_release(&none);
+	cover_release(&all);
+	cover_release(&other);
+}
+
+int main(void)
+{
+	const struct CMUnitTest tests[] = {
+		cmocka_unit_test(test_identical_covers_score_one),
+		cmocka_unit_test(test_max_form_matches_hand_worked_example),
+		cmocka_unit_test(test_partitions_match_hand_worked_example),
+		cmocka_unit_test(test_disjoint_communities_are_scored_by_the_lfk_condition),
+		cmocka_unit_test(test_sparse_evaluation_matches_all_pairs),
+		cmocka_unit_test(test_scores_are_symmetric_and_in_unit_range),
+		cmocka_unit_test(test_random_cover_of_same_sizes_scores_low),
+		cmocka_unit_test(test_constant_communities_and_mismatched_covers),
+	};
+	return cmocka_run_group_tests(tests, NULL, NULL);
+}
