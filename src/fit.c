@@ -79,6 +79,7 @@ void fit_params_default(struct fit_params *p)
 	p->patience = 3;
 	p->max_sweeps = 500;
 	p->epsilon = 0.0;
+	p->starts = 3;
 }
 
 /* A row computed in a block: where its entries sit in a worker's arena. */
@@ -122,6 +123,9 @@ struct fit {
 	double seconds_base, t0;
 	struct seed_report seeds;
 	int resumed;
+	uint32_t start, starts, best_start;
+	double best_loglik;
+	uint32_t refined;
 
 	/* the pool */
 	unsigned nthreads;
@@ -180,6 +184,10 @@ static int publish(struct fit *f, enum fit_state state)
 		return -1;
 	s->refs_ = 1;
 	s->sweep = f->sweep;
+	s->start = f->start;
+	s->starts = f->starts;
+	s->best_start = f->best_start;
+	s->best_loglik = f->best_loglik;
 	s->state = state;
 	s->plateau_sweep = f->plateau_sweep;
 	s->plateau = f->plateau_sweep > 0;
@@ -390,7 +398,8 @@ static int sweep_once(struct fit *f, uint32_t *perm)
 {
 	uint32_t n = f->g->n;
 	struct rng r;
-	rng_init(&r, f->p.seed * 0x9e3779b97f4a7c15ULL + f->sweep);
+	uint64_t start = f->start > 1 ? f->start - 1 : 0;
+	rng_init(&r, f->p.seed * 0x9e3779b97f4a7c15ULL + f->sweep + (start << 32));
 	for (uint32_t i = 0; i < n; i++)
 		perm[i] = i;
 	rng_shuffle_u32(&r, perm, n);
@@ -443,74 +452,306 @@ static void recount_colsum(struct fit *f)
 	model_recount(&f->m);
 }
 
-static void *fit_main(void *arg)
+/* Run the current start from its seeded (or resumed) model until a
+ * plateau, max_sweeps or a stop; returns how it ended. After fit_extend()
+ * (when extend is set) a plateau no longer ends it. */
+static enum fit_state run_start(struct fit *f, uint32_t *perm, int extend)
 {
-	struct fit *f = arg;
-	enum fit_state final = FIT_FAILED;
-	uint32_t *perm = util_malloc(f->g->n ? f->g->n : 1, sizeof *perm);
-	f->t0 = util_now();
-	if (!perm || pool_start(f))
-		goto out;
-
-	if (!f->resumed) {
-		set_state(f, FIT_SEEDING);
-		if (seed_model(f->g, &f->m, f->p.seed, &f->seeds))
-			goto out;
-		if (trace_add(f, compute_loglik(f)))
-			goto out;
-	}
-	publish(f, FIT_FITTING);
-
-	final = FIT_FINISHED;
 	while (f->sweep < f->p.max_sweeps) {
-		if (atomic_load(&f->stop_req)) {
-			final = FIT_STOPPED;
-			break;
-		}
+		if (atomic_load(&f->stop_req))
+			return FIT_STOPPED;
 		int rc = sweep_once(f, perm);
-		if (rc < 0) {
-			final = FIT_FAILED;
-			break;
-		}
+		if (rc < 0)
+			return FIT_FAILED;
 		f->sweep++;
 		recount_colsum(f);
 		double ll = compute_loglik(f);
 		double prev = f->ntrace ? f->trace[f->ntrace - 1].loglik : ll;
-		if (trace_add(f, ll)) {
-			final = FIT_FAILED;
-			break;
-		}
-		if (rc == 1) {
-			final = FIT_STOPPED;
-			break;
-		}
+		if (trace_add(f, ll))
+			return FIT_FAILED;
+		if (rc == 1)
+			return FIT_STOPPED;
 		double gain = (ll - prev) / (fabs(prev) > 0 ? fabs(prev) : 1.0);
 		f->streak = gain < f->p.tol ? f->streak + 1 : 0;
 		int fired = f->streak >= f->p.patience;
 		if (fired && f->plateau_sweep == 0)
 			f->plateau_sweep = f->sweep;
-		if (fired && !f->p.past_plateau && !atomic_load(&f->extend_req)) {
-			if (!f->p.hold_at_plateau) {
-				final = FIT_LEVELLED;
-				break;
+		if (fired && !f->p.past_plateau && !(extend && atomic_load(&f->extend_req)))
+			return FIT_LEVELLED;
+		publish(f, FIT_FITTING);
+	}
+	return FIT_FINISHED;
+}
+
+/* A levelled fit that should hold: publish, wait for fit_extend() or
+ * fit_stop(), and on extend go on fitting past plateaus. */
+static enum fit_state hold(struct fit *f, uint32_t *perm)
+{
+	publish(f, FIT_LEVELLED);
+	pthread_mutex_lock(&f->lock);
+	while (!atomic_load(&f->extend_req) && !atomic_load(&f->stop_req))
+		pthread_cond_wait(&f->cond, &f->lock);
+	pthread_mutex_unlock(&f->lock);
+	if (!atomic_load(&f->extend_req))
+		return FIT_LEVELLED;
+	set_state(f, FIT_FITTING);
+	publish(f, FIT_FITTING);
+	return run_start(f, perm, 1);
+}
+
+/*
+ * Refinement moves. A start often levels off with one column spread over
+ * two true communities and another wasted on a sliver of a third. A move
+ * takes the weakest column (smallest column sum), empties it, and seeds it
+ * again inside the largest community (the ego-net of one of its members,
+ * restricted to that community), then fits to a plateau again. The move
+ * is kept only if the log-likelihood rose; otherwise the model goes back.
+ * Moves stop after REFINE_FAILS failures in a row or REFINE_MAX moves.
+ */
+#define REFINE_MAX 12u
+#define REFINE_FAILS 3u
+
+static int reseed_column(struct fit *f, struct rng *r)
+{
+	struct model *m = &f->m;
+	uint32_t k = m->k, n = m->n;
+	if (k < 2)
+		return 0;
+	uint32_t *size = util_calloc(k, sizeof *size);
+	struct fentry *buf = util_malloc((size_t)k + 1, sizeof *buf);
+	if (!size || !buf) {
+		free(size);
+		free(buf);
+		return -1;
+	}
+	for (uint32_t u = 0; u < n; u++)
+		for (uint32_t i = 0; i < m->rows[u].nnz; i++)
+			if (m->rows[u].e[i].v >= m->delta)
+				size[m->rows[u].e[i].c]++;
+	uint32_t host = 0;
+	for (uint32_t c = 1; c < k; c++)
+		if (size[c] > size[host])
+			host = c;
+	uint32_t victim = host == 0 ? 1 : 0;
+	for (uint32_t c = 0; c < k; c++)
+		if (c != host && m->colsum[c] < m->colsum[victim])
+			victim = c;
+	int rc = 0;
+	if (size[host] < 2)
+		goto out;
+	/* a random member of the host */
+	uint32_t pick = (uint32_t)rng_below(r, size[host]), centre = 0;
+	for (uint32_t u = 0, seen = 0; u < n; u++)
+		for (uint32_t i = 0; i < m->rows[u].nnz; i++)
+			if (m->rows[u].e[i].c == host && m->rows[u].e[i].v >= m->delta) {
+				if (seen++ == pick)
+					centre = u;
 			}
-			publish(f, FIT_LEVELLED);
-			pthread_mutex_lock(&f->lock);
-			while (!atomic_load(&f->extend_req) && !atomic_load(&f->stop_req))
-				pthread_cond_wait(&f->cond, &f->lock);
-			pthread_mutex_unlock(&f->lock);
-			if (!atomic_load(&f->extend_req)) {
-				final = FIT_LEVELLED;
-				break;
-			}
-			set_state(f, FIT_FITTING);
+	/* empty the victim column */
+	for (uint32_t u = 0; u < n; u++) {
+		const struct frow *row = &m->rows[u];
+		uint32_t o = 0, had = 0;
+		for (uint32_t i = 0; i < row->nnz; i++) {
+			if (row->e[i].c == victim)
+				had = 1;
+			else
+				buf[o++] = row->e[i];
+		}
+		if (had && model_set_row(m, u, buf, o))
+			goto fail;
+	}
+	/* seed it on the centre and its neighbours inside the host */
+	for (uint64_t j = f->g->off[centre]; j <= f->g->off[centre + 1]; j++) {
+		uint32_t u = j < f->g->off[centre + 1] ? f->g->adj[j] : centre;
+		const struct frow *row = &m->rows[u];
+		int in_host = u == centre;
+		for (uint32_t i = 0; i < row->nnz; i++)
+			if (row->e[i].c == host && row->e[i].v >= m->delta)
+				in_host = 1;
+		if (!in_host)
 			continue;
+		uint32_t o = 0, put = 0;
+		for (uint32_t i = 0; i < row->nnz; i++) {
+			if (!put && row->e[i].c > victim) {
+				buf[o++] = (struct fentry){ victim, 1.0 };
+				put = 1;
+			}
+			buf[o++] = row->e[i];
+		}
+		if (!put)
+			buf[o++] = (struct fentry){ victim, 1.0 };
+		if (model_set_row(m, u, buf, o))
+			goto fail;
+	}
+	model_recount(m);
+	rc = 1;
+	goto out;
+fail:
+	rc = -1;
+out:
+	free(size);
+	free(buf);
+	return rc;
+}
+
+/* Refine a levelled start; returns how the fit ended (LEVELLED when the
+ * moves ran out, or STOPPED/FINISHED/FAILED when something else ended it). */
+static enum fit_state refine(struct fit *f, uint32_t *perm)
+{
+	struct rng r;
+	rng_init(&r, f->p.seed ^ 0x7ef1e5ULL ^ ((uint64_t)f->start << 48));
+	struct fcsr saved;
+	memset(&saved, 0, sizeof saved);
+	enum fit_state st = FIT_LEVELLED;
+	unsigned fails = 0;
+	for (unsigned move = 0; move < REFINE_MAX && fails < REFINE_FAILS; move++) {
+		if (atomic_load(&f->stop_req))
+			return FIT_STOPPED;
+		double before = f->trace[f->ntrace - 1].loglik;
+		uint32_t ntrace = f->ntrace, sweep = f->sweep, plateau = f->plateau_sweep;
+		fcsr_release(&saved);
+		if (model_export(&f->m, &saved))
+			return FIT_FAILED;
+		int rc = reseed_column(f, &r);
+		if (rc <= 0) {
+			fcsr_release(&saved);
+			return rc < 0 ? FIT_FAILED : FIT_LEVELLED;
+		}
+		f->streak = 0;
+		st = run_start(f, perm, 0);
+		if (st == FIT_FAILED) {
+			fcsr_release(&saved);
+			return st;
+		}
+		double after = f->trace[f->ntrace - 1].loglik;
+		if (after > before) {
+			fails = 0;
+			f->refined++;
+		} else {
+			if (model_import(&f->m, &saved)) {
+				fcsr_release(&saved);
+				return FIT_FAILED;
+			}
+			f->ntrace = ntrace;
+			f->sweep = sweep;
+			f->plateau_sweep = plateau;
+			fails++;
+		}
+		if (st != FIT_LEVELLED)
+			break;
+	}
+	fcsr_release(&saved);
+	return st;
+}
+
+/* The most likely start so far. */
+struct best {
+	int have;
+	struct fcsr F;
+	struct trace_point *trace;
+	uint32_t ntrace, sweep, plateau_sweep;
+	enum fit_state state;
+};
+
+static int keep_best(struct fit *f, struct best *b, enum fit_state st)
+{
+	double ll = f->trace[f->ntrace - 1].loglik;
+	if (b->have && !(ll > f->best_loglik))
+		return 0;
+	fcsr_release(&b->F);
+	free(b->trace);
+	b->trace = util_malloc(f->ntrace, sizeof *b->trace);
+	if (!b->trace || model_export(&f->m, &b->F))
+		return -1;
+	memcpy(b->trace, f->trace, f->ntrace * sizeof *b->trace);
+	b->ntrace = f->ntrace;
+	b->sweep = f->sweep;
+	b->plateau_sweep = f->plateau_sweep;
+	b->state = st;
+	b->have = 1;
+	f->best_start = f->start;
+	f->best_loglik = ll;
+	return 0;
+}
+
+static int restore_best(struct fit *f, struct best *b)
+{
+	if (model_import(&f->m, &b->F))
+		return -1;
+	memcpy(f->trace, b->trace, b->ntrace * sizeof *b->trace);
+	f->ntrace = b->ntrace;
+	f->sweep = b->sweep;
+	f->plateau_sweep = b->plateau_sweep;
+	return 0;
+}
+
+static void *fit_main(void *arg)
+{
+	struct fit *f = arg;
+	enum fit_state final = FIT_FAILED;
+	struct best best;
+	memset(&best, 0, sizeof best);
+	uint32_t *perm = util_malloc(f->g->n ? f->g->n : 1, sizeof *perm);
+	f->t0 = util_now();
+	if (!perm || pool_start(f))
+		goto out;
+
+	if (f->resumed) {
+		publish(f, FIT_FITTING);
+		final = run_start(f, perm, 1);
+		if (final == FIT_LEVELLED && f->p.hold_at_plateau)
+			final = hold(f, perm);
+		goto out;
+	}
+	for (uint32_t r = 0; r < f->starts; r++) {
+		f->start = r + 1;
+		if (r > 0) {
+			for (uint32_t u = 0; u < f->g->n; u++)
+				model_set_row(&f->m, u, NULL, 0);
+			model_recount(&f->m);
+			f->ntrace = 0;
+			f->sweep = 0;
+			f->streak = 0;
+			f->plateau_sweep = 0;
+		}
+		set_state(f, FIT_SEEDING);
+		if (seed_model(f->g, &f->m, f->p.seed, r, &f->seeds) ||
+		    trace_add(f, compute_loglik(f))) {
+			final = FIT_FAILED;
+			break;
 		}
 		publish(f, FIT_FITTING);
+		enum fit_state st = run_start(f, perm, 0);
+		if (st == FIT_LEVELLED && !f->p.no_refine)
+			st = refine(f, perm);
+		if (st == FIT_FAILED) {
+			final = FIT_FAILED;
+			break;
+		}
+		if (keep_best(f, &best, st)) {
+			final = FIT_FAILED;
+			break;
+		}
+		final = st;
+		if (st == FIT_STOPPED)
+			break;
+	}
+	if (final != FIT_FAILED && best.have && f->best_start != f->start) {
+		enum fit_state keep = final == FIT_STOPPED ? FIT_STOPPED : best.state;
+		if (restore_best(f, &best))
+			final = FIT_FAILED;
+		else
+			final = keep;
+	}
+	if (final == FIT_LEVELLED && f->p.hold_at_plateau) {
+		f->streak = 0;
+		final = hold(f, perm);
 	}
 out:
 	pool_stop(f);
 	free(perm);
+	fcsr_release(&best.F);
+	free(best.trace);
 	if (publish(f, final)) {
 		set_state(f, FIT_FAILED);
 		char byte = 1;
@@ -543,6 +784,10 @@ struct fit *fit_new(const struct graph *g, const struct fit_params *p,
 		f->p.threads = 1;
 	if (f->p.patience < 1)
 		f->p.patience = 1;
+	if (f->p.starts < 1)
+		f->p.starts = 1;
+	f->starts = origin ? 1 : f->p.starts;
+	f->start = 1;
 	f->nthreads = f->p.threads;
 	double eps = p->epsilon > 0 ? p->epsilon : model_default_epsilon(g);
 	f->p.epsilon = eps;

@@ -25,6 +25,7 @@
 
 #define ARMIJO_SIGMA 1e-4
 #define ARMIJO_TRIES 16
+#define STEP_REACH 10.0 /* largest change of a strength in a first trial step */
 #define X_FLOOR 1e-12 /* smallest x + qeps used in a gradient weight */
 
 double model_default_epsilon(const struct graph *g)
@@ -437,7 +438,15 @@ int model_update_row(const struct model *m, const struct graph *g, uint32_t u,
 		return 0;
 	double f0 = gradient(m, g, u, w);
 	int accepted = 0;
-	double step = 1.0;
+	/* the first trial moves no strength by more than STEP_REACH: a node
+	 * with an empty row next to a community sees a gradient of about
+	 * 1 / expm1(qeps) ~ 1 / epsilon, and a unit step would shoot to the
+	 * cap and cost a dozen halvings of log() over every neighbour */
+	double gmax = 0.0;
+	for (uint32_t i = 0; i < w->ncand; i++)
+		if (fabs(w->acc[w->cand[i]]) > gmax)
+			gmax = fabs(w->acc[w->cand[i]]);
+	double step = gmax > STEP_REACH ? STEP_REACH / gmax : 1.0;
 	for (int t = 0; t < ARMIJO_TRIES && !accepted; t++, step *= 0.5) {
 		double gd = 0.0;
 		int moved = 0;

@@ -120,9 +120,10 @@ static int cmp_ranked(const void *a, const void *b)
 	return (x->u > y->u) - (x->u < y->u);
 }
 
-int seed_model(const struct graph *g, struct model *m, uint64_t seed, struct seed_report *rep)
+int seed_model(const struct graph *g, struct model *m, uint64_t seed, uint32_t variant,
+	       struct seed_report *rep)
 {
-	struct seed_report local = { 0, 0, 0 };
+	struct seed_report local = { 0, 0, 0, 0 };
 	uint32_t n = g->n, k = m->k;
 	int rc = -1;
 	double *phi = util_malloc(n ? n : 1, sizeof *phi);
@@ -148,6 +149,17 @@ int seed_model(const struct graph *g, struct model *m, uint64_t seed, struct see
 	}
 	local.local_minima = nc;
 	qsort(cand, nc, sizeof *cand, cmp_ranked);
+	struct rng r;
+	rng_init(&r, seed ^ 0x5eed5eed5eedULL ^ ((uint64_t)variant << 40));
+	if (variant > 0) {
+		/* another start: a random half of the candidates, in the same
+		 * order; the fill below then reaches what they leave out */
+		uint32_t kept = 0;
+		for (uint32_t i = 0; i < nc; i++)
+			if (rng_below(&r, 2))
+				cand[kept++] = cand[i];
+		nc = kept;
+	}
 
 	uint32_t ns = 0;
 	for (uint32_t i = 0; i < nc && ns < k; i++) {
@@ -162,22 +174,51 @@ int seed_model(const struct graph *g, struct model *m, uint64_t seed, struct see
 	}
 	local.used_minima = ns;
 
-	/* fill with ego-nets of random nodes, centres not reused while possible */
-	struct rng r;
-	rng_init(&r, seed ^ 0x5eed5eed5eedULL);
-	uint32_t with_edges = 0;
+	/* fill: first the lowest-conductance ego-nets whose centre lies
+	 * outside every chosen ego-net (so the fill reaches parts of the
+	 * graph no seed touches), then random nodes not yet a centre, then
+	 * any node at all */
+	uint32_t nr = 0;
 	for (uint32_t u = 0; u < n; u++)
-		with_edges += graph_degree(g, u) > 0;
-	while (ns < k && n > 0) {
-		uint32_t u = (uint32_t)rng_below(&r, n);
-		int fresh = taken[u] != 2;
-		if (graph_degree(g, u) == 0 && with_edges > 0)
-			continue;
-		if (!fresh && ns < with_edges)
+		if (graph_degree(g, u) > 0)
+			cand[nr++] = (struct ranked){ phi[u], u, 0 };
+	qsort(cand, nr, sizeof *cand, cmp_ranked);
+	if (variant > 0)
+		for (uint32_t i = nr; i > 1; i--) {
+			uint32_t j = (uint32_t)rng_below(&r, i);
+			struct ranked t = cand[i - 1];
+			cand[i - 1] = cand[j];
+			cand[j] = t;
+		}
+	for (uint32_t i = 0; i < nr && ns < k; i++) {
+		uint32_t u = cand[i].u;
+		if (taken[u])
 			continue;
 		centre[ns++] = u;
 		taken[u] = 2;
-		local.random++;
+		for (uint64_t j = g->off[u]; j < g->off[u + 1]; j++)
+			if (!taken[g->adj[j]])
+				taken[g->adj[j]] = 1;
+		local.cover++;
+	}
+	uint32_t *pool = (uint32_t *)cand; /* cand is done with; reuse its memory */
+	for (int pass = 1; pass < 3 && ns < k; pass++) {
+		uint32_t np = 0;
+		for (uint32_t u = 0; u < n; u++)
+			if (pass == 2 || taken[u] != 2)
+				pool[np++] = u;
+		while (ns < k && np > 0) {
+			uint32_t i = (uint32_t)rng_below(&r, np);
+			uint32_t u = pool[i];
+			pool[i] = pool[--np];
+			if (pass == 1 && taken[u] == 2)
+				continue;
+			centre[ns++] = u;
+			taken[u] = 2;
+			local.random++;
+		}
+		if (pass == 2 && ns < k)
+			pass = 1; /* k > n: draw again from every node */
 	}
 
 	/* rows: column c holds 1 for every node of seed c's ego-net; filling

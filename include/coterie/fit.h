@@ -3,8 +3,20 @@
  * thread with a pool of worker threads, and publishes an immutable
  * snapshot after every sweep for readers (the batch command, the explorer).
  *
+ * Several starts: with starts > 1 the fit seeds and runs to a plateau that
+ * many times, each with its own sweep orders, and keeps the start with the
+ * highest log-likelihood (the likelihood has many local maxima; the most
+ * likely of a few is the maximum-likelihood answer the model asks for).
+ * Snapshots show the start in progress; the final one is the best start.
+ *
+ * Refinement: when a start levels off, the weakest column is emptied and
+ * seeded again inside the largest community, and the fit runs to a
+ * plateau again; the move is kept only if the likelihood rose (see
+ * refine() in fit.c; no_refine skips it). A fit that holds at a plateau
+ * holds after the starts and their refinement are done.
+ *
  * Determinism: each sweep visits the nodes in a permutation drawn from
- * (seed, sweep) and cuts it into fixed blocks; the rows of a block are
+ * (seed, start, sweep) and cuts it into fixed blocks; the rows of a block are
  * computed in parallel from the state at the start of the block and then
  * applied in order. Nothing depends on the thread count, so the same seed
  * gives the same bytes for any -j.
@@ -48,11 +60,15 @@ struct fit_params {
 	unsigned max_sweeps; /* hard limit on the sweep count (total, resumes included) */
 	double epsilon;      /* background; <= 0 picks model_default_epsilon() */
 	int past_plateau;    /* 1: do not stop at a plateau, only mark it */
+	unsigned starts;     /* fit this many times (sweep orders differ) and
+			      * keep the most likely; >= 1 */
+	int no_refine;       /* 1: skip the refinement moves after a plateau */
 	int hold_at_plateau; /* 1: at a plateau wait (state LEVELLED) for
 			      * fit_extend() or fit_stop() instead of ending */
 };
 
-/* Defaults: k 10, 1 thread, seed 1, tol 1e-4, patience 3, 500 sweeps. */
+/* Defaults: k 10, 1 thread, seed 1, tol 1e-4, patience 3, 500 sweeps,
+ * 3 starts. */
 void fit_params_default(struct fit_params *p);
 
 struct trace_point {
@@ -64,7 +80,10 @@ struct trace_point {
 /* An immutable picture of the fit after a sweep. Take one with
  * fit_snapshot() and give it back with snapshot_release(). */
 struct snapshot {
-	uint32_t sweep;
+	uint32_t sweep;          /* of the current start */
+	uint32_t start, starts;  /* which start this is (1-based), of how many */
+	uint32_t best_start;     /* the most likely start so far (0: none done) */
+	double best_loglik;      /* its final log-likelihood */
 	enum fit_state state;
 	int plateau;             /* the plateau rule has fired */
 	uint32_t plateau_sweep;  /* where it first fired (0: not yet) */

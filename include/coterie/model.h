@@ -129,7 +129,8 @@ void model_row_gradient(const struct model *m, const struct graph *g, uint32_t u
 
 /*
  * Projected gradient step with Armijo backtracking: F_u <- max(0, F_u + a g),
- * capped at MODEL_FMAX, trying a = 1, 1/2, 1/4, ... until the objective
+ * capped at MODEL_FMAX, trying a = a0, a0/2, a0/4, ... (a0 = 1, or less so
+ * that no strength moves by more than 10 in the first trial) until the objective
  * rises by at least 1e-4 * g . (new - old). On success *out points into
  * w's storage (valid until the next call with w) with *out_nnz entries and
  * the function returns 1; it returns 0 when no step improves the row (the

@@ -19,6 +19,7 @@ struct model;
 struct seed_report {
 	uint32_t local_minima; /* locally minimal ego-nets found */
 	uint32_t used_minima;  /* of those, used as seeds */
+	uint32_t cover;        /* ego-nets of uncovered nodes added next */
 	uint32_t random;       /* random ego-nets added to reach k */
 };
 
@@ -35,8 +36,13 @@ int seed_conductance(const struct graph *g, double *phi);
  * ego-nets by increasing conductance (ties by node id; ego-nets that are a
  * whole connected component after all others; a centre inside an ego-net
  * already chosen is skipped), then ego-nets of
- * randomly drawn nodes (rng seeded by seed) until k. rep may be NULL.
+ * randomly drawn nodes (rng seeded by seed) until k. Variant 0 is the
+ * order above; variant v > 0 (the fit's later starts) keeps a random half
+ * of the local minima and fills in random order, both drawn from
+ * (seed, v), so that a start can escape two seeds that fell in one
+ * community. rep may be NULL.
  * Returns 0 or -1. */
-int seed_model(const struct graph *g, struct model *m, uint64_t seed, struct seed_report *rep);
+int seed_model(const struct graph *g, struct model *m, uint64_t seed, uint32_t variant,
+	       struct seed_report *rep);
 
 #endif

@@ -33,6 +33,11 @@ static void fit_usage(FILE *out)
 		"  -o, --output DIR      result folder (made if missing; required)\n"
 		"  -j, --threads N       worker threads (default: every core)\n"
 		"      --seed N          random seed (default 1); same seed, same result\n"
+		"      --starts N        fit N times from different seeds and sweep orders and\n"
+		"                        keep the most likely (default 3 below 100000 edges,\n"
+		"                        else 1; the likelihood has local maxima)\n"
+		"      --no-refine       skip the moves that re-seed the weakest community\n"
+		"                        after a plateau (faster, often less likely)\n"
 		"      --tol X           plateau: relative gain per sweep below X ...\n"
 		"      --patience N      ... for N sweeps in a row (defaults 1e-4, 3)\n"
 		"      --max-sweeps N    stop after N sweeps in all (default 500)\n"
@@ -45,11 +50,15 @@ static void fit_usage(FILE *out)
 		"  -h, --help            this text\n");
 }
 
+/* Below this many edges a fit makes 3 starts by default, above it 1. */
+#define FIT_MANY_STARTS_BELOW 100000u
+
 struct progress {
 	int tty;
 	int quiet;
 	double last_print;
 	uint32_t last_sweep;
+	uint32_t last_start;
 	int line_open;
 };
 
@@ -64,10 +73,12 @@ static void progress_show(struct progress *pr, const struct snapshot *s, int fin
 		double prev = s->trace[s->ntrace - 2].loglik;
 		gain = (t->loglik - prev) / (fabs(prev) > 0 ? fabs(prev) : 1.0);
 	}
-	char line[256];
+	char line[256], start[32] = "";
+	if (s->starts > 1)
+		snprintf(start, sizeof start, "start %u/%u  ", s->start, s->starts);
 	snprintf(line, sizeof line,
-		 "sweep %u  loglik %.6g  gain %.2e  %.2f sweeps/s  %.1f s%s", s->sweep, t->loglik,
-		 gain, s->sweeps_per_sec, s->seconds, s->plateau ? "  [levelled]" : "");
+		 "%ssweep %u  loglik %.6g  gain %.2e  %.2f sweeps/s  %.1f s%s", start, s->sweep,
+		 t->loglik, gain, s->sweeps_per_sec, s->seconds, s->plateau ? "  [levelled]" : "");
 	if (pr->tty) {
 		fprintf(stderr, "\r\033[K%s", line);
 		pr->line_open = 1;
@@ -75,13 +86,16 @@ static void progress_show(struct progress *pr, const struct snapshot *s, int fin
 			fputc('\n', stderr);
 			pr->line_open = 0;
 		}
-	} else if (final || s->sweep != pr->last_sweep) {
+	} else if (final || s->sweep != pr->last_sweep || s->start != pr->last_start) {
 		if (final || now - pr->last_print >= 1.0 || s->sweep <= 1) {
 			fprintf(stderr, "coterie: %s\n", line);
 			pr->last_print = now;
 		}
 	}
+	if (!pr->tty && s->start != pr->last_start && pr->last_start)
+		pr->last_print = 0; /* show the first sweeps of each start */
 	pr->last_sweep = s->sweep;
+	pr->last_start = s->start;
 	fflush(stderr);
 }
 
@@ -103,6 +117,8 @@ enum {
 	OPT_FORMAT,
 	OPT_RESUME,
 	OPT_SAVE_EVERY,
+	OPT_STARTS,
+	OPT_NO_REFINE,
 };
 
 int cmd_fit(int argc, char **argv)
@@ -120,6 +136,8 @@ int cmd_fit(int argc, char **argv)
 		{ "format", required_argument, NULL, OPT_FORMAT },
 		{ "resume", required_argument, NULL, OPT_RESUME },
 		{ "save-every", required_argument, NULL, OPT_SAVE_EVERY },
+		{ "starts", required_argument, NULL, OPT_STARTS },
+		{ "no-refine", no_argument, NULL, OPT_NO_REFINE },
 		{ "quiet", no_argument, NULL, 'q' },
 		{ "help", no_argument, NULL, 'h' },
 		{ NULL, 0, NULL, 0 },
@@ -129,7 +147,7 @@ int cmd_fit(int argc, char **argv)
 	long cores = sysconf(_SC_NPROCESSORS_ONLN);
 	p.threads = cores > 0 ? (unsigned)(cores > 256 ? 256 : cores) : 1;
 	int have_k = 0, have_tol = 0, have_pat = 0, have_max = 0, have_eps = 0,
-	    have_seed = 0, quiet = 0;
+	    have_seed = 0, have_starts = 0, quiet = 0;
 	const char *out = NULL, *resume = NULL;
 	enum graph_format fmt = GRAPH_FORMAT_AUTO;
 	double save_every = 120.0;
@@ -154,6 +172,8 @@ int cmd_fit(int argc, char **argv)
 				return EXIT_USAGE;
 			break;
 		case OPT_RESUME: resume = optarg; break;
+		case OPT_STARTS: p.starts = cli_u32("--starts", optarg, 1, 1000); have_starts = 1; break;
+		case OPT_NO_REFINE: p.no_refine = 1; break;
 		case OPT_SAVE_EVERY: save_every = cli_double("--save-every", optarg, 1.0, 1e9); break;
 		case 'q': quiet = 1; break;
 		case 'h': fit_usage(stdout); return 0;
@@ -232,6 +252,8 @@ int cmd_fit(int argc, char **argv)
 		g = graph_load(gpath, fmt);
 		if (!g)
 			return 1;
+		if (!have_starts)
+			p.starts = g->m < FIT_MANY_STARTS_BELOW ? 3 : 1;
 	}
 	const struct graph *graph = g ? g : ck.graph;
 
@@ -252,7 +274,7 @@ int cmd_fit(int argc, char **argv)
 		return 1;
 	}
 
-	struct progress pr = { isatty(2), quiet, 0, 0, 0 };
+	struct progress pr = { isatty(2), quiet, 0, 0, 0, 0 };
 	double last_save = util_now();
 	int interrupted = 0;
 	char ckpath[4096];
@@ -307,9 +329,13 @@ int cmd_fit(int argc, char **argv)
 		const char *how = st == FIT_LEVELLED ? "levelled off" :
 				  st == FIT_FINISHED ? "reached the sweep limit" :
 				  interrupted ? "was interrupted" : "was stopped";
-		notice("the fit %s after %u sweeps in %.1f s: %u communities, %u of %u nodes "
+		char best[64] = "";
+		if (s->starts > 1)
+			snprintf(best, sizeof best, " (start %u of %u, the most likely)",
+				 s->best_start, s->starts);
+		notice("the fit %s after %u sweeps%s in %.1f s: %u communities, %u of %u nodes "
 		       "in at least one, %u in two or more; results in '%s'",
-		       how, s->sweep, s->seconds, s->agm.cover.k, s->agm.covered, graph->n,
+		       how, s->sweep, best, s->seconds, s->agm.cover.k, s->agm.covered, graph->n,
 		       s->agm.overlapping, out);
 	}
 	snapshot_release(s);

@@ -13,6 +13,8 @@ static const struct {
 	const char *what;
 } commands[] = {
 	{ "fit", cmd_fit, "fit overlapping communities to a graph and write a result folder" },
+	{ "show", cmd_show, "print a result's communities, a node or weak edges, as text or JSON" },
+	{ "explore", cmd_explore, "fit in the background and browse the communities, or browse a result" },
 };
 
 static void usage(FILE *out)

@@ -1,0 +1,270 @@
+/*
+ * cli/explore: `coterie explore GRAPH -k N` and `coterie explore DIR`.
+ *
+ * Reads the command line, loads the graph (or the checkpoint of a result
+ * folder, which holds the graph), makes the fit and hands everything to
+ * the explorer (src/tui). A graph is fitted in the background with
+ * hold_at_plateau set, so the fit waits at a plateau for the user to run
+ * it on or end it. A result folder is shown as saved, without refitting;
+ * --resume (or 'e' in the explorer) continues its fit.
+ *
+ * Where results go: -o DIR; else for a folder, the folder itself; else
+ * ./NAME.coterie in the current folder (NAME from the graph file, with a
+ * -2, -3, ... suffix when that folder exists and is not empty). Nothing is
+ * written until the user asks, quits with unsaved work, or a signal comes.
+ */
+#include <dirent.h>
+#include <getopt.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <sys/stat.h>
+#include <unistd.h>
+
+#include "../tui/tui.h"
+#include "cli.h"
+#include "coterie/fit.h"
+#include "coterie/graph.h"
+#include "coterie/result.h"
+
+static void explore_usage(FILE *out)
+{
+	fprintf(out,
+		"usage: coterie explore GRAPH -k N [options]\n"
+		"       coterie explore DIR [--resume] [options]\n"
+		"\n"
+		"Fit N overlapping communities to GRAPH in the background and browse them\n"
+		"while the likelihood climbs; or browse the result saved in DIR.\n"
+		"\n"
+		"  -k, --communities N   number of communities to fit (required for a graph)\n"
+		"  -o, --output DIR      where w, quitting and signals write the result\n"
+		"                        (default: DIR itself, or ./NAME.coterie for a graph)\n"
+		"  -j, --threads N       worker threads (default: every core)\n"
+		"      --seed N          random seed (default 1)\n"
+		"      --tol X           plateau: relative gain per sweep below X ...\n"
+		"      --patience N      ... for N sweeps in a row (defaults 1e-4, 3)\n"
+		"      --max-sweeps N    stop after N sweeps in all (default 500)\n"
+		"      --epsilon X       background link probability (default: the density)\n"
+		"      --format F        edges, gml, graphml or pajek (default: by extension)\n"
+		"      --resume          with DIR: continue the saved fit at once\n"
+		"  -h, --help            this text\n"
+		"\n"
+		"In the explorer, ? lists the keys. The fit waits when it levels off:\n"
+		"e runs it on, s ends it, w writes the result, q quits (asking first).\n");
+}
+
+static int dir_is_empty(const char *path)
+{
+	DIR *d = opendir(path);
+	if (!d)
+		return 0;
+	struct dirent *e;
+	int empty = 1;
+	while ((e = readdir(d)) != NULL)
+		if (strcmp(e->d_name, ".") && strcmp(e->d_name, "..")) {
+			empty = 0;
+			break;
+		}
+	closedir(d);
+	return empty;
+}
+
+/* ./NAME.coterie for graph file path, avoiding folders already in use. */
+static void default_outdir(const char *path, char *out, size_t cap)
+{
+	const char *base = strrchr(path, '/');
+	base = base ? base + 1 : path;
+	char name[256];
+	snprintf(name, sizeof name, "%s", base);
+	size_t len = strlen(name);
+	if (len > 3 && !strcmp(name + len - 3, ".gz"))
+		name[len - 3] = '\0';
+	char *dot = strrchr(name, '.');
+	if (dot && dot != name)
+		*dot = '\0';
+	if (!name[0] || !strcmp(name, ".") || !strcmp(name, ".."))
+		snprintf(name, sizeof name, "explore");
+	/* a name from a file may hold anything; keep the folder name plain */
+	for (char *c = name; *c; c++)
+		if ((unsigned char)*c < 0x20 || *c == 0x7f || *c == '/')
+			*c = '_';
+	for (int i = 1; i < 100; i++) {
+		if (i == 1)
+			snprintf(out, cap, "./%s.coterie", name);
+		else
+			snprintf(out, cap, "./%s-%d.coterie", name, i);
+		struct stat st;
+		if (stat(out, &st) != 0 || (S_ISDIR(st.st_mode) && dir_is_empty(out)))
+			return;
+	}
+	snprintf(out, cap, "./%s.coterie", name); /* all taken: use the first */
+}
+
+enum {
+	OPT_SEED = 256,
+	OPT_TOL,
+	OPT_PATIENCE,
+	OPT_MAX_SWEEPS,
+	OPT_EPSILON,
+	OPT_FORMAT,
+	OPT_RESUME,
+	OPT_LIST_KEYS,
+};
+
+int cmd_explore(int argc, char **argv)
+{
+	static const struct option opts[] = {
+		{ "communities", required_argument, NULL, 'k' },
+		{ "output", required_argument, NULL, 'o' },
+		{ "threads", required_argument, NULL, 'j' },
+		{ "seed", required_argument, NULL, OPT_SEED },
+		{ "tol", required_argument, NULL, OPT_TOL },
+		{ "patience", required_argument, NULL, OPT_PATIENCE },
+		{ "max-sweeps", required_argument, NULL, OPT_MAX_SWEEPS },
+		{ "epsilon", required_argument, NULL, OPT_EPSILON },
+		{ "format", required_argument, NULL, OPT_FORMAT },
+		{ "resume", no_argument, NULL, OPT_RESUME },
+		{ "list-keys", no_argument, NULL, OPT_LIST_KEYS }, /* for the tests */
+		{ "help", no_argument, NULL, 'h' },
+		{ NULL, 0, NULL, 0 },
+	};
+	struct fit_params p;
+	fit_params_default(&p);
+	long cores = sysconf(_SC_NPROCESSORS_ONLN);
+	p.threads = cores > 0 ? (unsigned)(cores > 256 ? 256 : cores) : 1;
+	int have_k = 0, have_tol = 0, have_pat = 0, have_max = 0, have_eps = 0, have_seed = 0,
+	    resume = 0;
+	const char *out = NULL;
+	enum graph_format fmt = GRAPH_FORMAT_AUTO;
+	int c;
+	optind = 1;
+	while ((c = getopt_long(argc, argv, "k:o:j:h", opts, NULL)) != -1) {
+		switch (c) {
+		case 'k': p.k = cli_u32("-k", optarg, 1, MODEL_MAX_K); have_k = 1; break;
+		case 'o': out = optarg; break;
+		case 'j': p.threads = cli_u32("-j", optarg, 1, 256); break;
+		case OPT_SEED: p.seed = cli_u64("--seed", optarg); have_seed = 1; break;
+		case OPT_TOL: p.tol = cli_double("--tol", optarg, 0.0, 1.0); have_tol = 1; break;
+		case OPT_PATIENCE: p.patience = cli_u32("--patience", optarg, 1, 1000); have_pat = 1; break;
+		case OPT_MAX_SWEEPS:
+			p.max_sweeps = cli_u32("--max-sweeps", optarg, 0, 100000000);
+			have_max = 1;
+			break;
+		case OPT_EPSILON: p.epsilon = cli_double("--epsilon", optarg, 1e-300, 0.5); have_eps = 1; break;
+		case OPT_FORMAT:
+			if (graph_format_parse(optarg, &fmt))
+				return EXIT_USAGE;
+			break;
+		case OPT_RESUME: resume = 1; break;
+		case OPT_LIST_KEYS: keys_list(stdout); return 0;
+		case 'h': explore_usage(stdout); return 0;
+		default: explore_usage(stderr); return EXIT_USAGE;
+		}
+	}
+	if (argc - optind != 1) {
+		explore_usage(stderr);
+		die(EXIT_USAGE, "explore takes one graph file or result folder, not %d", argc - optind);
+	}
+	const char *arg = argv[optind];
+	if (!strcmp(arg, "-"))
+		die(EXIT_USAGE, "explore reads keys from the terminal, so the graph cannot come from "
+		    "standard input; use 'coterie fit -' or a file");
+	struct stat st;
+	int is_dir = stat(arg, &st) == 0 && S_ISDIR(st.st_mode);
+	if (resume && !is_dir)
+		die(EXIT_USAGE, "--resume continues a result folder; '%s' is not one", arg);
+	if (!is_dir && !have_k)
+		die(EXIT_USAGE, "explore needs the number of communities: -k N");
+	if (cli_signals_install())
+		return 1;
+
+	struct tui_config cfg;
+	memset(&cfg, 0, sizeof cfg);
+	cfg.t_begin = util_now();
+	struct checkpoint ck;
+	memset(&ck, 0, sizeof ck);
+	struct graph *g = NULL;
+	struct fit *f = NULL;
+	char outbuf[4096];
+
+	if (is_dir) {
+		char path[4096];
+		snprintf(path, sizeof path, "%s/%s", arg, RESULT_CHECKPOINT);
+		if (access(path, F_OK) != 0) {
+			char esc[512];
+			die(1, "'%s' holds no %s: not a result folder", util_escape(arg, esc, sizeof esc, 1),
+			    RESULT_CHECKPOINT);
+		}
+		if (result_read_checkpoint(path, &ck))
+			return 1;
+		if (have_k && p.k != ck.params.k)
+			die(EXIT_USAGE, "the saved fit has %u communities; -k %u cannot change that",
+			    ck.params.k, p.k);
+		if (have_eps && p.epsilon != ck.params.epsilon)
+			die(EXIT_USAGE, "--epsilon cannot change for a saved fit");
+		if (have_seed && p.seed != ck.params.seed)
+			warning("--seed is ignored for a saved fit; it keeps seed %llu",
+				(unsigned long long)ck.params.seed);
+		struct fit_params saved = ck.params;
+		saved.threads = p.threads;
+		if (have_tol)
+			saved.tol = p.tol;
+		if (have_pat)
+			saved.patience = p.patience;
+		if (have_max)
+			saved.max_sweeps = p.max_sweeps;
+		saved.hold_at_plateau = 1;
+		p = saved;
+		struct fit_origin origin;
+		checkpoint_origin(&ck, &origin);
+		f = fit_new(ck.graph, &p, &origin);
+		if (!f) {
+			checkpoint_release(&ck);
+			return 1;
+		}
+		cfg.g = ck.graph;
+		cfg.reopened = 1;
+		cfg.saved_state = ck.state;
+		cfg.saved_sweep = ck.sweep;
+		cfg.start = resume;
+		cfg.outdir = out ? out : arg;
+		cfg.outdir_holds_result = out == NULL || !strcmp(out, arg);
+		cfg.graph_label = arg;
+		cfg.graph_path = ck.graph->source ? ck.graph->source : arg;
+	} else {
+		if (out) {
+			/* refuse early: a long fit whose result cannot be written is lost work */
+			if (result_prepare_dir(out))
+				return 1;
+			cfg.outdir = out;
+		} else {
+			default_outdir(arg, outbuf, sizeof outbuf);
+			cfg.outdir = outbuf;
+			cfg.outdir_is_default = 1;
+		}
+		g = graph_load(arg, fmt);
+		if (!g)
+			return 1;
+		p.hold_at_plateau = 1;
+		f = fit_new(g, &p, NULL);
+		if (!f) {
+			graph_free(g);
+			return 1;
+		}
+		cfg.g = g;
+		cfg.start = 1;
+		cfg.graph_label = arg;
+		cfg.graph_path = arg;
+	}
+	if (resume && out && result_prepare_dir(out)) {
+		fit_free(f);
+		checkpoint_release(&ck);
+		return 1;
+	}
+	cfg.fit = f;
+	cfg.params = p;
+	int rc = tui_run(&cfg); /* frees the fit */
+	graph_free(g);
+	checkpoint_release(&ck);
+	return rc;
+}

@@ -1,0 +1,470 @@
+/*
+ * tui/keys: the one key table. It drives dispatch (keys_dispatch), the
+ * help screen (help.c) and `coterie explore --list-keys`, so the three
+ * cannot drift apart.
+ *
+ * A binding is { key, pane, action, argument, help }. A key bound to a
+ * pane works when that pane has the focus; PANE_ANY works everywhere. A
+ * pane binding wins over an any-pane one for the same key (Enter means
+ * something different in every list).
+ *
+ * Actions only change the view and mark panes dirty; they never draw.
+ * The prompts (find, the quit question) and the help screen take the
+ * keyboard while open: their keys are shown on the prompt itself.
+ */
+#include "tui.h"
+
+#include <stdio.h>
+#include <string.h>
+
+#include "coterie/graph.h"
+#include "coterie/util.h"
+
+/* ---- actions ---- */
+
+static void act_focus_step(struct view *v, int arg)
+{
+	view_set_focus(v, (v->focus + arg + PANE_COUNT) % PANE_COUNT);
+}
+
+static void act_focus(struct view *v, int arg)
+{
+	view_set_focus(v, arg);
+}
+
+enum { MOVE_UP = -1, MOVE_DOWN = 1, MOVE_PGUP = -2, MOVE_PGDN = 2, MOVE_HOME = -3, MOVE_END = 3 };
+
+static void act_move(struct view *v, int arg)
+{
+	long page = view_page_height(v, v->focus);
+	switch (arg) {
+	case MOVE_UP: view_move(v, -1); break;
+	case MOVE_DOWN: view_move(v, 1); break;
+	case MOVE_PGUP: view_move(v, -(page > 1 ? page - 1 : 1)); break;
+	case MOVE_PGDN: view_move(v, page > 1 ? page - 1 : 1); break;
+	case MOVE_HOME: view_move_to(v, 0); break;
+	case MOVE_END: view_move_to(v, (size_t)-1); break;
+	default: break;
+	}
+}
+
+static void act_enter_comm(struct view *v, int arg)
+{
+	(void)arg;
+	if (v->comm_index >= 0)
+		view_set_focus(v, PANE_MEMBERS);
+}
+
+static void act_enter_member(struct view *v, int arg)
+{
+	(void)arg;
+	if (v->node >= 0)
+		view_set_focus(v, PANE_NODE);
+}
+
+static void act_enter_affil(struct view *v, int arg)
+{
+	(void)arg;
+	if (!v->node_valid || v->affil.cur >= v->naffil_rows)
+		return;
+	const struct inspect_affil *a = &v->nodeview.affil[v->affil_rows[v->affil.cur]];
+	if (inspect_find_community(&v->snap->agm, a->comm) < 0) {
+		view_say(v, UTIL_WARNING, "community %u has no members at this threshold", a->comm);
+		return;
+	}
+	view_select_comm(v, a->comm);
+	v->members_reset = 0; /* keep the members cursor on this node */
+	view_set_focus(v, PANE_COMMS);
+	view_say(v, UTIL_NOTICE, "community %u", a->comm);
+}
+
+static void act_enter_edge(struct view *v, int arg)
+{
+	(void)arg;
+	if (!v->page_valid || v->edges.cur < v->page_off || v->edges.cur >= v->page_off + v->npage)
+		return;
+	const struct inspect_pair *p = &v->page[v->edges.cur - v->page_off];
+	uint32_t pick;
+	const char *why;
+	if (v->edges_mode == EDGES_WEAK && !view_is_member(v, p->v, v->comm_id)) {
+		pick = p->v;
+		why = "the end outside the community";
+	} else {
+		pick = v->node == (int64_t)p->v ? p->u : p->v;
+		why = "the other end; Enter again for the first";
+		if (v->node != (int64_t)p->u && v->node != (int64_t)p->v)
+			why = "the second end; Enter again for the first";
+	}
+	view_select_node(v, pick, 0);
+	char name[200];
+	view_say(v, UTIL_NOTICE, "node %s: %s", draw_name(v, pick, name, sizeof name), why);
+}
+
+static void act_find(struct view *v, int arg)
+{
+	(void)arg;
+	find_open(v);
+}
+
+static void act_help(struct view *v, int arg)
+{
+	(void)arg;
+	v->mode = MODE_HELP;
+	v->help_top = 0;
+	v->dirty |= DIRTY_OVERLAY | DIRTY_FOOTER;
+}
+
+static void act_redraw(struct view *v, int arg)
+{
+	(void)arg;
+	clearok(curscr, TRUE);
+	v->dirty |= DIRTY_ALL;
+}
+
+static void act_quit(struct view *v, int arg)
+{
+	(void)arg;
+	if (view_running(v) || view_unsaved(v)) {
+		v->mode = MODE_QUIT;
+		v->dirty |= DIRTY_FOOTER;
+		return;
+	}
+	v->quit = 1;
+}
+
+static void act_stop(struct view *v, int arg)
+{
+	(void)arg;
+	if (!v->started) {
+		view_say(v, UTIL_NOTICE, "this saved fit is not running (e continues it)");
+	} else if (fit_state_ended(v->state) && !(v->state == FIT_LEVELLED && !v->stop_asked)) {
+		view_say(v, UTIL_NOTICE, "the fit has already ended (%s)", view_state_label(v->state));
+	} else if (v->state == FIT_LEVELLED) {
+		fit_stop(v->fit);
+		v->stop_asked = 1;
+		view_say(v, UTIL_NOTICE, "the fit ends here, levelled off; w writes it");
+	} else {
+		fit_stop(v->fit);
+		v->stop_asked = 1;
+		v->pause_asked = 0;
+		view_say(v, UTIL_NOTICE, "stopping after the current block; the model is kept");
+	}
+	v->dirty |= DIRTY_HEADER | DIRTY_PANE(PANE_TRACE);
+}
+
+static void act_pause(struct view *v, int arg)
+{
+	(void)arg;
+	if (!v->started) {
+		view_say(v, UTIL_NOTICE, "this saved fit is not running (e continues it)");
+		return;
+	}
+	if (fit_state_ended(v->state)) {
+		view_say(v, UTIL_NOTICE, "the fit has ended (%s); e runs it on",
+			 view_state_label(v->state));
+		return;
+	}
+	if (v->state == FIT_PAUSED || v->pause_asked) {
+		fit_resume(v->fit);
+		v->pause_asked = 0;
+		view_say(v, UTIL_NOTICE, "resumed");
+	} else {
+		fit_pause(v->fit);
+		v->pause_asked = 1;
+		view_say(v, UTIL_NOTICE, "pausing after the current block; p resumes");
+	}
+	v->dirty |= DIRTY_HEADER | DIRTY_PANE(PANE_TRACE);
+}
+
+/* A new fit that continues from the snapshot on screen. */
+static int restart_fit(struct view *v, uint32_t max_sweeps)
+{
+	const struct snapshot *s = v->snap;
+	struct fit_params p = v->params;
+	p.max_sweeps = max_sweeps;
+	p.hold_at_plateau = 1;
+	struct fit_origin o = {
+		.F = &s->F,
+		.trace = s->trace,
+		.ntrace = s->ntrace,
+		.sweep = s->sweep,
+		.seconds = s->seconds,
+		.plateau_sweep = s->plateau_sweep,
+	};
+	struct fit *f = fit_new(v->g, &p, &o);
+	if (!f)
+		return -1;
+	if (fit_start(f)) {
+		fit_free(f);
+		return -1;
+	}
+	fit_free(v->fit); /* ended: joins at once */
+	v->fit = f;
+	v->params = p;
+	v->started = 1;
+	v->stop_asked = v->pause_asked = v->extend_asked = 0;
+	v->state = FIT_FITTING;
+	v->dirty |= DIRTY_ALL;
+	return 0;
+}
+
+static void act_extend(struct view *v, int arg)
+{
+	(void)arg;
+	uint32_t sweep = v->snap ? v->snap->sweep : 0;
+	uint32_t more = v->params.max_sweeps > 100 ? v->params.max_sweeps : 100;
+	enum fit_state st = view_state(v);
+	if (!v->snap || v->snap->ntrace == 0) {
+		view_say(v, UTIL_NOTICE, "the fit is still seeding");
+		return;
+	}
+	if (!v->started || (fit_state_ended(st) && (st != FIT_LEVELLED || v->stop_asked))) {
+		if (st == FIT_FAILED) {
+			view_say(v, UTIL_ERROR, "the fit failed; it cannot go on");
+			return;
+		}
+		uint32_t max = v->params.max_sweeps;
+		if (sweep >= max)
+			max = sweep > UINT32_MAX - more ? UINT32_MAX : sweep + more;
+		if (restart_fit(v, max) == 0)
+			view_say(v, UTIL_NOTICE, "fitting again from sweep %u (limit %u sweeps); s stops",
+				 sweep, max);
+		return;
+	}
+	fit_extend(v->fit);
+	v->extend_asked = 1;
+	if (st == FIT_LEVELLED)
+		view_say(v, UTIL_NOTICE, "running on past the plateau; s stops it");
+	else
+		view_say(v, UTIL_NOTICE, "this fit will not wait at a plateau; it runs until s or "
+			 "the sweep limit");
+	v->dirty |= DIRTY_HEADER | DIRTY_PANE(PANE_TRACE);
+}
+
+static void act_write(struct view *v, int arg)
+{
+	(void)arg;
+	if (v->saved && !view_unsaved(v)) {
+		char esc[300];
+		view_say(v, UTIL_NOTICE, "nothing new to write: '%s' is up to date",
+			 util_escape(v->outdir, esc, sizeof esc, !v->utf8));
+		return;
+	}
+	view_write(v, NULL);
+}
+
+static const struct {
+	enum inspect_key key;
+	const char *name;
+	int ascending; /* the natural direction: the best first */
+} sorts[] = {
+	{ INSPECT_BY_SIZE, "size", 0 },
+	{ INSPECT_BY_EDGES, "internal edges", 0 },
+	{ INSPECT_BY_DENSITY, "density", 0 },
+	{ INSPECT_BY_CONDUCTANCE, "conductance", 1 },
+	{ INSPECT_BY_P, "p", 0 },
+	{ INSPECT_BY_ID, "id", 1 },
+};
+#define NSORTS (sizeof sorts / sizeof sorts[0])
+
+static size_t sort_slot(enum inspect_key k)
+{
+	for (size_t i = 0; i < NSORTS; i++)
+		if (sorts[i].key == k)
+			return i;
+	return 0;
+}
+
+static void say_sort(struct view *v)
+{
+	view_say(v, UTIL_NOTICE, "communities by %s, %s first", sorts[sort_slot(v->sort_key)].name,
+		 v->ascending ? "lowest" : "highest");
+}
+
+static void act_sort_next(struct view *v, int arg)
+{
+	(void)arg;
+	size_t i = (sort_slot(v->sort_key) + 1) % NSORTS;
+	v->sort_key = sorts[i].key;
+	v->ascending = sorts[i].ascending;
+	v->order_gen = 0;
+	v->dirty |= DIRTY_PANE(PANE_COMMS);
+	say_sort(v);
+}
+
+static void act_sort_flip(struct view *v, int arg)
+{
+	(void)arg;
+	v->ascending = !v->ascending;
+	v->order_gen = 0;
+	v->dirty |= DIRTY_PANE(PANE_COMMS);
+	say_sort(v);
+}
+
+static void act_weak(struct view *v, int arg)
+{
+	(void)arg;
+	v->show_weak = !v->show_weak;
+	v->node_gen = 0;
+	v->affil.cur = v->affil.top = 0;
+	v->dirty |= DIRTY_PANE(PANE_NODE);
+	view_say(v, UTIL_NOTICE, v->show_weak ? "showing every strength, also below the threshold"
+					      : "showing memberships only");
+}
+
+static void act_edges_mode(struct view *v, int arg)
+{
+	(void)arg;
+	v->edges_mode = v->edges_mode == EDGES_WEAK ? EDGES_MISSING : EDGES_WEAK;
+	v->edges.cur = v->edges.top = 0;
+	v->page_valid = 0;
+	v->dirty |= DIRTY_PANE(PANE_EDGES);
+}
+
+/* ---- the table ---- */
+
+#define CTRL(c) ((c) & 0x1f)
+
+const struct key_binding keys_table[] = {
+	{ '\t', PANE_ANY, act_focus_step, 1, "go to the next pane" },
+	{ KEY_BTAB, PANE_ANY, act_focus_step, -1, "go to the previous pane" },
+	{ '1', PANE_ANY, act_focus, PANE_TRACE, "go to the pane of that number" },
+	{ '2', PANE_ANY, act_focus, PANE_COMMS, "go to the pane of that number" },
+	{ '3', PANE_ANY, act_focus, PANE_MEMBERS, "go to the pane of that number" },
+	{ '4', PANE_ANY, act_focus, PANE_NODE, "go to the pane of that number" },
+	{ '5', PANE_ANY, act_focus, PANE_EDGES, "go to the pane of that number" },
+	{ KEY_UP, PANE_ANY, act_move, MOVE_UP, "move up" },
+	{ 'k', PANE_ANY, act_move, MOVE_UP, "move up" },
+	{ KEY_DOWN, PANE_ANY, act_move, MOVE_DOWN, "move down" },
+	{ 'j', PANE_ANY, act_move, MOVE_DOWN, "move down" },
+	{ KEY_PPAGE, PANE_ANY, act_move, MOVE_PGUP, "page up" },
+	{ KEY_NPAGE, PANE_ANY, act_move, MOVE_PGDN, "page down" },
+	{ KEY_HOME, PANE_ANY, act_move, MOVE_HOME, "first row" },
+	{ 'g', PANE_ANY, act_move, MOVE_HOME, "first row" },
+	{ KEY_END, PANE_ANY, act_move, MOVE_END, "last row" },
+	{ 'G', PANE_ANY, act_move, MOVE_END, "last row" },
+	{ '/', PANE_ANY, act_find, 0, "find a node by name (any part, any case)" },
+	{ 's', PANE_ANY, act_stop, 0, "stop fitting and keep the current model" },
+	{ 'p', PANE_ANY, act_pause, 0, "pause or resume the fit" },
+	{ 'e', PANE_ANY, act_extend, 0, "run on past a plateau, or continue an ended fit" },
+	{ 'w', PANE_ANY, act_write, 0, "write the result folder" },
+	{ '?', PANE_ANY, act_help, 0, "this help" },
+	{ CTRL('l'), PANE_ANY, act_redraw, 0, "redraw the screen" },
+	{ 'q', PANE_ANY, act_quit, 0, "quit (asks first if the fit runs or is unsaved)" },
+	{ '\r', PANE_COMMS, act_enter_comm, 0, "go to this community's members" },
+	{ 'o', PANE_COMMS, act_sort_next, 0, "sort by the next column" },
+	{ 'r', PANE_COMMS, act_sort_flip, 0, "reverse the order" },
+	{ '\r', PANE_MEMBERS, act_enter_member, 0, "go to this node" },
+	{ '\r', PANE_NODE, act_enter_affil, 0, "select this row's community" },
+	{ 'a', PANE_NODE, act_weak, 0, "show or hide strengths below the threshold" },
+	{ '\r', PANE_EDGES, act_enter_edge, 0, "select a node of this pair (outside end first)" },
+	{ 'm', PANE_EDGES, act_edges_mode, 0, "switch between weak edges and missing links" },
+};
+const size_t keys_count = sizeof keys_table / sizeof keys_table[0];
+
+const char *keys_pane_name(int pane)
+{
+	switch (pane) {
+	case PANE_ANY: return "any";
+	case PANE_TRACE: return "likelihood";
+	case PANE_COMMS: return "communities";
+	case PANE_MEMBERS: return "members";
+	case PANE_NODE: return "node";
+	case PANE_EDGES: return "edges";
+	default: return "?";
+	}
+}
+
+const char *keys_name(int key, char *buf, size_t cap)
+{
+	switch (key) {
+	case '\t': return "Tab";
+	case KEY_BTAB: return "S-Tab";
+	case KEY_UP: return "Up";
+	case KEY_DOWN: return "Down";
+	case KEY_LEFT: return "Left";
+	case KEY_RIGHT: return "Right";
+	case KEY_PPAGE: return "PgUp";
+	case KEY_NPAGE: return "PgDn";
+	case KEY_HOME: return "Home";
+	case KEY_END: return "End";
+	case '\r': return "Enter";
+	case 27: return "Esc";
+	case ' ': return "Space";
+	default: break;
+	}
+	if (key > 0 && key < 0x20)
+		snprintf(buf, cap, "C-%c", key + 'a' - 1);
+	else if (key >= 0x21 && key < 0x7f)
+		snprintf(buf, cap, "%c", key);
+	else
+		snprintf(buf, cap, "key-%d", key);
+	return buf;
+}
+
+void keys_list(FILE *out)
+{
+	for (size_t i = 0; i < keys_count; i++) {
+		char nb[32];
+		fprintf(out, "%s\t%s\t%s\n", keys_name(keys_table[i].key, nb, sizeof nb),
+			keys_pane_name(keys_table[i].pane), keys_table[i].help);
+	}
+}
+
+int keys_dispatch(struct view *v, int key)
+{
+	if (key == '\n' || key == KEY_ENTER)
+		key = '\r';
+	const struct key_binding *any = NULL, *mine = NULL, *elsewhere = NULL;
+	for (size_t i = 0; i < keys_count; i++) {
+		const struct key_binding *b = &keys_table[i];
+		if (b->key != key)
+			continue;
+		if (b->pane == v->focus && !mine)
+			mine = b;
+		else if (b->pane == PANE_ANY && !any)
+			any = b;
+		else if (!elsewhere)
+			elsewhere = b;
+	}
+	const struct key_binding *b = mine ? mine : any;
+	if (b) {
+		b->act(v, b->arg);
+		return 1;
+	}
+	if (elsewhere) {
+		char nb[32];
+		view_say(v, UTIL_NOTICE, "%s works in the %s pane (%d)", keys_name(key, nb, sizeof nb),
+			 keys_pane_name(elsewhere->pane), elsewhere->pane + 1);
+		return 1;
+	}
+	return 0;
+}
+
+void keys_quit_answer(struct view *v, int key)
+{
+	switch (key) {
+	case 'y':
+	case 'Y':
+		v->stop_on_quit = 1;
+		v->want_write = 1;
+		v->quit = 1;
+		break;
+	case 'd':
+	case 'D':
+		v->stop_on_quit = 1;
+		v->want_write = 0;
+		v->quit = 1;
+		break;
+	case 'n':
+	case 'N':
+	case 27:
+	case 'q':
+		v->mode = MODE_NORMAL;
+		view_say(v, UTIL_NOTICE, "carrying on");
+		break;
+	default:
+		break; /* the question stays until answered */
+	}
+	v->dirty |= DIRTY_FOOTER;
+}

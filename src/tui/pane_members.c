@@ -1,0 +1,62 @@
+/*
+ * tui/pane_members: pane 3, the members of the selected community,
+ * strongest first (inspect_members), each with a bar scaled to the
+ * strongest member and the strength itself.
+ */
+#include "tui.h"
+
+#include <stdio.h>
+
+void pane_members_draw(const struct view *v)
+{
+	WINDOW *w = v->win[PANE_MEMBERS];
+	if (!w)
+		return;
+	werase(w);
+	int width = getmaxx(w);
+	char title[64], note[64] = "";
+	if (v->comm_index >= 0 && v->has_comm) {
+		snprintf(title, sizeof title, "Members of #%u", v->comm_id);
+		char n[32];
+		fmt_count(n, sizeof n, v->nmem);
+		snprintf(note, sizeof note, "%s by strength", n);
+	} else {
+		snprintf(title, sizeof title, "Members");
+	}
+	draw_title(v, w, PANE_MEMBERS, title, note);
+	if (v->comm_index < 0 || v->nmem == 0) {
+		draw_text(w, 2, 1, "select a community in pane 2", width - 2);
+		return;
+	}
+	int rows = view_page_height(v, PANE_MEMBERS);
+	int vw = 7;
+	int bw = width / 3;
+	if (bw > 24)
+		bw = 24;
+	if (bw < 4)
+		bw = 4;
+	int nw = width - 2 - bw - vw - 2;
+	double top = v->mem_strength[0] > 0 ? v->mem_strength[0] : 1.0;
+	int focused = v->focus == PANE_MEMBERS;
+	for (int r = 0; r < rows; r++) {
+		size_t i = v->members.top + (size_t)r;
+		if (i >= v->nmem)
+			break;
+		int y = 1 + r;
+		int sel = i == v->members.cur;
+		attr_t at = sel ? (focused ? A_REVERSE : A_BOLD | A_UNDERLINE) : A_NORMAL;
+		wattron(w, at);
+		if (sel)
+			draw_fill(w, y, 0, width);
+		char name[512];
+		draw_name(v, v->mem[i], name, sizeof name);
+		draw_text(w, y, 1, name, nw);
+		wattroff(w, at);
+		draw_bar(v, w, y, 1 + nw + 1, bw, v->mem_strength[i] / top);
+		char val[32];
+		snprintf(val, sizeof val, "%.3g", v->mem_strength[i]);
+		wattron(w, at);
+		draw_text(w, y, width - vw, val, vw);
+		wattroff(w, at);
+	}
+}

@@ -1,0 +1,96 @@
+/*
+ * tui/pane_node: pane 4, the selected node (inspect_node): its name made
+ * safe, degree, how many memberships and how many of its edges no
+ * community explains; then one row per affiliation, strongest first, with
+ * a bar, the strength, whether it is a membership (>= delta) and how many
+ * of the node's edges that community explains. Strengths below the
+ * threshold are listed on request ('a').
+ */
+#include "tui.h"
+
+#include <stdio.h>
+
+void pane_node_draw(const struct view *v)
+{
+	WINDOW *w = v->win[PANE_NODE];
+	if (!w)
+		return;
+	werase(w);
+	draw_separator(v, w);
+	int width = getmaxx(w);
+	const struct inspect_node *nv = &v->nodeview;
+	char note[64] = "";
+	uint32_t hidden = v->node_valid ? nv->naffil - nv->nmember : 0;
+	if (v->node_valid && v->show_weak)
+		snprintf(note, sizeof note, "all strengths (a)");
+	else if (hidden)
+		snprintf(note, sizeof note, "+%u weak (a)", hidden);
+	draw_title(v, w, PANE_NODE, "Node", note);
+	int x = 2, cw = width - 3;
+	if (v->node < 0 || !v->node_valid) {
+		draw_text(w, 2, x, "no node selected: pick one in pane 3, or / to find", cw);
+		return;
+	}
+	char name[512];
+	draw_name(v, nv->node, name, sizeof name);
+	wattron(w, A_BOLD);
+	draw_text(w, 1, x, name, cw);
+	wattroff(w, A_BOLD);
+	char line[200];
+	snprintf(line, sizeof line, "degree %u, in %u communit%s, %u edge%s unexplained",
+		 nv->degree, nv->nmember, nv->nmember == 1 ? "y" : "ies", nv->unexplained,
+		 nv->unexplained == 1 ? "" : "s");
+	if (draw_width(line) > cw)
+		snprintf(line, sizeof line, "degree %u, %u comm., %u unexplained", nv->degree,
+			 nv->nmember, nv->unexplained);
+	draw_text(w, 2, x, line, cw);
+	if (v->naffil_rows == 0) {
+		draw_text(w, 4, x, hidden ? "no membership; a shows the weak strengths"
+					  : "no strength in any community", cw);
+		return;
+	}
+	/* columns: id, bar, strength, flag, explains */
+	int idw = 6, vw = 6, fw = 6, ew = 8;
+	int bw = cw - idw - vw - fw - ew - 4;
+	if (bw > 24)
+		bw = 24;
+	if (bw < 3)
+		bw = 3;
+	int xb = x + idw + 1, xv = xb + bw + 1, xf = xv + vw + 1, xe = xf + fw + 1;
+	wattron(w, A_BOLD);
+	draw_text(w, 3, x, "comm", idw);
+	draw_text(w, 3, xb, "strength", bw + vw + 1);
+	draw_text(w, 3, xe, "explains", ew);
+	wattroff(w, A_BOLD);
+	double top = nv->naffil ? nv->affil[0].strength : 1.0;
+	if (!(top > 0))
+		top = 1.0;
+	int rows = view_page_height(v, PANE_NODE);
+	int focused = v->focus == PANE_NODE;
+	for (int r = 0; r < rows; r++) {
+		size_t i = v->affil.top + (size_t)r;
+		if (i >= v->naffil_rows)
+			break;
+		const struct inspect_affil *a = &nv->affil[v->affil_rows[i]];
+		int y = 4 + r;
+		int sel = i == v->affil.cur;
+		attr_t at = sel ? (focused ? A_REVERSE : A_BOLD | A_UNDERLINE) : A_NORMAL;
+		if (!a->member)
+			at |= draw_attr(v, CP_DIM);
+		char id[32], val[32], ex[32];
+		snprintf(id, sizeof id, "#%u", a->comm);
+		snprintf(val, sizeof val, "%.3g", a->strength);
+		snprintf(ex, sizeof ex, "%8u", a->explained);
+		wattron(w, at);
+		if (sel)
+			draw_fill(w, y, 1, width - 1);
+		draw_text(w, y, x, id, idw);
+		wattroff(w, at);
+		draw_bar(v, w, y, xb, bw, a->strength / top);
+		wattron(w, at);
+		draw_text(w, y, xv, val, vw);
+		draw_text(w, y, xf, a->member ? "member" : "weak", fw);
+		draw_text(w, y, xe, ex, ew);
+		wattroff(w, at);
+	}
+}

@@ -1,0 +1,563 @@
+/*
+ * tui/view: the explorer's state and the caches the panes draw from.
+ *
+ * Selections are kept by identity, not by row: the community by its id
+ * (model column, stable across sweeps), the node by its id. When a new
+ * snapshot arrives the sorted order, the member list and the node view are
+ * recomputed and the cursors are put back on the same community and node.
+ *
+ * Caches are keyed by (snapshot generation, what is selected). Nothing
+ * here builds a whole list on a big graph: the weak-edge and missing-link
+ * lists are fetched a page at a time (inspect_* with offset and limit);
+ * the member list of one community and the community order are the only
+ * full lists, and they are sized by a community, not by the graph.
+ *
+ * The one thing a newcomer gets wrong: a key handler must leave the caches
+ * consistent before the next key of the same batch is read, so ui.c calls
+ * view_prepare() after every key, not once per loop pass.
+ */
+#include "tui.h"
+
+#include <stdarg.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "../cli/cli.h"
+#include "coterie/graph.h"
+#include "coterie/result.h"
+#include "coterie/util.h"
+
+void view_init(struct view *v, const struct tui_config *cfg)
+{
+	memset(v, 0, sizeof *v);
+	v->g = cfg->g;
+	v->fit = cfg->fit;
+	v->params = cfg->params;
+	v->graph_label = cfg->graph_label;
+	v->graph_path = cfg->graph_path;
+	v->outdir = cfg->outdir;
+	v->outdir_is_default = cfg->outdir_is_default;
+	v->reopened = cfg->reopened;
+	v->saved_state = cfg->saved_state;
+	v->t_begin = cfg->t_begin;
+	v->node = -1;
+	v->comm_index = -1;
+	v->mem_for = -1;
+	v->node_for = -1;
+	v->page_for = -1;
+	v->sort_key = INSPECT_BY_SIZE;
+	v->focus = PANE_COMMS;
+	v->dirty = DIRTY_ALL;
+	v->state = FIT_READY;
+	if (cfg->reopened && cfg->outdir_holds_result) {
+		v->saved = 1;
+		v->saved_sweep = cfg->saved_sweep;
+		v->saved_as = cfg->saved_state;
+	}
+}
+
+void view_release(struct view *v)
+{
+	snapshot_release(v->snap);
+	v->snap = NULL;
+	free(v->order);
+	free(v->mem);
+	free(v->mem_strength);
+	free(v->affil_rows);
+	free(v->page);
+	if (v->node_valid)
+		inspect_node_release(&v->nodeview);
+	v->order = NULL;
+	v->mem = NULL;
+	v->mem_strength = NULL;
+	v->affil_rows = NULL;
+	v->page = NULL;
+	v->node_valid = 0;
+}
+
+enum fit_state view_state(const struct view *v)
+{
+	if (!v->started && v->reopened)
+		return v->saved_state;
+	return v->state;
+}
+
+const char *view_state_label(enum fit_state s)
+{
+	switch (s) {
+	case FIT_READY: return "ready";
+	case FIT_SEEDING: return "seeding";
+	case FIT_FITTING: return "fitting";
+	case FIT_PAUSED: return "paused";
+	case FIT_LEVELLED: return "levelled off";
+	case FIT_STOPPED: return "stopped";
+	case FIT_FINISHED: return "finished";
+	case FIT_FAILED: return "failed";
+	}
+	return "unknown";
+}
+
+int view_running(const struct view *v)
+{
+	return v->started && !fit_state_ended(v->state);
+}
+
+int view_is_member(const struct view *v, uint32_t u, uint32_t id)
+{
+	const struct fcsr *F = &v->snap->F;
+	if (u >= F->n)
+		return 0;
+	for (uint64_t i = F->off[u]; i < F->off[u + 1]; i++)
+		if (F->e[i].c == id)
+			return F->e[i].v >= v->snap->delta;
+	return 0;
+}
+
+int view_unsaved(const struct view *v)
+{
+	if (!v->started || !v->snap || v->snap->ntrace == 0)
+		return 0;
+	if (!v->saved)
+		return 1;
+	if (v->saved_sweep != v->snap->sweep)
+		return 1;
+	/* the same model, but it ended since: the record should say how */
+	return fit_state_ended(v->state) && v->state != v->saved_as;
+}
+
+void view_say(struct view *v, int level, const char *fmt, ...)
+{
+	va_list ap;
+	va_start(ap, fmt);
+	vsnprintf(v->msg, sizeof v->msg, fmt, ap);
+	va_end(ap);
+	v->msg_level = level;
+	v->msg_time = util_now();
+	v->dirty |= DIRTY_FOOTER;
+}
+
+int view_take_snapshot(struct view *v)
+{
+	struct snapshot *s = fit_snapshot(v->fit);
+	enum fit_state st = fit_get_state(v->fit);
+	int changed = 0;
+	if (s != v->snap) {
+		snapshot_release(v->snap);
+		v->snap = s;
+		v->snap_gen++;
+		changed = 1;
+		v->dirty |= DIRTY_ALL;
+	} else {
+		snapshot_release(s);
+	}
+	if (st != v->state) {
+		v->state = st;
+		v->dirty |= DIRTY_HEADER | DIRTY_PANE(PANE_TRACE) | DIRTY_FOOTER;
+	}
+	if (v->state == FIT_PAUSED || fit_state_ended(v->state))
+		v->pause_asked = 0;
+	v->snap_taken = util_now();
+	return changed;
+}
+
+int view_page_height(const struct view *v, int pane)
+{
+	int h = v->box[pane].h - 1; /* the title row */
+	if (pane == PANE_COMMS || pane == PANE_EDGES)
+		h -= 1; /* a column header */
+	if (pane == PANE_NODE)
+		h -= 3; /* name, figures, column header */
+	return h > 1 ? h : 1;
+}
+
+size_t view_rows(const struct view *v, int pane)
+{
+	switch (pane) {
+	case PANE_COMMS: return v->norder;
+	case PANE_MEMBERS: return v->nmem;
+	case PANE_NODE: return v->naffil_rows;
+	case PANE_EDGES: return v->total;
+	default: return 0;
+	}
+}
+
+static struct listpos *pos_of(struct view *v, int pane)
+{
+	switch (pane) {
+	case PANE_COMMS: return &v->comms;
+	case PANE_MEMBERS: return &v->members;
+	case PANE_NODE: return &v->affil;
+	case PANE_EDGES: return &v->edges;
+	default: return NULL;
+	}
+}
+
+/* Keep cur inside [0, rows) and visible in a window of h rows. */
+static void clamp_pos(struct listpos *p, size_t rows, int h)
+{
+	if (rows == 0) {
+		p->cur = p->top = 0;
+		return;
+	}
+	if (p->cur >= rows)
+		p->cur = rows - 1;
+	if (p->cur < p->top)
+		p->top = p->cur;
+	if (p->cur >= p->top + (size_t)h)
+		p->top = p->cur - (size_t)h + 1;
+	/* no empty space below the last row when it can be avoided */
+	if (p->top + (size_t)h > rows)
+		p->top = rows > (size_t)h ? rows - (size_t)h : 0;
+}
+
+/* The community under the communities cursor became the selection. */
+static void comm_from_cursor(struct view *v)
+{
+	if (v->norder == 0 || !v->snap)
+		return;
+	uint32_t idx = v->order[v->comms.cur];
+	uint32_t id = v->snap->agm.comms[idx].id;
+	if (!v->has_comm || id != v->comm_id) {
+		v->comm_id = id;
+		v->has_comm = 1;
+		v->edges.cur = v->edges.top = 0;
+		v->members_reset = 1;
+	}
+	v->comm_index = idx;
+	v->dirty |= DIRTY_PANE(PANE_COMMS) | DIRTY_PANE(PANE_MEMBERS) | DIRTY_PANE(PANE_NODE) |
+		    DIRTY_PANE(PANE_EDGES);
+}
+
+void view_move_to(struct view *v, size_t row)
+{
+	struct listpos *p = pos_of(v, v->focus);
+	if (!p)
+		return;
+	size_t rows = view_rows(v, v->focus);
+	if (rows == 0)
+		return;
+	p->cur = row < rows ? row : rows - 1;
+	clamp_pos(p, rows, view_page_height(v, v->focus));
+	v->dirty |= DIRTY_PANE(v->focus);
+	switch (v->focus) {
+	case PANE_COMMS:
+		comm_from_cursor(v);
+		break;
+	case PANE_MEMBERS:
+		if (v->members.cur < v->nmem) {
+			v->node = v->mem[v->members.cur];
+			v->node_pinned = 0;
+			v->dirty |= DIRTY_PANE(PANE_NODE);
+		}
+		break;
+	default:
+		break;
+	}
+}
+
+void view_move(struct view *v, long delta)
+{
+	struct listpos *p = pos_of(v, v->focus);
+	if (!p)
+		return;
+	size_t rows = view_rows(v, v->focus);
+	if (rows == 0)
+		return;
+	size_t row;
+	if (delta < 0)
+		row = (size_t)(-delta) > p->cur ? 0 : p->cur - (size_t)(-delta);
+	else
+		row = p->cur + (size_t)delta >= rows ? rows - 1 : p->cur + (size_t)delta;
+	view_move_to(v, row);
+}
+
+void view_set_focus(struct view *v, int pane)
+{
+	if (pane < 0 || pane >= PANE_COUNT || pane == v->focus)
+		return;
+	v->dirty |= DIRTY_PANE(v->focus) | DIRTY_PANE(pane) | DIRTY_FOOTER;
+	v->focus = pane;
+}
+
+void view_select_comm(struct view *v, uint32_t id)
+{
+	if (!v->has_comm || v->comm_id != id) {
+		v->edges.cur = v->edges.top = 0;
+		v->members_reset = 1;
+	}
+	v->has_comm = 1;
+	v->comm_id = id;
+	v->order_gen = 0; /* find its row again */
+	v->dirty |= DIRTY_ALL;
+}
+
+void view_select_node(struct view *v, uint32_t node, int with_comm)
+{
+	if (node >= v->g->n)
+		return;
+	v->node = node;
+	v->node_pinned = 1;
+	v->affil.cur = v->affil.top = 0;
+	v->dirty |= DIRTY_PANE(PANE_NODE) | DIRTY_PANE(PANE_MEMBERS);
+	if (with_comm && v->snap && node < v->snap->F.n) {
+		/* its strongest membership, if any */
+		const struct fcsr *F = &v->snap->F;
+		double best = 0;
+		int64_t bestc = -1;
+		for (uint64_t i = F->off[node]; i < F->off[node + 1]; i++)
+			if (F->e[i].v >= v->snap->delta && F->e[i].v > best) {
+				best = F->e[i].v;
+				bestc = F->e[i].c;
+			}
+		if (bestc >= 0 && inspect_find_community(&v->snap->agm, (uint32_t)bestc) >= 0) {
+			int changed = !v->has_comm || v->comm_id != (uint32_t)bestc;
+			view_select_comm(v, (uint32_t)bestc);
+			if (changed)
+				v->members_reset = 0; /* the cursor goes to the node */
+		}
+	}
+}
+
+/* ---- caches ---- */
+
+static void prepare_order(struct view *v)
+{
+	const struct agm *a = &v->snap->agm;
+	if (v->order_gen == v->snap_gen && v->order)
+		return;
+	uint32_t k = a->cover.k;
+	uint32_t *o = realloc(v->order, (k ? k : 1) * sizeof *o);
+	if (!o) {
+		view_say(v, UTIL_ERROR, "out of memory sorting %u communities", k);
+		return;
+	}
+	v->order = o;
+	v->norder = k;
+	if (k)
+		inspect_sort_communities(a, v->sort_key, v->ascending, v->order);
+	v->order_gen = v->snap_gen;
+	v->dirty |= DIRTY_PANE(PANE_COMMS);
+	/* put the cursor back on the selected community */
+	int found = 0;
+	if (v->has_comm)
+		for (uint32_t i = 0; i < k; i++)
+			if (a->comms[v->order[i]].id == v->comm_id) {
+				v->comms.cur = i;
+				found = 1;
+				break;
+			}
+	clamp_pos(&v->comms, k, view_page_height(v, PANE_COMMS));
+	if (k == 0) {
+		v->comm_index = -1;
+		return;
+	}
+	if (found) {
+		v->comm_index = v->order[v->comms.cur];
+	} else {
+		/* gone (emptied) or never chosen: the row under the cursor */
+		comm_from_cursor(v);
+	}
+}
+
+static void prepare_members(struct view *v)
+{
+	const struct agm *a = &v->snap->agm;
+	if (v->comm_index < 0) {
+		v->nmem = 0;
+		v->mem_for = -1;
+		return;
+	}
+	if (v->mem_gen == v->snap_gen && v->mem_for == v->comm_index && !v->members_reset)
+		return;
+	uint32_t size = cover_size(&a->cover, (uint32_t)v->comm_index);
+	if (size > v->mem_cap || !v->mem) {
+		uint32_t cap = size ? size : 1;
+		uint32_t *m = realloc(v->mem, cap * sizeof *m);
+		if (m)
+			v->mem = m;
+		double *s = realloc(v->mem_strength, cap * sizeof *s);
+		if (s)
+			v->mem_strength = s;
+		if (!m || !s) {
+			view_say(v, UTIL_ERROR, "out of memory listing %u members", size);
+			v->nmem = 0;
+			return;
+		}
+		v->mem_cap = cap;
+	}
+	inspect_members(a, (uint32_t)v->comm_index, v->mem, v->mem_strength);
+	v->nmem = size;
+	v->mem_gen = v->snap_gen;
+	v->mem_for = v->comm_index;
+	v->dirty |= DIRTY_PANE(PANE_MEMBERS);
+	if (v->members_reset) {
+		v->members_reset = 0;
+		v->members.cur = v->members.top = 0;
+		if (size > 0) {
+			v->node = v->mem[0];
+			v->node_pinned = 0;
+			v->affil.cur = v->affil.top = 0;
+			v->dirty |= DIRTY_PANE(PANE_NODE);
+		}
+	} else {
+		int found = 0;
+		for (uint32_t i = 0; v->node >= 0 && i < size; i++)
+			if (v->mem[i] == (uint32_t)v->node) {
+				v->members.cur = i;
+				found = 1;
+				break;
+			}
+		/* a node taken from this list follows the list's cursor when
+		 * the fit moves it out; one chosen elsewhere stays */
+		if (!found && !v->node_pinned && size > 0) {
+			if (v->members.cur >= size)
+				v->members.cur = size - 1;
+			v->node = v->mem[v->members.cur];
+			v->dirty |= DIRTY_PANE(PANE_NODE);
+		}
+	}
+	clamp_pos(&v->members, size, view_page_height(v, PANE_MEMBERS));
+}
+
+static void prepare_node(struct view *v)
+{
+	if (v->node < 0) {
+		if (v->node_valid)
+			inspect_node_release(&v->nodeview);
+		v->node_valid = 0;
+		v->naffil_rows = 0;
+		return;
+	}
+	if (v->node_valid && v->node_gen == v->snap_gen && v->node_for == v->node)
+		return;
+	if (v->node_valid)
+		inspect_node_release(&v->nodeview);
+	v->node_valid = 0;
+	v->naffil_rows = 0;
+	v->node_gen = v->snap_gen;
+	v->node_for = v->node;
+	v->dirty |= DIRTY_PANE(PANE_NODE);
+	if (inspect_node(&v->nodeview, v->g, &v->snap->F, v->snap->delta, (uint32_t)v->node))
+		return;
+	v->node_valid = 1;
+	uint32_t n = v->nodeview.naffil;
+	uint32_t *rows = realloc(v->affil_rows, (n ? n : 1) * sizeof *rows);
+	if (!rows)
+		return;
+	v->affil_rows = rows;
+	for (uint32_t i = 0; i < n; i++)
+		if (v->show_weak || v->nodeview.affil[i].member)
+			v->affil_rows[v->naffil_rows++] = i;
+	clamp_pos(&v->affil, v->naffil_rows, view_page_height(v, PANE_NODE));
+}
+
+static int fetch_page(struct view *v, size_t off, size_t limit)
+{
+	struct inspect_pair *page = NULL;
+	size_t n = 0, total = 0;
+	const struct snapshot *s = v->snap;
+	int rc;
+	if (v->edges_mode == EDGES_WEAK)
+		rc = inspect_weak_edges(v->g, &s->F, &s->agm, (uint32_t)v->comm_index, off, limit,
+					&page, &n, &total);
+	else
+		rc = inspect_missing_links(v->g, &s->F, &s->agm, (uint32_t)v->comm_index, off, limit,
+					   &page, &n, &total);
+	if (rc)
+		return -1;
+	free(v->page);
+	v->page = page;
+	v->npage = n;
+	v->page_off = off;
+	v->total = total;
+	v->page_valid = 1;
+	v->page_gen = v->snap_gen;
+	v->page_for = v->comm_index;
+	v->page_mode = v->edges_mode;
+	v->dirty |= DIRTY_PANE(PANE_EDGES);
+	return 0;
+}
+
+static void prepare_page(struct view *v)
+{
+	if (v->comm_index < 0) {
+		free(v->page);
+		v->page = NULL;
+		v->npage = v->total = 0;
+		v->page_valid = 0;
+		return;
+	}
+	size_t h = (size_t)view_page_height(v, PANE_EDGES);
+	for (int tries = 0; tries < 2; tries++) {
+		int fresh = v->page_valid && v->page_gen == v->snap_gen &&
+			    v->page_for == v->comm_index && v->page_mode == v->edges_mode;
+		if (fresh) {
+			clamp_pos(&v->edges, v->total, (int)h);
+			size_t end = v->page_off + v->npage;
+			if (v->edges.top >= v->page_off &&
+			    (v->edges.top + h <= end || end >= v->total))
+				return;
+		}
+		size_t off = (v->edges.top / h) * h;
+		if (fetch_page(v, off, 2 * h)) {
+			v->page_valid = 0;
+			v->npage = v->total = 0;
+			return;
+		}
+	}
+}
+
+void view_prepare(struct view *v)
+{
+	if (!v->snap)
+		return;
+	prepare_order(v);
+	prepare_members(v);
+	prepare_node(v);
+	prepare_page(v);
+}
+
+/* ---- writing ---- */
+
+int view_write(struct view *v, const char *status)
+{
+	struct snapshot *s = fit_snapshot(v->fit);
+	enum fit_state st = v->started ? fit_get_state(v->fit) : v->saved_state;
+	if (s->ntrace == 0) {
+		snapshot_release(s);
+		view_say(v, UTIL_WARNING, "nothing to write yet: the fit is still seeding");
+		return -1;
+	}
+	/* a reopened result's snapshot says "ready"; the record keeps the
+	 * state it was saved in */
+	struct snapshot copy = *s;
+	copy.state = st;
+	struct fit_params p = v->params;
+	p.hold_at_plateau = 0;
+	struct result_meta meta = {
+		.command_line = cli_command_line(),
+		.graph_path = v->graph_path,
+		.wall_seconds = util_now() - v->t_begin,
+		.peak_rss_kb = cli_peak_rss_kb(),
+		.status = status ? status : fit_state_name(st),
+	};
+	int rc = -1;
+	if (result_prepare_dir(v->outdir) == 0 &&
+	    result_write(v->outdir, v->g, &p, &copy, &meta) == 0)
+		rc = 0;
+	if (rc == 0) {
+		v->saved = 1;
+		v->saved_sweep = s->sweep;
+		v->saved_as = st;
+		v->write_failed = 0;
+		char esc[300];
+		view_say(v, UTIL_NOTICE, "wrote the result at sweep %u to '%s'", s->sweep,
+			 util_escape(v->outdir, esc, sizeof esc, !v->utf8));
+	} else {
+		v->write_failed = 1; /* the core's message is on its way to the footer */
+	}
+	v->dirty |= DIRTY_HEADER | DIRTY_FOOTER;
+	snapshot_release(s);
+	return rc;
+}
