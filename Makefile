@@ -103,3 +103,13 @@ clean:
 	rm -rf build build-* coterie
 
 -include $(shell find build* -name '*.d' 2>/dev/null)
+
+# Fuzz the graph loader with libFuzzer (needs clang; FUZZ_SECONDS=60 by default).
+FUZZ_SECONDS ?= 60
+fuzz:
+	@mkdir -p build/fuzz-corpus
+	clang -std=c11 -D_POSIX_C_SOURCE=200809L -D_DEFAULT_SOURCE -g -O1 \
+	  -fsanitize=fuzzer,address,undefined -Iinclude $(PKG_CFLAGS) \
+	  tests/fuzz/fuzz_graph.c src/graph.c src/util.c \
+	  $(shell pkg-config --libs igraph zlib) -lm -o build/fuzz_graph
+	./build/fuzz_graph -max_total_time=$(FUZZ_SECONDS) build/fuzz-corpus
