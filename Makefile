@@ -23,7 +23,7 @@ SANFLAGS :=
 else
 BUILD := build-$(subst $(comma),-,$(SANITIZE))
 BIN   := $(BUILD)/coterie
-SANFLAGS := -fsanitize=$(SANITIZE) -fno-omit-frame-pointer
+SANFLAGS := -fsanitize=$(SANITIZE) -fno-sanitize-recover=all -fno-omit-frame-pointer
 endif
 
 WARN := -Wall -Wextra -Wshadow -Wstrict-prototypes -Wmissing-prototypes \

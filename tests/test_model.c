@@ -112,7 +112,8 @@ static void test_log1mexp_is_accurate_near_zero(void **state)
 /* Copy of row u as entries. */
 static uint32_t row_copy(const struct model *m, uint32_t u, struct fentry *out)
 {
-	memcpy(out, m->rows[u].e, m->rows[u].nnz * sizeof *out);
+	if (m->rows[u].nnz)
+		memcpy(out, m->rows[u].e, m->rows[u].nnz * sizeof *out);
 	return m->rows[u].nnz;
 }
 
