@@ -506,10 +506,12 @@ static enum fit_state hold(struct fit *f, uint32_t *perm)
  * again inside the largest community (the ego-net of one of its members,
  * restricted to that community), then fits to a plateau again. The move
  * is kept only if the log-likelihood rose; otherwise the model goes back.
- * Moves stop after REFINE_FAILS failures in a row or REFINE_MAX moves.
+ * Moves stop after REFINE_FAILS failures in a row, REFINE_MAX moves, or
+ * when they have used as many sweeps as the climb to the first plateau.
  */
 #define REFINE_MAX 12u
 #define REFINE_FAILS 3u
+#define REFINE_MIN_BUDGET 30u
 
 static int reseed_column(struct fit *f, struct rng *r)
 {
@@ -604,7 +606,12 @@ static enum fit_state refine(struct fit *f, uint32_t *perm)
 	memset(&saved, 0, sizeof saved);
 	enum fit_state st = FIT_LEVELLED;
 	unsigned fails = 0;
-	for (unsigned move = 0; move < REFINE_MAX && fails < REFINE_FAILS; move++) {
+	/* the moves may spend at most as many sweeps as the climb did (and at
+	 * least REFINE_MIN_BUDGET), so refinement at most about doubles a fit */
+	uint32_t budget = f->sweep > REFINE_MIN_BUDGET ? f->sweep : REFINE_MIN_BUDGET;
+	uint32_t spent = 0;
+	for (unsigned move = 0; move < REFINE_MAX && fails < REFINE_FAILS && spent < budget;
+	     move++) {
 		if (atomic_load(&f->stop_req))
 			return FIT_STOPPED;
 		double before = f->trace[f->ntrace - 1].loglik;
@@ -619,6 +626,7 @@ static enum fit_state refine(struct fit *f, uint32_t *perm)
 		}
 		f->streak = 0;
 		st = run_start(f, perm, 0);
+		spent += f->sweep - sweep;
 		if (st == FIT_FAILED) {
 			fcsr_release(&saved);
 			return st;
