@@ -647,3 +647,42 @@ void agm_release(struct agm *a)
 	free(a->comms);
 	memset(a, 0, sizeof *a);
 }
+
+int agm_copy(struct agm *dst, const struct agm *src)
+{
+	memset(dst, 0, sizeof *dst);
+	dst->n = src->n;
+	dst->epsilon = src->epsilon;
+	dst->loglik = src->loglik;
+	dst->covered = src->covered;
+	dst->overlapping = src->overlapping;
+	uint32_t k = src->cover.k;
+	uint64_t total = src->cover.off ? src->cover.off[k] : 0;
+	struct cover *cv = &dst->cover;
+	cv->n = src->cover.n;
+	cv->k = k;
+	cv->off = util_malloc((size_t)k + 1, sizeof *cv->off);
+	cv->mem = util_malloc(total ? total : 1, sizeof *cv->mem);
+	cv->label = util_calloc(k ? k : 1, sizeof *cv->label);
+	dst->strength = util_malloc(total ? total : 1, sizeof *dst->strength);
+	dst->comms = util_malloc(k ? k : 1, sizeof *dst->comms);
+	if (!cv->off || !cv->mem || !cv->label || !dst->strength || !dst->comms)
+		goto fail;
+	if (src->cover.off)
+		memcpy(cv->off, src->cover.off, ((size_t)k + 1) * sizeof *cv->off);
+	else
+		cv->off[0] = 0;
+	if (total) {
+		memcpy(cv->mem, src->cover.mem, total * sizeof *cv->mem);
+		memcpy(dst->strength, src->strength, total * sizeof *dst->strength);
+	}
+	if (k)
+		memcpy(dst->comms, src->comms, k * sizeof *dst->comms);
+	for (uint32_t i = 0; i < k; i++)
+		if (!(cv->label[i] = util_strdup(src->cover.label[i] ? src->cover.label[i] : "")))
+			goto fail;
+	return 0;
+fail:
+	agm_release(dst);
+	return -1;
+}

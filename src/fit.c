@@ -15,9 +15,9 @@
  * was at the start of the block (so it does not matter which thread
  * computes which row), and the new rows are applied in permutation order.
  *
- * Blocks are independent sets (a block closes before a node adjacent to
- * one already in it) of at most n/256 nodes, so the rows computed together
- * interact only through the column sums, and only by a small share of
+ * Blocks are independent sets (a node adjacent to one already in the block
+ * is deferred, in order, to a later block) of at most n/64 nodes, so the
+ * rows computed together interact only through the column sums, and only by a small share of
  * them. Updating linked nodes together (Jacobi) oscillates on small dense
  * graphs; this keeps the sweep close to one-node-at-a-time (Gauss-Seidel).
  * The likelihood is summed over fixed node ranges in a fixed order. So the
@@ -44,10 +44,12 @@
 #include "coterie/rng.h"
 #include "coterie/util.h"
 
-#define BLOCK_NODES 1024u /* a block has at most this many nodes ... */
-#define BLOCK_SHARE 256u  /* ... and at most n / BLOCK_SHARE (at least 1) */
+#define BLOCK_NODES 2048u /* a block has at most this many nodes ... */
+#define BLOCK_SHARE 64u   /* ... and at most n / BLOCK_SHARE (at least 1) */
+#define PEND_MAX (4u * BLOCK_NODES) /* nodes waiting for a later block */
 #define LL_CHUNK 2048u    /* nodes per likelihood part */
 #define RATE_WINDOW 5u    /* sweeps per second over this many sweeps */
+#define AGM_SHARE 4.0     /* rebuild a snapshot's AGM after 4x its cost */
 
 const char *fit_state_name(enum fit_state s)
 {
@@ -126,6 +128,11 @@ struct fit {
 	uint32_t start, starts, best_start;
 	double best_loglik;
 	uint32_t refined;
+	/* the last AGM built for a snapshot, reused while it is recent */
+	struct agm agm;
+	int have_agm;
+	double agm_time, agm_cost;
+	uint32_t agm_sweep;
 
 	/* the pool */
 	unsigned nthreads;
@@ -141,6 +148,8 @@ struct fit {
 	struct arena *arena;
 	struct rowres *res;
 	uint32_t *mark; /* block membership and neighbourhood marks */
+	uint32_t *blk;  /* the nodes of the current block */
+	uint32_t *pend; /* two lists of PEND_MAX nodes waiting for a block */
 	uint32_t epoch;
 	struct model_llpart *parts;
 	uint32_t nparts;
@@ -204,8 +213,19 @@ static int publish(struct fit *f, enum fit_state state)
 	s->sweeps_per_sec = rate_of(f->trace, f->ntrace);
 	if (model_export(&f->m, &s->F))
 		goto fail;
-	if (agm_from_strengths(&s->agm, f->g, &s->F, f->m.epsilon, f->m.delta))
+	double now = util_now();
+	if (state != FIT_FITTING || !f->have_agm || now - f->agm_time >= AGM_SHARE * f->agm_cost) {
+		if (agm_from_strengths(&s->agm, f->g, &s->F, f->m.epsilon, f->m.delta))
+			goto fail;
+		f->agm_time = util_now();
+		f->agm_cost = f->agm_time - now;
+		agm_release(&f->agm);
+		f->have_agm = agm_copy(&f->agm, &s->agm) == 0;
+		f->agm_sweep = f->sweep;
+	} else if (agm_copy(&s->agm, &f->agm)) {
 		goto fail;
+	}
+	s->agm_sweep = f->agm_sweep;
 
 	pthread_mutex_lock(&f->lock);
 	struct snapshot *old = f->latest;
@@ -394,6 +414,15 @@ static int wait_while_paused(struct fit *f)
 }
 
 /* One sweep; returns 1 if interrupted by a stop request, -1 on error. */
+/* Put u in the block at index i and mark it and its neighbours. */
+static void block_add(struct fit *f, uint32_t u, uint32_t i)
+{
+	f->blk[i] = u;
+	f->mark[u] = f->epoch;
+	for (uint64_t e = f->g->off[u]; e < f->g->off[u + 1]; e++)
+		f->mark[f->g->adj[e]] = f->epoch;
+}
+
 static int sweep_once(struct fit *f, uint32_t *perm)
 {
 	uint32_t n = f->g->n;
@@ -409,23 +438,38 @@ static int sweep_once(struct fit *f, uint32_t *perm)
 		cap = 1;
 	if (cap > BLOCK_NODES)
 		cap = BLOCK_NODES;
-	uint32_t i = 0;
-	while (i < n) {
+	/* a node adjacent to one already in the block waits (in order) for a
+	 * later block, so blocks stay large however dense the graph */
+	uint32_t pos = 0, npend = 0;
+	uint32_t *pend = f->pend, *next = f->pend + PEND_MAX;
+	while (pos < n || npend > 0) {
 		if (wait_while_paused(f))
 			return 1;
-		uint32_t b = i;
 		if (++f->epoch == 0) {
 			memset(f->mark, 0, n * sizeof *f->mark);
 			f->epoch = 1;
 		}
-		while (i < n && i - b < cap && f->mark[perm[i]] != f->epoch) {
-			uint32_t u = perm[i++];
-			f->mark[u] = f->epoch;
-			for (uint64_t e = f->g->off[u]; e < f->g->off[u + 1]; e++)
-				f->mark[f->g->adj[e]] = f->epoch;
+		uint32_t nb = 0, nnext = 0;
+		for (uint32_t j = 0; j < npend; j++) {
+			uint32_t u = pend[j];
+			if (nb < cap && f->mark[u] != f->epoch)
+				block_add(f, u, nb++);
+			else
+				next[nnext++] = u;
 		}
-		f->block = perm + b;
-		f->block_len = i - b;
+		while (nb < cap && pos < n && nnext < PEND_MAX) {
+			uint32_t u = perm[pos++];
+			if (f->mark[u] == f->epoch)
+				next[nnext++] = u;
+			else
+				block_add(f, u, nb++);
+		}
+		uint32_t *swap = pend;
+		pend = next;
+		next = swap;
+		npend = nnext;
+		f->block = f->blk;
+		f->block_len = nb;
 		for (unsigned t = 0; t < f->nthreads; t++)
 			f->arena[t].len = 0;
 		f->job = JOB_ROWS;
@@ -817,7 +861,9 @@ struct fit *fit_new(const struct graph *g, const struct fit_params *p,
 	f->nparts = (g->n + LL_CHUNK - 1) / LL_CHUNK;
 	f->parts = util_calloc(f->nparts, sizeof *f->parts);
 	f->mark = util_calloc(g->n, sizeof *f->mark);
-	if (!f->work || !f->arena || !f->res || !f->parts || !f->mark)
+	f->blk = util_calloc(BLOCK_NODES, sizeof *f->blk);
+	f->pend = util_calloc(2 * PEND_MAX, sizeof *f->pend);
+	if (!f->work || !f->arena || !f->res || !f->parts || !f->mark || !f->blk || !f->pend)
 		goto fail;
 	for (unsigned t = 0; t < f->nthreads; t++)
 		if (!(f->work[t] = model_work_new(p->k)))
@@ -951,6 +997,7 @@ void fit_free(struct fit *f)
 		fit_wait(f);
 	}
 	snapshot_release(f->latest);
+	agm_release(&f->agm);
 	model_release(&f->m);
 	if (f->work)
 		for (unsigned t = 0; t < f->nthreads; t++)
@@ -963,6 +1010,8 @@ void fit_free(struct fit *f)
 	free(f->res);
 	free(f->parts);
 	free(f->mark);
+	free(f->blk);
+	free(f->pend);
 	free(f->trace);
 	free(f->workers);
 	for (int i = 0; i < 2; i++)

@@ -39,10 +39,33 @@ int util_quiet(void)
 	return q;
 }
 
+/* Replace control bytes (C0, DEL) in a message by \xNN, in place into
+ * out: a name from a file or the command line that a caller forgot to
+ * escape still never reaches the terminal raw. Backslashes are left as
+ * they are, so names escaped by util_escape() read the same. C1 controls
+ * in UTF-8 (U+0080..U+009F, bytes C2 80..C2 9F) are escaped too. */
+static void defuse(const char *in, char *out, size_t cap)
+{
+	size_t o = 0;
+	const unsigned char *p = (const unsigned char *)in;
+	for (; *p && o + 5 < cap; p++) {
+		if (*p < 0x20 || *p == 0x7f || (*p == 0xc2 && p[1] >= 0x80 && p[1] <= 0x9f)) {
+			unsigned v = *p == 0xc2 ? p[1] : *p;
+			if (*p == 0xc2)
+				p++;
+			o += (size_t)snprintf(out + o, cap - o, "\\x%02x", v);
+		} else {
+			out[o++] = (char)*p;
+		}
+	}
+	out[o] = '\0';
+}
+
 static void emit(int level, const char *fmt, va_list ap)
 {
-	char msg[2048];
-	vsnprintf(msg, sizeof msg, fmt, ap);
+	char raw[2048], msg[4096];
+	vsnprintf(raw, sizeof raw, fmt, ap);
+	defuse(raw, msg, sizeof msg);
 	pthread_mutex_lock(&sink_lock);
 	if (level == UTIL_NOTICE && quiet) {
 		pthread_mutex_unlock(&sink_lock);

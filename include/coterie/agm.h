@@ -70,6 +70,9 @@ int agm_estimate_p(const struct graph *g, const struct cover *c, double epsilon,
  * community with p > 0); NAN (with error()) on bad input. */
 double agm_loglik(const struct graph *g, const struct cover *c, const double *p, double epsilon);
 
+/* A deep copy of src into dst (all owned by dst). Returns 0 or -1. */
+int agm_copy(struct agm *dst, const struct agm *src);
+
 void agm_release(struct agm *a);
 
 #endif

@@ -93,7 +93,13 @@ struct snapshot {
 	uint32_t ntrace;
 	struct trace_point *trace;
 	struct fcsr F;           /* a copy of the strengths */
-	struct agm agm;          /* memberships and figures read from F */
+	struct agm agm;          /* memberships and figures read from F as it
+				  * was after sweep agm_sweep: while fitting,
+				  * the AGM is rebuilt only as often as keeps
+				  * its cost under a fifth of the time; every
+				  * snapshot that ends or pauses a fit has a
+				  * fresh one (agm_sweep == sweep) */
+	uint32_t agm_sweep;
 	struct seed_report seeds;
 	/* private */
 	int refs_;

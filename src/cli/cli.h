@@ -28,6 +28,11 @@ uint32_t cli_u32(const char *opt, const char *s, uint32_t lo, uint32_t hi);
 uint64_t cli_u64(const char *opt, const char *s);
 double cli_double(const char *opt, const char *s, double lo, double hi);
 
+/* getopt's own messages print the argument raw: commands set opterr = 0,
+ * pass a leading ':' in the option string, and on '?' or ':' call this,
+ * which reports the offending option escaped. */
+void cli_option_error(int c, char **argv);
+
 /* Signals: SIGINT, SIGTERM and SIGHUP set a flag and wake cli_signal_fd()
  * (a pipe) so a poll() loop notices; nothing else happens in the handler. */
 int cli_signals_install(void);

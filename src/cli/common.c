@@ -3,6 +3,7 @@
 
 #include <errno.h>
 #include <fcntl.h>
+#include <getopt.h>
 #include <langinfo.h>
 #include <math.h>
 #include <signal.h>
@@ -66,6 +67,17 @@ double cli_double(const char *opt, const char *s, double lo, double hi)
 	if (errno || end == s || *end || !isfinite(v) || v < lo || v > hi)
 		die(EXIT_USAGE, "%s expects a number from %g to %g, not '%s'", opt, lo, hi, s);
 	return v;
+}
+
+void cli_option_error(int c, char **argv)
+{
+	char buf[256];
+	if (c == ':')
+		error("option '%s' needs a value", util_escape(argv[optind - 1], buf, sizeof buf, 1));
+	else if (optopt && optopt != '?')
+		error("unknown option '-%c'", (optopt > 32 && optopt < 127) ? optopt : '?');
+	else
+		error("unknown option '%s'", util_escape(argv[optind - 1], buf, sizeof buf, 1));
 }
 
 static volatile sig_atomic_t caught;

@@ -153,7 +153,8 @@ int cmd_fit(int argc, char **argv)
 	double save_every = 120.0;
 	int c;
 	optind = 1;
-	while ((c = getopt_long(argc, argv, "k:o:j:qh", opts, NULL)) != -1) {
+	opterr = 0;
+	while ((c = getopt_long(argc, argv, ":k:o:j:qh", opts, NULL)) != -1) {
 		switch (c) {
 		case 'k': p.k = cli_u32("-k", optarg, 1, MODEL_MAX_K); have_k = 1; break;
 		case 'o': out = optarg; break;
@@ -177,7 +178,10 @@ int cmd_fit(int argc, char **argv)
 		case OPT_SAVE_EVERY: save_every = cli_double("--save-every", optarg, 1.0, 1e9); break;
 		case 'q': quiet = 1; break;
 		case 'h': fit_usage(stdout); return 0;
-		default: fit_usage(stderr); return EXIT_USAGE;
+		default:
+			cli_option_error(c, argv);
+			fprintf(stderr, "try 'coterie fit --help'\n");
+			return EXIT_USAGE;
 		}
 	}
 	if (argc - optind > 1)
