@@ -197,6 +197,7 @@ static int publish(struct fit *f, enum fit_state state)
 	s->starts = f->starts;
 	s->best_start = f->best_start;
 	s->best_loglik = f->best_loglik;
+	s->refined = f->refined;
 	s->state = state;
 	s->plateau_sweep = f->plateau_sweep;
 	s->plateau = f->plateau_sweep > 0;
@@ -701,7 +702,7 @@ struct best {
 	int have;
 	struct fcsr F;
 	struct trace_point *trace;
-	uint32_t ntrace, sweep, plateau_sweep;
+	uint32_t ntrace, sweep, plateau_sweep, refined;
 	enum fit_state state;
 };
 
@@ -719,6 +720,7 @@ static int keep_best(struct fit *f, struct best *b, enum fit_state st)
 	b->ntrace = f->ntrace;
 	b->sweep = f->sweep;
 	b->plateau_sweep = f->plateau_sweep;
+	b->refined = f->refined;
 	b->state = st;
 	b->have = 1;
 	f->best_start = f->start;
@@ -734,6 +736,7 @@ static int restore_best(struct fit *f, struct best *b)
 	f->ntrace = b->ntrace;
 	f->sweep = b->sweep;
 	f->plateau_sweep = b->plateau_sweep;
+	f->refined = b->refined;
 	return 0;
 }
 
@@ -763,6 +766,7 @@ static void *fit_main(void *arg)
 			model_recount(&f->m);
 			f->ntrace = 0;
 			f->sweep = 0;
+			f->refined = 0;
 			f->streak = 0;
 			f->plateau_sweep = 0;
 		}

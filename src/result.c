@@ -1356,6 +1356,8 @@ static char *run_json(const struct graph *g, const struct fit_params *p,
 	j_set(jp, "epsilon", j_real(s->epsilon), &bad);
 	j_set(jp, "delta", j_real(s->delta), &bad);
 	j_set(jp, "past_plateau", json_boolean(p->past_plateau), &bad);
+	j_set(jp, "starts", j_uint(p->starts), &bad);
+	j_set(jp, "refine", json_boolean(!p->no_refine), &bad);
 	j_set(root, "parameters", jp, &bad);
 
 	uint32_t nonempty = 0;
@@ -1374,6 +1376,8 @@ static char *run_json(const struct graph *g, const struct fit_params *p,
 	j_set(jf, "communities", j_uint(nonempty), &bad);
 	j_set(jf, "covered_nodes", j_uint(s->agm.covered), &bad);
 	j_set(jf, "overlapping_nodes", j_uint(s->agm.overlapping), &bad);
+	j_set(jf, "start_kept", s->best_start ? j_uint(s->best_start) : json_null(), &bad);
+	j_set(jf, "refinements_kept", j_uint(s->refined), &bad);
 	j_set(root, "fit", jf, &bad);
 
 	j_set(jr, "wall_seconds", meta ? j_real(meta->wall_seconds) : json_null(), &bad);

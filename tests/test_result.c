@@ -524,15 +524,17 @@ static void test_run_json_has_every_key_in_order_with_values(void **state)
 					     "lines", "self_loops", "duplicates", "extra_columns",
 					     "isolated", "directed_input" };
 	static const char *const params[] = { "k", "threads", "seed", "tol", "patience",
-					      "max_sweeps", "epsilon", "delta", "past_plateau" };
+					      "max_sweeps", "epsilon", "delta", "past_plateau",
+					      "starts", "refine" };
 	static const char *const fit[] = { "status", "state", "sweeps", "plateau_sweep",
 					   "seconds", "loglik", "agm_loglik", "communities",
-					   "covered_nodes", "overlapping_nodes" };
+					   "covered_nodes", "overlapping_nodes", "start_kept",
+					   "refinements_kept" };
 	static const char *const run[] = { "wall_seconds", "peak_rss_kb" };
 	assert_keys(root, top, 6);
 	assert_keys(get(root, "graph", NULL), graph, 11);
-	assert_keys(get(root, "parameters", NULL), params, 9);
-	assert_keys(get(root, "fit", NULL), fit, 10);
+	assert_keys(get(root, "parameters", NULL), params, 11);
+	assert_keys(get(root, "fit", NULL), fit, 12);
 	assert_keys(get(root, "run", NULL), run, 2);
 
 	assert_int_equal(json_integer_value(get(root, "coterie", "format")), 1);

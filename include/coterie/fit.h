@@ -84,6 +84,7 @@ struct snapshot {
 	uint32_t start, starts;  /* which start this is (1-based), of how many */
 	uint32_t best_start;     /* the most likely start so far (0: none done) */
 	double best_loglik;      /* its final log-likelihood */
+	uint32_t refined;        /* refinement moves kept in this start */
 	enum fit_state state;
 	int plateau;             /* the plateau rule has fired */
 	uint32_t plateau_sweep;  /* where it first fired (0: not yet) */
