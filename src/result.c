@@ -69,11 +69,14 @@
  *   parameters        k, threads, seed (an integer; a decimal string when
  *                     above 2^63 - 1), tol, patience, max_sweeps, epsilon
  *                     (the background actually used), delta (the
- *                     membership threshold), past_plateau (boolean)
+ *                     membership threshold), past_plateau (boolean),
+ *                     starts, refine (boolean)
  *   fit               status, state, sweeps, plateau_sweep (null before
  *                     the plateau rule fired), seconds, loglik (last
  *                     trace value), agm_loglik, communities (non-empty
- *                     ones), covered_nodes, overlapping_nodes
+ *                     ones), covered_nodes, overlapping_nodes,
+ *                     start_kept (null for a resumed fit),
+ *                     refinements_kept
  *   run               wall_seconds, peak_rss_kb (null when unknown)
  *   A number that is not finite is written as null. A string that is
  *   not valid UTF-8 is written with C escapes, in ASCII.

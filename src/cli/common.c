@@ -53,7 +53,7 @@ uint64_t cli_u64(const char *opt, const char *s)
 {
 	char *end;
 	errno = 0;
-	unsigned long long v = strtoull(s, &end, 0);
+	unsigned long long v = strtoull(s, &end, 10);
 	if (errno || end == s || *end || s[0] == '-')
 		die(EXIT_USAGE, "%s expects a whole number, not '%s'", opt, s);
 	return (uint64_t)v;
