@@ -149,11 +149,18 @@ double model_log1mexp(double x)
 void model_loglik_range(const struct model *m, const struct graph *g, uint32_t u0, uint32_t u1,
 			struct model_llpart *part)
 {
-	part->edge_log = part->edge_dot = part->self_sq = 0.0;
+	part->edge_log = part->edge_dot = part->self_sq = part->excl_dot = 0.0;
 	for (uint32_t u = u0; u < u1; u++) {
 		const struct frow *ru = &m->rows[u];
 		for (uint32_t i = 0; i < ru->nnz; i++)
 			part->self_sq += ru->e[i].v * ru->e[i].v;
+		if (m->excl)
+			for (uint64_t i = m->excl->off[u]; i < m->excl->off[u + 1]; i++) {
+				uint32_t v = m->excl->adj[i];
+				if (v > u)
+					part->excl_dot += model_dot(ru->e, ru->nnz, m->rows[v].e,
+								    m->rows[v].nnz);
+			}
 		for (uint64_t i = g->off[u]; i < g->off[u + 1]; i++) {
 			uint32_t v = g->adj[i];
 			if (v < u)
@@ -169,21 +176,22 @@ void model_loglik_range(const struct model *m, const struct graph *g, uint32_t u
 double model_loglik_combine(const struct model *m, const struct graph *g,
 			    const struct model_llpart *parts, size_t nparts)
 {
-	double edge_log = 0.0, edge_dot = 0.0, self_sq = 0.0, col_sq = 0.0;
+	double edge_log = 0.0, edge_dot = 0.0, self_sq = 0.0, col_sq = 0.0, excl_dot = 0.0;
 	for (size_t i = 0; i < nparts; i++) {
 		edge_log += parts[i].edge_log;
 		edge_dot += parts[i].edge_dot;
 		self_sq += parts[i].self_sq;
+		excl_dot += parts[i].excl_dot;
 	}
 	for (uint32_t c = 0; c < m->k; c++)
 		col_sq += m->colsum[c] * m->colsum[c];
 	/* sum over all pairs u<v of x_uv = (|colsum|^2 - sum_u |F_u|^2) / 2 */
 	double all_dot = 0.5 * (col_sq - self_sq);
-	double nonedge_dot = all_dot - edge_dot;
+	double nonedge_dot = all_dot - edge_dot - excl_dot;
 	if (nonedge_dot < 0.0)
 		nonedge_dot = 0.0; /* rounding only */
 	double n = g->n;
-	double nonedges = 0.5 * n * (n - 1.0) - (double)g->m;
+	double nonedges = 0.5 * n * (n - 1.0) - (double)g->m - (m->excl ? (double)m->excl->m : 0.0);
 	return edge_log - nonedge_dot - m->qeps * nonedges;
 }
 
@@ -250,7 +258,7 @@ struct model_work {
 	uint32_t k;
 	double *cur;      /* dense F_u over candidates */
 	double *trial;    /* dense trial row over candidates */
-	double *nbrsum;   /* dense sum of neighbour rows */
+	double *nbrsum;   /* dense sum of neighbour (and held-out partner) rows */
 	double *acc;      /* dense gradient accumulator */
 	uint32_t *stamp;  /* candidate marks */
 	uint32_t epoch;
@@ -329,6 +337,16 @@ static void gather(const struct model *m, const struct graph *g, uint32_t u, str
 			w->nbrsum[rv->e[j].c] += rv->e[j].v;
 		}
 	}
+	/* held-out partners are neither edges nor non-edges: their rows leave
+	 * the non-edge sum exactly as neighbours' rows do */
+	if (m->excl)
+		for (uint64_t i = m->excl->off[u]; i < m->excl->off[u + 1]; i++) {
+			const struct frow *rv = &m->rows[m->excl->adj[i]];
+			for (uint32_t j = 0; j < rv->nnz; j++) {
+				add_candidate(w, rv->e[j].c);
+				w->nbrsum[rv->e[j].c] += rv->e[j].v;
+			}
+		}
 }
 
 /* Dot of a dense row (over candidates) with a sparse neighbour row. */

@@ -62,12 +62,15 @@ static double dense_dot(const struct model *m, uint32_t u, uint32_t v)
 	return s;
 }
 
-/* l(F) over all pairs, straight from the definition. */
+/* l(F) over all pairs, straight from the definition (held-out pairs in
+ * m->excl skipped). */
 static double direct_loglik(const struct model *m, const struct graph *g)
 {
 	double l = 0;
 	for (uint32_t u = 0; u < g->n; u++)
 		for (uint32_t v = u + 1; v < g->n; v++) {
+			if (m->excl && graph_has_edge(m->excl, u, v))
+				continue;
 			double x = dense_dot(m, u, v) + m->qeps;
 			/* log(1 - e^-x) in the accurate form log(-expm1(-x)): the naive
 			 * one loses every digit at x ~ 1e-9 */
@@ -283,6 +286,67 @@ static void test_default_epsilon_is_density(void **state)
 	graph_free(g);
 }
 
+/* A random graph and a disjoint random set of held-out pairs. */
+static void random_split(struct rng *r, uint32_t n, double p, double hold, struct graph **g,
+			 struct graph **excl)
+{
+	uint32_t *e = malloc(sizeof *e * n * n), *h = malloc(sizeof *h * n * n);
+	uint64_t ne = 0, nh = 0;
+	for (uint32_t u = 0; u < n; u++)
+		for (uint32_t v = u + 1; v < n; v++) {
+			if (rng_uniform(r) < hold) {
+				h[2 * nh] = u;
+				h[2 * nh + 1] = v;
+				nh++;
+			} else if (rng_uniform(r) < p) {
+				e[2 * ne] = u;
+				e[2 * ne + 1] = v;
+				ne++;
+			}
+		}
+	*g = graph_from_pairs(n, e, ne, NULL);
+	*excl = graph_from_pairs(n, h, nh, NULL);
+	free(e);
+	free(h);
+	assert_non_null(*g);
+	assert_non_null(*excl);
+}
+
+static void test_held_out_pairs_leave_the_likelihood(void **state)
+{
+	(void)state;
+	/* the definition with the held-out pairs simply left out of both sums,
+	 * against the column-sum forms of the whole and the row objective */
+	struct rng r;
+	rng_init(&r, 16);
+	for (int trial = 0; trial < 20; trial++) {
+		uint32_t n = 6 + (uint32_t)rng_below(&r, 15), k = 1 + (uint32_t)rng_below(&r, 5);
+		struct graph *g, *x;
+		random_split(&r, n, 0.35, 0.2, &g, &x);
+		struct model m;
+		random_model(&r, &m, n, k, 0.02, 0.6);
+		m.excl = x;
+		double fast = model_loglik(&m, g), slow = direct_loglik(&m, g);
+		assert_true(fabs(fast - slow) <= 1e-9 * (1.0 + fabs(slow)));
+		struct model_work *w = model_work_new(k);
+		uint32_t u = (uint32_t)rng_below(&r, n);
+		struct fentry cur[16], tr[16];
+		uint32_t ncur = row_copy(&m, u, cur), nt = 0;
+		for (uint32_t c = 0; c < k; c++)
+			if (rng_uniform(&r) < 0.7)
+				tr[nt++] = (struct fentry){ c, 0.1 + rng_uniform(&r) };
+		double o0 = model_row_objective(&m, g, u, cur, ncur, w);
+		double o1 = model_row_objective(&m, g, u, tr, nt, w);
+		assert_int_equal(model_set_row(&m, u, tr, nt), 0);
+		double l1 = direct_loglik(&m, g);
+		assert_true(fabs((l1 - slow) - (o1 - o0)) <= 1e-9 * (1.0 + fabs(l1)));
+		model_work_free(w);
+		model_release(&m);
+		graph_free(g);
+		graph_free(x);
+	}
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -294,6 +358,7 @@ int main(void)
 		cmocka_unit_test(test_export_import_round_trip),
 		cmocka_unit_test(test_model_refuses_bad_shapes),
 		cmocka_unit_test(test_default_epsilon_is_density),
+		cmocka_unit_test(test_held_out_pairs_leave_the_likelihood),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }

@@ -49,6 +49,10 @@ struct model {
 	double delta;   /* membership threshold sqrt(qeps) */
 	struct frow *rows; /* n rows */
 	double *colsum;    /* k column sums */
+	/* Held-out pairs (borrowed, may be NULL): pairs left out of the
+	 * likelihood altogether, neither edges nor non-edges. Must not share
+	 * a pair with the graph's edges. Used to choose k. */
+	const struct graph *excl;
 };
 
 /* Immutable strengths in compressed rows: what snapshots, checkpoints and
@@ -82,7 +86,8 @@ double model_dot(const struct fentry *a, uint32_t na, const struct fentry *b, ui
  * for large; -inf at 0. */
 double model_log1mexp(double x);
 
-/* The whole-graph log-likelihood l(F) above, in O(m nnz + n nnz). */
+/* The whole-graph log-likelihood l(F) above, in O(m nnz + n nnz); pairs
+ * in m->excl are left out. */
 double model_loglik(const struct model *m, const struct graph *g);
 
 /* The same in pieces, so threads can share the work: the parts over nodes
@@ -92,6 +97,7 @@ struct model_llpart {
 	double edge_log; /* sum over edges of log(1 - exp(-(x + qeps))) */
 	double edge_dot; /* sum over edges of x */
 	double self_sq;  /* sum over nodes of F_u . F_u */
+	double excl_dot; /* sum over held-out pairs of x */
 };
 void model_loglik_range(const struct model *m, const struct graph *g, uint32_t u0, uint32_t u1,
 			struct model_llpart *part);
@@ -121,7 +127,8 @@ void model_work_free(struct model_work *w);
 /* The row objective of u if its row were r (nnz entries): the terms of
  * l(F) that involve u, namely
  *   sum_{v in N(u)} log(1 - exp(-(r . F_v + qeps))) - r . (colsum - F_u - sum_{v in N(u)} F_v)
- * where F_u is u's current row in the model. */
+ * where F_u is u's current row in the model (held-out partners of u, if
+ * any, are subtracted in the last sum like neighbours). */
 double model_row_objective(const struct model *m, const struct graph *g, uint32_t u,
 			   const struct fentry *r, uint32_t nnz, struct model_work *w);
 
