@@ -48,6 +48,7 @@
 #define BLOCK_SHARE 64u   /* ... and at most n / BLOCK_SHARE (at least 1) */
 #define PEND_MAX (4u * BLOCK_NODES) /* nodes waiting for a later block */
 #define LL_CHUNK 2048u    /* nodes per likelihood part */
+#define POOL_MIN_ROWS 32u /* smaller blocks run on the fitting thread alone */
 #define RATE_WINDOW 5u    /* sweeps per second over this many sweeps */
 #define AGM_SHARE 4.0     /* rebuild a snapshot's AGM after 4x its cost */
 
@@ -323,14 +324,17 @@ static void *worker_main(void *arg)
 	return NULL;
 }
 
-/* Run the current job on every thread; returns when all are done. */
+/* Run the current job on every thread; returns when all are done. A
+ * small block runs on the fitting thread alone: waking the pool would
+ * cost more than it saves (who computes a row never changes the row). */
 static void pool_run(struct fit *f)
 {
 	atomic_store(&f->next, 0);
-	if (f->nthreads > 1)
+	int alone = f->job == JOB_ROWS ? f->block_len < POOL_MIN_ROWS : f->nparts < 2;
+	if (f->nthreads > 1 && !alone)
 		pthread_barrier_wait(&f->bar_start);
 	run_job(f, 0);
-	if (f->nthreads > 1)
+	if (f->nthreads > 1 && !alone)
 		pthread_barrier_wait(&f->bar_end);
 }
 
@@ -898,6 +902,11 @@ struct fit *fit_new(const struct graph *g, const struct fit_params *p,
 fail:
 	fit_free(f);
 	return NULL;
+}
+
+void fit_exclude(struct fit *f, const struct graph *excl)
+{
+	f->m.excl = excl;
 }
 
 int fit_start(struct fit *f)

@@ -70,7 +70,8 @@
  *                     above 2^63 - 1), tol, patience, max_sweeps, epsilon
  *                     (the background actually used), delta (the
  *                     membership threshold), past_plateau (boolean),
- *                     starts, refine (boolean)
+ *                     starts, refine (boolean), k_chosen_by ("given",
+ *                     or "held-out likelihood" for -k auto)
  *   fit               status, state, sweeps, plateau_sweep (null before
  *                     the plateau rule fired), seconds, loglik (last
  *                     trace value), agm_loglik, communities (non-empty
@@ -107,6 +108,7 @@
  *   strengths not in (0, MODEL_FMAX], not sorted, or with a community >= k.
  */
 #include "coterie/result.h"
+#include "coterie/select.h"
 
 #include <errno.h>
 #include <fcntl.h>
@@ -1272,6 +1274,37 @@ static int fill_trace(struct wfile *w, const void *arg)
 	return 0;
 }
 
+struct sel_args {
+	const struct select_point *pts;
+	uint32_t n, best;
+};
+
+static int fill_selection(struct wfile *w, const void *arg)
+{
+	const struct sel_args *a = arg;
+	wf_str(w, "k\theldout_loglik\tsweeps\tseconds\tchosen\n");
+	for (uint32_t i = 0; i < a->n && !w->err; i++) {
+		const struct select_point *pt = &a->pts[i];
+		wf_printf(w, "%" PRIu32 "\t%.17g\t%" PRIu32 "\t%.3f\t%s\n", pt->k, pt->heldout,
+			  pt->sweeps, pt->seconds, pt->k == a->best ? "yes" : "no");
+	}
+	return 0;
+}
+
+int result_write_selection(const char *dir, const struct select_point *pts, uint32_t n,
+			   uint32_t best)
+{
+	if (make_dirs(dir))
+		return -1;
+	char *path = path_join(dir, RESULT_SELECTION);
+	if (!path)
+		return -1;
+	struct sel_args a = { pts, n, best };
+	int rc = atomic_write(path, fill_selection, &a);
+	free(path);
+	return rc;
+}
+
 /* ------------------------------------------------------------------ */
 /* run.json */
 
@@ -1361,6 +1394,7 @@ static char *run_json(const struct graph *g, const struct fit_params *p,
 	j_set(jp, "past_plateau", json_boolean(p->past_plateau), &bad);
 	j_set(jp, "starts", j_uint(p->starts), &bad);
 	j_set(jp, "refine", json_boolean(!p->no_refine), &bad);
+	j_set(jp, "k_chosen_by", j_str(meta && meta->k_auto ? "held-out likelihood" : "given"), &bad);
 	j_set(root, "parameters", jp, &bad);
 
 	uint32_t nonempty = 0;

@@ -11,6 +11,7 @@
 #include "coterie/cover.h"
 #include "coterie/graph.h"
 #include "coterie/model.h"
+#include "coterie/rng.h"
 
 void assert_graph_sane(const struct graph *g)
 {
@@ -119,3 +120,48 @@ const char *test_write_file(const char *dir, const char *name, const char *text)
 	fclose(f);
 	return path;
 }
+
+/*
+ * A small AGM sampler: 8 communities of 60 nodes on a ring of 400, each
+ * overlapping the next by 10 nodes, so 80 nodes are in two communities.
+ * Each community links its members with probability 0.3, every pair with
+ * background 0.002 (P = 1 - (1 - eps) prod (1 - p_c), as in the AGM).
+ */
+struct graph *test_planted_ring(struct cover *truth, uint64_t seed)
+{
+	const uint32_t n = 400, k = 8, size = 60, step = 50;
+	const double pc = 0.3, eps = 0.002;
+	uint32_t *node = malloc(sizeof *node * k * size), *comm = malloc(sizeof *comm * k * size);
+	for (uint32_t c = 0; c < k; c++)
+		for (uint32_t i = 0; i < size; i++) {
+			node[c * size + i] = (c * step + i) % n;
+			comm[c * size + i] = c;
+		}
+	assert_int_equal(cover_from_pairs(truth, n, node, comm, (uint64_t)k * size), 0);
+	free(node);
+	free(comm);
+	struct rng r;
+	rng_init(&r, seed);
+	uint32_t *pairs = malloc(sizeof *pairs * n * n);
+	uint64_t np = 0;
+	for (uint32_t u = 0; u < n; u++)
+		for (uint32_t v = u + 1; v < n; v++) {
+			double stay = 1.0 - eps;
+			for (uint32_t c = 0; c < k; c++) {
+				uint32_t lo = c * step, hi = lo + size; /* ring interval [lo, hi) */
+				int iu = (u >= lo && u < hi) || (u + n >= lo && u + n < hi);
+				int iv = (v >= lo && v < hi) || (v + n >= lo && v + n < hi);
+				if (iu && iv)
+					stay *= 1.0 - pc;
+			}
+			if (rng_uniform(&r) < 1.0 - stay) {
+				pairs[2 * np] = u;
+				pairs[2 * np + 1] = v;
+				np++;
+			}
+		}
+	struct graph *g = graph_from_pairs(n, pairs, np, NULL);
+	free(pairs);
+	return g;
+}
+

@@ -28,4 +28,10 @@ void test_rmtree(const char *dir);
 /* Write a string to a file; returns the path (static buffer). */
 const char *test_write_file(const char *dir, const char *name, const char *text);
 
+/* A planted AGM (generator of the tests, not the simulate command): 8
+ * communities of 60 nodes on a ring of 400, each overlapping the next by
+ * 10 nodes (80 nodes in two); p_c 0.3 inside, background 0.002. The truth
+ * goes to *truth (release with cover_release()). */
+struct graph *test_planted_ring(struct cover *truth, uint64_t seed);
+
 #endif

@@ -261,55 +261,11 @@ static void test_football_fit_rivals_leiden_on_conferences(void **state)
 	graph_free(g);
 }
 
-/*
- * A small AGM sampler: 8 communities of 60 nodes on a ring of 400, each
- * overlapping the next by 10 nodes, so 80 nodes are in two communities.
- * Each community links its members with probability 0.3, every pair with
- * background 0.002 (P = 1 - (1 - eps) prod (1 - p_c), as in the AGM).
- */
-static struct graph *planted(struct cover *truth, uint64_t seed)
-{
-	const uint32_t n = 400, k = 8, size = 60, step = 50;
-	const double pc = 0.3, eps = 0.002;
-	uint32_t *node = malloc(sizeof *node * k * size), *comm = malloc(sizeof *comm * k * size);
-	for (uint32_t c = 0; c < k; c++)
-		for (uint32_t i = 0; i < size; i++) {
-			node[c * size + i] = (c * step + i) % n;
-			comm[c * size + i] = c;
-		}
-	assert_int_equal(cover_from_pairs(truth, n, node, comm, (uint64_t)k * size), 0);
-	free(node);
-	free(comm);
-	struct rng r;
-	rng_init(&r, seed);
-	uint32_t *pairs = malloc(sizeof *pairs * n * n);
-	uint64_t np = 0;
-	for (uint32_t u = 0; u < n; u++)
-		for (uint32_t v = u + 1; v < n; v++) {
-			double stay = 1.0 - eps;
-			for (uint32_t c = 0; c < k; c++) {
-				uint32_t lo = c * step, hi = lo + size; /* ring interval [lo, hi) */
-				int iu = (u >= lo && u < hi) || (u + n >= lo && u + n < hi);
-				int iv = (v >= lo && v < hi) || (v + n >= lo && v + n < hi);
-				if (iu && iv)
-					stay *= 1.0 - pc;
-			}
-			if (rng_uniform(&r) < 1.0 - stay) {
-				pairs[2 * np] = u;
-				pairs[2 * np + 1] = v;
-				np++;
-			}
-		}
-	struct graph *g = graph_from_pairs(n, pairs, np, NULL);
-	free(pairs);
-	return g;
-}
-
 static void test_planted_overlapping_cover_is_recovered(void **state)
 {
 	(void)state;
 	struct cover truth, leiden;
-	struct graph *g = planted(&truth, 2026);
+	struct graph *g = test_planted_ring(&truth, 2026);
 	assert_non_null(g);
 	assert_cover_sane(&truth);
 	struct snapshot *s = run_fit(g, 8, 2, 1, 500);

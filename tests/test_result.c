@@ -525,7 +525,7 @@ static void test_run_json_has_every_key_in_order_with_values(void **state)
 					     "isolated", "directed_input" };
 	static const char *const params[] = { "k", "threads", "seed", "tol", "patience",
 					      "max_sweeps", "epsilon", "delta", "past_plateau",
-					      "starts", "refine" };
+					      "starts", "refine", "k_chosen_by" };
 	static const char *const fit[] = { "status", "state", "sweeps", "plateau_sweep",
 					   "seconds", "loglik", "agm_loglik", "communities",
 					   "covered_nodes", "overlapping_nodes", "start_kept",
@@ -533,7 +533,7 @@ static void test_run_json_has_every_key_in_order_with_values(void **state)
 	static const char *const run[] = { "wall_seconds", "peak_rss_kb" };
 	assert_keys(root, top, 6);
 	assert_keys(get(root, "graph", NULL), graph, 11);
-	assert_keys(get(root, "parameters", NULL), params, 11);
+	assert_keys(get(root, "parameters", NULL), params, 12);
 	assert_keys(get(root, "fit", NULL), fit, 12);
 	assert_keys(get(root, "run", NULL), run, 2);
 
@@ -1174,7 +1174,7 @@ static void test_resume_through_the_checkpoint_matches_the_uninterrupted_fit(voi
 	struct snapshot *half = fit_karate(g, &p, NULL);
 
 	const char *dir = test_tmpdir();
-	struct result_meta meta = { "coterie fit karate", "karate/edges.tsv", 1.0, 0, "finished" };
+	struct result_meta meta = { "coterie fit karate", "karate/edges.tsv", 1.0, 0, "finished", 0 };
 	assert_int_equal(result_write(dir, g, &p, half, &meta), 0);
 
 	/* the folder agrees with the snapshot it was written from */

@@ -128,6 +128,11 @@ struct fit *fit_new(const struct graph *g, const struct fit_params *p,
 /* Stops and joins the thread if running, then frees. fit_free(NULL) is a no-op. */
 void fit_free(struct fit *f);
 
+/* Leave the pairs of excl (borrowed; same nodes as the graph, no pair in
+ * common with its edges) out of the likelihood, as held-out pairs. Call
+ * before fit_start(). */
+void fit_exclude(struct fit *f, const struct graph *excl);
+
 /* Launch the fitting thread. Returns 0 or -1. */
 int fit_start(struct fit *f);
 void fit_pause(struct fit *f);

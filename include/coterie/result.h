@@ -25,6 +25,14 @@ struct graph;
 
 #define RESULT_CHECKPOINT "checkpoint.cot"
 #define RESULT_CHECKPOINT_VERSION 1u
+#define RESULT_SELECTION "kselect.tsv"
+
+struct select_point;
+
+/* Write DIR/kselect.tsv (k, held-out log-likelihood, sweeps, seconds,
+ * chosen) for a -k auto search, atomically. Returns 0 or -1. */
+int result_write_selection(const char *dir, const struct select_point *pts, uint32_t n,
+			   uint32_t best);
 
 /* What run.json records beyond the snapshot. All borrowed. */
 struct result_meta {
@@ -33,6 +41,7 @@ struct result_meta {
 	double wall_seconds;        /* of this invocation */
 	uint64_t peak_rss_kb;       /* 0 if unknown */
 	const char *status;         /* e.g. "levelled", "stopped", "interrupted" */
+	int k_auto;                 /* k was chosen by held-out likelihood */
 };
 
 /* Create dir (and parents) if needed and prove it can be written by

@@ -9,8 +9,9 @@
  * --resume (or 'e' in the explorer) continues its fit.
  *
  * Where results go: -o DIR; else for a folder, the folder itself; else
- * ./NAME.coterie in the current folder (NAME from the graph file, with a
- * -2, -3, ... suffix when that folder exists and is not empty). Nothing is
+ * ./NAME.coterie in the current folder (NAME from the graph file, or its
+ * folder for names like edges.tsv, with a -2, -3, ... suffix when that
+ * folder exists and is not empty). Nothing is
  * written until the user asks, quits with unsaved work, or a signal comes.
  */
 #include <dirent.h>
@@ -41,6 +42,9 @@ static void explore_usage(FILE *out)
 		"                        (default: DIR itself, or ./NAME.coterie for a graph)\n"
 		"  -j, --threads N       worker threads (default: every core)\n"
 		"      --seed N          random seed (default 1)\n"
+		"      --starts N        fit N times and keep the most likely (default 3 below\n"
+		"                        100000 edges, else 1)\n"
+		"      --no-refine       skip the moves that re-seed the weakest community\n"
 		"      --tol X           plateau: relative gain per sweep below X ...\n"
 		"      --patience N      ... for N sweeps in a row (defaults 1e-4, 3)\n"
 		"      --max-sweeps N    stop after N sweeps in all (default 500)\n"
@@ -69,19 +73,42 @@ static int dir_is_empty(const char *path)
 	return empty;
 }
 
-/* ./NAME.coterie for graph file path, avoiding folders already in use. */
+/* A file name that says nothing about the graph ("edges.tsv"). */
+static int generic_stem(const char *s)
+{
+	static const char *const names[] = { "edges", "edge", "graph", "network", "net", "links" };
+	for (size_t i = 0; i < sizeof names / sizeof names[0]; i++)
+		if (!strcmp(s, names[i]))
+			return 1;
+	return 0;
+}
+
+/* ./NAME.coterie for graph file path, avoiding folders already in use.
+ * NAME is the file's name without extensions, or the name of its folder
+ * when the file's is generic (samples/town/edges.tsv gives town). */
 static void default_outdir(const char *path, char *out, size_t cap)
 {
-	const char *base = strrchr(path, '/');
-	base = base ? base + 1 : path;
+	char copy[4096];
+	snprintf(copy, sizeof copy, "%s", path);
+	char *slash = strrchr(copy, '/');
+	const char *base = slash ? slash + 1 : copy;
 	char name[256];
-	snprintf(name, sizeof name, "%s", base);
+	snprintf(name, sizeof name, "%.200s", base);
 	size_t len = strlen(name);
 	if (len > 3 && !strcmp(name + len - 3, ".gz"))
 		name[len - 3] = '\0';
 	char *dot = strrchr(name, '.');
 	if (dot && dot != name)
 		*dot = '\0';
+	if (generic_stem(name) && slash) {
+		*slash = '\0';
+		while (slash > copy && slash[-1] == '/')
+			*--slash = '\0';
+		const char *parent = strrchr(copy, '/');
+		parent = parent ? parent + 1 : copy;
+		if (*parent && strcmp(parent, ".") && strcmp(parent, ".."))
+			snprintf(name, sizeof name, "%.200s", parent);
+	}
 	if (!name[0] || !strcmp(name, ".") || !strcmp(name, ".."))
 		snprintf(name, sizeof name, "explore");
 	/* a name from a file may hold anything; keep the folder name plain */
@@ -109,7 +136,12 @@ enum {
 	OPT_FORMAT,
 	OPT_RESUME,
 	OPT_LIST_KEYS,
+	OPT_STARTS,
+	OPT_NO_REFINE,
 };
+
+/* As `coterie fit`: below this many edges a fit makes 3 starts by default. */
+#define EXPLORE_MANY_STARTS_BELOW 100000u
 
 int cmd_explore(int argc, char **argv)
 {
@@ -124,6 +156,8 @@ int cmd_explore(int argc, char **argv)
 		{ "epsilon", required_argument, NULL, OPT_EPSILON },
 		{ "format", required_argument, NULL, OPT_FORMAT },
 		{ "resume", no_argument, NULL, OPT_RESUME },
+		{ "starts", required_argument, NULL, OPT_STARTS },
+		{ "no-refine", no_argument, NULL, OPT_NO_REFINE },
 		{ "list-keys", no_argument, NULL, OPT_LIST_KEYS }, /* for the tests */
 		{ "help", no_argument, NULL, 'h' },
 		{ NULL, 0, NULL, 0 },
@@ -133,7 +167,7 @@ int cmd_explore(int argc, char **argv)
 	long cores = sysconf(_SC_NPROCESSORS_ONLN);
 	p.threads = cores > 0 ? (unsigned)(cores > 256 ? 256 : cores) : 1;
 	int have_k = 0, have_tol = 0, have_pat = 0, have_max = 0, have_eps = 0, have_seed = 0,
-	    resume = 0;
+	    have_starts = 0, resume = 0;
 	const char *out = NULL;
 	enum graph_format fmt = GRAPH_FORMAT_AUTO;
 	int c;
@@ -156,6 +190,8 @@ int cmd_explore(int argc, char **argv)
 				return EXIT_USAGE;
 			break;
 		case OPT_RESUME: resume = 1; break;
+		case OPT_STARTS: p.starts = cli_u32("--starts", optarg, 1, 1000); have_starts = 1; break;
+		case OPT_NO_REFINE: p.no_refine = 1; break;
 		case OPT_LIST_KEYS: keys_list(stdout); return 0;
 		case 'h': explore_usage(stdout); return 0;
 		default: explore_usage(stderr); return EXIT_USAGE;
@@ -207,6 +243,7 @@ int cmd_explore(int argc, char **argv)
 				(unsigned long long)ck.params.seed);
 		struct fit_params saved = ck.params;
 		saved.threads = p.threads;
+		saved.no_refine = saved.no_refine || p.no_refine;
 		if (have_tol)
 			saved.tol = p.tol;
 		if (have_pat)
@@ -226,6 +263,7 @@ int cmd_explore(int argc, char **argv)
 		cfg.reopened = 1;
 		cfg.saved_state = ck.state;
 		cfg.saved_sweep = ck.sweep;
+		cfg.saved_loglik = ck.ntrace ? ck.trace[ck.ntrace - 1].loglik : 0;
 		cfg.start = resume;
 		cfg.outdir = out ? out : arg;
 		cfg.outdir_holds_result = out == NULL || !strcmp(out, arg);
@@ -245,6 +283,8 @@ int cmd_explore(int argc, char **argv)
 		g = graph_load(arg, fmt);
 		if (!g)
 			return 1;
+		if (!have_starts)
+			p.starts = g->m < EXPLORE_MANY_STARTS_BELOW ? 3 : 1;
 		p.hold_at_plateau = 1;
 		f = fit_new(g, &p, NULL);
 		if (!f) {

@@ -19,17 +19,21 @@
 #include "coterie/fit.h"
 #include "coterie/graph.h"
 #include "coterie/result.h"
+#include "coterie/select.h"
 
 static void fit_usage(FILE *out)
 {
 	fprintf(out,
-		"usage: coterie fit GRAPH -k N -o DIR [options]\n"
+		"usage: coterie fit GRAPH -k N|auto -o DIR [options]\n"
 		"       coterie fit [GRAPH] --resume DIR [-o DIR] [options]\n"
 		"\n"
 		"Fit N overlapping communities to GRAPH and write a result folder.\n"
 		"GRAPH is an edge list (.gz too; - for standard input), GML, GraphML or Pajek.\n"
 		"\n"
-		"  -k, --communities N   number of communities to fit (required)\n"
+		"  -k, --communities N   number of communities to fit (required); 'auto'\n"
+		"                        chooses it by held-out likelihood (see --k-range)\n"
+		"      --k-range A:B     the k tried by -k auto (default 2 to n/4, at most 500)\n"
+		"      --holdout X       share of edges -k auto holds out (default 0.1)\n"
 		"  -o, --output DIR      result folder (made if missing; required)\n"
 		"  -j, --threads N       worker threads (default: every core)\n"
 		"      --seed N          random seed (default 1); same seed, same result\n"
@@ -107,6 +111,58 @@ static void progress_break(struct progress *pr)
 	}
 }
 
+static void on_scored(const struct select_point *pt, void *arg)
+{
+	const int *quiet = arg;
+	if (!*quiet)
+		notice("choosing k: k %u scores %.6g on the held-out pairs (%u sweeps, %.1f s)",
+		       pt->k, pt->heldout, pt->sweeps, pt->seconds);
+}
+
+static int stop_asked(void *arg)
+{
+	(void)arg;
+	return cli_signal_caught() != 0;
+}
+
+/* -k auto: score a grid of k by held-out likelihood, write kselect.tsv,
+ * and set p->k to the winner. Returns 0 or -1 (reported). */
+static int choose_k(const struct graph *g, struct fit_params *p, const char *out, uint32_t lo,
+		    uint32_t hi, double holdout, int quiet)
+{
+	struct select_params sp;
+	select_params_default(&sp, g);
+	if (lo) {
+		sp.kmin = lo;
+		sp.kmax = hi;
+	}
+	sp.share = holdout;
+	uint32_t grid[64];
+	uint32_t ng = select_grid(&sp, grid);
+	if (!quiet)
+		notice("choosing k from %u to %u (%u values at most) by the likelihood of %.0f%% of "
+		       "the edges and as many non-edges, held out", sp.kmin, sp.kmax, ng,
+		       100.0 * holdout);
+	struct select_hooks hooks = { on_scored, stop_asked, &quiet };
+	struct select_point *pts;
+	uint32_t npts, best;
+	int rc = select_k(g, p, &sp, &hooks, &best, &pts, &npts);
+	if (rc == -2) {
+		error("interrupted while choosing k; no fit to save yet");
+		return -1;
+	}
+	if (rc)
+		return -1;
+	rc = result_write_selection(out, pts, npts, best);
+	free(pts);
+	if (rc)
+		return -1;
+	if (!quiet)
+		notice("chose k = %u; the scores are in '%s/%s'", best, out, RESULT_SELECTION);
+	p->k = best;
+	return 0;
+}
+
 enum {
 	OPT_SEED = 256,
 	OPT_TOL,
@@ -119,6 +175,8 @@ enum {
 	OPT_SAVE_EVERY,
 	OPT_STARTS,
 	OPT_NO_REFINE,
+	OPT_K_RANGE,
+	OPT_HOLDOUT,
 };
 
 int cmd_fit(int argc, char **argv)
@@ -138,6 +196,8 @@ int cmd_fit(int argc, char **argv)
 		{ "save-every", required_argument, NULL, OPT_SAVE_EVERY },
 		{ "starts", required_argument, NULL, OPT_STARTS },
 		{ "no-refine", no_argument, NULL, OPT_NO_REFINE },
+		{ "k-range", required_argument, NULL, OPT_K_RANGE },
+		{ "holdout", required_argument, NULL, OPT_HOLDOUT },
 		{ "quiet", no_argument, NULL, 'q' },
 		{ "help", no_argument, NULL, 'h' },
 		{ NULL, 0, NULL, 0 },
@@ -147,7 +207,9 @@ int cmd_fit(int argc, char **argv)
 	long cores = sysconf(_SC_NPROCESSORS_ONLN);
 	p.threads = cores > 0 ? (unsigned)(cores > 256 ? 256 : cores) : 1;
 	int have_k = 0, have_tol = 0, have_pat = 0, have_max = 0, have_eps = 0,
-	    have_seed = 0, have_starts = 0, quiet = 0;
+	    have_seed = 0, have_starts = 0, quiet = 0, k_auto = 0;
+	uint32_t krange_lo = 0, krange_hi = 0;
+	double holdout = 0.1;
 	const char *out = NULL, *resume = NULL;
 	enum graph_format fmt = GRAPH_FORMAT_AUTO;
 	double save_every = 120.0;
@@ -156,7 +218,26 @@ int cmd_fit(int argc, char **argv)
 	opterr = 0;
 	while ((c = getopt_long(argc, argv, ":k:o:j:qh", opts, NULL)) != -1) {
 		switch (c) {
-		case 'k': p.k = cli_u32("-k", optarg, 1, MODEL_MAX_K); have_k = 1; break;
+		case 'k':
+			if (!strcmp(optarg, "auto"))
+				k_auto = 1;
+			else
+				p.k = cli_u32("-k", optarg, 1, MODEL_MAX_K);
+			have_k = 1;
+			break;
+		case OPT_K_RANGE: {
+			char lo[32], hi[32];
+			const char *colon = strchr(optarg, ':');
+			if (!colon || colon - optarg >= 32 || strlen(colon + 1) >= 32)
+				die(EXIT_USAGE, "--k-range expects MIN:MAX, e.g. 5:200");
+			memcpy(lo, optarg, (size_t)(colon - optarg));
+			lo[colon - optarg] = '\0';
+			strcpy(hi, colon + 1);
+			krange_lo = cli_u32("--k-range", lo, 1, MODEL_MAX_K);
+			krange_hi = cli_u32("--k-range", hi, krange_lo, MODEL_MAX_K);
+			break;
+		}
+		case OPT_HOLDOUT: holdout = cli_double("--holdout", optarg, 0.01, 0.5); break;
 		case 'o': out = optarg; break;
 		case 'j': p.threads = cli_u32("-j", optarg, 1, 256); break;
 		case OPT_SEED: p.seed = cli_u64("--seed", optarg); have_seed = 1; break;
@@ -229,6 +310,8 @@ int cmd_fit(int argc, char **argv)
 				return 1;
 			}
 		}
+		if (k_auto)
+			die(EXIT_USAGE, "-k auto cannot be used when resuming");
 		if (have_k && p.k != ck.params.k)
 			die(EXIT_USAGE, "the saved fit has %u communities; -k %u cannot change that",
 			    ck.params.k, p.k);
@@ -258,6 +341,10 @@ int cmd_fit(int argc, char **argv)
 			return 1;
 		if (!have_starts)
 			p.starts = g->m < FIT_MANY_STARTS_BELOW ? 3 : 1;
+		if (k_auto && choose_k(g, &p, out, krange_lo, krange_hi, holdout, quiet)) {
+			graph_free(g);
+			return cli_signal_caught() ? EXIT_INTERRUPTED : 1;
+		}
 	}
 	const struct graph *graph = g ? g : ck.graph;
 
@@ -317,6 +404,7 @@ int cmd_fit(int argc, char **argv)
 
 	const char *status = interrupted ? "interrupted" : fit_state_name(st);
 	struct result_meta meta = {
+		.k_auto = k_auto,
 		.command_line = cli_command_line(),
 		.graph_path = gpath ? gpath : (ck.graph ? ck.graph->source : ""),
 		.wall_seconds = util_now() - t_begin,

@@ -81,12 +81,14 @@ static void act_enter_affil(struct view *v, int arg)
 static void act_enter_edge(struct view *v, int arg)
 {
 	(void)arg;
-	if (!v->page_valid || v->edges.cur < v->page_off || v->edges.cur >= v->page_off + v->npage)
+	if (!v->page_valid || v->edges.cur < v->page_off || v->edges.cur >= v->page_off + v->npage) {
+		view_say(v, UTIL_NOTICE, "that row is still being fetched");
 		return;
-	const struct inspect_pair *p = &v->page[v->edges.cur - v->page_off];
+	}
+	const struct page_row *p = &v->page[v->edges.cur - v->page_off];
 	uint32_t pick;
 	const char *why;
-	if (v->edges_mode == EDGES_WEAK && !view_is_member(v, p->v, v->comm_id)) {
+	if (v->page_mode == EDGES_WEAK && p->outside) {
 		pick = p->v;
 		why = "the end outside the community";
 	} else {
@@ -214,11 +216,11 @@ static void act_extend(struct view *v, int arg)
 	uint32_t sweep = v->snap ? v->snap->sweep : 0;
 	uint32_t more = v->params.max_sweeps > 100 ? v->params.max_sweeps : 100;
 	enum fit_state st = view_state(v);
-	if (!v->snap || v->snap->ntrace == 0) {
-		view_say(v, UTIL_NOTICE, "the fit is still seeding");
-		return;
-	}
 	if (!v->started || (fit_state_ended(st) && (st != FIT_LEVELLED || v->stop_asked))) {
+		if (!v->snap || v->snap->ntrace == 0) {
+			view_say(v, UTIL_NOTICE, "there is no model to go on from");
+			return;
+		}
 		if (st == FIT_FAILED) {
 			view_say(v, UTIL_ERROR, "the fit failed; it cannot go on");
 			return;
@@ -317,7 +319,6 @@ static void act_edges_mode(struct view *v, int arg)
 	(void)arg;
 	v->edges_mode = v->edges_mode == EDGES_WEAK ? EDGES_MISSING : EDGES_WEAK;
 	v->edges.cur = v->edges.top = 0;
-	v->page_valid = 0;
 	v->dirty |= DIRTY_PANE(PANE_EDGES);
 }
 

@@ -31,7 +31,10 @@ void pane_edges_draw(const struct view *v)
 			last = v->total;
 		char t[32];
 		fmt_count(t, sizeof t, v->total);
-		snprintf(note, sizeof note, "%zu-%zu of %s", v->edges.top + 1, last, t);
+		snprintf(note, sizeof note, "%zu-%zu of %s%s", v->edges.top + 1, last, t,
+			 v->req_open ? "..." : "");
+	} else if (v->req_open) {
+		snprintf(note, sizeof note, "fetching...");
 	}
 	draw_title(v, w, PANE_EDGES, title, note);
 	int x = 2, cw = width - 3;
@@ -39,7 +42,12 @@ void pane_edges_draw(const struct view *v)
 		draw_text(w, 2, x, "select a community in pane 2", cw);
 		return;
 	}
-	if (!v->page_valid || v->total == 0) {
+	if (!v->page_valid) {
+		if (v->req_open)
+			draw_text(w, 2, x, "fetching...", cw);
+		return;
+	}
+	if (v->total == 0) {
 		draw_text(w, 2, x, weak ? "no edge touches this community"
 					: "every pair of its members is linked", cw);
 		return;
@@ -56,20 +64,25 @@ void pane_edges_draw(const struct view *v)
 	int focused = v->focus == PANE_EDGES;
 	for (int r = 0; r < rows; r++) {
 		size_t rank = v->edges.top + (size_t)r;
-		if (rank >= v->total || rank < v->page_off || rank >= v->page_off + v->npage)
+		if (rank >= v->total)
 			break;
-		const struct inspect_pair *p = &v->page[rank - v->page_off];
 		int y = 2 + r;
 		int sel = rank == v->edges.cur;
 		attr_t at = sel ? (focused ? A_REVERSE : A_BOLD | A_UNDERLINE) : A_NORMAL;
 		wattron(w, at);
 		if (sel)
 			draw_fill(w, y, 1, width - 1);
+		if (rank < v->page_off || rank >= v->page_off + v->npage) {
+			draw_text(w, y, x, "...", cw); /* on its way from the pager */
+			wattroff(w, at);
+			continue;
+		}
+		const struct page_row *p = &v->page[rank - v->page_off];
 		char a[512], b[512], pr[32];
 		draw_name(v, p->u, a, sizeof a);
 		draw_name(v, p->v, b, sizeof b);
 		draw_text(w, y, x, a, nw);
-		if (weak && !view_is_member(v, p->v, v->comm_id))
+		if (p->outside)
 			draw_text(w, y, x + nw + 1, ">", 1);
 		else
 			draw_text(w, y, x + nw + 1, v->utf8 ? "\u00b7" : "-", 1);

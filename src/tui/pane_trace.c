@@ -78,11 +78,25 @@ static void figures(const struct view *v, WINDOW *w, int x, int width, int rows)
 	if (s->ntrace == 0) {
 		snprintf(line[n++], sizeof line[0], "sweep   - (finding seeds)");
 	} else {
-		snprintf(line[n++], sizeof line[0], "sweep   %u of at most %u", s->sweep,
-			 v->params.max_sweeps);
+		/* several starts: which one runs, or, once they are done, that
+		 * the model shown is the most likely of them */
+		int done = fit_state_ended(view_state(v)) || !v->started;
+		char st[48] = "";
+		if (s->starts > 1 && !done)
+			snprintf(st, sizeof st, ", start %u of %u", s->start, s->starts);
+		else if (s->starts > 1 && s->best_start > 0)
+			snprintf(st, sizeof st, ", best of %u starts", s->starts);
+		snprintf(line[n++], sizeof line[0], "sweep   %u/%u%s", s->sweep, v->params.max_sweeps,
+			 st);
 		const struct trace_point *t = &s->trace[s->ntrace - 1];
 		fmt_ll(a, sizeof a, t->loglik);
-		snprintf(line[n++], sizeof line[0], "loglik  %s", a);
+		if (s->starts > 1 && !done && s->best_start > 0 && s->best_start != s->start) {
+			fmt_ll(b, sizeof b, s->best_loglik);
+			snprintf(line[n++], sizeof line[0], "loglik  %s (start %u: %s)", a,
+				 s->best_start, b);
+		} else {
+			snprintf(line[n++], sizeof line[0], "loglik  %s", a);
+		}
 		if (s->ntrace >= 2) {
 			double prev = s->trace[s->ntrace - 2].loglik;
 			double gain = t->loglik - prev;
@@ -105,8 +119,8 @@ static void figures(const struct view *v, WINDOW *w, int x, int width, int rows)
 	if (s->plateau_sweep > 0)
 		snprintf(line[n++], sizeof line[0], "plateau at sweep %u", s->plateau_sweep);
 	else
-		snprintf(line[n++], sizeof line[0], "plateau when gain < %.0e for %u sweeps",
-			 v->params.tol, v->params.patience);
+		snprintf(line[n++], sizeof line[0], "plateau: rel gain < %.0e x%u", v->params.tol,
+			 v->params.patience);
 	/* too few rows: the plateau line replaces the speed line, which goes first */
 	int order[6] = { 0, 1, 2, 3, 4, 5 };
 	if (rows < n && s->plateau_sweep > 0 && n == 6) {
@@ -198,27 +212,35 @@ static void plot(const struct view *v, WINDOW *w, int x0, int pw, int rows)
 		fmt_short(a, sizeof a, lo);
 		fmt_short(b, sizeof b, hi);
 		snprintf(mid, sizeof mid, "loglik %s .. %s", a, b);
-		wattron(w, draw_attr(v, CP_DIM));
-		draw_text(w, ay, x0, l, pw);
-		int rw = draw_width(r);
-		draw_text(w, ay, x0 + pw - rw, r, rw);
-		int mw = draw_width(mid);
-		int lw = draw_width(l);
-		if (mw + lw + rw + 4 <= pw)
-			draw_text(w, ay, x0 + lw + 2, mid, mw);
-		wattroff(w, draw_attr(v, CP_DIM));
+		/* the axis row: first sweep at the left, last at the right, the
+		 * plateau label under its column, the value range where it fits
+		 * without covering any of them */
+		int lw = draw_width(l), rw = draw_width(r), mw = draw_width(mid);
+		int px0 = -1, px1 = -1; /* the plateau label's columns */
+		char lab[64];
 		if (mark >= 0) {
-			char lab[64];
 			snprintf(lab, sizeof lab, "%s plateau %u", v->utf8 ? "\u25b2" : "^",
 				 s->plateau_sweep);
 			int lw2 = draw_width(lab);
-			int lx = x0 + mark;
-			if (lx + lw2 > x0 + pw)
-				lx = x0 + pw - lw2;
-			if (lx < x0)
-				lx = x0;
+			px0 = mark;
+			if (px0 + lw2 > pw - rw - 1)
+				px0 = pw - rw - 1 - lw2;
+			if (px0 < lw + 1)
+				px0 = lw + 1;
+			px1 = px0 + lw2;
+		}
+		wattron(w, draw_attr(v, CP_DIM));
+		draw_text(w, ay, x0, l, pw);
+		draw_text(w, ay, x0 + pw - rw, r, rw);
+		int mx = lw + 2;
+		if (px0 >= 0 && mx + mw + 1 > px0)
+			mx = px1 + 2; /* after the plateau label instead */
+		if (mx + mw + 1 <= pw - rw && (px0 < 0 || mx + mw + 1 <= px0 || mx >= px1 + 1))
+			draw_text(w, ay, x0 + mx, mid, mw);
+		wattroff(w, draw_attr(v, CP_DIM));
+		if (px0 >= 0 && px1 <= pw - rw) {
 			wattron(w, ma);
-			draw_text(w, ay, lx, lab, pw);
+			draw_text(w, ay, x0 + px0, lab, px1 - px0);
 			wattroff(w, ma);
 		}
 	}

@@ -38,18 +38,23 @@ static double ydot(double v, double lo, double hi, int dh)
 	return (double)(dh - 1) * (1.0 - t);
 }
 
-static void fill_run(unsigned char *grid, int dw, int dh, int x, double ya, double yb)
+static void set_dot(unsigned char *grid, int dw, int dh, int x, long y)
 {
-	if (x < 0 || x >= dw)
+	if (x < 0 || x >= dw || y < 0 || y >= dh)
 		return;
-	int a = (int)lround(ya < yb ? ya : yb);
-	int b = (int)lround(ya < yb ? yb : ya);
-	if (a < 0)
-		a = 0;
-	if (b > dh - 1)
-		b = dh - 1;
-	for (int y = a; y <= b; y++)
-		grid[(size_t)y * (size_t)dw + (size_t)x] = 1;
+	grid[(size_t)y * (size_t)dw + (size_t)x] = 1;
+}
+
+/* Rows a..b (either order) of column x. */
+static void fill_run(unsigned char *grid, int dw, int dh, int x, long a, long b)
+{
+	if (a > b) {
+		long t = a;
+		a = b;
+		b = t;
+	}
+	for (long y = a; y <= b; y++)
+		set_dot(grid, dw, dh, x, y);
 }
 
 int plot_raster(const double *y, size_t n, double lo, double hi, int dw, int dh,
@@ -68,19 +73,24 @@ int plot_raster(const double *y, size_t n, double lo, double hi, int dw, int dh,
 		int x = plot_column(i, n, dw);
 		double yy = ydot(y[i], lo, hi, dh);
 		if (!have_prev || x == px) {
-			fill_run(grid, dw, dh, x, have_prev ? py : yy, yy);
+			/* points sharing a column: one run covering them all */
+			fill_run(grid, dw, dh, x, lround(have_prev ? py : yy), lround(yy));
 		} else {
-			/* the segment from (px, py) to (x, yy): each column gets
-			 * the run the line crosses within it */
+			/* the segment from (px, py) to (x, yy), Bresenham-like: a
+			 * column holds the rows from where the line enters it up
+			 * to (not including) where it enters the next one */
 			double slope = (yy - py) / (double)(x - px);
 			for (int c = px; c < x; c++) {
-				double ya = py + slope * (double)(c - px);
-				double yb = py + slope * (double)(c + 1 - px);
-				if (c + 1 == x)
-					yb = ya + (yb - ya) * 0.5;
-				fill_run(grid, dw, dh, c, ya, yb);
+				long a = lround(py + slope * (double)(c - px));
+				long b = lround(py + slope * (double)(c + 1 - px));
+				if (b > a)
+					fill_run(grid, dw, dh, c, a, b - 1);
+				else if (b < a)
+					fill_run(grid, dw, dh, c, b + 1, a);
+				else
+					set_dot(grid, dw, dh, c, a);
 			}
-			fill_run(grid, dw, dh, x, yy - slope * 0.5, yy);
+			set_dot(grid, dw, dh, x, lround(yy));
 		}
 		have_prev = 1;
 		px = x;

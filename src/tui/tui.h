@@ -23,6 +23,7 @@
 #define NCURSES_WIDECHAR 1
 #endif
 #include <curses.h>
+#include <pthread.h>
 #include <stddef.h>
 #include <stdint.h>
 #include <stdio.h>
@@ -46,6 +47,7 @@ struct tui_config {
 	int reopened;                 /* a saved result is shown */
 	int outdir_holds_result;      /* outdir already holds this model */
 	uint32_t saved_sweep;         /* its sweep, when it does */
+	double saved_loglik;          /* and its last log-likelihood */
 	enum fit_state saved_state;   /* the state recorded in the checkpoint */
 	int start;                    /* start the fitting thread */
 	double t_begin;               /* when the command started (run.json) */
@@ -86,6 +88,61 @@ struct listpos {
 
 enum edges_mode { EDGES_WEAK = 0, EDGES_MISSING };
 
+/* ---- pager.c: pages of the edge lists, fetched on a worker thread ---- */
+
+struct page_row {
+	uint32_t u, v;  /* u the member; v its neighbour (or the other member) */
+	double prob;
+	int outside;    /* v is not a member (weak edges only) */
+};
+
+struct page_req {
+	unsigned long id;
+	struct snapshot *snap;   /* a reference the worker releases */
+	const struct graph *g;   /* borrowed */
+	uint32_t comm_id;
+	enum edges_mode mode;
+	size_t off, limit;
+	unsigned long gen;       /* the view's snapshot generation at the time */
+};
+
+struct page_res {
+	unsigned long id;
+	struct page_row *rows;   /* n rows; the taker frees with free() */
+	size_t n, total, off;
+	uint32_t comm_id;
+	enum edges_mode mode;
+	unsigned long gen;
+	int failed;
+};
+
+struct pager {
+	pthread_t thread;
+	int running;
+	pthread_mutex_t lock;
+	pthread_cond_t cond;
+	int quit;
+	int has_req;
+	struct page_req req;
+	int has_res;
+	struct page_res res;
+	int fd[2];
+};
+
+/* Start the worker. Returns 0 or -1. */
+int pager_start(struct pager *p);
+/* Stop and join it, releasing whatever is pending. */
+void pager_stop(struct pager *p);
+/* Ask for a page; takes ownership of rq->snap. Replaces a request that
+ * has not started yet. */
+void pager_submit(struct pager *p, const struct page_req *rq);
+/* The newest answer, if one came (1); the caller owns out->rows. */
+int pager_take(struct pager *p, struct page_res *out);
+/* Readable when an answer is waiting. */
+int pager_fd(const struct pager *p);
+/* Answer a request on the calling thread (rq->snap borrowed). */
+void pager_answer(const struct page_req *rq, struct page_res *res);
+
 enum mode {
 	MODE_NORMAL = 0,
 	MODE_FIND,  /* the find prompt owns the keyboard */
@@ -124,7 +181,9 @@ struct view {
 
 	/* saving */
 	int saved;                /* something was written (or reopened) */
-	uint32_t saved_sweep;
+	uint32_t saved_sweep;     /* the model written: its sweep and last */
+	double saved_loglik;      /* log-likelihood (a new start may reach the
+				   * same sweep with another model) */
 	enum fit_state saved_as;
 	int write_failed;
 
@@ -170,15 +229,24 @@ struct view {
 	uint32_t *affil_rows;     /* indexes into nodeview.affil shown */
 	uint32_t naffil_rows;
 
-	/* weak edges or missing links of the selected community (a page) */
+	/* weak edges or missing links of the selected community: the page
+	 * shown, and the one asked of the pager */
 	enum edges_mode edges_mode;
 	struct listpos edges;     /* ranks into the whole list */
-	struct inspect_pair *page;
+	struct page_row *page;
 	size_t npage, page_off, total;
-	int page_valid;
+	int page_valid;           /* page holds rows of (page_for, page_mode) */
 	unsigned long page_gen;
-	int64_t page_for;
+	uint32_t page_for;        /* community id */
 	enum edges_mode page_mode;
+	struct pager *pager;      /* NULL: fetch on the UI thread */
+	unsigned long req_id;     /* the newest request */
+	int req_open;             /* ... not answered yet */
+	uint32_t req_for;
+	enum edges_mode req_mode;
+	size_t req_off;
+	unsigned long req_gen;
+	double req_time;          /* when it was asked (for COTERIE_TUI_TIMING) */
 
 	/* find */
 	char query[FIND_QUERY_MAX];
@@ -210,8 +278,11 @@ void view_init(struct view *v, const struct tui_config *cfg);
 void view_release(struct view *v);
 /* Take the newest snapshot from the fit if it differs; returns 1 if it did. */
 int view_take_snapshot(struct view *v);
-/* Recompute what the panes show (order, members, node, page) when stale. */
+/* Recompute what the panes show (order, members, node) when stale, and
+ * ask the pager for the edge page the view needs. */
 void view_prepare(struct view *v);
+/* Install an answer of the pager (frees it when it is not the newest). */
+void view_page_answer(struct view *v, struct page_res *res);
 /* Rows the content of pane p has (for cursor moves). */
 size_t view_rows(const struct view *v, int pane);
 /* Visible content rows of pane p. */
@@ -225,8 +296,6 @@ void view_select_node(struct view *v, uint32_t node, int with_comm);
 void view_set_focus(struct view *v, int pane);
 /* A message for the footer (level as in util.h). */
 void view_say(struct view *v, int level, const char *fmt, ...) COTERIE_PRINTF(3, 4);
-/* 1 when node u has strength >= delta in community id. */
-int view_is_member(const struct view *v, uint32_t u, uint32_t id);
 /* 1 when there is a model that has not been written since it changed. */
 int view_unsaved(const struct view *v);
 /* 1 when the fitting thread is still working (not ended, not unstarted). */

@@ -143,7 +143,6 @@ static void layout(struct view *v)
 	clearok(curscr, TRUE); /* no leftovers of the old size */
 	v->dirty = DIRTY_ALL;
 	/* lists keep their cursor visible in the new heights */
-	v->page_valid = 0;
 	v->order_gen = 0;
 	v->node_gen = 0;
 }
@@ -287,6 +286,8 @@ static void draw_too_small(const struct view *v)
 	snprintf(line, sizeof line, "coterie explore needs %dx%d; this terminal is %dx%d (q quits)",
 		 MIN_COLS, MIN_ROWS, v->cols, v->rows);
 	draw_text(w, 0, 0, line, v->cols);
+	if (v->mode == MODE_QUIT && v->rows > 1)
+		draw_text(w, 1, 0, "Quit? y: save and quit  d: quit without saving  n: stay", v->cols);
 	wnoutrefresh(w);
 }
 
@@ -441,6 +442,9 @@ int tui_run(struct tui_config *cfg)
 	refresh();
 	layout(v);
 
+	struct pager *pager = util_calloc(1, sizeof *pager);
+	if (pager && pager_start(pager) == 0)
+		v->pager = pager; /* else pages are fetched on this thread */
 	if (cfg->start) {
 		if (fit_start(v->fit) == 0)
 			v->started = 1;
@@ -453,18 +457,20 @@ int tui_run(struct tui_config *cfg)
 
 	int pending = 0, hangup = 0;
 	double last_tick = util_now();
+	/* COTERIE_TUI_TIMING: from reading a key to doupdate() */
 	double t_key = 0;
+	int took_snap = 0;
 	char key_label[32] = "";
 	while (!v->quit) {
 		double now = util_now();
 		if (pending && now - v->snap_taken >= SNAP_INTERVAL) {
-			view_take_snapshot(v);
+			took_snap |= view_take_snapshot(v);
 			pending = 0;
 		} else if (v->started) {
 			enum fit_state st = fit_get_state(v->fit);
 			if (st != v->state) {
 				/* a change of state is shown at once */
-				view_take_snapshot(v);
+				took_snap |= view_take_snapshot(v);
 				pending = 0;
 			}
 		}
@@ -482,7 +488,8 @@ int tui_run(struct tui_config *cfg)
 		if (v->dirty)
 			draw_dirty(v);
 		if (t_key > 0 && v->timing) {
-			fprintf(v->timing, "key %s %.3f ms\n", key_label, (util_now() - t_key) * 1e3);
+			fprintf(v->timing, "key %s %.3f ms%s\n", key_label, (util_now() - t_key) * 1e3,
+				took_snap ? " (with a new snapshot)" : "");
 			fflush(v->timing);
 		}
 		t_key = 0;
@@ -497,13 +504,14 @@ int tui_run(struct tui_config *cfg)
 		}
 		if (scanning)
 			timeout = 0;
-		struct pollfd pfd[4] = {
+		struct pollfd pfd[5] = {
 			{ STDIN_FILENO, POLLIN, 0 },
 			{ fit_wake_fd(v->fit), POLLIN, 0 },
 			{ cli_signal_fd(), POLLIN, 0 },
 			{ inbox.fd[0], POLLIN, 0 },
+			{ v->pager ? pager_fd(v->pager) : -1, POLLIN, 0 },
 		};
-		int pr = poll(pfd, 4, timeout);
+		int pr = poll(pfd, 5, timeout);
 		if (cli_signal_caught())
 			break;
 		if (pr < 0 && errno != EINTR)
@@ -514,6 +522,11 @@ int tui_run(struct tui_config *cfg)
 		}
 		if (pfd[3].revents & POLLIN)
 			inbox_take(v);
+		if (pfd[4].revents & POLLIN) {
+			struct page_res res;
+			if (pager_take(v->pager, &res))
+				view_page_answer(v, &res);
+		}
 		if (scanning)
 			find_step(v);
 		if (pfd[0].revents & (POLLHUP | POLLERR | POLLNVAL)) {
@@ -529,8 +542,11 @@ int tui_run(struct tui_config *cfg)
 				continue;
 			}
 			if (t_key == 0) {
+				char nb[32];
 				t_key = util_now();
-				keys_name((int)wc, key_label, sizeof key_label);
+				snprintf(key_label, sizeof key_label, "%s",
+					 r == OK && wc >= 0x80 ? "char" : keys_name((int)wc, nb, sizeof nb));
+				took_snap = 0;
 			}
 			handle_key(v, (int)wc, r == OK);
 			view_prepare(v);
@@ -568,6 +584,10 @@ int tui_run(struct tui_config *cfg)
 	if (write_failed && v->msg_level == UTIL_ERROR)
 		snprintf(last_error, sizeof last_error, "%s", v->msg);
 
+	if (v->pager)
+		pager_stop(v->pager);
+	free(pager);
+	v->pager = NULL;
 	free_windows(v);
 	endwin();
 	delscreen(scr);

@@ -45,7 +45,6 @@ void view_init(struct view *v, const struct tui_config *cfg)
 	v->comm_index = -1;
 	v->mem_for = -1;
 	v->node_for = -1;
-	v->page_for = -1;
 	v->sort_key = INSPECT_BY_SIZE;
 	v->focus = PANE_COMMS;
 	v->dirty = DIRTY_ALL;
@@ -53,6 +52,7 @@ void view_init(struct view *v, const struct tui_config *cfg)
 	if (cfg->reopened && cfg->outdir_holds_result) {
 		v->saved = 1;
 		v->saved_sweep = cfg->saved_sweep;
+		v->saved_loglik = cfg->saved_loglik;
 		v->saved_as = cfg->saved_state;
 	}
 }
@@ -103,24 +103,14 @@ int view_running(const struct view *v)
 	return v->started && !fit_state_ended(v->state);
 }
 
-int view_is_member(const struct view *v, uint32_t u, uint32_t id)
-{
-	const struct fcsr *F = &v->snap->F;
-	if (u >= F->n)
-		return 0;
-	for (uint64_t i = F->off[u]; i < F->off[u + 1]; i++)
-		if (F->e[i].c == id)
-			return F->e[i].v >= v->snap->delta;
-	return 0;
-}
-
 int view_unsaved(const struct view *v)
 {
-	if (!v->started || !v->snap || v->snap->ntrace == 0)
-		return 0;
+	if (!v->started || !v->snap || v->snap->ntrace == 0 || v->state == FIT_FAILED)
+		return 0; /* nothing, or nothing to trust (as `coterie fit`) */
 	if (!v->saved)
 		return 1;
-	if (v->saved_sweep != v->snap->sweep)
+	if (v->saved_sweep != v->snap->sweep ||
+	    v->saved_loglik != v->snap->trace[v->snap->ntrace - 1].loglik)
 		return 1;
 	/* the same model, but it ended since: the record should say how */
 	return fit_state_ended(v->state) && v->state != v->saved_as;
@@ -452,36 +442,46 @@ static void prepare_node(struct view *v)
 	clamp_pos(&v->affil, v->naffil_rows, view_page_height(v, PANE_NODE));
 }
 
-static int fetch_page(struct view *v, size_t off, size_t limit)
+/* Does the page hold the h rows from top (or all rows left from top)? */
+static int page_covers(const struct view *v, size_t top, size_t h)
 {
-	struct inspect_pair *page = NULL;
-	size_t n = 0, total = 0;
-	const struct snapshot *s = v->snap;
-	int rc;
-	if (v->edges_mode == EDGES_WEAK)
-		rc = inspect_weak_edges(v->g, &s->F, &s->agm, (uint32_t)v->comm_index, off, limit,
-					&page, &n, &total);
-	else
-		rc = inspect_missing_links(v->g, &s->F, &s->agm, (uint32_t)v->comm_index, off, limit,
-					   &page, &n, &total);
-	if (rc)
-		return -1;
+	size_t end = v->page_off + v->npage;
+	return top >= v->page_off && (top + h <= end || end >= v->total);
+}
+
+static void install_page(struct view *v, struct page_res *res)
+{
 	free(v->page);
-	v->page = page;
-	v->npage = n;
-	v->page_off = off;
-	v->total = total;
-	v->page_valid = 1;
-	v->page_gen = v->snap_gen;
-	v->page_for = v->comm_index;
-	v->page_mode = v->edges_mode;
+	v->page = res->rows;
+	res->rows = NULL;
+	v->npage = res->failed ? 0 : res->n;
+	v->page_off = res->off;
+	v->total = res->failed ? 0 : res->total;
+	v->page_valid = !res->failed;
+	v->page_gen = res->gen;
+	v->page_for = res->comm_id;
+	v->page_mode = res->mode;
+	clamp_pos(&v->edges, v->total, view_page_height(v, PANE_EDGES));
 	v->dirty |= DIRTY_PANE(PANE_EDGES);
-	return 0;
+}
+
+void view_page_answer(struct view *v, struct page_res *res)
+{
+	if (res->id != v->req_id) { /* a newer question is on its way */
+		free(res->rows);
+		return;
+	}
+	v->req_open = 0;
+	if (v->timing)
+		fprintf(v->timing, "page %s of #%u, rows %zu-%zu of %zu: %.3f ms after asking\n",
+			res->mode == EDGES_WEAK ? "weak edges" : "missing links", res->comm_id,
+			res->off + 1, res->off + res->n, res->total, (util_now() - v->req_time) * 1e3);
+	install_page(v, res);
 }
 
 static void prepare_page(struct view *v)
 {
-	if (v->comm_index < 0) {
+	if (v->comm_index < 0 || !v->has_comm) {
 		free(v->page);
 		v->page = NULL;
 		v->npage = v->total = 0;
@@ -489,22 +489,49 @@ static void prepare_page(struct view *v)
 		return;
 	}
 	size_t h = (size_t)view_page_height(v, PANE_EDGES);
-	for (int tries = 0; tries < 2; tries++) {
-		int fresh = v->page_valid && v->page_gen == v->snap_gen &&
-			    v->page_for == v->comm_index && v->page_mode == v->edges_mode;
-		if (fresh) {
-			clamp_pos(&v->edges, v->total, (int)h);
-			size_t end = v->page_off + v->npage;
-			if (v->edges.top >= v->page_off &&
-			    (v->edges.top + h <= end || end >= v->total))
-				return;
-		}
-		size_t off = (v->edges.top / h) * h;
-		if (fetch_page(v, off, 2 * h)) {
-			v->page_valid = 0;
-			v->npage = v->total = 0;
-			return;
-		}
+	int same_list = v->page_valid && v->page_for == v->comm_id && v->page_mode == v->edges_mode;
+	if (same_list)
+		clamp_pos(&v->edges, v->total, (int)h);
+	if (same_list && v->page_gen == v->snap_gen && page_covers(v, v->edges.top, h))
+		return;
+	/* pages aligned to the pane's height, twice as tall: moving within
+	 * one fetches nothing */
+	size_t off = (v->edges.top / h) * h;
+	if (v->req_open && v->req_for == v->comm_id && v->req_mode == v->edges_mode &&
+	    v->req_off == off && v->req_gen == v->snap_gen)
+		return; /* asked already */
+	struct page_req rq = {
+		.id = ++v->req_id,
+		.g = v->g,
+		.comm_id = v->comm_id,
+		.mode = v->edges_mode,
+		.off = off,
+		.limit = 2 * h,
+		.gen = v->snap_gen,
+	};
+	if (!same_list) {
+		/* rows of another list must not stay on screen meanwhile */
+		free(v->page);
+		v->page = NULL;
+		v->npage = v->total = 0;
+		v->page_valid = 0;
+	}
+	v->dirty |= DIRTY_PANE(PANE_EDGES);
+	if (v->pager) {
+		rq.snap = fit_snapshot(v->fit); /* the worker's own reference */
+		v->req_time = util_now();
+		pager_submit(v->pager, &rq);
+		v->req_open = 1;
+		v->req_for = rq.comm_id;
+		v->req_mode = rq.mode;
+		v->req_off = rq.off;
+		v->req_gen = rq.gen;
+	} else {
+		struct page_res res;
+		rq.snap = v->snap;
+		pager_answer(&rq, &res);
+		v->req_open = 0;
+		install_page(v, &res);
 	}
 }
 
@@ -529,6 +556,11 @@ int view_write(struct view *v, const char *status)
 		view_say(v, UTIL_WARNING, "nothing to write yet: the fit is still seeding");
 		return -1;
 	}
+	if (st == FIT_FAILED) {
+		snapshot_release(s);
+		view_say(v, UTIL_ERROR, "the fit failed; nothing is written");
+		return -1;
+	}
 	/* a reopened result's snapshot says "ready"; the record keeps the
 	 * state it was saved in */
 	struct snapshot copy = *s;
@@ -549,6 +581,7 @@ int view_write(struct view *v, const char *status)
 	if (rc == 0) {
 		v->saved = 1;
 		v->saved_sweep = s->sweep;
+		v->saved_loglik = s->trace[s->ntrace - 1].loglik;
 		v->saved_as = st;
 		v->write_failed = 0;
 		char esc[300];
