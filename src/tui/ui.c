@@ -4,9 +4,13 @@
  * One pass of the loop: take the newest snapshot if the fit published one
  * (at most ten times a second), refresh the caches, redraw the dirty
  * windows, doupdate(), then poll() the keyboard, the fit's wake-up pipe,
- * the signal pipe and our message pipe, and handle every key that came.
- * Keys answer from cached analysis of an immutable snapshot, so a key
- * never waits for a sweep.
+ * the signal pipe, our message pipe and the pager's pipe, and handle
+ * every key that came. Keys answer from cached analysis of an immutable
+ * snapshot, so a key never waits for a sweep; the one costly analysis
+ * (pages of the edge lists) runs on the pager's thread.
+ *
+ * COTERIE_TUI_TIMING=FILE appends, per key, the time from reading it to
+ * doupdate(), and per page the time from asking to the answer.
  *
  * Messages from the core (error(), warning(), notice()) may come from the
  * fitting thread while curses owns the screen, so the sink only copies the

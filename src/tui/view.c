@@ -8,7 +8,8 @@
  *
  * Caches are keyed by (snapshot generation, what is selected). Nothing
  * here builds a whole list on a big graph: the weak-edge and missing-link
- * lists are fetched a page at a time (inspect_* with offset and limit);
+ * lists are fetched a page at a time (inspect_* with offset and limit),
+ * on the pager's thread (pager.c) because those are the costly questions;
  * the member list of one community and the community order are the only
  * full lists, and they are sized by a community, not by the graph.
  *
