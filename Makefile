@@ -12,8 +12,7 @@ CC       ?= cc
 PREFIX   ?= /usr/local
 PKGS     := igraph ncursesw cmocka jansson zlib
 DEB_PKGS := build-essential pkg-config libigraph-dev libncurses-dev libcmocka-dev \
-            libjansson-dev zlib1g-dev tmux python3 python3-networkx python3-igraph \
-            python3-sklearn
+            libjansson-dev zlib1g-dev tmux python3 python3-networkx
 
 comma := ,
 ifeq ($(SANITIZE),)
