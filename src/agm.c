@@ -88,21 +88,7 @@ static int check_input(const struct graph *g, const struct cover *c, double epsi
 		return error("background probability %g out of range [0, 1)", epsilon);
 	if (c->n != g->n)
 		return error("cover has %" PRIu32 " nodes, graph has %" PRIu32, c->n, g->n);
-	if (c->off[0] != 0)
-		return error("malformed cover: first offset %" PRIu64, c->off[0]);
-	for (uint32_t i = 0; i < c->k; i++) {
-		if (c->off[i + 1] < c->off[i])
-			return error("malformed cover: offsets decrease at community %" PRIu32, i);
-		for (uint64_t j = c->off[i]; j < c->off[i + 1]; j++) {
-			if (c->mem[j] >= c->n)
-				return error("malformed cover: node %" PRIu32 " out of range",
-					     c->mem[j]);
-			if (j > c->off[i] && c->mem[j] <= c->mem[j - 1])
-				return error("malformed cover: community %" PRIu32
-					     " not strictly increasing", i);
-		}
-	}
-	return 0;
+	return cover_check(c);
 }
 
 static int index_nodes(struct index *ix, const struct cover *c)

@@ -345,3 +345,22 @@ void cover_release(struct cover *c)
 	free(c->mem);
 	memset(c, 0, sizeof *c);
 }
+
+int cover_check(const struct cover *c)
+{
+	if (c->off[0] != 0)
+		return error("malformed cover: first offset %" PRIu64, c->off[0]);
+	for (uint32_t i = 0; i < c->k; i++) {
+		if (c->off[i + 1] < c->off[i])
+			return error("malformed cover: offsets decrease at community %" PRIu32, i);
+		for (uint64_t j = c->off[i]; j < c->off[i + 1]; j++) {
+			if (c->mem[j] >= c->n)
+				return error("malformed cover: node %" PRIu32 " out of range",
+					     c->mem[j]);
+			if (j > c->off[i] && c->mem[j] <= c->mem[j - 1])
+				return error("malformed cover: community %" PRIu32
+					     " not strictly increasing", i);
+		}
+	}
+	return 0;
+}

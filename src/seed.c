@@ -120,6 +120,25 @@ static int cmp_ranked(const void *a, const void *b)
 	return (x->u > y->u) - (x->u < y->u);
 }
 
+/* Take candidates in order as centres while fewer than k: a candidate
+ * inside an ego-net already taken is skipped. taken[u]: 2 for a centre,
+ * 1 for a member of a taken ego-net. Returns the new number of centres. */
+static uint32_t take_centres(const struct graph *g, const struct ranked *cand, uint32_t nc,
+			     uint32_t k, uint32_t *centre, uint32_t ns, uint8_t *taken)
+{
+	for (uint32_t i = 0; i < nc && ns < k; i++) {
+		uint32_t u = cand[i].u;
+		if (taken[u])
+			continue;
+		centre[ns++] = u;
+		taken[u] = 2;
+		for (uint64_t j = g->off[u]; j < g->off[u + 1]; j++)
+			if (!taken[g->adj[j]])
+				taken[g->adj[j]] = 1;
+	}
+	return ns;
+}
+
 int seed_model(const struct graph *g, struct model *m, uint64_t seed, uint32_t variant,
 	       struct seed_report *rep)
 {
@@ -161,17 +180,7 @@ int seed_model(const struct graph *g, struct model *m, uint64_t seed, uint32_t v
 		nc = kept;
 	}
 
-	uint32_t ns = 0;
-	for (uint32_t i = 0; i < nc && ns < k; i++) {
-		uint32_t u = cand[i].u;
-		if (taken[u])
-			continue;
-		centre[ns++] = u;
-		taken[u] = 2;
-		for (uint64_t j = g->off[u]; j < g->off[u + 1]; j++)
-			if (!taken[g->adj[j]])
-				taken[g->adj[j]] = 1;
-	}
+	uint32_t ns = take_centres(g, cand, nc, k, centre, 0, taken);
 	local.used_minima = ns;
 
 	/* fill: first the lowest-conductance ego-nets whose centre lies
@@ -190,17 +199,9 @@ int seed_model(const struct graph *g, struct model *m, uint64_t seed, uint32_t v
 			cand[i - 1] = cand[j];
 			cand[j] = t;
 		}
-	for (uint32_t i = 0; i < nr && ns < k; i++) {
-		uint32_t u = cand[i].u;
-		if (taken[u])
-			continue;
-		centre[ns++] = u;
-		taken[u] = 2;
-		for (uint64_t j = g->off[u]; j < g->off[u + 1]; j++)
-			if (!taken[g->adj[j]])
-				taken[g->adj[j]] = 1;
-		local.cover++;
-	}
+	uint32_t before = ns;
+	ns = take_centres(g, cand, nr, k, centre, ns, taken);
+	local.cover = ns - before;
 	uint32_t *pool = (uint32_t *)cand; /* cand is done with; reuse its memory */
 	for (int pass = 1; pass < 3 && ns < k; pass++) {
 		uint32_t np = 0;

@@ -43,6 +43,10 @@ int cover_from_pairs(struct cover *out, uint32_t n, const uint32_t *node,
  */
 int cover_load(struct cover *out, const char *path, const struct graph *g);
 
+/* Check the rules above (offsets, ids in range, rows strictly
+ * increasing). Returns 0, or -1 with a message. */
+int cover_check(const struct cover *c);
+
 void cover_release(struct cover *c);
 
 static inline uint32_t cover_size(const struct cover *c, uint32_t i)
