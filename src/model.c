@@ -11,6 +11,17 @@
  * that candidate set with dense scratch arrays of length k, reset after
  * each row through the candidate list.
  *
+ * Sparsity: the projection sends strengths below MODEL_FLOOR * delta to 0,
+ * not only negative ones. In the first sweeps an empty row next to many
+ * communities sees a large positive gradient for every one of them (the
+ * weight 1/expm1(x) is about 1/epsilon at x ~ 0), and the plain projection
+ * filled rows with dozens of tiny strengths that later sweeps remove
+ * again: on a 200,000-node graph with k = 4000 that peaked at 770 MB.
+ * With the floor at a tenth of the membership threshold it peaks at
+ * 450 MB, runs faster, and the memberships are those strengths could
+ * never reach anyway; the likelihood reached is a little lower (-0.81e6
+ * against -0.80e6 on email-Enron at k = 100).
+ *
  * The one thing a newcomer gets wrong: colsum includes u's own current
  * row. The "others" sum must subtract the current row, not the trial one.
  */
@@ -44,6 +55,7 @@ static void set_epsilon(struct model *m, double epsilon)
 	m->epsilon = epsilon;
 	m->qeps = -log1p(-epsilon);
 	m->delta = sqrt(m->qeps);
+	m->floor = MODEL_FLOOR * m->delta;
 }
 
 int model_init(struct model *m, uint32_t n, uint32_t k, double epsilon)
@@ -471,7 +483,7 @@ int model_update_row(const struct model *m, const struct graph *g, uint32_t u,
 		for (uint32_t i = 0; i < w->ncand; i++) {
 			uint32_t c = w->cand[i];
 			double v = w->cur[c] + step * w->acc[c];
-			if (v < 0.0)
+			if (v < m->floor)
 				v = 0.0;
 			if (v > MODEL_FMAX)
 				v = MODEL_FMAX;

@@ -27,6 +27,7 @@
 struct graph;
 
 #define MODEL_FMAX 1000.0 /* strengths are capped here */
+#define MODEL_FLOOR 0.1   /* the update sends strengths below MODEL_FLOOR * delta to 0 */
 #define MODEL_MAX_K 1000000u
 
 /* Packed to 12 bytes: strengths are most of a fit's memory on large
@@ -47,6 +48,7 @@ struct model {
 	double epsilon; /* background link probability */
 	double qeps;    /* -ln(1 - epsilon) */
 	double delta;   /* membership threshold sqrt(qeps) */
+	double floor;   /* strengths below this become 0 (MODEL_FLOOR * delta) */
 	struct frow *rows; /* n rows */
 	double *colsum;    /* k column sums */
 	/* Held-out pairs (borrowed, may be NULL): pairs left out of the
@@ -138,7 +140,8 @@ void model_row_gradient(const struct model *m, const struct graph *g, uint32_t u
 			struct model_work *w, double *grad);
 
 /*
- * Projected gradient step with Armijo backtracking: F_u <- max(0, F_u + a g),
+ * Projected gradient step with Armijo backtracking: F_u <- F_u + a g with
+ * strengths below m->floor (MODEL_FLOOR * delta) set to 0,
  * capped at MODEL_FMAX, trying a = a0, a0/2, a0/4, ... (a0 = 1, or less so
  * that no strength moves by more than 10 in the first trial) until the objective
  * rises by at least 1e-4 * g . (new - old). On success *out points into
