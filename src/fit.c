@@ -155,6 +155,7 @@ struct fit {
 	struct model_llpart *parts;
 	uint32_t nparts;
 	atomic_int worker_failed;
+	int pool_go; /* under lock: 0 wait, 1 run, -1 leave (no barriers) */
 };
 
 /* ---- snapshots ---- */
@@ -314,6 +315,13 @@ static void *worker_main(void *arg)
 	struct fit *f = pack[0];
 	unsigned tid = (unsigned)(uintptr_t)pack[1];
 	free(pack);
+	pthread_mutex_lock(&f->lock);
+	while (f->pool_go == 0)
+		pthread_cond_wait(&f->cond, &f->lock);
+	int go = f->pool_go;
+	pthread_mutex_unlock(&f->lock);
+	if (go < 0)
+		return NULL;
 	for (;;) {
 		pthread_barrier_wait(&f->bar_start);
 		if (f->job == JOB_QUIT)
@@ -338,29 +346,50 @@ static void pool_run(struct fit *f)
 		pthread_barrier_wait(&f->bar_end);
 }
 
+/* Start the workers. They wait on `pool_go` until the barriers exist, so
+ * that if a thread cannot be created the pool runs with those that were:
+ * the barriers are sized only once the count is known. */
 static int pool_start(struct fit *f)
 {
 	if (f->nthreads <= 1)
 		return 0;
-	if (pthread_barrier_init(&f->bar_start, NULL, f->nthreads) ||
-	    pthread_barrier_init(&f->bar_end, NULL, f->nthreads))
-		return error("cannot set up the worker threads");
-	f->barriers = 1;
 	f->workers = util_calloc(f->nthreads, sizeof *f->workers);
-	if (!f->workers)
-		return -1;
-	for (unsigned t = 1; t < f->nthreads; t++) {
+	if (!f->workers) {
+		f->nthreads = 1;
+		return 0;
+	}
+	unsigned want = f->nthreads;
+	for (unsigned t = 1; t < want; t++) {
 		void **pack = util_malloc(2, sizeof *pack);
 		if (!pack)
-			return -1;
+			break;
 		pack[0] = f;
 		pack[1] = (void *)(uintptr_t)t;
 		if (pthread_create(&f->workers[t], NULL, worker_main, pack)) {
 			free(pack);
-			/* run with the workers we have: rebuild barriers for them */
-			return error("cannot start worker thread %u", t);
+			warning("could start only %u of %u threads; fitting with those", t, want);
+			break;
 		}
 		f->nworkers_started++;
+	}
+	f->nthreads = f->nworkers_started + 1;
+	int rc = 0;
+	if (f->nthreads > 1) {
+		if (pthread_barrier_init(&f->bar_start, NULL, f->nthreads) ||
+		    pthread_barrier_init(&f->bar_end, NULL, f->nthreads))
+			rc = error("cannot set up the worker threads");
+		else
+			f->barriers = 1;
+	}
+	pthread_mutex_lock(&f->lock);
+	f->pool_go = rc == 0 ? 1 : -1;
+	pthread_cond_broadcast(&f->cond);
+	pthread_mutex_unlock(&f->lock);
+	if (rc) {
+		for (unsigned t = 1; t <= f->nworkers_started; t++)
+			pthread_join(f->workers[t], NULL);
+		f->nworkers_started = 0;
+		f->nthreads = 1;
 	}
 	return 0;
 }
@@ -1013,11 +1042,11 @@ void fit_free(struct fit *f)
 	agm_release(&f->agm);
 	model_release(&f->m);
 	if (f->work)
-		for (unsigned t = 0; t < f->nthreads; t++)
+		for (unsigned t = 0; t < f->p.threads; t++)
 			model_work_free(f->work[t]);
 	free(f->work);
 	if (f->arena)
-		for (unsigned t = 0; t < f->nthreads; t++)
+		for (unsigned t = 0; t < f->p.threads; t++)
 			free(f->arena[t].e);
 	free(f->arena);
 	free(f->res);
