@@ -107,6 +107,14 @@ int model_set_row(struct model *m, uint32_t u, const struct fentry *e, uint32_t 
 		}
 		r->e = ne;
 		r->cap = cap;
+	} else if (r->cap > 16 && nnz < r->cap / 4) {
+		/* rows are densest in the first sweeps: give the room back */
+		uint32_t cap = nnz < 4 ? 4 : nnz + nnz / 2;
+		struct fentry *ne = realloc(r->e, cap * sizeof *ne);
+		if (ne) { /* a failed shrink keeps the larger block */
+			r->e = ne;
+			r->cap = cap;
+		}
 	}
 	uint32_t o = 0;
 	for (uint32_t i = 0; i < nnz; i++) {
