@@ -174,7 +174,13 @@ int cmd_explore(int argc, char **argv)
 	optind = 1;
 	while ((c = getopt_long(argc, argv, "k:o:j:h", opts, NULL)) != -1) {
 		switch (c) {
-		case 'k': p.k = cli_u32("-k", optarg, 1, MODEL_MAX_K); have_k = 1; break;
+		case 'k':
+			if (!strcmp(optarg, "auto"))
+				die(EXIT_USAGE, "explore takes a number for -k; choose it first with "
+				    "'coterie fit GRAPH -k auto -o DIR', then 'coterie explore DIR'");
+			p.k = cli_u32("-k", optarg, 1, MODEL_MAX_K);
+			have_k = 1;
+			break;
 		case 'o': out = optarg; break;
 		case 'j': p.threads = cli_u32("-j", optarg, 1, 256); break;
 		case OPT_SEED: p.seed = cli_u64("--seed", optarg); have_seed = 1; break;
