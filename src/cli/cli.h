@@ -10,6 +10,8 @@
 
 #include <stdint.h>
 
+#include "coterie/fit.h"
+#include "coterie/graph.h"
 #include "coterie/util.h"
 
 #define EXIT_USAGE 2
@@ -48,6 +50,43 @@ const char *cli_command_line(void);
 
 /* 1 when the terminal's codeset is UTF-8 (after setlocale). */
 int cli_utf8(void);
+
+/* The options fit and explore share: -k N, -j N and these long ones.
+ * A command numbers its own long options from CLI_OPT_OWN. */
+enum {
+	CLI_OPT_SEED = 256,
+	CLI_OPT_TOL,
+	CLI_OPT_PATIENCE,
+	CLI_OPT_MAX_SWEEPS,
+	CLI_OPT_EPSILON,
+	CLI_OPT_FORMAT,
+	CLI_OPT_STARTS,
+	CLI_OPT_NO_REFINE,
+	CLI_OPT_OWN,
+};
+
+/* Below this many edges a fit makes 3 starts by default, above it 1. */
+#define CLI_MANY_STARTS_BELOW 100000u
+
+struct cli_fit_opts {
+	struct fit_params p;
+	enum graph_format fmt;
+	int have_k, have_tol, have_pat, have_max, have_eps, have_seed, have_starts;
+};
+
+/* Defaults: fit_params_default() with one thread per core. */
+void cli_fit_opts_init(struct cli_fit_opts *o);
+/* Take option c with its argument if it is a shared one: returns 1, or 0
+ * for an option the command handles itself. A bad value exits 2. */
+int cli_fit_opts_take(struct cli_fit_opts *o, int c, const char *arg);
+/* The starts default for a graph of m edges, unless --starts was given. */
+void cli_fit_opts_starts(struct cli_fit_opts *o, uint64_t m);
+/* The parameters for continuing a saved fit: the saved ones, with this
+ * machine's threads and the --tol, --patience, --max-sweeps, --no-refine
+ * given; a different -k or --epsilon exits 2 and --seed is ignored with a
+ * warning ("when" ends those messages, e.g. "when resuming"). */
+void cli_fit_opts_resume(const struct cli_fit_opts *o, const struct fit_params *saved,
+			 const char *when, struct fit_params *out);
 
 int cmd_fit(int argc, char **argv);
 int cmd_show(int argc, char **argv);

@@ -160,3 +160,74 @@ int cli_utf8(void)
 	const char *cs = nl_langinfo(CODESET);
 	return cs && (strcasecmp(cs, "UTF-8") == 0 || strcasecmp(cs, "utf8") == 0);
 }
+
+void cli_fit_opts_init(struct cli_fit_opts *o)
+{
+	memset(o, 0, sizeof *o);
+	fit_params_default(&o->p);
+	long cores = sysconf(_SC_NPROCESSORS_ONLN);
+	o->p.threads = cores > 0 ? (unsigned)(cores > 256 ? 256 : cores) : 1;
+	o->fmt = GRAPH_FORMAT_AUTO;
+}
+
+int cli_fit_opts_take(struct cli_fit_opts *o, int c, const char *arg)
+{
+	struct fit_params *p = &o->p;
+	switch (c) {
+	case 'k': p->k = cli_u32("-k", arg, 1, MODEL_MAX_K); o->have_k = 1; return 1;
+	case 'j': p->threads = cli_u32("-j", arg, 1, 256); return 1;
+	case CLI_OPT_SEED: p->seed = cli_u64("--seed", arg); o->have_seed = 1; return 1;
+	case CLI_OPT_TOL: p->tol = cli_double("--tol", arg, 0.0, 1.0); o->have_tol = 1; return 1;
+	case CLI_OPT_PATIENCE:
+		p->patience = cli_u32("--patience", arg, 1, 1000);
+		o->have_pat = 1;
+		return 1;
+	case CLI_OPT_MAX_SWEEPS:
+		p->max_sweeps = cli_u32("--max-sweeps", arg, 0, 100000000);
+		o->have_max = 1;
+		return 1;
+	case CLI_OPT_EPSILON:
+		p->epsilon = cli_double("--epsilon", arg, 1e-300, 0.5);
+		o->have_eps = 1;
+		return 1;
+	case CLI_OPT_FORMAT:
+		if (graph_format_parse(arg, &o->fmt))
+			exit(EXIT_USAGE); /* graph_format_parse() said why */
+		return 1;
+	case CLI_OPT_STARTS:
+		p->starts = cli_u32("--starts", arg, 1, 1000);
+		o->have_starts = 1;
+		return 1;
+	case CLI_OPT_NO_REFINE: p->no_refine = 1; return 1;
+	default: return 0;
+	}
+}
+
+void cli_fit_opts_starts(struct cli_fit_opts *o, uint64_t m)
+{
+	if (!o->have_starts)
+		o->p.starts = m < CLI_MANY_STARTS_BELOW ? 3 : 1;
+}
+
+void cli_fit_opts_resume(const struct cli_fit_opts *o, const struct fit_params *saved,
+			 const char *when, struct fit_params *out)
+{
+	if (o->have_k && o->p.k != saved->k)
+		die(EXIT_USAGE, "the saved fit has %u communities; -k %u cannot change that",
+		    saved->k, o->p.k);
+	if (o->have_eps && o->p.epsilon != saved->epsilon)
+		die(EXIT_USAGE, "--epsilon cannot change %s", when);
+	if (o->have_seed && o->p.seed != saved->seed)
+		warning("--seed is ignored %s; the fit keeps seed %llu", when,
+			(unsigned long long)saved->seed);
+	*out = *saved;
+	out->threads = o->p.threads; /* this machine's choice, not the saved one */
+	out->no_refine = saved->no_refine || o->p.no_refine;
+	out->past_plateau = saved->past_plateau || o->p.past_plateau;
+	if (o->have_tol)
+		out->tol = o->p.tol;
+	if (o->have_pat)
+		out->patience = o->p.patience;
+	if (o->have_max)
+		out->max_sweeps = o->p.max_sweeps;
+}

@@ -128,20 +128,9 @@ static void default_outdir(const char *path, char *out, size_t cap)
 }
 
 enum {
-	OPT_SEED = 256,
-	OPT_TOL,
-	OPT_PATIENCE,
-	OPT_MAX_SWEEPS,
-	OPT_EPSILON,
-	OPT_FORMAT,
-	OPT_RESUME,
+	OPT_RESUME = CLI_OPT_OWN,
 	OPT_LIST_KEYS,
-	OPT_STARTS,
-	OPT_NO_REFINE,
 };
-
-/* As `coterie fit`: below this many edges a fit makes 3 starts by default. */
-#define EXPLORE_MANY_STARTS_BELOW 100000u
 
 int cmd_explore(int argc, char **argv)
 {
@@ -149,60 +138,44 @@ int cmd_explore(int argc, char **argv)
 		{ "communities", required_argument, NULL, 'k' },
 		{ "output", required_argument, NULL, 'o' },
 		{ "threads", required_argument, NULL, 'j' },
-		{ "seed", required_argument, NULL, OPT_SEED },
-		{ "tol", required_argument, NULL, OPT_TOL },
-		{ "patience", required_argument, NULL, OPT_PATIENCE },
-		{ "max-sweeps", required_argument, NULL, OPT_MAX_SWEEPS },
-		{ "epsilon", required_argument, NULL, OPT_EPSILON },
-		{ "format", required_argument, NULL, OPT_FORMAT },
+		{ "seed", required_argument, NULL, CLI_OPT_SEED },
+		{ "tol", required_argument, NULL, CLI_OPT_TOL },
+		{ "patience", required_argument, NULL, CLI_OPT_PATIENCE },
+		{ "max-sweeps", required_argument, NULL, CLI_OPT_MAX_SWEEPS },
+		{ "epsilon", required_argument, NULL, CLI_OPT_EPSILON },
+		{ "format", required_argument, NULL, CLI_OPT_FORMAT },
 		{ "resume", no_argument, NULL, OPT_RESUME },
-		{ "starts", required_argument, NULL, OPT_STARTS },
-		{ "no-refine", no_argument, NULL, OPT_NO_REFINE },
+		{ "starts", required_argument, NULL, CLI_OPT_STARTS },
+		{ "no-refine", no_argument, NULL, CLI_OPT_NO_REFINE },
 		{ "list-keys", no_argument, NULL, OPT_LIST_KEYS }, /* for the tests */
 		{ "help", no_argument, NULL, 'h' },
 		{ NULL, 0, NULL, 0 },
 	};
-	struct fit_params p;
-	fit_params_default(&p);
-	long cores = sysconf(_SC_NPROCESSORS_ONLN);
-	p.threads = cores > 0 ? (unsigned)(cores > 256 ? 256 : cores) : 1;
-	int have_k = 0, have_tol = 0, have_pat = 0, have_max = 0, have_eps = 0, have_seed = 0,
-	    have_starts = 0, resume = 0;
+	struct cli_fit_opts o;
+	cli_fit_opts_init(&o);
+	int resume = 0;
 	const char *out = NULL;
-	enum graph_format fmt = GRAPH_FORMAT_AUTO;
 	int c;
 	optind = 1;
-	while ((c = getopt_long(argc, argv, "k:o:j:h", opts, NULL)) != -1) {
+	opterr = 0;
+	while ((c = getopt_long(argc, argv, ":k:o:j:h", opts, NULL)) != -1) {
+		if (c == 'k' && !strcmp(optarg, "auto"))
+			die(EXIT_USAGE, "explore takes a number for -k; choose it first with "
+			    "'coterie fit GRAPH -k auto -o DIR', then 'coterie explore DIR'");
+		if (cli_fit_opts_take(&o, c, optarg))
+			continue;
 		switch (c) {
-		case 'k':
-			if (!strcmp(optarg, "auto"))
-				die(EXIT_USAGE, "explore takes a number for -k; choose it first with "
-				    "'coterie fit GRAPH -k auto -o DIR', then 'coterie explore DIR'");
-			p.k = cli_u32("-k", optarg, 1, MODEL_MAX_K);
-			have_k = 1;
-			break;
 		case 'o': out = optarg; break;
-		case 'j': p.threads = cli_u32("-j", optarg, 1, 256); break;
-		case OPT_SEED: p.seed = cli_u64("--seed", optarg); have_seed = 1; break;
-		case OPT_TOL: p.tol = cli_double("--tol", optarg, 0.0, 1.0); have_tol = 1; break;
-		case OPT_PATIENCE: p.patience = cli_u32("--patience", optarg, 1, 1000); have_pat = 1; break;
-		case OPT_MAX_SWEEPS:
-			p.max_sweeps = cli_u32("--max-sweeps", optarg, 0, 100000000);
-			have_max = 1;
-			break;
-		case OPT_EPSILON: p.epsilon = cli_double("--epsilon", optarg, 1e-300, 0.5); have_eps = 1; break;
-		case OPT_FORMAT:
-			if (graph_format_parse(optarg, &fmt))
-				return EXIT_USAGE;
-			break;
 		case OPT_RESUME: resume = 1; break;
-		case OPT_STARTS: p.starts = cli_u32("--starts", optarg, 1, 1000); have_starts = 1; break;
-		case OPT_NO_REFINE: p.no_refine = 1; break;
 		case OPT_LIST_KEYS: keys_list(stdout); return 0;
 		case 'h': explore_usage(stdout); return 0;
-		default: explore_usage(stderr); return EXIT_USAGE;
+		default:
+			cli_option_error(c, argv);
+			fprintf(stderr, "try 'coterie explore --help'\n");
+			return EXIT_USAGE;
 		}
 	}
+	struct fit_params p = o.p;
 	if (argc - optind != 1) {
 		explore_usage(stderr);
 		die(EXIT_USAGE, "explore takes one graph file or result folder, not %d", argc - optind);
@@ -215,7 +188,7 @@ int cmd_explore(int argc, char **argv)
 	int is_dir = stat(arg, &st) == 0 && S_ISDIR(st.st_mode);
 	if (resume && !is_dir)
 		die(EXIT_USAGE, "--resume continues a result folder; '%s' is not one", arg);
-	if (!is_dir && !have_k)
+	if (!is_dir && !o.have_k)
 		die(EXIT_USAGE, "explore needs the number of communities: -k N");
 	if (cli_signals_install())
 		return 1;
@@ -239,25 +212,8 @@ int cmd_explore(int argc, char **argv)
 		}
 		if (result_read_checkpoint(path, &ck))
 			return 1;
-		if (have_k && p.k != ck.params.k)
-			die(EXIT_USAGE, "the saved fit has %u communities; -k %u cannot change that",
-			    ck.params.k, p.k);
-		if (have_eps && p.epsilon != ck.params.epsilon)
-			die(EXIT_USAGE, "--epsilon cannot change for a saved fit");
-		if (have_seed && p.seed != ck.params.seed)
-			warning("--seed is ignored for a saved fit; it keeps seed %llu",
-				(unsigned long long)ck.params.seed);
-		struct fit_params saved = ck.params;
-		saved.threads = p.threads;
-		saved.no_refine = saved.no_refine || p.no_refine;
-		if (have_tol)
-			saved.tol = p.tol;
-		if (have_pat)
-			saved.patience = p.patience;
-		if (have_max)
-			saved.max_sweeps = p.max_sweeps;
-		saved.hold_at_plateau = 1;
-		p = saved;
+		cli_fit_opts_resume(&o, &ck.params, "for a saved fit", &p);
+		p.hold_at_plateau = 1;
 		struct fit_origin origin;
 		checkpoint_origin(&ck, &origin);
 		f = fit_new(ck.graph, &p, &origin);
@@ -286,11 +242,11 @@ int cmd_explore(int argc, char **argv)
 			cfg.outdir = outbuf;
 			cfg.outdir_is_default = 1;
 		}
-		g = graph_load(arg, fmt);
+		g = graph_load(arg, o.fmt);
 		if (!g)
 			return 1;
-		if (!have_starts)
-			p.starts = g->m < EXPLORE_MANY_STARTS_BELOW ? 3 : 1;
+		cli_fit_opts_starts(&o, g->m);
+		p.starts = o.p.starts;
 		p.hold_at_plateau = 1;
 		f = fit_new(g, &p, NULL);
 		if (!f) {

@@ -55,9 +55,6 @@ static void fit_usage(FILE *out)
 		"  -h, --help            this text\n");
 }
 
-/* Below this many edges a fit makes 3 starts by default, above it 1. */
-#define FIT_MANY_STARTS_BELOW 100000u
-
 struct progress {
 	int tty;
 	int quiet;
@@ -165,17 +162,9 @@ static int choose_k(const struct graph *g, struct fit_params *p, const char *out
 }
 
 enum {
-	OPT_SEED = 256,
-	OPT_TOL,
-	OPT_PATIENCE,
-	OPT_MAX_SWEEPS,
-	OPT_PAST_PLATEAU,
-	OPT_EPSILON,
-	OPT_FORMAT,
+	OPT_PAST_PLATEAU = CLI_OPT_OWN,
 	OPT_RESUME,
 	OPT_SAVE_EVERY,
-	OPT_STARTS,
-	OPT_NO_REFINE,
 	OPT_K_RANGE,
 	OPT_HOLDOUT,
 };
@@ -186,46 +175,42 @@ int cmd_fit(int argc, char **argv)
 		{ "communities", required_argument, NULL, 'k' },
 		{ "output", required_argument, NULL, 'o' },
 		{ "threads", required_argument, NULL, 'j' },
-		{ "seed", required_argument, NULL, OPT_SEED },
-		{ "tol", required_argument, NULL, OPT_TOL },
-		{ "patience", required_argument, NULL, OPT_PATIENCE },
-		{ "max-sweeps", required_argument, NULL, OPT_MAX_SWEEPS },
+		{ "seed", required_argument, NULL, CLI_OPT_SEED },
+		{ "tol", required_argument, NULL, CLI_OPT_TOL },
+		{ "patience", required_argument, NULL, CLI_OPT_PATIENCE },
+		{ "max-sweeps", required_argument, NULL, CLI_OPT_MAX_SWEEPS },
 		{ "past-plateau", no_argument, NULL, OPT_PAST_PLATEAU },
-		{ "epsilon", required_argument, NULL, OPT_EPSILON },
-		{ "format", required_argument, NULL, OPT_FORMAT },
+		{ "epsilon", required_argument, NULL, CLI_OPT_EPSILON },
+		{ "format", required_argument, NULL, CLI_OPT_FORMAT },
 		{ "resume", required_argument, NULL, OPT_RESUME },
 		{ "save-every", required_argument, NULL, OPT_SAVE_EVERY },
-		{ "starts", required_argument, NULL, OPT_STARTS },
-		{ "no-refine", no_argument, NULL, OPT_NO_REFINE },
+		{ "starts", required_argument, NULL, CLI_OPT_STARTS },
+		{ "no-refine", no_argument, NULL, CLI_OPT_NO_REFINE },
 		{ "k-range", required_argument, NULL, OPT_K_RANGE },
 		{ "holdout", required_argument, NULL, OPT_HOLDOUT },
 		{ "quiet", no_argument, NULL, 'q' },
 		{ "help", no_argument, NULL, 'h' },
 		{ NULL, 0, NULL, 0 },
 	};
-	struct fit_params p;
-	fit_params_default(&p);
-	long cores = sysconf(_SC_NPROCESSORS_ONLN);
-	p.threads = cores > 0 ? (unsigned)(cores > 256 ? 256 : cores) : 1;
-	int have_k = 0, have_tol = 0, have_pat = 0, have_max = 0, have_eps = 0,
-	    have_seed = 0, have_starts = 0, quiet = 0, k_auto = 0;
+	struct cli_fit_opts o;
+	cli_fit_opts_init(&o);
+	int quiet = 0, k_auto = 0;
 	uint32_t krange_lo = 0, krange_hi = 0;
 	double holdout = 0.1;
 	const char *out = NULL, *resume = NULL;
-	enum graph_format fmt = GRAPH_FORMAT_AUTO;
 	double save_every = 120.0;
 	int c;
 	optind = 1;
 	opterr = 0;
 	while ((c = getopt_long(argc, argv, ":k:o:j:qh", opts, NULL)) != -1) {
+		if (c == 'k' && !strcmp(optarg, "auto")) {
+			k_auto = 1;
+			o.have_k = 1;
+			continue;
+		}
+		if (cli_fit_opts_take(&o, c, optarg))
+			continue;
 		switch (c) {
-		case 'k':
-			if (!strcmp(optarg, "auto"))
-				k_auto = 1;
-			else
-				p.k = cli_u32("-k", optarg, 1, MODEL_MAX_K);
-			have_k = 1;
-			break;
 		case OPT_K_RANGE: {
 			char lo[32], hi[32];
 			const char *colon = strchr(optarg, ':');
@@ -240,23 +225,8 @@ int cmd_fit(int argc, char **argv)
 		}
 		case OPT_HOLDOUT: holdout = cli_double("--holdout", optarg, 0.01, 0.5); break;
 		case 'o': out = optarg; break;
-		case 'j': p.threads = cli_u32("-j", optarg, 1, 256); break;
-		case OPT_SEED: p.seed = cli_u64("--seed", optarg); have_seed = 1; break;
-		case OPT_TOL: p.tol = cli_double("--tol", optarg, 0.0, 1.0); have_tol = 1; break;
-		case OPT_PATIENCE: p.patience = cli_u32("--patience", optarg, 1, 1000); have_pat = 1; break;
-		case OPT_MAX_SWEEPS:
-			p.max_sweeps = cli_u32("--max-sweeps", optarg, 0, 100000000);
-			have_max = 1;
-			break;
-		case OPT_PAST_PLATEAU: p.past_plateau = 1; break;
-		case OPT_EPSILON: p.epsilon = cli_double("--epsilon", optarg, 1e-300, 0.5); have_eps = 1; break;
-		case OPT_FORMAT:
-			if (graph_format_parse(optarg, &fmt))
-				return EXIT_USAGE;
-			break;
+		case OPT_PAST_PLATEAU: o.p.past_plateau = 1; break;
 		case OPT_RESUME: resume = optarg; break;
-		case OPT_STARTS: p.starts = cli_u32("--starts", optarg, 1, 1000); have_starts = 1; break;
-		case OPT_NO_REFINE: p.no_refine = 1; break;
 		case OPT_SAVE_EVERY: save_every = cli_double("--save-every", optarg, 1.0, 1e9); break;
 		case 'q': quiet = 1; break;
 		case 'h': fit_usage(stdout); return 0;
@@ -273,7 +243,8 @@ int cmd_fit(int argc, char **argv)
 		fit_usage(stderr);
 		die(EXIT_USAGE, "fit needs a graph file (or - for standard input)");
 	}
-	if (!resume && !have_k)
+	struct fit_params p = o.p;
+	if (!resume && !o.have_k)
 		die(EXIT_USAGE, "fit needs the number of communities: -k N");
 	if (!out)
 		out = resume;
@@ -298,7 +269,7 @@ int cmd_fit(int argc, char **argv)
 		if (result_read_checkpoint(path, &ck))
 			return 1;
 		if (gpath) {
-			g = graph_load(gpath, fmt);
+			g = graph_load(gpath, o.fmt);
 			if (!g) {
 				checkpoint_release(&ck);
 				return 1;
@@ -313,35 +284,18 @@ int cmd_fit(int argc, char **argv)
 		}
 		if (k_auto)
 			die(EXIT_USAGE, "-k auto cannot be used when resuming");
-		if (have_k && p.k != ck.params.k)
-			die(EXIT_USAGE, "the saved fit has %u communities; -k %u cannot change that",
-			    ck.params.k, p.k);
-		struct fit_params saved = ck.params;
-		saved.threads = p.threads; /* this machine's choice, not the saved one */
-		if (have_tol)
-			saved.tol = p.tol;
-		if (have_pat)
-			saved.patience = p.patience;
-		if (have_max)
-			saved.max_sweeps = p.max_sweeps;
-		if (have_eps && p.epsilon != saved.epsilon)
-			die(EXIT_USAGE, "--epsilon cannot change when resuming");
-		if (have_seed && p.seed != saved.seed)
-			warning("--seed is ignored when resuming; the fit keeps seed %llu",
-				(unsigned long long)saved.seed);
-		saved.past_plateau = saved.past_plateau || p.past_plateau;
-		p = saved;
+		cli_fit_opts_resume(&o, &ck.params, "when resuming", &p);
 		p.hold_at_plateau = 0;
 		if (ck.state == FIT_LEVELLED && !p.past_plateau)
 			notice("the saved fit had levelled off; it goes on until it levels off again");
 		checkpoint_origin(&ck, &origin);
 		orig = &origin;
 	} else {
-		g = graph_load(gpath, fmt);
+		g = graph_load(gpath, o.fmt);
 		if (!g)
 			return 1;
-		if (!have_starts)
-			p.starts = g->m < FIT_MANY_STARTS_BELOW ? 3 : 1;
+		cli_fit_opts_starts(&o, g->m);
+		p.starts = o.p.starts;
 		if (k_auto && choose_k(g, &p, out, krange_lo, krange_hi, holdout, quiet)) {
 			graph_free(g);
 			return cli_signal_caught() ? EXIT_INTERRUPTED : 1;
