@@ -381,8 +381,15 @@ double agm_loglik(const struct graph *g, const struct cover *c, const double *p,
 		index_release(&ix);
 		return NAN;
 	}
+	uint32_t most = 1; /* the most communities one node is in */
+	for (uint32_t u = 0; u < g->n; u++)
+		if (ix.noff[u + 1] - ix.noff[u] > most)
+			most = (uint32_t)(ix.noff[u + 1] - ix.noff[u]);
 	double *q = util_malloc(c->k, sizeof *q);
-	if (!q) {
+	uint32_t *common = util_malloc(most, sizeof *common);
+	if (!q || !common) {
+		free(q);
+		free(common);
 		index_release(&ix);
 		return NAN;
 	}
@@ -392,34 +399,24 @@ double agm_loglik(const struct graph *g, const struct cover *c, const double *p,
 	uint64_t lonely = 0;
 	/* One pass over the edges, shared sets merged on the fly (nothing stored). */
 	for (uint32_t u = 0; u < g->n; u++) {
-		const uint32_t *cu = ix.ncom + ix.noff[u], *cue = ix.ncom + ix.noff[u + 1];
 		for (uint64_t i = g->off[u]; i < g->off[u + 1]; i++) {
 			uint32_t v = g->adj[i];
 			if (v <= u)
 				continue;
-			const uint32_t *a = cu, *b = ix.ncom + ix.noff[v];
-			const uint32_t *be = ix.ncom + ix.noff[v + 1];
-			double Q = qeps;
-			int any = 0;
-			while (a < cue && b < be) {
-				if (*a < *b) {
-					a++;
-				} else if (*b < *a) {
-					b++;
-				} else {
-					Q += q[*a];
-					ix.mc[*a]++;
-					any = 1;
-					a++;
-					b++;
-				}
-			}
-			if (any)
-				sum += log1mexp(Q);
-			else
+			uint32_t ns = shared(&ix, u, v, common);
+			if (ns == 0) {
 				lonely++;
+				continue;
+			}
+			double Q = qeps;
+			for (uint32_t j = 0; j < ns; j++) {
+				Q += q[common[j]];
+				ix.mc[common[j]]++;
+			}
+			sum += log1mexp(Q);
 		}
 	}
+	free(common);
 	ix.lonely = lonely;
 	ix.ne = 0; /* the edge terms are already in sum */
 	sum += loglik_index(&ix, c, q, qeps, g->m);
