@@ -165,3 +165,20 @@ struct graph *test_planted_ring(struct cover *truth, uint64_t seed)
 	return g;
 }
 
+
+void test_make_cover(struct cover *c, uint32_t n, uint32_t k, const uint32_t *sizes,
+		     const uint32_t *members)
+{
+	uint64_t total = 0;
+	for (uint32_t i = 0; i < k; i++)
+		total += sizes[i];
+	uint32_t *comm = malloc((total + 1) * sizeof *comm);
+	assert_non_null(comm);
+	uint64_t at = 0;
+	for (uint32_t i = 0; i < k; i++)
+		for (uint32_t j = 0; j < sizes[i]; j++)
+			comm[at++] = i;
+	assert_int_equal(cover_from_pairs(c, n, members, comm, total), 0);
+	assert_cover_sane(c);
+	free(comm);
+}

@@ -34,4 +34,9 @@ const char *test_write_file(const char *dir, const char *name, const char *text)
  * goes to *truth (release with cover_release()). */
 struct graph *test_planted_ring(struct cover *truth, uint64_t seed);
 
+/* A cover of n nodes from k member lists laid end to end: community i
+ * holds the next sizes[i] ids of members. Release with cover_release(). */
+void test_make_cover(struct cover *c, uint32_t n, uint32_t k, const uint32_t *sizes,
+		     const uint32_t *members);
+
 #endif

@@ -12,23 +12,13 @@
 #include "coterie/model.h"
 #include "coterie/rng.h"
 
-/* A cover from k member lists laid end to end (sizes[i] members each). */
+/* A cover from k member lists laid end to end (sizes[i] members each),
+ * every one of the k communities non-empty. */
 static void make_cover(struct cover *c, uint32_t n, uint32_t k, const uint32_t *sizes,
 		       const uint32_t *members)
 {
-	uint64_t total = 0;
-	for (uint32_t i = 0; i < k; i++)
-		total += sizes[i];
-	uint32_t *comm = malloc((total + 1) * sizeof *comm);
-	assert_non_null(comm);
-	uint64_t at = 0;
-	for (uint32_t i = 0; i < k; i++)
-		for (uint32_t j = 0; j < sizes[i]; j++)
-			comm[at++] = i;
-	assert_int_equal(cover_from_pairs(c, n, members, comm, total), 0);
+	test_make_cover(c, n, k, sizes, members);
 	assert_int_equal(c->k, k);
-	assert_cover_sane(c);
-	free(comm);
 }
 
 static struct graph *make_graph(uint32_t n, const uint32_t *pairs, uint64_t np)

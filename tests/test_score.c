@@ -11,23 +11,6 @@
 #include "coterie/rng.h"
 #include "coterie/score.h"
 
-/* A cover from k member lists laid end to end. */
-static void make_cover(struct cover *c, uint32_t n, uint32_t k, const uint32_t *sizes,
-		       const uint32_t *members)
-{
-	uint64_t total = 0;
-	for (uint32_t i = 0; i < k; i++)
-		total += sizes[i];
-	uint32_t *comm = malloc((total + 1) * sizeof *comm);
-	assert_non_null(comm);
-	uint64_t at = 0;
-	for (uint32_t i = 0; i < k; i++)
-		for (uint32_t j = 0; j < sizes[i]; j++)
-			comm[at++] = i;
-	assert_int_equal(cover_from_pairs(c, n, members, comm, total), 0);
-	assert_cover_sane(c);
-	free(comm);
-}
 
 /* Random cover: k communities, community i of size sizes[i] drawn
  * uniformly without replacement (members may overlap across communities). */
@@ -99,8 +82,8 @@ static void test_max_form_matches_hand_worked_example(void **state)
 {
 	(void)state;
 	struct cover x, y;
-	make_cover(&x, 8, 2, (const uint32_t[]){ 4, 2 }, (const uint32_t[]){ 0, 1, 2, 3, 4, 5 });
-	make_cover(&y, 8, 1, (const uint32_t[]){ 2 }, (const uint32_t[]){ 0, 1 });
+	test_make_cover(&x, 8, 2, (const uint32_t[]){ 4, 2 }, (const uint32_t[]){ 0, 1, 2, 3, 4, 5 });
+	test_make_cover(&y, 8, 1, (const uint32_t[]){ 2 }, (const uint32_t[]){ 0, 1 });
 	double hy = 2.0 - 0.75 * L3;
 	double want_max = (1.5 - 0.75 * L3) / (1.0 + hy);                       /* above */
 	double want_lfk = 1.0 - 0.5 * (((0.75 * L3 - 0.5) + 1.0) / 2.0 + 0.5 / hy); /* above */
@@ -129,9 +112,9 @@ static void test_partitions_match_hand_worked_example(void **state)
 {
 	(void)state;
 	struct cover x, y;
-	make_cover(&x, 8, 2, (const uint32_t[]){ 4, 4 },
+	test_make_cover(&x, 8, 2, (const uint32_t[]){ 4, 4 },
 		   (const uint32_t[]){ 0, 1, 2, 3, 4, 5, 6, 7 });
-	make_cover(&y, 8, 2, (const uint32_t[]){ 6, 2 },
+	test_make_cover(&y, 8, 2, (const uint32_t[]){ 6, 2 },
 		   (const uint32_t[]){ 0, 1, 2, 3, 4, 5, 6, 7 });
 	double hy = 2.0 - 0.75 * L3;
 	assert_true(fabs(score_onmi_max(&x, &y) - (1.5 - 0.75 * L3)) < 1e-12);  /* above */
@@ -166,15 +149,15 @@ static void test_disjoint_communities_are_scored_by_the_lfk_condition(void **sta
 	for (uint32_t i = 0; i < 60; i++)
 		m60[i] = i;
 	struct cover x, y;
-	make_cover(&x, 100, 1, (const uint32_t[]){ 60 }, m60);
-	make_cover(&y, 100, 1, (const uint32_t[]){ 1 }, (const uint32_t[]){ 99 });
+	test_make_cover(&x, 100, 1, (const uint32_t[]){ 60 }, m60);
+	test_make_cover(&y, 100, 1, (const uint32_t[]){ 1 }, (const uint32_t[]){ 99 });
 	assert_true(fabs(score_onmi_max(&x, &y) - 0.0137275) < 1e-7); /* worked above */
 	assert_true(fabs(score_onmi_lfk(&x, &y) - 0.0893507) < 1e-7); /* worked above */
 	cover_release(&x);
 	cover_release(&y);
 
-	make_cover(&x, 8, 1, (const uint32_t[]){ 4 }, (const uint32_t[]){ 0, 1, 2, 3 });
-	make_cover(&y, 8, 1, (const uint32_t[]){ 4 }, (const uint32_t[]){ 4, 5, 6, 7 });
+	test_make_cover(&x, 8, 1, (const uint32_t[]){ 4 }, (const uint32_t[]){ 0, 1, 2, 3 });
+	test_make_cover(&y, 8, 1, (const uint32_t[]){ 4 }, (const uint32_t[]){ 4, 5, 6, 7 });
 	assert_true(score_onmi_max(&x, &y) == 0.0); /* rejected: worked above */
 	assert_true(score_onmi_lfk(&x, &y) == 0.0);
 	cover_release(&x);
@@ -381,15 +364,15 @@ static void test_constant_communities_and_mismatched_covers(void **state)
 {
 	(void)state;
 	struct cover x, y, none, all;
-	make_cover(&x, 8, 2, (const uint32_t[]){ 4, 2 }, (const uint32_t[]){ 0, 1, 2, 3, 4, 5 });
+	test_make_cover(&x, 8, 2, (const uint32_t[]){ 4, 2 }, (const uint32_t[]){ 0, 1, 2, 3, 4, 5 });
 	/* the same communities plus one of all 8 nodes */
-	make_cover(&y, 8, 3, (const uint32_t[]){ 4, 8, 2 },
+	test_make_cover(&y, 8, 3, (const uint32_t[]){ 4, 8, 2 },
 		   (const uint32_t[]){ 0, 1, 2, 3, 0, 1, 2, 3, 4, 5, 6, 7, 4, 5 });
 	assert_true(fabs(score_onmi_max(&x, &y) - 1.0) < 1e-12);
 	assert_true(fabs(score_onmi_lfk(&x, &y) - 1.0) < 1e-12);
 
-	make_cover(&none, 8, 0, NULL, NULL);
-	make_cover(&all, 8, 1, (const uint32_t[]){ 8 },
+	test_make_cover(&none, 8, 0, NULL, NULL);
+	test_make_cover(&all, 8, 1, (const uint32_t[]){ 8 },
 		   (const uint32_t[]){ 0, 1, 2, 3, 4, 5, 6, 7 });
 	assert_true(score_onmi_max(&none, &none) == 1.0);
 	assert_true(score_onmi_lfk(&none, &none) == 1.0);
@@ -399,7 +382,7 @@ static void test_constant_communities_and_mismatched_covers(void **state)
 	assert_true(score_onmi_lfk(&x, &none) == 0.0);
 
 	struct cover other;
-	make_cover(&other, 9, 1, (const uint32_t[]){ 2 }, (const uint32_t[]){ 0, 1 });
+	test_make_cover(&other, 9, 1, (const uint32_t[]){ 2 }, (const uint32_t[]){ 0, 1 });
 	assert_true(score_onmi_max(&x, &other) == -1.0); /* different n */
 	assert_true(score_onmi_lfk(&other, &x) == -1.0);
 	cover_release(&x);
