@@ -128,7 +128,7 @@ struct fit {
 	int resumed;
 	uint32_t start, starts, best_start;
 	double best_loglik;
-	uint32_t refined;
+	uint32_t reseeds;
 	/* the last AGM built for a snapshot, reused while it is recent */
 	struct agm agm;
 	int have_agm;
@@ -199,7 +199,7 @@ static int publish(struct fit *f, enum fit_state state)
 	s->starts = f->starts;
 	s->best_start = f->best_start;
 	s->best_loglik = f->best_loglik;
-	s->refined = f->refined;
+	s->reseeds = f->reseeds;
 	s->state = state;
 	s->plateau_sweep = f->plateau_sweep;
 	s->plateau = f->plateau_sweep > 0;
@@ -578,18 +578,18 @@ static enum fit_state hold(struct fit *f, uint32_t *perm)
 }
 
 /*
- * Refinement moves. A start often levels off with one column spread over
+ * Reseeding moves. A start often levels off with one column spread over
  * two true communities and another wasted on a sliver of a third. A move
  * takes the weakest column (smallest column sum), empties it, and seeds it
  * again inside the largest community (the ego-net of one of its members,
  * restricted to that community), then fits to a plateau again. The move
  * is kept only if the log-likelihood rose; otherwise the model goes back.
- * Moves stop after REFINE_FAILS failures in a row, REFINE_MAX moves, or
+ * Moves stop after RESEED_FAILS failures in a row, RESEED_MAX moves, or
  * when they have used as many sweeps as the climb to the first plateau.
  */
-#define REFINE_MAX 12u
-#define REFINE_FAILS 3u
-#define REFINE_MIN_BUDGET 30u
+#define RESEED_MAX 12u
+#define RESEED_FAILS 3u
+#define RESEED_MIN_BUDGET 30u
 
 static int reseed_column(struct fit *f, struct rng *r)
 {
@@ -674,9 +674,9 @@ out:
 	return rc;
 }
 
-/* Refine a levelled start; returns how the fit ended (LEVELLED when the
+/* Reseed a levelled start; returns how the fit ended (LEVELLED when the
  * moves ran out, or STOPPED/FINISHED/FAILED when something else ended it). */
-static enum fit_state refine(struct fit *f, uint32_t *perm)
+static enum fit_state reseed(struct fit *f, uint32_t *perm)
 {
 	struct rng r;
 	rng_init(&r, f->p.seed ^ 0x7ef1e5ULL ^ ((uint64_t)f->start << 48));
@@ -685,10 +685,10 @@ static enum fit_state refine(struct fit *f, uint32_t *perm)
 	enum fit_state st = FIT_LEVELLED;
 	unsigned fails = 0;
 	/* the moves may spend at most as many sweeps as the climb did (and at
-	 * least REFINE_MIN_BUDGET), so refinement at most about doubles a fit */
-	uint32_t budget = f->sweep > REFINE_MIN_BUDGET ? f->sweep : REFINE_MIN_BUDGET;
+	 * least RESEED_MIN_BUDGET), so reseeding at most about doubles a fit */
+	uint32_t budget = f->sweep > RESEED_MIN_BUDGET ? f->sweep : RESEED_MIN_BUDGET;
 	uint32_t spent = 0;
-	for (unsigned move = 0; move < REFINE_MAX && fails < REFINE_FAILS && spent < budget;
+	for (unsigned move = 0; move < RESEED_MAX && fails < RESEED_FAILS && spent < budget;
 	     move++) {
 		if (atomic_load(&f->stop_req))
 			return FIT_STOPPED;
@@ -712,7 +712,7 @@ static enum fit_state refine(struct fit *f, uint32_t *perm)
 		double after = f->trace[f->ntrace - 1].loglik;
 		if (after > before) {
 			fails = 0;
-			f->refined++;
+			f->reseeds++;
 		} else {
 			if (model_import(&f->m, &saved)) {
 				fcsr_release(&saved);
@@ -735,7 +735,7 @@ struct best {
 	int have;
 	struct fcsr F;
 	struct trace_point *trace;
-	uint32_t ntrace, sweep, plateau_sweep, refined;
+	uint32_t ntrace, sweep, plateau_sweep, reseeds;
 	enum fit_state state;
 };
 
@@ -753,7 +753,7 @@ static int keep_best(struct fit *f, struct best *b, enum fit_state st)
 	b->ntrace = f->ntrace;
 	b->sweep = f->sweep;
 	b->plateau_sweep = f->plateau_sweep;
-	b->refined = f->refined;
+	b->reseeds = f->reseeds;
 	b->state = st;
 	b->have = 1;
 	f->best_start = f->start;
@@ -769,7 +769,7 @@ static int restore_best(struct fit *f, struct best *b)
 	f->ntrace = b->ntrace;
 	f->sweep = b->sweep;
 	f->plateau_sweep = b->plateau_sweep;
-	f->refined = b->refined;
+	f->reseeds = b->reseeds;
 	return 0;
 }
 
@@ -799,7 +799,7 @@ static void *fit_main(void *arg)
 			model_recount(&f->m);
 			f->ntrace = 0;
 			f->sweep = 0;
-			f->refined = 0;
+			f->reseeds = 0;
 			f->streak = 0;
 			f->plateau_sweep = 0;
 		}
@@ -811,8 +811,8 @@ static void *fit_main(void *arg)
 		}
 		publish(f, FIT_FITTING);
 		enum fit_state st = run_start(f, perm, 0);
-		if (st == FIT_LEVELLED && !f->p.no_refine)
-			st = refine(f, perm);
+		if (st == FIT_LEVELLED && !f->p.no_reseed)
+			st = reseed(f, perm);
 		if (st == FIT_FAILED) {
 			final = FIT_FAILED;
 			break;

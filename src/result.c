@@ -70,14 +70,14 @@
  *                     above 2^63 - 1), tol, patience, max_sweeps, epsilon
  *                     (the background actually used), delta (the
  *                     membership threshold), past_plateau (boolean),
- *                     starts, refine (boolean), k_chosen_by ("given",
+ *                     starts, reseed (boolean), k_chosen_by ("given",
  *                     or "held-out likelihood" for -k auto)
  *   fit               status, state, sweeps, plateau_sweep (null before
  *                     the plateau rule fired), seconds, loglik (last
  *                     trace value), agm_loglik, communities (non-empty
  *                     ones), covered_nodes, overlapping_nodes,
  *                     start_kept (null for a resumed fit),
- *                     refinements_kept
+ *                     reseeds_kept
  *   run               wall_seconds, peak_rss_kb (null when unknown)
  *   A number that is not finite is written as null. A string that is
  *   not valid UTF-8 is written with C escapes, in ASCII.
@@ -1393,7 +1393,7 @@ static char *run_json(const struct graph *g, const struct fit_params *p,
 	j_set(jp, "delta", j_real(s->delta), &bad);
 	j_set(jp, "past_plateau", json_boolean(p->past_plateau), &bad);
 	j_set(jp, "starts", j_uint(p->starts), &bad);
-	j_set(jp, "refine", json_boolean(!p->no_refine), &bad);
+	j_set(jp, "reseed", json_boolean(!p->no_reseed), &bad);
 	j_set(jp, "k_chosen_by", j_str(meta && meta->k_auto ? "held-out likelihood" : "given"), &bad);
 	j_set(root, "parameters", jp, &bad);
 
@@ -1414,7 +1414,7 @@ static char *run_json(const struct graph *g, const struct fit_params *p,
 	j_set(jf, "covered_nodes", j_uint(s->agm.covered), &bad);
 	j_set(jf, "overlapping_nodes", j_uint(s->agm.overlapping), &bad);
 	j_set(jf, "start_kept", s->best_start ? j_uint(s->best_start) : json_null(), &bad);
-	j_set(jf, "refinements_kept", j_uint(s->refined), &bad);
+	j_set(jf, "reseeds_kept", j_uint(s->reseeds), &bad);
 	j_set(root, "fit", jf, &bad);
 
 	j_set(jr, "wall_seconds", meta ? j_real(meta->wall_seconds) : json_null(), &bad);

@@ -525,11 +525,11 @@ static void test_run_json_has_every_key_in_order_with_values(void **state)
 					     "isolated", "directed_input" };
 	static const char *const params[] = { "k", "threads", "seed", "tol", "patience",
 					      "max_sweeps", "epsilon", "delta", "past_plateau",
-					      "starts", "refine", "k_chosen_by" };
+					      "starts", "reseed", "k_chosen_by" };
 	static const char *const fit[] = { "status", "state", "sweeps", "plateau_sweep",
 					   "seconds", "loglik", "agm_loglik", "communities",
 					   "covered_nodes", "overlapping_nodes", "start_kept",
-					   "refinements_kept" };
+					   "reseeds_kept" };
 	static const char *const run[] = { "wall_seconds", "peak_rss_kb" };
 	assert_keys(root, top, 6);
 	assert_keys(get(root, "graph", NULL), graph, 11);

@@ -9,11 +9,11 @@
  * likely of a few is the maximum-likelihood answer the model asks for).
  * Snapshots show the start in progress; the final one is the best start.
  *
- * Refinement: when a start levels off, the weakest column is emptied and
+ * Reseeding: when a start levels off, the weakest column is emptied and
  * seeded again inside the largest community, and the fit runs to a
  * plateau again; the move is kept only if the likelihood rose (see
- * refine() in fit.c; no_refine skips it). A fit that holds at a plateau
- * holds after the starts and their refinement are done.
+ * reseed() in fit.c; no_reseed skips it). A fit that holds at a plateau
+ * holds after the starts and their reseeding are done.
  *
  * Determinism: each sweep visits the nodes in a permutation drawn from
  * (seed, start, sweep) and cuts it into fixed blocks; the rows of a block are
@@ -62,7 +62,7 @@ struct fit_params {
 	int past_plateau;    /* 1: do not stop at a plateau, only mark it */
 	unsigned starts;     /* fit this many times (sweep orders differ) and
 			      * keep the most likely; >= 1 */
-	int no_refine;       /* 1: skip the refinement moves after a plateau */
+	int no_reseed;       /* 1: skip the reseeding moves after a plateau */
 	int hold_at_plateau; /* 1: at a plateau wait (state LEVELLED) for
 			      * fit_extend() or fit_stop() instead of ending */
 };
@@ -84,7 +84,7 @@ struct snapshot {
 	uint32_t start, starts;  /* which start this is (1-based), of how many */
 	uint32_t best_start;     /* the most likely start so far (0: none done) */
 	double best_loglik;      /* its final log-likelihood */
-	uint32_t refined;        /* refinement moves kept in this start */
+	uint32_t reseeds;        /* reseeding moves kept in this start */
 	enum fit_state state;
 	int plateau;             /* the plateau rule has fired */
 	uint32_t plateau_sweep;  /* where it first fired (0: not yet) */

@@ -61,7 +61,7 @@ enum {
 	CLI_OPT_EPSILON,
 	CLI_OPT_FORMAT,
 	CLI_OPT_STARTS,
-	CLI_OPT_NO_REFINE,
+	CLI_OPT_NO_RESEED,
 	CLI_OPT_OWN,
 };
 
@@ -82,7 +82,7 @@ int cli_fit_opts_take(struct cli_fit_opts *o, int c, const char *arg);
 /* The starts default for a graph of m edges, unless --starts was given. */
 void cli_fit_opts_starts(struct cli_fit_opts *o, uint64_t m);
 /* The parameters for continuing a saved fit: the saved ones, with this
- * machine's threads and the --tol, --patience, --max-sweeps, --no-refine
+ * machine's threads and the --tol, --patience, --max-sweeps, --no-reseed
  * given; a different -k or --epsilon exits 2 and --seed is ignored with a
  * warning ("when" ends those messages, e.g. "when resuming"). */
 void cli_fit_opts_resume(const struct cli_fit_opts *o, const struct fit_params *saved,

@@ -198,7 +198,7 @@ int cli_fit_opts_take(struct cli_fit_opts *o, int c, const char *arg)
 		p->starts = cli_u32("--starts", arg, 1, 1000);
 		o->have_starts = 1;
 		return 1;
-	case CLI_OPT_NO_REFINE: p->no_refine = 1; return 1;
+	case CLI_OPT_NO_RESEED: p->no_reseed = 1; return 1;
 	default: return 0;
 	}
 }
@@ -222,7 +222,7 @@ void cli_fit_opts_resume(const struct cli_fit_opts *o, const struct fit_params *
 			(unsigned long long)saved->seed);
 	*out = *saved;
 	out->threads = o->p.threads; /* this machine's choice, not the saved one */
-	out->no_refine = saved->no_refine || o->p.no_refine;
+	out->no_reseed = saved->no_reseed || o->p.no_reseed;
 	out->past_plateau = saved->past_plateau || o->p.past_plateau;
 	if (o->have_tol)
 		out->tol = o->p.tol;

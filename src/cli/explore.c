@@ -44,7 +44,7 @@ static void explore_usage(FILE *out)
 		"      --seed N          random seed (default 1)\n"
 		"      --starts N        fit N times and keep the most likely (default 3 below\n"
 		"                        100000 edges, else 1)\n"
-		"      --no-refine       skip the moves that re-seed the weakest community\n"
+		"      --no-reseed       skip the moves that re-seed the weakest community\n"
 		"      --tol X           plateau: relative gain per sweep below X ...\n"
 		"      --patience N      ... for N sweeps in a row (defaults 1e-4, 3)\n"
 		"      --max-sweeps N    stop after N sweeps in all (default 500)\n"
@@ -146,7 +146,7 @@ int cmd_explore(int argc, char **argv)
 		{ "format", required_argument, NULL, CLI_OPT_FORMAT },
 		{ "resume", no_argument, NULL, OPT_RESUME },
 		{ "starts", required_argument, NULL, CLI_OPT_STARTS },
-		{ "no-refine", no_argument, NULL, CLI_OPT_NO_REFINE },
+		{ "no-reseed", no_argument, NULL, CLI_OPT_NO_RESEED },
 		{ "list-keys", no_argument, NULL, OPT_LIST_KEYS }, /* for the tests */
 		{ "help", no_argument, NULL, 'h' },
 		{ NULL, 0, NULL, 0 },

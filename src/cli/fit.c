@@ -40,11 +40,11 @@ static void fit_usage(FILE *out)
 		"      --starts N        fit N times from different seeds and sweep orders and\n"
 		"                        keep the most likely (default 3 below 100000 edges,\n"
 		"                        else 1; the likelihood has local maxima)\n"
-		"      --no-refine       skip the moves that re-seed the weakest community\n"
+		"      --no-reseed       skip the moves that re-seed the weakest community\n"
 		"                        after a plateau (faster, often less likely)\n"
 		"      --tol X           plateau: relative gain per sweep below X ...\n"
 		"      --patience N      ... for N sweeps in a row (defaults 1e-4, 3)\n"
-		"      --max-sweeps N    at most N sweeps per start, refinement and earlier\n"
+		"      --max-sweeps N    at most N sweeps per start, reseeding and earlier\n"
 		"                        runs of a resumed fit included (default 500)\n"
 		"      --past-plateau    do not stop at a plateau; run to --max-sweeps\n"
 		"      --epsilon X       background link probability (default: the density)\n"
@@ -185,7 +185,7 @@ int cmd_fit(int argc, char **argv)
 		{ "resume", required_argument, NULL, OPT_RESUME },
 		{ "save-every", required_argument, NULL, OPT_SAVE_EVERY },
 		{ "starts", required_argument, NULL, CLI_OPT_STARTS },
-		{ "no-refine", no_argument, NULL, CLI_OPT_NO_REFINE },
+		{ "no-reseed", no_argument, NULL, CLI_OPT_NO_RESEED },
 		{ "k-range", required_argument, NULL, OPT_K_RANGE },
 		{ "holdout", required_argument, NULL, OPT_HOLDOUT },
 		{ "quiet", no_argument, NULL, 'q' },

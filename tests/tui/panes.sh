@@ -13,7 +13,7 @@ nodes=$(awk -F'\t' '{ print $1; print $2 }' "$g" | sort -u | wc -l | tr -d ' ')
 edges=$(awk -F'\t' '{ if ($1 < $2) print $1 "\t" $2; else print $2 "\t" $1 }' "$g" |
 	sort -u | wc -l | tr -d ' ')
 
-start_ui 120x40 C.UTF-8 "$g" -k 6 -j 2 --starts 1 --no-refine --max-sweeps 100000000 -o out
+start_ui 120x40 C.UTF-8 "$g" -k 6 -j 2 --starts 1 --no-reseed --max-sweeps 100000000 -o out
 check "the likelihood pane appears" wait_screen '─ 1 Likelihood'
 # e: do not wait at a plateau, so the fit is still running below
 keys e

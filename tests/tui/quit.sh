@@ -20,7 +20,7 @@ wait_file()
 }
 
 # 1. a running fit
-start_ui 120x40 C.UTF-8 "$g" -k 6 -j 2 --starts 1 --no-refine --max-sweeps 100000000 -o run
+start_ui 120x40 C.UTF-8 "$g" -k 6 -j 2 --starts 1 --no-reseed --max-sweeps 100000000 -o run
 wait_screen '─ 5 Weak edges' 10
 keys e
 check "the fit runs" wait_screen 'state   fitting'
@@ -52,7 +52,7 @@ check "run.json says levelled" [ "$(json_get "$tmp/lev/run.json" fit.state)" = l
 
 # 3. signals
 for how in C-c TERM HUP; do
-	start_ui 120x40 C.UTF-8 "$g" -k 6 -j 2 --starts 1 --no-refine --max-sweeps 100000000 -o "sig-$how"
+	start_ui 120x40 C.UTF-8 "$g" -k 6 -j 2 --starts 1 --no-reseed --max-sweeps 100000000 -o "sig-$how"
 	wait_screen '─ 5 Weak edges' 10
 	keys e
 	wait_screen 'state   fitting' 10
@@ -71,7 +71,7 @@ done
 
 # 4. the terminal goes away (an SSH connection dropped): the tmux server
 # dies with the explorer's terminal
-start_ui 120x40 C.UTF-8 "$g" -k 6 -j 2 --starts 1 --no-refine --max-sweeps 100000000 -o lost
+start_ui 120x40 C.UTF-8 "$g" -k 6 -j 2 --starts 1 --no-reseed --max-sweeps 100000000 -o lost
 wait_screen '─ 5 Weak edges' 10
 keys e
 wait_screen 'state   fitting' 10
