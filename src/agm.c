@@ -306,8 +306,12 @@ static double newton_community(const struct index *ix, uint32_t c, double nonedg
 	return worst;
 }
 
-/* The maximum-likelihood q for the index; q has ix->k values. */
-static int estimate_q(const struct index *ix, const struct cover *c, double qeps, double *q)
+/* The maximum-likelihood q for the index; q has ix->k values. With warm,
+ * q holds a starting point on entry (else the closed form without
+ * overlaps is used): every step rises, so the answer is at least as likely
+ * as a warm start. */
+static int estimate_q(const struct index *ix, const struct cover *c, double qeps, double *q,
+		      int warm)
 {
 	uint64_t most = 0;
 	for (uint32_t i = 0; i < ix->k; i++)
@@ -331,7 +335,7 @@ static int estimate_q(const struct index *ix, const struct cover *c, double qeps
 			q[i] = AGM_QMAX; /* a clique: L rises with q_c everywhere */
 		} else {
 			/* Start from the answer without overlaps (test_agm.c derives it). */
-			double q0 = -log1p(-m / P) - qeps;
+			double q0 = warm && q[i] >= 0.0 ? q[i] : -log1p(-m / P) - qeps;
 			q[i] = fmin(fmax(q0, AGM_QLO), AGM_QMAX);
 			active[nact++] = i;
 		}
@@ -365,10 +369,28 @@ int agm_estimate_p(const struct graph *g, const struct cover *c, double epsilon,
 	struct index ix;
 	if (check_input(g, c, epsilon) < 0 || index_build(&ix, g, c) < 0)
 		return -1;
-	int rc = estimate_q(&ix, c, -log1p(-epsilon), p);
+	int rc = estimate_q(&ix, c, -log1p(-epsilon), p, 0);
 	if (rc == 0)
 		for (uint32_t i = 0; i < c->k; i++)
 			p[i] = -expm1(-p[i]);
+	index_release(&ix);
+	return rc;
+}
+
+int agm_improve_p(const struct graph *g, const struct cover *c, double epsilon, double *p)
+{
+	for (uint32_t i = 0; i < c->k; i++)
+		if (!(p[i] >= 0.0 && p[i] <= 1.0))
+			return error("link probability %g of community %" PRIu32 " out of range [0, 1]",
+				     p[i], i);
+	struct index ix;
+	if (check_input(g, c, epsilon) < 0 || index_build(&ix, g, c) < 0)
+		return -1;
+	for (uint32_t i = 0; i < c->k; i++)
+		p[i] = -log1p(-p[i]); /* q; +inf for p = 1 is capped by estimate_q() */
+	int rc = estimate_q(&ix, c, -log1p(-epsilon), p, 1);
+	for (uint32_t i = 0; i < c->k; i++)
+		p[i] = -expm1(-p[i]);
 	index_release(&ix);
 	return rc;
 }
@@ -438,8 +460,10 @@ static int order_cmp(const void *pa, const void *pb)
 }
 
 /* Everything after out->cover (largest first), out->strength and the ids
- * are in place: p, figures, the log-likelihood and node counts. */
-static int finish(struct agm *out, const struct graph *g, const uint32_t *ids)
+ * are in place: p (estimated, or given by pgiven[ids[i]]), figures, the
+ * log-likelihood and node counts. */
+static int finish(struct agm *out, const struct graph *g, const uint32_t *ids,
+		  const double *pgiven)
 {
 	const struct cover *c = &out->cover;
 	struct index ix;
@@ -448,7 +472,10 @@ static int finish(struct agm *out, const struct graph *g, const uint32_t *ids)
 	double qeps = -log1p(-out->epsilon);
 	double *q = util_malloc(c->k, sizeof *q);
 	out->comms = util_calloc(c->k, sizeof *out->comms);
-	if (!q || !out->comms || estimate_q(&ix, c, qeps, q) < 0) {
+	if (q && pgiven)
+		for (uint32_t i = 0; i < c->k; i++)
+			q[i] = -log1p(-pgiven[ids[i]]);
+	if (!q || !out->comms || (!pgiven && estimate_q(&ix, c, qeps, q, 0) < 0)) {
 		free(q);
 		index_release(&ix);
 		return -1;
@@ -553,7 +580,7 @@ int agm_from_strengths(struct agm *out, const struct graph *g, const struct fcsr
 			cv->mem[pos] = u;
 			out->strength[pos] = F->e[j].v;
 		}
-	if (finish(out, g, ids) < 0)
+	if (finish(out, g, ids, NULL) < 0)
 		goto fail;
 	free(ord);
 	free(slot);
@@ -571,11 +598,21 @@ fail:
 
 int agm_from_cover(struct agm *out, const struct graph *g, const struct cover *c, double epsilon)
 {
+	return agm_from_cover_p(out, g, c, epsilon, NULL);
+}
+
+int agm_from_cover_p(struct agm *out, const struct graph *g, const struct cover *c,
+		     double epsilon, const double *p)
+{
 	struct order *ord = NULL;
 	uint32_t *ids = NULL;
 
 	if (agm_begin(out, g, epsilon) < 0 || check_input(g, c, epsilon) < 0)
 		return -1;
+	for (uint32_t i = 0; p && i < c->k; i++)
+		if (!(p[i] >= 0.0 && p[i] <= 1.0))
+			return error("link probability %g of community %" PRIu32 " out of range [0, 1]",
+				     p[i], i);
 	ord = util_malloc(c->k, sizeof *ord);
 	if (!ord)
 		return -1;
@@ -609,7 +646,7 @@ int agm_from_cover(struct agm *out, const struct graph *g, const struct cover *c
 	}
 	for (uint64_t j = 0; j < cv->off[k]; j++)
 		out->strength[j] = 1.0;
-	if (finish(out, g, ids) < 0)
+	if (finish(out, g, ids, p) < 0)
 		goto fail;
 	free(ord);
 	free(ids);

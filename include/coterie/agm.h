@@ -60,9 +60,20 @@ int agm_from_strengths(struct agm *out, const struct graph *g, const struct fcsr
  * Returns 0 or -1; release with agm_release(). */
 int agm_from_cover(struct agm *out, const struct graph *g, const struct cover *c, double epsilon);
 
+/* As agm_from_cover(), with the link probabilities given instead of
+ * estimated: p (c->k values in [0, 1], borrowed; p[i] for community i of
+ * c). Returns 0 or -1. */
+int agm_from_cover_p(struct agm *out, const struct graph *g, const struct cover *c,
+		     double epsilon, const double *p);
+
 /* Maximum-likelihood p for fixed memberships into p (c->k values,
  * borrowed). Returns 0 or -1. */
 int agm_estimate_p(const struct graph *g, const struct cover *c, double epsilon, double *p);
+
+/* The same maximum, climbed to from the p given on entry (c->k values in
+ * [0, 1], borrowed, overwritten): every coordinate step rises, so the
+ * answer is never less likely than the start. Returns 0 or -1. */
+int agm_improve_p(const struct graph *g, const struct cover *c, double epsilon, double *p);
 
 /* The AGM log-likelihood of graph g under cover c with probabilities p
  * (c->k values in [0, 1], borrowed), in O(m * overlap + n + k). -INFINITY
