@@ -26,7 +26,9 @@
  * UTF-8 when the input was), apart from the escapes below.
  *
  * memberships.tsv   header: node community strength
- *   One row per membership (strength >= delta). Rows are grouped by
+ *   One row per membership (strength >= delta; after fit --refine, the
+ *   refined cover instead, see run.json fit.memberships_from, and then a
+ *   strength can be below delta or 0). Rows are grouped by
  *   community in the order of communities.tsv (largest first, ties by id);
  *   within a community, members by decreasing strength (ties by node order
  *   in the graph).
@@ -77,7 +79,13 @@
  *                     trace value), agm_loglik, communities (non-empty
  *                     ones), covered_nodes, overlapping_nodes,
  *                     start_kept (null for a resumed fit),
- *                     reseeds_kept
+ *                     reseeds_kept, memberships_from ("strengths", or
+ *                     "agm refinement" after --refine; agm_loglik and the
+ *                     counts describe that cover)
+ *   agm_refine        null without --refine; else max_rounds, done (false
+ *                     when it did not run; the rest is then null),
+ *                     loglik_before, loglik_after, moves_added,
+ *                     moves_removed, rounds, converged, seconds
  *   run               wall_seconds, peak_rss_kb (null when unknown)
  *   A number that is not finite is written as null. A string that is
  *   not valid UTF-8 is written with C escapes, in ASCII.
@@ -128,6 +136,7 @@
 #include "coterie/agm.h"
 #include "coterie/graph.h"
 #include "coterie/model.h"
+#include "coterie/refine.h"
 #include "coterie/util.h"
 
 #define CK_MAGIC "COTERIE\x1a"
@@ -1415,7 +1424,26 @@ static char *run_json(const struct graph *g, const struct fit_params *p,
 	j_set(jf, "overlapping_nodes", j_uint(s->agm.overlapping), &bad);
 	j_set(jf, "start_kept", s->best_start ? j_uint(s->best_start) : json_null(), &bad);
 	j_set(jf, "reseeds_kept", j_uint(s->reseeds), &bad);
+	j_set(jf, "memberships_from",
+	      j_str(meta && meta->refine ? "agm refinement" : "strengths"), &bad);
 	j_set(root, "fit", jf, &bad);
+
+	const struct refine_report *rr = meta ? meta->refine : NULL;
+	if (meta && meta->refine_rounds) {
+		json_t *ja = json_object();
+		j_set(ja, "max_rounds", j_uint(meta->refine_rounds), &bad);
+		j_set(ja, "done", json_boolean(rr != NULL), &bad);
+		j_set(ja, "loglik_before", rr ? j_real(rr->loglik_before) : json_null(), &bad);
+		j_set(ja, "loglik_after", rr ? j_real(rr->loglik_after) : json_null(), &bad);
+		j_set(ja, "moves_added", rr ? j_uint(rr->added) : json_null(), &bad);
+		j_set(ja, "moves_removed", rr ? j_uint(rr->removed) : json_null(), &bad);
+		j_set(ja, "rounds", rr ? j_uint(rr->rounds) : json_null(), &bad);
+		j_set(ja, "converged", rr ? json_boolean(rr->converged) : json_null(), &bad);
+		j_set(ja, "seconds", rr ? j_real(rr->seconds) : json_null(), &bad);
+		j_set(root, "agm_refine", ja ? ja : json_null(), &bad);
+	} else {
+		j_set(root, "agm_refine", json_null(), &bad);
+	}
 
 	j_set(jr, "wall_seconds", meta ? j_real(meta->wall_seconds) : json_null(), &bad);
 	j_set(jr, "peak_rss_kb", meta && meta->peak_rss_kb ? j_uint(meta->peak_rss_kb) : json_null(),

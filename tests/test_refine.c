@@ -369,6 +369,43 @@ static void test_refinement_after_a_fit_keeps_ids_and_stops_when_asked(void **st
 	graph_free(g);
 }
 
+/* Football (Girvan & Newman, PNAS 99, 7821-7826, 2002; tests/data/README.md):
+ * 12 conferences; the refinement's effect on the ONMI with the conferences
+ * is measured and printed, only the likelihood is asserted. */
+static void test_refinement_of_a_football_fit_is_measured(void **state)
+{
+	(void)state;
+	struct graph *g = graph_load(test_data("football/edges.tsv"), GRAPH_FORMAT_EDGES);
+	assert_non_null(g);
+	struct cover truth;
+	assert_int_equal(cover_load(&truth, test_data("football/truth.tsv"), g), 0);
+	struct fit_params fp;
+	fit_params_default(&fp);
+	fp.k = 12;
+	fp.threads = 2;
+	struct fit *f = fit_new(g, &fp, NULL);
+	assert_non_null(f);
+	assert_int_equal(fit_start(f), 0);
+	fit_wait(f);
+	struct snapshot *s = fit_snapshot(f);
+	fit_free(f);
+	struct refine_params rp;
+	refine_params_default(&rp);
+	struct refine_report rep;
+	struct agm out;
+	assert_int_equal(refine_agm(g, &s->agm, &s->F, &rp, &out, &rep), 0);
+	printf("football (k 12, 3 starts): ONMI with the conferences %.4f -> %.4f; AGM loglik "
+	       "%.2f -> %.2f; +%llu -%llu memberships in %u rounds, %.4f s\n",
+	       score_onmi_max(&truth, &s->agm.cover), score_onmi_max(&truth, &out.cover),
+	       rep.loglik_before, rep.loglik_after, (unsigned long long)rep.added,
+	       (unsigned long long)rep.removed, rep.rounds, rep.seconds);
+	assert_true(out.loglik >= s->agm.loglik);
+	agm_release(&out);
+	snapshot_release(s);
+	cover_release(&truth);
+	graph_free(g);
+}
+
 static void test_rejects_bad_input(void **state)
 {
 	(void)state;
@@ -403,6 +440,7 @@ int main(void)
 		cmocka_unit_test(test_refinement_never_lowers_loglik_and_ends_at_a_local_maximum),
 		cmocka_unit_test(test_refinement_recovers_a_perturbed_planted_cover),
 		cmocka_unit_test(test_refinement_after_a_fit_keeps_ids_and_stops_when_asked),
+		cmocka_unit_test(test_refinement_of_a_football_fit_is_measured),
 		cmocka_unit_test(test_rejects_bad_input),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);

@@ -30,6 +30,7 @@
 #include "coterie/fit.h"
 #include "coterie/graph.h"
 #include "coterie/model.h"
+#include "coterie/refine.h"
 #include "coterie/result.h"
 #include "coterie/util.h"
 
@@ -519,7 +520,8 @@ static void test_run_json_has_every_key_in_order_with_values(void **state)
 	if (!root)
 		fail_msg("run.json: %s at line %d", jerr.text, jerr.line);
 
-	static const char *const top[] = { "coterie", "command", "graph", "parameters", "fit", "run" };
+	static const char *const top[] = { "coterie", "command", "graph", "parameters", "fit",
+					   "agm_refine", "run" };
 	static const char *const graph[] = { "path", "format", "nodes", "edges", "fingerprint",
 					     "lines", "self_loops", "duplicates", "extra_columns",
 					     "isolated", "directed_input" };
@@ -529,12 +531,12 @@ static void test_run_json_has_every_key_in_order_with_values(void **state)
 	static const char *const fit[] = { "status", "state", "sweeps", "plateau_sweep",
 					   "seconds", "loglik", "agm_loglik", "communities",
 					   "covered_nodes", "overlapping_nodes", "start_kept",
-					   "reseeds_kept" };
+					   "reseeds_kept", "memberships_from" };
 	static const char *const run[] = { "wall_seconds", "peak_rss_kb" };
-	assert_keys(root, top, 6);
+	assert_keys(root, top, 7);
 	assert_keys(get(root, "graph", NULL), graph, 11);
 	assert_keys(get(root, "parameters", NULL), params, 12);
-	assert_keys(get(root, "fit", NULL), fit, 12);
+	assert_keys(get(root, "fit", NULL), fit, 13);
 	assert_keys(get(root, "run", NULL), run, 2);
 
 	assert_int_equal(json_integer_value(get(root, "coterie", "format")), 1);
@@ -570,11 +572,54 @@ static void test_run_json_has_every_key_in_order_with_values(void **state)
 	assert_int_equal(json_integer_value(get(root, "fit", "communities")), 3);
 	assert_int_equal(json_integer_value(get(root, "fit", "covered_nodes")), 7);
 	assert_int_equal(json_integer_value(get(root, "fit", "overlapping_nodes")), 2);
+	assert_string_equal(json_string_value(get(root, "fit", "memberships_from")), "strengths");
+	assert_true(json_is_null(get(root, "agm_refine", NULL))); /* --refine not asked */
 
 	assert_true(json_real_value(get(root, "run", "wall_seconds")) == 2.5);
 	assert_true(json_is_null(get(root, "run", "peak_rss_kb"))); /* 0 means unknown */
 	json_decref(root);
 	remove_folder(dir);
+}
+
+static void test_run_json_records_the_agm_refinement(void **state)
+{
+	(void)state;
+	struct result_meta meta = fx.meta;
+	struct refine_report rep = { .loglik_before = -20.5, .loglik_after = -17.5, .added = 3,
+				     .removed = 1, .rounds = 2, .converged = 1, .seconds = 0.25 };
+	meta.refine = &rep;
+	meta.refine_rounds = 7;
+	const char *tmp = test_tmpdir();
+	assert_int_equal(result_write(tmp, fx.g, &fx.p, &fx.s, &meta), 0);
+	json_error_t jerr;
+	json_t *root = json_load_file(path_in(tmp, "run.json"), 0, &jerr);
+	assert_non_null(root);
+	static const char *const keys[] = { "max_rounds", "done", "loglik_before", "loglik_after",
+					    "moves_added", "moves_removed", "rounds", "converged",
+					    "seconds" };
+	assert_keys(get(root, "agm_refine", NULL), keys, 9);
+	assert_int_equal(json_integer_value(get(root, "agm_refine", "max_rounds")), 7);
+	assert_true(json_is_true(get(root, "agm_refine", "done")));
+	assert_true(json_real_value(get(root, "agm_refine", "loglik_before")) == -20.5);
+	assert_true(json_real_value(get(root, "agm_refine", "loglik_after")) == -17.5);
+	assert_int_equal(json_integer_value(get(root, "agm_refine", "moves_added")), 3);
+	assert_int_equal(json_integer_value(get(root, "agm_refine", "moves_removed")), 1);
+	assert_int_equal(json_integer_value(get(root, "agm_refine", "rounds")), 2);
+	assert_true(json_is_true(get(root, "agm_refine", "converged")));
+	assert_string_equal(json_string_value(get(root, "fit", "memberships_from")),
+			    "agm refinement");
+	json_decref(root);
+
+	/* asked but not done (interrupted first): the figures are null */
+	meta.refine = NULL;
+	assert_int_equal(result_write(tmp, fx.g, &fx.p, &fx.s, &meta), 0);
+	root = json_load_file(path_in(tmp, "run.json"), 0, &jerr);
+	assert_non_null(root);
+	assert_true(json_is_false(get(root, "agm_refine", "done")));
+	assert_true(json_is_null(get(root, "agm_refine", "loglik_after")));
+	assert_string_equal(json_string_value(get(root, "fit", "memberships_from")), "strengths");
+	json_decref(root);
+	test_rmtree(tmp);
 }
 
 static void test_run_json_writes_big_seed_as_string_and_infinity_as_null(void **state)
@@ -1174,7 +1219,7 @@ static void test_resume_through_the_checkpoint_matches_the_uninterrupted_fit(voi
 	struct snapshot *half = fit_karate(g, &p, NULL);
 
 	const char *dir = test_tmpdir();
-	struct result_meta meta = { "coterie fit karate", "karate/edges.tsv", 1.0, 0, "finished", 0 };
+	struct result_meta meta = { "coterie fit karate", "karate/edges.tsv", 1.0, 0, "finished", 0, NULL, 0 };
 	assert_int_equal(result_write(dir, g, &p, half, &meta), 0);
 
 	/* the folder agrees with the snapshot it was written from */
@@ -1241,6 +1286,7 @@ int main(void)
 		cmocka_unit_test(test_communities_tsv_lists_figures_largest_first),
 		cmocka_unit_test(test_trace_tsv_round_trips_the_loglik_exactly),
 		cmocka_unit_test(test_run_json_has_every_key_in_order_with_values),
+		cmocka_unit_test(test_run_json_records_the_agm_refinement),
 		cmocka_unit_test(test_run_json_writes_big_seed_as_string_and_infinity_as_null),
 		cmocka_unit_test(test_checkpoint_layout_matches_the_documentation),
 		cmocka_unit_test(test_checkpoint_round_trip_keeps_every_field),

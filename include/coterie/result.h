@@ -28,6 +28,7 @@ struct graph;
 #define RESULT_SELECTION "kselect.tsv"
 
 struct select_point;
+struct refine_report;
 
 /* Write DIR/kselect.tsv (k, held-out log-likelihood, sweeps, seconds,
  * chosen) for a -k auto search, atomically. Returns 0 or -1. */
@@ -42,6 +43,9 @@ struct result_meta {
 	uint64_t peak_rss_kb;       /* 0 if unknown */
 	const char *status;         /* e.g. "levelled", "stopped", "interrupted" */
 	int k_auto;                 /* k was chosen by held-out likelihood */
+	const struct refine_report *refine; /* the snapshot's AGM was refined
+					     * by refine_agm() (NULL: not) */
+	unsigned refine_rounds;     /* --refine-rounds (0: --refine not asked) */
 };
 
 /* Create dir (and parents) if needed and prove it can be written by

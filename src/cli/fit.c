@@ -18,6 +18,7 @@
 #include "cli.h"
 #include "coterie/fit.h"
 #include "coterie/graph.h"
+#include "coterie/refine.h"
 #include "coterie/result.h"
 #include "coterie/select.h"
 
@@ -47,6 +48,9 @@ static void fit_usage(FILE *out)
 		"      --max-sweeps N    at most N sweeps per start, reseeding and earlier\n"
 		"                        runs of a resumed fit included (default 500)\n"
 		"      --past-plateau    do not stop at a plateau; run to --max-sweeps\n"
+		"      --refine          after the fit, improve the cover under the AGM by\n"
+		"                        local moves; memberships.tsv holds the refined cover\n"
+		"      --refine-rounds N at most N rounds of refinement (default 50)\n"
 		"      --epsilon X       background link probability (default: the density)\n"
 		"      --format F        edges, gml, graphml or pajek (default: by extension)\n"
 		"      --resume DIR      continue the fit saved in DIR (same graph only)\n"
@@ -167,7 +171,32 @@ enum {
 	OPT_SAVE_EVERY,
 	OPT_K_RANGE,
 	OPT_HOLDOUT,
+	OPT_REFINE,
+	OPT_REFINE_ROUNDS,
 };
+
+/* --refine: the AGM refinement of the final cover into *out (released by
+ * the caller with agm_release()). Returns 0 or -1 (reported). */
+static int refine_cover_of(const struct graph *g, const struct snapshot *s, unsigned rounds,
+			   uint64_t seed, int quiet, struct agm *out, struct refine_report *rep)
+{
+	struct refine_params rp;
+	refine_params_default(&rp);
+	rp.max_rounds = rounds;
+	rp.seed = seed;
+	rp.stop = stop_asked;
+	if (!quiet)
+		notice("refining the cover under the AGM (at most %u rounds)", rounds);
+	if (refine_agm(g, &s->agm, &s->F, &rp, out, rep))
+		return -1;
+	if (!quiet)
+		notice("refinement %s after %u round%s in %.1f s: +%llu -%llu memberships, AGM "
+		       "log-likelihood %.10g -> %.10g", rep->converged ? "converged" :
+		       rep->stopped ? "was interrupted" : "reached the round limit", rep->rounds,
+		       rep->rounds == 1 ? "" : "s", rep->seconds, (unsigned long long)rep->added,
+		       (unsigned long long)rep->removed, rep->loglik_before, rep->loglik_after);
+	return 0;
+}
 
 int cmd_fit(int argc, char **argv)
 {
@@ -188,13 +217,16 @@ int cmd_fit(int argc, char **argv)
 		{ "no-reseed", no_argument, NULL, CLI_OPT_NO_RESEED },
 		{ "k-range", required_argument, NULL, OPT_K_RANGE },
 		{ "holdout", required_argument, NULL, OPT_HOLDOUT },
+		{ "refine", no_argument, NULL, OPT_REFINE },
+		{ "refine-rounds", required_argument, NULL, OPT_REFINE_ROUNDS },
 		{ "quiet", no_argument, NULL, 'q' },
 		{ "help", no_argument, NULL, 'h' },
 		{ NULL, 0, NULL, 0 },
 	};
 	struct cli_fit_opts o;
 	cli_fit_opts_init(&o);
-	int quiet = 0, k_auto = 0;
+	int quiet = 0, k_auto = 0, refine = 0;
+	unsigned refine_rounds = 50;
 	uint32_t krange_lo = 0, krange_hi = 0;
 	double holdout = 0.1;
 	const char *out = NULL, *resume = NULL;
@@ -228,6 +260,11 @@ int cmd_fit(int argc, char **argv)
 		case OPT_PAST_PLATEAU: o.p.past_plateau = 1; break;
 		case OPT_RESUME: resume = optarg; break;
 		case OPT_SAVE_EVERY: save_every = cli_double("--save-every", optarg, 1.0, 1e9); break;
+		case OPT_REFINE: refine = 1; break;
+		case OPT_REFINE_ROUNDS:
+			refine_rounds = cli_u32("--refine-rounds", optarg, 1, 1000000);
+			refine = 1;
+			break;
 		case 'q': quiet = 1; break;
 		case 'h': fit_usage(stdout); return 0;
 		default:
@@ -357,6 +394,25 @@ int cmd_fit(int argc, char **argv)
 	struct snapshot *s = fit_snapshot(f);
 	progress_show(&pr, s, 1);
 
+	/* the refined cover replaces the thresholded one in what is written */
+	struct snapshot written = *s;
+	struct agm refined;
+	struct refine_report rrep;
+	int have_refined = 0, refine_failed = 0;
+	memset(&refined, 0, sizeof refined);
+	if (refine && interrupted && !quiet)
+		notice("interrupted: the cover is not refined");
+	if (refine && !interrupted && st != FIT_FAILED && s->ntrace > 0) {
+		if (refine_cover_of(graph, s, refine_rounds, p.seed, quiet, &refined, &rrep)) {
+			refine_failed = 1; /* reported; the unrefined result is still written */
+		} else {
+			have_refined = 1;
+			written.agm = refined;
+			if (rrep.stopped)
+				interrupted = 1;
+		}
+	}
+
 	const char *status = interrupted ? "interrupted" : fit_state_name(st);
 	struct result_meta meta = {
 		.k_auto = k_auto,
@@ -365,12 +421,14 @@ int cmd_fit(int argc, char **argv)
 		.wall_seconds = util_now() - t_begin,
 		.peak_rss_kb = cli_peak_rss_kb(),
 		.status = status,
+		.refine = have_refined ? &rrep : NULL,
+		.refine_rounds = refine ? refine_rounds : 0,
 	};
 	int rc = 0;
 	if (st == FIT_FAILED || s->ntrace == 0) {
 		error("the fit failed; nothing written to '%s'", out);
 		rc = 1;
-	} else if (result_write(out, graph, &p, s, &meta)) {
+	} else if (result_write(out, graph, &p, &written, &meta)) {
 		rc = 1;
 	} else if (!quiet) {
 		const char *how = st == FIT_LEVELLED ? "levelled off" :
@@ -382,9 +440,12 @@ int cmd_fit(int argc, char **argv)
 				 s->best_start, s->starts);
 		notice("the fit %s after %u sweeps%s in %.1f s: %u communities, %u of %u nodes "
 		       "in at least one, %u in two or more; results in '%s'",
-		       how, s->sweep, best, s->seconds, s->agm.cover.k, s->agm.covered, graph->n,
-		       s->agm.overlapping, out);
+		       how, s->sweep, best, s->seconds, written.agm.cover.k, written.agm.covered,
+		       graph->n, written.agm.overlapping, out);
 	}
+	agm_release(&refined);
+	if (refine_failed)
+		rc = 1;
 	snapshot_release(s);
 	fit_free(f);
 	graph_free(g);
