@@ -56,6 +56,7 @@ struct refine {
 	uint32_t n, k;
 	double epsilon, qeps;
 	double *q;         /* k */
+	double *grow;      /* k: 1 - e^{-q_c}, kept in step with q */
 	uint32_t *size;    /* k: members */
 	char **label;      /* k, owned */
 	uint32_t **row;    /* n: u's communities, strictly increasing */
@@ -93,6 +94,7 @@ void refine_free(struct refine *r)
 	free(r->cap);
 	free(r->label);
 	free(r->q);
+	free(r->grow);
 	free(r->size);
 	free(r->gain);
 	free(r->near);
@@ -151,6 +153,7 @@ struct refine *refine_new(const struct graph *g, const struct cover *c, const do
 	r->qeps = -log1p(-epsilon);
 	size_t k1 = c->k ? c->k : 1, n1 = g->n ? g->n : 1;
 	r->q = util_calloc(k1, sizeof *r->q);
+	r->grow = util_calloc(k1, sizeof *r->grow);
 	r->size = util_calloc(k1, sizeof *r->size);
 	r->label = util_calloc(k1, sizeof *r->label);
 	r->gain = util_calloc(k1, sizeof *r->gain);
@@ -161,7 +164,7 @@ struct refine *refine_new(const struct graph *g, const struct cover *c, const do
 	r->row = util_calloc(n1, sizeof *r->row);
 	r->len = util_calloc(n1, sizeof *r->len);
 	r->cap = util_calloc(n1, sizeof *r->cap);
-	if (!r->q || !r->size || !r->label || !r->gain || !r->near || !r->stamp || !r->touched ||
+	if (!r->q || !r->grow || !r->size || !r->label || !r->gain || !r->near || !r->stamp || !r->touched ||
 	    !r->shared || !r->row || !r->len || !r->cap)
 		goto fail;
 	for (uint32_t i = 0; i < c->k; i++) {
@@ -182,6 +185,8 @@ struct refine *refine_new(const struct graph *g, const struct cover *c, const do
 		for (uint32_t i = 0; i < c->k; i++)
 			r->q[i] = q_of(r->q[i]);
 	}
+	for (uint32_t i = 0; i < c->k; i++)
+		r->grow[i] = -expm1(-r->q[i]);
 	r->epoch = 1;
 	return r;
 fail:
@@ -213,12 +218,6 @@ static void touch(struct refine *r, uint32_t c)
 	r->gain[c] = 0.0;
 	r->near[c] = 0;
 	r->touched[r->ntouched++] = c;
-}
-
-/* 1 - e^{-q}, and w(Q) = 1/expm1(Q) (Q > 0: qeps > 0). */
-static double grow(double q)
-{
-	return -expm1(-q);
 }
 
 /* Price every move of u: after it, gain[c] and near[c] hold the edge terms
@@ -266,7 +265,7 @@ static void price(struct refine *r, uint32_t u)
 					continue;
 				touch(r, c);
 				r->near[c]++;
-				r->gain[c] += log1p(w * grow(r->q[c]));
+				r->gain[c] += log1p(w * r->grow[c]);
 			}
 		}
 		/* leaves: the shared communities, Q' summed without c */
@@ -277,7 +276,7 @@ static void price(struct refine *r, uint32_t u)
 				if (j != i)
 					Qi += r->q[r->shared[j]];
 			r->near[c]++;
-			r->gain[c] -= log1p(grow(r->q[c]) / expm1(Qi));
+			r->gain[c] -= log1p(r->grow[c] / expm1(Qi)); /* Qi > 0: qeps > 0 */
 		}
 	}
 }
@@ -388,8 +387,10 @@ static int p_step(struct refine *r, double *p)
 	cover_release(&c);
 	if (rc < 0)
 		return -1;
-	for (uint32_t i = 0; i < r->k; i++)
+	for (uint32_t i = 0; i < r->k; i++) {
 		r->q[i] = q_of(p[i]);
+		r->grow[i] = -expm1(-r->q[i]);
+	}
 	return 0;
 }
 
@@ -406,7 +407,9 @@ int refine_run(struct refine *r, const struct refine_params *p, struct refine_re
 		return error("refinement needs min_gain >= 0 and at least one round");
 	double *pv = util_malloc(r->k ? r->k : 1, sizeof *pv);
 	uint32_t *perm = util_malloc(r->n ? r->n : 1, sizeof *perm);
-	if (!pv || !perm)
+	unsigned char *dirty = util_calloc(r->n ? r->n : 1, 1);
+	unsigned char *next = util_calloc(r->n ? r->n : 1, 1);
+	if (!pv || !perm || !dirty || !next)
 		goto fail;
 	rep->loglik_before = state_loglik(r, pv);
 	if (isnan(rep->loglik_before))
@@ -416,6 +419,7 @@ int refine_run(struct refine *r, const struct refine_params *p, struct refine_re
 	struct rng rng;
 	rng_init(&rng, p->seed ^ 0xa63e11eULL);
 	int fresh_p = 0; /* the q in use are the maximum for the cover as it stands */
+	int full = 1;    /* this round visits every node, not only the dirty ones */
 	while (rep->rounds < p->max_rounds && !rep->stopped) {
 		if (p_step(r, pv) < 0)
 			goto fail;
@@ -429,6 +433,8 @@ int refine_run(struct refine *r, const struct refine_params *p, struct refine_re
 				break;
 			}
 			uint32_t u = perm[i];
+			if (!full && !dirty[u])
+				continue;
 			for (unsigned t = 0; t < REFINE_VISIT_MOVES; t++) {
 				price(r, u);
 				double best = p->min_gain;
@@ -447,6 +453,9 @@ int refine_run(struct refine *r, const struct refine_params *p, struct refine_re
 				if (apply(r, u, pick) < 0)
 					goto fail;
 				moves++;
+				next[u] = 1;
+				for (uint64_t e = r->g->off[u]; e < r->g->off[u + 1]; e++)
+					next[r->g->adj[e]] = 1;
 				if (joined)
 					rep->added++;
 				else
@@ -455,9 +464,18 @@ int refine_run(struct refine *r, const struct refine_params *p, struct refine_re
 			}
 		}
 		if (moves == 0 && !rep->stopped) {
-			rep->converged = 1;
-			break;
+			if (full) {
+				rep->converged = 1;
+				break;
+			}
+			full = 1; /* nothing moved near the moves: check every node */
+		} else {
+			full = 0;
 		}
+		unsigned char *swap = dirty;
+		dirty = next;
+		next = swap;
+		memset(next, 0, r->n);
 	}
 	if (!fresh_p && !rep->stopped && p_step(r, pv) < 0)
 		goto fail;
@@ -467,10 +485,14 @@ int refine_run(struct refine *r, const struct refine_params *p, struct refine_re
 	rep->seconds = util_now() - t0;
 	free(pv);
 	free(perm);
+	free(dirty);
+	free(next);
 	return 0;
 fail:
 	free(pv);
 	free(perm);
+	free(dirty);
+	free(next);
 	return -1;
 }
 

@@ -5,13 +5,17 @@
  * agm.h) by local search:
  *
  *   a round = re-estimate every p_c for the cover as it stands (the joint
- *             maximum, by agm_improve_p()), then visit every node once (in
- *             an order drawn from the seed) and make, one at a time, the
- *             move that raises the log-likelihood most: join a community of
- *             one of its neighbours, or leave one of its own;
+ *             maximum, by agm_improve_p()), then visit the nodes (in an
+ *             order drawn from the seed) and let each make, one at a time,
+ *             the move that raises the log-likelihood most: join a
+ *             community of one of its neighbours, or leave one of its own;
  *
- * until a round makes no move (a local maximum: no single move and no
- * change of p helps), the round budget is spent, or stop() says so. Every
+ * The first round visits every node; a later one only the nodes a move of
+ * the round before touched (the nodes that moved and their neighbours),
+ * and when such a round makes no move the next visits every node again.
+ * The search ends when a round visiting every node makes no move (a local
+ * maximum: no single move and no change of p helps), when the round budget
+ * is spent, or when stop() says so. Every
  * accepted move raises L by more than min_gain with p fixed and every p
  * step raises it with the cover fixed, so L never falls.
  *
