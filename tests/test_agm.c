@@ -527,6 +527,48 @@ static void test_random_graph_matches_brute_force(void **state)
 	}
 }
 
+/* agm_improve_p() from any start reaches the maximum agm_estimate_p()
+ * finds (L is concave in q: one maximum), never below the start; and
+ * agm_from_cover_p() keeps the p it is given. */
+static void test_improve_p_reaches_the_maximum_from_any_start(void **state)
+{
+	(void)state;
+	struct rng r;
+	rng_init(&r, 515);
+	for (int trial = 0; trial < 3; trial++) {
+		struct cover c;
+		double eps = 0.02;
+		struct graph *g = planted(&r, 40, &c, eps);
+		struct brute b;
+		brute_init(&b, g, &c);
+		double best[4], p[4], start;
+		assert_int_equal(agm_estimate_p(g, &c, eps, best), 0);
+		for (int t = 0; t < 4; t++) {
+			for (int i = 0; i < 4; i++)
+				p[i] = t == 3 ? 1.0 : rng_uniform(&r); /* t 3: the edge of the range */
+			start = brute_loglik(&b, p, eps);
+			assert_int_equal(agm_improve_p(g, &c, eps, p), 0);
+			for (int i = 0; i < 4; i++)
+				assert_true(fabs(p[i] - best[i]) < 1e-6);
+			/* the O(n^2) definition: never below the start */
+			assert_true(brute_loglik(&b, p, eps) >= start);
+		}
+		struct agm a;
+		assert_int_equal(agm_from_cover_p(&a, g, &c, eps, best), 0);
+		for (uint32_t i = 0; i < a.cover.k; i++)
+			assert_true(fabs(a.comms[i].p - best[a.comms[i].id]) <= 1e-15);
+		double lb = brute_loglik(&b, best, eps);
+		assert_true(fabs(a.loglik - lb) <= 1e-9 * fabs(lb));
+		agm_release(&a);
+		p[0] = 1.5;
+		assert_int_equal(agm_improve_p(g, &c, eps, p), -1);
+		assert_int_equal(agm_from_cover_p(&a, g, &c, eps, p), -1);
+		brute_release(&b);
+		cover_release(&c);
+		graph_free(g);
+	}
+}
+
 static void test_rejects_bad_input(void **state)
 {
 	(void)state;
@@ -559,6 +601,7 @@ int main(void)
 		cmocka_unit_test(test_communities_listed_largest_first_ties_by_id),
 		cmocka_unit_test(test_from_strengths_thresholds_at_delta_inclusive),
 		cmocka_unit_test(test_random_graph_matches_brute_force),
+		cmocka_unit_test(test_improve_p_reaches_the_maximum_from_any_start),
 		cmocka_unit_test(test_rejects_bad_input),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);

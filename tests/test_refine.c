@@ -406,6 +406,44 @@ static void test_refinement_of_a_football_fit_is_measured(void **state)
 	graph_free(g);
 }
 
+/* Nothing to improve: no community at all, and a community without an
+ * edge inside (its maximum-likelihood p is 0, so every move is worth 0). */
+static void test_empty_covers_are_left_alone(void **state)
+{
+	(void)state;
+	struct graph *g = graph_from_pairs(5, ex_edges, 6, NULL);
+	assert_non_null(g);
+	struct cover none;
+	assert_int_equal(cover_from_pairs(&none, 5, NULL, NULL, 0), 0);
+	assert_int_equal(none.k, 0);
+	struct refine *r = refine_new(g, &none, NULL, 0.1);
+	assert_non_null(r);
+	struct refine_params rp;
+	refine_params_default(&rp);
+	struct refine_report rep;
+	assert_int_equal(refine_run(r, &rp, &rep), 0);
+	assert_true(rep.converged);
+	assert_true(rep.added + rep.removed == 0);
+	/* no community: every pair has probability epsilon = 0.1 (Yang &
+	 * Leskovec 2012, eq. 1), 6 edges and 4 non-edges */
+	assert_true(fabs(rep.loglik_after - (6 * log(0.1) + 4 * log(0.9))) < 1e-12);
+	refine_free(r);
+	cover_release(&none);
+
+	static const uint32_t sizes[] = { 2 };
+	static const uint32_t members[] = { 0, 3 }; /* 0-3 is not an edge */
+	struct cover lone;
+	test_make_cover(&lone, 5, 1, sizes, members);
+	r = refine_new(g, &lone, NULL, 0.1);
+	assert_non_null(r);
+	assert_int_equal(refine_run(r, &rp, &rep), 0);
+	assert_true(rep.converged);
+	assert_true(rep.added + rep.removed == 0);
+	refine_free(r);
+	cover_release(&lone);
+	graph_free(g);
+}
+
 static void test_rejects_bad_input(void **state)
 {
 	(void)state;
@@ -441,6 +479,7 @@ int main(void)
 		cmocka_unit_test(test_refinement_recovers_a_perturbed_planted_cover),
 		cmocka_unit_test(test_refinement_after_a_fit_keeps_ids_and_stops_when_asked),
 		cmocka_unit_test(test_refinement_of_a_football_fit_is_measured),
+		cmocka_unit_test(test_empty_covers_are_left_alone),
 		cmocka_unit_test(test_rejects_bad_input),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
