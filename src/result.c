@@ -1274,33 +1274,31 @@ static int fill_trace(struct wfile *w, const void *arg)
 	return 0;
 }
 
-struct sel_args {
-	const struct select_point *pts;
-	uint32_t n, best;
-};
-
 static int fill_selection(struct wfile *w, const void *arg)
 {
-	const struct sel_args *a = arg;
-	wf_str(w, "k\theldout_loglik\tsweeps\tseconds\tchosen\n");
-	for (uint32_t i = 0; i < a->n && !w->err; i++) {
+	const struct select_result *a = arg;
+	wf_str(w, "k\theldout_loglik\theldout_auc\tsweeps\tseconds\tchosen\n");
+	for (uint32_t i = 0; i < a->npts && !w->err; i++) {
 		const struct select_point *pt = &a->pts[i];
-		wf_printf(w, "%" PRIu32 "\t%.17g\t%" PRIu32 "\t%.3f\t%s\n", pt->k, pt->heldout,
-			  pt->sweeps, pt->seconds, pt->k == a->best ? "yes" : "no");
+		wf_printf(w, "%" PRIu32 "\t%.17g\t", pt->k, pt->heldout);
+		if (isfinite(pt->auc))
+			wf_printf(w, "%.9f", pt->auc);
+		else
+			wf_str(w, "NA");
+		wf_printf(w, "\t%" PRIu32 "\t%.3f\t%s\n", pt->sweeps, pt->seconds,
+			  pt->k == a->best ? "yes" : "no");
 	}
 	return 0;
 }
 
-int result_write_selection(const char *dir, const struct select_point *pts, uint32_t n,
-			   uint32_t best)
+int result_write_selection(const char *dir, const struct select_result *sel)
 {
 	if (make_dirs(dir))
 		return -1;
 	char *path = path_join(dir, RESULT_SELECTION);
 	if (!path)
 		return -1;
-	struct sel_args a = { pts, n, best };
-	int rc = atomic_write(path, fill_selection, &a);
+	int rc = atomic_write(path, fill_selection, sel);
 	free(path);
 	return rc;
 }
@@ -1338,6 +1336,68 @@ static void j_set(json_t *o, const char *key, json_t *v, int *bad)
 {
 	if (json_object_set_new(o, key, v) != 0)
 		*bad = 1;
+}
+
+/* run.json's k_selection: the -k auto search. */
+static json_t *j_selection(const struct select_result *sel)
+{
+	int bad = 0;
+	json_t *o = json_object(), *grid = json_array(), *scores = json_array();
+	if (!o || !grid || !scores) {
+		json_decref(o);
+		json_decref(grid);
+		json_decref(scores);
+		return NULL;
+	}
+	j_set(o, "criterion", json_string("held-out log-likelihood"), &bad);
+	j_set(o, "chosen", j_uint(sel->best), &bad);
+	for (uint32_t i = 0; i < sel->ngrid; i++)
+		if (json_array_append_new(grid, j_uint(sel->grid[i])))
+			bad = 1;
+	j_set(o, "grid", grid, &bad);
+	j_set(o, "held_out_share", j_real(sel->share), &bad);
+	j_set(o, "held_out_edges", j_uint(sel->held_edges), &bad);
+	j_set(o, "held_out_non_edges", j_uint(sel->held_non_edges), &bad);
+	for (uint32_t i = 0; i < sel->npts; i++) {
+		const struct select_point *pt = &sel->pts[i];
+		json_t *e = json_object();
+		if (!e) {
+			bad = 1;
+			break;
+		}
+		j_set(e, "k", j_uint(pt->k), &bad);
+		j_set(e, "heldout_loglik", j_real(pt->heldout), &bad);
+		j_set(e, "heldout_auc", j_real(pt->auc), &bad);
+		j_set(e, "sweeps", j_uint(pt->sweeps), &bad);
+		j_set(e, "seconds", j_real(pt->seconds), &bad);
+		if (json_array_append_new(scores, e))
+			bad = 1;
+	}
+	j_set(o, "scores", scores, &bad);
+	if (bad) {
+		json_decref(o);
+		return NULL;
+	}
+	return o;
+}
+
+/* run.json's link_check: the held-out check of the final model. */
+static json_t *j_links(const struct result_links *l)
+{
+	int bad = 0;
+	json_t *o = json_object();
+	if (!o)
+		return NULL;
+	j_set(o, "held_out_share", j_real(l->share), &bad);
+	j_set(o, "held_out_edges", j_uint(l->held_edges), &bad);
+	j_set(o, "held_out_non_edges", j_uint(l->held_non_edges), &bad);
+	j_set(o, "heldout_loglik", j_real(l->heldout_loglik), &bad);
+	j_set(o, "heldout_auc", j_real(l->auc), &bad);
+	if (bad) {
+		json_decref(o);
+		return NULL;
+	}
+	return o;
 }
 
 static char *run_json(const struct graph *g, const struct fit_params *p,
@@ -1416,6 +1476,9 @@ static char *run_json(const struct graph *g, const struct fit_params *p,
 	j_set(jf, "start_kept", s->best_start ? j_uint(s->best_start) : json_null(), &bad);
 	j_set(jf, "refinements_kept", j_uint(s->refined), &bad);
 	j_set(root, "fit", jf, &bad);
+	j_set(root, "k_selection", meta && meta->selection ? j_selection(meta->selection) :
+	      json_null(), &bad);
+	j_set(root, "link_check", meta && meta->links ? j_links(meta->links) : json_null(), &bad);
 
 	j_set(jr, "wall_seconds", meta ? j_real(meta->wall_seconds) : json_null(), &bad);
 	j_set(jr, "peak_rss_kb", meta && meta->peak_rss_kb ? j_uint(meta->peak_rss_kb) : json_null(),

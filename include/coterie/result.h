@@ -25,14 +25,22 @@ struct graph;
 
 #define RESULT_CHECKPOINT "checkpoint.cot"
 #define RESULT_CHECKPOINT_VERSION 1u
-#define RESULT_SELECTION "kselect.tsv"
+#define RESULT_SELECTION "k-selection.tsv"
 
-struct select_point;
+struct select_result;
 
-/* Write DIR/kselect.tsv (k, held-out log-likelihood, sweeps, seconds,
- * chosen) for a -k auto search, atomically. Returns 0 or -1. */
-int result_write_selection(const char *dir, const struct select_point *pts, uint32_t n,
-			   uint32_t best);
+/* Write DIR/k-selection.tsv (k, held-out log-likelihood, held-out AUC,
+ * sweeps, seconds, chosen) for a -k auto search (sel borrowed),
+ * atomically. Returns 0 or -1. */
+int result_write_selection(const char *dir, const struct select_result *sel);
+
+/* The held-out check of the final model (fit --check-links). */
+struct result_links {
+	double share;              /* of the edges held out */
+	uint64_t held_edges, held_non_edges;
+	double heldout_loglik;     /* as in holdout_score() */
+	double auc;                /* NAN when undefined */
+};
 
 /* What run.json records beyond the snapshot. All borrowed. */
 struct result_meta {
@@ -42,6 +50,8 @@ struct result_meta {
 	uint64_t peak_rss_kb;       /* 0 if unknown */
 	const char *status;         /* e.g. "levelled", "stopped", "interrupted" */
 	int k_auto;                 /* k was chosen by held-out likelihood */
+	const struct select_result *selection; /* the -k auto search, or NULL */
+	const struct result_links *links;      /* the link check, or NULL */
 };
 
 /* Create dir (and parents) if needed and prove it can be written by
