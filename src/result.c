@@ -127,6 +127,7 @@
 
 #include "coterie/agm.h"
 #include "coterie/graph.h"
+#include "coterie/holdout.h"
 #include "coterie/model.h"
 #include "coterie/util.h"
 
@@ -1299,6 +1300,53 @@ int result_write_selection(const char *dir, const struct select_result *sel)
 	if (!path)
 		return -1;
 	int rc = atomic_write(path, fill_selection, sel);
+	free(path);
+	return rc;
+}
+
+struct links_args {
+	const struct graph *g;
+	const struct holdout *h;
+	const struct fcsr *F;
+	double qeps;
+};
+
+static void fill_link_rows(struct wfile *w, const struct links_args *a, const uint32_t *pairs,
+			   uint64_t n, int edge)
+{
+	const struct fcsr *F = a->F;
+	for (uint64_t i = 0; i < n && !w->err; i++) {
+		uint32_t u = pairs[2 * i], v = pairs[2 * i + 1];
+		double x = model_dot(F->e + F->off[u], (uint32_t)(F->off[u + 1] - F->off[u]),
+				     F->e + F->off[v], (uint32_t)(F->off[v + 1] - F->off[v]));
+		wf_tsv_name(w, a->g->names[u]);
+		wf_str(w, "\t");
+		wf_tsv_name(w, a->g->names[v]);
+		wf_printf(w, "\t%d\t%.17g\n", edge, -expm1(-(x + a->qeps)));
+	}
+}
+
+static int fill_links(struct wfile *w, const void *arg)
+{
+	const struct links_args *a = arg;
+	wf_str(w, "node_a\tnode_b\tedge\tprobability\n");
+	fill_link_rows(w, a, a->h->edges, a->h->nedges, 1);
+	fill_link_rows(w, a, a->h->non, a->h->nnon, 0);
+	return 0;
+}
+
+int result_write_links(const char *dir, const struct graph *g, const struct holdout *h,
+		       const struct fcsr *F, double epsilon)
+{
+	if (F->n != g->n)
+		return error("cannot write held-out links: %u rows for %u nodes", F->n, g->n);
+	if (make_dirs(dir))
+		return -1;
+	char *path = path_join(dir, RESULT_LINKS);
+	if (!path)
+		return -1;
+	struct links_args a = { g, h, F, -log1p(-epsilon) };
+	int rc = atomic_write(path, fill_links, &a);
 	free(path);
 	return rc;
 }

@@ -34,6 +34,16 @@ struct select_result;
  * atomically. Returns 0 or -1. */
 int result_write_selection(const char *dir, const struct select_result *sel);
 
+#define RESULT_LINKS "held-out-links.tsv"
+
+struct holdout;
+
+/* Write DIR/held-out-links.tsv (node_a, node_b, edge 1/0, the model's
+ * probability 1 - exp(-(F_a.F_b + qeps))) for every held-out pair of h,
+ * edges first; g, h and F borrowed. Returns 0 or -1. */
+int result_write_links(const char *dir, const struct graph *g, const struct holdout *h,
+		       const struct fcsr *F, double epsilon);
+
 /* The held-out check of the final model (fit --check-links). */
 struct result_links {
 	double share;              /* of the edges held out */

@@ -442,7 +442,8 @@ int cmd_fit(int argc, char **argv)
 	} else if (check.held && !have_whole) {
 		error("cannot score the held-out links; nothing written to '%s'", out);
 		rc = 1;
-	} else if (result_write(out, graph, &p, ws, &meta)) {
+	} else if (result_write(out, graph, &p, ws, &meta) ||
+		   (have_whole && result_write_links(out, graph, &check, &s->F, s->epsilon))) {
 		rc = 1;
 	} else if (!quiet) {
 		const char *how = st == FIT_LEVELLED ? "levelled off" :
