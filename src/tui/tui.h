@@ -105,6 +105,9 @@ struct listpos {
 
 enum edges_mode { EDGES_WEAK = 0, EDGES_MISSING };
 
+/* From this height on, pane 5's last row details the selected pair. */
+#define EDGES_DETAIL_MIN_H 7
+
 /* ---- pager.c: pages of the edge lists, fetched on a worker thread ---- */
 
 struct page_row {

@@ -158,6 +158,8 @@ int view_page_height(const struct view *v, int pane)
 	int h = v->box[pane].h - 1; /* the title row */
 	if (pane == PANE_COMMS || pane == PANE_EDGES)
 		h -= 1; /* a column header */
+	if (pane == PANE_EDGES && v->box[pane].h >= EDGES_DETAIL_MIN_H)
+		h -= 1; /* the selected pair's probability, community by community */
 	if (pane == PANE_NODE)
 		h -= 3; /* name, figures, column header */
 	return h > 1 ? h : 1;

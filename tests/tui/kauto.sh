@@ -30,6 +30,10 @@ check "a key opens the normal view" wait_screen '─ 1 Likelihood' 20
 check "the header gives the chosen k" wait_screen "edges, k $chosen "
 check "the fit runs with the chosen k" wait_screen "k $chosen, seed 1"
 check "the fit levels off" wait_screen 'levelled off' 60
+# pane 5 details the selected edge: the model's probability with the
+# background and the communities that make it
+check "the weak-edges pane details the selected pair's probability" \
+	wait_screen 'P [0-9.e-]+ incl. background(: #[0-9]+ [0-9.e-]+|, no community shared)' 20
 keys w
 check "w writes the result" wait_screen 'wrote the result' 20
 check "k-selection.tsv is written with the result" [ -f "$tmp/out/k-selection.tsv" ]
