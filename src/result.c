@@ -60,6 +60,19 @@
  *   loglik   l(F) after the sweep (%.17g, enough digits to read back the
  *            exact double)
  *
+ * k-selection.tsv   header: k heldout_loglik heldout_auc sweeps seconds
+ *                           chosen
+ *   Only with -k auto. One row per k scored, in grid order.
+ *   heldout_loglik  log-likelihood of the held-out pairs (%.17g)
+ *   heldout_auc     held-out link AUC, ties one half (%.9f; NA if undefined)
+ *   sweeps, seconds of that fit
+ *   chosen          yes for the k kept (highest heldout_loglik), else no
+ *
+ * held-out-links.tsv   header: node_a node_b edge probability
+ *   Only with --check-links. One row per pair held out of the final fit,
+ *   edges first; names escaped as in memberships.tsv; edge 1 or 0;
+ *   probability 1 - exp(-(F_a.F_b + qeps)) (%.17g).
+ *
  * run.json   one JSON object, keys in this order:
  *   coterie.format    1 (this layout)
  *   command           the command line as typed, or null
@@ -78,6 +91,14 @@
  *                     ones), covered_nodes, overlapping_nodes,
  *                     start_kept (null for a resumed fit),
  *                     refinements_kept
+ *   k_selection       null, or for -k auto: criterion ("held-out
+ *                     log-likelihood"), chosen, grid (array of k),
+ *                     held_out_share, held_out_edges, held_out_non_edges,
+ *                     scores (array of objects k, heldout_loglik,
+ *                     heldout_auc (null when undefined), sweeps, seconds)
+ *   link_check        null, or for --check-links: held_out_share,
+ *                     held_out_edges, held_out_non_edges, heldout_loglik,
+ *                     heldout_auc
  *   run               wall_seconds, peak_rss_kb (null when unknown)
  *   A number that is not finite is written as null. A string that is
  *   not valid UTF-8 is written with C escapes, in ASCII.
