@@ -125,6 +125,68 @@ double inspect_pair_prob(const struct fcsr *F, uint32_t u, uint32_t v)
 	return pair_prob(F, u, v);
 }
 
+/* ---- one pair ---------------------------------------------------------- */
+
+static int share_cmp(const void *pa, const void *pb)
+{
+	const struct inspect_share *a = pa, *b = pb;
+	int c = dbl_cmp(b->product, a->product);
+	if (c)
+		return c;
+	return (a->comm > b->comm) - (a->comm < b->comm);
+}
+
+int inspect_edge(struct inspect_edge *out, const struct graph *g, const struct fcsr *F,
+		 const struct agm *a, double epsilon, double delta, uint32_t u, uint32_t v)
+{
+	memset(out, 0, sizeof *out);
+	if (F->n != g->n || u >= g->n || v >= g->n || u == v)
+		return error("no pair (%u, %u) in a graph of %u nodes", u, v, g->n);
+	out->u = u;
+	out->v = v;
+	out->linked = graph_has_edge(g, u, v);
+	const struct fentry *ru = row_of(F, u), *rv = row_of(F, v);
+	uint32_t nu = row_len(F, u), nv = row_len(F, v);
+	out->share = util_calloc(nu < nv ? (nu ? nu : 1) : (nv ? nv : 1), sizeof *out->share);
+	if (!out->share)
+		return -1;
+	double stay = 1.0 - epsilon; /* the AGM: no link from any shared community */
+	for (uint32_t i = 0, j = 0; i < nu && j < nv;) {
+		if (ru[i].c < rv[j].c) {
+			i++;
+		} else if (ru[i].c > rv[j].c) {
+			j++;
+		} else {
+			struct inspect_share *sh = &out->share[out->nshare++];
+			sh->comm = ru[i].c;
+			sh->product = ru[i].v * rv[j].v;
+			sh->alone = -expm1(-sh->product);
+			sh->both_members = ru[i].v >= delta && rv[j].v >= delta;
+			int64_t ix = inspect_find_community(a, ru[i].c);
+			sh->p = ix < 0 ? NAN : a->comms[ix].p;
+			if (sh->both_members && ix >= 0)
+				stay *= 1.0 - sh->p;
+			out->x += sh->product;
+			i++;
+			j++;
+		}
+	}
+	qsort(out->share, out->nshare, sizeof *out->share, share_cmp);
+	double qeps = -log1p(-epsilon);
+	out->prob = -expm1(-(out->x + qeps));
+	out->prob_comms = -expm1(-out->x);
+	out->agm_prob = 1.0 - stay;
+	return 0;
+}
+
+void inspect_edge_release(struct inspect_edge *e)
+{
+	if (!e)
+		return;
+	free(e->share);
+	memset(e, 0, sizeof *e);
+}
+
 /* ---- the node view ---------------------------------------------------- */
 
 static int affil_cmp(const void *pa, const void *pb)

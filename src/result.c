@@ -62,6 +62,19 @@
  *   loglik   l(F) after the sweep (%.17g, enough digits to read back the
  *            exact double)
  *
+ * k-selection.tsv   header: k heldout_loglik heldout_auc sweeps seconds
+ *                           chosen
+ *   Only with -k auto. One row per k scored, in grid order.
+ *   heldout_loglik  log-likelihood of the held-out pairs (%.17g)
+ *   heldout_auc     held-out link AUC, ties one half (%.9f; NA if undefined)
+ *   sweeps, seconds of that fit
+ *   chosen          yes for the k kept (highest heldout_loglik), else no
+ *
+ * held-out-links.tsv   header: node_a node_b edge probability
+ *   Only with --check-links. One row per pair held out of the final fit,
+ *   edges first; names escaped as in memberships.tsv; edge 1 or 0;
+ *   probability 1 - exp(-(F_a.F_b + qeps)) (%.17g).
+ *
  * run.json   one JSON object, keys in this order:
  *   coterie.format    1 (this layout)
  *   command           the command line as typed, or null
@@ -86,6 +99,14 @@
  *                     when it did not run; the rest is then null),
  *                     loglik_before, loglik_after, moves_added,
  *                     moves_removed, rounds, converged, seconds
+ *   k_selection       null, or for -k auto: criterion ("held-out
+ *                     log-likelihood"), chosen, grid (array of k),
+ *                     held_out_share, held_out_edges, held_out_non_edges,
+ *                     scores (array of objects k, heldout_loglik,
+ *                     heldout_auc (null when undefined), sweeps, seconds)
+ *   link_check        null, or for --check-links: held_out_share,
+ *                     held_out_edges, held_out_non_edges, heldout_loglik,
+ *                     heldout_auc
  *   run               wall_seconds, peak_rss_kb (null when unknown)
  *   A number that is not finite is written as null. A string that is
  *   not valid UTF-8 is written with C escapes, in ASCII.
@@ -135,6 +156,7 @@
 
 #include "coterie/agm.h"
 #include "coterie/graph.h"
+#include "coterie/holdout.h"
 #include "coterie/model.h"
 #include "coterie/refine.h"
 #include "coterie/util.h"
@@ -1283,33 +1305,78 @@ static int fill_trace(struct wfile *w, const void *arg)
 	return 0;
 }
 
-struct sel_args {
-	const struct select_point *pts;
-	uint32_t n, best;
-};
-
 static int fill_selection(struct wfile *w, const void *arg)
 {
-	const struct sel_args *a = arg;
-	wf_str(w, "k\theldout_loglik\tsweeps\tseconds\tchosen\n");
-	for (uint32_t i = 0; i < a->n && !w->err; i++) {
+	const struct select_result *a = arg;
+	wf_str(w, "k\theldout_loglik\theldout_auc\tsweeps\tseconds\tchosen\n");
+	for (uint32_t i = 0; i < a->npts && !w->err; i++) {
 		const struct select_point *pt = &a->pts[i];
-		wf_printf(w, "%" PRIu32 "\t%.17g\t%" PRIu32 "\t%.3f\t%s\n", pt->k, pt->heldout,
-			  pt->sweeps, pt->seconds, pt->k == a->best ? "yes" : "no");
+		wf_printf(w, "%" PRIu32 "\t%.17g\t", pt->k, pt->heldout);
+		if (isfinite(pt->auc))
+			wf_printf(w, "%.9f", pt->auc);
+		else
+			wf_str(w, "NA");
+		wf_printf(w, "\t%" PRIu32 "\t%.3f\t%s\n", pt->sweeps, pt->seconds,
+			  pt->k == a->best ? "yes" : "no");
 	}
 	return 0;
 }
 
-int result_write_selection(const char *dir, const struct select_point *pts, uint32_t n,
-			   uint32_t best)
+int result_write_selection(const char *dir, const struct select_result *sel)
 {
 	if (make_dirs(dir))
 		return -1;
 	char *path = path_join(dir, RESULT_SELECTION);
 	if (!path)
 		return -1;
-	struct sel_args a = { pts, n, best };
-	int rc = atomic_write(path, fill_selection, &a);
+	int rc = atomic_write(path, fill_selection, sel);
+	free(path);
+	return rc;
+}
+
+struct links_args {
+	const struct graph *g;
+	const struct holdout *h;
+	const struct fcsr *F;
+	double qeps;
+};
+
+static void fill_link_rows(struct wfile *w, const struct links_args *a, const uint32_t *pairs,
+			   uint64_t n, int edge)
+{
+	const struct fcsr *F = a->F;
+	for (uint64_t i = 0; i < n && !w->err; i++) {
+		uint32_t u = pairs[2 * i], v = pairs[2 * i + 1];
+		double x = model_dot(F->e + F->off[u], (uint32_t)(F->off[u + 1] - F->off[u]),
+				     F->e + F->off[v], (uint32_t)(F->off[v + 1] - F->off[v]));
+		wf_tsv_name(w, a->g->names[u]);
+		wf_str(w, "\t");
+		wf_tsv_name(w, a->g->names[v]);
+		wf_printf(w, "\t%d\t%.17g\n", edge, -expm1(-(x + a->qeps)));
+	}
+}
+
+static int fill_links(struct wfile *w, const void *arg)
+{
+	const struct links_args *a = arg;
+	wf_str(w, "node_a\tnode_b\tedge\tprobability\n");
+	fill_link_rows(w, a, a->h->edges, a->h->nedges, 1);
+	fill_link_rows(w, a, a->h->non, a->h->nnon, 0);
+	return 0;
+}
+
+int result_write_links(const char *dir, const struct graph *g, const struct holdout *h,
+		       const struct fcsr *F, double epsilon)
+{
+	if (F->n != g->n)
+		return error("cannot write held-out links: %u rows for %u nodes", F->n, g->n);
+	if (make_dirs(dir))
+		return -1;
+	char *path = path_join(dir, RESULT_LINKS);
+	if (!path)
+		return -1;
+	struct links_args a = { g, h, F, -log1p(-epsilon) };
+	int rc = atomic_write(path, fill_links, &a);
 	free(path);
 	return rc;
 }
@@ -1347,6 +1414,68 @@ static void j_set(json_t *o, const char *key, json_t *v, int *bad)
 {
 	if (json_object_set_new(o, key, v) != 0)
 		*bad = 1;
+}
+
+/* run.json's k_selection: the -k auto search. */
+static json_t *j_selection(const struct select_result *sel)
+{
+	int bad = 0;
+	json_t *o = json_object(), *grid = json_array(), *scores = json_array();
+	if (!o || !grid || !scores) {
+		json_decref(o);
+		json_decref(grid);
+		json_decref(scores);
+		return NULL;
+	}
+	j_set(o, "criterion", json_string("held-out log-likelihood"), &bad);
+	j_set(o, "chosen", j_uint(sel->best), &bad);
+	for (uint32_t i = 0; i < sel->ngrid; i++)
+		if (json_array_append_new(grid, j_uint(sel->grid[i])))
+			bad = 1;
+	j_set(o, "grid", grid, &bad);
+	j_set(o, "held_out_share", j_real(sel->share), &bad);
+	j_set(o, "held_out_edges", j_uint(sel->held_edges), &bad);
+	j_set(o, "held_out_non_edges", j_uint(sel->held_non_edges), &bad);
+	for (uint32_t i = 0; i < sel->npts; i++) {
+		const struct select_point *pt = &sel->pts[i];
+		json_t *e = json_object();
+		if (!e) {
+			bad = 1;
+			break;
+		}
+		j_set(e, "k", j_uint(pt->k), &bad);
+		j_set(e, "heldout_loglik", j_real(pt->heldout), &bad);
+		j_set(e, "heldout_auc", j_real(pt->auc), &bad);
+		j_set(e, "sweeps", j_uint(pt->sweeps), &bad);
+		j_set(e, "seconds", j_real(pt->seconds), &bad);
+		if (json_array_append_new(scores, e))
+			bad = 1;
+	}
+	j_set(o, "scores", scores, &bad);
+	if (bad) {
+		json_decref(o);
+		return NULL;
+	}
+	return o;
+}
+
+/* run.json's link_check: the held-out check of the final model. */
+static json_t *j_links(const struct result_links *l)
+{
+	int bad = 0;
+	json_t *o = json_object();
+	if (!o)
+		return NULL;
+	j_set(o, "held_out_share", j_real(l->share), &bad);
+	j_set(o, "held_out_edges", j_uint(l->held_edges), &bad);
+	j_set(o, "held_out_non_edges", j_uint(l->held_non_edges), &bad);
+	j_set(o, "heldout_loglik", j_real(l->heldout_loglik), &bad);
+	j_set(o, "heldout_auc", j_real(l->auc), &bad);
+	if (bad) {
+		json_decref(o);
+		return NULL;
+	}
+	return o;
 }
 
 static char *run_json(const struct graph *g, const struct fit_params *p,
@@ -1427,6 +1556,9 @@ static char *run_json(const struct graph *g, const struct fit_params *p,
 	j_set(jf, "memberships_from",
 	      j_str(meta && meta->refine ? "agm refinement" : "strengths"), &bad);
 	j_set(root, "fit", jf, &bad);
+	j_set(root, "k_selection", meta && meta->selection ? j_selection(meta->selection) :
+	      json_null(), &bad);
+	j_set(root, "link_check", meta && meta->links ? j_links(meta->links) : json_null(), &bad);
 
 	const struct refine_report *rr = meta ? meta->refine : NULL;
 	if (meta && meta->refine_rounds) {

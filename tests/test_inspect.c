@@ -234,6 +234,55 @@ static void test_pair_prob_matches_hand_computed(void **state)
 	assert_true(inspect_pair_prob(&h->F, 6, 7) == 0.0);
 }
 
+static void test_edge_view_splits_the_probability_by_community(void **state)
+{
+	struct hand *h = *state;
+	/* pair 1-2 of the header's table, with epsilon 0.1 and p_A = 0.5,
+	 * p_C = 0.3 set here. Products A .8*.6 = .48, C .3*.05 = .015 (A
+	 * first, the larger); dot .495;
+	 *   prob       = 1 - (1 - .1) e^-.495 = 1 - .9 * .609571 = 0.451386
+	 *   prob_comms = 1 - e^-.495 = 0.390429
+	 *   alone      A: 1 - e^-.48 = 0.381217, C: 1 - e^-.015 = 0.014888
+	 *   members    A: both (.8, .6 >= .2); C: not (.05 < .2)
+	 *   agm_prob   = 1 - (1 - .1)(1 - .5) = 0.55 (C not shared as members)
+	 * (e^-x with python3's math.expm1) */
+	for (uint32_t i = 0; i < h->a.cover.k; i++)
+		h->a.comms[i].p = h->a.comms[i].id == 0 ? 0.5 : h->a.comms[i].id == 2 ? 0.3 : 0.9;
+	struct inspect_edge e;
+	assert_int_equal(inspect_edge(&e, h->g, &h->F, &h->a, 0.1, HDELTA, 1, 2), 0);
+	assert_true(e.linked);
+	assert_float_equal(e.x, 0.495, 1e-12);
+	assert_float_equal(e.prob, 0.451386, TOL);
+	assert_float_equal(e.prob_comms, 0.390429, TOL);
+	assert_float_equal(e.agm_prob, 0.55, 1e-12);
+	assert_int_equal(e.nshare, 2);
+	assert_int_equal(e.share[0].comm, 0);
+	assert_float_equal(e.share[0].product, 0.48, 1e-12);
+	assert_float_equal(e.share[0].alone, 0.381217, TOL);
+	assert_true(e.share[0].both_members);
+	assert_float_equal(e.share[0].p, 0.5, 0);
+	assert_int_equal(e.share[1].comm, 2);
+	assert_float_equal(e.share[1].alone, 0.014888, TOL);
+	assert_false(e.share[1].both_members);
+	inspect_edge_release(&e);
+	/* 0-4 share nothing and are linked: only the background, 0.1 */
+	assert_int_equal(inspect_edge(&e, h->g, &h->F, &h->a, 0.1, HDELTA, 0, 4), 0);
+	assert_true(e.linked);
+	assert_int_equal(e.nshare, 0);
+	assert_float_equal(e.prob, 0.1, 1e-12);
+	assert_float_equal(e.agm_prob, 0.1, 1e-12);
+	inspect_edge_release(&e);
+	/* 0-8 are not linked: A .7 */
+	assert_int_equal(inspect_edge(&e, h->g, &h->F, &h->a, 0.1, HDELTA, 0, 8), 0);
+	assert_false(e.linked);
+	assert_int_equal(e.nshare, 1);
+	inspect_edge_release(&e);
+	/* bad pairs */
+	assert_int_equal(inspect_edge(&e, h->g, &h->F, &h->a, 0.1, HDELTA, 3, 3), -1);
+	assert_int_equal(inspect_edge(&e, h->g, &h->F, &h->a, 0.1, HDELTA, 3, HN), -1);
+	inspect_edge_release(&e);
+}
+
 static void test_pair_prob_is_accurate_for_tiny_dot(void **state)
 {
 	(void)state;
@@ -1132,6 +1181,8 @@ static void test_missing_links_uses_only_the_strongest_pool(void **state)
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
+		cmocka_unit_test_setup_teardown(test_edge_view_splits_the_probability_by_community,
+						hand_setup, hand_teardown),
 		cmocka_unit_test_setup_teardown(test_pair_prob_matches_hand_computed, hand_setup,
 						hand_teardown),
 		cmocka_unit_test(test_pair_prob_is_accurate_for_tiny_dot),

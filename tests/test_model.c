@@ -347,6 +347,44 @@ static void test_held_out_pairs_leave_the_likelihood(void **state)
 	}
 }
 
+static void test_row_gradient_with_held_out_pairs_matches_pair_by_pair_sum(void **state)
+{
+	(void)state;
+	/* the gradient from the definition, pair by pair and with no column
+	 * sums: d l / d F_uc = sum over v != u not held out with u of
+	 *   F_vc e^{-y} / (1 - e^{-y})   (uv an edge; y = F_u.F_v + qeps)
+	 *   - F_vc                        (uv a non-edge)
+	 * (differentiating l(F) in model.h term by term) */
+	struct rng r;
+	rng_init(&r, 17);
+	for (int trial = 0; trial < 30; trial++) {
+		uint32_t n = 6 + (uint32_t)rng_below(&r, 15), k = 1 + (uint32_t)rng_below(&r, 5);
+		struct graph *g, *x;
+		random_split(&r, n, 0.35, 0.25, &g, &x);
+		struct model m;
+		random_model(&r, &m, n, k, 0.02, 0.6);
+		m.excl = x;
+		struct model_work *w = model_work_new(k);
+		uint32_t u = (uint32_t)rng_below(&r, n);
+		double grad[8], want[8] = { 0 };
+		model_row_gradient(&m, g, u, w, grad);
+		for (uint32_t v = 0; v < n; v++) {
+			if (v == u || graph_has_edge(x, u, v))
+				continue;
+			double y = dense_dot(&m, u, v) + m.qeps;
+			double wgt = graph_has_edge(g, u, v) ? exp(-y) / -expm1(-y) : -1.0;
+			for (uint32_t j = 0; j < m.rows[v].nnz; j++)
+				want[m.rows[v].e[j].c] += wgt * m.rows[v].e[j].v;
+		}
+		for (uint32_t c = 0; c < k; c++)
+			assert_true(fabs(grad[c] - want[c]) <= 1e-9 * (1.0 + fabs(want[c])));
+		model_work_free(w);
+		model_release(&m);
+		graph_free(g);
+		graph_free(x);
+	}
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -359,6 +397,7 @@ int main(void)
 		cmocka_unit_test(test_model_refuses_bad_shapes),
 		cmocka_unit_test(test_default_epsilon_is_density),
 		cmocka_unit_test(test_held_out_pairs_leave_the_likelihood),
+		cmocka_unit_test(test_row_gradient_with_held_out_pairs_matches_pair_by_pair_sum),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }

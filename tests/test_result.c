@@ -32,6 +32,7 @@
 #include "coterie/model.h"
 #include "coterie/refine.h"
 #include "coterie/result.h"
+#include "coterie/select.h"
 #include "coterie/util.h"
 
 /* ------------------------------------------------------------------ */
@@ -521,7 +522,7 @@ static void test_run_json_has_every_key_in_order_with_values(void **state)
 		fail_msg("run.json: %s at line %d", jerr.text, jerr.line);
 
 	static const char *const top[] = { "coterie", "command", "graph", "parameters", "fit",
-					   "agm_refine", "run" };
+					   "k_selection", "link_check", "agm_refine", "run" };
 	static const char *const graph[] = { "path", "format", "nodes", "edges", "fingerprint",
 					     "lines", "self_loops", "duplicates", "extra_columns",
 					     "isolated", "directed_input" };
@@ -533,7 +534,10 @@ static void test_run_json_has_every_key_in_order_with_values(void **state)
 					   "covered_nodes", "overlapping_nodes", "start_kept",
 					   "reseeds_kept", "memberships_from" };
 	static const char *const run[] = { "wall_seconds", "peak_rss_kb" };
-	assert_keys(root, top, 7);
+	assert_keys(root, top, 9);
+	/* k was given and no link check was asked: both null */
+	assert_true(json_is_null(get(root, "k_selection", NULL)));
+	assert_true(json_is_null(get(root, "link_check", NULL)));
 	assert_keys(get(root, "graph", NULL), graph, 11);
 	assert_keys(get(root, "parameters", NULL), params, 12);
 	assert_keys(get(root, "fit", NULL), fit, 13);
@@ -646,6 +650,83 @@ static void test_run_json_writes_big_seed_as_string_and_infinity_as_null(void **
 	assert_int_equal(json_integer_value(get(root, "run", "peak_rss_kb")), 2048);
 	/* invalid UTF-8 cannot be a JSON string (RFC 8259 s. 8.1): escaped */
 	assert_string_equal(json_string_value(get(root, "command", NULL)), "bad \\xff utf-8");
+	json_decref(root);
+	test_rmtree(tmp);
+}
+
+static void test_k_selection_and_link_check_are_recorded(void **state)
+{
+	(void)state;
+	/* a made-up search of three k (values chosen here, not computed) */
+	struct select_point pts[3] = {
+		{ 2, -120.5, 0.625, 10, 0.25 },
+		{ 4, -100.25, 0.75, 20, 0.5 },
+		{ 8, -110.0, NAN, 30, 1.0 },
+	};
+	struct select_result sel;
+	memset(&sel, 0, sizeof sel);
+	sel.best = 4;
+	sel.ngrid = 4;
+	sel.grid[0] = 2;
+	sel.grid[1] = 4;
+	sel.grid[2] = 8;
+	sel.grid[3] = 16;
+	sel.pts = pts;
+	sel.npts = 3;
+	sel.share = 0.1;
+	sel.held_edges = 7;
+	sel.held_non_edges = 7;
+	struct result_links links = { 0.2, 14, 13, -30.5, 0.875 };
+	struct result_meta meta = fx.meta;
+	meta.k_auto = 1;
+	meta.selection = &sel;
+	meta.links = &links;
+	const char *tmp = test_tmpdir();
+	assert_int_equal(result_write_selection(tmp, &sel), 0);
+	assert_int_equal(result_write(tmp, fx.g, &fx.p, &fx.s, &meta), 0);
+
+	struct table t;
+	table_load(&t, path_in(tmp, "k-selection.tsv"));
+	assert_int_equal(t.nrows, 4);
+	static const char *const head[] = { "k", "heldout_loglik", "heldout_auc", "sweeps",
+					    "seconds", "chosen" };
+	for (int i = 0; i < 6; i++)
+		assert_string_equal(t.field[0][i], head[i]);
+	assert_string_equal(t.field[1][0], "2");
+	assert_true(num(t.field[1][1]) == -120.5);
+	assert_string_equal(t.field[1][2], "0.625000000"); /* %.9f */
+	assert_string_equal(t.field[1][5], "no");
+	assert_string_equal(t.field[2][5], "yes");
+	assert_string_equal(t.field[3][2], "NA"); /* an undefined AUC */
+	assert_string_equal(t.field[3][4], "1.000");
+	free(t.text);
+
+	json_error_t jerr;
+	json_t *root = json_load_file(path_in(tmp, "run.json"), 0, &jerr);
+	assert_non_null(root);
+	assert_string_equal(json_string_value(get(root, "parameters", "k_chosen_by")),
+			    "held-out likelihood");
+	json_t *ks = get(root, "k_selection", NULL);
+	static const char *const kkeys[] = { "criterion", "chosen", "grid", "held_out_share",
+					     "held_out_edges", "held_out_non_edges", "scores" };
+	assert_keys(ks, kkeys, 7);
+	assert_int_equal(json_integer_value(get(root, "k_selection", "chosen")), 4);
+	json_t *grid = get(root, "k_selection", "grid");
+	assert_int_equal(json_array_size(grid), 4);
+	assert_int_equal(json_integer_value(json_array_get(grid, 3)), 16);
+	json_t *scores = get(root, "k_selection", "scores");
+	assert_int_equal(json_array_size(scores), 3);
+	static const char *const skeys[] = { "k", "heldout_loglik", "heldout_auc", "sweeps",
+					     "seconds" };
+	assert_keys(json_array_get(scores, 0), skeys, 5);
+	assert_true(json_real_value(json_object_get(json_array_get(scores, 1), "heldout_loglik")) ==
+		    -100.25);
+	assert_true(json_is_null(json_object_get(json_array_get(scores, 2), "heldout_auc")));
+	static const char *const lkeys[] = { "held_out_share", "held_out_edges",
+					     "held_out_non_edges", "heldout_loglik", "heldout_auc" };
+	assert_keys(get(root, "link_check", NULL), lkeys, 5);
+	assert_int_equal(json_integer_value(get(root, "link_check", "held_out_non_edges")), 13);
+	assert_true(json_real_value(get(root, "link_check", "heldout_auc")) == 0.875);
 	json_decref(root);
 	test_rmtree(tmp);
 }
@@ -1219,7 +1300,8 @@ static void test_resume_through_the_checkpoint_matches_the_uninterrupted_fit(voi
 	struct snapshot *half = fit_karate(g, &p, NULL);
 
 	const char *dir = test_tmpdir();
-	struct result_meta meta = { "coterie fit karate", "karate/edges.tsv", 1.0, 0, "finished", 0, NULL, 0 };
+	struct result_meta meta = { "coterie fit karate", "karate/edges.tsv", 1.0, 0, "finished", 0,
+				    NULL, 0, NULL, NULL };
 	assert_int_equal(result_write(dir, g, &p, half, &meta), 0);
 
 	/* the folder agrees with the snapshot it was written from */
@@ -1288,6 +1370,7 @@ int main(void)
 		cmocka_unit_test(test_run_json_has_every_key_in_order_with_values),
 		cmocka_unit_test(test_run_json_records_the_agm_refinement),
 		cmocka_unit_test(test_run_json_writes_big_seed_as_string_and_infinity_as_null),
+		cmocka_unit_test(test_k_selection_and_link_check_are_recorded),
 		cmocka_unit_test(test_checkpoint_layout_matches_the_documentation),
 		cmocka_unit_test(test_checkpoint_round_trip_keeps_every_field),
 		cmocka_unit_test(test_checkpoint_refuses_every_flipped_byte),

@@ -51,6 +51,35 @@ int64_t inspect_explaining_community(const struct fcsr *F, uint32_t u, uint32_t 
 /* Probability the communities give the pair (u, v): 1 - exp(-F_u . F_v). */
 double inspect_pair_prob(const struct fcsr *F, uint32_t u, uint32_t v);
 
+/* One community's part in a pair's probability. */
+struct inspect_share {
+	uint32_t comm;     /* community id (model column) */
+	double product;    /* F_u[c] F_v[c] > 0 */
+	double alone;      /* 1 - exp(-product): the probability c alone gives */
+	int both_members;  /* both strengths >= delta */
+	double p;          /* the AGM p_c; NAN when c is no listed community */
+};
+
+/* Everything the model says about one pair. */
+struct inspect_edge {
+	uint32_t u, v;
+	int linked;                  /* (u, v) is an edge of the graph */
+	double x;                    /* F_u . F_v, the sum of the products */
+	double prob;                 /* 1 - exp(-(x + qeps)): the model, background included */
+	double prob_comms;           /* 1 - exp(-x): the communities alone, as in the panes */
+	double agm_prob;             /* the AGM read back: 1 - (1 - epsilon) prod (1 - p_c)
+				      * over the communities both belong to */
+	uint32_t nshare;
+	struct inspect_share *share; /* owned; largest product first, ties by id */
+};
+
+/* The pair view of (u, v) (u != v, both < n) under strengths F and the
+ * AGM a read from them with epsilon and delta (all borrowed). Returns 0
+ * or -1; release with inspect_edge_release(). */
+int inspect_edge(struct inspect_edge *out, const struct graph *g, const struct fcsr *F,
+		 const struct agm *a, double epsilon, double delta, uint32_t u, uint32_t v);
+void inspect_edge_release(struct inspect_edge *e);
+
 struct inspect_pair {
 	uint32_t u, v;  /* u is the member of the community (for edges) */
 	double prob;

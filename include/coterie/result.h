@@ -25,15 +25,33 @@ struct graph;
 
 #define RESULT_CHECKPOINT "checkpoint.cot"
 #define RESULT_CHECKPOINT_VERSION 1u
-#define RESULT_SELECTION "kselect.tsv"
+#define RESULT_SELECTION "k-selection.tsv"
 
-struct select_point;
 struct refine_report;
+struct select_result;
 
-/* Write DIR/kselect.tsv (k, held-out log-likelihood, sweeps, seconds,
- * chosen) for a -k auto search, atomically. Returns 0 or -1. */
-int result_write_selection(const char *dir, const struct select_point *pts, uint32_t n,
-			   uint32_t best);
+/* Write DIR/k-selection.tsv (k, held-out log-likelihood, held-out AUC,
+ * sweeps, seconds, chosen) for a -k auto search (sel borrowed),
+ * atomically. Returns 0 or -1. */
+int result_write_selection(const char *dir, const struct select_result *sel);
+
+#define RESULT_LINKS "held-out-links.tsv"
+
+struct holdout;
+
+/* Write DIR/held-out-links.tsv (node_a, node_b, edge 1/0, the model's
+ * probability 1 - exp(-(F_a.F_b + qeps))) for every held-out pair of h,
+ * edges first; g, h and F borrowed. Returns 0 or -1. */
+int result_write_links(const char *dir, const struct graph *g, const struct holdout *h,
+		       const struct fcsr *F, double epsilon);
+
+/* The held-out check of the final model (fit --check-links). */
+struct result_links {
+	double share;              /* of the edges held out */
+	uint64_t held_edges, held_non_edges;
+	double heldout_loglik;     /* as in holdout_score() */
+	double auc;                /* NAN when undefined */
+};
 
 /* What run.json records beyond the snapshot. All borrowed. */
 struct result_meta {
@@ -46,6 +64,8 @@ struct result_meta {
 	const struct refine_report *refine; /* the snapshot's AGM was refined
 					     * by refine_agm() (NULL: not) */
 	unsigned refine_rounds;     /* --refine-rounds (0: --refine not asked) */
+	const struct select_result *selection; /* the -k auto search, or NULL */
+	const struct result_links *links;      /* the link check, or NULL */
 };
 
 /* Create dir (and parents) if needed and prove it can be written by

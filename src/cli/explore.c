@@ -27,17 +27,23 @@
 #include "coterie/fit.h"
 #include "coterie/graph.h"
 #include "coterie/result.h"
+#include "coterie/select.h"
 
 static void explore_usage(FILE *out)
 {
 	fprintf(out,
-		"usage: coterie explore GRAPH -k N [options]\n"
+		"usage: coterie explore GRAPH -k N|auto [options]\n"
 		"       coterie explore DIR [--resume] [options]\n"
 		"\n"
 		"Fit N overlapping communities to GRAPH in the background and browse them\n"
 		"while the likelihood climbs; or browse the result saved in DIR.\n"
 		"\n"
-		"  -k, --communities N   number of communities to fit (required for a graph)\n"
+		"  -k, --communities N   number of communities to fit (required for a graph);\n"
+		"                        'auto' chooses it by held-out likelihood first,\n"
+		"                        showing each k's score as it comes (see --k-grid)\n"
+		"      --k-grid G        the k tried by -k auto: A:B, A:B:RATIO or a list\n"
+		"                        such as 4,8,16 (default: 2 up to a bound from the graph)\n"
+		"      --holdout X       share of edges -k auto holds out (default 0.1)\n"
 		"  -o, --output DIR      where w, quitting and signals write the result\n"
 		"                        (default: DIR itself, or ./NAME.coterie for a graph)\n"
 		"  -j, --threads N       worker threads (default: every core)\n"
@@ -127,9 +133,35 @@ static void default_outdir(const char *path, char *out, size_t cap)
 	snprintf(out, cap, "./%s.coterie", name); /* all taken: use the first */
 }
 
+/* -k auto: the search on its thread, shown by tui_choose_k(); sets p->k.
+ * Returns -1 to go on to the fit, else the exit status. */
+static int choose_k(const struct graph *g, const char *label, struct fit_params *p,
+		    struct select_params *sp, int have_grid, struct select_result *sel)
+{
+	struct select_params dflt;
+	if (select_params_default(&dflt, g, NULL))
+		return 1;
+	if (!have_grid) {
+		sp->kmin = dflt.kmin;
+		sp->kmax = dflt.kmax;
+		sp->step = dflt.step;
+		sp->nlist = 0;
+	}
+	struct select_run *run = select_run_start(g, p, sp);
+	if (!run)
+		return 1;
+	struct tui_kconfig kc = { g, label, run };
+	int st = tui_choose_k(&kc, sel);
+	if (st < 0)
+		p->k = sel->best;
+	return st;
+}
+
 enum {
 	OPT_RESUME = CLI_OPT_OWN,
 	OPT_LIST_KEYS,
+	OPT_K_GRID,
+	OPT_HOLDOUT,
 };
 
 int cmd_explore(int argc, char **argv)
@@ -148,23 +180,37 @@ int cmd_explore(int argc, char **argv)
 		{ "starts", required_argument, NULL, CLI_OPT_STARTS },
 		{ "no-reseed", no_argument, NULL, CLI_OPT_NO_RESEED },
 		{ "list-keys", no_argument, NULL, OPT_LIST_KEYS }, /* for the tests */
+		{ "k-grid", required_argument, NULL, OPT_K_GRID },
+		{ "holdout", required_argument, NULL, OPT_HOLDOUT },
 		{ "help", no_argument, NULL, 'h' },
 		{ NULL, 0, NULL, 0 },
 	};
 	struct cli_fit_opts o;
 	cli_fit_opts_init(&o);
-	int resume = 0;
+	int resume = 0, k_auto = 0, have_grid = 0;
+	struct select_params sp;
+	memset(&sp, 0, sizeof sp);
+	sp.share = 0.1;
+	sp.step = 1.25;
 	const char *out = NULL;
 	int c;
 	optind = 1;
 	opterr = 0;
 	while ((c = getopt_long(argc, argv, ":k:o:j:h", opts, NULL)) != -1) {
-		if (c == 'k' && !strcmp(optarg, "auto"))
-			die(EXIT_USAGE, "explore takes a number for -k; choose it first with "
-			    "'coterie fit GRAPH -k auto -o DIR', then 'coterie explore DIR'");
+		if (c == 'k' && !strcmp(optarg, "auto")) {
+			k_auto = 1;
+			o.have_k = 1;
+			continue;
+		}
 		if (cli_fit_opts_take(&o, c, optarg))
 			continue;
 		switch (c) {
+		case OPT_K_GRID:
+			if (select_grid_parse(optarg, &sp))
+				exit(EXIT_USAGE); /* select_grid_parse() said why */
+			have_grid = 1;
+			break;
+		case OPT_HOLDOUT: sp.share = cli_double("--holdout", optarg, 0.01, 0.5); break;
 		case 'o': out = optarg; break;
 		case OPT_RESUME: resume = 1; break;
 		case OPT_LIST_KEYS: keys_list(stdout); return 0;
@@ -189,7 +235,11 @@ int cmd_explore(int argc, char **argv)
 	if (resume && !is_dir)
 		die(EXIT_USAGE, "--resume continues a result folder; '%s' is not one", arg);
 	if (!is_dir && !o.have_k)
-		die(EXIT_USAGE, "explore needs the number of communities: -k N");
+		die(EXIT_USAGE, "explore needs the number of communities: -k N or -k auto");
+	if (is_dir && k_auto)
+		die(EXIT_USAGE, "-k auto is for a graph; a result folder already has its k");
+	if (have_grid && !k_auto)
+		die(EXIT_USAGE, "--k-grid is for -k auto");
 	if (cli_signals_install())
 		return 1;
 
@@ -201,6 +251,8 @@ int cmd_explore(int argc, char **argv)
 	struct graph *g = NULL;
 	struct fit *f = NULL;
 	char outbuf[4096];
+	struct select_result sel;
+	memset(&sel, 0, sizeof sel);
 
 	if (is_dir) {
 		char path[4096];
@@ -247,6 +299,14 @@ int cmd_explore(int argc, char **argv)
 			return 1;
 		cli_fit_opts_starts(&o, g->m);
 		p.starts = o.p.starts;
+		if (k_auto) {
+			int ks = choose_k(g, arg, &p, &sp, have_grid, &sel);
+			if (ks >= 0) {
+				graph_free(g);
+				return ks;
+			}
+			cfg.selection = &sel;
+		}
 		p.hold_at_plateau = 1;
 		f = fit_new(g, &p, NULL);
 		if (!f) {
@@ -266,6 +326,7 @@ int cmd_explore(int argc, char **argv)
 	cfg.fit = f;
 	cfg.params = p;
 	int rc = tui_run(&cfg); /* frees the fit */
+	select_result_release(&sel);
 	graph_free(g);
 	checkpoint_release(&ck);
 	return rc;

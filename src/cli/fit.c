@@ -19,6 +19,7 @@
 #include "coterie/fit.h"
 #include "coterie/graph.h"
 #include "coterie/refine.h"
+#include "coterie/holdout.h"
 #include "coterie/result.h"
 #include "coterie/select.h"
 
@@ -32,9 +33,15 @@ static void fit_usage(FILE *out)
 		"GRAPH is an edge list (.gz too; - for standard input), GML, GraphML or Pajek.\n"
 		"\n"
 		"  -k, --communities N   number of communities to fit (required); 'auto'\n"
-		"                        chooses it by held-out likelihood (see --k-range)\n"
-		"      --k-range A:B     the k tried by -k auto (default 2 to n/4, at most 500)\n"
-		"      --holdout X       share of edges -k auto holds out (default 0.1)\n"
+		"                        chooses it by held-out likelihood (see --k-grid)\n"
+		"      --k-grid G        the k tried by -k auto: A:B (geometric, ratio 1.25),\n"
+		"                        A:B:RATIO, or a list such as 4,8,16 (default: 2 up\n"
+		"                        to a bound from the graph; see the manual)\n"
+		"      --holdout X       share of edges -k auto holds out, with as many\n"
+		"                        non-edges (default 0.1)\n"
+		"      --check-links X   hold out X of the edges and as many non-edges from\n"
+		"                        the final fit and report their link AUC and\n"
+		"                        log-likelihood in run.json\n"
 		"  -o, --output DIR      result folder (made if missing; required)\n"
 		"  -j, --threads N       worker threads (default: every core)\n"
 		"      --seed N          random seed (default 1); same seed, same result\n"
@@ -117,8 +124,8 @@ static void on_scored(const struct select_point *pt, void *arg)
 {
 	const int *quiet = arg;
 	if (!*quiet)
-		notice("choosing k: k %u scores %.6g on the held-out pairs (%u sweeps, %.1f s)",
-		       pt->k, pt->heldout, pt->sweeps, pt->seconds);
+		notice("choosing k: k %u scores %.6g on the held-out pairs, link AUC %.4f "
+		       "(%u sweeps, %.1f s)", pt->k, pt->heldout, pt->auc, pt->sweeps, pt->seconds);
 }
 
 static int stop_asked(void *arg)
@@ -127,41 +134,50 @@ static int stop_asked(void *arg)
 	return cli_signal_caught() != 0;
 }
 
-/* -k auto: score a grid of k by held-out likelihood, write kselect.tsv,
- * and set p->k to the winner. Returns 0 or -1 (reported). */
-static int choose_k(const struct graph *g, struct fit_params *p, const char *out, uint32_t lo,
-		    uint32_t hi, double holdout, int quiet)
+/* -k auto: score a grid of k by held-out likelihood, write
+ * k-selection.tsv, and set p->k to the winner; sp holds --k-grid and
+ * --holdout (have_grid: the grid was given). Returns 0 or -1 (reported). */
+static int choose_k(const struct graph *g, struct fit_params *p, const char *out,
+		    struct select_params *sp, int have_grid, int quiet, struct select_result *res)
 {
-	struct select_params sp;
-	select_params_default(&sp, g);
-	if (lo) {
-		sp.kmin = lo;
-		sp.kmax = hi;
+	struct select_params dflt;
+	uint32_t minima = 0;
+	if (select_params_default(&dflt, g, &minima))
+		return -1;
+	if (!have_grid) {
+		sp->kmin = dflt.kmin;
+		sp->kmax = dflt.kmax;
+		sp->step = dflt.step;
+		sp->nlist = 0;
 	}
-	sp.share = holdout;
-	uint32_t grid[64];
-	uint32_t ng = select_grid(&sp, grid);
-	if (!quiet)
-		notice("choosing k from %u to %u (%u values at most) by the likelihood of %.0f%% of "
-		       "the edges and as many non-edges, held out", sp.kmin, sp.kmax, ng,
-		       100.0 * holdout);
+	uint32_t grid[SELECT_MAX_GRID];
+	uint32_t ng = select_grid(sp, grid);
+	if (!quiet) {
+		if (!have_grid)
+			notice("choosing k from %u to %u (three times the %u distinct locally "
+			       "minimal ego-nets, within 10 to 500 and at most n/4)", sp->kmin,
+			       sp->kmax, minima);
+		notice("choosing k among %u values from %u to %u by the likelihood of %.0f%% of "
+		       "the edges and as many non-edges, held out; %u fits at a time", ng, grid[0],
+		       grid[ng - 1], 100.0 * sp->share, p->threads < ng ? p->threads : ng);
+	}
 	struct select_hooks hooks = { on_scored, stop_asked, &quiet };
-	struct select_point *pts;
-	uint32_t npts, best;
-	int rc = select_k(g, p, &sp, &hooks, &best, &pts, &npts);
+	int rc = select_k(g, p, sp, &hooks, res);
 	if (rc == -2) {
 		error("interrupted while choosing k; no fit to save yet");
 		return -1;
 	}
 	if (rc)
 		return -1;
-	rc = result_write_selection(out, pts, npts, best);
-	free(pts);
-	if (rc)
+	if (result_write_selection(out, res))
 		return -1;
 	if (!quiet)
-		notice("chose k = %u; the scores are in '%s/%s'", best, out, RESULT_SELECTION);
-	p->k = best;
+		notice("chose k = %u, the highest held-out log-likelihood; the scores are in "
+		       "'%s/%s'", res->best, out, RESULT_SELECTION);
+	if (res->npts == res->ngrid && res->best == res->grid[res->ngrid - 1] && res->ngrid > 1)
+		warning("the chosen k is the largest tried; a grid reaching further (--k-grid) "
+			"may find a better one");
+	p->k = res->best;
 	return 0;
 }
 
@@ -169,10 +185,11 @@ enum {
 	OPT_PAST_PLATEAU = CLI_OPT_OWN,
 	OPT_RESUME,
 	OPT_SAVE_EVERY,
-	OPT_K_RANGE,
+	OPT_K_GRID,
 	OPT_HOLDOUT,
 	OPT_REFINE,
 	OPT_REFINE_ROUNDS,
+	OPT_CHECK_LINKS,
 };
 
 /* --refine: the AGM refinement of the final cover into *out (released by
@@ -215,10 +232,11 @@ int cmd_fit(int argc, char **argv)
 		{ "save-every", required_argument, NULL, OPT_SAVE_EVERY },
 		{ "starts", required_argument, NULL, CLI_OPT_STARTS },
 		{ "no-reseed", no_argument, NULL, CLI_OPT_NO_RESEED },
-		{ "k-range", required_argument, NULL, OPT_K_RANGE },
-		{ "holdout", required_argument, NULL, OPT_HOLDOUT },
 		{ "refine", no_argument, NULL, OPT_REFINE },
 		{ "refine-rounds", required_argument, NULL, OPT_REFINE_ROUNDS },
+		{ "k-grid", required_argument, NULL, OPT_K_GRID },
+		{ "holdout", required_argument, NULL, OPT_HOLDOUT },
+		{ "check-links", required_argument, NULL, OPT_CHECK_LINKS },
 		{ "quiet", no_argument, NULL, 'q' },
 		{ "help", no_argument, NULL, 'h' },
 		{ NULL, 0, NULL, 0 },
@@ -227,8 +245,12 @@ int cmd_fit(int argc, char **argv)
 	cli_fit_opts_init(&o);
 	int quiet = 0, k_auto = 0, refine = 0;
 	unsigned refine_rounds = 50;
-	uint32_t krange_lo = 0, krange_hi = 0;
-	double holdout = 0.1;
+	struct select_params sp;
+	memset(&sp, 0, sizeof sp);
+	sp.share = 0.1;
+	sp.step = 1.25;
+	int have_grid = 0;
+	double check_links = 0.0;
 	const char *out = NULL, *resume = NULL;
 	double save_every = 120.0;
 	int c;
@@ -243,19 +265,15 @@ int cmd_fit(int argc, char **argv)
 		if (cli_fit_opts_take(&o, c, optarg))
 			continue;
 		switch (c) {
-		case OPT_K_RANGE: {
-			char lo[32], hi[32];
-			const char *colon = strchr(optarg, ':');
-			if (!colon || colon - optarg >= 32 || strlen(colon + 1) >= 32)
-				die(EXIT_USAGE, "--k-range expects MIN:MAX, e.g. 5:200");
-			memcpy(lo, optarg, (size_t)(colon - optarg));
-			lo[colon - optarg] = '\0';
-			strcpy(hi, colon + 1);
-			krange_lo = cli_u32("--k-range", lo, 1, MODEL_MAX_K);
-			krange_hi = cli_u32("--k-range", hi, krange_lo, MODEL_MAX_K);
+		case OPT_K_GRID:
+			if (select_grid_parse(optarg, &sp))
+				exit(EXIT_USAGE); /* select_grid_parse() said why */
+			have_grid = 1;
 			break;
-		}
-		case OPT_HOLDOUT: holdout = cli_double("--holdout", optarg, 0.01, 0.5); break;
+		case OPT_CHECK_LINKS:
+			check_links = cli_double("--check-links", optarg, 0.001, 0.5);
+			break;
+		case OPT_HOLDOUT: sp.share = cli_double("--holdout", optarg, 0.01, 0.5); break;
 		case 'o': out = optarg; break;
 		case OPT_PAST_PLATEAU: o.p.past_plateau = 1; break;
 		case OPT_RESUME: resume = optarg; break;
@@ -283,6 +301,8 @@ int cmd_fit(int argc, char **argv)
 	struct fit_params p = o.p;
 	if (!resume && !o.have_k)
 		die(EXIT_USAGE, "fit needs the number of communities: -k N");
+	if (have_grid && !k_auto)
+		die(EXIT_USAGE, "--k-grid is for -k auto");
 	if (!out)
 		out = resume;
 	if (!out)
@@ -296,6 +316,10 @@ int cmd_fit(int argc, char **argv)
 		return 1;
 
 	double t_begin = util_now();
+	struct select_result sel;
+	memset(&sel, 0, sizeof sel);
+	struct holdout check;
+	memset(&check, 0, sizeof check);
 	struct checkpoint ck;
 	memset(&ck, 0, sizeof ck);
 	struct graph *g = NULL;
@@ -321,6 +345,8 @@ int cmd_fit(int argc, char **argv)
 		}
 		if (k_auto)
 			die(EXIT_USAGE, "-k auto cannot be used when resuming");
+		if (check_links > 0)
+			die(EXIT_USAGE, "--check-links cannot be used when resuming");
 		cli_fit_opts_resume(&o, &ck.params, "when resuming", &p);
 		p.hold_at_plateau = 0;
 		if (ck.state == FIT_LEVELLED && !p.past_plateau)
@@ -333,19 +359,37 @@ int cmd_fit(int argc, char **argv)
 			return 1;
 		cli_fit_opts_starts(&o, g->m);
 		p.starts = o.p.starts;
-		if (k_auto && choose_k(g, &p, out, krange_lo, krange_hi, holdout, quiet)) {
+		if (k_auto && choose_k(g, &p, out, &sp, have_grid, quiet, &sel)) {
 			graph_free(g);
 			return cli_signal_caught() ? EXIT_INTERRUPTED : 1;
+		}
+		if (check_links > 0) {
+			/* the seed is offset so these pairs are not those -k auto held out */
+			if (holdout_split(&check, g, check_links, p.seed + 0x9e3779b97f4a7c15ULL)) {
+				graph_free(g);
+				select_result_release(&sel);
+				return 1;
+			}
+			if (!(p.epsilon > 0.0))
+				p.epsilon = model_default_epsilon(g); /* the whole graph's */
+			if (!quiet)
+				notice("checking links: %llu edges and %llu non-edges are held out of the "
+				       "fit", (unsigned long long)check.nedges,
+				       (unsigned long long)check.nnon);
 		}
 	}
 	const struct graph *graph = g ? g : ck.graph;
 
-	struct fit *f = fit_new(graph, &p, orig);
+	struct fit *f = fit_new(check.train ? check.train : graph, &p, orig);
 	if (!f) {
 		graph_free(g);
 		checkpoint_release(&ck);
+		holdout_release(&check);
+		select_result_release(&sel);
 		return 1;
 	}
+	if (check.held)
+		fit_exclude(f, check.held);
 	if (!quiet)
 		notice("fitting %u communities on %u nodes and %llu edges with %u thread%s",
 		       p.k, graph->n, (unsigned long long)graph->m, p.threads,
@@ -354,6 +398,8 @@ int cmd_fit(int argc, char **argv)
 		fit_free(f);
 		graph_free(g);
 		checkpoint_release(&ck);
+		holdout_release(&check);
+		select_result_release(&sel);
 		return 1;
 	}
 
@@ -394,8 +440,29 @@ int cmd_fit(int argc, char **argv)
 	struct snapshot *s = fit_snapshot(f);
 	progress_show(&pr, s, 1);
 
+	/* --check-links: score the held-out pairs, and read the AGM figures
+	 * (internal edges, conductance, p_c) from the whole graph, not from
+	 * the training one the fit saw */
+	struct result_links links;
+	struct snapshot whole;
+	const struct snapshot *ws = s;
+	int have_whole = 0;
+	if (check.held && s->ntrace > 0 && st != FIT_FAILED) {
+		links = (struct result_links){ check_links, check.nedges, check.nnon, 0, 0 };
+		whole = *s;
+		if (holdout_score(&check, &s->F, s->epsilon, &links.heldout_loglik, &links.auc) == 0 &&
+		    agm_from_strengths(&whole.agm, graph, &s->F, s->epsilon, s->delta) == 0) {
+			have_whole = 1;
+			ws = &whole;
+			if (!quiet)
+				notice("held-out links: AUC %.4f, log-likelihood %.6g over %llu edges "
+				       "and %llu non-edges", links.auc, links.heldout_loglik,
+				       (unsigned long long)links.held_edges,
+				       (unsigned long long)links.held_non_edges);
+		}
+	}
 	/* the refined cover replaces the thresholded one in what is written */
-	struct snapshot written = *s;
+	struct snapshot written = *ws;
 	struct agm refined;
 	struct refine_report rrep;
 	int have_refined = 0, refine_failed = 0;
@@ -403,7 +470,7 @@ int cmd_fit(int argc, char **argv)
 	if (refine && interrupted && !quiet)
 		notice("interrupted: the cover is not refined");
 	if (refine && !interrupted && st != FIT_FAILED && s->ntrace > 0) {
-		if (refine_cover_of(graph, s, refine_rounds, p.seed, quiet, &refined, &rrep)) {
+		if (refine_cover_of(graph, ws, refine_rounds, p.seed, quiet, &refined, &rrep)) {
 			refine_failed = 1; /* reported; the unrefined result is still written */
 		} else {
 			have_refined = 1;
@@ -423,12 +490,18 @@ int cmd_fit(int argc, char **argv)
 		.status = status,
 		.refine = have_refined ? &rrep : NULL,
 		.refine_rounds = refine ? refine_rounds : 0,
+		.selection = k_auto ? &sel : NULL,
+		.links = have_whole ? &links : NULL,
 	};
 	int rc = 0;
 	if (st == FIT_FAILED || s->ntrace == 0) {
 		error("the fit failed; nothing written to '%s'", out);
 		rc = 1;
-	} else if (result_write(out, graph, &p, &written, &meta)) {
+	} else if (check.held && !have_whole) {
+		error("cannot score the held-out links; nothing written to '%s'", out);
+		rc = 1;
+	} else if (result_write(out, graph, &p, &written, &meta) ||
+		   (have_whole && result_write_links(out, graph, &check, &s->F, s->epsilon))) {
 		rc = 1;
 	} else if (!quiet) {
 		const char *how = st == FIT_LEVELLED ? "levelled off" :
@@ -446,8 +519,12 @@ int cmd_fit(int argc, char **argv)
 	agm_release(&refined);
 	if (refine_failed)
 		rc = 1;
+	if (have_whole)
+		agm_release(&whole.agm);
 	snapshot_release(s);
 	fit_free(f);
+	holdout_release(&check);
+	select_result_release(&sel);
 	graph_free(g);
 	checkpoint_release(&ck);
 	if (rc)

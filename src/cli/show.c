@@ -1,12 +1,14 @@
 /*
  * cli/show: `coterie show DIR [--node NAME | --community ID |
- * --weak-edges ID [--missing]] [--limit N] [--json]`.
+ * --weak-edges ID [--missing] | --edge A B | --links] [--limit N] [--json]`.
  *
  * Reopens a result folder from its checkpoint, reads the strengths back
  * as an AGM and prints one view: the summary and the communities table,
  * a node, a community and its members, or the edges a community explains
  * least well (or, with --missing, the member pairs it predicts most
- * strongly that are not linked). The numbers come from inspect.c, the
+ * strongly that are not linked), one pair's probability and each shared
+ * community's part in it, or every edge with its probability. The
+ * numbers come from inspect.c, the
  * same code behind the explorer's panes, so the two always agree.
  *
  * Text is for people: aligned columns, names last where they can be, and
@@ -33,6 +35,7 @@
 #include "coterie/fit.h"
 #include "coterie/graph.h"
 #include "coterie/inspect.h"
+#include "coterie/model.h"
 #include "coterie/result.h"
 
 #define SHOW_DEFAULT_LIMIT 20u
@@ -42,8 +45,8 @@
 static void show_usage_short(FILE *out)
 {
 	fprintf(out,
-		"usage: coterie show DIR [--node NAME | --community ID | --weak-edges ID [--missing]]\n"
-		"                        [--limit N] [--json]\n");
+		"usage: coterie show DIR [--node NAME | --community ID | --weak-edges ID [--missing] |\n"
+		"                        --edge A B | --links] [--limit N] [--json]\n");
 }
 
 static void show_usage(FILE *out)
@@ -61,6 +64,10 @@ static void show_usage(FILE *out)
 		"                        model explains least (lowest probability first)\n"
 		"      --missing         with --weak-edges: the member pairs that are not linked\n"
 		"                        but are predicted most strongly\n"
+		"      --edge A B        the model's probability of a link between nodes A and\n"
+		"                        B, and each shared community's part in it\n"
+		"      --links           every edge with its probability and the community that\n"
+		"                        explains it (all of them unless --limit is given)\n"
 		"      --limit N         show at most N rows (default %u; 0 shows all)\n"
 		"      --json            the same data as JSON\n"
 		"  -h, --help            this text\n",
@@ -520,6 +527,145 @@ static int show_pairs(const struct show *s, uint32_t id, int missing)
 	return 0;
 }
 
+/* ---- one pair, and every edge ----------------------------------------- */
+
+static int find_node(const struct show *s, const char *name, uint32_t *u)
+{
+	int64_t i = graph_find(s->ck.graph, name);
+	if (i < 0) {
+		char b1[NAME_CAP], b2[NAME_CAP];
+		return error("no node named '%s' in %s", util_escape(name, b1, sizeof b1, s->ascii),
+			     util_escape(s->dir, b2, sizeof b2, s->ascii));
+	}
+	*u = (uint32_t)i;
+	return 0;
+}
+
+static int show_edge(const struct show *s, const char *na, const char *nb)
+{
+	const struct graph *g = s->ck.graph;
+	uint32_t u = 0, v = 0;
+	if (find_node(s, na, &u) || find_node(s, nb, &v))
+		return -1;
+	if (u == v)
+		return error("--edge needs two different nodes");
+	struct inspect_edge e;
+	if (inspect_edge(&e, g, &s->ck.F, &s->agm, s->ck.epsilon, s->delta, u, v))
+		return -1;
+	size_t n = shown(e.nshare, s->limit);
+	int rc = 0;
+	if (s->json) {
+		json_t *root = json_object();
+		json_t *list = json_array();
+		json_object_set_new(root, "a", jname(g->names[u]));
+		json_object_set_new(root, "b", jname(g->names[v]));
+		json_object_set_new(root, "linked", json_boolean(e.linked));
+		json_object_set_new(root, "dot", jreal(e.x));
+		json_object_set_new(root, "prob", jreal(e.prob));
+		json_object_set_new(root, "prob_communities", jreal(e.prob_comms));
+		json_object_set_new(root, "agm_prob", jreal(e.agm_prob));
+		json_object_set_new(root, "epsilon", jreal(s->ck.epsilon));
+		for (size_t i = 0; i < n; i++) {
+			const struct inspect_share *sh = &e.share[i];
+			json_t *o = json_object();
+			json_object_set_new(o, "community", jint(sh->comm));
+			json_object_set_new(o, "product", jreal(sh->product));
+			json_object_set_new(o, "alone", jreal(sh->alone));
+			json_object_set_new(o, "both_members", json_boolean(sh->both_members));
+			json_object_set_new(o, "p", jreal(sh->p));
+			json_array_append_new(list, o);
+		}
+		json_object_set_new(root, "communities", list);
+		rc = json_out(root);
+		inspect_edge_release(&e);
+		return rc;
+	}
+	char b1[NAME_CAP], b2[NAME_CAP];
+	printf("pair         %s -- %s\n", esc(s, g->names[u], b1), esc(s, g->names[v], b2));
+	printf("linked       %s\n", e.linked ? "yes, an edge" : "no");
+	printf("probability  %.6g  the model, 1 - exp(-(F_a.F_b + qeps)), background included\n",
+	       e.prob);
+	printf("communities  %.6g  1 - exp(-F_a.F_b), the communities alone (F_a.F_b = %.6g)\n",
+	       e.prob_comms, e.x);
+	printf("agm          %.6g  1 - (1 - epsilon) prod (1 - p_c) over the communities both "
+	       "belong to\n", e.agm_prob);
+	if (e.nshare == 0) {
+		printf("\nno community holds both\n");
+	} else {
+		uint32_t mc = 0;
+		for (size_t i = 0; i < n; i++)
+			mc = e.share[i].comm > mc ? e.share[i].comm : mc;
+		int wc = maxi(9, digits(mc));
+		printf("\n  %*s  %10s  %10s  %12s  %10s\n", wc, "community", "F_a*F_b", "alone",
+		       "both members", "p_c");
+		for (size_t i = 0; i < n; i++) {
+			const struct inspect_share *sh = &e.share[i];
+			printf("  %*" PRIu32 "  %10.4g  %10.4g  %12s  ", wc, sh->comm, sh->product,
+			       sh->alone, sh->both_members ? "yes" : "no");
+			if (isfinite(sh->p))
+				printf("%10.4g\n", sh->p);
+			else
+				printf("%10s\n", "-");
+		}
+		more_note(e.nshare, n);
+	}
+	inspect_edge_release(&e);
+	return rc;
+}
+
+static int show_links(const struct show *s)
+{
+	const struct graph *g = s->ck.graph;
+	const struct fcsr *F = &s->ck.F;
+	double qeps = -log1p(-s->ck.epsilon);
+	size_t n = shown((size_t)g->m, s->limit), i = 0;
+	json_t *root = NULL, *list = NULL;
+	char b1[NAME_CAP], b2[NAME_CAP];
+	if (s->json) {
+		root = json_object();
+		list = json_array();
+		json_object_set_new(root, "total", jint(g->m));
+		json_object_set_new(root, "epsilon", jreal(s->ck.epsilon));
+	} else {
+		printf("%" PRIu64 " edge%s in the order of the graph; probability is "
+		       "1 - exp(-(F_a.F_b + qeps))\n\n", g->m, g->m == 1 ? "" : "s");
+		printf("  %11s  %12s  node_a  node_b\n", "probability", "explained by");
+	}
+	for (uint32_t u = 0; u < g->n && i < n; u++)
+		for (uint64_t j = g->off[u]; j < g->off[u + 1] && i < n; j++) {
+			uint32_t v = g->adj[j];
+			if (v < u)
+				continue;
+			double x = model_dot(F->e + F->off[u], (uint32_t)(F->off[u + 1] - F->off[u]),
+					     F->e + F->off[v], (uint32_t)(F->off[v + 1] - F->off[v]));
+			double p = -expm1(-(x + qeps));
+			int64_t c = inspect_explaining_community(F, u, v);
+			i++;
+			if (s->json) {
+				json_t *o = json_object();
+				json_object_set_new(o, "a", jname(g->names[u]));
+				json_object_set_new(o, "b", jname(g->names[v]));
+				json_object_set_new(o, "prob", jreal(p));
+				json_object_set_new(o, "explained_by",
+						    c < 0 ? json_null() : jint((uint64_t)c));
+				json_array_append_new(list, o);
+				continue;
+			}
+			printf("  %11.4g  ", p);
+			if (c < 0)
+				printf("%12s  ", "none");
+			else
+				printf("%12" PRId64 "  ", c);
+			printf("%s  %s\n", esc(s, g->names[u], b1), esc(s, g->names[v], b2));
+		}
+	if (s->json) {
+		json_object_set_new(root, "edges", list);
+		return json_out(root);
+	}
+	more_note((size_t)g->m, n);
+	return 0;
+}
+
 /* ---- the command ------------------------------------------------------ */
 
 enum {
@@ -529,9 +675,10 @@ enum {
 	OPT_MISSING,
 	OPT_LIMIT,
 	OPT_JSON,
+	OPT_LINKS,
 };
 
-int cmd_show(int argc, char **argv)
+static int show_run(int argc, char **argv, const char *edge_a, const char *edge_b)
 {
 	static const struct option opts[] = {
 		{ "node", required_argument, NULL, OPT_NODE },
@@ -540,13 +687,15 @@ int cmd_show(int argc, char **argv)
 		{ "missing", no_argument, NULL, OPT_MISSING },
 		{ "limit", required_argument, NULL, OPT_LIMIT },
 		{ "json", no_argument, NULL, OPT_JSON },
+		{ "links", no_argument, NULL, OPT_LINKS },
 		{ "help", no_argument, NULL, 'h' },
 		{ NULL, 0, NULL, 0 },
 	};
 	const char *node = NULL;
 	uint32_t comm = 0, weak = 0, limit = SHOW_DEFAULT_LIMIT;
-	int have_comm = 0, have_weak = 0, missing = 0, json = 0, c;
+	int have_comm = 0, have_weak = 0, missing = 0, json = 0, links = 0, have_limit = 0, c;
 	char buf[NAME_CAP];
+
 
 	optind = 1;
 	opterr = 0;
@@ -567,8 +716,10 @@ int cmd_show(int argc, char **argv)
 		case OPT_LIMIT:
 			if (parse_u32("--limit", optarg, UINT32_MAX, &limit))
 				return EXIT_USAGE;
+			have_limit = 1;
 			break;
 		case OPT_JSON: json = 1; break;
+		case OPT_LINKS: links = 1; break;
 		case 'h': show_usage(stdout); return 0;
 		case ':':
 			error("option '%s' needs a value",
@@ -593,8 +744,8 @@ int cmd_show(int argc, char **argv)
 		show_usage_short(stderr);
 		return EXIT_USAGE;
 	}
-	if ((node != NULL) + have_comm + have_weak > 1) {
-		error("choose one of --node, --community and --weak-edges");
+	if ((node != NULL) + have_comm + have_weak + (edge_a != NULL) + links > 1) {
+		error("choose one of --node, --community, --weak-edges, --edge and --links");
 		show_usage_short(stderr);
 		return EXIT_USAGE;
 	}
@@ -609,7 +760,7 @@ int cmd_show(int argc, char **argv)
 	s.dir = argv[optind];
 	s.json = json;
 	s.ascii = !cli_utf8();
-	s.limit = limit == 0 ? SIZE_MAX : limit;
+	s.limit = limit == 0 || (links && !have_limit) ? SIZE_MAX : limit;
 
 	char path[4096];
 	int w = snprintf(path, sizeof path, "%s/%s", s.dir, RESULT_CHECKPOINT);
@@ -632,6 +783,10 @@ int cmd_show(int argc, char **argv)
 		rc = show_community(&s, comm);
 	else if (have_weak)
 		rc = show_pairs(&s, weak, missing);
+	else if (edge_a)
+		rc = show_edge(&s, edge_a, edge_b);
+	else if (links)
+		rc = show_links(&s);
 	else
 		rc = show_summary(&s);
 
@@ -643,4 +798,39 @@ int cmd_show(int argc, char **argv)
 	agm_release(&s.agm);
 	checkpoint_release(&s.ck);
 	return rc ? 1 : 0;
+}
+
+int cmd_show(int argc, char **argv)
+{
+	/* --edge A B takes two values, which getopt cannot: take it out first */
+	const char *edge_a = NULL, *edge_b = NULL;
+	char **args = calloc((size_t)argc + 1, sizeof *args);
+	if (!args) {
+		error("out of memory");
+		return 1;
+	}
+	int nargs = 0;
+	for (int i = 0; i < argc; i++) {
+		if (i > 0 && !strcmp(argv[i], "--edge") && !edge_a) {
+			if (i + 2 >= argc) {
+				error("--edge needs two node names: --edge A B");
+				show_usage_short(stderr);
+				free(args);
+				return EXIT_USAGE;
+			}
+			edge_a = argv[i + 1];
+			edge_b = argv[i + 2];
+			i += 2;
+			continue;
+		}
+		if (!strcmp(argv[i], "--")) {
+			while (i < argc)
+				args[nargs++] = argv[i++];
+			break;
+		}
+		args[nargs++] = argv[i];
+	}
+	int rc = show_run(nargs, args, edge_a, edge_b);
+	free(args);
+	return rc;
 }

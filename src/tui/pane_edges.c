@@ -3,11 +3,37 @@
  * touching its members that the model explains least (lowest
  * 1 - exp(-F_u.F_v) first) or, toggled with 'm', the pairs of members it
  * predicts most strongly that are not linked. Only the page on screen is
- * fetched (view.c); the title gives the rank range and the total.
+ * fetched (view.c); the title gives the rank range and the total. When
+ * the pane is tall enough its last row details the selected pair: the
+ * model's probability with the background (1 - exp(-(F_u.F_v + qeps)),
+ * where the list shows the communities' part alone) and the communities
+ * that make it, each with the probability it alone gives.
  */
 #include "tui.h"
 
 #include <stdio.h>
+
+/* The detail row for pair (u, v), from the snapshot on screen. */
+static void draw_detail(const struct view *v, WINDOW *w, int y, int x, int cw, uint32_t u,
+			uint32_t nv)
+{
+	const struct snapshot *s = v->snap;
+	struct inspect_edge e;
+	if (!s || inspect_edge(&e, v->g, &s->F, &s->agm, s->epsilon, s->delta, u, nv))
+		return;
+	char line[256];
+	int o = snprintf(line, sizeof line, "P %.3g incl. background%s", e.prob,
+			 e.nshare ? ":" : ", no community shared");
+	for (uint32_t i = 0; i < e.nshare && i < 4 && o > 0 && (size_t)o < sizeof line; i++)
+		o += snprintf(line + o, sizeof line - (size_t)o, " #%u %.2g", e.share[i].comm,
+			      e.share[i].alone);
+	if (e.nshare > 4 && o > 0 && (size_t)o < sizeof line)
+		snprintf(line + o, sizeof line - (size_t)o, " +%u", e.nshare - 4);
+	inspect_edge_release(&e);
+	wattron(w, A_DIM);
+	draw_text(w, y, x, line, cw);
+	wattroff(w, A_DIM);
+}
 
 void pane_edges_draw(const struct view *v)
 {
@@ -92,4 +118,9 @@ void pane_edges_draw(const struct view *v)
 		draw_text(w, y, xp + pw - prw, pr, pw);
 		wattroff(w, at);
 	}
+	size_t cur = v->edges.cur;
+	if (getmaxy(w) >= EDGES_DETAIL_MIN_H && cur >= v->page_off && cur < v->page_off + v->npage &&
+	    cur < v->total)
+		draw_detail(v, w, getmaxy(w) - 1, x, cw, v->page[cur - v->page_off].u,
+			    v->page[cur - v->page_off].v);
 }

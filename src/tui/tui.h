@@ -51,7 +51,24 @@ struct tui_config {
 	enum fit_state saved_state;   /* the state recorded in the checkpoint */
 	int start;                    /* start the fitting thread */
 	double t_begin;               /* when the command started (run.json) */
+	const struct select_result *selection; /* -k auto's search (borrowed), or NULL */
 };
+
+struct select_run;
+struct select_result;
+
+/* What the explore command hands over for -k auto (kscreen.c). */
+struct tui_kconfig {
+	const struct graph *g;        /* borrowed */
+	const char *graph_label;      /* shown in the header (borrowed) */
+	struct select_run *run;       /* takes ownership; started */
+};
+
+/* Show the search for k as its points arrive, until it ends or the user
+ * quits. Returns -1 when a k was chosen (*res filled; release with
+ * select_result_release()): go on to the fit; otherwise the exit status
+ * (0 the user quit, 1 failure, 130 a signal). Frees cfg->run. */
+int tui_choose_k(const struct tui_kconfig *cfg, struct select_result *res);
 
 /* Run the explorer until the user quits or a signal arrives. Writes the
  * result folder first when a fit would be lost. Frees cfg->fit. Returns
@@ -87,6 +104,9 @@ struct listpos {
 };
 
 enum edges_mode { EDGES_WEAK = 0, EDGES_MISSING };
+
+/* From this height on, pane 5's last row details the selected pair. */
+#define EDGES_DETAIL_MIN_H 7
 
 /* ---- pager.c: pages of the edge lists, fetched on a worker thread ---- */
 
@@ -171,6 +191,7 @@ struct view {
 	int started;   /* the fitting thread was started in this session */
 	int utf8, colour;
 	double t_begin;
+	const struct select_result *selection; /* -k auto's search, or NULL */
 
 	/* the snapshot on screen */
 	struct snapshot *snap;

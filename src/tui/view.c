@@ -42,6 +42,7 @@ void view_init(struct view *v, const struct tui_config *cfg)
 	v->reopened = cfg->reopened;
 	v->saved_state = cfg->saved_state;
 	v->t_begin = cfg->t_begin;
+	v->selection = cfg->selection;
 	v->node = -1;
 	v->comm_index = -1;
 	v->mem_for = -1;
@@ -157,6 +158,8 @@ int view_page_height(const struct view *v, int pane)
 	int h = v->box[pane].h - 1; /* the title row */
 	if (pane == PANE_COMMS || pane == PANE_EDGES)
 		h -= 1; /* a column header */
+	if (pane == PANE_EDGES && v->box[pane].h >= EDGES_DETAIL_MIN_H)
+		h -= 1; /* the selected pair's probability, community by community */
 	if (pane == PANE_NODE)
 		h -= 3; /* name, figures, column header */
 	return h > 1 ? h : 1;
@@ -574,9 +577,12 @@ int view_write(struct view *v, const char *status)
 		.wall_seconds = util_now() - v->t_begin,
 		.peak_rss_kb = cli_peak_rss_kb(),
 		.status = status ? status : fit_state_name(st),
+		.k_auto = v->selection != NULL,
+		.selection = v->selection,
 	};
 	int rc = -1;
 	if (result_prepare_dir(v->outdir) == 0 &&
+	    (!v->selection || result_write_selection(v->outdir, v->selection) == 0) &&
 	    result_write(v->outdir, v->g, &p, &copy, &meta) == 0)
 		rc = 0;
 	if (rc == 0) {

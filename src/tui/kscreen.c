@@ -1,0 +1,307 @@
+/*
+ * tui/kscreen: the screen of `coterie explore GRAPH -k auto` while the
+ * number of communities is being chosen.
+ *
+ * The search runs on its own thread (select_run_start(), select.c); this
+ * screen poll()s the keyboard, the search's wake-up pipe and the signal
+ * pipe, copies the points scored so far and redraws from them: the
+ * held-out log-likelihood against k as a curve (the x axis spaced by grid
+ * position, so a geometric grid reads as a log scale of k), and a table
+ * of every point with its held-out link AUC, the best marked. It ends when
+ * the search ends (the explorer's normal view then opens on the final fit)
+ * or when the user quits.
+ *
+ * Its own curses session, begun and ended here, so tui_run() starts from
+ * a clean terminal. The one thing a newcomer gets wrong: the search's
+ * thread reports through error(); while curses owns the terminal those
+ * messages are kept (ks_sink) and printed after endwin(), never written
+ * over the screen.
+ */
+#include "tui.h"
+
+#include <errno.h>
+#include <math.h>
+#include <poll.h>
+#include <pthread.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <unistd.h>
+
+#include "../cli/cli.h"
+#include "coterie/graph.h"
+#include "coterie/select.h"
+#include "coterie/util.h"
+
+static pthread_mutex_t ks_lock = PTHREAD_MUTEX_INITIALIZER;
+static char ks_error[512];
+
+static void ks_sink(int level, const char *msg)
+{
+	if (level != UTIL_ERROR)
+		return;
+	pthread_mutex_lock(&ks_lock);
+	snprintf(ks_error, sizeof ks_error, "%s", msg);
+	pthread_mutex_unlock(&ks_lock);
+}
+
+static void ks_die_hook(void)
+{
+	if (!isendwin())
+		endwin();
+	util_set_sink(NULL);
+}
+
+struct kstate {
+	const struct tui_kconfig *cfg;
+	struct select_point pts[SELECT_MAX_GRID];
+	uint32_t npts;
+	uint32_t grid[SELECT_MAX_GRID];
+	uint32_t ngrid;
+	int done;
+	int utf8;
+	double t0;
+};
+
+static void put(int y, int x, const char *s, int maxcols)
+{
+	if (y < 0 || y >= LINES || x >= COLS || maxcols <= 0)
+		return;
+	draw_text(stdscr, y, x, s, maxcols);
+}
+
+/* The curve in the rectangle (y0, x0, h, w) of the screen. */
+static void draw_curve(const struct kstate *k, int y0, int x0, int h, int w)
+{
+	if (h < 2 || w < 8 || k->ngrid == 0)
+		return;
+	double y[SELECT_MAX_GRID], lo = INFINITY, hi = -INFINITY;
+	for (uint32_t i = 0; i < k->ngrid; i++)
+		y[i] = NAN;
+	for (uint32_t i = 0; i < k->npts; i++) {
+		/* points arrive in grid order: point i is grid position i */
+		y[i] = k->pts[i].heldout;
+		lo = y[i] < lo ? y[i] : lo;
+		hi = y[i] > hi ? y[i] : hi;
+	}
+	char lab[32];
+	int lw = 12;
+	if (k->npts > 0) {
+		snprintf(lab, sizeof lab, "%.6g", hi);
+		put(y0, x0, lab, lw);
+		snprintf(lab, sizeof lab, "%.6g", lo);
+		put(y0 + h - 1, x0, lab, lw);
+	}
+	int px = x0 + lw + 1, pw = w - lw - 1;
+	int cw = k->utf8 ? 2 : 1, ch = k->utf8 ? 4 : 3;
+	int dw = pw * cw, dh = h * ch;
+	unsigned char *grid = calloc((size_t)dw * (size_t)dh, 1);
+	if (!grid)
+		return;
+	if (!(hi > lo)) {
+		lo -= 1.0;
+		hi += 1.0;
+	}
+	plot_raster(y, k->ngrid, lo, hi, dw, dh, grid);
+	for (int cy = 0; cy < h; cy++)
+		for (int cx = 0; cx < pw; cx++) {
+			char cell[8];
+			if (k->utf8) {
+				if (plot_braille(grid, dw, dh, cx, cy, cell))
+					mvaddstr(y0 + cy, px + cx, cell);
+			} else {
+				int c = plot_ascii(grid, dw, dh, cx, cy);
+				if (c)
+					mvaddch(y0 + cy, px + cx, (chtype)c);
+			}
+		}
+	free(grid);
+	/* the k of the first and last grid points under the curve */
+	snprintf(lab, sizeof lab, "k %u", k->grid[0]);
+	put(y0 + h, px, lab, pw);
+	snprintf(lab, sizeof lab, "k %u", k->grid[k->ngrid - 1]);
+	int l = (int)strlen(lab);
+	put(y0 + h, px + pw - l, lab, l);
+}
+
+static void draw_all(const struct kstate *k)
+{
+	erase();
+	const struct graph *g = k->cfg->g;
+	char line[512], name[256];
+	util_escape(k->cfg->graph_label, name, sizeof name, !k->utf8);
+	attron(A_BOLD);
+	snprintf(line, sizeof line, "coterie  %s  %u nodes, %llu edges", name, g->n,
+		 (unsigned long long)g->m);
+	put(0, 0, line, COLS);
+	attroff(A_BOLD);
+	uint32_t best = 0;
+	for (uint32_t i = 1; i < k->npts; i++)
+		if (k->pts[i].heldout > k->pts[best].heldout)
+			best = i;
+	snprintf(line, sizeof line,
+		 "Choosing the number of communities by held-out likelihood: %u of %u k "
+		 "scored%s  %.0f s", k->npts, k->ngrid, k->done ? ", done" : "",
+		 util_now() - k->t0);
+	put(1, 0, line, COLS);
+	put(2, 0, "held-out log-likelihood against k (higher is better); the search stops "
+	    "after two k in a row below the best", COLS);
+
+	int rows = LINES - 4;      /* header 3, footer 1 */
+	int table = (int)k->ngrid + 1;
+	int curve_h = rows - table - 2;
+	if (curve_h > 12)
+		curve_h = 12;
+	if (curve_h < 3) {
+		curve_h = rows / 2 - 1;
+		table = rows - curve_h - 2;
+	}
+	draw_curve(k, 4, 0, curve_h, COLS);
+	int ty = 4 + curve_h + 2;
+	attron(A_BOLD);
+	put(ty, 2, "       k   held-out loglik   link AUC   sweeps   seconds", COLS - 2);
+	attroff(A_BOLD);
+	for (uint32_t i = 0; i < k->ngrid && ty + 1 + (int)i < LINES - 1; i++) {
+		if (i >= k->npts) {
+			snprintf(line, sizeof line, "  %6u   %s", k->grid[i],
+				 i == k->npts && !k->done ? "fitting..." : "");
+		} else {
+			const struct select_point *p = &k->pts[i];
+			char auc[16];
+			if (isfinite(p->auc))
+				snprintf(auc, sizeof auc, "%.4f", p->auc);
+			else
+				snprintf(auc, sizeof auc, "-");
+			snprintf(line, sizeof line, "%s %6u   %15.6g   %8s   %6u   %7.1f",
+				 i == best ? (k->utf8 ? "\u25b6" : ">") : " ", p->k, p->heldout, auc,
+				 p->sweeps, p->seconds);
+		}
+		if (i == best && i < k->npts)
+			attron(A_BOLD);
+		put(ty + 1 + (int)i, 2, line, COLS - 2);
+		if (i == best && i < k->npts)
+			attroff(A_BOLD);
+	}
+	if (k->done && k->npts > 0)
+		snprintf(line, sizeof line, "chose k = %u (the highest held-out log-likelihood); "
+			 "the final fit starts now (any key: at once; q quits)", k->pts[best].k);
+	else
+		snprintf(line, sizeof line, "q quits (nothing is saved before the final fit)");
+	attron(A_REVERSE);
+	put(LINES - 1, 0, line, COLS);
+	attroff(A_REVERSE);
+	refresh();
+}
+
+int tui_choose_k(const struct tui_kconfig *cfg, struct select_result *res)
+{
+	memset(res, 0, sizeof *res);
+	if (!isatty(STDIN_FILENO) || !isatty(STDOUT_FILENO)) {
+		error("explore needs a terminal; 'coterie fit -k auto' works without one");
+		select_run_free(cfg->run);
+		return 1;
+	}
+	SCREEN *scr = newterm(NULL, stdout, stdin);
+	if (!scr) {
+		error("cannot start the screen (TERM='%s')", getenv("TERM") ? getenv("TERM") : "");
+		select_run_free(cfg->run);
+		return 1;
+	}
+	set_term(scr);
+	cli_set_die_hook(ks_die_hook);
+	ks_error[0] = '\0';
+	util_set_sink(ks_sink);
+	cbreak();
+	noecho();
+	nonl();
+	keypad(stdscr, TRUE);
+	nodelay(stdscr, TRUE);
+	curs_set(0);
+
+	struct kstate k;
+	memset(&k, 0, sizeof k);
+	k.cfg = cfg;
+	k.utf8 = cli_utf8();
+	k.t0 = util_now();
+	int quit = 0, sig = 0, hangup = 0;
+	double last_draw = 0;
+	for (;;) {
+		k.npts = select_run_points(cfg->run, k.pts, k.grid, &k.ngrid, &k.done);
+		double now = util_now();
+		if (now - last_draw >= 0.2 || k.done) {
+			draw_all(&k);
+			last_draw = now;
+		}
+		if (k.done || quit)
+			break;
+		struct pollfd pfd[3] = {
+			{ STDIN_FILENO, POLLIN, 0 },
+			{ select_run_wake_fd(cfg->run), POLLIN, 0 },
+			{ cli_signal_fd(), POLLIN, 0 },
+		};
+		int pr = poll(pfd, 3, 250);
+		if (cli_signal_caught()) {
+			sig = 1;
+			break;
+		}
+		if (pr < 0 && errno != EINTR)
+			break;
+		if (pfd[1].revents & POLLIN)
+			select_run_drain(cfg->run);
+		if (pfd[0].revents & (POLLHUP | POLLERR | POLLNVAL)) {
+			hangup = 1;
+			break;
+		}
+		int c;
+		while ((c = getch()) != ERR)
+			if (c == 'q' || c == 'Q') {
+				quit = 1;
+				put(LINES - 1, 0, "stopping the search...", COLS);
+				refresh();
+			}
+	}
+	if (quit || sig || hangup)
+		select_run_stop(cfg->run);
+	int rc = select_run_finish(cfg->run, res);
+	if (rc == 0 && !quit && !sig && !hangup) {
+		/* let the choice be read for a moment (COTERIE_KSCREEN_WAIT
+		 * seconds, default 1; the tests wait longer); a key goes on */
+		const char *env = getenv("COTERIE_KSCREEN_WAIT");
+		double wait = env && atof(env) > 0 ? atof(env) : 1.0;
+		double until = util_now() + wait;
+		while (util_now() < until && !cli_signal_caught()) {
+			struct pollfd pfd[2] = { { STDIN_FILENO, POLLIN, 0 },
+						 { cli_signal_fd(), POLLIN, 0 } };
+			int c = poll(pfd, 2, 100) > 0 ? getch() : ERR;
+			if (c == 'q' || c == 'Q')
+				quit = 1; /* q still quits */
+			if (c != ERR)
+				break;
+		}
+		if (cli_signal_caught())
+			sig = 1;
+	}
+	endwin();
+	delscreen(scr);
+	util_set_sink(NULL);
+	cli_set_die_hook(NULL);
+	select_run_free(cfg->run);
+	if (ks_error[0])
+		error("%s", ks_error);
+	if (sig || hangup) {
+		select_result_release(res);
+		if (sig)
+			notice("interrupted by signal %d while choosing k; nothing to save yet",
+			       cli_signal_caught());
+		return EXIT_INTERRUPTED;
+	}
+	if (quit) {
+		select_result_release(res);
+		return 0;
+	}
+	if (rc == 0 && res->npts == 0) {
+		error("no k was scored");
+		return 1;
+	}
+	return rc == 0 ? -1 : 1; /* -1: go on to the fit */
+}

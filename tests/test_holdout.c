@@ -1,0 +1,191 @@
+/*
+ * test_holdout: splitting a graph into training edges and held-out pairs,
+ * and scoring a model on the held-out pairs (log-likelihood, link AUC).
+ *
+ * References: the AUC as the Mann-Whitney statistic, P(edge score >
+ * non-edge score) + P(equal) / 2 (Hanley & McNeil, Radiology 143, 1982),
+ * worked by hand below and cross-checked against a pair-by-pair count;
+ * the held-out log-likelihood from its definition in holdout.h.
+ */
+#include "helpers.h"
+
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "coterie/graph.h"
+#include "coterie/holdout.h"
+#include "coterie/model.h"
+#include "coterie/rng.h"
+
+static struct graph *random_graph(struct rng *r, uint32_t n, double p)
+{
+	uint32_t *pairs = malloc(sizeof *pairs * n * n);
+	uint64_t np = 0;
+	for (uint32_t u = 0; u < n; u++)
+		for (uint32_t v = u + 1; v < n; v++)
+			if (rng_uniform(r) < p) {
+				pairs[2 * np] = u;
+				pairs[2 * np + 1] = v;
+				np++;
+			}
+	struct graph *g = graph_from_pairs(n, pairs, np, NULL);
+	free(pairs);
+	assert_non_null(g);
+	return g;
+}
+
+static void test_auc_counts_ties_as_half(void **state)
+{
+	(void)state;
+	/* by hand: edges {3, 2, 1} against non-edges {2, 0}: (3,2) win,
+	 * (3,0) win, (2,2) tie 1/2, (2,0) win, (1,2) loss, (1,0) win:
+	 * 4.5 of 6 pairs = 0.75 */
+	const double pos[] = { 3, 2, 1 }, neg[] = { 2, 0 };
+	assert_true(fabs(holdout_auc(pos, 3, neg, 2) - 0.75) < 1e-15);
+	/* all scores equal: every pair a tie, 1/2 */
+	const double same[] = { 1, 1, 1 };
+	assert_true(fabs(holdout_auc(same, 3, same, 2) - 0.5) < 1e-15);
+	/* perfectly separated: 1 one way, 0 the other */
+	assert_true(holdout_auc(pos, 3, (const double[]){ 0.5 }, 1) == 1.0);
+	assert_true(holdout_auc((const double[]){ 0.5 }, 1, pos, 3) == 0.0);
+	/* undefined without one side */
+	assert_true(isnan(holdout_auc(pos, 3, neg, 0)));
+	assert_true(isnan(holdout_auc(pos, 0, neg, 2)));
+}
+
+static void test_auc_by_sorting_equals_pair_by_pair_count(void **state)
+{
+	(void)state;
+	struct rng r;
+	rng_init(&r, 5);
+	for (int trial = 0; trial < 50; trial++) {
+		uint64_t np = 1 + rng_below(&r, 40), nn = 1 + rng_below(&r, 40);
+		double pos[40], neg[40];
+		/* few distinct values, so ties are common */
+		for (uint64_t i = 0; i < np; i++)
+			pos[i] = (double)rng_below(&r, 6);
+		for (uint64_t i = 0; i < nn; i++)
+			neg[i] = (double)rng_below(&r, 5);
+		double wins = 0;
+		for (uint64_t i = 0; i < np; i++)
+			for (uint64_t j = 0; j < nn; j++)
+				wins += pos[i] > neg[j] ? 1.0 : pos[i] == neg[j] ? 0.5 : 0.0;
+		assert_true(fabs(holdout_auc(pos, np, neg, nn) - wins / (double)(np * nn)) < 1e-12);
+	}
+}
+
+static void test_split_holds_out_the_share_asked_and_as_many_non_edges(void **state)
+{
+	(void)state;
+	struct rng r;
+	rng_init(&r, 8);
+	for (int trial = 0; trial < 10; trial++) {
+		struct graph *g = random_graph(&r, 30 + (uint32_t)rng_below(&r, 40), 0.2);
+		double share = trial % 2 ? 0.1 : 0.25;
+		struct holdout h;
+		assert_int_equal(holdout_split(&h, g, share, (uint64_t)trial), 0);
+		assert_graph_sane(h.train);
+		assert_graph_sane(h.held);
+		/* exactly round(share * m) edges, and as many non-edges */
+		assert_int_equal(h.nedges, (uint64_t)llround(share * (double)g->m));
+		assert_int_equal(h.nnon, h.nedges);
+		assert_int_equal(h.train->m + h.nedges, g->m);
+		assert_int_equal(h.held->m, h.nedges + h.nnon);
+		for (uint64_t i = 0; i < h.nedges; i++) {
+			uint32_t u = h.edges[2 * i], v = h.edges[2 * i + 1];
+			assert_true(u < v && graph_has_edge(g, u, v) && !graph_has_edge(h.train, u, v));
+			assert_true(graph_has_edge(h.held, u, v));
+		}
+		for (uint64_t i = 0; i < h.nnon; i++) {
+			uint32_t u = h.non[2 * i], v = h.non[2 * i + 1];
+			assert_true(u < v && !graph_has_edge(g, u, v) && graph_has_edge(h.held, u, v));
+		}
+		/* every training edge is an edge of g and not held out */
+		for (uint32_t u = 0; u < g->n; u++)
+			for (uint64_t i = h.train->off[u]; i < h.train->off[u + 1]; i++) {
+				assert_true(graph_has_edge(g, u, h.train->adj[i]));
+				assert_false(graph_has_edge(h.held, u, h.train->adj[i]));
+			}
+		/* the names travel with the training graph */
+		assert_string_equal(h.train->names[g->n - 1], g->names[g->n - 1]);
+		holdout_release(&h);
+		graph_free(g);
+	}
+}
+
+static void test_split_depends_on_the_seed_only(void **state)
+{
+	(void)state;
+	struct rng r;
+	rng_init(&r, 9);
+	struct graph *g = random_graph(&r, 50, 0.2);
+	struct holdout a, b, c;
+	assert_int_equal(holdout_split(&a, g, 0.1, 3), 0);
+	assert_int_equal(holdout_split(&b, g, 0.1, 3), 0);
+	assert_int_equal(holdout_split(&c, g, 0.1, 4), 0);
+	assert_int_equal(a.nedges, b.nedges);
+	assert_memory_equal(a.edges, b.edges, 2 * a.nedges * sizeof *a.edges);
+	assert_memory_equal(a.non, b.non, 2 * a.nnon * sizeof *a.non);
+	assert_true(memcmp(a.edges, c.edges, 2 * a.nedges * sizeof *a.edges) != 0 ||
+		    memcmp(a.non, c.non, 2 * a.nnon * sizeof *a.non) != 0);
+	holdout_release(&a);
+	holdout_release(&b);
+	holdout_release(&c);
+	graph_free(g);
+}
+
+static void test_split_refuses_what_it_cannot_do(void **state)
+{
+	(void)state;
+	const uint32_t one[] = { 0, 1 };
+	struct graph *g = graph_from_pairs(3, one, 1, NULL);
+	struct holdout h;
+	assert_int_equal(holdout_split(&h, g, 0.1, 1), -1); /* one edge: none to spare */
+	graph_free(g);
+	struct rng r;
+	rng_init(&r, 2);
+	g = random_graph(&r, 20, 0.3);
+	assert_int_equal(holdout_split(&h, g, 0.6, 1), -1);
+	assert_int_equal(holdout_split(&h, g, 0.0, 1), -1);
+	graph_free(g);
+}
+
+static void test_score_matches_definition_on_a_small_model(void **state)
+{
+	(void)state;
+	/* by hand: 4 nodes, one community; F = (1, 1, 0.5, 0) in it.
+	 * held-out edge 0-1: x = 1; held-out non-edges 0-2 (x = 0.5) and
+	 * 2-3 (x = 0). epsilon 0.1, qeps = -ln 0.9.
+	 * loglik = log(1 - e^{-(1 + qeps)}) - (0.5 + qeps) - (0 + qeps)
+	 * AUC: the edge (1) beats both non-edges (0.5, 0): 1 */
+	struct holdout h;
+	memset(&h, 0, sizeof h);
+	uint32_t he[] = { 0, 1 }, hn[] = { 0, 2, 2, 3 };
+	h.edges = he;
+	h.nedges = 1;
+	h.non = hn;
+	h.nnon = 2;
+	uint64_t off[] = { 0, 1, 2, 3, 3 };
+	struct fentry e[] = { { 0, 1.0 }, { 0, 1.0 }, { 0, 0.5 } };
+	double colsum[] = { 2.5 };
+	struct fcsr F = { 4, 1, off, e, colsum };
+	double l, auc, qeps = -log(0.9);
+	assert_int_equal(holdout_score(&h, &F, 0.1, &l, &auc), 0);
+	double want = log(1.0 - exp(-(1.0 + qeps))) - (0.5 + qeps) - qeps;
+	assert_true(fabs(l - want) < 1e-12);
+	assert_true(auc == 1.0);
+}
+
+int main(void)
+{
+	const struct CMUnitTest tests[] = {
+		cmocka_unit_test(test_auc_counts_ties_as_half),
+		cmocka_unit_test(test_auc_by_sorting_equals_pair_by_pair_count),
+		cmocka_unit_test(test_split_holds_out_the_share_asked_and_as_many_non_edges),
+		cmocka_unit_test(test_split_depends_on_the_seed_only),
+		cmocka_unit_test(test_split_refuses_what_it_cannot_do),
+		cmocka_unit_test(test_score_matches_definition_on_a_small_model),
+	};
+	return cmocka_run_group_tests(tests, NULL, NULL);
+}
