@@ -524,7 +524,8 @@ static int multi_build(struct multi *mu, const struct cover *cv)
 			}
 		g = h;
 	}
-	qsort(rec, nrec, MW * sizeof *rec, cmp_rec);
+	if (nrec)
+		qsort(rec, nrec, MW * sizeof *rec, cmp_rec);
 	uint64_t nsets = 0, nids = 0;
 	for (uint64_t i = 0; i < nrec; i++)
 		if (i == 0 || cmp_rec(rec + i * MW, rec + (i - 1) * MW)) {
