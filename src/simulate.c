@@ -18,7 +18,8 @@
  *     repeats.
  *  4. Edges: for each community, the pairs of its members are numbered
  *     0 .. s(s-1)/2 - 1 and visited by geometric skips (the gap to the next
- *     drawn pair is Geometric(p_c): floor(log(1-U) / log(1-p_c))), so the
+ *     drawn pair is Geometric(p_c): floor(log(1-U) / log(1-p_c)); Batagelj
+ *     & Brandes, Phys. Rev. E 71, 036113, 2005), so the
  *     cost is the number of pairs drawn, not the number of pairs. The
  *     background draws from all n(n-1)/2 pairs the same way, in 64 fixed
  *     slices of rows. The draws are independent, so a pair is drawn at
@@ -118,6 +119,8 @@ int simulate_params_check(const struct simulate_params *p)
 		return error("the mean degree must be from 0 to the number of nodes less one");
 	if (p->mean_degree > 0.0 && p->p_hi <= 0.0)
 		return error("a mean degree needs link probabilities above 0");
+	if (p->even_degrees && !(p->mean_degree > 0.0))
+		return error("even degrees need a mean degree to aim at");
 	if (!(p->epsilon >= 0.0 && p->epsilon < 1.0))
 		return error("the background probability must be from 0 to below 1");
 	if (p->threads < 1)
@@ -603,6 +606,9 @@ static int plant_probabilities(const struct simulate_params *p, struct simulate 
 	stream(&r, p->seed, S_LINKPROB, 0);
 	for (uint32_t c = 0; c < k; c++)
 		w[c] = p->p_lo == p->p_hi ? p->p_lo : p->p_lo + (p->p_hi - p->p_lo) * rng_uniform(&r);
+	if (p->even_degrees)
+		for (uint32_t c = 0; c < k; c++)
+			w[c] /= (double)cover_size(&s->truth, c) - 1.0; /* sizes >= 2 */
 	struct multi mu;
 	if (multi_build(&mu, &s->truth)) {
 		free(w);
@@ -616,6 +622,8 @@ static int plant_probabilities(const struct simulate_params *p, struct simulate 
 		for (uint32_t c = 0; c < k; c++)
 			if (w[c] > 0.0 && w[c] < wmin)
 				wmin = w[c];
+		/* p_c = min(1, scale w_c) is non-decreasing in the scale, and so is
+		 * the expectation: bisection finds the scale */
 		double hi = 1.0 / wmin, lo = 0.0;
 		for (uint32_t c = 0; c < k; c++)
 			s->p[c] = fmin(1.0, hi * w[c]);
@@ -1180,7 +1188,7 @@ static char *simulate_json(const struct simulate *s, const struct simulate_param
 	char *cmd = meta && meta->command_line ? util_escape_dup(meta->command_line, 1) : NULL;
 	char *pre = util_escape_dup(meta && meta->prefix ? meta->prefix : "", 1);
 	json_t *root = json_pack(
-		"{s:i, s:o, s:s, s:{s:I, s:o, s:I, s:I, s:f, s:f, s:I, s:[f, f], s:o, s:f, s:o, s:I, "
+		"{s:i, s:o, s:s, s:{s:I, s:o, s:I, s:I, s:f, s:f, s:I, s:[f, f], s:o, s:b, s:f, s:o, s:I, "
 		"s:s}, s:{s:I, s:I, s:I, s:I, s:I, s:I, s:I, s:f, s:f, s:f, s:f, s:I, s:I, s:I, "
 		"s:f, s:f}, s:f, s:{s:s, s:s, s:s}}",
 		"format", 1,
@@ -1196,6 +1204,7 @@ static char *simulate_json(const struct simulate *s, const struct simulate_param
 		"max_memberships", (json_int_t)p->max_memberships,
 		"link_prob", p->p_lo, p->p_hi,
 		"mean_degree", p->mean_degree > 0 ? json_real(p->mean_degree) : json_null(),
+		"even_degrees", p->even_degrees ? 1 : 0,
 		"epsilon", p->epsilon,
 		"seed", j_u64(p->seed),
 		"threads", (json_int_t)p->threads,

@@ -450,6 +450,54 @@ static void test_mean_degree_target_is_met_in_expectation(void **state)
 	simulate_release(&s);
 }
 
+static void test_even_degrees_give_small_and_large_communities_alike(void **state)
+{
+	(void)state;
+	/* p_c = scale / (s_c - 1): a member of c expects (s_c - 1) p_c = scale
+	 * neighbours in c whatever its size. With no overlap and no background
+	 * the expected degree is the scale for every covered node, so the
+	 * degrees summed over the members of small communities and over those
+	 * of large ones each match it within 5 sd (variance: every pair inside
+	 * counts twice, 4 P (1 - P) per pair) */
+	struct simulate_params p;
+	simulate_params_default(&p);
+	p.n = 3000;
+	p.size_min = 10;
+	p.size_max = 150;
+	p.overlap = 0.0;
+	p.mean_degree = 6.0;
+	p.even_degrees = 1;
+	p.seed = 17;
+	struct simulate s;
+	sim(&s, &p);
+	uint64_t *deg = calloc(s.n, sizeof *deg);
+	assert_non_null(deg);
+	for (uint64_t i = 0; i < s.m; i++) {
+		deg[s.edges[i] >> 32]++;
+		deg[s.edges[i] & 0xffffffffu]++;
+	}
+	double x[2] = { 0, 0 }, mean[2] = { 0, 0 }, var[2] = { 0, 0 };
+	uint32_t groups[2] = { 0, 0 };
+	for (uint32_t c = 0; c < s.k; c++) {
+		uint32_t z = cover_size(&s.truth, c);
+		assert_true(fabs(s.p[c] * (z - 1) - s.scale) < 1e-9 * s.scale);
+		int big = z > 30;
+		groups[big]++;
+		for (uint64_t i = s.truth.off[c]; i < s.truth.off[c + 1]; i++) {
+			x[big] += (double)deg[s.truth.mem[i]];
+			mean[big] += s.scale;
+		}
+		var[big] += 4.0 * z * (z - 1) / 2.0 * s.p[c] * (1.0 - s.p[c]);
+	}
+	assert_true(groups[0] > 5 && groups[1] > 5);
+	assert_within_5sd(x[0], mean[0], var[0]);
+	assert_within_5sd(x[1], mean[1], var[1]);
+	/* the covered nodes' mean degree is then the scale: n D / 2 edges */
+	assert_true(fabs(s.expected_edges - p.n * p.mean_degree / 2.0) < 1e-6 * s.expected_edges);
+	free(deg);
+	simulate_release(&s);
+}
+
 static void test_unreachable_mean_degree_is_refused(void **state)
 {
 	(void)state;
@@ -494,6 +542,10 @@ static void test_bad_parameters_are_refused(void **state)
 	q = p;
 	q.p_lo = 0.5;
 	q.p_hi = 0.4;
+	assert_int_equal(simulate_params_check(&q), -1);
+	q = p;
+	q.even_degrees = 1;
+	q.mean_degree = 0.0; /* even degrees aim at a mean degree */
 	assert_int_equal(simulate_params_check(&q), -1);
 	q = p;
 	q.epsilon = 1.0;
@@ -660,6 +712,7 @@ int main(void)
 		cmocka_unit_test(test_sizes_follow_the_truncated_power_law),
 		cmocka_unit_test(test_derived_communities_hold_every_membership),
 		cmocka_unit_test(test_mean_degree_target_is_met_in_expectation),
+		cmocka_unit_test(test_even_degrees_give_small_and_large_communities_alike),
 		cmocka_unit_test(test_unreachable_mean_degree_is_refused),
 		cmocka_unit_test(test_bad_parameters_are_refused),
 		cmocka_unit_test(test_same_seed_same_graph_whatever_the_threads),

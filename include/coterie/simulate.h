@@ -33,6 +33,9 @@ struct simulate_params {
 				   * with mean_degree > 0 these are relative weights */
 	double mean_degree;       /* > 0: scale every p_c by one factor so that the
 				   * expected mean degree is this */
+	int even_degrees;         /* 1: weights also divided by (size - 1), so each
+				   * membership brings the same expected number of
+				   * neighbours; needs mean_degree > 0 */
 	double epsilon;           /* background link probability, [0, 1) */
 	uint64_t seed;
 	unsigned threads;         /* >= 1; the result does not depend on it */

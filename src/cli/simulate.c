@@ -39,6 +39,9 @@ static void simulate_usage(FILE *out)
 		"      --mean-degree D     scale every p_c by one factor so that the expected\n"
 		"                          mean degree is D (default 10); 0 keeps --link-prob\n"
 		"                          as given\n"
+		"      --even-degrees      also divide each p_c by (size - 1), so every\n"
+		"                          membership brings as many neighbours (needs\n"
+		"                          --mean-degree)\n"
 		"      --epsilon X         background link probability (default 0)\n"
 		"      --prefix STR        node names STR0, STR1, ... (default: 0, 1, ...)\n"
 		"  -o, --output DIR        folder to write (made if missing; required)\n"
@@ -90,6 +93,7 @@ enum {
 	OPT_MEAN_DEGREE,
 	OPT_PREFIX,
 	OPT_FORCE,
+	OPT_EVEN_DEGREES,
 };
 
 int cmd_simulate(int argc, char **argv)
@@ -103,6 +107,7 @@ int cmd_simulate(int argc, char **argv)
 		{ "max-memberships", required_argument, NULL, OPT_MAX_MEMBERSHIPS },
 		{ "link-prob", required_argument, NULL, OPT_LINK_PROB },
 		{ "mean-degree", required_argument, NULL, OPT_MEAN_DEGREE },
+		{ "even-degrees", no_argument, NULL, OPT_EVEN_DEGREES },
 		{ "epsilon", required_argument, NULL, CLI_OPT_EPSILON },
 		{ "prefix", required_argument, NULL, OPT_PREFIX },
 		{ "output", required_argument, NULL, 'o' },
@@ -146,6 +151,7 @@ int cmd_simulate(int argc, char **argv)
 			p.mean_degree = cli_double("--mean-degree", optarg, 0.0, 2e9);
 			have_degree = 1;
 			break;
+		case OPT_EVEN_DEGREES: p.even_degrees = 1; break;
 		case CLI_OPT_EPSILON: p.epsilon = cli_double("--epsilon", optarg, 0.0, 0.999); break;
 		case OPT_PREFIX: prefix = optarg; break;
 		case 'o': out = optarg; break;
@@ -168,7 +174,7 @@ int cmd_simulate(int argc, char **argv)
 	if (!out)
 		die(EXIT_USAGE, "simulate needs an output folder: -o DIR");
 	/* --link-prob alone means the p_c as given; with --mean-degree, weights */
-	if (have_link && !have_degree)
+	if (have_link && !have_degree && !p.even_degrees)
 		p.mean_degree = 0.0;
 	if (!have_sizes) {
 		if (p.size_max > p.n)

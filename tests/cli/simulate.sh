@@ -105,6 +105,17 @@ k=$(json_get "$tmp/e/simulate.json" realised.communities)
 check "coterie fit reads edges.tsv" [ $? -eq 0 ]
 check "... with every edge" [ "$(json_get "$tmp/e/fit/run.json" graph.edges)" = \
 	"$(json_get "$tmp/e/simulate.json" realised.edges)" ]
+"$BIN" simulate -n 2000 --sizes 10:200 --mean-degree 8 --even-degrees --seed 4 -q -o "$tmp/even" 2>/dev/null
+check "--even-degrees: exit 0" [ $? -eq 0 ]
+check "... recorded in simulate.json" [ "$(json_get "$tmp/even/simulate.json" parameters.even_degrees)" = true ]
+# p_c (size - 1) is one number for every community (the scale)
+check "... p_c times (size - 1) is the same for every community" "$PY" -c "
+import sys
+r = [l.split('	') for l in open('$tmp/even/planted.tsv')][1:]
+v = [float(p) * (int(s) - 1) for _, s, p in r]
+sys.exit(0 if max(v) - min(v) <= 1e-9 * max(v) else 1)"
+"$BIN" simulate -n 100 --even-degrees --mean-degree 0 -o "$tmp/x" 2>/dev/null
+check "--even-degrees without a mean degree: exit 2" [ $? -eq 2 ]
 check "--link-prob alone keeps p_c as given" [ "$(json_get "$tmp/e/simulate.json" realised.p_max)" = 0.3 ]
 
 # bad usage: exit 2, message without raw control bytes
