@@ -265,7 +265,8 @@ static int plant_cover(const struct simulate_params *p, struct simulate *s)
 	int rc = -1;
 	uint8_t *m = util_calloc(n, 1);
 	uint32_t *perm = util_malloc(n, sizeof *perm);
-	uint32_t *sizes = NULL, *stamp = NULL, *slot = NULL;
+	uint32_t *sizes = NULL, *stamp = NULL, *slot = NULL, *dealt = NULL;
+	uint64_t *doff = NULL;
 	uint32_t k = 0;
 	if (!m || !perm)
 		goto out;
@@ -321,6 +322,16 @@ static int plant_cover(const struct simulate_params *p, struct simulate *s)
 		slot[i - 1] = slot[j];
 		slot[j] = x;
 	}
+	/* the communities dealt so far, per node: dealt[doff[u] .. + ndealt[u]),
+	 * at most m[u] of them (a node keeps its number of slots) */
+	doff = util_malloc((size_t)n + 1, sizeof *doff);
+	dealt = util_malloc(want ? want : 1, sizeof *dealt);
+	if (!doff || !dealt)
+		goto out;
+	doff[0] = 0;
+	for (uint32_t u = 0; u < n; u++)
+		doff[u + 1] = doff[u] + m[u];
+	memset(m, 0, n); /* from here m[u] counts u's dealt communities */
 	memset(stamp, 0xff, (size_t)n * sizeof *stamp);
 	for (uint32_t c = 0; c < k; c++) {
 		uint64_t a = cv->off[c], b = cv->off[c + 1];
@@ -343,13 +354,17 @@ static int plant_cover(const struct simulate_params *p, struct simulate *s)
 				uint32_t d = chunk_of(cv->off, k, j);
 				if (d < c) {
 					int has = 0;
-					for (uint64_t x = cv->off[d]; x < cv->off[d + 1]; x++)
-						if (slot[x] == u) {
-							has = 1;
-							break;
-						}
+					for (uint32_t x = 0; x < m[u] && !has; x++)
+						has = dealt[doff[u] + x] == d;
 					if (has)
 						continue;
+					for (uint32_t x = 0; x < m[v]; x++) /* v leaves d ... */
+						if (dealt[doff[v] + x] == d) {
+							dealt[doff[v] + x] = dealt[doff[v] + m[v] - 1];
+							m[v]--;
+							break;
+						}
+					dealt[doff[u] + m[u]++] = d; /* ... and u joins it */
 				}
 				slot[j] = u;
 				slot[i] = v;
@@ -362,6 +377,10 @@ static int plant_cover(const struct simulate_params *p, struct simulate *s)
 				goto out;
 			}
 		}
+		for (uint64_t i = a; i < b; i++) {
+			uint32_t u = slot[i];
+			dealt[doff[u] + m[u]++] = c;
+		}
 	}
 	for (uint32_t c = 0; c < k; c++) {
 		qsort(slot + cv->off[c], sizes[c], sizeof *slot, cmp_u32);
@@ -373,7 +392,7 @@ static int plant_cover(const struct simulate_params *p, struct simulate *s)
 	cv->mem = slot;
 	slot = NULL;
 	s->overlapping = s->uncovered = 0;
-	for (uint32_t u = 0; u < n; u++) {
+	for (uint32_t u = 0; u < n; u++) { /* m[u]: u's communities, all dealt */
 		s->overlapping += m[u] >= 2;
 		s->uncovered += m[u] == 0;
 	}
@@ -385,15 +404,28 @@ out:
 	free(sizes);
 	free(stamp);
 	free(slot);
+	free(dealt);
+	free(doff);
 	return rc;
 }
 
 /* ------------------------------------------------------------------ */
 /* Exact expectation */
 
-/* The pairs sharing two or more communities, grouped by the set shared:
+/*
+ * The pairs sharing two or more communities, grouped by the set shared:
  * nsets sets; set i is ids[off[i] .. off[i+1]) (increasing), shared by
- * count[i] pairs. */
+ * count[i] pairs.
+ *
+ * Built from node types: the nodes in two or more communities, grouped by
+ * their whole set of communities (a type, held by cnt nodes). Two nodes of
+ * types A and B share A & B, and there are cnt_A cnt_B such pairs
+ * (C(cnt_A, 2) when A = B). Only type pairs that share two communities or
+ * more matter: they are found through the groups of types holding both c
+ * and d, for each pair c < d, and a shared set is counted once, in the
+ * group of its first two communities. With sparse overlap the types are
+ * nodes and the groups tiny; with dense overlap the types are few.
+ */
 struct multi {
 	uint64_t nsets;
 	uint64_t *off;
@@ -412,8 +444,25 @@ static void multi_release(struct multi *mu)
 	memset(mu, 0, sizeof *mu);
 }
 
+/* Node lists for the type sort (qsort has no context argument). */
+static const uint64_t *sort_noff;
+static const uint32_t *sort_ncom;
+
+static int cmp_by_set(const void *a, const void *b)
+{
+	uint32_t u = *(const uint32_t *)a, v = *(const uint32_t *)b;
+	uint64_t i = sort_noff[u], j = sort_noff[v];
+	for (; i < sort_noff[u + 1] && j < sort_noff[v + 1]; i++, j++)
+		if (sort_ncom[i] != sort_ncom[j])
+			return sort_ncom[i] < sort_ncom[j] ? -1 : 1;
+	uint64_t lu = sort_noff[u + 1] - sort_noff[u], lv = sort_noff[v + 1] - sort_noff[v];
+	if (lu != lv)
+		return lu < lv ? -1 : 1;
+	return (u > v) - (u < v);
+}
+
 struct trip {
-	uint32_t c, d, u;
+	uint32_t c, d, t;
 };
 
 static int cmp_trip(const void *a, const void *b)
@@ -423,20 +472,48 @@ static int cmp_trip(const void *a, const void *b)
 		return x->c < y->c ? -1 : 1;
 	if (x->d != y->d)
 		return x->d < y->d ? -1 : 1;
-	return (x->u > y->u) - (x->u < y->u);
+	return (x->t > y->t) - (x->t < y->t);
 }
 
-/* Records of width W = 1 + SIMULATE_MAX_MEMBERSHIPS: length, then ids
- * padded with UINT32_MAX. */
-#define MW (1 + SIMULATE_MAX_MEMBERSHIPS)
+/* A record: the pair count (two words, low first), the set's length, then
+ * the ids padded with UINT32_MAX; RW words. Sorted by set. */
+#define RW (3 + SIMULATE_MAX_MEMBERSHIPS)
 
 static int cmp_rec(const void *a, const void *b)
 {
 	const uint32_t *x = a, *y = b;
-	for (unsigned i = 0; i < MW; i++)
+	for (unsigned i = 2; i < RW; i++)
 		if (x[i] != y[i])
 			return x[i] < y[i] ? -1 : 1;
 	return 0;
+}
+
+static uint64_t rec_count(const uint32_t *r)
+{
+	return (uint64_t)r[0] | (uint64_t)r[1] << 32;
+}
+
+/* Sort rec[0..n) and merge equal sets (adding counts); returns the new n. */
+static uint64_t rec_compress(uint32_t *rec, uint64_t n)
+{
+	if (n < 2)
+		return n;
+	qsort(rec, n, RW * sizeof *rec, cmp_rec);
+	uint64_t m = 0;
+	for (uint64_t i = 0; i < n; i++) {
+		uint32_t *r = rec + i * RW;
+		if (m && !cmp_rec(rec + (m - 1) * RW, r)) {
+			uint32_t *q = rec + (m - 1) * RW;
+			uint64_t c = rec_count(q) + rec_count(r);
+			q[0] = (uint32_t)c;
+			q[1] = (uint32_t)(c >> 32);
+		} else {
+			if (m != i)
+				memcpy(rec + m * RW, r, RW * sizeof *rec);
+			m++;
+		}
+	}
+	return m;
 }
 
 static int multi_build(struct multi *mu, const struct cover *cv)
@@ -447,9 +524,9 @@ static int multi_build(struct multi *mu, const struct cover *cv)
 	int rc = -1;
 	uint64_t *noff = util_calloc((size_t)n + 1, sizeof *noff);
 	uint32_t *ncom = util_malloc(nm ? nm : 1, sizeof *ncom);
-	uint64_t *fill = NULL;
+	uint64_t *fill = NULL, *tcnt = NULL;
+	uint32_t *over = NULL, *trep = NULL, *rec = NULL;
 	struct trip *tr = NULL;
-	uint32_t *rec = NULL;
 	mu->k = k;
 	mu->sizes2 = util_malloc(k ? k : 1, sizeof *mu->sizes2);
 	if (!noff || !ncom || !mu->sizes2)
@@ -465,10 +542,12 @@ static int multi_build(struct multi *mu, const struct cover *cv)
 	if (!(fill = util_malloc((size_t)n + 1, sizeof *fill)))
 		goto out;
 	memcpy(fill, noff, ((size_t)n + 1) * sizeof *fill);
-	uint64_t ntrip = 0;
 	for (uint32_t c = 0; c < k; c++)
 		for (uint64_t i = cv->off[c]; i < cv->off[c + 1]; i++)
 			ncom[fill[cv->mem[i]]++] = c; /* increasing c per node */
+
+	/* the types: overlapping nodes sorted by their sets */
+	uint32_t nover = 0;
 	for (uint32_t u = 0; u < n; u++) {
 		uint64_t d = noff[u + 1] - noff[u];
 		if (d > SIMULATE_MAX_MEMBERSHIPS) {
@@ -476,25 +555,74 @@ static int multi_build(struct multi *mu, const struct cover *cv)
 			      SIMULATE_MAX_MEMBERSHIPS);
 			goto out;
 		}
-		ntrip += d * (d - (d > 0)) / 2;
+		nover += d >= 2;
+	}
+	over = util_malloc(nover ? nover : 1, sizeof *over);
+	trep = util_malloc(nover ? nover : 1, sizeof *trep);
+	tcnt = util_malloc(nover ? nover : 1, sizeof *tcnt);
+	if (!over || !trep || !tcnt)
+		goto out;
+	nover = 0;
+	for (uint32_t u = 0; u < n; u++)
+		if (noff[u + 1] - noff[u] >= 2)
+			over[nover++] = u;
+	sort_noff = noff;
+	sort_ncom = ncom;
+	if (nover > 1)
+		qsort(over, nover, sizeof *over, cmp_by_set);
+	uint32_t ntype = 0;
+	for (uint32_t i = 0; i < nover; i++) {
+		uint32_t u = over[i];
+		int same = 0;
+		if (ntype) {
+			uint32_t r = trep[ntype - 1];
+			uint64_t lu = noff[u + 1] - noff[u], lr = noff[r + 1] - noff[r];
+			same = lu == lr && !memcmp(ncom + noff[u], ncom + noff[r], lu * sizeof *ncom);
+		}
+		if (same) {
+			tcnt[ntype - 1]++;
+		} else {
+			trep[ntype] = u; /* a node of the type stands for its set */
+			tcnt[ntype++] = 1;
+		}
+	}
+	uint64_t ntrip = 0;
+	for (uint32_t t = 0; t < ntype; t++) {
+		uint64_t d = noff[trep[t] + 1] - noff[trep[t]];
+		ntrip += d * (d - 1) / 2;
 	}
 	tr = util_malloc(ntrip ? ntrip : 1, sizeof *tr);
 	if (!tr)
 		goto out;
-	uint64_t t = 0;
-	for (uint32_t u = 0; u < n; u++)
+	uint64_t x = 0;
+	for (uint32_t t = 0; t < ntype; t++) {
+		uint32_t u = trep[t];
 		for (uint64_t a = noff[u]; a < noff[u + 1]; a++)
 			for (uint64_t b = a + 1; b < noff[u + 1]; b++)
-				tr[t++] = (struct trip){ ncom[a], ncom[b], u };
-	qsort(tr, ntrip, sizeof *tr, cmp_trip);
+				tr[x++] = (struct trip){ ncom[a], ncom[b], t };
+	}
+	if (ntrip > 1)
+		qsort(tr, ntrip, sizeof *tr, cmp_trip);
+	double bound = 0.0; /* type pairs visited below */
+	for (uint64_t g = 0, h; g < ntrip; g = h) {
+		for (h = g; h < ntrip && tr[h].c == tr[g].c && tr[h].d == tr[g].d; h++)
+			;
+		bound += (double)(h - g) * (double)(h - g + 1) / 2.0;
+	}
+	if (bound > SIMULATE_MAX_MULTI_PAIRS) {
+		error("too many kinds of overlap to count exactly (%.3g pairs of membership sets "
+		      "share two communities or more; at most %.3g): lower the overlap or the "
+		      "memberships per node", bound, SIMULATE_MAX_MULTI_PAIRS);
+		goto out;
+	}
 	uint64_t nrec = 0, rcap = 0;
 	for (uint64_t g = 0; g < ntrip;) {
 		uint64_t h = g;
 		while (h < ntrip && tr[h].c == tr[g].c && tr[h].d == tr[g].d)
 			h++;
 		for (uint64_t i = g; i < h; i++)
-			for (uint64_t j = i + 1; j < h; j++) {
-				uint32_t u = tr[i].u, v = tr[j].u;
+			for (uint64_t j = i; j < h; j++) {
+				uint32_t ta = tr[i].t, tb = tr[j].t, u = trep[ta], v = trep[tb];
 				uint32_t set[SIMULATE_MAX_MEMBERSHIPS], ns = 0;
 				uint64_t a = noff[u], b = noff[v];
 				while (a < noff[u + 1] && b < noff[v + 1]) {
@@ -508,54 +636,60 @@ static int multi_build(struct multi *mu, const struct cover *cv)
 						b++;
 					}
 				}
-				/* listed once: in the group of the set's first two */
+				/* counted once: in the group of the set's first two */
 				if (set[0] != tr[g].c || set[1] != tr[g].d)
 					continue;
+				uint64_t pairs = i == j ? tcnt[ta] * (tcnt[ta] - 1) / 2 : tcnt[ta] * tcnt[tb];
+				if (!pairs)
+					continue;
 				if (nrec == rcap) {
-					uint64_t nc = rcap ? rcap * 2 : 1024;
-					uint32_t *x = util_realloc(rec, nc, MW * sizeof *rec);
-					if (!x)
-						goto out;
-					rec = x;
-					rcap = nc;
+					uint64_t before = nrec;
+					if (nrec >= (1u << 20))
+						nrec = rec_compress(rec, nrec);
+					if (nrec > before / 2 || !rcap) { /* compressing did not free enough */
+						uint64_t nc = rcap ? rcap * 2 : 1024;
+						uint32_t *y = util_realloc(rec, nc, RW * sizeof *rec);
+						if (!y)
+							goto out;
+						rec = y;
+						rcap = nc;
+					}
 				}
-				uint32_t *r = rec + nrec * MW;
-				r[0] = ns;
+				uint32_t *r = rec + nrec * RW;
+				r[0] = (uint32_t)pairs;
+				r[1] = (uint32_t)(pairs >> 32);
+				r[2] = ns;
 				for (unsigned z = 0; z < SIMULATE_MAX_MEMBERSHIPS; z++)
-					r[1 + z] = z < ns ? set[z] : UINT32_MAX;
+					r[3 + z] = z < ns ? set[z] : UINT32_MAX;
 				nrec++;
 			}
 		g = h;
 	}
-	if (nrec)
-		qsort(rec, nrec, MW * sizeof *rec, cmp_rec);
-	uint64_t nsets = 0, nids = 0;
+	nrec = rec_compress(rec, nrec);
+	uint64_t nids = 0;
 	for (uint64_t i = 0; i < nrec; i++)
-		if (i == 0 || cmp_rec(rec + i * MW, rec + (i - 1) * MW)) {
-			nsets++;
-			nids += rec[i * MW];
-		}
-	mu->off = util_malloc(nsets + 1, sizeof *mu->off);
+		nids += rec[i * RW + 2];
+	mu->off = util_malloc(nrec + 1, sizeof *mu->off);
 	mu->ids = util_malloc(nids ? nids : 1, sizeof *mu->ids);
-	mu->count = util_malloc(nsets ? nsets : 1, sizeof *mu->count);
+	mu->count = util_malloc(nrec ? nrec : 1, sizeof *mu->count);
 	if (!mu->off || !mu->ids || !mu->count)
 		goto out;
 	mu->off[0] = 0;
 	for (uint64_t i = 0; i < nrec; i++) {
-		const uint32_t *r = rec + i * MW;
-		if (i == 0 || cmp_rec(r, rec + (i - 1) * MW)) {
-			uint64_t o = mu->off[mu->nsets];
-			memcpy(mu->ids + o, r + 1, r[0] * sizeof *mu->ids);
-			mu->count[mu->nsets] = 0;
-			mu->off[++mu->nsets] = o + r[0];
-		}
-		mu->count[mu->nsets - 1]++;
+		const uint32_t *r = rec + i * RW;
+		memcpy(mu->ids + mu->off[i], r + 3, r[2] * sizeof *mu->ids);
+		mu->off[i + 1] = mu->off[i] + r[2];
+		mu->count[i] = rec_count(r);
 	}
+	mu->nsets = nrec;
 	rc = 0;
 out:
 	free(noff);
 	free(ncom);
 	free(fill);
+	free(over);
+	free(trep);
+	free(tcnt);
 	free(tr);
 	free(rec);
 	if (rc)
@@ -652,6 +786,10 @@ static int plant_probabilities(const struct simulate_params *p, struct simulate 
 	for (uint32_t c = 0; c < k; c++)
 		s->p[c] = fmin(1.0, s->scale * w[c]);
 	s->expected_edges = multi_expected(&mu, p->n, s->p, p->epsilon);
+	if (!rc && s->expected_edges > SIMULATE_MAX_EDGES)
+		rc = error("the model expects %.4g edges; at most %.3g can be drawn (lower the "
+			   "link probabilities, the mean degree or epsilon)", s->expected_edges,
+			   SIMULATE_MAX_EDGES);
 	multi_release(&mu);
 	free(w);
 	return rc;

@@ -176,6 +176,51 @@ static void test_expected_edges_match_every_pair_summed(void **state)
 	simulate_release(&s);
 }
 
+static void test_dense_overlap_is_counted_exactly(void **state)
+{
+	(void)state;
+	/* every node in 2 to 5 of a few large communities: most pairs share
+	 * two or more, in many different sets */
+	struct simulate_params p;
+	simulate_params_default(&p);
+	p.n = 400;
+	p.size_min = 100;
+	p.size_max = 250;
+	p.overlap = 1.0;
+	p.max_memberships = 5;
+	p.p_lo = 0.01;
+	p.p_hi = 0.2;
+	p.mean_degree = 0.0;
+	p.epsilon = 0.01;
+	p.seed = 2;
+	struct simulate s;
+	sim(&s, &p);
+	struct memb mb;
+	memb_build(&mb, &s.truth);
+	double mean = 0.0, var = 0.0;
+	uint64_t multi = 0;
+	for (uint32_t u = 0; u < s.n; u++)
+		for (uint32_t v = u + 1; v < s.n; v++) {
+			double q = pair_prob(&mb, s.p, p.epsilon, u, v);
+			mean += q;
+			var += q * (1.0 - q);
+			uint64_t a = mb.off[u], b = mb.off[v], shared = 0;
+			while (a < mb.off[u + 1] && b < mb.off[v + 1]) {
+				uint32_t x = mb.lists[a], y = mb.lists[b];
+				shared += x == y;
+				a += x <= y;
+				b += y <= x;
+			}
+			multi += shared >= 2;
+		}
+	assert_true(multi > 10000); /* the case this test is about */
+	/* the definition summed over every pair; rounding only */
+	assert_true(fabs(s.expected_edges - mean) <= 1e-9 * mean);
+	assert_within_5sd((double)s.m, mean, var);
+	memb_free(&mb);
+	simulate_release(&s);
+}
+
 static void test_edge_count_within_five_sd_of_the_model(void **state)
 {
 	(void)state;
@@ -515,6 +560,13 @@ static void test_unreachable_mean_degree_is_refused(void **state)
 	p.mean_degree = 5.0;
 	p.epsilon = 0.05;
 	assert_int_equal(simulate_run(&p, &s), -1);
+	/* too many edges to hold: 100000 nodes, background 0.5 alone expects
+	 * 0.5 * 100000 * 99999 / 2 ~ 2.5e9 > SIMULATE_MAX_EDGES (1e9) */
+	simulate_params_default(&p);
+	p.n = 100000;
+	p.mean_degree = 0.0;
+	p.epsilon = 0.5;
+	assert_int_equal(simulate_run(&p, &s), -1);
 }
 
 static void test_bad_parameters_are_refused(void **state)
@@ -704,6 +756,7 @@ int main(void)
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_expected_edges_match_hand_computed_cover),
 		cmocka_unit_test(test_expected_edges_match_every_pair_summed),
+		cmocka_unit_test(test_dense_overlap_is_counted_exactly),
 		cmocka_unit_test(test_edge_count_within_five_sd_of_the_model),
 		cmocka_unit_test(test_internal_edges_of_each_community_within_five_sd),
 		cmocka_unit_test(test_degrees_by_membership_count_within_five_sd),

@@ -19,6 +19,8 @@
 
 #define SIMULATE_MAX_NODES 2000000000u  /* node ids and names stay below 2^31 */
 #define SIMULATE_MAX_MEMBERSHIPS 16u
+#define SIMULATE_MAX_EDGES 1e9        /* expected edges (8 bytes each, twice, to sort) */
+#define SIMULATE_MAX_MULTI_PAIRS 2e8  /* pairs of nodes sharing two communities or more */
 
 struct simulate_params {
 	uint32_t n;               /* nodes, >= 2 */
@@ -82,7 +84,9 @@ struct simulate {
  * Sample a planted graph with parameters p (borrowed) into out (whose old
  * contents are not freed). The same parameters give the same graph,
  * whatever p->threads is. Returns 0, or -1 with a message (bad parameters,
- * memory, a mean degree out of reach). Release with simulate_release().
+ * memory, a mean degree out of reach, more than SIMULATE_MAX_EDGES edges
+ * expected, more than SIMULATE_MAX_MULTI_PAIRS pairs sharing two or more
+ * communities). Release with simulate_release().
  */
 int simulate_run(const struct simulate_params *p, struct simulate *out);
 void simulate_release(struct simulate *s);
