@@ -3,7 +3,9 @@
  *
  * Parses the options into struct simulate_params, refuses a folder that
  * already holds a planted graph (unless --force), samples, writes, and
- * says what it made. All the work is in src/simulate.c.
+ * says what it made. All the work is in src/simulate.c. An interrupt
+ * while sampling ends the process at once (nothing is written yet); one
+ * while writing is held until the files are in place, then exits 130.
  */
 #include <getopt.h>
 #include <inttypes.h>
@@ -202,6 +204,12 @@ int cmd_simulate(int argc, char **argv)
 		return 1;
 	double t1 = util_now();
 	struct simulate_meta meta = { cli_command_line(), prefix, t1 - t0 };
+	/* an interrupt while sampling ends the process (nothing is written yet);
+	 * while writing it waits, so no temporary file is left behind */
+	if (cli_signals_install()) {
+		simulate_release(&s);
+		return 1;
+	}
 	int rc = simulate_write(out, &s, &p, &meta);
 	if (!rc && !quiet) {
 		char buf[512];
@@ -217,5 +225,11 @@ int cmd_simulate(int argc, char **argv)
 			       SIMULATE_EDGES);
 	}
 	simulate_release(&s);
-	return rc ? 1 : 0;
+	if (rc)
+		return 1;
+	if (cli_signal_caught()) {
+		notice("interrupted; the planted graph was written first");
+		return EXIT_INTERRUPTED;
+	}
+	return 0;
 }
