@@ -15,6 +15,7 @@ static const struct {
 	{ "fit", cmd_fit, "fit overlapping communities to a graph and write a result folder" },
 	{ "show", cmd_show, "print a result's communities, a node or weak edges, as text or JSON" },
 	{ "explore", cmd_explore, "fit in the background and browse the communities, or browse a result" },
+	{ "simulate", cmd_simulate, "sample a graph with planted overlapping communities (an AGM)" },
 };
 
 static void usage(FILE *out)

@@ -1,0 +1,133 @@
+/*
+ * simulate: sample a graph from a planted Affiliation Graph Model (Yang &
+ * Leskovec, "Community-affiliation graph model for overlapping network
+ * community detection", ICDM 2012). Two nodes u, v sharing the set S of
+ * communities are linked, independently of every other pair, with
+ *   P(u, v) = 1 - (1 - epsilon) * prod_{c in S} (1 - p_c).
+ *
+ * The planted cover: a share of the nodes (--overlap) is in 2 .. max
+ * memberships (uniformly), the rest in one; community sizes are drawn from
+ * a truncated power law; the membership slots are dealt to the communities
+ * at random, so no node is twice in one community. See simulate.c.
+ */
+#ifndef COTERIE_SIMULATE_H
+#define COTERIE_SIMULATE_H
+
+#include <stdint.h>
+
+#include "cover.h"
+
+#define SIMULATE_MAX_NODES 2000000000u  /* node ids and names stay below 2^31 */
+#define SIMULATE_MAX_MEMBERSHIPS 16u
+#define SIMULATE_MAX_EDGES 1e9        /* expected edges (8 bytes each, twice, to sort) */
+#define SIMULATE_MAX_MULTI_PAIRS 2e8  /* pairs of nodes sharing two communities or more */
+
+struct simulate_params {
+	uint32_t n;               /* nodes, >= 2 */
+	uint32_t k;               /* communities; 0: as many as the memberships fill */
+	uint32_t size_min;        /* community sizes, 2 <= size_min <= size_max <= n */
+	uint32_t size_max;
+	double size_exponent;     /* sizes floor(X), X with density ~ x^-exponent on
+				   * [size_min, size_max + 1); >= 0 */
+	double overlap;           /* share of nodes in two or more communities, [0, 1] */
+	uint32_t max_memberships; /* those nodes have 2 .. this many, uniformly */
+	double p_lo, p_hi;        /* p_c uniform in [p_lo, p_hi] (0 <= lo <= hi <= 1);
+				   * with mean_degree > 0 these are relative weights */
+	double mean_degree;       /* > 0: scale every p_c by one factor so that the
+				   * expected mean degree is this */
+	int even_degrees;         /* 1: weights also divided by (size - 1), so each
+				   * membership brings the same expected number of
+				   * neighbours; needs mean_degree > 0 */
+	double epsilon;           /* background link probability, [0, 1) */
+	uint64_t seed;
+	unsigned threads;         /* >= 1; the result does not depend on it */
+};
+
+/* Defaults: 1000 nodes, k derived, sizes 10 .. 100 with exponent 2,
+ * overlap 0.1 with at most 2 memberships, p_c 1 scaled to mean degree 10,
+ * epsilon 0, seed 1, 1 thread. */
+void simulate_params_default(struct simulate_params *p);
+
+/* Check the parameters (ranges, sizes against n, enough room for the
+ * memberships). Returns 0 or -1 with a message naming the problem. */
+int simulate_params_check(const struct simulate_params *p);
+
+/*
+ * A sampled planted graph.
+ * Rules (tests: assert_simulate_sane() in tests/test_simulate.c):
+ *   - truth is a cover of n nodes and k communities (cover.h rules), every
+ *     community with at least 2 members and no node twice;
+ *   - p[c] in [0, 1] for every community;
+ *   - edges[0 .. m) are keys (u << 32) | v with u < v < n, strictly
+ *     increasing (so sorted by u, then v, with no duplicate);
+ *   - drawn_communities + drawn_background == m + duplicates.
+ */
+struct simulate {
+	uint32_t n, k;
+	struct cover truth;       /* the planted memberships; owned */
+	double *p;                /* k link probabilities; owned */
+	double epsilon;
+	double scale;             /* the factor applied to the weights of p_c
+				   * (1 without a mean degree target) */
+	uint64_t m;               /* edges */
+	uint64_t *edges;          /* m keys, see above; owned */
+	uint64_t drawn_communities; /* pairs drawn by the communities ... */
+	uint64_t drawn_background;  /* ... and by the background, before merging */
+	uint64_t duplicates;        /* pairs drawn more than once */
+	uint64_t overlapping;       /* nodes in two or more communities */
+	uint64_t uncovered;         /* nodes in none */
+	uint64_t isolated;          /* nodes with no edge (absent from edges.tsv) */
+	double expected_edges;      /* sum over all pairs of P(u, v), exactly */
+};
+
+/*
+ * Sample a planted graph with parameters p (borrowed) into out (whose old
+ * contents are not freed). The same parameters give the same graph,
+ * whatever p->threads is. Returns 0, or -1 with a message (bad parameters,
+ * memory, a mean degree out of reach, more than SIMULATE_MAX_EDGES edges
+ * expected, more than SIMULATE_MAX_MULTI_PAIRS pairs sharing two or more
+ * communities). Release with simulate_release().
+ */
+int simulate_run(const struct simulate_params *p, struct simulate *out);
+void simulate_release(struct simulate *s);
+
+/*
+ * The exact expected number of edges of the AGM on cover c (borrowed) with
+ * link probabilities p (borrowed, c->k of them) and background epsilon:
+ * the sum over node pairs of P(u, v), computed without visiting every pair
+ * (pairs in one community are counted per community; only the pairs that
+ * share two or more are listed). Returns -1.0 with a message on failure.
+ */
+double simulate_expected_edges(const struct cover *c, const double *p, double epsilon);
+
+/* What simulate.json records beyond the parameters. All borrowed. */
+struct simulate_meta {
+	const char *command_line; /* may be NULL */
+	const char *prefix;       /* node names are prefix + id; "" for plain ids */
+	double seconds;           /* sampling time */
+};
+
+/* The rules for a node name prefix: printable, no TAB, newline, CR or
+ * backslash, not starting with '#' or '%', at most 64 bytes. Returns 0 or
+ * -1 with a message. */
+int simulate_prefix_check(const char *prefix);
+
+/* 1 when dir holds a non-empty edges.tsv or truth.tsv (a planted graph
+ * that writing would replace), else 0. */
+int simulate_dir_taken(const char *dir);
+
+/*
+ * Write dir/edges.tsv, dir/truth.tsv, dir/planted.tsv and dir/simulate.json
+ * (formats in coterie-files(5)), each to a temporary name, synced and
+ * renamed into place. dir must exist. All arguments borrowed.
+ * Returns 0 or -1 with a message naming the file.
+ */
+int simulate_write(const char *dir, const struct simulate *s, const struct simulate_params *p,
+		   const struct simulate_meta *meta);
+
+#define SIMULATE_EDGES "edges.tsv"
+#define SIMULATE_TRUTH "truth.tsv"
+#define SIMULATE_PLANTED "planted.tsv"
+#define SIMULATE_JSON "simulate.json"
+
+#endif

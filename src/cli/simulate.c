@@ -1,0 +1,236 @@
+/*
+ * cli/simulate: `coterie simulate [options] -o DIR`.
+ *
+ * Parses the options into struct simulate_params, refuses a folder that
+ * already holds a planted graph (unless --force), samples, writes, and
+ * says what it made. All the work is in src/simulate.c. An interrupt
+ * while sampling ends the process at once (nothing is written yet); one
+ * while writing is held until the files are in place, then exits 130.
+ */
+#include <getopt.h>
+#include <inttypes.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <unistd.h>
+
+#include "cli.h"
+#include "coterie/result.h"
+#include "coterie/simulate.h"
+
+static void simulate_usage(FILE *out)
+{
+	fprintf(out,
+		"usage: coterie simulate -o DIR [options]\n"
+		"\n"
+		"Sample a graph from a planted affiliation graph model (AGM) and write\n"
+		"DIR/edges.tsv, DIR/truth.tsv, DIR/planted.tsv and DIR/simulate.json.\n"
+		"A pair sharing communities S is linked with probability\n"
+		"1 - (1 - epsilon) * prod over S of (1 - p_c).\n"
+		"\n"
+		"  -n, --nodes N           nodes (default 1000)\n"
+		"  -k, --communities N     communities (default: as many as the\n"
+		"                          memberships fill)\n"
+		"      --sizes MIN:MAX     community sizes (default 10:100, MAX at most N)\n"
+		"      --size-exponent X   sizes from a power law ~ s^-X (default 2)\n"
+		"      --overlap X         share of nodes in two or more communities\n"
+		"                          (default 0.1)\n"
+		"      --max-memberships N those nodes are in 2 to N, uniformly (default 2)\n"
+		"      --link-prob P|A:B   p_c of every community, or uniform in [A, B]; used\n"
+		"                          as given unless --mean-degree is given too (then\n"
+		"                          they are weights; default 1)\n"
+		"      --mean-degree D     scale every p_c by one factor so that the expected\n"
+		"                          mean degree is D (default 10, unless --link-prob\n"
+		"                          is given; 0: off)\n"
+		"      --even-degrees      also divide each p_c by (size - 1), so every\n"
+		"                          membership brings as many neighbours (needs\n"
+		"                          --mean-degree)\n"
+		"      --epsilon X         background link probability (default 0)\n"
+		"      --prefix STR        node names STR0, STR1, ... (default: 0, 1, ...)\n"
+		"  -o, --output DIR        folder to write (made if missing; required)\n"
+		"      --force             replace a planted graph already in DIR\n"
+		"  -j, --threads N         threads (default: every core); same result\n"
+		"      --seed N            random seed (default 1); same seed, same bytes\n"
+		"  -q, --quiet             no notices\n"
+		"  -h, --help              this text\n");
+}
+
+/* "A:B" or "A" into lo, hi (a single value gives lo == hi). */
+static void parse_range_double(const char *opt, const char *arg, double lo_bound, double hi_bound,
+			       double *lo, double *hi)
+{
+	const char *colon = strchr(arg, ':');
+	if (!colon) {
+		*lo = *hi = cli_double(opt, arg, lo_bound, hi_bound);
+		return;
+	}
+	char a[64], b[64];
+	if (colon - arg >= (long)sizeof a || strlen(colon + 1) >= sizeof b)
+		die(EXIT_USAGE, "%s expects P or LOW:HIGH", opt);
+	memcpy(a, arg, (size_t)(colon - arg));
+	a[colon - arg] = '\0';
+	strcpy(b, colon + 1);
+	*lo = cli_double(opt, a, lo_bound, hi_bound);
+	*hi = cli_double(opt, b, *lo, hi_bound);
+}
+
+static void parse_sizes(const char *arg, uint32_t *lo, uint32_t *hi)
+{
+	const char *colon = strchr(arg, ':');
+	char a[32], b[32];
+	if (!colon || colon - arg >= (long)sizeof a || strlen(colon + 1) >= sizeof b)
+		die(EXIT_USAGE, "--sizes expects MIN:MAX, e.g. 10:100");
+	memcpy(a, arg, (size_t)(colon - arg));
+	a[colon - arg] = '\0';
+	strcpy(b, colon + 1);
+	*lo = cli_u32("--sizes", a, 2, SIMULATE_MAX_NODES);
+	*hi = cli_u32("--sizes", b, *lo, SIMULATE_MAX_NODES);
+}
+
+enum {
+	OPT_SIZES = CLI_OPT_OWN,
+	OPT_SIZE_EXPONENT,
+	OPT_OVERLAP,
+	OPT_MAX_MEMBERSHIPS,
+	OPT_LINK_PROB,
+	OPT_MEAN_DEGREE,
+	OPT_PREFIX,
+	OPT_FORCE,
+	OPT_EVEN_DEGREES,
+};
+
+int cmd_simulate(int argc, char **argv)
+{
+	static const struct option opts[] = {
+		{ "nodes", required_argument, NULL, 'n' },
+		{ "communities", required_argument, NULL, 'k' },
+		{ "sizes", required_argument, NULL, OPT_SIZES },
+		{ "size-exponent", required_argument, NULL, OPT_SIZE_EXPONENT },
+		{ "overlap", required_argument, NULL, OPT_OVERLAP },
+		{ "max-memberships", required_argument, NULL, OPT_MAX_MEMBERSHIPS },
+		{ "link-prob", required_argument, NULL, OPT_LINK_PROB },
+		{ "mean-degree", required_argument, NULL, OPT_MEAN_DEGREE },
+		{ "even-degrees", no_argument, NULL, OPT_EVEN_DEGREES },
+		{ "epsilon", required_argument, NULL, CLI_OPT_EPSILON },
+		{ "prefix", required_argument, NULL, OPT_PREFIX },
+		{ "output", required_argument, NULL, 'o' },
+		{ "force", no_argument, NULL, OPT_FORCE },
+		{ "threads", required_argument, NULL, 'j' },
+		{ "seed", required_argument, NULL, CLI_OPT_SEED },
+		{ "quiet", no_argument, NULL, 'q' },
+		{ "help", no_argument, NULL, 'h' },
+		{ NULL, 0, NULL, 0 },
+	};
+	struct simulate_params p;
+	simulate_params_default(&p);
+	long cores = sysconf(_SC_NPROCESSORS_ONLN);
+	p.threads = cores > 0 ? (unsigned)(cores > 256 ? 256 : cores) : 1;
+	int have_sizes = 0, have_link = 0, have_degree = 0, quiet = 0, force = 0;
+	const char *out = NULL, *prefix = "";
+	int c;
+	optind = 1;
+	opterr = 0;
+	while ((c = getopt_long(argc, argv, ":n:k:o:j:qh", opts, NULL)) != -1) {
+		switch (c) {
+		case 'n': p.n = cli_u32("-n", optarg, 2, SIMULATE_MAX_NODES); break;
+		case 'k': p.k = cli_u32("-k", optarg, 1, SIMULATE_MAX_NODES); break;
+		case OPT_SIZES:
+			parse_sizes(optarg, &p.size_min, &p.size_max);
+			have_sizes = 1;
+			break;
+		case OPT_SIZE_EXPONENT:
+			p.size_exponent = cli_double("--size-exponent", optarg, 0.0, 100.0);
+			break;
+		case OPT_OVERLAP: p.overlap = cli_double("--overlap", optarg, 0.0, 1.0); break;
+		case OPT_MAX_MEMBERSHIPS:
+			p.max_memberships = cli_u32("--max-memberships", optarg, 2,
+						    SIMULATE_MAX_MEMBERSHIPS);
+			break;
+		case OPT_LINK_PROB:
+			parse_range_double("--link-prob", optarg, 0.0, 1.0, &p.p_lo, &p.p_hi);
+			have_link = 1;
+			break;
+		case OPT_MEAN_DEGREE:
+			p.mean_degree = cli_double("--mean-degree", optarg, 0.0, 2e9);
+			have_degree = 1;
+			break;
+		case OPT_EVEN_DEGREES: p.even_degrees = 1; break;
+		case CLI_OPT_EPSILON: p.epsilon = cli_double("--epsilon", optarg, 0.0, 0.999); break;
+		case OPT_PREFIX: prefix = optarg; break;
+		case 'o': out = optarg; break;
+		case OPT_FORCE: force = 1; break;
+		case 'j': p.threads = cli_u32("-j", optarg, 1, 256); break;
+		case CLI_OPT_SEED: p.seed = cli_u64("--seed", optarg); break;
+		case 'q': quiet = 1; break;
+		case 'h': simulate_usage(stdout); return 0;
+		default:
+			cli_option_error(c, argv);
+			fprintf(stderr, "try 'coterie simulate --help'\n");
+			return EXIT_USAGE;
+		}
+	}
+	if (optind < argc) {
+		char buf[256];
+		die(EXIT_USAGE, "simulate takes no file argument ('%s'); the output is -o DIR",
+		    util_escape(argv[optind], buf, sizeof buf, 1));
+	}
+	if (!out)
+		die(EXIT_USAGE, "simulate needs an output folder: -o DIR");
+	/* --link-prob alone means the p_c as given; with --mean-degree, weights */
+	if (have_link && !have_degree && !p.even_degrees)
+		p.mean_degree = 0.0;
+	if (!have_sizes) {
+		if (p.size_max > p.n)
+			p.size_max = p.n;
+		if (p.size_min > p.size_max)
+			p.size_min = p.size_max;
+	}
+	if (simulate_prefix_check(prefix))
+		return EXIT_USAGE;
+	if (simulate_params_check(&p))
+		return EXIT_USAGE;
+	util_set_quiet(quiet);
+	if (!force && simulate_dir_taken(out)) {
+		char buf[512];
+		error("'%s' already holds a planted graph; use --force to replace it",
+		      util_escape(out, buf, sizeof buf, 1));
+		return 1;
+	}
+	if (result_prepare_dir(out))
+		return 1;
+
+	double t0 = util_now();
+	struct simulate s;
+	if (simulate_run(&p, &s))
+		return 1;
+	double t1 = util_now();
+	struct simulate_meta meta = { cli_command_line(), prefix, t1 - t0 };
+	/* an interrupt while sampling ends the process (nothing is written yet);
+	 * while writing it waits, so no temporary file is left behind */
+	if (cli_signals_install()) {
+		simulate_release(&s);
+		return 1;
+	}
+	int rc = simulate_write(out, &s, &p, &meta);
+	if (!rc && !quiet) {
+		char buf[512];
+		notice("planted %u communities (%" PRIu64 " memberships, %" PRIu64
+		       " nodes in two or more) on %u nodes and drew %" PRIu64
+		       " edges (expected %.1f, mean degree %.3g) in %.1f s; written to '%s' in "
+		       "%.1f s",
+		       s.k, s.truth.off[s.k], s.overlapping, s.n, s.m, s.expected_edges,
+		       2.0 * (double)s.m / s.n, t1 - t0, util_escape(out, buf, sizeof buf, 1),
+		       util_now() - t1);
+		if (s.isolated)
+			notice("%" PRIu64 " nodes have no edge and are absent from '%s'", s.isolated,
+			       SIMULATE_EDGES);
+	}
+	simulate_release(&s);
+	if (rc)
+		return 1;
+	if (cli_signal_caught()) {
+		notice("interrupted; the planted graph was written first");
+		return EXIT_INTERRUPTED;
+	}
+	return 0;
+}
