@@ -205,11 +205,39 @@ static uint32_t *draw_sizes(const struct simulate_params *p, uint64_t total, uin
 }
 
 /* Nudge the counts m[] (sum *cur) to add up to target, one membership at a
- * time over the order perm, at most cap each; removals take from nodes in
- * several communities first. Returns 0 or -1. */
+ * time over the order perm, at most cap each. Removals take from nodes in
+ * several communities first, so every node stays covered. With
+ * overlap > 0 (a fixed -k whose sizes hold fewer memberships than were
+ * drawn) they first leave nodes of one community uncovered, as long as
+ * the nodes in several communities stay at most that share of the
+ * covered ones, so the asked-for overlap survives. Returns 0 or -1. */
 static int nudge_counts(uint8_t *m, const uint32_t *perm, uint32_t n, uint64_t *cur,
-			uint64_t target, uint32_t cap)
+			uint64_t target, uint32_t cap, double overlap)
 {
+	uint64_t covered = 0, several = 0;
+	for (uint32_t u = 0; u < n; u++) {
+		covered += m[u] >= 1;
+		several += m[u] >= 2;
+	}
+	/* two cursors over perm: a single membership goes while the share
+	 * allows it, else one membership of a node in several */
+	for (uint32_t i = 0, j = 0; overlap > 0 && *cur > target;) {
+		int single = (double)(covered - 1) * overlap >= (double)several;
+		while (single && i < n && m[perm[i]] != 1)
+			i++;
+		while (!single && j < n && m[perm[j]] < 2)
+			j++;
+		if (single && i < n) {
+			m[perm[i]] = 0;
+			covered--;
+		} else if (!single && j < n) {
+			if (--m[perm[j]] == 1)
+				several--;
+		} else {
+			break; /* the loops below finish the job */
+		}
+		(*cur)--;
+	}
 	while (*cur < target) {
 		int moved = 0;
 		for (uint32_t i = 0; i < n && *cur < target; i++)
@@ -294,7 +322,7 @@ static int plant_cover(const struct simulate_params *p, struct simulate *s)
 			m[u] = (uint8_t)cap;
 		}
 	rng_shuffle_u32(&r, perm, n); /* a fresh order for the nudging */
-	if (nudge_counts(m, perm, n, &total, want, cap))
+	if (nudge_counts(m, perm, n, &total, want, cap, p->k ? p->overlap : 0.0))
 		goto out;
 
 	/* deal the slots */

@@ -466,6 +466,43 @@ static void test_derived_communities_hold_every_membership(void **state)
 	simulate_release(&s);
 }
 
+static void test_fixed_k_short_of_memberships_keeps_the_overlap_share(void **state)
+{
+	(void)state;
+	/* -k 20 with sizes 10..100 holds a few hundred memberships, far fewer
+	 * than the 1000 + 200 drawn for n = 1000 and overlap 0.2: nodes of one
+	 * community are left uncovered first, so that the nodes in two or more
+	 * stay 0.2 of the covered ones (before this rule the overlap was
+	 * taken back first and none was left) */
+	struct simulate_params p;
+	simulate_params_default(&p);
+	p.n = 1000;
+	p.k = 20;
+	p.overlap = 0.2;
+	p.size_min = 10;
+	p.size_max = 100;
+	struct simulate s;
+	sim(&s, &p);
+	struct memb mb;
+	memb_build(&mb, &s.truth);
+	uint32_t over = 0, covered = 0;
+	for (uint32_t u = 0; u < s.n; u++) {
+		uint32_t m = memb_count(&mb, u);
+		over += m >= 2;
+		covered += m >= 1;
+	}
+	assert_int_equal(s.k, 20);
+	assert_int_equal(over, s.overlapping);
+	assert_int_equal(s.n - covered, s.uncovered);
+	assert_true(covered < s.n);
+	/* the share among the covered nodes: 0.2, up to one node of rounding
+	 * each way */
+	assert_true(over >= 1 && (double)over <= 0.2 * covered + 1.0 &&
+		    (double)over >= 0.2 * covered - 1.0);
+	memb_free(&mb);
+	simulate_release(&s);
+}
+
 static void test_mean_degree_target_is_met_in_expectation(void **state)
 {
 	(void)state;
@@ -764,6 +801,7 @@ int main(void)
 		cmocka_unit_test(test_background_is_uniform_over_pairs),
 		cmocka_unit_test(test_sizes_follow_the_truncated_power_law),
 		cmocka_unit_test(test_derived_communities_hold_every_membership),
+		cmocka_unit_test(test_fixed_k_short_of_memberships_keeps_the_overlap_share),
 		cmocka_unit_test(test_mean_degree_target_is_met_in_expectation),
 		cmocka_unit_test(test_even_degrees_give_small_and_large_communities_alike),
 		cmocka_unit_test(test_unreachable_mean_degree_is_refused),
