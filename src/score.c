@@ -299,3 +299,455 @@ double score_onmi_lfk(const struct cover *a, const struct cover *b)
 {
 	return onmi(a, b, FORM_LFK);
 }
+
+/* ==== Omega index, best-match F1, plain NMI and counts ==================
+ *
+ * These read a cover through a node -> communities index (struct nidx),
+ * over every non-empty community (a community of all n nodes included:
+ * unlike in the entropies above it carries pairs and matches).
+ *
+ * Omega (Collins & Dent 1988). For each of the M = n(n-1)/2 pairs of
+ * nodes, t_A and t_B are the numbers of communities of A and of B holding
+ * both. With N_A(k), N_B(k) the pairs having t = k and W the pairs having
+ * t_A = t_B,   observed = W / M,   expected = sum_k N_A(k) N_B(k) / M^2,
+ *   Omega = (observed - expected) / (1 - expected).
+ * Pairs are not visited one by one: nodes with the same communities on
+ * both sides form a class, two classes relate as any two of their nodes
+ * do, so only pairs of classes that share a community are enumerated
+ * (O(sum over communities of its classes squared)); the pairs that share
+ * nothing on either side are M minus those counted. When expected is
+ * exactly 1 (every pair shares the same number on both sides, so observed
+ * is 1 too) and when M = 0, Omega is 1.
+ */
+
+struct nidx {
+	uint64_t *off;   /* n + 1 */
+	uint32_t *com;   /* communities of node u: com[off[u] .. off[u+1]), increasing */
+	uint32_t maxdeg; /* most communities of one node */
+	uint32_t k;      /* non-empty communities */
+};
+
+static void nidx_release(struct nidx *x)
+{
+	free(x->off);
+	free(x->com);
+	memset(x, 0, sizeof *x);
+}
+
+static int nidx_build(struct nidx *x, const struct cover *c)
+{
+	memset(x, 0, sizeof *x);
+	if (cover_check(c) < 0)
+		return -1;
+	uint64_t n = c->n, total = c->off[c->k];
+	x->off = util_calloc((size_t)n + 1, sizeof *x->off);
+	x->com = util_malloc((size_t)total, sizeof *x->com);
+	uint64_t *at = util_malloc((size_t)n + 1, sizeof *at);
+	if (!x->off || !x->com || !at) {
+		free(at);
+		nidx_release(x);
+		return -1;
+	}
+	for (uint64_t j = 0; j < total; j++)
+		x->off[c->mem[j] + 1]++;
+	for (uint64_t u = 0; u < n; u++) {
+		if (x->off[u + 1] > x->maxdeg)
+			x->maxdeg = (uint32_t)x->off[u + 1];
+		x->off[u + 1] += x->off[u];
+	}
+	memcpy(at, x->off, ((size_t)n + 1) * sizeof *at);
+	for (uint32_t i = 0; i < c->k; i++) {
+		if (c->off[i + 1] > c->off[i])
+			x->k++;
+		for (uint64_t j = c->off[i]; j < c->off[i + 1]; j++)
+			x->com[at[c->mem[j]]++] = i;
+	}
+	free(at);
+	return 0;
+}
+
+static uint32_t nidx_deg(const struct nidx *x, uint32_t u)
+{
+	return (uint32_t)(x->off[u + 1] - x->off[u]);
+}
+
+static int same_n(const struct cover *a, const struct cover *b)
+{
+	if (a->n == b->n)
+		return 0;
+	return error("covers of different node sets: %" PRIu32 " and %" PRIu32 " nodes", a->n,
+		     b->n);
+}
+
+struct hnode {
+	uint64_t hash;
+	uint32_t node;
+};
+
+static int hnode_cmp(const void *pa, const void *pb)
+{
+	const struct hnode *a = pa, *b = pb;
+	if (a->hash != b->hash)
+		return a->hash < b->hash ? -1 : 1;
+	return (a->node > b->node) - (a->node < b->node);
+}
+
+static int same_lists(const struct nidx *A, const struct nidx *B, uint32_t u, uint32_t v)
+{
+	uint32_t da = nidx_deg(A, u), db = nidx_deg(B, u);
+	if (da != nidx_deg(A, v) || db != nidx_deg(B, v))
+		return 0;
+	return !memcmp(A->com + A->off[u], A->com + A->off[v], (size_t)da * sizeof *A->com) &&
+	       !memcmp(B->com + B->off[u], B->com + B->off[v], (size_t)db * sizeof *B->com);
+}
+
+/* The classes' lists of one side: cls[coff[c] .. coff[c+1]) are the
+ * classes (increasing) whose nodes are in community c. */
+static int class_lists(const struct nidx *X, uint32_t kc, uint32_t ncls, const uint32_t *rep,
+		       uint64_t **coff, uint32_t **cls)
+{
+	uint64_t total = 0;
+	for (uint32_t p = 0; p < ncls; p++)
+		total += nidx_deg(X, rep[p]);
+	*coff = util_calloc((size_t)kc + 1, sizeof **coff);
+	*cls = util_malloc((size_t)total, sizeof **cls);
+	uint64_t *at = util_malloc((size_t)kc + 1, sizeof *at);
+	if (!*coff || !*cls || !at) {
+		free(at);
+		return -1;
+	}
+	for (uint32_t p = 0; p < ncls; p++)
+		for (uint64_t t = X->off[rep[p]]; t < X->off[rep[p] + 1]; t++)
+			(*coff)[X->com[t] + 1]++;
+	for (uint32_t c = 0; c < kc; c++)
+		(*coff)[c + 1] += (*coff)[c];
+	memcpy(at, *coff, ((size_t)kc + 1) * sizeof *at);
+	for (uint32_t p = 0; p < ncls; p++)
+		for (uint64_t t = X->off[rep[p]]; t < X->off[rep[p] + 1]; t++)
+			(*cls)[at[X->com[t]]++] = p;
+	free(at);
+	return 0;
+}
+
+struct omega_acc {
+	uint64_t *ha, *hb; /* N_A(k), N_B(k) */
+	uint64_t agree, counted;
+};
+
+static void omega_add(struct omega_acc *o, uint32_t ta, uint32_t tb, uint64_t pairs)
+{
+	o->ha[ta] += pairs;
+	o->hb[tb] += pairs;
+	if (ta == tb)
+		o->agree += pairs;
+	o->counted += pairs;
+}
+
+int score_omega(const struct cover *a, const struct cover *b, double *out)
+{
+	struct nidx A, B;
+	struct hnode *hn = NULL;
+	uint32_t *cls_of = NULL, *rep = NULL, *w = NULL, *ma = NULL, *mb = NULL, *touched = NULL;
+	uint64_t *coa = NULL, *cob = NULL;
+	uint32_t *cla = NULL, *clb = NULL;
+	struct omega_acc o = { 0 };
+	double result = 1.0;
+	int rc = -1;
+	uint32_t n = a->n, ncls = 0;
+
+	if (same_n(a, b) < 0 || nidx_build(&A, a) < 0)
+		return -1;
+	if (nidx_build(&B, b) < 0) {
+		nidx_release(&A);
+		return -1;
+	}
+	uint64_t M = (uint64_t)n * (n ? n - 1 : 0) / 2;
+	if (M == 0) {
+		rc = 0; /* result 1 */
+		goto out;
+	}
+	/* classes: nodes with the same lists on both sides */
+	hn = util_malloc(n, sizeof *hn);
+	cls_of = util_malloc(n, sizeof *cls_of);
+	rep = util_malloc(n, sizeof *rep);
+	w = util_calloc(n, sizeof *w);
+	o.ha = util_calloc((size_t)A.maxdeg + 1, sizeof *o.ha);
+	o.hb = util_calloc((size_t)B.maxdeg + 1, sizeof *o.hb);
+	if (!hn || !cls_of || !rep || !w || !o.ha || !o.hb)
+		goto out;
+	for (uint32_t u = 0; u < n; u++) {
+		uint32_t da = nidx_deg(&A, u), db = nidx_deg(&B, u);
+		uint64_t hh = util_fnv1a(UTIL_FNV_INIT, &da, sizeof da);
+		hh = util_fnv1a(hh, A.com + A.off[u], (size_t)da * sizeof *A.com);
+		hh = util_fnv1a(hh, &db, sizeof db);
+		hh = util_fnv1a(hh, B.com + B.off[u], (size_t)db * sizeof *B.com);
+		hn[u] = (struct hnode){ hh, u };
+	}
+	qsort(hn, n, sizeof *hn, hnode_cmp);
+	for (uint32_t i = 0; i < n;) {
+		uint32_t j = i;
+		while (j < n && hn[j].hash == hn[i].hash)
+			j++;
+		uint32_t first = ncls; /* classes of this hash: first .. ncls-1 */
+		for (uint32_t t = i; t < j; t++) {
+			uint32_t u = hn[t].node, p = first;
+			while (p < ncls && !same_lists(&A, &B, rep[p], u))
+				p++;
+			if (p == ncls)
+				rep[ncls++] = u;
+			cls_of[u] = p;
+			w[p]++;
+		}
+		i = j;
+	}
+	if (class_lists(&A, a->k, ncls, rep, &coa, &cla) < 0 ||
+	    class_lists(&B, b->k, ncls, rep, &cob, &clb) < 0)
+		goto out;
+	ma = util_calloc(ncls, sizeof *ma);
+	mb = util_calloc(ncls, sizeof *mb);
+	touched = util_malloc(ncls, sizeof *touched);
+	if (!ma || !mb || !touched)
+		goto out;
+	for (uint32_t p = 0; p < ncls; p++) {
+		uint32_t u = rep[p], nt = 0;
+		for (int side = 0; side < 2; side++) {
+			const struct nidx *X = side ? &B : &A;
+			const uint64_t *coff = side ? cob : coa;
+			const uint32_t *cl = side ? clb : cla;
+			uint32_t *m = side ? mb : ma;
+			for (uint64_t t = X->off[u]; t < X->off[u + 1]; t++) {
+				uint32_t c = X->com[t];
+				/* classes after p: the list is increasing */
+				uint64_t lo = coff[c], hi = coff[c + 1];
+				while (lo < hi) {
+					uint64_t mid = lo + (hi - lo) / 2;
+					if (cl[mid] <= p)
+						lo = mid + 1;
+					else
+						hi = mid;
+				}
+				for (uint64_t s = lo; s < coff[c + 1]; s++) {
+					uint32_t q = cl[s];
+					if (ma[q] == 0 && mb[q] == 0)
+						touched[nt++] = q;
+					m[q]++;
+				}
+			}
+		}
+		for (uint32_t t = 0; t < nt; t++) {
+			uint32_t q = touched[t];
+			omega_add(&o, ma[q], mb[q], (uint64_t)w[p] * w[q]);
+			ma[q] = mb[q] = 0;
+		}
+		omega_add(&o, nidx_deg(&A, u), nidx_deg(&B, u), (uint64_t)w[p] * (w[p] - 1) / 2);
+	}
+	uint64_t rest = M - o.counted; /* pairs sharing nothing on either side */
+	o.ha[0] += rest;
+	o.hb[0] += rest;
+	o.agree += rest;
+	for (uint32_t k = 0; k <= A.maxdeg && k <= B.maxdeg; k++)
+		if (o.ha[k] == M && o.hb[k] == M) {
+			rc = 0; /* result 1: expected = observed = 1 */
+			goto out;
+		}
+	long double LM = (long double)M, exp_ = 0.0L;
+	for (uint32_t k = 0; k <= A.maxdeg && k <= B.maxdeg; k++)
+		exp_ += ((long double)o.ha[k] / LM) * ((long double)o.hb[k] / LM);
+	long double obs = (long double)o.agree / LM;
+	result = (double)((obs - exp_) / (1.0L - exp_));
+	rc = 0;
+out:
+	free(hn);
+	free(cls_of);
+	free(rep);
+	free(w);
+	free(ma);
+	free(mb);
+	free(touched);
+	free(coa);
+	free(cob);
+	free(cla);
+	free(clb);
+	free(o.ha);
+	free(o.hb);
+	nidx_release(&A);
+	nidx_release(&B);
+	if (rc == 0)
+		*out = result;
+	return rc;
+}
+
+/*
+ * Average best-match F1 (Yang & Leskovec, WSDM 2013, section 5):
+ *   F1(C, D) = 2 |C n D| / (|C| + |D|),
+ *   F1avg = 1/2 [ mean_{C in A} max_{D in B} F1(C, D)
+ *               + mean_{D in B} max_{C in A} F1(C, D) ].
+ * best[i] for each X_i: only communities meeting X_i can have F1 > 0, so
+ * they are found through Y's node index.
+ */
+static int best_f1(const struct cover *X, const struct cover *Y, const struct nidx *Yi,
+		   double *mean)
+{
+	uint32_t *cnt = util_calloc(Y->k, sizeof *cnt);
+	uint32_t *touched = util_malloc(Y->k, sizeof *touched);
+	if (!cnt || !touched) {
+		free(cnt);
+		free(touched);
+		return -1;
+	}
+	double sum = 0.0;
+	uint32_t kx = 0;
+	for (uint32_t i = 0; i < X->k; i++) {
+		uint64_t x = cover_size(X, i);
+		if (x == 0)
+			continue;
+		kx++;
+		uint32_t nt = 0;
+		for (uint64_t j = X->off[i]; j < X->off[i + 1]; j++) {
+			uint32_t u = X->mem[j];
+			for (uint64_t t = Yi->off[u]; t < Yi->off[u + 1]; t++)
+				if (cnt[Yi->com[t]]++ == 0)
+					touched[nt++] = Yi->com[t];
+		}
+		double best = 0.0;
+		for (uint32_t t = 0; t < nt; t++) {
+			uint32_t y = touched[t];
+			double f = 2.0 * cnt[y] / ((double)x + (double)cover_size(Y, y));
+			if (f > best)
+				best = f;
+			cnt[y] = 0;
+		}
+		sum += best;
+	}
+	*mean = kx ? sum / kx : 0.0;
+	free(cnt);
+	free(touched);
+	return 0;
+}
+
+double score_f1(const struct cover *a, const struct cover *b, double *a_to_b, double *b_to_a)
+{
+	struct nidx A, B;
+	double ab = 0.0, ba = 0.0, result = -1.0;
+	if (same_n(a, b) < 0 || nidx_build(&A, a) < 0)
+		return -1.0;
+	if (nidx_build(&B, b) < 0) {
+		nidx_release(&A);
+		return -1.0;
+	}
+	if (A.k == 0 || B.k == 0) {
+		/* no community on one side: nothing to match */
+		ab = ba = result = (A.k == 0 && B.k == 0) ? 1.0 : 0.0;
+	} else if (best_f1(a, b, &B, &ab) == 0 && best_f1(b, a, &A, &ba) == 0) {
+		result = 0.5 * (ab + ba);
+	}
+	if (result >= 0.0) {
+		if (a_to_b)
+			*a_to_b = ab;
+		if (b_to_a)
+			*b_to_a = ba;
+	}
+	nidx_release(&A);
+	nidx_release(&B);
+	return result;
+}
+
+/*
+ * Plain NMI of two partitions, in natural logarithms (the base cancels):
+ *   I = sum_ij (n_ij/n) ln(n n_ij / (a_i b_j)),  H(A) = -sum_i (a_i/n) ln(a_i/n),
+ *   NMI = I / ((H(A) + H(B)) / 2),
+ * the arithmetic normalisation of scikit-learn's
+ * normalized_mutual_info_score, with its limit cases: 1 when both have a
+ * single community, 0 when I = 0 otherwise.
+ */
+int score_nmi(const struct cover *a, const struct cover *b, double *out)
+{
+	struct nidx A, B;
+	int rc = 0;
+	uint32_t *cnt = NULL, *touched = NULL;
+	if (same_n(a, b) < 0 || nidx_build(&A, a) < 0)
+		return -1;
+	if (nidx_build(&B, b) < 0) {
+		nidx_release(&A);
+		return -1;
+	}
+	uint32_t n = a->n;
+	if (n == 0 || A.maxdeg != 1 || B.maxdeg != 1)
+		goto out;
+	for (uint32_t u = 0; u < n; u++)
+		if (nidx_deg(&A, u) != 1 || nidx_deg(&B, u) != 1)
+			goto out;
+	rc = 1;
+	if (A.k == 1 && B.k == 1) {
+		*out = 1.0;
+		goto out;
+	}
+	cnt = util_calloc(b->k, sizeof *cnt);
+	touched = util_malloc(b->k, sizeof *touched);
+	if (!cnt || !touched) {
+		rc = -1;
+		goto out;
+	}
+	double nn = (double)n, ln_n = log(nn), I = 0.0, ha = 0.0, hb_ = 0.0;
+	for (uint32_t i = 0; i < a->k; i++) {
+		uint64_t ai = cover_size(a, i);
+		if (ai == 0)
+			continue;
+		ha -= ((double)ai / nn) * (log((double)ai) - ln_n);
+		uint32_t nt = 0;
+		for (uint64_t j = a->off[i]; j < a->off[i + 1]; j++) {
+			uint32_t y = B.com[B.off[a->mem[j]]];
+			if (cnt[y]++ == 0)
+				touched[nt++] = y;
+		}
+		for (uint32_t t = 0; t < nt; t++) {
+			uint32_t y = touched[t];
+			double nij = cnt[y], bj = (double)cover_size(b, y);
+			I += (nij / nn) * (log(nij) + ln_n - log((double)ai) - log(bj));
+			cnt[y] = 0;
+		}
+	}
+	for (uint32_t j = 0; j < b->k; j++) {
+		uint64_t bj = cover_size(b, j);
+		if (bj)
+			hb_ -= ((double)bj / nn) * (log((double)bj) - ln_n);
+	}
+	if (A.k == 1 || B.k == 1 || I <= 0.0)
+		*out = 0.0; /* a single community carries no information */
+	else
+		*out = I / (0.5 * (ha + hb_));
+out:
+	free(cnt);
+	free(touched);
+	nidx_release(&A);
+	nidx_release(&B);
+	return rc;
+}
+
+int score_sides(const struct cover *a, const struct cover *b, struct score_side *sa,
+		struct score_side *sb)
+{
+	struct nidx A, B;
+	if (same_n(a, b) < 0 || nidx_build(&A, a) < 0)
+		return -1;
+	if (nidx_build(&B, b) < 0) {
+		nidx_release(&A);
+		return -1;
+	}
+	memset(sa, 0, sizeof *sa);
+	memset(sb, 0, sizeof *sb);
+	sa->communities = A.k;
+	sb->communities = B.k;
+	for (uint32_t u = 0; u < a->n; u++) {
+		uint32_t da = nidx_deg(&A, u), db = nidx_deg(&B, u);
+		sa->covered += da > 0;
+		sa->overlapping += da > 1;
+		sa->only += da > 0 && db == 0;
+		sb->covered += db > 0;
+		sb->overlapping += db > 1;
+		sb->only += db > 0 && da == 0;
+	}
+	nidx_release(&A);
+	nidx_release(&B);
+	return 0;
+}

@@ -91,5 +91,6 @@ void cli_fit_opts_resume(const struct cli_fit_opts *o, const struct fit_params *
 int cmd_fit(int argc, char **argv);
 int cmd_show(int argc, char **argv);
 int cmd_explore(int argc, char **argv);
+int cmd_compare(int argc, char **argv);
 
 #endif

@@ -15,6 +15,7 @@ static const struct {
 	{ "fit", cmd_fit, "fit overlapping communities to a graph and write a result folder" },
 	{ "show", cmd_show, "print a result's communities, a node or weak edges, as text or JSON" },
 	{ "explore", cmd_explore, "fit in the background and browse the communities, or browse a result" },
+	{ "compare", cmd_compare, "score a found cover against a known one (overlapping NMI, Omega, F1)" },
 };
 
 static void usage(FILE *out)
