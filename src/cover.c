@@ -315,6 +315,10 @@ static int load(struct cover *out, const char *path, const struct graph *g, stru
 			      lineno);
 			goto out;
 		}
+		if (tab == line) {
+			error("%s:%" PRIu64 ": expected a node name before the tab", where, lineno);
+			goto out;
+		}
 		*tab = '\0';
 		char *comm = tab + 1;
 		char *end = strchr(comm, '\t'); /* further columns are ignored */

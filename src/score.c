@@ -1,7 +1,9 @@
 /*
- * score: overlapping NMI between two covers of the same n nodes, in the
- * max-normalised form (McDaid, Greene & Hurley, arXiv:1110.2515) and in
- * the form of Lancichinetti, Fortunato & Kertesz (New J. Phys. 11, 033015).
+ * score: agreement between two covers of the same n nodes. First the
+ * overlapping NMI, in the max-normalised form (McDaid, Greene & Hurley,
+ * arXiv:1110.2515) and in the form of Lancichinetti, Fortunato & Kertesz
+ * (New J. Phys. 11, 033015); then, further down, the Omega index, the
+ * best-match F1, plain NMI of partitions and the counts.
  *
  * Each community is a binary variable over the nodes. With h(w) =
  * -(w/n) log2(w/n) (0 for w = 0), H(X_i) = h(|X_i|) + h(n - |X_i|). For a
