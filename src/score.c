@@ -314,12 +314,21 @@ double score_onmi_lfk(const struct cover *a, const struct cover *b)
  * t_A = t_B,   observed = W / M,   expected = sum_k N_A(k) N_B(k) / M^2,
  *   Omega = (observed - expected) / (1 - expected).
  * Pairs are not visited one by one: nodes with the same communities on
- * both sides form a class, two classes relate as any two of their nodes
- * do, so only pairs of classes that share a community are enumerated
- * (O(sum over communities of its classes squared)); the pairs that share
- * nothing on either side are M minus those counted. When expected is
- * exactly 1 (every pair shares the same number on both sides, so observed
- * is 1 too) and when M = 0, Omega is 1.
+ * both sides form a class, and two classes relate as any two of their
+ * nodes do. A few big communities (more than OMEGA_BIG_CLASSES classes;
+ * at most OMEGA_MAX_BIG, both sides together) get a bit each, and every
+ * pair is first counted as if it shared only big communities, from the
+ * masks of its two classes (pairs of masks, at most 2^10 of them). Then
+ * the pairs of classes that share a small community are enumerated
+ * (O(sum over small communities of its classes squared)), and so are the
+ * pairs inside one class: each adds its true (t_A, t_B) and takes back
+ * its guess by mask. A giant community therefore costs nothing by itself.
+ * When expected is exactly 1 (every pair shares the same number on both
+ * sides, so observed is 1 too) and when M = 0, Omega is 1.
+ *
+ * The one thing a newcomer gets wrong here: the counts go through
+ * unsigned wrap-around (a guess may be taken back before the true count
+ * of the same bin is added); only the final counts are meaningful.
  */
 
 struct nidx {
@@ -433,24 +442,58 @@ static int class_lists(const struct nidx *X, uint32_t kc, uint32_t ncls, const u
 
 struct omega_acc {
 	uint64_t *ha, *hb; /* N_A(k), N_B(k) */
-	uint64_t agree, counted;
+	uint64_t agree;
 };
 
-static void omega_add(struct omega_acc *o, uint32_t ta, uint32_t tb, uint64_t pairs)
+/* Add (sign > 0) or take back (sign < 0) pairs sharing ta and tb
+ * communities. Unsigned arithmetic wraps, so a count taken back before it
+ * is added still ends right: every final count is a true count. */
+static void omega_add(struct omega_acc *o, uint32_t ta, uint32_t tb, uint64_t pairs, int sign)
 {
+	if (sign < 0)
+		pairs = (uint64_t)0 - pairs;
 	o->ha[ta] += pairs;
 	o->hb[tb] += pairs;
 	if (ta == tb)
 		o->agree += pairs;
-	o->counted += pairs;
+}
+
+static uint32_t popcount32(uint32_t x)
+{
+	uint32_t c = 0;
+	for (; x; x &= x - 1)
+		c++;
+	return c;
+}
+
+/* Big communities: those holding more than OMEGA_BIG_CLASSES classes, at
+ * most OMEGA_MAX_BIG of them (the most classes first), both sides
+ * together. Their pairs are counted by masks, not enumerated. */
+#define OMEGA_BIG_CLASSES 2048u
+#define OMEGA_MAX_BIG 10u
+
+struct bigc {
+	uint64_t classes;
+	uint32_t side, c;
+};
+
+static int bigc_cmp(const void *pa, const void *pb)
+{
+	const struct bigc *x = pa, *y = pb;
+	if (x->classes != y->classes)
+		return x->classes > y->classes ? -1 : 1;
+	if (x->side != y->side)
+		return x->side < y->side ? -1 : 1;
+	return (x->c > y->c) - (x->c < y->c);
 }
 
 int score_omega(const struct cover *a, const struct cover *b, double *out)
 {
 	struct nidx A, B;
 	struct hnode *hn = NULL;
-	uint32_t *cls_of = NULL, *rep = NULL, *w = NULL, *ma = NULL, *mb = NULL, *touched = NULL;
-	uint64_t *coa = NULL, *cob = NULL;
+	uint32_t *rep = NULL, *w = NULL, *ma = NULL, *mb = NULL, *touched = NULL;
+	uint32_t *bitA = NULL, *bitB = NULL, *mask = NULL;
+	uint64_t *coa = NULL, *cob = NULL, *W = NULL;
 	uint32_t *cla = NULL, *clb = NULL;
 	struct omega_acc o = { 0 };
 	double result = 1.0;
@@ -470,12 +513,11 @@ int score_omega(const struct cover *a, const struct cover *b, double *out)
 	}
 	/* classes: nodes with the same lists on both sides */
 	hn = util_malloc(n, sizeof *hn);
-	cls_of = util_malloc(n, sizeof *cls_of);
 	rep = util_malloc(n, sizeof *rep);
 	w = util_calloc(n, sizeof *w);
 	o.ha = util_calloc((size_t)A.maxdeg + 1, sizeof *o.ha);
 	o.hb = util_calloc((size_t)B.maxdeg + 1, sizeof *o.hb);
-	if (!hn || !cls_of || !rep || !w || !o.ha || !o.hb)
+	if (!hn || !rep || !w || !o.ha || !o.hb)
 		goto out;
 	for (uint32_t u = 0; u < n; u++) {
 		uint32_t da = nidx_deg(&A, u), db = nidx_deg(&B, u);
@@ -497,7 +539,6 @@ int score_omega(const struct cover *a, const struct cover *b, double *out)
 				p++;
 			if (p == ncls)
 				rep[ncls++] = u;
-			cls_of[u] = p;
 			w[p]++;
 		}
 		i = j;
@@ -505,6 +546,66 @@ int score_omega(const struct cover *a, const struct cover *b, double *out)
 	if (class_lists(&A, a->k, ncls, rep, &coa, &cla) < 0 ||
 	    class_lists(&B, b->k, ncls, rep, &cob, &clb) < 0)
 		goto out;
+
+	/* the big communities get one bit each; mask[p] has the bits of
+	 * class p's big communities (A's and B's bits are apart) */
+	bitA = util_calloc(a->k + 1, sizeof *bitA);
+	bitB = util_calloc(b->k + 1, sizeof *bitB);
+	mask = util_calloc(ncls, sizeof *mask);
+	W = util_calloc((size_t)1 << OMEGA_MAX_BIG, sizeof *W);
+	if (!bitA || !bitB || !mask || !W)
+		goto out;
+	uint32_t maskA = 0;
+	{
+		struct bigc big[2 * OMEGA_MAX_BIG + 1];
+		uint32_t nb = 0;
+		for (uint32_t side = 0; side < 2; side++) {
+			const uint64_t *coff = side ? cob : coa;
+			uint32_t kc = side ? b->k : a->k;
+			for (uint32_t c = 0; c < kc; c++) {
+				uint64_t cl = coff[c + 1] - coff[c];
+				if (cl <= OMEGA_BIG_CLASSES)
+					continue;
+				big[nb++] = (struct bigc){ cl, side, c };
+				qsort(big, nb, sizeof *big, bigc_cmp);
+				if (nb > OMEGA_MAX_BIG)
+					nb = OMEGA_MAX_BIG;
+			}
+		}
+		for (uint32_t i = 0; i < nb; i++) {
+			if (big[i].side == 0) {
+				bitA[big[i].c] = 1u << i;
+				maskA |= 1u << i;
+			} else {
+				bitB[big[i].c] = 1u << i;
+			}
+		}
+	}
+	for (uint32_t p = 0; p < ncls; p++) {
+		uint32_t u = rep[p];
+		for (uint64_t t = A.off[u]; t < A.off[u + 1]; t++)
+			mask[p] |= bitA[A.com[t]];
+		for (uint64_t t = B.off[u]; t < B.off[u + 1]; t++)
+			mask[p] |= bitB[B.com[t]];
+		W[mask[p]] += w[p];
+	}
+	/* Every pair first as if it shared the big communities only: by mask. */
+	uint32_t nkey = 0, key[1u << OMEGA_MAX_BIG];
+	for (uint32_t x = 0; x < (1u << OMEGA_MAX_BIG); x++)
+		if (W[x])
+			key[nkey++] = x;
+	for (uint32_t i = 0; i < nkey; i++) {
+		uint32_t x = key[i];
+		omega_add(&o, popcount32(x & maskA), popcount32(x & ~maskA), W[x] * (W[x] - 1) / 2,
+			  1);
+		for (uint32_t j = i + 1; j < nkey; j++) {
+			uint32_t y = key[j];
+			omega_add(&o, popcount32(x & y & maskA), popcount32(x & y & ~maskA),
+				  W[x] * W[y], 1);
+		}
+	}
+	/* Then the pairs that share a small community, and the pairs inside a
+	 * class, corrected: their guess by mask is taken back. */
 	ma = util_calloc(ncls, sizeof *ma);
 	mb = util_calloc(ncls, sizeof *mb);
 	touched = util_malloc(ncls, sizeof *touched);
@@ -516,9 +617,12 @@ int score_omega(const struct cover *a, const struct cover *b, double *out)
 			const struct nidx *X = side ? &B : &A;
 			const uint64_t *coff = side ? cob : coa;
 			const uint32_t *cl = side ? clb : cla;
+			const uint32_t *bit = side ? bitB : bitA;
 			uint32_t *m = side ? mb : ma;
 			for (uint64_t t = X->off[u]; t < X->off[u + 1]; t++) {
 				uint32_t c = X->com[t];
+				if (bit[c])
+					continue; /* big: counted by mask */
 				/* classes after p: the list is increasing */
 				uint64_t lo = coff[c], hi = coff[c + 1];
 				while (lo < hi) {
@@ -528,8 +632,8 @@ int score_omega(const struct cover *a, const struct cover *b, double *out)
 					else
 						hi = mid;
 				}
-				for (uint64_t s = lo; s < coff[c + 1]; s++) {
-					uint32_t q = cl[s];
+				for (uint64_t s2 = lo; s2 < coff[c + 1]; s2++) {
+					uint32_t q = cl[s2];
 					if (ma[q] == 0 && mb[q] == 0)
 						touched[nt++] = q;
 					m[q]++;
@@ -537,16 +641,17 @@ int score_omega(const struct cover *a, const struct cover *b, double *out)
 			}
 		}
 		for (uint32_t t = 0; t < nt; t++) {
-			uint32_t q = touched[t];
-			omega_add(&o, ma[q], mb[q], (uint64_t)w[p] * w[q]);
+			uint32_t q = touched[t], both = mask[p] & mask[q];
+			uint32_t ga = popcount32(both & maskA), gb = popcount32(both & ~maskA);
+			uint64_t pairs = (uint64_t)w[p] * w[q];
+			omega_add(&o, ga + ma[q], gb + mb[q], pairs, 1);
+			omega_add(&o, ga, gb, pairs, -1);
 			ma[q] = mb[q] = 0;
 		}
-		omega_add(&o, nidx_deg(&A, u), nidx_deg(&B, u), (uint64_t)w[p] * (w[p] - 1) / 2);
+		uint64_t inside = (uint64_t)w[p] * (w[p] - 1) / 2;
+		omega_add(&o, nidx_deg(&A, u), nidx_deg(&B, u), inside, 1);
+		omega_add(&o, popcount32(mask[p] & maskA), popcount32(mask[p] & ~maskA), inside, -1);
 	}
-	uint64_t rest = M - o.counted; /* pairs sharing nothing on either side */
-	o.ha[0] += rest;
-	o.hb[0] += rest;
-	o.agree += rest;
 	for (uint32_t k = 0; k <= A.maxdeg && k <= B.maxdeg; k++)
 		if (o.ha[k] == M && o.hb[k] == M) {
 			rc = 0; /* result 1: expected = observed = 1 */
@@ -560,12 +665,15 @@ int score_omega(const struct cover *a, const struct cover *b, double *out)
 	rc = 0;
 out:
 	free(hn);
-	free(cls_of);
 	free(rep);
 	free(w);
 	free(ma);
 	free(mb);
 	free(touched);
+	free(bitA);
+	free(bitB);
+	free(mask);
+	free(W);
 	free(coa);
 	free(cob);
 	free(cla);

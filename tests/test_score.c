@@ -521,6 +521,62 @@ static void test_omega_matches_all_pairs_definition(void **state)
 	}
 }
 
+/* Omega with communities big enough (more than 2048 kinds of member, see
+ * score.c) to be counted by masks rather than pair by pair, against the
+ * all-pairs definition (Collins & Dent 1988) over 4000 nodes, computed
+ * here with one bit per community and node. */
+static void test_omega_with_giant_communities_matches_all_pairs(void **state)
+{
+	(void)state;
+	struct rng r;
+	rng_init(&r, 2026);
+	const uint32_t n = 4000;
+	/* A: a giant of 3000 and 40 of 150; B: two big (2500, 2200), 30 of 200 */
+	uint32_t sa[41], sb[32];
+	sa[0] = 3000;
+	for (int i = 1; i < 41; i++)
+		sa[i] = 150;
+	sb[0] = 2500;
+	sb[1] = 2200;
+	for (int i = 2; i < 32; i++)
+		sb[i] = 200;
+	struct cover a, b;
+	random_cover(&a, &r, n, 41, sa);
+	random_cover(&b, &r, n, 32, sb);
+	uint64_t *ba = calloc(n, sizeof *ba), *bb = calloc(n, sizeof *bb);
+	assert_true(ba && bb);
+	for (uint32_t i = 0; i < a.k; i++)
+		for (uint64_t j = a.off[i]; j < a.off[i + 1]; j++)
+			ba[a.mem[j]] |= (uint64_t)1 << i;
+	for (uint32_t i = 0; i < b.k; i++)
+		for (uint64_t j = b.off[i]; j < b.off[i + 1]; j++)
+			bb[b.mem[j]] |= (uint64_t)1 << i;
+	double na[65] = { 0 }, nb[65] = { 0 }, M = 0, agree = 0;
+	for (uint32_t u = 0; u < n; u++)
+		for (uint32_t v = u + 1; v < n; v++) {
+			int ta = __builtin_popcountll(ba[u] & ba[v]);
+			int tb = __builtin_popcountll(bb[u] & bb[v]);
+			M++;
+			agree += ta == tb;
+			na[ta]++;
+			nb[tb]++;
+		}
+	double exp_ = 0;
+	for (int k = 0; k < 65; k++)
+		exp_ += na[k] * nb[k] / (M * M);
+	double want = (agree / M - exp_) / (1.0 - exp_), om;
+	assert_int_equal(score_omega(&a, &b, &om), 0);
+	assert_true(fabs(om - want) < 1e-12);
+	assert_int_equal(score_omega(&b, &a, &om), 0);
+	assert_true(fabs(om - want) < 1e-12);
+	assert_int_equal(score_omega(&a, &a, &om), 0);
+	assert_true(fabs(om - 1.0) < 1e-12);
+	free(ba);
+	free(bb);
+	cover_release(&a);
+	cover_release(&b);
+}
+
 /* Identical covers: 1 for every measure (each paper's definition gives 1
  * at equality; Omega: observed = 1). */
 static void test_every_measure_is_one_for_identical_covers(void **state)
@@ -705,6 +761,7 @@ int main(void)
 		cmocka_unit_test(test_omega_matches_hand_worked_example),
 		cmocka_unit_test(test_f1_matches_hand_worked_example),
 		cmocka_unit_test(test_omega_matches_all_pairs_definition),
+		cmocka_unit_test(test_omega_with_giant_communities_matches_all_pairs),
 		cmocka_unit_test(test_every_measure_is_one_for_identical_covers),
 		cmocka_unit_test(test_symmetric_measures_are_symmetric),
 		cmocka_unit_test(test_plain_nmi_matches_scikit_learn),
