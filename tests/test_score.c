@@ -459,6 +459,49 @@ static void test_f1_matches_hand_worked_example(void **state)
 	cover_release(&b);
 }
 
+/*
+ * One overlapping cover, every measure by hand. n = 6, node 3 in two
+ * communities of X, node 5 in none of X:
+ *   X = { X1 = {0,1,2,3}, X2 = {3,4} },  Y = { Y1 = {0,1,2}, Y2 = {3,4,5} }.
+ * Entropies with h(w) = -(w/6) log2(w/6), L3 = log2 3:
+ *   h(1) = (1 + L3)/6, h(2) = L3/3, h(3) = 1/2, h(4) = (2/3)(L3 - 1)
+ *   H(X1) = H(X2) = h(4) + h(2) = L3 - 2/3 = 0.9182958;  H(Y1) = H(Y2) = 1
+ *   X1,Y1: a=2 b=0 c=1 d=3; h(2)+h(3) = 1.0283 >= h(0)+h(1) = 0.4308, kept;
+ *          J = h(2) + h(1) + h(3) = (4 + 3 L3)/6 = 1.4591479
+ *   X1,Y2: a=0 b=2 c=3 d=1; 0.4308 < 1.0283, discarded
+ *   X2,Y1: a=1 b=3 c=2 d=0; 0.4308 < 1.0283, discarded
+ *   X2,Y2: a=3 b=1 c=0 d=2; kept, J = h(3) + h(1) + h(2) = 1.4591479
+ *   H(Xi|Y) = J - 1 = (L3 - 2/3)/2 = 0.4591479;  H(Yj|X) = J - H(Xi) = (8 - 3 L3)/6
+ *   I = (2 H(X1) - 2(J - 1) + 2 - 2(J - H(X1)))/2 = L3 - 2/3
+ *   max form: I / max(2 H(X1), 2) = (L3 - 2/3)/2 = 0.4591479
+ *   LFK form: 1 - (1/2 + (8 - 3 L3)/6)/2 = (1 + 3 L3)/12 = 0.4795740
+ * Omega: pairs sharing a community, (t_X, t_Y): 01 02 12 (1,1), 03 13 23
+ *   (1,0), 34 (1,1), 35 45 (0,1); the other 6 pairs (0,0).
+ *   agree = 3 + 1 + 6 = 10 of 15; N_X = (8, 7), N_Y = (9, 6)
+ *   expected = (8*9 + 7*6)/225 = 114/225; Omega = (150 - 114)/(225 - 114) = 12/37
+ * F1: X1 best Y1 2*3/7 = 6/7, X2 best Y2 2*2/5 = 4/5; Y1 best X1 6/7, Y2
+ *   best X2 4/5; both halves (6/7 + 4/5)/2 = 29/35 = 0.8285714.
+ */
+static void test_overlapping_cover_worked_by_hand_for_every_measure(void **state)
+{
+	(void)state;
+	struct cover x, y;
+	test_make_cover(&x, 6, 2, (const uint32_t[]){ 4, 2 }, (const uint32_t[]){ 0, 1, 2, 3, 3, 4 });
+	test_make_cover(&y, 6, 2, (const uint32_t[]){ 3, 3 }, (const uint32_t[]){ 0, 1, 2, 3, 4, 5 });
+	double om, ab, ba, nmi = 42;
+	assert_true(fabs(score_onmi_max(&x, &y) - (L3 - 2.0 / 3.0) / 2.0) < 1e-12); /* above */
+	assert_true(fabs(score_onmi_max(&x, &y) - 0.4591479) < 1e-7);
+	assert_true(fabs(score_onmi_lfk(&x, &y) - (1.0 + 3.0 * L3) / 12.0) < 1e-12); /* above */
+	assert_true(fabs(score_onmi_lfk(&x, &y) - 0.4795740) < 1e-7);
+	assert_int_equal(score_omega(&x, &y, &om), 0);
+	assert_true(fabs(om - 12.0 / 37.0) < 1e-12); /* above */
+	assert_true(fabs(score_f1(&x, &y, &ab, &ba) - 29.0 / 35.0) < 1e-12); /* above */
+	assert_true(fabs(ab - 29.0 / 35.0) < 1e-12 && fabs(ba - 29.0 / 35.0) < 1e-12);
+	assert_int_equal(score_nmi(&x, &y, &nmi), 0); /* X is no partition */
+	cover_release(&x);
+	cover_release(&y);
+}
+
 /* The Omega index over every pair, straight from Collins & Dent's
  * definition, written independently of score.c's classes of nodes. */
 static double brute_omega(const struct cover *a, const struct cover *b)
@@ -760,6 +803,7 @@ int main(void)
 		cmocka_unit_test(test_constant_communities_and_mismatched_covers),
 		cmocka_unit_test(test_omega_matches_hand_worked_example),
 		cmocka_unit_test(test_f1_matches_hand_worked_example),
+		cmocka_unit_test(test_overlapping_cover_worked_by_hand_for_every_measure),
 		cmocka_unit_test(test_omega_matches_all_pairs_definition),
 		cmocka_unit_test(test_omega_with_giant_communities_matches_all_pairs),
 		cmocka_unit_test(test_every_measure_is_one_for_identical_covers),
