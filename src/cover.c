@@ -13,9 +13,12 @@
  * names may contain '#'); the line ends at "\n" or "\r\n"; the community is
  * the text between the first TAB and the next one, and a first line
  * "node<TAB>community..." naming no node is a header, so a result's
- * memberships.tsv (node, community, strength) reads as a cover. Community names are interned
- * in a small hash table in order of first appearance, which is then the
- * key order, so the labels line up with the communities.
+ * memberships.tsv (node, community, strength) reads as a cover; after that
+ * header, node names are unescaped as result.c escapes them. Community
+ * names are interned in a small hash table in order of first appearance,
+ * which is then the key order, so the labels line up with the communities.
+ * cover_read() interns node names in the same kind of table, shared by the
+ * two covers coterie compare reads, so their ids agree.
  *
  * The one thing a newcomer gets wrong: "first appearance" is the first
  * record of a key in input order, not the smallest node of the community;
@@ -253,7 +256,33 @@ static int blank(const char *s)
 	return 1;
 }
 
-int cover_load(struct cover *out, const char *path, const struct graph *g)
+/* Undo memberships.tsv's escapes of a node name in place: \t \n \r \\
+ * stand for TAB, LF, CR and a backslash; any other backslash is kept. */
+static void unescape_name(char *s)
+{
+	char *w = s;
+	for (; *s; s++) {
+		if (*s == '\\' && s[1]) {
+			char c = s[1];
+			char b = c == 't' ? '\t' : c == 'n' ? '\n' : c == 'r' ? '\r' : c == '\\' ? '\\' : 0;
+			if (b) {
+				*w++ = b;
+				s++;
+				continue;
+			}
+		}
+		*w++ = *s;
+	}
+	*w = '\0';
+}
+
+/*
+ * The reader behind cover_load() and cover_read(): node names are looked
+ * up in g when it is given, else interned in nodes (new names get the next
+ * id). With nodes, the first data line "node<TAB>community" is always a
+ * header and a file with no membership is an error.
+ */
+static int load(struct cover *out, const char *path, const struct graph *g, struct names *nodes)
 {
 	struct names nm = { 0 };
 	struct rec *r = NULL;
@@ -262,7 +291,7 @@ int cover_load(struct cover *out, const char *path, const struct graph *g)
 	size_t linecap = 0;
 	ssize_t len;
 	char where[512], what[256];
-	int rc = -1;
+	int rc = -1, escaped = 0;
 
 	memset(out, 0, sizeof *out);
 	util_escape(path, where, sizeof where, 0);
@@ -286,6 +315,10 @@ int cover_load(struct cover *out, const char *path, const struct graph *g)
 			      lineno);
 			goto out;
 		}
+		if (tab == line) {
+			error("%s:%" PRIu64 ": expected a node name before the tab", where, lineno);
+			goto out;
+		}
 		*tab = '\0';
 		char *comm = tab + 1;
 		char *end = strchr(comm, '\t'); /* further columns are ignored */
@@ -296,10 +329,19 @@ int cover_load(struct cover *out, const char *path, const struct graph *g)
 			      lineno);
 			goto out;
 		}
-		int64_t u = graph_find(g, line);
 		int first = data++ == 0;
-		if (u < 0 && first && !strcmp(line, "node") && !strcmp(comm, "community"))
-			continue; /* a header line */
+		if (first && !strcmp(line, "node") && !strcmp(comm, "community") &&
+		    (!g || graph_find(g, line) < 0)) {
+			/* a header line; result.c's memberships.tsv escapes names */
+			escaped = end && !strncmp(end + 1, "strength", 8) &&
+				  (end[9] == '\0' || end[9] == '\t');
+			continue;
+		}
+		if (escaped)
+			unescape_name(line);
+		int64_t u = g ? graph_find(g, line) : names_intern(nodes, line);
+		if (u < 0 && !g)
+			goto out;
 		if (u < 0) {
 			error("%s:%" PRIu64 ": unknown node '%s'", where, lineno,
 			      util_escape(line, what, sizeof what, 0));
@@ -323,7 +365,12 @@ int cover_load(struct cover *out, const char *path, const struct graph *g)
 		error("cannot read '%s': %s", where, strerror(errno));
 		goto out;
 	}
-	rc = build(out, g->n, r, nrec, (const char *const *)nm.name);
+	if (!g && nrec == 0) {
+		error("%s:%" PRIu64 ": expected node<TAB>community lines, found none", where,
+		      lineno + 1);
+		goto out;
+	}
+	rc = build(out, g ? g->n : nodes->count, r, nrec, (const char *const *)nm.name);
 	r = NULL; /* taken by build() */
 out:
 	free(r);
@@ -331,6 +378,43 @@ out:
 	fclose(f);
 	names_release(&nm);
 	return rc;
+}
+
+int cover_load(struct cover *out, const char *path, const struct graph *g)
+{
+	return load(out, path, g, NULL);
+}
+
+struct cover_nodes {
+	struct names t;
+};
+
+struct cover_nodes *cover_nodes_new(void)
+{
+	return util_calloc(1, sizeof(struct cover_nodes));
+}
+
+void cover_nodes_free(struct cover_nodes *t)
+{
+	if (!t)
+		return;
+	names_release(&t->t);
+	free(t);
+}
+
+uint32_t cover_nodes_count(const struct cover_nodes *t)
+{
+	return t->t.count;
+}
+
+const char *cover_nodes_name(const struct cover_nodes *t, uint32_t id)
+{
+	return id < t->t.count ? t->t.name[id] : NULL;
+}
+
+int cover_read(struct cover *out, const char *path, struct cover_nodes *nodes)
+{
+	return load(out, path, NULL, &nodes->t);
 }
 
 void cover_release(struct cover *c)

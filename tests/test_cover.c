@@ -2,6 +2,7 @@
 #include "helpers.h"
 
 #include <stdio.h>
+#include <stdlib.h>
 #include <string.h>
 
 #include "coterie/cover.h"
@@ -220,6 +221,102 @@ static void test_release_is_safe_on_zeroed_and_released(void **state)
 	assert_null(c.off);
 }
 
+/* cover_read(): two files into one node table share ids; each new name
+ * takes the next id, so the second file's new nodes follow the first's. */
+static void test_read_shares_node_ids_between_files(void **state)
+{
+	(void)state;
+	const char *dir = test_tmpdir();
+	char pa[4096];
+	snprintf(pa, sizeof pa, "%s", test_write_file(dir, "a.tsv", "x\tred\ny\tred\r\nz\tblue\n"));
+	const char *pb = test_write_file(dir, "b.tsv", "# found\nw\t1\nz\t1\nx\t2\n");
+	struct cover_nodes *nodes = cover_nodes_new();
+	assert_non_null(nodes);
+	struct cover a, b;
+	assert_int_equal(cover_read(&a, pa, nodes), 0);
+	assert_int_equal(a.n, 3);
+	assert_int_equal(cover_read(&b, pb, nodes), 0);
+	assert_int_equal(b.n, 4);
+	assert_int_equal(cover_nodes_count(nodes), 4);
+	assert_string_equal(cover_nodes_name(nodes, 0), "x");
+	assert_string_equal(cover_nodes_name(nodes, 1), "y"); /* CR removed */
+	assert_string_equal(cover_nodes_name(nodes, 3), "w");
+	assert_null(cover_nodes_name(nodes, 4));
+	a.n = b.n = cover_nodes_count(nodes);
+	assert_cover_sane(&a);
+	assert_cover_sane(&b);
+	assert_members(&a, 0, (const uint32_t[]){ 0, 1 }, 2);
+	assert_members(&b, 0, (const uint32_t[]){ 2, 3 }, 2); /* z = 2, w = 3 */
+	assert_members(&b, 1, (const uint32_t[]){ 0 }, 1);
+	cover_release(&a);
+	cover_release(&b);
+	cover_nodes_free(nodes);
+	test_rmtree(dir);
+}
+
+/* Node names are bytes: invalid UTF-8, escape sequences and a name of
+ * 100000 bytes are kept as they are; after memberships.tsv's header the
+ * escapes result.c writes (\t \n \r \\, src/result.c) are undone, and
+ * other backslashes are kept. */
+static void test_read_keeps_hostile_names_and_unescapes_memberships(void **state)
+{
+	(void)state;
+	const char *dir = test_tmpdir();
+	size_t L = 100000;
+	char *text = malloc(L + 64);
+	assert_non_null(text);
+	memset(text, 'n', L);
+	snprintf(text + L, 64, "\tc\n\xff\xfe\x1b[2J\tc\n");
+	const char *p = test_write_file(dir, "odd.tsv", text);
+	struct cover_nodes *nodes = cover_nodes_new();
+	struct cover c;
+	assert_int_equal(cover_read(&c, p, nodes), 0);
+	assert_int_equal(strlen(cover_nodes_name(nodes, 0)), L);
+	assert_string_equal(cover_nodes_name(nodes, 1), "\xff\xfe\x1b[2J");
+	cover_release(&c);
+
+	p = test_write_file(dir, "memberships.tsv",
+			    "node\tcommunity\tstrength\n"
+			    "a\\tb\t0\t1\n"
+			    "c\\\\d\\n\t0\t1\n"
+			    "e\\x\t0\t1\n");
+	assert_int_equal(cover_read(&c, p, nodes), 0);
+	assert_string_equal(cover_nodes_name(nodes, 2), "a\tb");
+	assert_string_equal(cover_nodes_name(nodes, 3), "c\\d\n");
+	assert_string_equal(cover_nodes_name(nodes, 4), "e\\x");
+	cover_release(&c);
+
+	/* a plain cover file is read as bytes: no unescaping */
+	p = test_write_file(dir, "plain.tsv", "node\tcommunity\na\\tb\t0\n");
+	assert_int_equal(cover_read(&c, p, nodes), 0);
+	assert_string_equal(cover_nodes_name(nodes, 5), "a\\tb");
+	cover_release(&c);
+	cover_nodes_free(nodes);
+	free(text);
+	test_rmtree(dir);
+}
+
+/* With no graph to say what a node is, a file without memberships (empty,
+ * comments only, or a header only) is an error naming the file. */
+static void test_read_refuses_a_file_without_memberships(void **state)
+{
+	(void)state;
+	const char *dir = test_tmpdir();
+	struct cover_nodes *nodes = cover_nodes_new();
+	struct cover c;
+	const char *p = test_write_file(dir, "empty.tsv", "");
+	assert_int_equal(cover_read(&c, p, nodes), -1);
+	assert_non_null(strstr(last_msg, "empty.tsv:1: expected node<TAB>community lines"));
+	p = test_write_file(dir, "header.tsv", "# x\nnode\tcommunity\tstrength\n");
+	assert_int_equal(cover_read(&c, p, nodes), -1);
+	assert_non_null(strstr(last_msg, "header.tsv:3:"));
+	p = test_write_file(dir, "bad.tsv", "a\tb\nc d\n");
+	assert_int_equal(cover_read(&c, p, nodes), -1);
+	assert_non_null(strstr(last_msg, "bad.tsv:2: expected node<TAB>community"));
+	cover_nodes_free(nodes);
+	test_rmtree(dir);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -239,6 +336,12 @@ int main(void)
 						teardown),
 		cmocka_unit_test_setup_teardown(test_release_is_safe_on_zeroed_and_released, setup,
 						teardown),
+		cmocka_unit_test_setup_teardown(test_read_shares_node_ids_between_files, setup,
+						teardown),
+		cmocka_unit_test_setup_teardown(
+		    test_read_keeps_hostile_names_and_unescapes_memberships, setup, teardown),
+		cmocka_unit_test_setup_teardown(test_read_refuses_a_file_without_memberships,
+						setup, teardown),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }

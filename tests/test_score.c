@@ -1,6 +1,9 @@
 /* Tests for score: overlapping NMI, max form (McDaid, Greene & Hurley,
  * arXiv:1110.2515) and LFK form (Lancichinetti, Fortunato & Kertesz, New J.
- * Phys. 11, 033015, 2009). */
+ * Phys. 11, 033015, 2009); the Omega index (Collins & Dent 1988); the
+ * average best-match F1 (Yang & Leskovec, WSDM 2013); plain NMI against
+ * scikit-learn; the counts of score_sides(). */
+#include <stdio.h>
 #include "helpers.h"
 
 #include <math.h>
@@ -392,6 +395,401 @@ static void test_constant_communities_and_mismatched_covers(void **state)
 	cover_release(&other);
 }
 
+/* ==== Omega index, best-match F1, plain NMI, counts ==================== */
+
+/*
+ * Omega index (Collins & Dent 1988), worked by hand. n = 5,
+ *   A = { A1 = {0,1,2}, A2 = {2,3} },  B = { B1 = {0,1}, B2 = {1,2,3}, B3 = {1,2} }.
+ * Communities shared by each of the 10 pairs (t_A, t_B):
+ *   01 (1,1)  02 (1,0)  03 (0,0)  04 (0,0)  12 (1,2)
+ *   13 (0,1)  14 (0,0)  23 (1,1)  24 (0,0)  34 (0,0)
+ *   agreeing: 01 03 04 14 23 24 34 = 7, observed = 7/10 = 0.7
+ *   N_A: t=0 6, t=1 4;  N_B: t=0 6, t=1 3, t=2 1
+ *   expected = (6*6 + 4*3 + 0*1) / 10^2 = 0.48
+ *   Omega = (0.7 - 0.48) / (1 - 0.48) = 0.22 / 0.52 = 11/26 = 0.4230769
+ * With a sixth node in no community of either cover, the 5 new pairs all
+ * agree at (0,0): observed = 12/15, N_A = (11, 4), N_B = (11, 3, 1),
+ *   expected = (121 + 12)/225 = 133/225,
+ *   Omega = (180 - 133)/(225 - 133) = 47/92 = 0.5108696
+ */
+static void test_omega_matches_hand_worked_example(void **state)
+{
+	(void)state;
+	struct cover a, b;
+	double om;
+	for (uint32_t n = 5; n <= 6; n++) {
+		test_make_cover(&a, n, 2, (const uint32_t[]){ 3, 2 },
+				(const uint32_t[]){ 0, 1, 2, 2, 3 });
+		test_make_cover(&b, n, 3, (const uint32_t[]){ 2, 3, 2 },
+				(const uint32_t[]){ 0, 1, 1, 2, 3, 1, 2 });
+		assert_int_equal(score_omega(&a, &b, &om), 0);
+		if (n == 5)
+			assert_true(fabs(om - 11.0 / 26.0) < 1e-12); /* worked above */
+		else
+			assert_true(fabs(om - 47.0 / 92.0) < 1e-12); /* worked above */
+		assert_true(fabs(om - (n == 5 ? 0.4230769 : 0.5108696)) < 1e-7);
+		cover_release(&a);
+		cover_release(&b);
+	}
+}
+
+/*
+ * Average best-match F1 (Yang & Leskovec, WSDM 2013), worked by hand,
+ * F1(C, D) = 2|C n D| / (|C| + |D|). n = 5,
+ *   A = { A1 = {0,1,2}, A2 = {2,3} },  B = { B1 = {0}, B2 = {1,2,3,4} }.
+ *   A1: B1 2/4 = 0.5, B2 2*2/7 = 4/7 -> 4/7;  A2: B1 0, B2 2*2/6 = 2/3 -> 2/3
+ *   A to B = (4/7 + 2/3)/2 = 13/21
+ *   B1: A1 1/2, A2 0 -> 1/2;  B2: A1 4/7, A2 2/3 -> 2/3
+ *   B to A = (1/2 + 2/3)/2 = 7/12
+ *   F1 = (13/21 + 7/12)/2 = 101/168 = 0.6011905
+ */
+static void test_f1_matches_hand_worked_example(void **state)
+{
+	(void)state;
+	struct cover a, b;
+	test_make_cover(&a, 5, 2, (const uint32_t[]){ 3, 2 }, (const uint32_t[]){ 0, 1, 2, 2, 3 });
+	test_make_cover(&b, 5, 2, (const uint32_t[]){ 1, 4 }, (const uint32_t[]){ 0, 1, 2, 3, 4 });
+	double ab, ba;
+	assert_true(fabs(score_f1(&a, &b, &ab, &ba) - 101.0 / 168.0) < 1e-12); /* above */
+	assert_true(fabs(ab - 13.0 / 21.0) < 1e-12);
+	assert_true(fabs(ba - 7.0 / 12.0) < 1e-12);
+	assert_true(fabs(score_f1(&b, &a, &ba, &ab) - 0.6011905) < 1e-7);
+	assert_true(fabs(ab - 13.0 / 21.0) < 1e-12); /* the halves swap with the order */
+	cover_release(&a);
+	cover_release(&b);
+}
+
+/*
+ * One overlapping cover, every measure by hand. n = 6, node 3 in two
+ * communities of X, node 5 in none of X:
+ *   X = { X1 = {0,1,2,3}, X2 = {3,4} },  Y = { Y1 = {0,1,2}, Y2 = {3,4,5} }.
+ * Entropies with h(w) = -(w/6) log2(w/6), L3 = log2 3:
+ *   h(1) = (1 + L3)/6, h(2) = L3/3, h(3) = 1/2, h(4) = (2/3)(L3 - 1)
+ *   H(X1) = H(X2) = h(4) + h(2) = L3 - 2/3 = 0.9182958;  H(Y1) = H(Y2) = 1
+ *   X1,Y1: a=2 b=0 c=1 d=3; h(2)+h(3) = 1.0283 >= h(0)+h(1) = 0.4308, kept;
+ *          J = h(2) + h(1) + h(3) = (4 + 3 L3)/6 = 1.4591479
+ *   X1,Y2: a=0 b=2 c=3 d=1; 0.4308 < 1.0283, discarded
+ *   X2,Y1: a=1 b=3 c=2 d=0; 0.4308 < 1.0283, discarded
+ *   X2,Y2: a=3 b=1 c=0 d=2; kept, J = h(3) + h(1) + h(2) = 1.4591479
+ *   H(Xi|Y) = J - 1 = (L3 - 2/3)/2 = 0.4591479;  H(Yj|X) = J - H(Xi) = (8 - 3 L3)/6
+ *   I = (2 H(X1) - 2(J - 1) + 2 - 2(J - H(X1)))/2 = L3 - 2/3
+ *   max form: I / max(2 H(X1), 2) = (L3 - 2/3)/2 = 0.4591479
+ *   LFK form: 1 - (1/2 + (8 - 3 L3)/6)/2 = (1 + 3 L3)/12 = 0.4795740
+ * Omega: pairs sharing a community, (t_X, t_Y): 01 02 12 (1,1), 03 13 23
+ *   (1,0), 34 (1,1), 35 45 (0,1); the other 6 pairs (0,0).
+ *   agree = 3 + 1 + 6 = 10 of 15; N_X = (8, 7), N_Y = (9, 6)
+ *   expected = (8*9 + 7*6)/225 = 114/225; Omega = (150 - 114)/(225 - 114) = 12/37
+ * F1: X1 best Y1 2*3/7 = 6/7, X2 best Y2 2*2/5 = 4/5; Y1 best X1 6/7, Y2
+ *   best X2 4/5; both halves (6/7 + 4/5)/2 = 29/35 = 0.8285714.
+ */
+static void test_overlapping_cover_worked_by_hand_for_every_measure(void **state)
+{
+	(void)state;
+	struct cover x, y;
+	test_make_cover(&x, 6, 2, (const uint32_t[]){ 4, 2 }, (const uint32_t[]){ 0, 1, 2, 3, 3, 4 });
+	test_make_cover(&y, 6, 2, (const uint32_t[]){ 3, 3 }, (const uint32_t[]){ 0, 1, 2, 3, 4, 5 });
+	double om, ab, ba, nmi = 42;
+	assert_true(fabs(score_onmi_max(&x, &y) - (L3 - 2.0 / 3.0) / 2.0) < 1e-12); /* above */
+	assert_true(fabs(score_onmi_max(&x, &y) - 0.4591479) < 1e-7);
+	assert_true(fabs(score_onmi_lfk(&x, &y) - (1.0 + 3.0 * L3) / 12.0) < 1e-12); /* above */
+	assert_true(fabs(score_onmi_lfk(&x, &y) - 0.4795740) < 1e-7);
+	assert_int_equal(score_omega(&x, &y, &om), 0);
+	assert_true(fabs(om - 12.0 / 37.0) < 1e-12); /* above */
+	assert_true(fabs(score_f1(&x, &y, &ab, &ba) - 29.0 / 35.0) < 1e-12); /* above */
+	assert_true(fabs(ab - 29.0 / 35.0) < 1e-12 && fabs(ba - 29.0 / 35.0) < 1e-12);
+	assert_int_equal(score_nmi(&x, &y, &nmi), 0); /* X is no partition */
+	cover_release(&x);
+	cover_release(&y);
+}
+
+/* The Omega index over every pair, straight from Collins & Dent's
+ * definition, written independently of score.c's classes of nodes. */
+static double brute_omega(const struct cover *a, const struct cover *b)
+{
+	uint8_t *da = dense(a), *db = dense(b);
+	uint32_t n = a->n, kmax = (a->k > b->k ? a->k : b->k) + 1;
+	double *na = calloc(kmax, sizeof *na), *nb = calloc(kmax, sizeof *nb);
+	assert_true(na && nb);
+	double M = 0, agree = 0;
+	for (uint32_t u = 0; u < n; u++)
+		for (uint32_t v = u + 1; v < n; v++) {
+			uint32_t ta = 0, tb = 0;
+			for (uint32_t i = 0; i < a->k; i++)
+				ta += da[(size_t)i * n + u] && da[(size_t)i * n + v];
+			for (uint32_t j = 0; j < b->k; j++)
+				tb += db[(size_t)j * n + u] && db[(size_t)j * n + v];
+			M++;
+			agree += ta == tb;
+			na[ta]++;
+			nb[tb]++;
+		}
+	double exp_ = 0;
+	for (uint32_t k = 0; k < kmax; k++)
+		exp_ += na[k] * nb[k] / (M * M);
+	free(na);
+	free(nb);
+	free(da);
+	free(db);
+	return (agree / M - exp_) / (1.0 - exp_);
+}
+
+/* Covers with nested and repeated communities, so many nodes share the
+ * same lists (the classes score.c enumerates) and pairs share 2 or more. */
+static void nested_cover(struct cover *c, struct rng *r, uint32_t n, uint32_t k)
+{
+	uint32_t sizes[16];
+	for (uint32_t i = 0; i < k; i++)
+		sizes[i] = 1 + (uint32_t)rng_below(r, n - 1);
+	if (k > 2)
+		sizes[k - 1] = sizes[k - 2]; /* a repeated size */
+	random_cover(c, r, n, k, sizes);
+}
+
+static void test_omega_matches_all_pairs_definition(void **state)
+{
+	(void)state;
+	struct rng r;
+	rng_init(&r, 4242);
+	for (int trial = 0; trial < 30; trial++) {
+		uint32_t n = 2 + (uint32_t)rng_below(&r, 60);
+		struct cover a, b;
+		nested_cover(&a, &r, n, 1 + (uint32_t)rng_below(&r, 10));
+		nested_cover(&b, &r, n, 1 + (uint32_t)rng_below(&r, 10));
+		double om, want = brute_omega(&a, &b);
+		assert_int_equal(score_omega(&a, &b, &om), 0);
+		if (isfinite(want)) /* expected = 1 is the limit case tested elsewhere */
+			assert_true(fabs(om - want) < 1e-12);
+		cover_release(&a);
+		cover_release(&b);
+	}
+}
+
+/* Omega with communities big enough (more than 2048 kinds of member, see
+ * score.c) to be counted by masks rather than pair by pair, against the
+ * all-pairs definition (Collins & Dent 1988) over 4000 nodes, computed
+ * here with one bit per community and node. */
+static void test_omega_with_giant_communities_matches_all_pairs(void **state)
+{
+	(void)state;
+	struct rng r;
+	rng_init(&r, 2026);
+	const uint32_t n = 4000;
+	/* A: a giant of 3000 and 40 of 150; B: two big (2500, 2200), 30 of 200 */
+	uint32_t sa[41], sb[32];
+	sa[0] = 3000;
+	for (int i = 1; i < 41; i++)
+		sa[i] = 150;
+	sb[0] = 2500;
+	sb[1] = 2200;
+	for (int i = 2; i < 32; i++)
+		sb[i] = 200;
+	struct cover a, b;
+	random_cover(&a, &r, n, 41, sa);
+	random_cover(&b, &r, n, 32, sb);
+	uint64_t *ba = calloc(n, sizeof *ba), *bb = calloc(n, sizeof *bb);
+	assert_true(ba && bb);
+	for (uint32_t i = 0; i < a.k; i++)
+		for (uint64_t j = a.off[i]; j < a.off[i + 1]; j++)
+			ba[a.mem[j]] |= (uint64_t)1 << i;
+	for (uint32_t i = 0; i < b.k; i++)
+		for (uint64_t j = b.off[i]; j < b.off[i + 1]; j++)
+			bb[b.mem[j]] |= (uint64_t)1 << i;
+	double na[65] = { 0 }, nb[65] = { 0 }, M = 0, agree = 0;
+	for (uint32_t u = 0; u < n; u++)
+		for (uint32_t v = u + 1; v < n; v++) {
+			int ta = __builtin_popcountll(ba[u] & ba[v]);
+			int tb = __builtin_popcountll(bb[u] & bb[v]);
+			M++;
+			agree += ta == tb;
+			na[ta]++;
+			nb[tb]++;
+		}
+	double exp_ = 0;
+	for (int k = 0; k < 65; k++)
+		exp_ += na[k] * nb[k] / (M * M);
+	double want = (agree / M - exp_) / (1.0 - exp_), om;
+	assert_int_equal(score_omega(&a, &b, &om), 0);
+	assert_true(fabs(om - want) < 1e-12);
+	assert_int_equal(score_omega(&b, &a, &om), 0);
+	assert_true(fabs(om - want) < 1e-12);
+	assert_int_equal(score_omega(&a, &a, &om), 0);
+	assert_true(fabs(om - 1.0) < 1e-12);
+	free(ba);
+	free(bb);
+	cover_release(&a);
+	cover_release(&b);
+}
+
+/* Identical covers: 1 for every measure (each paper's definition gives 1
+ * at equality; Omega: observed = 1). */
+static void test_every_measure_is_one_for_identical_covers(void **state)
+{
+	(void)state;
+	struct rng r;
+	rng_init(&r, 11);
+	for (int trial = 0; trial < 10; trial++) {
+		struct cover a;
+		nested_cover(&a, &r, 10 + (uint32_t)rng_below(&r, 90), 1 + (uint32_t)rng_below(&r, 12));
+		double om, ab, ba, nmi = -1;
+		assert_true(fabs(score_onmi_max(&a, &a) - 1.0) < 1e-12);
+		assert_true(fabs(score_onmi_lfk(&a, &a) - 1.0) < 1e-12);
+		assert_int_equal(score_omega(&a, &a, &om), 0);
+		assert_true(fabs(om - 1.0) < 1e-12);
+		assert_true(fabs(score_f1(&a, &a, &ab, &ba) - 1.0) < 1e-12);
+		assert_true(ab == 1.0 && ba == 1.0);
+		cover_release(&a);
+
+		/* a partition, for plain NMI as well */
+		uint32_t n = 5 + (uint32_t)rng_below(&r, 50);
+		int64_t *lab = malloc(n * sizeof *lab);
+		assert_non_null(lab);
+		for (uint32_t u = 0; u < n; u++)
+			lab[u] = (int64_t)rng_below(&r, 1 + trial);
+		assert_int_equal(cover_from_membership(&a, n, lab), 0);
+		assert_int_equal(score_nmi(&a, &a, &nmi), 1);
+		assert_true(fabs(nmi - 1.0) < 1e-12);
+		assert_int_equal(score_omega(&a, &a, &om), 0);
+		assert_true(fabs(om - 1.0) < 1e-12);
+		free(lab);
+		cover_release(&a);
+	}
+}
+
+/* ONMI max, Omega and the average F1 are symmetric in their arguments by
+ * definition (each is built from symmetric terms). */
+static void test_symmetric_measures_are_symmetric(void **state)
+{
+	(void)state;
+	struct rng r;
+	rng_init(&r, 77);
+	for (int trial = 0; trial < 20; trial++) {
+		uint32_t n = 3 + (uint32_t)rng_below(&r, 120);
+		struct cover a, b;
+		nested_cover(&a, &r, n, 1 + (uint32_t)rng_below(&r, 12));
+		nested_cover(&b, &r, n, 1 + (uint32_t)rng_below(&r, 12));
+		double o1, o2;
+		assert_int_equal(score_omega(&a, &b, &o1), 0);
+		assert_int_equal(score_omega(&b, &a, &o2), 0);
+		assert_true(fabs(o1 - o2) < 1e-12 && o1 <= 1.0 + 1e-12);
+		assert_true(fabs(score_f1(&a, &b, NULL, NULL) - score_f1(&b, &a, NULL, NULL)) < 1e-12);
+		assert_true(fabs(score_onmi_max(&a, &b) - score_onmi_max(&b, &a)) < 1e-12);
+		cover_release(&a);
+		cover_release(&b);
+	}
+}
+
+/* Plain NMI against scikit-learn 1.2.1 (Debian python3-sklearn
+ * 1.2.1+dfsg-1), normalized_mutual_info_score with average_method=
+ * 'arithmetic': tests/data/nmi/expected.tsv, written by
+ * tests/data/nmi/make.py from the partitions beside it. */
+static void test_plain_nmi_matches_scikit_learn(void **state)
+{
+	(void)state;
+	char path[4096];
+	snprintf(path, sizeof path, "%s", test_data("nmi/expected.tsv"));
+	FILE *f = fopen(path, "r");
+	assert_non_null(f);
+	char line[256];
+	int cases = 0;
+	while (fgets(line, sizeof line, f)) {
+		if (line[0] == '#')
+			continue;
+		char name[64];
+		double want;
+		assert_int_equal(sscanf(line, "%63s %lf", name, &want), 2);
+		char pa[4096], pb[4096], rel[128];
+		snprintf(rel, sizeof rel, "nmi/%s.a.tsv", name);
+		snprintf(pa, sizeof pa, "%s", test_data(rel));
+		snprintf(rel, sizeof rel, "nmi/%s.b.tsv", name);
+		snprintf(pb, sizeof pb, "%s", test_data(rel));
+		struct cover_nodes *nodes = cover_nodes_new();
+		struct cover a, b;
+		assert_non_null(nodes);
+		assert_int_equal(cover_read(&a, pa, nodes), 0);
+		assert_int_equal(cover_read(&b, pb, nodes), 0);
+		a.n = b.n = cover_nodes_count(nodes);
+		double got = -1;
+		assert_int_equal(score_nmi(&a, &b, &got), 1);
+		assert_true(fabs(got - want) < 1e-9); /* scikit-learn 1.2.1, see above */
+		cover_release(&a);
+		cover_release(&b);
+		cover_nodes_free(nodes);
+		cases++;
+	}
+	fclose(f);
+	assert_int_equal(cases, 9);
+}
+
+/* NMI is for partitions only: a node in two communities, or in none, and
+ * it does not apply (score.h). */
+static void test_plain_nmi_needs_two_partitions(void **state)
+{
+	(void)state;
+	struct cover a, b;
+	double v = 42;
+	test_make_cover(&a, 4, 2, (const uint32_t[]){ 2, 2 }, (const uint32_t[]){ 0, 1, 2, 3 });
+	test_make_cover(&b, 4, 2, (const uint32_t[]){ 3, 2 }, (const uint32_t[]){ 0, 1, 2, 2, 3 });
+	assert_int_equal(score_nmi(&a, &b, &v), 0); /* node 2 in two */
+	cover_release(&b);
+	test_make_cover(&b, 4, 2, (const uint32_t[]){ 2, 1 }, (const uint32_t[]){ 0, 1, 3 });
+	assert_int_equal(score_nmi(&b, &a, &v), 0); /* node 2 in none */
+	assert_true(v == 42);
+	cover_release(&a);
+	cover_release(&b);
+}
+
+/* Counts: A = {0,1,2},{2,3} and B = {0,1},{1,2,3,4},{1,2} of n = 6 (node
+ * 5 in neither, node 4 only in B): by inspection A has 2 communities, 4
+ * covered nodes (0-3), 1 overlapping (2), none only in A; B has 3, 5
+ * covered (0-4), 2 overlapping (1 in three, 2 in two), 1 only in B (4). */
+static void test_sides_count_communities_and_nodes(void **state)
+{
+	(void)state;
+	struct cover a, b;
+	test_make_cover(&a, 6, 2, (const uint32_t[]){ 3, 2 }, (const uint32_t[]){ 0, 1, 2, 2, 3 });
+	test_make_cover(&b, 6, 3, (const uint32_t[]){ 2, 4, 2 },
+			(const uint32_t[]){ 0, 1, 1, 2, 3, 4, 1, 2 });
+	struct score_side sa, sb;
+	assert_int_equal(score_sides(&a, &b, &sa, &sb), 0);
+	assert_int_equal(sa.communities, 2);
+	assert_int_equal(sa.covered, 4);
+	assert_int_equal(sa.overlapping, 1);
+	assert_int_equal(sa.only, 0);
+	assert_int_equal(sb.communities, 3);
+	assert_int_equal(sb.covered, 5);
+	assert_int_equal(sb.overlapping, 2);
+	assert_int_equal(sb.only, 1);
+	cover_release(&a);
+	cover_release(&b);
+}
+
+/* Limit cases of score.h: one node (no pair) and every pair sharing the
+ * same number of communities on both sides (expected = 1) give Omega 1;
+ * different n is an error. */
+static void test_omega_limit_cases(void **state)
+{
+	(void)state;
+	struct cover a, b, c;
+	double om = 0;
+	test_make_cover(&a, 1, 1, (const uint32_t[]){ 1 }, (const uint32_t[]){ 0 });
+	assert_int_equal(score_omega(&a, &a, &om), 0);
+	assert_true(om == 1.0);
+	cover_release(&a);
+	test_make_cover(&a, 3, 1, (const uint32_t[]){ 3 }, (const uint32_t[]){ 0, 1, 2 });
+	test_make_cover(&b, 3, 2, (const uint32_t[]){ 3, 3 }, (const uint32_t[]){ 0, 1, 2, 0, 1, 2 });
+	assert_int_equal(score_omega(&a, &a, &om), 0);
+	assert_true(om == 1.0);
+	/* all pairs at 1 against all pairs at 2: observed 0, expected 0, Omega 0 */
+	assert_int_equal(score_omega(&a, &b, &om), 0);
+	assert_true(om == 0.0);
+	test_make_cover(&c, 4, 1, (const uint32_t[]){ 2 }, (const uint32_t[]){ 0, 1 });
+	assert_int_equal(score_omega(&a, &c, &om), -1);
+	assert_true(score_f1(&a, &c, NULL, NULL) == -1.0);
+	cover_release(&a);
+	cover_release(&b);
+	cover_release(&c);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -403,6 +801,17 @@ int main(void)
 		cmocka_unit_test(test_scores_are_symmetric_and_in_unit_range),
 		cmocka_unit_test(test_random_cover_of_same_sizes_scores_low),
 		cmocka_unit_test(test_constant_communities_and_mismatched_covers),
+		cmocka_unit_test(test_omega_matches_hand_worked_example),
+		cmocka_unit_test(test_f1_matches_hand_worked_example),
+		cmocka_unit_test(test_overlapping_cover_worked_by_hand_for_every_measure),
+		cmocka_unit_test(test_omega_matches_all_pairs_definition),
+		cmocka_unit_test(test_omega_with_giant_communities_matches_all_pairs),
+		cmocka_unit_test(test_every_measure_is_one_for_identical_covers),
+		cmocka_unit_test(test_symmetric_measures_are_symmetric),
+		cmocka_unit_test(test_plain_nmi_matches_scikit_learn),
+		cmocka_unit_test(test_plain_nmi_needs_two_partitions),
+		cmocka_unit_test(test_sides_count_communities_and_nodes),
+		cmocka_unit_test(test_omega_limit_cases),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }

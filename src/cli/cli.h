@@ -92,5 +92,6 @@ int cmd_fit(int argc, char **argv);
 int cmd_show(int argc, char **argv);
 int cmd_explore(int argc, char **argv);
 int cmd_simulate(int argc, char **argv);
+int cmd_compare(int argc, char **argv);
 
 #endif

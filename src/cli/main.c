@@ -16,6 +16,7 @@ static const struct {
 	{ "show", cmd_show, "print a result's communities, a node or weak edges, as text or JSON" },
 	{ "explore", cmd_explore, "fit in the background and browse the communities, or browse a result" },
 	{ "simulate", cmd_simulate, "sample a graph with planted overlapping communities (an AGM)" },
+	{ "compare", cmd_compare, "score a found cover against a known one (overlapping NMI, Omega, F1)" },
 };
 
 static void usage(FILE *out)
