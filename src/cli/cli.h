@@ -40,6 +40,7 @@ void cli_option_error(int c, char **argv);
 int cli_signals_install(void);
 int cli_signal_fd(void);
 int cli_signal_caught(void); /* the signal number, or 0 */
+int cli_signal_count(void);  /* how many have come */
 
 /* Peak resident memory of this process in KiB (0 if unknown). */
 uint64_t cli_peak_rss_kb(void);

@@ -80,13 +80,15 @@ void cli_option_error(int c, char **argv)
 		error("unknown option '%s'", util_escape(argv[optind - 1], buf, sizeof buf, 1));
 }
 
-static volatile sig_atomic_t caught;
+static volatile sig_atomic_t caught, ncaught;
 static int sigpipe_fd[2] = { -1, -1 };
 
 static void on_signal(int sig)
 {
 	int saved = errno;
 	caught = sig;
+	if (ncaught < 1000)
+		ncaught++;
 	if (sigpipe_fd[1] >= 0) {
 		char b = 1;
 		ssize_t w = write(sigpipe_fd[1], &b, 1);
@@ -124,6 +126,11 @@ int cli_signal_fd(void)
 int cli_signal_caught(void)
 {
 	return caught;
+}
+
+int cli_signal_count(void)
+{
+	return ncaught;
 }
 
 uint64_t cli_peak_rss_kb(void)

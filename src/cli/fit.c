@@ -50,7 +50,9 @@ static void fit_usage(FILE *out)
 		"      --epsilon X       background link probability (default: the density)\n"
 		"      --format F        edges, gml, graphml or pajek (default: by extension)\n"
 		"      --resume DIR      continue the fit saved in DIR (same graph only)\n"
-		"      --save-every S    write a checkpoint every S seconds (default 120)\n"
+		"      --checkpoint-every SECONDS\n"
+		"                        write a checkpoint to the result folder that often\n"
+		"                        while fitting (default 120; --resume goes on from it)\n"
 		"  -q, --quiet           no progress or notices\n"
 		"  -h, --help            this text\n");
 }
@@ -164,7 +166,7 @@ static int choose_k(const struct graph *g, struct fit_params *p, const char *out
 enum {
 	OPT_PAST_PLATEAU = CLI_OPT_OWN,
 	OPT_RESUME,
-	OPT_SAVE_EVERY,
+	OPT_CHECKPOINT_EVERY,
 	OPT_K_RANGE,
 	OPT_HOLDOUT,
 };
@@ -183,7 +185,7 @@ int cmd_fit(int argc, char **argv)
 		{ "epsilon", required_argument, NULL, CLI_OPT_EPSILON },
 		{ "format", required_argument, NULL, CLI_OPT_FORMAT },
 		{ "resume", required_argument, NULL, OPT_RESUME },
-		{ "save-every", required_argument, NULL, OPT_SAVE_EVERY },
+		{ "checkpoint-every", required_argument, NULL, OPT_CHECKPOINT_EVERY },
 		{ "starts", required_argument, NULL, CLI_OPT_STARTS },
 		{ "no-refine", no_argument, NULL, CLI_OPT_NO_REFINE },
 		{ "k-range", required_argument, NULL, OPT_K_RANGE },
@@ -227,7 +229,9 @@ int cmd_fit(int argc, char **argv)
 		case 'o': out = optarg; break;
 		case OPT_PAST_PLATEAU: o.p.past_plateau = 1; break;
 		case OPT_RESUME: resume = optarg; break;
-		case OPT_SAVE_EVERY: save_every = cli_double("--save-every", optarg, 1.0, 1e9); break;
+		case OPT_CHECKPOINT_EVERY:
+			save_every = cli_double("--checkpoint-every", optarg, 1.0, 1e9);
+			break;
 		case 'q': quiet = 1; break;
 		case 'h': fit_usage(stdout); return 0;
 		default:
@@ -286,7 +290,10 @@ int cmd_fit(int argc, char **argv)
 			die(EXIT_USAGE, "-k auto cannot be used when resuming");
 		cli_fit_opts_resume(&o, &ck.params, "when resuming", &p);
 		p.hold_at_plateau = 0;
-		if (ck.state == FIT_LEVELLED && !p.past_plateau)
+		if (ck.resume)
+			notice("the saved fit was interrupted in start %u of %u; it goes on from there",
+			       ck.resume->start, p.starts);
+		else if (ck.state == FIT_LEVELLED && !p.past_plateau)
 			notice("the saved fit had levelled off; it goes on until it levels off again");
 		checkpoint_origin(&ck, &origin);
 		orig = &origin;
@@ -333,9 +340,19 @@ int cmd_fit(int argc, char **argv)
 		poll(pfd, 2, 500);
 		fit_drain_wake(f);
 		if (cli_signal_caught() && !interrupted) {
+			/* the sweep in progress ends first, so that --resume
+			 * continues exactly; a second signal stops at once */
 			interrupted = 1;
 			progress_break(&pr);
-			notice("interrupted: stopping the fit and saving to '%s'", out);
+			notice("interrupted: ending the sweep in progress and saving to '%s' "
+			       "(interrupt again to stop at once)", out);
+			fit_interrupt(f);
+		}
+		if (cli_signal_count() >= 2 && interrupted == 1) {
+			interrupted = 2;
+			progress_break(&pr);
+			notice("interrupted again: stopping inside the sweep; a resumed fit goes on "
+			       "from the model as it is");
 			fit_stop(f);
 		}
 		enum fit_state st = fit_get_state(f);
