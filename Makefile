@@ -103,12 +103,22 @@ clean:
 
 -include $(shell find build* -name '*.d' 2>/dev/null)
 
-# Fuzz the graph loader with libFuzzer (needs clang; FUZZ_SECONDS=60 by default).
+# Fuzz the readers of hostile files with libFuzzer (needs clang): each
+# harness tests/fuzz/fuzz_NAME.c runs for FUZZ_SECONDS (default 60) on its
+# seed corpus tests/fuzz/corpus/NAME plus what it found before, kept in
+# build/fuzz/corpus-NAME. A crash leaves its input in build/fuzz/.
 FUZZ_SECONDS ?= 60
-fuzz:
-	@mkdir -p build/fuzz-corpus
-	clang -std=c11 -D_POSIX_C_SOURCE=200809L -D_DEFAULT_SOURCE -g -O1 \
-	  -fsanitize=fuzzer,address,undefined -Iinclude $(PKG_CFLAGS) \
-	  tests/fuzz/fuzz_graph.c src/graph.c src/util.c \
-	  $(shell pkg-config --libs igraph zlib) -lm -o build/fuzz_graph
-	./build/fuzz_graph -max_total_time=$(FUZZ_SECONDS) build/fuzz-corpus
+FUZZ_TARGETS := graph checkpoint
+FUZZ_CC ?= clang
+FUZZ_CFLAGS := -std=c11 -D_POSIX_C_SOURCE=200809L -D_DEFAULT_SOURCE -D_XOPEN_SOURCE=700 \
+               -pthread -g -O1 -fsanitize=fuzzer,address,undefined -Iinclude $(PKG_CFLAGS)
+build/fuzz/fuzz_%: tests/fuzz/fuzz_%.c $(CORE_SRC)
+	@mkdir -p build/fuzz
+	$(FUZZ_CC) $(FUZZ_CFLAGS) $< $(CORE_SRC) $(PKG_LIBS) -lm -o $@
+fuzz: $(FUZZ_TARGETS:%=build/fuzz/fuzz_%)
+	@for t in $(FUZZ_TARGETS); do \
+	  mkdir -p build/fuzz/corpus-$$t; \
+	  echo "== fuzz_$$t for $(FUZZ_SECONDS) s"; \
+	  ./build/fuzz/fuzz_$$t -max_total_time=$(FUZZ_SECONDS) -print_final_stats=1 \
+	    -artifact_prefix=build/fuzz/$$t- build/fuzz/corpus-$$t tests/fuzz/corpus/$$t || exit 1; \
+	done

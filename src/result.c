@@ -574,7 +574,9 @@ static const char *check_strengths(const struct fcsr *F, char *why, size_t cap)
 		return why;
 	}
 	for (uint32_t u = 0; u < F->n; u++) {
-		if (F->off[u + 1] < F->off[u]) {
+		/* bounded by the last offset before any entry is looked at: a
+		 * later row's offset may be the one that goes back down */
+		if (F->off[u + 1] < F->off[u] || F->off[u + 1] > F->off[F->n]) {
 			snprintf(why, cap, "row offsets decrease at node %" PRIu32, u);
 			return why;
 		}
