@@ -834,7 +834,7 @@ static int edge_line(struct edge_state *st, const char *line, size_t len, uint64
 	if (len == 0 || line[0] == '#' || line[0] == '%')
 		return 0;
 	if (memchr(line, '\0', len))
-		return error("%s:%" PRIu64 ": NUL byte in line", st->shown, lineno);
+		return error("%s:%" PRIu64 ": expected text, found a NUL byte", st->shown, lineno);
 	if (is_blank(line, len))
 		return 0;
 	enum sep_mode mode = memchr(line, '\t', len)   ? SEP_TAB
@@ -908,8 +908,9 @@ static struct graph *load_edges(const char *path, const char *shown)
 				}
 				if (len == cap) {
 					if (cap >= LINE_MAX_BYTES) {
-						error("%s:%" PRIu64 ": line longer than %zu MiB",
-						      shown, lineno + 1, LINE_MAX_BYTES >> 20);
+						error("%s:%" PRIu64 ": expected a line of at most %zu "
+						      "MiB, found a longer one", shown, lineno + 1,
+						      LINE_MAX_BYTES >> 20);
 						goto fail;
 					}
 					char *nb = util_realloc(buf, cap * 2, 1);

@@ -7,11 +7,11 @@
  * checked, then renamed onto NAME and the folder fsync()ed. Any failure
  * removes the temporary file and leaves the old NAME as it was.
  *
- * result_write() writes checkpoint.cot first and run.json last. The
- * checkpoint is the one file that cannot be rebuilt from the others (it
- * alone holds the strengths), so it is saved before anything that might
- * fail for lack of space; run.json, written last, marks a folder whose
- * files all belong to the same snapshot.
+ * result_write() stages all five files (written, synced, closed under
+ * their temporary names) before it renames any of them, so a full disk or
+ * any write error leaves the old folder whole; then it renames the
+ * checkpoint first (it alone holds the strengths) and run.json last, which
+ * marks a folder whose files all belong to the same snapshot.
  *
  * The one thing a newcomer gets wrong: a checkpoint is hostile input like
  * any other file. The reader decodes from a bounded cursor that checks
@@ -425,13 +425,16 @@ static void wf_tsv_name(struct wfile *w, const char *s)
 typedef int (*fill_fn)(struct wfile *w, const void *arg);
 
 /*
- * Write path through fill (which reports its own errors and returns -1;
- * I/O errors are collected in w->err and reported here). The bytes go to
- * DIR/.NAME.tmp-PID, which is synced, closed and renamed onto path.
+ * Stage path: write it through fill (which reports its own errors and
+ * returns -1; I/O errors are collected in w->err and reported here) to
+ * DIR/.NAME.tmp-PID, flushed, fsync()ed and closed. On success *tmp_out is
+ * that temporary name (caller frees), ready for rename(); on failure it is
+ * removed and *tmp_out is NULL.
  */
-static int atomic_write(const char *path, fill_fn fill, const void *arg)
+static int stage(const char *path, fill_fn fill, const void *arg, char **tmp_out)
 {
 	char *dir, *base;
+	*tmp_out = NULL;
 	if (path_split(path, &dir, &base) != 0)
 		return -1;
 	char *tmpname = util_malloc(strlen(base) + 32, 1);
@@ -472,12 +475,10 @@ static int atomic_write(const char *path, fill_fn fill, const void *arg)
 		error("cannot write '%s': %s", path, strerror(errno));
 		goto out;
 	}
-	if (rename(tmp, path) != 0) {
-		error("cannot replace '%s': %s", path, strerror(errno));
-		goto out;
-	}
 	made = 0;
-	rc = sync_dir(dir);
+	*tmp_out = tmp;
+	tmp = NULL;
+	rc = 0;
 out:
 	if (fd >= 0)
 		close(fd);
@@ -489,6 +490,40 @@ out:
 	free(dir);
 	free(base);
 	return rc;
+}
+
+/* Rename a staged file onto path; on failure the staged file is removed. */
+static int commit(char *tmp, const char *path)
+{
+	int rc = 0;
+	if (rename(tmp, path) != 0) {
+		rc = error("cannot replace '%s': %s", path, strerror(errno));
+		unlink(tmp);
+	}
+	free(tmp);
+	return rc;
+}
+
+/* The folder of path, synced after a rename in it. */
+static int sync_dir_of(const char *path)
+{
+	char *dir, *base;
+	if (path_split(path, &dir, &base) != 0)
+		return -1;
+	int rc = sync_dir(dir);
+	free(dir);
+	free(base);
+	return rc;
+}
+
+/* Replace path by what fill writes: the old file or the new one is there
+ * at every moment, never a part of one. */
+static int atomic_write(const char *path, fill_fn fill, const void *arg)
+{
+	char *tmp;
+	if (stage(path, fill, arg, &tmp) || commit(tmp, path))
+		return -1;
+	return sync_dir_of(path);
 }
 
 /* ------------------------------------------------------------------ */
@@ -799,8 +834,9 @@ static int fill_checkpoint(struct wfile *w, const void *arg)
 	return 0;
 }
 
-int result_write_checkpoint(const char *path, const struct graph *g,
-			    const struct fit_params *p, const struct snapshot *s)
+/* Refuse to save what the reader would refuse. 0 or -1. */
+static int checkpoint_ok(const char *path, const struct graph *g, const struct fit_params *p,
+			 const struct snapshot *s)
 {
 	char why[256];
 	const char *bad = NULL;
@@ -828,6 +864,14 @@ int result_write_checkpoint(const char *path, const struct graph *g,
 		bad = check_resume(s->resume, g->n, p, why, sizeof why);
 	if (bad)
 		return error("cannot write checkpoint '%s': %s", path, bad);
+	return 0;
+}
+
+int result_write_checkpoint(const char *path, const struct graph *g,
+			    const struct fit_params *p, const struct snapshot *s)
+{
+	if (checkpoint_ok(path, g, p, s))
+		return -1;
 	struct ck_args a = { g, p, s };
 	return atomic_write(path, fill_checkpoint, &a);
 }
@@ -1661,33 +1705,51 @@ static int check_agm(const struct graph *g, const struct snapshot *s)
 int result_write(const char *dir, const struct graph *g, const struct fit_params *p,
 		 const struct snapshot *s, const struct result_meta *meta)
 {
-	static const struct {
-		const char *name;
-		fill_fn fill;
-	} tsv[] = {
-		{ "memberships.tsv", fill_memberships },
-		{ "communities.tsv", fill_communities },
-		{ "trace.tsv", fill_trace },
+	/* every file is staged first, and only when all five are on disk are
+	 * they renamed into place (the checkpoint first, run.json last): a
+	 * full disk or a write error leaves the old folder as it was */
+	enum { NFILES = 5 };
+	static const char *const names[NFILES] = {
+		RESULT_CHECKPOINT, "memberships.tsv", "communities.tsv", "trace.tsv", "run.json",
 	};
+	char *paths[NFILES] = { 0 }, *tmps[NFILES] = { 0 };
+	char *text = NULL;
+	int rc = -1;
 	if (check_agm(g, s) || make_dirs(dir))
 		return -1;
-	char *path = path_join(dir, RESULT_CHECKPOINT);
-	if (!path)
-		return -1;
-	int rc = result_write_checkpoint(path, g, p, s);
-	free(path);
-	struct tsv_args a = { g, s };
-	for (size_t i = 0; rc == 0 && i < sizeof tsv / sizeof tsv[0]; i++) {
-		path = path_join(dir, tsv[i].name);
-		rc = path ? atomic_write(path, tsv[i].fill, &a) : -1;
-		free(path);
+	for (int i = 0; i < NFILES; i++)
+		if (!(paths[i] = path_join(dir, names[i])))
+			goto out;
+	struct ck_args ca = { g, p, s };
+	struct tsv_args ta = { g, s };
+	if (checkpoint_ok(paths[0], g, p, s) || stage(paths[0], fill_checkpoint, &ca, &tmps[0]) ||
+	    stage(paths[1], fill_memberships, &ta, &tmps[1]) ||
+	    stage(paths[2], fill_communities, &ta, &tmps[2]) ||
+	    stage(paths[3], fill_trace, &ta, &tmps[3]))
+		goto out;
+	text = run_json(g, p, s, meta);
+	if (!text || stage(paths[4], fill_text, text, &tmps[4]))
+		goto out;
+	rc = 0;
+	for (int i = 0; i < NFILES; i++) {
+		if (rc == 0) {
+			rc = commit(tmps[i], paths[i]);
+		} else {
+			unlink(tmps[i]);
+			free(tmps[i]);
+		}
+		tmps[i] = NULL;
 	}
-	if (rc)
-		return -1;
-	char *text = run_json(g, p, s, meta);
-	path = text ? path_join(dir, "run.json") : NULL;
-	rc = path ? atomic_write(path, fill_text, text) : -1;
-	free(path);
+	if (rc == 0)
+		rc = sync_dir(dir);
+out:
+	for (int i = 0; i < NFILES; i++) {
+		if (tmps[i]) {
+			unlink(tmps[i]);
+			free(tmps[i]);
+		}
+		free(paths[i]);
+	}
 	free(text);
 	return rc;
 }

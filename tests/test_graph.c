@@ -470,7 +470,7 @@ static void test_nul_byte_is_an_error_naming_the_line(void **state)
 	struct graph *g = graph_load(p, GRAPH_FORMAT_EDGES);
 	capture_stop();
 	assert_null(g);
-	assert_int_equal(captured_with("nul.tsv:2: NUL byte"), 1);
+	assert_int_equal(captured_with("nul.tsv:2: expected text, found a NUL byte"), 1);
 }
 
 static void test_missing_file_is_an_error(void **state)
@@ -538,7 +538,7 @@ static void test_long_lines_work_up_to_the_limit(void **state)
 	g = graph_load(p, GRAPH_FORMAT_EDGES);
 	capture_stop();
 	assert_null(g);
-	assert_int_equal(captured_with("huge.tsv:2: line longer than 16 MiB"), 1);
+	assert_int_equal(captured_with("huge.tsv:2: expected a line of at most 16 MiB"), 1);
 }
 
 /* ---- igraph formats ---------------------------------------------------- */

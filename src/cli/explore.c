@@ -26,6 +26,7 @@
 #include "cli.h"
 #include "coterie/fit.h"
 #include "coterie/graph.h"
+#include "coterie/memory.h"
 #include "coterie/result.h"
 
 static void explore_usage(FILE *out)
@@ -245,6 +246,11 @@ int cmd_explore(int argc, char **argv)
 		g = graph_load(arg, o.fmt);
 		if (!g)
 			return 1;
+		if (cli_graph_fittable(g, arg)) {
+			graph_free(g);
+			return 1;
+		}
+		cli_k_fits(p.k, g);
 		cli_fit_opts_starts(&o, g->m);
 		p.starts = o.p.starts;
 		p.hold_at_plateau = 1;
@@ -257,6 +263,12 @@ int cmd_explore(int argc, char **argv)
 		cfg.start = 1;
 		cfg.graph_label = arg;
 		cfg.graph_path = arg;
+	}
+	if (memory_check_fit(cfg.g, &p)) {
+		fit_free(f);
+		graph_free(g);
+		checkpoint_release(&ck);
+		return 1;
 	}
 	if (resume && out && result_prepare_dir(out)) {
 		fit_free(f);

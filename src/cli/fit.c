@@ -18,6 +18,7 @@
 #include "cli.h"
 #include "coterie/fit.h"
 #include "coterie/graph.h"
+#include "coterie/memory.h"
 #include "coterie/result.h"
 #include "coterie/select.h"
 
@@ -139,6 +140,10 @@ static int choose_k(const struct graph *g, struct fit_params *p, const char *out
 	sp.share = holdout;
 	uint32_t grid[64];
 	uint32_t ng = select_grid(&sp, grid);
+	struct fit_params big = *p;
+	big.k = sp.kmax;
+	if (memory_check_fit(g, &big))
+		return -1;
 	if (!quiet)
 		notice("choosing k from %u to %u (%u values at most) by the likelihood of %.0f%% of "
 		       "the edges and as many non-edges, held out", sp.kmin, sp.kmax, ng,
@@ -301,6 +306,12 @@ int cmd_fit(int argc, char **argv)
 		g = graph_load(gpath, o.fmt);
 		if (!g)
 			return 1;
+		if (cli_graph_fittable(g, gpath)) {
+			graph_free(g);
+			return 1;
+		}
+		if (!k_auto)
+			cli_k_fits(p.k, g);
 		cli_fit_opts_starts(&o, g->m);
 		p.starts = o.p.starts;
 		if (k_auto && choose_k(g, &p, out, krange_lo, krange_hi, holdout, quiet)) {
@@ -309,6 +320,11 @@ int cmd_fit(int argc, char **argv)
 		}
 	}
 	const struct graph *graph = g ? g : ck.graph;
+	if (memory_check_fit(graph, &p)) {
+		graph_free(g);
+		checkpoint_release(&ck);
+		return 1;
+	}
 
 	struct fit *f = fit_new(graph, &p, orig);
 	if (!f) {
