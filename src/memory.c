@@ -210,7 +210,7 @@ static void human(uint64_t b, char *buf, size_t cap)
 	if (b >= (1ull << 30))
 		snprintf(buf, cap, "%.1f GiB", (double)b / (double)(1ull << 30));
 	else
-		snprintf(buf, cap, "%.0f MiB", (double)b / (double)(1ull << 20) + 0.5);
+		snprintf(buf, cap, "%.0f MiB", (double)b / (double)(1ull << 20));
 }
 
 int memory_check_fit(const struct graph *g, const struct fit_params *p)
