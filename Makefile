@@ -51,7 +51,7 @@ TEST_BIN := $(TEST_SRC:tests/%.c=$(BUILD)/tests/%)
 TEST_HELPER_OBJ := $(BUILD)/tests/helpers.o
 LIB := $(BUILD)/libcoterie.a
 
-.PHONY: all check unit bench install clean deps demo fuzz
+.PHONY: all check unit bench install clean deps demo fuzz memcheck
 
 all: $(BIN)
 
@@ -79,8 +79,24 @@ $(BUILD)/tests/test_%: tests/test_%.c $(TEST_HELPER_OBJ) $(LIB)
 unit: $(TEST_BIN)
 	@COTERIE_BIN=$(abspath $(BIN)) tests/run.sh --unit $(TEST_BIN)
 
+# CHECK_FLAGS=--no-tui leaves out the explorer tests (CI's sanitizer run).
 check: $(BIN) $(TEST_BIN)
-	@COTERIE_BIN=$(abspath $(BIN)) tests/run.sh $(TEST_BIN)
+	@COTERIE_BIN=$(abspath $(BIN)) tests/run.sh $(CHECK_FLAGS) $(TEST_BIN)
+
+# The command tests of fit under valgrind's memcheck: COTERIE_BIN is a
+# script that runs the binary under valgrind, which exits 99 on any memory
+# error or definite leak (so the test that ran it fails) and logs to
+# build/memcheck/vg.PID.log; the logs with errors are listed at the end.
+memcheck: $(BIN)
+	@rm -rf build/memcheck && mkdir -p build/memcheck
+	@printf '#!/bin/sh\nexec valgrind -q --error-exitcode=99 --leak-check=full --show-leak-kinds=definite --errors-for-leak-kinds=definite --log-file=%s/vg.%%p.log %s "$$@"\n' \
+	  $(abspath build/memcheck) $(abspath $(BIN)) >build/memcheck/coterie
+	@chmod +x build/memcheck/coterie
+	@COTERIE_BIN=$(abspath build/memcheck/coterie) tests/run.sh --cli 'fit_*'; rc=$$?; \
+	  bad=$$(find build/memcheck -name 'vg.*.log' -size +0 | wc -l); \
+	  echo "memcheck: $$(ls build/memcheck/vg.*.log | wc -l) runs under valgrind, $$bad with errors"; \
+	  find build/memcheck -name 'vg.*.log' -size +0 -exec sh -c 'echo "== $$1"; head -40 "$$1"' sh {} \; ; \
+	  [ $$rc -eq 0 ] && [ $$bad -eq 0 ]
 
 bench: $(BIN)
 	@COTERIE_BIN=$(abspath $(BIN)) tests/bench/run.sh
