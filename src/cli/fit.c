@@ -295,6 +295,11 @@ int cmd_fit(int argc, char **argv)
 			die(EXIT_USAGE, "-k auto cannot be used when resuming");
 		cli_fit_opts_resume(&o, &ck.params, "when resuming", &p);
 		p.hold_at_plateau = 0;
+		if (!ck.resume) {
+			/* what fit.h says such a fit does: one start, no moves */
+			p.starts = 1;
+			p.no_refine = 1;
+		}
 		if (ck.resume)
 			notice("the saved fit was interrupted in start %u of %u; it goes on from there",
 			       ck.resume->start, p.starts);
