@@ -698,6 +698,7 @@ struct ck_args {
 	const struct graph *g;
 	const struct fit_params *p;
 	const struct snapshot *s;
+	const struct fit_resume *resume; /* s->resume when it is sound, else NULL */
 };
 
 static void wf_section(struct wfile *w, const char *tag, uint64_t len)
@@ -827,16 +828,18 @@ static int fill_checkpoint(struct wfile *w, const void *arg)
 			     " edges but holds %" PRIu64, g->m, written);
 
 	wf_strn_section(w, F);
-	if (s->resume)
-		wf_resume_section(w, s->resume);
+	if (a->resume)
+		wf_resume_section(w, a->resume);
 
 	wf_u64(w, w->sum);
 	return 0;
 }
 
-/* Refuse to save what the reader would refuse. 0 or -1. */
+/* Refuse to save what the reader would refuse: 0 or -1. A resume point
+ * the reader would refuse is left out with a warning rather than losing
+ * the save (*resume says which). */
 static int checkpoint_ok(const char *path, const struct graph *g, const struct fit_params *p,
-			 const struct snapshot *s)
+			 const struct snapshot *s, const struct fit_resume **resume)
 {
 	char why[256];
 	const char *bad = NULL;
@@ -860,19 +863,23 @@ static int checkpoint_ok(const char *path, const struct graph *g, const struct f
 		bad = check_trace(s->trace, s->ntrace, s->sweep, why, sizeof why);
 	if (!bad)
 		bad = check_strengths(&s->F, why, sizeof why);
-	if (!bad && s->resume)
-		bad = check_resume(s->resume, g->n, p, why, sizeof why);
 	if (bad)
 		return error("cannot write checkpoint '%s': %s", path, bad);
+	*resume = s->resume;
+	if (s->resume && (bad = check_resume(s->resume, g->n, p, why, sizeof why))) {
+		warning("'%s' is saved without its resume point (%s): a resumed fit goes on as "
+			"one start", path, bad);
+		*resume = NULL;
+	}
 	return 0;
 }
 
 int result_write_checkpoint(const char *path, const struct graph *g,
 			    const struct fit_params *p, const struct snapshot *s)
 {
-	if (checkpoint_ok(path, g, p, s))
+	struct ck_args a = { g, p, s, NULL };
+	if (checkpoint_ok(path, g, p, s, &a.resume))
 		return -1;
-	struct ck_args a = { g, p, s };
 	return atomic_write(path, fill_checkpoint, &a);
 }
 
@@ -1720,9 +1727,9 @@ int result_write(const char *dir, const struct graph *g, const struct fit_params
 	for (int i = 0; i < NFILES; i++)
 		if (!(paths[i] = path_join(dir, names[i])))
 			goto out;
-	struct ck_args ca = { g, p, s };
+	struct ck_args ca = { g, p, s, NULL };
 	struct tsv_args ta = { g, s };
-	if (checkpoint_ok(paths[0], g, p, s) || stage(paths[0], fill_checkpoint, &ca, &tmps[0]) ||
+	if (checkpoint_ok(paths[0], g, p, s, &ca.resume) || stage(paths[0], fill_checkpoint, &ca, &tmps[0]) ||
 	    stage(paths[1], fill_memberships, &ta, &tmps[1]) ||
 	    stage(paths[2], fill_communities, &ta, &tmps[2]) ||
 	    stage(paths[3], fill_trace, &ta, &tmps[3]))

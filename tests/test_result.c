@@ -1156,6 +1156,20 @@ static void test_checkpoint_keeps_where_an_interrupt_left_the_starts(void **stat
 	craft_refused(&c, rs - 12 + 4, "section", __LINE__); /* cut inside the tag */
 	free(c.buf);
 	free(c.good);
+
+	/* a resume point the reader would refuse is left out, with a warning,
+	 * and the rest is saved: a save is not lost for it */
+	r.start = 4; /* of 3 starts */
+	fx.s.resume = &r;
+	quiet_on();
+	assert_int_equal(result_write_checkpoint(path, fx.g, &fx.p, &fx.s), 0);
+	quiet_off();
+	fx.s.resume = NULL;
+	assert_non_null(strstr(last_msg, "saved without its resume point"));
+	assert_int_equal(result_read_checkpoint(path, &ck), 0);
+	assert_null(ck.resume);
+	assert_int_equal(ck.sweep, 4);
+	checkpoint_release(&ck);
 	test_rmtree(dir);
 }
 
