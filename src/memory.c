@@ -209,8 +209,10 @@ static void human(uint64_t b, char *buf, size_t cap)
 {
 	if (b >= (1ull << 30))
 		snprintf(buf, cap, "%.1f GiB", (double)b / (double)(1ull << 30));
-	else
+	else if (b >= (1ull << 20))
 		snprintf(buf, cap, "%.0f MiB", (double)b / (double)(1ull << 20));
+	else
+		snprintf(buf, cap, "%.0f KiB", (double)b / 1024.0);
 }
 
 int memory_check_fit(const struct graph *g, const struct fit_params *p)

@@ -222,6 +222,17 @@ bad 1 futureexplore explore "$tmp/future"
 bad 1 emptyck fit --resume "$tmp/future" -q
 check "an empty checkpoint: names the file" says emptyck "checkpoint.cot"
 
+# --- explore refuses the same graphs and -k before it takes the terminal --
+bad 1 exempty explore "$tmp/empty.tsv" -k 2 -o "$keep"
+check "explore of an empty file: FILE:1: expected two node names" \
+	says exempty "empty.tsv:1: expected two node names, found an empty file"
+bad 2 exkbig explore "$karate" -k 35 -o "$keep"
+check "explore -k 35 on 34 nodes: says so" \
+	says exkbig "-k 35 asks for more communities than the graph has nodes (34)"
+COTERIE_MEMORY_LIMIT=1M "$BIN" explore "$karate" -k 3 -o "$keep" </dev/null 2>"$tmp/exmem.err"
+check "explore on a machine of 1 MiB: exit 1 before the screen" [ $? -eq 1 ]
+check "explore on a machine of 1 MiB: the estimate is given" says exmem "not enough memory for this fit"
+
 # --- and after all that, the kept result is as it was ------------------------
 check "no failed run wrote over the existing result folder" [ "$(snapshot_keep)" = "$keep_sum" ]
 check "no temporary file was left in it" [ -z "$(find "$keep" -name '.*' ! -name . 2>/dev/null)" ]
