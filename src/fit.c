@@ -918,6 +918,26 @@ static void keep_resume(struct fit *f, const struct best *b, const struct fit_pa
 	f->res_out = r;
 }
 
+/* Start r (0-based) from a fresh seeding: 0 or -1. */
+static int begin_start(struct fit *f, uint32_t r)
+{
+	if (r > 0) {
+		for (uint32_t u = 0; u < f->g->n; u++)
+			model_set_row(&f->m, u, NULL, 0);
+		model_recount(&f->m);
+		f->ntrace = 0;
+		f->sweep = 0;
+		f->refined = 0;
+		f->streak = 0;
+		f->plateau_sweep = 0;
+	}
+	set_state(f, FIT_SEEDING);
+	if (seed_model(f->g, &f->m, f->p.seed, r, &f->seeds) || trace_add(f, compute_loglik(f)))
+		return -1;
+	publish(f, FIT_FITTING);
+	return 0;
+}
+
 static void *fit_main(void *arg)
 {
 	struct fit *f = arg;
@@ -978,24 +998,11 @@ static void *fit_main(void *arg)
 				climbed = 1;
 			}
 		} else {
-		if (r > 0) {
-			for (uint32_t u = 0; u < f->g->n; u++)
-				model_set_row(&f->m, u, NULL, 0);
-			model_recount(&f->m);
-			f->ntrace = 0;
-			f->sweep = 0;
-			f->refined = 0;
-			f->streak = 0;
-			f->plateau_sweep = 0;
-		}
-		set_state(f, FIT_SEEDING);
-		if (seed_model(f->g, &f->m, f->p.seed, r, &f->seeds) ||
-		    trace_add(f, compute_loglik(f))) {
-			final = FIT_FAILED;
-			break;
-		}
-		publish(f, FIT_FITTING);
-		st = run_start(f, perm, 0);
+			if (begin_start(f, r)) {
+				final = FIT_FAILED;
+				break;
+			}
+			st = run_start(f, perm, 0);
 		}
 		if (st == FIT_LEVELLED && !f->p.no_refine) {
 			/* kept for an interrupt during the moves (see keep_resume) */
