@@ -52,6 +52,9 @@ static void explore_usage(FILE *out)
 		"      --epsilon X       background link probability (default: the density)\n"
 		"      --format F        edges, gml, graphml or pajek (default: by extension)\n"
 		"      --resume          with DIR: continue the saved fit at once\n"
+		"      --checkpoint-every SECONDS\n"
+		"                        write the checkpoint that often while fitting\n"
+		"                        (default 120)\n"
 		"  -h, --help            this text\n"
 		"\n"
 		"In the explorer, ? lists the keys. The fit waits when it levels off:\n"
@@ -131,6 +134,7 @@ static void default_outdir(const char *path, char *out, size_t cap)
 enum {
 	OPT_RESUME = CLI_OPT_OWN,
 	OPT_LIST_KEYS,
+	OPT_CHECKPOINT_EVERY,
 };
 
 int cmd_explore(int argc, char **argv)
@@ -149,12 +153,14 @@ int cmd_explore(int argc, char **argv)
 		{ "starts", required_argument, NULL, CLI_OPT_STARTS },
 		{ "no-refine", no_argument, NULL, CLI_OPT_NO_REFINE },
 		{ "list-keys", no_argument, NULL, OPT_LIST_KEYS }, /* for the tests */
+		{ "checkpoint-every", required_argument, NULL, OPT_CHECKPOINT_EVERY },
 		{ "help", no_argument, NULL, 'h' },
 		{ NULL, 0, NULL, 0 },
 	};
 	struct cli_fit_opts o;
 	cli_fit_opts_init(&o);
 	int resume = 0;
+	double every = 0;
 	const char *out = NULL;
 	int c;
 	optind = 1;
@@ -168,6 +174,9 @@ int cmd_explore(int argc, char **argv)
 		switch (c) {
 		case 'o': out = optarg; break;
 		case OPT_RESUME: resume = 1; break;
+		case OPT_CHECKPOINT_EVERY:
+			every = cli_double("--checkpoint-every", optarg, 1.0, 1e9);
+			break;
 		case OPT_LIST_KEYS: keys_list(stdout); return 0;
 		case 'h': explore_usage(stdout); return 0;
 		default:
@@ -282,6 +291,7 @@ int cmd_explore(int argc, char **argv)
 	}
 	cfg.fit = f;
 	cfg.params = p;
+	cfg.checkpoint_every = every;
 	int rc = tui_run(&cfg); /* frees the fit */
 	graph_free(g);
 	checkpoint_release(&ck);

@@ -51,6 +51,7 @@ struct tui_config {
 	enum fit_state saved_state;   /* the state recorded in the checkpoint */
 	int start;                    /* start the fitting thread */
 	double t_begin;               /* when the command started (run.json) */
+	double checkpoint_every;      /* seconds between autosaves; 0: default */
 };
 
 /* Run the explorer until the user quits or a signal arrives. Writes the
