@@ -100,6 +100,8 @@ struct arena {
 
 enum job { JOB_ROWS, JOB_LOGLIK, JOB_QUIT };
 
+struct best;
+
 struct fit {
 	const struct graph *g;
 	struct fit_params p;
@@ -109,9 +111,10 @@ struct fit {
 	pthread_mutex_t lock;
 	pthread_cond_t cond;
 	struct snapshot *latest;
+	struct snapshot *point; /* the newest one with a resume point, not yet taken */
 	enum fit_state state;
 
-	atomic_int stop_req, pause_req, extend_req, interrupt_req;
+	atomic_int stop_req, pause_req, extend_req, interrupt_req, point_req;
 	int wake[2];
 
 	pthread_t thread;
@@ -127,7 +130,11 @@ struct fit {
 	struct seed_report seeds;
 	int resumed;
 	struct fit_resume *res_in;  /* owned: where an exact resume begins */
-	struct fit_resume *res_out; /* owned until the last snapshot takes it */
+	struct fit_resume *res_out; /* owned until the next snapshot takes it */
+	/* while the starts run (fit_main): the best earlier start, and the
+	 * start as it levelled off while its refinement moves run (else NULL) */
+	const struct best *bestp;
+	const struct fit_part *climbp;
 	uint32_t start, starts, best_start;
 	double best_loglik;
 	uint32_t refined;
@@ -275,7 +282,7 @@ static int publish(struct fit *f, enum fit_state state)
 	s->epsilon = f->m.epsilon;
 	s->delta = f->m.delta;
 	s->seeds = f->seeds;
-	if (f->res_out && fit_state_ended(state)) {
+	if (f->res_out) {
 		s->resume = f->res_out;
 		f->res_out = NULL;
 	}
@@ -302,13 +309,20 @@ static int publish(struct fit *f, enum fit_state state)
 	}
 	s->agm_sweep = f->agm_sweep;
 
+	struct snapshot *old_point = NULL;
 	pthread_mutex_lock(&f->lock);
+	if (s->resume) {
+		old_point = f->point;
+		f->point = s;
+		__atomic_add_fetch(&s->refs_, 1, __ATOMIC_ACQ_REL);
+	}
 	struct snapshot *old = f->latest;
 	f->latest = s;
 	f->state = state;
 	pthread_cond_broadcast(&f->cond);
 	pthread_mutex_unlock(&f->lock);
 	snapshot_release(old);
+	snapshot_release(old_point);
 	char byte = 1;
 	ssize_t w = write(f->wake[1], &byte, 1); /* full pipe: a wake-up is pending anyway */
 	(void)w;
@@ -603,6 +617,9 @@ static void recount_colsum(struct fit *f)
 	model_recount(&f->m);
 }
 
+static struct fit_resume *make_resume(struct fit *f, const struct best *b,
+				      const struct fit_part *climb);
+
 /* Run the current start from its seeded (or resumed) model until a
  * plateau, max_sweeps or a stop; returns how it ended. After fit_extend()
  * (when extend is set) a plateau no longer ends it. */
@@ -629,6 +646,10 @@ static enum fit_state run_start(struct fit *f, uint32_t *perm, int extend)
 			f->plateau_sweep = f->sweep;
 		if (fired && !f->p.past_plateau && !(extend && atomic_load(&f->extend_req)))
 			return FIT_LEVELLED;
+		if (f->bestp && atomic_exchange(&f->point_req, 0)) {
+			fit_resume_free(f->res_out);
+			f->res_out = make_resume(f, f->bestp, f->climbp);
+		}
 		publish(f, FIT_FITTING);
 	}
 	return FIT_FINISHED;
@@ -889,16 +910,16 @@ static int part_load(struct fit *f, const struct fit_part *p)
 	return 0;
 }
 
-/* After an interrupt that let the sweep end (not a hard stop): keep what
- * an exact resume of start f->start needs. climb is the start as it
- * levelled off when the interrupt came during refinement, else NULL. */
-static void keep_resume(struct fit *f, const struct best *b, const struct fit_part *climb)
+/* What an exact resume of start f->start needs, at the end of a sweep:
+ * climb is the start as it levelled off when its refinement moves are
+ * running, else NULL. NULL when out of memory (the resume point is a
+ * convenience; the fit goes on without it). */
+static struct fit_resume *make_resume(struct fit *f, const struct best *b,
+				      const struct fit_part *climb)
 {
-	if (atomic_load(&f->stop_req) || !atomic_load(&f->interrupt_req))
-		return;
 	struct fit_resume *r = util_calloc(1, sizeof *r);
 	if (!r)
-		return;
+		return NULL;
 	r->start = f->start;
 	r->phase = climb ? FIT_PHASE_REFINE : FIT_PHASE_CLIMB;
 	int rc = climb ? part_dup(&r->cur, climb) : part_of_model(f, &r->cur);
@@ -912,10 +933,22 @@ static void keep_resume(struct fit *f, const struct best *b, const struct fit_pa
 	}
 	if (rc) {
 		fit_resume_free(r);
-		return;
+		return NULL;
 	}
-	fit_resume_free(f->res_out);
-	f->res_out = r;
+	return r;
+}
+
+/* After an interrupt that let the sweep end (not a hard stop): keep the
+ * resume point for the last snapshot. */
+static void keep_resume(struct fit *f, const struct best *b, const struct fit_part *climb)
+{
+	if (atomic_load(&f->stop_req) || !atomic_load(&f->interrupt_req))
+		return;
+	struct fit_resume *r = make_resume(f, b, climb);
+	if (r) {
+		fit_resume_free(f->res_out);
+		f->res_out = r;
+	}
 }
 
 /* Start r (0-based) from a fresh seeding: 0 or -1. */
@@ -977,8 +1010,10 @@ static void *fit_main(void *arg)
 			f->best_loglik = ri->best_loglik;
 		}
 	}
+	f->bestp = &best;
 	for (uint32_t r = r0; r < f->starts; r++) {
 		f->start = r + 1;
+		f->climbp = NULL;
 		struct fit_part climb;
 		int climbed = 0;
 		enum fit_state st;
@@ -1013,7 +1048,9 @@ static void *fit_main(void *arg)
 				}
 				climbed = 2;
 			}
+			f->climbp = &climb;
 			st = refine(f, perm);
+			f->climbp = NULL;
 		} else if (climbed) {
 			climbed = 0; /* refinement is off: the climb is not needed */
 		}
@@ -1035,6 +1072,8 @@ static void *fit_main(void *arg)
 		if (st == FIT_STOPPED)
 			break;
 	}
+	f->bestp = NULL;
+	f->climbp = NULL;
 	if (final != FIT_FAILED && best.have && f->best_start != f->start) {
 		enum fit_state keep = final == FIT_STOPPED ? FIT_STOPPED : best.state;
 		if (restore_best(f, &best))
@@ -1209,6 +1248,20 @@ void fit_interrupt(struct fit *f)
 	poke(f);
 }
 
+void fit_want_resume_point(struct fit *f)
+{
+	atomic_store(&f->point_req, 1);
+}
+
+struct snapshot *fit_take_resume_point(struct fit *f)
+{
+	pthread_mutex_lock(&f->lock);
+	struct snapshot *s = f->point;
+	f->point = NULL;
+	pthread_mutex_unlock(&f->lock);
+	return s;
+}
+
 void fit_extend(struct fit *f)
 {
 	atomic_store(&f->extend_req, 1);
@@ -1268,6 +1321,7 @@ void fit_free(struct fit *f)
 		fit_wait(f);
 	}
 	snapshot_release(f->latest);
+	snapshot_release(f->point);
 	fit_resume_free(f->res_in);
 	fit_resume_free(f->res_out);
 	agm_release(&f->agm);

@@ -101,7 +101,8 @@
  *               edges as (u32 u, u32 v) with u < v, sorted by u then v
  *       "STRN": u32 n, u32 k, u64 nnz, (n + 1) x u64 row offsets,
  *               nnz x (u32 community, f64 strength)
- *     then, only for a fit interrupted at the end of a sweep, "RSUM" (see
+ *     then, only for a fit interrupted at the end of a sweep or a periodic
+ *     checkpoint taken there, "RSUM" (see
  *     struct fit_resume): u32 start, u32 phase, u32 sweep, u32
  *     plateau_sweep, a TRAC and a STRN section (framed as above) of the
  *     start in progress, u32 best_start, and when it is not 0: u32 sweep,

@@ -102,9 +102,10 @@ struct snapshot {
 				  * fresh one (agm_sweep == sweep) */
 	uint32_t agm_sweep;
 	struct seed_report seeds;
-	struct fit_resume *resume; /* owned; only in the last snapshot of an
-				    * interrupted fit (see fit_interrupt()),
-				    * else NULL */
+	struct fit_resume *resume; /* owned; in the last snapshot of an
+				    * interrupted fit (see fit_interrupt())
+				    * and in the one after
+				    * fit_want_resume_point(), else NULL */
 	/* private */
 	int refs_;
 };
@@ -123,8 +124,8 @@ struct fit_part {
 /*
  * Where an interrupted fit stands, so that a resumed one ends with the
  * bytes an uninterrupted one would have given (same seed, same
- * parameters). Made only by fit_interrupt(), which lets the sweep in
- * progress end first.
+ * parameters). Made by fit_interrupt(), which lets the sweep in progress
+ * end first, and on request by fit_want_resume_point().
  *   start  the start in progress (1-based) of snapshot.starts
  *   phase  FIT_PHASE_CLIMB: cur is that start after its last whole sweep,
  *          still climbing to its first plateau; FIT_PHASE_REFINE: cur is
@@ -189,6 +190,14 @@ void fit_stop(struct fit *f);
  * the end of it first), and to leave in its last snapshot what an exact
  * resume needs (snapshot.resume), unless fit_stop() comes too. */
 void fit_interrupt(struct fit *f);
+/* Ask that the next sweep to end publish a snapshot with a resume point
+ * (snapshot.resume), for a periodic checkpoint that resumes exactly. A fit
+ * continued as one start (fit_origin without resume) never makes one. */
+void fit_want_resume_point(struct fit *f);
+/* The newest snapshot that carried a resume point, if one was published
+ * since the last call, else NULL; it is not returned twice. Caller releases
+ * with snapshot_release(). */
+struct snapshot *fit_take_resume_point(struct fit *f);
 /* Let a fit that levelled off (or is about to) run on until stopped or
  * max_sweeps: a fit holding at a plateau goes on fitting. Has no effect
  * after the thread ended. */

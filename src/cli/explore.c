@@ -175,7 +175,7 @@ int cmd_explore(int argc, char **argv)
 		case 'o': out = optarg; break;
 		case OPT_RESUME: resume = 1; break;
 		case OPT_CHECKPOINT_EVERY:
-			every = cli_double("--checkpoint-every", optarg, 1.0, 1e9);
+			every = cli_double("--checkpoint-every", optarg, 0.1, 1e9);
 			break;
 		case OPT_LIST_KEYS: keys_list(stdout); return 0;
 		case 'h': explore_usage(stdout); return 0;

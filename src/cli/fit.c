@@ -5,7 +5,11 @@
  * starts the fitting thread and then only watches: it poll()s the fit's
  * wake-up pipe and the signal pipe, prints progress, writes a checkpoint
  * now and then, and writes the result folder at the end. An interrupt
- * (Ctrl-C, SIGTERM, a lost terminal) stops the fit, saves, and exits 130.
+ * (Ctrl-C, SIGTERM, a lost terminal) lets the sweep in progress end,
+ * saves, and exits 130; a second one stops inside the sweep. Both the
+ * interrupted folder and the periodic checkpoints carry a resume point
+ * (fit.h, struct fit_resume), so --resume ends with the bytes the
+ * uninterrupted fit would have written.
  */
 #include <getopt.h>
 #include <math.h>
@@ -235,7 +239,7 @@ int cmd_fit(int argc, char **argv)
 		case OPT_PAST_PLATEAU: o.p.past_plateau = 1; break;
 		case OPT_RESUME: resume = optarg; break;
 		case OPT_CHECKPOINT_EVERY:
-			save_every = cli_double("--checkpoint-every", optarg, 1.0, 1e9);
+			save_every = cli_double("--checkpoint-every", optarg, 0.1, 1e9);
 			break;
 		case 'q': quiet = 1; break;
 		case 'h': fit_usage(stdout); return 0;
@@ -350,6 +354,7 @@ int cmd_fit(int argc, char **argv)
 
 	struct progress pr = { isatty(2), quiet, 0, 0, 0, 0 };
 	double last_save = util_now();
+	int want_point = 0, one_start = resume && !ck.resume;
 	int interrupted = 0;
 	char ckpath[4096];
 	snprintf(ckpath, sizeof ckpath, "%s/%s", out, RESULT_CHECKPOINT);
@@ -383,12 +388,22 @@ int cmd_fit(int argc, char **argv)
 			break;
 		}
 		progress_show(&pr, s, 0);
-		if (util_now() - last_save >= save_every && s->ntrace > 0) {
-			if (result_write_checkpoint(ckpath, graph, &p, s) == 0)
-				last_save = util_now();
-			else
-				last_save = util_now(); /* reported; try again later */
+		/* a periodic checkpoint carries a resume point, so that after a
+		 * kill -9 --resume continues exactly; the fit makes one at the end
+		 * of the next sweep when asked (a fit continued as one start
+		 * makes none, and saves its snapshot as it is) */
+		if (!want_point && util_now() - last_save >= save_every && !one_start) {
+			fit_want_resume_point(f);
+			want_point = 1;
 		}
+		struct snapshot *ps = want_point ? fit_take_resume_point(f) : NULL;
+		if (ps || (one_start && s->ntrace > 0 && util_now() - last_save >= save_every)) {
+			/* a failure is reported, and the next one tried later */
+			result_write_checkpoint(ckpath, graph, &p, ps ? ps : s);
+			last_save = util_now();
+			want_point = 0;
+		}
+		snapshot_release(ps);
 		snapshot_release(s);
 	}
 	enum fit_state st = fit_wait(f);
