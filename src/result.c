@@ -996,7 +996,9 @@ static int read_whole(const char *path, unsigned char **data, size_t *size)
 {
 	*data = NULL;
 	*size = 0;
-	int fd = open(path, O_RDONLY | O_CLOEXEC);
+	/* O_NONBLOCK: a FIFO put where the checkpoint should be would block
+	 * open() until someone writes to it; it is refused below instead */
+	int fd = open(path, O_RDONLY | O_CLOEXEC | O_NONBLOCK);
 	if (fd < 0)
 		return error("cannot open '%s': %s", path, strerror(errno));
 	struct stat st;

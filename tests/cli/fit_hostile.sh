@@ -221,6 +221,18 @@ bad 1 futureexplore explore "$tmp/future"
 : >"$tmp/future/checkpoint.cot"
 bad 1 emptyck fit --resume "$tmp/future" -q
 check "an empty checkpoint: names the file" says emptyck "checkpoint.cot"
+# A FIFO where the checkpoint should be would block a plain open() forever
+# (timeout's 124 would show it); a device is refused too.
+rm -f "$tmp/future/checkpoint.cot"
+if mkfifo "$tmp/future/checkpoint.cot" 2>/dev/null; then
+	bad 1 fifock timeout 20 "$BIN" fit --resume "$tmp/future" -q
+	check "a FIFO as the checkpoint: refused, not waited on" says fifock "not a regular file"
+	bad 1 fifoshow timeout 20 "$BIN" show "$tmp/future"
+	rm -f "$tmp/future/checkpoint.cot"
+fi
+ln -s /dev/zero "$tmp/future/checkpoint.cot"
+bad 1 devck timeout 20 "$BIN" fit --resume "$tmp/future" -q
+check "/dev/zero as the checkpoint: refused" says devck "not a regular file"
 
 # --- explore refuses the same graphs and -k before it takes the terminal --
 bad 1 exempty explore "$tmp/empty.tsv" -k 2 -o "$keep"
