@@ -25,10 +25,18 @@ keep_sum=$(snapshot_keep)
 # byte (STYLE.md 4: hostile bytes are shown escaped).
 bad()
 {
+	bw=$1
+	bn=$2
+	shift 2
+	bad_run "$bw" "$bn" "$BIN" "$@"
+}
+# bad_run WANT NAME COMMAND ARGS...: the same for a command line of its own
+bad_run()
+{
 	want=$1
 	name=$2
 	shift 2
-	"$BIN" "$@" </dev/null >"$tmp/$name.out" 2>"$tmp/$name.err"
+	"$@" </dev/null >"$tmp/$name.out" 2>"$tmp/$name.err"
 	st=$?
 	check "$name: exit status $want (got $st)" [ "$st" -eq "$want" ]
 	check "$name: a message on stderr" [ -s "$tmp/$name.err" ]
@@ -225,13 +233,13 @@ check "an empty checkpoint: names the file" says emptyck "checkpoint.cot"
 # (timeout's 124 would show it); a device is refused too.
 rm -f "$tmp/future/checkpoint.cot"
 if mkfifo "$tmp/future/checkpoint.cot" 2>/dev/null; then
-	bad 1 fifock timeout 20 "$BIN" fit --resume "$tmp/future" -q
+	bad_run 1 fifock timeout 20 "$BIN" fit --resume "$tmp/future" -q
 	check "a FIFO as the checkpoint: refused, not waited on" says fifock "not a regular file"
-	bad 1 fifoshow timeout 20 "$BIN" show "$tmp/future"
+	bad_run 1 fifoshow timeout 20 "$BIN" show "$tmp/future"
 	rm -f "$tmp/future/checkpoint.cot"
 fi
 ln -s /dev/zero "$tmp/future/checkpoint.cot"
-bad 1 devck timeout 20 "$BIN" fit --resume "$tmp/future" -q
+bad_run 1 devck timeout 20 "$BIN" fit --resume "$tmp/future" -q
 check "/dev/zero as the checkpoint: refused" says devck "not a regular file"
 
 # --- explore refuses the same graphs and -k before it takes the terminal --
