@@ -51,7 +51,7 @@ TEST_BIN := $(TEST_SRC:tests/%.c=$(BUILD)/tests/%)
 TEST_HELPER_OBJ := $(BUILD)/tests/helpers.o
 LIB := $(BUILD)/libcoterie.a
 
-.PHONY: all check unit bench install clean deps demo fuzz
+.PHONY: all check unit bench install clean deps demo fuzz memcheck
 
 all: $(BIN)
 
@@ -79,8 +79,24 @@ $(BUILD)/tests/test_%: tests/test_%.c $(TEST_HELPER_OBJ) $(LIB)
 unit: $(TEST_BIN)
 	@COTERIE_BIN=$(abspath $(BIN)) tests/run.sh --unit $(TEST_BIN)
 
+# CHECK_FLAGS=--no-tui leaves out the explorer tests (CI's sanitizer run).
 check: $(BIN) $(TEST_BIN)
-	@COTERIE_BIN=$(abspath $(BIN)) tests/run.sh $(TEST_BIN)
+	@COTERIE_BIN=$(abspath $(BIN)) tests/run.sh $(CHECK_FLAGS) $(TEST_BIN)
+
+# The command tests of fit under valgrind's memcheck: COTERIE_BIN is a
+# script that runs the binary under valgrind, which exits 99 on any memory
+# error or definite leak (so the test that ran it fails) and logs to
+# build/memcheck/vg.PID.log; the logs with errors are listed at the end.
+memcheck: $(BIN)
+	@rm -rf build/memcheck && mkdir -p build/memcheck
+	@printf '#!/bin/sh\nexec valgrind -q --error-exitcode=99 --leak-check=full --show-leak-kinds=definite --errors-for-leak-kinds=definite --log-file=%s/vg.%%p.log %s "$$@"\n' \
+	  $(abspath build/memcheck) $(abspath $(BIN)) >build/memcheck/coterie
+	@chmod +x build/memcheck/coterie
+	@COTERIE_BIN=$(abspath build/memcheck/coterie) tests/run.sh --cli 'fit_*'; rc=$$?; \
+	  bad=$$(find build/memcheck -name 'vg.*.log' -size +0 | wc -l); \
+	  echo "memcheck: $$(ls build/memcheck/vg.*.log | wc -l) runs under valgrind, $$bad with errors"; \
+	  find build/memcheck -name 'vg.*.log' -size +0 -exec sh -c 'echo "== $$1"; head -40 "$$1"' sh {} \; ; \
+	  [ $$rc -eq 0 ] && [ $$bad -eq 0 ]
 
 bench: $(BIN)
 	@COTERIE_BIN=$(abspath $(BIN)) tests/bench/run.sh
@@ -103,12 +119,22 @@ clean:
 
 -include $(shell find build* -name '*.d' 2>/dev/null)
 
-# Fuzz the graph loader with libFuzzer (needs clang; FUZZ_SECONDS=60 by default).
+# Fuzz the readers of hostile files with libFuzzer (needs clang): each
+# harness tests/fuzz/fuzz_NAME.c runs for FUZZ_SECONDS (default 60) on its
+# seed corpus tests/fuzz/corpus/NAME plus what it found before, kept in
+# build/fuzz/corpus-NAME. A crash leaves its input in build/fuzz/.
 FUZZ_SECONDS ?= 60
-fuzz:
-	@mkdir -p build/fuzz-corpus
-	clang -std=c11 -D_POSIX_C_SOURCE=200809L -D_DEFAULT_SOURCE -g -O1 \
-	  -fsanitize=fuzzer,address,undefined -Iinclude $(PKG_CFLAGS) \
-	  tests/fuzz/fuzz_graph.c src/graph.c src/util.c \
-	  $(shell pkg-config --libs igraph zlib) -lm -o build/fuzz_graph
-	./build/fuzz_graph -max_total_time=$(FUZZ_SECONDS) build/fuzz-corpus
+FUZZ_TARGETS := graph checkpoint
+FUZZ_CC ?= clang
+FUZZ_CFLAGS := -std=c11 -D_POSIX_C_SOURCE=200809L -D_DEFAULT_SOURCE -D_XOPEN_SOURCE=700 \
+               -pthread -g -O1 -fsanitize=fuzzer,address,undefined -Iinclude $(PKG_CFLAGS)
+build/fuzz/fuzz_%: tests/fuzz/fuzz_%.c $(CORE_SRC)
+	@mkdir -p build/fuzz
+	$(FUZZ_CC) $(FUZZ_CFLAGS) $< $(CORE_SRC) $(PKG_LIBS) -lm -o $@
+fuzz: $(FUZZ_TARGETS:%=build/fuzz/fuzz_%)
+	@for t in $(FUZZ_TARGETS); do \
+	  mkdir -p build/fuzz/corpus-$$t; \
+	  echo "== fuzz_$$t for $(FUZZ_SECONDS) s"; \
+	  ./build/fuzz/fuzz_$$t -max_total_time=$(FUZZ_SECONDS) -print_final_stats=1 \
+	    -artifact_prefix=build/fuzz/$$t- build/fuzz/corpus-$$t tests/fuzz/corpus/$$t || exit 1; \
+	done

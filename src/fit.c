@@ -100,6 +100,8 @@ struct arena {
 
 enum job { JOB_ROWS, JOB_LOGLIK, JOB_QUIT };
 
+struct best;
+
 struct fit {
 	const struct graph *g;
 	struct fit_params p;
@@ -109,9 +111,10 @@ struct fit {
 	pthread_mutex_t lock;
 	pthread_cond_t cond;
 	struct snapshot *latest;
+	struct snapshot *point; /* the newest one with a resume point, not yet taken */
 	enum fit_state state;
 
-	atomic_int stop_req, pause_req, extend_req;
+	atomic_int stop_req, pause_req, extend_req, interrupt_req, point_req;
 	int wake[2];
 
 	pthread_t thread;
@@ -126,6 +129,12 @@ struct fit {
 	double seconds_base, t0;
 	struct seed_report seeds;
 	int resumed;
+	struct fit_resume *res_in;  /* owned: where an exact resume begins */
+	struct fit_resume *res_out; /* owned until the next snapshot takes it */
+	/* while the starts run (fit_main): the best earlier start, and the
+	 * start as it levelled off while its reseeding moves run (else NULL) */
+	const struct best *bestp;
+	const struct fit_part *climbp;
 	uint32_t start, starts, best_start;
 	double best_loglik;
 	uint32_t reseeds;
@@ -169,7 +178,73 @@ void snapshot_release(struct snapshot *s)
 	free(s->trace);
 	fcsr_release(&s->F);
 	agm_release(&s->agm);
+	fit_resume_free(s->resume);
 	free(s);
+}
+
+void fit_resume_free(struct fit_resume *r)
+{
+	if (!r)
+		return;
+	fcsr_release(&r->cur.F);
+	free(r->cur.trace);
+	fcsr_release(&r->best.F);
+	free(r->best.trace);
+	free(r);
+}
+
+static int fcsr_dup(struct fcsr *dst, const struct fcsr *src)
+{
+	memset(dst, 0, sizeof *dst);
+	uint64_t nnz = src->off[src->n];
+	dst->off = util_malloc((size_t)src->n + 1, sizeof *dst->off);
+	dst->e = util_malloc(nnz ? nnz : 1, sizeof *dst->e);
+	dst->colsum = util_calloc(src->k, sizeof *dst->colsum);
+	if (!dst->off || !dst->e || !dst->colsum) {
+		fcsr_release(dst);
+		return -1;
+	}
+	dst->n = src->n;
+	dst->k = src->k;
+	memcpy(dst->off, src->off, ((size_t)src->n + 1) * sizeof *dst->off);
+	if (nnz)
+		memcpy(dst->e, src->e, nnz * sizeof *dst->e);
+	memcpy(dst->colsum, src->colsum, src->k * sizeof *dst->colsum);
+	return 0;
+}
+
+/* A deep copy of part (strengths and trace); 0 or -1. */
+static int part_dup(struct fit_part *dst, const struct fit_part *src)
+{
+	*dst = *src;
+	memset(&dst->F, 0, sizeof dst->F);
+	dst->trace = util_malloc(src->ntrace ? src->ntrace : 1, sizeof *dst->trace);
+	if (!dst->trace)
+		return -1;
+	if (src->ntrace)
+		memcpy(dst->trace, src->trace, src->ntrace * sizeof *dst->trace);
+	if (fcsr_dup(&dst->F, &src->F)) {
+		free(dst->trace);
+		dst->trace = NULL;
+		return -1;
+	}
+	return 0;
+}
+
+static struct fit_resume *resume_dup(const struct fit_resume *src)
+{
+	struct fit_resume *r = util_calloc(1, sizeof *r);
+	if (!r)
+		return NULL;
+	*r = *src;
+	memset(&r->cur, 0, sizeof r->cur);
+	memset(&r->best, 0, sizeof r->best);
+	if (part_dup(&r->cur, &src->cur) ||
+	    (src->best_start && part_dup(&r->best, &src->best))) {
+		fit_resume_free(r);
+		return NULL;
+	}
+	return r;
 }
 
 static double rate_of(const struct trace_point *t, uint32_t n)
@@ -207,6 +282,10 @@ static int publish(struct fit *f, enum fit_state state)
 	s->epsilon = f->m.epsilon;
 	s->delta = f->m.delta;
 	s->seeds = f->seeds;
+	if (f->res_out) {
+		s->resume = f->res_out;
+		f->res_out = NULL;
+	}
 	s->ntrace = f->ntrace;
 	s->trace = util_malloc(f->ntrace ? f->ntrace : 1, sizeof *s->trace);
 	if (!s->trace)
@@ -230,13 +309,20 @@ static int publish(struct fit *f, enum fit_state state)
 	}
 	s->agm_sweep = f->agm_sweep;
 
+	struct snapshot *old_point = NULL;
 	pthread_mutex_lock(&f->lock);
+	if (s->resume) {
+		old_point = f->point;
+		f->point = s;
+		__atomic_add_fetch(&s->refs_, 1, __ATOMIC_ACQ_REL);
+	}
 	struct snapshot *old = f->latest;
 	f->latest = s;
 	f->state = state;
 	pthread_cond_broadcast(&f->cond);
 	pthread_mutex_unlock(&f->lock);
 	snapshot_release(old);
+	snapshot_release(old_point);
 	char byte = 1;
 	ssize_t w = write(f->wake[1], &byte, 1); /* full pipe: a wake-up is pending anyway */
 	(void)w;
@@ -440,7 +526,8 @@ static int wait_while_paused(struct fit *f)
 		return atomic_load(&f->stop_req);
 	publish(f, FIT_PAUSED);
 	pthread_mutex_lock(&f->lock);
-	while (atomic_load(&f->pause_req) && !atomic_load(&f->stop_req))
+	while (atomic_load(&f->pause_req) && !atomic_load(&f->stop_req) &&
+	       !atomic_load(&f->interrupt_req))
 		pthread_cond_wait(&f->cond, &f->lock);
 	f->state = FIT_FITTING;
 	pthread_mutex_unlock(&f->lock);
@@ -530,13 +617,16 @@ static void recount_colsum(struct fit *f)
 	model_recount(&f->m);
 }
 
+static struct fit_resume *make_resume(struct fit *f, const struct best *b,
+				      const struct fit_part *climb);
+
 /* Run the current start from its seeded (or resumed) model until a
  * plateau, max_sweeps or a stop; returns how it ended. After fit_extend()
  * (when extend is set) a plateau no longer ends it. */
 static enum fit_state run_start(struct fit *f, uint32_t *perm, int extend)
 {
 	while (f->sweep < f->p.max_sweeps) {
-		if (atomic_load(&f->stop_req))
+		if (atomic_load(&f->stop_req) || atomic_load(&f->interrupt_req))
 			return FIT_STOPPED;
 		int rc = sweep_once(f, perm);
 		if (rc < 0)
@@ -556,6 +646,10 @@ static enum fit_state run_start(struct fit *f, uint32_t *perm, int extend)
 			f->plateau_sweep = f->sweep;
 		if (fired && !f->p.past_plateau && !(extend && atomic_load(&f->extend_req)))
 			return FIT_LEVELLED;
+		if (f->bestp && atomic_exchange(&f->point_req, 0)) {
+			fit_resume_free(f->res_out);
+			f->res_out = make_resume(f, f->bestp, f->climbp);
+		}
 		publish(f, FIT_FITTING);
 	}
 	return FIT_FINISHED;
@@ -567,7 +661,8 @@ static enum fit_state hold(struct fit *f, uint32_t *perm)
 {
 	publish(f, FIT_LEVELLED);
 	pthread_mutex_lock(&f->lock);
-	while (!atomic_load(&f->extend_req) && !atomic_load(&f->stop_req))
+	while (!atomic_load(&f->extend_req) && !atomic_load(&f->stop_req) &&
+	       !atomic_load(&f->interrupt_req))
 		pthread_cond_wait(&f->cond, &f->lock);
 	pthread_mutex_unlock(&f->lock);
 	if (!atomic_load(&f->extend_req))
@@ -690,8 +785,10 @@ static enum fit_state reseed(struct fit *f, uint32_t *perm)
 	uint32_t spent = 0;
 	for (unsigned move = 0; move < RESEED_MAX && fails < RESEED_FAILS && spent < budget;
 	     move++) {
-		if (atomic_load(&f->stop_req))
+		if (atomic_load(&f->stop_req) || atomic_load(&f->interrupt_req)) {
+			fcsr_release(&saved);
 			return FIT_STOPPED;
+		}
 		double before = f->trace[f->ntrace - 1].loglik;
 		uint32_t ntrace = f->ntrace, sweep = f->sweep, plateau = f->plateau_sweep;
 		fcsr_release(&saved);
@@ -773,6 +870,107 @@ static int restore_best(struct fit *f, struct best *b)
 	return 0;
 }
 
+/* The fit's model and trace now, as a part. */
+static int part_of_model(struct fit *f, struct fit_part *p)
+{
+	memset(p, 0, sizeof *p);
+	p->trace = util_malloc(f->ntrace ? f->ntrace : 1, sizeof *p->trace);
+	if (!p->trace || model_export(&f->m, &p->F)) {
+		free(p->trace);
+		p->trace = NULL;
+		return -1;
+	}
+	memcpy(p->trace, f->trace, f->ntrace * sizeof *p->trace);
+	p->ntrace = f->ntrace;
+	p->sweep = f->sweep;
+	p->plateau_sweep = f->plateau_sweep;
+	return 0;
+}
+
+/* Load a part as the current start's model and trace. The plateau streak
+ * is counted again from the trace, with the arithmetic of run_start(). */
+static int part_load(struct fit *f, const struct fit_part *p)
+{
+	if (model_import(&f->m, &p->F))
+		return -1;
+	f->ntrace = 0;
+	for (uint32_t i = 0; i < p->ntrace; i++) {
+		if (trace_add(f, 0))
+			return -1;
+		f->trace[i] = p->trace[i];
+	}
+	f->sweep = p->sweep;
+	f->plateau_sweep = p->plateau_sweep;
+	f->streak = 0;
+	for (uint32_t i = 1; i < p->ntrace; i++) {
+		double prev = p->trace[i - 1].loglik, ll = p->trace[i].loglik;
+		double gain = (ll - prev) / (fabs(prev) > 0 ? fabs(prev) : 1.0);
+		f->streak = gain < f->p.tol ? f->streak + 1 : 0;
+	}
+	return 0;
+}
+
+/* What an exact resume of start f->start needs, at the end of a sweep:
+ * climb is the start as it levelled off when its reseeding moves are
+ * running, else NULL. NULL when out of memory (the resume point is a
+ * convenience; the fit goes on without it). */
+static struct fit_resume *make_resume(struct fit *f, const struct best *b,
+				      const struct fit_part *climb)
+{
+	struct fit_resume *r = util_calloc(1, sizeof *r);
+	if (!r)
+		return NULL;
+	r->start = f->start;
+	r->phase = climb ? FIT_PHASE_REFINE : FIT_PHASE_CLIMB;
+	int rc = climb ? part_dup(&r->cur, climb) : part_of_model(f, &r->cur);
+	if (rc == 0 && b->have) {
+		struct fit_part bp = { b->F, b->trace, b->ntrace, b->sweep, b->plateau_sweep };
+		r->best_start = f->best_start;
+		r->best_reseeds = b->reseeds;
+		r->best_state = b->state;
+		r->best_loglik = f->best_loglik;
+		rc = part_dup(&r->best, &bp);
+	}
+	if (rc) {
+		fit_resume_free(r);
+		return NULL;
+	}
+	return r;
+}
+
+/* After an interrupt that let the sweep end (not a hard stop): keep the
+ * resume point for the last snapshot. */
+static void keep_resume(struct fit *f, const struct best *b, const struct fit_part *climb)
+{
+	if (atomic_load(&f->stop_req) || !atomic_load(&f->interrupt_req))
+		return;
+	struct fit_resume *r = make_resume(f, b, climb);
+	if (r) {
+		fit_resume_free(f->res_out);
+		f->res_out = r;
+	}
+}
+
+/* Start r (0-based) from a fresh seeding: 0 or -1. */
+static int begin_start(struct fit *f, uint32_t r)
+{
+	if (r > 0) {
+		for (uint32_t u = 0; u < f->g->n; u++)
+			model_set_row(&f->m, u, NULL, 0);
+		model_recount(&f->m);
+		f->ntrace = 0;
+		f->sweep = 0;
+		f->reseeds = 0;
+		f->streak = 0;
+		f->plateau_sweep = 0;
+	}
+	set_state(f, FIT_SEEDING);
+	if (seed_model(f->g, &f->m, f->p.seed, r, &f->seeds) || trace_add(f, compute_loglik(f)))
+		return -1;
+	publish(f, FIT_FITTING);
+	return 0;
+}
+
 static void *fit_main(void *arg)
 {
 	struct fit *f = arg;
@@ -791,28 +989,77 @@ static void *fit_main(void *arg)
 			final = hold(f, perm);
 		goto out;
 	}
-	for (uint32_t r = 0; r < f->starts; r++) {
+	uint32_t r0 = 0;
+	const struct fit_resume *ri = f->res_in;
+	if (ri) {
+		r0 = ri->start - 1;
+		if (ri->best_start) {
+			if (fcsr_dup(&best.F, &ri->best.F))
+				goto out;
+			best.trace = util_malloc(ri->best.ntrace, sizeof *best.trace);
+			if (!best.trace)
+				goto out;
+			memcpy(best.trace, ri->best.trace, ri->best.ntrace * sizeof *best.trace);
+			best.ntrace = ri->best.ntrace;
+			best.sweep = ri->best.sweep;
+			best.plateau_sweep = ri->best.plateau_sweep;
+			best.reseeds = ri->best_reseeds;
+			best.state = ri->best_state;
+			best.have = 1;
+			f->best_start = ri->best_start;
+			f->best_loglik = ri->best_loglik;
+		}
+	}
+	f->bestp = &best;
+	for (uint32_t r = r0; r < f->starts; r++) {
 		f->start = r + 1;
-		if (r > 0) {
-			for (uint32_t u = 0; u < f->g->n; u++)
-				model_set_row(&f->m, u, NULL, 0);
-			model_recount(&f->m);
-			f->ntrace = 0;
-			f->sweep = 0;
+		f->climbp = NULL;
+		struct fit_part climb;
+		int climbed = 0;
+		enum fit_state st;
+		if (ri && r == r0) {
+			/* an exact resume: the start where the interrupt left it */
 			f->reseeds = 0;
-			f->streak = 0;
-			f->plateau_sweep = 0;
+			if (part_load(f, &ri->cur)) {
+				final = FIT_FAILED;
+				break;
+			}
+			publish(f, FIT_FITTING);
+			if (ri->phase == FIT_PHASE_CLIMB) {
+				st = run_start(f, perm, 0);
+			} else {
+				st = FIT_LEVELLED;
+				climb = ri->cur;
+				climbed = 1;
+			}
+		} else {
+			if (begin_start(f, r)) {
+				final = FIT_FAILED;
+				break;
+			}
+			st = run_start(f, perm, 0);
 		}
-		set_state(f, FIT_SEEDING);
-		if (seed_model(f->g, &f->m, f->p.seed, r, &f->seeds) ||
-		    trace_add(f, compute_loglik(f))) {
-			final = FIT_FAILED;
-			break;
-		}
-		publish(f, FIT_FITTING);
-		enum fit_state st = run_start(f, perm, 0);
-		if (st == FIT_LEVELLED && !f->p.no_reseed)
+		if (st == FIT_LEVELLED && !f->p.no_reseed) {
+			/* kept for an interrupt during the moves (see keep_resume) */
+			if (!climbed) {
+				if (part_of_model(f, &climb)) {
+					final = FIT_FAILED;
+					break;
+				}
+				climbed = 2;
+			}
+			f->climbp = &climb;
 			st = reseed(f, perm);
+			f->climbp = NULL;
+		} else if (climbed) {
+			climbed = 0; /* reseeding is off: the climb is not needed */
+		}
+		if (st == FIT_STOPPED)
+			keep_resume(f, &best, climbed ? &climb : NULL);
+		if (climbed == 2) {
+			fcsr_release(&climb.F);
+			free(climb.trace);
+		}
 		if (st == FIT_FAILED) {
 			final = FIT_FAILED;
 			break;
@@ -825,6 +1072,8 @@ static void *fit_main(void *arg)
 		if (st == FIT_STOPPED)
 			break;
 	}
+	f->bestp = NULL;
+	f->climbp = NULL;
 	if (final != FIT_FAILED && best.have && f->best_start != f->start) {
 		enum fit_state keep = final == FIT_STOPPED ? FIT_STOPPED : best.state;
 		if (restore_best(f, &best))
@@ -875,7 +1124,7 @@ struct fit *fit_new(const struct graph *g, const struct fit_params *p,
 		f->p.patience = 1;
 	if (f->p.starts < 1)
 		f->p.starts = 1;
-	f->starts = origin ? 1 : f->p.starts;
+	f->starts = origin && !origin->resume ? 1 : f->p.starts;
 	f->start = 1;
 	f->nthreads = f->p.threads;
 	double eps = p->epsilon > 0 ? p->epsilon : model_default_epsilon(g);
@@ -905,7 +1154,19 @@ struct fit *fit_new(const struct graph *g, const struct fit_params *p,
 	for (unsigned t = 0; t < f->nthreads; t++)
 		if (!(f->work[t] = model_work_new(p->k)))
 			goto fail;
-	if (origin) {
+	if (origin && origin->resume) {
+		const struct fit_resume *ri = origin->resume;
+		if (ri->start < 1 || ri->start > f->starts || ri->best_start >= ri->start ||
+		    ri->cur.F.n != g->n || ri->cur.F.k != p->k ||
+		    (ri->best_start && (ri->best.F.n != g->n || ri->best.F.k != p->k ||
+					ri->best.ntrace == 0))) {
+			error("the saved fit does not match the graph and its parameters");
+			goto fail;
+		}
+		if (!(f->res_in = resume_dup(ri)))
+			goto fail;
+		f->start = ri->start;
+	} else if (origin) {
 		if (origin->F->n != g->n || origin->F->k != p->k) {
 			error("the saved fit is %u x %u but the graph and -k ask for %u x %u",
 			      origin->F->n, origin->F->k, g->n, p->k);
@@ -980,6 +1241,27 @@ void fit_stop(struct fit *f)
 	poke(f);
 }
 
+void fit_interrupt(struct fit *f)
+{
+	atomic_store(&f->interrupt_req, 1);
+	atomic_store(&f->pause_req, 0);
+	poke(f);
+}
+
+void fit_want_resume_point(struct fit *f)
+{
+	atomic_store(&f->point_req, 1);
+}
+
+struct snapshot *fit_take_resume_point(struct fit *f)
+{
+	pthread_mutex_lock(&f->lock);
+	struct snapshot *s = f->point;
+	f->point = NULL;
+	pthread_mutex_unlock(&f->lock);
+	return s;
+}
+
 void fit_extend(struct fit *f)
 {
 	atomic_store(&f->extend_req, 1);
@@ -1039,6 +1321,9 @@ void fit_free(struct fit *f)
 		fit_wait(f);
 	}
 	snapshot_release(f->latest);
+	snapshot_release(f->point);
+	fit_resume_free(f->res_in);
+	fit_resume_free(f->res_out);
 	agm_release(&f->agm);
 	model_release(&f->m);
 	if (f->work)

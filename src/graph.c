@@ -31,7 +31,8 @@
  * copied (through zlib, so .gz and stdin work) into memory, checked for the
  * few things that would hurt (a GraphML DTD, which could make libxml2 read
  * other files or expand entities without bound; a Pajek vertex count beyond
- * our 32-bit ids), then written to a tmpfile() for igraph. igraph's error
+ * our 32-bit ids, or more than a million beyond the file's size in bytes,
+ * which igraph would allocate), then written to a tmpfile() for igraph. igraph's error
  * handler is swapped for one that frees igraph's temporaries and keeps the
  * message, which we pass on through error(). Node names come from the
  * first vertex attribute, in this order, whose values are all present,
@@ -76,6 +77,7 @@
 #define ARENA_CHUNK ((size_t)1 << 20)     /* largest arena chunk */
 #define MAX_NODES ((uint64_t)UINT32_MAX - 1) /* most nodes: n < 2^32 - 1 */
 #define SLOT_EMPTY UINT32_MAX
+#define PAJEK_UNLISTED 1000000u /* vertices a Pajek file may declare beyond its size */
 
 /* ------------------------------------------------------------------ */
 /* Name table: open addressing into an arena                            */
@@ -834,7 +836,7 @@ static int edge_line(struct edge_state *st, const char *line, size_t len, uint64
 	if (len == 0 || line[0] == '#' || line[0] == '%')
 		return 0;
 	if (memchr(line, '\0', len))
-		return error("%s:%" PRIu64 ": NUL byte in line", st->shown, lineno);
+		return error("%s:%" PRIu64 ": expected text, found a NUL byte", st->shown, lineno);
 	if (is_blank(line, len))
 		return 0;
 	enum sep_mode mode = memchr(line, '\t', len)   ? SEP_TAB
@@ -908,8 +910,9 @@ static struct graph *load_edges(const char *path, const char *shown)
 				}
 				if (len == cap) {
 					if (cap >= LINE_MAX_BYTES) {
-						error("%s:%" PRIu64 ": line longer than %zu MiB",
-						      shown, lineno + 1, LINE_MAX_BYTES >> 20);
+						error("%s:%" PRIu64 ": expected a line of at most %zu "
+						      "MiB, found a longer one", shown, lineno + 1,
+						      LINE_MAX_BYTES >> 20);
 						goto fail;
 					}
 					char *nb = util_realloc(buf, cap * 2, 1);
@@ -1058,8 +1061,14 @@ static int precheck(enum graph_format fmt, const char *data, size_t len, const c
 				     "other files)", shown);
 	}
 	if (fmt == GRAPH_FORMAT_PAJEK) {
-		/* every "*vertices N" line, wherever it is */
+		/* every "*vertices N" line, wherever it is. A file may declare
+		 * vertices it never lists, but igraph allocates them all: more
+		 * than PAJEK_UNLISTED beyond the file's own size is refused, so
+		 * a few bytes cannot ask for gigabytes (found by fuzz_graph) */
+		uint64_t line = 1;
 		for (size_t i = 0; i < len; i++) {
+			if (data[i] == '\n')
+				line++;
 			if (data[i] != '*' || (i > 0 && data[i - 1] != '\n' && data[i - 1] != '\r'))
 				continue;
 			if (len - i < 9 || strncasecmp(data + i + 1, "vertices", 8) != 0)
@@ -1075,6 +1084,10 @@ static int precheck(enum graph_format fmt, const char *data, size_t len, const c
 						     PRIu64 " nodes", shown, MAX_NODES);
 				j++;
 			}
+			if (v > (uint64_t)len + PAJEK_UNLISTED)
+				return error("%s:%" PRIu64 ": expected a vertex count near the vertices "
+					     "the file lists, found %" PRIu64 " in a file of %zu bytes",
+					     shown, line, v, len);
 		}
 	}
 	return 0;

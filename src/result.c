@@ -7,11 +7,11 @@
  * checked, then renamed onto NAME and the folder fsync()ed. Any failure
  * removes the temporary file and leaves the old NAME as it was.
  *
- * result_write() writes checkpoint.cot first and run.json last. The
- * checkpoint is the one file that cannot be rebuilt from the others (it
- * alone holds the strengths), so it is saved before anything that might
- * fail for lack of space; run.json, written last, marks a folder whose
- * files all belong to the same snapshot.
+ * result_write() stages all five files (written, synced, closed under
+ * their temporary names) before it renames any of them, so a full disk or
+ * any write error leaves the old folder whole; then it renames the
+ * checkpoint first (it alone holds the strengths) and run.json last, which
+ * marks a folder whose files all belong to the same snapshot.
  *
  * The one thing a newcomer gets wrong: a checkpoint is hostile input like
  * any other file. The reader decodes from a bounded cursor that checks
@@ -113,13 +113,14 @@
  *
  * checkpoint.cot   binary, every integer and double little-endian
  *   (doubles as their IEEE-754 bit pattern):
- *     magic "COTERIE\x1a" (8 bytes), u32 version (1), u32 reserved (0),
+ *     magic "COTERIE\x1a" (8 bytes), u32 version (2), u32 reserved (0),
  *     u64 graph fingerprint,
  *     five sections, in this order, each framed as 4 ASCII tag bytes and
  *     a u64 payload length:
  *       "PARM": u32 k, u32 threads, u64 seed, f64 tol, u32 patience,
  *               u32 max_sweeps, f64 epsilon (as given; <= 0 means the
- *               default), u32 past_plateau (0 or 1). hold_at_plateau is
+ *               default), u32 past_plateau (0 or 1), u32 starts, u32
+ *               no_reseed (0 or 1; format 1 had neither). hold_at_plateau is
  *               how a session waits, not part of the fit: not stored,
  *               read back as 0.
  *       "STAT": u32 sweep, u32 plateau_sweep, u32 state (enum fit_state),
@@ -129,6 +130,13 @@
  *               edges as (u32 u, u32 v) with u < v, sorted by u then v
  *       "STRN": u32 n, u32 k, u64 nnz, (n + 1) x u64 row offsets,
  *               nnz x (u32 community, f64 strength)
+ *     then, only for a fit interrupted at the end of a sweep or a periodic
+ *     checkpoint taken there, "RSUM" (see
+ *     struct fit_resume): u32 start, u32 phase, u32 sweep, u32
+ *     plateau_sweep, a TRAC and a STRN section (framed as above) of the
+ *     start in progress, u32 best_start, and when it is not 0: u32 sweep,
+ *     u32 plateau_sweep, u32 refined, u32 state, f64 loglik, a TRAC and a
+ *     STRN section of the best earlier start.
  *     u64 FNV-1a checksum of every byte before it.
  *   The reader refuses: a wrong magic, a newer version, a checksum
  *   mismatch, any count larger than the bytes that hold it, names that
@@ -166,11 +174,15 @@
 #define CK_HEADER_LEN 24   /* magic, version, reserved, fingerprint */
 #define CK_SUM_LEN 8
 #define CK_SECTION_HEAD 12 /* tag and u64 length */
-#define CK_PARM_LEN 44
+#define CK_PARM_LEN_V1 44
+#define CK_PARM_LEN 52
 #define CK_STAT_LEN 28
 #define CK_TRACE_POINT 20
 #define CK_ENTRY 12
 #define CK_MAX_THREADS 65536u /* a sanity bound on a stored thread count */
+#define CK_MAX_STARTS 1000000u /* and on a stored start count */
+#define CK_RSUM_HEAD 16      /* start, phase, sweep, plateau_sweep */
+#define CK_RSUM_BEST 24      /* best sweep, plateau, refined, state, loglik */
 
 #if JSON_INTEGER_IS_LONG_LONG
 #define J_INT_MAX LLONG_MAX
@@ -445,13 +457,16 @@ static void wf_tsv_name(struct wfile *w, const char *s)
 typedef int (*fill_fn)(struct wfile *w, const void *arg);
 
 /*
- * Write path through fill (which reports its own errors and returns -1;
- * I/O errors are collected in w->err and reported here). The bytes go to
- * DIR/.NAME.tmp-PID, which is synced, closed and renamed onto path.
+ * Stage path: write it through fill (which reports its own errors and
+ * returns -1; I/O errors are collected in w->err and reported here) to
+ * DIR/.NAME.tmp-PID, flushed, fsync()ed and closed. On success *tmp_out is
+ * that temporary name (caller frees), ready for rename(); on failure it is
+ * removed and *tmp_out is NULL.
  */
-static int atomic_write(const char *path, fill_fn fill, const void *arg)
+static int stage(const char *path, fill_fn fill, const void *arg, char **tmp_out)
 {
 	char *dir, *base;
+	*tmp_out = NULL;
 	if (path_split(path, &dir, &base) != 0)
 		return -1;
 	char *tmpname = util_malloc(strlen(base) + 32, 1);
@@ -492,12 +507,10 @@ static int atomic_write(const char *path, fill_fn fill, const void *arg)
 		error("cannot write '%s': %s", path, strerror(errno));
 		goto out;
 	}
-	if (rename(tmp, path) != 0) {
-		error("cannot replace '%s': %s", path, strerror(errno));
-		goto out;
-	}
 	made = 0;
-	rc = sync_dir(dir);
+	*tmp_out = tmp;
+	tmp = NULL;
+	rc = 0;
 out:
 	if (fd >= 0)
 		close(fd);
@@ -509,6 +522,40 @@ out:
 	free(dir);
 	free(base);
 	return rc;
+}
+
+/* Rename a staged file onto path; on failure the staged file is removed. */
+static int commit(char *tmp, const char *path)
+{
+	int rc = 0;
+	if (rename(tmp, path) != 0) {
+		rc = error("cannot replace '%s': %s", path, strerror(errno));
+		unlink(tmp);
+	}
+	free(tmp);
+	return rc;
+}
+
+/* The folder of path, synced after a rename in it. */
+static int sync_dir_of(const char *path)
+{
+	char *dir, *base;
+	if (path_split(path, &dir, &base) != 0)
+		return -1;
+	int rc = sync_dir(dir);
+	free(dir);
+	free(base);
+	return rc;
+}
+
+/* Replace path by what fill writes: the old file or the new one is there
+ * at every moment, never a part of one. */
+static int atomic_write(const char *path, fill_fn fill, const void *arg)
+{
+	char *tmp;
+	if (stage(path, fill, arg, &tmp) || commit(tmp, path))
+		return -1;
+	return sync_dir_of(path);
 }
 
 /* ------------------------------------------------------------------ */
@@ -528,6 +575,11 @@ static const char *check_params(const struct fit_params *p, char *why, size_t ca
 		snprintf(why, cap, "background %g is not a finite number below 1", p->epsilon);
 	else if (p->past_plateau != 0 && p->past_plateau != 1)
 		snprintf(why, cap, "past_plateau is %d, not 0 or 1", p->past_plateau);
+	else if (p->starts == 0 || p->starts > CK_MAX_STARTS)
+		snprintf(why, cap, "start count %u is not between 1 and %u", p->starts,
+			 CK_MAX_STARTS);
+	else if (p->no_reseed != 0 && p->no_reseed != 1)
+		snprintf(why, cap, "no_reseed is %d, not 0 or 1", p->no_reseed);
 	else
 		return NULL;
 	return why;
@@ -589,7 +641,9 @@ static const char *check_strengths(const struct fcsr *F, char *why, size_t cap)
 		return why;
 	}
 	for (uint32_t u = 0; u < F->n; u++) {
-		if (F->off[u + 1] < F->off[u]) {
+		/* bounded by the last offset before any entry is looked at: a
+		 * later row's offset may be the one that goes back down */
+		if (F->off[u + 1] < F->off[u] || F->off[u + 1] > F->off[F->n]) {
 			snprintf(why, cap, "row offsets decrease at node %" PRIu32, u);
 			return why;
 		}
@@ -616,6 +670,59 @@ static const char *check_strengths(const struct fcsr *F, char *why, size_t cap)
 	return NULL;
 }
 
+/* One start's part of a resume point: a trace ending at its sweep,
+ * strengths of n x k. */
+static const char *check_part(const struct fit_part *pt, uint32_t n, uint32_t k,
+			      const char *what, char *why, size_t cap)
+{
+	char sub[200];
+	const char *bad = NULL;
+	if (pt->ntrace == 0 || !pt->trace)
+		bad = "its trace is empty";
+	else if (pt->plateau_sweep > pt->sweep)
+		bad = "its plateau comes after its last sweep";
+	else if (pt->trace[pt->ntrace - 1].sweep != pt->sweep)
+		bad = "its trace does not end at its last sweep";
+	else if ((bad = check_trace(pt->trace, pt->ntrace, pt->sweep, sub, sizeof sub)))
+		;
+	else if ((bad = check_strengths(&pt->F, sub, sizeof sub)))
+		;
+	else if (pt->F.n != n || pt->F.k != k)
+		bad = "its strengths are not of the graph's shape";
+	if (!bad)
+		return NULL;
+	snprintf(why, cap, "%s: %s", what, bad);
+	return why;
+}
+
+static const char *check_resume(const struct fit_resume *r, uint32_t n,
+				const struct fit_params *p, char *why, size_t cap)
+{
+	const char *bad;
+	if (r->start == 0 || r->start > p->starts)
+		snprintf(why, cap, "the interrupted start %" PRIu32 " is not between 1 and %u",
+			 r->start, p->starts);
+	else if (r->phase != FIT_PHASE_CLIMB && r->phase != FIT_PHASE_REFINE)
+		snprintf(why, cap, "unknown phase %" PRIu32 " of the interrupted start", r->phase);
+	else if (r->best_start >= r->start)
+		snprintf(why, cap, "the best start %" PRIu32 " is not before start %" PRIu32,
+			 r->best_start, r->start);
+	else if ((bad = check_part(&r->cur, n, p->k, "the interrupted start", why, cap)))
+		return bad;
+	else if (!r->best_start)
+		return NULL;
+	else if (r->best_state != FIT_LEVELLED && r->best_state != FIT_FINISHED)
+		snprintf(why, cap, "the best start ended in state %u, not levelled or finished",
+			 (unsigned)r->best_state);
+	else if ((bad = check_part(&r->best, n, p->k, "the best start", why, cap)))
+		return bad;
+	else if (!(r->best_loglik == r->best.trace[r->best.ntrace - 1].loglik))
+		snprintf(why, cap, "the best start's log-likelihood is not its trace's last");
+	else
+		return NULL;
+	return why;
+}
+
 /* ------------------------------------------------------------------ */
 /* The checkpoint writer */
 
@@ -623,12 +730,76 @@ struct ck_args {
 	const struct graph *g;
 	const struct fit_params *p;
 	const struct snapshot *s;
+	const struct fit_resume *resume; /* s->resume when it is sound, else NULL */
 };
 
 static void wf_section(struct wfile *w, const char *tag, uint64_t len)
 {
 	wf_write(w, tag, 4);
 	wf_u64(w, len);
+}
+
+static uint64_t trace_section_len(uint32_t n)
+{
+	return 4 + (uint64_t)n * CK_TRACE_POINT;
+}
+
+static void wf_trace_section(struct wfile *w, const struct trace_point *t, uint32_t n)
+{
+	wf_section(w, "TRAC", trace_section_len(n));
+	wf_u32(w, n);
+	for (uint32_t i = 0; i < n; i++) {
+		wf_u32(w, t[i].sweep);
+		wf_f64(w, t[i].seconds);
+		wf_f64(w, t[i].loglik);
+	}
+}
+
+static uint64_t strn_section_len(const struct fcsr *F)
+{
+	return 4 + 4 + 8 + ((uint64_t)F->n + 1) * 8 + F->off[F->n] * CK_ENTRY;
+}
+
+static void wf_strn_section(struct wfile *w, const struct fcsr *F)
+{
+	uint64_t nnz = F->off[F->n];
+	wf_section(w, "STRN", strn_section_len(F));
+	wf_u32(w, F->n);
+	wf_u32(w, F->k);
+	wf_u64(w, nnz);
+	for (uint32_t u = 0; u <= F->n; u++)
+		wf_u64(w, F->off[u]);
+	for (uint64_t i = 0; i < nnz; i++) {
+		wf_u32(w, F->e[i].c);
+		wf_f64(w, F->e[i].v);
+	}
+}
+
+/* The optional RSUM section: where an interrupted fit stands. */
+static void wf_resume_section(struct wfile *w, const struct fit_resume *r)
+{
+	uint64_t len = CK_RSUM_HEAD + CK_SECTION_HEAD + trace_section_len(r->cur.ntrace) +
+		       CK_SECTION_HEAD + strn_section_len(&r->cur.F) + 4;
+	if (r->best_start)
+		len += CK_RSUM_BEST + CK_SECTION_HEAD + trace_section_len(r->best.ntrace) +
+		       CK_SECTION_HEAD + strn_section_len(&r->best.F);
+	wf_section(w, "RSUM", len);
+	wf_u32(w, r->start);
+	wf_u32(w, r->phase);
+	wf_u32(w, r->cur.sweep);
+	wf_u32(w, r->cur.plateau_sweep);
+	wf_trace_section(w, r->cur.trace, r->cur.ntrace);
+	wf_strn_section(w, &r->cur.F);
+	wf_u32(w, r->best_start);
+	if (r->best_start) {
+		wf_u32(w, r->best.sweep);
+		wf_u32(w, r->best.plateau_sweep);
+		wf_u32(w, r->best_reseeds);
+		wf_u32(w, (uint32_t)r->best_state);
+		wf_f64(w, r->best_loglik);
+		wf_trace_section(w, r->best.trace, r->best.ntrace);
+		wf_strn_section(w, &r->best.F);
+	}
 }
 
 static int fill_checkpoint(struct wfile *w, const void *arg)
@@ -653,6 +824,8 @@ static int fill_checkpoint(struct wfile *w, const void *arg)
 	wf_u32(w, p->max_sweeps);
 	wf_f64(w, p->epsilon);
 	wf_u32(w, (uint32_t)p->past_plateau);
+	wf_u32(w, p->starts);
+	wf_u32(w, (uint32_t)p->no_reseed);
 
 	wf_section(w, "STAT", CK_STAT_LEN);
 	wf_u32(w, s->sweep);
@@ -661,13 +834,7 @@ static int fill_checkpoint(struct wfile *w, const void *arg)
 	wf_f64(w, s->seconds);
 	wf_f64(w, s->epsilon);
 
-	wf_section(w, "TRAC", 4 + (uint64_t)s->ntrace * CK_TRACE_POINT);
-	wf_u32(w, s->ntrace);
-	for (uint32_t i = 0; i < s->ntrace; i++) {
-		wf_u32(w, s->trace[i].sweep);
-		wf_f64(w, s->trace[i].seconds);
-		wf_f64(w, s->trace[i].loglik);
-	}
+	wf_trace_section(w, s->trace, s->ntrace);
 
 	uint64_t glen = 4 + 8 + (uint64_t)g->n * 4 + g->m * 8;
 	for (uint32_t u = 0; u < g->n; u++)
@@ -692,24 +859,19 @@ static int fill_checkpoint(struct wfile *w, const void *arg)
 		return error("cannot write checkpoint: the graph lists %" PRIu64
 			     " edges but holds %" PRIu64, g->m, written);
 
-	uint64_t nnz = F->off[F->n];
-	wf_section(w, "STRN", 4 + 4 + 8 + ((uint64_t)F->n + 1) * 8 + nnz * CK_ENTRY);
-	wf_u32(w, F->n);
-	wf_u32(w, F->k);
-	wf_u64(w, nnz);
-	for (uint32_t u = 0; u <= F->n; u++)
-		wf_u64(w, F->off[u]);
-	for (uint64_t i = 0; i < nnz; i++) {
-		wf_u32(w, F->e[i].c);
-		wf_f64(w, F->e[i].v);
-	}
+	wf_strn_section(w, F);
+	if (a->resume)
+		wf_resume_section(w, a->resume);
 
 	wf_u64(w, w->sum);
 	return 0;
 }
 
-int result_write_checkpoint(const char *path, const struct graph *g,
-			    const struct fit_params *p, const struct snapshot *s)
+/* Refuse to save what the reader would refuse: 0 or -1. A resume point
+ * the reader would refuse is left out with a warning rather than losing
+ * the save (*resume says which). */
+static int checkpoint_ok(const char *path, const struct graph *g, const struct fit_params *p,
+			 const struct snapshot *s, const struct fit_resume **resume)
 {
 	char why[256];
 	const char *bad = NULL;
@@ -735,7 +897,21 @@ int result_write_checkpoint(const char *path, const struct graph *g,
 		bad = check_strengths(&s->F, why, sizeof why);
 	if (bad)
 		return error("cannot write checkpoint '%s': %s", path, bad);
-	struct ck_args a = { g, p, s };
+	*resume = s->resume;
+	if (s->resume && (bad = check_resume(s->resume, g->n, p, why, sizeof why))) {
+		warning("'%s' is saved without its resume point (%s): a resumed fit goes on as "
+			"one start", path, bad);
+		*resume = NULL;
+	}
+	return 0;
+}
+
+int result_write_checkpoint(const char *path, const struct graph *g,
+			    const struct fit_params *p, const struct snapshot *s)
+{
+	struct ck_args a = { g, p, s, NULL };
+	if (checkpoint_ok(path, g, p, s, &a.resume))
+		return -1;
 	return atomic_write(path, fill_checkpoint, &a);
 }
 
@@ -851,7 +1027,9 @@ static int read_whole(const char *path, unsigned char **data, size_t *size)
 {
 	*data = NULL;
 	*size = 0;
-	int fd = open(path, O_RDONLY | O_CLOEXEC);
+	/* O_NONBLOCK: a FIFO put where the checkpoint should be would block
+	 * open() until someone writes to it; it is refused below instead */
+	int fd = open(path, O_RDONLY | O_CLOEXEC | O_NONBLOCK);
 	if (fd < 0)
 		return error("cannot open '%s': %s", path, strerror(errno));
 	struct stat st;
@@ -1081,7 +1259,85 @@ static int read_strengths(const char *path, struct rd *sec, struct fcsr *F)
 	return 0;
 }
 
-static int read_body(const char *path, struct rd *body, struct checkpoint *ck)
+/* The next section, a TRAC one, into a new array. */
+static int read_trace(const char *path, struct rd *r, struct trace_point **out, uint32_t *nout)
+{
+	struct rd sec;
+	if (rd_section(path, r, "TRAC", &sec))
+		return -1;
+	uint32_t nt;
+	if (sec.left < 4)
+		return damaged(path, "the trace section is too short");
+	nt = rd_u32(&sec);
+	if (nt > sec.left / CK_TRACE_POINT)
+		return damaged(path, "the trace claims %" PRIu32 " points in %zu bytes", nt,
+			       sec.left);
+	*out = util_malloc(nt ? nt : 1, sizeof **out);
+	if (!*out)
+		return -1;
+	*nout = nt;
+	for (uint32_t i = 0; i < nt; i++) {
+		(*out)[i].sweep = rd_u32(&sec);
+		(*out)[i].seconds = rd_f64(&sec);
+		(*out)[i].loglik = rd_f64(&sec);
+	}
+	return rd_section_end(path, &sec, "TRAC");
+}
+
+/* A part of the RSUM section: a TRAC and a STRN section (sweep and
+ * plateau_sweep are read by the caller). */
+static int read_part(const char *path, struct rd *r, struct fit_part *pt)
+{
+	struct rd sec;
+	if (read_trace(path, r, &pt->trace, &pt->ntrace))
+		return -1;
+	if (rd_section(path, r, "STRN", &sec))
+		return -1;
+	return read_strengths(path, &sec, &pt->F);
+}
+
+static int read_resume(const char *path, struct rd *sec, struct checkpoint *ck)
+{
+	struct fit_resume *r = util_calloc(1, sizeof *r);
+	if (!r)
+		return -1;
+	ck->resume = r;
+	if (sec->left < CK_RSUM_HEAD)
+		return damaged(path, "the resume section is too short");
+	r->start = rd_u32(sec);
+	r->phase = rd_u32(sec);
+	r->cur.sweep = rd_u32(sec);
+	r->cur.plateau_sweep = rd_u32(sec);
+	if (read_part(path, sec, &r->cur))
+		return -1;
+	if (sec->left < 4)
+		return damaged(path, "the resume section is too short");
+	r->best_start = rd_u32(sec);
+	if (r->best_start) {
+		if (sec->left < CK_RSUM_BEST)
+			return damaged(path, "the resume section is too short");
+		r->best.sweep = rd_u32(sec);
+		r->best.plateau_sweep = rd_u32(sec);
+		r->best_reseeds = rd_u32(sec);
+		uint32_t state = rd_u32(sec);
+		if (state > FIT_FAILED)
+			return damaged(path, "unknown fit state %" PRIu32, state);
+		r->best_state = (enum fit_state)state;
+		r->best_loglik = rd_f64(sec);
+		if (read_part(path, sec, &r->best))
+			return -1;
+	}
+	if (rd_section_end(path, sec, "RSUM"))
+		return -1;
+	char why[256];
+	const char *bad = check_resume(r, ck->graph->n, &ck->params, why, sizeof why);
+	if (bad)
+		return damaged(path, "%s", bad);
+	return 0;
+}
+
+static int read_body(const char *path, struct rd *body, uint32_t version,
+		     struct checkpoint *ck)
 {
 	struct rd sec;
 	char why[256];
@@ -1089,9 +1345,10 @@ static int read_body(const char *path, struct rd *body, struct checkpoint *ck)
 
 	if (rd_section(path, body, "PARM", &sec))
 		return -1;
-	if (sec.left != CK_PARM_LEN)
-		return damaged(path, "the parameters take %zu bytes, not %d", sec.left, CK_PARM_LEN);
-	uint32_t threads, pp;
+	size_t plen = version == 1 ? CK_PARM_LEN_V1 : CK_PARM_LEN;
+	if (sec.left != plen)
+		return damaged(path, "the parameters take %zu bytes, not %zu", sec.left, plen);
+	uint32_t threads, pp, starts = 1, norefine = 1;
 	struct fit_params *p = &ck->params;
 	p->k = rd_u32(&sec);
 	threads = rd_u32(&sec);
@@ -1101,12 +1358,20 @@ static int read_body(const char *path, struct rd *body, struct checkpoint *ck)
 	p->max_sweeps = rd_u32(&sec);
 	p->epsilon = rd_f64(&sec);
 	pp = rd_u32(&sec);
-	if (threads == 0 || threads > CK_MAX_THREADS || pp > 1) {
-		return damaged(path, "threads %" PRIu32 " or past_plateau %" PRIu32
-			       " out of range", threads, pp);
+	if (version >= 2) {
+		starts = rd_u32(&sec);
+		norefine = rd_u32(&sec);
+	}
+	if (threads == 0 || threads > CK_MAX_THREADS || pp > 1 || starts == 0 ||
+	    starts > CK_MAX_STARTS || norefine > 1) {
+		return damaged(path, "threads %" PRIu32 ", past_plateau %" PRIu32 ", starts %" PRIu32
+			       " or no_reseed %" PRIu32 " out of range", threads, pp, starts, norefine);
 	}
 	p->threads = threads;
 	p->past_plateau = (int)pp;
+	/* format 1 did not store them; its fits resumed as one start, unrefined */
+	p->starts = starts;
+	p->no_reseed = (int)norefine;
 	if ((bad = check_params(p, why, sizeof why)))
 		return damaged(path, "%s", bad);
 
@@ -1125,27 +1390,9 @@ static int read_body(const char *path, struct rd *body, struct checkpoint *ck)
 		return damaged(path, "%s", bad);
 	ck->state = (enum fit_state)state;
 
-	if (rd_section(path, body, "TRAC", &sec))
+	if (read_trace(path, body, &ck->trace, &ck->ntrace))
 		return -1;
-	uint32_t nt;
-	if (sec.left < 4)
-		return damaged(path, "the trace section is too short");
-	nt = rd_u32(&sec);
-	if (nt > sec.left / CK_TRACE_POINT)
-		return damaged(path, "the trace claims %" PRIu32 " points in %zu bytes", nt,
-			       sec.left);
-	ck->trace = util_malloc(nt, sizeof *ck->trace);
-	if (!ck->trace)
-		return -1;
-	ck->ntrace = nt;
-	for (uint32_t i = 0; i < nt; i++) {
-		ck->trace[i].sweep = rd_u32(&sec);
-		ck->trace[i].seconds = rd_f64(&sec);
-		ck->trace[i].loglik = rd_f64(&sec);
-	}
-	if (rd_section_end(path, &sec, "TRAC"))
-		return -1;
-	if ((bad = check_trace(ck->trace, nt, ck->sweep, why, sizeof why)))
+	if ((bad = check_trace(ck->trace, ck->ntrace, ck->sweep, why, sizeof why)))
 		return damaged(path, "%s", bad);
 
 	if (rd_section(path, body, "GRPH", &sec))
@@ -1163,6 +1410,10 @@ static int read_body(const char *path, struct rd *body, struct checkpoint *ck)
 	if (ck->F.k != p->k)
 		return damaged(path, "the strengths have %" PRIu32 " columns but k is %" PRIu32,
 			       ck->F.k, p->k);
+	if (version >= 2 && body->left >= CK_SECTION_HEAD && !memcmp(body->p, "RSUM", 4)) {
+		if (rd_section(path, body, "RSUM", &sec) || read_resume(path, &sec, ck))
+			return -1;
+	}
 	if (body->left != 0)
 		return damaged(path, "%zu unexpected bytes after the last section", body->left);
 	return 0;
@@ -1200,7 +1451,7 @@ int result_read_checkpoint(const char *path, struct checkpoint *out)
 	}
 	out->fingerprint = dec_u64(data + 16);
 	struct rd body = { data + CK_HEADER_LEN, size - CK_HEADER_LEN - CK_SUM_LEN };
-	rc = read_body(path, &body, out);
+	rc = read_body(path, &body, version, out);
 out:
 	free(data);
 	if (rc)
@@ -1215,6 +1466,7 @@ void checkpoint_release(struct checkpoint *ck)
 	graph_free(ck->graph);
 	free(ck->trace);
 	fcsr_release(&ck->F);
+	fit_resume_free(ck->resume);
 	memset(ck, 0, sizeof *ck);
 }
 
@@ -1227,6 +1479,7 @@ void checkpoint_origin(const struct checkpoint *ck, struct fit_origin *o)
 	o->sweep = ck->sweep;
 	o->seconds = ck->seconds;
 	o->plateau_sweep = ck->plateau_sweep;
+	o->resume = ck->resume;
 }
 
 /* ------------------------------------------------------------------ */
@@ -1622,33 +1875,51 @@ static int check_agm(const struct graph *g, const struct snapshot *s)
 int result_write(const char *dir, const struct graph *g, const struct fit_params *p,
 		 const struct snapshot *s, const struct result_meta *meta)
 {
-	static const struct {
-		const char *name;
-		fill_fn fill;
-	} tsv[] = {
-		{ "memberships.tsv", fill_memberships },
-		{ "communities.tsv", fill_communities },
-		{ "trace.tsv", fill_trace },
+	/* every file is staged first, and only when all five are on disk are
+	 * they renamed into place (the checkpoint first, run.json last): a
+	 * full disk or a write error leaves the old folder as it was */
+	enum { NFILES = 5 };
+	static const char *const names[NFILES] = {
+		RESULT_CHECKPOINT, "memberships.tsv", "communities.tsv", "trace.tsv", "run.json",
 	};
+	char *paths[NFILES] = { 0 }, *tmps[NFILES] = { 0 };
+	char *text = NULL;
+	int rc = -1;
 	if (check_agm(g, s) || make_dirs(dir))
 		return -1;
-	char *path = path_join(dir, RESULT_CHECKPOINT);
-	if (!path)
-		return -1;
-	int rc = result_write_checkpoint(path, g, p, s);
-	free(path);
-	struct tsv_args a = { g, s };
-	for (size_t i = 0; rc == 0 && i < sizeof tsv / sizeof tsv[0]; i++) {
-		path = path_join(dir, tsv[i].name);
-		rc = path ? atomic_write(path, tsv[i].fill, &a) : -1;
-		free(path);
+	for (int i = 0; i < NFILES; i++)
+		if (!(paths[i] = path_join(dir, names[i])))
+			goto out;
+	struct ck_args ca = { g, p, s, NULL };
+	struct tsv_args ta = { g, s };
+	if (checkpoint_ok(paths[0], g, p, s, &ca.resume) || stage(paths[0], fill_checkpoint, &ca, &tmps[0]) ||
+	    stage(paths[1], fill_memberships, &ta, &tmps[1]) ||
+	    stage(paths[2], fill_communities, &ta, &tmps[2]) ||
+	    stage(paths[3], fill_trace, &ta, &tmps[3]))
+		goto out;
+	text = run_json(g, p, s, meta);
+	if (!text || stage(paths[4], fill_text, text, &tmps[4]))
+		goto out;
+	rc = 0;
+	for (int i = 0; i < NFILES; i++) {
+		if (rc == 0) {
+			rc = commit(tmps[i], paths[i]);
+		} else {
+			unlink(tmps[i]);
+			free(tmps[i]);
+		}
+		tmps[i] = NULL;
 	}
-	if (rc)
-		return -1;
-	char *text = run_json(g, p, s, meta);
-	path = text ? path_join(dir, "run.json") : NULL;
-	rc = path ? atomic_write(path, fill_text, text) : -1;
-	free(path);
+	if (rc == 0)
+		rc = sync_dir(dir);
+out:
+	for (int i = 0; i < NFILES; i++) {
+		if (tmps[i]) {
+			unlink(tmps[i]);
+			free(tmps[i]);
+		}
+		free(paths[i]);
+	}
 	free(text);
 	return rc;
 }

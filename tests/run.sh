@@ -2,10 +2,21 @@
 # Runs the whole suite: every cmocka binary given on the command line, then
 # the command tests (tests/cli/*.sh) and the explorer tests (tests/tui/*.sh),
 # and ends with one line "N passed, N failed".
-# --unit runs only the cmocka binaries.
+# --unit runs only the cmocka binaries; --no-tui leaves out the explorer
+# tests; --cli PATTERN runs only the command tests matching it (and no
+# cmocka binary is given then).
 # Environment: COTERIE_BIN is the binary under test.
 unit_only=0
-if [ "$1" = "--unit" ]; then unit_only=1; shift; fi
+tui=1
+cli_pattern='*'
+while :; do
+	case "$1" in
+	--unit) unit_only=1; shift ;;
+	--no-tui) tui=0; shift ;;
+	--cli) cli_pattern=$2; tui=0; shift 2 ;;
+	*) break ;;
+	esac
+done
 here=$(cd "$(dirname "$0")" && pwd)
 pass=0; fail=0; failed_names=""
 log=$(mktemp)
@@ -22,7 +33,9 @@ for t in "$@"; do
 	[ "$f" -gt 0 ] && failed_names="$failed_names $name"
 done
 if [ "$unit_only" -eq 0 ]; then
-	for t in "$here"/cli/*.sh "$here"/tui/*.sh; do
+	tui_tests=
+	[ "$tui" -eq 1 ] && tui_tests="$here/tui/*.sh"
+	for t in "$here"/cli/$cli_pattern.sh $tui_tests; do
 		[ -f "$t" ] || continue
 		name=$(basename "$t")
 		echo "== $name"

@@ -470,7 +470,7 @@ static void test_nul_byte_is_an_error_naming_the_line(void **state)
 	struct graph *g = graph_load(p, GRAPH_FORMAT_EDGES);
 	capture_stop();
 	assert_null(g);
-	assert_int_equal(captured_with("nul.tsv:2: NUL byte"), 1);
+	assert_int_equal(captured_with("nul.tsv:2: expected text, found a NUL byte"), 1);
 }
 
 static void test_missing_file_is_an_error(void **state)
@@ -538,7 +538,7 @@ static void test_long_lines_work_up_to_the_limit(void **state)
 	g = graph_load(p, GRAPH_FORMAT_EDGES);
 	capture_stop();
 	assert_null(g);
-	assert_int_equal(captured_with("huge.tsv:2: line longer than 16 MiB"), 1);
+	assert_int_equal(captured_with("huge.tsv:2: expected a line of at most 16 MiB"), 1);
 }
 
 /* ---- igraph formats ---------------------------------------------------- */
@@ -721,6 +721,29 @@ static void test_graphs_of_2_to_the_32_minus_1_nodes_are_refused(void **state)
 	assert_null(graph_from_pairs(UINT32_MAX, NULL, 0, NULL));
 	capture_stop();
 	assert_int_equal(captured_with("too many nodes"), 2);
+}
+
+static void test_pajek_vertex_counts_far_beyond_the_file_are_refused(void **state)
+{
+	(void)state;
+	/* 709551615 vertices declared in a file of 43 bytes would have igraph
+	 * allocate gigabytes (found by tests/fuzz/fuzz_graph) */
+	const char *p = write_text("huge.net", "% a comment\n*Vertices 709551615\n*Edges\n1 2\n");
+	capture_start();
+	struct graph *g = graph_load(p, GRAPH_FORMAT_AUTO);
+	capture_stop();
+	assert_null(g);
+	assert_int_equal(captured_with("huge.net:2: expected a vertex count near the vertices the "
+				       "file lists, found 709551615"), 1);
+	/* a million unlisted vertices are still accepted (isolated nodes) */
+	p = write_text("many.net", "*Vertices 1000000\n*Edges\n1 2\n");
+	util_set_quiet(1);
+	g = graph_load(p, GRAPH_FORMAT_AUTO);
+	util_set_quiet(0);
+	assert_non_null(g);
+	assert_int_equal(g->n, 1000000);
+	assert_int_equal(g->m, 1);
+	graph_free(g);
 }
 
 static void test_graphml_with_a_dtd_is_refused(void **state)
@@ -1136,6 +1159,7 @@ int main(int argc, char **argv)
 		cmocka_unit_test(test_igraph_format_in_gz_and_by_argument),
 		cmocka_unit_test(test_igraph_parse_error_is_reported_and_not_fatal),
 		cmocka_unit_test(test_graphs_of_2_to_the_32_minus_1_nodes_are_refused),
+		cmocka_unit_test(test_pajek_vertex_counts_far_beyond_the_file_are_refused),
 		cmocka_unit_test(test_graphml_with_a_dtd_is_refused),
 		cmocka_unit_test(test_open_datasets_have_their_published_sizes),
 		cmocka_unit_test(test_karate_degrees_match_networkx),

@@ -109,6 +109,8 @@ static void fixture_init(void)
 	fx.p.max_sweeps = 500;
 	fx.p.epsilon = 0; /* "use the default" */
 	fx.p.past_plateau = 0;
+	fx.p.starts = 3;
+	fx.p.no_reseed = 1;
 
 	/* Strengths, row by row (community, value). */
 	static const struct fentry fe[10] = {
@@ -806,7 +808,7 @@ static void test_checkpoint_layout_matches_the_documentation(void **state)
 	unsigned char *buf = slurp(path, &size);
 	assert_true(size > 32);
 	assert_memory_equal(buf, "COTERIE\x1a", 8);
-	assert_int_equal(le(buf + 8, 4), 1);   /* version */
+	assert_int_equal(le(buf + 8, 4), 2);   /* version */
 	assert_int_equal(le(buf + 12, 4), 0);  /* reserved */
 	assert_true(le(buf + 16, 8) == graph_fingerprint(fx.g));
 	assert_true(le(buf + size - 8, 8) == fnv1a(buf, size - 8));
@@ -822,12 +824,14 @@ static void test_checkpoint_layout_matches_the_documentation(void **state)
 
 	size_t len, s;
 	s = section(buf, size, "PARM", &len);
-	assert_int_equal(len, 44);
+	assert_int_equal(len, 52);
 	assert_int_equal(le(buf + s, 4), K);
 	assert_int_equal(le(buf + s + 4, 4), 2);
 	assert_true(le(buf + s + 8, 8) == 12345678901ULL);
 	assert_int_equal(le(buf + s + 24, 4), 3);
 	assert_int_equal(le(buf + s + 28, 4), 500);
+	assert_int_equal(le(buf + s + 44, 4), 3); /* starts */
+	assert_int_equal(le(buf + s + 48, 4), 1); /* no_reseed */
 	s = section(buf, size, "STAT", &len);
 	assert_int_equal(len, 28);
 	assert_int_equal(le(buf + s, 4), 4);
@@ -879,6 +883,9 @@ static void test_checkpoint_round_trip_keeps_every_field(void **state)
 	assert_int_equal(ck.params.max_sweeps, 500);
 	assert_true(ck.params.epsilon == 0);
 	assert_int_equal(ck.params.past_plateau, 0);
+	assert_int_equal(ck.params.starts, 3);
+	assert_int_equal(ck.params.no_reseed, 1);
+	assert_null(ck.resume);
 
 	assert_int_equal(ck.sweep, 4);
 	assert_int_equal(ck.plateau_sweep, 3);
@@ -1074,6 +1081,10 @@ static void test_checkpoint_refuses_bad_contents_under_a_valid_checksum(void **s
 	REFUSED(&c, "sorted");
 	put_le(c.buf + c.strn + 16 + N * 8, 9, 8); /* off[n] != nnz */
 	REFUSED(&c, "offset");
+	/* row 0 claims entries far past the end, row 1 goes back down: refused
+	 * before row 0's entries are read (found by tests/fuzz/fuzz_checkpoint) */
+	put_le(c.buf + c.strn + 16 + 1 * 8, 1000, 8);
+	REFUSED(&c, "offsets decrease at node 0");
 
 	/* edges: the last 8 * NPAIRS bytes of GRPH; edge 0 is 0-1, edge 1 is 0-2 */
 	size_t ed = c.grph + c.grph_len - 8 * NPAIRS;
@@ -1125,8 +1136,12 @@ static void test_checkpoint_refuses_bad_contents_under_a_valid_checksum(void **s
 	REFUSED(&c, "trace point 4");
 
 	/* a format from the future, and bytes nobody described */
-	put_le(c.buf + 8, 2, 4);
+	put_le(c.buf + 8, 3, 4);
 	REFUSED(&c, "newer coterie");
+	put_le(c.buf + c.parm + 44, 0, 4); /* starts */
+	REFUSED(&c, "starts 0");
+	put_le(c.buf + c.parm + 48, 2, 4); /* no_reseed */
+	REFUSED(&c, "no_reseed 2");
 	put_le(c.buf + 8, 0, 4);
 	REFUSED(&c, "format 0");
 	put_le(c.buf + 12, 1, 4);
@@ -1142,6 +1157,145 @@ static void test_checkpoint_refuses_bad_contents_under_a_valid_checksum(void **s
 	checkpoint_release(&ck);
 	free(c.buf);
 	free(c.good);
+	test_rmtree(dir);
+}
+
+/* Format 1 (before starts and no_reseed were stored) still reads: its
+ * PARM section is the first 44 bytes of ours. Such a fit resumed as one
+ * start without refinement, and reads back so. */
+static void test_checkpoint_reads_format_1(void **state)
+{
+	(void)state;
+	char dir[4096];
+	const char *path = checkpoint_file(dir, sizeof dir);
+	size_t size, len;
+	unsigned char *good = slurp(path, &size);
+	size_t parm = section(good, size, "PARM", &len);
+	unsigned char *old = malloc(size);
+	assert_non_null(old);
+	memcpy(old, good, parm + 44);
+	memcpy(old + parm + 44, good + parm + 52, size - parm - 52);
+	size_t osize = size - 8;
+	put_le(old + 8, 1, 4);
+	put_le(old + parm - 8, 44, 8);
+	reseal(old, osize);
+	spill(path, old, osize);
+	struct checkpoint ck;
+	assert_int_equal(result_read_checkpoint(path, &ck), 0);
+	assert_int_equal(ck.params.k, K);
+	assert_int_equal(ck.params.max_sweeps, 500);
+	assert_int_equal(ck.params.starts, 1);
+	assert_int_equal(ck.params.no_reseed, 1);
+	assert_int_equal(ck.F.off[ck.F.n], 10);
+	checkpoint_release(&ck);
+	/* a format-1 file with format-2 parameters is refused */
+	put_le(good + 8, 1, 4);
+	reseal(good, size);
+	spill(path, good, size);
+	quiet_on();
+	assert_int_equal(result_read_checkpoint(path, &ck), -1);
+	quiet_off();
+	assert_non_null(strstr(last_msg, "parameters take 52 bytes, not 44"));
+	free(old);
+	free(good);
+	test_rmtree(dir);
+}
+
+/* The fixture's model as a part: trace and strengths up to sweep 4. */
+static struct fit_part fixture_part(void)
+{
+	struct fit_part pt = { fx.s.F, fx.trace, 5, 4, 3 };
+	return pt;
+}
+
+/* An interrupted fit (fit.h, struct fit_resume) round-trips through the
+ * RSUM section, and damage inside it is refused. */
+static void test_checkpoint_keeps_where_an_interrupt_left_the_starts(void **state)
+{
+	(void)state;
+	struct fit_resume r;
+	memset(&r, 0, sizeof r);
+	r.start = 2;
+	r.phase = FIT_PHASE_REFINE;
+	r.cur = fixture_part();
+	r.best_start = 1;
+	r.best = fixture_part();
+	r.best.ntrace = 4; /* the best start ended at sweep 3 */
+	r.best.sweep = 3;
+	r.best.plateau_sweep = 2;
+	r.best_reseeds = 2;
+	r.best_state = FIT_LEVELLED;
+	r.best_loglik = fx.trace[3].loglik;
+	fx.s.resume = &r;
+	char dir[4096];
+	const char *path = checkpoint_file(dir, sizeof dir);
+	fx.s.resume = NULL;
+
+	struct checkpoint ck;
+	assert_int_equal(result_read_checkpoint(path, &ck), 0);
+	assert_non_null(ck.resume);
+	const struct fit_resume *q = ck.resume;
+	assert_int_equal(q->start, 2);
+	assert_int_equal(q->phase, FIT_PHASE_REFINE);
+	assert_int_equal(q->cur.sweep, 4);
+	assert_int_equal(q->cur.plateau_sweep, 3);
+	assert_int_equal(q->cur.ntrace, 5);
+	assert_memory_equal(&q->cur.trace[3].loglik, &fx.trace[3].loglik, sizeof(double));
+	assert_int_equal(q->cur.F.off[N], 10);
+	assert_memory_equal(q->cur.F.e, fx.fe, sizeof fx.fe);
+	assert_int_equal(q->best_start, 1);
+	assert_int_equal(q->best.sweep, 3);
+	assert_int_equal(q->best.plateau_sweep, 2);
+	assert_int_equal(q->best.ntrace, 4);
+	assert_int_equal(q->best_reseeds, 2);
+	assert_int_equal(q->best_state, FIT_LEVELLED);
+	assert_memory_equal(&q->best_loglik, &fx.trace[3].loglik, sizeof(double));
+	assert_memory_equal(q->best.F.e, fx.fe, sizeof fx.fe);
+	struct fit_origin o;
+	checkpoint_origin(&ck, &o);
+	assert_ptr_equal(o.resume, ck.resume);
+	checkpoint_release(&ck);
+	assert_null(ck.resume);
+
+	/* damage under a valid checksum: RSUM payload = start, phase, sweep,
+	 * plateau_sweep, then a TRAC section */
+	struct crafted c;
+	craft_begin(&c, path);
+	size_t len;
+	size_t rs = section(c.good, c.size, "RSUM", &len);
+	put_le(c.buf + rs, 4, 4); /* start 4 of 3 */
+	REFUSED(&c, "interrupted start 4");
+	put_le(c.buf + rs, 0, 4);
+	REFUSED(&c, "interrupted start 0");
+	put_le(c.buf + rs, 1, 4); /* the best start (1) is not before it */
+	REFUSED(&c, "best start 1");
+	put_le(c.buf + rs + 4, 7, 4);
+	REFUSED(&c, "phase 7");
+	put_le(c.buf + rs + 8, 9, 4); /* the trace ends at sweep 4, not 9 */
+	REFUSED(&c, "interrupted start");
+	put_le(c.buf + rs + 12, 5, 4); /* plateau after the last sweep */
+	REFUSED(&c, "plateau");
+	put_le(c.buf + rs + 16 + 12, 0xffffffffULL, 4); /* trace count */
+	REFUSED(&c, "claim");
+	put_le(c.buf + rs - 8, 1ULL << 40, 8); /* the RSUM length */
+	REFUSED(&c, "RSUM");
+	craft_refused(&c, rs - 12 + 4, "section", __LINE__); /* cut inside the tag */
+	free(c.buf);
+	free(c.good);
+
+	/* a resume point the reader would refuse is left out, with a warning,
+	 * and the rest is saved: a save is not lost for it */
+	r.start = 4; /* of 3 starts */
+	fx.s.resume = &r;
+	quiet_on();
+	assert_int_equal(result_write_checkpoint(path, fx.g, &fx.p, &fx.s), 0);
+	quiet_off();
+	fx.s.resume = NULL;
+	assert_non_null(strstr(last_msg, "saved without its resume point"));
+	assert_int_equal(result_read_checkpoint(path, &ck), 0);
+	assert_null(ck.resume);
+	assert_int_equal(ck.sweep, 4);
+	checkpoint_release(&ck);
 	test_rmtree(dir);
 }
 
@@ -1377,6 +1531,8 @@ int main(void)
 		cmocka_unit_test(test_checkpoint_refuses_every_truncation),
 		cmocka_unit_test(test_checkpoint_refuses_bad_contents_under_a_valid_checksum),
 		cmocka_unit_test(test_checkpoint_refuses_what_is_not_a_checkpoint),
+		cmocka_unit_test(test_checkpoint_reads_format_1),
+		cmocka_unit_test(test_checkpoint_keeps_where_an_interrupt_left_the_starts),
 		cmocka_unit_test(test_prepare_dir_makes_parents_and_leaves_nothing),
 		cmocka_unit_test(test_prepare_dir_refuses_what_cannot_be_written),
 		cmocka_unit_test(test_failed_write_keeps_the_old_file_and_no_temporary),

@@ -102,11 +102,52 @@ struct snapshot {
 				  * fresh one (agm_sweep == sweep) */
 	uint32_t agm_sweep;
 	struct seed_report seeds;
+	struct fit_resume *resume; /* owned; in the last snapshot of an
+				    * interrupted fit (see fit_interrupt())
+				    * and in the one after
+				    * fit_want_resume_point(), else NULL */
 	/* private */
 	int refs_;
 };
 
 void snapshot_release(struct snapshot *s);
+
+/* One start's model at a point where it can go on: strengths, trace, the
+ * sweep count and where the plateau rule first fired. */
+struct fit_part {
+	struct fcsr F;
+	struct trace_point *trace;
+	uint32_t ntrace;
+	uint32_t sweep, plateau_sweep;
+};
+
+/*
+ * Where an interrupted fit stands, so that a resumed one ends with the
+ * bytes an uninterrupted one would have given (same seed, same
+ * parameters). Made by fit_interrupt(), which lets the sweep in progress
+ * end first, and on request by fit_want_resume_point().
+ *   start  the start in progress (1-based) of snapshot.starts
+ *   phase  FIT_PHASE_CLIMB: cur is that start after its last whole sweep,
+ *          still climbing to its first plateau; FIT_PHASE_REFINE: cur is
+ *          that start as it levelled off, and its refinement moves are
+ *          made again from there (they are drawn from the seed and the
+ *          start, so they come out the same; the work of the moves made
+ *          before the interrupt is done again).
+ *   best   the most likely of the starts before it (best_start 0: none),
+ *          with the state it ended in (LEVELLED or FINISHED), the
+ *          refinement moves it kept and its final log-likelihood.
+ */
+enum { FIT_PHASE_CLIMB = 0, FIT_PHASE_REFINE = 1 };
+struct fit_resume {
+	uint32_t start, phase;
+	struct fit_part cur;
+	uint32_t best_start;
+	struct fit_part best;
+	uint32_t best_reseeds;
+	enum fit_state best_state;
+	double best_loglik;
+};
+void fit_resume_free(struct fit_resume *r); /* NULL is a no-op */
 
 /* Where a resumed fit starts; all borrowed and copied by fit_new(). */
 struct fit_origin {
@@ -116,6 +157,11 @@ struct fit_origin {
 	uint32_t sweep;
 	double seconds;
 	uint32_t plateau_sweep;
+	/* NULL: go on from F as one start, without refinement (a fit that
+	 * ended, or was stopped inside a sweep). Else: continue the starts
+	 * exactly where an interrupt left them (F and the fields above are
+	 * then not used; the parameters must be the saved ones). */
+	const struct fit_resume *resume;
 };
 
 struct fit;
@@ -140,6 +186,18 @@ void fit_resume(struct fit *f);
 /* Ask the fit to end after the current block; the model so far is kept
  * and a final snapshot published. */
 void fit_stop(struct fit *f);
+/* Ask the fit to end after the sweep in progress (a paused fit goes on to
+ * the end of it first), and to leave in its last snapshot what an exact
+ * resume needs (snapshot.resume), unless fit_stop() comes too. */
+void fit_interrupt(struct fit *f);
+/* Ask that the next sweep to end publish a snapshot with a resume point
+ * (snapshot.resume), for a periodic checkpoint that resumes exactly. A fit
+ * continued as one start (fit_origin without resume) never makes one. */
+void fit_want_resume_point(struct fit *f);
+/* The newest snapshot that carried a resume point, if one was published
+ * since the last call, else NULL; it is not returned twice. Caller releases
+ * with snapshot_release(). */
+struct snapshot *fit_take_resume_point(struct fit *f);
 /* Let a fit that levelled off (or is about to) run on until stopped or
  * max_sweeps: a fit holding at a plateau goes on fitting. Has no effect
  * after the thread ended. */

@@ -24,7 +24,7 @@
 struct graph;
 
 #define RESULT_CHECKPOINT "checkpoint.cot"
-#define RESULT_CHECKPOINT_VERSION 1u
+#define RESULT_CHECKPOINT_VERSION 2u
 #define RESULT_SELECTION "k-selection.tsv"
 
 struct refine_report;
@@ -95,6 +95,8 @@ struct checkpoint {
 	uint32_t ntrace;
 	struct trace_point *trace;   /* owned */
 	struct fcsr F;               /* owned */
+	struct fit_resume *resume;   /* owned; NULL unless the fit was
+				      * interrupted at the end of a sweep */
 };
 
 /* Read and validate a checkpoint (checksum, version, every size and index).

@@ -40,6 +40,14 @@ void cli_option_error(int c, char **argv);
 int cli_signals_install(void);
 int cli_signal_fd(void);
 int cli_signal_caught(void); /* the signal number, or 0 */
+int cli_signal_count(void);  /* how many have come */
+
+/* A loaded graph must have an edge to be fitted: 0, or -1 with a message
+ * "FILE:LINE: expected ..., found ..." (the line where the edge list
+ * ended, for edge lists). */
+int cli_graph_fittable(const struct graph *g, const char *path);
+/* -k must not exceed the node count: else a usage message and exit 2. */
+void cli_k_fits(uint32_t k, const struct graph *g);
 
 /* Peak resident memory of this process in KiB (0 if unknown). */
 uint64_t cli_peak_rss_kb(void);

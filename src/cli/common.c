@@ -4,6 +4,7 @@
 #include <errno.h>
 #include <fcntl.h>
 #include <getopt.h>
+#include <inttypes.h>
 #include <langinfo.h>
 #include <math.h>
 #include <signal.h>
@@ -80,13 +81,15 @@ void cli_option_error(int c, char **argv)
 		error("unknown option '%s'", util_escape(argv[optind - 1], buf, sizeof buf, 1));
 }
 
-static volatile sig_atomic_t caught;
+static volatile sig_atomic_t caught, ncaught;
 static int sigpipe_fd[2] = { -1, -1 };
 
 static void on_signal(int sig)
 {
 	int saved = errno;
 	caught = sig;
+	if (ncaught < 1000)
+		ncaught++;
 	if (sigpipe_fd[1] >= 0) {
 		char b = 1;
 		ssize_t w = write(sigpipe_fd[1], &b, 1);
@@ -124,6 +127,41 @@ int cli_signal_fd(void)
 int cli_signal_caught(void)
 {
 	return caught;
+}
+
+int cli_signal_count(void)
+{
+	return ncaught;
+}
+
+int cli_graph_fittable(const struct graph *g, const char *path)
+{
+	if (g->m > 0)
+		return 0;
+	char shown[512];
+	if (!strcmp(path, "-"))
+		snprintf(shown, sizeof shown, "stdin");
+	else
+		util_escape(path, shown, sizeof shown, 1);
+	const struct graph_report *r = &g->report;
+	if (r->format != GRAPH_FORMAT_EDGES)
+		return error("%s: expected at least one edge, found %" PRIu32 " node%s and none",
+			     shown, g->n, g->n == 1 ? "" : "s");
+	if (r->lines == 0)
+		return error("%s:1: expected two node names, found an empty file", shown);
+	if (r->self_loops)
+		return error("%s:%" PRIu64 ": expected an edge between two different nodes, found "
+			     "the end of the file after only self-loops", shown, r->lines + 1);
+	return error("%s:%" PRIu64 ": expected two node names, found the end of the file after "
+		     "%" PRIu64 " line%s of comments and blanks", shown, r->lines + 1, r->lines,
+		     r->lines == 1 ? "" : "s");
+}
+
+void cli_k_fits(uint32_t k, const struct graph *g)
+{
+	if (k > g->n)
+		die(EXIT_USAGE, "-k %" PRIu32 " asks for more communities than the graph has nodes "
+		    "(%" PRIu32 ")", k, g->n);
 }
 
 uint64_t cli_peak_rss_kb(void)

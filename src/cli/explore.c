@@ -26,6 +26,7 @@
 #include "cli.h"
 #include "coterie/fit.h"
 #include "coterie/graph.h"
+#include "coterie/memory.h"
 #include "coterie/result.h"
 #include "coterie/select.h"
 
@@ -57,6 +58,9 @@ static void explore_usage(FILE *out)
 		"      --epsilon X       background link probability (default: the density)\n"
 		"      --format F        edges, gml, graphml or pajek (default: by extension)\n"
 		"      --resume          with DIR: continue the saved fit at once\n"
+		"      --checkpoint-every SECONDS\n"
+		"                        write the checkpoint that often while fitting\n"
+		"                        (default 120)\n"
 		"  -h, --help            this text\n"
 		"\n"
 		"In the explorer, ? lists the keys. The fit waits when it levels off:\n"
@@ -162,6 +166,7 @@ enum {
 	OPT_LIST_KEYS,
 	OPT_K_GRID,
 	OPT_HOLDOUT,
+	OPT_CHECKPOINT_EVERY,
 };
 
 int cmd_explore(int argc, char **argv)
@@ -182,6 +187,7 @@ int cmd_explore(int argc, char **argv)
 		{ "list-keys", no_argument, NULL, OPT_LIST_KEYS }, /* for the tests */
 		{ "k-grid", required_argument, NULL, OPT_K_GRID },
 		{ "holdout", required_argument, NULL, OPT_HOLDOUT },
+		{ "checkpoint-every", required_argument, NULL, OPT_CHECKPOINT_EVERY },
 		{ "help", no_argument, NULL, 'h' },
 		{ NULL, 0, NULL, 0 },
 	};
@@ -192,6 +198,7 @@ int cmd_explore(int argc, char **argv)
 	memset(&sp, 0, sizeof sp);
 	sp.share = 0.1;
 	sp.step = 1.25;
+	double every = 0;
 	const char *out = NULL;
 	int c;
 	optind = 1;
@@ -213,6 +220,9 @@ int cmd_explore(int argc, char **argv)
 		case OPT_HOLDOUT: sp.share = cli_double("--holdout", optarg, 0.01, 0.5); break;
 		case 'o': out = optarg; break;
 		case OPT_RESUME: resume = 1; break;
+		case OPT_CHECKPOINT_EVERY:
+			every = cli_double("--checkpoint-every", optarg, 0.1, 1e9);
+			break;
 		case OPT_LIST_KEYS: keys_list(stdout); return 0;
 		case 'h': explore_usage(stdout); return 0;
 		default:
@@ -266,6 +276,11 @@ int cmd_explore(int argc, char **argv)
 			return 1;
 		cli_fit_opts_resume(&o, &ck.params, "for a saved fit", &p);
 		p.hold_at_plateau = 1;
+		if (!ck.resume) {
+			/* what fit.h says such a fit does: one start, no moves */
+			p.starts = 1;
+			p.no_reseed = 1;
+		}
 		struct fit_origin origin;
 		checkpoint_origin(&ck, &origin);
 		f = fit_new(ck.graph, &p, &origin);
@@ -297,6 +312,11 @@ int cmd_explore(int argc, char **argv)
 		g = graph_load(arg, o.fmt);
 		if (!g)
 			return 1;
+		if (cli_graph_fittable(g, arg)) {
+			graph_free(g);
+			return 1;
+		}
+		cli_k_fits(p.k, g);
 		cli_fit_opts_starts(&o, g->m);
 		p.starts = o.p.starts;
 		if (k_auto) {
@@ -318,6 +338,12 @@ int cmd_explore(int argc, char **argv)
 		cfg.graph_label = arg;
 		cfg.graph_path = arg;
 	}
+	if (memory_check_fit(cfg.g, &p)) {
+		fit_free(f);
+		graph_free(g);
+		checkpoint_release(&ck);
+		return 1;
+	}
 	if (resume && out && result_prepare_dir(out)) {
 		fit_free(f);
 		checkpoint_release(&ck);
@@ -325,6 +351,7 @@ int cmd_explore(int argc, char **argv)
 	}
 	cfg.fit = f;
 	cfg.params = p;
+	cfg.checkpoint_every = every;
 	int rc = tui_run(&cfg); /* frees the fit */
 	select_result_release(&sel);
 	graph_free(g);

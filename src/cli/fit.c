@@ -5,7 +5,11 @@
  * starts the fitting thread and then only watches: it poll()s the fit's
  * wake-up pipe and the signal pipe, prints progress, writes a checkpoint
  * now and then, and writes the result folder at the end. An interrupt
- * (Ctrl-C, SIGTERM, a lost terminal) stops the fit, saves, and exits 130.
+ * (Ctrl-C, SIGTERM, a lost terminal) lets the sweep in progress end,
+ * saves, and exits 130; a second one stops inside the sweep. Both the
+ * interrupted folder and the periodic checkpoints carry a resume point
+ * (fit.h, struct fit_resume), so --resume ends with the bytes the
+ * uninterrupted fit would have written.
  */
 #include <getopt.h>
 #include <math.h>
@@ -18,8 +22,9 @@
 #include "cli.h"
 #include "coterie/fit.h"
 #include "coterie/graph.h"
-#include "coterie/refine.h"
 #include "coterie/holdout.h"
+#include "coterie/memory.h"
+#include "coterie/refine.h"
 #include "coterie/result.h"
 #include "coterie/select.h"
 
@@ -61,7 +66,9 @@ static void fit_usage(FILE *out)
 		"      --epsilon X       background link probability (default: the density)\n"
 		"      --format F        edges, gml, graphml or pajek (default: by extension)\n"
 		"      --resume DIR      continue the fit saved in DIR (same graph only)\n"
-		"      --save-every S    write a checkpoint every S seconds (default 120)\n"
+		"      --checkpoint-every SECONDS\n"
+		"                        write a checkpoint to the result folder that often\n"
+		"                        while fitting (default 120; --resume goes on from it)\n"
 		"  -q, --quiet           no progress or notices\n"
 		"  -h, --help            this text\n");
 }
@@ -161,6 +168,13 @@ static int choose_k(const struct graph *g, struct fit_params *p, const char *out
 		       "the edges and as many non-edges, held out; %u fits at a time", ng, grid[0],
 		       grid[ng - 1], 100.0 * sp->share, p->threads < ng ? p->threads : ng);
 	}
+	/* one fit of the largest k of the grid (the parallel fits of smaller k
+	 * are not added up) */
+	struct fit_params big = *p;
+	big.k = grid[ng - 1];
+	big.threads = p->threads;
+	if (memory_check_fit(g, &big))
+		return -1;
 	struct select_hooks hooks = { on_scored, stop_asked, &quiet };
 	int rc = select_k(g, p, sp, &hooks, res);
 	if (rc == -2) {
@@ -184,7 +198,7 @@ static int choose_k(const struct graph *g, struct fit_params *p, const char *out
 enum {
 	OPT_PAST_PLATEAU = CLI_OPT_OWN,
 	OPT_RESUME,
-	OPT_SAVE_EVERY,
+	OPT_CHECKPOINT_EVERY,
 	OPT_K_GRID,
 	OPT_HOLDOUT,
 	OPT_REFINE,
@@ -229,7 +243,7 @@ int cmd_fit(int argc, char **argv)
 		{ "epsilon", required_argument, NULL, CLI_OPT_EPSILON },
 		{ "format", required_argument, NULL, CLI_OPT_FORMAT },
 		{ "resume", required_argument, NULL, OPT_RESUME },
-		{ "save-every", required_argument, NULL, OPT_SAVE_EVERY },
+		{ "checkpoint-every", required_argument, NULL, OPT_CHECKPOINT_EVERY },
 		{ "starts", required_argument, NULL, CLI_OPT_STARTS },
 		{ "no-reseed", no_argument, NULL, CLI_OPT_NO_RESEED },
 		{ "refine", no_argument, NULL, OPT_REFINE },
@@ -277,7 +291,9 @@ int cmd_fit(int argc, char **argv)
 		case 'o': out = optarg; break;
 		case OPT_PAST_PLATEAU: o.p.past_plateau = 1; break;
 		case OPT_RESUME: resume = optarg; break;
-		case OPT_SAVE_EVERY: save_every = cli_double("--save-every", optarg, 1.0, 1e9); break;
+		case OPT_CHECKPOINT_EVERY:
+			save_every = cli_double("--checkpoint-every", optarg, 0.1, 1e9);
+			break;
 		case OPT_REFINE: refine = 1; break;
 		case OPT_REFINE_ROUNDS:
 			refine_rounds = cli_u32("--refine-rounds", optarg, 1, 1000000);
@@ -349,7 +365,15 @@ int cmd_fit(int argc, char **argv)
 			die(EXIT_USAGE, "--check-links cannot be used when resuming");
 		cli_fit_opts_resume(&o, &ck.params, "when resuming", &p);
 		p.hold_at_plateau = 0;
-		if (ck.state == FIT_LEVELLED && !p.past_plateau)
+		if (!ck.resume) {
+			/* what fit.h says such a fit does: one start, no moves */
+			p.starts = 1;
+			p.no_reseed = 1;
+		}
+		if (ck.resume)
+			notice("the saved fit was interrupted in start %u of %u; it goes on from there",
+			       ck.resume->start, p.starts);
+		else if (ck.state == FIT_LEVELLED && !p.past_plateau)
 			notice("the saved fit had levelled off; it goes on until it levels off again");
 		checkpoint_origin(&ck, &origin);
 		orig = &origin;
@@ -357,6 +381,12 @@ int cmd_fit(int argc, char **argv)
 		g = graph_load(gpath, o.fmt);
 		if (!g)
 			return 1;
+		if (cli_graph_fittable(g, gpath)) {
+			graph_free(g);
+			return 1;
+		}
+		if (!k_auto)
+			cli_k_fits(p.k, g);
 		cli_fit_opts_starts(&o, g->m);
 		p.starts = o.p.starts;
 		if (k_auto && choose_k(g, &p, out, &sp, have_grid, quiet, &sel)) {
@@ -379,6 +409,11 @@ int cmd_fit(int argc, char **argv)
 		}
 	}
 	const struct graph *graph = g ? g : ck.graph;
+	if (memory_check_fit(graph, &p)) {
+		graph_free(g);
+		checkpoint_release(&ck);
+		return 1;
+	}
 
 	struct fit *f = fit_new(check.train ? check.train : graph, &p, orig);
 	if (!f) {
@@ -405,6 +440,7 @@ int cmd_fit(int argc, char **argv)
 
 	struct progress pr = { isatty(2), quiet, 0, 0, 0, 0 };
 	double last_save = util_now();
+	int want_point = 0, one_start = resume && !ck.resume;
 	int interrupted = 0;
 	char ckpath[4096];
 	snprintf(ckpath, sizeof ckpath, "%s/%s", out, RESULT_CHECKPOINT);
@@ -416,9 +452,19 @@ int cmd_fit(int argc, char **argv)
 		poll(pfd, 2, 500);
 		fit_drain_wake(f);
 		if (cli_signal_caught() && !interrupted) {
+			/* the sweep in progress ends first, so that --resume
+			 * continues exactly; a second signal stops at once */
 			interrupted = 1;
 			progress_break(&pr);
-			notice("interrupted: stopping the fit and saving to '%s'", out);
+			notice("interrupted: ending the sweep in progress and saving to '%s' "
+			       "(interrupt again to stop at once)", out);
+			fit_interrupt(f);
+		}
+		if (cli_signal_count() >= 2 && interrupted == 1) {
+			interrupted = 2;
+			progress_break(&pr);
+			notice("interrupted again: stopping inside the sweep; a resumed fit goes on "
+			       "from the model as it is");
 			fit_stop(f);
 		}
 		enum fit_state st = fit_get_state(f);
@@ -428,12 +474,22 @@ int cmd_fit(int argc, char **argv)
 			break;
 		}
 		progress_show(&pr, s, 0);
-		if (util_now() - last_save >= save_every && s->ntrace > 0) {
-			if (result_write_checkpoint(ckpath, graph, &p, s) == 0)
-				last_save = util_now();
-			else
-				last_save = util_now(); /* reported; try again later */
+		/* a periodic checkpoint carries a resume point, so that after a
+		 * kill -9 --resume continues exactly; the fit makes one at the end
+		 * of the next sweep when asked (a fit continued as one start
+		 * makes none, and saves its snapshot as it is) */
+		if (!want_point && util_now() - last_save >= save_every && !one_start) {
+			fit_want_resume_point(f);
+			want_point = 1;
 		}
+		struct snapshot *ps = want_point ? fit_take_resume_point(f) : NULL;
+		if (ps || (one_start && s->ntrace > 0 && util_now() - last_save >= save_every)) {
+			/* a failure is reported, and the next one tried later */
+			result_write_checkpoint(ckpath, graph, &p, ps ? ps : s);
+			last_save = util_now();
+			want_point = 0;
+		}
+		snapshot_release(ps);
 		snapshot_release(s);
 	}
 	enum fit_state st = fit_wait(f);

@@ -52,6 +52,7 @@ struct tui_config {
 	int start;                    /* start the fitting thread */
 	double t_begin;               /* when the command started (run.json) */
 	const struct select_result *selection; /* -k auto's search (borrowed), or NULL */
+	double checkpoint_every;      /* seconds between autosaves; 0: default */
 };
 
 struct select_run;

@@ -543,6 +543,8 @@ int tui_run(struct tui_config *cfg)
 	/* COTERIE_AUTOSAVE_SECONDS: a shorter interval, for the tests */
 	const char *as_env = getenv("COTERIE_AUTOSAVE_SECONDS");
 	autosave.every = as_env && atof(as_env) > 0 ? atof(as_env) : AUTOSAVE_SECONDS;
+	if (cfg->checkpoint_every > 0)
+		autosave.every = cfg->checkpoint_every;
 	/* COTERIE_TUI_TIMING: from reading a key to doupdate() */
 	double t_key = 0;
 	int took_snap = 0;

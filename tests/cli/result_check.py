@@ -178,10 +178,10 @@ def main():
 
     with open(out + "/checkpoint.cot", "rb") as f:
         ck = f.read()
-    # include/coterie/result.h: magic "COTERIE\x1a", u32 version 1, u32
+    # include/coterie/result.h: magic "COTERIE\x1a", u32 version 2, u32
     # reserved, u64 fingerprint, little-endian.
-    report(ck[:8] == b"COTERIE\x1a" and int.from_bytes(ck[8:12], "little") == 1,
-           "checkpoint.cot starts with the magic and version 1")
+    report(ck[:8] == b"COTERIE\x1a" and int.from_bytes(ck[8:12], "little") == 2,
+           "checkpoint.cot starts with the magic and version 2")
     fp = "%016x" % int.from_bytes(ck[16:24], "little")
     report(fp == run["graph"]["fingerprint"],
            "checkpoint fingerprint %s equals run.json graph.fingerprint" % fp)

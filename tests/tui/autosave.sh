@@ -1,15 +1,13 @@
 #!/bin/sh
 # While a fit runs, the explorer writes its checkpoint to the result folder
-# now and then (every 120 s; COTERIE_AUTOSAVE_SECONDS shortens it here), so
+# now and then (every 120 s; --checkpoint-every 1 shortens it here), so
 # a killed explorer loses little: the folder reopens with `coterie show`.
 . "$(dirname "$0")/lib"
 
 g=$tmp/planted.tsv
 make_graph "$g"
 # --tol 0: the fit never levels off (a gain below 0 is a loss), so it runs
-UI_ENV="COTERIE_AUTOSAVE_SECONDS=1"
-start_ui 120x40 C.UTF-8 "$g" -k 6 --tol 0 --max-sweeps 100000000 -o "$tmp/out"
-UI_ENV=""
+start_ui 120x40 C.UTF-8 "$g" -k 6 --tol 0 --max-sweeps 100000000 --checkpoint-every 1 -o "$tmp/out"
 check "the explorer starts fitting" wait_screen '─ 5 Weak edges' 20
 got=0
 i=0

@@ -88,5 +88,12 @@ gone()
 	done
 }
 check "a lost terminal: the explorer ends" gone
+# and the saved fit is not just there but goes on (issue 6: "the fit is
+# saved, not lost")
+sw=$(json_get "$tmp/lost/run.json" fit.sweeps)
+"$BIN" fit --resume "$tmp/lost" --max-sweeps $((sw + 2)) -q 2>>"$tmp/stderr"
+check "a lost terminal: the saved fit resumes with coterie fit --resume (exit 0)" [ $? -eq 0 ]
+check "a lost terminal: the resumed fit goes on to sweep $((sw + 2))" \
+	[ "$(json_get "$tmp/lost/run.json" fit.sweeps)" = $((sw + 2)) ]
 check "a lost terminal: no sanitizer report" no_sanitizer_report "$tmp/stderr"
 finish
