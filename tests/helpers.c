@@ -122,24 +122,27 @@ const char *test_write_file(const char *dir, const char *name, const char *text)
 }
 
 /*
- * A small AGM sampler: 8 communities of 60 nodes on a ring of 400, each
- * overlapping the next by 10 nodes, so 80 nodes are in two communities.
- * Each community links its members with probability 0.3, every pair with
- * background 0.002 (P = 1 - (1 - eps) prod (1 - p_c), as in the AGM).
+ * A small AGM sampler on a ring of n nodes: k communities of size nodes,
+ * community c starting at node c * step, so each overlaps the next by
+ * size - step nodes. Each community links its members with probability
+ * pc, every pair with background eps (P = 1 - (1 - eps) prod (1 - p_c), as
+ * in the AGM). truth may be NULL.
  */
-struct graph *test_planted_ring(struct cover *truth, uint64_t seed)
+struct graph *test_planted_ring_of(struct cover *truth, uint32_t n, uint32_t k, uint32_t size,
+				   uint32_t step, double pc, double eps, uint64_t seed)
 {
-	const uint32_t n = 400, k = 8, size = 60, step = 50;
-	const double pc = 0.3, eps = 0.002;
-	uint32_t *node = malloc(sizeof *node * k * size), *comm = malloc(sizeof *comm * k * size);
-	for (uint32_t c = 0; c < k; c++)
-		for (uint32_t i = 0; i < size; i++) {
-			node[c * size + i] = (c * step + i) % n;
-			comm[c * size + i] = c;
-		}
-	assert_int_equal(cover_from_pairs(truth, n, node, comm, (uint64_t)k * size), 0);
-	free(node);
-	free(comm);
+	if (truth) {
+		uint32_t *node = malloc(sizeof *node * k * size);
+		uint32_t *comm = malloc(sizeof *comm * k * size);
+		for (uint32_t c = 0; c < k; c++)
+			for (uint32_t i = 0; i < size; i++) {
+				node[c * size + i] = (c * step + i) % n;
+				comm[c * size + i] = c;
+			}
+		assert_int_equal(cover_from_pairs(truth, n, node, comm, (uint64_t)k * size), 0);
+		free(node);
+		free(comm);
+	}
 	struct rng r;
 	rng_init(&r, seed);
 	uint32_t *pairs = malloc(sizeof *pairs * n * n);
@@ -162,9 +165,16 @@ struct graph *test_planted_ring(struct cover *truth, uint64_t seed)
 		}
 	struct graph *g = graph_from_pairs(n, pairs, np, NULL);
 	free(pairs);
+	assert_non_null(g);
 	return g;
 }
 
+/* 8 communities of 60 nodes on a ring of 400, each overlapping the next by
+ * 10 nodes, so 80 nodes are in two communities; p_c 0.3, background 0.002. */
+struct graph *test_planted_ring(struct cover *truth, uint64_t seed)
+{
+	return test_planted_ring_of(truth, 400, 8, 60, 50, 0.3, 0.002, seed);
+}
 
 void test_make_cover(struct cover *c, uint32_t n, uint32_t k, const uint32_t *sizes,
 		     const uint32_t *members)

@@ -33,6 +33,10 @@ const char *test_write_file(const char *dir, const char *name, const char *text)
  * 10 nodes (80 nodes in two); p_c 0.3 inside, background 0.002. The truth
  * goes to *truth (release with cover_release()). */
 struct graph *test_planted_ring(struct cover *truth, uint64_t seed);
+/* The same sampler with its sizes given: k communities of size nodes on a
+ * ring of n, community c from node c * step; truth may be NULL. */
+struct graph *test_planted_ring_of(struct cover *truth, uint32_t n, uint32_t k, uint32_t size,
+				   uint32_t step, double pc, double eps, uint64_t seed);
 
 /* A cover of n nodes from k member lists laid end to end: community i
  * holds the next sizes[i] ids of members. Release with cover_release(). */

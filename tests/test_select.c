@@ -27,31 +27,7 @@
 static struct graph *planted_ring(uint32_t n, uint32_t k, uint32_t size, double pc, double eps,
 				  uint64_t seed)
 {
-	uint32_t step = n / k;
-	struct rng r;
-	rng_init(&r, seed);
-	uint32_t *pairs = malloc(sizeof *pairs * n * n);
-	uint64_t np = 0;
-	for (uint32_t u = 0; u < n; u++)
-		for (uint32_t v = u + 1; v < n; v++) {
-			double stay = 1.0 - eps;
-			for (uint32_t c = 0; c < k; c++) {
-				uint32_t lo = c * step, hi = lo + size;
-				int iu = (u >= lo && u < hi) || (u + n >= lo && u + n < hi);
-				int iv = (v >= lo && v < hi) || (v + n >= lo && v + n < hi);
-				if (iu && iv)
-					stay *= 1.0 - pc;
-			}
-			if (rng_uniform(&r) < 1.0 - stay) {
-				pairs[2 * np] = u;
-				pairs[2 * np + 1] = v;
-				np++;
-			}
-		}
-	struct graph *g = graph_from_pairs(n, pairs, np, NULL);
-	free(pairs);
-	assert_non_null(g);
-	return g;
+	return test_planted_ring_of(NULL, n, k, size, n / k, pc, eps, seed);
 }
 
 /* c disjoint cliques of s nodes each. */
