@@ -121,6 +121,25 @@ const char *test_write_file(const char *dir, const char *name, const char *text)
 	return path;
 }
 
+/* G(n, p), drawn pair by pair from r. */
+struct graph *test_random_graph(struct rng *r, uint32_t n, double p)
+{
+	uint32_t *pairs = malloc(sizeof *pairs * n * n);
+	uint64_t np = 0;
+	for (uint32_t u = 0; u < n; u++)
+		for (uint32_t v = u + 1; v < n; v++)
+			if (rng_uniform(r) < p) {
+				pairs[2 * np] = u;
+				pairs[2 * np + 1] = v;
+				np++;
+			}
+	struct graph *g = graph_from_pairs(n, pairs, np, NULL);
+	free(pairs);
+	assert_non_null(g);
+	assert_graph_sane(g);
+	return g;
+}
+
 /*
  * A small AGM sampler on a ring of n nodes: k communities of size nodes,
  * community c starting at node c * step, so each overlaps the next by

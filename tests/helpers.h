@@ -32,6 +32,9 @@ const char *test_write_file(const char *dir, const char *name, const char *text)
  * communities of 60 nodes on a ring of 400, each overlapping the next by
  * 10 nodes (80 nodes in two); p_c 0.3 inside, background 0.002. The truth
  * goes to *truth (release with cover_release()). */
+/* G(n, p), drawn pair by pair from r (checked with assert_graph_sane()). */
+struct rng;
+struct graph *test_random_graph(struct rng *r, uint32_t n, double p);
 struct graph *test_planted_ring(struct cover *truth, uint64_t seed);
 /* The same sampler with its sizes given: k communities of size nodes on a
  * ring of n, community c from node c * step; truth may be NULL. */

@@ -18,23 +18,6 @@
 #include "coterie/model.h"
 #include "coterie/rng.h"
 
-static struct graph *random_graph(struct rng *r, uint32_t n, double p)
-{
-	uint32_t *pairs = malloc(sizeof *pairs * n * n);
-	uint64_t np = 0;
-	for (uint32_t u = 0; u < n; u++)
-		for (uint32_t v = u + 1; v < n; v++)
-			if (rng_uniform(r) < p) {
-				pairs[2 * np] = u;
-				pairs[2 * np + 1] = v;
-				np++;
-			}
-	struct graph *g = graph_from_pairs(n, pairs, np, NULL);
-	free(pairs);
-	assert_non_null(g);
-	return g;
-}
-
 static void test_auc_counts_ties_as_half(void **state)
 {
 	(void)state;
@@ -81,7 +64,7 @@ static void test_split_holds_out_the_share_asked_and_as_many_non_edges(void **st
 	struct rng r;
 	rng_init(&r, 8);
 	for (int trial = 0; trial < 10; trial++) {
-		struct graph *g = random_graph(&r, 30 + (uint32_t)rng_below(&r, 40), 0.2);
+		struct graph *g = test_random_graph(&r, 30 + (uint32_t)rng_below(&r, 40), 0.2);
 		double share = trial % 2 ? 0.1 : 0.25;
 		struct holdout h;
 		assert_int_equal(holdout_split(&h, g, share, (uint64_t)trial), 0);
@@ -119,7 +102,7 @@ static void test_split_depends_on_the_seed_only(void **state)
 	(void)state;
 	struct rng r;
 	rng_init(&r, 9);
-	struct graph *g = random_graph(&r, 50, 0.2);
+	struct graph *g = test_random_graph(&r, 50, 0.2);
 	struct holdout a, b, c;
 	assert_int_equal(holdout_split(&a, g, 0.1, 3), 0);
 	assert_int_equal(holdout_split(&b, g, 0.1, 3), 0);
@@ -145,7 +128,7 @@ static void test_split_refuses_what_it_cannot_do(void **state)
 	graph_free(g);
 	struct rng r;
 	rng_init(&r, 2);
-	g = random_graph(&r, 20, 0.3);
+	g = test_random_graph(&r, 20, 0.3);
 	assert_int_equal(holdout_split(&h, g, 0.6, 1), -1);
 	assert_int_equal(holdout_split(&h, g, 0.0, 1), -1);
 	graph_free(g);

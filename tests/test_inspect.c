@@ -863,24 +863,6 @@ static void random_dense(struct rng *r, double *D, uint32_t n, uint32_t k, uint3
 						       : 0.0;
 }
 
-static struct graph *random_graph(struct rng *r, uint32_t n, double p)
-{
-	uint32_t *e = malloc((size_t)n * n * sizeof *e);
-	assert_non_null(e);
-	uint64_t m = 0;
-	for (uint32_t u = 0; u < n; u++)
-		for (uint32_t v = u + 1; v < n; v++)
-			if (rng_uniform(r) < p) {
-				e[2 * m] = u;
-				e[2 * m + 1] = v;
-				m++;
-			}
-	struct graph *g = graph_from_pairs(n, e, m, NULL);
-	free(e);
-	assert_non_null(g);
-	return g;
-}
-
 static void test_random_graphs_match_brute_force(void **state)
 {
 	(void)state;
@@ -893,7 +875,7 @@ static void test_random_graphs_match_brute_force(void **state)
 		double *D = malloc((size_t)n * k * sizeof *D);
 		assert_non_null(D);
 		random_dense(&r, D, n, k, (uint32_t)(round % k));
-		struct graph *g = random_graph(&r, n, 0.05 + 0.05 * (round % 3));
+		struct graph *g = test_random_graph(&r, n, 0.05 + 0.05 * (round % 3));
 		struct fcsr F;
 		struct agm a;
 		fcsr_from_dense(&F, n, k, D);

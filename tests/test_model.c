@@ -17,25 +17,7 @@
 #include "coterie/model.h"
 #include "coterie/rng.h"
 
-/* A random graph G(n, p) and a random sparse model on it. */
-static struct graph *random_graph(struct rng *r, uint32_t n, double p)
-{
-	uint32_t *pairs = malloc(sizeof *pairs * n * n);
-	uint64_t np = 0;
-	for (uint32_t u = 0; u < n; u++)
-		for (uint32_t v = u + 1; v < n; v++)
-			if (rng_uniform(r) < p) {
-				pairs[2 * np] = u;
-				pairs[2 * np + 1] = v;
-				np++;
-			}
-	struct graph *g = graph_from_pairs(n, pairs, np, NULL);
-	free(pairs);
-	assert_non_null(g);
-	assert_graph_sane(g);
-	return g;
-}
-
+/* A random sparse model on a graph (from test_random_graph() in helpers.c). */
 static void random_model(struct rng *r, struct model *m, uint32_t n, uint32_t k, double eps,
 			 double density)
 {
@@ -86,7 +68,7 @@ static void test_loglik_matches_direct_pair_sum(void **state)
 	rng_init(&r, 11);
 	for (int trial = 0; trial < 20; trial++) {
 		uint32_t n = 5 + (uint32_t)rng_below(&r, 20);
-		struct graph *g = random_graph(&r, n, 0.1 + 0.5 * rng_uniform(&r));
+		struct graph *g = test_random_graph(&r, n, 0.1 + 0.5 * rng_uniform(&r));
 		struct model m;
 		double eps = trial % 4 == 0 ? 1e-9 : 0.01 + 0.1 * rng_uniform(&r);
 		random_model(&r, &m, n, 1 + (uint32_t)rng_below(&r, 6), eps, 0.5);
@@ -130,7 +112,7 @@ static void test_row_objective_tracks_whole_loglik(void **state)
 	rng_init(&r, 12);
 	for (int trial = 0; trial < 30; trial++) {
 		uint32_t n = 6 + (uint32_t)rng_below(&r, 15), k = 1 + (uint32_t)rng_below(&r, 5);
-		struct graph *g = random_graph(&r, n, 0.35);
+		struct graph *g = test_random_graph(&r, n, 0.35);
 		struct model m;
 		random_model(&r, &m, n, k, 0.02, 0.6);
 		struct model_work *w = model_work_new(k);
@@ -160,7 +142,7 @@ static void test_row_gradient_matches_finite_differences(void **state)
 	rng_init(&r, 13);
 	for (int trial = 0; trial < 30; trial++) {
 		uint32_t n = 6 + (uint32_t)rng_below(&r, 15), k = 1 + (uint32_t)rng_below(&r, 5);
-		struct graph *g = random_graph(&r, n, 0.4);
+		struct graph *g = test_random_graph(&r, n, 0.4);
 		struct model m;
 		random_model(&r, &m, n, k, 0.03, 0.6);
 		struct model_work *w = model_work_new(k);
@@ -204,7 +186,7 @@ static void test_row_update_raises_row_objective_and_loglik(void **state)
 	int improved = 0;
 	for (int trial = 0; trial < 40; trial++) {
 		uint32_t n = 8 + (uint32_t)rng_below(&r, 20), k = 1 + (uint32_t)rng_below(&r, 6);
-		struct graph *g = random_graph(&r, n, 0.3);
+		struct graph *g = test_random_graph(&r, n, 0.3);
 		struct model m;
 		random_model(&r, &m, n, k, 0.02, 0.4);
 		struct model_work *w = model_work_new(k);
@@ -242,7 +224,7 @@ static void test_export_import_round_trip(void **state)
 	(void)state;
 	struct rng r;
 	rng_init(&r, 15);
-	struct graph *g = random_graph(&r, 30, 0.2);
+	struct graph *g = test_random_graph(&r, 30, 0.2);
 	struct model a, b;
 	random_model(&r, &a, 30, 5, 0.01, 0.5);
 	struct fcsr f;
