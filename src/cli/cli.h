@@ -10,6 +10,8 @@
 
 #include <stdint.h>
 
+#include <jansson.h>
+
 #include "coterie/fit.h"
 #include "coterie/graph.h"
 #include "coterie/util.h"
@@ -101,5 +103,11 @@ int cmd_show(int argc, char **argv);
 int cmd_explore(int argc, char **argv);
 int cmd_simulate(int argc, char **argv);
 int cmd_compare(int argc, char **argv);
+
+/* JSON for the commands' --json: a string from a file (jansson wants
+ * UTF-8; one that is not goes out escaped, in ASCII), and a number that
+ * may not be finite (as null). The caller owns the new reference. */
+json_t *cli_json_str(const char *s);
+json_t *cli_json_real(double x);
 
 #endif

@@ -269,3 +269,19 @@ void cli_fit_opts_resume(const struct cli_fit_opts *o, const struct fit_params *
 	if (o->have_max)
 		out->max_sweeps = o->p.max_sweeps;
 }
+
+json_t *cli_json_str(const char *s)
+{
+	json_t *j = json_string(s);
+	if (j)
+		return j;
+	char *e = util_escape_dup(s, 1);
+	j = e ? json_string(e) : NULL;
+	free(e);
+	return j ? j : json_null();
+}
+
+json_t *cli_json_real(double x)
+{
+	return isfinite(x) ? json_real(x) : json_null();
+}

@@ -73,26 +73,10 @@ static int resolve(const char *arg, char *path)
 	return 0;
 }
 
-static json_t *jstr(const char *s)
-{
-	json_t *j = json_string(s);
-	if (j)
-		return j;
-	char *e = util_escape_dup(s, 1);
-	j = e ? json_string(e) : NULL;
-	free(e);
-	return j ? j : json_null();
-}
-
-static json_t *jreal(double x)
-{
-	return isfinite(x) ? json_real(x) : json_null();
-}
-
 static json_t *jside(const struct side *d)
 {
 	json_t *o = json_object();
-	json_object_set_new(o, "file", jstr(d->path));
+	json_object_set_new(o, "file", cli_json_str(d->path));
 	json_object_set_new(o, "communities", json_integer(d->s.communities));
 	json_object_set_new(o, "covered_nodes", json_integer(d->s.covered));
 	json_object_set_new(o, "overlapping_nodes", json_integer(d->s.overlapping));
@@ -114,14 +98,14 @@ static int print_json(const struct side *t, const struct side *f, uint32_t n,
 	json_object_set_new(root, "truth", jside(t));
 	json_object_set_new(root, "found", jside(f));
 	json_object_set_new(root, "nodes", json_integer(n));
-	json_object_set_new(root, "onmi_max", jreal(sc->onmi_max));
-	json_object_set_new(root, "onmi_lfk", jreal(sc->onmi_lfk));
-	json_object_set_new(root, "omega", jreal(sc->omega));
-	json_object_set_new(root, "f1", jreal(sc->f1));
-	json_object_set_new(root, "f1_truth_to_found", jreal(sc->f1_tf));
-	json_object_set_new(root, "f1_found_to_truth", jreal(sc->f1_ft));
+	json_object_set_new(root, "onmi_max", cli_json_real(sc->onmi_max));
+	json_object_set_new(root, "onmi_lfk", cli_json_real(sc->onmi_lfk));
+	json_object_set_new(root, "omega", cli_json_real(sc->omega));
+	json_object_set_new(root, "f1", cli_json_real(sc->f1));
+	json_object_set_new(root, "f1_truth_to_found", cli_json_real(sc->f1_tf));
+	json_object_set_new(root, "f1_found_to_truth", cli_json_real(sc->f1_ft));
 	json_object_set_new(root, "partitions", json_boolean(sc->partitions));
-	json_object_set_new(root, "nmi", sc->partitions ? jreal(sc->nmi) : json_null());
+	json_object_set_new(root, "nmi", sc->partitions ? cli_json_real(sc->nmi) : json_null());
 	int rc = json_dumpf(root, stdout, JSON_INDENT(2) | JSON_REAL_PRECISION(17));
 	json_decref(root);
 	if (rc)

@@ -166,24 +166,6 @@ static void more_note(size_t total, size_t n)
 		printf("  ... %zu more (--limit 0 shows all)\n", total - n);
 }
 
-/* JSON: a node name (jansson wants UTF-8; a name that is not valid UTF-8
- * goes out escaped), a number that may not be finite (as null). */
-static json_t *jname(const char *name)
-{
-	json_t *j = json_string(name);
-	if (j)
-		return j;
-	char *e = util_escape_dup(name, 1);
-	j = e ? json_string(e) : NULL;
-	free(e);
-	return j ? j : json_null();
-}
-
-static json_t *jreal(double x)
-{
-	return isfinite(x) ? json_real(x) : json_null();
-}
-
 static json_t *jint(uint64_t v)
 {
 	return json_integer(v > (uint64_t)INT64_MAX ? (json_int_t)INT64_MAX : (json_int_t)v);
@@ -209,9 +191,9 @@ static json_t *jcommunity(const struct agm_community *c)
 	json_object_set_new(o, "internal_edges", jint(c->internal_edges));
 	json_object_set_new(o, "volume", jint(c->volume));
 	json_object_set_new(o, "cut", jint(c->cut));
-	json_object_set_new(o, "density", jreal(c->density));
-	json_object_set_new(o, "conductance", jreal(c->conductance));
-	json_object_set_new(o, "p", jreal(c->p));
+	json_object_set_new(o, "density", cli_json_real(c->density));
+	json_object_set_new(o, "conductance", cli_json_real(c->conductance));
+	json_object_set_new(o, "p", cli_json_real(c->p));
 	return o;
 }
 
@@ -229,7 +211,7 @@ static int show_summary(const struct show *s)
 	if (s->json) {
 		json_t *root = json_object();
 		json_t *list = json_array();
-		json_object_set_new(root, "dir", jname(s->dir));
+		json_object_set_new(root, "dir", cli_json_str(s->dir));
 		json_object_set_new(root, "nodes", jint(g->n));
 		json_object_set_new(root, "edges", jint(g->m));
 		json_object_set_new(root, "k", jint(ck->params.k));
@@ -238,11 +220,11 @@ static int show_summary(const struct show *s)
 		json_object_set_new(root, "overlapping", jint(a->overlapping));
 		json_object_set_new(root, "sweep", jint(ck->sweep));
 		json_object_set_new(root, "state", json_string(fit_state_name(ck->state)));
-		json_object_set_new(root, "seconds", jreal(ck->seconds));
-		json_object_set_new(root, "loglik", have_ll ? jreal(ll) : json_null());
-		json_object_set_new(root, "agm_loglik", jreal(a->loglik));
-		json_object_set_new(root, "epsilon", jreal(ck->epsilon));
-		json_object_set_new(root, "delta", jreal(s->delta));
+		json_object_set_new(root, "seconds", cli_json_real(ck->seconds));
+		json_object_set_new(root, "loglik", have_ll ? cli_json_real(ll) : json_null());
+		json_object_set_new(root, "agm_loglik", cli_json_real(a->loglik));
+		json_object_set_new(root, "epsilon", cli_json_real(ck->epsilon));
+		json_object_set_new(root, "delta", cli_json_real(s->delta));
 		for (size_t i = 0; i < n; i++)
 			json_array_append_new(list, jcommunity(&a->comms[i]));
 		json_object_set_new(root, "communities", list);
@@ -310,18 +292,18 @@ static int show_node(const struct show *s, const char *name)
 	if (s->json) {
 		json_t *root = json_object();
 		json_t *list = json_array();
-		json_object_set_new(root, "node", jname(g->names[u]));
+		json_object_set_new(root, "node", cli_json_str(g->names[u]));
 		json_object_set_new(root, "id", jint((uint64_t)u));
 		json_object_set_new(root, "degree", jint(nv.degree));
 		json_object_set_new(root, "memberships", jint(nv.nmember));
 		json_object_set_new(root, "naffiliations", jint(nv.naffil));
 		json_object_set_new(root, "unexplained", jint(nv.unexplained));
-		json_object_set_new(root, "delta", jreal(s->delta));
+		json_object_set_new(root, "delta", cli_json_real(s->delta));
 		for (size_t i = 0; i < n; i++) {
 			const struct inspect_affil *f = &nv.affil[i];
 			json_t *o = json_object();
 			json_object_set_new(o, "community", jint(f->comm));
-			json_object_set_new(o, "strength", jreal(f->strength));
+			json_object_set_new(o, "strength", cli_json_real(f->strength));
 			json_object_set_new(o, "member", json_boolean(f->member));
 			json_object_set_new(o, "explained", jint(f->explained));
 			json_array_append_new(list, o);
@@ -402,8 +384,8 @@ static int show_community(const struct show *s, uint32_t id)
 		json_t *list = json_array();
 		for (size_t i = 0; i < n; i++) {
 			json_t *o = json_object();
-			json_object_set_new(o, "node", jname(g->names[order[i]]));
-			json_object_set_new(o, "strength", jreal(str[i]));
+			json_object_set_new(o, "node", cli_json_str(g->names[order[i]]));
+			json_object_set_new(o, "strength", cli_json_real(str[i]));
 			json_array_append_new(list, o);
 		}
 		json_object_set_new(root, "members", list);
@@ -459,16 +441,16 @@ static int show_pairs(const struct show *s, uint32_t id, int missing)
 		for (size_t i = 0; i < n; i++) {
 			json_t *o = json_object();
 			if (missing) {
-				json_object_set_new(o, "u", jname(g->names[p[i].u]));
-				json_object_set_new(o, "v", jname(g->names[p[i].v]));
+				json_object_set_new(o, "u", cli_json_str(g->names[p[i].u]));
+				json_object_set_new(o, "v", cli_json_str(g->names[p[i].v]));
 			} else {
 				int64_t e = inspect_explaining_community(F, p[i].u, p[i].v);
-				json_object_set_new(o, "member", jname(g->names[p[i].u]));
-				json_object_set_new(o, "other", jname(g->names[p[i].v]));
+				json_object_set_new(o, "member", cli_json_str(g->names[p[i].u]));
+				json_object_set_new(o, "other", cli_json_str(g->names[p[i].v]));
 				json_object_set_new(o, "explained_by",
 						    e < 0 ? json_null() : jint((uint64_t)e));
 			}
-			json_object_set_new(o, "prob", jreal(p[i].prob));
+			json_object_set_new(o, "prob", cli_json_real(p[i].prob));
 			json_array_append_new(list, o);
 		}
 		json_object_set_new(root, missing ? "pairs" : "edges", list);
@@ -557,22 +539,22 @@ static int show_edge(const struct show *s, const char *na, const char *nb)
 	if (s->json) {
 		json_t *root = json_object();
 		json_t *list = json_array();
-		json_object_set_new(root, "a", jname(g->names[u]));
-		json_object_set_new(root, "b", jname(g->names[v]));
+		json_object_set_new(root, "a", cli_json_str(g->names[u]));
+		json_object_set_new(root, "b", cli_json_str(g->names[v]));
 		json_object_set_new(root, "linked", json_boolean(e.linked));
-		json_object_set_new(root, "dot", jreal(e.x));
-		json_object_set_new(root, "prob", jreal(e.prob));
-		json_object_set_new(root, "prob_communities", jreal(e.prob_comms));
-		json_object_set_new(root, "agm_prob", jreal(e.agm_prob));
-		json_object_set_new(root, "epsilon", jreal(s->ck.epsilon));
+		json_object_set_new(root, "dot", cli_json_real(e.x));
+		json_object_set_new(root, "prob", cli_json_real(e.prob));
+		json_object_set_new(root, "prob_communities", cli_json_real(e.prob_comms));
+		json_object_set_new(root, "agm_prob", cli_json_real(e.agm_prob));
+		json_object_set_new(root, "epsilon", cli_json_real(s->ck.epsilon));
 		for (size_t i = 0; i < n; i++) {
 			const struct inspect_share *sh = &e.share[i];
 			json_t *o = json_object();
 			json_object_set_new(o, "community", jint(sh->comm));
-			json_object_set_new(o, "product", jreal(sh->product));
-			json_object_set_new(o, "alone", jreal(sh->alone));
+			json_object_set_new(o, "product", cli_json_real(sh->product));
+			json_object_set_new(o, "alone", cli_json_real(sh->alone));
 			json_object_set_new(o, "both_members", json_boolean(sh->both_members));
-			json_object_set_new(o, "p", jreal(sh->p));
+			json_object_set_new(o, "p", cli_json_real(sh->p));
 			json_array_append_new(list, o);
 		}
 		json_object_set_new(root, "communities", list);
@@ -625,7 +607,7 @@ static int show_links(const struct show *s)
 		root = json_object();
 		list = json_array();
 		json_object_set_new(root, "total", jint(g->m));
-		json_object_set_new(root, "epsilon", jreal(s->ck.epsilon));
+		json_object_set_new(root, "epsilon", cli_json_real(s->ck.epsilon));
 	} else {
 		printf("%" PRIu64 " edge%s in the order of the graph; probability is "
 		       "1 - exp(-(F_a.F_b + qeps))\n\n", g->m, g->m == 1 ? "" : "s");
@@ -643,9 +625,9 @@ static int show_links(const struct show *s)
 			i++;
 			if (s->json) {
 				json_t *o = json_object();
-				json_object_set_new(o, "a", jname(g->names[u]));
-				json_object_set_new(o, "b", jname(g->names[v]));
-				json_object_set_new(o, "prob", jreal(p));
+				json_object_set_new(o, "a", cli_json_str(g->names[u]));
+				json_object_set_new(o, "b", cli_json_str(g->names[v]));
+				json_object_set_new(o, "prob", cli_json_real(p));
 				json_object_set_new(o, "explained_by",
 						    c < 0 ? json_null() : jint((uint64_t)c));
 				json_array_append_new(list, o);
