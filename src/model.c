@@ -287,7 +287,16 @@ struct model_work {
 	double *wv;       /* per-neighbour weights */
 	size_t wv_cap;
 	struct fentry *out; /* the accepted row */
+	uint64_t rows, trials, visits; /* counters for model_work_counts() */
 };
+
+void model_work_counts(const struct model_work *w, uint64_t *rows, uint64_t *trials,
+		       uint64_t *visits)
+{
+	*rows = w->rows;
+	*trials = w->trials;
+	*visits = w->visits;
+}
 
 struct model_work *model_work_new(uint32_t k)
 {
@@ -408,6 +417,73 @@ double model_row_objective(const struct model *m, const struct graph *g, uint32_
 	return f;
 }
 
+/* gather() and gradient() in one pass over the neighbour rows: each row
+ * is read once for the candidates, the neighbour sum and the dot product,
+ * and once more (from L1) to scatter its share of the gradient. The sums
+ * run in the same order as in the two-pass form, so the results are the
+ * same bits. Returns the objective at the current row. */
+static double gather_gradient(const struct model *m, const struct graph *g, uint32_t u,
+			      struct model_work *w)
+{
+	if (++w->epoch == 0) {
+		memset(w->stamp, 0, w->k * sizeof *w->stamp);
+		w->epoch = 1;
+	}
+	w->ncand = 0;
+	const struct frow *ru = &m->rows[u];
+	for (uint32_t i = 0; i < ru->nnz; i++) {
+		add_candidate(w, ru->e[i].c);
+		w->cur[ru->e[i].c] = ru->e[i].v;
+	}
+	uint32_t epoch = w->epoch;
+	double f = 0.0, qeps = m->qeps;
+	const uint32_t *adj = g->adj + g->off[u];
+	uint32_t deg = graph_degree(g, u);
+	for (uint32_t i = 0; i < deg; i++) {
+		const struct frow *rv = &m->rows[adj[i]];
+		const struct fentry *e = rv->e;
+		uint32_t nnz = rv->nnz;
+		double x = 0.0;
+		for (uint32_t j = 0; j < nnz; j++) {
+			uint32_t c = e[j].c;
+			double v = e[j].v;
+			if (w->stamp[c] != epoch) {
+				w->stamp[c] = epoch;
+				w->cand[w->ncand++] = c;
+				w->cur[c] = 0.0;
+				w->trial[c] = 0.0;
+				w->nbrsum[c] = 0.0;
+				w->acc[c] = 0.0;
+			}
+			x += w->cur[c] * v;
+			w->nbrsum[c] += v;
+		}
+		x += qeps;
+		/* one expm1 gives both the weight and the objective's term:
+		 * 1 - e^-x = em / (em + 1), so log(1 - e^-x) = -log1p(1 / em) */
+		double wt = 1.0 / expm1(x > X_FLOOR ? x : X_FLOOR);
+		f -= log1p(wt);
+		for (uint32_t j = 0; j < nnz; j++)
+			w->acc[e[j].c] += e[j].v * wt;
+	}
+	w->visits += deg;
+	if (m->excl)
+		for (uint64_t i = m->excl->off[u]; i < m->excl->off[u + 1]; i++) {
+			const struct frow *rv = &m->rows[m->excl->adj[i]];
+			for (uint32_t j = 0; j < rv->nnz; j++) {
+				add_candidate(w, rv->e[j].c);
+				w->nbrsum[rv->e[j].c] += rv->e[j].v;
+			}
+		}
+	for (uint32_t i = 0; i < w->ncand; i++) {
+		uint32_t c = w->cand[i];
+		double others = m->colsum[c] - w->cur[c] - w->nbrsum[c];
+		w->acc[c] -= others;
+		f -= w->cur[c] * others;
+	}
+	return f;
+}
+
 /* Gradient at the current row over the candidates into w->acc; also
  * returns the objective at the current row. */
 static double gradient(const struct model *m, const struct graph *g, uint32_t u,
@@ -425,8 +501,10 @@ static double gradient(const struct model *m, const struct graph *g, uint32_t u,
 	for (uint32_t i = 0; i < deg; i++) {
 		const struct frow *rv = &m->rows[g->adj[g->off[u] + i]];
 		double x = dense_dot(w->cur, rv) + m->qeps;
-		f += model_log1mexp(x);
+		/* one expm1 gives both the weight and the objective's term:
+		 * 1 - e^-x = em / (em + 1), so log(1 - e^-x) = -log1p(1 / em) */
 		double wt = 1.0 / expm1(x > X_FLOOR ? x : X_FLOOR);
+		f -= log1p(wt);
 		if (w->wv_cap >= deg) {
 			w->wv[i] = wt;
 		} else { /* no scratch: accumulate directly */
@@ -471,10 +549,10 @@ static int cmp_u32(const void *a, const void *b)
 int model_update_row(const struct model *m, const struct graph *g, uint32_t u,
 		     struct model_work *w, const struct fentry **out, uint32_t *out_nnz)
 {
-	gather(m, g, u, w);
+	double f0 = gather_gradient(m, g, u, w);
+	w->rows++;
 	if (w->ncand == 0)
 		return 0;
-	double f0 = gradient(m, g, u, w);
 	int accepted = 0;
 	/* the first trial moves no strength by more than STEP_REACH: a node
 	 * with an empty row next to a community sees a gradient of about
@@ -501,21 +579,32 @@ int model_update_row(const struct model *m, const struct graph *g, uint32_t u,
 		}
 		if (!moved)
 			break;
+		w->trials++;
+		w->visits += graph_degree(g, u);
 		double f1 = objective_dense(m, g, u, w, w->trial);
 		if (f1 >= f0 + ARMIJO_SIGMA * gd && f1 > f0)
 			accepted = 1;
 	}
 	if (!accepted)
 		return 0;
-	qsort(w->cand, w->ncand, sizeof *w->cand, cmp_u32);
+	/* keep the positive entries, then sort those few by community (the
+	 * candidates are many more than the entries kept) */
 	uint32_t o = 0;
-	for (uint32_t i = 0; i < w->ncand; i++) {
-		uint32_t c = w->cand[i];
-		if (w->trial[c] > 0.0) {
-			w->out[o].c = c;
-			w->out[o].v = w->trial[c];
-			o++;
+	for (uint32_t i = 0; i < w->ncand; i++)
+		if (w->trial[w->cand[i]] > 0.0)
+			w->cand[o++] = w->cand[i];
+	if (o > 32)
+		qsort(w->cand, o, sizeof *w->cand, cmp_u32);
+	else
+		for (uint32_t i = 1; i < o; i++) {
+			uint32_t c = w->cand[i], j = i;
+			for (; j > 0 && w->cand[j - 1] > c; j--)
+				w->cand[j] = w->cand[j - 1];
+			w->cand[j] = c;
 		}
+	for (uint32_t i = 0; i < o; i++) {
+		w->out[i].c = w->cand[i];
+		w->out[i].v = w->trial[w->cand[i]];
 	}
 	*out = w->out;
 	*out_nnz = o;

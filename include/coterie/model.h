@@ -125,6 +125,11 @@ void fcsr_release(struct fcsr *f);
 struct model_work;
 struct model_work *model_work_new(uint32_t k);
 void model_work_free(struct model_work *w);
+/* What w has done so far, for benchmarks: rows updated, line-search trials
+ * evaluated, and neighbour rows read (each row's gradient pass and each
+ * trial count deg(u)). */
+void model_work_counts(const struct model_work *w, uint64_t *rows, uint64_t *trials,
+		       uint64_t *visits);
 
 /* The row objective of u if its row were r (nnz entries): the terms of
  * l(F) that involve u, namely
