@@ -82,8 +82,18 @@ unit: $(TEST_BIN)
 check: $(BIN) $(TEST_BIN)
 	@COTERIE_BIN=$(abspath $(BIN)) tests/run.sh $(TEST_BIN)
 
-bench: $(BIN)
-	@COTERIE_BIN=$(abspath $(BIN)) tests/bench/run.sh
+BENCH_TOOLS := $(BUILD)/bench/benchtool $(BUILD)/bench/gen_planted
+
+bench: $(BIN) $(BENCH_TOOLS)
+	@COTERIE_BIN=$(abspath $(BIN)) BENCH_TOOLS=$(abspath $(BUILD)/bench) tests/bench/run.sh
+
+$(BUILD)/bench/benchtool: tests/bench/benchtool.c $(LIB)
+	@mkdir -p $(dir $@)
+	$(CC) $(ALL_CFLAGS) $(ALL_LDFLAGS) -o $@ $< $(LIB) $(LIBS)
+
+$(BUILD)/bench/gen_planted: tests/bench/gen_planted.c
+	@mkdir -p $(dir $@)
+	$(CC) $(ALL_CFLAGS) $(ALL_LDFLAGS) -o $@ $< -lm
 
 demo: $(BIN)
 	./$(BIN) explore samples/town/edges.tsv -k 12

@@ -125,6 +125,7 @@ struct fit {
 	unsigned streak;
 	double seconds_base, t0;
 	struct seed_report seeds;
+	struct fit_stats stats;
 	int resumed;
 	uint32_t start, starts, best_start;
 	double best_loglik;
@@ -207,6 +208,16 @@ static int publish(struct fit *f, enum fit_state state)
 	s->epsilon = f->m.epsilon;
 	s->delta = f->m.delta;
 	s->seeds = f->seeds;
+	s->stats = f->stats;
+	s->stats.rows = s->stats.trials = s->stats.visits = 0;
+	for (unsigned t = 0; t < f->nthreads; t++) {
+		uint64_t rows, trials, visits;
+		model_work_counts(f->work[t], &rows, &trials, &visits);
+		s->stats.rows += rows;
+		s->stats.trials += trials;
+		s->stats.visits += visits;
+	}
+	double t_pub = util_now();
 	s->ntrace = f->ntrace;
 	s->trace = util_malloc(f->ntrace ? f->ntrace : 1, sizeof *s->trace);
 	if (!s->trace)
@@ -229,6 +240,7 @@ static int publish(struct fit *f, enum fit_state state)
 		goto fail;
 	}
 	s->agm_sweep = f->agm_sweep;
+	f->stats.publish_seconds += util_now() - t_pub;
 
 	pthread_mutex_lock(&f->lock);
 	struct snapshot *old = f->latest;
@@ -414,9 +426,12 @@ static void pool_stop(struct fit *f)
 
 static double compute_loglik(struct fit *f)
 {
+	double t = util_now();
 	f->job = JOB_LOGLIK;
 	pool_run(f);
-	return model_loglik_combine(&f->m, f->g, f->parts, f->nparts);
+	double ll = model_loglik_combine(&f->m, f->g, f->parts, f->nparts);
+	f->stats.loglik_seconds += util_now() - t;
+	return ll;
 }
 
 static int trace_add(struct fit *f, double ll)
@@ -538,11 +553,14 @@ static enum fit_state run_start(struct fit *f, uint32_t *perm, int extend)
 	while (f->sweep < f->p.max_sweeps) {
 		if (atomic_load(&f->stop_req))
 			return FIT_STOPPED;
+		double t = util_now();
 		int rc = sweep_once(f, perm);
 		if (rc < 0)
 			return FIT_FAILED;
 		f->sweep++;
 		recount_colsum(f);
+		f->stats.sweep_seconds += util_now() - t;
+		f->stats.sweeps++;
 		double ll = compute_loglik(f);
 		double prev = f->ntrace ? f->trace[f->ntrace - 1].loglik : ll;
 		if (trace_add(f, ll))
@@ -804,8 +822,10 @@ static void *fit_main(void *arg)
 			f->plateau_sweep = 0;
 		}
 		set_state(f, FIT_SEEDING);
-		if (seed_model(f->g, &f->m, f->p.seed, r, &f->seeds) ||
-		    trace_add(f, compute_loglik(f))) {
+		double t = util_now();
+		int seeded = seed_model(f->g, &f->m, f->p.seed, r, &f->seeds);
+		f->stats.seed_seconds += util_now() - t;
+		if (seeded || trace_add(f, compute_loglik(f))) {
 			final = FIT_FAILED;
 			break;
 		}

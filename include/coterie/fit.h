@@ -77,6 +77,19 @@ struct trace_point {
 	double loglik;    /* l(F) after the sweep */
 };
 
+/* Where the time went, for benchmarks (all starts and refinement moves
+ * included; wall-clock seconds on the fitting thread). */
+struct fit_stats {
+	double seed_seconds;    /* seeding */
+	double sweep_seconds;   /* sweeps: row updates and applying them */
+	double loglik_seconds;  /* the log-likelihood after each sweep */
+	double publish_seconds; /* building snapshots */
+	uint32_t sweeps;        /* sweeps run */
+	uint64_t rows;          /* row updates computed */
+	uint64_t trials;        /* line-search trials evaluated */
+	uint64_t visits;        /* neighbour rows read (model_work_counts()) */
+};
+
 /* An immutable picture of the fit after a sweep. Take one with
  * fit_snapshot() and give it back with snapshot_release(). */
 struct snapshot {
@@ -102,6 +115,7 @@ struct snapshot {
 				  * fresh one (agm_sweep == sweep) */
 	uint32_t agm_sweep;
 	struct seed_report seeds;
+	struct fit_stats stats;  /* up to this snapshot (its own cost excluded) */
 	/* private */
 	int refs_;
 };
