@@ -285,7 +285,10 @@ struct model_work {
 	uint32_t *cand;   /* candidate list */
 	uint32_t ncand;
 	double *wv;       /* per-neighbour weights */
+	double *xv;       /* per-neighbour x = F_u . F_v + qeps */
+	double *dv;       /* per-neighbour dir . F_v */
 	size_t wv_cap;
+	double *dir;      /* dense free direction over candidates */
 	struct fentry *out; /* the accepted row */
 	uint64_t rows, trials, visits; /* counters for model_work_counts() */
 };
@@ -311,7 +314,9 @@ struct model_work *model_work_new(uint32_t k)
 	w->stamp = util_calloc(k, sizeof *w->stamp);
 	w->cand = util_calloc(k, sizeof *w->cand);
 	w->out = util_calloc(k, sizeof *w->out);
-	if (!w->cur || !w->trial || !w->nbrsum || !w->acc || !w->stamp || !w->cand || !w->out) {
+	w->dir = util_calloc(k, sizeof *w->dir);
+	if (!w->cur || !w->trial || !w->nbrsum || !w->acc || !w->stamp || !w->cand || !w->out ||
+	    !w->dir) {
 		model_work_free(w);
 		return NULL;
 	}
@@ -329,6 +334,9 @@ void model_work_free(struct model_work *w)
 	free(w->stamp);
 	free(w->cand);
 	free(w->wv);
+	free(w->xv);
+	free(w->dv);
+	free(w->dir);
 	free(w->out);
 	free(w);
 }
@@ -417,6 +425,28 @@ double model_row_objective(const struct model *m, const struct graph *g, uint32_
 	return f;
 }
 
+/* Room for deg per-neighbour values; 0 when it cannot be had (the
+ * update then works without them). */
+static int grow_scratch(struct model_work *w, uint32_t deg)
+{
+	if (deg <= w->wv_cap)
+		return 1;
+	size_t cap = deg + deg / 2;
+	double *a = realloc(w->wv, cap * sizeof *a);
+	if (a)
+		w->wv = a;
+	double *b = realloc(w->xv, cap * sizeof *b);
+	if (b)
+		w->xv = b;
+	double *c = realloc(w->dv, cap * sizeof *c);
+	if (c)
+		w->dv = c;
+	if (!a || !b || !c)
+		return 0;
+	w->wv_cap = cap;
+	return 1;
+}
+
 /* gather() and gradient() in one pass over the neighbour rows: each row
  * is read once for the candidates, the neighbour sum and the dot product,
  * and once more (from L1) to scatter its share of the gradient. The sums
@@ -439,6 +469,7 @@ static double gather_gradient(const struct model *m, const struct graph *g, uint
 	double f = 0.0, qeps = m->qeps;
 	const uint32_t *adj = g->adj + g->off[u];
 	uint32_t deg = graph_degree(g, u);
+	int keep = grow_scratch(w, deg);
 	for (uint32_t i = 0; i < deg; i++) {
 		const struct frow *rv = &m->rows[adj[i]];
 		const struct fentry *e = rv->e;
@@ -465,6 +496,10 @@ static double gather_gradient(const struct model *m, const struct graph *g, uint
 		f -= log1p(wt);
 		for (uint32_t j = 0; j < nnz; j++)
 			w->acc[e[j].c] += e[j].v * wt;
+		if (keep) {
+			w->xv[i] = x;
+			w->wv[i] = wt;
+		}
 	}
 	w->visits += deg;
 	if (m->excl)
@@ -490,13 +525,7 @@ static double gradient(const struct model *m, const struct graph *g, uint32_t u,
 		       struct model_work *w)
 {
 	uint32_t deg = graph_degree(g, u);
-	if (deg > w->wv_cap) {
-		double *nw = realloc(w->wv, deg * sizeof *nw);
-		if (nw) {
-			w->wv = nw;
-			w->wv_cap = deg;
-		}
-	}
+	grow_scratch(w, deg);
 	double f = 0.0;
 	for (uint32_t i = 0; i < deg; i++) {
 		const struct frow *rv = &m->rows[g->adj[g->off[u] + i]];
@@ -546,6 +575,56 @@ static int cmp_u32(const void *a, const void *b)
 	return (x > y) - (x < y);
 }
 
+/* w->trial = the projected step of the given length; returns 1 when it
+ * clipped a strength the free direction would not have (when lin). */
+static int set_trial(const struct model *m, struct model_work *w, double step, int lin,
+		     int *moved, double *gd)
+{
+	int clipped = 0;
+	*gd = 0.0;
+	*moved = 0;
+	for (uint32_t i = 0; i < w->ncand; i++) {
+		uint32_t c = w->cand[i];
+		double v = w->cur[c] + step * w->acc[c];
+		if (v < m->floor)
+			v = 0.0;
+		if (v > MODEL_FMAX)
+			v = MODEL_FMAX;
+		w->trial[c] = v;
+		*gd += w->acc[c] * (v - w->cur[c]);
+		*moved |= v != w->cur[c];
+		if (lin && v != w->cur[c] + step * w->dir[c])
+			clipped = 1;
+	}
+	return clipped;
+}
+
+/* The row objective at the projected step of the given length (into
+ * w->trial): from the x_v and d_v when nothing was clipped, else by
+ * reading the neighbour rows again. */
+static double eval_trial(const struct model *m, const struct graph *g, uint32_t u,
+			 struct model_work *w, int lin, double step, int *moved, double *gd)
+{
+	int clipped = set_trial(m, w, step, lin, moved, gd);
+	if (!*moved)
+		return 0.0;
+	w->trials++;
+	if (!lin || clipped) {
+		w->visits += graph_degree(g, u);
+		return objective_dense(m, g, u, w, w->trial);
+	}
+	double f1 = 0.0;
+	uint32_t deg = graph_degree(g, u);
+	for (uint32_t i = 0; i < deg; i++)
+		f1 += model_log1mexp(w->xv[i] + step * w->dv[i]);
+	for (uint32_t i = 0; i < w->ncand; i++) {
+		uint32_t c = w->cand[i];
+		if (w->trial[c] != 0.0)
+			f1 -= w->trial[c] * (m->colsum[c] - w->cur[c] - w->nbrsum[c]);
+	}
+	return f1;
+}
+
 int model_update_row(const struct model *m, const struct graph *g, uint32_t u,
 		     struct model_work *w, const struct fentry **out, uint32_t *out_nnz)
 {
@@ -563,27 +642,39 @@ int model_update_row(const struct model *m, const struct graph *g, uint32_t u,
 		if (fabs(w->acc[w->cand[i]]) > gmax)
 			gmax = fabs(w->acc[w->cand[i]]);
 	double step = gmax > STEP_REACH ? STEP_REACH / gmax : 1.0;
-	for (int t = 0; t < ARMIJO_TRIES && !accepted; t++, step *= 0.5) {
-		double gd = 0.0;
-		int moved = 0;
+	uint32_t deg = graph_degree(g, u);
+	const uint32_t *adj = g->adj + g->off[u];
+	/* The free direction: the gradient, except where a zero strength
+	 * would only be pushed below zero. Along it the edge terms are
+	 * log(1 - exp(-(x_v + a d_v))) with d_v = dir . F_v, so one more pass
+	 * (from cache: the rows were just read) gives every d_v, and a trial
+	 * whose projection clips nothing beyond the free direction is scored
+	 * from x_v and d_v without reading the rows again. */
+	int lin = deg <= w->wv_cap;
+	if (lin) {
 		for (uint32_t i = 0; i < w->ncand; i++) {
 			uint32_t c = w->cand[i];
-			double v = w->cur[c] + step * w->acc[c];
-			if (v < m->floor)
-				v = 0.0;
-			if (v > MODEL_FMAX)
-				v = MODEL_FMAX;
-			w->trial[c] = v;
-			gd += w->acc[c] * (v - w->cur[c]);
-			moved |= v != w->cur[c];
+			w->dir[c] = w->cur[c] == 0.0 && w->acc[c] <= 0.0 ? 0.0 : w->acc[c];
 		}
+		for (uint32_t i = 0; i < deg; i++)
+			w->dv[i] = dense_dot(w->dir, &m->rows[adj[i]]);
+		w->visits += deg;
+	}
+	/* Plain backtracking from the reach limit. (Starting instead near the
+	 * Cauchy step gdir / curv and searching up or down needs 2.6 trials a
+	 * row instead of 5.8 on the 100,000-node bench graph, but the larger
+	 * accepted steps of the search from above level off higher: -818853
+	 * against -831012 on email-Enron at k = 100 without refinement.) */
+	for (int t = 0; t < ARMIJO_TRIES; t++, step *= 0.5) {
+		int moved;
+		double gd;
+		double f1 = eval_trial(m, g, u, w, lin, step, &moved, &gd);
 		if (!moved)
 			break;
-		w->trials++;
-		w->visits += graph_degree(g, u);
-		double f1 = objective_dense(m, g, u, w, w->trial);
-		if (f1 >= f0 + ARMIJO_SIGMA * gd && f1 > f0)
+		if (f1 >= f0 + ARMIJO_SIGMA * gd && f1 > f0) {
 			accepted = 1;
+			break;
+		}
 	}
 	if (!accepted)
 		return 0;

@@ -46,6 +46,15 @@ static long peak_rss_kb(void)
 	return getrusage(RUSAGE_SELF, &ru) == 0 ? ru.ru_maxrss : -1;
 }
 
+static double cpu_seconds(void)
+{
+	struct rusage ru;
+	if (getrusage(RUSAGE_SELF, &ru))
+		return 0.0;
+	return ru.ru_utime.tv_sec + ru.ru_stime.tv_sec +
+	       (ru.ru_utime.tv_usec + ru.ru_stime.tv_usec) / 1e6;
+}
+
 static double file_mb(const char *path)
 {
 	struct stat st;
@@ -155,16 +164,17 @@ static int cmd_fit(int argc, char **argv)
 	struct graph *g = load_timed(path);
 	if (!g)
 		return 1;
-	double t = util_now();
+	double t = util_now(), cpu = cpu_seconds();
 	struct fit *f = fit_new(g, &p, NULL);
 	if (!f || fit_start(f))
 		return 1;
 	enum fit_state st = fit_wait(f);
 	double fit_s = util_now() - t;
+	cpu = cpu_seconds() - cpu;
 	struct snapshot *s = fit_snapshot(f);
 	const struct fit_stats *x = &s->stats;
 	printf("k\t%u\nthreads\t%u\nstate\t%s\n", p.k, p.threads, fit_state_name(st));
-	printf("fit_s\t%.3f\nseed_s\t%.3f\n", fit_s, x->seed_seconds);
+	printf("fit_s\t%.3f\nfit_cpu_s\t%.3f\nseed_s\t%.3f\n", fit_s, cpu, x->seed_seconds);
 	printf("sweeps\t%u\nplateau_sweep\t%u\n", x->sweeps, s->plateau_sweep);
 	printf("sweep_s\t%.4f\n", x->sweeps ? x->sweep_seconds / x->sweeps : 0.0);
 	printf("sweeps_s_total\t%.3f\nloglik_s_total\t%.3f\npublish_s_total\t%.3f\n",
