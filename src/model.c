@@ -224,6 +224,11 @@ double model_loglik(const struct model *m, const struct graph *g)
 
 int model_export(const struct model *m, struct fcsr *out)
 {
+	return model_export_order(m, NULL, out);
+}
+
+int model_export_order(const struct model *m, const uint32_t *inner, struct fcsr *out)
+{
 	memset(out, 0, sizeof *out);
 	out->n = m->n;
 	out->k = m->k;
@@ -234,15 +239,17 @@ int model_export(const struct model *m, struct fcsr *out)
 	uint64_t nnz = 0;
 	out->off[0] = 0;
 	for (uint32_t u = 0; u < m->n; u++) {
-		nnz += m->rows[u].nnz;
+		nnz += m->rows[inner ? inner[u] : u].nnz;
 		out->off[u + 1] = nnz;
 	}
 	out->e = util_malloc(nnz, sizeof *out->e);
 	if (!out->e)
 		goto fail;
-	for (uint32_t u = 0; u < m->n; u++)
-		if (m->rows[u].nnz)
-			memcpy(out->e + out->off[u], m->rows[u].e, m->rows[u].nnz * sizeof *out->e);
+	for (uint32_t u = 0; u < m->n; u++) {
+		const struct frow *r = &m->rows[inner ? inner[u] : u];
+		if (r->nnz)
+			memcpy(out->e + out->off[u], r->e, r->nnz * sizeof *out->e);
+	}
 	memcpy(out->colsum, m->colsum, m->k * sizeof *out->colsum);
 	return 0;
 fail:
@@ -252,11 +259,17 @@ fail:
 
 int model_import(struct model *m, const struct fcsr *in)
 {
+	return model_import_order(m, in, NULL);
+}
+
+int model_import_order(struct model *m, const struct fcsr *in, const uint32_t *inner)
+{
 	if (in->n != m->n || in->k != m->k)
 		return error("saved strengths are %u x %u, the model is %u x %u", in->n, in->k,
 			     m->n, m->k);
 	for (uint32_t u = 0; u < m->n; u++)
-		if (model_set_row(m, u, in->e + in->off[u], (uint32_t)(in->off[u + 1] - in->off[u])))
+		if (model_set_row(m, inner ? inner[u] : u, in->e + in->off[u],
+				  (uint32_t)(in->off[u + 1] - in->off[u])))
 			return -1;
 	model_recount(m);
 	return 0;

@@ -65,6 +65,10 @@ struct fit_params {
 	int no_refine;       /* 1: skip the refinement moves after a plateau */
 	int hold_at_plateau; /* 1: at a plateau wait (state LEVELLED) for
 			      * fit_extend() or fit_stop() instead of ending */
+	int renumber;        /* 1: fit with the nodes renumbered breadth-first
+			      * (order.h); 0 (default): in the graph's own
+			      * ids. Results are in the graph's ids either
+			      * way. On the bench graphs it did not pay. */
 };
 
 /* Defaults: k 10, 1 thread, seed 1, tol 1e-4, patience 3, 500 sweeps,
@@ -82,6 +86,8 @@ struct trace_point {
 struct fit_stats {
 	double seed_seconds;    /* seeding */
 	double sweep_seconds;   /* sweeps: row updates and applying them */
+	double sweep_cpu_seconds; /* the fitting thread's CPU time in sweeps
+				   * (all of it with one thread) */
 	double loglik_seconds;  /* the log-likelihood after each sweep */
 	double publish_seconds; /* building snapshots */
 	uint32_t sweeps;        /* sweeps run */
@@ -110,7 +116,7 @@ struct snapshot {
 	struct agm agm;          /* memberships and figures read from F as it
 				  * was after sweep agm_sweep: while fitting,
 				  * the AGM is rebuilt only as often as keeps
-				  * its cost under a fifth of the time; every
+				  * its cost under a twentieth of the time; every
 				  * snapshot that ends or pauses a fit has a
 				  * fresh one (agm_sweep == sweep) */
 	uint32_t agm_sweep;

@@ -5,12 +5,14 @@
  *
  *   benchtool fit GRAPH [-k K] [-j T] [--seed S] [--starts N] [--no-refine]
  *                       [--max-sweeps N] [--past-plateau] [--truth FILE]
- *                       [--yardstick]
+ *                       [--renumber] [--yardstick]
  *       load GRAPH (timed), fit it with the engine of `coterie fit`, print
  *       load time and MB/s, seeding time, seconds per sweep, sweeps, the
  *       split of the fitting thread's time, peak RSS, ns per neighbour
  *       visit and (--yardstick) the same for a bare loop, ONMI against
  *       --truth (max form, McDaid et al. 2011; src/score.c).
+ *   benchtool load GRAPH      load time, MB/s of file, peak RSS
+ *   benchtool zlib FILE.gz    zlib's inflate speed on the file (MB/s of input)
  *   benchtool leiden GRAPH
  *       time igraph's Leiden (igraph C API, modularity, beta 0.01, two
  *       iterations) on the same graph, loaded by our reader.
@@ -25,20 +27,31 @@
  * thread when the fit has -j 1.
  */
 #include <igraph.h>
+#include <zlib.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 #include <sys/resource.h>
 #include <sys/stat.h>
+#include <time.h>
 
 #include "coterie/agm.h"
 #include "coterie/cover.h"
 #include "coterie/fit.h"
 #include "coterie/graph.h"
 #include "coterie/model.h"
+#include "coterie/order.h"
 #include "coterie/rng.h"
 #include "coterie/score.h"
 #include "coterie/util.h"
+
+static double thread_cpu(void)
+{
+	struct timespec ts;
+	if (clock_gettime(CLOCK_THREAD_CPUTIME_ID, &ts))
+		return 0.0;
+	return (double)ts.tv_sec + ts.tv_nsec / 1e9;
+}
 
 static long peak_rss_kb(void)
 {
@@ -90,7 +103,7 @@ static double yardstick(const struct graph *g, const struct fcsr *F, uint64_t se
 	rng_shuffle_u32(&r, perm, n);
 	double best = -1.0, check = 0.0;
 	for (int rep = 0; rep < reps; rep++) {
-		double t = util_now();
+		double t = thread_cpu();
 		for (uint32_t i = 0; i < n; i++) {
 			uint32_t u = perm[i];
 			const struct fentry *eu = F->e + F->off[u];
@@ -110,7 +123,7 @@ static double yardstick(const struct graph *g, const struct fcsr *F, uint64_t se
 			for (uint32_t j = 0; j < nu; j++)
 				dense[eu[j].c] = 0.0;
 		}
-		double ns = (util_now() - t) * 1e9 / (2.0 * (double)g->m);
+		double ns = (thread_cpu() - t) * 1e9 / (2.0 * (double)g->m);
 		if (best < 0 || ns < best)
 			best = ns;
 	}
@@ -149,6 +162,8 @@ static int cmd_fit(int argc, char **argv)
 			p.no_refine = 1;
 		else if (!strcmp(a, "--past-plateau"))
 			p.past_plateau = 1;
+		else if (!strcmp(a, "--renumber"))
+			p.renumber = 1;
 		else if (!strcmp(a, "--yardstick"))
 			yard = 1;
 		else if (a[0] == '-') {
@@ -182,10 +197,14 @@ static int cmd_fit(int argc, char **argv)
 	double adj = 2.0 * (double)g->m * x->sweeps;
 	printf("trials_per_row\t%.3f\n", x->rows ? (double)x->trials / (double)x->rows : 0.0);
 	printf("reads_per_visit\t%.3f\n", adj > 0 ? (double)x->visits / adj : 0.0);
-	double ns = adj > 0 ? x->sweep_seconds * 1e9 / adj : 0.0;
+	/* per visit in CPU time of the fitting thread: all of a sweep with
+	 * -j 1, and blind to other programs on a shared machine */
+	double ns = adj > 0 ? x->sweep_cpu_seconds * 1e9 / adj : 0.0;
 	printf("ns_per_visit\t%.2f\n", ns);
+	printf("ns_per_visit_wall\t%.2f\n", adj > 0 ? x->sweep_seconds * 1e9 / adj : 0.0);
 	printf("loglik\t%.6g\n", s->ntrace ? s->trace[s->ntrace - 1].loglik : 0.0);
 	printf("communities\t%u\n", s->agm.cover.k);
+	printf("strength_entries\t%llu\n", (unsigned long long)s->F.off[s->F.n]);
 	printf("peak_rss_mb\t%.1f\n", peak_rss_kb() / 1024.0);
 	if (truth) {
 		struct cover tc;
@@ -248,12 +267,95 @@ static int cmd_leiden(const char *path)
 	return 0;
 }
 
+/* zlib's own speed on FILE.gz: inflate to nowhere, MB of compressed input
+ * per second (the ceiling for loading a .gz edge list). */
+static int cmd_zlib(const char *path)
+{
+	gzFile z = gzopen(path, "rb");
+	if (!z)
+		return 1;
+	gzbuffer(z, 1 << 17);
+	static char buf[1 << 17];
+	double t = util_now();
+	long long out = 0;
+	int r;
+	while ((r = gzread(z, buf, sizeof buf)) > 0)
+		out += r;
+	double dt = util_now() - t;
+	gzclose(z);
+	double mb = file_mb(path);
+	printf("zlib_s\t%.3f\nzlib_mbps\t%.1f\nzlib_out_mbps\t%.1f\n", dt, dt > 0 ? mb / dt : 0.0,
+	       dt > 0 ? out / 1e6 / dt : 0.0);
+	return 0;
+}
+
+/* The yardstick on strengths made from a cover (each member 1.0), in the
+ * file's ids and in the breadth-first order the fit uses: what node order
+ * alone does to the memory-bound loop. */
+static int cmd_yard(const char *path, const char *truth)
+{
+	struct graph *g = load_timed(path);
+	struct cover c;
+	if (!g || cover_load(&c, truth, g))
+		return 1;
+	struct model m;
+	if (model_init(&m, g->n, c.k, 0.01))
+		return 1;
+	for (uint32_t i = 0; i < c.k; i++)
+		for (uint64_t j = c.off[i]; j < c.off[i + 1]; j++) {
+			uint32_t u = c.mem[j];
+			struct fentry e[64];
+			uint32_t nnz = m.rows[u].nnz;
+			if (nnz >= 63)
+				continue;
+			memcpy(e, m.rows[u].e, nnz * sizeof *e);
+			e[nnz].c = i; /* columns come in increasing order */
+			e[nnz].v = 1.0;
+			model_set_row(&m, u, e, nnz + 1);
+		}
+	struct fcsr F;
+	if (model_export(&m, &F))
+		return 1;
+	printf("yard_file_order_ns\t%.2f\n", yardstick(g, &F, 1, 3));
+	uint32_t *inner = malloc((size_t)g->n * sizeof *inner);
+	struct graph h;
+	if (!inner || order_bfs(g, inner) || order_graph(g, inner, &h))
+		return 1;
+	struct fcsr Fh;
+	struct model mh;
+	if (model_init(&mh, g->n, c.k, 0.01))
+		return 1;
+	/* model row inner[u] = row u of F */
+	if (model_import_order(&mh, &F, inner) || model_export(&mh, &Fh))
+		return 1;
+	printf("yard_bfs_order_ns\t%.2f\n", yardstick(&h, &Fh, 1, 3));
+	fcsr_release(&F);
+	fcsr_release(&Fh);
+	model_release(&m);
+	model_release(&mh);
+	order_graph_release(&h);
+	free(inner);
+	cover_release(&c);
+	graph_free(g);
+	return 0;
+}
+
 int main(int argc, char **argv)
 {
+	if (argc == 4 && !strcmp(argv[1], "yard"))
+		return cmd_yard(argv[2], argv[3]);
+	if (argc == 3 && !strcmp(argv[1], "load")) {
+		struct graph *g = load_timed(argv[2]);
+		printf("peak_rss_mb\t%.1f\n", peak_rss_kb() / 1024.0);
+		graph_free(g);
+		return !g;
+	}
+	if (argc == 3 && !strcmp(argv[1], "zlib"))
+		return cmd_zlib(argv[2]);
 	if (argc >= 3 && !strcmp(argv[1], "fit"))
 		return cmd_fit(argc, argv);
 	if (argc == 3 && !strcmp(argv[1], "leiden"))
 		return cmd_leiden(argv[2]);
-	fprintf(stderr, "usage: benchtool fit GRAPH [options] | benchtool leiden GRAPH\n");
+	fprintf(stderr, "usage: benchtool fit|load|zlib|leiden GRAPH [options]\n");
 	return 2;
 }
