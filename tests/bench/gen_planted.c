@@ -12,7 +12,8 @@
  * mean degree is about DEG; pairs are drawn by geometric skips, so the cost
  * is proportional to the edges written. Background: DEG / 20 random edges
  * per node, so epsilon is small but not zero. Edges may repeat (two shared
- * communities); the loader merges them. The random numbers are
+ * communities); the loader merges them. Lines are shuffled, so the ids the
+ * loader gives (order of first appearance) carry no locality either. The random numbers are
  * xoshiro256** seeded by splitmix64 from SEED, so the bytes depend on the
  * arguments only.
  *
@@ -157,7 +158,11 @@ int main(int argc, char **argv)
 	fwrite(buf, 1, (size_t)(q - buf), t);
 	q = buf;
 	double lq = log1p(-p);
-	uint64_t m = 0;
+	uint64_t bg = (uint64_t)(n * deg / 20.0 / 2.0);
+	uint64_t cap = (uint64_t)(n * deg / 2.0 * 1.2) + bg + 1024, m = 0;
+	uint32_t *pairs = malloc(2 * cap * sizeof *pairs);
+	if (!pairs)
+		return 1;
 	for (uint64_t i = 0; i < c; i++) {
 		uint64_t sz = cnt[i + 1] - cnt[i];
 		uint64_t np = sz * (sz - 1) / 2;
@@ -173,28 +178,46 @@ int main(int argc, char **argv)
 				rowend += sz - 1 - x;
 			}
 			uint64_t y = sz - (rowend - k);
-			q = put_u(q, mm[x]);
-			*q++ = '\t';
-			q = put_u(q, mm[y]);
-			*q++ = '\n';
-			FLUSH(e);
+			if (m == cap) {
+				cap *= 2;
+				pairs = realloc(pairs, 2 * cap * sizeof *pairs);
+				if (!pairs)
+					return 1;
+			}
+			pairs[2 * m] = mm[x];
+			pairs[2 * m + 1] = mm[y];
 			m++;
 			k++;
 		}
 	}
-	uint64_t bg = (uint64_t)(n * deg / 20.0 / 2.0);
-	for (uint64_t i = 0; i < bg; i++) {
+	for (uint64_t i = 0; i < bg && m < cap; i++) {
 		uint64_t x = below(n), y = below(n);
 		if (x == y)
 			continue;
-		q = put_u(q, x);
-		*q++ = '\t';
-		q = put_u(q, y);
-		*q++ = '\n';
-		FLUSH(e);
+		pairs[2 * m] = (uint32_t)x;
+		pairs[2 * m + 1] = (uint32_t)y;
 		m++;
 	}
+	/* lines in random order, ends in random order: the file's order of
+	 * first appearance (the loader's ids) then carries no locality */
+	for (uint64_t i = m; i > 1; i--) {
+		uint64_t j = below(i);
+		uint32_t a0 = pairs[2 * (i - 1)], a1 = pairs[2 * (i - 1) + 1];
+		pairs[2 * (i - 1)] = pairs[2 * j];
+		pairs[2 * (i - 1) + 1] = pairs[2 * j + 1];
+		pairs[2 * j] = a0;
+		pairs[2 * j + 1] = a1;
+	}
+	for (uint64_t i = 0; i < m; i++) {
+		int flip = (int)(next() >> 63);
+		q = put_u(q, pairs[2 * i + flip]);
+		*q++ = '\t';
+		q = put_u(q, pairs[2 * i + 1 - flip]);
+		*q++ = '\n';
+		FLUSH(e);
+	}
 	fwrite(buf, 1, (size_t)(q - buf), e);
+	free(pairs);
 	if (fclose(e) || fclose(t)) {
 		fprintf(stderr, "gen_planted: write failed\n");
 		return 1;
