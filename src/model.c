@@ -614,27 +614,38 @@ static int set_trial(const struct model *m, struct model_work *w, double step, i
 
 /* The row objective at the projected step of the given length (into
  * w->trial): from the x_v and d_v when nothing was clipped, else by
- * reading the neighbour rows again. */
+ * reading the neighbour rows again. The linear part comes first; every
+ * edge term is negative, so once the running sum falls below `need` the
+ * trial has failed whatever the other neighbours add, and the rest is
+ * skipped (the value returned is then only an upper bound, below need).
+ * Most trials of the backtracking fail, and most fail after a few
+ * neighbours. */
 static double eval_trial(const struct model *m, const struct graph *g, uint32_t u,
-			 struct model_work *w, int lin, double step, int *moved, double *gd)
+			 struct model_work *w, int lin, double step, double need, int *moved,
+			 double *gd)
 {
 	int clipped = set_trial(m, w, step, lin, moved, gd);
 	if (!*moved)
 		return 0.0;
 	w->trials++;
-	if (!lin || clipped) {
-		w->visits += graph_degree(g, u);
-		return objective_dense(m, g, u, w, w->trial);
-	}
 	double f1 = 0.0;
-	uint32_t deg = graph_degree(g, u);
-	for (uint32_t i = 0; i < deg; i++)
-		f1 += model_log1mexp(w->xv[i] + step * w->dv[i]);
 	for (uint32_t i = 0; i < w->ncand; i++) {
 		uint32_t c = w->cand[i];
 		if (w->trial[c] != 0.0)
 			f1 -= w->trial[c] * (m->colsum[c] - w->cur[c] - w->nbrsum[c]);
 	}
+	need = fmax(need + ARMIJO_SIGMA * *gd, need);
+	uint32_t deg = graph_degree(g, u);
+	uint32_t i = 0;
+	if (!lin || clipped) {
+		const uint32_t *adj = g->adj + g->off[u];
+		for (; i < deg && f1 >= need; i++)
+			f1 += model_log1mexp(dense_dot(w->trial, &m->rows[adj[i]]) + m->qeps);
+		w->visits += i;
+		return f1;
+	}
+	for (; i < deg && f1 >= need; i++)
+		f1 += model_log1mexp(w->xv[i] + step * w->dv[i]);
 	return f1;
 }
 
@@ -681,7 +692,7 @@ int model_update_row(const struct model *m, const struct graph *g, uint32_t u,
 	for (int t = 0; t < ARMIJO_TRIES; t++, step *= 0.5) {
 		int moved;
 		double gd;
-		double f1 = eval_trial(m, g, u, w, lin, step, &moved, &gd);
+		double f1 = eval_trial(m, g, u, w, lin, step, f0, &moved, &gd);
 		if (!moved)
 			break;
 		if (f1 >= f0 + ARMIJO_SIGMA * gd && f1 > f0) {
