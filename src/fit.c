@@ -52,7 +52,7 @@
 #define LL_CHUNK 2048u    /* nodes per likelihood part */
 #define POOL_MIN_ROWS 32u /* smaller blocks run on the fitting thread alone */
 #define RATE_WINDOW 5u    /* sweeps per second over this many sweeps */
-#define AGM_SHARE 19.0    /* rebuild a snapshot's AGM after 19x its cost (5% of the time) */
+#define AGM_SHARE 19.0    /* rebuild a snapshot's AGM after 19x its (predicted) cost */
 
 const char *fit_state_name(enum fit_state s)
 {
@@ -144,6 +144,7 @@ struct fit {
 	struct agm agm;
 	int have_agm;
 	double agm_time, agm_cost;
+	uint64_t agm_nnz; /* strengths stored when it was built */
 	uint32_t agm_sweep;
 
 	/* the pool */
@@ -238,11 +239,18 @@ static int publish(struct fit *f, enum fit_state state)
 	if (model_export_order(&f->m, f->inner, &s->F))
 		goto fail;
 	double now = util_now();
-	if (state != FIT_FITTING || !f->have_agm || now - f->agm_time >= AGM_SHARE * f->agm_cost) {
+	/* the AGM's cost grows with the strengths stored: scale the last
+	 * build's cost by their count (after the first sweeps rows are
+	 * densest, 48 entries a node on the 10^6-node bench graph against 2
+	 * at the plateau, and an AGM then cost a minute and 3.6 GB) */
+	uint64_t nnz = s->F.off[s->F.n];
+	double predicted = f->agm_cost * ((double)nnz + 1.0) / ((double)f->agm_nnz + 1.0);
+	if (state != FIT_FITTING || !f->have_agm || now - f->agm_time >= AGM_SHARE * predicted) {
 		if (agm_from_strengths(&s->agm, f->g, &s->F, f->m.epsilon, f->m.delta))
 			goto fail;
 		f->agm_time = util_now();
 		f->agm_cost = f->agm_time - now;
+		f->agm_nnz = nnz;
 		agm_release(&f->agm);
 		f->have_agm = agm_copy(&f->agm, &s->agm) == 0;
 		f->agm_sweep = f->sweep;

@@ -194,6 +194,9 @@ static int cmd_fit(int argc, char **argv)
 	printf("sweep_s\t%.4f\n", x->sweeps ? x->sweep_seconds / x->sweeps : 0.0);
 	printf("sweeps_s_total\t%.3f\nloglik_s_total\t%.3f\npublish_s_total\t%.3f\n",
 	       x->sweep_seconds, x->loglik_seconds, x->publish_seconds);
+	/* mostly the final snapshot and its AGM estimate */
+	printf("other_s\t%.3f\n", fit_s - x->seed_seconds - x->sweep_seconds - x->loglik_seconds -
+					 x->publish_seconds);
 	double adj = 2.0 * (double)g->m * x->sweeps;
 	printf("trials_per_row\t%.3f\n", x->rows ? (double)x->trials / (double)x->rows : 0.0);
 	printf("reads_per_visit\t%.3f\n", adj > 0 ? (double)x->visits / adj : 0.0);

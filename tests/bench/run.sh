@@ -18,7 +18,8 @@
 # gen_planted; make bench sets both), BENCH (full|quick), COTERIE_DATASETS
 # (default ../shared/datasets), BENCH_CACHE (where generated graphs are
 # kept, default $TMPDIR/coterie-bench), BENCH_RESULTS (the markdown file),
-# BENCH_BIG_SWEEPS (sweep limit of the 10^6-node fit, default 40).
+# BENCH_BIG_SWEEPS (sweep limit of the 10^6-node fit, default 40),
+# BENCH_SIZES / BENCH_SETS (override the planted sizes / the datasets).
 set -u
 
 here=$(cd "$(dirname "$0")" && pwd)
@@ -54,6 +55,8 @@ case $mode in
 quick) sizes=10000 sets= ;;
 *) sizes="10000 100000 1000000" sets="email-Enron cond-mat-2005" ;;
 esac
+sizes=${BENCH_SIZES:-$sizes}
+sets=${BENCH_SETS-$sets}
 
 # get FILE KEY: the value of KEY in a benchtool output file
 get() { awk -F '\t' -v k="$2" '$1 == k { v = $2 } END { print v }' "$1" 2>/dev/null; }
@@ -98,10 +101,10 @@ bench()
 		"$(div "$(get "$f.j1" sweep_s)" "$(get "$f.j2" sweep_s)")" \
 		"$(get "$f.leiden" leiden_s)" \
 		"$(div "$(get "$f.fit" fit_s)" "$(get "$f.leiden" leiden_s)" %.1f)" >>"$table"
-	printf -- '- %s: loglik %s, %s communities, state %s; fit CPU %s s; time split: sweeps %s s, likelihood %s s, snapshots %s s; line-search trials per row %s, neighbour-row reads per visit %s\n' \
+	printf -- '- %s: loglik %s, %s communities, state %s; fit CPU %s s; time split: sweeps %s s, likelihood %s s, snapshots %s s, final snapshot and the rest %s s; line-search trials per row %s, neighbour-row reads per visit %s\n' \
 		"$label" "$(get "$f.fit" loglik)" "$(get "$f.fit" communities)" \
 		"$(get "$f.fit" state)" "$(get "$f.fit" fit_cpu_s)" "$(get "$f.fit" sweeps_s_total)" \
-		"$(get "$f.fit" loglik_s_total)" "$(get "$f.fit" publish_s_total)" \
+		"$(get "$f.fit" loglik_s_total)" "$(get "$f.fit" publish_s_total)" "$(get "$f.fit" other_s)" \
 		"$(get "$f.fit" trials_per_row)" "$(get "$f.fit" reads_per_visit)" >>"$notes"
 }
 
