@@ -17,7 +17,8 @@
 # Environment: COTERIE_BIN, BENCH_TOOLS (folder with benchtool and
 # gen_planted; make bench sets both), BENCH (full|quick), COTERIE_DATASETS
 # (default ../shared/datasets), BENCH_CACHE (where generated graphs are
-# kept, default $TMPDIR/coterie-bench), BENCH_RESULTS (the markdown file),
+# kept, default $TMPDIR/coterie-bench), BENCH_RESULTS (the markdown file;
+# tests/bench/results.md, or $TMPDIR/coterie-bench-quick.md for quick),
 # BENCH_BIG_SWEEPS (sweep limit of the 10^6-node fit, default 40),
 # BENCH_SIZES / BENCH_SETS (override the planted sizes / the datasets).
 set -u
@@ -29,7 +30,9 @@ TOOLS=${BENCH_TOOLS:-$root/build/bench}
 tool=$TOOLS/benchtool
 gen=$TOOLS/gen_planted
 mode=${BENCH:-full}
-results=${BENCH_RESULTS:-$here/results.md}
+results_default=$here/results.md
+[ "$mode" = quick ] && results_default=${TMPDIR:-/tmp}/coterie-bench-quick.md
+results=${BENCH_RESULTS:-$results_default}
 cache=${BENCH_CACHE:-${TMPDIR:-/tmp}/coterie-bench}
 big_sweeps=${BENCH_BIG_SWEEPS:-40}
 
