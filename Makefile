@@ -98,8 +98,18 @@ memcheck: $(BIN)
 	  find build/memcheck -name 'vg.*.log' -size +0 -exec sh -c 'echo "== $$1"; head -40 "$$1"' sh {} \; ; \
 	  [ $$rc -eq 0 ] && [ $$bad -eq 0 ]
 
-bench: $(BIN)
-	@COTERIE_BIN=$(abspath $(BIN)) tests/bench/run.sh
+BENCH_TOOLS := $(BUILD)/bench/benchtool $(BUILD)/bench/gen_planted
+
+bench: $(BIN) $(BENCH_TOOLS)
+	@COTERIE_BIN=$(abspath $(BIN)) BENCH_TOOLS=$(abspath $(BUILD)/bench) tests/bench/run.sh
+
+$(BUILD)/bench/benchtool: tests/bench/benchtool.c $(LIB)
+	@mkdir -p $(dir $@)
+	$(CC) $(ALL_CFLAGS) $(ALL_LDFLAGS) -o $@ $< $(LIB) $(LIBS)
+
+$(BUILD)/bench/gen_planted: tests/bench/gen_planted.c
+	@mkdir -p $(dir $@)
+	$(CC) $(ALL_CFLAGS) $(ALL_LDFLAGS) -o $@ $< -lm
 
 demo: $(BIN)
 	./$(BIN) explore samples/town/edges.tsv -k 12

@@ -38,9 +38,11 @@
 #include <stdatomic.h>
 #include <stdlib.h>
 #include <string.h>
+#include <time.h>
 #include <unistd.h>
 
 #include "coterie/graph.h"
+#include "coterie/order.h"
 #include "coterie/rng.h"
 #include "coterie/util.h"
 
@@ -50,7 +52,7 @@
 #define LL_CHUNK 2048u    /* nodes per likelihood part */
 #define POOL_MIN_ROWS 32u /* smaller blocks run on the fitting thread alone */
 #define RATE_WINDOW 5u    /* sweeps per second over this many sweeps */
-#define AGM_SHARE 4.0     /* rebuild a snapshot's AGM after 4x its cost */
+#define AGM_SHARE 19.0    /* rebuild a snapshot's AGM after 19x its (predicted) cost */
 
 const char *fit_state_name(enum fit_state s)
 {
@@ -104,6 +106,14 @@ struct best;
 
 struct fit {
 	const struct graph *g;
+	/* The engine works on gw: g renumbered for locality (gi, with
+	 * inner[u] the working id of g's node u), or g itself. Snapshots
+	 * and origins are in g's ids; the working model is in gw's. */
+	const struct graph *gw;
+	struct graph gi;
+	uint32_t *inner;
+	const struct graph *excl;  /* held-out pairs in g's ids (borrowed) */
+	struct graph excl_i;       /* the same in gw's ids */
 	struct fit_params p;
 	struct model m;
 
@@ -128,6 +138,7 @@ struct fit {
 	unsigned streak;
 	double seconds_base, t0;
 	struct seed_report seeds;
+	struct fit_stats stats;
 	int resumed;
 	struct fit_resume *res_in;  /* owned: where an exact resume begins */
 	struct fit_resume *res_out; /* owned until the next snapshot takes it */
@@ -142,6 +153,7 @@ struct fit {
 	struct agm agm;
 	int have_agm;
 	double agm_time, agm_cost;
+	uint64_t agm_nnz; /* strengths stored when it was built */
 	uint32_t agm_sweep;
 
 	/* the pool */
@@ -286,6 +298,16 @@ static int publish(struct fit *f, enum fit_state state)
 		s->resume = f->res_out;
 		f->res_out = NULL;
 	}
+	s->stats = f->stats;
+	s->stats.rows = s->stats.trials = s->stats.visits = 0;
+	for (unsigned t = 0; t < f->nthreads; t++) {
+		uint64_t rows, trials, visits;
+		model_work_counts(f->work[t], &rows, &trials, &visits);
+		s->stats.rows += rows;
+		s->stats.trials += trials;
+		s->stats.visits += visits;
+	}
+	double t_pub = util_now();
 	s->ntrace = f->ntrace;
 	s->trace = util_malloc(f->ntrace ? f->ntrace : 1, sizeof *s->trace);
 	if (!s->trace)
@@ -293,14 +315,21 @@ static int publish(struct fit *f, enum fit_state state)
 	if (f->ntrace)
 		memcpy(s->trace, f->trace, f->ntrace * sizeof *s->trace);
 	s->sweeps_per_sec = rate_of(f->trace, f->ntrace);
-	if (model_export(&f->m, &s->F))
+	if (model_export_order(&f->m, f->inner, &s->F))
 		goto fail;
 	double now = util_now();
-	if (state != FIT_FITTING || !f->have_agm || now - f->agm_time >= AGM_SHARE * f->agm_cost) {
+	/* the AGM's cost grows with the strengths stored: scale the last
+	 * build's cost by their count (after the first sweeps rows are
+	 * densest, 48 entries a node on the 10^6-node bench graph against 2
+	 * at the plateau, and an AGM then cost a minute and 3.6 GB) */
+	uint64_t nnz = s->F.off[s->F.n];
+	double predicted = f->agm_cost * ((double)nnz + 1.0) / ((double)f->agm_nnz + 1.0);
+	if (state != FIT_FITTING || !f->have_agm || now - f->agm_time >= AGM_SHARE * predicted) {
 		if (agm_from_strengths(&s->agm, f->g, &s->F, f->m.epsilon, f->m.delta))
 			goto fail;
 		f->agm_time = util_now();
 		f->agm_cost = f->agm_time - now;
+		f->agm_nnz = nnz;
 		agm_release(&f->agm);
 		f->have_agm = agm_copy(&f->agm, &s->agm) == 0;
 		f->agm_sweep = f->sweep;
@@ -308,6 +337,7 @@ static int publish(struct fit *f, enum fit_state state)
 		goto fail;
 	}
 	s->agm_sweep = f->agm_sweep;
+	f->stats.publish_seconds += util_now() - t_pub;
 
 	struct snapshot *old_point = NULL;
 	pthread_mutex_lock(&f->lock);
@@ -373,7 +403,7 @@ static void run_job(struct fit *f, unsigned tid)
 			uint32_t nnz;
 			struct rowres *r = &f->res[i];
 			r->changed = 0;
-			if (model_update_row(&f->m, f->g, u, f->work[tid], &row, &nnz)) {
+			if (model_update_row(&f->m, f->gw, u, f->work[tid], &row, &nnz)) {
 				if (arena_push(&f->arena[tid], row, nnz, &r->at)) {
 					atomic_store(&f->worker_failed, 1);
 					continue;
@@ -389,8 +419,8 @@ static void run_job(struct fit *f, unsigned tid)
 			if (i >= f->nparts)
 				break;
 			uint32_t u0 = i * LL_CHUNK;
-			uint32_t u1 = u0 + LL_CHUNK < f->g->n ? u0 + LL_CHUNK : f->g->n;
-			model_loglik_range(&f->m, f->g, u0, u1, &f->parts[i]);
+			uint32_t u1 = u0 + LL_CHUNK < f->gw->n ? u0 + LL_CHUNK : f->gw->n;
+			model_loglik_range(&f->m, f->gw, u0, u1, &f->parts[i]);
 		}
 	}
 }
@@ -498,11 +528,24 @@ static void pool_stop(struct fit *f)
 
 /* ---- sweeps ---- */
 
+/* CPU time of the calling thread (the fitting thread's share of a sweep;
+ * unlike wall time, blind to other programs on the machine). */
+static double thread_cpu(void)
+{
+	struct timespec ts;
+	if (clock_gettime(CLOCK_THREAD_CPUTIME_ID, &ts))
+		return 0.0;
+	return (double)ts.tv_sec + ts.tv_nsec / 1e9;
+}
+
 static double compute_loglik(struct fit *f)
 {
+	double t = util_now();
 	f->job = JOB_LOGLIK;
 	pool_run(f);
-	return model_loglik_combine(&f->m, f->g, f->parts, f->nparts);
+	double ll = model_loglik_combine(&f->m, f->gw, f->parts, f->nparts);
+	f->stats.loglik_seconds += util_now() - t;
+	return ll;
 }
 
 static int trace_add(struct fit *f, double ll)
@@ -540,13 +583,13 @@ static void block_add(struct fit *f, uint32_t u, uint32_t i)
 {
 	f->blk[i] = u;
 	f->mark[u] = f->epoch;
-	for (uint64_t e = f->g->off[u]; e < f->g->off[u + 1]; e++)
-		f->mark[f->g->adj[e]] = f->epoch;
+	for (uint64_t e = f->gw->off[u]; e < f->gw->off[u + 1]; e++)
+		f->mark[f->gw->adj[e]] = f->epoch;
 }
 
 static int sweep_once(struct fit *f, uint32_t *perm)
 {
-	uint32_t n = f->g->n;
+	uint32_t n = f->gw->n;
 	struct rng r;
 	uint64_t start = f->start > 1 ? f->start - 1 : 0;
 	rng_init(&r, f->p.seed * 0x9e3779b97f4a7c15ULL + f->sweep + (start << 32));
@@ -628,11 +671,15 @@ static enum fit_state run_start(struct fit *f, uint32_t *perm, int extend)
 	while (f->sweep < f->p.max_sweeps) {
 		if (atomic_load(&f->stop_req) || atomic_load(&f->interrupt_req))
 			return FIT_STOPPED;
+		double t = util_now(), c = thread_cpu();
 		int rc = sweep_once(f, perm);
 		if (rc < 0)
 			return FIT_FAILED;
 		f->sweep++;
 		recount_colsum(f);
+		f->stats.sweep_seconds += util_now() - t;
+		f->stats.sweep_cpu_seconds += thread_cpu() - c;
+		f->stats.sweeps++;
 		double ll = compute_loglik(f);
 		double prev = f->ntrace ? f->trace[f->ntrace - 1].loglik : ll;
 		if (trace_add(f, ll))
@@ -736,8 +783,8 @@ static int reseed_column(struct fit *f, struct rng *r)
 			goto fail;
 	}
 	/* seed it on the centre and its neighbours inside the host */
-	for (uint64_t j = f->g->off[centre]; j <= f->g->off[centre + 1]; j++) {
-		uint32_t u = j < f->g->off[centre + 1] ? f->g->adj[j] : centre;
+	for (uint64_t j = f->gw->off[centre]; j <= f->gw->off[centre + 1]; j++) {
+		uint32_t u = j < f->gw->off[centre + 1] ? f->gw->adj[j] : centre;
 		const struct frow *row = &m->rows[u];
 		int in_host = u == centre;
 		for (uint32_t i = 0; i < row->nnz; i++)
@@ -955,7 +1002,7 @@ static void keep_resume(struct fit *f, const struct best *b, const struct fit_pa
 static int begin_start(struct fit *f, uint32_t r)
 {
 	if (r > 0) {
-		for (uint32_t u = 0; u < f->g->n; u++)
+		for (uint32_t u = 0; u < f->gw->n; u++)
 			model_set_row(&f->m, u, NULL, 0);
 		model_recount(&f->m);
 		f->ntrace = 0;
@@ -965,7 +1012,10 @@ static int begin_start(struct fit *f, uint32_t r)
 		f->plateau_sweep = 0;
 	}
 	set_state(f, FIT_SEEDING);
-	if (seed_model(f->g, &f->m, f->p.seed, r, &f->seeds) || trace_add(f, compute_loglik(f)))
+	double t = util_now();
+	int seeded = seed_model(f->gw, &f->m, f->p.seed, r, &f->seeds);
+	f->stats.seed_seconds += util_now() - t;
+	if (seeded || trace_add(f, compute_loglik(f)))
 		return -1;
 	publish(f, FIT_FITTING);
 	return 0;
@@ -977,7 +1027,7 @@ static void *fit_main(void *arg)
 	enum fit_state final = FIT_FAILED;
 	struct best best;
 	memset(&best, 0, sizeof best);
-	uint32_t *perm = util_malloc(f->g->n ? f->g->n : 1, sizeof *perm);
+	uint32_t *perm = util_malloc(f->gw->n ? f->gw->n : 1, sizeof *perm);
 	f->t0 = util_now();
 	if (!perm || pool_start(f))
 		goto out;
@@ -1116,6 +1166,7 @@ struct fit *fit_new(const struct graph *g, const struct fit_params *p,
 	if (!f)
 		return NULL;
 	f->g = g;
+	f->gw = g;
 	f->p = *p;
 	f->wake[0] = f->wake[1] = -1;
 	if (f->p.threads < 1)
@@ -1133,6 +1184,12 @@ struct fit *fit_new(const struct graph *g, const struct fit_params *p,
 	pthread_cond_init(&f->cond, NULL);
 	if (model_init(&f->m, g->n, p->k, eps))
 		goto fail;
+	if (p->renumber) {
+		f->inner = util_malloc(g->n, sizeof *f->inner);
+		if (!f->inner || order_bfs(g, f->inner) || order_graph(g, f->inner, &f->gi))
+			goto fail;
+		f->gw = &f->gi;
+	}
 	if (pipe(f->wake)) {
 		error("cannot make a pipe: %s", strerror(errno));
 		goto fail;
@@ -1172,7 +1229,7 @@ struct fit *fit_new(const struct graph *g, const struct fit_params *p,
 			      origin->F->n, origin->F->k, g->n, p->k);
 			goto fail;
 		}
-		if (model_import(&f->m, origin->F))
+		if (model_import_order(&f->m, origin->F, f->inner))
 			goto fail;
 		f->resumed = 1;
 		f->sweep = origin->sweep;
@@ -1196,13 +1253,20 @@ fail:
 
 void fit_exclude(struct fit *f, const struct graph *excl)
 {
-	f->m.excl = excl;
+	f->excl = excl;
 }
 
 int fit_start(struct fit *f)
 {
 	if (f->started)
 		return error("the fit is already running");
+	f->m.excl = f->excl;
+	if (f->excl && f->inner) {
+		order_graph_release(&f->excl_i);
+		if (order_graph(f->excl, f->inner, &f->excl_i))
+			return -1;
+		f->m.excl = &f->excl_i;
+	}
 	/* the fitting thread and its workers take no signals: the command
 	 * layer handles them on its own thread */
 	sigset_t all, old;
@@ -1326,6 +1390,9 @@ void fit_free(struct fit *f)
 	fit_resume_free(f->res_out);
 	agm_release(&f->agm);
 	model_release(&f->m);
+	order_graph_release(&f->gi);
+	order_graph_release(&f->excl_i);
+	free(f->inner);
 	if (f->work)
 		for (unsigned t = 0; t < f->p.threads; t++)
 			model_work_free(f->work[t]);

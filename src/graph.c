@@ -23,7 +23,9 @@
  *
  * Names are interned in an open-addressing hash table (linear probing,
  * FNV-1a with a final mix) whose strings live in an arena of large chunks;
- * ids are handed out in order of first appearance. Lookups are done in
+ * ids are handed out in order of first appearance. Each slot keeps the
+ * name's first 8 bytes, so names shorter than that are compared without
+ * reading the string. Lookups are done in
  * batches of lines with prefetches (see edge_flush), since on a large graph
  * each one is a couple of cache misses.
  *
@@ -93,7 +95,23 @@ struct slot {
 	const char *name; /* the interned copy, so a probe skips names[] */
 	uint32_t hash;    /* low bits of the full hash, to skip most compares */
 	uint32_t id;      /* SLOT_EMPTY when free */
+	uint64_t head;    /* the name's first 8 bytes, NUL-padded (name_head()) */
 };
+
+/* The first 8 bytes of s[0..len), zero-padded. A name shorter than 8
+ * bytes is equal to another exactly when their heads are (the padding
+ * marks where it ends; names hold no NUL), so looking up the short names
+ * of most graphs (numbers) never touches the string: on a 10^6-node
+ * graph with names in random order the string compare was a cache miss
+ * per lookup and a quarter of the loading time. */
+static uint64_t name_head(const char *s, size_t len)
+{
+	unsigned char b[8] = { 0 };
+	memcpy(b, s, len < 8 ? len : 8);
+	uint64_t h;
+	memcpy(&h, b, 8);
+	return h;
+}
 
 struct nametable {
 	struct slot *slots;
@@ -161,11 +179,14 @@ static uint64_t nametable_probe(const struct nametable *t, const char *s, size_t
 {
 	uint64_t i = h & t->mask;
 	uint32_t h32 = (uint32_t)h;
+	uint64_t head = name_head(s, len);
 	for (;;) {
 		const struct slot *sl = &t->slots[i];
 		if (sl->id == SLOT_EMPTY)
 			return i;
-		if (sl->hash == h32) {
+		if (sl->hash == h32 && sl->head == head) {
+			if (len < 8)
+				return i;
 			const char *nm = sl->name;
 			/* s holds no NUL, so strncmp stops only at nm's end or at len */
 			if (strncmp(nm, s, len) == 0 && nm[len] == '\0')
@@ -271,6 +292,7 @@ static int64_t nametable_intern_h(struct nametable *t, const char *s, size_t len
 	t->slots[i].name = copy;
 	t->slots[i].hash = (uint32_t)h;
 	t->slots[i].id = id;
+	t->slots[i].head = name_head(s, len);
 	return id;
 }
 

@@ -65,6 +65,10 @@ struct fit_params {
 	int no_reseed;       /* 1: skip the reseeding moves after a plateau */
 	int hold_at_plateau; /* 1: at a plateau wait (state LEVELLED) for
 			      * fit_extend() or fit_stop() instead of ending */
+	int renumber;        /* 1: fit with the nodes renumbered breadth-first
+			      * (order.h); 0 (default): in the graph's own
+			      * ids. Results are in the graph's ids either
+			      * way. On the bench graphs it did not pay. */
 };
 
 /* Defaults: k 10, 1 thread, seed 1, tol 1e-4, patience 3, 500 sweeps,
@@ -75,6 +79,21 @@ struct trace_point {
 	uint32_t sweep;   /* 0 is the seeded model */
 	double seconds;   /* since the fit began, resumes included */
 	double loglik;    /* l(F) after the sweep */
+};
+
+/* Where the time went, for benchmarks (all starts and refinement moves
+ * included; wall-clock seconds on the fitting thread). */
+struct fit_stats {
+	double seed_seconds;    /* seeding */
+	double sweep_seconds;   /* sweeps: row updates and applying them */
+	double sweep_cpu_seconds; /* the fitting thread's CPU time in sweeps
+				   * (all of it with one thread) */
+	double loglik_seconds;  /* the log-likelihood after each sweep */
+	double publish_seconds; /* building snapshots */
+	uint32_t sweeps;        /* sweeps run */
+	uint64_t rows;          /* row updates computed */
+	uint64_t trials;        /* line-search trials evaluated */
+	uint64_t visits;        /* neighbour rows read (model_work_counts()) */
 };
 
 /* An immutable picture of the fit after a sweep. Take one with
@@ -97,7 +116,7 @@ struct snapshot {
 	struct agm agm;          /* memberships and figures read from F as it
 				  * was after sweep agm_sweep: while fitting,
 				  * the AGM is rebuilt only as often as keeps
-				  * its cost under a fifth of the time; every
+				  * its cost under a twentieth of the time; every
 				  * snapshot that ends or pauses a fit has a
 				  * fresh one (agm_sweep == sweep) */
 	uint32_t agm_sweep;
@@ -106,6 +125,7 @@ struct snapshot {
 				    * interrupted fit (see fit_interrupt())
 				    * and in the one after
 				    * fit_want_resume_point(), else NULL */
+	struct fit_stats stats;  /* up to this snapshot (its own cost excluded) */
 	/* private */
 	int refs_;
 };

@@ -111,6 +111,11 @@ double model_loglik_combine(const struct model *m, const struct graph *g,
 int model_export(const struct model *m, struct fcsr *out);
 /* Load compressed rows into an initialised model of the same shape. */
 int model_import(struct model *m, const struct fcsr *in);
+/* The same with the model's nodes renumbered (order.h): row u of the
+ * copy is model row inner[u], and row u of in goes to model row
+ * inner[u]. inner borrowed (n values); NULL is the identity. */
+int model_export_order(const struct model *m, const uint32_t *inner, struct fcsr *out);
+int model_import_order(struct model *m, const struct fcsr *in, const uint32_t *inner);
 void fcsr_release(struct fcsr *f);
 
 /*
@@ -125,6 +130,11 @@ void fcsr_release(struct fcsr *f);
 struct model_work;
 struct model_work *model_work_new(uint32_t k);
 void model_work_free(struct model_work *w);
+/* What w has done so far, for benchmarks: rows updated, line-search trials
+ * evaluated, and neighbour rows read (each row's gradient pass and each
+ * trial count deg(u)). */
+void model_work_counts(const struct model_work *w, uint64_t *rows, uint64_t *trials,
+		       uint64_t *visits);
 
 /* The row objective of u if its row were r (nnz entries): the terms of
  * l(F) that involve u, namely

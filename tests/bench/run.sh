@@ -1,34 +1,40 @@
 #!/bin/sh
-# Benchmarks for coterie fit. Prints figures; asserts nothing (STYLE.md 5:
-# "A benchmark measures; it does not assert a wall-clock time").
+# Benchmarks for the fitting engine. Prints a table and writes it to
+# tests/bench/results.md; asserts nothing (STYLE.md 5: "A benchmark
+# measures; it does not assert a wall-clock time").
 #
-#   make bench                      (sets COTERIE_BIN)
-#   tests/bench/run.sh [a b c d]    run only some parts
+#   make bench               planted graphs of 10^4, 10^5 and 10^6 nodes,
+#                            email-Enron and cond-mat-2005 (about 20 min)
+#   BENCH=quick make bench   the 10^4-node graph only (under a minute)
 #
-# (a) fit email-Enron  -k 100 -j 2 to a plateau (or the default sweep limit)
-# (b) fit cond-mat-2005 likewise
-# (c) load throughput: a synthetic edge list of 5 million lines, fitted
-#     with -k 1 --max-sweeps 0 (load, seed, write; no sweep)
-# (d) scaling: sweeps/s on email-Enron, -k 100, 20 sweeps (one start),
-#     -j 1 vs -j 2
+# For each graph: one fit to its plateau with -j 2 (load, seeding, seconds
+# per sweep, sweeps, total, peak RSS, ONMI against the planted cover), a
+# few sweeps with -j 1 and with -j 2 (speed-up, ns per neighbour visit and
+# the bare-loop yardstick), and igraph's Leiden on the same graph. Then
+# loading the largest planted graph plain and gzip-compressed, beside
+# zlib's own inflate speed. tests/bench/README.md explains every column.
 #
-# Environment: COTERIE_BIN (binary), COTERIE_DATASETS (folder holding
-# email-Enron/ and cond-mat-2005/; default ../shared/datasets next to the
-# repository), BENCH_K (100), BENCH_THREADS (2), BENCH_BIG_EDGES (5000000),
-# BENCH_BIG_NODES (1000000), BENCH_KEEP=1 keeps the result folders.
-# See tests/bench/README.md for what each figure means.
+# Environment: COTERIE_BIN, BENCH_TOOLS (folder with benchtool and
+# gen_planted; make bench sets both), BENCH (full|quick), COTERIE_DATASETS
+# (default ../shared/datasets), BENCH_CACHE (where generated graphs are
+# kept, default $TMPDIR/coterie-bench), BENCH_RESULTS (the markdown file;
+# tests/bench/results.md, or $TMPDIR/coterie-bench-quick.md for quick),
+# BENCH_BIG_SWEEPS (sweep limit of the 10^6-node fit, default 40),
+# BENCH_SIZES / BENCH_SETS (override the planted sizes / the datasets).
 set -u
 
 here=$(cd "$(dirname "$0")" && pwd)
 root=$(cd "$here/../.." && pwd)
 BIN=${COTERIE_BIN:-$root/coterie}
-if [ -x /usr/bin/python3 ]; then PY=/usr/bin/python3; else PY=python3; fi
-K=${BENCH_K:-100}
-J=${BENCH_THREADS:-2}
-BIG_M=${BENCH_BIG_EDGES:-5000000}
-BIG_N=${BENCH_BIG_NODES:-1000000}
-BIG_SEED=42
-parts=${*:-a b c d}
+TOOLS=${BENCH_TOOLS:-$root/build/bench}
+tool=$TOOLS/benchtool
+gen=$TOOLS/gen_planted
+mode=${BENCH:-full}
+results_default=$here/results.md
+[ "$mode" = quick ] && results_default=${TMPDIR:-/tmp}/coterie-bench-quick.md
+results=${BENCH_RESULTS:-$results_default}
+cache=${BENCH_CACHE:-${TMPDIR:-/tmp}/coterie-bench}
+big_sweeps=${BENCH_BIG_SWEEPS:-40}
 
 if [ -n "${COTERIE_DATASETS:-}" ]; then
 	datasets=$COTERIE_DATASETS
@@ -36,139 +42,120 @@ else
 	top=$(git -C "$root" rev-parse --show-toplevel 2>/dev/null || echo "$root")
 	datasets=$top/../shared/datasets
 fi
-[ -d "$datasets" ] && datasets=$(cd "$datasets" && pwd)
 
-if [ ! -x "$BIN" ]; then
-	echo "bench: no binary at $BIN (run make first)" >&2
-	exit 1
-fi
-
+for x in "$tool" "$gen"; do
+	if [ ! -x "$x" ]; then
+		echo "bench: no $x (run make bench, or make $x)" >&2
+		exit 1
+	fi
+done
+mkdir -p "$cache" || exit 1
 work=$(mktemp -d "${TMPDIR:-/tmp}/coterie-bench.XXXXXX") || exit 1
-if [ "${BENCH_KEEP:-0}" = 1 ]; then
-	trap 'echo "bench: results kept in $work"' EXIT
-else
-	trap 'rm -rf "$work"' EXIT
-fi
+trap 'rm -rf "$work"' EXIT
 trap 'exit 130' INT TERM HUP
-rows=$work/rows.tsv
-: >"$rows"
 
-# One start is enough to time sweeps, and a third of the work.
-one_start=
-"$BIN" fit --help 2>/dev/null | grep -q -e '--starts' && one_start="--starts 1"
+case $mode in
+quick) sizes=10000 sets= ;;
+*) sizes="10000 100000 1000000" sets="email-Enron cond-mat-2005" ;;
+esac
+sizes=${BENCH_SIZES:-$sizes}
+sets=${BENCH_SETS-$sets}
 
-have_time=0
-[ -x /usr/bin/time ] && /usr/bin/time -v true 2>/dev/null && have_time=1
+# get FILE KEY: the value of KEY in a benchtool output file
+get() { awk -F '\t' -v k="$2" '$1 == k { v = $2 } END { print v }' "$1" 2>/dev/null; }
+# div A B [FORMAT]
+div() { awk -v a="$1" -v b="$2" -v f="${3:-%.2f}" 'BEGIN { if (a == "" || b == "" || b + 0 == 0) print "-"; else printf f "\n", a / b }'; }
 
-# measure LABEL NAME ARGS...: run `coterie fit ARGS -o DIR`, add a row.
-measure()
+table=$work/table.md
+notes=$work/notes.md
+: >"$notes"
 {
-	m_label=$1
-	m_name=$2
-	shift 2
-	m_out=$work/$m_name
-	echo "bench: $m_label: coterie fit $*" >&2
-	if [ "$have_time" = 1 ]; then
-		"$PY" "$here/timed.py" "$work/$m_name.log" -- \
-			/usr/bin/time -v -o "$work/$m_name.time" "$BIN" fit "$@" -o "$m_out"
-	else
-		"$PY" "$here/timed.py" "$work/$m_name.log" -- "$BIN" fit "$@" -o "$m_out"
-	fi
-	m_rc=$?
-	if [ "$m_rc" -ne 0 ] || [ ! -s "$m_out/run.json" ]; then
-		echo "bench: $m_label failed (exit $m_rc); its stderr:" >&2
-		cut -f2- "$work/$m_name.log" | tail -n 5 >&2
-		return 1
-	fi
-	"$PY" "$here/figures.py" row "$m_label" "$m_out" "$work/$m_name.log" \
-		"$work/$m_name.time" >>"$rows"
-	tail -n 1 "$rows" | cut -f1-12 | tr '\t' ' ' | sed 's/^/bench:   /' >&2
+	echo "| graph | nodes | edges | k | load s | MB/s | seed s | s/sweep | sweeps | fit s | peak MB | ONMI | ns/visit | yardstick ns | ratio | j2/j1 | Leiden s | fit/Leiden |"
+	echo "|---|---|---|---|---|---|---|---|---|---|---|---|---|---|---|---|---|---|"
+} >"$table"
+
+# bench LABEL GRAPH K TRUTH MAXSWEEPS SCALESWEEPS
+bench()
+{
+	label=$1 graph=$2 k=$3 truth=$4 maxs=$5 ss=$6
+	f=$work/$label
+	tr=
+	[ -n "$truth" ] && tr="--truth $truth"
+	echo "bench: $label: fit -k $k -j 2 to a plateau (at most $maxs sweeps)" >&2
+	"$tool" fit "$graph" -k "$k" -j 2 --no-refine --max-sweeps "$maxs" $tr >"$f.fit" 2>"$f.err" ||
+		{ echo "bench: $label: fit failed:" >&2; tail -n 3 "$f.err" >&2; }
+	echo "bench: $label: $ss sweeps with -j 1 and with -j 2" >&2
+	"$tool" fit "$graph" -k "$k" -j 1 --no-refine --max-sweeps "$ss" --past-plateau \
+		--yardstick >"$f.j1" 2>/dev/null
+	"$tool" fit "$graph" -k "$k" -j 2 --no-refine --max-sweeps "$ss" --past-plateau \
+		>"$f.j2" 2>/dev/null
+	echo "bench: $label: igraph Leiden" >&2
+	"$tool" leiden "$graph" >"$f.leiden" 2>/dev/null
+	onmi=$(get "$f.fit" onmi)
+	sweeps="$(get "$f.fit" sweeps)"
+	[ "$(get "$f.fit" state)" = finished ] && sweeps="$sweeps (limit)"
+	printf '| %s | %s | %s | %s | %s | %s | %s | %s | %s | %s | %s | %s | %s | %s | %s | %s | %s | %s |\n' \
+		"$label" "$(get "$f.fit" nodes)" "$(get "$f.fit" edges)" "$k" \
+		"$(get "$f.fit" load_s)" "$(get "$f.fit" load_mbps)" "$(get "$f.fit" seed_s)" \
+		"$(get "$f.fit" sweep_s)" "$sweeps" "$(get "$f.fit" fit_s)" \
+		"$(get "$f.fit" peak_rss_mb)" "${onmi:--}" \
+		"$(get "$f.j1" ns_per_visit)" "$(get "$f.j1" yard_ns_per_visit)" \
+		"$(get "$f.j1" visit_ratio)" \
+		"$(div "$(get "$f.j1" sweep_s)" "$(get "$f.j2" sweep_s)")" \
+		"$(get "$f.leiden" leiden_s)" \
+		"$(div "$(get "$f.fit" fit_s)" "$(get "$f.leiden" leiden_s)" %.1f)" >>"$table"
+	printf -- '- %s: loglik %s, %s communities, state %s; fit CPU %s s; time split: sweeps %s s, likelihood %s s, snapshots %s s, final snapshot and the rest %s s; line-search trials per row %s, neighbour-row reads per visit %s\n' \
+		"$label" "$(get "$f.fit" loglik)" "$(get "$f.fit" communities)" \
+		"$(get "$f.fit" state)" "$(get "$f.fit" fit_cpu_s)" "$(get "$f.fit" sweeps_s_total)" \
+		"$(get "$f.fit" loglik_s_total)" "$(get "$f.fit" publish_s_total)" "$(get "$f.fit" other_s)" \
+		"$(get "$f.fit" trials_per_row)" "$(get "$f.fit" reads_per_visit)" >>"$notes"
 }
 
-# col LABEL N: field N of the row labelled LABEL.
-col() { awk -F '\t' -v l="$1" -v n="$2" '$1 == l { print $n }' "$rows"; }
-
-enron=$datasets/email-Enron/edges.tsv
-condmat=$datasets/cond-mat-2005/edges.tsv
-notes=""
-note() { notes="$notes
-  $*"; }
-
-echo "coterie benchmarks"
-echo "  binary   $BIN ($("$BIN" --version 2>/dev/null))"
-echo "  commit   $(git -C "$root" rev-parse --short HEAD 2>/dev/null || echo unknown)"
-echo "  machine  $(nproc) cores, $(sed -n 's/^model name[[:space:]]*: //p' /proc/cpuinfo | head -n 1)"
-echo "  load     $(cut -d' ' -f1-3 /proc/loadavg) (1, 5, 15 min; other work on the machine skews every figure)"
-echo "  date     $(date -u '+%Y-%m-%d %H:%M UTC')"
-echo "  timing   $([ "$have_time" = 1 ] && echo '/usr/bin/time -v' || echo 'run.json (no /usr/bin/time)')"
-echo
-
-for part in $parts; do
-	case $part in
-	a)
-		if [ -f "$enron" ]; then
-			measure "a email-Enron -j $J" enron "$enron" -k "$K" -j "$J"
-		else
-			note "a: skipped, $enron not found (set COTERIE_DATASETS)"
-		fi
-		;;
-	b)
-		if [ -f "$condmat" ]; then
-			measure "b cond-mat-2005 -j $J" condmat "$condmat" -k "$K" -j "$J"
-		else
-			note "b: skipped, $condmat not found (set COTERIE_DATASETS)"
-		fi
-		;;
-	c)
-		big=${TMPDIR:-/tmp}/coterie-bench-edges-$BIG_N-$BIG_M-$BIG_SEED.tsv
-		if [ ! -s "$big" ]; then
-			echo "bench: writing $big ($BIG_M edges, seed $BIG_SEED)" >&2
-			"$PY" "$here/gen_edges.py" "$BIG_N" "$BIG_M" "$BIG_SEED" >"$big.part" &&
-				mv "$big.part" "$big"
-		fi
-		if [ -s "$big" ]; then
-			measure "c load synthetic -j $J" big "$big" \
-				-k 1 --max-sweeps 0 -j "$J" && {
-				bytes=$(wc -c <"$big")
-				ck=$(wc -c <"$work/big/checkpoint.cot")
-				lbl="c load synthetic -j $J"
-				load=$(col "$lbl" 4)
-				wall=$(col "$lbl" 2)
-				note "$(awk -v l="$BIG_M" -v s="$load" -v w="$wall" -v b="$bytes" -v c="$ck" 'BEGIN {
-					printf "c: %.0f input lines/s loading (%.1f MB/s); %.0f lines/s end to end; checkpoint %.1f MB", l / s, b / s / 1e6, l / w, c / 1e6 }')"
-			}
-		else
-			note "c: skipped, could not write $big"
-		fi
-		;;
-	d)
-		if [ -f "$enron" ]; then
-			measure "d email-Enron 20 sweeps -j 1" scale1 "$enron" -k "$K" -j 1 \
-				--max-sweeps 20 --past-plateau $one_start
-			measure "d email-Enron 20 sweeps -j 2" scale2 "$enron" -k "$K" -j 2 \
-				--max-sweeps 20 --past-plateau $one_start
-			r1=$(col "d email-Enron 20 sweeps -j 1" 9)
-			r2=$(col "d email-Enron 20 sweeps -j 2" 9)
-			if [ -n "$r1" ] && [ -n "$r2" ]; then
-				note "$(awk -v a="$r1" -v b="$r2" 'BEGIN { printf "d: -j 2 runs %.2fx the sweeps/s of -j 1 (%.2f vs %.2f)", b / a, b, a }')"
-			fi
-		else
-			note "d: skipped, $enron not found (set COTERIE_DATASETS)"
-		fi
-		;;
-	*)
-		echo "bench: unknown part '$part' (a, b, c or d)" >&2
-		;;
-	esac
+largest=
+for n in $sizes; do
+	d=$cache/planted-$n
+	c=$((n * 12 / 1000))
+	if [ ! -s "$d/edges.tsv" ] || [ ! -s "$d/truth.tsv" ]; then
+		mkdir -p "$d" && "$gen" "$n" "$c" 20 1 "$d" || { echo "bench: cannot write $d" >&2; continue; }
+	fi
+	maxs=500 ss=10
+	[ "$n" -ge 100000 ] && ss=5
+	[ "$n" -ge 1000000 ] && maxs=$big_sweeps ss=2
+	[ "$mode" = quick ] && ss=3
+	bench "planted-$n" "$d/edges.tsv" "$c" "$d/truth.tsv" "$maxs" "$ss"
+	largest=$d
+done
+for s in $sets; do
+	if [ -f "$datasets/$s/edges.tsv" ]; then
+		bench "$s" "$datasets/$s/edges.tsv" 100 "" 500 10
+	else
+		echo "- $s: skipped, $datasets/$s/edges.tsv not found (set COTERIE_DATASETS)" >>"$notes"
+	fi
 done
 
-echo
-echo "a, b: coterie fit GRAPH -k $K -j $J (to a plateau or the default sweep limit)"
-echo "c:    coterie fit SYNTHETIC -k 1 --max-sweeps 0 -j $J ($BIG_M lines, $BIG_N node ids, seed $BIG_SEED)"
-echo "d:    coterie fit email-Enron -k $K --max-sweeps 20 --past-plateau $one_start -j 1 / -j 2"
-echo
-"$PY" "$here/figures.py" table "$rows"
-echo
-awk -F '\t' '{ printf "  %s: %s nodes, %s edges from %s input lines\n", $1, $13, $14, $15 }' "$rows"
-[ -n "$notes" ] && echo "$notes"
+# loading: the largest planted graph, plain and gzip-compressed
+if [ -n "$largest" ]; then
+	gz=$largest/edges.tsv.gz
+	[ -s "$gz" ] || gzip -c "$largest/edges.tsv" >"$gz"
+	"$tool" load "$largest/edges.tsv" >"$work/load" 2>/dev/null
+	"$tool" load "$gz" >"$work/loadgz" 2>/dev/null
+	"$tool" zlib "$gz" >"$work/zlib" 2>/dev/null
+	printf -- '- loading %s (%s MB): %s s, %s MB/s; gzip -6 (%s MB): %s s, %s MB/s of compressed input, where zlib alone inflates %s MB/s (%s MB/s out)\n' \
+		"$largest/edges.tsv" "$(get "$work/load" file_mb)" "$(get "$work/load" load_s)" \
+		"$(get "$work/load" load_mbps)" "$(get "$work/loadgz" file_mb)" \
+		"$(get "$work/loadgz" load_s)" "$(get "$work/loadgz" load_mbps)" \
+		"$(get "$work/zlib" zlib_mbps)" "$(get "$work/zlib" zlib_out_mbps)" >>"$notes"
+fi
+
+{
+	echo "# coterie benchmark ($mode)"
+	echo
+	echo "- commit $(git -C "$root" rev-parse --short HEAD 2>/dev/null || echo unknown), $(date -u '+%Y-%m-%d %H:%M UTC')"
+	echo "- machine: $(nproc) cores, $(sed -n 's/^model name[[:space:]]*: //p' /proc/cpuinfo | head -n 1), load average at the end $(cut -d' ' -f1-3 /proc/loadavg) (other work skews every figure)"
+	echo "- fit: benchtool fit GRAPH -k K -j 2 --no-refine (one start, to the plateau of the default rule); planted graphs from tests/bench/gen_planted (K = planted count, mean degree 20)"
+	echo
+	cat "$table"
+	echo
+	cat "$notes"
+} | tee "$results"
 exit 0
