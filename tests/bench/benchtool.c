@@ -3,7 +3,7 @@
  * It prints figures as `key<TAB>value` lines on stdout and asserts nothing
  * (STYLE.md 5: a benchmark measures).
  *
- *   benchtool fit GRAPH [-k K] [-j T] [--seed S] [--starts N] [--no-refine]
+ *   benchtool fit GRAPH [-k K] [-j T] [--seed S] [--starts N] [--no-reseed]
  *                       [--max-sweeps N] [--past-plateau] [--truth FILE]
  *                       [--renumber] [--yardstick]
  *       load GRAPH (timed), fit it with the engine of `coterie fit`, print
@@ -158,7 +158,7 @@ static int cmd_fit(int argc, char **argv)
 			p.max_sweeps = (unsigned)strtoul(v, NULL, 10), i++;
 		else if (!strcmp(a, "--truth"))
 			truth = v, i++;
-		else if (!strcmp(a, "--no-refine"))
+		else if (!strcmp(a, "--no-reseed"))
 			p.no_reseed = 1;
 		else if (!strcmp(a, "--past-plateau"))
 			p.past_plateau = 1;

@@ -82,12 +82,12 @@ bench()
 	tr=
 	[ -n "$truth" ] && tr="--truth $truth"
 	echo "bench: $label: fit -k $k -j 2 to a plateau (at most $maxs sweeps)" >&2
-	"$tool" fit "$graph" -k "$k" -j 2 --no-refine --max-sweeps "$maxs" $tr >"$f.fit" 2>"$f.err" ||
+	"$tool" fit "$graph" -k "$k" -j 2 --no-reseed --max-sweeps "$maxs" $tr >"$f.fit" 2>"$f.err" ||
 		{ echo "bench: $label: fit failed:" >&2; tail -n 3 "$f.err" >&2; }
 	echo "bench: $label: $ss sweeps with -j 1 and with -j 2" >&2
-	"$tool" fit "$graph" -k "$k" -j 1 --no-refine --max-sweeps "$ss" --past-plateau \
+	"$tool" fit "$graph" -k "$k" -j 1 --no-reseed --max-sweeps "$ss" --past-plateau \
 		--yardstick >"$f.j1" 2>/dev/null
-	"$tool" fit "$graph" -k "$k" -j 2 --no-refine --max-sweeps "$ss" --past-plateau \
+	"$tool" fit "$graph" -k "$k" -j 2 --no-reseed --max-sweeps "$ss" --past-plateau \
 		>"$f.j2" 2>/dev/null
 	echo "bench: $label: igraph Leiden" >&2
 	"$tool" leiden "$graph" >"$f.leiden" 2>/dev/null
@@ -152,7 +152,7 @@ fi
 	echo
 	echo "- commit $(git -C "$root" rev-parse --short HEAD 2>/dev/null || echo unknown), $(date -u '+%Y-%m-%d %H:%M UTC')"
 	echo "- machine: $(nproc) cores, $(sed -n 's/^model name[[:space:]]*: //p' /proc/cpuinfo | head -n 1), load average at the end $(cut -d' ' -f1-3 /proc/loadavg) (other work skews every figure)"
-	echo "- fit: benchtool fit GRAPH -k K -j 2 --no-refine (one start, to the plateau of the default rule); planted graphs from tests/bench/gen_planted (K = planted count, mean degree 20)"
+	echo "- fit: benchtool fit GRAPH -k K -j 2 --no-reseed (one start, to the plateau of the default rule); planted graphs from tests/bench/gen_planted (K = planted count, mean degree 20)"
 	echo
 	cat "$table"
 	echo
