@@ -23,7 +23,7 @@ static void usage(FILE *out)
 {
 	fprintf(out, "usage: coterie COMMAND [options]\n\ncommands:\n");
 	for (size_t i = 0; i < sizeof commands / sizeof commands[0]; i++)
-		fprintf(out, "  %-8s %s\n", commands[i].name, commands[i].what);
+		fprintf(out, "  %-9s %s\n", commands[i].name, commands[i].what);
 	fprintf(out, "\n'coterie COMMAND --help' describes a command; man coterie has it all.\n");
 }
 
