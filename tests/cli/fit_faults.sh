@@ -34,15 +34,13 @@ planted 20 40 0.3 0.005 4242 >"$g"
 check "the uninterrupted fit exits 0" [ $? -eq 0 ]
 
 # interrupt_at SIG PATTERN NAME: start the same fit, send SIG once stderr
-# matches PATTERN, and check the interrupted folder. The waits allow 600 s
-# because under valgrind (make memcheck) a start takes minutes; they end at
-# the match.
+# matches PATTERN, and check the interrupted folder.
 interrupt_at()
 {
 	"$BIN" fit "$g" -k 20 -j 2 --seed 3 -o "$tmp/$3" 2>"$tmp/$3.err" &
 	pid=$!
 	bg_pids="$bg_pids $pid"
-	if wait_for_grep "$2" "$tmp/$3.err" 600; then
+	if wait_for_grep "$2" "$tmp/$3.err" 60; then
 		kill -"$1" "$pid"
 	fi
 	wait "$pid"
@@ -74,7 +72,7 @@ interrupt_at INT 'start 1/3' twice
 "$BIN" fit --resume "$tmp/twice" -j 1 2>"$tmp/twice2.err" &
 pid=$!
 bg_pids="$bg_pids $pid"
-wait_for_grep 'start 2/3' "$tmp/twice2.err" 600 && kill -INT "$pid"
+wait_for_grep 'start 2/3' "$tmp/twice2.err" 60 && kill -INT "$pid"
 wait "$pid"
 check "twice: the resumed fit, interrupted again, exits 130" [ $? -eq 130 ]
 resume_same twice
@@ -84,7 +82,7 @@ resume_same twice
 	2>"$tmp/hard.err" &
 pid=$!
 bg_pids="$bg_pids $pid"
-wait_for_grep 'sweep 1 ' "$tmp/hard.err" 600
+wait_for_grep 'sweep 1 ' "$tmp/hard.err" 60
 kill -INT "$pid"
 kill -INT "$pid"
 wait "$pid"
