@@ -107,7 +107,8 @@ static void progress_show(struct progress *pr, const struct snapshot *s, int fin
 			pr->line_open = 0;
 		}
 	} else if (final || s->sweep != pr->last_sweep || s->start != pr->last_start) {
-		if (final || now - pr->last_print >= 1.0 || s->sweep <= 1) {
+		if (final || now - pr->last_print >= 1.0 || s->sweep <= 1 ||
+		    s->start != pr->last_start) { /* a line for every start */
 			fprintf(stderr, "coterie: %s\n", line);
 			pr->last_print = now;
 		}
