@@ -14,6 +14,7 @@
 
 #include "coterie/fit.h"
 #include "coterie/graph.h"
+#include "coterie/select.h"
 #include "coterie/util.h"
 
 #define EXIT_USAGE 2
@@ -61,7 +62,7 @@ const char *cli_command_line(void);
 /* 1 when the terminal's codeset is UTF-8 (after setlocale). */
 int cli_utf8(void);
 
-/* The options fit and explore share: -k N, -j N and these long ones.
+/* The options fit and explore share: -k N|auto, -j N and these long ones.
  * A command numbers its own long options from CLI_OPT_OWN. */
 enum {
 	CLI_OPT_SEED = 256,
@@ -72,6 +73,9 @@ enum {
 	CLI_OPT_FORMAT,
 	CLI_OPT_STARTS,
 	CLI_OPT_NO_RESEED,
+	CLI_OPT_K_GRID,
+	CLI_OPT_HOLDOUT,
+	CLI_OPT_CHECKPOINT_EVERY,
 	CLI_OPT_OWN,
 };
 
@@ -82,6 +86,10 @@ struct cli_fit_opts {
 	struct fit_params p;
 	enum graph_format fmt;
 	int have_k, have_tol, have_pat, have_max, have_eps, have_seed, have_starts;
+	int k_auto;                /* -k auto */
+	struct select_params sp;   /* --k-grid and --holdout for -k auto */
+	int have_grid;             /* --k-grid was given */
+	double checkpoint_every;   /* --checkpoint-every; 0: not given */
 };
 
 /* Defaults: fit_params_default() with one thread per core. */
@@ -89,6 +97,9 @@ void cli_fit_opts_init(struct cli_fit_opts *o);
 /* Take option c with its argument if it is a shared one: returns 1, or 0
  * for an option the command handles itself. A bad value exits 2. */
 int cli_fit_opts_take(struct cli_fit_opts *o, int c, const char *arg);
+/* -k auto's grid: the --k-grid given, else select_params_default() for g
+ * (minima may be NULL). Returns 0 or -1 (reported). */
+int cli_fit_opts_grid(struct cli_fit_opts *o, const struct graph *g, uint32_t *minima);
 /* The starts default for a graph of m edges, unless --starts was given. */
 void cli_fit_opts_starts(struct cli_fit_opts *o, uint64_t m);
 /* The parameters for continuing a saved fit: the saved ones, with this

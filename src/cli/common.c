@@ -206,13 +206,30 @@ void cli_fit_opts_init(struct cli_fit_opts *o)
 	long cores = sysconf(_SC_NPROCESSORS_ONLN);
 	o->p.threads = cores > 0 ? (unsigned)(cores > 256 ? 256 : cores) : 1;
 	o->fmt = GRAPH_FORMAT_AUTO;
+	o->sp.share = 0.1;
+	o->sp.step = 1.25;
 }
 
 int cli_fit_opts_take(struct cli_fit_opts *o, int c, const char *arg)
 {
 	struct fit_params *p = &o->p;
 	switch (c) {
-	case 'k': p->k = cli_u32("-k", arg, 1, MODEL_MAX_K); o->have_k = 1; return 1;
+	case 'k':
+		if (!strcmp(arg, "auto"))
+			o->k_auto = 1;
+		else
+			p->k = cli_u32("-k", arg, 1, MODEL_MAX_K);
+		o->have_k = 1;
+		return 1;
+	case CLI_OPT_K_GRID:
+		if (select_grid_parse(arg, &o->sp))
+			exit(EXIT_USAGE); /* select_grid_parse() said why */
+		o->have_grid = 1;
+		return 1;
+	case CLI_OPT_HOLDOUT: o->sp.share = cli_double("--holdout", arg, 0.01, 0.5); return 1;
+	case CLI_OPT_CHECKPOINT_EVERY:
+		o->checkpoint_every = cli_double("--checkpoint-every", arg, 0.1, 1e9);
+		return 1;
 	case 'j': p->threads = cli_u32("-j", arg, 1, 256); return 1;
 	case CLI_OPT_SEED: p->seed = cli_u64("--seed", arg); o->have_seed = 1; return 1;
 	case CLI_OPT_TOL: p->tol = cli_double("--tol", arg, 0.0, 1.0); o->have_tol = 1; return 1;
@@ -239,6 +256,20 @@ int cli_fit_opts_take(struct cli_fit_opts *o, int c, const char *arg)
 	case CLI_OPT_NO_RESEED: p->no_reseed = 1; return 1;
 	default: return 0;
 	}
+}
+
+int cli_fit_opts_grid(struct cli_fit_opts *o, const struct graph *g, uint32_t *minima)
+{
+	struct select_params dflt;
+	if (select_params_default(&dflt, g, minima))
+		return -1;
+	if (!o->have_grid) {
+		o->sp.kmin = dflt.kmin;
+		o->sp.kmax = dflt.kmax;
+		o->sp.step = dflt.step;
+		o->sp.nlist = 0;
+	}
+	return 0;
 }
 
 void cli_fit_opts_starts(struct cli_fit_opts *o, uint64_t m)

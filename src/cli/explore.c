@@ -140,18 +140,11 @@ static void default_outdir(const char *path, char *out, size_t cap)
 /* -k auto: the search on its thread, shown by tui_choose_k(); sets p->k.
  * Returns -1 to go on to the fit, else the exit status. */
 static int choose_k(const struct graph *g, const char *label, struct fit_params *p,
-		    struct select_params *sp, int have_grid, struct select_result *sel)
+		    struct cli_fit_opts *o, struct select_result *sel)
 {
-	struct select_params dflt;
-	if (select_params_default(&dflt, g, NULL))
+	if (cli_fit_opts_grid(o, g, NULL))
 		return 1;
-	if (!have_grid) {
-		sp->kmin = dflt.kmin;
-		sp->kmax = dflt.kmax;
-		sp->step = dflt.step;
-		sp->nlist = 0;
-	}
-	struct select_run *run = select_run_start(g, p, sp);
+	struct select_run *run = select_run_start(g, p, &o->sp);
 	if (!run)
 		return 1;
 	struct tui_kconfig kc = { g, label, run };
@@ -164,9 +157,6 @@ static int choose_k(const struct graph *g, const char *label, struct fit_params 
 enum {
 	OPT_RESUME = CLI_OPT_OWN,
 	OPT_LIST_KEYS,
-	OPT_K_GRID,
-	OPT_HOLDOUT,
-	OPT_CHECKPOINT_EVERY,
 };
 
 int cmd_explore(int argc, char **argv)
@@ -185,44 +175,25 @@ int cmd_explore(int argc, char **argv)
 		{ "starts", required_argument, NULL, CLI_OPT_STARTS },
 		{ "no-reseed", no_argument, NULL, CLI_OPT_NO_RESEED },
 		{ "list-keys", no_argument, NULL, OPT_LIST_KEYS }, /* for the tests */
-		{ "k-grid", required_argument, NULL, OPT_K_GRID },
-		{ "holdout", required_argument, NULL, OPT_HOLDOUT },
-		{ "checkpoint-every", required_argument, NULL, OPT_CHECKPOINT_EVERY },
+		{ "k-grid", required_argument, NULL, CLI_OPT_K_GRID },
+		{ "holdout", required_argument, NULL, CLI_OPT_HOLDOUT },
+		{ "checkpoint-every", required_argument, NULL, CLI_OPT_CHECKPOINT_EVERY },
 		{ "help", no_argument, NULL, 'h' },
 		{ NULL, 0, NULL, 0 },
 	};
 	struct cli_fit_opts o;
 	cli_fit_opts_init(&o);
-	int resume = 0, k_auto = 0, have_grid = 0;
-	struct select_params sp;
-	memset(&sp, 0, sizeof sp);
-	sp.share = 0.1;
-	sp.step = 1.25;
-	double every = 0;
+	int resume = 0;
 	const char *out = NULL;
 	int c;
 	optind = 1;
 	opterr = 0;
 	while ((c = getopt_long(argc, argv, ":k:o:j:h", opts, NULL)) != -1) {
-		if (c == 'k' && !strcmp(optarg, "auto")) {
-			k_auto = 1;
-			o.have_k = 1;
-			continue;
-		}
 		if (cli_fit_opts_take(&o, c, optarg))
 			continue;
 		switch (c) {
-		case OPT_K_GRID:
-			if (select_grid_parse(optarg, &sp))
-				exit(EXIT_USAGE); /* select_grid_parse() said why */
-			have_grid = 1;
-			break;
-		case OPT_HOLDOUT: sp.share = cli_double("--holdout", optarg, 0.01, 0.5); break;
 		case 'o': out = optarg; break;
 		case OPT_RESUME: resume = 1; break;
-		case OPT_CHECKPOINT_EVERY:
-			every = cli_double("--checkpoint-every", optarg, 0.1, 1e9);
-			break;
 		case OPT_LIST_KEYS: keys_list(stdout); return 0;
 		case 'h': explore_usage(stdout); return 0;
 		default:
@@ -246,9 +217,9 @@ int cmd_explore(int argc, char **argv)
 		die(EXIT_USAGE, "--resume continues a result folder; '%s' is not one", arg);
 	if (!is_dir && !o.have_k)
 		die(EXIT_USAGE, "explore needs the number of communities: -k N or -k auto");
-	if (is_dir && k_auto)
+	if (is_dir && o.k_auto)
 		die(EXIT_USAGE, "-k auto is for a graph; a result folder already has its k");
-	if (have_grid && !k_auto)
+	if (o.have_grid && !o.k_auto)
 		die(EXIT_USAGE, "--k-grid is for -k auto");
 	if (cli_signals_install())
 		return 1;
@@ -319,8 +290,8 @@ int cmd_explore(int argc, char **argv)
 		cli_k_fits(p.k, g);
 		cli_fit_opts_starts(&o, g->m);
 		p.starts = o.p.starts;
-		if (k_auto) {
-			int ks = choose_k(g, arg, &p, &sp, have_grid, &sel);
+		if (o.k_auto) {
+			int ks = choose_k(g, arg, &p, &o, &sel);
 			if (ks >= 0) {
 				graph_free(g);
 				return ks;
@@ -351,7 +322,7 @@ int cmd_explore(int argc, char **argv)
 	}
 	cfg.fit = f;
 	cfg.params = p;
-	cfg.checkpoint_every = every;
+	cfg.checkpoint_every = o.checkpoint_every;
 	int rc = tui_run(&cfg); /* frees the fit */
 	select_result_release(&sel);
 	graph_free(g);

@@ -144,20 +144,15 @@ static int stop_asked(void *arg)
 
 /* -k auto: score a grid of k by held-out likelihood, write
  * k-selection.tsv, and set p->k to the winner; sp holds --k-grid and
- * --holdout (have_grid: the grid was given). Returns 0 or -1 (reported). */
+ * --holdout (in o). Returns 0 or -1 (reported). */
 static int choose_k(const struct graph *g, struct fit_params *p, const char *out,
-		    struct select_params *sp, int have_grid, int quiet, struct select_result *res)
+		    struct cli_fit_opts *o, int quiet, struct select_result *res)
 {
-	struct select_params dflt;
 	uint32_t minima = 0;
-	if (select_params_default(&dflt, g, &minima))
+	int have_grid = o->have_grid;
+	if (cli_fit_opts_grid(o, g, &minima))
 		return -1;
-	if (!have_grid) {
-		sp->kmin = dflt.kmin;
-		sp->kmax = dflt.kmax;
-		sp->step = dflt.step;
-		sp->nlist = 0;
-	}
+	struct select_params *sp = &o->sp;
 	uint32_t grid[SELECT_MAX_GRID];
 	uint32_t ng = select_grid(sp, grid);
 	if (!quiet) {
@@ -199,9 +194,6 @@ static int choose_k(const struct graph *g, struct fit_params *p, const char *out
 enum {
 	OPT_PAST_PLATEAU = CLI_OPT_OWN,
 	OPT_RESUME,
-	OPT_CHECKPOINT_EVERY,
-	OPT_K_GRID,
-	OPT_HOLDOUT,
 	OPT_REFINE,
 	OPT_REFINE_ROUNDS,
 	OPT_CHECK_LINKS,
@@ -244,13 +236,13 @@ int cmd_fit(int argc, char **argv)
 		{ "epsilon", required_argument, NULL, CLI_OPT_EPSILON },
 		{ "format", required_argument, NULL, CLI_OPT_FORMAT },
 		{ "resume", required_argument, NULL, OPT_RESUME },
-		{ "checkpoint-every", required_argument, NULL, OPT_CHECKPOINT_EVERY },
+		{ "checkpoint-every", required_argument, NULL, CLI_OPT_CHECKPOINT_EVERY },
 		{ "starts", required_argument, NULL, CLI_OPT_STARTS },
 		{ "no-reseed", no_argument, NULL, CLI_OPT_NO_RESEED },
 		{ "refine", no_argument, NULL, OPT_REFINE },
 		{ "refine-rounds", required_argument, NULL, OPT_REFINE_ROUNDS },
-		{ "k-grid", required_argument, NULL, OPT_K_GRID },
-		{ "holdout", required_argument, NULL, OPT_HOLDOUT },
+		{ "k-grid", required_argument, NULL, CLI_OPT_K_GRID },
+		{ "holdout", required_argument, NULL, CLI_OPT_HOLDOUT },
 		{ "check-links", required_argument, NULL, OPT_CHECK_LINKS },
 		{ "quiet", no_argument, NULL, 'q' },
 		{ "help", no_argument, NULL, 'h' },
@@ -258,43 +250,23 @@ int cmd_fit(int argc, char **argv)
 	};
 	struct cli_fit_opts o;
 	cli_fit_opts_init(&o);
-	int quiet = 0, k_auto = 0, refine = 0;
+	int quiet = 0, refine = 0;
 	unsigned refine_rounds = 50;
-	struct select_params sp;
-	memset(&sp, 0, sizeof sp);
-	sp.share = 0.1;
-	sp.step = 1.25;
-	int have_grid = 0;
 	double check_links = 0.0;
 	const char *out = NULL, *resume = NULL;
-	double save_every = 120.0;
 	int c;
 	optind = 1;
 	opterr = 0;
 	while ((c = getopt_long(argc, argv, ":k:o:j:qh", opts, NULL)) != -1) {
-		if (c == 'k' && !strcmp(optarg, "auto")) {
-			k_auto = 1;
-			o.have_k = 1;
-			continue;
-		}
 		if (cli_fit_opts_take(&o, c, optarg))
 			continue;
 		switch (c) {
-		case OPT_K_GRID:
-			if (select_grid_parse(optarg, &sp))
-				exit(EXIT_USAGE); /* select_grid_parse() said why */
-			have_grid = 1;
-			break;
 		case OPT_CHECK_LINKS:
 			check_links = cli_double("--check-links", optarg, 0.001, 0.5);
 			break;
-		case OPT_HOLDOUT: sp.share = cli_double("--holdout", optarg, 0.01, 0.5); break;
 		case 'o': out = optarg; break;
 		case OPT_PAST_PLATEAU: o.p.past_plateau = 1; break;
 		case OPT_RESUME: resume = optarg; break;
-		case OPT_CHECKPOINT_EVERY:
-			save_every = cli_double("--checkpoint-every", optarg, 0.1, 1e9);
-			break;
 		case OPT_REFINE: refine = 1; break;
 		case OPT_REFINE_ROUNDS:
 			refine_rounds = cli_u32("--refine-rounds", optarg, 1, 1000000);
@@ -318,8 +290,9 @@ int cmd_fit(int argc, char **argv)
 	struct fit_params p = o.p;
 	if (!resume && !o.have_k)
 		die(EXIT_USAGE, "fit needs the number of communities: -k N");
-	if (have_grid && !k_auto)
+	if (o.have_grid && !o.k_auto)
 		die(EXIT_USAGE, "--k-grid is for -k auto");
+	double save_every = o.checkpoint_every > 0 ? o.checkpoint_every : 120.0;
 	if (!out)
 		out = resume;
 	if (!out)
@@ -360,7 +333,7 @@ int cmd_fit(int argc, char **argv)
 				return 1;
 			}
 		}
-		if (k_auto)
+		if (o.k_auto)
 			die(EXIT_USAGE, "-k auto cannot be used when resuming");
 		if (check_links > 0)
 			die(EXIT_USAGE, "--check-links cannot be used when resuming");
@@ -386,11 +359,11 @@ int cmd_fit(int argc, char **argv)
 			graph_free(g);
 			return 1;
 		}
-		if (!k_auto)
+		if (!o.k_auto)
 			cli_k_fits(p.k, g);
 		cli_fit_opts_starts(&o, g->m);
 		p.starts = o.p.starts;
-		if (k_auto && choose_k(g, &p, out, &sp, have_grid, quiet, &sel)) {
+		if (o.k_auto && choose_k(g, &p, out, &o, quiet, &sel)) {
 			graph_free(g);
 			return cli_signal_caught() ? EXIT_INTERRUPTED : 1;
 		}
@@ -539,7 +512,7 @@ int cmd_fit(int argc, char **argv)
 
 	const char *status = interrupted ? "interrupted" : fit_state_name(st);
 	struct result_meta meta = {
-		.k_auto = k_auto,
+		.k_auto = o.k_auto,
 		.command_line = cli_command_line(),
 		.graph_path = gpath ? gpath : (ck.graph ? ck.graph->source : ""),
 		.wall_seconds = util_now() - t_begin,
@@ -547,7 +520,7 @@ int cmd_fit(int argc, char **argv)
 		.status = status,
 		.refine = have_refined ? &rrep : NULL,
 		.refine_rounds = refine ? refine_rounds : 0,
-		.selection = k_auto ? &sel : NULL,
+		.selection = o.k_auto ? &sel : NULL,
 		.links = have_whole ? &links : NULL,
 	};
 	int rc = 0;
