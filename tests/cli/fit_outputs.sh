@@ -46,4 +46,11 @@ check "--max-sweeps 0 exits 0" [ $? -eq 0 ]
 check "--max-sweeps 0 writes memberships.tsv" [ -s "$out/memberships.tsv" ]
 check "--max-sweeps 0 records 0 sweeps" [ "$(json_get "$out/run.json" fit.sweeps)" = 0 ]
 
+# Not on a terminal, the progress prints a line for every start, however
+# fast the start goes (the karate fit above made 3 starts: fewer than
+# 100000 edges).
+for i in 1 2 3; do
+	check "the plain progress shows start $i/3" grep -q "start $i/3" "$tmp/karate.err"
+done
+
 finish
