@@ -517,8 +517,15 @@ static int agm_begin(struct agm *out, const struct graph *g, double epsilon)
 	return 0;
 }
 
+int agm_member_at(const struct graph *g, const struct fcsr *F, uint32_t u, uint64_t j,
+		  double delta, double min_links)
+{
+	return agm_is_member(F->e[j].v, F->colsum[F->e[j].c], delta, min_links,
+			     graph_degree(g, u));
+}
+
 int agm_from_strengths(struct agm *out, const struct graph *g, const struct fcsr *F,
-		       double epsilon, double delta)
+		       double epsilon, double delta, double min_links)
 {
 	struct order *ord = NULL;
 	uint32_t *slot = NULL, *ids = NULL;
@@ -541,9 +548,15 @@ int agm_from_strengths(struct agm *out, const struct graph *g, const struct fcsr
 			      F->e[j].c);
 			goto fail;
 		}
-		if (F->e[j].v >= delta)
-			ord[F->e[j].c].size++;
 	}
+	if (!F->colsum && F->k > 0) {
+		error("strengths without column sums");
+		goto fail;
+	}
+	for (uint32_t u = 0; u < F->n; u++)
+		for (uint64_t j = F->off[u]; j < F->off[u + 1]; j++)
+			if (agm_member_at(g, F, u, j, delta, min_links))
+				ord[F->e[j].c].size++;
 	qsort(ord, F->k, sizeof *ord, order_cmp);
 	uint32_t k = 0;
 	while (k < F->k && ord[k].size > 0)
@@ -574,7 +587,7 @@ int agm_from_strengths(struct agm *out, const struct graph *g, const struct fcsr
 	memcpy(at, cv->off, ((size_t)k + 1) * sizeof *at);
 	for (uint32_t u = 0; u < F->n; u++) /* increasing u: members come out sorted */
 		for (uint64_t j = F->off[u]; j < F->off[u + 1]; j++) {
-			if (!(F->e[j].v >= delta))
+			if (!agm_member_at(g, F, u, j, delta, min_links))
 				continue;
 			uint64_t pos = at[slot[F->e[j].c]]++;
 			cv->mem[pos] = u;

@@ -325,7 +325,8 @@ static int publish(struct fit *f, enum fit_state state)
 	uint64_t nnz = s->F.off[s->F.n];
 	double predicted = f->agm_cost * ((double)nnz + 1.0) / ((double)f->agm_nnz + 1.0);
 	if (state != FIT_FITTING || !f->have_agm || now - f->agm_time >= AGM_SHARE * predicted) {
-		if (agm_from_strengths(&s->agm, f->g, &s->F, f->m.epsilon, f->m.delta))
+		if (agm_from_strengths(&s->agm, f->g, &s->F, f->m.epsilon, f->m.delta,
+				       AGM_MIN_LINKS))
 			goto fail;
 		f->agm_time = util_now();
 		f->agm_cost = f->agm_time - now;

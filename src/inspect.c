@@ -137,7 +137,8 @@ static int share_cmp(const void *pa, const void *pb)
 }
 
 int inspect_edge(struct inspect_edge *out, const struct graph *g, const struct fcsr *F,
-		 const struct agm *a, double epsilon, double delta, uint32_t u, uint32_t v)
+		 const struct agm *a, double epsilon, double delta, double min_links, uint32_t u,
+		 uint32_t v)
 {
 	memset(out, 0, sizeof *out);
 	if (F->n != g->n || u >= g->n || v >= g->n || u == v)
@@ -161,7 +162,8 @@ int inspect_edge(struct inspect_edge *out, const struct graph *g, const struct f
 			sh->comm = ru[i].c;
 			sh->product = ru[i].v * rv[j].v;
 			sh->alone = -expm1(-sh->product);
-			sh->both_members = ru[i].v >= delta && rv[j].v >= delta;
+			sh->both_members = agm_member_at(g, F, u, F->off[u] + i, delta, min_links) &&
+					   agm_member_at(g, F, v, F->off[v] + j, delta, min_links);
 			int64_t ix = inspect_find_community(a, ru[i].c);
 			sh->p = ix < 0 ? NAN : a->comms[ix].p;
 			if (sh->both_members && ix >= 0)
@@ -199,7 +201,7 @@ static int affil_cmp(const void *pa, const void *pb)
 }
 
 int inspect_node(struct inspect_node *out, const struct graph *g, const struct fcsr *F,
-		 double delta, uint32_t u)
+		 double delta, double min_links, uint32_t u)
 {
 	memset(out, 0, sizeof *out);
 	if (F->n != g->n)
@@ -220,7 +222,7 @@ int inspect_node(struct inspect_node *out, const struct graph *g, const struct f
 	for (uint32_t i = 0; i < nu; i++) {
 		out->affil[i].comm = ru[i].c;
 		out->affil[i].strength = ru[i].v;
-		out->affil[i].member = ru[i].v >= delta;
+		out->affil[i].member = agm_member_at(g, F, u, F->off[u] + i, delta, min_links);
 		out->nmember += (uint32_t)out->affil[i].member;
 	}
 	/* affil[i] still matches row entry i here */

@@ -26,9 +26,10 @@
  * UTF-8 when the input was), apart from the escapes below.
  *
  * memberships.tsv   header: node community strength
- *   One row per membership (strength >= delta; after fit --refine, the
- *   refined cover instead, see run.json fit.memberships_from, and then a
- *   strength can be below delta or 0). Rows are grouped by
+ *   One row per membership (agm_is_member(): strength >= delta and about
+ *   min_links links into the community; after fit --refine, the refined
+ *   cover instead, see run.json fit.memberships_from, and then a strength
+ *   can be below delta or 0). Rows are grouped by
  *   community in the order of communities.tsv (largest first, ties by id);
  *   within a community, members by decreasing strength (ties by node order
  *   in the graph).
@@ -83,8 +84,8 @@
  *                     extra_columns, isolated, directed_input (boolean)
  *   parameters        k, threads, seed (an integer; a decimal string when
  *                     above 2^63 - 1), tol, patience, max_sweeps, epsilon
- *                     (the background actually used), delta (the
- *                     membership threshold), past_plateau (boolean),
+ *                     (the background actually used), delta and
+ *                     min_links (the membership rule), past_plateau (boolean),
  *                     starts, reseed (boolean), k_chosen_by ("given",
  *                     or "held-out likelihood" for -k auto)
  *   fit               status, state, sweeps, plateau_sweep (null before
@@ -1782,6 +1783,7 @@ static char *run_json(const struct graph *g, const struct fit_params *p,
 	j_set(jp, "max_sweeps", j_uint(p->max_sweeps), &bad);
 	j_set(jp, "epsilon", j_real(s->epsilon), &bad);
 	j_set(jp, "delta", j_real(s->delta), &bad);
+	j_set(jp, "min_links", j_real(AGM_MIN_LINKS), &bad);
 	j_set(jp, "past_plateau", json_boolean(p->past_plateau), &bad);
 	j_set(jp, "starts", j_uint(p->starts), &bad);
 	j_set(jp, "reseed", json_boolean(!p->no_reseed), &bad);

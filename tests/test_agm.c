@@ -279,11 +279,17 @@ static void test_communities_listed_largest_first_ties_by_id(void **state)
  * Strengths by hand, n = 4, k = 4, delta = 0.5:
  *   u0: c0 0.5 (exactly delta: member), c2 0.3
  *   u1: c0 0.8, c3 0.49999 (below)
- *   u2: c2 1.2, c3 0.7
+ *   u2: c2 1.2, c3 0.8
  *   u3: c0 0.1, c2 0.6
- * Column 1 is empty. Members: c0 {0,1}, c2 {2,3}, c3 {2}; sizes 2 2 1, so
- * the order is c0, c2 (tie by id), c3. Edges 0-1 1-2 2-3: c0 and c2 hold
- * one pair each, both linked (cliques), c3 has no pair.
+ * Column 1 is empty. Edges 0-1 1-2 2-3, so degrees 1 2 2 1 and the links
+ * needed (agm_is_member(): min(2, degree / 2)) are 0.5 1 1 0.5; column
+ * sums 1.4, 0, 2.1, 1.29999. Every strength >= delta also passes that:
+ *   u0 c0 0.5 x 1.4 = 0.70 >= 0.5;  u1 c0 0.8 x 1.4 = 1.12 >= 1;
+ *   u2 c2 1.2 x 2.1 = 2.52 >= 1;    u2 c3 0.8 x 1.29999 = 1.04 >= 1;
+ *   u3 c2 0.6 x 2.1 = 1.26 >= 0.5.
+ * Members: c0 {0,1}, c2 {2,3}, c3 {2}; sizes 2 2 1, so the order is c0,
+ * c2 (tie by id), c3. c0 and c2 hold one pair each, both linked
+ * (cliques), c3 has no pair.
  */
 static void test_from_strengths_thresholds_at_delta_inclusive(void **state)
 {
@@ -292,14 +298,14 @@ static void test_from_strengths_thresholds_at_delta_inclusive(void **state)
 	struct graph *g = make_graph(4, e, 3);
 	struct fentry ent[] = {
 		{ 0, 0.5 }, { 2, 0.3 }, { 0, 0.8 }, { 3, 0.49999 },
-		{ 2, 1.2 }, { 3, 0.7 }, { 0, 0.1 }, { 2, 0.6 },
+		{ 2, 1.2 }, { 3, 0.8 }, { 0, 0.1 }, { 2, 0.6 },
 	};
 	uint64_t off[] = { 0, 2, 4, 6, 8 };
-	double colsum[] = { 1.4, 0.0, 2.1, 1.19999 };
+	double colsum[] = { 1.4, 0.0, 2.1, 1.29999 };
 	struct fcsr F = { 4, 4, off, ent, colsum };
 	assert_fcsr_sane(&F);
 	struct agm a;
-	assert_int_equal(agm_from_strengths(&a, g, &F, 0.01, 0.5), 0);
+	assert_int_equal(agm_from_strengths(&a, g, &F, 0.01, 0.5, 0.0), 0);
 	assert_cover_sane(&a.cover);
 	assert_int_equal(a.cover.k, 3);
 	assert_int_equal(a.comms[0].id, 0);
@@ -309,7 +315,7 @@ static void test_from_strengths_thresholds_at_delta_inclusive(void **state)
 	assert_string_equal(a.cover.label[1], "2");
 	assert_string_equal(a.cover.label[2], "3");
 	const uint32_t want_mem[] = { 0, 1, 2, 3, 2 };
-	const double want_str[] = { 0.5, 0.8, 1.2, 0.6, 0.7 };
+	const double want_str[] = { 0.5, 0.8, 1.2, 0.6, 0.8 };
 	assert_int_equal(a.cover.off[3], 5);
 	for (int j = 0; j < 5; j++) {
 		assert_int_equal(a.cover.mem[j], want_mem[j]);
@@ -324,8 +330,73 @@ static void test_from_strengths_thresholds_at_delta_inclusive(void **state)
 	agm_release(&a);
 
 	struct fcsr bad = { 3, 4, off, ent, colsum }; /* 3 rows, 4 nodes */
-	assert_int_equal(agm_from_strengths(&a, g, &bad, 0.01, 0.5), -1);
+	assert_int_equal(agm_from_strengths(&a, g, &bad, 0.01, 0.5, 0.0), -1);
 	graph_free(g);
+}
+
+/*
+ * The links test of the membership rule, by hand. delta = 0.1; edges 0-1
+ * 0-2 0-3 0-4 1-2, so degrees 4 2 2 1 1 0 and the links needed
+ * (min(2, degree / 2)) are 2 1 1 0.5 0.5 0. Strengths:
+ *   u0: c0 0.6, c1 0.3;  u1: c0 0.9;  u2: c0 0.9;  u3: c1 1.0;
+ *   u4: c1 1.0;  u5: c1 0.2
+ * Column sums 2.4 and 2.5. All strengths are >= delta, but
+ *   u0 c0 0.6 x 2.4 = 1.44 < 2 and u0 c1 0.3 x 2.5 = 0.75 < 2: out;
+ *   u1 c0, u2 c0 0.9 x 2.4 = 2.16 >= 1: in;
+ *   u3 c1, u4 c1 1.0 x 2.5 = 2.5 >= 0.5: in;
+ *   u5 c1 0.2 x 2.5 = 0.5 >= 0 (no links to give): in.
+ * So c0 {1,2}, c1 {3,4,5}: c1 first (larger), node 0 in none.
+ */
+static void test_from_strengths_needs_links_into_the_community(void **state)
+{
+	(void)state;
+	const uint32_t e[] = { 0, 1, 0, 2, 0, 3, 0, 4, 1, 2 };
+	struct graph *g = make_graph(6, e, 5);
+	struct fentry ent[] = {
+		{ 0, 0.6 }, { 1, 0.3 }, { 0, 0.9 }, { 0, 0.9 }, { 1, 1.0 }, { 1, 1.0 }, { 1, 0.2 },
+	};
+	uint64_t off[] = { 0, 2, 3, 4, 5, 6, 7 };
+	double colsum[] = { 2.4, 2.5 };
+	struct fcsr F = { 6, 2, off, ent, colsum };
+	assert_fcsr_sane(&F);
+	struct agm a;
+	assert_int_equal(agm_from_strengths(&a, g, &F, 0.01, 0.1, AGM_MIN_LINKS), 0);
+	assert_cover_sane(&a.cover);
+	assert_int_equal(a.cover.k, 2);
+	assert_int_equal(a.comms[0].id, 1);
+	assert_int_equal(a.comms[1].id, 0);
+	const uint32_t want_mem[] = { 3, 4, 5, 1, 2 };
+	assert_int_equal(a.cover.off[2], 5);
+	for (int j = 0; j < 5; j++)
+		assert_int_equal(a.cover.mem[j], want_mem[j]);
+	assert_int_equal(a.covered, 5);
+	assert_int_equal(a.overlapping, 0);
+	for (uint64_t j = 0; j < 7; j++) /* the per-entry test agrees */
+		assert_int_equal(agm_member_at(g, &F, j < 2 ? 0 : (uint32_t)j - 1, j, 0.1, AGM_MIN_LINKS),
+				 j >= 2);
+	agm_release(&a);
+
+	/* u0 c0 at 0.9: 0.9 x 2.7 = 2.43 >= 2, so node 0 joins c0 */
+	ent[0].v = 0.9;
+	colsum[0] = 2.7;
+	assert_int_equal(agm_from_strengths(&a, g, &F, 0.01, 0.1, AGM_MIN_LINKS), 0);
+	assert_int_equal(a.comms[0].size, 3);
+	assert_int_equal(a.comms[1].size, 3);
+	assert_int_equal(a.covered, 6);
+	agm_release(&a);
+	graph_free(g);
+}
+
+/* The rule's edges, by hand: both tests are inclusive. */
+static void test_member_rule_boundaries(void **state)
+{
+	(void)state;
+	assert_true(agm_is_member(1.0, 2.0, 0.5, AGM_MIN_LINKS, 10));    /* 1.0 x 2.0 = 2 >= min(2, 5) */
+	assert_false(agm_is_member(0.999, 2.0, 0.5, AGM_MIN_LINKS, 10)); /* 1.998 < 2 */
+	assert_true(agm_is_member(1.0, 1.0, 0.5, AGM_MIN_LINKS, 2));     /* 1 >= min(2, 1) */
+	assert_false(agm_is_member(0.9, 1.0, 0.5, AGM_MIN_LINKS, 2));    /* 0.9 < 1 */
+	assert_false(agm_is_member(0.4, 100.0, 0.5, AGM_MIN_LINKS, 10)); /* below delta, 40 links or not */
+	assert_true(agm_is_member(0.5, 0.0, 0.5, AGM_MIN_LINKS, 0));     /* degree 0: delta alone */
 }
 
 /* ---- brute force, O(n^2), written independently of src/agm.c ---- */
@@ -600,6 +671,8 @@ int main(void)
 		cmocka_unit_test(test_figures_match_hand_drawn_graph),
 		cmocka_unit_test(test_communities_listed_largest_first_ties_by_id),
 		cmocka_unit_test(test_from_strengths_thresholds_at_delta_inclusive),
+		cmocka_unit_test(test_from_strengths_needs_links_into_the_community),
+		cmocka_unit_test(test_member_rule_boundaries),
 		cmocka_unit_test(test_random_graph_matches_brute_force),
 		cmocka_unit_test(test_improve_p_reaches_the_maximum_from_any_start),
 		cmocka_unit_test(test_rejects_bad_input),

@@ -249,7 +249,7 @@ static void test_edge_view_splits_the_probability_by_community(void **state)
 	for (uint32_t i = 0; i < h->a.cover.k; i++)
 		h->a.comms[i].p = h->a.comms[i].id == 0 ? 0.5 : h->a.comms[i].id == 2 ? 0.3 : 0.9;
 	struct inspect_edge e;
-	assert_int_equal(inspect_edge(&e, h->g, &h->F, &h->a, 0.1, HDELTA, 1, 2), 0);
+	assert_int_equal(inspect_edge(&e, h->g, &h->F, &h->a, 0.1, HDELTA, 0.0, 1, 2), 0);
 	assert_true(e.linked);
 	assert_float_equal(e.x, 0.495, 1e-12);
 	assert_float_equal(e.prob, 0.451386, TOL);
@@ -266,20 +266,20 @@ static void test_edge_view_splits_the_probability_by_community(void **state)
 	assert_false(e.share[1].both_members);
 	inspect_edge_release(&e);
 	/* 0-4 share nothing and are linked: only the background, 0.1 */
-	assert_int_equal(inspect_edge(&e, h->g, &h->F, &h->a, 0.1, HDELTA, 0, 4), 0);
+	assert_int_equal(inspect_edge(&e, h->g, &h->F, &h->a, 0.1, HDELTA, 0.0, 0, 4), 0);
 	assert_true(e.linked);
 	assert_int_equal(e.nshare, 0);
 	assert_float_equal(e.prob, 0.1, 1e-12);
 	assert_float_equal(e.agm_prob, 0.1, 1e-12);
 	inspect_edge_release(&e);
 	/* 0-8 are not linked: A .7 */
-	assert_int_equal(inspect_edge(&e, h->g, &h->F, &h->a, 0.1, HDELTA, 0, 8), 0);
+	assert_int_equal(inspect_edge(&e, h->g, &h->F, &h->a, 0.1, HDELTA, 0.0, 0, 8), 0);
 	assert_false(e.linked);
 	assert_int_equal(e.nshare, 1);
 	inspect_edge_release(&e);
 	/* bad pairs */
-	assert_int_equal(inspect_edge(&e, h->g, &h->F, &h->a, 0.1, HDELTA, 3, 3), -1);
-	assert_int_equal(inspect_edge(&e, h->g, &h->F, &h->a, 0.1, HDELTA, 3, HN), -1);
+	assert_int_equal(inspect_edge(&e, h->g, &h->F, &h->a, 0.1, HDELTA, 0.0, 3, 3), -1);
+	assert_int_equal(inspect_edge(&e, h->g, &h->F, &h->a, 0.1, HDELTA, 0.0, 3, HN), -1);
 	inspect_edge_release(&e);
 }
 
@@ -311,6 +311,55 @@ static void test_explaining_community_takes_largest_product_then_smaller_id(void
 
 /* ---- node view -------------------------------------------------------- */
 
+/* The commands' rule (agm_is_member() with AGM_MIN_LINKS = 2) on the hand
+ * example. Column sums: A 1 + .8 + .6 + .5 + .7 = 3.6, B .7 + 1 + .9 + .5
+ * + .5 = 3.6, C .3 + .05 + 1 + .5 + 1.2 = 3.05. Degrees from the edge
+ * table: node 1 four, node 3 five, node 8 two; links needed min(2, deg/2):
+ * 2, 2, 1.
+ *   node 3: A .5 x 3.6 = 1.8 < 2 (out), B .7 x 3.6 = 2.52 (in)
+ *   node 1: A .8 x 3.6 = 2.88 (in),    C .3 x 3.05 = 0.915 < 2 (out)
+ *   node 8: A .7 x 3.6 = 2.52 >= 1 (in), B .5 x 3.6 = 1.8 >= 1 (in)
+ * so pair 3-8 shares A and B as strengths but only B as members: with
+ * p_B = 0.4 set here, agm_prob = 1 - (1 - .1)(1 - .4) = 0.46. */
+static void test_views_need_links_into_the_community(void **state)
+{
+	struct hand *h = *state;
+	struct inspect_node nv;
+	assert_int_equal(inspect_node(&nv, h->g, &h->F, HDELTA, AGM_MIN_LINKS, 3), 0);
+	assert_int_equal(nv.naffil, 2);
+	assert_int_equal(nv.nmember, 1);
+	assert_int_equal(nv.affil[0].comm, 1); /* B .7 first */
+	assert_true(nv.affil[0].member);
+	assert_false(nv.affil[1].member);
+	inspect_node_release(&nv);
+	assert_int_equal(inspect_node(&nv, h->g, &h->F, HDELTA, AGM_MIN_LINKS, 1), 0);
+	assert_int_equal(nv.nmember, 1);
+	assert_int_equal(nv.affil[0].comm, 0); /* A .8 */
+	assert_true(nv.affil[0].member);
+	assert_false(nv.affil[1].member); /* C .3 */
+	inspect_node_release(&nv);
+
+	for (uint32_t i = 0; i < h->a.cover.k; i++)
+		h->a.comms[i].p = h->a.comms[i].id == 1 ? 0.4 : 0.5;
+	struct inspect_edge e;
+	assert_int_equal(inspect_edge(&e, h->g, &h->F, &h->a, 0.1, HDELTA, AGM_MIN_LINKS, 3, 8),
+			 0);
+	assert_int_equal(e.nshare, 2);
+	int sawA = 0, sawB = 0;
+	for (uint32_t i = 0; i < e.nshare; i++) {
+		if (e.share[i].comm == 0) {
+			sawA = 1;
+			assert_false(e.share[i].both_members);
+		} else if (e.share[i].comm == 1) {
+			sawB = 1;
+			assert_true(e.share[i].both_members);
+		}
+	}
+	assert_true(sawA && sawB);
+	assert_float_equal(e.agm_prob, 0.46, 1e-12);
+	inspect_edge_release(&e);
+}
+
 static void test_node_view_orders_affiliations_and_counts_explained_edges(void **state)
 {
 	struct hand *h = *state;
@@ -318,7 +367,7 @@ static void test_node_view_orders_affiliations_and_counts_explained_edges(void *
 
 	/* node 3: B .7 before A .5. Its edges 3-0 (A), 3-2 (A), 3-4 (B),
 	 * 3-5 (B), 3-8 (tie -> A): A explains 3, B 2, none unexplained. */
-	assert_int_equal(inspect_node(&nv, h->g, &h->F, HDELTA, 3), 0);
+	assert_int_equal(inspect_node(&nv, h->g, &h->F, HDELTA, 0.0, 3), 0);
 	assert_int_equal(nv.node, 3);
 	assert_int_equal(nv.degree, 5);
 	assert_int_equal(nv.naffil, 2);
@@ -333,7 +382,7 @@ static void test_node_view_orders_affiliations_and_counts_explained_edges(void *
 
 	/* node 2: A .6 (member), C .05 (below delta .2, listed, not a member).
 	 * Edges 2-0 A, 2-1 A (.48 > .015), 2-3 A, 2-7 C (.06). */
-	assert_int_equal(inspect_node(&nv, h->g, &h->F, HDELTA, 2), 0);
+	assert_int_equal(inspect_node(&nv, h->g, &h->F, HDELTA, 0.0, 2), 0);
 	assert_int_equal(nv.naffil, 2);
 	assert_int_equal(nv.nmember, 1);
 	assert_int_equal(nv.affil[0].comm, 0);
@@ -347,7 +396,7 @@ static void test_node_view_orders_affiliations_and_counts_explained_edges(void *
 
 	/* node 4: B 1.0 and C 1.0 tie, so B (smaller id) first. Edges 4-0
 	 * none, 4-3 B, 4-5 B (.9 > .5), 4-8 B: B 3, C 0, unexplained 1. */
-	assert_int_equal(inspect_node(&nv, h->g, &h->F, HDELTA, 4), 0);
+	assert_int_equal(inspect_node(&nv, h->g, &h->F, HDELTA, 0.0, 4), 0);
 	assert_int_equal(nv.degree, 4);
 	assert_int_equal(nv.naffil, 2);
 	assert_int_equal(nv.nmember, 2);
@@ -359,7 +408,7 @@ static void test_node_view_orders_affiliations_and_counts_explained_edges(void *
 	inspect_node_release(&nv);
 
 	/* node 7: C 1.2; edges 7-1 C, 7-2 C, 7-5 C, 7-6 none */
-	assert_int_equal(inspect_node(&nv, h->g, &h->F, HDELTA, 7), 0);
+	assert_int_equal(inspect_node(&nv, h->g, &h->F, HDELTA, 0.0, 7), 0);
 	assert_int_equal(nv.naffil, 1);
 	assert_int_equal(nv.affil[0].comm, 2);
 	assert_int_equal(nv.affil[0].explained, 3);
@@ -367,7 +416,7 @@ static void test_node_view_orders_affiliations_and_counts_explained_edges(void *
 	inspect_node_release(&nv);
 
 	/* a higher delta makes fewer memberships: at 0.75 node 3 (.7, .5) has none */
-	assert_int_equal(inspect_node(&nv, h->g, &h->F, 0.75, 3), 0);
+	assert_int_equal(inspect_node(&nv, h->g, &h->F, 0.75, 0.0, 3), 0);
 	assert_int_equal(nv.nmember, 0);
 	assert_int_equal(nv.naffil, 2);
 	inspect_node_release(&nv);
@@ -383,7 +432,7 @@ static void test_node_view_of_a_node_without_strengths(void **state)
 	struct fcsr F;
 	fcsr_from_dense(&F, 3, 1, dense);
 	struct inspect_node nv;
-	assert_int_equal(inspect_node(&nv, g, &F, 0.1, 1), 0);
+	assert_int_equal(inspect_node(&nv, g, &F, 0.1, 0.0, 1), 0);
 	assert_int_equal(nv.degree, 2);
 	assert_int_equal(nv.naffil, 0);
 	assert_int_equal(nv.nmember, 0);
@@ -398,11 +447,11 @@ static void test_node_view_rejects_bad_input(void **state)
 {
 	struct hand *h = *state;
 	struct inspect_node nv;
-	assert_int_equal(inspect_node(&nv, h->g, &h->F, HDELTA, HN), -1);
+	assert_int_equal(inspect_node(&nv, h->g, &h->F, HDELTA, 0.0, HN), -1);
 	assert_null(nv.affil);
 	struct fcsr short_F = h->F;
 	short_F.n = HN - 1;
-	assert_int_equal(inspect_node(&nv, h->g, &short_F, HDELTA, 0), -1);
+	assert_int_equal(inspect_node(&nv, h->g, &short_F, HDELTA, 0.0, 0), -1);
 }
 
 /* ---- weak edges ------------------------------------------------------- */
@@ -704,7 +753,7 @@ static void test_views_agree_on_an_agm_from_strengths(void **state)
 	struct fcsr F;
 	fcsr_from_dense(&F, HN, 4, dense);
 	struct agm a;
-	assert_int_equal(agm_from_strengths(&a, h->g, &F, 0.01, HDELTA), 0);
+	assert_int_equal(agm_from_strengths(&a, h->g, &F, 0.01, HDELTA, 0.0), 0);
 	assert_int_equal(a.cover.k, 3);
 	int64_t iA = inspect_find_community(&a, 2), iB = inspect_find_community(&a, 1),
 		iC = inspect_find_community(&a, 0);
@@ -735,7 +784,7 @@ static void test_views_agree_on_an_agm_from_strengths(void **state)
 	 * (.35 each) goes to the smaller id, which is now B: A explains
 	 * 3-0 and 3-2, B explains 3-4, 3-5 and 3-8. */
 	struct inspect_node nv;
-	assert_int_equal(inspect_node(&nv, h->g, &F, HDELTA, 3), 0);
+	assert_int_equal(inspect_node(&nv, h->g, &F, HDELTA, 0.0, 3), 0);
 	assert_int_equal(nv.affil[0].comm, 1);
 	assert_int_equal(nv.affil[0].explained, 3);
 	assert_int_equal(nv.affil[1].comm, 2);
@@ -893,7 +942,7 @@ static void test_random_graphs_match_brute_force(void **state)
 		/* node views */
 		for (uint32_t u = 0; u < n; u++) {
 			struct inspect_node nv;
-			assert_int_equal(inspect_node(&nv, g, &F, delta, u), 0);
+			assert_int_equal(inspect_node(&nv, g, &F, delta, 0.0, u), 0);
 			uint32_t want_cnt[8] = { 0 }, unexpl = 0, naff = 0, nmem = 0;
 			for (uint64_t e = g->off[u]; e < g->off[u + 1]; e++) {
 				int64_t c = dense_explain(D, k, u, g->adj[e]);
@@ -1171,6 +1220,8 @@ int main(void)
 		cmocka_unit_test_setup_teardown(
 		    test_explaining_community_takes_largest_product_then_smaller_id, hand_setup,
 		    hand_teardown),
+		cmocka_unit_test_setup_teardown(test_views_need_links_into_the_community, hand_setup,
+						hand_teardown),
 		cmocka_unit_test_setup_teardown(
 		    test_node_view_orders_affiliations_and_counts_explained_edges, hand_setup,
 		    hand_teardown),

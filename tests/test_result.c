@@ -529,7 +529,7 @@ static void test_run_json_has_every_key_in_order_with_values(void **state)
 					     "lines", "self_loops", "duplicates", "extra_columns",
 					     "isolated", "directed_input" };
 	static const char *const params[] = { "k", "threads", "seed", "tol", "patience",
-					      "max_sweeps", "epsilon", "delta", "past_plateau",
+					      "max_sweeps", "epsilon", "delta", "min_links", "past_plateau",
 					      "starts", "reseed", "k_chosen_by" };
 	static const char *const fit[] = { "status", "state", "sweeps", "plateau_sweep",
 					   "seconds", "loglik", "agm_loglik", "communities",
@@ -541,7 +541,7 @@ static void test_run_json_has_every_key_in_order_with_values(void **state)
 	assert_true(json_is_null(get(root, "k_selection", NULL)));
 	assert_true(json_is_null(get(root, "link_check", NULL)));
 	assert_keys(get(root, "graph", NULL), graph, 11);
-	assert_keys(get(root, "parameters", NULL), params, 12);
+	assert_keys(get(root, "parameters", NULL), params, 13);
 	assert_keys(get(root, "fit", NULL), fit, 13);
 	assert_keys(get(root, "run", NULL), run, 2);
 
@@ -566,6 +566,7 @@ static void test_run_json_has_every_key_in_order_with_values(void **state)
 	/* the background actually used, not the 0 meaning "default" */
 	assert_true(json_real_value(get(root, "parameters", "epsilon")) == 0.05);
 	assert_true(json_real_value(get(root, "parameters", "delta")) == fx.s.delta);
+	assert_true(json_real_value(get(root, "parameters", "min_links")) == AGM_MIN_LINKS);
 	assert_true(json_is_false(get(root, "parameters", "past_plateau")));
 
 	assert_string_equal(json_string_value(get(root, "fit", "status")), "levelled");

@@ -27,7 +27,7 @@ struct agm;
 struct inspect_affil {
 	uint32_t comm;      /* community id (model column) */
 	double strength;    /* F[u][comm] > 0 */
-	int member;         /* strength >= delta */
+	int member;         /* a membership by agm_is_member() */
 	uint32_t explained; /* u's edges this community explains */
 };
 
@@ -40,9 +40,11 @@ struct inspect_node {
 	uint32_t unexplained;        /* edges explained by no community */
 };
 
-/* The node view of u. Returns 0 or -1; release with inspect_node_release(). */
+/* The node view of u; memberships by agm_is_member() with delta and
+ * min_links (F->colsum must be filled). Returns 0 or -1; release with
+ * inspect_node_release(). */
 int inspect_node(struct inspect_node *out, const struct graph *g, const struct fcsr *F,
-		 double delta, uint32_t u);
+		 double delta, double min_links, uint32_t u);
 void inspect_node_release(struct inspect_node *n);
 
 /* The community explaining edge (u, v), or -1 for none. */
@@ -56,7 +58,7 @@ struct inspect_share {
 	uint32_t comm;     /* community id (model column) */
 	double product;    /* F_u[c] F_v[c] > 0 */
 	double alone;      /* 1 - exp(-product): the probability c alone gives */
-	int both_members;  /* both strengths >= delta */
+	int both_members;  /* both are members (agm_is_member()) */
 	double p;          /* the AGM p_c; NAN when c is no listed community */
 };
 
@@ -74,10 +76,11 @@ struct inspect_edge {
 };
 
 /* The pair view of (u, v) (u != v, both < n) under strengths F and the
- * AGM a read from them with epsilon and delta (all borrowed). Returns 0
- * or -1; release with inspect_edge_release(). */
+ * AGM a read from them with epsilon, delta and min_links (all borrowed).
+ * Returns 0 or -1; release with inspect_edge_release(). */
 int inspect_edge(struct inspect_edge *out, const struct graph *g, const struct fcsr *F,
-		 const struct agm *a, double epsilon, double delta, uint32_t u, uint32_t v);
+		 const struct agm *a, double epsilon, double delta, double min_links, uint32_t u,
+		 uint32_t v);
 void inspect_edge_release(struct inspect_edge *e);
 
 struct inspect_pair {

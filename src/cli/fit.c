@@ -481,7 +481,8 @@ int cmd_fit(int argc, char **argv)
 		links = (struct result_links){ check_links, check.nedges, check.nnon, 0, 0 };
 		whole = *s;
 		if (holdout_score(&check, &s->F, s->epsilon, &links.heldout_loglik, &links.auc) == 0 &&
-		    agm_from_strengths(&whole.agm, graph, &s->F, s->epsilon, s->delta) == 0) {
+		    agm_from_strengths(&whole.agm, graph, &s->F, s->epsilon, s->delta,
+				       AGM_MIN_LINKS) == 0) {
 			have_whole = 1;
 			ws = &whole;
 			if (!quiet)

@@ -225,6 +225,7 @@ static int show_summary(const struct show *s)
 		json_object_set_new(root, "agm_loglik", cli_json_real(a->loglik));
 		json_object_set_new(root, "epsilon", cli_json_real(ck->epsilon));
 		json_object_set_new(root, "delta", cli_json_real(s->delta));
+		json_object_set_new(root, "min_links", cli_json_real(AGM_MIN_LINKS));
 		for (size_t i = 0; i < n; i++)
 			json_array_append_new(list, jcommunity(&a->comms[i]));
 		json_object_set_new(root, "communities", list);
@@ -245,7 +246,9 @@ static int show_summary(const struct show *s)
 	else
 		printf("loglik       -\n");
 	printf("agm loglik   %.10g\n", a->loglik);
-	printf("epsilon      %.6g (membership at strength %.6g)\n", ck->epsilon, s->delta);
+	printf("epsilon      %.6g (membership: strength %.6g or more and %g links into the\n"
+	       "             community, or half the degree when less)\n",
+	       ck->epsilon, s->delta, AGM_MIN_LINKS);
 	if (a->cover.k == 0) {
 		printf("\nno community has a member\n");
 		return 0;
@@ -284,7 +287,7 @@ static int show_node(const struct show *s, const char *name)
 			     util_escape(s->dir, b2, sizeof b2, s->ascii));
 	}
 	struct inspect_node nv;
-	if (inspect_node(&nv, g, &s->ck.F, s->delta, (uint32_t)u) < 0)
+	if (inspect_node(&nv, g, &s->ck.F, s->delta, AGM_MIN_LINKS, (uint32_t)u) < 0)
 		return -1;
 	size_t n = shown(nv.naffil, s->limit);
 	int rc;
@@ -299,6 +302,7 @@ static int show_node(const struct show *s, const char *name)
 		json_object_set_new(root, "naffiliations", jint(nv.naffil));
 		json_object_set_new(root, "unexplained", jint(nv.unexplained));
 		json_object_set_new(root, "delta", cli_json_real(s->delta));
+		json_object_set_new(root, "min_links", cli_json_real(AGM_MIN_LINKS));
 		for (size_t i = 0; i < n; i++) {
 			const struct inspect_affil *f = &nv.affil[i];
 			json_t *o = json_object();
@@ -317,7 +321,8 @@ static int show_node(const struct show *s, const char *name)
 	char buf[NAME_CAP];
 	printf("node         %s\n", esc(s, g->names[u], buf));
 	printf("degree       %" PRIu32 "\n", nv.degree);
-	printf("memberships  %" PRIu32 " (strength %.6g or more)\n", nv.nmember, s->delta);
+	printf("memberships  %" PRIu32 " (strength %.6g or more and %g links, or half the degree)\n",
+	       nv.nmember, s->delta, AGM_MIN_LINKS);
 	printf("unexplained  %" PRIu32 " edge%s explained by no community\n", nv.unexplained,
 	       nv.unexplained == 1 ? "" : "s");
 	if (nv.naffil == 0) {
@@ -532,7 +537,7 @@ static int show_edge(const struct show *s, const char *na, const char *nb)
 	if (u == v)
 		return error("--edge needs two different nodes");
 	struct inspect_edge e;
-	if (inspect_edge(&e, g, &s->ck.F, &s->agm, s->ck.epsilon, s->delta, u, v))
+	if (inspect_edge(&e, g, &s->ck.F, &s->agm, s->ck.epsilon, s->delta, AGM_MIN_LINKS, u, v))
 		return -1;
 	size_t n = shown(e.nshare, s->limit);
 	int rc = 0;
@@ -753,7 +758,8 @@ static int show_run(int argc, char **argv, const char *edge_a, const char *edge_
 	if (result_read_checkpoint(path, &s.ck))
 		return 1;
 	s.delta = sqrt(-log1p(-s.ck.epsilon));
-	if (agm_from_strengths(&s.agm, s.ck.graph, &s.ck.F, s.ck.epsilon, s.delta)) {
+	if (agm_from_strengths(&s.agm, s.ck.graph, &s.ck.F, s.ck.epsilon, s.delta,
+			       AGM_MIN_LINKS)) {
 		checkpoint_release(&s.ck);
 		return 1;
 	}

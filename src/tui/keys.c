@@ -69,7 +69,7 @@ static void act_enter_affil(struct view *v, int arg)
 		return;
 	const struct inspect_affil *a = &v->nodeview.affil[v->affil_rows[v->affil.cur]];
 	if (inspect_find_community(&v->snap->agm, a->comm) < 0) {
-		view_say(v, UTIL_WARNING, "community %u has no members at this threshold", a->comm);
+		view_say(v, UTIL_WARNING, "community %u has no members by the membership rule", a->comm);
 		return;
 	}
 	view_select_comm(v, a->comm);
@@ -310,7 +310,7 @@ static void act_weak(struct view *v, int arg)
 	v->node_gen = 0;
 	v->affil.cur = v->affil.top = 0;
 	v->dirty |= DIRTY_PANE(PANE_NODE);
-	view_say(v, UTIL_NOTICE, v->show_weak ? "showing every strength, also below the threshold"
+	view_say(v, UTIL_NOTICE, v->show_weak ? "showing every strength, also those that are no membership"
 					      : "showing memberships only");
 }
 
@@ -357,7 +357,7 @@ const struct key_binding keys_table[] = {
 	{ 'r', PANE_COMMS, act_sort_flip, 0, "reverse the order" },
 	{ '\r', PANE_MEMBERS, act_enter_member, 0, "go to this node" },
 	{ '\r', PANE_NODE, act_enter_affil, 0, "select this row's community" },
-	{ 'a', PANE_NODE, act_weak, 0, "show or hide strengths below the threshold" },
+	{ 'a', PANE_NODE, act_weak, 0, "show or hide strengths that are no membership" },
 	{ '\r', PANE_EDGES, act_enter_edge, 0, "select a node of this pair (outside end first)" },
 	{ 'm', PANE_EDGES, act_edges_mode, 0, "switch between weak edges and missing links" },
 };

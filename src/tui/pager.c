@@ -30,15 +30,15 @@
 #include "coterie/model.h"
 #include "coterie/util.h"
 
-/* Is u a member (strength >= delta) of column id in snapshot s? */
-static int member_of(const struct snapshot *s, uint32_t u, uint32_t id)
+/* Is u a member (agm_is_member()) of column id in snapshot s of a fit of g? */
+static int member_of(const struct graph *g, const struct snapshot *s, uint32_t u, uint32_t id)
 {
 	const struct fcsr *F = &s->F;
-	if (u >= F->n)
+	if (u >= F->n || u >= g->n)
 		return 0;
 	for (uint64_t i = F->off[u]; i < F->off[u + 1]; i++)
 		if (F->e[i].c == id)
-			return F->e[i].v >= s->delta;
+			return agm_member_at(g, F, u, i, s->delta, AGM_MIN_LINKS);
 	return 0;
 }
 
@@ -77,7 +77,8 @@ void pager_answer(const struct page_req *rq, struct page_res *res)
 		res->rows[i].u = pairs[i].u;
 		res->rows[i].v = pairs[i].v;
 		res->rows[i].prob = pairs[i].prob;
-		res->rows[i].outside = rq->mode == EDGES_WEAK && !member_of(s, pairs[i].v, rq->comm_id);
+		res->rows[i].outside = rq->mode == EDGES_WEAK && !member_of(rq->g, s, pairs[i].v,
+									       rq->comm_id);
 	}
 	free(pairs);
 	res->n = n;

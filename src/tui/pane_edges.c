@@ -19,7 +19,8 @@ static void draw_detail(const struct view *v, WINDOW *w, int y, int x, int cw, u
 {
 	const struct snapshot *s = v->snap;
 	struct inspect_edge e;
-	if (!s || inspect_edge(&e, v->g, &s->F, &s->agm, s->epsilon, s->delta, u, nv))
+	if (!s || inspect_edge(&e, v->g, &s->F, &s->agm, s->epsilon, s->delta, AGM_MIN_LINKS, u,
+			       nv))
 		return;
 	char line[256];
 	int o = snprintf(line, sizeof line, "P %.3g incl. background%s", e.prob,

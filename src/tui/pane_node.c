@@ -2,7 +2,7 @@
  * tui/pane_node: pane 4, the selected node (inspect_node): its name made
  * safe, degree, how many memberships and how many of its edges no
  * community explains; then one row per affiliation, strongest first, with
- * a bar, the strength, whether it is a membership (>= delta) and how many
+ * a bar, the strength, whether it is a membership (agm_is_member()) and how many
  * of the node's edges that community explains. Strengths below the
  * threshold are listed on request ('a').
  */

@@ -17,6 +17,7 @@
  * consistent before the next key of the same batch is read, so ui.c calls
  * view_prepare() after every key, not once per loop pass.
  */
+#include "coterie/agm.h"
 #include "tui.h"
 
 #include <stdarg.h>
@@ -300,7 +301,8 @@ void view_select_node(struct view *v, uint32_t node, int with_comm)
 		double best = 0;
 		int64_t bestc = -1;
 		for (uint64_t i = F->off[node]; i < F->off[node + 1]; i++)
-			if (F->e[i].v >= v->snap->delta && F->e[i].v > best) {
+			if (agm_member_at(v->g, F, (uint32_t)node, i, v->snap->delta, AGM_MIN_LINKS) &&
+			    F->e[i].v > best) {
 				best = F->e[i].v;
 				bestc = F->e[i].c;
 			}
@@ -432,7 +434,8 @@ static void prepare_node(struct view *v)
 	v->node_gen = v->snap_gen;
 	v->node_for = v->node;
 	v->dirty |= DIRTY_PANE(PANE_NODE);
-	if (inspect_node(&v->nodeview, v->g, &v->snap->F, v->snap->delta, (uint32_t)v->node))
+	if (inspect_node(&v->nodeview, v->g, &v->snap->F, v->snap->delta, AGM_MIN_LINKS,
+			 (uint32_t)v->node))
 		return;
 	v->node_valid = 1;
 	uint32_t n = v->nodeview.naffil;
