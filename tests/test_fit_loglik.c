@@ -4,10 +4,11 @@
  * block_gain()), not recomputed; it must equal the log-likelihood of the
  * model after that sweep computed from scratch.
  *
- * Reference: the relaxed log-likelihood of the nonnegative affiliation
- * model, Yang & Leskovec, "Overlapping community detection at scale: a
- * nonnegative matrix factorization approach", WSDM 2013, eq. (2), with
- * the background epsilon of the AGM (include/coterie/model.h):
+ * Reference: the log-likelihood l(F) of the nonnegative relaxation of the
+ * affiliation model, Yang & Leskovec, "Overlapping community detection at
+ * scale: a nonnegative matrix factorization approach", WSDM 2013 (the
+ * equation test_model.c checks the slow way), with the background
+ * epsilon of the AGM as in include/coterie/model.h:
  *     l(F) = sum_{uv in E} log(1 - exp(-(F_u . F_v + qeps)))
  *            - sum_{uv not in E, u < v} (F_u . F_v + qeps)
  * with held-out pairs (holdout.h) in neither sum. brute_loglik() below
