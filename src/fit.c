@@ -799,7 +799,9 @@ static enum fit_state run_start(struct fit *f, uint32_t *perm, int extend)
 		f->stats.sweep_seconds += util_now() - t;
 		f->stats.sweep_cpu_seconds += thread_cpu() - c;
 		f->stats.sweeps++;
-		double ll = ll_now + f->ll_sweep;
+		/* (recomputed when the gains are not l(F)'s change: an
+		 * --epsilon below 1e-12, see model_gain_exact()) */
+		double ll = model_gain_exact(&f->m) ? ll_now + f->ll_sweep : compute_loglik(f);
 		ll_now = ll;
 		double prev = f->ntrace ? f->trace[f->ntrace - 1].loglik : ll;
 		if (trace_add(f, ll))

@@ -312,6 +312,13 @@ double model_work_gain(const struct model_work *w)
 	return w->gain;
 }
 
+int model_gain_exact(const struct model *m)
+{
+	/* every x = F_u . F_v + qeps is then above the floor that
+	 * gather_gradient() puts under the weight's x */
+	return m->qeps > X_FLOOR;
+}
+
 void model_work_counts(const struct model_work *w, uint64_t *rows, uint64_t *trials,
 		       uint64_t *visits)
 {

@@ -170,5 +170,11 @@ int model_update_row(const struct model *m, const struct graph *g, uint32_t u,
  * model_row_objective(new) - model_row_objective(old) only up to
  * rounding. */
 double model_work_gain(const struct model_work *w);
+/* 1 when the gains are the change of l(F) (up to rounding): when qeps is
+ * above the floor (1e-12) the update puts under x in f0's edge terms, that
+ * is for every background probability the fit would choose itself; 0 for
+ * a smaller --epsilon, where f0 is off for links whose ends share
+ * nothing. */
+int model_gain_exact(const struct model *m);
 
 #endif
