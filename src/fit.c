@@ -623,12 +623,12 @@ static double change_dot(const struct fit *f, uint32_t j, uint32_t i)
 /*
  * The change of l(F) (model.h) that applying the block's rows will make;
  * call before they are applied. Row u's objective f_u holds every term of
- * l(F) with u in it, so for u alone ΔL = f1_u - f0_u (its gain). The rows
+ * l(F) with u in it, so for u alone dL = f1_u - f0_u (its gain). The rows
  * of a block were all computed from the model at the block's start, and
  * the block is an independent set, so two of its rows share only the
  * non-edge term -F_u . F_v, which each f_u counted with the other's old
  * row. Writing a_u = new_u - old_u, the exact change is
- *     ΔL = sum_u gain_u - sum_{u < v in the block} a_u . a_v
+ *     dL = sum_u gain_u - sum_{u < v in the block} a_u . a_v
  * except that a held-out pair (m->excl) is in no term of l(F) (and f_u
  * left it out too), so its a_u . a_v is not subtracted. The pair sum is
  * taken in block order as sum_v a_v . (a_u summed over earlier u) with a
