@@ -303,8 +303,21 @@ struct model_work {
 	size_t wv_cap;
 	double *dir;      /* dense free direction over candidates */
 	struct fentry *out; /* the accepted row */
+	double gain;      /* f1 - f0 of the last accepted row (model_work_gain()) */
 	uint64_t rows, trials, visits; /* counters for model_work_counts() */
 };
+
+double model_work_gain(const struct model_work *w)
+{
+	return w->gain;
+}
+
+int model_gain_exact(const struct model *m)
+{
+	/* every x = F_u . F_v + qeps is then above the floor that
+	 * gather_gradient() puts under the weight's x */
+	return m->qeps > X_FLOOR;
+}
 
 void model_work_counts(const struct model_work *w, uint64_t *rows, uint64_t *trials,
 		       uint64_t *visits)
@@ -696,6 +709,9 @@ int model_update_row(const struct model *m, const struct graph *g, uint32_t u,
 		if (!moved)
 			break;
 		if (f1 >= f0 + ARMIJO_SIGMA * gd && f1 > f0) {
+			/* an accepted trial summed every term (the early exit
+			 * only cuts trials that fail), so f1 is the objective */
+			w->gain = f1 - f0;
 			accepted = 1;
 			break;
 		}

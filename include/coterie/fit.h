@@ -78,17 +78,17 @@ void fit_params_default(struct fit_params *p);
 struct trace_point {
 	uint32_t sweep;   /* 0 is the seeded model */
 	double seconds;   /* since the fit began, resumes included */
-	double loglik;    /* l(F) after the sweep */
+	double loglik;    /* l(F) after the sweep (summed or recomputed: fit.c) */
 };
 
 /* Where the time went, for benchmarks (all starts and refinement moves
  * included; wall-clock seconds on the fitting thread). */
 struct fit_stats {
 	double seed_seconds;    /* seeding */
-	double sweep_seconds;   /* sweeps: row updates and applying them */
+	double sweep_seconds;   /* sweeps: row updates, applying them, summing l(F) */
 	double sweep_cpu_seconds; /* the fitting thread's CPU time in sweeps
 				   * (all of it with one thread) */
-	double loglik_seconds;  /* the log-likelihood after each sweep */
+	double loglik_seconds;  /* recomputing l(F) (start, reseed, end of a start) */
 	double publish_seconds; /* building snapshots */
 	uint32_t sweeps;        /* sweeps run */
 	uint64_t rows;          /* row updates computed */

@@ -162,4 +162,19 @@ void model_row_gradient(const struct model *m, const struct graph *g, uint32_t u
 int model_update_row(const struct model *m, const struct graph *g, uint32_t u,
 		     struct model_work *w, const struct fentry **out, uint32_t *out_nnz);
 
+/* The rise f1 - f0 of u's row objective (model_row_objective()) made by
+ * the last update of w that returned 1. The row objective holds every
+ * term of l(F) that involves u, so with the other rows fixed this is the
+ * change of l(F) (fit.c sums it over a sweep instead of recomputing
+ * l(F)). f0 and f1 are the values the line search compared, so it equals
+ * model_row_objective(new) - model_row_objective(old) only up to
+ * rounding. */
+double model_work_gain(const struct model_work *w);
+/* 1 when the gains are the change of l(F) (up to rounding): when qeps is
+ * above the floor (1e-12) the update puts under x in f0's edge terms, that
+ * is for every background probability the fit would choose itself; 0 for
+ * a smaller --epsilon, where f0 is off for links whose ends share
+ * nothing. */
+int model_gain_exact(const struct model *m);
+
 #endif
