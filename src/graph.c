@@ -206,7 +206,7 @@ static void nametable_free(struct nametable *t)
  * misses. Only the 2 MiB-aligned middle is advised; failure is harmless. */
 static void advise_huge(void *p, size_t len)
 {
-#if defined(MADV_HUGEPAGE)
+#if defined(MADV_HUGEPAGE) && !defined(NO_HUGE)
 	const uintptr_t huge = (uintptr_t)2 << 20;
 	if (len < 2 * huge)
 		return;
@@ -456,7 +456,25 @@ static void radix_sort(uint32_t *a, uint64_t len, uint32_t *tmp, int passes)
  * Rows are sorted, so the order in which the parts filled a row does not
  * show: the result is the same bytes for any number of parts.
  */
+#ifdef LOAD_TIMES
+#include <time.h>
+static void LT(const char *what)
+{
+	static double w0, c0;
+	struct timespec ts;
+	clock_gettime(CLOCK_PROCESS_CPUTIME_ID, &ts);
+	double c = ts.tv_sec + ts.tv_nsec / 1e9, w = util_now();
+	if (w0 > 0)
+		fprintf(stderr, "%-10s wall %.3f cpu %.3f\n", what, w - w0, c - c0);
+	w0 = w;
+	c0 = c;
+}
+#else
+#define LT(x) ((void)0)
+#endif
+#ifndef CSR_THREADS
 #define CSR_THREADS 2
+#endif
 #define CSR_MIN_PAIRS 65536 /* below this one part does everything */
 
 struct csr_part {
@@ -597,7 +615,9 @@ static int csr_build(struct graph *g, const uint32_t *pairs, uint64_t npairs)
 		if (!c->cnt)
 			goto fail;
 	}
+	LT("csr start");
 	csr_step(parts, np, 0);
+	LT("count");
 	uint64_t loops = 0;
 	for (t = 0; t < np; t++)
 		loops += parts[t].loops;
@@ -618,7 +638,9 @@ static int csr_build(struct graph *g, const uint32_t *pairs, uint64_t npairs)
 	advise_huge(adj, (size_t)total * sizeof *adj);
 	for (t = 0; t < np; t++)
 		parts[t].adj = adj;
+	LT("alloc");
 	csr_step(parts, np, 1);
+	LT("scatter");
 	for (t = 0; t < np; t++) {
 		free(parts[t].cnt);
 		parts[t].cnt = NULL;
@@ -653,6 +675,7 @@ static int csr_build(struct graph *g, const uint32_t *pairs, uint64_t npairs)
 		lo = hi;
 	}
 	csr_step(parts, np, 2);
+	LT("sort");
 	uint64_t w = 0;
 	for (t = 0; t < np; t++) {
 		struct csr_part *c = &parts[t];
@@ -676,6 +699,7 @@ static int csr_build(struct graph *g, const uint32_t *pairs, uint64_t npairs)
 		if (shrunk)
 			adj = shrunk;
 	}
+	LT("merge");
 	g->off = off;
 	g->adj = adj;
 	g->m = w / 2;
@@ -1256,11 +1280,14 @@ static void reader_end(struct reader *rd)
 /*
  * Lines are resolved in batches: the names of up to BATCH lines (pointing
  * into the current chunk, so a batch is flushed before the chunk is given
- * back) are hashed, their slots prefetched, then the long names those
- * slots point at, and only then looked up one by one. On a large graph
- * every lookup is a cache miss or two; this lets them overlap.
+ * back) are hashed first; then, while they are looked up one by one, the
+ * slots of the line PREFETCH_AHEAD further on are prefetched, and the
+ * long names in the slots of the line half as far on. On a large graph
+ * every lookup is a cache miss or two; this lets them overlap (measured
+ * better than prefetching the whole batch first).
  */
 #define BATCH 128
+#define PREFETCH_AHEAD 32 /* lines between a slot's prefetch and its lookup */
 
 struct pending {
 	const char *s[2];
@@ -1280,24 +1307,24 @@ struct edge_state {
 	int nbatch;
 };
 
+/* Start fetching the slots where the names of a line are probed first. A
+ * macro: GCC 12 drops the prefetches of an inline function, which it
+ * takes for one without effects. */
+#if defined(__GNUC__)
+#define prefetch_slots(t, pe)                                                  \
+	do {                                                                   \
+		__builtin_prefetch(&(t)->slots[(pe)->h[0] & (t)->mask]);        \
+		__builtin_prefetch(&(t)->slots[(pe)->h[1] & (t)->mask]);        \
+	} while (0)
+#else
+#define prefetch_slots(t, pe) ((void)0)
+#endif
+
 static int edge_flush(struct edge_state *st)
 {
 	struct nametable *t = st->t;
 	int nb = st->nbatch;
 	st->nbatch = 0;
-#if defined(__GNUC__)
-	for (int i = 0; i < nb; i++)
-		for (int k = 0; k < 2; k++)
-			__builtin_prefetch(&t->slots[st->batch[i].h[k] & t->mask]);
-	for (int i = 0; i < nb; i++) {
-		for (int k = 0; k < 2; k++) {
-			const struct slot *sl = &t->slots[st->batch[i].h[k] & t->mask];
-			if ((sl->tag & SLOT_LONG) && sl->id != SLOT_EMPTY &&
-			    sl->tag == name_tag(st->batch[i].len[k], st->batch[i].h[k]))
-				__builtin_prefetch((const char *)(uintptr_t)sl->key);
-		}
-	}
-#endif
 	if (st->pairs.cap - st->pairs.len < (uint64_t)nb) {
 		uint64_t cap = st->pairs.cap ? st->pairs.cap * 2 : 4096;
 		if (cap > SIZE_MAX / 2 / sizeof *st->pairs.v)
@@ -1309,8 +1336,23 @@ static int edge_flush(struct edge_state *st)
 		st->pairs.cap = cap;
 	}
 	uint32_t *out = st->pairs.v + 2 * st->pairs.len;
+	for (int i = 0; i < nb && i < PREFETCH_AHEAD; i++)
+		prefetch_slots(t, &st->batch[i]);
 	for (int i = 0; i < nb; i++) {
 		const struct pending *pe = &st->batch[i];
+		if (i + PREFETCH_AHEAD < nb)
+			prefetch_slots(t, &st->batch[i + PREFETCH_AHEAD]);
+#if defined(__GNUC__)
+		/* the slots of the line half as far on are in: fetch their long names */
+		for (int k = 0; k < 2 && i + PREFETCH_AHEAD / 2 < nb; k++) {
+			const struct pending *pn = &st->batch[i + PREFETCH_AHEAD / 2];
+			if (pn->len[k] < SHORT_NAME)
+				continue;
+			const struct slot *sl = &t->slots[pn->h[k] & t->mask];
+			if (sl->id != SLOT_EMPTY && sl->tag == name_tag(pn->len[k], pn->h[k]))
+				__builtin_prefetch((const char *)(uintptr_t)sl->key);
+		}
+#endif
 		for (int k = 0; k < 2; k++) {
 			int added;
 			int64_t id = nametable_intern_h(t, pe->s[k], pe->len[k], pe->h[k],
@@ -1482,6 +1524,7 @@ static struct graph *load_edges(const char *path, const char *shown)
 	struct reader rd;
 	reader_start(&rd, gz, regular);
 	struct edge_state st = { .shown = shown };
+	LT("start");
 	st.rep.format = GRAPH_FORMAT_EDGES;
 	st.t = nametable_new(0);
 	if (!st.t)
@@ -1516,6 +1559,7 @@ static struct graph *load_edges(const char *path, const char *shown)
 	gzclose(gz);
 	gz = NULL;
 	st.rep.lines = lineno;
+	LT("parse");
 
 	struct graph *g = graph_assemble(st.t, st.pairs.v, st.pairs.len, &st.rep, path);
 	st.t = NULL;
