@@ -2,10 +2,18 @@
  * graph: loading a network from a file into an undirected simple graph in
  * compressed sparse rows (see graph.h for the rules of the struct).
  *
- * Edge lists are streamed through zlib (gzdopen reads plain files
- * transparently, so one path serves plain files, .gz files and stdin) into a
- * large buffer, and cut into lines with memchr: nothing is allocated per
- * line. Each line is split in place:
+ * Edge lists are read through zlib (gzdopen reads plain files
+ * transparently, so one path serves plain files, .gz files and stdin) in
+ * chunks of 1 MiB that end at a line end (see "The reader" below: for a
+ * regular file, .gz or not, a thread of its own reads or inflates ahead
+ * while the lines are parsed). Nothing is allocated per line. The usual
+ * line, "name TAB name" with no other TAB and no NUL, is found in one pass
+ * over 64 bytes at a time (the TABs, newlines and NULs as bit masks,
+ * SSE2 where there is one); every other line goes through the general
+ * splitter, which gives the same result for the usual line (the fast path
+ * is only a shortcut; the fuzz target and a byte-for-byte comparison with
+ * the splitter alone on hostile files check it). Each line is split in
+ * place:
  *   - a line holding a TAB is split on TABs only (names may hold spaces and
  *     commas, and are taken byte for byte);
  *   - else a line holding a comma is split on commas, and the spaces around
@@ -22,12 +30,17 @@
  * for the caller to refuse it if it cannot use it.
  *
  * Names are interned in an open-addressing hash table (linear probing,
- * FNV-1a with a final mix) whose strings live in an arena of large chunks;
- * ids are handed out in order of first appearance. Each slot keeps the
- * name's first 8 bytes, so names shorter than that are compared without
- * reading the string. Lookups are done in
- * batches of lines with prefetches (see edge_flush), since on a large graph
- * each one is a couple of cache misses.
+ * power-of-two size, at most half full) whose strings live in an arena of
+ * large chunks; ids are handed out in order of first appearance, so the
+ * hash function shapes only the table, never a result. A slot is 16 bytes:
+ * a name shorter than 8 bytes is kept whole in it (its NUL-padded head, so
+ * the short names of most graphs, numbers, are compared without reading a
+ * string and hashed by mixing that one word), a longer one by a pointer to
+ * its copy; the slot also keeps 31 bits of the hash, so doubling the table
+ * does not rehash the names. Lookups are done in batches of lines with
+ * prefetches a fixed distance ahead (see edge_flush), since on a large
+ * graph each one is a cache miss or two; the table asks for transparent
+ * huge pages.
  *
  * GML, GraphML and Pajek go through igraph's readers. The bytes are first
  * copied (through zlib, so .gz and stdin work) into memory, checked for the
@@ -51,11 +64,14 @@
  *
  * Building: the edge records are collected as id pairs in one growable
  * uint32 array; a counting pass by endpoint lays out the rows (each edge in
- * both rows, self-loops dropped), each row is sorted (insertion sort for
- * short rows, LSD radix sort on bytes for long ones) and deduplicated in
- * place, and the pair array is freed. So at most two copies of the edges
- * are alive at once. The thing a newcomer gets wrong: a duplicate record shows
- * up in both rows, so the entries removed are twice the duplicates.
+ * both rows, self-loops dropped), the pairs are scattered into them, each
+ * row is sorted (insertion sort for short rows, LSD radix sort on bytes for
+ * long ones) and deduplicated in place, and the pair array is freed. So at
+ * most two copies of the edges are alive at once. From 65536 pairs on, the
+ * count, the scatter and the sort run on two threads (see csr_build): the
+ * rows are sorted, so the bytes are the same as a serial build's. The thing
+ * a newcomer gets wrong: a duplicate record shows up in both rows, so the
+ * entries removed are twice the duplicates.
  */
 #include "coterie/graph.h"
 
