@@ -222,7 +222,7 @@ static void nametable_free(struct nametable *t)
  * misses. Only the 2 MiB-aligned middle is advised; failure is harmless. */
 static void advise_huge(void *p, size_t len)
 {
-#if defined(MADV_HUGEPAGE) && !defined(NO_HUGE)
+#if defined(MADV_HUGEPAGE)
 	const uintptr_t huge = (uintptr_t)2 << 20;
 	if (len < 2 * huge)
 		return;
@@ -475,25 +475,7 @@ static void radix_sort(uint32_t *a, uint64_t len, uint32_t *tmp, int passes)
  * Rows are sorted, so the order in which the parts filled a row does not
  * show: the result is the same bytes for any number of parts.
  */
-#ifdef LOAD_TIMES
-#include <time.h>
-static void LT(const char *what)
-{
-	static double w0, c0;
-	struct timespec ts;
-	clock_gettime(CLOCK_PROCESS_CPUTIME_ID, &ts);
-	double c = ts.tv_sec + ts.tv_nsec / 1e9, w = util_now();
-	if (w0 > 0)
-		fprintf(stderr, "%-10s wall %.3f cpu %.3f\n", what, w - w0, c - c0);
-	w0 = w;
-	c0 = c;
-}
-#else
-#define LT(x) ((void)0)
-#endif
-#ifndef CSR_THREADS
 #define CSR_THREADS 2
-#endif
 #define CSR_MIN_PAIRS 65536 /* below this one part does everything */
 #define CSR_PREFETCH 32     /* pairs between a counter's prefetch and its use */
 
@@ -647,9 +629,7 @@ static int csr_build(struct graph *g, const uint32_t *pairs, uint64_t npairs)
 		if (!c->cnt)
 			goto fail;
 	}
-	LT("csr start");
 	csr_step(parts, np, 0);
-	LT("count");
 	uint64_t loops = 0;
 	for (t = 0; t < np; t++)
 		loops += parts[t].loops;
@@ -670,9 +650,7 @@ static int csr_build(struct graph *g, const uint32_t *pairs, uint64_t npairs)
 	advise_huge(adj, (size_t)total * sizeof *adj);
 	for (t = 0; t < np; t++)
 		parts[t].adj = adj;
-	LT("alloc");
 	csr_step(parts, np, 1);
-	LT("scatter");
 	for (t = 0; t < np; t++) {
 		free(parts[t].cnt);
 		parts[t].cnt = NULL;
@@ -707,7 +685,6 @@ static int csr_build(struct graph *g, const uint32_t *pairs, uint64_t npairs)
 		lo = hi;
 	}
 	csr_step(parts, np, 2);
-	LT("sort");
 	uint64_t w = 0;
 	for (t = 0; t < np; t++) {
 		struct csr_part *c = &parts[t];
@@ -731,7 +708,6 @@ static int csr_build(struct graph *g, const uint32_t *pairs, uint64_t npairs)
 		if (shrunk)
 			adj = shrunk;
 	}
-	LT("merge");
 	g->off = off;
 	g->adj = adj;
 	g->m = w / 2;
@@ -1556,7 +1532,6 @@ static struct graph *load_edges(const char *path, const char *shown)
 	struct reader rd;
 	reader_start(&rd, gz, regular);
 	struct edge_state st = { .shown = shown };
-	LT("start");
 	st.rep.format = GRAPH_FORMAT_EDGES;
 	st.t = nametable_new(0);
 	if (!st.t)
@@ -1591,7 +1566,6 @@ static struct graph *load_edges(const char *path, const char *shown)
 	gzclose(gz);
 	gz = NULL;
 	st.rep.lines = lineno;
-	LT("parse");
 
 	struct graph *g = graph_assemble(st.t, st.pairs.v, st.pairs.len, &st.rep, path);
 	st.t = NULL;

@@ -1032,6 +1032,70 @@ static void test_find_and_has_edge(void **state)
 	graph_free(g);
 }
 
+static int cmp_u64(const void *a, const void *b)
+{
+	uint64_t x = *(const uint64_t *)a, y = *(const uint64_t *)b;
+	return x < y ? -1 : x > y;
+}
+
+static void test_two_part_build_matches_sorted_unique_entries(void **state)
+{
+	(void)state;
+	/* 200000 random records among 50000 nodes (enough for the CSR to be
+	 * built in two parts), with a hub at each end of the id range (rows
+	 * radix-sorted in both parts), repeats and self-loops; checked against
+	 * every (row, neighbour) entry of the records sorted with qsort and
+	 * made unique. */
+	const uint32_t n = 50000, k = 200000;
+	uint32_t *pairs = malloc(2 * (size_t)k * sizeof *pairs);
+	uint64_t *ent = malloc(2 * (size_t)k * sizeof *ent);
+	assert_non_null(pairs);
+	assert_non_null(ent);
+	struct rng r;
+	rng_init(&r, 11);
+	uint64_t ne = 0, loops = 0;
+	for (uint32_t i = 0; i < k; i++) {
+		uint32_t a = (uint32_t)rng_below(&r, n), b = (uint32_t)rng_below(&r, n);
+		if (i % 7 == 0)
+			a = i % 2 ? 0 : n - 1;         /* the hubs */
+		if (i % 11 == 0)
+			b = (uint32_t)rng_below(&r, 40); /* repeats */
+		if (i % 101 == 0)
+			b = a;                           /* self-loops */
+		pairs[2 * i] = a;
+		pairs[2 * i + 1] = b;
+		if (a == b) {
+			loops++;
+			continue;
+		}
+		ent[ne++] = (uint64_t)a << 32 | b;
+		ent[ne++] = (uint64_t)b << 32 | a;
+	}
+	qsort(ent, ne, sizeof *ent, cmp_u64);
+	uint64_t uniq = 0;
+	for (uint64_t i = 0; i < ne; i++)
+		if (uniq == 0 || ent[uniq - 1] != ent[i])
+			ent[uniq++] = ent[i];
+	struct graph *g = graph_from_pairs(n, pairs, k, NULL);
+	assert_non_null(g);
+	assert_graph_sane(g);
+	assert_int_equal(g->m, uniq / 2);
+	assert_int_equal(g->report.self_loops, loops);
+	assert_int_equal(g->report.duplicates, (ne - uniq) / 2);
+	uint64_t j = 0;
+	for (uint32_t u = 0; u < n; u++) {
+		for (uint64_t i = g->off[u]; i < g->off[u + 1]; i++, j++) {
+			assert_true(j < uniq);
+			assert_int_equal(ent[j] >> 32, u);
+			assert_int_equal(ent[j] & 0xffffffffu, g->adj[i]);
+		}
+	}
+	assert_int_equal(j, uniq);
+	graph_free(g);
+	free(pairs);
+	free(ent);
+}
+
 static void test_from_pairs_cleans_like_loading(void **state)
 {
 	(void)state;
@@ -1304,6 +1368,7 @@ int main(int argc, char **argv)
 		cmocka_unit_test(test_empty_file_is_a_graph_of_no_nodes),
 		cmocka_unit_test(test_long_lines_work_up_to_the_limit),
 		cmocka_unit_test(test_large_input_reads_alike_from_file_gz_and_pipe),
+		cmocka_unit_test(test_two_part_build_matches_sorted_unique_entries),
 		cmocka_unit_test(test_gz_cut_inside_a_large_file_is_an_error),
 		cmocka_unit_test(test_gml_keeps_labels_and_isolated_nodes),
 		cmocka_unit_test(test_graphml_keeps_names_and_isolated_nodes),

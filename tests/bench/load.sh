@@ -18,14 +18,14 @@ while [ $# -gt 0 ]; do
 done
 [ -x "$bt" ] || { echo "load.sh: no $bt (make $bt)" >&2; exit 2; }
 for f in "$@"; do
-	i=0 bw= bc= rss=
+	i=0 bw=1e9 bc=1e9 rss=0
 	while [ "$i" -lt "$reps" ]; do
 		out=$(/usr/bin/time -f "TIME %U %S %M" "$bt" load "$f" 2>&1) || { echo "$out" >&2; exit 1; }
 		w=$(echo "$out" | awk '$1 == "load_s" { print $2 }')
 		c=$(echo "$out" | awk '$1 == "TIME" { print $2 + $3 }')
 		rss=$(echo "$out" | awk '$1 == "peak_rss_mb" { print $2 }')
-		bw=$(echo "$bw $w" | awk '{ print ($1 == "" || $2 < $1) ? $2 : $1 }')
-		bc=$(echo "$bc $c" | awk '{ print ($1 == "" || $2 < $1) ? $2 : $1 }')
+		bw=$(echo "$bw $w" | awk '{ print ($2 < $1) ? $2 : $1 }')
+		bc=$(echo "$bc $c" | awk '{ print ($2 < $1) ? $2 : $1 }')
 		i=$((i + 1))
 	done
 	mb=$(wc -c <"$f" | awk '{ print $1 / 1e6 }')
