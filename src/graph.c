@@ -10,9 +10,11 @@
  * line, "name TAB name" with no other TAB and no NUL, is found in one pass
  * over 64 bytes at a time (the TABs, newlines and NULs as bit masks,
  * SSE2 where there is one); every other line goes through the general
- * splitter, which gives the same result for the usual line (the fast path
- * is only a shortcut; the fuzz target and a byte-for-byte comparison with
- * the splitter alone on hostile files check it). Each line is split in
+ * splitter. The fast path is only a shortcut: it takes a line only when
+ * the splitter would give the same two names (so not a comment, and not a
+ * blank line, which would start with a space), and it was checked to give
+ * the same graphs, counts and messages as the splitter alone on the bench
+ * graphs and on thousands of generated hostile files. Each line is split in
  * place:
  *   - a line holding a TAB is split on TABs only (names may hold spaces and
  *     commas, and are taken byte for byte);
