@@ -15,6 +15,7 @@
 #include <cmocka.h>
 
 #include <fcntl.h>
+#include <sys/wait.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -541,6 +542,160 @@ static void test_long_lines_work_up_to_the_limit(void **state)
 	assert_int_equal(captured_with("huge.tsv:2: expected a line of at most 16 MiB"), 1);
 }
 
+/* Load "-" with the bytes fed through a pipe by a child process, so the
+ * reader sees a pipe (read on the parser's own thread), not a file. */
+static struct graph *load_through_pipe(const char *data, size_t len)
+{
+	int fds[2];
+	assert_int_equal(pipe(fds), 0);
+	pid_t pid = fork();
+	assert_true(pid >= 0);
+	if (pid == 0) {
+		close(fds[0]);
+		size_t done = 0;
+		while (done < len) {
+			ssize_t w = write(fds[1], data + done, len - done);
+			if (w <= 0)
+				_exit(1);
+			done += (size_t)w;
+		}
+		_exit(0);
+	}
+	close(fds[1]);
+	int saved = dup(STDIN_FILENO);
+	assert_true(saved >= 0);
+	assert_int_equal(dup2(fds[0], STDIN_FILENO), STDIN_FILENO);
+	close(fds[0]);
+	struct graph *g = load("-", GRAPH_FORMAT_EDGES);
+	assert_int_equal(dup2(saved, STDIN_FILENO), STDIN_FILENO);
+	close(saved);
+	int status = 0;
+	assert_int_equal(waitpid(pid, &status, 0), pid);
+	return g;
+}
+
+static void test_large_input_reads_alike_from_file_gz_and_pipe(void **state)
+{
+	(void)state;
+	/* A cycle v0 - v1 - ... - v(N-1) - v0, one line per edge (v(i), v(i+1 mod N)),
+	 * several MiB: more than the loader's 1 MiB chunks, so lines straddle
+	 * them, and enough pairs for the CSR to be built in two parts. Mixed in:
+	 *   i % 7 == 0   the line ends in CRLF
+	 *   i % 11 == 0  the names are separated by a space, not a TAB
+	 *   i % 13 == 0  a third column (ignored, counted)
+	 *   i % 17 == 0  then the same edge reversed (a duplicate)
+	 *   i % 19 == 0  then a self-loop v(i) - v(i)
+	 *   i % 1000 == 0 a comment line before the edge
+	 * and at i == N/2 a line "LLL...L TAB v0" with a name of 3 MiB (longer
+	 * than a chunk). The last line has no newline. By hand: N + 1 nodes,
+	 * N + 1 edges, v0 of degree 3, the others of degree 2 (the long name 1). */
+	enum { N = 200000 };
+	size_t longlen = (size_t)3 << 20;
+	size_t cap = (size_t)N * 64 + longlen + 64;
+	char *text = malloc(cap);
+	assert_non_null(text);
+	size_t len = 0;
+	uint64_t lines = 0, extra = 0, dups = 0, loops = 0;
+	for (uint32_t i = 0; i < N; i++) {
+		uint32_t j = (i + 1) % N;
+		const char *sep = i % 11 == 0 ? " " : "\t";
+		if (i % 1000 == 0) {
+			len += (size_t)snprintf(text + len, cap - len, "# comment %u\n", i);
+			lines++;
+		}
+		if (i == N / 2) {
+			memset(text + len, 'L', longlen);
+			len += longlen;
+			len += (size_t)snprintf(text + len, cap - len, "\tv0\n");
+			lines++;
+		}
+		len += (size_t)snprintf(text + len, cap - len, "v%u%sv%u%s%s", i, sep, j,
+					i % 13 == 0 ? sep : "", i % 13 == 0 ? "w" : "");
+		extra += i % 13 == 0;
+		lines++;
+		if (i + 1 < N)
+			len += (size_t)snprintf(text + len, cap - len, "%s\n", i % 7 == 0 ? "\r" : "");
+		if (i % 17 == 0 && i + 1 < N) {
+			len += (size_t)snprintf(text + len, cap - len, "v%u\tv%u\n", j, i);
+			dups++;
+			lines++;
+		}
+		if (i % 19 == 0 && i + 1 < N) {
+			len += (size_t)snprintf(text + len, cap - len, "v%u\tv%u\n", i, i);
+			loops++;
+			lines++;
+		}
+	}
+	assert_true(len > ((size_t)5 << 20));
+	char plain[512];
+	snprintf(plain, sizeof plain, "%s", write_bytes("cycle.tsv", text, len));
+	char gz[512];
+	snprintf(gz, sizeof gz, "%s", write_gz("cycle.tsv.gz", text, len));
+
+	struct graph *g[3] = { load(plain, GRAPH_FORMAT_AUTO), load(gz, GRAPH_FORMAT_AUTO),
+			       load_through_pipe(text, len) };
+	free(text);
+	for (int k = 0; k < 3; k++) {
+		assert_non_null(g[k]);
+		assert_int_equal(g[k]->n, N + 1);
+		assert_int_equal(g[k]->m, N + 1);
+		assert_int_equal(g[k]->report.lines, lines);
+		assert_int_equal(g[k]->report.extra_columns, extra);
+		assert_int_equal(g[k]->report.duplicates, dups);
+		assert_int_equal(g[k]->report.self_loops, loops);
+		assert_int_equal(g[k]->report.edges_read, N + 1 + dups + loops);
+		assert_int_equal(strlen(g[k]->names[N / 2 + 1]), longlen);
+		/* ids by first appearance: v0 .. v(N/2) come first, then the long
+		 * name, then v(N/2 + 1) onwards */
+		for (uint32_t i = 0; i < N; i++) {
+			char name[16];
+			snprintf(name, sizeof name, "v%u", i);
+			int64_t id = graph_find(g[k], name);
+			assert_int_equal(id, i <= N / 2 ? i : i + 1);
+			uint32_t want = i == 0 ? 3 : 2;
+			assert_int_equal(graph_degree(g[k], (uint32_t)id), want);
+			snprintf(name, sizeof name, "v%u", (i + 1) % N);
+			assert_true(graph_has_edge(g[k], (uint32_t)id, (uint32_t)graph_find(g[k], name)));
+		}
+		assert_int_equal(graph_fingerprint(g[k]), graph_fingerprint(g[0]));
+	}
+	for (int k = 0; k < 3; k++)
+		graph_free(g[k]);
+}
+
+static void test_gz_cut_inside_a_large_file_is_an_error(void **state)
+{
+	(void)state;
+	/* 3 MiB of edge lines, compressed, cut in the middle: an error naming
+	 * the file, whichever chunk the reader was filling */
+	size_t cap = (size_t)3 << 20, len = 0;
+	char *text = malloc(cap + 32);
+	assert_non_null(text);
+	for (uint32_t i = 0; len < cap; i++)
+		len += (size_t)snprintf(text + len, cap + 32 - len, "%u\t%u\n", i % 100003,
+					(i * 7919u) % 100019);
+	char path[512];
+	snprintf(path, sizeof path, "%s", write_gz("bigcut.tsv.gz", text, len));
+	free(text);
+	FILE *f = fopen(path, "rb");
+	assert_non_null(f);
+	assert_int_equal(fseek(f, 0, SEEK_END), 0);
+	long size = ftell(f);
+	assert_true(size > 1000);
+	char *gzb = malloc((size_t)size);
+	assert_non_null(gzb);
+	rewind(f);
+	assert_int_equal(fread(gzb, 1, (size_t)size, f), (size_t)size);
+	fclose(f);
+	write_bytes("bigcut.tsv.gz", gzb, (size_t)size / 2);
+	free(gzb);
+	capture_start();
+	struct graph *g = graph_load(path, GRAPH_FORMAT_AUTO);
+	capture_stop();
+	assert_null(g);
+	assert_int_equal(captured_with("bigcut.tsv.gz': compressed data ends too early"), 1);
+}
+
 /* ---- igraph formats ---------------------------------------------------- */
 
 /* The graph of tests/data/graph/triangle-plus.*: triangle ann-bob-cy,
@@ -877,6 +1032,70 @@ static void test_find_and_has_edge(void **state)
 	graph_free(g);
 }
 
+static int cmp_u64(const void *a, const void *b)
+{
+	uint64_t x = *(const uint64_t *)a, y = *(const uint64_t *)b;
+	return x < y ? -1 : x > y;
+}
+
+static void test_two_part_build_matches_sorted_unique_entries(void **state)
+{
+	(void)state;
+	/* 200000 random records among 50000 nodes (enough for the CSR to be
+	 * built in two parts), with a hub at each end of the id range (rows
+	 * radix-sorted in both parts), repeats and self-loops; checked against
+	 * every (row, neighbour) entry of the records sorted with qsort and
+	 * made unique. */
+	const uint32_t n = 50000, k = 200000;
+	uint32_t *pairs = malloc(2 * (size_t)k * sizeof *pairs);
+	uint64_t *ent = malloc(2 * (size_t)k * sizeof *ent);
+	assert_non_null(pairs);
+	assert_non_null(ent);
+	struct rng r;
+	rng_init(&r, 11);
+	uint64_t ne = 0, loops = 0;
+	for (uint32_t i = 0; i < k; i++) {
+		uint32_t a = (uint32_t)rng_below(&r, n), b = (uint32_t)rng_below(&r, n);
+		if (i % 7 == 0)
+			a = i % 2 ? 0 : n - 1;         /* the hubs */
+		if (i % 11 == 0)
+			b = (uint32_t)rng_below(&r, 40); /* repeats */
+		if (i % 101 == 0)
+			b = a;                           /* self-loops */
+		pairs[2 * i] = a;
+		pairs[2 * i + 1] = b;
+		if (a == b) {
+			loops++;
+			continue;
+		}
+		ent[ne++] = (uint64_t)a << 32 | b;
+		ent[ne++] = (uint64_t)b << 32 | a;
+	}
+	qsort(ent, ne, sizeof *ent, cmp_u64);
+	uint64_t uniq = 0;
+	for (uint64_t i = 0; i < ne; i++)
+		if (uniq == 0 || ent[uniq - 1] != ent[i])
+			ent[uniq++] = ent[i];
+	struct graph *g = graph_from_pairs(n, pairs, k, NULL);
+	assert_non_null(g);
+	assert_graph_sane(g);
+	assert_int_equal(g->m, uniq / 2);
+	assert_int_equal(g->report.self_loops, loops);
+	assert_int_equal(g->report.duplicates, (ne - uniq) / 2);
+	uint64_t j = 0;
+	for (uint32_t u = 0; u < n; u++) {
+		for (uint64_t i = g->off[u]; i < g->off[u + 1]; i++, j++) {
+			assert_true(j < uniq);
+			assert_int_equal(ent[j] >> 32, u);
+			assert_int_equal(ent[j] & 0xffffffffu, g->adj[i]);
+		}
+	}
+	assert_int_equal(j, uniq);
+	graph_free(g);
+	free(pairs);
+	free(ent);
+}
+
 static void test_from_pairs_cleans_like_loading(void **state)
 {
 	(void)state;
@@ -1148,6 +1367,9 @@ int main(int argc, char **argv)
 		cmocka_unit_test(test_missing_file_is_an_error),
 		cmocka_unit_test(test_empty_file_is_a_graph_of_no_nodes),
 		cmocka_unit_test(test_long_lines_work_up_to_the_limit),
+		cmocka_unit_test(test_large_input_reads_alike_from_file_gz_and_pipe),
+		cmocka_unit_test(test_two_part_build_matches_sorted_unique_entries),
+		cmocka_unit_test(test_gz_cut_inside_a_large_file_is_an_error),
 		cmocka_unit_test(test_gml_keeps_labels_and_isolated_nodes),
 		cmocka_unit_test(test_graphml_keeps_names_and_isolated_nodes),
 		cmocka_unit_test(test_pajek_keeps_labels_and_isolated_nodes),
