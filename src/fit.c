@@ -299,13 +299,14 @@ static int publish(struct fit *f, enum fit_state state)
 		f->res_out = NULL;
 	}
 	s->stats = f->stats;
-	s->stats.rows = s->stats.trials = s->stats.visits = 0;
+	s->stats.rows = s->stats.trials = s->stats.visits = s->stats.entries = 0;
 	for (unsigned t = 0; t < f->nthreads; t++) {
 		uint64_t rows, trials, visits;
 		model_work_counts(f->work[t], &rows, &trials, &visits);
 		s->stats.rows += rows;
 		s->stats.trials += trials;
 		s->stats.visits += visits;
+		s->stats.entries += model_work_entries(f->work[t]);
 	}
 	double t_pub = util_now();
 	s->ntrace = f->ntrace;
