@@ -41,6 +41,7 @@
 #include <time.h>
 #include <unistd.h>
 
+#include "coterie/barrier.h"
 #include "coterie/graph.h"
 #include "coterie/order.h"
 #include "coterie/rng.h"
@@ -160,7 +161,7 @@ struct fit {
 	unsigned nthreads;
 	pthread_t *workers;
 	unsigned nworkers_started;
-	pthread_barrier_t bar_start, bar_end;
+	struct barrier bar_start, bar_end; /* spin, then sleep (barrier.h) */
 	int barriers;
 	enum job job;
 	const uint32_t *block;
@@ -440,11 +441,11 @@ static void *worker_main(void *arg)
 	if (go < 0)
 		return NULL;
 	for (;;) {
-		pthread_barrier_wait(&f->bar_start);
+		barrier_wait(&f->bar_start);
 		if (f->job == JOB_QUIT)
 			break;
 		run_job(f, tid);
-		pthread_barrier_wait(&f->bar_end);
+		barrier_wait(&f->bar_end);
 	}
 	return NULL;
 }
@@ -457,10 +458,10 @@ static void pool_run(struct fit *f)
 	atomic_store(&f->next, 0);
 	int alone = f->job == JOB_ROWS ? f->block_len < POOL_MIN_ROWS : f->nparts < 2;
 	if (f->nthreads > 1 && !alone)
-		pthread_barrier_wait(&f->bar_start);
+		barrier_wait(&f->bar_start);
 	run_job(f, 0);
 	if (f->nthreads > 1 && !alone)
-		pthread_barrier_wait(&f->bar_end);
+		barrier_wait(&f->bar_end);
 }
 
 /* Start the workers. They wait on `pool_go` until the barriers exist, so
@@ -492,10 +493,12 @@ static int pool_start(struct fit *f)
 	f->nthreads = f->nworkers_started + 1;
 	int rc = 0;
 	if (f->nthreads > 1) {
-		if (pthread_barrier_init(&f->bar_start, NULL, f->nthreads) ||
-		    pthread_barrier_init(&f->bar_end, NULL, f->nthreads))
-			rc = error("cannot set up the worker threads");
-		else
+		if (barrier_init(&f->bar_start, f->nthreads))
+			rc = -1;
+		else if (barrier_init(&f->bar_end, f->nthreads)) {
+			barrier_destroy(&f->bar_start);
+			rc = -1;
+		} else
 			f->barriers = 1;
 	}
 	pthread_mutex_lock(&f->lock);
@@ -515,14 +518,14 @@ static void pool_stop(struct fit *f)
 {
 	if (f->nworkers_started > 0) {
 		f->job = JOB_QUIT;
-		pthread_barrier_wait(&f->bar_start);
+		barrier_wait(&f->bar_start);
 		for (unsigned t = 1; t <= f->nworkers_started; t++)
 			pthread_join(f->workers[t], NULL);
 		f->nworkers_started = 0;
 	}
 	if (f->barriers) {
-		pthread_barrier_destroy(&f->bar_start);
-		pthread_barrier_destroy(&f->bar_end);
+		barrier_destroy(&f->bar_start);
+		barrier_destroy(&f->bar_end);
 		f->barriers = 0;
 	}
 }

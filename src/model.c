@@ -304,6 +304,12 @@ struct model_work {
 	double *dv;       /* per-neighbour dir . F_v */
 	size_t wv_cap;
 	double *dir;      /* dense free direction over candidates */
+	/* the live candidates (a positive strength or a positive gradient;
+	 * the others stay at zero in every trial), packed in candidate
+	 * order so the trials stream through them */
+	uint32_t nlive;
+	uint32_t *lc;     /* their communities */
+	double *lcur, *lacc, *loth, *ltrial; /* F_u, gradient, others' sum, trial */
 	struct fentry *out; /* the accepted row */
 	uint64_t rows, trials, visits; /* counters for model_work_counts() */
 	uint64_t entries; /* neighbour entries read by gradient passes */
@@ -336,8 +342,13 @@ struct model_work *model_work_new(uint32_t k)
 	w->cand = util_calloc(k, sizeof *w->cand);
 	w->out = util_calloc(k, sizeof *w->out);
 	w->dir = util_calloc(k, sizeof *w->dir);
+	w->lc = util_calloc(k, sizeof *w->lc);
+	w->lcur = util_calloc(k, sizeof *w->lcur);
+	w->lacc = util_calloc(k, sizeof *w->lacc);
+	w->loth = util_calloc(k, sizeof *w->loth);
+	w->ltrial = util_calloc(k, sizeof *w->ltrial);
 	if (!w->cur || !w->trial || !w->nbrsum || !w->acc || !w->stamp || !w->cand || !w->out ||
-	    !w->dir) {
+	    !w->dir || !w->lc || !w->lcur || !w->lacc || !w->loth || !w->ltrial) {
 		model_work_free(w);
 		return NULL;
 	}
@@ -358,11 +369,16 @@ void model_work_free(struct model_work *w)
 	free(w->xv);
 	free(w->dv);
 	free(w->dir);
+	free(w->lc);
+	free(w->lcur);
+	free(w->lacc);
+	free(w->loth);
+	free(w->ltrial);
 	free(w->out);
 	free(w);
 }
 
-static void add_candidate(struct model_work *w, uint32_t c)
+static inline void add_candidate(struct model_work *w, uint32_t c)
 {
 	if (w->stamp[c] != w->epoch) {
 		w->stamp[c] = w->epoch;
@@ -606,32 +622,36 @@ static int cmp_u32(const void *a, const void *b)
 	return (x > y) - (x < y);
 }
 
-/* w->trial = the projected step of the given length; returns 1 when it
- * clipped a strength the free direction would not have (when lin). */
+/* w->ltrial = the projected step of the given length over the live
+ * candidates; returns 1 when it clipped a strength the free direction
+ * would not have (when lin). The other candidates would stay at zero and
+ * add exactly zero to gd, so leaving them out changes no bit. */
 static int set_trial(const struct model *m, struct model_work *w, double step, int lin,
 		     int *moved, double *gd)
 {
-	int clipped = 0;
-	*gd = 0.0;
-	*moved = 0;
-	for (uint32_t i = 0; i < w->ncand; i++) {
-		uint32_t c = w->cand[i];
-		double v = w->cur[c] + step * w->acc[c];
-		if (v < m->floor)
+	int clipped = 0, mv = 0;
+	double s = 0.0, floor = m->floor;
+	const double *cur = w->lcur, *acc = w->lacc;
+	double *trial = w->ltrial;
+	for (uint32_t i = 0; i < w->nlive; i++) {
+		double free_v = cur[i] + step * acc[i]; /* the free direction is acc here */
+		double v = free_v;
+		if (v < floor)
 			v = 0.0;
 		if (v > MODEL_FMAX)
 			v = MODEL_FMAX;
-		w->trial[c] = v;
-		*gd += w->acc[c] * (v - w->cur[c]);
-		*moved |= v != w->cur[c];
-		if (lin && v != w->cur[c] + step * w->dir[c])
-			clipped = 1;
+		trial[i] = v;
+		s += acc[i] * (v - cur[i]);
+		mv |= v != cur[i];
+		clipped |= v != free_v;
 	}
-	return clipped;
+	*gd = s;
+	*moved = mv;
+	return lin && clipped;
 }
 
 /* The row objective at the projected step of the given length (into
- * w->trial): from the x_v and d_v when nothing was clipped, else by
+ * w->ltrial): from the x_v and d_v when nothing was clipped, else by
  * reading the neighbour rows again. The linear part comes first; every
  * edge term is negative, so once the running sum falls below `need` the
  * trial has failed whatever the other neighbours add, and the rest is
@@ -647,15 +667,15 @@ static double eval_trial(const struct model *m, const struct graph *g, uint32_t 
 		return 0.0;
 	w->trials++;
 	double f1 = 0.0;
-	for (uint32_t i = 0; i < w->ncand; i++) {
-		uint32_t c = w->cand[i];
-		if (w->trial[c] != 0.0)
-			f1 -= w->trial[c] * (m->colsum[c] - w->cur[c] - w->nbrsum[c]);
-	}
+	for (uint32_t i = 0; i < w->nlive; i++)
+		if (w->ltrial[i] != 0.0)
+			f1 -= w->ltrial[i] * w->loth[i];
 	need = fmax(need + ARMIJO_SIGMA * *gd, need);
 	uint32_t deg = graph_degree(g, u);
 	uint32_t i = 0;
 	if (!lin || clipped) {
+		for (uint32_t j = 0; j < w->nlive; j++)
+			w->trial[w->lc[j]] = w->ltrial[j];
 		const uint32_t *adj = g->adj + g->off[u];
 		for (; i < deg && f1 >= need; i++)
 			f1 += model_log1mexp(dense_dot(w->trial, &m->rows[adj[i]]) + m->qeps);
@@ -684,6 +704,17 @@ int model_update_row(const struct model *m, const struct graph *g, uint32_t u,
 		if (fabs(w->acc[w->cand[i]]) > gmax)
 			gmax = fabs(w->acc[w->cand[i]]);
 	double step = gmax > STEP_REACH ? STEP_REACH / gmax : 1.0;
+	w->nlive = 0;
+	for (uint32_t i = 0; i < w->ncand; i++) {
+		uint32_t c = w->cand[i];
+		if (w->cur[c] == 0.0 && w->acc[c] <= 0.0)
+			continue;
+		uint32_t l = w->nlive++;
+		w->lc[l] = c;
+		w->lcur[l] = w->cur[c];
+		w->lacc[l] = w->acc[c];
+		w->loth[l] = m->colsum[c] - w->cur[c] - w->nbrsum[c];
+	}
 	uint32_t deg = graph_degree(g, u);
 	const uint32_t *adj = g->adj + g->off[u];
 	/* The free direction: the gradient, except where a zero strength
@@ -723,9 +754,11 @@ int model_update_row(const struct model *m, const struct graph *g, uint32_t u,
 	/* keep the positive entries, then sort those few by community (the
 	 * candidates are many more than the entries kept) */
 	uint32_t o = 0;
-	for (uint32_t i = 0; i < w->ncand; i++)
-		if (w->trial[w->cand[i]] > 0.0)
-			w->cand[o++] = w->cand[i];
+	for (uint32_t i = 0; i < w->nlive; i++)
+		if (w->ltrial[i] > 0.0) {
+			w->trial[w->lc[i]] = w->ltrial[i];
+			w->cand[o++] = w->lc[i];
+		}
 	if (o > 32)
 		qsort(w->cand, o, sizeof *w->cand, cmp_u32);
 	else

@@ -244,7 +244,7 @@ static int cmd_fit(int argc, char **argv)
 	printf("last_ns_per_visit\t%.2f\n", lns);
 	printf("last_entries_per_visit\t%.3f\n",
 	       ladj > 0 ? (double)(last.entries - prev.entries) / ladj : 0.0);
-	printf("loglik\t%.6g\n", s->ntrace ? s->trace[s->ntrace - 1].loglik : 0.0);
+	printf("loglik\t%.10g\n", s->ntrace ? s->trace[s->ntrace - 1].loglik : 0.0);
 	printf("communities\t%u\n", s->agm.cover.k);
 	printf("strength_entries\t%llu\n", (unsigned long long)s->F.off[s->F.n]);
 	printf("peak_rss_mb\t%.1f\n", peak_rss_kb() / 1024.0);
