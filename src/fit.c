@@ -103,6 +103,10 @@ struct arena {
 
 enum job { JOB_ROWS, JOB_LOGLIK, JOB_QUIT };
 
+struct blockgen;
+struct fit;
+static uint32_t block_next(struct fit *f, struct blockgen *bg, uint32_t *blk);
+
 struct best;
 
 struct fit {
@@ -171,7 +175,10 @@ struct fit {
 	struct arena *arena;
 	struct rowres *res;
 	uint32_t *mark; /* block membership and neighbourhood marks */
-	uint32_t *blk;  /* the nodes of the current block */
+	uint32_t *blk;  /* two buffers of BLOCK_NODES: the current block and the next */
+	struct blockgen *gen; /* set: pool_run() cuts the next block into gen_out */
+	uint32_t *gen_out;
+	uint32_t gen_len;
 	uint32_t *pend; /* two lists of PEND_MAX nodes waiting for a block */
 	uint32_t epoch;
 	struct model_llpart *parts;
@@ -459,6 +466,10 @@ static void pool_run(struct fit *f)
 	int alone = f->job == JOB_ROWS ? f->block_len < POOL_MIN_ROWS : f->nparts < 2;
 	if (f->nthreads > 1 && !alone)
 		barrier_wait(&f->bar_start);
+	if (f->job == JOB_ROWS && f->gen) { /* the next block, while the workers start on this one */
+		f->gen_len = block_next(f, f->gen, f->gen_out);
+		f->gen = NULL;
+	}
 	run_job(f, 0);
 	if (f->nthreads > 1 && !alone)
 		barrier_wait(&f->bar_end);
@@ -581,16 +592,57 @@ static int wait_while_paused(struct fit *f)
 	return atomic_load(&f->stop_req);
 }
 
-/* One sweep; returns 1 if interrupted by a stop request, -1 on error. */
+/* The cutting of a sweep's permutation into blocks: where it stands. */
+struct blockgen {
+	const uint32_t *perm;
+	uint32_t n, cap, pos, npend;
+	uint32_t *pend, *next; /* PEND_MAX nodes each */
+};
+
 /* Put u in the block at index i and mark it and its neighbours. */
-static void block_add(struct fit *f, uint32_t u, uint32_t i)
+static void block_add(struct fit *f, uint32_t *blk, uint32_t u, uint32_t i)
 {
-	f->blk[i] = u;
+	blk[i] = u;
 	f->mark[u] = f->epoch;
 	for (uint64_t e = f->gw->off[u]; e < f->gw->off[u + 1]; e++)
 		f->mark[f->gw->adj[e]] = f->epoch;
 }
 
+/* The next block into blk; returns its length, 0 when the sweep is done
+ * (a block is never empty before then: its first node is always taken).
+ * It reads only the graph and the permutation, never the model, so it
+ * may run while rows are being computed. */
+static uint32_t block_next(struct fit *f, struct blockgen *bg, uint32_t *blk)
+{
+	if (bg->pos >= bg->n && bg->npend == 0)
+		return 0;
+	if (++f->epoch == 0) {
+		memset(f->mark, 0, bg->n * sizeof *f->mark);
+		f->epoch = 1;
+	}
+	uint32_t nb = 0, nnext = 0, cap = bg->cap;
+	for (uint32_t j = 0; j < bg->npend; j++) {
+		uint32_t u = bg->pend[j];
+		if (nb < cap && f->mark[u] != f->epoch)
+			block_add(f, blk, u, nb++);
+		else
+			bg->next[nnext++] = u;
+	}
+	while (nb < cap && bg->pos < bg->n && nnext < PEND_MAX) {
+		uint32_t u = bg->perm[bg->pos++];
+		if (f->mark[u] == f->epoch)
+			bg->next[nnext++] = u;
+		else
+			block_add(f, blk, u, nb++);
+	}
+	uint32_t *swap = bg->pend;
+	bg->pend = bg->next;
+	bg->next = swap;
+	bg->npend = nnext;
+	return nb;
+}
+
+/* One sweep; returns 1 if interrupted by a stop request, -1 on error. */
 static int sweep_once(struct fit *f, uint32_t *perm)
 {
 	uint32_t n = f->gw->n;
@@ -608,35 +660,18 @@ static int sweep_once(struct fit *f, uint32_t *perm)
 		cap = BLOCK_NODES;
 	/* a node adjacent to one already in the block waits (in order) for a
 	 * later block, so blocks stay large however dense the graph */
-	uint32_t pos = 0, npend = 0;
-	uint32_t *pend = f->pend, *next = f->pend + PEND_MAX;
-	while (pos < n || npend > 0) {
+	struct blockgen bg = { perm, n, cap, 0, 0, f->pend, f->pend + PEND_MAX };
+	/* two block buffers: the fitting thread cuts the next block while
+	 * the pool computes the rows of this one (pool_run) */
+	uint32_t cur = 0;
+	uint32_t nb = block_next(f, &bg, f->blk);
+	while (nb > 0) {
 		if (wait_while_paused(f))
 			return 1;
-		if (++f->epoch == 0) {
-			memset(f->mark, 0, n * sizeof *f->mark);
-			f->epoch = 1;
-		}
-		uint32_t nb = 0, nnext = 0;
-		for (uint32_t j = 0; j < npend; j++) {
-			uint32_t u = pend[j];
-			if (nb < cap && f->mark[u] != f->epoch)
-				block_add(f, u, nb++);
-			else
-				next[nnext++] = u;
-		}
-		while (nb < cap && pos < n && nnext < PEND_MAX) {
-			uint32_t u = perm[pos++];
-			if (f->mark[u] == f->epoch)
-				next[nnext++] = u;
-			else
-				block_add(f, u, nb++);
-		}
-		uint32_t *swap = pend;
-		pend = next;
-		next = swap;
-		npend = nnext;
-		f->block = f->blk;
+		f->gen = &bg;
+		f->gen_out = f->blk + (1 - cur) * BLOCK_NODES;
+		f->gen_len = 0;
+		f->block = f->blk + cur * BLOCK_NODES;
 		f->block_len = nb;
 		for (unsigned t = 0; t < f->nthreads; t++)
 			f->arena[t].len = 0;
@@ -651,6 +686,8 @@ static int sweep_once(struct fit *f, uint32_t *perm)
 			if (model_set_row(&f->m, f->block[j], f->arena[rr->owner].e + rr->at, rr->nnz))
 				return -1;
 		}
+		nb = f->gen_len;
+		cur = 1 - cur;
 	}
 	return 0;
 }
@@ -1208,7 +1245,7 @@ struct fit *fit_new(const struct graph *g, const struct fit_params *p,
 	f->nparts = (g->n + LL_CHUNK - 1) / LL_CHUNK;
 	f->parts = util_calloc(f->nparts, sizeof *f->parts);
 	f->mark = util_calloc(g->n, sizeof *f->mark);
-	f->blk = util_calloc(BLOCK_NODES, sizeof *f->blk);
+	f->blk = util_calloc(2 * BLOCK_NODES, sizeof *f->blk);
 	f->pend = util_calloc(2 * PEND_MAX, sizeof *f->pend);
 	if (!f->work || !f->arena || !f->res || !f->parts || !f->mark || !f->blk || !f->pend)
 		goto fail;

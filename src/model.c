@@ -507,12 +507,14 @@ static double gather_gradient(const struct model *m, const struct graph *g, uint
 	const uint32_t *adj = g->adj + g->off[u];
 	uint32_t deg = graph_degree(g, u);
 	int keep = grow_scratch(w, deg);
+	/* the rows of later neighbours are fetched ahead: the row headers
+	 * PF_FAR neighbours on (the first ones all at once), the entries
+	 * PF_NEAR on (by then the header is in cache); without this every
+	 * neighbour costs two dependent cache misses, which the log() calls
+	 * between them keep the processor from overlapping */
+	for (uint32_t i = 0; i < deg && i < PF_FAR; i++)
+		__builtin_prefetch(&m->rows[adj[i]]);
 	for (uint32_t i = 0; i < deg; i++) {
-		/* the rows of later neighbours are fetched ahead: the row
-		 * header PF_FAR neighbours on, its entries PF_NEAR on (by then
-		 * the header is in cache); without this every neighbour costs
-		 * two dependent cache misses, which the log() calls between
-		 * them keep the processor from overlapping */
 		if (i + PF_FAR < deg)
 			__builtin_prefetch(&m->rows[adj[i + PF_FAR]]);
 		if (i + PF_NEAR < deg)
