@@ -408,6 +408,18 @@ static void run_job(struct fit *f, unsigned tid)
 			if (i >= f->block_len)
 				break;
 			uint32_t u = f->block[i];
+			/* the rows ahead in the block: their adjacency and own
+			 * strengths are cold (blocks are scattered over the graph) */
+			if (i + 2 < f->block_len) {
+				uint32_t u2 = f->block[i + 2];
+				__builtin_prefetch(&f->gw->off[u2]);
+				__builtin_prefetch(&f->m.rows[u2]);
+			}
+			if (i + 1 < f->block_len) {
+				uint32_t u1 = f->block[i + 1];
+				__builtin_prefetch(f->gw->adj + f->gw->off[u1]);
+				__builtin_prefetch(f->m.rows[u1].e);
+			}
 			const struct fentry *row;
 			uint32_t nnz;
 			struct rowres *r = &f->res[i];
