@@ -24,7 +24,11 @@
  * random node order, doing per visit only the memory accesses a visit
  * needs: read v's row, a sparse dot product with u's row held densely,
  * and a scatter of v's row into a dense accumulator. Both run on one
- * thread when the fit has -j 1.
+ * thread when the fit has -j 1. The yardstick reads the final strengths,
+ * which are sparser than those of the first sweeps (rows fill up after
+ * seeding and thin out again), so the like-for-like figure is the last
+ * sweep's (last_ns_per_visit, last_visit_ratio); the entries per
+ * neighbour row met on either side are printed beside them.
  */
 #include <igraph.h>
 #include <zlib.h>
