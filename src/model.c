@@ -38,6 +38,8 @@
 #define ARMIJO_TRIES 16
 #define STEP_REACH 10.0 /* largest change of a strength in a first trial step */
 #define X_FLOOR 1e-12 /* smallest x + qeps used in a gradient weight */
+#define PROD_CHUNK 8u  /* edge terms of the gradient pass multiplied before one log() */
+#define TRIAL_CHUNK 4u /* the same in a trial (its early exit is checked per chunk) */
 #define PF_FAR 8u  /* neighbours ahead whose row header is prefetched */
 #define PF_NEAR 4u /* neighbours ahead whose row entries are prefetched */
 
@@ -503,7 +505,8 @@ static double gather_gradient(const struct model *m, const struct graph *g, uint
 		w->cur[ru->e[i].c] = ru->e[i].v;
 	}
 	uint32_t epoch = w->epoch;
-	double f = 0.0, qeps = m->qeps;
+	double f = 0.0, qeps = m->qeps, q = 1.0;
+	unsigned nq = 0;
 	const uint32_t *adj = g->adj + g->off[u];
 	uint32_t deg = graph_degree(g, u);
 	int keep = grow_scratch(w, deg);
@@ -540,9 +543,15 @@ static double gather_gradient(const struct model *m, const struct graph *g, uint
 		}
 		x += qeps;
 		/* one expm1 gives both the weight and the objective's term:
-		 * 1 - e^-x = em / (em + 1), so log(1 - e^-x) = -log1p(1 / em) */
+		 * 1 - e^-x = 1 / (1 + 1 / em); the terms are multiplied
+		 * PROD_CHUNK at a time and the product's log taken once */
 		double wt = 1.0 / expm1(x > X_FLOOR ? x : X_FLOOR);
-		f -= log1p(wt);
+		q *= 1.0 / (1.0 + wt);
+		if (++nq == PROD_CHUNK) {
+			f += log(q);
+			q = 1.0;
+			nq = 0;
+		}
 		for (uint32_t j = 0; j < nnz; j++)
 			w->acc[e[j].c] += e[j].v * wt;
 		if (keep) {
@@ -550,6 +559,8 @@ static double gather_gradient(const struct model *m, const struct graph *g, uint
 			w->wv[i] = wt;
 		}
 	}
+	if (nq)
+		f += log(q);
 	w->visits += deg;
 	if (m->excl)
 		for (uint64_t i = m->excl->off[u]; i < m->excl->off[u + 1]; i++) {
@@ -652,6 +663,12 @@ static int set_trial(const struct model *m, struct model_work *w, double step, i
 	return lin && clipped;
 }
 
+/* 1 - e^-y, 0 unless y > 0 (its log is then -inf, as model_log1mexp's) */
+static inline double one_minus_exp(double y)
+{
+	return y > 0.0 ? -expm1(-y) : 0.0;
+}
+
 /* The row objective at the projected step of the given length (into
  * w->ltrial): from the x_v and d_v when nothing was clipped, else by
  * reading the neighbour rows again. The linear part comes first; every
@@ -659,7 +676,10 @@ static int set_trial(const struct model *m, struct model_work *w, double step, i
  * trial has failed whatever the other neighbours add, and the rest is
  * skipped (the value returned is then only an upper bound, below need).
  * Most trials of the backtracking fail, and most fail after a few
- * neighbours. */
+ * neighbours. The edge terms are taken TRIAL_CHUNK at a time as the log
+ * of a product of the 1 - e^-y (each in (0, 1], so four cannot
+ * underflow), one log() per chunk instead of one per neighbour; the
+ * early exit is checked after each chunk. */
 static double eval_trial(const struct model *m, const struct graph *g, uint32_t u,
 			 struct model_work *w, int lin, double step, double need, int *moved,
 			 double *gd)
@@ -679,13 +699,23 @@ static double eval_trial(const struct model *m, const struct graph *g, uint32_t 
 		for (uint32_t j = 0; j < w->nlive; j++)
 			w->trial[w->lc[j]] = w->ltrial[j];
 		const uint32_t *adj = g->adj + g->off[u];
-		for (; i < deg && f1 >= need; i++)
-			f1 += model_log1mexp(dense_dot(w->trial, &m->rows[adj[i]]) + m->qeps);
+		while (i < deg && f1 >= need) {
+			uint32_t end = deg - i > TRIAL_CHUNK ? i + TRIAL_CHUNK : deg;
+			double q = 1.0;
+			for (; i < end; i++)
+				q *= one_minus_exp(dense_dot(w->trial, &m->rows[adj[i]]) + m->qeps);
+			f1 += log(q);
+		}
 		w->visits += i;
 		return f1;
 	}
-	for (; i < deg && f1 >= need; i++)
-		f1 += model_log1mexp(w->xv[i] + step * w->dv[i]);
+	while (i < deg && f1 >= need) {
+		uint32_t end = deg - i > TRIAL_CHUNK ? i + TRIAL_CHUNK : deg;
+		double q = 1.0;
+		for (; i < end; i++)
+			q *= one_minus_exp(w->xv[i] + step * w->dv[i]);
+		f1 += log(q);
+	}
 	return f1;
 }
 
