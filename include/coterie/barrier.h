@@ -6,8 +6,8 @@
  * wake-up and a trip through the scheduler each time, which on small
  * graphs is as long as the block itself; spinning for a few tens of
  * microseconds first lets a waiter that is still on its core leave as
- * soon as the last thread arrives. Past BARRIER_SPIN_NS the waiter
- * sleeps on a condition variable, so long gaps (the likelihood, the
+ * soon as the last thread arrives. Past the spin (at most BARRIER_SPIN_NS,
+ * shorter while spins keep failing: see barrier.c) the waiter sleeps on a condition variable, so long gaps (the likelihood, the
  * snapshots between sweeps, a paused fit) cost no CPU.
  *
  * Owner: fit.c's pool. All memory written before barrier_wait() by any
@@ -19,12 +19,13 @@
 #include <pthread.h>
 #include <stdatomic.h>
 
-#define BARRIER_SPIN_NS 50000.0 /* spin this long before sleeping */
+#define BARRIER_SPIN_NS 50000.0 /* spin at most this long before sleeping */
 
 struct barrier {
 	unsigned n;           /* threads that meet */
 	atomic_uint count;    /* arrived in the current round */
 	atomic_uint round;    /* rounds completed */
+	_Atomic double spin_ns; /* how long a waiter spins now (adapts; a heuristic) */
 	unsigned sleepers;    /* under mu */
 	pthread_mutex_t mu;
 	pthread_cond_t cv;
