@@ -21,7 +21,11 @@
  * them. Updating linked nodes together (Jacobi) oscillates on small dense
  * graphs; this keeps the sweep close to one-node-at-a-time (Gauss-Seidel).
  * The likelihood is summed over fixed node ranges in a fixed order. So the
- * bytes out depend on the seed, never on the thread count.
+ * bytes out depend on the seed, never on the thread count. Cutting a
+ * block reads only the graph and the permutation, so the fitting thread
+ * cuts the next block while the pool computes the rows of the current
+ * one (pool_run), and the barriers spin briefly before they sleep
+ * (barrier.h): on small graphs a block takes well under a millisecond.
  *
  * Control. pause/stop/extend are atomics read between blocks; a paused or
  * holding fit sleeps on a condition variable. The one thing a newcomer
