@@ -636,15 +636,15 @@ static int cmp_u32(const void *a, const void *b)
 }
 
 /* w->ltrial = the projected step of the given length over the live
- * candidates; returns 1 when it clipped a strength the free direction
+ * candidates, *linear = the row objective's linear part there; returns 1 when it clipped a strength the free direction
  * would not have (when lin). The other candidates would stay at zero and
  * add exactly zero to gd, so leaving them out changes no bit. */
 static int set_trial(const struct model *m, struct model_work *w, double step, int lin,
-		     int *moved, double *gd)
+		     int *moved, double *gd, double *linear)
 {
 	int clipped = 0, mv = 0;
-	double s = 0.0, floor = m->floor;
-	const double *cur = w->lcur, *acc = w->lacc;
+	double s = 0.0, l = 0.0, floor = m->floor;
+	const double *cur = w->lcur, *acc = w->lacc, *oth = w->loth;
 	double *trial = w->ltrial;
 	for (uint32_t i = 0; i < w->nlive; i++) {
 		double free_v = cur[i] + step * acc[i]; /* the free direction is acc here */
@@ -655,10 +655,12 @@ static int set_trial(const struct model *m, struct model_work *w, double step, i
 			v = MODEL_FMAX;
 		trial[i] = v;
 		s += acc[i] * (v - cur[i]);
+		l -= v * oth[i]; /* a zero v subtracts a zero: the sum is as if skipped */
 		mv |= v != cur[i];
 		clipped |= v != free_v;
 	}
 	*gd = s;
+	*linear = l;
 	*moved = mv;
 	return lin && clipped;
 }
@@ -684,14 +686,11 @@ static double eval_trial(const struct model *m, const struct graph *g, uint32_t 
 			 struct model_work *w, int lin, double step, double need, int *moved,
 			 double *gd)
 {
-	int clipped = set_trial(m, w, step, lin, moved, gd);
+	double f1;
+	int clipped = set_trial(m, w, step, lin, moved, gd, &f1);
 	if (!*moved)
 		return 0.0;
 	w->trials++;
-	double f1 = 0.0;
-	for (uint32_t i = 0; i < w->nlive; i++)
-		if (w->ltrial[i] != 0.0)
-			f1 -= w->ltrial[i] * w->loth[i];
 	need = fmax(need + ARMIJO_SIGMA * *gd, need);
 	uint32_t deg = graph_degree(g, u);
 	uint32_t i = 0;
