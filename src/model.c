@@ -310,6 +310,7 @@ struct model_work {
 	 * the others stay at zero in every trial), packed in candidate
 	 * order so the trials stream through them */
 	uint32_t nlive;
+	double gmax;      /* the largest |gradient| over the candidates */
 	uint32_t *lc;     /* their communities */
 	double *lcur, *lacc, *loth, *ltrial; /* F_u, gradient, others' sum, trial */
 	struct fentry *out; /* the accepted row */
@@ -570,12 +571,34 @@ static double gather_gradient(const struct model *m, const struct graph *g, uint
 				w->nbrsum[rv->e[j].c] += rv->e[j].v;
 			}
 		}
+	/* the gradient's last term, and in the same pass the largest
+	 * gradient, the free direction (dir: the gradient, except where a
+	 * zero strength would only be pushed below zero) and the live
+	 * candidates (those with a nonzero dir) packed for the trials */
+	double gmax = 0.0;
+	uint32_t nlive = 0;
 	for (uint32_t i = 0; i < w->ncand; i++) {
 		uint32_t c = w->cand[i];
-		double others = m->colsum[c] - w->cur[c] - w->nbrsum[c];
-		w->acc[c] -= others;
-		f -= w->cur[c] * others;
+		double cur = w->cur[c];
+		double others = m->colsum[c] - cur - w->nbrsum[c];
+		double a = w->acc[c] - others;
+		w->acc[c] = a;
+		f -= cur * others;
+		if (fabs(a) > gmax)
+			gmax = fabs(a);
+		if (cur == 0.0 && a <= 0.0) {
+			w->dir[c] = 0.0;
+			continue;
+		}
+		w->dir[c] = a;
+		w->lc[nlive] = c;
+		w->lcur[nlive] = cur;
+		w->lacc[nlive] = a;
+		w->loth[nlive] = others;
+		nlive++;
 	}
+	w->nlive = nlive;
+	w->gmax = gmax;
 	return f;
 }
 
@@ -730,22 +753,8 @@ int model_update_row(const struct model *m, const struct graph *g, uint32_t u,
 	 * with an empty row next to a community sees a gradient of about
 	 * 1 / expm1(qeps) ~ 1 / epsilon, and a unit step would shoot to the
 	 * cap and cost a dozen halvings of log() over every neighbour */
-	double gmax = 0.0;
-	for (uint32_t i = 0; i < w->ncand; i++)
-		if (fabs(w->acc[w->cand[i]]) > gmax)
-			gmax = fabs(w->acc[w->cand[i]]);
+	double gmax = w->gmax; /* gather_gradient() found it, the live candidates and dir */
 	double step = gmax > STEP_REACH ? STEP_REACH / gmax : 1.0;
-	w->nlive = 0;
-	for (uint32_t i = 0; i < w->ncand; i++) {
-		uint32_t c = w->cand[i];
-		if (w->cur[c] == 0.0 && w->acc[c] <= 0.0)
-			continue;
-		uint32_t l = w->nlive++;
-		w->lc[l] = c;
-		w->lcur[l] = w->cur[c];
-		w->lacc[l] = w->acc[c];
-		w->loth[l] = m->colsum[c] - w->cur[c] - w->nbrsum[c];
-	}
 	uint32_t deg = graph_degree(g, u);
 	const uint32_t *adj = g->adj + g->off[u];
 	/* The free direction: the gradient, except where a zero strength
@@ -756,10 +765,6 @@ int model_update_row(const struct model *m, const struct graph *g, uint32_t u,
 	 * from x_v and d_v without reading the rows again. */
 	int lin = deg <= w->wv_cap;
 	if (lin) {
-		for (uint32_t i = 0; i < w->ncand; i++) {
-			uint32_t c = w->cand[i];
-			w->dir[c] = w->cur[c] == 0.0 && w->acc[c] <= 0.0 ? 0.0 : w->acc[c];
-		}
 		for (uint32_t i = 0; i < deg; i++)
 			w->dv[i] = dense_dot(w->dir, &m->rows[adj[i]]);
 		w->visits += deg;
