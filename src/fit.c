@@ -20,7 +20,11 @@
  * rows computed together interact only through the column sums, and only by a small share of
  * them. Updating linked nodes together (Jacobi) oscillates on small dense
  * graphs; this keeps the sweep close to one-node-at-a-time (Gauss-Seidel).
- * So the bytes out depend on the seed, never on the thread count.
+ * So the bytes out depend on the seed, never on the thread count. Cutting a
+ * block reads only the graph and the permutation, so the fitting thread
+ * cuts the next block while the pool computes the rows of the current
+ * one (pool_run), and the barriers spin briefly before they sleep
+ * (barrier.h): on small graphs a block takes well under a millisecond.
  *
  * The likelihood. The trace's value after a sweep is not recomputed (that
  * cost 48 s of a 324 s fit at 10^6 nodes): the fitting thread adds up,
@@ -52,6 +56,7 @@
 #include <time.h>
 #include <unistd.h>
 
+#include "coterie/barrier.h"
 #include "coterie/graph.h"
 #include "coterie/order.h"
 #include "coterie/rng.h"
@@ -114,6 +119,10 @@ struct arena {
 
 enum job { JOB_ROWS, JOB_LOGLIK, JOB_QUIT };
 
+struct blockgen;
+struct fit;
+static uint32_t block_next(struct fit *f, struct blockgen *bg, uint32_t *blk);
+
 struct best;
 
 struct fit {
@@ -172,7 +181,7 @@ struct fit {
 	unsigned nthreads;
 	pthread_t *workers;
 	unsigned nworkers_started;
-	pthread_barrier_t bar_start, bar_end;
+	struct barrier bar_start, bar_end; /* spin, then sleep (barrier.h) */
 	int barriers;
 	enum job job;
 	const uint32_t *block;
@@ -182,7 +191,10 @@ struct fit {
 	struct arena *arena;
 	struct rowres *res;
 	uint32_t *mark; /* block membership and neighbourhood marks */
-	uint32_t *blk;  /* the nodes of the current block */
+	uint32_t *blk;  /* two buffers of BLOCK_NODES: the current block and the next */
+	struct blockgen *gen; /* set: pool_run() cuts the next block into gen_out */
+	uint32_t *gen_out;
+	uint32_t gen_len;
 	uint32_t *pend; /* two lists of PEND_MAX nodes waiting for a block */
 	uint32_t epoch;
 	struct model_llpart *parts;
@@ -319,13 +331,14 @@ static int publish(struct fit *f, enum fit_state state)
 		f->res_out = NULL;
 	}
 	s->stats = f->stats;
-	s->stats.rows = s->stats.trials = s->stats.visits = 0;
+	s->stats.rows = s->stats.trials = s->stats.visits = s->stats.entries = 0;
 	for (unsigned t = 0; t < f->nthreads; t++) {
 		uint64_t rows, trials, visits;
 		model_work_counts(f->work[t], &rows, &trials, &visits);
 		s->stats.rows += rows;
 		s->stats.trials += trials;
 		s->stats.visits += visits;
+		s->stats.entries += model_work_entries(f->work[t]);
 	}
 	double t_pub = util_now();
 	s->ntrace = f->ntrace;
@@ -420,6 +433,18 @@ static void run_job(struct fit *f, unsigned tid)
 			if (i >= f->block_len)
 				break;
 			uint32_t u = f->block[i];
+			/* the rows ahead in the block: their adjacency and own
+			 * strengths are cold (blocks are scattered over the graph) */
+			if (i + 2 < f->block_len) {
+				uint32_t u2 = f->block[i + 2];
+				__builtin_prefetch(&f->gw->off[u2]);
+				__builtin_prefetch(&f->m.rows[u2]);
+			}
+			if (i + 1 < f->block_len) {
+				uint32_t u1 = f->block[i + 1];
+				__builtin_prefetch(f->gw->adj + f->gw->off[u1]);
+				__builtin_prefetch(f->m.rows[u1].e);
+			}
 			const struct fentry *row;
 			uint32_t nnz;
 			struct rowres *r = &f->res[i];
@@ -461,11 +486,11 @@ static void *worker_main(void *arg)
 	if (go < 0)
 		return NULL;
 	for (;;) {
-		pthread_barrier_wait(&f->bar_start);
+		barrier_wait(&f->bar_start);
 		if (f->job == JOB_QUIT)
 			break;
 		run_job(f, tid);
-		pthread_barrier_wait(&f->bar_end);
+		barrier_wait(&f->bar_end);
 	}
 	return NULL;
 }
@@ -478,10 +503,14 @@ static void pool_run(struct fit *f)
 	atomic_store(&f->next, 0);
 	int alone = f->job == JOB_ROWS ? f->block_len < POOL_MIN_ROWS : f->nparts < 2;
 	if (f->nthreads > 1 && !alone)
-		pthread_barrier_wait(&f->bar_start);
+		barrier_wait(&f->bar_start);
+	if (f->job == JOB_ROWS && f->gen) { /* the next block, while the workers start on this one */
+		f->gen_len = block_next(f, f->gen, f->gen_out);
+		f->gen = NULL;
+	}
 	run_job(f, 0);
 	if (f->nthreads > 1 && !alone)
-		pthread_barrier_wait(&f->bar_end);
+		barrier_wait(&f->bar_end);
 }
 
 /* Start the workers. They wait on `pool_go` until the barriers exist, so
@@ -513,10 +542,12 @@ static int pool_start(struct fit *f)
 	f->nthreads = f->nworkers_started + 1;
 	int rc = 0;
 	if (f->nthreads > 1) {
-		if (pthread_barrier_init(&f->bar_start, NULL, f->nthreads) ||
-		    pthread_barrier_init(&f->bar_end, NULL, f->nthreads))
-			rc = error("cannot set up the worker threads");
-		else
+		if (barrier_init(&f->bar_start, f->nthreads))
+			rc = -1;
+		else if (barrier_init(&f->bar_end, f->nthreads)) {
+			barrier_destroy(&f->bar_start);
+			rc = -1;
+		} else
 			f->barriers = 1;
 	}
 	pthread_mutex_lock(&f->lock);
@@ -536,14 +567,14 @@ static void pool_stop(struct fit *f)
 {
 	if (f->nworkers_started > 0) {
 		f->job = JOB_QUIT;
-		pthread_barrier_wait(&f->bar_start);
+		barrier_wait(&f->bar_start);
 		for (unsigned t = 1; t <= f->nworkers_started; t++)
 			pthread_join(f->workers[t], NULL);
 		f->nworkers_started = 0;
 	}
 	if (f->barriers) {
-		pthread_barrier_destroy(&f->bar_start);
-		pthread_barrier_destroy(&f->bar_end);
+		barrier_destroy(&f->bar_start);
+		barrier_destroy(&f->bar_end);
 		f->barriers = 0;
 	}
 }
@@ -599,11 +630,17 @@ static int wait_while_paused(struct fit *f)
 	return atomic_load(&f->stop_req);
 }
 
-/* One sweep; returns 1 if interrupted by a stop request, -1 on error. */
+/* The cutting of a sweep's permutation into blocks: where it stands. */
+struct blockgen {
+	const uint32_t *perm;
+	uint32_t n, cap, pos, npend;
+	uint32_t *pend, *next; /* PEND_MAX nodes each */
+};
+
 /* Put u in the block at index i and mark it and its neighbours. */
-static void block_add(struct fit *f, uint32_t u, uint32_t i)
+static void block_add(struct fit *f, uint32_t *blk, uint32_t u, uint32_t i)
 {
-	f->blk[i] = u;
+	blk[i] = u;
 	f->mark[u] = f->epoch;
 	for (uint64_t e = f->gw->off[u]; e < f->gw->off[u + 1]; e++)
 		f->mark[f->gw->adj[e]] = f->epoch;
@@ -696,6 +733,41 @@ static double block_gain(struct fit *f)
 	return gain - cross;
 }
 
+/* The next block into blk; returns its length, 0 when the sweep is done
+ * (a block is never empty before then: its first node is always taken).
+ * It reads only the graph and the permutation, never the model, so it
+ * may run while rows are being computed. */
+static uint32_t block_next(struct fit *f, struct blockgen *bg, uint32_t *blk)
+{
+	if (bg->pos >= bg->n && bg->npend == 0)
+		return 0;
+	if (++f->epoch == 0) {
+		memset(f->mark, 0, bg->n * sizeof *f->mark);
+		f->epoch = 1;
+	}
+	uint32_t nb = 0, nnext = 0, cap = bg->cap;
+	for (uint32_t j = 0; j < bg->npend; j++) {
+		uint32_t u = bg->pend[j];
+		if (nb < cap && f->mark[u] != f->epoch)
+			block_add(f, blk, u, nb++);
+		else
+			bg->next[nnext++] = u;
+	}
+	while (nb < cap && bg->pos < bg->n && nnext < PEND_MAX) {
+		uint32_t u = bg->perm[bg->pos++];
+		if (f->mark[u] == f->epoch)
+			bg->next[nnext++] = u;
+		else
+			block_add(f, blk, u, nb++);
+	}
+	uint32_t *swap = bg->pend;
+	bg->pend = bg->next;
+	bg->next = swap;
+	bg->npend = nnext;
+	return nb;
+}
+
+/* One sweep; returns 1 if interrupted by a stop request, -1 on error. */
 static int sweep_once(struct fit *f, uint32_t *perm)
 {
 	uint32_t n = f->gw->n;
@@ -713,35 +785,18 @@ static int sweep_once(struct fit *f, uint32_t *perm)
 		cap = BLOCK_NODES;
 	/* a node adjacent to one already in the block waits (in order) for a
 	 * later block, so blocks stay large however dense the graph */
-	uint32_t pos = 0, npend = 0;
-	uint32_t *pend = f->pend, *next = f->pend + PEND_MAX;
-	while (pos < n || npend > 0) {
+	struct blockgen bg = { perm, n, cap, 0, 0, f->pend, f->pend + PEND_MAX };
+	/* two block buffers: the fitting thread cuts the next block while
+	 * the pool computes the rows of this one (pool_run) */
+	uint32_t cur = 0;
+	uint32_t nb = block_next(f, &bg, f->blk);
+	while (nb > 0) {
 		if (wait_while_paused(f))
 			return 1;
-		if (++f->epoch == 0) {
-			memset(f->mark, 0, n * sizeof *f->mark);
-			f->epoch = 1;
-		}
-		uint32_t nb = 0, nnext = 0;
-		for (uint32_t j = 0; j < npend; j++) {
-			uint32_t u = pend[j];
-			if (nb < cap && f->mark[u] != f->epoch)
-				block_add(f, u, nb++);
-			else
-				next[nnext++] = u;
-		}
-		while (nb < cap && pos < n && nnext < PEND_MAX) {
-			uint32_t u = perm[pos++];
-			if (f->mark[u] == f->epoch)
-				next[nnext++] = u;
-			else
-				block_add(f, u, nb++);
-		}
-		uint32_t *swap = pend;
-		pend = next;
-		next = swap;
-		npend = nnext;
-		f->block = f->blk;
+		f->gen = &bg;
+		f->gen_out = f->blk + (1 - cur) * BLOCK_NODES;
+		f->gen_len = 0;
+		f->block = f->blk + cur * BLOCK_NODES;
 		f->block_len = nb;
 		for (unsigned t = 0; t < f->nthreads; t++)
 			f->arena[t].len = 0;
@@ -757,6 +812,8 @@ static int sweep_once(struct fit *f, uint32_t *perm)
 			if (model_set_row(&f->m, f->block[j], f->arena[rr->owner].e + rr->at, rr->nnz))
 				return -1;
 		}
+		nb = f->gen_len;
+		cur = 1 - cur;
 	}
 	return 0;
 }
@@ -1344,7 +1401,7 @@ struct fit *fit_new(const struct graph *g, const struct fit_params *p,
 	f->nparts = (g->n + LL_CHUNK - 1) / LL_CHUNK;
 	f->parts = util_calloc(f->nparts, sizeof *f->parts);
 	f->mark = util_calloc(g->n, sizeof *f->mark);
-	f->blk = util_calloc(BLOCK_NODES, sizeof *f->blk);
+	f->blk = util_calloc(2 * BLOCK_NODES, sizeof *f->blk);
 	f->pend = util_calloc(2 * PEND_MAX, sizeof *f->pend);
 	f->ll_col = util_calloc(p->k, sizeof *f->ll_col);
 	f->ll_stamp = util_calloc(p->k, sizeof *f->ll_stamp);

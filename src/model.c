@@ -38,6 +38,10 @@
 #define ARMIJO_TRIES 16
 #define STEP_REACH 10.0 /* largest change of a strength in a first trial step */
 #define X_FLOOR 1e-12 /* smallest x + qeps used in a gradient weight */
+#define PROD_CHUNK 8u  /* edge terms of the gradient pass multiplied before one log() */
+#define TRIAL_CHUNK 4u /* the same in a trial (its early exit is checked per chunk) */
+#define PF_FAR 8u  /* neighbours ahead whose row header is prefetched */
+#define PF_NEAR 4u /* neighbours ahead whose row entries are prefetched */
 
 double model_default_epsilon(const struct graph *g)
 {
@@ -302,9 +306,17 @@ struct model_work {
 	double *dv;       /* per-neighbour dir . F_v */
 	size_t wv_cap;
 	double *dir;      /* dense free direction over candidates */
+	/* the live candidates (a positive strength or a positive gradient;
+	 * the others stay at zero in every trial), packed in candidate
+	 * order so the trials stream through them */
+	uint32_t nlive;
+	double gmax;      /* the largest |gradient| over the candidates */
+	uint32_t *lc;     /* their communities */
+	double *lcur, *lacc, *loth, *ltrial; /* F_u, gradient, others' sum, trial */
 	struct fentry *out; /* the accepted row */
 	double gain;      /* f1 - f0 of the last accepted row (model_work_gain()) */
 	uint64_t rows, trials, visits; /* counters for model_work_counts() */
+	uint64_t entries; /* neighbour entries read by gradient passes */
 };
 
 double model_work_gain(const struct model_work *w)
@@ -317,6 +329,10 @@ int model_gain_exact(const struct model *m)
 	/* every x = F_u . F_v + qeps is then above the floor that
 	 * gather_gradient() puts under the weight's x */
 	return m->qeps > X_FLOOR;
+
+uint64_t model_work_entries(const struct model_work *w)
+{
+	return w->entries;
 }
 
 void model_work_counts(const struct model_work *w, uint64_t *rows, uint64_t *trials,
@@ -341,8 +357,13 @@ struct model_work *model_work_new(uint32_t k)
 	w->cand = util_calloc(k, sizeof *w->cand);
 	w->out = util_calloc(k, sizeof *w->out);
 	w->dir = util_calloc(k, sizeof *w->dir);
+	w->lc = util_calloc(k, sizeof *w->lc);
+	w->lcur = util_calloc(k, sizeof *w->lcur);
+	w->lacc = util_calloc(k, sizeof *w->lacc);
+	w->loth = util_calloc(k, sizeof *w->loth);
+	w->ltrial = util_calloc(k, sizeof *w->ltrial);
 	if (!w->cur || !w->trial || !w->nbrsum || !w->acc || !w->stamp || !w->cand || !w->out ||
-	    !w->dir) {
+	    !w->dir || !w->lc || !w->lcur || !w->lacc || !w->loth || !w->ltrial) {
 		model_work_free(w);
 		return NULL;
 	}
@@ -363,11 +384,16 @@ void model_work_free(struct model_work *w)
 	free(w->xv);
 	free(w->dv);
 	free(w->dir);
+	free(w->lc);
+	free(w->lcur);
+	free(w->lacc);
+	free(w->loth);
+	free(w->ltrial);
 	free(w->out);
 	free(w);
 }
 
-static void add_candidate(struct model_work *w, uint32_t c)
+static inline void add_candidate(struct model_work *w, uint32_t c)
 {
 	if (w->stamp[c] != w->epoch) {
 		w->stamp[c] = w->epoch;
@@ -492,14 +518,27 @@ static double gather_gradient(const struct model *m, const struct graph *g, uint
 		w->cur[ru->e[i].c] = ru->e[i].v;
 	}
 	uint32_t epoch = w->epoch;
-	double f = 0.0, qeps = m->qeps;
+	double f = 0.0, qeps = m->qeps, q = 1.0;
+	unsigned nq = 0;
 	const uint32_t *adj = g->adj + g->off[u];
 	uint32_t deg = graph_degree(g, u);
 	int keep = grow_scratch(w, deg);
+	/* the rows of later neighbours are fetched ahead: the row headers
+	 * PF_FAR neighbours on (the first ones all at once), the entries
+	 * PF_NEAR on (by then the header is in cache); without this every
+	 * neighbour costs two dependent cache misses, which the log() calls
+	 * between them keep the processor from overlapping */
+	for (uint32_t i = 0; i < deg && i < PF_FAR; i++)
+		__builtin_prefetch(&m->rows[adj[i]]);
 	for (uint32_t i = 0; i < deg; i++) {
+		if (i + PF_FAR < deg)
+			__builtin_prefetch(&m->rows[adj[i + PF_FAR]]);
+		if (i + PF_NEAR < deg)
+			__builtin_prefetch(m->rows[adj[i + PF_NEAR]].e);
 		const struct frow *rv = &m->rows[adj[i]];
 		const struct fentry *e = rv->e;
 		uint32_t nnz = rv->nnz;
+		w->entries += nnz;
 		double x = 0.0;
 		for (uint32_t j = 0; j < nnz; j++) {
 			uint32_t c = e[j].c;
@@ -517,9 +556,15 @@ static double gather_gradient(const struct model *m, const struct graph *g, uint
 		}
 		x += qeps;
 		/* one expm1 gives both the weight and the objective's term:
-		 * 1 - e^-x = em / (em + 1), so log(1 - e^-x) = -log1p(1 / em) */
+		 * 1 - e^-x = 1 / (1 + 1 / em); the terms are multiplied
+		 * PROD_CHUNK at a time and the product's log taken once */
 		double wt = 1.0 / expm1(x > X_FLOOR ? x : X_FLOOR);
-		f -= log1p(wt);
+		q *= 1.0 / (1.0 + wt);
+		if (++nq == PROD_CHUNK) {
+			f += log(q);
+			q = 1.0;
+			nq = 0;
+		}
 		for (uint32_t j = 0; j < nnz; j++)
 			w->acc[e[j].c] += e[j].v * wt;
 		if (keep) {
@@ -527,6 +572,8 @@ static double gather_gradient(const struct model *m, const struct graph *g, uint
 			w->wv[i] = wt;
 		}
 	}
+	if (nq)
+		f += log(q);
 	w->visits += deg;
 	if (m->excl)
 		for (uint64_t i = m->excl->off[u]; i < m->excl->off[u + 1]; i++) {
@@ -536,12 +583,34 @@ static double gather_gradient(const struct model *m, const struct graph *g, uint
 				w->nbrsum[rv->e[j].c] += rv->e[j].v;
 			}
 		}
+	/* the gradient's last term, and in the same pass the largest
+	 * gradient, the free direction (dir: the gradient, except where a
+	 * zero strength would only be pushed below zero) and the live
+	 * candidates (those with a nonzero dir) packed for the trials */
+	double gmax = 0.0;
+	uint32_t nlive = 0;
 	for (uint32_t i = 0; i < w->ncand; i++) {
 		uint32_t c = w->cand[i];
-		double others = m->colsum[c] - w->cur[c] - w->nbrsum[c];
-		w->acc[c] -= others;
-		f -= w->cur[c] * others;
+		double cur = w->cur[c];
+		double others = m->colsum[c] - cur - w->nbrsum[c];
+		double a = w->acc[c] - others;
+		w->acc[c] = a;
+		f -= cur * others;
+		if (fabs(a) > gmax)
+			gmax = fabs(a);
+		if (cur == 0.0 && a <= 0.0) {
+			w->dir[c] = 0.0;
+			continue;
+		}
+		w->dir[c] = a;
+		w->lc[nlive] = c;
+		w->lcur[nlive] = cur;
+		w->lacc[nlive] = a;
+		w->loth[nlive] = others;
+		nlive++;
 	}
+	w->nlive = nlive;
+	w->gmax = gmax;
 	return f;
 }
 
@@ -601,64 +670,86 @@ static int cmp_u32(const void *a, const void *b)
 	return (x > y) - (x < y);
 }
 
-/* w->trial = the projected step of the given length; returns 1 when it
- * clipped a strength the free direction would not have (when lin). */
+/* w->ltrial = the projected step of the given length over the live
+ * candidates, *linear = the row objective's linear part there; returns 1 when it clipped a strength the free direction
+ * would not have (when lin). The other candidates would stay at zero and
+ * add exactly zero to gd, so leaving them out changes no bit. */
 static int set_trial(const struct model *m, struct model_work *w, double step, int lin,
-		     int *moved, double *gd)
+		     int *moved, double *gd, double *linear)
 {
-	int clipped = 0;
-	*gd = 0.0;
-	*moved = 0;
-	for (uint32_t i = 0; i < w->ncand; i++) {
-		uint32_t c = w->cand[i];
-		double v = w->cur[c] + step * w->acc[c];
-		if (v < m->floor)
+	int clipped = 0, mv = 0;
+	double s = 0.0, l = 0.0, floor = m->floor;
+	const double *cur = w->lcur, *acc = w->lacc, *oth = w->loth;
+	double *trial = w->ltrial;
+	for (uint32_t i = 0; i < w->nlive; i++) {
+		double free_v = cur[i] + step * acc[i]; /* the free direction is acc here */
+		double v = free_v;
+		if (v < floor)
 			v = 0.0;
 		if (v > MODEL_FMAX)
 			v = MODEL_FMAX;
-		w->trial[c] = v;
-		*gd += w->acc[c] * (v - w->cur[c]);
-		*moved |= v != w->cur[c];
-		if (lin && v != w->cur[c] + step * w->dir[c])
-			clipped = 1;
+		trial[i] = v;
+		s += acc[i] * (v - cur[i]);
+		l -= v * oth[i]; /* a zero v subtracts a zero: the sum is as if skipped */
+		mv |= v != cur[i];
+		clipped |= v != free_v;
 	}
-	return clipped;
+	*gd = s;
+	*linear = l;
+	*moved = mv;
+	return lin && clipped;
+}
+
+/* 1 - e^-y, 0 unless y > 0 (its log is then -inf, as model_log1mexp's) */
+static inline double one_minus_exp(double y)
+{
+	return y > 0.0 ? -expm1(-y) : 0.0;
 }
 
 /* The row objective at the projected step of the given length (into
- * w->trial): from the x_v and d_v when nothing was clipped, else by
+ * w->ltrial): from the x_v and d_v when nothing was clipped, else by
  * reading the neighbour rows again. The linear part comes first; every
  * edge term is negative, so once the running sum falls below `need` the
  * trial has failed whatever the other neighbours add, and the rest is
  * skipped (the value returned is then only an upper bound, below need).
  * Most trials of the backtracking fail, and most fail after a few
- * neighbours. */
+ * neighbours. The edge terms are taken TRIAL_CHUNK at a time as the log
+ * of a product of the 1 - e^-y (each in (0, 1], so four cannot
+ * underflow), one log() per chunk instead of one per neighbour; the
+ * early exit is checked after each chunk. */
 static double eval_trial(const struct model *m, const struct graph *g, uint32_t u,
 			 struct model_work *w, int lin, double step, double need, int *moved,
 			 double *gd)
 {
-	int clipped = set_trial(m, w, step, lin, moved, gd);
+	double f1;
+	int clipped = set_trial(m, w, step, lin, moved, gd, &f1);
 	if (!*moved)
 		return 0.0;
 	w->trials++;
-	double f1 = 0.0;
-	for (uint32_t i = 0; i < w->ncand; i++) {
-		uint32_t c = w->cand[i];
-		if (w->trial[c] != 0.0)
-			f1 -= w->trial[c] * (m->colsum[c] - w->cur[c] - w->nbrsum[c]);
-	}
 	need = fmax(need + ARMIJO_SIGMA * *gd, need);
 	uint32_t deg = graph_degree(g, u);
 	uint32_t i = 0;
 	if (!lin || clipped) {
+		for (uint32_t j = 0; j < w->nlive; j++)
+			w->trial[w->lc[j]] = w->ltrial[j];
 		const uint32_t *adj = g->adj + g->off[u];
-		for (; i < deg && f1 >= need; i++)
-			f1 += model_log1mexp(dense_dot(w->trial, &m->rows[adj[i]]) + m->qeps);
+		while (i < deg && f1 >= need) {
+			uint32_t end = deg - i > TRIAL_CHUNK ? i + TRIAL_CHUNK : deg;
+			double q = 1.0;
+			for (; i < end; i++)
+				q *= one_minus_exp(dense_dot(w->trial, &m->rows[adj[i]]) + m->qeps);
+			f1 += log(q);
+		}
 		w->visits += i;
 		return f1;
 	}
-	for (; i < deg && f1 >= need; i++)
-		f1 += model_log1mexp(w->xv[i] + step * w->dv[i]);
+	while (i < deg && f1 >= need) {
+		uint32_t end = deg - i > TRIAL_CHUNK ? i + TRIAL_CHUNK : deg;
+		double q = 1.0;
+		for (; i < end; i++)
+			q *= one_minus_exp(w->xv[i] + step * w->dv[i]);
+		f1 += log(q);
+	}
 	return f1;
 }
 
@@ -674,10 +765,7 @@ int model_update_row(const struct model *m, const struct graph *g, uint32_t u,
 	 * with an empty row next to a community sees a gradient of about
 	 * 1 / expm1(qeps) ~ 1 / epsilon, and a unit step would shoot to the
 	 * cap and cost a dozen halvings of log() over every neighbour */
-	double gmax = 0.0;
-	for (uint32_t i = 0; i < w->ncand; i++)
-		if (fabs(w->acc[w->cand[i]]) > gmax)
-			gmax = fabs(w->acc[w->cand[i]]);
+	double gmax = w->gmax; /* gather_gradient() found it, the live candidates and dir */
 	double step = gmax > STEP_REACH ? STEP_REACH / gmax : 1.0;
 	uint32_t deg = graph_degree(g, u);
 	const uint32_t *adj = g->adj + g->off[u];
@@ -689,10 +777,6 @@ int model_update_row(const struct model *m, const struct graph *g, uint32_t u,
 	 * from x_v and d_v without reading the rows again. */
 	int lin = deg <= w->wv_cap;
 	if (lin) {
-		for (uint32_t i = 0; i < w->ncand; i++) {
-			uint32_t c = w->cand[i];
-			w->dir[c] = w->cur[c] == 0.0 && w->acc[c] <= 0.0 ? 0.0 : w->acc[c];
-		}
 		for (uint32_t i = 0; i < deg; i++)
 			w->dv[i] = dense_dot(w->dir, &m->rows[adj[i]]);
 		w->visits += deg;
@@ -721,9 +805,11 @@ int model_update_row(const struct model *m, const struct graph *g, uint32_t u,
 	/* keep the positive entries, then sort those few by community (the
 	 * candidates are many more than the entries kept) */
 	uint32_t o = 0;
-	for (uint32_t i = 0; i < w->ncand; i++)
-		if (w->trial[w->cand[i]] > 0.0)
-			w->cand[o++] = w->cand[i];
+	for (uint32_t i = 0; i < w->nlive; i++)
+		if (w->ltrial[i] > 0.0) {
+			w->trial[w->lc[i]] = w->ltrial[i];
+			w->cand[o++] = w->lc[i];
+		}
 	if (o > 32)
 		qsort(w->cand, o, sizeof *w->cand, cmp_u32);
 	else

@@ -94,6 +94,7 @@ struct fit_stats {
 	uint64_t rows;          /* row updates computed */
 	uint64_t trials;        /* line-search trials evaluated */
 	uint64_t visits;        /* neighbour rows read (model_work_counts()) */
+	uint64_t entries;       /* their entries read in gradient passes (model_work_entries()) */
 };
 
 /* An immutable picture of the fit after a sweep. Take one with

@@ -135,6 +135,10 @@ void model_work_free(struct model_work *w);
  * trial count deg(u)). */
 void model_work_counts(const struct model_work *w, uint64_t *rows, uint64_t *trials,
 		       uint64_t *visits);
+/* Strength entries of neighbour rows read by the gradient passes (each
+ * row's first pass over its neighbours), for benchmarks: over the visits
+ * counted in a sweep, the density the fit actually met. */
+uint64_t model_work_entries(const struct model_work *w);
 
 /* The row objective of u if its row were r (nnz entries): the terms of
  * l(F) that involve u, namely

@@ -70,8 +70,8 @@ table=$work/table.md
 notes=$work/notes.md
 : >"$notes"
 {
-	echo "| graph | nodes | edges | k | load s | MB/s | seed s | s/sweep | sweeps | fit s | peak MB | ONMI | ns/visit | yardstick ns | ratio | j2/j1 | Leiden s | fit/Leiden |"
-	echo "|---|---|---|---|---|---|---|---|---|---|---|---|---|---|---|---|---|---|"
+	echo "| graph | nodes | edges | k | load s | MB/s | seed s | s/sweep | sweeps | fit s | peak MB | ONMI | ns/visit | yardstick ns | ratio | last ratio | j2/j1 | Leiden s | fit/Leiden |"
+	echo "|---|---|---|---|---|---|---|---|---|---|---|---|---|---|---|---|---|---|---|"
 } >"$table"
 
 # bench LABEL GRAPH K TRUTH MAXSWEEPS SCALESWEEPS
@@ -94,21 +94,23 @@ bench()
 	onmi=$(get "$f.fit" onmi)
 	sweeps="$(get "$f.fit" sweeps)"
 	[ "$(get "$f.fit" state)" = finished ] && sweeps="$sweeps (limit)"
-	printf '| %s | %s | %s | %s | %s | %s | %s | %s | %s | %s | %s | %s | %s | %s | %s | %s | %s | %s |\n' \
+	printf '| %s | %s | %s | %s | %s | %s | %s | %s | %s | %s | %s | %s | %s | %s | %s | %s | %s | %s | %s |\n' \
 		"$label" "$(get "$f.fit" nodes)" "$(get "$f.fit" edges)" "$k" \
 		"$(get "$f.fit" load_s)" "$(get "$f.fit" load_mbps)" "$(get "$f.fit" seed_s)" \
 		"$(get "$f.fit" sweep_s)" "$sweeps" "$(get "$f.fit" fit_s)" \
 		"$(get "$f.fit" peak_rss_mb)" "${onmi:--}" \
 		"$(get "$f.j1" ns_per_visit)" "$(get "$f.j1" yard_ns_per_visit)" \
-		"$(get "$f.j1" visit_ratio)" \
+		"$(get "$f.j1" visit_ratio)" "$(get "$f.j1" last_visit_ratio)" \
 		"$(div "$(get "$f.j1" sweep_s)" "$(get "$f.j2" sweep_s)")" \
 		"$(get "$f.leiden" leiden_s)" \
 		"$(div "$(get "$f.fit" fit_s)" "$(get "$f.leiden" leiden_s)" %.1f)" >>"$table"
-	printf -- '- %s: loglik %s, %s communities, state %s; fit CPU %s s; time split: sweeps %s s, likelihood %s s, snapshots %s s, final snapshot and the rest %s s; line-search trials per row %s, neighbour-row reads per visit %s\n' \
+	printf -- '- %s: loglik %s, %s communities, state %s; fit CPU %s s; time split: sweeps %s s, likelihood %s s, snapshots %s s, final snapshot and the rest %s s; line-search trials per row %s, neighbour-row reads per visit %s; entries per neighbour row met at -j 1 %s (last sweep %s), in the yardstick %s\n' \
 		"$label" "$(get "$f.fit" loglik)" "$(get "$f.fit" communities)" \
 		"$(get "$f.fit" state)" "$(get "$f.fit" fit_cpu_s)" "$(get "$f.fit" sweeps_s_total)" \
 		"$(get "$f.fit" loglik_s_total)" "$(get "$f.fit" publish_s_total)" "$(get "$f.fit" other_s)" \
-		"$(get "$f.fit" trials_per_row)" "$(get "$f.fit" reads_per_visit)" >>"$notes"
+		"$(get "$f.fit" trials_per_row)" "$(get "$f.fit" reads_per_visit)" \
+		"$(get "$f.j1" entries_per_visit)" "$(get "$f.j1" last_entries_per_visit)" \
+		"$(get "$f.j1" yard_entries_per_visit)" >>"$notes"
 }
 
 largest=
