@@ -329,6 +329,7 @@ int model_gain_exact(const struct model *m)
 	/* every x = F_u . F_v + qeps is then above the floor that
 	 * gather_gradient() puts under the weight's x */
 	return m->qeps > X_FLOOR;
+}
 
 uint64_t model_work_entries(const struct model_work *w)
 {
