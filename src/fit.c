@@ -34,9 +34,10 @@
  * equals a recompute up to rounding (relative 1e-13 to 1e-11 in
  * tests/test_fit_loglik.c, no growth seen over 143 sweeps on email-Enron).
  * l(F) is computed afresh (compute_loglik(): fixed node ranges summed in
- * a fixed order) for the seeded model, after each reseeding move, and
- * when a start levels off or runs its sweeps (settle()), so the value that
- * picks the best start and is reported is exact, except after a stop.
+ * a fixed order) for the seeded model and after each reseeding move, and
+ * only there: a start that levelled off or ran its sweeps keeps its summed
+ * value, because a fit resumed from it (or extended past the plateau) must
+ * add on to the very bits the uninterrupted fit added to.
  *
  * Control. pause/stop/extend are atomics read between blocks; a paused or
  * holding fit sleeps on a condition variable. The one thing a newcomer
@@ -882,18 +883,6 @@ static enum fit_state run_start(struct fit *f, uint32_t *perm, int extend)
 	return FIT_FINISHED;
 }
 
-/* A start that levelled off or ran its sweeps: its last trace point, so
- * far summed sweep by sweep (run_start()), becomes l(F) recomputed
- * exactly, so that the value that picks the best start and is reported is
- * exact. Not after a stop: a fit resumed from there goes on adding to the
- * summed value, as the uninterrupted fit did. */
-static enum fit_state settle(struct fit *f, enum fit_state st)
-{
-	if ((st == FIT_LEVELLED || st == FIT_FINISHED) && f->ntrace > 0)
-		f->trace[f->ntrace - 1].loglik = compute_loglik(f);
-	return st;
-}
-
 /* A levelled fit that should hold: publish, wait for fit_extend() or
  * fit_stop(), and on extend go on fitting past plateaus. */
 static enum fit_state hold(struct fit *f, uint32_t *perm)
@@ -908,7 +897,7 @@ static enum fit_state hold(struct fit *f, uint32_t *perm)
 		return FIT_LEVELLED;
 	set_state(f, FIT_FITTING);
 	publish(f, FIT_FITTING);
-	return settle(f, run_start(f, perm, 1));
+	return run_start(f, perm, 1);
 }
 
 /*
@@ -1230,7 +1219,7 @@ static void *fit_main(void *arg)
 
 	if (f->resumed) {
 		publish(f, FIT_FITTING);
-		final = settle(f, run_start(f, perm, 1));
+		final = run_start(f, perm, 1);
 		if (final == FIT_LEVELLED && f->p.hold_at_plateau)
 			final = hold(f, perm);
 		goto out;
@@ -1302,7 +1291,6 @@ static void *fit_main(void *arg)
 		}
 		if (st == FIT_STOPPED)
 			keep_resume(f, &best, climbed ? &climb : NULL);
-		settle(f, st);
 		if (climbed == 2) {
 			fcsr_release(&climb.F);
 			free(climb.trace);
