@@ -151,19 +151,21 @@ static uint32_t shared(const struct index *ix, uint32_t u, uint32_t v, uint32_t 
  * the estimate then costs O(k + pairs of the overlapping edges) a pass. */
 static int index_edges(struct index *ix, const struct graph *g)
 {
-	uint64_t total = 0;
+	uint64_t total = 0, ecap = 1024, ccap = 2048;
 	uint32_t most = 1; /* the most communities one node is in */
 	for (uint32_t u = 0; u < ix->n; u++)
 		if (ix->noff[u + 1] - ix->noff[u] > most)
 			most = (uint32_t)(ix->noff[u + 1] - ix->noff[u]);
 	uint32_t *common = util_malloc(most, sizeof *common);
 	ix->solo = util_calloc(ix->k ? ix->k : 1, sizeof *ix->solo);
-	if (!common || !ix->solo) {
-		free(common);
-		return -1;
-	}
+	ix->eoff = util_malloc(ecap, sizeof *ix->eoff);
+	ix->ecom = util_malloc(ccap, sizeof *ix->ecom);
+	ix->coff = util_calloc((size_t)ix->k + 1, sizeof *ix->coff);
+	if (!common || !ix->solo || !ix->eoff || !ix->ecom || !ix->coff)
+		goto fail;
 	ix->ne = 0;
 	ix->lonely = 0;
+	ix->eoff[0] = 0;
 	for (uint32_t u = 0; u < g->n; u++)
 		for (uint64_t i = g->off[u]; i < g->off[u + 1]; i++) {
 			uint32_t v = g->adj[i];
@@ -178,45 +180,47 @@ static int index_edges(struct index *ix, const struct graph *g)
 				ix->mc[common[j]]++;
 			if (s == 1) {
 				ix->solo[common[0]]++;
-			} else {
-				ix->ne++;
-				total += s;
+				continue;
 			}
-		}
-	ix->eoff = util_malloc((size_t)ix->ne + 1, sizeof *ix->eoff);
-	ix->ecom = util_malloc((size_t)total, sizeof *ix->ecom);
-	ix->coff = util_calloc((size_t)ix->k + 1, sizeof *ix->coff);
-	ix->cedge = util_malloc((size_t)total, sizeof *ix->cedge);
-	if (!ix->eoff || !ix->ecom || !ix->coff || !ix->cedge) {
-		free(common);
-		return -1;
-	}
-	uint64_t e = 0, at = 0;
-	ix->eoff[0] = 0;
-	for (uint32_t u = 0; u < g->n && ix->ne; u++)
-		for (uint64_t i = g->off[u]; i < g->off[u + 1]; i++) {
-			uint32_t v = g->adj[i];
-			if (v <= u)
-				continue;
-			uint32_t s = shared(ix, u, v, common);
-			if (s < 2)
-				continue;
-			memcpy(ix->ecom + at, common, (size_t)s * sizeof *common);
-			at += s;
-			ix->eoff[++e] = at;
+			if (ix->ne + 2 > ecap) { /* one pass: the lists grow by doubling */
+				uint64_t *grown = util_realloc(ix->eoff, (size_t)(2 * ecap),
+							       sizeof *grown);
+				if (!grown)
+					goto fail;
+				ix->eoff = grown;
+				ecap *= 2;
+			}
+			if (total + s > ccap) {
+				uint64_t want = 2 * ccap > total + s ? 2 * ccap : total + s;
+				uint32_t *grown = util_realloc(ix->ecom, (size_t)want, sizeof *grown);
+				if (!grown)
+					goto fail;
+				ix->ecom = grown;
+				ccap = want;
+			}
+			memcpy(ix->ecom + total, common, (size_t)s * sizeof *common);
+			total += s;
+			ix->eoff[++ix->ne] = total;
 		}
 	free(common);
+	common = NULL;
+	ix->cedge = util_malloc((size_t)total, sizeof *ix->cedge);
+	if (!ix->cedge)
+		goto fail;
 	for (uint32_t c = 0; c < ix->k; c++)
 		ix->coff[c + 1] = ix->coff[c] + (ix->mc[c] - ix->solo[c]);
 	uint64_t *cur = util_malloc((size_t)ix->k + 1, sizeof *cur);
 	if (!cur)
 		return -1;
 	memcpy(cur, ix->coff, ((size_t)ix->k + 1) * sizeof *cur);
-	for (e = 0; e < ix->ne; e++)
+	for (uint64_t e = 0; e < ix->ne; e++)
 		for (uint64_t j = ix->eoff[e]; j < ix->eoff[e + 1]; j++)
 			ix->cedge[cur[ix->ecom[j]]++] = e;
 	free(cur);
 	return 0;
+fail:
+	free(common);
+	return -1; /* index_build() releases the rest */
 }
 
 static int index_build(struct index *ix, const struct graph *g, const struct cover *c)
