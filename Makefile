@@ -87,9 +87,12 @@ check: $(BIN) $(TEST_BIN)
 # script that runs the binary under valgrind, which exits 99 on any memory
 # error or definite leak (so the test that ran it fails) and logs to
 # build/memcheck/vg.PID.log; the logs with errors are listed at the end.
+# --fair-sched=yes: valgrind runs one thread at a time, and by default the
+# fitting thread kept the lock for whole starts, so the progress lines the
+# interrupt tests wait for came too late (or never).
 memcheck: $(BIN)
 	@rm -rf build/memcheck && mkdir -p build/memcheck
-	@printf '#!/bin/sh\nexec valgrind -q --error-exitcode=99 --leak-check=full --show-leak-kinds=definite --errors-for-leak-kinds=definite --log-file=%s/vg.%%p.log %s "$$@"\n' \
+	@printf '#!/bin/sh\nexec valgrind -q --fair-sched=yes --error-exitcode=99 --leak-check=full --show-leak-kinds=definite --errors-for-leak-kinds=definite --log-file=%s/vg.%%p.log %s "$$@"\n' \
 	  $(abspath build/memcheck) $(abspath $(BIN)) >build/memcheck/coterie
 	@chmod +x build/memcheck/coterie
 	@COTERIE_BIN=$(abspath build/memcheck/coterie) tests/run.sh --cli 'fit_*'; rc=$$?; \
