@@ -279,20 +279,6 @@ static int make_dirs(const char *dir)
 	return 0;
 }
 
-/* fsync a folder so a rename in it is durable. Filesystems that cannot
- * sync a folder (EINVAL) are tolerated. */
-static int sync_dir(const char *dir)
-{
-	int fd = open(dir, O_RDONLY | O_DIRECTORY | O_CLOEXEC);
-	if (fd < 0)
-		return error("cannot open folder '%s': %s", dir, strerror(errno));
-	int rc = 0;
-	if (fsync(fd) != 0 && errno != EINVAL && errno != ENOTSUP)
-		rc = error("cannot sync folder '%s': %s", dir, strerror(errno));
-	close(fd);
-	return rc;
-}
-
 int result_prepare_dir(const char *dir)
 {
 	struct stat st;
@@ -543,7 +529,7 @@ static int sync_dir_of(const char *path)
 	char *dir, *base;
 	if (path_split(path, &dir, &base) != 0)
 		return -1;
-	int rc = sync_dir(dir);
+	int rc = util_sync_dir(dir);
 	free(dir);
 	free(base);
 	return rc;
@@ -1913,7 +1899,7 @@ int result_write(const char *dir, const struct graph *g, const struct fit_params
 		tmps[i] = NULL;
 	}
 	if (rc == 0)
-		rc = sync_dir(dir);
+		rc = util_sync_dir(dir);
 out:
 	for (int i = 0; i < NFILES; i++) {
 		if (tmps[i]) {

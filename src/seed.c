@@ -139,6 +139,45 @@ static uint32_t take_centres(const struct graph *g, const struct ranked *cand, u
 	return ns;
 }
 
+/* The locally minimal ego-nets (no neighbour of lower conductance) into
+ * cand, in the order seed_model() takes them; returns how many. */
+static uint32_t rank_minima(const struct graph *g, const double *phi, struct ranked *cand)
+{
+	uint32_t nc = 0;
+	for (uint32_t u = 0; u < g->n; u++) {
+		if (graph_degree(g, u) == 0)
+			continue;
+		int minimal = 1;
+		for (uint64_t i = g->off[u]; i < g->off[u + 1] && minimal; i++)
+			if (phi[g->adj[i]] < phi[u])
+				minimal = 0;
+		if (minimal)
+			cand[nc++] = (struct ranked){ phi[u], u, phi[u] == 0.0 };
+	}
+	qsort(cand, nc, sizeof *cand, cmp_ranked);
+	return nc;
+}
+
+int seed_count_minima(const struct graph *g, uint32_t *count)
+{
+	uint32_t n = g->n;
+	double *phi = util_malloc(n ? n : 1, sizeof *phi);
+	struct ranked *cand = util_malloc(n ? n : 1, sizeof *cand);
+	uint32_t *centre = util_malloc(n ? n : 1, sizeof *centre);
+	uint8_t *taken = util_calloc(n ? n : 1, 1);
+	int rc = -1;
+	if (phi && cand && centre && taken && seed_conductance(g, phi) == 0) {
+		uint32_t nc = rank_minima(g, phi, cand);
+		*count = take_centres(g, cand, nc, UINT32_MAX, centre, 0, taken);
+		rc = 0;
+	}
+	free(phi);
+	free(cand);
+	free(centre);
+	free(taken);
+	return rc;
+}
+
 int seed_model(const struct graph *g, struct model *m, uint64_t seed, uint32_t variant,
 	       struct seed_report *rep)
 {
@@ -155,19 +194,8 @@ int seed_model(const struct graph *g, struct model *m, uint64_t seed, uint32_t v
 	if (!phi || !cand || !centre || !taken || seed_conductance(g, phi))
 		goto out;
 
-	uint32_t nc = 0;
-	for (uint32_t u = 0; u < n; u++) {
-		if (graph_degree(g, u) == 0)
-			continue;
-		int minimal = 1;
-		for (uint64_t i = g->off[u]; i < g->off[u + 1] && minimal; i++)
-			if (phi[g->adj[i]] < phi[u])
-				minimal = 0;
-		if (minimal)
-			cand[nc++] = (struct ranked){ phi[u], u, phi[u] == 0.0 };
-	}
+	uint32_t nc = rank_minima(g, phi, cand);
 	local.local_minima = nc;
-	qsort(cand, nc, sizeof *cand, cmp_ranked);
 	struct rng r;
 	rng_init(&r, seed ^ 0x5eed5eed5eedULL ^ ((uint64_t)variant << 40));
 	if (variant > 0) {

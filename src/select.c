@@ -29,62 +29,6 @@
 #include "coterie/seed.h"
 #include "coterie/util.h"
 
-struct cand {
-	double phi;
-	uint32_t u;
-};
-
-static int cmp_cand(const void *a, const void *b)
-{
-	const struct cand *x = a, *y = b;
-	if (x->phi != y->phi)
-		return x->phi < y->phi ? -1 : 1;
-	return (x->u > y->u) - (x->u < y->u);
-}
-
-/* Locally minimal ego-nets, counted as seed_model() takes them: by
- * increasing conductance (ties by id), a centre inside an ego-net already
- * counted skipped. */
-static int count_minima(const struct graph *g, uint32_t *count)
-{
-	double *phi = util_malloc(g->n ? g->n : 1, sizeof *phi);
-	struct cand *c = util_malloc(g->n ? g->n : 1, sizeof *c);
-	unsigned char *taken = util_calloc(g->n ? g->n : 1, 1);
-	if (!phi || !c || !taken || seed_conductance(g, phi)) {
-		free(phi);
-		free(c);
-		free(taken);
-		return -1;
-	}
-	uint32_t nc = 0;
-	for (uint32_t u = 0; u < g->n; u++) {
-		if (g->off[u] == g->off[u + 1])
-			continue;
-		int minimal = 1;
-		for (uint64_t i = g->off[u]; i < g->off[u + 1] && minimal; i++)
-			if (phi[g->adj[i]] < phi[u])
-				minimal = 0;
-		if (minimal)
-			c[nc++] = (struct cand){ phi[u], u };
-	}
-	qsort(c, nc, sizeof *c, cmp_cand);
-	uint32_t L = 0;
-	for (uint32_t i = 0; i < nc; i++) {
-		uint32_t u = c[i].u;
-		if (taken[u])
-			continue;
-		L++;
-		taken[u] = 1;
-		for (uint64_t j = g->off[u]; j < g->off[u + 1]; j++)
-			taken[g->adj[j]] = 1;
-	}
-	free(phi);
-	free(c);
-	free(taken);
-	*count = L;
-	return 0;
-}
-
 int select_params_default(struct select_params *sp, const struct graph *g, uint32_t *minima)
 {
 	memset(sp, 0, sizeof *sp);
@@ -92,7 +36,7 @@ int select_params_default(struct select_params *sp, const struct graph *g, uint3
 	sp->share = 0.1;
 	sp->step = 1.25;
 	uint32_t L;
-	if (count_minima(g, &L))
+	if (seed_count_minima(g, &L))
 		return -1;
 	if (minima)
 		*minima = L;

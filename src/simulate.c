@@ -1406,18 +1406,6 @@ static char *simulate_json(const struct simulate *s, const struct simulate_param
 	return text;
 }
 
-static int sync_dir(const char *dir)
-{
-	int fd = open(dir, O_RDONLY | O_DIRECTORY | O_CLOEXEC);
-	if (fd < 0)
-		return error("cannot open folder '%s': %s", dir, strerror(errno));
-	int rc = 0;
-	if (fsync(fd) != 0 && errno != EINVAL && errno != ENOTSUP)
-		rc = error("cannot sync folder '%s': %s", dir, strerror(errno));
-	close(fd);
-	return rc;
-}
-
 int simulate_write(const char *dir, const struct simulate *s, const struct simulate_params *p,
 		   const struct simulate_meta *meta)
 {
@@ -1451,7 +1439,7 @@ int simulate_write(const char *dir, const struct simulate *s, const struct simul
 	out_str(&o, "\n");
 	if (out_close(&o, 0))
 		goto out;
-	rc = sync_dir(dir);
+	rc = util_sync_dir(dir);
 out:
 	free(json);
 	return rc;

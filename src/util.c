@@ -6,12 +6,14 @@
 #include "coterie/util.h"
 
 #include <errno.h>
+#include <fcntl.h>
 #include <pthread.h>
 #include <stdarg.h>
 #include <stdint.h>
 #include <stdlib.h>
 #include <string.h>
 #include <time.h>
+#include <unistd.h>
 
 static pthread_mutex_t sink_lock = PTHREAD_MUTEX_INITIALIZER;
 static util_sink_fn sink;
@@ -260,4 +262,16 @@ uint64_t util_fnv1a(uint64_t h, const void *buf, size_t len)
 		h *= 0x100000001b3ULL;
 	}
 	return h;
+}
+
+int util_sync_dir(const char *dir)
+{
+	int fd = open(dir, O_RDONLY | O_DIRECTORY | O_CLOEXEC);
+	if (fd < 0)
+		return error("cannot open folder '%s': %s", dir, strerror(errno));
+	int rc = 0;
+	if (fsync(fd) != 0 && errno != EINVAL && errno != ENOTSUP)
+		rc = error("cannot sync folder '%s': %s", dir, strerror(errno));
+	close(fd);
+	return rc;
 }

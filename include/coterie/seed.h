@@ -45,4 +45,9 @@ int seed_conductance(const struct graph *g, double *phi);
 int seed_model(const struct graph *g, struct model *m, uint64_t seed, uint32_t variant,
 	       struct seed_report *rep);
 
+/* How many distinct locally minimal ego-nets seed_model() (variant 0)
+ * would take with k unbounded: the minima in its order, a centre inside
+ * an ego-net already taken skipped. Returns 0 or -1. */
+int seed_count_minima(const struct graph *g, uint32_t *count);
+
 #endif

@@ -68,4 +68,9 @@ double util_now(void);
 #define UTIL_FNV_INIT 0xcbf29ce484222325ULL
 uint64_t util_fnv1a(uint64_t h, const void *buf, size_t len);
 
+/* fsync folder dir so that a rename in it is durable; filesystems that
+ * cannot sync a folder (EINVAL, ENOTSUP) are tolerated. Returns 0 or -1
+ * with a message. */
+int util_sync_dir(const char *dir);
+
 #endif
