@@ -114,6 +114,18 @@ static int has_edge(const struct simulate *s, uint32_t u, uint32_t v)
 	return bsearch(&key, s->edges, s->m, sizeof key, cmp_u64) != NULL;
 }
 
+/* Each node's degree in the sampled edges (caller frees). */
+static uint64_t *degrees_of(const struct simulate *s)
+{
+	uint64_t *deg = calloc(s->n ? s->n : 1, sizeof *deg);
+	assert_non_null(deg);
+	for (uint64_t i = 0; i < s->m; i++) {
+		deg[s->edges[i] >> 32]++;
+		deg[s->edges[i] & 0xffffffffu]++;
+	}
+	return deg;
+}
+
 static void assert_within_5sd(double x, double mean, double var)
 {
 	double sd = sqrt(var);
@@ -283,12 +295,7 @@ static void test_degrees_by_membership_count_within_five_sd(void **state)
 	sim(&s, &p);
 	struct memb mb;
 	memb_build(&mb, &s.truth);
-	uint64_t *deg = calloc(s.n, sizeof *deg);
-	assert_non_null(deg);
-	for (uint64_t i = 0; i < s.m; i++) {
-		deg[s.edges[i] >> 32]++;
-		deg[s.edges[i] & 0xffffffffu]++;
-	}
+	uint64_t *deg = degrees_of(&s);
 	for (uint32_t group = 1; group <= p.max_memberships; group++) {
 		/* X = sum of the degrees of the nodes in `group` communities: an edge
 		 * counts w = (ends in the group) times, so E X = sum w P and
@@ -552,12 +559,7 @@ static void test_even_degrees_give_small_and_large_communities_alike(void **stat
 	p.seed = 17;
 	struct simulate s;
 	sim(&s, &p);
-	uint64_t *deg = calloc(s.n, sizeof *deg);
-	assert_non_null(deg);
-	for (uint64_t i = 0; i < s.m; i++) {
-		deg[s.edges[i] >> 32]++;
-		deg[s.edges[i] & 0xffffffffu]++;
-	}
+	uint64_t *deg = degrees_of(&s);
 	double x[2] = { 0, 0 }, mean[2] = { 0, 0 }, var[2] = { 0, 0 };
 	uint32_t groups[2] = { 0, 0 };
 	for (uint32_t c = 0; c < s.k; c++) {

@@ -120,5 +120,8 @@ int cmd_compare(int argc, char **argv);
  * may not be finite (as null). The caller owns the new reference. */
 json_t *cli_json_str(const char *s);
 json_t *cli_json_real(double x);
+/* Print root (taken, may be NULL: out of memory) to stdout, indented,
+ * reals to 17 digits, and a newline. Returns 0 or -1 with a message. */
+int cli_json_print(json_t *root);
 
 #endif

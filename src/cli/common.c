@@ -316,3 +316,15 @@ json_t *cli_json_real(double x)
 {
 	return isfinite(x) ? json_real(x) : json_null();
 }
+
+int cli_json_print(json_t *root)
+{
+	if (!root)
+		return error("out of memory");
+	int rc = json_dumpf(root, stdout, JSON_INDENT(2) | JSON_REAL_PRECISION(17));
+	json_decref(root);
+	if (rc)
+		return error("cannot write the output");
+	putchar('\n');
+	return 0;
+}

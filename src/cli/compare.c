@@ -106,12 +106,7 @@ static int print_json(const struct side *t, const struct side *f, uint32_t n,
 	json_object_set_new(root, "f1_found_to_truth", cli_json_real(sc->f1_ft));
 	json_object_set_new(root, "partitions", json_boolean(sc->partitions));
 	json_object_set_new(root, "nmi", sc->partitions ? cli_json_real(sc->nmi) : json_null());
-	int rc = json_dumpf(root, stdout, JSON_INDENT(2) | JSON_REAL_PRECISION(17));
-	json_decref(root);
-	if (rc)
-		return error("cannot write the output");
-	putchar('\n');
-	return 0;
+	return cli_json_print(root);
 }
 
 /* Why plain NMI does not apply (the files hold every membership, so a

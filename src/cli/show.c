@@ -171,18 +171,6 @@ static json_t *jint(uint64_t v)
 	return json_integer(v > (uint64_t)INT64_MAX ? (json_int_t)INT64_MAX : (json_int_t)v);
 }
 
-static int json_out(json_t *root)
-{
-	if (!root)
-		return error("out of memory");
-	int rc = json_dumpf(root, stdout, JSON_INDENT(2));
-	json_decref(root);
-	if (rc)
-		return error("cannot write the output");
-	putchar('\n');
-	return 0;
-}
-
 static json_t *jcommunity(const struct agm_community *c)
 {
 	json_t *o = json_object();
@@ -229,7 +217,7 @@ static int show_summary(const struct show *s)
 		for (size_t i = 0; i < n; i++)
 			json_array_append_new(list, jcommunity(&a->comms[i]));
 		json_object_set_new(root, "communities", list);
-		return json_out(root);
+		return cli_json_print(root);
 	}
 
 	char buf[NAME_CAP];
@@ -313,7 +301,7 @@ static int show_node(const struct show *s, const char *name)
 			json_array_append_new(list, o);
 		}
 		json_object_set_new(root, "affiliations", list);
-		rc = json_out(root);
+		rc = cli_json_print(root);
 		inspect_node_release(&nv);
 		return rc;
 	}
@@ -394,7 +382,7 @@ static int show_community(const struct show *s, uint32_t id)
 			json_array_append_new(list, o);
 		}
 		json_object_set_new(root, "members", list);
-		rc = json_out(root);
+		rc = cli_json_print(root);
 	} else {
 		printf("community    %" PRIu32 "\n", c->id);
 		printf("members      %" PRIu32 "\n", c->size);
@@ -459,7 +447,7 @@ static int show_pairs(const struct show *s, uint32_t id, int missing)
 			json_array_append_new(list, o);
 		}
 		json_object_set_new(root, missing ? "pairs" : "edges", list);
-		rc = json_out(root);
+		rc = cli_json_print(root);
 		free(p);
 		return rc;
 	}
@@ -563,7 +551,7 @@ static int show_edge(const struct show *s, const char *na, const char *nb)
 			json_array_append_new(list, o);
 		}
 		json_object_set_new(root, "communities", list);
-		rc = json_out(root);
+		rc = cli_json_print(root);
 		inspect_edge_release(&e);
 		return rc;
 	}
@@ -647,7 +635,7 @@ static int show_links(const struct show *s)
 		}
 	if (s->json) {
 		json_object_set_new(root, "edges", list);
-		return json_out(root);
+		return cli_json_print(root);
 	}
 	more_note((size_t)g->m, n);
 	return 0;
