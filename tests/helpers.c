@@ -9,6 +9,7 @@
 #include <unistd.h>
 
 #include "coterie/cover.h"
+#include "coterie/fit.h"
 #include "coterie/graph.h"
 #include "coterie/model.h"
 #include "coterie/rng.h"
@@ -210,4 +211,19 @@ void test_make_cover(struct cover *c, uint32_t n, uint32_t k, const uint32_t *si
 	assert_int_equal(cover_from_pairs(c, n, members, comm, total), 0);
 	assert_cover_sane(c);
 	free(comm);
+}
+
+struct snapshot *test_fit_to_end(const struct graph *g, const struct fit_params *p,
+				 const struct fit_origin *o, int *state)
+{
+	struct fit *f = fit_new(g, p, o);
+	assert_non_null(f);
+	assert_int_equal(fit_start(f), 0);
+	enum fit_state st = fit_wait(f);
+	if (state)
+		*state = (int)st;
+	struct snapshot *s = fit_snapshot(f);
+	assert_non_null(s);
+	fit_free(f);
+	return s;
 }

@@ -13,6 +13,9 @@ struct graph;
 struct model;
 struct cover;
 struct fcsr;
+struct fit_params;
+struct fit_origin;
+struct snapshot;
 
 void assert_graph_sane(const struct graph *g);
 void assert_model_sane(const struct model *m);
@@ -45,5 +48,11 @@ struct graph *test_planted_ring_of(struct cover *truth, uint32_t n, uint32_t k, 
  * holds the next sizes[i] ids of members. Release with cover_release(). */
 void test_make_cover(struct cover *c, uint32_t n, uint32_t k, const uint32_t *sizes,
 		     const uint32_t *members);
+
+/* Fit g with p (from origin o, or NULL) on the engine's thread to its
+ * end and return the final snapshot (caller releases); the state the fit
+ * ended in goes to *state when state is not NULL. */
+struct snapshot *test_fit_to_end(const struct graph *g, const struct fit_params *p,
+				 const struct fit_origin *o, int *state);
 
 #endif

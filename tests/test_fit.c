@@ -47,14 +47,10 @@ static struct snapshot *run_fit(const struct graph *g, uint32_t k, unsigned thre
 	p.threads = threads;
 	p.seed = seed;
 	p.max_sweeps = max_sweeps;
-	struct fit *f = fit_new(g, &p, NULL);
-	assert_non_null(f);
-	assert_int_equal(fit_start(f), 0);
-	enum fit_state st = fit_wait(f);
+	int st;
+	struct snapshot *s = test_fit_to_end(g, &p, NULL, &st);
 	assert_true(st == FIT_LEVELLED || st == FIT_FINISHED);
-	struct snapshot *s = fit_snapshot(f);
 	assert_int_equal(s->state, st);
-	fit_free(f);
 	return s;
 }
 

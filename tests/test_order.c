@@ -118,11 +118,7 @@ static void test_renumbered_fit_answers_in_graph_ids(void **state)
 	fit_params_default(&p);
 	p.k = 2;
 	p.renumber = 1;
-	struct fit *f = fit_new(g, &p, NULL);
-	assert_non_null(f);
-	assert_int_equal(fit_start(f), 0);
-	fit_wait(f);
-	struct snapshot *s = fit_snapshot(f);
+	struct snapshot *s = test_fit_to_end(g, &p, NULL, NULL);
 	assert_fcsr_sane(&s->F);
 	const struct cover *c = &s->agm.cover;
 	assert_int_equal(c->k, 2);
@@ -133,7 +129,6 @@ static void test_renumbered_fit_answers_in_graph_ids(void **state)
 			assert_int_equal(c->mem[j] % 2, side);
 	}
 	snapshot_release(s);
-	fit_free(f);
 	graph_free(g);
 }
 

@@ -312,12 +312,7 @@ static void test_refinement_after_a_fit_keeps_ids_and_stops_when_asked(void **st
 	fp.k = 8;
 	fp.threads = 2;
 	fp.starts = 1;
-	struct fit *f = fit_new(g, &fp, NULL);
-	assert_non_null(f);
-	assert_int_equal(fit_start(f), 0);
-	fit_wait(f);
-	struct snapshot *s = fit_snapshot(f);
-	fit_free(f);
+	struct snapshot *s = test_fit_to_end(g, &fp, NULL, NULL);
 
 	struct refine_params rp;
 	refine_params_default(&rp);
@@ -383,12 +378,7 @@ static void test_refinement_of_a_football_fit_is_measured(void **state)
 	fit_params_default(&fp);
 	fp.k = 12;
 	fp.threads = 2;
-	struct fit *f = fit_new(g, &fp, NULL);
-	assert_non_null(f);
-	assert_int_equal(fit_start(f), 0);
-	fit_wait(f);
-	struct snapshot *s = fit_snapshot(f);
-	fit_free(f);
+	struct snapshot *s = test_fit_to_end(g, &fp, NULL, NULL);
 	struct refine_params rp;
 	refine_params_default(&rp);
 	struct refine_report rep;

@@ -1426,12 +1426,9 @@ static void test_failed_write_keeps_the_old_file_and_no_temporary(void **state)
 static struct snapshot *fit_karate(const struct graph *g, const struct fit_params *p,
 				   const struct fit_origin *o)
 {
-	struct fit *f = fit_new(g, p, o);
-	assert_non_null(f);
-	assert_int_equal(fit_start(f), 0);
-	assert_int_equal(fit_wait(f), FIT_FINISHED);
-	struct snapshot *s = fit_snapshot(f);
-	fit_free(f);
+	int st;
+	struct snapshot *s = test_fit_to_end(g, p, o, &st);
+	assert_int_equal(st, FIT_FINISHED);
 	return s;
 }
 

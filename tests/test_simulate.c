@@ -775,17 +775,12 @@ static void test_planted_graph_is_recovered_by_the_fit(void **state)
 	fp.seed = 1;
 	fp.starts = 2;
 	fp.max_sweeps = 200;
-	struct fit *f = fit_new(g, &fp, NULL);
-	assert_non_null(f);
-	assert_int_equal(fit_start(f), 0);
-	fit_wait(f);
-	struct snapshot *snap = fit_snapshot(f);
+	struct snapshot *snap = test_fit_to_end(g, &fp, NULL, NULL);
 	double onmi = score_onmi_max(&s.truth, &snap->agm.cover);
 	print_message("ONMI %.3f\n", onmi);
 	if (!(onmi > 0.8))
 		fail_msg("ONMI %.3f of the fit against the planted cover (k %u)", onmi, s.k);
 	snapshot_release(snap);
-	fit_free(f);
 	graph_free(g);
 	simulate_release(&s);
 }
