@@ -12,7 +12,7 @@ CC       ?= cc
 PREFIX   ?= /usr/local
 PKGS     := igraph ncursesw cmocka jansson zlib
 DEB_PKGS := build-essential pkg-config libigraph-dev libncurses-dev libcmocka-dev \
-            libjansson-dev zlib1g-dev tmux python3 python3-networkx
+            libjansson-dev zlib1g-dev tmux python3 python3-networkx python3-sklearn python3-igraph python3-scipy
 
 comma := ,
 ifeq ($(SANITIZE),)
@@ -43,12 +43,12 @@ LIBS := $(PKG_LIBS) -lm
 
 CORE_SRC := $(wildcard src/*.c)
 APP_SRC  := $(wildcard src/cli/*.c src/tui/*.c)
-TEST_SRC := $(wildcard tests/test_*.c)
+TEST_SRC := $(wildcard tests/unit/test_*.c)
 
 CORE_OBJ := $(CORE_SRC:%.c=$(BUILD)/%.o)
 APP_OBJ  := $(APP_SRC:%.c=$(BUILD)/%.o)
-TEST_BIN := $(TEST_SRC:tests/%.c=$(BUILD)/tests/%)
-TEST_HELPER_OBJ := $(BUILD)/tests/helpers.o
+TEST_BIN := $(TEST_SRC:tests/unit/%.c=$(BUILD)/tests/unit/%)
+TEST_HELPER_OBJ := $(BUILD)/tests/unit/helpers.o
 LIB := $(BUILD)/libcoterie.a
 
 .PHONY: all check unit bench install clean deps demo fuzz memcheck
@@ -67,11 +67,11 @@ $(LIB): $(CORE_OBJ)
 $(BIN): $(APP_OBJ) $(LIB)
 	$(CC) $(ALL_LDFLAGS) -o $@ $(APP_OBJ) $(LIB) $(LIBS)
 
-$(TEST_HELPER_OBJ): tests/helpers.c tests/helpers.h
+$(TEST_HELPER_OBJ): tests/unit/helpers.c tests/unit/helpers.h
 	@mkdir -p $(dir $@)
 	$(CC) $(ALL_CFLAGS) -c $< -o $@
 
-$(BUILD)/tests/test_%: tests/test_%.c $(TEST_HELPER_OBJ) $(LIB)
+$(BUILD)/tests/unit/test_%: tests/unit/test_%.c $(TEST_HELPER_OBJ) $(LIB)
 	@mkdir -p $(dir $@)
 	$(CC) $(ALL_CFLAGS) $(ALL_LDFLAGS) -o $@ $< $(TEST_HELPER_OBJ) $(LIB) $(LIBS) $(CMOCKA_LIBS)
 

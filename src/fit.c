@@ -32,7 +32,7 @@
  * (block_gain(): the rows' objective gains and the exact correction for
  * rows updated together), so it is the same for any thread count. It
  * equals a recompute up to rounding (relative 1e-13 to 1e-11 in
- * tests/test_fit_loglik.c, no growth seen over 143 sweeps on email-Enron).
+ * tests/unit/test_fit_loglik.c, no growth seen over 143 sweeps on email-Enron).
  * l(F) is computed afresh (compute_loglik(): fixed node ranges summed in
  * a fixed order) for the seeded model and after each reseeding move, and
  * only there: a start that levelled off or ran its sweeps keeps its summed
@@ -143,7 +143,7 @@ struct fit {
 	pthread_mutex_t lock;
 	pthread_cond_t cond;
 	struct snapshot *latest;
-	struct snapshot *point; /* the newest one with a resume point, not yet taken */
+	struct snapshot *point; /* the newest one with a savepoint, not yet taken */
 	enum fit_state state;
 
 	atomic_int stop_req, pause_req, extend_req, interrupt_req, point_req;
@@ -162,8 +162,8 @@ struct fit {
 	struct seed_report seeds;
 	struct fit_stats stats;
 	int resumed;
-	struct fit_resume *res_in;  /* owned: where an exact resume begins */
-	struct fit_resume *res_out; /* owned until the next snapshot takes it */
+	struct fit_savepoint *res_in;  /* owned: where an exact resume begins */
+	struct fit_savepoint *res_out; /* owned until the next snapshot takes it */
 	/* while the starts run (fit_main): the best earlier start, and the
 	 * start as it levelled off while its reseeding moves run (else NULL) */
 	const struct best *bestp;
@@ -223,11 +223,11 @@ void snapshot_release(struct snapshot *s)
 	free(s->trace);
 	fcsr_release(&s->F);
 	agm_release(&s->agm);
-	fit_resume_free(s->resume);
+	fit_savepoint_free(s->savepoint);
 	free(s);
 }
 
-void fit_resume_free(struct fit_resume *r)
+void fit_savepoint_free(struct fit_savepoint *r)
 {
 	if (!r)
 		return;
@@ -276,9 +276,9 @@ static int part_dup(struct fit_part *dst, const struct fit_part *src)
 	return 0;
 }
 
-static struct fit_resume *resume_dup(const struct fit_resume *src)
+static struct fit_savepoint *resume_dup(const struct fit_savepoint *src)
 {
-	struct fit_resume *r = util_calloc(1, sizeof *r);
+	struct fit_savepoint *r = util_calloc(1, sizeof *r);
 	if (!r)
 		return NULL;
 	*r = *src;
@@ -286,7 +286,7 @@ static struct fit_resume *resume_dup(const struct fit_resume *src)
 	memset(&r->best, 0, sizeof r->best);
 	if (part_dup(&r->cur, &src->cur) ||
 	    (src->best_start && part_dup(&r->best, &src->best))) {
-		fit_resume_free(r);
+		fit_savepoint_free(r);
 		return NULL;
 	}
 	return r;
@@ -328,7 +328,7 @@ static int publish(struct fit *f, enum fit_state state)
 	s->delta = f->m.delta;
 	s->seeds = f->seeds;
 	if (f->res_out) {
-		s->resume = f->res_out;
+		s->savepoint = f->res_out;
 		f->res_out = NULL;
 	}
 	s->stats = f->stats;
@@ -376,7 +376,7 @@ static int publish(struct fit *f, enum fit_state state)
 
 	struct snapshot *old_point = NULL;
 	pthread_mutex_lock(&f->lock);
-	if (s->resume) {
+	if (s->savepoint) {
 		old_point = f->point;
 		f->point = s;
 		__atomic_add_fetch(&s->refs_, 1, __ATOMIC_ACQ_REL);
@@ -828,7 +828,7 @@ static void recount_colsum(struct fit *f)
 	model_recount(&f->m);
 }
 
-static struct fit_resume *make_resume(struct fit *f, const struct best *b,
+static struct fit_savepoint *make_resume(struct fit *f, const struct best *b,
 				      const struct fit_part *climb);
 
 /* Run the current start from its seeded (or resumed) model until a
@@ -875,7 +875,7 @@ static enum fit_state run_start(struct fit *f, uint32_t *perm, int extend)
 		if (fired && !f->p.past_plateau && !(extend && atomic_load(&f->extend_req)))
 			return FIT_LEVELLED;
 		if (f->bestp && atomic_exchange(&f->point_req, 0)) {
-			fit_resume_free(f->res_out);
+			fit_savepoint_free(f->res_out);
 			f->res_out = make_resume(f, f->bestp, f->climbp);
 		}
 		publish(f, FIT_FITTING);
@@ -1144,16 +1144,16 @@ static int part_load(struct fit *f, const struct fit_part *p)
 
 /* What an exact resume of start f->start needs, at the end of a sweep:
  * climb is the start as it levelled off when its reseeding moves are
- * running, else NULL. NULL when out of memory (the resume point is a
+ * running, else NULL. NULL when out of memory (the savepoint is a
  * convenience; the fit goes on without it). */
-static struct fit_resume *make_resume(struct fit *f, const struct best *b,
+static struct fit_savepoint *make_resume(struct fit *f, const struct best *b,
 				      const struct fit_part *climb)
 {
-	struct fit_resume *r = util_calloc(1, sizeof *r);
+	struct fit_savepoint *r = util_calloc(1, sizeof *r);
 	if (!r)
 		return NULL;
 	r->start = f->start;
-	r->phase = climb ? FIT_PHASE_REFINE : FIT_PHASE_CLIMB;
+	r->phase = climb ? FIT_PHASE_RESEED : FIT_PHASE_CLIMB;
 	int rc = climb ? part_dup(&r->cur, climb) : part_of_model(f, &r->cur);
 	if (rc == 0 && b->have) {
 		struct fit_part bp = { b->F, b->trace, b->ntrace, b->sweep, b->plateau_sweep };
@@ -1164,21 +1164,21 @@ static struct fit_resume *make_resume(struct fit *f, const struct best *b,
 		rc = part_dup(&r->best, &bp);
 	}
 	if (rc) {
-		fit_resume_free(r);
+		fit_savepoint_free(r);
 		return NULL;
 	}
 	return r;
 }
 
 /* After an interrupt that let the sweep end (not a hard stop): keep the
- * resume point for the last snapshot. */
+ * savepoint for the last snapshot. */
 static void keep_resume(struct fit *f, const struct best *b, const struct fit_part *climb)
 {
 	if (atomic_load(&f->stop_req) || !atomic_load(&f->interrupt_req))
 		return;
-	struct fit_resume *r = make_resume(f, b, climb);
+	struct fit_savepoint *r = make_resume(f, b, climb);
 	if (r) {
-		fit_resume_free(f->res_out);
+		fit_savepoint_free(f->res_out);
 		f->res_out = r;
 	}
 }
@@ -1225,7 +1225,7 @@ static void *fit_main(void *arg)
 		goto out;
 	}
 	uint32_t r0 = 0;
-	const struct fit_resume *ri = f->res_in;
+	const struct fit_savepoint *ri = f->res_in;
 	if (ri) {
 		r0 = ri->start - 1;
 		if (ri->best_start) {
@@ -1360,7 +1360,7 @@ struct fit *fit_new(const struct graph *g, const struct fit_params *p,
 		f->p.patience = 1;
 	if (f->p.starts < 1)
 		f->p.starts = 1;
-	f->starts = origin && !origin->resume ? 1 : f->p.starts;
+	f->starts = origin && !origin->savepoint ? 1 : f->p.starts;
 	f->start = 1;
 	f->nthreads = f->p.threads;
 	double eps = p->epsilon > 0 ? p->epsilon : model_default_epsilon(g);
@@ -1399,8 +1399,8 @@ struct fit *fit_new(const struct graph *g, const struct fit_params *p,
 	for (unsigned t = 0; t < f->nthreads; t++)
 		if (!(f->work[t] = model_work_new(p->k)))
 			goto fail;
-	if (origin && origin->resume) {
-		const struct fit_resume *ri = origin->resume;
+	if (origin && origin->savepoint) {
+		const struct fit_savepoint *ri = origin->savepoint;
 		if (ri->start < 1 || ri->start > f->starts || ri->best_start >= ri->start ||
 		    ri->cur.F.n != g->n || ri->cur.F.k != p->k ||
 		    (ri->best_start && (ri->best.F.n != g->n || ri->best.F.k != p->k ||
@@ -1483,7 +1483,7 @@ void fit_pause(struct fit *f)
 	poke(f);
 }
 
-void fit_resume(struct fit *f)
+void fit_unpause(struct fit *f)
 {
 	atomic_store(&f->pause_req, 0);
 	poke(f);
@@ -1502,12 +1502,12 @@ void fit_interrupt(struct fit *f)
 	poke(f);
 }
 
-void fit_want_resume_point(struct fit *f)
+void fit_want_savepoint(struct fit *f)
 {
 	atomic_store(&f->point_req, 1);
 }
 
-struct snapshot *fit_take_resume_point(struct fit *f)
+struct snapshot *fit_take_savepoint(struct fit *f)
 {
 	pthread_mutex_lock(&f->lock);
 	struct snapshot *s = f->point;
@@ -1576,8 +1576,8 @@ void fit_free(struct fit *f)
 	}
 	snapshot_release(f->latest);
 	snapshot_release(f->point);
-	fit_resume_free(f->res_in);
-	fit_resume_free(f->res_out);
+	fit_savepoint_free(f->res_in);
+	fit_savepoint_free(f->res_out);
 	agm_release(&f->agm);
 	model_release(&f->m);
 	order_graph_release(&f->gi);

@@ -279,16 +279,6 @@ int model_import_order(struct model *m, const struct fcsr *in, const uint32_t *i
 	return 0;
 }
 
-void fcsr_release(struct fcsr *f)
-{
-	if (!f)
-		return;
-	free(f->off);
-	free(f->e);
-	free(f->colsum);
-	memset(f, 0, sizeof *f);
-}
-
 /* ---- one row ---- */
 
 struct model_work {

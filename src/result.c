@@ -133,7 +133,7 @@
  *               nnz x (u32 community, f64 strength)
  *     then, only for a fit interrupted at the end of a sweep or a periodic
  *     checkpoint taken there, "RSUM" (see
- *     struct fit_resume): u32 start, u32 phase, u32 sweep, u32
+ *     struct fit_savepoint): u32 start, u32 phase, u32 sweep, u32
  *     plateau_sweep, a TRAC and a STRN section (framed as above) of the
  *     start in progress, u32 best_start, and when it is not 0: u32 sweep,
  *     u32 plateau_sweep, u32 refined, u32 state, f64 loglik, a TRAC and a
@@ -657,7 +657,7 @@ static const char *check_strengths(const struct fcsr *F, char *why, size_t cap)
 	return NULL;
 }
 
-/* One start's part of a resume point: a trace ending at its sweep,
+/* One start's part of a savepoint: a trace ending at its sweep,
  * strengths of n x k. */
 static const char *check_part(const struct fit_part *pt, uint32_t n, uint32_t k,
 			      const char *what, char *why, size_t cap)
@@ -682,14 +682,14 @@ static const char *check_part(const struct fit_part *pt, uint32_t n, uint32_t k,
 	return why;
 }
 
-static const char *check_resume(const struct fit_resume *r, uint32_t n,
+static const char *check_resume(const struct fit_savepoint *r, uint32_t n,
 				const struct fit_params *p, char *why, size_t cap)
 {
 	const char *bad;
 	if (r->start == 0 || r->start > p->starts)
 		snprintf(why, cap, "the interrupted start %" PRIu32 " is not between 1 and %u",
 			 r->start, p->starts);
-	else if (r->phase != FIT_PHASE_CLIMB && r->phase != FIT_PHASE_REFINE)
+	else if (r->phase != FIT_PHASE_CLIMB && r->phase != FIT_PHASE_RESEED)
 		snprintf(why, cap, "unknown phase %" PRIu32 " of the interrupted start", r->phase);
 	else if (r->best_start >= r->start)
 		snprintf(why, cap, "the best start %" PRIu32 " is not before start %" PRIu32,
@@ -717,7 +717,7 @@ struct ck_args {
 	const struct graph *g;
 	const struct fit_params *p;
 	const struct snapshot *s;
-	const struct fit_resume *resume; /* s->resume when it is sound, else NULL */
+	const struct fit_savepoint *savepoint; /* s->savepoint when it is sound, else NULL */
 };
 
 static void wf_section(struct wfile *w, const char *tag, uint64_t len)
@@ -763,7 +763,7 @@ static void wf_strn_section(struct wfile *w, const struct fcsr *F)
 }
 
 /* The optional RSUM section: where an interrupted fit stands. */
-static void wf_resume_section(struct wfile *w, const struct fit_resume *r)
+static void wf_resume_section(struct wfile *w, const struct fit_savepoint *r)
 {
 	uint64_t len = CK_RSUM_HEAD + CK_SECTION_HEAD + trace_section_len(r->cur.ntrace) +
 		       CK_SECTION_HEAD + strn_section_len(&r->cur.F) + 4;
@@ -847,18 +847,18 @@ static int fill_checkpoint(struct wfile *w, const void *arg)
 			     " edges but holds %" PRIu64, g->m, written);
 
 	wf_strn_section(w, F);
-	if (a->resume)
-		wf_resume_section(w, a->resume);
+	if (a->savepoint)
+		wf_resume_section(w, a->savepoint);
 
 	wf_u64(w, w->sum);
 	return 0;
 }
 
-/* Refuse to save what the reader would refuse: 0 or -1. A resume point
+/* Refuse to save what the reader would refuse: 0 or -1. A savepoint
  * the reader would refuse is left out with a warning rather than losing
  * the save (*resume says which). */
 static int checkpoint_ok(const char *path, const struct graph *g, const struct fit_params *p,
-			 const struct snapshot *s, const struct fit_resume **resume)
+			 const struct snapshot *s, const struct fit_savepoint **resume)
 {
 	char why[256];
 	const char *bad = NULL;
@@ -884,9 +884,9 @@ static int checkpoint_ok(const char *path, const struct graph *g, const struct f
 		bad = check_strengths(&s->F, why, sizeof why);
 	if (bad)
 		return error("cannot write checkpoint '%s': %s", path, bad);
-	*resume = s->resume;
-	if (s->resume && (bad = check_resume(s->resume, g->n, p, why, sizeof why))) {
-		warning("'%s' is saved without its resume point (%s): a resumed fit goes on as "
+	*resume = s->savepoint;
+	if (s->savepoint && (bad = check_resume(s->savepoint, g->n, p, why, sizeof why))) {
+		warning("'%s' is saved without its savepoint (%s): a resumed fit goes on as "
 			"one start", path, bad);
 		*resume = NULL;
 	}
@@ -897,7 +897,7 @@ int result_write_checkpoint(const char *path, const struct graph *g,
 			    const struct fit_params *p, const struct snapshot *s)
 {
 	struct ck_args a = { g, p, s, NULL };
-	if (checkpoint_ok(path, g, p, s, &a.resume))
+	if (checkpoint_ok(path, g, p, s, &a.savepoint))
 		return -1;
 	return atomic_write(path, fill_checkpoint, &a);
 }
@@ -1285,10 +1285,10 @@ static int read_part(const char *path, struct rd *r, struct fit_part *pt)
 
 static int read_resume(const char *path, struct rd *sec, struct checkpoint *ck)
 {
-	struct fit_resume *r = util_calloc(1, sizeof *r);
+	struct fit_savepoint *r = util_calloc(1, sizeof *r);
 	if (!r)
 		return -1;
-	ck->resume = r;
+	ck->savepoint = r;
 	if (sec->left < CK_RSUM_HEAD)
 		return damaged(path, "the resume section is too short");
 	r->start = rd_u32(sec);
@@ -1453,7 +1453,7 @@ void checkpoint_release(struct checkpoint *ck)
 	graph_free(ck->graph);
 	free(ck->trace);
 	fcsr_release(&ck->F);
-	fit_resume_free(ck->resume);
+	fit_savepoint_free(ck->savepoint);
 	memset(ck, 0, sizeof *ck);
 }
 
@@ -1466,7 +1466,7 @@ void checkpoint_origin(const struct checkpoint *ck, struct fit_origin *o)
 	o->sweep = ck->sweep;
 	o->seconds = ck->seconds;
 	o->plateau_sweep = ck->plateau_sweep;
-	o->resume = ck->resume;
+	o->savepoint = ck->savepoint;
 }
 
 /* ------------------------------------------------------------------ */
@@ -1880,7 +1880,7 @@ int result_write(const char *dir, const struct graph *g, const struct fit_params
 			goto out;
 	struct ck_args ca = { g, p, s, NULL };
 	struct tsv_args ta = { g, s };
-	if (checkpoint_ok(paths[0], g, p, s, &ca.resume) || stage(paths[0], fill_checkpoint, &ca, &tmps[0]) ||
+	if (checkpoint_ok(paths[0], g, p, s, &ca.savepoint) || stage(paths[0], fill_checkpoint, &ca, &tmps[0]) ||
 	    stage(paths[1], fill_memberships, &ta, &tmps[1]) ||
 	    stage(paths[2], fill_communities, &ta, &tmps[2]) ||
 	    stage(paths[3], fill_trace, &ta, &tmps[3]))

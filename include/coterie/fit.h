@@ -21,7 +21,7 @@
  * applied in order. Nothing depends on the thread count, so the same seed
  * gives the same bytes for any -j.
  *
- * All locking lives in fit.c. Control calls (pause, resume, stop, extend)
+ * All locking lives in fit.c. Control calls (pause, unpause, stop, extend)
  * are safe from any thread and never block on a sweep.
  */
 #ifndef COTERIE_FIT_H
@@ -122,10 +122,10 @@ struct snapshot {
 				  * fresh one (agm_sweep == sweep) */
 	uint32_t agm_sweep;
 	struct seed_report seeds;
-	struct fit_resume *resume; /* owned; in the last snapshot of an
+	struct fit_savepoint *savepoint; /* owned; in the last snapshot of an
 				    * interrupted fit (see fit_interrupt())
 				    * and in the one after
-				    * fit_want_resume_point(), else NULL */
+				    * fit_want_savepoint(), else NULL */
 	struct fit_stats stats;  /* up to this snapshot (its own cost excluded) */
 	/* private */
 	int refs_;
@@ -146,10 +146,10 @@ struct fit_part {
  * Where an interrupted fit stands, so that a resumed one ends with the
  * bytes an uninterrupted one would have given (same seed, same
  * parameters). Made by fit_interrupt(), which lets the sweep in progress
- * end first, and on request by fit_want_resume_point().
+ * end first, and on request by fit_want_savepoint().
  *   start  the start in progress (1-based) of snapshot.starts
  *   phase  FIT_PHASE_CLIMB: cur is that start after its last whole sweep,
- *          still climbing to its first plateau; FIT_PHASE_REFINE: cur is
+ *          still climbing to its first plateau; FIT_PHASE_RESEED: cur is
  *          that start as it levelled off, and its refinement moves are
  *          made again from there (they are drawn from the seed and the
  *          start, so they come out the same; the work of the moves made
@@ -158,8 +158,8 @@ struct fit_part {
  *          with the state it ended in (LEVELLED or FINISHED), the
  *          refinement moves it kept and its final log-likelihood.
  */
-enum { FIT_PHASE_CLIMB = 0, FIT_PHASE_REFINE = 1 };
-struct fit_resume {
+enum { FIT_PHASE_CLIMB = 0, FIT_PHASE_RESEED = 1 };
+struct fit_savepoint {
 	uint32_t start, phase;
 	struct fit_part cur;
 	uint32_t best_start;
@@ -168,7 +168,7 @@ struct fit_resume {
 	enum fit_state best_state;
 	double best_loglik;
 };
-void fit_resume_free(struct fit_resume *r); /* NULL is a no-op */
+void fit_savepoint_free(struct fit_savepoint *r); /* NULL is a no-op */
 
 /* Where a resumed fit starts; all borrowed and copied by fit_new(). */
 struct fit_origin {
@@ -182,7 +182,7 @@ struct fit_origin {
 	 * ended, or was stopped inside a sweep). Else: continue the starts
 	 * exactly where an interrupt left them (F and the fields above are
 	 * then not used; the parameters must be the saved ones). */
-	const struct fit_resume *resume;
+	const struct fit_savepoint *savepoint;
 };
 
 struct fit;
@@ -203,22 +203,22 @@ void fit_exclude(struct fit *f, const struct graph *excl);
 /* Launch the fitting thread. Returns 0 or -1. */
 int fit_start(struct fit *f);
 void fit_pause(struct fit *f);
-void fit_resume(struct fit *f);
+void fit_unpause(struct fit *f);
 /* Ask the fit to end after the current block; the model so far is kept
  * and a final snapshot published. */
 void fit_stop(struct fit *f);
 /* Ask the fit to end after the sweep in progress (a paused fit goes on to
  * the end of it first), and to leave in its last snapshot what an exact
- * resume needs (snapshot.resume), unless fit_stop() comes too. */
+ * resume needs (snapshot.savepoint), unless fit_stop() comes too. */
 void fit_interrupt(struct fit *f);
-/* Ask that the next sweep to end publish a snapshot with a resume point
- * (snapshot.resume), for a periodic checkpoint that resumes exactly. A fit
- * continued as one start (fit_origin without resume) never makes one. */
-void fit_want_resume_point(struct fit *f);
-/* The newest snapshot that carried a resume point, if one was published
+/* Ask that the next sweep to end publish a snapshot with a savepoint
+ * (snapshot.savepoint), for a periodic checkpoint that resumes exactly. A fit
+ * continued as one start (fit_origin without savepoint) never makes one. */
+void fit_want_savepoint(struct fit *f);
+/* The newest snapshot that carried a savepoint, if one was published
  * since the last call, else NULL; it is not returned twice. Caller releases
  * with snapshot_release(). */
-struct snapshot *fit_take_resume_point(struct fit *f);
+struct snapshot *fit_take_savepoint(struct fit *f);
 /* Let a fit that levelled off (or is about to) run on until stopped or
  * max_sweeps: a fit holding at a plateau goes on fitting. Has no effect
  * after the thread ended. */

@@ -24,19 +24,13 @@
 #include <stddef.h>
 #include <stdint.h>
 
+#include "fcsr.h"
+
 struct graph;
 
 #define MODEL_FMAX 1000.0 /* strengths are capped here */
 #define MODEL_FLOOR 0.1   /* the update sends strengths below MODEL_FLOOR * delta to 0 */
 #define MODEL_MAX_K 1000000u
-
-/* Packed to 12 bytes: strengths are most of a fit's memory on large
- * graphs, and 4 bytes of padding per entry would be a quarter of it. Do
- * not take the address of v. */
-struct __attribute__((packed)) fentry {
-	uint32_t c; /* community column */
-	double v;   /* strength, > 0 */
-};
 
 struct frow {
 	uint32_t nnz, cap;
@@ -55,15 +49,6 @@ struct model {
 	 * likelihood altogether, neither edges nor non-edges. Must not share
 	 * a pair with the graph's edges. Used to choose k. */
 	const struct graph *excl;
-};
-
-/* Immutable strengths in compressed rows: what snapshots, checkpoints and
- * the AGM estimate read. off[n] entries in e; colsum has k values. */
-struct fcsr {
-	uint32_t n, k;
-	uint64_t *off;
-	struct fentry *e;
-	double *colsum;
 };
 
 /* The default background: the graph's density 2m / (n (n - 1)), kept
@@ -116,7 +101,6 @@ int model_import(struct model *m, const struct fcsr *in);
  * inner[u]. inner borrowed (n values); NULL is the identity. */
 int model_export_order(const struct model *m, const uint32_t *inner, struct fcsr *out);
 int model_import_order(struct model *m, const struct fcsr *in, const uint32_t *inner);
-void fcsr_release(struct fcsr *f);
 
 /*
  * One node's update. A struct model_work holds a thread's scratch space

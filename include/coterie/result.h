@@ -95,7 +95,7 @@ struct checkpoint {
 	uint32_t ntrace;
 	struct trace_point *trace;   /* owned */
 	struct fcsr F;               /* owned */
-	struct fit_resume *resume;   /* owned; NULL unless the fit was
+	struct fit_savepoint *savepoint;   /* owned; NULL unless the fit was
 				      * interrupted at the end of a sweep */
 };
 

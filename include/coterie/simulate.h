@@ -54,7 +54,7 @@ int simulate_params_check(const struct simulate_params *p);
 
 /*
  * A sampled planted graph.
- * Rules (tests: assert_simulate_sane() in tests/test_simulate.c):
+ * Rules (tests: assert_simulate_sane() in tests/unit/test_simulate.c):
  *   - truth is a cover of n nodes and k communities (cover.h rules), every
  *     community with at least 2 members and no node twice;
  *   - p[c] in [0, 1] for every community;

@@ -247,7 +247,7 @@ int cmd_explore(int argc, char **argv)
 			return 1;
 		cli_fit_opts_resume(&o, &ck.params, "for a saved fit", &p);
 		p.hold_at_plateau = 1;
-		if (!ck.resume) {
+		if (!ck.savepoint) {
 			/* what fit.h says such a fit does: one start, no moves */
 			p.starts = 1;
 			p.no_reseed = 1;

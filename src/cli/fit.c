@@ -7,8 +7,8 @@
  * now and then, and writes the result folder at the end. An interrupt
  * (Ctrl-C, SIGTERM, a lost terminal) lets the sweep in progress end,
  * saves, and exits 130; a second one stops inside the sweep. Both the
- * interrupted folder and the periodic checkpoints carry a resume point
- * (fit.h, struct fit_resume), so --resume ends with the bytes the
+ * interrupted folder and the periodic checkpoints carry a savepoint
+ * (fit.h, struct fit_savepoint), so --resume ends with the bytes the
  * uninterrupted fit would have written.
  */
 #include <getopt.h>
@@ -339,14 +339,14 @@ int cmd_fit(int argc, char **argv)
 			die(EXIT_USAGE, "--check-links cannot be used when resuming");
 		cli_fit_opts_resume(&o, &ck.params, "when resuming", &p);
 		p.hold_at_plateau = 0;
-		if (!ck.resume) {
+		if (!ck.savepoint) {
 			/* what fit.h says such a fit does: one start, no moves */
 			p.starts = 1;
 			p.no_reseed = 1;
 		}
-		if (ck.resume)
+		if (ck.savepoint)
 			notice("the saved fit was interrupted in start %u of %u; it goes on from there",
-			       ck.resume->start, p.starts);
+			       ck.savepoint->start, p.starts);
 		else if (ck.state == FIT_LEVELLED && !p.past_plateau)
 			notice("the saved fit had levelled off; it goes on until it levels off again");
 		checkpoint_origin(&ck, &origin);
@@ -414,7 +414,7 @@ int cmd_fit(int argc, char **argv)
 
 	struct progress pr = { isatty(2), quiet, 0, 0, 0, 0 };
 	double last_save = util_now();
-	int want_point = 0, one_start = resume && !ck.resume;
+	int want_point = 0, one_start = resume && !ck.savepoint;
 	int interrupted = 0;
 	char ckpath[4096];
 	snprintf(ckpath, sizeof ckpath, "%s/%s", out, RESULT_CHECKPOINT);
@@ -448,15 +448,15 @@ int cmd_fit(int argc, char **argv)
 			break;
 		}
 		progress_show(&pr, s, 0);
-		/* a periodic checkpoint carries a resume point, so that after a
+		/* a periodic checkpoint carries a savepoint, so that after a
 		 * kill -9 --resume continues exactly; the fit makes one at the end
 		 * of the next sweep when asked (a fit continued as one start
 		 * makes none, and saves its snapshot as it is) */
 		if (!want_point && util_now() - last_save >= save_every && !one_start) {
-			fit_want_resume_point(f);
+			fit_want_savepoint(f);
 			want_point = 1;
 		}
-		struct snapshot *ps = want_point ? fit_take_resume_point(f) : NULL;
+		struct snapshot *ps = want_point ? fit_take_savepoint(f) : NULL;
 		if (ps || (one_start && s->ntrace > 0 && util_now() - last_save >= save_every)) {
 			/* a failure is reported, and the next one tried later */
 			result_write_checkpoint(ckpath, graph, &p, ps ? ps : s);

@@ -167,7 +167,7 @@ static void act_pause(struct view *v, int arg)
 		return;
 	}
 	if (v->state == FIT_PAUSED || v->pause_asked) {
-		fit_resume(v->fit);
+		fit_unpause(v->fit);
 		v->pause_asked = 0;
 		view_say(v, UTIL_NOTICE, "resumed");
 	} else {

@@ -3,7 +3,7 @@
  * file. Its last 8 bytes are overwritten with the FNV-1a checksum of the
  * bytes before them (when there are at least 32), so the fuzzer reaches
  * the parser behind the checksum instead of being stopped by it on every
- * input; the checksum test itself is covered by tests/test_result.c. The
+ * input; the checksum test itself is covered by tests/unit/test_result.c. The
  * bytes go to a memfd, read back through /proc/self/fd, so no disk is
  * touched. A checkpoint that reads must keep the rules the reader promises
  * (result.h, model.h, graph.h); anything else (a crash, a sanitizer report,
@@ -78,10 +78,10 @@ static void check(const struct checkpoint *ck)
 		__builtin_trap();
 	check_fcsr(&ck->F, g->n, ck->params.k);
 	check_trace(ck->trace, ck->ntrace, ck->sweep);
-	const struct fit_resume *r = ck->resume;
+	const struct fit_savepoint *r = ck->savepoint;
 	if (r) {
 		if (r->start < 1 || r->start > ck->params.starts || r->best_start >= r->start ||
-		    r->phase > FIT_PHASE_REFINE || r->cur.ntrace < 1)
+		    r->phase > FIT_PHASE_RESEED || r->cur.ntrace < 1)
 			__builtin_trap();
 		check_fcsr(&r->cur.F, g->n, ck->params.k);
 		check_trace(r->cur.trace, r->cur.ntrace, r->cur.sweep);
@@ -92,7 +92,7 @@ static void check(const struct checkpoint *ck)
 	}
 	struct fit_origin o;
 	checkpoint_origin(ck, &o);
-	if (o.F != &ck->F || o.resume != ck->resume)
+	if (o.F != &ck->F || o.savepoint != ck->savepoint)
 		__builtin_trap();
 }
 

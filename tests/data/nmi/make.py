@@ -1,5 +1,5 @@
 #!/usr/bin/python3
-"""Write the plain-NMI fixtures of tests/test_score.c and their expected values.
+"""Write the plain-NMI fixtures of tests/unit/test_score.c and their expected values.
 
 Each case is two partitions of the same nodes, written as cover files
 (node<TAB>community, lines in a shuffled order, so the two files list the

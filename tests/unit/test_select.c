@@ -2,7 +2,7 @@
  * test_select: choosing k by held-out likelihood.
  *
  * The reference is the planted truth of the test generators (the ring of
- * tests/helpers.c test_planted_ring(), 8 communities, and planted_ring()
+ * tests/unit/helpers.c test_planted_ring(), 8 communities, and planted_ring()
  * below, any number): a held-out criterion that works must land near the
  * planted k (within the grid's neighbours of it) and prefer it to much
  * smaller k. The grid and the default bound are checked on cases worked

@@ -886,7 +886,7 @@ static void test_checkpoint_round_trip_keeps_every_field(void **state)
 	assert_int_equal(ck.params.past_plateau, 0);
 	assert_int_equal(ck.params.starts, 3);
 	assert_int_equal(ck.params.no_reseed, 1);
-	assert_null(ck.resume);
+	assert_null(ck.savepoint);
 
 	assert_int_equal(ck.sweep, 4);
 	assert_int_equal(ck.plateau_sweep, 3);
@@ -1209,15 +1209,15 @@ static struct fit_part fixture_part(void)
 	return pt;
 }
 
-/* An interrupted fit (fit.h, struct fit_resume) round-trips through the
+/* An interrupted fit (fit.h, struct fit_savepoint) round-trips through the
  * RSUM section, and damage inside it is refused. */
 static void test_checkpoint_keeps_where_an_interrupt_left_the_starts(void **state)
 {
 	(void)state;
-	struct fit_resume r;
+	struct fit_savepoint r;
 	memset(&r, 0, sizeof r);
 	r.start = 2;
-	r.phase = FIT_PHASE_REFINE;
+	r.phase = FIT_PHASE_RESEED;
 	r.cur = fixture_part();
 	r.best_start = 1;
 	r.best = fixture_part();
@@ -1227,17 +1227,17 @@ static void test_checkpoint_keeps_where_an_interrupt_left_the_starts(void **stat
 	r.best_reseeds = 2;
 	r.best_state = FIT_LEVELLED;
 	r.best_loglik = fx.trace[3].loglik;
-	fx.s.resume = &r;
+	fx.s.savepoint = &r;
 	char dir[4096];
 	const char *path = checkpoint_file(dir, sizeof dir);
-	fx.s.resume = NULL;
+	fx.s.savepoint = NULL;
 
 	struct checkpoint ck;
 	assert_int_equal(result_read_checkpoint(path, &ck), 0);
-	assert_non_null(ck.resume);
-	const struct fit_resume *q = ck.resume;
+	assert_non_null(ck.savepoint);
+	const struct fit_savepoint *q = ck.savepoint;
 	assert_int_equal(q->start, 2);
-	assert_int_equal(q->phase, FIT_PHASE_REFINE);
+	assert_int_equal(q->phase, FIT_PHASE_RESEED);
 	assert_int_equal(q->cur.sweep, 4);
 	assert_int_equal(q->cur.plateau_sweep, 3);
 	assert_int_equal(q->cur.ntrace, 5);
@@ -1254,9 +1254,9 @@ static void test_checkpoint_keeps_where_an_interrupt_left_the_starts(void **stat
 	assert_memory_equal(q->best.F.e, fx.fe, sizeof fx.fe);
 	struct fit_origin o;
 	checkpoint_origin(&ck, &o);
-	assert_ptr_equal(o.resume, ck.resume);
+	assert_ptr_equal(o.savepoint, ck.savepoint);
 	checkpoint_release(&ck);
-	assert_null(ck.resume);
+	assert_null(ck.savepoint);
 
 	/* damage under a valid checksum: RSUM payload = start, phase, sweep,
 	 * plateau_sweep, then a TRAC section */
@@ -1284,17 +1284,17 @@ static void test_checkpoint_keeps_where_an_interrupt_left_the_starts(void **stat
 	free(c.buf);
 	free(c.good);
 
-	/* a resume point the reader would refuse is left out, with a warning,
+	/* a savepoint the reader would refuse is left out, with a warning,
 	 * and the rest is saved: a save is not lost for it */
 	r.start = 4; /* of 3 starts */
-	fx.s.resume = &r;
+	fx.s.savepoint = &r;
 	quiet_on();
 	assert_int_equal(result_write_checkpoint(path, fx.g, &fx.p, &fx.s), 0);
 	quiet_off();
-	fx.s.resume = NULL;
-	assert_non_null(strstr(last_msg, "saved without its resume point"));
+	fx.s.savepoint = NULL;
+	assert_non_null(strstr(last_msg, "saved without its savepoint"));
 	assert_int_equal(result_read_checkpoint(path, &ck), 0);
-	assert_null(ck.resume);
+	assert_null(ck.savepoint);
 	assert_int_equal(ck.sweep, 4);
 	checkpoint_release(&ck);
 	test_rmtree(dir);

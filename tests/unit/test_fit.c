@@ -184,7 +184,7 @@ static void test_stop_keeps_the_model_and_pause_holds(void **state)
 	assert_true(a == b); /* nothing new while paused */
 	snapshot_release(a);
 	snapshot_release(b);
-	fit_resume(f);
+	fit_unpause(f);
 	fit_stop(f);
 	assert_int_equal(fit_wait(f), FIT_STOPPED);
 	struct snapshot *s = fit_snapshot(f);

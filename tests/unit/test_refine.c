@@ -217,7 +217,7 @@ static void test_refinement_never_lowers_loglik_and_ends_at_a_local_maximum(void
 		struct graph *g = test_planted_ring(&truth, 100 + (uint64_t)trial);
 		assert_non_null(g);
 		perturb(&rng, &truth, 0.3, 0.2, &start);
-		const double eps = 0.002; /* the ring's background (tests/helpers.c) */
+		const double eps = 0.002; /* the ring's background (tests/unit/helpers.c) */
 		struct refine *r = refine_new(g, &start, NULL, eps);
 		assert_non_null(r);
 		double p0[8];
@@ -284,7 +284,7 @@ static void test_refinement_recovers_a_perturbed_planted_cover(void **state)
 	       before, after, rep.loglik_before, rep.loglik_after,
 	       (unsigned long long)rep.added, (unsigned long long)rep.removed, rep.rounds,
 	       rep.seconds);
-	/* the truth is the planted cover (tests/helpers.c): refinement must
+	/* the truth is the planted cover (tests/unit/helpers.c): refinement must
 	 * move the perturbed cover towards it */
 	assert_true(after > before);
 	refine_free(r);

@@ -1,0 +1,37 @@
+/*
+ * fcsr: a strength matrix frozen in compressed rows, the form every
+ * module outside the fitting engine reads (snapshots, checkpoints, the
+ * AGM estimate, the explorer). The engine's working rows are in model.h.
+ *
+ * Rules (tests: assert_fcsr_sane()):
+ *   - off[0] == 0, off is non-decreasing, off[n] entries in e;
+ *   - each row's entries are sorted by community, strictly increasing,
+ *     with c < k and 0 < v;
+ *   - colsum has k values, colsum[c] the sum of column c (up to rounding).
+ */
+#ifndef COTERIE_FCSR_H
+#define COTERIE_FCSR_H
+
+#include <stdint.h>
+
+/* Packed to 12 bytes: strengths are most of a fit's memory on large
+ * graphs, and 4 bytes of padding per entry would be a quarter of it. Do
+ * not take the address of v. */
+struct __attribute__((packed)) fentry {
+	uint32_t c; /* community column */
+	double v;   /* strength, > 0 */
+};
+
+/* Immutable strengths in compressed rows: what snapshots, checkpoints and
+ * the AGM estimate read. off[n] entries in e; colsum has k values. */
+struct fcsr {
+	uint32_t n, k;
+	uint64_t *off;
+	struct fentry *e;
+	double *colsum;
+};
+
+/* Free the arrays of f and zero it; NULL is a no-op. */
+void fcsr_release(struct fcsr *f);
+
+#endif
