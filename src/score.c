@@ -487,44 +487,56 @@ static int bigc_cmp(const void *pa, const void *pb)
 	return (x->c > y->c) - (x->c < y->c);
 }
 
-int score_omega(const struct cover *a, const struct cover *b, double *out)
-{
+/* The state of one Omega computation; the steps below fill it in order. */
+struct omega {
 	struct nidx A, B;
-	struct hnode *hn = NULL;
-	uint32_t *rep = NULL, *w = NULL, *ma = NULL, *mb = NULL, *touched = NULL;
-	uint32_t *bitA = NULL, *bitB = NULL, *mask = NULL;
-	uint64_t *coa = NULL, *cob = NULL, *W = NULL;
-	uint32_t *cla = NULL, *clb = NULL;
-	struct omega_acc o = { 0 };
-	double result = 1.0;
-	int rc = -1;
-	uint32_t n = a->n, ncls = 0;
+	uint32_t ncls;          /* classes */
+	uint32_t *rep, *w;      /* ncls: a node of each class, its size */
+	uint64_t *coa, *cob;    /* class lists of A's and B's communities */
+	uint32_t *cla, *clb;
+	uint32_t *bitA, *bitB;  /* a big community's bit, 0 for a small one */
+	uint32_t *mask;         /* ncls: the bits of the class's big communities */
+	uint32_t maskA;         /* the bits that are A's */
+	uint64_t *W;            /* 2^OMEGA_MAX_BIG: nodes of each mask */
+	struct omega_acc o;
+};
 
-	if (same_n(a, b) < 0 || nidx_build(&A, a) < 0)
-		return -1;
-	if (nidx_build(&B, b) < 0) {
-		nidx_release(&A);
+static void omega_release(struct omega *m)
+{
+	free(m->rep);
+	free(m->w);
+	free(m->bitA);
+	free(m->bitB);
+	free(m->mask);
+	free(m->W);
+	free(m->coa);
+	free(m->cob);
+	free(m->cla);
+	free(m->clb);
+	free(m->o.ha);
+	free(m->o.hb);
+	nidx_release(&m->A);
+	nidx_release(&m->B);
+}
+
+/* Classes: nodes with the same lists on both sides, found by hashing the
+ * lists and comparing within a hash. */
+static int omega_classes(struct omega *m, uint32_t n)
+{
+	const struct nidx *A = &m->A, *B = &m->B;
+	struct hnode *hn = util_malloc(n, sizeof *hn);
+	m->rep = util_malloc(n, sizeof *m->rep);
+	m->w = util_calloc(n, sizeof *m->w);
+	if (!hn || !m->rep || !m->w) {
+		free(hn);
 		return -1;
 	}
-	uint64_t M = (uint64_t)n * (n ? n - 1 : 0) / 2;
-	if (M == 0) {
-		rc = 0; /* result 1 */
-		goto out;
-	}
-	/* classes: nodes with the same lists on both sides */
-	hn = util_malloc(n, sizeof *hn);
-	rep = util_malloc(n, sizeof *rep);
-	w = util_calloc(n, sizeof *w);
-	o.ha = util_calloc((size_t)A.maxdeg + 1, sizeof *o.ha);
-	o.hb = util_calloc((size_t)B.maxdeg + 1, sizeof *o.hb);
-	if (!hn || !rep || !w || !o.ha || !o.hb)
-		goto out;
 	for (uint32_t u = 0; u < n; u++) {
-		uint32_t da = nidx_deg(&A, u), db = nidx_deg(&B, u);
+		uint32_t da = nidx_deg(A, u), db = nidx_deg(B, u);
 		uint64_t hh = util_fnv1a(UTIL_FNV_INIT, &da, sizeof da);
-		hh = util_fnv1a(hh, A.com + A.off[u], (size_t)da * sizeof *A.com);
+		hh = util_fnv1a(hh, A->com + A->off[u], (size_t)da * sizeof *A->com);
 		hh = util_fnv1a(hh, &db, sizeof db);
-		hh = util_fnv1a(hh, B.com + B.off[u], (size_t)db * sizeof *B.com);
+		hh = util_fnv1a(hh, B->com + B->off[u], (size_t)db * sizeof *B->com);
 		hn[u] = (struct hnode){ hh, u };
 	}
 	qsort(hn, n, sizeof *hn, hnode_cmp);
@@ -532,158 +544,203 @@ int score_omega(const struct cover *a, const struct cover *b, double *out)
 		uint32_t j = i;
 		while (j < n && hn[j].hash == hn[i].hash)
 			j++;
-		uint32_t first = ncls; /* classes of this hash: first .. ncls-1 */
+		uint32_t first = m->ncls; /* classes of this hash: first .. ncls-1 */
 		for (uint32_t t = i; t < j; t++) {
 			uint32_t u = hn[t].node, p = first;
-			while (p < ncls && !same_lists(&A, &B, rep[p], u))
+			while (p < m->ncls && !same_lists(A, B, m->rep[p], u))
 				p++;
-			if (p == ncls)
-				rep[ncls++] = u;
-			w[p]++;
+			if (p == m->ncls)
+				m->rep[m->ncls++] = u;
+			m->w[p]++;
 		}
 		i = j;
 	}
-	if (class_lists(&A, a->k, ncls, rep, &coa, &cla) < 0 ||
-	    class_lists(&B, b->k, ncls, rep, &cob, &clb) < 0)
-		goto out;
+	free(hn);
+	return 0;
+}
 
-	/* the big communities get one bit each; mask[p] has the bits of
-	 * class p's big communities (A's and B's bits are apart) */
-	bitA = util_calloc(a->k + 1, sizeof *bitA);
-	bitB = util_calloc(b->k + 1, sizeof *bitB);
-	mask = util_calloc(ncls, sizeof *mask);
-	W = util_calloc((size_t)1 << OMEGA_MAX_BIG, sizeof *W);
-	if (!bitA || !bitB || !mask || !W)
-		goto out;
-	uint32_t maskA = 0;
-	{
-		struct bigc big[2 * OMEGA_MAX_BIG + 1];
-		uint32_t nb = 0;
-		for (uint32_t side = 0; side < 2; side++) {
-			const uint64_t *coff = side ? cob : coa;
-			uint32_t kc = side ? b->k : a->k;
-			for (uint32_t c = 0; c < kc; c++) {
-				uint64_t cl = coff[c + 1] - coff[c];
-				if (cl <= OMEGA_BIG_CLASSES)
-					continue;
-				big[nb++] = (struct bigc){ cl, side, c };
-				qsort(big, nb, sizeof *big, bigc_cmp);
-				if (nb > OMEGA_MAX_BIG)
-					nb = OMEGA_MAX_BIG;
-			}
-		}
-		for (uint32_t i = 0; i < nb; i++) {
-			if (big[i].side == 0) {
-				bitA[big[i].c] = 1u << i;
-				maskA |= 1u << i;
-			} else {
-				bitB[big[i].c] = 1u << i;
-			}
+/* The big communities get one bit each; mask[p] has the bits of class p's
+ * big communities (A's and B's bits are apart), W[x] the nodes of mask x. */
+static int omega_big(struct omega *m, uint32_t ka, uint32_t kb)
+{
+	m->bitA = util_calloc(ka + 1, sizeof *m->bitA);
+	m->bitB = util_calloc(kb + 1, sizeof *m->bitB);
+	m->mask = util_calloc(m->ncls, sizeof *m->mask);
+	m->W = util_calloc((size_t)1 << OMEGA_MAX_BIG, sizeof *m->W);
+	if (!m->bitA || !m->bitB || !m->mask || !m->W)
+		return -1;
+	struct bigc big[2 * OMEGA_MAX_BIG + 1];
+	uint32_t nb = 0;
+	for (uint32_t side = 0; side < 2; side++) {
+		const uint64_t *coff = side ? m->cob : m->coa;
+		uint32_t kc = side ? kb : ka;
+		for (uint32_t c = 0; c < kc; c++) {
+			uint64_t cl = coff[c + 1] - coff[c];
+			if (cl <= OMEGA_BIG_CLASSES)
+				continue;
+			big[nb++] = (struct bigc){ cl, side, c };
+			qsort(big, nb, sizeof *big, bigc_cmp);
+			if (nb > OMEGA_MAX_BIG)
+				nb = OMEGA_MAX_BIG;
 		}
 	}
-	for (uint32_t p = 0; p < ncls; p++) {
-		uint32_t u = rep[p];
-		for (uint64_t t = A.off[u]; t < A.off[u + 1]; t++)
-			mask[p] |= bitA[A.com[t]];
-		for (uint64_t t = B.off[u]; t < B.off[u + 1]; t++)
-			mask[p] |= bitB[B.com[t]];
-		W[mask[p]] += w[p];
+	for (uint32_t i = 0; i < nb; i++) {
+		if (big[i].side == 0) {
+			m->bitA[big[i].c] = 1u << i;
+			m->maskA |= 1u << i;
+		} else {
+			m->bitB[big[i].c] = 1u << i;
+		}
 	}
-	/* Every pair first as if it shared the big communities only: by mask. */
-	uint32_t nkey = 0, key[1u << OMEGA_MAX_BIG];
+	for (uint32_t p = 0; p < m->ncls; p++) {
+		uint32_t u = m->rep[p];
+		for (uint64_t t = m->A.off[u]; t < m->A.off[u + 1]; t++)
+			m->mask[p] |= m->bitA[m->A.com[t]];
+		for (uint64_t t = m->B.off[u]; t < m->B.off[u + 1]; t++)
+			m->mask[p] |= m->bitB[m->B.com[t]];
+		m->W[m->mask[p]] += m->w[p];
+	}
+	return 0;
+}
+
+/* Every pair first as if it shared the big communities only: by mask. */
+static void omega_count_by_mask(struct omega *m)
+{
+	uint32_t nkey = 0, key[1u << OMEGA_MAX_BIG], maskA = m->maskA;
+	const uint64_t *W = m->W;
 	for (uint32_t x = 0; x < (1u << OMEGA_MAX_BIG); x++)
 		if (W[x])
 			key[nkey++] = x;
 	for (uint32_t i = 0; i < nkey; i++) {
 		uint32_t x = key[i];
-		omega_add(&o, popcount32(x & maskA), popcount32(x & ~maskA), W[x] * (W[x] - 1) / 2,
-			  1);
+		omega_add(&m->o, popcount32(x & maskA), popcount32(x & ~maskA),
+			  W[x] * (W[x] - 1) / 2, 1);
 		for (uint32_t j = i + 1; j < nkey; j++) {
 			uint32_t y = key[j];
-			omega_add(&o, popcount32(x & y & maskA), popcount32(x & y & ~maskA),
+			omega_add(&m->o, popcount32(x & y & maskA), popcount32(x & y & ~maskA),
 				  W[x] * W[y], 1);
 		}
 	}
-	/* Then the pairs that share a small community, and the pairs inside a
-	 * class, corrected: their guess by mask is taken back. */
-	ma = util_calloc(ncls, sizeof *ma);
-	mb = util_calloc(ncls, sizeof *mb);
-	touched = util_malloc(ncls, sizeof *touched);
-	if (!ma || !mb || !touched)
-		goto out;
-	for (uint32_t p = 0; p < ncls; p++) {
-		uint32_t u = rep[p], nt = 0;
-		for (int side = 0; side < 2; side++) {
-			const struct nidx *X = side ? &B : &A;
-			const uint64_t *coff = side ? cob : coa;
-			const uint32_t *cl = side ? clb : cla;
-			const uint32_t *bit = side ? bitB : bitA;
-			uint32_t *m = side ? mb : ma;
-			for (uint64_t t = X->off[u]; t < X->off[u + 1]; t++) {
-				uint32_t c = X->com[t];
-				if (bit[c])
-					continue; /* big: counted by mask */
-				/* classes after p: the list is increasing */
-				uint64_t lo = coff[c], hi = coff[c + 1];
-				while (lo < hi) {
-					uint64_t mid = lo + (hi - lo) / 2;
-					if (cl[mid] <= p)
-						lo = mid + 1;
-					else
-						hi = mid;
-				}
-				for (uint64_t s2 = lo; s2 < coff[c + 1]; s2++) {
-					uint32_t q = cl[s2];
-					if (ma[q] == 0 && mb[q] == 0)
-						touched[nt++] = q;
-					m[q]++;
-				}
-			}
+}
+
+/* For class p: count in mt[q] the small communities of one side (X) that
+ * hold p and a later class q, listing each q met first in touched. */
+static void omega_meet_small(const struct omega *m, int side, uint32_t p, uint32_t *ma,
+			     uint32_t *mb, uint32_t *touched, uint32_t *nt)
+{
+	const struct nidx *X = side ? &m->B : &m->A;
+	const uint64_t *coff = side ? m->cob : m->coa;
+	const uint32_t *cl = side ? m->clb : m->cla;
+	const uint32_t *bit = side ? m->bitB : m->bitA;
+	uint32_t *mt = side ? mb : ma, u = m->rep[p];
+	for (uint64_t t = X->off[u]; t < X->off[u + 1]; t++) {
+		uint32_t c = X->com[t];
+		if (bit[c])
+			continue; /* big: counted by mask */
+		/* classes after p: the list is increasing */
+		uint64_t lo = coff[c], hi = coff[c + 1];
+		while (lo < hi) {
+			uint64_t mid = lo + (hi - lo) / 2;
+			if (cl[mid] <= p)
+				lo = mid + 1;
+			else
+				hi = mid;
 		}
+		for (uint64_t s2 = lo; s2 < coff[c + 1]; s2++) {
+			uint32_t q = cl[s2];
+			if (ma[q] == 0 && mb[q] == 0)
+				touched[(*nt)++] = q;
+			mt[q]++;
+		}
+	}
+}
+
+/* Then the pairs that share a small community, and the pairs inside a
+ * class, corrected: their guess by mask is taken back. */
+static int omega_count_small(struct omega *m)
+{
+	uint32_t ncls = m->ncls, maskA = m->maskA;
+	const uint32_t *w = m->w, *mask = m->mask;
+	uint32_t *ma = util_calloc(ncls, sizeof *ma);
+	uint32_t *mb = util_calloc(ncls, sizeof *mb);
+	uint32_t *touched = util_malloc(ncls, sizeof *touched);
+	if (!ma || !mb || !touched) {
+		free(ma);
+		free(mb);
+		free(touched);
+		return -1;
+	}
+	for (uint32_t p = 0; p < ncls; p++) {
+		uint32_t u = m->rep[p], nt = 0;
+		for (int side = 0; side < 2; side++)
+			omega_meet_small(m, side, p, ma, mb, touched, &nt);
 		for (uint32_t t = 0; t < nt; t++) {
 			uint32_t q = touched[t], both = mask[p] & mask[q];
 			uint32_t ga = popcount32(both & maskA), gb = popcount32(both & ~maskA);
 			uint64_t pairs = (uint64_t)w[p] * w[q];
-			omega_add(&o, ga + ma[q], gb + mb[q], pairs, 1);
-			omega_add(&o, ga, gb, pairs, -1);
+			omega_add(&m->o, ga + ma[q], gb + mb[q], pairs, 1);
+			omega_add(&m->o, ga, gb, pairs, -1);
 			ma[q] = mb[q] = 0;
 		}
 		uint64_t inside = (uint64_t)w[p] * (w[p] - 1) / 2;
-		omega_add(&o, nidx_deg(&A, u), nidx_deg(&B, u), inside, 1);
-		omega_add(&o, popcount32(mask[p] & maskA), popcount32(mask[p] & ~maskA), inside, -1);
+		omega_add(&m->o, nidx_deg(&m->A, u), nidx_deg(&m->B, u), inside, 1);
+		omega_add(&m->o, popcount32(mask[p] & maskA), popcount32(mask[p] & ~maskA), inside,
+			  -1);
 	}
-	for (uint32_t k = 0; k <= A.maxdeg && k <= B.maxdeg; k++)
-		if (o.ha[k] == M && o.hb[k] == M) {
-			rc = 0; /* result 1: expected = observed = 1 */
-			goto out;
-		}
-	long double LM = (long double)M, exp_ = 0.0L;
-	for (uint32_t k = 0; k <= A.maxdeg && k <= B.maxdeg; k++)
-		exp_ += ((long double)o.ha[k] / LM) * ((long double)o.hb[k] / LM);
-	long double obs = (long double)o.agree / LM;
-	result = (double)((obs - exp_) / (1.0L - exp_));
-	rc = 0;
-out:
-	free(hn);
-	free(rep);
-	free(w);
 	free(ma);
 	free(mb);
 	free(touched);
-	free(bitA);
-	free(bitB);
-	free(mask);
-	free(W);
-	free(coa);
-	free(cob);
-	free(cla);
-	free(clb);
-	free(o.ha);
-	free(o.hb);
-	nidx_release(&A);
-	nidx_release(&B);
-	if (rc == 0)
-		*out = result;
+	return 0;
+}
+
+/* Omega from the final counts over M pairs. */
+static double omega_value(const struct omega *m, uint64_t M)
+{
+	const struct omega_acc *o = &m->o;
+	uint32_t top = m->A.maxdeg < m->B.maxdeg ? m->A.maxdeg : m->B.maxdeg;
+	for (uint32_t k = 0; k <= top; k++)
+		if (o->ha[k] == M && o->hb[k] == M)
+			return 1.0; /* expected = observed = 1 */
+	long double LM = (long double)M, exp_ = 0.0L;
+	for (uint32_t k = 0; k <= top; k++)
+		exp_ += ((long double)o->ha[k] / LM) * ((long double)o->hb[k] / LM);
+	long double obs = (long double)o->agree / LM;
+	return (double)((obs - exp_) / (1.0L - exp_));
+}
+
+int score_omega(const struct cover *a, const struct cover *b, double *out)
+{
+	struct omega m;
+	memset(&m, 0, sizeof m);
+	uint32_t n = a->n;
+
+	if (same_n(a, b) < 0 || nidx_build(&m.A, a) < 0)
+		return -1;
+	if (nidx_build(&m.B, b) < 0) {
+		nidx_release(&m.A);
+		return -1;
+	}
+	uint64_t M = (uint64_t)n * (n ? n - 1 : 0) / 2;
+	if (M == 0) {
+		omega_release(&m);
+		*out = 1.0;
+		return 0;
+	}
+	m.o.ha = util_calloc((size_t)m.A.maxdeg + 1, sizeof *m.o.ha);
+	m.o.hb = util_calloc((size_t)m.B.maxdeg + 1, sizeof *m.o.hb);
+	int rc = -1;
+	if (!m.o.ha || !m.o.hb || omega_classes(&m, n) < 0 ||
+	    class_lists(&m.A, a->k, m.ncls, m.rep, &m.coa, &m.cla) < 0 ||
+	    class_lists(&m.B, b->k, m.ncls, m.rep, &m.cob, &m.clb) < 0 ||
+	    omega_big(&m, a->k, b->k) < 0)
+		goto out;
+	omega_count_by_mask(&m);
+	if (omega_count_small(&m) < 0)
+		goto out;
+	*out = omega_value(&m, M);
+	rc = 0;
+out:
+	omega_release(&m);
 	return rc;
 }
 
