@@ -173,16 +173,10 @@ static json_t *jint(uint64_t v)
 
 static json_t *jcommunity(const struct agm_community *c)
 {
-	json_t *o = json_object();
-	json_object_set_new(o, "id", jint(c->id));
-	json_object_set_new(o, "size", jint(c->size));
-	json_object_set_new(o, "internal_edges", jint(c->internal_edges));
-	json_object_set_new(o, "volume", jint(c->volume));
-	json_object_set_new(o, "cut", jint(c->cut));
-	json_object_set_new(o, "density", cli_json_real(c->density));
-	json_object_set_new(o, "conductance", cli_json_real(c->conductance));
-	json_object_set_new(o, "p", cli_json_real(c->p));
-	return o;
+	return json_pack("{s:o s:o s:o s:o s:o s:o s:o s:o}", "id", jint(c->id), "size",
+			 jint(c->size), "internal_edges", jint(c->internal_edges), "volume",
+			 jint(c->volume), "cut", jint(c->cut), "density", cli_json_real(c->density),
+			 "conductance", cli_json_real(c->conductance), "p", cli_json_real(c->p));
 }
 
 /* ---- the summary ------------------------------------------------------ */
@@ -197,27 +191,20 @@ static int show_summary(const struct show *s)
 	size_t n = shown(a->cover.k, s->limit);
 
 	if (s->json) {
-		json_t *root = json_object();
 		json_t *list = json_array();
-		json_object_set_new(root, "dir", cli_json_str(s->dir));
-		json_object_set_new(root, "nodes", jint(g->n));
-		json_object_set_new(root, "edges", jint(g->m));
-		json_object_set_new(root, "k", jint(ck->params.k));
-		json_object_set_new(root, "ncommunities", jint(a->cover.k));
-		json_object_set_new(root, "covered", jint(a->covered));
-		json_object_set_new(root, "overlapping", jint(a->overlapping));
-		json_object_set_new(root, "sweep", jint(ck->sweep));
-		json_object_set_new(root, "state", json_string(fit_state_name(ck->state)));
-		json_object_set_new(root, "seconds", cli_json_real(ck->seconds));
-		json_object_set_new(root, "loglik", have_ll ? cli_json_real(ll) : json_null());
-		json_object_set_new(root, "agm_loglik", cli_json_real(a->loglik));
-		json_object_set_new(root, "epsilon", cli_json_real(ck->epsilon));
-		json_object_set_new(root, "delta", cli_json_real(s->delta));
-		json_object_set_new(root, "min_links", cli_json_real(AGM_MIN_LINKS));
 		for (size_t i = 0; i < n; i++)
 			json_array_append_new(list, jcommunity(&a->comms[i]));
-		json_object_set_new(root, "communities", list);
-		return cli_json_print(root);
+		return cli_json_print(json_pack(
+			"{s:o s:o s:o s:o s:o s:o s:o s:o s:s s:o s:o s:o s:o s:o s:o s:o}",
+			"dir", cli_json_str(s->dir), "nodes", jint(g->n), "edges", jint(g->m),
+			"k", jint(ck->params.k), "ncommunities", jint(a->cover.k),
+			"covered", jint(a->covered), "overlapping", jint(a->overlapping),
+			"sweep", jint(ck->sweep), "state", fit_state_name(ck->state),
+			"seconds", cli_json_real(ck->seconds),
+			"loglik", have_ll ? cli_json_real(ll) : json_null(),
+			"agm_loglik", cli_json_real(a->loglik), "epsilon", cli_json_real(ck->epsilon),
+			"delta", cli_json_real(s->delta), "min_links", cli_json_real(AGM_MIN_LINKS),
+			"communities", list));
 	}
 
 	char buf[NAME_CAP];
@@ -281,27 +268,19 @@ static int show_node(const struct show *s, const char *name)
 	int rc;
 
 	if (s->json) {
-		json_t *root = json_object();
 		json_t *list = json_array();
-		json_object_set_new(root, "node", cli_json_str(g->names[u]));
-		json_object_set_new(root, "id", jint((uint64_t)u));
-		json_object_set_new(root, "degree", jint(nv.degree));
-		json_object_set_new(root, "memberships", jint(nv.nmember));
-		json_object_set_new(root, "naffiliations", jint(nv.naffil));
-		json_object_set_new(root, "unexplained", jint(nv.unexplained));
-		json_object_set_new(root, "delta", cli_json_real(s->delta));
-		json_object_set_new(root, "min_links", cli_json_real(AGM_MIN_LINKS));
 		for (size_t i = 0; i < n; i++) {
 			const struct inspect_affil *f = &nv.affil[i];
-			json_t *o = json_object();
-			json_object_set_new(o, "community", jint(f->comm));
-			json_object_set_new(o, "strength", cli_json_real(f->strength));
-			json_object_set_new(o, "member", json_boolean(f->member));
-			json_object_set_new(o, "explained", jint(f->explained));
-			json_array_append_new(list, o);
+			json_array_append_new(list, json_pack("{s:o s:o s:b s:o}",
+				"community", jint(f->comm), "strength", cli_json_real(f->strength),
+				"member", f->member, "explained", jint(f->explained)));
 		}
-		json_object_set_new(root, "affiliations", list);
-		rc = cli_json_print(root);
+		rc = cli_json_print(json_pack("{s:o s:o s:o s:o s:o s:o s:o s:o s:o}",
+			"node", cli_json_str(g->names[u]), "id", jint((uint64_t)u),
+			"degree", jint(nv.degree), "memberships", jint(nv.nmember),
+			"naffiliations", jint(nv.naffil), "unexplained", jint(nv.unexplained),
+			"delta", cli_json_real(s->delta), "min_links", cli_json_real(AGM_MIN_LINKS),
+			"affiliations", list));
 		inspect_node_release(&nv);
 		return rc;
 	}
@@ -375,12 +354,10 @@ static int show_community(const struct show *s, uint32_t id)
 	if (s->json) {
 		json_t *root = jcommunity(c);
 		json_t *list = json_array();
-		for (size_t i = 0; i < n; i++) {
-			json_t *o = json_object();
-			json_object_set_new(o, "node", cli_json_str(g->names[order[i]]));
-			json_object_set_new(o, "strength", cli_json_real(str[i]));
-			json_array_append_new(list, o);
-		}
+		for (size_t i = 0; i < n; i++)
+			json_array_append_new(list, json_pack("{s:o s:o}",
+				"node", cli_json_str(g->names[order[i]]),
+				"strength", cli_json_real(str[i])));
 		json_object_set_new(root, "members", list);
 		rc = cli_json_print(root);
 	} else {
@@ -530,28 +507,20 @@ static int show_edge(const struct show *s, const char *na, const char *nb)
 	size_t n = shown(e.nshare, s->limit);
 	int rc = 0;
 	if (s->json) {
-		json_t *root = json_object();
 		json_t *list = json_array();
-		json_object_set_new(root, "a", cli_json_str(g->names[u]));
-		json_object_set_new(root, "b", cli_json_str(g->names[v]));
-		json_object_set_new(root, "linked", json_boolean(e.linked));
-		json_object_set_new(root, "dot", cli_json_real(e.x));
-		json_object_set_new(root, "prob", cli_json_real(e.prob));
-		json_object_set_new(root, "prob_communities", cli_json_real(e.prob_comms));
-		json_object_set_new(root, "agm_prob", cli_json_real(e.agm_prob));
-		json_object_set_new(root, "epsilon", cli_json_real(s->ck.epsilon));
 		for (size_t i = 0; i < n; i++) {
 			const struct inspect_share *sh = &e.share[i];
-			json_t *o = json_object();
-			json_object_set_new(o, "community", jint(sh->comm));
-			json_object_set_new(o, "product", cli_json_real(sh->product));
-			json_object_set_new(o, "alone", cli_json_real(sh->alone));
-			json_object_set_new(o, "both_members", json_boolean(sh->both_members));
-			json_object_set_new(o, "p", cli_json_real(sh->p));
-			json_array_append_new(list, o);
+			json_array_append_new(list, json_pack("{s:o s:o s:o s:b s:o}",
+				"community", jint(sh->comm), "product", cli_json_real(sh->product),
+				"alone", cli_json_real(sh->alone), "both_members", sh->both_members,
+				"p", cli_json_real(sh->p)));
 		}
-		json_object_set_new(root, "communities", list);
-		rc = cli_json_print(root);
+		rc = cli_json_print(json_pack("{s:o s:o s:b s:o s:o s:o s:o s:o s:o}",
+			"a", cli_json_str(g->names[u]), "b", cli_json_str(g->names[v]),
+			"linked", e.linked, "dot", cli_json_real(e.x), "prob", cli_json_real(e.prob),
+			"prob_communities", cli_json_real(e.prob_comms),
+			"agm_prob", cli_json_real(e.agm_prob), "epsilon", cli_json_real(s->ck.epsilon),
+			"communities", list));
 		inspect_edge_release(&e);
 		return rc;
 	}
@@ -653,7 +622,16 @@ enum {
 	OPT_LINKS,
 };
 
-static int show_run(int argc, char **argv, const char *edge_a, const char *edge_b)
+/* What the command line asked for. */
+struct show_args {
+	const char *node, *edge_a, *edge_b;
+	uint32_t comm, weak, limit;
+	int have_comm, have_weak, have_limit, missing, json, links;
+};
+
+/* Reads the options into *o: 0 to go on, else -1 with the exit status in
+ * *status (0 after --help, EXIT_USAGE with a message). */
+static int show_parse(int argc, char **argv, struct show_args *o, int *status)
 {
 	static const struct option opts[] = {
 		{ "node", required_argument, NULL, OPT_NODE },
@@ -666,41 +644,42 @@ static int show_run(int argc, char **argv, const char *edge_a, const char *edge_
 		{ "help", no_argument, NULL, 'h' },
 		{ NULL, 0, NULL, 0 },
 	};
-	const char *node = NULL;
-	uint32_t comm = 0, weak = 0, limit = SHOW_DEFAULT_LIMIT;
-	int have_comm = 0, have_weak = 0, missing = 0, json = 0, links = 0, have_limit = 0, c;
 	char buf[NAME_CAP];
+	int c;
 
-
+	*status = EXIT_USAGE;
 	optind = 1;
 	opterr = 0;
 	while ((c = getopt_long(argc, argv, ":h", opts, NULL)) != -1) {
 		switch (c) {
-		case OPT_NODE: node = optarg; break;
+		case OPT_NODE: o->node = optarg; break;
 		case OPT_COMMUNITY:
-			if (parse_u32("--community", optarg, UINT32_MAX - 1, &comm))
-				return EXIT_USAGE;
-			have_comm = 1;
+			if (parse_u32("--community", optarg, UINT32_MAX - 1, &o->comm))
+				return -1;
+			o->have_comm = 1;
 			break;
 		case OPT_WEAK:
-			if (parse_u32("--weak-edges", optarg, UINT32_MAX - 1, &weak))
-				return EXIT_USAGE;
-			have_weak = 1;
+			if (parse_u32("--weak-edges", optarg, UINT32_MAX - 1, &o->weak))
+				return -1;
+			o->have_weak = 1;
 			break;
-		case OPT_MISSING: missing = 1; break;
+		case OPT_MISSING: o->missing = 1; break;
 		case OPT_LIMIT:
-			if (parse_u32("--limit", optarg, UINT32_MAX, &limit))
-				return EXIT_USAGE;
-			have_limit = 1;
+			if (parse_u32("--limit", optarg, UINT32_MAX, &o->limit))
+				return -1;
+			o->have_limit = 1;
 			break;
-		case OPT_JSON: json = 1; break;
-		case OPT_LINKS: links = 1; break;
-		case 'h': show_usage(stdout); return 0;
+		case OPT_JSON: o->json = 1; break;
+		case OPT_LINKS: o->links = 1; break;
+		case 'h':
+			show_usage(stdout);
+			*status = 0;
+			return -1;
 		case ':':
 			error("option '%s' needs a value",
 			      util_escape(argv[optind - 1], buf, sizeof buf, 1));
 			show_usage_short(stderr);
-			return EXIT_USAGE;
+			return -1;
 		default:
 			if (optopt && optopt != '?')
 				error("unknown option '-%c'", (optopt > 32 && optopt < 127) ? optopt : '?');
@@ -708,7 +687,7 @@ static int show_run(int argc, char **argv, const char *edge_a, const char *edge_
 				error("unknown option '%s'",
 				      util_escape(argv[optind - 1], buf, sizeof buf, 1));
 			show_usage_short(stderr);
-			return EXIT_USAGE;
+			return -1;
 		}
 	}
 	if (argc - optind != 1) {
@@ -716,56 +695,75 @@ static int show_run(int argc, char **argv, const char *edge_a, const char *edge_
 			error("show needs a result folder");
 		else
 			error("show takes one result folder, not %d", argc - optind);
-		show_usage_short(stderr);
-		return EXIT_USAGE;
-	}
-	if ((node != NULL) + have_comm + have_weak + (edge_a != NULL) + links > 1) {
+	} else if ((o->node != NULL) + o->have_comm + o->have_weak + (o->edge_a != NULL) +
+		   o->links > 1) {
 		error("choose one of --node, --community, --weak-edges, --edge and --links");
-		show_usage_short(stderr);
-		return EXIT_USAGE;
-	}
-	if (missing && !have_weak) {
+	} else if (o->missing && !o->have_weak) {
 		error("--missing goes with --weak-edges ID");
-		show_usage_short(stderr);
-		return EXIT_USAGE;
+	} else {
+		return 0;
 	}
+	show_usage_short(stderr);
+	return -1;
+}
+
+/* Reads the folder's checkpoint and its AGM into *s: 0, or -1 with a
+ * message (nothing left to release). */
+static int show_open(struct show *s)
+{
+	char path[4096], buf[NAME_CAP];
+	int w = snprintf(path, sizeof path, "%s/%s", s->dir, RESULT_CHECKPOINT);
+	if (w < 0 || (size_t)w >= sizeof path)
+		return error("the folder name is too long: %s",
+			     util_escape(s->dir, buf, sizeof buf, 1));
+	if (result_read_checkpoint(path, &s->ck))
+		return -1;
+	s->delta = sqrt(-log1p(-s->ck.epsilon));
+	if (agm_from_strengths(&s->agm, s->ck.graph, &s->ck.F, s->ck.epsilon, s->delta,
+			       AGM_MIN_LINKS)) {
+		checkpoint_release(&s->ck);
+		return -1;
+	}
+	return 0;
+}
+
+/* The one view asked for: 0 or -1. */
+static int show_view(const struct show *s, const struct show_args *o)
+{
+	if (o->node)
+		return show_node(s, o->node);
+	if (o->have_comm)
+		return show_community(s, o->comm);
+	if (o->have_weak)
+		return show_pairs(s, o->weak, o->missing);
+	if (o->edge_a)
+		return show_edge(s, o->edge_a, o->edge_b);
+	if (o->links)
+		return show_links(s);
+	return show_summary(s);
+}
+
+static int show_run(int argc, char **argv, const char *edge_a, const char *edge_b)
+{
+	struct show_args o;
+	memset(&o, 0, sizeof o);
+	o.limit = SHOW_DEFAULT_LIMIT;
+	o.edge_a = edge_a;
+	o.edge_b = edge_b;
+	int status;
+	if (show_parse(argc, argv, &o, &status))
+		return status;
 
 	struct show s;
 	memset(&s, 0, sizeof s);
 	s.dir = argv[optind];
-	s.json = json;
+	s.json = o.json;
 	s.ascii = !cli_utf8();
-	s.limit = limit == 0 || (links && !have_limit) ? SIZE_MAX : limit;
-
-	char path[4096];
-	int w = snprintf(path, sizeof path, "%s/%s", s.dir, RESULT_CHECKPOINT);
-	if (w < 0 || (size_t)w >= sizeof path) {
-		error("the folder name is too long: %s", util_escape(s.dir, buf, sizeof buf, 1));
+	s.limit = o.limit == 0 || (o.links && !o.have_limit) ? SIZE_MAX : o.limit;
+	if (show_open(&s))
 		return 1;
-	}
-	if (result_read_checkpoint(path, &s.ck))
-		return 1;
-	s.delta = sqrt(-log1p(-s.ck.epsilon));
-	if (agm_from_strengths(&s.agm, s.ck.graph, &s.ck.F, s.ck.epsilon, s.delta,
-			       AGM_MIN_LINKS)) {
-		checkpoint_release(&s.ck);
-		return 1;
-	}
 
-	int rc;
-	if (node)
-		rc = show_node(&s, node);
-	else if (have_comm)
-		rc = show_community(&s, comm);
-	else if (have_weak)
-		rc = show_pairs(&s, weak, missing);
-	else if (edge_a)
-		rc = show_edge(&s, edge_a, edge_b);
-	else if (links)
-		rc = show_links(&s);
-	else
-		rc = show_summary(&s);
-
+	int rc = show_view(&s, &o);
 	if (fflush(stdout) || ferror(stdout)) {
 		if (rc == 0)
 			error("cannot write the output: %s", strerror(errno));
