@@ -75,13 +75,10 @@ static int resolve(const char *arg, char *path)
 
 static json_t *jside(const struct side *d)
 {
-	json_t *o = json_object();
-	json_object_set_new(o, "file", cli_json_str(d->path));
-	json_object_set_new(o, "communities", json_integer(d->s.communities));
-	json_object_set_new(o, "covered_nodes", json_integer(d->s.covered));
-	json_object_set_new(o, "overlapping_nodes", json_integer(d->s.overlapping));
-	json_object_set_new(o, "only_in_this_file", json_integer(d->s.only));
-	return o;
+	return json_pack("{s:o s:I s:I s:I s:I}", "file", cli_json_str(d->path), "communities",
+			 (json_int_t)d->s.communities, "covered_nodes", (json_int_t)d->s.covered,
+			 "overlapping_nodes", (json_int_t)d->s.overlapping, "only_in_this_file",
+			 (json_int_t)d->s.only);
 }
 
 struct scores {
@@ -92,21 +89,13 @@ struct scores {
 static int print_json(const struct side *t, const struct side *f, uint32_t n,
 		      const struct scores *sc)
 {
-	json_t *root = json_object();
-	if (!root)
-		return error("out of memory");
-	json_object_set_new(root, "truth", jside(t));
-	json_object_set_new(root, "found", jside(f));
-	json_object_set_new(root, "nodes", json_integer(n));
-	json_object_set_new(root, "onmi_max", cli_json_real(sc->onmi_max));
-	json_object_set_new(root, "onmi_lfk", cli_json_real(sc->onmi_lfk));
-	json_object_set_new(root, "omega", cli_json_real(sc->omega));
-	json_object_set_new(root, "f1", cli_json_real(sc->f1));
-	json_object_set_new(root, "f1_truth_to_found", cli_json_real(sc->f1_tf));
-	json_object_set_new(root, "f1_found_to_truth", cli_json_real(sc->f1_ft));
-	json_object_set_new(root, "partitions", json_boolean(sc->partitions));
-	json_object_set_new(root, "nmi", sc->partitions ? cli_json_real(sc->nmi) : json_null());
-	return cli_json_print(root);
+	return cli_json_print(json_pack("{s:o s:o s:I s:o s:o s:o s:o s:o s:o s:b s:o}",
+		"truth", jside(t), "found", jside(f), "nodes", (json_int_t)n,
+		"onmi_max", cli_json_real(sc->onmi_max), "onmi_lfk", cli_json_real(sc->onmi_lfk),
+		"omega", cli_json_real(sc->omega), "f1", cli_json_real(sc->f1),
+		"f1_truth_to_found", cli_json_real(sc->f1_tf),
+		"f1_found_to_truth", cli_json_real(sc->f1_ft), "partitions", sc->partitions,
+		"nmi", sc->partitions ? cli_json_real(sc->nmi) : json_null()));
 }
 
 /* Why plain NMI does not apply (the files hold every membership, so a

@@ -179,6 +179,33 @@ static json_t *jcommunity(const struct agm_community *c)
 			 "conductance", cli_json_real(c->conductance), "p", cli_json_real(c->p));
 }
 
+/* The node called name: 0, or -1 with a message. */
+static int find_node(const struct show *s, const char *name, uint32_t *u)
+{
+	int64_t i = graph_find(s->ck.graph, name);
+	if (i < 0) {
+		char b1[NAME_CAP], b2[NAME_CAP];
+		return error("no node named '%s' in %s", util_escape(name, b1, sizeof b1, s->ascii),
+			     util_escape(s->dir, b2, sizeof b2, s->ascii));
+	}
+	*u = (uint32_t)i;
+	return 0;
+}
+
+static json_t *jaffil(const struct inspect_affil *f)
+{
+	return json_pack("{s:o s:o s:b s:o}", "community", jint(f->comm), "strength",
+			 cli_json_real(f->strength), "member", f->member, "explained",
+			 jint(f->explained));
+}
+
+static json_t *jshare(const struct inspect_share *sh)
+{
+	return json_pack("{s:o s:o s:o s:b s:o}", "community", jint(sh->comm), "product",
+			 cli_json_real(sh->product), "alone", cli_json_real(sh->alone),
+			 "both_members", sh->both_members, "p", cli_json_real(sh->p));
+}
+
 /* ---- the summary ------------------------------------------------------ */
 
 static int show_summary(const struct show *s)
@@ -255,28 +282,20 @@ static int show_summary(const struct show *s)
 static int show_node(const struct show *s, const char *name)
 {
 	const struct graph *g = s->ck.graph;
-	int64_t u = graph_find(g, name);
-	if (u < 0) {
-		char b1[NAME_CAP], b2[NAME_CAP];
-		return error("no node named '%s' in %s", util_escape(name, b1, sizeof b1, s->ascii),
-			     util_escape(s->dir, b2, sizeof b2, s->ascii));
-	}
+	uint32_t u = 0;
 	struct inspect_node nv;
-	if (inspect_node(&nv, g, &s->ck.F, s->delta, AGM_MIN_LINKS, (uint32_t)u) < 0)
+	if (find_node(s, name, &u) ||
+	    inspect_node(&nv, g, &s->ck.F, s->delta, AGM_MIN_LINKS, u) < 0)
 		return -1;
 	size_t n = shown(nv.naffil, s->limit);
 	int rc;
 
 	if (s->json) {
 		json_t *list = json_array();
-		for (size_t i = 0; i < n; i++) {
-			const struct inspect_affil *f = &nv.affil[i];
-			json_array_append_new(list, json_pack("{s:o s:o s:b s:o}",
-				"community", jint(f->comm), "strength", cli_json_real(f->strength),
-				"member", f->member, "explained", jint(f->explained)));
-		}
+		for (size_t i = 0; i < n; i++)
+			json_array_append_new(list, jaffil(&nv.affil[i]));
 		rc = cli_json_print(json_pack("{s:o s:o s:o s:o s:o s:o s:o s:o s:o}",
-			"node", cli_json_str(g->names[u]), "id", jint((uint64_t)u),
+			"node", cli_json_str(g->names[u]), "id", jint(u),
 			"degree", jint(nv.degree), "memberships", jint(nv.nmember),
 			"naffiliations", jint(nv.naffil), "unexplained", jint(nv.unexplained),
 			"delta", cli_json_real(s->delta), "min_links", cli_json_real(AGM_MIN_LINKS),
@@ -481,18 +500,6 @@ static int show_pairs(const struct show *s, uint32_t id, int missing)
 
 /* ---- one pair, and every edge ----------------------------------------- */
 
-static int find_node(const struct show *s, const char *name, uint32_t *u)
-{
-	int64_t i = graph_find(s->ck.graph, name);
-	if (i < 0) {
-		char b1[NAME_CAP], b2[NAME_CAP];
-		return error("no node named '%s' in %s", util_escape(name, b1, sizeof b1, s->ascii),
-			     util_escape(s->dir, b2, sizeof b2, s->ascii));
-	}
-	*u = (uint32_t)i;
-	return 0;
-}
-
 static int show_edge(const struct show *s, const char *na, const char *nb)
 {
 	const struct graph *g = s->ck.graph;
@@ -508,13 +515,8 @@ static int show_edge(const struct show *s, const char *na, const char *nb)
 	int rc = 0;
 	if (s->json) {
 		json_t *list = json_array();
-		for (size_t i = 0; i < n; i++) {
-			const struct inspect_share *sh = &e.share[i];
-			json_array_append_new(list, json_pack("{s:o s:o s:o s:b s:o}",
-				"community", jint(sh->comm), "product", cli_json_real(sh->product),
-				"alone", cli_json_real(sh->alone), "both_members", sh->both_members,
-				"p", cli_json_real(sh->p)));
-		}
+		for (size_t i = 0; i < n; i++)
+			json_array_append_new(list, jshare(&e.share[i]));
 		rc = cli_json_print(json_pack("{s:o s:o s:b s:o s:o s:o s:o s:o s:o}",
 			"a", cli_json_str(g->names[u]), "b", cli_json_str(g->names[v]),
 			"linked", e.linked, "dot", cli_json_real(e.x), "prob", cli_json_real(e.prob),
