@@ -365,12 +365,9 @@ static int estimate_q(const struct index *ix, const struct cover *c, double qeps
 	uint32_t *active = util_malloc(ix->k, sizeof *active);
 	double *Q = util_malloc((size_t)ix->ne, sizeof *Q);
 	double *w = util_malloc((size_t)most, sizeof *w);
-	if (!active || !Q || !w) {
-		free(active);
-		free(Q);
-		free(w);
-		return -1;
-	}
+	int rc = -1;
+	if (!active || !Q || !w)
+		goto out;
 	uint32_t nact = 0;
 	for (uint32_t i = 0; i < ix->k; i++) {
 		double P = pairs_of(cover_size(c, i)), m = (double)ix->mc[i];
@@ -403,10 +400,12 @@ static int estimate_q(const struct index *ix, const struct cover *c, double qeps
 		if (worst < AGM_RELTOL)
 			break;
 	}
+	rc = 0;
+out:
 	free(active);
 	free(Q);
 	free(w);
-	return 0;
+	return rc;
 }
 
 int agm_estimate_p(const struct graph *g, const struct cover *c, double epsilon, double *p)
@@ -502,6 +501,39 @@ static int order_cmp(const void *pa, const void *pb)
 	if (a->size != b->size)
 		return a->size > b->size ? -1 : 1;
 	return (a->id > b->id) - (a->id < b->id);
+}
+
+/* Sorts ord (nord communities and their sizes) largest first and lays out
+ * out->cover for the non-empty ones: k, the offsets, the labels (the id in
+ * decimal, or from->label[id] when from is given) and room for the members
+ * and strengths; (*ids)[i] is the id of community i. Returns 0 or -1 (what
+ * was allocated stays in out and *ids for the caller to free). */
+static int layout(struct agm *out, struct order *ord, uint32_t nord, const struct cover *from,
+		  uint32_t **ids)
+{
+	qsort(ord, nord, sizeof *ord, order_cmp);
+	uint32_t k = 0;
+	while (k < nord && ord[k].size > 0) /* empty communities are not listed */
+		k++;
+	struct cover *cv = &out->cover;
+	cv->k = k;
+	cv->off = util_calloc((size_t)k + 1, sizeof *cv->off);
+	cv->label = util_calloc(k, sizeof *cv->label);
+	*ids = util_malloc(k, sizeof **ids);
+	if (!cv->off || !cv->label || !*ids)
+		return -1;
+	for (uint32_t i = 0; i < k; i++) {
+		char buf[16];
+		(*ids)[i] = ord[i].id;
+		cv->off[i + 1] = cv->off[i] + ord[i].size;
+		if (!from)
+			snprintf(buf, sizeof buf, "%" PRIu32, ord[i].id);
+		if (!(cv->label[i] = util_strdup(from ? from->label[ord[i].id] : buf)))
+			return -1;
+	}
+	cv->mem = util_malloc((size_t)cv->off[k], sizeof *cv->mem);
+	out->strength = util_malloc((size_t)cv->off[k], sizeof *out->strength);
+	return cv->mem && out->strength ? 0 : -1;
 }
 
 /* Everything after out->cover (largest first), out->strength and the ids
@@ -602,33 +634,17 @@ int agm_from_strengths(struct agm *out, const struct graph *g, const struct fcsr
 		for (uint64_t j = F->off[u]; j < F->off[u + 1]; j++)
 			if (agm_member_at(g, F, u, j, delta, min_links))
 				ord[F->e[j].c].size++;
-	qsort(ord, F->k, sizeof *ord, order_cmp);
-	uint32_t k = 0;
-	while (k < F->k && ord[k].size > 0)
-		k++;
+	if (layout(out, ord, F->k, NULL, &ids) < 0)
+		goto fail;
 	struct cover *cv = &out->cover;
-	cv->k = k;
-	cv->off = util_calloc((size_t)k + 1, sizeof *cv->off);
-	cv->label = util_calloc(k, sizeof *cv->label);
-	ids = util_malloc(k, sizeof *ids);
+	uint32_t k = cv->k;
 	at = util_malloc((size_t)k + 1, sizeof *at);
-	if (!cv->off || !cv->label || !ids || !at)
+	if (!at)
 		goto fail;
 	for (uint32_t c = 0; c < F->k; c++)
 		slot[c] = UINT32_MAX;
-	for (uint32_t i = 0; i < k; i++) {
-		char buf[16];
-		ids[i] = ord[i].id;
-		slot[ord[i].id] = i;
-		cv->off[i + 1] = cv->off[i] + ord[i].size;
-		snprintf(buf, sizeof buf, "%" PRIu32, ord[i].id);
-		if (!(cv->label[i] = util_strdup(buf)))
-			goto fail;
-	}
-	cv->mem = util_malloc((size_t)cv->off[k], sizeof *cv->mem);
-	out->strength = util_malloc((size_t)cv->off[k], sizeof *out->strength);
-	if (!cv->mem || !out->strength)
-		goto fail;
+	for (uint32_t i = 0; i < k; i++)
+		slot[ids[i]] = i;
 	memcpy(at, cv->off, ((size_t)k + 1) * sizeof *at);
 	for (uint32_t u = 0; u < F->n; u++) /* increasing u: members come out sorted */
 		for (uint64_t j = F->off[u]; j < F->off[u + 1]; j++) {
@@ -676,27 +692,10 @@ int agm_from_cover_p(struct agm *out, const struct graph *g, const struct cover 
 		return -1;
 	for (uint32_t i = 0; i < c->k; i++)
 		ord[i] = (struct order){ i, cover_size(c, i) };
-	qsort(ord, c->k, sizeof *ord, order_cmp);
-	uint32_t k = 0;
-	while (k < c->k && ord[k].size > 0) /* empty communities are not listed */
-		k++;
+	if (layout(out, ord, c->k, c, &ids) < 0)
+		goto fail;
 	struct cover *cv = &out->cover;
-	cv->k = k;
-	cv->off = util_calloc((size_t)k + 1, sizeof *cv->off);
-	cv->label = util_calloc(k, sizeof *cv->label);
-	ids = util_malloc(k, sizeof *ids);
-	if (!cv->off || !cv->label || !ids)
-		goto fail;
-	for (uint32_t i = 0; i < k; i++) {
-		ids[i] = ord[i].id;
-		cv->off[i + 1] = cv->off[i] + ord[i].size;
-		if (!(cv->label[i] = util_strdup(c->label[ord[i].id])))
-			goto fail;
-	}
-	cv->mem = util_malloc((size_t)cv->off[k], sizeof *cv->mem);
-	out->strength = util_malloc((size_t)cv->off[k], sizeof *out->strength);
-	if (!cv->mem || !out->strength)
-		goto fail;
+	uint32_t k = cv->k;
 	for (uint32_t i = 0; i < k; i++) {
 		uint32_t src = ord[i].id;
 		memcpy(cv->mem + cv->off[i], c->mem + c->off[src],
@@ -728,12 +727,8 @@ void agm_release(struct agm *a)
 
 int agm_copy(struct agm *dst, const struct agm *src)
 {
-	memset(dst, 0, sizeof *dst);
-	dst->n = src->n;
-	dst->epsilon = src->epsilon;
-	dst->loglik = src->loglik;
-	dst->covered = src->covered;
-	dst->overlapping = src->overlapping;
+	*dst = (struct agm){ .n = src->n, .epsilon = src->epsilon, .loglik = src->loglik,
+			     .covered = src->covered, .overlapping = src->overlapping };
 	uint32_t k = src->cover.k;
 	uint64_t total = src->cover.off ? src->cover.off[k] : 0;
 	struct cover *cv = &dst->cover;

@@ -38,12 +38,9 @@ int seed_triangles(const struct graph *g, uint64_t *tri)
 	uint64_t *ooff = util_malloc((size_t)n + 1, sizeof *ooff);
 	uint32_t *oadj = util_malloc(g->m ? g->m : 1, sizeof *oadj);
 	uint32_t *mark = util_calloc(n, sizeof *mark);
-	if (!ooff || !oadj || !mark) {
-		free(ooff);
-		free(oadj);
-		free(mark);
-		return -1;
-	}
+	int rc = -1;
+	if (!ooff || !oadj || !mark)
+		goto out;
 	/* u -> v when (deg u, u) < (deg v, v) */
 	uint64_t o = 0;
 	for (uint32_t u = 0; u < n; u++) {
@@ -72,10 +69,12 @@ int seed_triangles(const struct graph *g, uint64_t *tri)
 			}
 		}
 	}
+	rc = 0;
+out:
 	free(ooff);
 	free(oadj);
 	free(mark);
-	return 0;
+	return rc;
 }
 
 int seed_conductance(const struct graph *g, double *phi)
