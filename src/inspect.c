@@ -59,6 +59,14 @@ static int dbl_cmp(double a, double b)
 	return 1;
 }
 
+/* The order of strengths: the stronger first (NaN last), ties by id
+ * ascending. Negative when (sa, ida) comes before (sb, idb). */
+static int stronger_first(double sa, uint32_t ida, double sb, uint32_t idb)
+{
+	int c = dbl_cmp(sb, sa);
+	return c ? c : (ida > idb) - (ida < idb);
+}
+
 static uint32_t row_len(const struct fcsr *F, uint32_t u)
 {
 	return (uint32_t)(F->off[u + 1] - F->off[u]);
@@ -130,10 +138,7 @@ double inspect_pair_prob(const struct fcsr *F, uint32_t u, uint32_t v)
 static int share_cmp(const void *pa, const void *pb)
 {
 	const struct inspect_share *a = pa, *b = pb;
-	int c = dbl_cmp(b->product, a->product);
-	if (c)
-		return c;
-	return (a->comm > b->comm) - (a->comm < b->comm);
+	return stronger_first(a->product, a->comm, b->product, b->comm);
 }
 
 int inspect_edge(struct inspect_edge *out, const struct graph *g, const struct fcsr *F,
@@ -194,10 +199,7 @@ void inspect_edge_release(struct inspect_edge *e)
 static int affil_cmp(const void *pa, const void *pb)
 {
 	const struct inspect_affil *a = pa, *b = pb;
-	int c = dbl_cmp(b->strength, a->strength);
-	if (c)
-		return c;
-	return (a->comm > b->comm) - (a->comm < b->comm);
+	return stronger_first(a->strength, a->comm, b->strength, b->comm);
 }
 
 int inspect_node(struct inspect_node *out, const struct graph *g, const struct fcsr *F,
@@ -356,18 +358,11 @@ static int check_community(const struct graph *g, const struct fcsr *F, const st
 	return 0;
 }
 
-/* Position of v in the sorted list mem[0..n), or -1. */
-static int64_t find_sorted(const uint32_t *mem, uint32_t n, uint32_t v)
+/* v is in the sorted list mem[0..n). */
+static int in_sorted(const uint32_t *mem, uint32_t n, uint32_t v)
 {
-	uint32_t lo = 0, hi = n;
-	while (lo < hi) {
-		uint32_t mid = lo + (hi - lo) / 2;
-		if (mem[mid] < v)
-			lo = mid + 1;
-		else
-			hi = mid;
-	}
-	return lo < n && mem[lo] == v ? (int64_t)lo : -1;
+	size_t i = util_lower_bound_u32(mem, n, v);
+	return i < n && mem[i] == v;
 }
 
 /* ---- weak edges ------------------------------------------------------- */
@@ -396,7 +391,7 @@ int inspect_weak_edges(const struct graph *g, const struct fcsr *F, const struct
 		uint32_t u = mem[i];
 		for (uint64_t e = g->off[u]; e < g->off[u + 1]; e++) {
 			uint32_t v = g->adj[e];
-			if (v < u && find_sorted(mem, s, v) >= 0)
+			if (v < u && in_sorted(mem, s, v))
 				continue; /* reported from v's side */
 			count++;
 			topk_push(&t, u, v, pair_prob(F, u, v));
@@ -418,10 +413,7 @@ struct member {
 /* a is weaker than b: lower strength, or equal strength and larger id */
 static int member_weaker(const struct member *a, const struct member *b)
 {
-	int c = dbl_cmp(a->s, b->s);
-	if (c)
-		return c < 0;
-	return a->id > b->id;
+	return stronger_first(a->s, a->id, b->s, b->id) > 0;
 }
 
 /* A min-heap (weakest at the root) of the pool strongest members. */
@@ -657,10 +649,7 @@ static void ctx_sort(uint32_t *x, size_t n, before_fn before, const void *ctx)
 static int member_pos_before(const void *ctx, uint32_t a, uint32_t b)
 {
 	const double *s = ctx;
-	int c = dbl_cmp(s[a], s[b]);
-	if (c)
-		return c > 0;
-	return a < b;
+	return stronger_first(s[a], a, s[b], b) < 0;
 }
 
 void inspect_members(const struct agm *a, uint32_t index, uint32_t *order, double *strength)

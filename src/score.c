@@ -637,15 +637,9 @@ static void omega_meet_small(const struct omega *m, int side, uint32_t p, uint32
 		uint32_t c = X->com[t];
 		if (bit[c])
 			continue; /* big: counted by mask */
-		/* classes after p: the list is increasing */
-		uint64_t lo = coff[c], hi = coff[c + 1];
-		while (lo < hi) {
-			uint64_t mid = lo + (hi - lo) / 2;
-			if (cl[mid] <= p)
-				lo = mid + 1;
-			else
-				hi = mid;
-		}
+		/* classes after p (p + 1 fits: p < ncls): the list is increasing */
+		uint64_t lo = coff[c] + util_lower_bound_u32(cl + coff[c],
+							     (size_t)(coff[c + 1] - coff[c]), p + 1);
 		for (uint64_t s2 = lo; s2 < coff[c + 1]; s2++) {
 			uint32_t q = cl[s2];
 			if (ma[q] == 0 && mb[q] == 0)

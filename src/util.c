@@ -264,6 +264,19 @@ uint64_t util_fnv1a(uint64_t h, const void *buf, size_t len)
 	return h;
 }
 
+size_t util_lower_bound_u32(const uint32_t *x, size_t n, uint32_t v)
+{
+	size_t lo = 0, hi = n;
+	while (lo < hi) {
+		size_t mid = lo + (hi - lo) / 2;
+		if (x[mid] < v)
+			lo = mid + 1;
+		else
+			hi = mid;
+	}
+	return lo;
+}
+
 int util_sync_dir(const char *dir)
 {
 	int fd = open(dir, O_RDONLY | O_DIRECTORY | O_CLOEXEC);

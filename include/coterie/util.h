@@ -68,6 +68,10 @@ double util_now(void);
 #define UTIL_FNV_INIT 0xcbf29ce484222325ULL
 uint64_t util_fnv1a(uint64_t h, const void *buf, size_t len);
 
+/* The first index i of the increasing array x[0..n) (borrowed) with
+ * x[i] >= v, or n when there is none: where v is, or would go. */
+size_t util_lower_bound_u32(const uint32_t *x, size_t n, uint32_t v);
+
 /* fsync folder dir so that a rename in it is durable; filesystems that
  * cannot sync a folder (EINVAL, ENOTSUP) are tolerated. Returns 0 or -1
  * with a message. */
