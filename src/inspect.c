@@ -260,6 +260,7 @@ struct topk {
 	struct inspect_pair *h;
 	size_t n, cap;
 	int desc;
+	size_t seen; /* pairs offered: the total of the list */
 };
 
 static int pair_before(const struct inspect_pair *a, const struct inspect_pair *b, int desc)
@@ -292,6 +293,7 @@ static void topk_sift_down(struct inspect_pair *h, size_t n, size_t i, int desc)
 static void topk_push(struct topk *t, uint32_t u, uint32_t v, double prob)
 {
 	struct inspect_pair x = { u, v, prob };
+	t->seen++;
 	if (t->n < t->cap) {
 		size_t i = t->n++;
 		while (i > 0) {
@@ -309,10 +311,13 @@ static void topk_push(struct topk *t, uint32_t u, uint32_t v, double prob)
 }
 
 /* Sort the heap into order, then hand the page [offset, offset + limit)
- * to *out (NULL when empty) and free the rest. */
+ * to *out (NULL when empty), the pairs offered to *total (when not NULL),
+ * and free the rest. */
 static void topk_finish(struct topk *t, size_t offset, size_t limit,
-			struct inspect_pair **out, size_t *nout)
+			struct inspect_pair **out, size_t *nout, size_t *total)
 {
+	if (total)
+		*total = t->seen;
 	for (size_t end = t->n; end > 1; end--) {
 		struct inspect_pair x = t->h[0];
 		t->h[0] = t->h[end - 1];
@@ -343,13 +348,20 @@ static int topk_init(struct topk *t, size_t offset, size_t limit, uint64_t bound
 	t->n = 0;
 	t->cap = cap;
 	t->desc = desc;
+	t->seen = 0;
 	t->h = util_malloc(cap ? cap : 1, sizeof *t->h);
 	return t->h ? 0 : -1;
 }
 
-static int check_community(const struct graph *g, const struct fcsr *F, const struct agm *a,
-			   uint32_t index)
+/* Empties the answer of a list query, then checks the community index
+ * against the model and the graph: 0 or -1 with a message. */
+static int list_begin(const struct graph *g, const struct fcsr *F, const struct agm *a,
+		      uint32_t index, struct inspect_pair **out, size_t *nout, size_t *total)
 {
+	*out = NULL;
+	*nout = 0;
+	if (total)
+		*total = 0;
 	if (F->n != g->n || a->cover.n != g->n)
 		return error("the strengths (%u rows) and the communities (%u nodes) do not "
 			     "match the graph (%u nodes)", F->n, a->cover.n, g->n);
@@ -371,11 +383,7 @@ int inspect_weak_edges(const struct graph *g, const struct fcsr *F, const struct
 		       uint32_t index, size_t offset, size_t limit,
 		       struct inspect_pair **out, size_t *nout, size_t *total)
 {
-	*out = NULL;
-	*nout = 0;
-	if (total)
-		*total = 0;
-	if (check_community(g, F, a, index) < 0)
+	if (list_begin(g, F, a, index, out, nout, total) < 0)
 		return -1;
 	const uint32_t *mem = a->cover.mem + a->cover.off[index];
 	uint32_t s = cover_size(&a->cover, index);
@@ -386,20 +394,16 @@ int inspect_weak_edges(const struct graph *g, const struct fcsr *F, const struct
 	struct topk t;
 	if (topk_init(&t, offset, limit, vol, 0) < 0)
 		return -1;
-	size_t count = 0;
 	for (uint32_t i = 0; i < s; i++) {
 		uint32_t u = mem[i];
 		for (uint64_t e = g->off[u]; e < g->off[u + 1]; e++) {
 			uint32_t v = g->adj[e];
 			if (v < u && in_sorted(mem, s, v))
 				continue; /* reported from v's side */
-			count++;
 			topk_push(&t, u, v, pair_prob(F, u, v));
 		}
 	}
-	topk_finish(&t, offset, limit, out, nout);
-	if (total)
-		*total = count;
+	topk_finish(&t, offset, limit, out, nout, total);
 	return 0;
 }
 
@@ -491,11 +495,7 @@ int inspect_missing_links(const struct graph *g, const struct fcsr *F, const str
 			  uint32_t index, size_t offset, size_t limit,
 			  struct inspect_pair **out, size_t *nout, size_t *total)
 {
-	*out = NULL;
-	*nout = 0;
-	if (total)
-		*total = 0;
-	if (check_community(g, F, a, index) < 0)
+	if (list_begin(g, F, a, index, out, nout, total) < 0)
 		return -1;
 	uint32_t np = 0;
 	uint32_t *pool = strongest_members(a, index, INSPECT_MISSING_POOL, &np);
@@ -507,7 +507,6 @@ int inspect_missing_links(const struct graph *g, const struct fcsr *F, const str
 		free(pool);
 		return -1;
 	}
-	size_t count = 0;
 	for (uint32_t i = 0; i < np; i++) {
 		uint32_t u = pool[i];
 		const struct fentry *ru = row_of(F, u);
@@ -521,15 +520,12 @@ int inspect_missing_links(const struct graph *g, const struct fcsr *F, const str
 				nb++;
 			if (nb < nend && *nb == v)
 				continue;
-			count++;
 			double x = model_dot(ru, nu, row_of(F, v), row_len(F, v));
 			topk_push(&t, u, v, -expm1(-x));
 		}
 	}
 	free(pool);
-	topk_finish(&t, offset, limit, out, nout);
-	if (total)
-		*total = count;
+	topk_finish(&t, offset, limit, out, nout, total);
 	return 0;
 }
 
