@@ -734,7 +734,7 @@ static int show_run(int argc, char **argv, const char *edge_a, const char *edge_
 	memset(&s, 0, sizeof s);
 	s.dir = argv[optind];
 	s.json = json;
-	s.ascii = !cli_utf8();
+	s.ascii = !proc_utf8();
 	s.limit = limit == 0 || (links && !have_limit) ? SIZE_MAX : limit;
 
 	char path[4096];

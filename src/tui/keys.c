@@ -12,13 +12,17 @@
  * The prompts (find, the quit question) and the help screen take the
  * keyboard while open: their keys are shown on the prompt itself.
  */
-#include "tui.h"
+#include "keys.h"
 
+#ifndef NCURSES_WIDECHAR
+#define NCURSES_WIDECHAR 1
+#endif
+#include <curses.h> /* the KEY_* codes only: nothing here draws */
 #include <stdio.h>
 #include <string.h>
 
-#include "coterie/graph.h"
 #include "coterie/util.h"
+#include "view.h"
 
 /* ---- actions ---- */
 
@@ -99,7 +103,7 @@ static void act_enter_edge(struct view *v, int arg)
 	}
 	view_select_node(v, pick, 0);
 	char name[200];
-	view_say(v, UTIL_NOTICE, "node %s: %s", draw_name(v, pick, name, sizeof name), why);
+	view_say(v, UTIL_NOTICE, "node %s: %s", view_node_name(v, pick, name, sizeof name), why);
 }
 
 static void act_find(struct view *v, int arg)
@@ -119,8 +123,7 @@ static void act_help(struct view *v, int arg)
 static void act_redraw(struct view *v, int arg)
 {
 	(void)arg;
-	clearok(curscr, TRUE);
-	v->dirty |= DIRTY_ALL;
+	v->dirty |= DIRTY_ALL | DIRTY_CLEAR;
 }
 
 static void act_quit(struct view *v, int arg)
@@ -255,61 +258,30 @@ static void act_write(struct view *v, int arg)
 	view_write(v, NULL);
 }
 
-static const struct {
-	enum inspect_key key;
-	const char *name;
-	int ascending; /* the natural direction: the best first */
-} sorts[] = {
-	{ INSPECT_BY_SIZE, "size", 0 },
-	{ INSPECT_BY_EDGES, "internal edges", 0 },
-	{ INSPECT_BY_DENSITY, "density", 0 },
-	{ INSPECT_BY_CONDUCTANCE, "conductance", 1 },
-	{ INSPECT_BY_P, "p", 0 },
-	{ INSPECT_BY_ID, "id", 1 },
-};
-#define NSORTS (sizeof sorts / sizeof sorts[0])
-
-static size_t sort_slot(enum inspect_key k)
-{
-	for (size_t i = 0; i < NSORTS; i++)
-		if (sorts[i].key == k)
-			return i;
-	return 0;
-}
-
 static void say_sort(struct view *v)
 {
-	view_say(v, UTIL_NOTICE, "communities by %s, %s first", sorts[sort_slot(v->sort_key)].name,
+	view_say(v, UTIL_NOTICE, "communities by %s, %s first", view_sort_name(v),
 		 v->ascending ? "lowest" : "highest");
 }
 
 static void act_sort_next(struct view *v, int arg)
 {
 	(void)arg;
-	size_t i = (sort_slot(v->sort_key) + 1) % NSORTS;
-	v->sort_key = sorts[i].key;
-	v->ascending = sorts[i].ascending;
-	v->order_gen = 0;
-	v->dirty |= DIRTY_PANE(PANE_COMMS);
+	view_sort_next(v);
 	say_sort(v);
 }
 
 static void act_sort_flip(struct view *v, int arg)
 {
 	(void)arg;
-	v->ascending = !v->ascending;
-	v->order_gen = 0;
-	v->dirty |= DIRTY_PANE(PANE_COMMS);
+	view_sort_flip(v);
 	say_sort(v);
 }
 
 static void act_weak(struct view *v, int arg)
 {
 	(void)arg;
-	v->show_weak = !v->show_weak;
-	v->node_gen = 0;
-	v->affil.cur = v->affil.top = 0;
-	v->dirty |= DIRTY_PANE(PANE_NODE);
+	view_toggle_weak(v);
 	view_say(v, UTIL_NOTICE, v->show_weak ? "showing every strength, also those that are no membership"
 					      : "showing memberships only");
 }
@@ -317,9 +289,7 @@ static void act_weak(struct view *v, int arg)
 static void act_edges_mode(struct view *v, int arg)
 {
 	(void)arg;
-	v->edges_mode = v->edges_mode == EDGES_WEAK ? EDGES_MISSING : EDGES_WEAK;
-	v->edges.cur = v->edges.top = 0;
-	v->dirty |= DIRTY_PANE(PANE_EDGES);
+	view_toggle_edges_mode(v);
 }
 
 /* ---- the table ---- */

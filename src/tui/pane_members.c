@@ -3,16 +3,14 @@
  * strongest first (inspect_members), each with a bar scaled to the
  * strongest member and the strength itself.
  */
-#include "tui.h"
 
 #include <stdio.h>
 
-void pane_members_draw(const struct view *v)
+#include "panes.h"
+#include "view.h"
+
+void pane_members_draw(const struct view *v, WINDOW *w)
 {
-	WINDOW *w = v->win[PANE_MEMBERS];
-	if (!w)
-		return;
-	werase(w);
 	int width = getmaxx(w);
 	char title[64], note[64] = "";
 	if (v->comm_index >= 0 && v->has_comm) {
@@ -43,13 +41,9 @@ void pane_members_draw(const struct view *v)
 		if (i >= v->nmem)
 			break;
 		int y = 1 + r;
-		int sel = i == v->members.cur;
-		attr_t at = sel ? (focused ? A_REVERSE : A_BOLD | A_UNDERLINE) : A_NORMAL;
-		wattron(w, at);
-		if (sel)
-			draw_fill(w, y, 0, width);
+		attr_t at = draw_row(w, y, 0, i == v->members.cur, focused, 0);
 		char name[512];
-		draw_name(v, v->mem[i], name, sizeof name);
+		view_node_name(v, v->mem[i], name, sizeof name);
 		draw_text(w, y, 1, name, nw);
 		wattroff(w, at);
 		draw_bar(v, w, y, 1 + nw + 1, bw, v->mem_strength[i] / top);
