@@ -70,6 +70,16 @@ int proc_pipe(int fd[2])
 	return 0;
 }
 
+int proc_thread_start(pthread_t *t, void *(*fn)(void *), void *arg)
+{
+	sigset_t all, old;
+	sigfillset(&all);
+	pthread_sigmask(SIG_BLOCK, &all, &old);
+	int rc = pthread_create(t, NULL, fn, arg);
+	pthread_sigmask(SIG_SETMASK, &old, NULL);
+	return rc;
+}
+
 static volatile sig_atomic_t caught, ncaught;
 static int sigpipe_fd[2] = { -1, -1 };
 

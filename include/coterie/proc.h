@@ -12,6 +12,7 @@
 #ifndef COTERIE_PROC_H
 #define COTERIE_PROC_H
 
+#include <pthread.h>
 #include <stdint.h>
 
 /* The exit status after SIGINT, SIGTERM or SIGHUP (results saved first):
@@ -33,6 +34,11 @@ int proc_utf8(void);
 /* A pipe with both ends non-blocking and close-on-exec, for waking a
  * poll() loop. Returns 0, or -1 with a message (fd untouched then). */
 int proc_pipe(int fd[2]);
+
+/* Start a thread running fn(arg) with every signal blocked in it, so that
+ * signals are delivered to the thread that polls proc_signal_fd().
+ * Returns 0, or the pthread_create() error number (nothing reported). */
+int proc_thread_start(pthread_t *t, void *(*fn)(void *), void *arg);
 
 /* Signals: SIGINT, SIGTERM and SIGHUP set a flag and write a byte to a
  * pipe (proc_signal_fd()) so a poll() loop notices; nothing else happens

@@ -125,8 +125,10 @@ int draw_text(WINDOW *w, int y, int x, const char *s, int maxcols)
 	return used;
 }
 
-attr_t draw_row(WINDOW *w, int y, int x0, int selected, int focused, attr_t extra)
+attr_t draw_row(const struct view *v, WINDOW *w, int pane, int y, int x0, size_t row,
+		attr_t extra)
 {
+	int selected = row == view_pos(v, pane)->cur, focused = v->focus == pane;
 	attr_t at = selected ? (focused ? A_REVERSE : A_BOLD | A_UNDERLINE) : A_NORMAL;
 	at |= extra;
 	wattron(w, at);

@@ -144,15 +144,14 @@ static void act_stop(struct view *v, int arg)
 		view_say(v, UTIL_NOTICE, "this saved fit is not running (e continues it)");
 	} else if (fit_state_ended(v->state) && !(v->state == FIT_LEVELLED && !v->stop_asked)) {
 		view_say(v, UTIL_NOTICE, "the fit has already ended (%s)", view_state_label(v->state));
-	} else if (v->state == FIT_LEVELLED) {
-		fit_stop(v->fit);
-		v->stop_asked = 1;
-		view_say(v, UTIL_NOTICE, "the fit ends here, levelled off; w writes it");
 	} else {
+		int levelled = v->state == FIT_LEVELLED;
 		fit_stop(v->fit);
 		v->stop_asked = 1;
-		v->pause_asked = 0;
-		view_say(v, UTIL_NOTICE, "stopping after the current block; the model is kept");
+		if (!levelled)
+			v->pause_asked = 0;
+		view_say(v, UTIL_NOTICE, "%s", levelled ? "the fit ends here, levelled off; w writes it"
+					: "stopping after the current block; the model is kept");
 	}
 	v->dirty |= DIRTY_HEADER | DIRTY_PANE(PANE_TRACE);
 }
@@ -169,15 +168,13 @@ static void act_pause(struct view *v, int arg)
 			 view_state_label(v->state));
 		return;
 	}
-	if (v->state == FIT_PAUSED || v->pause_asked) {
+	int paused = v->state == FIT_PAUSED || v->pause_asked;
+	if (paused)
 		fit_unpause(v->fit);
-		v->pause_asked = 0;
-		view_say(v, UTIL_NOTICE, "resumed");
-	} else {
+	else
 		fit_pause(v->fit);
-		v->pause_asked = 1;
-		view_say(v, UTIL_NOTICE, "pausing after the current block; p resumes");
-	}
+	v->pause_asked = !paused;
+	view_say(v, UTIL_NOTICE, "%s", paused ? "resumed" : "pausing after the current block; p resumes");
 	v->dirty |= DIRTY_HEADER | DIRTY_PANE(PANE_TRACE);
 }
 
@@ -415,16 +412,12 @@ int keys_dispatch(struct view *v, int key)
 void keys_quit_answer(struct view *v, int key)
 {
 	switch (key) {
-	case 'y':
+	case 'y': /* save and quit */
 	case 'Y':
-		v->stop_on_quit = 1;
-		v->want_write = 1;
-		v->quit = 1;
-		break;
-	case 'd':
+	case 'd': /* quit without saving */
 	case 'D':
 		v->stop_on_quit = 1;
-		v->want_write = 0;
+		v->want_write = key == 'y' || key == 'Y';
 		v->quit = 1;
 		break;
 	case 'n':

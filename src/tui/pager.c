@@ -18,7 +18,6 @@
  */
 #include "pager.h"
 
-#include <signal.h>
 #include <stdlib.h>
 #include <string.h>
 #include <unistd.h>
@@ -121,12 +120,7 @@ int pager_start(struct pager *p)
 		return -1;
 	pthread_mutex_init(&p->lock, NULL);
 	pthread_cond_init(&p->cond, NULL);
-	/* signals stay with the UI thread */
-	sigset_t all, old;
-	sigfillset(&all);
-	pthread_sigmask(SIG_BLOCK, &all, &old);
-	int rc = pthread_create(&p->thread, NULL, pager_main, p);
-	pthread_sigmask(SIG_SETMASK, &old, NULL);
+	int rc = proc_thread_start(&p->thread, pager_main, p); /* signals stay with the UI */
 	if (rc) {
 		pthread_mutex_destroy(&p->lock);
 		pthread_cond_destroy(&p->cond);

@@ -79,12 +79,10 @@ void pane_comms_draw(const struct view *v, WINDOW *w)
 	put_cells(w, 1, 1, wide, cell);
 	wattroff(w, A_BOLD);
 
-	int rows = view_page_height(v, PANE_COMMS);
-	int focused = v->focus == PANE_COMMS;
-	for (int r = 0; r < rows; r++) {
-		size_t i = v->comms.top + (size_t)r;
-		if (i >= v->norder)
-			break;
+	size_t shown = view_rows_shown(v, PANE_COMMS);
+	for (size_t r = 0; r < shown; r++) {
+		size_t i = v->comms.top + r;
+		int y = 2 + (int)r;
 		const struct agm_community *c = &s->agm.comms[v->order[i]];
 		snprintf(cell[0], sizeof cell[0], "#%u", c->id);
 		fmt_count(cell[1], sizeof cell[1], c->size);
@@ -92,8 +90,8 @@ void pane_comms_draw(const struct view *v, WINDOW *w)
 		fmt_frac(cell[3], sizeof cell[3], c->density);
 		fmt_frac(cell[4], sizeof cell[4], c->conductance);
 		fmt_frac(cell[5], sizeof cell[5], c->p);
-		attr_t at = draw_row(w, 2 + r, 0, i == v->comms.cur, focused, 0);
-		put_cells(w, 2 + r, 1, wide, cell);
+		attr_t at = draw_row(v, w, PANE_COMMS, y, 0, i, 0);
+		put_cells(w, y, 1, wide, cell);
 		wattroff(w, at);
 	}
 }

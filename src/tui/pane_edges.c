@@ -86,13 +86,11 @@ void pane_edges_draw(const struct view *v, WINDOW *w)
 		  nw);
 	draw_text(w, 1, xp + pw - 4, "prob", 4);
 	wattroff(w, A_BOLD);
-	int focused = v->focus == PANE_EDGES;
-	for (int r = 0; r < rows; r++) {
-		size_t rank = v->edges.top + (size_t)r;
-		if (rank >= v->total)
-			break;
-		int y = 2 + r;
-		attr_t at = draw_row(w, y, 1, rank == v->edges.cur, focused, 0);
+	size_t shown = view_rows_shown(v, PANE_EDGES);
+	for (size_t r = 0; r < shown; r++) {
+		size_t rank = v->edges.top + r;
+		int y = 2 + (int)r;
+		attr_t at = draw_row(v, w, PANE_EDGES, y, 1, rank, 0);
 		if (rank < v->page_off || rank >= v->page_off + v->npage) {
 			draw_text(w, y, x, "...", cw); /* on its way from the pager */
 			wattroff(w, at);

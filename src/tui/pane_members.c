@@ -26,7 +26,6 @@ void pane_members_draw(const struct view *v, WINDOW *w)
 		draw_text(w, 2, 1, "select a community in pane 2", width - 2);
 		return;
 	}
-	int rows = view_page_height(v, PANE_MEMBERS);
 	int vw = 7;
 	int bw = width / 3;
 	if (bw > 24)
@@ -35,13 +34,11 @@ void pane_members_draw(const struct view *v, WINDOW *w)
 		bw = 4;
 	int nw = width - 2 - bw - vw - 2;
 	double top = v->mem_strength[0] > 0 ? v->mem_strength[0] : 1.0;
-	int focused = v->focus == PANE_MEMBERS;
-	for (int r = 0; r < rows; r++) {
-		size_t i = v->members.top + (size_t)r;
-		if (i >= v->nmem)
-			break;
-		int y = 1 + r;
-		attr_t at = draw_row(w, y, 0, i == v->members.cur, focused, 0);
+	size_t shown = view_rows_shown(v, PANE_MEMBERS);
+	for (size_t r = 0; r < shown; r++) {
+		size_t i = v->members.top + r;
+		int y = 1 + (int)r;
+		attr_t at = draw_row(v, w, PANE_MEMBERS, y, 0, i, 0);
 		char name[512];
 		view_node_name(v, v->mem[i], name, sizeof name);
 		draw_text(w, y, 1, name, nw);

@@ -63,20 +63,16 @@ void pane_node_draw(const struct view *v, WINDOW *w)
 	double top = nv->naffil ? nv->affil[0].strength : 1.0;
 	if (!(top > 0))
 		top = 1.0;
-	int rows = view_page_height(v, PANE_NODE);
-	int focused = v->focus == PANE_NODE;
-	for (int r = 0; r < rows; r++) {
-		size_t i = v->affil.top + (size_t)r;
-		if (i >= v->naffil_rows)
-			break;
+	size_t shown = view_rows_shown(v, PANE_NODE);
+	for (size_t r = 0; r < shown; r++) {
+		size_t i = v->affil.top + r;
 		const struct inspect_affil *a = &nv->affil[v->affil_rows[i]];
-		int y = 4 + r;
+		int y = 4 + (int)r;
 		char id[32], val[32], ex[32];
 		snprintf(id, sizeof id, "#%u", a->comm);
 		snprintf(val, sizeof val, "%.3g", a->strength);
 		snprintf(ex, sizeof ex, "%8u", a->explained);
-		attr_t at = draw_row(w, y, 1, i == v->affil.cur, focused,
-				     a->member ? 0 : draw_attr(v, CP_DIM));
+		attr_t at = draw_row(v, w, PANE_NODE, y, 1, i, a->member ? 0 : draw_attr(v, CP_DIM));
 		draw_text(w, y, x, id, idw);
 		wattroff(w, at);
 		draw_bar(v, w, y, xb, bw, a->strength / top);

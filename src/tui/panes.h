@@ -57,11 +57,13 @@ void draw_bar(const struct view *v, WINDOW *w, int y, int x, int width, double f
 void draw_title(const struct view *v, WINDOW *w, int pane, const char *title, const char *note);
 /* The separator column of a right-hand pane. */
 void draw_separator(const struct view *v, WINDOW *w);
-/* Start list row y of a pane: its attributes switched on (reverse when
- * selected in the focused pane, bold underline when selected elsewhere,
- * plus extra) and, when selected, the row filled from column x0. Returns
- * the attributes for the caller to switch off. */
-attr_t draw_row(WINDOW *w, int y, int x0, int selected, int focused, attr_t extra);
+/* Start row `row` of the list of pane (a list pane, not the likelihood)
+ * at line y: its attributes switched on (reverse when it is the cursor
+ * row of the focused pane, bold underline when the cursor row of another,
+ * plus extra) and, on the cursor row, the line filled from column x0.
+ * Returns the attributes for the caller to switch off. */
+attr_t draw_row(const struct view *v, WINDOW *w, int pane, int y, int x0, size_t row,
+		attr_t extra);
 /* Short number forms. */
 void fmt_count(char *buf, size_t cap, uint64_t x);  /* 123, 12.3k, 4.5M */
 void fmt_frac(char *buf, size_t cap, double x);     /* .123, 1.00, 1e-05 */

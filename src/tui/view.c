@@ -198,7 +198,7 @@ size_t view_rows(const struct view *v, int pane)
 	}
 }
 
-static struct listpos *pos_of(struct view *v, int pane)
+const struct listpos *view_pos(const struct view *v, int pane)
 {
 	switch (pane) {
 	case PANE_COMMS: return &v->comms;
@@ -207,6 +207,20 @@ static struct listpos *pos_of(struct view *v, int pane)
 	case PANE_EDGES: return &v->edges;
 	default: return NULL;
 	}
+}
+
+static struct listpos *pos_of(struct view *v, int pane)
+{
+	return (struct listpos *)view_pos(v, pane);
+}
+
+size_t view_rows_shown(const struct view *v, int pane)
+{
+	const struct listpos *p = view_pos(v, pane);
+	size_t rows = view_rows(v, pane), h = (size_t)view_page_height(v, pane);
+	if (!p || p->top >= rows)
+		return 0;
+	return rows - p->top < h ? rows - p->top : h;
 }
 
 /* Keep cur inside [0, rows) and visible in a window of h rows. */
@@ -462,16 +476,15 @@ static void prepare_members(struct view *v)
 	if (size > v->mem_cap || !v->mem) {
 		uint32_t cap = size ? size : 1;
 		uint32_t *m = realloc(v->mem, cap * sizeof *m);
+		double *s = m ? realloc(v->mem_strength, cap * sizeof *s) : NULL;
 		if (m)
 			v->mem = m;
-		double *s = realloc(v->mem_strength, cap * sizeof *s);
-		if (s)
-			v->mem_strength = s;
-		if (!m || !s) {
+		if (!s) {
 			view_say(v, UTIL_ERROR, "out of memory listing %u members", size);
 			v->nmem = 0;
 			return;
 		}
+		v->mem_strength = s;
 		v->mem_cap = cap;
 	}
 	inspect_members(a, (uint32_t)v->comm_index, v->mem, v->mem_strength);

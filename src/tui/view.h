@@ -201,6 +201,11 @@ void view_page_answer(struct view *v, struct page_res *res);
 size_t view_rows(const struct view *v, int pane);
 /* Visible content rows of pane p. */
 int view_page_height(const struct view *v, int pane);
+/* The cursor of pane p's list (NULL for the likelihood pane). */
+const struct listpos *view_pos(const struct view *v, int pane);
+/* How many rows of pane p's list are on screen: the page height, or
+ * fewer at the end of the list. */
+size_t view_rows_shown(const struct view *v, int pane);
 /* Move the cursor of the focused pane by delta rows (clamped). */
 void view_move(struct view *v, long delta);
 void view_move_to(struct view *v, size_t row);
