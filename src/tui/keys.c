@@ -312,13 +312,16 @@ const struct key_binding keys_table[] = {
 	{ KEY_END, PANE_ANY, act_move, MOVE_END, "last row" },
 	{ 'G', PANE_ANY, act_move, MOVE_END, "last row" },
 	{ '/', PANE_ANY, act_find, 0, "find a node by name (any part, any case)" },
+	/* the fit and the result */
 	{ 's', PANE_ANY, act_stop, 0, "stop fitting and keep the current model" },
 	{ 'p', PANE_ANY, act_pause, 0, "pause or resume the fit" },
 	{ 'e', PANE_ANY, act_extend, 0, "run on past a plateau, or continue an ended fit" },
 	{ 'w', PANE_ANY, act_write, 0, "write the result folder" },
+	/* the screen */
 	{ '?', PANE_ANY, act_help, 0, "this help" },
 	{ CTRL('l'), PANE_ANY, act_redraw, 0, "redraw the screen" },
 	{ 'q', PANE_ANY, act_quit, 0, "quit (asks first if the fit runs or is unsaved)" },
+	/* keys of one pane */
 	{ '\r', PANE_COMMS, act_enter_comm, 0, "go to this community's members" },
 	{ 'o', PANE_COMMS, act_sort_next, 0, "sort by the next column" },
 	{ 'r', PANE_COMMS, act_sort_flip, 0, "reverse the order" },
