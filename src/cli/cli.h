@@ -3,7 +3,7 @@
  * status. Only this layer (and main.c) may exit, through die().
  *
  * Exit status: 0 success, 1 failure, 2 bad usage, 130 interrupted (with
- * the results saved first).
+ * the results saved first; EXIT_INTERRUPTED is in coterie/proc.h).
  */
 #ifndef COTERIE_CLI_H
 #define COTERIE_CLI_H
@@ -14,18 +14,17 @@
 
 #include "coterie/fit.h"
 #include "coterie/graph.h"
+#include "coterie/proc.h"
 #include "coterie/select.h"
 #include "coterie/util.h"
 
 #define EXIT_USAGE 2
-#define EXIT_INTERRUPTED 130
 
 #define COTERIE_VERSION "0.1.0"
 
-/* Print "coterie: MSG" and exit with status. Runs the die hook first (the
- * explorer restores the terminal there). */
+/* Print "coterie: MSG" and exit with status. Runs proc_run_exit_hook()
+ * first (the explorer restores the terminal there). */
 COTERIE_NORETURN void die(int status, const char *fmt, ...) COTERIE_PRINTF(2, 3);
-void cli_set_die_hook(void (*hook)(void));
 
 /* Number parsing for options: the whole string must be a number in range,
  * else a usage message naming the option, and exit 2. */
@@ -38,29 +37,12 @@ double cli_double(const char *opt, const char *s, double lo, double hi);
  * which reports the offending option escaped. */
 void cli_option_error(int c, char **argv);
 
-/* Signals: SIGINT, SIGTERM and SIGHUP set a flag and wake cli_signal_fd()
- * (a pipe) so a poll() loop notices; nothing else happens in the handler. */
-int cli_signals_install(void);
-int cli_signal_fd(void);
-int cli_signal_caught(void); /* the signal number, or 0 */
-int cli_signal_count(void);  /* how many have come */
-
 /* A loaded graph must have an edge to be fitted: 0, or -1 with a message
  * "FILE:LINE: expected ..., found ..." (the line where the edge list
  * ended, for edge lists). */
 int cli_graph_fittable(const struct graph *g, const char *path);
 /* -k must not exceed the node count: else a usage message and exit 2. */
 void cli_k_fits(uint32_t k, const struct graph *g);
-
-/* Peak resident memory of this process in KiB (0 if unknown). */
-uint64_t cli_peak_rss_kb(void);
-
-/* The command line joined with spaces, for run.json (static storage). */
-void cli_set_command_line(int argc, char **argv);
-const char *cli_command_line(void);
-
-/* 1 when the terminal's codeset is UTF-8 (after setlocale). */
-int cli_utf8(void);
 
 /* The options fit and explore share: -k N|auto, -j N and these long ones.
  * A command numbers its own long options from CLI_OPT_OWN. */

@@ -1,37 +1,22 @@
-/* cli/common: die(), option numbers, signals and small process facts. */
+/* cli/common: die(), option numbers and the options fit and explore share. */
 #include "cli.h"
 
 #include <errno.h>
-#include <fcntl.h>
 #include <getopt.h>
 #include <inttypes.h>
-#include <langinfo.h>
 #include <math.h>
-#include <signal.h>
 #include <stdarg.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 #include <strings.h>
-#include <sys/resource.h>
 #include <unistd.h>
-
-static void (*die_hook)(void);
-
-void cli_set_die_hook(void (*hook)(void))
-{
-	die_hook = hook;
-}
 
 void die(int status, const char *fmt, ...)
 {
 	char msg[2048];
 	va_list ap;
-	if (die_hook) {
-		void (*h)(void) = die_hook;
-		die_hook = NULL;
-		h();
-	}
+	proc_run_exit_hook();
 	va_start(ap, fmt);
 	vsnprintf(msg, sizeof msg, fmt, ap);
 	va_end(ap);
@@ -81,59 +66,6 @@ void cli_option_error(int c, char **argv)
 		error("unknown option '%s'", util_escape(argv[optind - 1], buf, sizeof buf, 1));
 }
 
-static volatile sig_atomic_t caught, ncaught;
-static int sigpipe_fd[2] = { -1, -1 };
-
-static void on_signal(int sig)
-{
-	int saved = errno;
-	caught = sig;
-	if (ncaught < 1000)
-		ncaught++;
-	if (sigpipe_fd[1] >= 0) {
-		char b = 1;
-		ssize_t w = write(sigpipe_fd[1], &b, 1);
-		(void)w;
-	}
-	errno = saved;
-}
-
-int cli_signals_install(void)
-{
-	if (sigpipe_fd[0] < 0) {
-		if (pipe(sigpipe_fd))
-			return error("cannot make a pipe: %s", strerror(errno));
-		for (int i = 0; i < 2; i++) {
-			fcntl(sigpipe_fd[i], F_SETFL, fcntl(sigpipe_fd[i], F_GETFL) | O_NONBLOCK);
-			fcntl(sigpipe_fd[i], F_SETFD, FD_CLOEXEC);
-		}
-	}
-	struct sigaction sa;
-	memset(&sa, 0, sizeof sa);
-	sa.sa_handler = on_signal;
-	sigemptyset(&sa.sa_mask);
-	sigaction(SIGINT, &sa, NULL);
-	sigaction(SIGTERM, &sa, NULL);
-	sigaction(SIGHUP, &sa, NULL);
-	signal(SIGPIPE, SIG_IGN);
-	return 0;
-}
-
-int cli_signal_fd(void)
-{
-	return sigpipe_fd[0];
-}
-
-int cli_signal_caught(void)
-{
-	return caught;
-}
-
-int cli_signal_count(void)
-{
-	return ncaught;
-}
-
 int cli_graph_fittable(const struct graph *g, const char *path)
 {
 	if (g->m > 0)
@@ -162,41 +94,6 @@ void cli_k_fits(uint32_t k, const struct graph *g)
 	if (k > g->n)
 		die(EXIT_USAGE, "-k %" PRIu32 " asks for more communities than the graph has nodes "
 		    "(%" PRIu32 ")", k, g->n);
-}
-
-uint64_t cli_peak_rss_kb(void)
-{
-	struct rusage ru;
-	if (getrusage(RUSAGE_SELF, &ru))
-		return 0;
-	return (uint64_t)ru.ru_maxrss;
-}
-
-static char cmdline[4096];
-
-void cli_set_command_line(int argc, char **argv)
-{
-	size_t o = 0;
-	cmdline[0] = '\0';
-	for (int i = 0; i < argc && o + 2 < sizeof cmdline; i++) {
-		int w = snprintf(cmdline + o, sizeof cmdline - o, "%s%s", i ? " " : "", argv[i]);
-		if (w < 0)
-			break;
-		o += (size_t)w;
-	}
-	if (o >= sizeof cmdline)
-		cmdline[sizeof cmdline - 1] = '\0';
-}
-
-const char *cli_command_line(void)
-{
-	return cmdline;
-}
-
-int cli_utf8(void)
-{
-	const char *cs = nl_langinfo(CODESET);
-	return cs && (strcasecmp(cs, "UTF-8") == 0 || strcasecmp(cs, "utf8") == 0);
 }
 
 void cli_fit_opts_init(struct cli_fit_opts *o)

@@ -199,7 +199,7 @@ int cmd_compare(int argc, char **argv)
 		if (print_json(t, f, n, &sc))
 			goto out;
 	} else {
-		print_text(t, f, n, &sc, !cli_utf8());
+		print_text(t, f, n, &sc, !proc_utf8());
 	}
 	if (fflush(stdout) || ferror(stdout)) {
 		error("cannot write the output: %s", strerror(errno));

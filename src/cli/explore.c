@@ -22,6 +22,7 @@
 #include <sys/stat.h>
 #include <unistd.h>
 
+#include "../tui/keys.h"
 #include "../tui/tui.h"
 #include "cli.h"
 #include "coterie/fit.h"
@@ -221,7 +222,7 @@ int cmd_explore(int argc, char **argv)
 		die(EXIT_USAGE, "-k auto is for a graph; a result folder already has its k");
 	if (o.have_grid && !o.k_auto)
 		die(EXIT_USAGE, "--k-grid is for -k auto");
-	if (cli_signals_install())
+	if (proc_signals_install())
 		return 1;
 
 	struct tui_config cfg;

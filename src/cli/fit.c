@@ -139,7 +139,7 @@ static void on_scored(const struct select_point *pt, void *arg)
 static int stop_asked(void *arg)
 {
 	(void)arg;
-	return cli_signal_caught() != 0;
+	return proc_signal_caught() != 0;
 }
 
 /* -k auto: score a grid of k by held-out likelihood, write
@@ -302,7 +302,7 @@ int cmd_fit(int argc, char **argv)
 	/* refuse early: a long fit whose result cannot be written is lost work */
 	if (result_prepare_dir(out))
 		return 1;
-	if (cli_signals_install())
+	if (proc_signals_install())
 		return 1;
 
 	double t_begin = util_now();
@@ -365,7 +365,7 @@ int cmd_fit(int argc, char **argv)
 		p.starts = o.p.starts;
 		if (o.k_auto && choose_k(g, &p, out, &o, quiet, &sel)) {
 			graph_free(g);
-			return cli_signal_caught() ? EXIT_INTERRUPTED : 1;
+			return proc_signal_caught() ? EXIT_INTERRUPTED : 1;
 		}
 		if (check_links > 0) {
 			/* the seed is offset so these pairs are not those -k auto held out */
@@ -421,11 +421,11 @@ int cmd_fit(int argc, char **argv)
 	for (;;) {
 		struct pollfd pfd[2] = {
 			{ fit_wake_fd(f), POLLIN, 0 },
-			{ cli_signal_fd(), POLLIN, 0 },
+			{ proc_signal_fd(), POLLIN, 0 },
 		};
 		poll(pfd, 2, 500);
 		fit_drain_wake(f);
-		if (cli_signal_caught() && !interrupted) {
+		if (proc_signal_caught() && !interrupted) {
 			/* the sweep in progress ends first, so that --resume
 			 * continues exactly; a second signal stops at once */
 			interrupted = 1;
@@ -434,7 +434,7 @@ int cmd_fit(int argc, char **argv)
 			       "(interrupt again to stop at once)", out);
 			fit_interrupt(f);
 		}
-		if (cli_signal_count() >= 2 && interrupted == 1) {
+		if (proc_signal_count() >= 2 && interrupted == 1) {
 			interrupted = 2;
 			progress_break(&pr);
 			notice("interrupted again: stopping inside the sweep; a resumed fit goes on "
@@ -514,10 +514,10 @@ int cmd_fit(int argc, char **argv)
 	const char *status = interrupted ? "interrupted" : fit_state_name(st);
 	struct result_meta meta = {
 		.k_auto = o.k_auto,
-		.command_line = cli_command_line(),
+		.command_line = proc_command_line(),
 		.graph_path = gpath ? gpath : (ck.graph ? ck.graph->source : ""),
 		.wall_seconds = util_now() - t_begin,
-		.peak_rss_kb = cli_peak_rss_kb(),
+		.peak_rss_kb = proc_peak_rss_kb(),
 		.status = status,
 		.refine = have_refined ? &rrep : NULL,
 		.refine_rounds = refine ? refine_rounds : 0,

@@ -32,7 +32,7 @@ int main(int argc, char **argv)
 	setlocale(LC_ALL, "");
 	igraph_set_error_handler(igraph_error_handler_printignore);
 	igraph_set_warning_handler(igraph_warning_handler_ignore);
-	cli_set_command_line(argc, argv);
+	proc_set_command_line(argc, argv);
 	if (argc < 2) {
 		usage(stderr);
 		return EXIT_USAGE;

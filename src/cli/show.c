@@ -760,7 +760,7 @@ static int show_run(int argc, char **argv, const char *edge_a, const char *edge_
 	memset(&s, 0, sizeof s);
 	s.dir = argv[optind];
 	s.json = o.json;
-	s.ascii = !cli_utf8();
+	s.ascii = !proc_utf8();
 	s.limit = o.limit == 0 || (o.links && !o.have_limit) ? SIZE_MAX : o.limit;
 	if (show_open(&s))
 		return 1;

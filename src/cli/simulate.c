@@ -204,10 +204,10 @@ int cmd_simulate(int argc, char **argv)
 	if (simulate_run(&p, &s))
 		return 1;
 	double t1 = util_now();
-	struct simulate_meta meta = { cli_command_line(), prefix, t1 - t0 };
+	struct simulate_meta meta = { proc_command_line(), prefix, t1 - t0 };
 	/* an interrupt while sampling ends the process (nothing is written yet);
 	 * while writing it waits, so no temporary file is left behind */
-	if (cli_signals_install()) {
+	if (proc_signals_install()) {
 		simulate_release(&s);
 		return 1;
 	}
@@ -228,7 +228,7 @@ int cmd_simulate(int argc, char **argv)
 	simulate_release(&s);
 	if (rc)
 		return 1;
-	if (cli_signal_caught()) {
+	if (proc_signal_caught()) {
 		notice("interrupted; the planted graph was written first");
 		return EXIT_INTERRUPTED;
 	}

@@ -8,7 +8,7 @@
  * calls unprintable, so a string that slipped through shows '?' and
  * never a control sequence.
  */
-#include "tui.h"
+#include "panes.h"
 
 #include <math.h>
 #include <stdio.h>
@@ -16,8 +16,7 @@
 #include <string.h>
 #include <wchar.h>
 
-#include "coterie/graph.h"
-#include "coterie/util.h"
+#include "view.h"
 
 void draw_init_colours(int colour)
 {
@@ -126,13 +125,16 @@ int draw_text(WINDOW *w, int y, int x, const char *s, int maxcols)
 	return used;
 }
 
-const char *draw_name(const struct view *v, uint32_t node, char *buf, size_t cap)
+attr_t draw_row(const struct view *v, WINDOW *w, int pane, int y, int x0, size_t row,
+		attr_t extra)
 {
-	if (node >= v->g->n) {
-		snprintf(buf, cap, "?");
-		return buf;
-	}
-	return util_escape(v->g->names[node], buf, cap, !v->utf8);
+	int selected = row == view_pos(v, pane)->cur, focused = v->focus == pane;
+	attr_t at = selected ? (focused ? A_REVERSE : A_BOLD | A_UNDERLINE) : A_NORMAL;
+	at |= extra;
+	wattron(w, at);
+	if (selected)
+		draw_fill(w, y, x0, getmaxx(w) - x0);
+	return at;
 }
 
 void draw_bar(const struct view *v, WINDOW *w, int y, int x, int width, double f)

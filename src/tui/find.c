@@ -9,14 +9,16 @@
  * exactly). Only FIND_KEEP matches are kept, best first: a name equal to
  * the query, then names starting with it, then the rest, each by node id.
  */
-#include "tui.h"
-
 #include <limits.h>
+#include <stdio.h>
 #include <string.h>
 #include <wchar.h>
 
 #include "coterie/graph.h"
 #include "coterie/util.h"
+#include "keys.h"
+#include "panes.h"
+#include "view.h"
 
 static unsigned char fold(unsigned char c)
 {
@@ -146,7 +148,7 @@ void find_key(struct view *v, int key, int is_char)
 			view_select_node(v, u, 1);
 			view_set_focus(v, PANE_NODE);
 			char name[200];
-			view_say(v, UTIL_NOTICE, "found %s", draw_name(v, u, name, sizeof name));
+			view_say(v, UTIL_NOTICE, "found %s", view_node_name(v, u, name, sizeof name));
 		}
 		return;
 	case 127:
@@ -182,13 +184,9 @@ void find_key(struct view *v, int key, int is_char)
 	restart(v);
 }
 
-void find_draw(const struct view *v)
+void find_draw(const struct view *v, WINDOW *w)
 {
-	WINDOW *w = v->overlay;
-	if (!w)
-		return;
 	int h = getmaxy(w), width = getmaxx(w);
-	werase(w);
 	if (v->utf8)
 		box(w, 0, 0);
 	else
@@ -236,7 +234,7 @@ void find_draw(const struct view *v)
 		size_t i = top + (size_t)r;
 		uint32_t u = v->found[i].node;
 		char name[512];
-		draw_name(v, u, name, sizeof name);
+		view_node_name(v, u, name, sizeof name);
 		char deg[48];
 		snprintf(deg, sizeof deg, "degree %u", graph_degree(v->g, u));
 		int sel = i == v->find_cur;

@@ -4,10 +4,12 @@
  * one line ("Up, k  move up"). On a wide screen the keys that work
  * everywhere fill the left column and the pane keys the right one.
  */
-#include "tui.h"
-
 #include <stdio.h>
 #include <string.h>
+
+#include "keys.h"
+#include "panes.h"
+#include "view.h"
 
 struct help_line {
 	char keys[64];
@@ -87,7 +89,7 @@ static const char *const notes[] = {
 };
 #define NNOTES (sizeof notes / sizeof notes[0])
 
-size_t help_line_count(void)
+static size_t help_line_count(void)
 {
 	struct help_line lines[HELP_MAX];
 	size_t left;
@@ -130,13 +132,9 @@ static void put_line(const struct view *v, WINDOW *w, int y, int x, int width, i
 	draw_text(w, y, x + 2 + kw, l->text, width - 2 - kw);
 }
 
-void help_draw(const struct view *v)
+void help_draw(const struct view *v, WINDOW *w)
 {
-	WINDOW *w = v->overlay;
-	if (!w)
-		return;
 	int h = getmaxy(w), width = getmaxx(w);
-	werase(w);
 	struct help_line lines[HELP_MAX];
 	size_t nleft;
 	size_t n = build(lines, &nleft);

@@ -12,13 +12,17 @@
  * The prompts (find, the quit question) and the help screen take the
  * keyboard while open: their keys are shown on the prompt itself.
  */
-#include "tui.h"
+#include "keys.h"
 
+#ifndef NCURSES_WIDECHAR
+#define NCURSES_WIDECHAR 1
+#endif
+#include <curses.h> /* the KEY_* codes only: nothing here draws */
 #include <stdio.h>
 #include <string.h>
 
-#include "coterie/graph.h"
 #include "coterie/util.h"
+#include "view.h"
 
 /* ---- actions ---- */
 
@@ -99,7 +103,7 @@ static void act_enter_edge(struct view *v, int arg)
 	}
 	view_select_node(v, pick, 0);
 	char name[200];
-	view_say(v, UTIL_NOTICE, "node %s: %s", draw_name(v, pick, name, sizeof name), why);
+	view_say(v, UTIL_NOTICE, "node %s: %s", view_node_name(v, pick, name, sizeof name), why);
 }
 
 static void act_find(struct view *v, int arg)
@@ -119,8 +123,7 @@ static void act_help(struct view *v, int arg)
 static void act_redraw(struct view *v, int arg)
 {
 	(void)arg;
-	clearok(curscr, TRUE);
-	v->dirty |= DIRTY_ALL;
+	v->dirty |= DIRTY_ALL | DIRTY_CLEAR;
 }
 
 static void act_quit(struct view *v, int arg)
@@ -141,15 +144,14 @@ static void act_stop(struct view *v, int arg)
 		view_say(v, UTIL_NOTICE, "this saved fit is not running (e continues it)");
 	} else if (fit_state_ended(v->state) && !(v->state == FIT_LEVELLED && !v->stop_asked)) {
 		view_say(v, UTIL_NOTICE, "the fit has already ended (%s)", view_state_label(v->state));
-	} else if (v->state == FIT_LEVELLED) {
-		fit_stop(v->fit);
-		v->stop_asked = 1;
-		view_say(v, UTIL_NOTICE, "the fit ends here, levelled off; w writes it");
 	} else {
+		int levelled = v->state == FIT_LEVELLED;
 		fit_stop(v->fit);
 		v->stop_asked = 1;
-		v->pause_asked = 0;
-		view_say(v, UTIL_NOTICE, "stopping after the current block; the model is kept");
+		if (!levelled)
+			v->pause_asked = 0;
+		view_say(v, UTIL_NOTICE, "%s", levelled ? "the fit ends here, levelled off; w writes it"
+					: "stopping after the current block; the model is kept");
 	}
 	v->dirty |= DIRTY_HEADER | DIRTY_PANE(PANE_TRACE);
 }
@@ -166,15 +168,13 @@ static void act_pause(struct view *v, int arg)
 			 view_state_label(v->state));
 		return;
 	}
-	if (v->state == FIT_PAUSED || v->pause_asked) {
+	int paused = v->state == FIT_PAUSED || v->pause_asked;
+	if (paused)
 		fit_unpause(v->fit);
-		v->pause_asked = 0;
-		view_say(v, UTIL_NOTICE, "resumed");
-	} else {
+	else
 		fit_pause(v->fit);
-		v->pause_asked = 1;
-		view_say(v, UTIL_NOTICE, "pausing after the current block; p resumes");
-	}
+	v->pause_asked = !paused;
+	view_say(v, UTIL_NOTICE, "%s", paused ? "resumed" : "pausing after the current block; p resumes");
 	v->dirty |= DIRTY_HEADER | DIRTY_PANE(PANE_TRACE);
 }
 
@@ -255,61 +255,30 @@ static void act_write(struct view *v, int arg)
 	view_write(v, NULL);
 }
 
-static const struct {
-	enum inspect_key key;
-	const char *name;
-	int ascending; /* the natural direction: the best first */
-} sorts[] = {
-	{ INSPECT_BY_SIZE, "size", 0 },
-	{ INSPECT_BY_EDGES, "internal edges", 0 },
-	{ INSPECT_BY_DENSITY, "density", 0 },
-	{ INSPECT_BY_CONDUCTANCE, "conductance", 1 },
-	{ INSPECT_BY_P, "p", 0 },
-	{ INSPECT_BY_ID, "id", 1 },
-};
-#define NSORTS (sizeof sorts / sizeof sorts[0])
-
-static size_t sort_slot(enum inspect_key k)
-{
-	for (size_t i = 0; i < NSORTS; i++)
-		if (sorts[i].key == k)
-			return i;
-	return 0;
-}
-
 static void say_sort(struct view *v)
 {
-	view_say(v, UTIL_NOTICE, "communities by %s, %s first", sorts[sort_slot(v->sort_key)].name,
+	view_say(v, UTIL_NOTICE, "communities by %s, %s first", view_sort_name(v),
 		 v->ascending ? "lowest" : "highest");
 }
 
 static void act_sort_next(struct view *v, int arg)
 {
 	(void)arg;
-	size_t i = (sort_slot(v->sort_key) + 1) % NSORTS;
-	v->sort_key = sorts[i].key;
-	v->ascending = sorts[i].ascending;
-	v->order_gen = 0;
-	v->dirty |= DIRTY_PANE(PANE_COMMS);
+	view_sort_next(v);
 	say_sort(v);
 }
 
 static void act_sort_flip(struct view *v, int arg)
 {
 	(void)arg;
-	v->ascending = !v->ascending;
-	v->order_gen = 0;
-	v->dirty |= DIRTY_PANE(PANE_COMMS);
+	view_sort_flip(v);
 	say_sort(v);
 }
 
 static void act_weak(struct view *v, int arg)
 {
 	(void)arg;
-	v->show_weak = !v->show_weak;
-	v->node_gen = 0;
-	v->affil.cur = v->affil.top = 0;
-	v->dirty |= DIRTY_PANE(PANE_NODE);
+	view_toggle_weak(v);
 	view_say(v, UTIL_NOTICE, v->show_weak ? "showing every strength, also those that are no membership"
 					      : "showing memberships only");
 }
@@ -317,9 +286,7 @@ static void act_weak(struct view *v, int arg)
 static void act_edges_mode(struct view *v, int arg)
 {
 	(void)arg;
-	v->edges_mode = v->edges_mode == EDGES_WEAK ? EDGES_MISSING : EDGES_WEAK;
-	v->edges.cur = v->edges.top = 0;
-	v->dirty |= DIRTY_PANE(PANE_EDGES);
+	view_toggle_edges_mode(v);
 }
 
 /* ---- the table ---- */
@@ -345,13 +312,16 @@ const struct key_binding keys_table[] = {
 	{ KEY_END, PANE_ANY, act_move, MOVE_END, "last row" },
 	{ 'G', PANE_ANY, act_move, MOVE_END, "last row" },
 	{ '/', PANE_ANY, act_find, 0, "find a node by name (any part, any case)" },
+	/* the fit and the result */
 	{ 's', PANE_ANY, act_stop, 0, "stop fitting and keep the current model" },
 	{ 'p', PANE_ANY, act_pause, 0, "pause or resume the fit" },
 	{ 'e', PANE_ANY, act_extend, 0, "run on past a plateau, or continue an ended fit" },
 	{ 'w', PANE_ANY, act_write, 0, "write the result folder" },
+	/* the screen */
 	{ '?', PANE_ANY, act_help, 0, "this help" },
 	{ CTRL('l'), PANE_ANY, act_redraw, 0, "redraw the screen" },
 	{ 'q', PANE_ANY, act_quit, 0, "quit (asks first if the fit runs or is unsaved)" },
+	/* keys of one pane */
 	{ '\r', PANE_COMMS, act_enter_comm, 0, "go to this community's members" },
 	{ 'o', PANE_COMMS, act_sort_next, 0, "sort by the next column" },
 	{ 'r', PANE_COMMS, act_sort_flip, 0, "reverse the order" },
@@ -445,16 +415,12 @@ int keys_dispatch(struct view *v, int key)
 void keys_quit_answer(struct view *v, int key)
 {
 	switch (key) {
-	case 'y':
+	case 'y': /* save and quit */
 	case 'Y':
-		v->stop_on_quit = 1;
-		v->want_write = 1;
-		v->quit = 1;
-		break;
-	case 'd':
+	case 'd': /* quit without saving */
 	case 'D':
 		v->stop_on_quit = 1;
-		v->want_write = 0;
+		v->want_write = key == 'y' || key == 'Y';
 		v->quit = 1;
 		break;
 	case 'n':

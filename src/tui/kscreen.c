@@ -11,46 +11,28 @@
  * the search ends (the explorer's normal view then opens on the final fit)
  * or when the user quits.
  *
- * Its own curses session, begun and ended here, so tui_run() starts from
- * a clean terminal. The one thing a newcomer gets wrong: the search's
- * thread reports through error(); while curses owns the terminal those
- * messages are kept (ks_sink) and printed after endwin(), never written
- * over the screen.
+ * Its own curses session (term.c), begun and ended here, so tui_run()
+ * starts from a clean terminal. The one thing a newcomer gets wrong: the
+ * search's thread reports through error(); while curses owns the terminal
+ * those messages wait in term.c's inbox, and the last error is printed
+ * after curses ended, never written over the screen.
  */
-#include "tui.h"
-
 #include <errno.h>
 #include <math.h>
 #include <poll.h>
-#include <pthread.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 #include <unistd.h>
 
-#include "../cli/cli.h"
 #include "coterie/graph.h"
+#include "coterie/proc.h"
 #include "coterie/select.h"
 #include "coterie/util.h"
-
-static pthread_mutex_t ks_lock = PTHREAD_MUTEX_INITIALIZER;
-static char ks_error[512];
-
-static void ks_sink(int level, const char *msg)
-{
-	if (level != UTIL_ERROR)
-		return;
-	pthread_mutex_lock(&ks_lock);
-	snprintf(ks_error, sizeof ks_error, "%s", msg);
-	pthread_mutex_unlock(&ks_lock);
-}
-
-static void ks_die_hook(void)
-{
-	if (!isendwin())
-		endwin();
-	util_set_sink(NULL);
-}
+#include "panes.h"
+#include "plot.h"
+#include "term.h"
+#include "tui.h"
 
 struct kstate {
 	const struct tui_kconfig *cfg;
@@ -196,32 +178,16 @@ static void draw_all(const struct kstate *k)
 int tui_choose_k(const struct tui_kconfig *cfg, struct select_result *res)
 {
 	memset(res, 0, sizeof *res);
-	if (!isatty(STDIN_FILENO) || !isatty(STDOUT_FILENO)) {
-		error("explore needs a terminal; 'coterie fit -k auto' works without one");
+	struct term_caps caps;
+	if (term_start("'coterie fit -k auto' works without one", &caps)) {
 		select_run_free(cfg->run);
 		return 1;
 	}
-	SCREEN *scr = newterm(NULL, stdout, stdin);
-	if (!scr) {
-		error("cannot start the screen (TERM='%s')", getenv("TERM") ? getenv("TERM") : "");
-		select_run_free(cfg->run);
-		return 1;
-	}
-	set_term(scr);
-	cli_set_die_hook(ks_die_hook);
-	ks_error[0] = '\0';
-	util_set_sink(ks_sink);
-	cbreak();
-	noecho();
-	nonl();
-	keypad(stdscr, TRUE);
-	nodelay(stdscr, TRUE);
-	curs_set(0);
 
 	struct kstate k;
 	memset(&k, 0, sizeof k);
 	k.cfg = cfg;
-	k.utf8 = cli_utf8();
+	k.utf8 = caps.utf8;
 	k.t0 = util_now();
 	int quit = 0, sig = 0, hangup = 0;
 	double last_draw = 0;
@@ -237,10 +203,10 @@ int tui_choose_k(const struct tui_kconfig *cfg, struct select_result *res)
 		struct pollfd pfd[3] = {
 			{ STDIN_FILENO, POLLIN, 0 },
 			{ select_run_wake_fd(cfg->run), POLLIN, 0 },
-			{ cli_signal_fd(), POLLIN, 0 },
+			{ proc_signal_fd(), POLLIN, 0 },
 		};
 		int pr = poll(pfd, 3, 250);
-		if (cli_signal_caught()) {
+		if (proc_signal_caught()) {
 			sig = 1;
 			break;
 		}
@@ -269,30 +235,30 @@ int tui_choose_k(const struct tui_kconfig *cfg, struct select_result *res)
 		const char *env = getenv("COTERIE_KSCREEN_WAIT");
 		double wait = env && atof(env) > 0 ? atof(env) : 1.0;
 		double until = util_now() + wait;
-		while (util_now() < until && !cli_signal_caught()) {
+		while (util_now() < until && !proc_signal_caught()) {
 			struct pollfd pfd[2] = { { STDIN_FILENO, POLLIN, 0 },
-						 { cli_signal_fd(), POLLIN, 0 } };
+						 { proc_signal_fd(), POLLIN, 0 } };
 			int c = poll(pfd, 2, 100) > 0 ? getch() : ERR;
 			if (c == 'q' || c == 'Q')
 				quit = 1; /* q still quits */
 			if (c != ERR)
 				break;
 		}
-		if (cli_signal_caught())
+		if (proc_signal_caught())
 			sig = 1;
 	}
-	endwin();
-	delscreen(scr);
-	util_set_sink(NULL);
-	cli_set_die_hook(NULL);
+	char last[512];
+	int level;
+	int have_last = term_inbox_take(last, sizeof last, &level) && level == UTIL_ERROR;
+	term_stop();
 	select_run_free(cfg->run);
-	if (ks_error[0])
-		error("%s", ks_error);
+	if (have_last)
+		error("%s", last);
 	if (sig || hangup) {
 		select_result_release(res);
 		if (sig)
 			notice("interrupted by signal %d while choosing k; nothing to save yet",
-			       cli_signal_caught());
+			       proc_signal_caught());
 		return EXIT_INTERRUPTED;
 	}
 	if (quit) {

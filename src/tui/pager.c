@@ -16,18 +16,17 @@
  * immutable. The worker never touches the view or curses; everything it
  * shares with the UI is in struct pager, under its lock.
  */
-#include "tui.h"
+#include "pager.h"
 
-#include <errno.h>
-#include <fcntl.h>
-#include <signal.h>
 #include <stdlib.h>
 #include <string.h>
 #include <unistd.h>
 
 #include "coterie/agm.h"
+#include "coterie/fit.h"
 #include "coterie/graph.h"
-#include "coterie/model.h"
+#include "coterie/inspect.h"
+#include "coterie/proc.h"
 #include "coterie/util.h"
 
 /* Is u a member (agm_is_member()) of column id in snapshot s of a fit of g? */
@@ -44,12 +43,8 @@ static int member_of(const struct graph *g, const struct snapshot *s, uint32_t u
 
 void pager_answer(const struct page_req *rq, struct page_res *res)
 {
-	memset(res, 0, sizeof *res);
-	res->id = rq->id;
-	res->comm_id = rq->comm_id;
-	res->mode = rq->mode;
-	res->off = rq->off;
-	res->gen = rq->gen;
+	*res = (struct page_res){ .id = rq->id, .comm_id = rq->comm_id, .mode = rq->mode,
+				  .off = rq->off, .gen = rq->gen };
 	const struct snapshot *s = rq->snap;
 	int64_t idx = inspect_find_community(&s->agm, rq->comm_id);
 	if (idx < 0)
@@ -121,20 +116,11 @@ int pager_start(struct pager *p)
 {
 	memset(p, 0, sizeof *p);
 	p->fd[0] = p->fd[1] = -1;
-	if (pipe(p->fd))
-		return error("cannot make a pipe: %s", strerror(errno));
-	for (int i = 0; i < 2; i++) {
-		fcntl(p->fd[i], F_SETFL, fcntl(p->fd[i], F_GETFL) | O_NONBLOCK);
-		fcntl(p->fd[i], F_SETFD, FD_CLOEXEC);
-	}
+	if (proc_pipe(p->fd))
+		return -1;
 	pthread_mutex_init(&p->lock, NULL);
 	pthread_cond_init(&p->cond, NULL);
-	/* signals stay with the UI thread */
-	sigset_t all, old;
-	sigfillset(&all);
-	pthread_sigmask(SIG_BLOCK, &all, &old);
-	int rc = pthread_create(&p->thread, NULL, pager_main, p);
-	pthread_sigmask(SIG_SETMASK, &old, NULL);
+	int rc = proc_thread_start(&p->thread, pager_main, p); /* signals stay with the UI */
 	if (rc) {
 		pthread_mutex_destroy(&p->lock);
 		pthread_cond_destroy(&p->cond);

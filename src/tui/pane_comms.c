@@ -4,10 +4,12 @@
  * in the order view.c sorted them (inspect_sort_communities). The sorted
  * column carries an arrow; the selected row drives panes 3 to 5.
  */
-#include "tui.h"
 
 #include <stdio.h>
 #include <string.h>
+
+#include "panes.h"
+#include "view.h"
 
 static const struct {
 	enum inspect_key key;
@@ -44,12 +46,8 @@ static void put_cells(WINDOW *w, int y, int x, int wide, char cell[NCOLS][32])
 	}
 }
 
-void pane_comms_draw(const struct view *v)
+void pane_comms_draw(const struct view *v, WINDOW *w)
 {
-	WINDOW *w = v->win[PANE_COMMS];
-	if (!w)
-		return;
-	werase(w);
 	int width = getmaxx(w);
 	char note[96] = "";
 	const struct snapshot *s = v->snap;
@@ -81,12 +79,10 @@ void pane_comms_draw(const struct view *v)
 	put_cells(w, 1, 1, wide, cell);
 	wattroff(w, A_BOLD);
 
-	int rows = view_page_height(v, PANE_COMMS);
-	int focused = v->focus == PANE_COMMS;
-	for (int r = 0; r < rows; r++) {
-		size_t i = v->comms.top + (size_t)r;
-		if (i >= v->norder)
-			break;
+	size_t shown = view_rows_shown(v, PANE_COMMS);
+	for (size_t r = 0; r < shown; r++) {
+		size_t i = v->comms.top + r;
+		int y = 2 + (int)r;
 		const struct agm_community *c = &s->agm.comms[v->order[i]];
 		snprintf(cell[0], sizeof cell[0], "#%u", c->id);
 		fmt_count(cell[1], sizeof cell[1], c->size);
@@ -94,14 +90,8 @@ void pane_comms_draw(const struct view *v)
 		fmt_frac(cell[3], sizeof cell[3], c->density);
 		fmt_frac(cell[4], sizeof cell[4], c->conductance);
 		fmt_frac(cell[5], sizeof cell[5], c->p);
-		int sel = i == v->comms.cur;
-		attr_t at = sel ? (focused ? A_REVERSE : A_BOLD | A_UNDERLINE) : A_NORMAL;
-		if (sel) {
-			wattron(w, at);
-			draw_fill(w, 2 + r, 0, width);
-		}
-		put_cells(w, 2 + r, 1, wide, cell);
-		if (sel)
-			wattroff(w, at);
+		attr_t at = draw_row(v, w, PANE_COMMS, y, 0, i, 0);
+		put_cells(w, y, 1, wide, cell);
+		wattroff(w, at);
 	}
 }

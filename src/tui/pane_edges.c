@@ -9,9 +9,11 @@
  * where the list shows the communities' part alone) and the communities
  * that make it, each with the probability it alone gives.
  */
-#include "tui.h"
 
 #include <stdio.h>
+
+#include "panes.h"
+#include "view.h"
 
 /* The detail row for pair (u, v), from the snapshot on screen. */
 static void draw_detail(const struct view *v, WINDOW *w, int y, int x, int cw, uint32_t u,
@@ -36,12 +38,8 @@ static void draw_detail(const struct view *v, WINDOW *w, int y, int x, int cw, u
 	wattroff(w, A_DIM);
 }
 
-void pane_edges_draw(const struct view *v)
+void pane_edges_draw(const struct view *v, WINDOW *w)
 {
-	WINDOW *w = v->win[PANE_EDGES];
-	if (!w)
-		return;
-	werase(w);
 	draw_separator(v, w);
 	int width = getmaxx(w);
 	int weak = v->edges_mode == EDGES_WEAK;
@@ -88,17 +86,11 @@ void pane_edges_draw(const struct view *v)
 		  nw);
 	draw_text(w, 1, xp + pw - 4, "prob", 4);
 	wattroff(w, A_BOLD);
-	int focused = v->focus == PANE_EDGES;
-	for (int r = 0; r < rows; r++) {
-		size_t rank = v->edges.top + (size_t)r;
-		if (rank >= v->total)
-			break;
-		int y = 2 + r;
-		int sel = rank == v->edges.cur;
-		attr_t at = sel ? (focused ? A_REVERSE : A_BOLD | A_UNDERLINE) : A_NORMAL;
-		wattron(w, at);
-		if (sel)
-			draw_fill(w, y, 1, width - 1);
+	size_t shown = view_rows_shown(v, PANE_EDGES);
+	for (size_t r = 0; r < shown; r++) {
+		size_t rank = v->edges.top + r;
+		int y = 2 + (int)r;
+		attr_t at = draw_row(v, w, PANE_EDGES, y, 1, rank, 0);
 		if (rank < v->page_off || rank >= v->page_off + v->npage) {
 			draw_text(w, y, x, "...", cw); /* on its way from the pager */
 			wattroff(w, at);
@@ -106,8 +98,8 @@ void pane_edges_draw(const struct view *v)
 		}
 		const struct page_row *p = &v->page[rank - v->page_off];
 		char a[512], b[512], pr[32];
-		draw_name(v, p->u, a, sizeof a);
-		draw_name(v, p->v, b, sizeof b);
+		view_node_name(v, p->u, a, sizeof a);
+		view_node_name(v, p->v, b, sizeof b);
 		draw_text(w, y, x, a, nw);
 		if (p->outside)
 			draw_text(w, y, x + nw + 1, ">", 1);

@@ -3,16 +3,14 @@
  * strongest first (inspect_members), each with a bar scaled to the
  * strongest member and the strength itself.
  */
-#include "tui.h"
 
 #include <stdio.h>
 
-void pane_members_draw(const struct view *v)
+#include "panes.h"
+#include "view.h"
+
+void pane_members_draw(const struct view *v, WINDOW *w)
 {
-	WINDOW *w = v->win[PANE_MEMBERS];
-	if (!w)
-		return;
-	werase(w);
 	int width = getmaxx(w);
 	char title[64], note[64] = "";
 	if (v->comm_index >= 0 && v->has_comm) {
@@ -28,7 +26,6 @@ void pane_members_draw(const struct view *v)
 		draw_text(w, 2, 1, "select a community in pane 2", width - 2);
 		return;
 	}
-	int rows = view_page_height(v, PANE_MEMBERS);
 	int vw = 7;
 	int bw = width / 3;
 	if (bw > 24)
@@ -37,19 +34,13 @@ void pane_members_draw(const struct view *v)
 		bw = 4;
 	int nw = width - 2 - bw - vw - 2;
 	double top = v->mem_strength[0] > 0 ? v->mem_strength[0] : 1.0;
-	int focused = v->focus == PANE_MEMBERS;
-	for (int r = 0; r < rows; r++) {
-		size_t i = v->members.top + (size_t)r;
-		if (i >= v->nmem)
-			break;
-		int y = 1 + r;
-		int sel = i == v->members.cur;
-		attr_t at = sel ? (focused ? A_REVERSE : A_BOLD | A_UNDERLINE) : A_NORMAL;
-		wattron(w, at);
-		if (sel)
-			draw_fill(w, y, 0, width);
+	size_t shown = view_rows_shown(v, PANE_MEMBERS);
+	for (size_t r = 0; r < shown; r++) {
+		size_t i = v->members.top + r;
+		int y = 1 + (int)r;
+		attr_t at = draw_row(v, w, PANE_MEMBERS, y, 0, i, 0);
 		char name[512];
-		draw_name(v, v->mem[i], name, sizeof name);
+		view_node_name(v, v->mem[i], name, sizeof name);
 		draw_text(w, y, 1, name, nw);
 		wattroff(w, at);
 		draw_bar(v, w, y, 1 + nw + 1, bw, v->mem_strength[i] / top);

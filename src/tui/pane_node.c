@@ -6,16 +6,14 @@
  * of the node's edges that community explains. Strengths below the
  * threshold are listed on request ('a').
  */
-#include "tui.h"
 
 #include <stdio.h>
 
-void pane_node_draw(const struct view *v)
+#include "panes.h"
+#include "view.h"
+
+void pane_node_draw(const struct view *v, WINDOW *w)
 {
-	WINDOW *w = v->win[PANE_NODE];
-	if (!w)
-		return;
-	werase(w);
 	draw_separator(v, w);
 	int width = getmaxx(w);
 	const struct inspect_node *nv = &v->nodeview;
@@ -32,7 +30,7 @@ void pane_node_draw(const struct view *v)
 		return;
 	}
 	char name[512];
-	draw_name(v, nv->node, name, sizeof name);
+	view_node_name(v, nv->node, name, sizeof name);
 	wattron(w, A_BOLD);
 	draw_text(w, 1, x, name, cw);
 	wattroff(w, A_BOLD);
@@ -65,25 +63,16 @@ void pane_node_draw(const struct view *v)
 	double top = nv->naffil ? nv->affil[0].strength : 1.0;
 	if (!(top > 0))
 		top = 1.0;
-	int rows = view_page_height(v, PANE_NODE);
-	int focused = v->focus == PANE_NODE;
-	for (int r = 0; r < rows; r++) {
-		size_t i = v->affil.top + (size_t)r;
-		if (i >= v->naffil_rows)
-			break;
+	size_t shown = view_rows_shown(v, PANE_NODE);
+	for (size_t r = 0; r < shown; r++) {
+		size_t i = v->affil.top + r;
 		const struct inspect_affil *a = &nv->affil[v->affil_rows[i]];
-		int y = 4 + r;
-		int sel = i == v->affil.cur;
-		attr_t at = sel ? (focused ? A_REVERSE : A_BOLD | A_UNDERLINE) : A_NORMAL;
-		if (!a->member)
-			at |= draw_attr(v, CP_DIM);
+		int y = 4 + (int)r;
 		char id[32], val[32], ex[32];
 		snprintf(id, sizeof id, "#%u", a->comm);
 		snprintf(val, sizeof val, "%.3g", a->strength);
 		snprintf(ex, sizeof ex, "%8u", a->explained);
-		wattron(w, at);
-		if (sel)
-			draw_fill(w, y, 1, width - 1);
+		attr_t at = draw_row(v, w, PANE_NODE, y, 1, i, a->member ? 0 : draw_attr(v, CP_DIM));
 		draw_text(w, y, x, id, idw);
 		wattroff(w, at);
 		draw_bar(v, w, y, xb, bw, a->strength / top);

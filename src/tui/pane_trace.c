@@ -4,7 +4,6 @@
  * plateau), the curve of log-likelihood against sweep on the right, with
  * a marked column and a caret where the plateau rule fired.
  */
-#include "tui.h"
 
 #include <math.h>
 #include <stdio.h>
@@ -12,23 +11,20 @@
 #include <string.h>
 
 #include "coterie/util.h"
+#include "panes.h"
+#include "plot.h"
+#include "view.h"
 
-static void fmt_ll(char *buf, size_t cap, double x)
+/* x with one decimal while it is short; beyond, in full (%.6e from 1e9
+ * on, for log-likelihoods) or in three digits (%.3g from 1e5 on). */
+static void fmt_real(char *buf, size_t cap, double x, int full)
 {
 	if (!isfinite(x))
 		snprintf(buf, cap, "-");
-	else if (fabs(x) < 1e9)
+	else if (fabs(x) < (full ? 1e9 : 1e5))
 		snprintf(buf, cap, "%.1f", x);
-	else
+	else if (full)
 		snprintf(buf, cap, "%.6e", x);
-}
-
-static void fmt_short(char *buf, size_t cap, double x)
-{
-	if (!isfinite(x))
-		snprintf(buf, cap, "-");
-	else if (fabs(x) < 1e5)
-		snprintf(buf, cap, "%.1f", x);
 	else
 		snprintf(buf, cap, "%.3g", x);
 }
@@ -89,9 +85,9 @@ static void figures(const struct view *v, WINDOW *w, int x, int width, int rows)
 		snprintf(line[n++], sizeof line[0], "sweep   %u/%u%s", s->sweep, v->params.max_sweeps,
 			 st);
 		const struct trace_point *t = &s->trace[s->ntrace - 1];
-		fmt_ll(a, sizeof a, t->loglik);
+		fmt_real(a, sizeof a, t->loglik, 1);
 		if (s->starts > 1 && !done && s->best_start > 0 && s->best_start != s->start) {
-			fmt_ll(b, sizeof b, s->best_loglik);
+			fmt_real(b, sizeof b, s->best_loglik, 1);
 			snprintf(line[n++], sizeof line[0], "loglik  %s (start %u: %s)", a,
 				 s->best_start, b);
 		} else {
@@ -209,8 +205,8 @@ static void plot(const struct view *v, WINDOW *w, int x0, int pw, int rows)
 		snprintf(l, sizeof l, "%u", s->trace[0].sweep);
 		snprintf(r, sizeof r, "sweep %u", s->trace[s->ntrace - 1].sweep);
 		char a[32], b[32];
-		fmt_short(a, sizeof a, lo);
-		fmt_short(b, sizeof b, hi);
+		fmt_real(a, sizeof a, lo, 0);
+		fmt_real(b, sizeof b, hi, 0);
 		snprintf(mid, sizeof mid, "loglik %s .. %s", a, b);
 		/* the axis row: first sweep at the left, last at the right, the
 		 * plateau label under its column, the value range where it fits
@@ -248,12 +244,8 @@ static void plot(const struct view *v, WINDOW *w, int x0, int pw, int rows)
 	free(grid);
 }
 
-void pane_trace_draw(const struct view *v)
+void pane_trace_draw(const struct view *v, WINDOW *w)
 {
-	WINDOW *w = v->win[PANE_TRACE];
-	if (!w)
-		return;
-	werase(w);
 	int h = getmaxy(w), width = getmaxx(w);
 	char note[96];
 	snprintf(note, sizeof note, "k %u, seed %llu, %u thread%s", v->params.k,
@@ -268,16 +260,4 @@ void pane_trace_draw(const struct view *v)
 		fw = 38;
 	figures(v, w, 1, fw - 1, rows);
 	plot(v, w, fw + 1, width - fw - 2, rows);
-}
-
-const char *pane_title(int pane)
-{
-	switch (pane) {
-	case PANE_TRACE: return "Likelihood";
-	case PANE_COMMS: return "Communities";
-	case PANE_MEMBERS: return "Members";
-	case PANE_NODE: return "Node";
-	case PANE_EDGES: return "Weak edges";
-	default: return "?";
-	}
 }

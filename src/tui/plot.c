@@ -11,9 +11,10 @@
  * Pure functions of their arguments, so tests can check them without a
  * terminal.
  */
-#include "tui.h"
+#include "plot.h"
 
 #include <math.h>
+#include <stdint.h>
 #include <string.h>
 
 int plot_column(size_t i, size_t n, int dw)

@@ -16,48 +16,69 @@
  * The one thing a newcomer gets wrong: a key handler must leave the caches
  * consistent before the next key of the same batch is read, so ui.c calls
  * view_prepare() after every key, not once per loop pass.
+ *
+ * No curses here: the state is unit-tested (tests/unit/test_tui_view.c)
+ * with the fit, the snapshots and the pager as they are.
  */
-#include "coterie/agm.h"
-#include "tui.h"
+#include "view.h"
 
 #include <stdarg.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 
-#include "../cli/cli.h"
+#include "coterie/agm.h"
 #include "coterie/graph.h"
+#include "coterie/proc.h"
 #include "coterie/result.h"
 #include "coterie/util.h"
 
 void view_init(struct view *v, const struct tui_config *cfg)
 {
-	memset(v, 0, sizeof *v);
-	v->g = cfg->g;
-	v->fit = cfg->fit;
-	v->params = cfg->params;
-	v->graph_label = cfg->graph_label;
-	v->graph_path = cfg->graph_path;
-	v->outdir = cfg->outdir;
-	v->outdir_is_default = cfg->outdir_is_default;
-	v->reopened = cfg->reopened;
-	v->saved_state = cfg->saved_state;
-	v->t_begin = cfg->t_begin;
-	v->selection = cfg->selection;
-	v->node = -1;
-	v->comm_index = -1;
-	v->mem_for = -1;
-	v->node_for = -1;
-	v->sort_key = INSPECT_BY_SIZE;
-	v->focus = PANE_COMMS;
-	v->dirty = DIRTY_ALL;
-	v->state = FIT_READY;
-	if (cfg->reopened && cfg->outdir_holds_result) {
-		v->saved = 1;
-		v->saved_sweep = cfg->saved_sweep;
-		v->saved_loglik = cfg->saved_loglik;
-		v->saved_as = cfg->saved_state;
+	int holds = cfg->reopened && cfg->outdir_holds_result;
+	*v = (struct view){
+		.g = cfg->g, .fit = cfg->fit, .params = cfg->params,
+		.graph_label = cfg->graph_label, .graph_path = cfg->graph_path,
+		.outdir = cfg->outdir, .outdir_is_default = cfg->outdir_is_default,
+		.reopened = cfg->reopened, .saved_state = cfg->saved_state,
+		.t_begin = cfg->t_begin, .selection = cfg->selection,
+		.node = -1, .comm_index = -1, .mem_for = -1, .node_for = -1,
+		.sort_key = INSPECT_BY_SIZE, .focus = PANE_COMMS, .dirty = DIRTY_ALL,
+		.state = FIT_READY,
+		/* a reopened folder that holds this model counts as written */
+		.saved = holds, .saved_sweep = holds ? cfg->saved_sweep : 0,
+		.saved_loglik = holds ? cfg->saved_loglik : 0,
+		.saved_as = holds ? cfg->saved_state : FIT_READY,
+	};
+}
+
+void view_layout(struct view *v, int rows, int cols)
+{
+	v->rows = rows;
+	v->cols = cols;
+	v->too_small = rows < VIEW_MIN_ROWS || cols < VIEW_MIN_COLS;
+	memset(v->box, 0, sizeof v->box);
+	if (!v->too_small) {
+		/* the likelihood across the top, a 2 x 2 grid of lists below */
+		int body = rows - 2;
+		int th = body * 3 / 10;
+		if (th < 6)
+			th = 6;
+		if (th > 13)
+			th = 13;
+		int grid = body - th;
+		int gt = (grid + 1) / 2, gb = grid - gt;
+		int lw = cols / 2, rw = cols - lw;
+		v->box[PANE_TRACE] = (struct rect){ 1, 0, th, cols };
+		v->box[PANE_COMMS] = (struct rect){ 1 + th, 0, gt, lw };
+		v->box[PANE_MEMBERS] = (struct rect){ 1 + th + gt, 0, gb, lw };
+		v->box[PANE_NODE] = (struct rect){ 1 + th, lw, gt, rw };
+		v->box[PANE_EDGES] = (struct rect){ 1 + th + gt, lw, gb, rw };
 	}
+	v->dirty = DIRTY_ALL;
+	/* lists keep their cursor visible in the new heights */
+	v->order_gen = 0;
+	v->node_gen = 0;
 }
 
 void view_release(struct view *v)
@@ -177,7 +198,7 @@ size_t view_rows(const struct view *v, int pane)
 	}
 }
 
-static struct listpos *pos_of(struct view *v, int pane)
+const struct listpos *view_pos(const struct view *v, int pane)
 {
 	switch (pane) {
 	case PANE_COMMS: return &v->comms;
@@ -186,6 +207,20 @@ static struct listpos *pos_of(struct view *v, int pane)
 	case PANE_EDGES: return &v->edges;
 	default: return NULL;
 	}
+}
+
+static struct listpos *pos_of(struct view *v, int pane)
+{
+	return (struct listpos *)view_pos(v, pane);
+}
+
+size_t view_rows_shown(const struct view *v, int pane)
+{
+	const struct listpos *p = view_pos(v, pane);
+	size_t rows = view_rows(v, pane), h = (size_t)view_page_height(v, pane);
+	if (!p || p->top >= rows)
+		return 0;
+	return rows - p->top < h ? rows - p->top : h;
 }
 
 /* Keep cur inside [0, rows) and visible in a window of h rows. */
@@ -224,13 +259,19 @@ static void comm_from_cursor(struct view *v)
 		    DIRTY_PANE(PANE_EDGES);
 }
 
-void view_move_to(struct view *v, size_t row)
+/* The focused list's position and row count; NULL when it has no rows. */
+static struct listpos *focused_list(struct view *v, size_t *rows)
 {
 	struct listpos *p = pos_of(v, v->focus);
+	*rows = p ? view_rows(v, v->focus) : 0;
+	return *rows ? p : NULL;
+}
+
+void view_move_to(struct view *v, size_t row)
+{
+	size_t rows;
+	struct listpos *p = focused_list(v, &rows);
 	if (!p)
-		return;
-	size_t rows = view_rows(v, v->focus);
-	if (rows == 0)
 		return;
 	p->cur = row < rows ? row : rows - 1;
 	clamp_pos(p, rows, view_page_height(v, v->focus));
@@ -253,11 +294,9 @@ void view_move_to(struct view *v, size_t row)
 
 void view_move(struct view *v, long delta)
 {
-	struct listpos *p = pos_of(v, v->focus);
+	size_t rows;
+	struct listpos *p = focused_list(v, &rows);
 	if (!p)
-		return;
-	size_t rows = view_rows(v, v->focus);
-	if (rows == 0)
 		return;
 	size_t row;
 	if (delta < 0)
@@ -315,6 +354,73 @@ void view_select_node(struct view *v, uint32_t node, int with_comm)
 	}
 }
 
+static const struct {
+	enum inspect_key key;
+	const char *name;
+	int ascending; /* the natural direction: the best first */
+} sorts[] = {
+	{ INSPECT_BY_SIZE, "size", 0 },
+	{ INSPECT_BY_EDGES, "internal edges", 0 },
+	{ INSPECT_BY_DENSITY, "density", 0 },
+	{ INSPECT_BY_CONDUCTANCE, "conductance", 1 },
+	{ INSPECT_BY_P, "p", 0 },
+	{ INSPECT_BY_ID, "id", 1 },
+};
+#define NSORTS (sizeof sorts / sizeof sorts[0])
+
+static size_t sort_slot(enum inspect_key k)
+{
+	for (size_t i = 0; i < NSORTS; i++)
+		if (sorts[i].key == k)
+			return i;
+	return 0;
+}
+
+const char *view_sort_name(const struct view *v)
+{
+	return sorts[sort_slot(v->sort_key)].name;
+}
+
+void view_sort_next(struct view *v)
+{
+	size_t i = (sort_slot(v->sort_key) + 1) % NSORTS;
+	v->sort_key = sorts[i].key;
+	v->ascending = sorts[i].ascending;
+	v->order_gen = 0;
+	v->dirty |= DIRTY_PANE(PANE_COMMS);
+}
+
+void view_sort_flip(struct view *v)
+{
+	v->ascending = !v->ascending;
+	v->order_gen = 0;
+	v->dirty |= DIRTY_PANE(PANE_COMMS);
+}
+
+void view_toggle_weak(struct view *v)
+{
+	v->show_weak = !v->show_weak;
+	v->node_gen = 0;
+	v->affil.cur = v->affil.top = 0;
+	v->dirty |= DIRTY_PANE(PANE_NODE);
+}
+
+void view_toggle_edges_mode(struct view *v)
+{
+	v->edges_mode = v->edges_mode == EDGES_WEAK ? EDGES_MISSING : EDGES_WEAK;
+	v->edges.cur = v->edges.top = 0;
+	v->dirty |= DIRTY_PANE(PANE_EDGES);
+}
+
+const char *view_node_name(const struct view *v, uint32_t node, char *buf, size_t cap)
+{
+	if (node >= v->g->n) {
+		snprintf(buf, cap, "?");
+		return buf;
+	}
+	return util_escape(v->g->names[node], buf, cap, !v->utf8);
+}
+
 /* ---- caches ---- */
 
 static void prepare_order(struct view *v)
@@ -370,16 +476,15 @@ static void prepare_members(struct view *v)
 	if (size > v->mem_cap || !v->mem) {
 		uint32_t cap = size ? size : 1;
 		uint32_t *m = realloc(v->mem, cap * sizeof *m);
+		double *s = m ? realloc(v->mem_strength, cap * sizeof *s) : NULL;
 		if (m)
 			v->mem = m;
-		double *s = realloc(v->mem_strength, cap * sizeof *s);
-		if (s)
-			v->mem_strength = s;
-		if (!m || !s) {
+		if (!s) {
 			view_say(v, UTIL_ERROR, "out of memory listing %u members", size);
 			v->nmem = 0;
 			return;
 		}
+		v->mem_strength = s;
 		v->mem_cap = cap;
 	}
 	inspect_members(a, (uint32_t)v->comm_index, v->mem, v->mem_strength);
@@ -575,10 +680,10 @@ int view_write(struct view *v, const char *status)
 	struct fit_params p = v->params;
 	p.hold_at_plateau = 0;
 	struct result_meta meta = {
-		.command_line = cli_command_line(),
+		.command_line = proc_command_line(),
 		.graph_path = v->graph_path,
 		.wall_seconds = util_now() - v->t_begin,
-		.peak_rss_kb = cli_peak_rss_kb(),
+		.peak_rss_kb = proc_peak_rss_kb(),
 		.status = status ? status : fit_state_name(st),
 		.k_auto = v->selection != NULL,
 		.selection = v->selection,
