@@ -283,7 +283,7 @@ static int show_node(const struct show *s, const char *name)
 	if (s->json) {
 		json_t *root = json_object();
 		json_t *list = json_array();
-		json_object_set_new(root, "node", cli_json_str(g->names[u]));
+		json_object_set_new(root, "node", cli_json_str(graph_name(g, u)));
 		json_object_set_new(root, "id", jint((uint64_t)u));
 		json_object_set_new(root, "degree", jint(nv.degree));
 		json_object_set_new(root, "memberships", jint(nv.nmember));
@@ -307,7 +307,7 @@ static int show_node(const struct show *s, const char *name)
 	}
 
 	char buf[NAME_CAP];
-	printf("node         %s\n", esc(s, g->names[u], buf));
+	printf("node         %s\n", esc(s, graph_name(g, u), buf));
 	printf("degree       %" PRIu32 "\n", nv.degree);
 	printf("memberships  %" PRIu32 " (strength %.6g or more and %g links, or half the degree)\n",
 	       nv.nmember, s->delta, AGM_MIN_LINKS);
@@ -377,7 +377,7 @@ static int show_community(const struct show *s, uint32_t id)
 		json_t *list = json_array();
 		for (size_t i = 0; i < n; i++) {
 			json_t *o = json_object();
-			json_object_set_new(o, "node", cli_json_str(g->names[order[i]]));
+			json_object_set_new(o, "node", cli_json_str(graph_name(g, order[i])));
 			json_object_set_new(o, "strength", cli_json_real(str[i]));
 			json_array_append_new(list, o);
 		}
@@ -396,7 +396,7 @@ static int show_community(const struct show *s, uint32_t id)
 		char buf[NAME_CAP];
 		for (size_t i = 0; i < n; i++)
 			printf("  %*zu  %10.4f  %s\n", wr, i + 1, str[i],
-			       esc(s, g->names[order[i]], buf));
+			       esc(s, graph_name(g, order[i]), buf));
 		more_note(size, n);
 	}
 	free(order);
@@ -434,12 +434,12 @@ static int show_pairs(const struct show *s, uint32_t id, int missing)
 		for (size_t i = 0; i < n; i++) {
 			json_t *o = json_object();
 			if (missing) {
-				json_object_set_new(o, "u", cli_json_str(g->names[p[i].u]));
-				json_object_set_new(o, "v", cli_json_str(g->names[p[i].v]));
+				json_object_set_new(o, "u", cli_json_str(graph_name(g, p[i].u)));
+				json_object_set_new(o, "v", cli_json_str(graph_name(g, p[i].v)));
 			} else {
 				int64_t e = inspect_explaining_community(F, p[i].u, p[i].v);
-				json_object_set_new(o, "member", cli_json_str(g->names[p[i].u]));
-				json_object_set_new(o, "other", cli_json_str(g->names[p[i].v]));
+				json_object_set_new(o, "member", cli_json_str(graph_name(g, p[i].u)));
+				json_object_set_new(o, "other", cli_json_str(graph_name(g, p[i].v)));
 				json_object_set_new(o, "explained_by",
 						    e < 0 ? json_null() : jint((uint64_t)e));
 			}
@@ -472,7 +472,7 @@ static int show_pairs(const struct show *s, uint32_t id, int missing)
 	char b1[NAME_CAP], b2[NAME_CAP];
 	int wn = 4;
 	for (size_t i = 0; i < n; i++)
-		wn = maxi(wn, text_width(esc(s, g->names[p[i].u], b1), s->ascii));
+		wn = maxi(wn, text_width(esc(s, graph_name(g, p[i].u), b1), s->ascii));
 	if (wn > NAME_COL_MAX)
 		wn = NAME_COL_MAX;
 	int wr = maxi(4, digits(n));
@@ -494,8 +494,8 @@ static int show_pairs(const struct show *s, uint32_t id, int missing)
 			else
 				printf("%12" PRId64 "  ", e);
 		}
-		put_padded(esc(s, g->names[p[i].u], b1), wn, s->ascii);
-		printf("  %s\n", esc(s, g->names[p[i].v], b2));
+		put_padded(esc(s, graph_name(g, p[i].u), b1), wn, s->ascii);
+		printf("  %s\n", esc(s, graph_name(g, p[i].v), b2));
 	}
 	more_note(total, n);
 	free(p);
@@ -532,8 +532,8 @@ static int show_edge(const struct show *s, const char *na, const char *nb)
 	if (s->json) {
 		json_t *root = json_object();
 		json_t *list = json_array();
-		json_object_set_new(root, "a", cli_json_str(g->names[u]));
-		json_object_set_new(root, "b", cli_json_str(g->names[v]));
+		json_object_set_new(root, "a", cli_json_str(graph_name(g, u)));
+		json_object_set_new(root, "b", cli_json_str(graph_name(g, v)));
 		json_object_set_new(root, "linked", json_boolean(e.linked));
 		json_object_set_new(root, "dot", cli_json_real(e.x));
 		json_object_set_new(root, "prob", cli_json_real(e.prob));
@@ -556,7 +556,7 @@ static int show_edge(const struct show *s, const char *na, const char *nb)
 		return rc;
 	}
 	char b1[NAME_CAP], b2[NAME_CAP];
-	printf("pair         %s -- %s\n", esc(s, g->names[u], b1), esc(s, g->names[v], b2));
+	printf("pair         %s -- %s\n", esc(s, graph_name(g, u), b1), esc(s, graph_name(g, v), b2));
 	printf("linked       %s\n", e.linked ? "yes, an edge" : "no");
 	printf("probability  %.6g  the model, 1 - exp(-(F_a.F_b + qeps)), background included\n",
 	       e.prob);
@@ -618,8 +618,8 @@ static int show_links(const struct show *s)
 			i++;
 			if (s->json) {
 				json_t *o = json_object();
-				json_object_set_new(o, "a", cli_json_str(g->names[u]));
-				json_object_set_new(o, "b", cli_json_str(g->names[v]));
+				json_object_set_new(o, "a", cli_json_str(graph_name(g, u)));
+				json_object_set_new(o, "b", cli_json_str(graph_name(g, v)));
 				json_object_set_new(o, "prob", cli_json_real(p));
 				json_object_set_new(o, "explained_by",
 						    c < 0 ? json_null() : jint((uint64_t)c));
@@ -631,7 +631,7 @@ static int show_links(const struct show *s)
 				printf("%12s  ", "none");
 			else
 				printf("%12" PRId64 "  ", c);
-			printf("%s  %s\n", esc(s, g->names[u], b1), esc(s, g->names[v], b2));
+			printf("%s  %s\n", esc(s, graph_name(g, u), b1), esc(s, graph_name(g, v), b2));
 		}
 	if (s->json) {
 		json_object_set_new(root, "edges", list);

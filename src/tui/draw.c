@@ -132,7 +132,7 @@ const char *draw_name(const struct view *v, uint32_t node, char *buf, size_t cap
 		snprintf(buf, cap, "?");
 		return buf;
 	}
-	return util_escape(v->g->names[node], buf, cap, !v->utf8);
+	return util_escape(graph_name(v->g, node), buf, cap, !v->utf8);
 }
 
 void draw_bar(const struct view *v, WINDOW *w, int y, int x, int width, double f)

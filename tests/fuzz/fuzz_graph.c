@@ -51,7 +51,7 @@ static void check(const struct graph *g)
 			    !graph_has_edge(g, v, u))
 				__builtin_trap();
 		}
-		if (!g->names[u] || graph_find(g, g->names[u]) != (int64_t)u)
+		if (!graph_name(g, u) || graph_find(g, graph_name(g, u)) != (int64_t)u)
 			__builtin_trap();
 	}
 }

@@ -235,10 +235,10 @@ static void test_ids_follow_first_appearance(void **state)
 	const char *p = write_text("o.tsv", "z\ty\ny\tx\nw\tz\n");
 	struct graph *g = load(p, GRAPH_FORMAT_EDGES);
 	assert_non_null(g);
-	assert_string_equal(g->names[0], "z");
-	assert_string_equal(g->names[1], "y");
-	assert_string_equal(g->names[2], "x");
-	assert_string_equal(g->names[3], "w");
+	assert_string_equal(graph_name(g, 0), "z");
+	assert_string_equal(graph_name(g, 1), "y");
+	assert_string_equal(graph_name(g, 2), "x");
+	assert_string_equal(graph_name(g, 3), "w");
 	assert_string_equal(g->source, p);
 	graph_free(g);
 }
@@ -522,7 +522,7 @@ static void test_long_lines_work_up_to_the_limit(void **state)
 	struct graph *g = load(p, GRAPH_FORMAT_EDGES);
 	assert_non_null(g);
 	assert_int_equal(g->n, 3);
-	assert_int_equal(strlen(g->names[0]), big);
+	assert_int_equal(strlen(graph_name(g, 0)), big);
 	graph_free(g);
 	free(text);
 
@@ -644,7 +644,7 @@ static void test_large_input_reads_alike_from_file_gz_and_pipe(void **state)
 		assert_int_equal(g[k]->report.duplicates, dups);
 		assert_int_equal(g[k]->report.self_loops, loops);
 		assert_int_equal(g[k]->report.edges_read, N + 1 + dups + loops);
-		assert_int_equal(strlen(g[k]->names[N / 2 + 1]), longlen);
+		assert_int_equal(strlen(graph_name(g[k], N / 2 + 1)), longlen);
 		/* ids by first appearance: v0 .. v(N/2) come first, then the long
 		 * name, then v(N/2 + 1) onwards */
 		for (uint32_t i = 0; i < N; i++) {
@@ -1110,7 +1110,7 @@ static void test_from_pairs_cleans_like_loading(void **state)
 	assert_int_equal(g->report.duplicates, 2);
 	assert_int_equal(g->report.self_loops, 1);
 	assert_int_equal(g->report.isolated, 1);
-	assert_string_equal(g->names[3], "3");
+	assert_string_equal(graph_name(g, 3), "3");
 	assert_int_equal(graph_find(g, "2"), 2);
 	graph_free(g);
 
