@@ -50,14 +50,14 @@ struct group {
 	uint64_t size;  /* distinct nodes */
 };
 
+/* By key, then node, then position. */
 static int rec_cmp(const void *pa, const void *pb)
 {
 	const struct rec *a = pa, *b = pb;
-	if (a->key != b->key)
-		return a->key < b->key ? -1 : 1;
-	if (a->node != b->node)
-		return a->node < b->node ? -1 : 1;
-	return (a->pos > b->pos) - (a->pos < b->pos);
+	int c = (a->key > b->key) - (a->key < b->key);
+	if (c == 0)
+		c = (a->node > b->node) - (a->node < b->node);
+	return c ? c : (a->pos > b->pos) - (a->pos < b->pos);
 }
 
 static int group_cmp(const void *pa, const void *pb)
@@ -334,46 +334,9 @@ int cover_load(struct cover *out, const char *path, const struct graph *g)
 	return load(out, path, g, NULL);
 }
 
-/* A struct of its own, not a bare struct names, so that cover.h needs no
- * other header and the table may carry more one day. */
-struct cover_nodes {
-	struct names *t;
-};
-
-struct cover_nodes *cover_nodes_new(void)
+int cover_read(struct cover *out, const char *path, struct names *nodes)
 {
-	struct cover_nodes *t = util_calloc(1, sizeof *t);
-	if (!t)
-		return NULL;
-	t->t = names_new(0);
-	if (!t->t) {
-		free(t);
-		return NULL;
-	}
-	return t;
-}
-
-void cover_nodes_free(struct cover_nodes *t)
-{
-	if (!t)
-		return;
-	names_free(t->t);
-	free(t);
-}
-
-uint32_t cover_nodes_count(const struct cover_nodes *t)
-{
-	return names_count(t->t);
-}
-
-const char *cover_nodes_name(const struct cover_nodes *t, uint32_t id)
-{
-	return names_name(t->t, id);
-}
-
-int cover_read(struct cover *out, const char *path, struct cover_nodes *nodes)
-{
-	return load(out, path, NULL, nodes->t);
+	return load(out, path, NULL, nodes);
 }
 
 void cover_release(struct cover *c)

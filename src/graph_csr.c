@@ -96,18 +96,26 @@ struct csr_part {
 	int failed;
 };
 
+/* Start fetching, for writing, the counters of the two ids at pair q. A
+ * macro: GCC 12 drops the prefetches of an inline function. */
+#if defined(__GNUC__)
+#define prefetch_counters(cnt, q)                                              \
+	do {                                                                   \
+		__builtin_prefetch(&(cnt)[(q)[0]], 1);                          \
+		__builtin_prefetch(&(cnt)[(q)[1]], 1);                          \
+	} while (0)
+#else
+#define prefetch_counters(cnt, q) ((void)0)
+#endif
+
 static void csr_count(struct csr_part *c)
 {
 	uint64_t loops = 0, *cnt = c->cnt;
 	const uint32_t *p = c->pairs;
 	for (uint64_t i = c->p0; i < c->p1; i++) {
 		uint32_t a = p[2 * i], b = p[2 * i + 1];
-#if defined(__GNUC__)
-		if (i + CSR_PREFETCH < c->p1) {
-			__builtin_prefetch(&cnt[p[2 * (i + CSR_PREFETCH)]], 1);
-			__builtin_prefetch(&cnt[p[2 * (i + CSR_PREFETCH) + 1]], 1);
-		}
-#endif
+		if (i + CSR_PREFETCH < c->p1)
+			prefetch_counters(cnt, p + 2 * (i + CSR_PREFETCH));
 		uint64_t same = a == b;
 		loops += same;
 		cnt[a] += 1 - same;
@@ -123,12 +131,8 @@ static void csr_scatter(struct csr_part *c)
 	const uint32_t *p = c->pairs;
 	for (uint64_t i = c->p0; i < c->p1; i++) {
 		uint32_t a = p[2 * i], b = p[2 * i + 1];
-#if defined(__GNUC__)
-		if (i + CSR_PREFETCH < c->p1) {
-			__builtin_prefetch(&cur[p[2 * (i + CSR_PREFETCH)]], 1);
-			__builtin_prefetch(&cur[p[2 * (i + CSR_PREFETCH) + 1]], 1);
-		}
-#endif
+		if (i + CSR_PREFETCH < c->p1)
+			prefetch_counters(cur, p + 2 * (i + CSR_PREFETCH));
 		if (a == b)
 			continue;
 		adj[cur[a]++] = b;

@@ -1136,6 +1136,32 @@ static void test_from_pairs_cleans_like_loading(void **state)
 	graph_free(NULL);
 }
 
+static void test_with_edges_keeps_the_nodes_and_names(void **state)
+{
+	(void)state;
+	const char *const names[] = { "x", "y", "z", "w" };
+	struct graph *g = graph_from_pairs(4, (const uint32_t[]){ 0, 1, 1, 2 }, 2, names);
+	assert_non_null(g);
+	/* 2-3 twice and a loop: cleaned as by graph_from_pairs() */
+	struct graph *h = graph_with_edges(g, (const uint32_t[]){ 2, 3, 3, 2, 0, 0 }, 3);
+	assert_non_null(h);
+	assert_graph_sane(h);
+	assert_int_equal(h->n, 4);
+	assert_int_equal(h->m, 1);
+	assert_int_equal(h->report.duplicates, 1);
+	assert_int_equal(h->report.self_loops, 1);
+	for (uint32_t u = 0; u < 4; u++)
+		assert_string_equal(graph_name(h, u), names[u]);
+	assert_true(linked(h, "z", "w"));
+	assert_false(linked(h, "x", "y"));
+	capture_start();
+	assert_null(graph_with_edges(g, (const uint32_t[]){ 0, 4 }, 1)); /* id out of range */
+	capture_stop();
+	assert_int_equal(captured_count, 1);
+	graph_free(h);
+	graph_free(g);
+}
+
 static int cmp_u32(const void *a, const void *b)
 {
 	uint32_t x = *(const uint32_t *)a, y = *(const uint32_t *)b;
@@ -1388,6 +1414,7 @@ int main(int argc, char **argv)
 		cmocka_unit_test(test_fingerprint_is_stable_and_sees_one_edge),
 		cmocka_unit_test(test_find_and_has_edge),
 		cmocka_unit_test(test_from_pairs_cleans_like_loading),
+		cmocka_unit_test(test_with_edges_keeps_the_nodes_and_names),
 		cmocka_unit_test(test_long_rows_are_sorted_and_deduplicated),
 		cmocka_unit_test(test_format_names_parse_both_ways),
 		cmocka_unit_test(test_mutation_fuzz_loads_only_sane_graphs),
