@@ -15,10 +15,10 @@
  * "node<TAB>community..." naming no node is a header, so a result's
  * memberships.tsv (node, community, strength) reads as a cover; after that
  * header, node names are unescaped as result.c escapes them. Community
- * names are interned in a small hash table in order of first appearance,
- * which is then the key order, so the labels line up with the communities.
- * cover_read() interns node names in the same kind of table, shared by the
- * two covers coterie compare reads, so their ids agree.
+ * names are interned in a name table (names.h) in order of first
+ * appearance, which is then the key order, so the labels line up with the
+ * communities. cover_read() interns node names in another such table,
+ * shared by the two covers coterie compare reads, so their ids agree.
  *
  * The one thing a newcomer gets wrong: "first appearance" is the first
  * record of a key in input order, not the smallest node of the community;
@@ -34,6 +34,7 @@
 #include <string.h>
 
 #include "coterie/graph.h"
+#include "coterie/names.h"
 #include "coterie/util.h"
 
 struct rec {
@@ -49,14 +50,14 @@ struct group {
 	uint64_t size;  /* distinct nodes */
 };
 
+/* By key, then node, then position. */
 static int rec_cmp(const void *pa, const void *pb)
 {
 	const struct rec *a = pa, *b = pb;
-	if (a->key != b->key)
-		return a->key < b->key ? -1 : 1;
-	if (a->node != b->node)
-		return a->node < b->node ? -1 : 1;
-	return (a->pos > b->pos) - (a->pos < b->pos);
+	int c = (a->key > b->key) - (a->key < b->key);
+	if (c == 0)
+		c = (a->node > b->node) - (a->node < b->node);
+	return c ? c : (a->pos > b->pos) - (a->pos < b->pos);
 }
 
 static int group_cmp(const void *pa, const void *pb)
@@ -67,11 +68,11 @@ static int group_cmp(const void *pa, const void *pb)
 
 /*
  * Turn nrec records (taken: sorted and freed here) into a cover over n
- * nodes. names, when not NULL, gives the label of key i as names[i]
+ * nodes. names, when not NULL, gives the label of key i as its name i
  * (borrowed, copied); otherwise labels are the keys in decimal.
  */
 static int build(struct cover *out, uint32_t n, struct rec *r, uint64_t nrec,
-		 const char *const *names)
+		 const struct names *names)
 {
 	struct group *grp = NULL;
 	uint64_t ngrp = 0, total = 0;
@@ -125,7 +126,7 @@ static int build(struct cover *out, uint32_t n, struct rec *r, uint64_t nrec,
 				out->mem[at++] = r[i].node;
 		int64_t key = r[gp->start].key;
 		if (names) {
-			out->label[c] = util_strdup(names[key]);
+			out->label[c] = util_strdup(names_name(names, (uint32_t)key));
 		} else {
 			char buf[32];
 			snprintf(buf, sizeof buf, "%" PRId64, key);
@@ -181,71 +182,15 @@ int cover_from_pairs(struct cover *out, uint32_t n, const uint32_t *node,
 	return build(out, n, r, npairs, NULL);
 }
 
-/* Community names of a cover file, interned: name -> index in order of
- * first appearance, by open addressing (slots hold index + 1, 0 = free). */
-struct names {
-	char **name;
-	uint32_t count, cap;
-	uint32_t *slot;
-	uint64_t nslot; /* power of two */
-};
-
-static void names_release(struct names *t)
+/* The id of name s in t (borrowed, grown), added when new; -1 with error()
+ * on failure. what says what the names are, for the error of a full table. */
+static int64_t intern(struct names *t, const char *s, const char *what)
 {
-	for (uint32_t i = 0; i < t->count; i++)
-		free(t->name[i]);
-	free(t->name);
-	free(t->slot);
-}
-
-static int names_grow(struct names *t)
-{
-	uint64_t ns = t->nslot ? t->nslot * 2 : 64;
-	uint32_t *slot = util_calloc((size_t)ns, sizeof *slot);
-	if (!slot)
-		return -1;
-	for (uint32_t i = 0; i < t->count; i++) {
-		uint64_t h = util_fnv1a(UTIL_FNV_INIT, t->name[i], strlen(t->name[i]));
-		uint64_t j = h & (ns - 1);
-		while (slot[j])
-			j = (j + 1) & (ns - 1);
-		slot[j] = i + 1;
-	}
-	free(t->slot);
-	t->slot = slot;
-	t->nslot = ns;
-	return 0;
-}
-
-/* Index of s, added when new; -1 on failure. */
-static int64_t names_intern(struct names *t, const char *s)
-{
-	if ((uint64_t)t->count * 2 >= t->nslot && names_grow(t) < 0)
-		return -1;
-	size_t len = strlen(s);
-	uint64_t j = util_fnv1a(UTIL_FNV_INIT, s, len) & (t->nslot - 1);
-	while (t->slot[j]) {
-		uint32_t i = t->slot[j] - 1;
-		if (strcmp(t->name[i], s) == 0)
-			return i;
-		j = (j + 1) & (t->nslot - 1);
-	}
-	if (t->count == UINT32_MAX - 1)
-		return error("too many communities");
-	if (t->count == t->cap) {
-		uint32_t nc = t->cap ? (t->cap > UINT32_MAX / 2 ? UINT32_MAX - 1 : t->cap * 2) : 16;
-		char **nn = util_realloc(t->name, nc, sizeof *nn);
-		if (!nn)
-			return -1;
-		t->name = nn;
-		t->cap = nc;
-	}
-	char *copy = util_strdup(s);
-	if (!copy)
-		return -1;
-	t->name[t->count] = copy;
-	t->slot[j] = t->count + 1;
-	return t->count++;
+	int added;
+	int64_t id = names_intern(t, s, strlen(s), &added);
+	if (id == NAMES_FULL)
+		return error("too many %s", what);
+	return id;
 }
 
 static int blank(const char *s)
@@ -284,7 +229,7 @@ static void unescape_name(char *s)
  */
 static int load(struct cover *out, const char *path, const struct graph *g, struct names *nodes)
 {
-	struct names nm = { 0 };
+	struct names *nm = names_new(0);
 	struct rec *r = NULL;
 	uint64_t nrec = 0, cap = 0, lineno = 0, data = 0;
 	char *line = NULL;
@@ -294,10 +239,14 @@ static int load(struct cover *out, const char *path, const struct graph *g, stru
 	int rc = -1, escaped = 0;
 
 	memset(out, 0, sizeof *out);
+	if (!nm)
+		return -1;
 	util_escape(path, where, sizeof where, 0);
 	FILE *f = fopen(path, "r");
-	if (!f)
+	if (!f) {
+		names_free(nm);
 		return error("cannot open '%s': %s", where, strerror(errno));
+	}
 	errno = 0;
 	while ((len = getline(&line, &linecap, f)) >= 0) {
 		lineno++;
@@ -339,7 +288,7 @@ static int load(struct cover *out, const char *path, const struct graph *g, stru
 		}
 		if (escaped)
 			unescape_name(line);
-		int64_t u = g ? graph_find(g, line) : names_intern(nodes, line);
+		int64_t u = g ? graph_find(g, line) : intern(nodes, line, "nodes");
 		if (u < 0 && !g)
 			goto out;
 		if (u < 0) {
@@ -347,7 +296,7 @@ static int load(struct cover *out, const char *path, const struct graph *g, stru
 			      util_escape(line, what, sizeof what, 0));
 			goto out;
 		}
-		int64_t c = names_intern(&nm, comm);
+		int64_t c = intern(nm, comm, "communities");
 		if (c < 0)
 			goto out;
 		if (nrec == cap) {
@@ -370,13 +319,13 @@ static int load(struct cover *out, const char *path, const struct graph *g, stru
 		      lineno + 1);
 		goto out;
 	}
-	rc = build(out, g ? g->n : nodes->count, r, nrec, (const char *const *)nm.name);
+	rc = build(out, g ? g->n : names_count(nodes), r, nrec, nm);
 	r = NULL; /* taken by build() */
 out:
 	free(r);
 	free(line);
 	fclose(f);
-	names_release(&nm);
+	names_free(nm);
 	return rc;
 }
 
@@ -385,36 +334,9 @@ int cover_load(struct cover *out, const char *path, const struct graph *g)
 	return load(out, path, g, NULL);
 }
 
-struct cover_nodes {
-	struct names t;
-};
-
-struct cover_nodes *cover_nodes_new(void)
+int cover_read(struct cover *out, const char *path, struct names *nodes)
 {
-	return util_calloc(1, sizeof(struct cover_nodes));
-}
-
-void cover_nodes_free(struct cover_nodes *t)
-{
-	if (!t)
-		return;
-	names_release(&t->t);
-	free(t);
-}
-
-uint32_t cover_nodes_count(const struct cover_nodes *t)
-{
-	return t->t.count;
-}
-
-const char *cover_nodes_name(const struct cover_nodes *t, uint32_t id)
-{
-	return id < t->t.count ? t->t.name[id] : NULL;
-}
-
-int cover_read(struct cover *out, const char *path, struct cover_nodes *nodes)
-{
-	return load(out, path, NULL, &nodes->t);
+	return load(out, path, NULL, nodes);
 }
 
 void cover_release(struct cover *c)

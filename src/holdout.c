@@ -112,7 +112,7 @@ int holdout_split(struct holdout *h, const struct graph *g, double share, uint64
 		goto fail;
 	memcpy(all, he, 2 * ne * sizeof *all);
 	memcpy(all + 2 * ne, hn, 2 * nn * sizeof *all);
-	h->train = graph_from_pairs(g->n, keep, nk, (const char *const *)g->names);
+	h->train = graph_with_edges(g, keep, nk);
 	h->held = graph_from_pairs(g->n, all, ne + nn, NULL);
 	free(all);
 	free(keep);

@@ -825,14 +825,14 @@ static int fill_checkpoint(struct wfile *w, const void *arg)
 
 	uint64_t glen = 4 + 8 + (uint64_t)g->n * 4 + g->m * 8;
 	for (uint32_t u = 0; u < g->n; u++)
-		glen += strlen(g->names[u]);
+		glen += strlen(graph_name(g, u));
 	wf_section(w, "GRPH", glen);
 	wf_u32(w, g->n);
 	wf_u64(w, g->m);
 	for (uint32_t u = 0; u < g->n; u++) {
-		size_t len = strlen(g->names[u]);
+		size_t len = strlen(graph_name(g, u));
 		wf_u32(w, (uint32_t)len);
-		wf_write(w, g->names[u], len);
+		wf_write(w, graph_name(g, u), len);
 	}
 	uint64_t written = 0;
 	for (uint32_t u = 0; u < g->n; u++)
@@ -871,7 +871,7 @@ static int checkpoint_ok(const char *path, const struct graph *g, const struct f
 	if (s->ntrace > 0 && !s->trace)
 		return error("cannot write checkpoint '%s': the trace is missing", path);
 	for (uint32_t u = 0; u < g->n && !bad; u++)
-		if (strlen(g->names[u]) > UINT32_MAX)
+		if (strlen(graph_name(g, u)) > UINT32_MAX)
 			bad = "a node name is longer than 4 GiB";
 	if (!bad)
 		bad = check_params(p, why, sizeof why);
@@ -1512,7 +1512,7 @@ static int fill_memberships(struct wfile *w, const void *arg)
 		}
 		qsort(r, size, sizeof *r, cmp_ranked);
 		for (uint32_t j = 0; j < size; j++) {
-			wf_tsv_name(w, a->g->names[r[j].node]);
+			wf_tsv_name(w, graph_name(a->g, r[j].node));
 			wf_printf(w, "\t%" PRIu32 "\t%.6g\n", agm->comms[i].id, r[j].strength);
 		}
 	}
@@ -1589,9 +1589,9 @@ static void fill_link_rows(struct wfile *w, const struct links_args *a, const ui
 		uint32_t u = pairs[2 * i], v = pairs[2 * i + 1];
 		double x = model_dot(F->e + F->off[u], (uint32_t)(F->off[u + 1] - F->off[u]),
 				     F->e + F->off[v], (uint32_t)(F->off[v + 1] - F->off[v]));
-		wf_tsv_name(w, a->g->names[u]);
+		wf_tsv_name(w, graph_name(a->g, u));
 		wf_str(w, "\t");
-		wf_tsv_name(w, a->g->names[v]);
+		wf_tsv_name(w, graph_name(a->g, v));
 		wf_printf(w, "\t%d\t%.17g\n", edge, -expm1(-(x + a->qeps)));
 	}
 }

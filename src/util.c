@@ -12,6 +12,7 @@
 #include <stdint.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/mman.h>
 #include <time.h>
 #include <unistd.h>
 
@@ -287,4 +288,20 @@ int util_sync_dir(const char *dir)
 		rc = error("cannot sync folder '%s': %s", dir, strerror(errno));
 	close(fd);
 	return rc;
+}
+
+void util_advise_huge(void *p, size_t len)
+{
+#if defined(MADV_HUGEPAGE)
+	const uintptr_t huge = (uintptr_t)2 << 20;
+	if (len < 2 * huge)
+		return;
+	uintptr_t b = ((uintptr_t)p + huge - 1) & ~(huge - 1);
+	uintptr_t e = ((uintptr_t)p + len) & ~(huge - 1);
+	if (e > b)
+		madvise((void *)b, e - b, MADV_HUGEPAGE);
+#else
+	(void)p;
+	(void)len;
+#endif
 }

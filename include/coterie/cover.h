@@ -12,6 +12,8 @@
 
 #include <stdint.h>
 
+#include "coterie/names.h"
+
 struct graph;
 
 struct cover {
@@ -44,35 +46,26 @@ int cover_from_pairs(struct cover *out, uint32_t n, const uint32_t *node,
 int cover_load(struct cover *out, const char *path, const struct graph *g);
 
 /*
- * Node names of covers read without a graph (coterie compare): a table
- * that gives each new name the next id, 0, 1, 2, ... Two covers read into
- * the same table share ids; raise each one's n to cover_nodes_count()
- * after the last read so both cover the union of their nodes.
- */
-struct cover_nodes;
-/* NULL on failure; caller frees with cover_nodes_free(). */
-struct cover_nodes *cover_nodes_new(void);
-void cover_nodes_free(struct cover_nodes *t);
-uint32_t cover_nodes_count(const struct cover_nodes *t);
-/* The name of id (borrowed, valid until the table is freed), NULL when out
- * of range. */
-const char *cover_nodes_name(const struct cover_nodes *t, uint32_t id);
-
-/*
  * Read a cover file as cover_load() does, but with node names interned in
- * nodes (borrowed, grown) instead of looked up in a graph; out->n is the
- * table's count after the read. The first data line "node<TAB>community"
- * is always a header. After the header "node<TAB>community<TAB>strength"
- * of a result's memberships.tsv (cover_load() too), node names are
- * unescaped as result.c writes them (\t \n \r \\). A file with no
- * membership is an error naming the file. Returns 0 or -1.
+ * nodes (borrowed, grown: a table from names_new()) instead of looked up
+ * in a graph; new names get the next id, 0, 1, 2, ... Two covers read into
+ * the same table share ids; raise each one's n to names_count(nodes) after
+ * the last read so both cover the union of their nodes (coterie compare).
+ * out->n is the table's count after the read. The first data line
+ * "node<TAB>community" is always a header. After the header
+ * "node<TAB>community<TAB>strength" of a result's memberships.tsv
+ * (cover_load() too), node names are unescaped as result.c writes them
+ * (\t \n \r \\). A file with no membership is an error naming the file.
+ * Returns 0 or -1.
  */
-int cover_read(struct cover *out, const char *path, struct cover_nodes *nodes);
+int cover_read(struct cover *out, const char *path, struct names *nodes);
 
 /* Check the rules above (offsets, ids in range, rows strictly
  * increasing). Returns 0, or -1 with a message. */
 int cover_check(const struct cover *c);
 
+/* Free the contents of c and zero it; c itself is the caller's. NULL is a
+ * no-op. */
 void cover_release(struct cover *c);
 
 static inline uint32_t cover_size(const struct cover *c, uint32_t i)

@@ -6,8 +6,8 @@
  *   - off[0] == 0, off[n] == 2 * m, off is non-decreasing;
  *   - adj[off[u] .. off[u+1]) holds u's neighbours, strictly increasing,
  *     never u itself; v is in u's row exactly when u is in v's row;
- *   - names[u] is a NUL-terminated string, distinct for distinct u;
- *     graph_find(g, names[u]) == u.
+ *   - graph_name(g, u) is a NUL-terminated string, distinct for distinct
+ *     u; graph_find(g, graph_name(g, u)) == u.
  * Node ids are 32-bit: a graph with 2^32 - 1 nodes or more is refused.
  * Ids are given in order of first appearance in the file.
  */
@@ -36,15 +36,14 @@ struct graph_report {
 	int directed_input;        /* the file declared a directed graph */
 };
 
-struct nametable; /* opaque: name -> id hash map */
+struct names; /* the node names, both ways: graph_name(), graph_find() */
 
 struct graph {
 	uint32_t n;        /* nodes */
 	uint64_t m;        /* undirected edges, each counted once */
 	uint64_t *off;     /* n + 1 row offsets */
 	uint32_t *adj;     /* 2 * m neighbour ids */
-	char **names;      /* n names; point into the graph's own storage */
-	struct nametable *index;
+	struct names *names; /* private to graph*.c: use graph_name(), graph_find() */
 	struct graph_report report;
 	char *source;      /* the path it was loaded from ("-" for stdin) */
 };
@@ -52,6 +51,7 @@ struct graph {
 /* Parse a --format value ("edges", "gml", "graphml", "pajek", "auto").
  * Returns 0, or -1 (with error()) for an unknown name. */
 int graph_format_parse(const char *s, enum graph_format *out);
+/* The name of a format ("edges", ...; "unknown" out of range), static. */
 const char *graph_format_name(enum graph_format f);
 
 /*
@@ -72,6 +72,14 @@ struct graph *graph_load(const char *path, enum graph_format fmt);
 struct graph *graph_from_pairs(uint32_t n, const uint32_t *pairs, uint64_t npairs,
 			       const char *const *names);
 
+/*
+ * A graph on the nodes of g (borrowed: same n, ids and names) with other
+ * edges: npairs id pairs (borrowed, ids < g->n), cleaned as by
+ * graph_from_pairs(). Caller frees with graph_free(); NULL on failure.
+ */
+struct graph *graph_with_edges(const struct graph *g, const uint32_t *pairs, uint64_t npairs);
+
+/* Free g and everything it holds. graph_free(NULL) is a no-op. */
 void graph_free(struct graph *g);
 
 static inline uint32_t graph_degree(const struct graph *g, uint32_t u)
@@ -79,6 +87,8 @@ static inline uint32_t graph_degree(const struct graph *g, uint32_t u)
 	return (uint32_t)(g->off[u + 1] - g->off[u]);
 }
 
+/* The name of node u < g->n (borrowed, valid until graph_free()). */
+const char *graph_name(const struct graph *g, uint32_t u);
 /* Id of a node by exact name, or -1. */
 int64_t graph_find(const struct graph *g, const char *name);
 /* 1 when u and v are linked (binary search of the shorter row). */

@@ -77,4 +77,9 @@ size_t util_lower_bound_u32(const uint32_t *x, size_t n, uint32_t v);
  * with a message. */
 int util_sync_dir(const char *dir);
 
+/* Ask for transparent huge pages on a large block p[0..len) (borrowed)
+ * that is accessed at random: fewer TLB misses. Only the 2 MiB-aligned
+ * middle is advised; failure is harmless, so nothing is returned. */
+void util_advise_huge(void *p, size_t len);
+
 #endif

@@ -169,7 +169,7 @@ int cmd_compare(int argc, char **argv)
 	}
 
 	struct side *t = calloc(1, sizeof *t), *f = calloc(1, sizeof *f);
-	struct cover_nodes *nodes = cover_nodes_new();
+	struct names *nodes = names_new(0);
 	int rc = 1;
 	if (!t || !f || !nodes) {
 		error("out of memory");
@@ -179,7 +179,7 @@ int cmd_compare(int argc, char **argv)
 		goto out;
 	if (cover_read(&t->c, t->path, nodes) || cover_read(&f->c, f->path, nodes))
 		goto out;
-	uint32_t n = cover_nodes_count(nodes);
+	uint32_t n = names_count(nodes);
 	t->c.n = f->c.n = n; /* both over the union of the nodes */
 
 	struct scores sc;
@@ -213,6 +213,6 @@ out:
 		cover_release(&f->c);
 	free(t);
 	free(f);
-	cover_nodes_free(nodes);
+	names_free(nodes);
 	return rc;
 }

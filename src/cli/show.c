@@ -295,7 +295,7 @@ static int show_node(const struct show *s, const char *name)
 		for (size_t i = 0; i < n; i++)
 			json_array_append_new(list, jaffil(&nv.affil[i]));
 		rc = cli_json_print(json_pack("{s:o s:o s:o s:o s:o s:o s:o s:o s:o}",
-			"node", cli_json_str(g->names[u]), "id", jint(u),
+			"node", cli_json_str(graph_name(g, u)), "id", jint(u),
 			"degree", jint(nv.degree), "memberships", jint(nv.nmember),
 			"naffiliations", jint(nv.naffil), "unexplained", jint(nv.unexplained),
 			"delta", cli_json_real(s->delta), "min_links", cli_json_real(AGM_MIN_LINKS),
@@ -305,7 +305,7 @@ static int show_node(const struct show *s, const char *name)
 	}
 
 	char buf[NAME_CAP];
-	printf("node         %s\n", esc(s, g->names[u], buf));
+	printf("node         %s\n", esc(s, graph_name(g, u), buf));
 	printf("degree       %" PRIu32 "\n", nv.degree);
 	printf("memberships  %" PRIu32 " (strength %.6g or more and %g links, or half the degree)\n",
 	       nv.nmember, s->delta, AGM_MIN_LINKS);
@@ -375,7 +375,7 @@ static int show_community(const struct show *s, uint32_t id)
 		json_t *list = json_array();
 		for (size_t i = 0; i < n; i++)
 			json_array_append_new(list, json_pack("{s:o s:o}",
-				"node", cli_json_str(g->names[order[i]]),
+				"node", cli_json_str(graph_name(g, order[i])),
 				"strength", cli_json_real(str[i])));
 		json_object_set_new(root, "members", list);
 		rc = cli_json_print(root);
@@ -392,7 +392,7 @@ static int show_community(const struct show *s, uint32_t id)
 		char buf[NAME_CAP];
 		for (size_t i = 0; i < n; i++)
 			printf("  %*zu  %10.4f  %s\n", wr, i + 1, str[i],
-			       esc(s, g->names[order[i]], buf));
+			       esc(s, graph_name(g, order[i]), buf));
 		more_note(size, n);
 	}
 	free(order);
@@ -430,12 +430,12 @@ static int show_pairs(const struct show *s, uint32_t id, int missing)
 		for (size_t i = 0; i < n; i++) {
 			json_t *o = json_object();
 			if (missing) {
-				json_object_set_new(o, "u", cli_json_str(g->names[p[i].u]));
-				json_object_set_new(o, "v", cli_json_str(g->names[p[i].v]));
+				json_object_set_new(o, "u", cli_json_str(graph_name(g, p[i].u)));
+				json_object_set_new(o, "v", cli_json_str(graph_name(g, p[i].v)));
 			} else {
 				int64_t e = inspect_explaining_community(F, p[i].u, p[i].v);
-				json_object_set_new(o, "member", cli_json_str(g->names[p[i].u]));
-				json_object_set_new(o, "other", cli_json_str(g->names[p[i].v]));
+				json_object_set_new(o, "member", cli_json_str(graph_name(g, p[i].u)));
+				json_object_set_new(o, "other", cli_json_str(graph_name(g, p[i].v)));
 				json_object_set_new(o, "explained_by",
 						    e < 0 ? json_null() : jint((uint64_t)e));
 			}
@@ -468,7 +468,7 @@ static int show_pairs(const struct show *s, uint32_t id, int missing)
 	char b1[NAME_CAP], b2[NAME_CAP];
 	int wn = 4;
 	for (size_t i = 0; i < n; i++)
-		wn = maxi(wn, text_width(esc(s, g->names[p[i].u], b1), s->ascii));
+		wn = maxi(wn, text_width(esc(s, graph_name(g, p[i].u), b1), s->ascii));
 	if (wn > NAME_COL_MAX)
 		wn = NAME_COL_MAX;
 	int wr = maxi(4, digits(n));
@@ -490,8 +490,8 @@ static int show_pairs(const struct show *s, uint32_t id, int missing)
 			else
 				printf("%12" PRId64 "  ", e);
 		}
-		put_padded(esc(s, g->names[p[i].u], b1), wn, s->ascii);
-		printf("  %s\n", esc(s, g->names[p[i].v], b2));
+		put_padded(esc(s, graph_name(g, p[i].u), b1), wn, s->ascii);
+		printf("  %s\n", esc(s, graph_name(g, p[i].v), b2));
 	}
 	more_note(total, n);
 	free(p);
@@ -518,7 +518,7 @@ static int show_edge(const struct show *s, const char *na, const char *nb)
 		for (size_t i = 0; i < n; i++)
 			json_array_append_new(list, jshare(&e.share[i]));
 		rc = cli_json_print(json_pack("{s:o s:o s:b s:o s:o s:o s:o s:o s:o}",
-			"a", cli_json_str(g->names[u]), "b", cli_json_str(g->names[v]),
+			"a", cli_json_str(graph_name(g, u)), "b", cli_json_str(graph_name(g, v)),
 			"linked", e.linked, "dot", cli_json_real(e.x), "prob", cli_json_real(e.prob),
 			"prob_communities", cli_json_real(e.prob_comms),
 			"agm_prob", cli_json_real(e.agm_prob), "epsilon", cli_json_real(s->ck.epsilon),
@@ -527,7 +527,7 @@ static int show_edge(const struct show *s, const char *na, const char *nb)
 		return rc;
 	}
 	char b1[NAME_CAP], b2[NAME_CAP];
-	printf("pair         %s -- %s\n", esc(s, g->names[u], b1), esc(s, g->names[v], b2));
+	printf("pair         %s -- %s\n", esc(s, graph_name(g, u), b1), esc(s, graph_name(g, v), b2));
 	printf("linked       %s\n", e.linked ? "yes, an edge" : "no");
 	printf("probability  %.6g  the model, 1 - exp(-(F_a.F_b + qeps)), background included\n",
 	       e.prob);
@@ -589,8 +589,8 @@ static int show_links(const struct show *s)
 			i++;
 			if (s->json) {
 				json_t *o = json_object();
-				json_object_set_new(o, "a", cli_json_str(g->names[u]));
-				json_object_set_new(o, "b", cli_json_str(g->names[v]));
+				json_object_set_new(o, "a", cli_json_str(graph_name(g, u)));
+				json_object_set_new(o, "b", cli_json_str(graph_name(g, v)));
 				json_object_set_new(o, "prob", cli_json_real(p));
 				json_object_set_new(o, "explained_by",
 						    c < 0 ? json_null() : jint((uint64_t)c));
@@ -602,7 +602,7 @@ static int show_links(const struct show *s)
 				printf("%12s  ", "none");
 			else
 				printf("%12" PRId64 "  ", c);
-			printf("%s  %s\n", esc(s, g->names[u], b1), esc(s, g->names[v], b2));
+			printf("%s  %s\n", esc(s, graph_name(g, u), b1), esc(s, graph_name(g, v), b2));
 		}
 	if (s->json) {
 		json_object_set_new(root, "edges", list);

@@ -88,7 +88,7 @@ int find_step(struct view *v)
 	uint32_t end = v->g->n - v->scan_next > FIND_SCAN_STEP ? v->scan_next + FIND_SCAN_STEP
 							       : v->g->n;
 	for (uint32_t u = v->scan_next; u < end; u++) {
-		int r = match_rank(v->g->names[u], v->query, v->qlen);
+		int r = match_rank(graph_name(v->g, u), v->query, v->qlen);
 		if (r >= 0) {
 			v->nfound++;
 			keep(v, u, r);

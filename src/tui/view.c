@@ -418,7 +418,7 @@ const char *view_node_name(const struct view *v, uint32_t node, char *buf, size_
 		snprintf(buf, cap, "?");
 		return buf;
 	}
-	return util_escape(v->g->names[node], buf, cap, !v->utf8);
+	return util_escape(graph_name(v->g, node), buf, cap, !v->utf8);
 }
 
 /* ---- caches ---- */

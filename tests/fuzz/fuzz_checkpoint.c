@@ -70,7 +70,7 @@ static void check(const struct checkpoint *ck)
 			if (v >= g->n || v == u || (i > g->off[u] && g->adj[i - 1] >= v))
 				__builtin_trap();
 		}
-		if (!g->names[u] || graph_find(g, g->names[u]) != (int64_t)u)
+		if (!graph_name(g, u) || graph_find(g, graph_name(g, u)) != (int64_t)u)
 			__builtin_trap();
 	}
 	if (ck->params.k < 1 || ck->params.k > MODEL_MAX_K || ck->params.starts < 1 ||

@@ -8,7 +8,7 @@
  * Build and run (clang with libFuzzer), from the top folder:
  *   clang -std=c11 -D_POSIX_C_SOURCE=200809L -D_DEFAULT_SOURCE -g -O1 \
  *     -fsanitize=fuzzer,address,undefined -Iinclude $(pkg-config --cflags igraph) \
- *     tests/fuzz/fuzz_graph.c src/graph.c src/util.c \
+ *     tests/fuzz/fuzz_graph.c src/graph*.c src/names.c src/util.c \
  *     $(pkg-config --libs igraph zlib) -lm -o build/fuzz_graph
  *   mkdir -p build/fuzz-corpus && ./build/fuzz_graph -max_total_time=60 build/fuzz-corpus
  * Temporary files go to $TMPDIR (default /tmp).
@@ -51,7 +51,7 @@ static void check(const struct graph *g)
 			    !graph_has_edge(g, v, u))
 				__builtin_trap();
 		}
-		if (!g->names[u] || graph_find(g, g->names[u]) != (int64_t)u)
+		if (!graph_name(g, u) || graph_find(g, graph_name(g, u)) != (int64_t)u)
 			__builtin_trap();
 	}
 }

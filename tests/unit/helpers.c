@@ -29,8 +29,8 @@ void assert_graph_sane(const struct graph *g)
 				assert_true(g->adj[i - 1] < v);
 			assert_true(graph_has_edge(g, v, u));
 		}
-		assert_non_null(g->names[u]);
-		assert_int_equal(graph_find(g, g->names[u]), u);
+		assert_non_null(graph_name(g, u));
+		assert_int_equal(graph_find(g, graph_name(g, u)), u);
 	}
 }
 

@@ -230,19 +230,19 @@ static void test_read_shares_node_ids_between_files(void **state)
 	char pa[4096];
 	snprintf(pa, sizeof pa, "%s", test_write_file(dir, "a.tsv", "x\tred\ny\tred\r\nz\tblue\n"));
 	const char *pb = test_write_file(dir, "b.tsv", "# found\nw\t1\nz\t1\nx\t2\n");
-	struct cover_nodes *nodes = cover_nodes_new();
+	struct names *nodes = names_new(0);
 	assert_non_null(nodes);
 	struct cover a, b;
 	assert_int_equal(cover_read(&a, pa, nodes), 0);
 	assert_int_equal(a.n, 3);
 	assert_int_equal(cover_read(&b, pb, nodes), 0);
 	assert_int_equal(b.n, 4);
-	assert_int_equal(cover_nodes_count(nodes), 4);
-	assert_string_equal(cover_nodes_name(nodes, 0), "x");
-	assert_string_equal(cover_nodes_name(nodes, 1), "y"); /* CR removed */
-	assert_string_equal(cover_nodes_name(nodes, 3), "w");
-	assert_null(cover_nodes_name(nodes, 4));
-	a.n = b.n = cover_nodes_count(nodes);
+	assert_int_equal(names_count(nodes), 4);
+	assert_string_equal(names_name(nodes, 0), "x");
+	assert_string_equal(names_name(nodes, 1), "y"); /* CR removed */
+	assert_string_equal(names_name(nodes, 3), "w");
+	assert_null(names_name(nodes, 4));
+	a.n = b.n = names_count(nodes);
 	assert_cover_sane(&a);
 	assert_cover_sane(&b);
 	assert_members(&a, 0, (const uint32_t[]){ 0, 1 }, 2);
@@ -250,7 +250,7 @@ static void test_read_shares_node_ids_between_files(void **state)
 	assert_members(&b, 1, (const uint32_t[]){ 0 }, 1);
 	cover_release(&a);
 	cover_release(&b);
-	cover_nodes_free(nodes);
+	names_free(nodes);
 	test_rmtree(dir);
 }
 
@@ -268,11 +268,11 @@ static void test_read_keeps_hostile_names_and_unescapes_memberships(void **state
 	memset(text, 'n', L);
 	snprintf(text + L, 64, "\tc\n\xff\xfe\x1b[2J\tc\n");
 	const char *p = test_write_file(dir, "odd.tsv", text);
-	struct cover_nodes *nodes = cover_nodes_new();
+	struct names *nodes = names_new(0);
 	struct cover c;
 	assert_int_equal(cover_read(&c, p, nodes), 0);
-	assert_int_equal(strlen(cover_nodes_name(nodes, 0)), L);
-	assert_string_equal(cover_nodes_name(nodes, 1), "\xff\xfe\x1b[2J");
+	assert_int_equal(strlen(names_name(nodes, 0)), L);
+	assert_string_equal(names_name(nodes, 1), "\xff\xfe\x1b[2J");
 	cover_release(&c);
 
 	p = test_write_file(dir, "memberships.tsv",
@@ -281,17 +281,17 @@ static void test_read_keeps_hostile_names_and_unescapes_memberships(void **state
 			    "c\\\\d\\n\t0\t1\n"
 			    "e\\x\t0\t1\n");
 	assert_int_equal(cover_read(&c, p, nodes), 0);
-	assert_string_equal(cover_nodes_name(nodes, 2), "a\tb");
-	assert_string_equal(cover_nodes_name(nodes, 3), "c\\d\n");
-	assert_string_equal(cover_nodes_name(nodes, 4), "e\\x");
+	assert_string_equal(names_name(nodes, 2), "a\tb");
+	assert_string_equal(names_name(nodes, 3), "c\\d\n");
+	assert_string_equal(names_name(nodes, 4), "e\\x");
 	cover_release(&c);
 
 	/* a plain cover file is read as bytes: no unescaping */
 	p = test_write_file(dir, "plain.tsv", "node\tcommunity\na\\tb\t0\n");
 	assert_int_equal(cover_read(&c, p, nodes), 0);
-	assert_string_equal(cover_nodes_name(nodes, 5), "a\\tb");
+	assert_string_equal(names_name(nodes, 5), "a\\tb");
 	cover_release(&c);
-	cover_nodes_free(nodes);
+	names_free(nodes);
 	free(text);
 	test_rmtree(dir);
 }
@@ -302,7 +302,7 @@ static void test_read_refuses_a_file_without_memberships(void **state)
 {
 	(void)state;
 	const char *dir = test_tmpdir();
-	struct cover_nodes *nodes = cover_nodes_new();
+	struct names *nodes = names_new(0);
 	struct cover c;
 	const char *p = test_write_file(dir, "empty.tsv", "");
 	assert_int_equal(cover_read(&c, p, nodes), -1);
@@ -313,7 +313,7 @@ static void test_read_refuses_a_file_without_memberships(void **state)
 	p = test_write_file(dir, "bad.tsv", "a\tb\nc d\n");
 	assert_int_equal(cover_read(&c, p, nodes), -1);
 	assert_non_null(strstr(last_msg, "bad.tsv:2: expected node<TAB>community"));
-	cover_nodes_free(nodes);
+	names_free(nodes);
 	test_rmtree(dir);
 }
 

@@ -235,10 +235,10 @@ static void test_ids_follow_first_appearance(void **state)
 	const char *p = write_text("o.tsv", "z\ty\ny\tx\nw\tz\n");
 	struct graph *g = load(p, GRAPH_FORMAT_EDGES);
 	assert_non_null(g);
-	assert_string_equal(g->names[0], "z");
-	assert_string_equal(g->names[1], "y");
-	assert_string_equal(g->names[2], "x");
-	assert_string_equal(g->names[3], "w");
+	assert_string_equal(graph_name(g, 0), "z");
+	assert_string_equal(graph_name(g, 1), "y");
+	assert_string_equal(graph_name(g, 2), "x");
+	assert_string_equal(graph_name(g, 3), "w");
 	assert_string_equal(g->source, p);
 	graph_free(g);
 }
@@ -522,7 +522,7 @@ static void test_long_lines_work_up_to_the_limit(void **state)
 	struct graph *g = load(p, GRAPH_FORMAT_EDGES);
 	assert_non_null(g);
 	assert_int_equal(g->n, 3);
-	assert_int_equal(strlen(g->names[0]), big);
+	assert_int_equal(strlen(graph_name(g, 0)), big);
 	graph_free(g);
 	free(text);
 
@@ -644,7 +644,7 @@ static void test_large_input_reads_alike_from_file_gz_and_pipe(void **state)
 		assert_int_equal(g[k]->report.duplicates, dups);
 		assert_int_equal(g[k]->report.self_loops, loops);
 		assert_int_equal(g[k]->report.edges_read, N + 1 + dups + loops);
-		assert_int_equal(strlen(g[k]->names[N / 2 + 1]), longlen);
+		assert_int_equal(strlen(graph_name(g[k], N / 2 + 1)), longlen);
 		/* ids by first appearance: v0 .. v(N/2) come first, then the long
 		 * name, then v(N/2 + 1) onwards */
 		for (uint32_t i = 0; i < N; i++) {
@@ -1110,7 +1110,7 @@ static void test_from_pairs_cleans_like_loading(void **state)
 	assert_int_equal(g->report.duplicates, 2);
 	assert_int_equal(g->report.self_loops, 1);
 	assert_int_equal(g->report.isolated, 1);
-	assert_string_equal(g->names[3], "3");
+	assert_string_equal(graph_name(g, 3), "3");
 	assert_int_equal(graph_find(g, "2"), 2);
 	graph_free(g);
 
@@ -1134,6 +1134,32 @@ static void test_from_pairs_cleans_like_loading(void **state)
 	capture_stop();
 	assert_int_equal(captured_count, 2);
 	graph_free(NULL);
+}
+
+static void test_with_edges_keeps_the_nodes_and_names(void **state)
+{
+	(void)state;
+	const char *const names[] = { "x", "y", "z", "w" };
+	struct graph *g = graph_from_pairs(4, (const uint32_t[]){ 0, 1, 1, 2 }, 2, names);
+	assert_non_null(g);
+	/* 2-3 twice and a loop: cleaned as by graph_from_pairs() */
+	struct graph *h = graph_with_edges(g, (const uint32_t[]){ 2, 3, 3, 2, 0, 0 }, 3);
+	assert_non_null(h);
+	assert_graph_sane(h);
+	assert_int_equal(h->n, 4);
+	assert_int_equal(h->m, 1);
+	assert_int_equal(h->report.duplicates, 1);
+	assert_int_equal(h->report.self_loops, 1);
+	for (uint32_t u = 0; u < 4; u++)
+		assert_string_equal(graph_name(h, u), names[u]);
+	assert_true(linked(h, "z", "w"));
+	assert_false(linked(h, "x", "y"));
+	capture_start();
+	assert_null(graph_with_edges(g, (const uint32_t[]){ 0, 4 }, 1)); /* id out of range */
+	capture_stop();
+	assert_int_equal(captured_count, 1);
+	graph_free(h);
+	graph_free(g);
 }
 
 static int cmp_u32(const void *a, const void *b)
@@ -1388,6 +1414,7 @@ int main(int argc, char **argv)
 		cmocka_unit_test(test_fingerprint_is_stable_and_sees_one_edge),
 		cmocka_unit_test(test_find_and_has_edge),
 		cmocka_unit_test(test_from_pairs_cleans_like_loading),
+		cmocka_unit_test(test_with_edges_keeps_the_nodes_and_names),
 		cmocka_unit_test(test_long_rows_are_sorted_and_deduplicated),
 		cmocka_unit_test(test_format_names_parse_both_ways),
 		cmocka_unit_test(test_mutation_fuzz_loads_only_sane_graphs),

@@ -91,7 +91,7 @@ static void test_split_holds_out_the_share_asked_and_as_many_non_edges(void **st
 				assert_false(graph_has_edge(h.held, u, h.train->adj[i]));
 			}
 		/* the names travel with the training graph */
-		assert_string_equal(h.train->names[g->n - 1], g->names[g->n - 1]);
+		assert_string_equal(graph_name(h.train, g->n - 1), graph_name(g, g->n - 1));
 		holdout_release(&h);
 		graph_free(g);
 	}

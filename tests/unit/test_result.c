@@ -872,7 +872,7 @@ static void test_checkpoint_round_trip_keeps_every_field(void **state)
 	assert_int_equal(ck.graph->n, N);
 	assert_int_equal(ck.graph->m, NPAIRS);
 	for (uint32_t u = 0; u < N; u++)
-		assert_string_equal(ck.graph->names[u], node_names[u]);
+		assert_string_equal(graph_name(ck.graph, u), node_names[u]);
 	for (uint32_t i = 0; i < NPAIRS; i++)
 		assert_true(graph_has_edge(ck.graph, pairs[2 * i], pairs[2 * i + 1]));
 

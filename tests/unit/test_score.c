@@ -702,18 +702,18 @@ static void test_plain_nmi_matches_scikit_learn(void **state)
 		snprintf(pa, sizeof pa, "%s", test_data(rel));
 		snprintf(rel, sizeof rel, "nmi/%s.b.tsv", name);
 		snprintf(pb, sizeof pb, "%s", test_data(rel));
-		struct cover_nodes *nodes = cover_nodes_new();
+		struct names *nodes = names_new(0);
 		struct cover a, b;
 		assert_non_null(nodes);
 		assert_int_equal(cover_read(&a, pa, nodes), 0);
 		assert_int_equal(cover_read(&b, pb, nodes), 0);
-		a.n = b.n = cover_nodes_count(nodes);
+		a.n = b.n = names_count(nodes);
 		double got = -1;
 		assert_int_equal(score_nmi(&a, &b, &got), 1);
 		assert_true(fabs(got - want) < 1e-9); /* scikit-learn 1.2.1, see above */
 		cover_release(&a);
 		cover_release(&b);
-		cover_nodes_free(nodes);
+		names_free(nodes);
 		cases++;
 	}
 	fclose(f);

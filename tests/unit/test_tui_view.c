@@ -263,7 +263,7 @@ static void test_view_node_name_is_escaped_and_guards_the_range(void **state)
 	struct view *v = &((struct fixture *)*state)->v;
 	char buf[64];
 	assert_string_equal(view_node_name(v, v->g->n, buf, sizeof buf), "?");
-	assert_string_equal(view_node_name(v, 0, buf, sizeof buf), v->g->names[0]);
+	assert_string_equal(view_node_name(v, 0, buf, sizeof buf), graph_name(v->g, 0));
 }
 
 static void test_view_unsaved_until_written(void **state)
