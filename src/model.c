@@ -1,6 +1,7 @@
 /*
  * model: strengths as sparse rows, the log-likelihood, and one node's
- * projected gradient step.
+ * projected gradient step; model_objective() hands them to the sweep
+ * engine through the seam of objective.h.
  *
  * The idea: the non-edge part of a row's objective would cost O(n), but
  *     sum_{v not in N(u), v != u} F_v = colsum - F_u - sum_{v in N(u)} F_v
@@ -14,13 +15,11 @@
  * Sparsity: the projection sends strengths below MODEL_FLOOR * delta to 0,
  * not only negative ones. In the first sweeps an empty row next to many
  * communities sees a large positive gradient for every one of them (the
- * weight 1/expm1(x) is about 1/epsilon at x ~ 0), and the plain projection
- * filled rows with dozens of tiny strengths that later sweeps remove
- * again: on a 200,000-node graph with k = 4000 that peaked at 770 MB.
- * With the floor at a tenth of the membership threshold it peaks at
- * 450 MB, runs faster, and the memberships are those strengths could
- * never reach anyway; the likelihood reached is a little lower (-0.81e6
- * against -0.80e6 on email-Enron at k = 100).
+ * weight 1/expm1(x) is about 1/epsilon at x ~ 0); the plain projection
+ * filled rows with dozens of tiny strengths that later sweeps removed
+ * again. The floor keeps rows sparse (less memory, faster sweeps) at the
+ * price of a slightly lower likelihood; the memberships lost are of
+ * strengths far below the threshold delta (figures in DEVELOPERS.md).
  *
  * The one thing a newcomer gets wrong: colsum includes u's own current
  * row. The "others" sum must subtract the current row, not the trial one.
@@ -32,6 +31,7 @@
 #include <string.h>
 
 #include "coterie/graph.h"
+#include "coterie/objective.h"
 #include "coterie/util.h"
 
 #define ARMIJO_SIGMA 1e-4
@@ -54,10 +54,15 @@ double model_default_epsilon(const struct graph *g)
 	return eps;
 }
 
+double model_qeps(double epsilon)
+{
+	return -log1p(-epsilon);
+}
+
 static void set_epsilon(struct model *m, double epsilon)
 {
 	m->epsilon = epsilon;
-	m->qeps = -log1p(-epsilon);
+	m->qeps = model_qeps(epsilon);
 	m->delta = sqrt(m->qeps);
 	m->floor = MODEL_FLOOR * m->delta;
 }
@@ -490,7 +495,9 @@ static int grow_scratch(struct model_work *w, uint32_t deg)
 	return 1;
 }
 
-/* gather() and gradient() in one pass over the neighbour rows: each row
+/* The candidates, the neighbour sum and the gradient in one pass over the
+ * neighbour rows (the two-pass form, gather() then a second pass, is the
+ * reference in tests/unit/test_model.c): each row
  * is read once for the candidates, the neighbour sum and the dot product,
  * and once more (from L1) to scatter its share of the gradient. The sums
  * run in the same order as in the two-pass form, so the results are the
@@ -605,49 +612,10 @@ static double gather_gradient(const struct model *m, const struct graph *g, uint
 	return f;
 }
 
-/* Gradient at the current row over the candidates into w->acc; also
- * returns the objective at the current row. */
-static double gradient(const struct model *m, const struct graph *g, uint32_t u,
-		       struct model_work *w)
-{
-	uint32_t deg = graph_degree(g, u);
-	grow_scratch(w, deg);
-	double f = 0.0;
-	for (uint32_t i = 0; i < deg; i++) {
-		const struct frow *rv = &m->rows[g->adj[g->off[u] + i]];
-		double x = dense_dot(w->cur, rv) + m->qeps;
-		/* one expm1 gives both the weight and the objective's term:
-		 * 1 - e^-x = em / (em + 1), so log(1 - e^-x) = -log1p(1 / em) */
-		double wt = 1.0 / expm1(x > X_FLOOR ? x : X_FLOOR);
-		f -= log1p(wt);
-		if (w->wv_cap >= deg) {
-			w->wv[i] = wt;
-		} else { /* no scratch: accumulate directly */
-			for (uint32_t j = 0; j < rv->nnz; j++)
-				w->acc[rv->e[j].c] += rv->e[j].v * wt;
-		}
-	}
-	if (w->wv_cap >= deg)
-		for (uint32_t i = 0; i < deg; i++) {
-			const struct frow *rv = &m->rows[g->adj[g->off[u] + i]];
-			double wt = w->wv[i];
-			for (uint32_t j = 0; j < rv->nnz; j++)
-				w->acc[rv->e[j].c] += rv->e[j].v * wt;
-		}
-	for (uint32_t i = 0; i < w->ncand; i++) {
-		uint32_t c = w->cand[i];
-		double others = m->colsum[c] - w->cur[c] - w->nbrsum[c];
-		w->acc[c] -= others;
-		f -= w->cur[c] * others;
-	}
-	return f;
-}
-
 void model_row_gradient(const struct model *m, const struct graph *g, uint32_t u,
 			struct model_work *w, double *grad)
 {
-	gather(m, g, u, w);
-	gradient(m, g, u, w);
+	gather_gradient(m, g, u, w);
 	/* outside the candidates the gradient is -(colsum - F_u - nbrsum) = -colsum */
 	for (uint32_t c = 0; c < m->k; c++)
 		grad[c] = -m->colsum[c];
@@ -772,11 +740,8 @@ int model_update_row(const struct model *m, const struct graph *g, uint32_t u,
 			w->dv[i] = dense_dot(w->dir, &m->rows[adj[i]]);
 		w->visits += deg;
 	}
-	/* Plain backtracking from the reach limit. (Starting instead near the
-	 * Cauchy step gdir / curv and searching up or down needs 2.6 trials a
-	 * row instead of 5.8 on the 100,000-node bench graph, but the larger
-	 * accepted steps of the search from above level off higher: -818853
-	 * against -831012 on email-Enron at k = 100 without refinement.) */
+	/* Plain backtracking from the reach limit (a search from near the
+	 * Cauchy step needs fewer trials but levels off lower: DEVELOPERS.md) */
 	for (int t = 0; t < ARMIJO_TRIES; t++, step *= 0.5) {
 		int moved;
 		double gd;
@@ -817,4 +782,81 @@ int model_update_row(const struct model *m, const struct graph *g, uint32_t u,
 	*out = w->out;
 	*out_nnz = o;
 	return 1;
+}
+
+/* ---- the seam (objective.h) ---- */
+
+static void *ops_work_new(const struct model *m)
+{
+	return model_work_new(m->k);
+}
+
+static void ops_work_free(void *w)
+{
+	model_work_free(w);
+}
+
+static int ops_update_row(const struct model *m, const struct graph *g, uint32_t u, void *w,
+			  const struct fentry **out, uint32_t *out_nnz)
+{
+	return model_update_row(m, g, u, w, out, out_nnz);
+}
+
+static double ops_work_gain(const void *w)
+{
+	return model_work_gain(w);
+}
+
+static void ops_work_counts(const void *vw, struct objective_counts *c)
+{
+	const struct model_work *w = vw;
+	c->rows += w->rows;
+	c->trials += w->trials;
+	c->visits += w->visits;
+	c->entries += w->entries;
+}
+
+static void ops_part_range(const struct model *m, const struct graph *g, uint32_t u0, uint32_t u1,
+			   void *part)
+{
+	model_loglik_range(m, g, u0, u1, part);
+}
+
+static double ops_part_combine(const struct model *m, const struct graph *g, const void *parts,
+			       size_t nparts)
+{
+	return model_loglik_combine(m, g, parts, nparts);
+}
+
+static double ops_row_objective(const struct model *m, const struct graph *g, uint32_t u,
+				const struct fentry *r, uint32_t nnz, void *w)
+{
+	return model_row_objective(m, g, u, r, nnz, w);
+}
+
+static void ops_row_gradient(const struct model *m, const struct graph *g, uint32_t u, void *w,
+			     double *grad)
+{
+	model_row_gradient(m, g, u, w, grad);
+}
+
+static const struct objective_ops bigclam_ops = {
+	.name = "bigclam",
+	.work_new = ops_work_new,
+	.work_free = ops_work_free,
+	.update_row = ops_update_row,
+	.work_gain = ops_work_gain,
+	.gain_exact = model_gain_exact,
+	.work_counts = ops_work_counts,
+	.part_size = sizeof(struct model_llpart),
+	.part_range = ops_part_range,
+	.part_combine = ops_part_combine,
+	.row_objective = ops_row_objective,
+	.row_gradient = ops_row_gradient,
+	.coupling = 1,
+};
+
+const struct objective_ops *model_objective(void)
+{
+	return &bigclam_ops;
 }

@@ -168,6 +168,7 @@
 #include "coterie/holdout.h"
 #include "coterie/model.h"
 #include "coterie/refine.h"
+#include "coterie/savepoint.h"
 #include "coterie/util.h"
 
 #define CK_MAGIC "COTERIE\x1a"
