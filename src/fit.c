@@ -111,58 +111,46 @@ static double elapsed(const struct fit *f)
 	return f->seconds_base + (util_now() - f->t0);
 }
 
-/* Build a snapshot of the current model and swap it in. */
-int fit_publish(struct fit *f, enum fit_state state)
+/* A new snapshot of the fit's counters (no strengths, trace or AGM yet);
+ * it takes f->res_out. NULL when out of memory. */
+static struct snapshot *snapshot_of_counters(struct fit *f, enum fit_state state)
 {
-	struct snapshot *s = util_calloc(1, sizeof *s);
+	struct snapshot *s = util_malloc(1, sizeof *s);
 	if (!s)
-		return -1;
-	s->refs_ = 1;
-	s->sweep = f->sweep;
-	s->start = f->start;
-	s->starts = f->starts;
-	s->best_start = f->best_start;
-	s->best_loglik = f->best_loglik;
-	s->reseeds = f->reseeds;
-	s->state = state;
-	s->plateau_sweep = f->plateau_sweep;
-	s->plateau = f->plateau_sweep > 0;
-	s->seconds = elapsed(f);
-	s->epsilon = f->m.epsilon;
-	s->delta = f->m.delta;
-	s->seeds = f->seeds;
-	if (f->res_out) {
-		s->savepoint = f->res_out;
-		f->res_out = NULL;
-	}
-	s->stats = f->stats;
+		return NULL;
+	*s = (struct snapshot){
+		.refs_ = 1, .state = state, .sweep = f->sweep,
+		.start = f->start, .starts = f->starts, .reseeds = f->reseeds,
+		.best_start = f->best_start, .best_loglik = f->best_loglik,
+		.plateau = f->plateau_sweep > 0, .plateau_sweep = f->plateau_sweep,
+		.seconds = elapsed(f), .epsilon = f->m.epsilon, .delta = f->m.delta,
+		.seeds = f->seeds, .savepoint = f->res_out, .stats = f->stats,
+	};
+	f->res_out = NULL;
 	struct objective_counts c;
 	sweep_counts(f->sw, &c);
 	s->stats.rows = c.rows;
 	s->stats.trials = c.trials;
 	s->stats.visits = c.visits;
 	s->stats.entries = c.entries;
-	double t_pub = util_now();
-	s->ntrace = f->ntrace;
-	s->trace = util_malloc(f->ntrace ? f->ntrace : 1, sizeof *s->trace);
-	if (!s->trace)
-		goto fail;
-	if (f->ntrace)
-		memcpy(s->trace, f->trace, f->ntrace * sizeof *s->trace);
-	s->sweeps_per_sec = rate_of(f->trace, f->ntrace);
-	if (model_export_order(&f->m, f->inner, &s->F))
-		goto fail;
+	return s;
+}
+
+/* The snapshot's AGM: built afresh, or the last one copied while it is
+ * recent. Building costs in proportion to the strengths stored (rows are
+ * densest after the first sweeps), so the last build's cost is scaled by
+ * their count, and a fitting snapshot rebuilds only once AGM_SHARE times
+ * that prediction has passed. A snapshot that ends or pauses a fit
+ * always has a fresh one. 0 or -1. */
+static int snapshot_agm(struct fit *f, struct snapshot *s, enum fit_state state)
+{
 	double now = util_now();
-	/* the AGM's cost grows with the strengths stored: scale the last
-	 * build's cost by their count (after the first sweeps rows are
-	 * densest, 48 entries a node on the 10^6-node bench graph against 2
-	 * at the plateau, and an AGM then cost a minute and 3.6 GB) */
 	uint64_t nnz = s->F.off[s->F.n];
 	double predicted = f->agm_cost * ((double)nnz + 1.0) / ((double)f->agm_nnz + 1.0);
 	if (state != FIT_FITTING || !f->have_agm || now - f->agm_time >= AGM_SHARE * predicted) {
 		if (agm_from_strengths(&s->agm, f->g, &s->F, f->m.epsilon, f->m.delta,
 				       AGM_MIN_LINKS))
-			goto fail;
+			return -1;
 		f->agm_time = util_now();
 		f->agm_cost = f->agm_time - now;
 		f->agm_nnz = nnz;
@@ -170,11 +158,16 @@ int fit_publish(struct fit *f, enum fit_state state)
 		f->have_agm = agm_copy(&f->agm, &s->agm) == 0;
 		f->agm_sweep = f->sweep;
 	} else if (agm_copy(&s->agm, &f->agm)) {
-		goto fail;
+		return -1;
 	}
 	s->agm_sweep = f->agm_sweep;
-	f->stats.publish_seconds += util_now() - t_pub;
+	return 0;
+}
 
+/* Swap s in as the latest snapshot (and as the savepoint's, if it has
+ * one), wake readers, and let go of the ones it replaces. */
+static void swap_in(struct fit *f, struct snapshot *s, enum fit_state state)
+{
 	struct snapshot *old_point = NULL;
 	pthread_mutex_lock(&f->lock);
 	if (s->savepoint) {
@@ -192,6 +185,25 @@ int fit_publish(struct fit *f, enum fit_state state)
 	char byte = 1;
 	ssize_t w = write(f->wake[1], &byte, 1); /* full pipe: a wake-up is pending anyway */
 	(void)w;
+}
+
+int fit_publish(struct fit *f, enum fit_state state)
+{
+	struct snapshot *s = snapshot_of_counters(f, state);
+	if (!s)
+		return -1;
+	double t_pub = util_now();
+	s->ntrace = f->ntrace;
+	s->trace = util_malloc(f->ntrace ? f->ntrace : 1, sizeof *s->trace);
+	if (!s->trace)
+		goto fail;
+	if (f->ntrace)
+		memcpy(s->trace, f->trace, f->ntrace * sizeof *s->trace);
+	s->sweeps_per_sec = rate_of(f->trace, f->ntrace);
+	if (model_export_order(&f->m, f->inner, &s->F) || snapshot_agm(f, s, state))
+		goto fail;
+	f->stats.publish_seconds += util_now() - t_pub;
+	swap_in(f, s, state);
 	return 0;
 fail:
 	snapshot_release(s);

@@ -288,6 +288,7 @@ int model_import_order(struct model *m, const struct fcsr *in, const uint32_t *i
 
 struct model_work {
 	uint32_t k;
+	void *block;      /* holds every array of k values below */
 	double *cur;      /* dense F_u over candidates */
 	double *trial;    /* dense trial row over candidates */
 	double *nbrsum;   /* dense sum of neighbour (and held-out partner) rows */
@@ -296,7 +297,7 @@ struct model_work {
 	uint32_t epoch;
 	uint32_t *cand;   /* candidate list */
 	uint32_t ncand;
-	double *wv;       /* per-neighbour weights */
+	double *wv;       /* per-neighbour weights (a block of 3 wv_cap: wv, xv, dv) */
 	double *xv;       /* per-neighbour x = F_u . F_v + qeps */
 	double *dv;       /* per-neighbour dir . F_v */
 	size_t wv_cap;
@@ -345,24 +346,24 @@ struct model_work *model_work_new(uint32_t k)
 	if (!w)
 		return NULL;
 	w->k = k;
-	w->cur = util_calloc(k, sizeof *w->cur);
-	w->trial = util_calloc(k, sizeof *w->trial);
-	w->nbrsum = util_calloc(k, sizeof *w->nbrsum);
-	w->acc = util_calloc(k, sizeof *w->acc);
-	w->stamp = util_calloc(k, sizeof *w->stamp);
-	w->cand = util_calloc(k, sizeof *w->cand);
-	w->out = util_calloc(k, sizeof *w->out);
-	w->dir = util_calloc(k, sizeof *w->dir);
-	w->lc = util_calloc(k, sizeof *w->lc);
-	w->lcur = util_calloc(k, sizeof *w->lcur);
-	w->lacc = util_calloc(k, sizeof *w->lacc);
-	w->loth = util_calloc(k, sizeof *w->loth);
-	w->ltrial = util_calloc(k, sizeof *w->ltrial);
-	if (!w->cur || !w->trial || !w->nbrsum || !w->acc || !w->stamp || !w->cand || !w->out ||
-	    !w->dir || !w->lc || !w->lcur || !w->lacc || !w->loth || !w->ltrial) {
-		model_work_free(w);
+	/* the arrays of k values in one block: nine of doubles, three of
+	 * uint32_t, then the accepted row */
+	size_t n = k;
+	w->block = util_calloc(n, 9 * sizeof(double) + 3 * sizeof(uint32_t) + sizeof(struct fentry));
+	if (!w->block) {
+		free(w);
 		return NULL;
 	}
+	double *d = w->block;
+	double **dense[9] = { &w->cur, &w->trial, &w->nbrsum, &w->acc, &w->dir,
+			      &w->lcur, &w->lacc, &w->loth, &w->ltrial };
+	for (size_t i = 0; i < 9; i++)
+		*dense[i] = d + i * n;
+	uint32_t *ids = (uint32_t *)(d + 9 * n);
+	w->stamp = ids;
+	w->cand = ids + n;
+	w->lc = ids + 2 * n;
+	w->out = (struct fentry *)(ids + 3 * n);
 	return w;
 }
 
@@ -370,22 +371,8 @@ void model_work_free(struct model_work *w)
 {
 	if (!w)
 		return;
-	free(w->cur);
-	free(w->trial);
-	free(w->nbrsum);
-	free(w->acc);
-	free(w->stamp);
-	free(w->cand);
-	free(w->wv);
-	free(w->xv);
-	free(w->dv);
-	free(w->dir);
-	free(w->lc);
-	free(w->lcur);
-	free(w->lacc);
-	free(w->loth);
-	free(w->ltrial);
-	free(w->out);
+	free(w->block);
+	free(w->wv); /* xv and dv are in the same block */
 	free(w);
 }
 
@@ -401,9 +388,8 @@ static inline void add_candidate(struct model_work *w, uint32_t c)
 	}
 }
 
-/* Gather the candidate set of u, its current row (dense) and the sum of
- * its neighbours' rows. */
-static void gather(const struct model *m, const struct graph *g, uint32_t u, struct model_work *w)
+/* A fresh candidate set holding u's own row (dense in w->cur). */
+static inline void begin_row(const struct model *m, uint32_t u, struct model_work *w)
 {
 	if (++w->epoch == 0) { /* wrapped: clear marks */
 		memset(w->stamp, 0, w->k * sizeof *w->stamp);
@@ -415,23 +401,32 @@ static void gather(const struct model *m, const struct graph *g, uint32_t u, str
 		add_candidate(w, ru->e[i].c);
 		w->cur[ru->e[i].c] = ru->e[i].v;
 	}
-	for (uint64_t i = g->off[u]; i < g->off[u + 1]; i++) {
-		const struct frow *rv = &m->rows[g->adj[i]];
+}
+
+/* The rows of u's neighbours in h into the candidates and the
+ * neighbour sum. */
+static void add_rows(const struct model *m, const struct graph *h, uint32_t u,
+		     struct model_work *w)
+{
+	for (uint64_t i = h->off[u]; i < h->off[u + 1]; i++) {
+		const struct frow *rv = &m->rows[h->adj[i]];
 		for (uint32_t j = 0; j < rv->nnz; j++) {
 			add_candidate(w, rv->e[j].c);
 			w->nbrsum[rv->e[j].c] += rv->e[j].v;
 		}
 	}
+}
+
+/* Gather the candidate set of u, its current row (dense) and the sum of
+ * its neighbours' rows. */
+static void gather(const struct model *m, const struct graph *g, uint32_t u, struct model_work *w)
+{
+	begin_row(m, u, w);
+	add_rows(m, g, u, w);
 	/* held-out partners are neither edges nor non-edges: their rows leave
 	 * the non-edge sum exactly as neighbours' rows do */
 	if (m->excl)
-		for (uint64_t i = m->excl->off[u]; i < m->excl->off[u + 1]; i++) {
-			const struct frow *rv = &m->rows[m->excl->adj[i]];
-			for (uint32_t j = 0; j < rv->nnz; j++) {
-				add_candidate(w, rv->e[j].c);
-				w->nbrsum[rv->e[j].c] += rv->e[j].v;
-			}
-		}
+		add_rows(m, m->excl, u, w);
 }
 
 /* Dot of a dense row (over candidates) with a sparse neighbour row. */
@@ -480,17 +475,14 @@ static int grow_scratch(struct model_work *w, uint32_t deg)
 	if (deg <= w->wv_cap)
 		return 1;
 	size_t cap = deg + deg / 2;
-	double *a = realloc(w->wv, cap * sizeof *a);
-	if (a)
-		w->wv = a;
-	double *b = realloc(w->xv, cap * sizeof *b);
-	if (b)
-		w->xv = b;
-	double *c = realloc(w->dv, cap * sizeof *c);
-	if (c)
-		w->dv = c;
-	if (!a || !b || !c)
+	/* nothing in them outlives a row: no need to keep the contents */
+	double *a = malloc(3 * cap * sizeof *a);
+	if (!a)
 		return 0;
+	free(w->wv);
+	w->wv = a;
+	w->xv = a + cap;
+	w->dv = a + 2 * cap;
 	w->wv_cap = cap;
 	return 1;
 }
@@ -505,16 +497,7 @@ static int grow_scratch(struct model_work *w, uint32_t deg)
 static double gather_gradient(const struct model *m, const struct graph *g, uint32_t u,
 			      struct model_work *w)
 {
-	if (++w->epoch == 0) {
-		memset(w->stamp, 0, w->k * sizeof *w->stamp);
-		w->epoch = 1;
-	}
-	w->ncand = 0;
-	const struct frow *ru = &m->rows[u];
-	for (uint32_t i = 0; i < ru->nnz; i++) {
-		add_candidate(w, ru->e[i].c);
-		w->cur[ru->e[i].c] = ru->e[i].v;
-	}
+	begin_row(m, u, w);
 	uint32_t epoch = w->epoch;
 	double f = 0.0, qeps = m->qeps, q = 1.0;
 	unsigned nq = 0;
@@ -574,13 +557,7 @@ static double gather_gradient(const struct model *m, const struct graph *g, uint
 		f += log(q);
 	w->visits += deg;
 	if (m->excl)
-		for (uint64_t i = m->excl->off[u]; i < m->excl->off[u + 1]; i++) {
-			const struct frow *rv = &m->rows[m->excl->adj[i]];
-			for (uint32_t j = 0; j < rv->nnz; j++) {
-				add_candidate(w, rv->e[j].c);
-				w->nbrsum[rv->e[j].c] += rv->e[j].v;
-			}
-		}
+		add_rows(m, m->excl, u, w);
 	/* the gradient's last term, and in the same pass the largest
 	 * gradient, the free direction (dir: the gradient, except where a
 	 * zero strength would only be pushed below zero) and the live
