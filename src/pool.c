@@ -95,10 +95,17 @@ void pool_barrier_wait(struct pool_barrier *b)
 	pthread_mutex_unlock(&b->mu);
 }
 
+/* What a worker thread is started with. */
+struct pool_slot {
+	struct pool *p;
+	unsigned tid;
+};
+
 struct pool {
 	unsigned want;      /* threads asked for */
 	unsigned nthreads;  /* threads that run a job (the caller's included) */
 	pthread_t *workers; /* want entries; [1 .. started] are running */
+	struct pool_slot *slots; /* want entries, one per worker */
 	unsigned started;
 	struct pool_barrier start, end;
 	int barriers;
@@ -127,17 +134,11 @@ unsigned pool_threads(const struct pool *p)
 	return p->nthreads;
 }
 
-struct worker_arg {
-	struct pool *p;
-	unsigned tid;
-};
-
-static void *worker_main(void *varg)
+static void *worker_main(void *arg)
 {
-	struct worker_arg *a = varg;
-	struct pool *p = a->p;
-	unsigned tid = a->tid;
-	free(a);
+	const struct pool_slot *slot = arg;
+	struct pool *p = slot->p;
+	unsigned tid = slot->tid;
 	pthread_mutex_lock(&p->lock);
 	while (p->go == 0)
 		pthread_cond_wait(&p->cond, &p->lock);
@@ -167,16 +168,16 @@ int pool_start(struct pool *p)
 {
 	if (p->want <= 1 || p->started)
 		return 0;
-	if (!p->workers && !(p->workers = util_calloc(p->want, sizeof *p->workers)))
+	if (!p->workers)
+		p->workers = util_calloc(p->want, sizeof *p->workers);
+	if (!p->slots)
+		p->slots = util_calloc(p->want, sizeof *p->slots);
+	if (!p->workers || !p->slots)
 		return 0; /* run on the caller's thread alone */
 	p->go = 0;
 	for (unsigned t = 1; t < p->want; t++) {
-		struct worker_arg *a = util_malloc(1, sizeof *a);
-		if (!a)
-			break;
-		*a = (struct worker_arg){ p, t };
-		if (pthread_create(&p->workers[t], NULL, worker_main, a)) {
-			free(a);
+		p->slots[t] = (struct pool_slot){ p, t };
+		if (pthread_create(&p->workers[t], NULL, worker_main, &p->slots[t])) {
 			warning("could start only %u of %u threads; fitting with those", t, p->want);
 			break;
 		}
@@ -226,6 +227,7 @@ void pool_free(struct pool *p)
 		return;
 	pool_stop(p);
 	free(p->workers);
+	free(p->slots);
 	pthread_mutex_destroy(&p->lock);
 	pthread_cond_destroy(&p->cond);
 	free(p);

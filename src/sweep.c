@@ -70,6 +70,13 @@ struct arena {
 	size_t len, cap;
 };
 
+/* What one thread computes rows with: the objective's work buffer, and
+ * where the rows it computed in this block are kept. */
+struct slot {
+	void *work;
+	struct arena arena;
+};
+
 /* The cutting of a sweep's permutation into blocks: where it stands. */
 struct blockgen {
 	const uint32_t *perm;
@@ -82,9 +89,8 @@ struct sweep {
 	const struct graph *g;
 	const struct objective_ops *ops;
 	struct pool *pool;
-	unsigned nwork;  /* work buffers and arenas: the threads asked for */
-	void **work;
-	struct arena *arena;
+	unsigned nslots; /* the threads asked for */
+	struct slot *slots;
 	/* the block being computed */
 	const uint32_t *block;
 	uint32_t block_len;
@@ -92,11 +98,11 @@ struct sweep {
 	atomic_int failed;
 	struct rowres *res;   /* BLOCK_NODES */
 	/* cutting blocks */
-	uint32_t *perm;       /* n */
+	uint32_t *perm;       /* n (one block with mark) */
 	uint32_t *mark;       /* n: block membership and neighbourhood marks */
 	uint32_t epoch;
 	uint32_t *blk;        /* two buffers of BLOCK_NODES: this block and the next */
-	uint32_t *pend;       /* two lists of PEND_MAX nodes waiting for a block */
+	uint32_t *pend;       /* two lists of PEND_MAX nodes waiting for a block (after blk) */
 	struct blockgen *gen; /* set: run_block() cuts the next block into gen_out */
 	uint32_t *gen_out;
 	uint32_t gen_len;
@@ -119,25 +125,24 @@ struct sweep *sweep_new(struct model *m, const struct graph *g, const struct obj
 	s->m = m;
 	s->g = g;
 	s->ops = ops;
-	s->nwork = threads ? threads : 1;
-	uint32_t n = g->n;
-	s->pool = pool_new(s->nwork);
-	s->work = util_calloc(s->nwork, sizeof *s->work);
-	s->arena = util_calloc(s->nwork, sizeof *s->arena);
+	s->nslots = threads ? threads : 1;
+	size_t n = g->n;
+	s->pool = pool_new(s->nslots);
+	s->slots = util_calloc(s->nslots, sizeof *s->slots);
 	s->res = util_calloc(BLOCK_NODES, sizeof *s->res);
-	s->perm = util_malloc(n ? n : 1, sizeof *s->perm);
-	s->mark = util_calloc(n ? n : 1, sizeof *s->mark);
-	s->blk = util_calloc(2 * BLOCK_NODES, sizeof *s->blk);
-	s->pend = util_calloc(2 * PEND_MAX, sizeof *s->pend);
-	s->nparts = (n + LL_CHUNK - 1) / LL_CHUNK;
+	s->perm = util_calloc(2 * n + 1, sizeof *s->perm);
+	s->blk = util_calloc(2 * BLOCK_NODES + 2 * PEND_MAX, sizeof *s->blk);
+	s->nparts = (g->n + LL_CHUNK - 1) / LL_CHUNK;
 	s->parts = util_calloc(s->nparts ? s->nparts : 1, ops->part_size);
 	s->ll_col = util_calloc(m->k, sizeof *s->ll_col);
 	s->ll_stamp = util_calloc(m->k, sizeof *s->ll_stamp);
-	if (!s->pool || !s->work || !s->arena || !s->res || !s->perm || !s->mark || !s->blk ||
-	    !s->pend || !s->parts || !s->ll_col || !s->ll_stamp)
+	if (!s->pool || !s->slots || !s->res || !s->perm || !s->blk || !s->parts || !s->ll_col ||
+	    !s->ll_stamp)
 		goto fail;
-	for (unsigned t = 0; t < s->nwork; t++)
-		if (!(s->work[t] = ops->work_new(m)))
+	s->mark = s->perm + n;
+	s->pend = s->blk + 2 * BLOCK_NODES;
+	for (unsigned t = 0; t < s->nslots; t++)
+		if (!(s->slots[t].work = ops->work_new(m)))
 			goto fail;
 	return s;
 fail:
@@ -150,19 +155,14 @@ void sweep_free(struct sweep *s)
 	if (!s)
 		return;
 	pool_free(s->pool);
-	if (s->work)
-		for (unsigned t = 0; t < s->nwork; t++)
-			s->ops->work_free(s->work[t]);
-	free(s->work);
-	if (s->arena)
-		for (unsigned t = 0; t < s->nwork; t++)
-			free(s->arena[t].e);
-	free(s->arena);
+	for (unsigned t = 0; s->slots && t < s->nslots; t++) {
+		s->ops->work_free(s->slots[t].work);
+		free(s->slots[t].arena.e);
+	}
+	free(s->slots);
 	free(s->res);
-	free(s->perm);
-	free(s->mark);
-	free(s->blk);
-	free(s->pend);
+	free(s->perm); /* and mark */
+	free(s->blk);  /* and pend */
 	free(s->parts);
 	free(s->ll_col);
 	free(s->ll_stamp);
@@ -188,8 +188,8 @@ unsigned sweep_threads(const struct sweep *s)
 void sweep_counts(const struct sweep *s, struct objective_counts *c)
 {
 	memset(c, 0, sizeof *c);
-	for (unsigned t = 0; t < s->nwork; t++)
-		s->ops->work_counts(s->work[t], c);
+	for (unsigned t = 0; t < s->nslots; t++)
+		s->ops->work_counts(s->slots[t].work, c);
 }
 
 /* ---- computing rows and parts on the pool ---- */
@@ -239,12 +239,13 @@ static void rows_job(void *arg, unsigned tid)
 		uint32_t nnz;
 		struct rowres *r = &s->res[i];
 		r->changed = 0;
-		if (s->ops->update_row(s->m, g, u, s->work[tid], &row, &nnz)) {
-			if (arena_push(&s->arena[tid], row, nnz, &r->at)) {
+		struct slot *sl = &s->slots[tid];
+		if (s->ops->update_row(s->m, g, u, sl->work, &row, &nnz)) {
+			if (arena_push(&sl->arena, row, nnz, &r->at)) {
 				atomic_store(&s->failed, 1);
 				continue;
 			}
-			r->gain = s->ops->work_gain(s->work[tid]);
+			r->gain = s->ops->work_gain(sl->work);
 			r->changed = 1;
 			r->nnz = nnz;
 			r->owner = tid;
@@ -345,8 +346,8 @@ static double change_dot(const struct sweep *s, uint32_t j, uint32_t i)
 {
 	const struct frow *ou = &s->m->rows[s->block[j]], *ov = &s->m->rows[s->block[i]];
 	const struct rowres *ru = &s->res[j], *rv = &s->res[i];
-	const struct fentry *nu = s->arena[ru->owner].e + ru->at;
-	const struct fentry *nv = s->arena[rv->owner].e + rv->at;
+	const struct fentry *nu = s->slots[ru->owner].arena.e + ru->at;
+	const struct fentry *nv = s->slots[rv->owner].arena.e + rv->at;
 	return model_dot(nu, ru->nnz, nv, rv->nnz) - model_dot(nu, ru->nnz, ov->e, ov->nnz) -
 	       model_dot(ou->e, ou->nnz, nv, rv->nnz) + model_dot(ou->e, ou->nnz, ov->e, ov->nnz);
 }
@@ -365,7 +366,7 @@ static double block_cross(struct sweep *s)
 		if (!rr->changed)
 			continue;
 		const struct frow *o = &s->m->rows[s->block[j]];
-		const struct fentry *e = s->arena[rr->owner].e + rr->at;
+		const struct fentry *e = s->slots[rr->owner].arena.e + rr->at;
 		uint32_t a = 0, b = 0;
 		while (a < o->nnz || b < rr->nnz) {
 			uint32_t c;
@@ -439,7 +440,7 @@ static int apply_block(struct sweep *s)
 		const struct rowres *rr = &s->res[j];
 		if (!rr->changed)
 			continue;
-		if (model_set_row(s->m, s->block[j], s->arena[rr->owner].e + rr->at, rr->nnz))
+		if (model_set_row(s->m, s->block[j], s->slots[rr->owner].arena.e + rr->at, rr->nnz))
 			return -1;
 	}
 	return 0;
@@ -475,8 +476,8 @@ int sweep_run(struct sweep *s, uint64_t order_seed, sweep_between_fn *between, v
 		s->gen_len = 0;
 		s->block = s->blk + cur * BLOCK_NODES;
 		s->block_len = nb;
-		for (unsigned t = 0; t < s->nwork; t++)
-			s->arena[t].len = 0;
+		for (unsigned t = 0; t < s->nslots; t++)
+			s->slots[t].arena.len = 0;
 		run_block(s);
 		if (atomic_load(&s->failed))
 			return error("out of memory while fitting");
