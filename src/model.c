@@ -786,11 +786,12 @@ static double ops_work_gain(const void *w)
 
 static void ops_work_counts(const void *vw, struct objective_counts *c)
 {
-	const struct model_work *w = vw;
-	c->rows += w->rows;
-	c->trials += w->trials;
-	c->visits += w->visits;
-	c->entries += w->entries;
+	uint64_t rows, trials, visits;
+	model_work_counts(vw, &rows, &trials, &visits);
+	c->rows += rows;
+	c->trials += trials;
+	c->visits += visits;
+	c->entries += model_work_entries(vw);
 }
 
 static void ops_part_range(const struct model *m, const struct graph *g, uint32_t u0, uint32_t u1,

@@ -13,8 +13,9 @@
  * the current one (run_block()).
  *
  * Summing the log-likelihood. The value after a sweep is not recomputed
- * (at 10^6 nodes that was a sixth of a fit): the calling thread adds up,
- * block by block in permutation order, the change each block made. Row
+ * (that would cost a large share of a fit on big graphs; DEVELOPERS.md
+ * has the figures): the calling thread adds up, block by block in
+ * permutation order, the change each block made. Row
  * u's objective f_u holds every term of l(F) with u in it, so for u alone
  * the change is its gain f1_u - f0_u (objective_ops.work_gain). The rows
  * of a block were all computed from the model at the block's start, and
