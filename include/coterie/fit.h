@@ -1,7 +1,7 @@
 /*
- * fit: the fitting engine. Owns the working model, runs sweeps on its own
- * thread with a pool of worker threads, and publishes an immutable
- * snapshot after every sweep for readers (the batch command, the explorer).
+ * fit: the fitting engine. Owns the working model, drives the sweep
+ * engine (sweep.h) on its own thread, and publishes an immutable snapshot
+ * after every sweep for readers (the batch command, the explorer).
  *
  * Several starts: with starts > 1 the fit seeds and runs to a plateau that
  * many times, each with its own sweep orders, and keeps the start with the
@@ -16,12 +16,11 @@
  * holds after the starts and their reseeding are done.
  *
  * Determinism: each sweep visits the nodes in a permutation drawn from
- * (seed, start, sweep) and cuts it into fixed blocks; the rows of a block are
- * computed in parallel from the state at the start of the block and then
- * applied in order. Nothing depends on the thread count, so the same seed
- * gives the same bytes for any -j.
+ * (seed, start, sweep); the sweep engine makes the result independent of
+ * the thread count (sweep.h), so the same seed gives the same bytes for
+ * any -j.
  *
- * All locking lives in fit.c. Control calls (pause, unpause, stop, extend)
+ * All locking of the fit's state lives in fit.c (the pool's own in pool.c). Control calls (pause, unpause, stop, extend)
  * are safe from any thread and never block on a sweep.
  */
 #ifndef COTERIE_FIT_H
