@@ -413,7 +413,7 @@ int agm_estimate_p(const struct graph *g, const struct cover *c, double epsilon,
 	struct index ix;
 	if (check_input(g, c, epsilon) < 0 || index_build(&ix, g, c) < 0)
 		return -1;
-	int rc = estimate_q(&ix, c, -log1p(-epsilon), p, 0);
+	int rc = estimate_q(&ix, c, model_qeps(epsilon), p, 0);
 	if (rc == 0)
 		for (uint32_t i = 0; i < c->k; i++)
 			p[i] = -expm1(-p[i]);
@@ -432,7 +432,7 @@ int agm_improve_p(const struct graph *g, const struct cover *c, double epsilon, 
 		return -1;
 	for (uint32_t i = 0; i < c->k; i++)
 		p[i] = -log1p(-p[i]); /* q; +inf for p = 1 is capped by estimate_q() */
-	int rc = estimate_q(&ix, c, -log1p(-epsilon), p, 1);
+	int rc = estimate_q(&ix, c, model_qeps(epsilon), p, 1);
 	for (uint32_t i = 0; i < c->k; i++)
 		p[i] = -expm1(-p[i]);
 	index_release(&ix);
@@ -461,7 +461,7 @@ double agm_loglik(const struct graph *g, const struct cover *c, const double *p,
 	}
 	for (uint32_t i = 0; i < c->k; i++)
 		q[i] = -log1p(-p[i]);
-	double qeps = -log1p(-epsilon), sum = 0.0;
+	double qeps = model_qeps(epsilon), sum = 0.0;
 	uint64_t lonely = 0;
 	/* One pass over the edges, shared sets merged on the fly (nothing stored). */
 	for (uint32_t u = 0; u < g->n; u++) {
@@ -546,7 +546,7 @@ static int finish(struct agm *out, const struct graph *g, const uint32_t *ids,
 	struct index ix;
 	if (index_build(&ix, g, c) < 0)
 		return -1;
-	double qeps = -log1p(-out->epsilon);
+	double qeps = model_qeps(out->epsilon);
 	double *q = util_malloc(c->k, sizeof *q);
 	out->comms = util_calloc(c->k, sizeof *out->comms);
 	if (q && pgiven)

@@ -7,6 +7,8 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "coterie/util.h"
+
 void fcsr_release(struct fcsr *f)
 {
 	if (!f)
@@ -15,4 +17,24 @@ void fcsr_release(struct fcsr *f)
 	free(f->e);
 	free(f->colsum);
 	memset(f, 0, sizeof *f);
+}
+
+int fcsr_copy(struct fcsr *dst, const struct fcsr *src)
+{
+	memset(dst, 0, sizeof *dst);
+	uint64_t nnz = src->off[src->n];
+	dst->off = util_malloc((size_t)src->n + 1, sizeof *dst->off);
+	dst->e = util_malloc(nnz ? nnz : 1, sizeof *dst->e);
+	dst->colsum = util_calloc(src->k, sizeof *dst->colsum);
+	if (!dst->off || !dst->e || !dst->colsum) {
+		fcsr_release(dst);
+		return -1;
+	}
+	dst->n = src->n;
+	dst->k = src->k;
+	memcpy(dst->off, src->off, ((size_t)src->n + 1) * sizeof *dst->off);
+	if (nnz)
+		memcpy(dst->e, src->e, nnz * sizeof *dst->e);
+	memcpy(dst->colsum, src->colsum, src->k * sizeof *dst->colsum);
+	return 0;
 }

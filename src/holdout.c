@@ -196,7 +196,7 @@ int holdout_score(const struct holdout *h, const struct fcsr *F, double epsilon,
 		free(xn);
 		return -1;
 	}
-	double qeps = -log1p(-epsilon), l = 0.0;
+	double qeps = model_qeps(epsilon), l = 0.0;
 	for (uint64_t i = 0; i < h->nedges; i++) {
 		xe[i] = row_dot(F, h->edges[2 * i], h->edges[2 * i + 1]);
 		l += model_log1mexp(xe[i] + qeps);

@@ -179,7 +179,7 @@ int inspect_edge(struct inspect_edge *out, const struct graph *g, const struct f
 		}
 	}
 	qsort(out->share, out->nshare, sizeof *out->share, share_cmp);
-	double qeps = -log1p(-epsilon);
+	double qeps = model_qeps(epsilon);
 	out->prob = -expm1(-(out->x + qeps));
 	out->prob_comms = -expm1(-out->x);
 	out->agm_prob = 1.0 - stay;

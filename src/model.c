@@ -1,6 +1,7 @@
 /*
  * model: strengths as sparse rows, the log-likelihood, and one node's
- * projected gradient step.
+ * projected gradient step; model_objective() hands them to the sweep
+ * engine through the seam of objective.h.
  *
  * The idea: the non-edge part of a row's objective would cost O(n), but
  *     sum_{v not in N(u), v != u} F_v = colsum - F_u - sum_{v in N(u)} F_v
@@ -14,13 +15,11 @@
  * Sparsity: the projection sends strengths below MODEL_FLOOR * delta to 0,
  * not only negative ones. In the first sweeps an empty row next to many
  * communities sees a large positive gradient for every one of them (the
- * weight 1/expm1(x) is about 1/epsilon at x ~ 0), and the plain projection
- * filled rows with dozens of tiny strengths that later sweeps remove
- * again: on a 200,000-node graph with k = 4000 that peaked at 770 MB.
- * With the floor at a tenth of the membership threshold it peaks at
- * 450 MB, runs faster, and the memberships are those strengths could
- * never reach anyway; the likelihood reached is a little lower (-0.81e6
- * against -0.80e6 on email-Enron at k = 100).
+ * weight 1/expm1(x) is about 1/epsilon at x ~ 0); the plain projection
+ * filled rows with dozens of tiny strengths that later sweeps removed
+ * again. The floor keeps rows sparse (less memory, faster sweeps) at the
+ * price of a slightly lower likelihood; the memberships lost are of
+ * strengths far below the threshold delta (figures in DEVELOPERS.md).
  *
  * The one thing a newcomer gets wrong: colsum includes u's own current
  * row. The "others" sum must subtract the current row, not the trial one.
@@ -32,6 +31,7 @@
 #include <string.h>
 
 #include "coterie/graph.h"
+#include "coterie/objective.h"
 #include "coterie/util.h"
 
 #define ARMIJO_SIGMA 1e-4
@@ -54,10 +54,15 @@ double model_default_epsilon(const struct graph *g)
 	return eps;
 }
 
+double model_qeps(double epsilon)
+{
+	return -log1p(-epsilon);
+}
+
 static void set_epsilon(struct model *m, double epsilon)
 {
 	m->epsilon = epsilon;
-	m->qeps = -log1p(-epsilon);
+	m->qeps = model_qeps(epsilon);
 	m->delta = sqrt(m->qeps);
 	m->floor = MODEL_FLOOR * m->delta;
 }
@@ -283,6 +288,7 @@ int model_import_order(struct model *m, const struct fcsr *in, const uint32_t *i
 
 struct model_work {
 	uint32_t k;
+	void *block;      /* holds every array of k values below */
 	double *cur;      /* dense F_u over candidates */
 	double *trial;    /* dense trial row over candidates */
 	double *nbrsum;   /* dense sum of neighbour (and held-out partner) rows */
@@ -291,7 +297,7 @@ struct model_work {
 	uint32_t epoch;
 	uint32_t *cand;   /* candidate list */
 	uint32_t ncand;
-	double *wv;       /* per-neighbour weights */
+	double *wv;       /* per-neighbour weights (a block of 3 wv_cap: wv, xv, dv) */
 	double *xv;       /* per-neighbour x = F_u . F_v + qeps */
 	double *dv;       /* per-neighbour dir . F_v */
 	size_t wv_cap;
@@ -340,24 +346,24 @@ struct model_work *model_work_new(uint32_t k)
 	if (!w)
 		return NULL;
 	w->k = k;
-	w->cur = util_calloc(k, sizeof *w->cur);
-	w->trial = util_calloc(k, sizeof *w->trial);
-	w->nbrsum = util_calloc(k, sizeof *w->nbrsum);
-	w->acc = util_calloc(k, sizeof *w->acc);
-	w->stamp = util_calloc(k, sizeof *w->stamp);
-	w->cand = util_calloc(k, sizeof *w->cand);
-	w->out = util_calloc(k, sizeof *w->out);
-	w->dir = util_calloc(k, sizeof *w->dir);
-	w->lc = util_calloc(k, sizeof *w->lc);
-	w->lcur = util_calloc(k, sizeof *w->lcur);
-	w->lacc = util_calloc(k, sizeof *w->lacc);
-	w->loth = util_calloc(k, sizeof *w->loth);
-	w->ltrial = util_calloc(k, sizeof *w->ltrial);
-	if (!w->cur || !w->trial || !w->nbrsum || !w->acc || !w->stamp || !w->cand || !w->out ||
-	    !w->dir || !w->lc || !w->lcur || !w->lacc || !w->loth || !w->ltrial) {
-		model_work_free(w);
+	/* the arrays of k values in one block: nine of doubles, three of
+	 * uint32_t, then the accepted row */
+	size_t n = k;
+	w->block = util_calloc(n, 9 * sizeof(double) + 3 * sizeof(uint32_t) + sizeof(struct fentry));
+	if (!w->block) {
+		free(w);
 		return NULL;
 	}
+	double *d = w->block;
+	double **dense[9] = { &w->cur, &w->trial, &w->nbrsum, &w->acc, &w->dir,
+			      &w->lcur, &w->lacc, &w->loth, &w->ltrial };
+	for (size_t i = 0; i < 9; i++)
+		*dense[i] = d + i * n;
+	uint32_t *ids = (uint32_t *)(d + 9 * n);
+	w->stamp = ids;
+	w->cand = ids + n;
+	w->lc = ids + 2 * n;
+	w->out = (struct fentry *)(ids + 3 * n);
 	return w;
 }
 
@@ -365,22 +371,8 @@ void model_work_free(struct model_work *w)
 {
 	if (!w)
 		return;
-	free(w->cur);
-	free(w->trial);
-	free(w->nbrsum);
-	free(w->acc);
-	free(w->stamp);
-	free(w->cand);
-	free(w->wv);
-	free(w->xv);
-	free(w->dv);
-	free(w->dir);
-	free(w->lc);
-	free(w->lcur);
-	free(w->lacc);
-	free(w->loth);
-	free(w->ltrial);
-	free(w->out);
+	free(w->block);
+	free(w->wv); /* xv and dv are in the same block */
 	free(w);
 }
 
@@ -396,9 +388,8 @@ static inline void add_candidate(struct model_work *w, uint32_t c)
 	}
 }
 
-/* Gather the candidate set of u, its current row (dense) and the sum of
- * its neighbours' rows. */
-static void gather(const struct model *m, const struct graph *g, uint32_t u, struct model_work *w)
+/* A fresh candidate set holding u's own row (dense in w->cur). */
+static inline void begin_row(const struct model *m, uint32_t u, struct model_work *w)
 {
 	if (++w->epoch == 0) { /* wrapped: clear marks */
 		memset(w->stamp, 0, w->k * sizeof *w->stamp);
@@ -410,23 +401,32 @@ static void gather(const struct model *m, const struct graph *g, uint32_t u, str
 		add_candidate(w, ru->e[i].c);
 		w->cur[ru->e[i].c] = ru->e[i].v;
 	}
-	for (uint64_t i = g->off[u]; i < g->off[u + 1]; i++) {
-		const struct frow *rv = &m->rows[g->adj[i]];
+}
+
+/* The rows of u's neighbours in h into the candidates and the
+ * neighbour sum. */
+static void add_rows(const struct model *m, const struct graph *h, uint32_t u,
+		     struct model_work *w)
+{
+	for (uint64_t i = h->off[u]; i < h->off[u + 1]; i++) {
+		const struct frow *rv = &m->rows[h->adj[i]];
 		for (uint32_t j = 0; j < rv->nnz; j++) {
 			add_candidate(w, rv->e[j].c);
 			w->nbrsum[rv->e[j].c] += rv->e[j].v;
 		}
 	}
+}
+
+/* Gather the candidate set of u, its current row (dense) and the sum of
+ * its neighbours' rows. */
+static void gather(const struct model *m, const struct graph *g, uint32_t u, struct model_work *w)
+{
+	begin_row(m, u, w);
+	add_rows(m, g, u, w);
 	/* held-out partners are neither edges nor non-edges: their rows leave
 	 * the non-edge sum exactly as neighbours' rows do */
 	if (m->excl)
-		for (uint64_t i = m->excl->off[u]; i < m->excl->off[u + 1]; i++) {
-			const struct frow *rv = &m->rows[m->excl->adj[i]];
-			for (uint32_t j = 0; j < rv->nnz; j++) {
-				add_candidate(w, rv->e[j].c);
-				w->nbrsum[rv->e[j].c] += rv->e[j].v;
-			}
-		}
+		add_rows(m, m->excl, u, w);
 }
 
 /* Dot of a dense row (over candidates) with a sparse neighbour row. */
@@ -475,22 +475,21 @@ static int grow_scratch(struct model_work *w, uint32_t deg)
 	if (deg <= w->wv_cap)
 		return 1;
 	size_t cap = deg + deg / 2;
-	double *a = realloc(w->wv, cap * sizeof *a);
-	if (a)
-		w->wv = a;
-	double *b = realloc(w->xv, cap * sizeof *b);
-	if (b)
-		w->xv = b;
-	double *c = realloc(w->dv, cap * sizeof *c);
-	if (c)
-		w->dv = c;
-	if (!a || !b || !c)
+	/* nothing in them outlives a row: no need to keep the contents */
+	double *a = malloc(3 * cap * sizeof *a);
+	if (!a)
 		return 0;
+	free(w->wv);
+	w->wv = a;
+	w->xv = a + cap;
+	w->dv = a + 2 * cap;
 	w->wv_cap = cap;
 	return 1;
 }
 
-/* gather() and gradient() in one pass over the neighbour rows: each row
+/* The candidates, the neighbour sum and the gradient in one pass over the
+ * neighbour rows (the two-pass form, gather() then a second pass, is the
+ * reference in tests/unit/test_model.c): each row
  * is read once for the candidates, the neighbour sum and the dot product,
  * and once more (from L1) to scatter its share of the gradient. The sums
  * run in the same order as in the two-pass form, so the results are the
@@ -498,16 +497,7 @@ static int grow_scratch(struct model_work *w, uint32_t deg)
 static double gather_gradient(const struct model *m, const struct graph *g, uint32_t u,
 			      struct model_work *w)
 {
-	if (++w->epoch == 0) {
-		memset(w->stamp, 0, w->k * sizeof *w->stamp);
-		w->epoch = 1;
-	}
-	w->ncand = 0;
-	const struct frow *ru = &m->rows[u];
-	for (uint32_t i = 0; i < ru->nnz; i++) {
-		add_candidate(w, ru->e[i].c);
-		w->cur[ru->e[i].c] = ru->e[i].v;
-	}
+	begin_row(m, u, w);
 	uint32_t epoch = w->epoch;
 	double f = 0.0, qeps = m->qeps, q = 1.0;
 	unsigned nq = 0;
@@ -567,13 +557,7 @@ static double gather_gradient(const struct model *m, const struct graph *g, uint
 		f += log(q);
 	w->visits += deg;
 	if (m->excl)
-		for (uint64_t i = m->excl->off[u]; i < m->excl->off[u + 1]; i++) {
-			const struct frow *rv = &m->rows[m->excl->adj[i]];
-			for (uint32_t j = 0; j < rv->nnz; j++) {
-				add_candidate(w, rv->e[j].c);
-				w->nbrsum[rv->e[j].c] += rv->e[j].v;
-			}
-		}
+		add_rows(m, m->excl, u, w);
 	/* the gradient's last term, and in the same pass the largest
 	 * gradient, the free direction (dir: the gradient, except where a
 	 * zero strength would only be pushed below zero) and the live
@@ -605,49 +589,10 @@ static double gather_gradient(const struct model *m, const struct graph *g, uint
 	return f;
 }
 
-/* Gradient at the current row over the candidates into w->acc; also
- * returns the objective at the current row. */
-static double gradient(const struct model *m, const struct graph *g, uint32_t u,
-		       struct model_work *w)
-{
-	uint32_t deg = graph_degree(g, u);
-	grow_scratch(w, deg);
-	double f = 0.0;
-	for (uint32_t i = 0; i < deg; i++) {
-		const struct frow *rv = &m->rows[g->adj[g->off[u] + i]];
-		double x = dense_dot(w->cur, rv) + m->qeps;
-		/* one expm1 gives both the weight and the objective's term:
-		 * 1 - e^-x = em / (em + 1), so log(1 - e^-x) = -log1p(1 / em) */
-		double wt = 1.0 / expm1(x > X_FLOOR ? x : X_FLOOR);
-		f -= log1p(wt);
-		if (w->wv_cap >= deg) {
-			w->wv[i] = wt;
-		} else { /* no scratch: accumulate directly */
-			for (uint32_t j = 0; j < rv->nnz; j++)
-				w->acc[rv->e[j].c] += rv->e[j].v * wt;
-		}
-	}
-	if (w->wv_cap >= deg)
-		for (uint32_t i = 0; i < deg; i++) {
-			const struct frow *rv = &m->rows[g->adj[g->off[u] + i]];
-			double wt = w->wv[i];
-			for (uint32_t j = 0; j < rv->nnz; j++)
-				w->acc[rv->e[j].c] += rv->e[j].v * wt;
-		}
-	for (uint32_t i = 0; i < w->ncand; i++) {
-		uint32_t c = w->cand[i];
-		double others = m->colsum[c] - w->cur[c] - w->nbrsum[c];
-		w->acc[c] -= others;
-		f -= w->cur[c] * others;
-	}
-	return f;
-}
-
 void model_row_gradient(const struct model *m, const struct graph *g, uint32_t u,
 			struct model_work *w, double *grad)
 {
-	gather(m, g, u, w);
-	gradient(m, g, u, w);
+	gather_gradient(m, g, u, w);
 	/* outside the candidates the gradient is -(colsum - F_u - nbrsum) = -colsum */
 	for (uint32_t c = 0; c < m->k; c++)
 		grad[c] = -m->colsum[c];
@@ -772,11 +717,8 @@ int model_update_row(const struct model *m, const struct graph *g, uint32_t u,
 			w->dv[i] = dense_dot(w->dir, &m->rows[adj[i]]);
 		w->visits += deg;
 	}
-	/* Plain backtracking from the reach limit. (Starting instead near the
-	 * Cauchy step gdir / curv and searching up or down needs 2.6 trials a
-	 * row instead of 5.8 on the 100,000-node bench graph, but the larger
-	 * accepted steps of the search from above level off higher: -818853
-	 * against -831012 on email-Enron at k = 100 without refinement.) */
+	/* Plain backtracking from the reach limit (a search from near the
+	 * Cauchy step needs fewer trials but levels off lower: DEVELOPERS.md) */
 	for (int t = 0; t < ARMIJO_TRIES; t++, step *= 0.5) {
 		int moved;
 		double gd;
@@ -817,4 +759,82 @@ int model_update_row(const struct model *m, const struct graph *g, uint32_t u,
 	*out = w->out;
 	*out_nnz = o;
 	return 1;
+}
+
+/* ---- the seam (objective.h) ---- */
+
+static void *ops_work_new(const struct model *m)
+{
+	return model_work_new(m->k);
+}
+
+static void ops_work_free(void *w)
+{
+	model_work_free(w);
+}
+
+static int ops_update_row(const struct model *m, const struct graph *g, uint32_t u, void *w,
+			  const struct fentry **out, uint32_t *out_nnz)
+{
+	return model_update_row(m, g, u, w, out, out_nnz);
+}
+
+static double ops_work_gain(const void *w)
+{
+	return model_work_gain(w);
+}
+
+static void ops_work_counts(const void *vw, struct objective_counts *c)
+{
+	uint64_t rows, trials, visits;
+	model_work_counts(vw, &rows, &trials, &visits);
+	c->rows += rows;
+	c->trials += trials;
+	c->visits += visits;
+	c->entries += model_work_entries(vw);
+}
+
+static void ops_part_range(const struct model *m, const struct graph *g, uint32_t u0, uint32_t u1,
+			   void *part)
+{
+	model_loglik_range(m, g, u0, u1, part);
+}
+
+static double ops_part_combine(const struct model *m, const struct graph *g, const void *parts,
+			       size_t nparts)
+{
+	return model_loglik_combine(m, g, parts, nparts);
+}
+
+static double ops_row_objective(const struct model *m, const struct graph *g, uint32_t u,
+				const struct fentry *r, uint32_t nnz, void *w)
+{
+	return model_row_objective(m, g, u, r, nnz, w);
+}
+
+static void ops_row_gradient(const struct model *m, const struct graph *g, uint32_t u, void *w,
+			     double *grad)
+{
+	model_row_gradient(m, g, u, w, grad);
+}
+
+static const struct objective_ops bigclam_ops = {
+	.name = "bigclam",
+	.work_new = ops_work_new,
+	.work_free = ops_work_free,
+	.update_row = ops_update_row,
+	.work_gain = ops_work_gain,
+	.gain_exact = model_gain_exact,
+	.work_counts = ops_work_counts,
+	.part_size = sizeof(struct model_llpart),
+	.part_range = ops_part_range,
+	.part_combine = ops_part_combine,
+	.row_objective = ops_row_objective,
+	.row_gradient = ops_row_gradient,
+	.coupling = 1,
+};
+
+const struct objective_ops *model_objective(void)
+{
+	return &bigclam_ops;
 }

@@ -150,7 +150,7 @@ struct refine *refine_new(const struct graph *g, const struct cover *c, const do
 	r->n = g->n;
 	r->k = c->k;
 	r->epsilon = epsilon;
-	r->qeps = -log1p(-epsilon);
+	r->qeps = model_qeps(epsilon);
 	size_t k1 = c->k ? c->k : 1, n1 = g->n ? g->n : 1;
 	r->q = util_calloc(k1, sizeof *r->q);
 	r->grow = util_calloc(k1, sizeof *r->grow);

@@ -168,6 +168,7 @@
 #include "coterie/holdout.h"
 #include "coterie/model.h"
 #include "coterie/refine.h"
+#include "coterie/savepoint.h"
 #include "coterie/util.h"
 
 #define CK_MAGIC "COTERIE\x1a"
@@ -1615,7 +1616,7 @@ int result_write_links(const char *dir, const struct graph *g, const struct hold
 	char *path = path_join(dir, RESULT_LINKS);
 	if (!path)
 		return -1;
-	struct links_args a = { g, h, F, -log1p(-epsilon) };
+	struct links_args a = { g, h, F, model_qeps(epsilon) };
 	int rc = atomic_write(path, fill_links, &a);
 	free(path);
 	return rc;

@@ -1,7 +1,7 @@
 /*
- * fit: the fitting engine. Owns the working model, runs sweeps on its own
- * thread with a pool of worker threads, and publishes an immutable
- * snapshot after every sweep for readers (the batch command, the explorer).
+ * fit: the fitting engine. Owns the working model, drives the sweep
+ * engine (sweep.h) on its own thread, and publishes an immutable snapshot
+ * after every sweep for readers (the batch command, the explorer).
  *
  * Several starts: with starts > 1 the fit seeds and runs to a plateau that
  * many times, each with its own sweep orders, and keeps the start with the
@@ -12,16 +12,15 @@
  * Reseeding: when a start levels off, the weakest column is emptied and
  * seeded again inside the largest community, and the fit runs to a
  * plateau again; the move is kept only if the likelihood rose (see
- * reseed() in fit.c; no_reseed skips it). A fit that holds at a plateau
+ * src/starts.c; no_reseed skips it). A fit that holds at a plateau
  * holds after the starts and their reseeding are done.
  *
  * Determinism: each sweep visits the nodes in a permutation drawn from
- * (seed, start, sweep) and cuts it into fixed blocks; the rows of a block are
- * computed in parallel from the state at the start of the block and then
- * applied in order. Nothing depends on the thread count, so the same seed
- * gives the same bytes for any -j.
+ * (seed, start, sweep); the sweep engine makes the result independent of
+ * the thread count (sweep.h), so the same seed gives the same bytes for
+ * any -j.
  *
- * All locking lives in fit.c. Control calls (pause, unpause, stop, extend)
+ * All locking of the fit's state lives in fit.c (the pool's own in pool.c). Control calls (pause, unpause, stop, extend)
  * are safe from any thread and never block on a sweep.
  */
 #ifndef COTERIE_FIT_H
@@ -78,7 +77,7 @@ void fit_params_default(struct fit_params *p);
 struct trace_point {
 	uint32_t sweep;   /* 0 is the seeded model */
 	double seconds;   /* since the fit began, resumes included */
-	double loglik;    /* l(F) after the sweep (summed or recomputed: fit.c) */
+	double loglik;    /* l(F) after the sweep (summed or recomputed: sweep.c) */
 };
 
 /* Where the time went, for benchmarks (all starts and refinement moves
@@ -133,41 +132,10 @@ struct snapshot {
 
 void snapshot_release(struct snapshot *s);
 
-/* One start's model at a point where it can go on: strengths, trace, the
- * sweep count and where the plateau rule first fired. */
-struct fit_part {
-	struct fcsr F;
-	struct trace_point *trace;
-	uint32_t ntrace;
-	uint32_t sweep, plateau_sweep;
-};
-
-/*
- * Where an interrupted fit stands, so that a resumed one ends with the
- * bytes an uninterrupted one would have given (same seed, same
- * parameters). Made by fit_interrupt(), which lets the sweep in progress
- * end first, and on request by fit_want_savepoint().
- *   start  the start in progress (1-based) of snapshot.starts
- *   phase  FIT_PHASE_CLIMB: cur is that start after its last whole sweep,
- *          still climbing to its first plateau; FIT_PHASE_RESEED: cur is
- *          that start as it levelled off, and its refinement moves are
- *          made again from there (they are drawn from the seed and the
- *          start, so they come out the same; the work of the moves made
- *          before the interrupt is done again).
- *   best   the most likely of the starts before it (best_start 0: none),
- *          with the state it ended in (LEVELLED or FINISHED), the
- *          refinement moves it kept and its final log-likelihood.
- */
-enum { FIT_PHASE_CLIMB = 0, FIT_PHASE_RESEED = 1 };
-struct fit_savepoint {
-	uint32_t start, phase;
-	struct fit_part cur;
-	uint32_t best_start;
-	struct fit_part best;
-	uint32_t best_reseeds;
-	enum fit_state best_state;
-	double best_loglik;
-};
+/* Where an interrupted fit stands and one start's model in it: see
+ * savepoint.h (only the checkpoint code and fit.c need their fields). */
+struct fit_part;
+struct fit_savepoint;
 void fit_savepoint_free(struct fit_savepoint *r); /* NULL is a no-op */
 
 /* Where a resumed fit starts; all borrowed and copied by fit_new(). */

@@ -55,6 +55,11 @@ struct model {
  * within [1e-12, 0.5]. */
 double model_default_epsilon(const struct graph *g);
 
+/* qeps = -ln(1 - epsilon) for a background probability epsilon in [0, 1)
+ * (the one place it is computed: every module that turns epsilon into a
+ * rate calls this). */
+double model_qeps(double epsilon);
+
 /* Set up an all-zero model. epsilon in [0, 1). Returns 0 or -1. */
 int model_init(struct model *m, uint32_t n, uint32_t k, double epsilon);
 void model_release(struct model *m);
@@ -133,7 +138,9 @@ double model_row_objective(const struct model *m, const struct graph *g, uint32_
 			   const struct fentry *r, uint32_t nnz, struct model_work *w);
 
 /* The gradient of the row objective at u's current row, for every
- * community c, into grad (k doubles, borrowed). */
+ * community c, into grad (k doubles, borrowed): the one-pass gradient
+ * model_update_row() steps along (tests/unit/test_model.c checks it bit
+ * for bit against a two-pass reference). */
 void model_row_gradient(const struct model *m, const struct graph *g, uint32_t u,
 			struct model_work *w, double *grad);
 
@@ -153,8 +160,8 @@ int model_update_row(const struct model *m, const struct graph *g, uint32_t u,
 /* The rise f1 - f0 of u's row objective (model_row_objective()) made by
  * the last update of w that returned 1. The row objective holds every
  * term of l(F) that involves u, so with the other rows fixed this is the
- * change of l(F) (fit.c sums it over a sweep instead of recomputing
- * l(F)). f0 and f1 are the values the line search compared, so it equals
+ * change of l(F) (the sweep engine sums it instead of recomputing l(F):
+ * sweep.c). f0 and f1 are the values the line search compared, so it equals
  * model_row_objective(new) - model_row_objective(old) only up to
  * rounding. */
 double model_work_gain(const struct model_work *w);
@@ -164,5 +171,10 @@ double model_work_gain(const struct model_work *w);
  * a smaller --epsilon, where f0 is off for links whose ends share
  * nothing. */
 int model_gain_exact(const struct model *m);
+
+/* The present model as the sweep engine sees it (objective.h): BigCLAM
+ * with a background, rows coupled through -F_u . F_v. Static; never NULL. */
+struct objective_ops;
+const struct objective_ops *model_objective(void);
 
 #endif

@@ -27,6 +27,7 @@
 #include "coterie/refine.h"
 #include "coterie/result.h"
 #include "coterie/select.h"
+#include "coterie/savepoint.h"
 
 static void fit_usage(FILE *out)
 {

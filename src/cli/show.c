@@ -563,7 +563,7 @@ static int show_links(const struct show *s)
 {
 	const struct graph *g = s->ck.graph;
 	const struct fcsr *F = &s->ck.F;
-	double qeps = -log1p(-s->ck.epsilon);
+	double qeps = model_qeps(s->ck.epsilon);
 	size_t n = shown((size_t)g->m, s->limit), i = 0;
 	json_t *root = NULL, *list = NULL;
 	char b1[NAME_CAP], b2[NAME_CAP];
@@ -720,7 +720,7 @@ static int show_open(struct show *s)
 			     util_escape(s->dir, buf, sizeof buf, 1));
 	if (result_read_checkpoint(path, &s->ck))
 		return -1;
-	s->delta = sqrt(-log1p(-s->ck.epsilon));
+	s->delta = sqrt(model_qeps(s->ck.epsilon));
 	if (agm_from_strengths(&s->agm, s->ck.graph, &s->ck.F, s->ck.epsilon, s->delta,
 			       AGM_MIN_LINKS)) {
 		checkpoint_release(&s->ck);

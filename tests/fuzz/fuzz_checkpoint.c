@@ -25,6 +25,7 @@
 #include "coterie/graph.h"
 #include "coterie/model.h"
 #include "coterie/result.h"
+#include "coterie/savepoint.h"
 #include "coterie/util.h"
 
 int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size);

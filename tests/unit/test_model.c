@@ -367,6 +367,88 @@ static void test_row_gradient_with_held_out_pairs_matches_pair_by_pair_sum(void 
 	}
 }
 
+/*
+ * The reference gradient: the older two-pass form the engine once used.
+ * Pass one gathers the candidates (communities of u's row, its
+ * neighbours' and held-out partners' rows) and the neighbour sum; pass
+ * two takes each neighbour's weight 1 / expm1(x), x = F_u . F_v + qeps
+ * (floored at 1e-12 as model.c does), and scatters it. The real one
+ * (model_row_gradient(), the pass model_update_row() steps along) does
+ * both in one pass and must give the same bits: its sums run in the same
+ * order.
+ */
+static void reference_row_gradient(const struct model *m, const struct graph *g, uint32_t u,
+				   double *grad)
+{
+	uint32_t k = m->k;
+	double *cur = calloc(k, sizeof *cur), *nbr = calloc(k, sizeof *nbr);
+	double *acc = calloc(k, sizeof *acc);
+	char *cand = calloc(k, 1);
+	assert_non_null(cur);
+	assert_non_null(nbr);
+	assert_non_null(acc);
+	assert_non_null(cand);
+	const struct frow *ru = &m->rows[u];
+	for (uint32_t i = 0; i < ru->nnz; i++) {
+		cand[ru->e[i].c] = 1;
+		cur[ru->e[i].c] = ru->e[i].v;
+	}
+	for (int pass = 0; pass < 2; pass++) {
+		const struct graph *h = pass == 0 ? g : m->excl;
+		if (!h)
+			continue;
+		for (uint64_t i = h->off[u]; i < h->off[u + 1]; i++) {
+			const struct frow *rv = &m->rows[h->adj[i]];
+			for (uint32_t j = 0; j < rv->nnz; j++) {
+				cand[rv->e[j].c] = 1;
+				nbr[rv->e[j].c] += rv->e[j].v;
+			}
+		}
+	}
+	for (uint64_t i = g->off[u]; i < g->off[u + 1]; i++) {
+		const struct frow *rv = &m->rows[g->adj[i]];
+		double x = 0.0;
+		for (uint32_t j = 0; j < rv->nnz; j++)
+			x += cur[rv->e[j].c] * rv->e[j].v;
+		x += m->qeps;
+		double wt = 1.0 / expm1(x > 1e-12 ? x : 1e-12);
+		for (uint32_t j = 0; j < rv->nnz; j++)
+			acc[rv->e[j].c] += rv->e[j].v * wt;
+	}
+	for (uint32_t c = 0; c < k; c++)
+		grad[c] = cand[c] ? acc[c] - (m->colsum[c] - cur[c] - nbr[c]) : -m->colsum[c];
+	free(cur);
+	free(nbr);
+	free(acc);
+	free(cand);
+}
+
+static void test_row_gradient_matches_the_two_pass_reference_bit_for_bit(void **state)
+{
+	(void)state;
+	struct rng r;
+	rng_init(&r, 18);
+	for (int trial = 0; trial < 40; trial++) {
+		uint32_t n = 6 + (uint32_t)rng_below(&r, 25), k = 1 + (uint32_t)rng_below(&r, 8);
+		struct graph *g, *x;
+		random_split(&r, n, 0.35, trial % 2 ? 0.2 : 0.0, &g, &x);
+		struct model m;
+		random_model(&r, &m, n, k, trial % 5 == 0 ? 1e-13 : 0.02, 0.5);
+		m.excl = trial % 2 ? x : NULL;
+		struct model_work *w = model_work_new(k);
+		for (uint32_t u = 0; u < n; u++) {
+			double grad[8], want[8];
+			model_row_gradient(&m, g, u, w, grad);
+			reference_row_gradient(&m, g, u, want);
+			assert_memory_equal(grad, want, k * sizeof *grad);
+		}
+		model_work_free(w);
+		model_release(&m);
+		graph_free(g);
+		graph_free(x);
+	}
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -380,6 +462,7 @@ int main(void)
 		cmocka_unit_test(test_default_epsilon_is_density),
 		cmocka_unit_test(test_held_out_pairs_leave_the_likelihood),
 		cmocka_unit_test(test_row_gradient_with_held_out_pairs_matches_pair_by_pair_sum),
+		cmocka_unit_test(test_row_gradient_matches_the_two_pass_reference_bit_for_bit),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }

@@ -32,6 +32,7 @@
 #include "coterie/model.h"
 #include "coterie/refine.h"
 #include "coterie/result.h"
+#include "coterie/savepoint.h"
 #include "coterie/select.h"
 #include "coterie/util.h"
 

@@ -1,5 +1,5 @@
 /*
- * test_barrier: the spinning barrier of the fit's pool.
+ * test_pool: the spinning barrier of the sweep engine's pool.
  *
  * Reference: the definition of a barrier (no thread leaves round r until
  * every thread has arrived in round r; POSIX pthread_barrier_wait(),
@@ -13,13 +13,13 @@
 #include <stdatomic.h>
 #include <time.h>
 
-#include "coterie/barrier.h"
+#include "coterie/pool.h"
 
 #define THREADS 3
 #define ROUNDS 1000
 
 struct shared {
-	struct barrier b;
+	struct pool_barrier b;
 	atomic_uint arrived;
 	atomic_int bad;
 	int sleepy; /* one thread dawdles now and then, past the spin */
@@ -36,16 +36,16 @@ static void *run(void *p)
 	struct shared *s = a->s;
 	for (unsigned r = 0; r < ROUNDS; r++) {
 		if (s->sleepy && a->id == 0 && r % 250 == 0) {
-			/* 2 ms, well past BARRIER_SPIN_NS: the others must sleep and be woken */
+			/* 2 ms, well past POOL_SPIN_NS: the others must sleep and be woken */
 			struct timespec ts = { 0, 2000000 };
 			nanosleep(&ts, NULL);
 		}
 		atomic_fetch_add(&s->arrived, 1);
-		barrier_wait(&s->b);
+		pool_barrier_wait(&s->b);
 		if (atomic_load(&s->arrived) < THREADS * (r + 1))
 			atomic_store(&s->bad, 1);
 		/* and no one may bump round r + 1 before everyone read round r */
-		barrier_wait(&s->b);
+		pool_barrier_wait(&s->b);
 	}
 	return NULL;
 }
@@ -56,7 +56,7 @@ static void run_threads(int sleepy)
 	atomic_init(&s.arrived, 0);
 	atomic_init(&s.bad, 0);
 	s.sleepy = sleepy;
-	assert_int_equal(barrier_init(&s.b, THREADS), 0);
+	assert_int_equal(pool_barrier_init(&s.b, THREADS), 0);
 	pthread_t t[THREADS];
 	struct arg a[THREADS];
 	for (unsigned i = 0; i < THREADS; i++) {
@@ -65,7 +65,7 @@ static void run_threads(int sleepy)
 	}
 	for (unsigned i = 0; i < THREADS; i++)
 		pthread_join(t[i], NULL);
-	barrier_destroy(&s.b);
+	pool_barrier_destroy(&s.b);
 	assert_int_equal(atomic_load(&s.bad), 0);
 	/* by hand: THREADS threads, one bump per round */
 	assert_int_equal(atomic_load(&s.arrived), THREADS * ROUNDS);
@@ -86,11 +86,11 @@ static void test_waiters_that_fell_asleep_are_woken(void **state)
 static void test_one_thread_never_waits(void **state)
 {
 	(void)state;
-	struct barrier b;
-	assert_int_equal(barrier_init(&b, 1), 0);
+	struct pool_barrier b;
+	assert_int_equal(pool_barrier_init(&b, 1), 0);
 	for (int i = 0; i < 10; i++)
-		barrier_wait(&b); /* would hang if a lone thread waited for a second one */
-	barrier_destroy(&b);
+		pool_barrier_wait(&b); /* would hang if a lone thread waited for a second one */
+	pool_barrier_destroy(&b);
 }
 
 int main(void)

@@ -1,0 +1,60 @@
+/*
+ * sweep: the parallel sweep engine. One sweep visits every node once, in
+ * a permutation drawn from a seed, and replaces its row of strengths by
+ * the objective's update (objective.h); a pool of threads (pool.h)
+ * computes the rows. It knows nothing of starts, snapshots or the
+ * fitting thread: fit.c drives it, and a test can drive it alone.
+ *
+ * Determinism: the permutation is cut into blocks that depend only on the
+ * graph and the permutation; the rows of a block are computed from the
+ * model as it was at the block's start and applied in permutation order,
+ * and the change of the objective is summed on the calling thread in that
+ * order. So the same seed gives the same bits for any thread count.
+ */
+#ifndef COTERIE_SWEEP_H
+#define COTERIE_SWEEP_H
+
+#include <stdint.h>
+
+#include "objective.h"
+
+struct graph;
+struct model;
+struct sweep;
+
+/* An engine for the rows of m on the graph g (both borrowed: they must
+ * outlive it; m->n == g->n) with the likelihood ops (borrowed, usually
+ * static) and up to `threads` threads. The held-out pairs are m->excl,
+ * read at each sweep. NULL when out of memory. Free with sweep_free(). */
+struct sweep *sweep_new(struct model *m, const struct graph *g, const struct objective_ops *ops,
+			unsigned threads);
+/* Stops the pool if started, then frees. NULL is a no-op. */
+void sweep_free(struct sweep *s);
+
+/* Make the worker threads (they inherit the calling thread's signal
+ * mask); without it everything runs on the calling thread. Returns 0 (a
+ * pool short of threads runs with those it has). */
+int sweep_pool_start(struct sweep *s);
+/* Join the worker threads. */
+void sweep_pool_stop(struct sweep *s);
+/* Threads that compute rows now (1 before sweep_pool_start()). */
+unsigned sweep_threads(const struct sweep *s);
+
+/* Called between blocks with the model consistent (every row so far
+ * applied, no row being computed); nonzero ends the sweep there. */
+typedef int sweep_between_fn(void *arg);
+
+/* One sweep in the permutation drawn from order_seed; between (may be
+ * NULL) runs before each block. Adds the change of the objective that the
+ * applied rows made to *dl (exact up to rounding when ops->gain_exact()),
+ * then recounts the column sums. Returns 0 when the sweep ended, 1 when
+ * between ended it, -1 on error (reported). */
+int sweep_run(struct sweep *s, uint64_t order_seed, sweep_between_fn *between, void *arg,
+	      double *dl);
+/* The whole objective recomputed on the pool over fixed node ranges
+ * summed in a fixed order: the same bits for any thread count. */
+double sweep_objective(struct sweep *s);
+/* What the threads' work buffers have done so far, summed. */
+void sweep_counts(const struct sweep *s, struct objective_counts *c);
+
+#endif

@@ -1,0 +1,107 @@
+/*
+ * fit-internal: what the pieces of the fit share (fit.c: the fitting
+ * thread, its controls and snapshots; starts.c: several starts, the
+ * reseeding moves and keeping the best). Not for other modules: they use
+ * fit.h, and the checkpoint code savepoint.h.
+ */
+#ifndef COTERIE_FIT_INTERNAL_H
+#define COTERIE_FIT_INTERNAL_H
+
+#include <pthread.h>
+#include <stdatomic.h>
+
+#include "coterie/fit.h"
+#include "coterie/graph.h"
+#include "coterie/model.h"
+#include "coterie/savepoint.h"
+#include "coterie/sweep.h"
+
+struct fit {
+	const struct graph *g;
+	/* The engine works on gw: g renumbered for locality (gi, with
+	 * inner[u] the working id of g's node u), or g itself. Snapshots
+	 * and origins are in g's ids; the working model is in gw's. */
+	const struct graph *gw;
+	struct graph gi;
+	uint32_t *inner;
+	const struct graph *excl;  /* held-out pairs in g's ids (borrowed) */
+	struct graph excl_i;       /* the same in gw's ids */
+	struct fit_params p;
+	struct model m;
+	const struct objective_ops *ops; /* the likelihood (model_objective()) */
+	struct sweep *sw;          /* the sweep engine on m and gw */
+
+	/* published state, under lock */
+	pthread_mutex_t lock;
+	pthread_cond_t cond;
+	struct snapshot *latest;
+	struct snapshot *point; /* the newest one with a savepoint, not yet taken */
+	enum fit_state state;
+
+	atomic_int stop_req, pause_req, extend_req, interrupt_req, point_req;
+	int wake[2];
+
+	pthread_t thread;
+	int started, joined;
+
+	/* fitting-thread state */
+	struct trace_point *trace;
+	uint32_t ntrace, trace_cap;
+	uint32_t sweep;
+	uint32_t plateau_sweep;
+	unsigned streak;
+	double seconds_base, t0;
+	struct seed_report seeds;
+	struct fit_stats stats;
+	int resumed;
+	struct fit_savepoint *res_in;  /* owned: where an exact resume begins */
+	struct fit_savepoint *res_out; /* owned until the next snapshot takes it */
+	uint32_t start, starts;
+	uint32_t reseeds;
+	/* the most likely start so far (best_start 0: none yet), as a
+	 * savepoint holds it; in_starts while the starts run (savepoints
+	 * can be made), climb the start as it levelled off while its
+	 * reseeding moves run (else NULL) */
+	struct fit_part best;
+	uint32_t best_start, best_reseeds;
+	enum fit_state best_state;
+	double best_loglik;
+	int in_starts;
+	const struct fit_part *climb;
+	/* l(F) after a reseeding move, recomputed (ll_moved set) */
+	int ll_moved;
+	double ll_moved_value;
+	/* the last AGM built for a snapshot, reused while it is recent */
+	struct agm agm;
+	int have_agm;
+	double agm_time, agm_cost;
+	uint64_t agm_nnz; /* strengths stored when it was built */
+	uint32_t agm_sweep;
+};
+
+/* fit.c */
+/* Build a snapshot of the current model and swap it in: 0 or -1. */
+int fit_publish(struct fit *f, enum fit_state state);
+void fit_set_state(struct fit *f, enum fit_state st);
+/* Append (f->sweep, now, ll) to the trace: 0 or -1. */
+int fit_trace_add(struct fit *f, double ll);
+/* l(F) recomputed on the pool (timed in the stats). */
+double fit_loglik(struct fit *f);
+/* Run the current start until a plateau, max_sweeps or a stop; returns
+ * how it ended. With extend, fit_extend() lets it run past plateaus. */
+enum fit_state fit_run_start(struct fit *f, int extend);
+/* 1 when asked to stop or to be interrupted. */
+int fit_stopping(struct fit *f);
+
+/* starts.c */
+/* Every start (or the rest of them after an exact resume) and their
+ * reseeding moves; leaves the best start in the model. Returns how the
+ * fit ended. */
+enum fit_state fit_run_starts(struct fit *f);
+/* A savepoint of the fit now, at the end of a sweep (NULL when out of
+ * memory: the savepoint is a convenience; the fit goes on without it). */
+struct fit_savepoint *fit_make_savepoint(struct fit *f);
+/* A deep copy of a savepoint; NULL when out of memory. */
+struct fit_savepoint *fit_savepoint_dup(const struct fit_savepoint *src);
+
+#endif

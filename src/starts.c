@@ -1,0 +1,480 @@
+/*
+ * starts: several starts of one fit, the reseeding moves after each, and
+ * keeping the most likely (the fitting thread's outer loop; fit.c runs
+ * one start to its plateau with fit_run_start()).
+ *
+ * Starts. The likelihood has many local maxima; each start seeds afresh
+ * (seed.h, with the start's own draws) and climbs with its own sweep
+ * orders, and the most likely start is kept (fit->best, a struct
+ * fit_part as a savepoint holds it). Ties keep the earlier start.
+ *
+ * Reseeding moves. A start often levels off with one column spread over
+ * two true communities and another wasted on a sliver of a third. A move
+ * takes the weakest column (smallest column sum), empties it, and seeds it
+ * again inside the largest community (the ego-net of one of its members,
+ * restricted to that community), then fits to a plateau again. The move
+ * is kept only if the log-likelihood rose; otherwise the model goes back.
+ * Moves stop after RESEED_FAILS failures in a row, RESEED_MAX moves, or
+ * when they have used as many sweeps as the climb to the first plateau.
+ *
+ * Savepoints. An exact resume must replay the same draws, so a savepoint
+ * holds the start in progress (as it stands after a whole sweep while it
+ * climbs, or as it levelled off while its moves run: the moves are drawn
+ * again from the seed and the start) and the best earlier start.
+ *
+ * The one thing a newcomer gets wrong: l(F) after a move is recomputed
+ * (the move rewrote a whole column), but the trace keeps the value before
+ * it, against which the plateau rule measures and the move is judged.
+ */
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "coterie/rng.h"
+#include "coterie/seed.h"
+#include "coterie/util.h"
+#include "fit-internal.h"
+
+#define RESEED_MAX 12u
+#define RESEED_FAILS 3u
+#define RESEED_MIN_BUDGET 30u
+
+/* Where the climb of the current start is kept while its moves run. */
+enum climb_copy {
+	CLIMB_NONE = 0, /* no copy: the start is not reseeding */
+	CLIMB_SAVED,    /* borrowed from the savepoint an exact resume began at */
+	CLIMB_OWNED,    /* made here from the levelled model; freed here */
+};
+
+/* ---- parts and savepoints ---- */
+
+void fit_part_release(struct fit_part *p)
+{
+	fcsr_release(&p->F);
+	free(p->trace);
+	memset(p, 0, sizeof *p);
+}
+
+void fit_savepoint_free(struct fit_savepoint *r)
+{
+	if (!r)
+		return;
+	fit_part_release(&r->cur);
+	fit_part_release(&r->best);
+	free(r);
+}
+
+/* A deep copy of part (strengths and trace); 0 or -1. */
+static int part_dup(struct fit_part *dst, const struct fit_part *src)
+{
+	*dst = *src;
+	memset(&dst->F, 0, sizeof dst->F);
+	dst->trace = util_malloc(src->ntrace ? src->ntrace : 1, sizeof *dst->trace);
+	if (!dst->trace)
+		return -1;
+	if (src->ntrace)
+		memcpy(dst->trace, src->trace, src->ntrace * sizeof *dst->trace);
+	if (fcsr_copy(&dst->F, &src->F)) {
+		free(dst->trace);
+		dst->trace = NULL;
+		return -1;
+	}
+	return 0;
+}
+
+struct fit_savepoint *fit_savepoint_dup(const struct fit_savepoint *src)
+{
+	struct fit_savepoint *r = util_calloc(1, sizeof *r);
+	if (!r)
+		return NULL;
+	*r = *src;
+	memset(&r->cur, 0, sizeof r->cur);
+	memset(&r->best, 0, sizeof r->best);
+	if (part_dup(&r->cur, &src->cur) ||
+	    (src->best_start && part_dup(&r->best, &src->best))) {
+		fit_savepoint_free(r);
+		return NULL;
+	}
+	return r;
+}
+
+/* The fit's model and trace now, as a part. */
+static int part_of_model(struct fit *f, struct fit_part *p)
+{
+	memset(p, 0, sizeof *p);
+	p->trace = util_malloc(f->ntrace ? f->ntrace : 1, sizeof *p->trace);
+	if (!p->trace || model_export(&f->m, &p->F)) {
+		free(p->trace);
+		p->trace = NULL;
+		return -1;
+	}
+	memcpy(p->trace, f->trace, f->ntrace * sizeof *p->trace);
+	p->ntrace = f->ntrace;
+	p->sweep = f->sweep;
+	p->plateau_sweep = f->plateau_sweep;
+	return 0;
+}
+
+/* Load a part as the current start's model and trace. The plateau streak
+ * is counted again from the trace, with the arithmetic of fit_run_start(). */
+static int part_load(struct fit *f, const struct fit_part *p)
+{
+	if (model_import(&f->m, &p->F))
+		return -1;
+	f->ntrace = 0;
+	for (uint32_t i = 0; i < p->ntrace; i++) {
+		if (fit_trace_add(f, 0))
+			return -1;
+		f->trace[i] = p->trace[i];
+	}
+	f->sweep = p->sweep;
+	f->plateau_sweep = p->plateau_sweep;
+	f->streak = 0;
+	for (uint32_t i = 1; i < p->ntrace; i++) {
+		double prev = p->trace[i - 1].loglik, ll = p->trace[i].loglik;
+		double gain = (ll - prev) / (fabs(prev) > 0 ? fabs(prev) : 1.0);
+		f->streak = gain < f->p.tol ? f->streak + 1 : 0;
+	}
+	return 0;
+}
+
+struct fit_savepoint *fit_make_savepoint(struct fit *f)
+{
+	struct fit_savepoint *r = util_calloc(1, sizeof *r);
+	if (!r)
+		return NULL;
+	r->start = f->start;
+	r->phase = f->climb ? FIT_PHASE_RESEED : FIT_PHASE_CLIMB;
+	int rc = f->climb ? part_dup(&r->cur, f->climb) : part_of_model(f, &r->cur);
+	if (rc == 0 && f->best_start) {
+		r->best_start = f->best_start;
+		r->best_reseeds = f->best_reseeds;
+		r->best_state = f->best_state;
+		r->best_loglik = f->best_loglik;
+		rc = part_dup(&r->best, &f->best);
+	}
+	if (rc) {
+		fit_savepoint_free(r);
+		return NULL;
+	}
+	return r;
+}
+
+/* After an interrupt that let the sweep end (not a hard stop): keep the
+ * savepoint for the last snapshot. */
+static void keep_savepoint(struct fit *f)
+{
+	if (atomic_load(&f->stop_req) || !atomic_load(&f->interrupt_req))
+		return;
+	struct fit_savepoint *r = fit_make_savepoint(f);
+	if (r) {
+		fit_savepoint_free(f->res_out);
+		f->res_out = r;
+	}
+}
+
+/* ---- the best start ---- */
+
+static int keep_best(struct fit *f, enum fit_state st)
+{
+	double ll = f->trace[f->ntrace - 1].loglik;
+	if (f->best_start && !(ll > f->best_loglik))
+		return 0;
+	fit_part_release(&f->best);
+	if (part_of_model(f, &f->best))
+		return -1;
+	f->best_reseeds = f->reseeds;
+	f->best_state = st;
+	f->best_start = f->start;
+	f->best_loglik = ll;
+	return 0;
+}
+
+static int restore_best(struct fit *f)
+{
+	const struct fit_part *b = &f->best;
+	if (model_import(&f->m, &b->F))
+		return -1;
+	memcpy(f->trace, b->trace, b->ntrace * sizeof *b->trace);
+	f->ntrace = b->ntrace;
+	f->sweep = b->sweep;
+	f->plateau_sweep = b->plateau_sweep;
+	f->reseeds = f->best_reseeds;
+	return 0;
+}
+
+/* The best earlier start of the savepoint an exact resume begins at. */
+static int best_of_savepoint(struct fit *f, const struct fit_savepoint *ri)
+{
+	if (!ri->best_start)
+		return 0;
+	if (part_dup(&f->best, &ri->best))
+		return -1;
+	f->best_reseeds = ri->best_reseeds;
+	f->best_state = ri->best_state;
+	f->best_start = ri->best_start;
+	f->best_loglik = ri->best_loglik;
+	return 0;
+}
+
+/* ---- reseeding ---- */
+
+/* The community with the most members (strength at least delta) and
+ * the column with the smallest sum among the others; *size_host gets
+ * the host's size. 0 or -1. */
+static int pick_columns(const struct model *m, uint32_t *host_out, uint32_t *victim_out,
+			uint32_t *size_host)
+{
+	uint32_t k = m->k;
+	uint32_t *size = util_calloc(k, sizeof *size);
+	if (!size)
+		return -1;
+	for (uint32_t u = 0; u < m->n; u++)
+		for (uint32_t i = 0; i < m->rows[u].nnz; i++)
+			if (m->rows[u].e[i].v >= m->delta)
+				size[m->rows[u].e[i].c]++;
+	uint32_t host = 0;
+	for (uint32_t c = 1; c < k; c++)
+		if (size[c] > size[host])
+			host = c;
+	uint32_t victim = host == 0 ? 1 : 0;
+	for (uint32_t c = 0; c < k; c++)
+		if (c != host && m->colsum[c] < m->colsum[victim])
+			victim = c;
+	*host_out = host;
+	*victim_out = victim;
+	*size_host = size[host];
+	free(size);
+	return 0;
+}
+
+/* Empty column victim and seed it on centre and its neighbours inside
+ * the host (buf: k + 1 entries of scratch). 0 or -1. */
+static int replant_column(struct fit *f, uint32_t host, uint32_t victim, uint32_t centre,
+			  struct fentry *buf)
+{
+	struct model *m = &f->m;
+	for (uint32_t u = 0; u < m->n; u++) {
+		const struct frow *row = &m->rows[u];
+		uint32_t o = 0, had = 0;
+		for (uint32_t i = 0; i < row->nnz; i++) {
+			if (row->e[i].c == victim)
+				had = 1;
+			else
+				buf[o++] = row->e[i];
+		}
+		if (had && model_set_row(m, u, buf, o))
+			return -1;
+	}
+	for (uint64_t j = f->gw->off[centre]; j <= f->gw->off[centre + 1]; j++) {
+		uint32_t u = j < f->gw->off[centre + 1] ? f->gw->adj[j] : centre;
+		const struct frow *row = &m->rows[u];
+		int in_host = u == centre;
+		for (uint32_t i = 0; i < row->nnz; i++)
+			if (row->e[i].c == host && row->e[i].v >= m->delta)
+				in_host = 1;
+		if (!in_host)
+			continue;
+		uint32_t o = 0, put = 0;
+		for (uint32_t i = 0; i < row->nnz; i++) {
+			if (!put && row->e[i].c > victim) {
+				buf[o++] = (struct fentry){ victim, 1.0 };
+				put = 1;
+			}
+			buf[o++] = row->e[i];
+		}
+		if (!put)
+			buf[o++] = (struct fentry){ victim, 1.0 };
+		if (model_set_row(m, u, buf, o))
+			return -1;
+	}
+	model_recount(m);
+	return 0;
+}
+
+/* One move's change of the model: 1 made, 0 nothing to do, -1 error. */
+static int reseed_column(struct fit *f, struct rng *r)
+{
+	struct model *m = &f->m;
+	if (m->k < 2)
+		return 0;
+	uint32_t host, victim, size_host;
+	if (pick_columns(m, &host, &victim, &size_host))
+		return -1;
+	if (size_host < 2)
+		return 0;
+	/* a random member of the host */
+	uint32_t pick = (uint32_t)rng_below(r, size_host), centre = 0;
+	for (uint32_t u = 0, seen = 0; u < m->n; u++)
+		for (uint32_t i = 0; i < m->rows[u].nnz; i++)
+			if (m->rows[u].e[i].c == host && m->rows[u].e[i].v >= m->delta) {
+				if (seen++ == pick)
+					centre = u;
+			}
+	struct fentry *buf = util_malloc((size_t)m->k + 1, sizeof *buf);
+	if (!buf)
+		return -1;
+	int rc = replant_column(f, host, victim, centre, buf) ? -1 : 1;
+	free(buf);
+	return rc;
+}
+
+/* Reseed a levelled start; returns how the fit ended (LEVELLED when the
+ * moves ran out, or STOPPED/FINISHED/FAILED when something else ended it). */
+static enum fit_state reseed(struct fit *f)
+{
+	struct rng r;
+	rng_init(&r, f->p.seed ^ 0x7ef1e5ULL ^ ((uint64_t)f->start << 48));
+	struct fcsr saved;
+	memset(&saved, 0, sizeof saved);
+	enum fit_state st = FIT_LEVELLED;
+	unsigned fails = 0;
+	/* the moves may spend at most as many sweeps as the climb did (and at
+	 * least RESEED_MIN_BUDGET), so reseeding at most about doubles a fit */
+	uint32_t budget = f->sweep > RESEED_MIN_BUDGET ? f->sweep : RESEED_MIN_BUDGET;
+	uint32_t spent = 0;
+	for (unsigned move = 0; move < RESEED_MAX && fails < RESEED_FAILS && spent < budget;
+	     move++) {
+		if (fit_stopping(f)) {
+			st = FIT_STOPPED;
+			break;
+		}
+		double before = f->trace[f->ntrace - 1].loglik;
+		uint32_t ntrace = f->ntrace, sweep = f->sweep, plateau = f->plateau_sweep;
+		fcsr_release(&saved);
+		if (model_export(&f->m, &saved))
+			return FIT_FAILED;
+		int rc = reseed_column(f, &r);
+		if (rc <= 0) {
+			st = rc < 0 ? FIT_FAILED : FIT_LEVELLED;
+			break;
+		}
+		f->ll_moved_value = fit_loglik(f);
+		f->ll_moved = 1;
+		f->streak = 0;
+		st = fit_run_start(f, 0);
+		spent += f->sweep - sweep;
+		if (st == FIT_FAILED)
+			break;
+		double after = f->trace[f->ntrace - 1].loglik;
+		if (after > before) {
+			fails = 0;
+			f->reseeds++;
+		} else {
+			if (model_import(&f->m, &saved)) {
+				st = FIT_FAILED;
+				break;
+			}
+			f->ntrace = ntrace;
+			f->sweep = sweep;
+			f->plateau_sweep = plateau;
+			fails++;
+		}
+		if (st != FIT_LEVELLED)
+			break;
+	}
+	fcsr_release(&saved);
+	return st;
+}
+
+/* ---- the starts ---- */
+
+/* Start r (0-based) from a fresh seeding: 0 or -1. */
+static int begin_start(struct fit *f, uint32_t r)
+{
+	if (r > 0) {
+		for (uint32_t u = 0; u < f->gw->n; u++)
+			model_set_row(&f->m, u, NULL, 0);
+		model_recount(&f->m);
+		f->ntrace = 0;
+		f->sweep = 0;
+		f->reseeds = 0;
+		f->streak = 0;
+		f->plateau_sweep = 0;
+	}
+	fit_set_state(f, FIT_SEEDING);
+	double t = util_now();
+	int seeded = seed_model(f->gw, &f->m, f->p.seed, r, &f->seeds);
+	f->stats.seed_seconds += util_now() - t;
+	if (seeded || fit_trace_add(f, fit_loglik(f)))
+		return -1;
+	fit_publish(f, FIT_FITTING);
+	return 0;
+}
+
+/* Start r to its first plateau (or its end): a fresh seeding, or at
+ * r == r0 the start where the savepoint ri left it. *climb is set to
+ * the levelled start when ri says its moves were running. */
+static enum fit_state climb_start(struct fit *f, uint32_t r, const struct fit_savepoint *ri,
+				  struct fit_part *climb, enum climb_copy *copy)
+{
+	*copy = CLIMB_NONE;
+	if (!ri) {
+		if (begin_start(f, r))
+			return FIT_FAILED;
+		return fit_run_start(f, 0);
+	}
+	/* an exact resume: the start where the interrupt left it */
+	f->reseeds = 0;
+	if (part_load(f, &ri->cur))
+		return FIT_FAILED;
+	fit_publish(f, FIT_FITTING);
+	if (ri->phase == FIT_PHASE_CLIMB)
+		return fit_run_start(f, 0);
+	*climb = ri->cur;
+	*copy = CLIMB_SAVED;
+	return FIT_LEVELLED;
+}
+
+/* One start: its climb, its moves, and whether it is the best. */
+static enum fit_state one_start(struct fit *f, uint32_t r, const struct fit_savepoint *ri)
+{
+	struct fit_part climb;
+	enum climb_copy copy;
+	f->start = r + 1;
+	enum fit_state st = climb_start(f, r, ri, &climb, &copy);
+	if (st == FIT_LEVELLED && !f->p.no_reseed) {
+		/* kept for an interrupt during the moves (see keep_savepoint) */
+		if (copy == CLIMB_NONE) {
+			if (part_of_model(f, &climb))
+				return FIT_FAILED;
+			copy = CLIMB_OWNED;
+		}
+		f->climb = &climb;
+		st = reseed(f);
+	} else if (copy != CLIMB_NONE) {
+		copy = CLIMB_NONE; /* reseeding is off: the climb is not needed */
+	}
+	if (st == FIT_STOPPED)
+		keep_savepoint(f);
+	f->climb = NULL;
+	if (copy == CLIMB_OWNED)
+		fit_part_release(&climb);
+	if (st == FIT_FAILED || keep_best(f, st))
+		return FIT_FAILED;
+	return st;
+}
+
+enum fit_state fit_run_starts(struct fit *f)
+{
+	enum fit_state final = FIT_FAILED;
+	uint32_t r0 = 0;
+	const struct fit_savepoint *ri = f->res_in;
+	if (ri) {
+		r0 = ri->start - 1;
+		if (best_of_savepoint(f, ri))
+			return FIT_FAILED;
+	}
+	f->in_starts = 1;
+	for (uint32_t r = r0; r < f->starts; r++) {
+		final = one_start(f, r, r == r0 ? ri : NULL);
+		if (final == FIT_FAILED || final == FIT_STOPPED)
+			break;
+	}
+	f->in_starts = 0;
+	if (final != FIT_FAILED && f->best_start && f->best_start != f->start) {
+		enum fit_state keep = final == FIT_STOPPED ? FIT_STOPPED : f->best_state;
+		final = restore_best(f) ? FIT_FAILED : keep;
+	}
+	return final;
+}
