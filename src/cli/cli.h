@@ -115,13 +115,8 @@ int cmd_explore(int argc, char **argv);
 int cmd_simulate(int argc, char **argv);
 int cmd_compare(int argc, char **argv);
 
-/* JSON for the commands' --json: a string from a file (jansson wants
- * UTF-8; one that is not goes out escaped, in ASCII), and a number that
- * may not be finite (as null). The caller owns the new reference. */
-json_t *cli_json_str(const char *s);
-json_t *cli_json_real(double x);
-/* Print root (taken, may be NULL: out of memory) to stdout, indented,
- * reals to 17 digits, and a newline. Returns 0 or -1 with a message. */
-int cli_json_print(json_t *root);
+/* The flags of the commands' --json output (jsonout_print()): indented,
+ * reals to 17 digits. */
+#define CLI_JSON_FLAGS (JSON_INDENT(2) | JSON_REAL_PRECISION(17))
 
 #endif

@@ -27,6 +27,7 @@
 
 #include "cli.h"
 #include "coterie/cover.h"
+#include "coterie/jsonout.h"
 #include "coterie/score.h"
 
 #define PATH_CAP 4096
@@ -76,7 +77,7 @@ static int resolve(const char *arg, char *path)
 static json_t *jside(const struct side *d)
 {
 	json_t *o = json_object();
-	json_object_set_new(o, "file", cli_json_str(d->path));
+	json_object_set_new(o, "file", jsonout_str(d->path));
 	json_object_set_new(o, "communities", json_integer(d->s.communities));
 	json_object_set_new(o, "covered_nodes", json_integer(d->s.covered));
 	json_object_set_new(o, "overlapping_nodes", json_integer(d->s.overlapping));
@@ -98,15 +99,15 @@ static int print_json(const struct side *t, const struct side *f, uint32_t n,
 	json_object_set_new(root, "truth", jside(t));
 	json_object_set_new(root, "found", jside(f));
 	json_object_set_new(root, "nodes", json_integer(n));
-	json_object_set_new(root, "onmi_max", cli_json_real(sc->onmi_max));
-	json_object_set_new(root, "onmi_lfk", cli_json_real(sc->onmi_lfk));
-	json_object_set_new(root, "omega", cli_json_real(sc->omega));
-	json_object_set_new(root, "f1", cli_json_real(sc->f1));
-	json_object_set_new(root, "f1_truth_to_found", cli_json_real(sc->f1_tf));
-	json_object_set_new(root, "f1_found_to_truth", cli_json_real(sc->f1_ft));
+	json_object_set_new(root, "onmi_max", jsonout_real(sc->onmi_max));
+	json_object_set_new(root, "onmi_lfk", jsonout_real(sc->onmi_lfk));
+	json_object_set_new(root, "omega", jsonout_real(sc->omega));
+	json_object_set_new(root, "f1", jsonout_real(sc->f1));
+	json_object_set_new(root, "f1_truth_to_found", jsonout_real(sc->f1_tf));
+	json_object_set_new(root, "f1_found_to_truth", jsonout_real(sc->f1_ft));
 	json_object_set_new(root, "partitions", json_boolean(sc->partitions));
-	json_object_set_new(root, "nmi", sc->partitions ? cli_json_real(sc->nmi) : json_null());
-	return cli_json_print(root);
+	json_object_set_new(root, "nmi", sc->partitions ? jsonout_real(sc->nmi) : json_null());
+	return jsonout_print(root, stdout, CLI_JSON_FLAGS);
 }
 
 /* Why plain NMI does not apply (the files hold every membership, so a

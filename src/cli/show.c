@@ -32,9 +32,11 @@
 
 #include "cli.h"
 #include "coterie/agm.h"
+#include "coterie/checkpoint.h"
 #include "coterie/fit.h"
 #include "coterie/graph.h"
 #include "coterie/inspect.h"
+#include "coterie/jsonout.h"
 #include "coterie/model.h"
 #include "coterie/result.h"
 
@@ -166,22 +168,18 @@ static void more_note(size_t total, size_t n)
 		printf("  ... %zu more (--limit 0 shows all)\n", total - n);
 }
 
-static json_t *jint(uint64_t v)
-{
-	return json_integer(v > (uint64_t)INT64_MAX ? (json_int_t)INT64_MAX : (json_int_t)v);
-}
 
 static json_t *jcommunity(const struct agm_community *c)
 {
 	json_t *o = json_object();
-	json_object_set_new(o, "id", jint(c->id));
-	json_object_set_new(o, "size", jint(c->size));
-	json_object_set_new(o, "internal_edges", jint(c->internal_edges));
-	json_object_set_new(o, "volume", jint(c->volume));
-	json_object_set_new(o, "cut", jint(c->cut));
-	json_object_set_new(o, "density", cli_json_real(c->density));
-	json_object_set_new(o, "conductance", cli_json_real(c->conductance));
-	json_object_set_new(o, "p", cli_json_real(c->p));
+	json_object_set_new(o, "id", jsonout_uint(c->id));
+	json_object_set_new(o, "size", jsonout_uint(c->size));
+	json_object_set_new(o, "internal_edges", jsonout_uint(c->internal_edges));
+	json_object_set_new(o, "volume", jsonout_uint(c->volume));
+	json_object_set_new(o, "cut", jsonout_uint(c->cut));
+	json_object_set_new(o, "density", jsonout_real(c->density));
+	json_object_set_new(o, "conductance", jsonout_real(c->conductance));
+	json_object_set_new(o, "p", jsonout_real(c->p));
 	return o;
 }
 
@@ -199,25 +197,25 @@ static int show_summary(const struct show *s)
 	if (s->json) {
 		json_t *root = json_object();
 		json_t *list = json_array();
-		json_object_set_new(root, "dir", cli_json_str(s->dir));
-		json_object_set_new(root, "nodes", jint(g->n));
-		json_object_set_new(root, "edges", jint(g->m));
-		json_object_set_new(root, "k", jint(ck->params.k));
-		json_object_set_new(root, "ncommunities", jint(a->cover.k));
-		json_object_set_new(root, "covered", jint(a->covered));
-		json_object_set_new(root, "overlapping", jint(a->overlapping));
-		json_object_set_new(root, "sweep", jint(ck->sweep));
+		json_object_set_new(root, "dir", jsonout_str(s->dir));
+		json_object_set_new(root, "nodes", jsonout_uint(g->n));
+		json_object_set_new(root, "edges", jsonout_uint(g->m));
+		json_object_set_new(root, "k", jsonout_uint(ck->params.k));
+		json_object_set_new(root, "ncommunities", jsonout_uint(a->cover.k));
+		json_object_set_new(root, "covered", jsonout_uint(a->covered));
+		json_object_set_new(root, "overlapping", jsonout_uint(a->overlapping));
+		json_object_set_new(root, "sweep", jsonout_uint(ck->sweep));
 		json_object_set_new(root, "state", json_string(fit_state_name(ck->state)));
-		json_object_set_new(root, "seconds", cli_json_real(ck->seconds));
-		json_object_set_new(root, "loglik", have_ll ? cli_json_real(ll) : json_null());
-		json_object_set_new(root, "agm_loglik", cli_json_real(a->loglik));
-		json_object_set_new(root, "epsilon", cli_json_real(ck->epsilon));
-		json_object_set_new(root, "delta", cli_json_real(s->delta));
-		json_object_set_new(root, "min_links", cli_json_real(AGM_MIN_LINKS));
+		json_object_set_new(root, "seconds", jsonout_real(ck->seconds));
+		json_object_set_new(root, "loglik", have_ll ? jsonout_real(ll) : json_null());
+		json_object_set_new(root, "agm_loglik", jsonout_real(a->loglik));
+		json_object_set_new(root, "epsilon", jsonout_real(ck->epsilon));
+		json_object_set_new(root, "delta", jsonout_real(s->delta));
+		json_object_set_new(root, "min_links", jsonout_real(AGM_MIN_LINKS));
 		for (size_t i = 0; i < n; i++)
 			json_array_append_new(list, jcommunity(&a->comms[i]));
 		json_object_set_new(root, "communities", list);
-		return cli_json_print(root);
+		return jsonout_print(root, stdout, CLI_JSON_FLAGS);
 	}
 
 	char buf[NAME_CAP];
@@ -283,25 +281,25 @@ static int show_node(const struct show *s, const char *name)
 	if (s->json) {
 		json_t *root = json_object();
 		json_t *list = json_array();
-		json_object_set_new(root, "node", cli_json_str(g->names[u]));
-		json_object_set_new(root, "id", jint((uint64_t)u));
-		json_object_set_new(root, "degree", jint(nv.degree));
-		json_object_set_new(root, "memberships", jint(nv.nmember));
-		json_object_set_new(root, "naffiliations", jint(nv.naffil));
-		json_object_set_new(root, "unexplained", jint(nv.unexplained));
-		json_object_set_new(root, "delta", cli_json_real(s->delta));
-		json_object_set_new(root, "min_links", cli_json_real(AGM_MIN_LINKS));
+		json_object_set_new(root, "node", jsonout_str(g->names[u]));
+		json_object_set_new(root, "id", jsonout_uint((uint64_t)u));
+		json_object_set_new(root, "degree", jsonout_uint(nv.degree));
+		json_object_set_new(root, "memberships", jsonout_uint(nv.nmember));
+		json_object_set_new(root, "naffiliations", jsonout_uint(nv.naffil));
+		json_object_set_new(root, "unexplained", jsonout_uint(nv.unexplained));
+		json_object_set_new(root, "delta", jsonout_real(s->delta));
+		json_object_set_new(root, "min_links", jsonout_real(AGM_MIN_LINKS));
 		for (size_t i = 0; i < n; i++) {
 			const struct inspect_affil *f = &nv.affil[i];
 			json_t *o = json_object();
-			json_object_set_new(o, "community", jint(f->comm));
-			json_object_set_new(o, "strength", cli_json_real(f->strength));
+			json_object_set_new(o, "community", jsonout_uint(f->comm));
+			json_object_set_new(o, "strength", jsonout_real(f->strength));
 			json_object_set_new(o, "member", json_boolean(f->member));
-			json_object_set_new(o, "explained", jint(f->explained));
+			json_object_set_new(o, "explained", jsonout_uint(f->explained));
 			json_array_append_new(list, o);
 		}
 		json_object_set_new(root, "affiliations", list);
-		rc = cli_json_print(root);
+		rc = jsonout_print(root, stdout, CLI_JSON_FLAGS);
 		inspect_node_release(&nv);
 		return rc;
 	}
@@ -377,12 +375,12 @@ static int show_community(const struct show *s, uint32_t id)
 		json_t *list = json_array();
 		for (size_t i = 0; i < n; i++) {
 			json_t *o = json_object();
-			json_object_set_new(o, "node", cli_json_str(g->names[order[i]]));
-			json_object_set_new(o, "strength", cli_json_real(str[i]));
+			json_object_set_new(o, "node", jsonout_str(g->names[order[i]]));
+			json_object_set_new(o, "strength", jsonout_real(str[i]));
 			json_array_append_new(list, o);
 		}
 		json_object_set_new(root, "members", list);
-		rc = cli_json_print(root);
+		rc = jsonout_print(root, stdout, CLI_JSON_FLAGS);
 	} else {
 		printf("community    %" PRIu32 "\n", c->id);
 		printf("members      %" PRIu32 "\n", c->size);
@@ -426,28 +424,28 @@ static int show_pairs(const struct show *s, uint32_t id, int missing)
 	if (s->json) {
 		json_t *root = json_object();
 		json_t *list = json_array();
-		json_object_set_new(root, "community", jint(id));
-		json_object_set_new(root, "members", jint(size));
+		json_object_set_new(root, "community", jsonout_uint(id));
+		json_object_set_new(root, "members", jsonout_uint(size));
 		if (missing)
-			json_object_set_new(root, "pool", jint(pool));
-		json_object_set_new(root, "total", jint(total));
+			json_object_set_new(root, "pool", jsonout_uint(pool));
+		json_object_set_new(root, "total", jsonout_uint(total));
 		for (size_t i = 0; i < n; i++) {
 			json_t *o = json_object();
 			if (missing) {
-				json_object_set_new(o, "u", cli_json_str(g->names[p[i].u]));
-				json_object_set_new(o, "v", cli_json_str(g->names[p[i].v]));
+				json_object_set_new(o, "u", jsonout_str(g->names[p[i].u]));
+				json_object_set_new(o, "v", jsonout_str(g->names[p[i].v]));
 			} else {
 				int64_t e = inspect_explaining_community(F, p[i].u, p[i].v);
-				json_object_set_new(o, "member", cli_json_str(g->names[p[i].u]));
-				json_object_set_new(o, "other", cli_json_str(g->names[p[i].v]));
+				json_object_set_new(o, "member", jsonout_str(g->names[p[i].u]));
+				json_object_set_new(o, "other", jsonout_str(g->names[p[i].v]));
 				json_object_set_new(o, "explained_by",
-						    e < 0 ? json_null() : jint((uint64_t)e));
+						    e < 0 ? json_null() : jsonout_uint((uint64_t)e));
 			}
-			json_object_set_new(o, "prob", cli_json_real(p[i].prob));
+			json_object_set_new(o, "prob", jsonout_real(p[i].prob));
 			json_array_append_new(list, o);
 		}
 		json_object_set_new(root, missing ? "pairs" : "edges", list);
-		rc = cli_json_print(root);
+		rc = jsonout_print(root, stdout, CLI_JSON_FLAGS);
 		free(p);
 		return rc;
 	}
@@ -532,26 +530,26 @@ static int show_edge(const struct show *s, const char *na, const char *nb)
 	if (s->json) {
 		json_t *root = json_object();
 		json_t *list = json_array();
-		json_object_set_new(root, "a", cli_json_str(g->names[u]));
-		json_object_set_new(root, "b", cli_json_str(g->names[v]));
+		json_object_set_new(root, "a", jsonout_str(g->names[u]));
+		json_object_set_new(root, "b", jsonout_str(g->names[v]));
 		json_object_set_new(root, "linked", json_boolean(e.linked));
-		json_object_set_new(root, "dot", cli_json_real(e.x));
-		json_object_set_new(root, "prob", cli_json_real(e.prob));
-		json_object_set_new(root, "prob_communities", cli_json_real(e.prob_comms));
-		json_object_set_new(root, "agm_prob", cli_json_real(e.agm_prob));
-		json_object_set_new(root, "epsilon", cli_json_real(s->ck.epsilon));
+		json_object_set_new(root, "dot", jsonout_real(e.x));
+		json_object_set_new(root, "prob", jsonout_real(e.prob));
+		json_object_set_new(root, "prob_communities", jsonout_real(e.prob_comms));
+		json_object_set_new(root, "agm_prob", jsonout_real(e.agm_prob));
+		json_object_set_new(root, "epsilon", jsonout_real(s->ck.epsilon));
 		for (size_t i = 0; i < n; i++) {
 			const struct inspect_share *sh = &e.share[i];
 			json_t *o = json_object();
-			json_object_set_new(o, "community", jint(sh->comm));
-			json_object_set_new(o, "product", cli_json_real(sh->product));
-			json_object_set_new(o, "alone", cli_json_real(sh->alone));
+			json_object_set_new(o, "community", jsonout_uint(sh->comm));
+			json_object_set_new(o, "product", jsonout_real(sh->product));
+			json_object_set_new(o, "alone", jsonout_real(sh->alone));
 			json_object_set_new(o, "both_members", json_boolean(sh->both_members));
-			json_object_set_new(o, "p", cli_json_real(sh->p));
+			json_object_set_new(o, "p", jsonout_real(sh->p));
 			json_array_append_new(list, o);
 		}
 		json_object_set_new(root, "communities", list);
-		rc = cli_json_print(root);
+		rc = jsonout_print(root, stdout, CLI_JSON_FLAGS);
 		inspect_edge_release(&e);
 		return rc;
 	}
@@ -599,8 +597,8 @@ static int show_links(const struct show *s)
 	if (s->json) {
 		root = json_object();
 		list = json_array();
-		json_object_set_new(root, "total", jint(g->m));
-		json_object_set_new(root, "epsilon", cli_json_real(s->ck.epsilon));
+		json_object_set_new(root, "total", jsonout_uint(g->m));
+		json_object_set_new(root, "epsilon", jsonout_real(s->ck.epsilon));
 	} else {
 		printf("%" PRIu64 " edge%s in the order of the graph; probability is "
 		       "1 - exp(-(F_a.F_b + qeps))\n\n", g->m, g->m == 1 ? "" : "s");
@@ -618,11 +616,11 @@ static int show_links(const struct show *s)
 			i++;
 			if (s->json) {
 				json_t *o = json_object();
-				json_object_set_new(o, "a", cli_json_str(g->names[u]));
-				json_object_set_new(o, "b", cli_json_str(g->names[v]));
-				json_object_set_new(o, "prob", cli_json_real(p));
+				json_object_set_new(o, "a", jsonout_str(g->names[u]));
+				json_object_set_new(o, "b", jsonout_str(g->names[v]));
+				json_object_set_new(o, "prob", jsonout_real(p));
 				json_object_set_new(o, "explained_by",
-						    c < 0 ? json_null() : jint((uint64_t)c));
+						    c < 0 ? json_null() : jsonout_uint((uint64_t)c));
 				json_array_append_new(list, o);
 				continue;
 			}
@@ -635,7 +633,7 @@ static int show_links(const struct show *s)
 		}
 	if (s->json) {
 		json_object_set_new(root, "edges", list);
-		return cli_json_print(root);
+		return jsonout_print(root, stdout, CLI_JSON_FLAGS);
 	}
 	more_note((size_t)g->m, n);
 	return 0;
@@ -743,7 +741,7 @@ static int show_run(int argc, char **argv, const char *edge_a, const char *edge_
 		error("the folder name is too long: %s", util_escape(s.dir, buf, sizeof buf, 1));
 		return 1;
 	}
-	if (result_read_checkpoint(path, &s.ck))
+	if (checkpoint_read(path, &s.ck))
 		return 1;
 	s.delta = sqrt(-log1p(-s.ck.epsilon));
 	if (agm_from_strengths(&s.agm, s.ck.graph, &s.ck.F, s.ck.epsilon, s.delta,

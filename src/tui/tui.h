@@ -53,6 +53,8 @@ struct tui_config {
 	double t_begin;               /* when the command started (run.json) */
 	const struct select_result *selection; /* -k auto's search (borrowed), or NULL */
 	double checkpoint_every;      /* seconds between autosaves; 0: default */
+	int one_start;                /* the fit goes on as one start (reopened
+				       * without a savepoint): outdir.h */
 };
 
 struct select_run;
@@ -193,6 +195,7 @@ struct view {
 	int utf8, colour;
 	double t_begin;
 	const struct select_result *selection; /* -k auto's search, or NULL */
+	struct outdir *od;    /* the result folder (outdir.h); owned by tui_run() */
 
 	/* the snapshot on screen */
 	struct snapshot *snap;
