@@ -169,18 +169,116 @@ static uint32_t chunk_of(const uint64_t *off, uint32_t k, uint64_t j)
 	return lo;
 }
 
-/* Steps 1 to 3: fill s->truth. */
-int simulate_plant_cover(const struct simulate_params *p, struct simulate *s)
+/* The slots dealt so far, per node: dealt[doff[u] .. + cnt[u]), at most
+ * the node's number of slots. */
+struct dealing {
+	uint32_t *slot;     /* the membership slots, cut into communities by off */
+	const uint64_t *off;
+	uint32_t k;
+	uint64_t want;      /* slots */
+	uint32_t *stamp;    /* the last community a node was seen in */
+	uint64_t *doff;
+	uint32_t *dealt;
+	uint8_t *cnt;
+	struct rng r;
+};
+
+/* Slot i of community c holds u, which c already has: swap it with a slot
+ * j elsewhere whose node v is not in c, and u not in v's community
+ * (checked there only when that one is already dealt). Returns 0 or -1. */
+static int swap_repeat(struct dealing *d, uint32_t c, uint64_t i)
 {
-	uint32_t n = p->n;
+	uint64_t a = d->off[c], b = d->off[c + 1];
+	uint32_t u = d->slot[i];
+	for (int tries = 0; tries < 100000; tries++) {
+		uint64_t j = rng_below(&d->r, d->want);
+		if (j >= a && j < b)
+			continue;
+		uint32_t v = d->slot[j];
+		if (d->stamp[v] == c)
+			continue;
+		uint32_t e = chunk_of(d->off, d->k, j);
+		if (e < c) {
+			int has = 0;
+			for (uint32_t x = 0; x < d->cnt[u] && !has; x++)
+				has = d->dealt[d->doff[u] + x] == e;
+			if (has)
+				continue;
+			for (uint32_t x = 0; x < d->cnt[v]; x++) /* v leaves e ... */
+				if (d->dealt[d->doff[v] + x] == e) {
+					d->dealt[d->doff[v] + x] = d->dealt[d->doff[v] + d->cnt[v] - 1];
+					d->cnt[v]--;
+					break;
+				}
+			d->dealt[d->doff[u] + d->cnt[u]++] = e; /* ... and u joins it */
+		}
+		d->slot[j] = u;
+		d->slot[i] = v;
+		d->stamp[v] = c;
+		return 0;
+	}
+	return error("cannot deal the memberships without putting a node twice in a "
+		     "community; try fewer memberships per node or smaller communities");
+}
+
+/* Step 3: deal the slots (node u written m[u] times) to the communities
+ * cut by off, into slot (want entries), with no node twice in one; m[u]
+ * ends as the number of u's communities (unchanged: no slot is lost).
+ * Returns 0 or -1. */
+static int deal_slots(const struct simulate_params *p, uint8_t *m, uint32_t n,
+		      const uint64_t *off, uint32_t k, uint64_t want, uint32_t *slot)
+{
+	struct dealing d = { slot, off, k, want, NULL, NULL, NULL, m, { { 0 } } };
 	int rc = -1;
-	uint8_t *m = util_calloc(n, 1);
-	uint32_t *perm = util_malloc(n, sizeof *perm);
-	uint32_t *sizes = NULL, *stamp = NULL, *slot = NULL, *dealt = NULL;
-	uint64_t *doff = NULL;
-	uint32_t k = 0;
-	if (!m || !perm)
+	uint64_t t = 0;
+	for (uint32_t u = 0; u < n; u++)
+		for (uint32_t i = 0; i < m[u]; i++)
+			slot[t++] = u;
+	simulate_stream(&d.r, p->seed, S_DEAL, 0);
+	for (uint64_t i = want; i > 1; i--) { /* Fisher-Yates over 64-bit indices */
+		uint64_t j = rng_below(&d.r, i);
+		uint32_t x = slot[i - 1];
+		slot[i - 1] = slot[j];
+		slot[j] = x;
+	}
+	d.stamp = util_malloc(n, sizeof *d.stamp);
+	d.doff = util_malloc((size_t)n + 1, sizeof *d.doff);
+	d.dealt = util_malloc(want ? want : 1, sizeof *d.dealt);
+	if (!d.stamp || !d.doff || !d.dealt)
 		goto out;
+	d.doff[0] = 0;
+	for (uint32_t u = 0; u < n; u++)
+		d.doff[u + 1] = d.doff[u] + m[u];
+	memset(m, 0, n); /* from here m[u] counts u's dealt communities */
+	memset(d.stamp, 0xff, (size_t)n * sizeof *d.stamp);
+	for (uint32_t c = 0; c < k; c++) {
+		for (uint64_t i = off[c]; i < off[c + 1]; i++) {
+			uint32_t u = slot[i];
+			if (d.stamp[u] != c)
+				d.stamp[u] = c;
+			else if (swap_repeat(&d, c, i))
+				goto out;
+		}
+		for (uint64_t i = off[c]; i < off[c + 1]; i++) {
+			uint32_t u = slot[i];
+			d.dealt[d.doff[u] + m[u]++] = c;
+		}
+	}
+	rc = 0;
+out:
+	free(d.stamp);
+	free(d.doff);
+	free(d.dealt);
+	return rc;
+}
+
+/* Steps 1 and 2: memberships per node (m, n of them) and community sizes
+ * (*sizes_out, *k_out of them, caller frees), the counts nudged to add up
+ * to the sizes; *want is that sum. Returns 0 or -1. */
+static int plant_counts(const struct simulate_params *p, uint8_t *m, uint32_t *perm,
+			uint32_t **sizes_out, uint32_t *k_out, uint64_t *want)
+{
+	uint32_t n = p->n, k = 0;
 	struct rng r;
 	simulate_stream(&r, p->seed, S_MEMBERSHIPS, 0);
 	for (uint32_t u = 0; u < n; u++)
@@ -192,12 +290,14 @@ int simulate_plant_cover(const struct simulate_params *p, struct simulate *s)
 		m[u] = (uint8_t)(i < over ? 2 + rng_below(&r, p->max_memberships - 1) : 1);
 		total += m[u];
 	}
-	sizes = draw_sizes(p, total, &k);
+	uint32_t *sizes = draw_sizes(p, total, &k);
 	if (!sizes)
-		goto out;
-	uint64_t want = 0;
+		return -1;
+	*sizes_out = sizes;
+	*k_out = k;
+	*want = 0;
 	for (uint32_t c = 0; c < k; c++)
-		want += sizes[c];
+		*want += sizes[c];
 	uint32_t cap = p->max_memberships < k ? p->max_memberships : k;
 	for (uint32_t u = 0; u < n; u++)
 		if (m[u] > cap) {
@@ -205,94 +305,34 @@ int simulate_plant_cover(const struct simulate_params *p, struct simulate *s)
 			m[u] = (uint8_t)cap;
 		}
 	rng_shuffle_u32(&r, perm, n); /* a fresh order for the nudging */
-	if (nudge_counts(m, perm, n, &total, want, cap, p->k ? p->overlap : 0.0))
-		goto out;
+	return nudge_counts(m, perm, n, &total, *want, cap, p->k ? p->overlap : 0.0);
+}
 
-	/* deal the slots */
+/* Steps 1 to 3: fill s->truth. */
+int simulate_plant_cover(const struct simulate_params *p, struct simulate *s)
+{
+	uint32_t n = p->n;
+	int rc = -1;
+	uint8_t *m = util_calloc(n, 1);
+	uint32_t *perm = util_malloc(n, sizeof *perm);
+	uint32_t *sizes = NULL, *slot = NULL;
+	uint32_t k = 0;
+	uint64_t want = 0;
+	if (!m || !perm || plant_counts(p, m, perm, &sizes, &k, &want))
+		goto out;
 	struct cover *cv = &s->truth;
 	cv->n = n;
 	cv->k = k;
 	cv->off = util_malloc((size_t)k + 1, sizeof *cv->off);
 	cv->label = util_calloc(k ? k : 1, sizeof *cv->label);
 	slot = util_malloc(want ? want : 1, sizeof *slot);
-	stamp = util_malloc(n, sizeof *stamp);
-	if (!cv->off || !cv->label || !slot || !stamp)
+	if (!cv->off || !cv->label || !slot)
 		goto out;
 	cv->off[0] = 0;
 	for (uint32_t c = 0; c < k; c++)
 		cv->off[c + 1] = cv->off[c] + sizes[c];
-	uint64_t t = 0;
-	for (uint32_t u = 0; u < n; u++)
-		for (uint32_t i = 0; i < m[u]; i++)
-			slot[t++] = u;
-	struct rng rd;
-	simulate_stream(&rd, p->seed, S_DEAL, 0);
-	for (uint64_t i = want; i > 1; i--) { /* Fisher-Yates over 64-bit indices */
-		uint64_t j = rng_below(&rd, i);
-		uint32_t x = slot[i - 1];
-		slot[i - 1] = slot[j];
-		slot[j] = x;
-	}
-	/* the communities dealt so far, per node: dealt[doff[u] .. + ndealt[u]),
-	 * at most m[u] of them (a node keeps its number of slots) */
-	doff = util_malloc((size_t)n + 1, sizeof *doff);
-	dealt = util_malloc(want ? want : 1, sizeof *dealt);
-	if (!doff || !dealt)
+	if (deal_slots(p, m, n, cv->off, k, want, slot))
 		goto out;
-	doff[0] = 0;
-	for (uint32_t u = 0; u < n; u++)
-		doff[u + 1] = doff[u] + m[u];
-	memset(m, 0, n); /* from here m[u] counts u's dealt communities */
-	memset(stamp, 0xff, (size_t)n * sizeof *stamp);
-	for (uint32_t c = 0; c < k; c++) {
-		uint64_t a = cv->off[c], b = cv->off[c + 1];
-		for (uint64_t i = a; i < b; i++) {
-			uint32_t u = slot[i];
-			if (stamp[u] != c) {
-				stamp[u] = c;
-				continue;
-			}
-			/* u is twice in c: swap with a slot v elsewhere, v not in c, u not
-			 * in v's community (checked there only if it is already dealt) */
-			int done = 0;
-			for (int tries = 0; tries < 100000 && !done; tries++) {
-				uint64_t j = rng_below(&rd, want);
-				if (j >= a && j < b)
-					continue;
-				uint32_t v = slot[j];
-				if (stamp[v] == c)
-					continue;
-				uint32_t d = chunk_of(cv->off, k, j);
-				if (d < c) {
-					int has = 0;
-					for (uint32_t x = 0; x < m[u] && !has; x++)
-						has = dealt[doff[u] + x] == d;
-					if (has)
-						continue;
-					for (uint32_t x = 0; x < m[v]; x++) /* v leaves d ... */
-						if (dealt[doff[v] + x] == d) {
-							dealt[doff[v] + x] = dealt[doff[v] + m[v] - 1];
-							m[v]--;
-							break;
-						}
-					dealt[doff[u] + m[u]++] = d; /* ... and u joins it */
-				}
-				slot[j] = u;
-				slot[i] = v;
-				stamp[v] = c;
-				done = 1;
-			}
-			if (!done) {
-				error("cannot deal the memberships without putting a node twice in a "
-				      "community; try fewer memberships per node or smaller communities");
-				goto out;
-			}
-		}
-		for (uint64_t i = a; i < b; i++) {
-			uint32_t u = slot[i];
-			dealt[doff[u] + m[u]++] = c;
-		}
-	}
 	for (uint32_t c = 0; c < k; c++) {
 		qsort(slot + cv->off[c], sizes[c], sizeof *slot, cmp_u32);
 		char lab[16];
@@ -313,10 +353,6 @@ out:
 	free(m);
 	free(perm);
 	free(sizes);
-	free(stamp);
 	free(slot);
-	free(dealt);
-	free(doff);
 	return rc;
 }
-
