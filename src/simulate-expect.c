@@ -125,52 +125,81 @@ static uint64_t rec_compress(uint32_t *rec, uint64_t n)
 	return m;
 }
 
-static int multi_build(struct multi *mu, const struct cover *cv)
+/* What multi_build() works with: each node's communities
+ * (ncom[noff[u] .. noff[u+1]), increasing), the types (trep[t] a node of
+ * type t, held by tcnt[t] nodes), the (c, d, type) triples sorted, and the
+ * records of shared sets (RW words each). */
+struct mwork {
+	uint64_t *noff;
+	uint32_t *ncom;
+	uint32_t *trep;
+	uint64_t *tcnt;
+	uint32_t ntype;
+	struct trip *tr;
+	uint64_t ntrip;
+	uint32_t *rec;
+	uint64_t nrec, rcap;
+};
+
+static void mwork_release(struct mwork *w)
 {
-	memset(mu, 0, sizeof *mu);
+	free(w->noff);
+	free(w->ncom);
+	free(w->trep);
+	free(w->tcnt);
+	free(w->tr);
+	free(w->rec);
+}
+
+/* Each node's communities, and per community C(size, 2). Returns 0 or -1. */
+static int node_lists(struct mwork *w, struct multi *mu, const struct cover *cv)
+{
 	uint32_t n = cv->n, k = cv->k;
 	uint64_t nm = cv->off[k];
-	int rc = -1;
-	uint64_t *noff = util_calloc((size_t)n + 1, sizeof *noff);
-	uint32_t *ncom = util_malloc(nm ? nm : 1, sizeof *ncom);
-	uint64_t *fill = NULL, *tcnt = NULL;
-	uint32_t *over = NULL, *trep = NULL, *rec = NULL;
-	struct trip *tr = NULL;
-	mu->k = k;
+	w->noff = util_calloc((size_t)n + 1, sizeof *w->noff);
+	w->ncom = util_malloc(nm ? nm : 1, sizeof *w->ncom);
 	mu->sizes2 = util_malloc(k ? k : 1, sizeof *mu->sizes2);
-	if (!noff || !ncom || !mu->sizes2)
-		goto out;
+	if (!w->noff || !w->ncom || !mu->sizes2)
+		return -1;
 	for (uint32_t c = 0; c < k; c++) {
 		uint64_t sz = cover_size(cv, c);
 		mu->sizes2[c] = sz * (sz - (sz > 0)) / 2;
 		for (uint64_t i = cv->off[c]; i < cv->off[c + 1]; i++)
-			noff[cv->mem[i] + 1]++;
+			w->noff[cv->mem[i] + 1]++;
 	}
 	for (uint32_t u = 0; u < n; u++)
-		noff[u + 1] += noff[u];
-	if (!(fill = util_malloc((size_t)n + 1, sizeof *fill)))
-		goto out;
-	memcpy(fill, noff, ((size_t)n + 1) * sizeof *fill);
+		w->noff[u + 1] += w->noff[u];
+	uint64_t *fill = util_malloc((size_t)n + 1, sizeof *fill);
+	if (!fill)
+		return -1;
+	memcpy(fill, w->noff, ((size_t)n + 1) * sizeof *fill);
 	for (uint32_t c = 0; c < k; c++)
 		for (uint64_t i = cv->off[c]; i < cv->off[c + 1]; i++)
-			ncom[fill[cv->mem[i]]++] = c; /* increasing c per node */
+			w->ncom[fill[cv->mem[i]]++] = c; /* increasing c per node */
+	free(fill);
+	return 0;
+}
 
-	/* the types: overlapping nodes sorted by their sets */
+/* The types: overlapping nodes sorted by their sets. Returns 0 or -1. */
+static int node_types(struct mwork *w, uint32_t n)
+{
+	const uint64_t *noff = w->noff;
+	const uint32_t *ncom = w->ncom;
 	uint32_t nover = 0;
 	for (uint32_t u = 0; u < n; u++) {
 		uint64_t d = noff[u + 1] - noff[u];
-		if (d > SIMULATE_MAX_MEMBERSHIPS) {
-			error("a node is in %" PRIu64 " communities; at most %u are supported", d,
-			      SIMULATE_MAX_MEMBERSHIPS);
-			goto out;
-		}
+		if (d > SIMULATE_MAX_MEMBERSHIPS)
+			return error("a node is in %" PRIu64 " communities; at most %u are supported",
+				     d, SIMULATE_MAX_MEMBERSHIPS);
 		nover += d >= 2;
 	}
-	over = util_malloc(nover ? nover : 1, sizeof *over);
-	trep = util_malloc(nover ? nover : 1, sizeof *trep);
-	tcnt = util_malloc(nover ? nover : 1, sizeof *tcnt);
-	if (!over || !trep || !tcnt)
-		goto out;
+	uint32_t *over = util_malloc(nover ? nover : 1, sizeof *over);
+	w->trep = util_malloc(nover ? nover : 1, sizeof *w->trep);
+	w->tcnt = util_malloc(nover ? nover : 1, sizeof *w->tcnt);
+	if (!over || !w->trep || !w->tcnt) {
+		free(over);
+		return -1;
+	}
 	nover = 0;
 	for (uint32_t u = 0; u < n; u++)
 		if (noff[u + 1] - noff[u] >= 2)
@@ -184,98 +213,134 @@ static int multi_build(struct multi *mu, const struct cover *cv)
 		uint32_t u = over[i];
 		int same = 0;
 		if (ntype) {
-			uint32_t r = trep[ntype - 1];
+			uint32_t r = w->trep[ntype - 1];
 			uint64_t lu = noff[u + 1] - noff[u], lr = noff[r + 1] - noff[r];
 			same = lu == lr && !memcmp(ncom + noff[u], ncom + noff[r], lu * sizeof *ncom);
 		}
 		if (same) {
-			tcnt[ntype - 1]++;
+			w->tcnt[ntype - 1]++;
 		} else {
-			trep[ntype] = u; /* a node of the type stands for its set */
-			tcnt[ntype++] = 1;
+			w->trep[ntype] = u; /* a node of the type stands for its set */
+			w->tcnt[ntype++] = 1;
 		}
 	}
+	w->ntype = ntype;
+	free(over);
+	return 0;
+}
+
+/* The (c, d, type) triples for every pair c < d of a type's set, sorted,
+ * and the refusal of too many type pairs to visit. Returns 0 or -1. */
+static int type_triples(struct mwork *w)
+{
 	uint64_t ntrip = 0;
-	for (uint32_t t = 0; t < ntype; t++) {
-		uint64_t d = noff[trep[t] + 1] - noff[trep[t]];
+	for (uint32_t t = 0; t < w->ntype; t++) {
+		uint64_t d = w->noff[w->trep[t] + 1] - w->noff[w->trep[t]];
 		ntrip += d * (d - 1) / 2;
 	}
-	tr = util_malloc(ntrip ? ntrip : 1, sizeof *tr);
+	struct trip *tr = w->tr = util_malloc(ntrip ? ntrip : 1, sizeof *tr);
 	if (!tr)
-		goto out;
+		return -1;
+	w->ntrip = ntrip;
 	uint64_t x = 0;
-	for (uint32_t t = 0; t < ntype; t++) {
-		uint32_t u = trep[t];
-		for (uint64_t a = noff[u]; a < noff[u + 1]; a++)
-			for (uint64_t b = a + 1; b < noff[u + 1]; b++)
-				tr[x++] = (struct trip){ ncom[a], ncom[b], t };
+	for (uint32_t t = 0; t < w->ntype; t++) {
+		uint32_t u = w->trep[t];
+		for (uint64_t a = w->noff[u]; a < w->noff[u + 1]; a++)
+			for (uint64_t b = a + 1; b < w->noff[u + 1]; b++)
+				tr[x++] = (struct trip){ w->ncom[a], w->ncom[b], t };
 	}
 	if (ntrip > 1)
 		qsort(tr, ntrip, sizeof *tr, cmp_trip);
-	double bound = 0.0; /* type pairs visited below */
+	double bound = 0.0; /* type pairs visited by shared_sets() */
 	for (uint64_t g = 0, h; g < ntrip; g = h) {
 		for (h = g; h < ntrip && tr[h].c == tr[g].c && tr[h].d == tr[g].d; h++)
 			;
 		bound += (double)(h - g) * (double)(h - g + 1) / 2.0;
 	}
-	if (bound > SIMULATE_MAX_MULTI_PAIRS) {
-		error("too many kinds of overlap to count exactly (%.3g pairs of membership sets "
-		      "share two communities or more; at most %.3g): lower the overlap or the "
-		      "memberships per node", bound, SIMULATE_MAX_MULTI_PAIRS);
-		goto out;
+	if (bound > SIMULATE_MAX_MULTI_PAIRS)
+		return error("too many kinds of overlap to count exactly (%.3g pairs of membership "
+			     "sets share two communities or more; at most %.3g): lower the overlap "
+			     "or the memberships per node", bound, SIMULATE_MAX_MULTI_PAIRS);
+	return 0;
+}
+
+/* Append the record of pairs node pairs sharing set (ns ids), compressing
+ * or growing the records when full. Returns 0 or -1. */
+static int add_record(struct mwork *w, uint64_t pairs, const uint32_t *set, uint32_t ns)
+{
+	if (w->nrec == w->rcap) {
+		uint64_t before = w->nrec;
+		if (w->nrec >= (1u << 20))
+			w->nrec = rec_compress(w->rec, w->nrec);
+		if (w->nrec > before / 2 || !w->rcap) { /* compressing did not free enough */
+			uint64_t nc = w->rcap ? w->rcap * 2 : 1024;
+			uint32_t *y = util_realloc(w->rec, nc, RW * sizeof *w->rec);
+			if (!y)
+				return -1;
+			w->rec = y;
+			w->rcap = nc;
+		}
 	}
-	uint64_t nrec = 0, rcap = 0;
-	for (uint64_t g = 0; g < ntrip;) {
-		uint64_t h = g;
-		while (h < ntrip && tr[h].c == tr[g].c && tr[h].d == tr[g].d)
-			h++;
-		for (uint64_t i = g; i < h; i++)
-			for (uint64_t j = i; j < h; j++) {
-				uint32_t ta = tr[i].t, tb = tr[j].t, u = trep[ta], v = trep[tb];
-				uint32_t set[SIMULATE_MAX_MEMBERSHIPS], ns = 0;
-				uint64_t a = noff[u], b = noff[v];
-				while (a < noff[u + 1] && b < noff[v + 1]) {
-					if (ncom[a] == ncom[b]) {
-						set[ns++] = ncom[a];
-						a++;
-						b++;
-					} else if (ncom[a] < ncom[b]) {
-						a++;
-					} else {
-						b++;
-					}
+	uint32_t *r = w->rec + w->nrec * RW;
+	r[0] = (uint32_t)pairs;
+	r[1] = (uint32_t)(pairs >> 32);
+	r[2] = ns;
+	for (unsigned z = 0; z < SIMULATE_MAX_MEMBERSHIPS; z++)
+		r[3 + z] = z < ns ? set[z] : UINT32_MAX;
+	w->nrec++;
+	return 0;
+}
+
+/* The sets shared by two types of the group tr[g .. h) (all holding c and
+ * d), each counted once: in the group of its first two communities. */
+static int shared_sets(struct mwork *w, uint64_t g, uint64_t h)
+{
+	const struct trip *tr = w->tr;
+	const uint64_t *noff = w->noff;
+	const uint32_t *ncom = w->ncom;
+	for (uint64_t i = g; i < h; i++)
+		for (uint64_t j = i; j < h; j++) {
+			uint32_t ta = tr[i].t, tb = tr[j].t, u = w->trep[ta], v = w->trep[tb];
+			uint32_t set[SIMULATE_MAX_MEMBERSHIPS], ns = 0;
+			uint64_t a = noff[u], b = noff[v];
+			while (a < noff[u + 1] && b < noff[v + 1]) {
+				if (ncom[a] == ncom[b]) {
+					set[ns++] = ncom[a];
+					a++;
+					b++;
+				} else if (ncom[a] < ncom[b]) {
+					a++;
+				} else {
+					b++;
 				}
-				/* counted once: in the group of the set's first two */
-				if (set[0] != tr[g].c || set[1] != tr[g].d)
-					continue;
-				uint64_t pairs = i == j ? tcnt[ta] * (tcnt[ta] - 1) / 2 : tcnt[ta] * tcnt[tb];
-				if (!pairs)
-					continue;
-				if (nrec == rcap) {
-					uint64_t before = nrec;
-					if (nrec >= (1u << 20))
-						nrec = rec_compress(rec, nrec);
-					if (nrec > before / 2 || !rcap) { /* compressing did not free enough */
-						uint64_t nc = rcap ? rcap * 2 : 1024;
-						uint32_t *y = util_realloc(rec, nc, RW * sizeof *rec);
-						if (!y)
-							goto out;
-						rec = y;
-						rcap = nc;
-					}
-				}
-				uint32_t *r = rec + nrec * RW;
-				r[0] = (uint32_t)pairs;
-				r[1] = (uint32_t)(pairs >> 32);
-				r[2] = ns;
-				for (unsigned z = 0; z < SIMULATE_MAX_MEMBERSHIPS; z++)
-					r[3 + z] = z < ns ? set[z] : UINT32_MAX;
-				nrec++;
 			}
-		g = h;
+			if (set[0] != tr[g].c || set[1] != tr[g].d)
+				continue;
+			uint64_t pairs = i == j ? w->tcnt[ta] * (w->tcnt[ta] - 1) / 2 :
+						  w->tcnt[ta] * w->tcnt[tb];
+			if (pairs && add_record(w, pairs, set, ns))
+				return -1;
+		}
+	return 0;
+}
+
+static int multi_build(struct multi *mu, const struct cover *cv)
+{
+	struct mwork w;
+	memset(mu, 0, sizeof *mu);
+	memset(&w, 0, sizeof w);
+	mu->k = cv->k;
+	int rc = -1;
+	if (node_lists(&w, mu, cv) || node_types(&w, cv->n) || type_triples(&w))
+		goto out;
+	for (uint64_t g = 0, h; g < w.ntrip; g = h) {
+		for (h = g; h < w.ntrip && w.tr[h].c == w.tr[g].c && w.tr[h].d == w.tr[g].d; h++)
+			;
+		if (shared_sets(&w, g, h))
+			goto out;
 	}
-	nrec = rec_compress(rec, nrec);
-	uint64_t nids = 0;
+	uint64_t nrec = rec_compress(w.rec, w.nrec), nids = 0;
+	const uint32_t *rec = w.rec;
 	for (uint64_t i = 0; i < nrec; i++)
 		nids += rec[i * RW + 2];
 	mu->off = util_malloc(nrec + 1, sizeof *mu->off);
@@ -293,14 +358,7 @@ static int multi_build(struct multi *mu, const struct cover *cv)
 	mu->nsets = nrec;
 	rc = 0;
 out:
-	free(noff);
-	free(ncom);
-	free(fill);
-	free(over);
-	free(trep);
-	free(tcnt);
-	free(tr);
-	free(rec);
+	mwork_release(&w);
 	if (rc)
 		multi_release(mu);
 	return rc;
