@@ -201,6 +201,42 @@ static int cmp_name(const void *a, const void *b)
 	return strcmp(*(char *const *)a, *(char *const *)b);
 }
 
+/* The m edges of the GRPH section into pairs (2m ids): each u < v < n,
+ * in order, none repeated. Returns 0 or -1. */
+static int read_edges(const char *path, struct rd *sec, uint32_t n, uint64_t m,
+		      uint32_t *pairs)
+{
+	uint32_t pu = 0, pv = 0;
+	for (uint64_t i = 0; i < m; i++) {
+		uint32_t u = rd_u32(sec);
+		uint32_t v = rd_u32(sec);
+		if (u >= n || v >= n) {
+			damaged(path, "edge %" PRIu64 " names node %" PRIu32 " of %" PRIu32, i,
+				u >= n ? u : v, n);
+			return -1;
+		}
+		if (u == v) {
+			damaged(path, "edge %" PRIu64 " is a self-loop on node %" PRIu32, i, u);
+			return -1;
+		}
+		if (u > v) {
+			damaged(path, "edge %" PRIu64 " is stored as %" PRIu32 "-%" PRIu32
+				", the larger id first", i, u, v);
+			return -1;
+		}
+		if (i > 0 && (u < pu || (u == pu && v <= pv))) {
+			damaged(path, "edge %" PRIu64 " (%" PRIu32 "-%" PRIu32
+				") is out of order or repeated", i, u, v);
+			return -1;
+		}
+		pairs[2 * i] = u;
+		pairs[2 * i + 1] = v;
+		pu = u;
+		pv = v;
+	}
+	return 0;
+}
+
 /* The GRPH section: names and edges, rebuilt into a graph. */
 static int read_graph(const char *path, struct rd *sec, uint64_t fingerprint,
 		      struct graph **out)
@@ -263,34 +299,8 @@ static int read_graph(const char *path, struct rd *sec, uint64_t fingerprint,
 			goto out;
 		}
 
-	uint32_t pu = 0, pv = 0;
-	for (uint64_t i = 0; i < m; i++) {
-		uint32_t u = rd_u32(sec);
-		uint32_t v = rd_u32(sec);
-		if (u >= n || v >= n) {
-			damaged(path, "edge %" PRIu64 " names node %" PRIu32 " of %" PRIu32, i,
-				u >= n ? u : v, n);
-			goto out;
-		}
-		if (u == v) {
-			damaged(path, "edge %" PRIu64 " is a self-loop on node %" PRIu32, i, u);
-			goto out;
-		}
-		if (u > v) {
-			damaged(path, "edge %" PRIu64 " is stored as %" PRIu32 "-%" PRIu32
-				", the larger id first", i, u, v);
-			goto out;
-		}
-		if (i > 0 && (u < pu || (u == pu && v <= pv))) {
-			damaged(path, "edge %" PRIu64 " (%" PRIu32 "-%" PRIu32
-				") is out of order or repeated", i, u, v);
-			goto out;
-		}
-		pairs[2 * i] = u;
-		pairs[2 * i + 1] = v;
-		pu = u;
-		pv = v;
-	}
+	if (read_edges(path, sec, n, m, pairs))
+		goto out;
 	if (rd_section_end(path, sec, "GRPH"))
 		goto out;
 
