@@ -93,6 +93,25 @@ struct cli_fit_opts {
 };
 
 /* Defaults: fit_params_default() with one thread per core. */
+/* The getopt_long() entries fit and explore share (options handled by
+ * cli_fit_opts_take(), -o and -h); each command adds its own. */
+#define CLI_FIT_OPTIONS \
+	{ "communities", required_argument, NULL, 'k' }, \
+	{ "output", required_argument, NULL, 'o' }, \
+	{ "threads", required_argument, NULL, 'j' }, \
+	{ "seed", required_argument, NULL, CLI_OPT_SEED }, \
+	{ "tol", required_argument, NULL, CLI_OPT_TOL }, \
+	{ "patience", required_argument, NULL, CLI_OPT_PATIENCE }, \
+	{ "max-sweeps", required_argument, NULL, CLI_OPT_MAX_SWEEPS }, \
+	{ "epsilon", required_argument, NULL, CLI_OPT_EPSILON }, \
+	{ "format", required_argument, NULL, CLI_OPT_FORMAT }, \
+	{ "starts", required_argument, NULL, CLI_OPT_STARTS }, \
+	{ "no-reseed", no_argument, NULL, CLI_OPT_NO_RESEED }, \
+	{ "k-grid", required_argument, NULL, CLI_OPT_K_GRID }, \
+	{ "holdout", required_argument, NULL, CLI_OPT_HOLDOUT }, \
+	{ "checkpoint-every", required_argument, NULL, CLI_OPT_CHECKPOINT_EVERY }, \
+	{ "help", no_argument, NULL, 'h' }
+
 void cli_fit_opts_init(struct cli_fit_opts *o);
 /* Take option c with its argument if it is a shared one: returns 1, or 0
  * for an option the command handles itself. A bad value exits 2. */

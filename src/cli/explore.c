@@ -177,23 +177,9 @@ struct run {
 static int parse_args(struct run *r, int argc, char **argv)
 {
 	static const struct option opts[] = {
-		{ "communities", required_argument, NULL, 'k' },
-		{ "output", required_argument, NULL, 'o' },
-		{ "threads", required_argument, NULL, 'j' },
-		{ "seed", required_argument, NULL, CLI_OPT_SEED },
-		{ "tol", required_argument, NULL, CLI_OPT_TOL },
-		{ "patience", required_argument, NULL, CLI_OPT_PATIENCE },
-		{ "max-sweeps", required_argument, NULL, CLI_OPT_MAX_SWEEPS },
-		{ "epsilon", required_argument, NULL, CLI_OPT_EPSILON },
-		{ "format", required_argument, NULL, CLI_OPT_FORMAT },
+		CLI_FIT_OPTIONS,
 		{ "resume", no_argument, NULL, OPT_RESUME },
-		{ "starts", required_argument, NULL, CLI_OPT_STARTS },
-		{ "no-reseed", no_argument, NULL, CLI_OPT_NO_RESEED },
 		{ "list-keys", no_argument, NULL, OPT_LIST_KEYS }, /* for the tests */
-		{ "k-grid", required_argument, NULL, CLI_OPT_K_GRID },
-		{ "holdout", required_argument, NULL, CLI_OPT_HOLDOUT },
-		{ "checkpoint-every", required_argument, NULL, CLI_OPT_CHECKPOINT_EVERY },
-		{ "help", no_argument, NULL, 'h' },
 		{ NULL, 0, NULL, 0 },
 	};
 	struct cli_fit_opts *o = &r->o;

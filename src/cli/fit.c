@@ -259,27 +259,13 @@ static void run_release(struct run *r)
 static int parse_args(struct run *r, int argc, char **argv)
 {
 	static const struct option opts[] = {
-		{ "communities", required_argument, NULL, 'k' },
-		{ "output", required_argument, NULL, 'o' },
-		{ "threads", required_argument, NULL, 'j' },
-		{ "seed", required_argument, NULL, CLI_OPT_SEED },
-		{ "tol", required_argument, NULL, CLI_OPT_TOL },
-		{ "patience", required_argument, NULL, CLI_OPT_PATIENCE },
-		{ "max-sweeps", required_argument, NULL, CLI_OPT_MAX_SWEEPS },
+		CLI_FIT_OPTIONS,
 		{ "past-plateau", no_argument, NULL, OPT_PAST_PLATEAU },
-		{ "epsilon", required_argument, NULL, CLI_OPT_EPSILON },
-		{ "format", required_argument, NULL, CLI_OPT_FORMAT },
 		{ "resume", required_argument, NULL, OPT_RESUME },
-		{ "checkpoint-every", required_argument, NULL, CLI_OPT_CHECKPOINT_EVERY },
-		{ "starts", required_argument, NULL, CLI_OPT_STARTS },
-		{ "no-reseed", no_argument, NULL, CLI_OPT_NO_RESEED },
 		{ "refine", no_argument, NULL, OPT_REFINE },
 		{ "refine-rounds", required_argument, NULL, OPT_REFINE_ROUNDS },
-		{ "k-grid", required_argument, NULL, CLI_OPT_K_GRID },
-		{ "holdout", required_argument, NULL, CLI_OPT_HOLDOUT },
 		{ "check-links", required_argument, NULL, OPT_CHECK_LINKS },
 		{ "quiet", no_argument, NULL, 'q' },
-		{ "help", no_argument, NULL, 'h' },
 		{ NULL, 0, NULL, 0 },
 	};
 	struct cli_fit_opts *o = &r->o;
