@@ -1,18 +1,10 @@
 /*
- * result: the result folder and the checkpoint.
- *
- * A folder holds memberships.tsv, communities.tsv, trace.tsv, run.json and
- * checkpoint.cot. Every file is written to a temporary name in the same
- * folder, flushed, fsync()ed and renamed into place, so a reader (or a
- * crash) sees the old file or the new one, never half of one.
- *
- * The checkpoint is self-contained: it holds the graph (names and edges),
- * the parameters, the trace and the strengths, so a result reopens and a
- * fit resumes without the original graph file. Layout (little-endian):
- *   magic "COTERIE\x1a", u32 version, u32 reserved, u64 graph fingerprint,
- *   then sections, then a u64 FNV-1a checksum of every byte before it.
- * Every size read from a checkpoint is checked against the bytes left
- * before anything is allocated.
+ * result: the result folder of a fit (memberships.tsv, communities.tsv,
+ * trace.tsv, run.json and checkpoint.cot; formats in coterie-files(5)).
+ * Every file is replaced atomically (atomicfile.h), and result_write()
+ * stages them all before renaming any. The checkpoint itself is
+ * checkpoint.h's; a run's folder over time (resume, periodic checkpoints,
+ * the final write) is outdir.h's.
  */
 #ifndef COTERIE_RESULT_H
 #define COTERIE_RESULT_H
@@ -24,7 +16,6 @@
 struct graph;
 
 #define RESULT_CHECKPOINT "checkpoint.cot"
-#define RESULT_CHECKPOINT_VERSION 2u
 #define RESULT_SELECTION "k-selection.tsv"
 
 struct refine_report;
@@ -73,39 +64,34 @@ struct result_meta {
  * naming the folder. Call before starting a long fit. */
 int result_prepare_dir(const char *dir);
 
-/* Write the whole folder from snapshot s of a fit of g with parameters p.
- * Returns 0 or -1; on failure no complete file is replaced by a partial one. */
-int result_write(const char *dir, const struct graph *g, const struct fit_params *p,
-		 const struct snapshot *s, const struct result_meta *meta);
-
-/* Write only the checkpoint, atomically, to path. */
-int result_write_checkpoint(const char *path, const struct graph *g,
-			    const struct fit_params *p, const struct snapshot *s);
-
-/* A checkpoint read back. */
-struct checkpoint {
-	uint64_t fingerprint;
-	struct graph *graph;         /* rebuilt from the file; owned */
-	struct fit_params params;
-	uint32_t sweep;
-	uint32_t plateau_sweep;
-	enum fit_state state;
-	double seconds;
-	double epsilon;
+/*
+ * The model a folder or a checkpoint is written from: the parts of a
+ * snapshot that a writer reads, all borrowed. A caller that writes
+ * something else than the snapshot says (the refined cover, the AGM read
+ * on the whole graph, the state a reopened result was saved in) replaces
+ * that one field; the snapshot itself is never copied.
+ * Rules: F is n x k for the graph written; agm's members are nodes of it;
+ * trace has ntrace points ending at or before sweep.
+ */
+struct result_model {
+	const struct fcsr *F;              /* the strengths (the checkpoint's) */
+	const struct agm *agm;             /* what the TSV files and run.json list */
+	const struct trace_point *trace;
 	uint32_t ntrace;
-	struct trace_point *trace;   /* owned */
-	struct fcsr F;               /* owned */
-	struct fit_savepoint *savepoint;   /* owned; NULL unless the fit was
-				      * interrupted at the end of a sweep */
+	uint32_t sweep, plateau_sweep;
+	enum fit_state state;
+	double seconds, epsilon, delta;
+	uint32_t best_start, reseeds;      /* for run.json */
+	const struct fit_savepoint *savepoint; /* NULL: the checkpoint has none */
 };
 
-/* Read and validate a checkpoint (checksum, version, every size and index).
- * Returns 0 or -1 naming the file and what is wrong.
- * Release with checkpoint_release(). */
-int result_read_checkpoint(const char *path, struct checkpoint *out);
-void checkpoint_release(struct checkpoint *ck);
+/* Point every field of m into snapshot s (borrowed: s must outlive m). */
+void result_model_of(struct result_model *m, const struct snapshot *s);
 
-/* Fill a fit_origin that points into ck (borrowed). */
-void checkpoint_origin(const struct checkpoint *ck, struct fit_origin *o);
+/* Write the whole folder from model m of a fit of g with parameters p (all
+ * borrowed; meta may be NULL). Returns 0 or -1 with a message; on failure
+ * no file is replaced (every file is staged before any is renamed). */
+int result_write(const char *dir, const struct graph *g, const struct fit_params *p,
+		 const struct result_model *m, const struct result_meta *meta);
 
 #endif

@@ -75,6 +75,25 @@ struct cli_fit_opts {
 };
 
 /* Defaults: fit_params_default() with one thread per core. */
+/* The getopt_long() entries fit and explore share (options handled by
+ * cli_fit_opts_take(), -o and -h); each command adds its own. */
+#define CLI_FIT_OPTIONS \
+	{ "communities", required_argument, NULL, 'k' }, \
+	{ "output", required_argument, NULL, 'o' }, \
+	{ "threads", required_argument, NULL, 'j' }, \
+	{ "seed", required_argument, NULL, CLI_OPT_SEED }, \
+	{ "tol", required_argument, NULL, CLI_OPT_TOL }, \
+	{ "patience", required_argument, NULL, CLI_OPT_PATIENCE }, \
+	{ "max-sweeps", required_argument, NULL, CLI_OPT_MAX_SWEEPS }, \
+	{ "epsilon", required_argument, NULL, CLI_OPT_EPSILON }, \
+	{ "format", required_argument, NULL, CLI_OPT_FORMAT }, \
+	{ "starts", required_argument, NULL, CLI_OPT_STARTS }, \
+	{ "no-reseed", no_argument, NULL, CLI_OPT_NO_RESEED }, \
+	{ "k-grid", required_argument, NULL, CLI_OPT_K_GRID }, \
+	{ "holdout", required_argument, NULL, CLI_OPT_HOLDOUT }, \
+	{ "checkpoint-every", required_argument, NULL, CLI_OPT_CHECKPOINT_EVERY }, \
+	{ "help", no_argument, NULL, 'h' }
+
 void cli_fit_opts_init(struct cli_fit_opts *o);
 /* Take option c with its argument if it is a shared one: returns 1, or 0
  * for an option the command handles itself. A bad value exits 2. */
@@ -97,13 +116,8 @@ int cmd_explore(int argc, char **argv);
 int cmd_simulate(int argc, char **argv);
 int cmd_compare(int argc, char **argv);
 
-/* JSON for the commands' --json: a string from a file (jansson wants
- * UTF-8; one that is not goes out escaped, in ASCII), and a number that
- * may not be finite (as null). The caller owns the new reference. */
-json_t *cli_json_str(const char *s);
-json_t *cli_json_real(double x);
-/* Print root (taken, may be NULL: out of memory) to stdout, indented,
- * reals to 17 digits, and a newline. Returns 0 or -1 with a message. */
-int cli_json_print(json_t *root);
+/* The flags of the commands' --json output (jsonout_print()): indented,
+ * reals to 17 digits. */
+#define CLI_JSON_FLAGS (JSON_INDENT(2) | JSON_REAL_PRECISION(17))
 
 #endif

@@ -197,31 +197,3 @@ void cli_fit_opts_resume(const struct cli_fit_opts *o, const struct fit_params *
 	if (o->have_max)
 		out->max_sweeps = o->p.max_sweeps;
 }
-
-json_t *cli_json_str(const char *s)
-{
-	json_t *j = json_string(s);
-	if (j)
-		return j;
-	char *e = util_escape_dup(s, 1);
-	j = e ? json_string(e) : NULL;
-	free(e);
-	return j ? j : json_null();
-}
-
-json_t *cli_json_real(double x)
-{
-	return isfinite(x) ? json_real(x) : json_null();
-}
-
-int cli_json_print(json_t *root)
-{
-	if (!root)
-		return error("out of memory");
-	int rc = json_dumpf(root, stdout, JSON_INDENT(2) | JSON_REAL_PRECISION(17));
-	json_decref(root);
-	if (rc)
-		return error("cannot write the output");
-	putchar('\n');
-	return 0;
-}

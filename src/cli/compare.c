@@ -27,6 +27,7 @@
 
 #include "cli.h"
 #include "coterie/cover.h"
+#include "coterie/jsonout.h"
 #include "coterie/score.h"
 
 #define PATH_CAP 4096
@@ -75,7 +76,7 @@ static int resolve(const char *arg, char *path)
 
 static json_t *jside(const struct side *d)
 {
-	return json_pack("{s:o s:I s:I s:I s:I}", "file", cli_json_str(d->path), "communities",
+	return json_pack("{s:o s:I s:I s:I s:I}", "file", jsonout_str(d->path), "communities",
 			 (json_int_t)d->s.communities, "covered_nodes", (json_int_t)d->s.covered,
 			 "overlapping_nodes", (json_int_t)d->s.overlapping, "only_in_this_file",
 			 (json_int_t)d->s.only);
@@ -89,13 +90,13 @@ struct scores {
 static int print_json(const struct side *t, const struct side *f, uint32_t n,
 		      const struct scores *sc)
 {
-	return cli_json_print(json_pack("{s:o s:o s:I s:o s:o s:o s:o s:o s:o s:b s:o}",
+	return jsonout_print(json_pack("{s:o s:o s:I s:o s:o s:o s:o s:o s:o s:b s:o}",
 		"truth", jside(t), "found", jside(f), "nodes", (json_int_t)n,
-		"onmi_max", cli_json_real(sc->onmi_max), "onmi_lfk", cli_json_real(sc->onmi_lfk),
-		"omega", cli_json_real(sc->omega), "f1", cli_json_real(sc->f1),
-		"f1_truth_to_found", cli_json_real(sc->f1_tf),
-		"f1_found_to_truth", cli_json_real(sc->f1_ft), "partitions", sc->partitions,
-		"nmi", sc->partitions ? cli_json_real(sc->nmi) : json_null()));
+		"onmi_max", jsonout_real(sc->onmi_max), "onmi_lfk", jsonout_real(sc->onmi_lfk),
+		"omega", jsonout_real(sc->omega), "f1", jsonout_real(sc->f1),
+		"f1_truth_to_found", jsonout_real(sc->f1_tf),
+		"f1_found_to_truth", jsonout_real(sc->f1_ft), "partitions", sc->partitions,
+		"nmi", sc->partitions ? jsonout_real(sc->nmi) : json_null()), stdout, CLI_JSON_FLAGS);
 }
 
 /* Why plain NMI does not apply (the files hold every membership, so a

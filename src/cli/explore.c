@@ -25,9 +25,11 @@
 #include "../tui/keys.h"
 #include "../tui/tui.h"
 #include "cli.h"
+#include "coterie/atomicfile.h"
 #include "coterie/fit.h"
 #include "coterie/graph.h"
 #include "coterie/memory.h"
+#include "coterie/outdir.h"
 #include "coterie/result.h"
 #include "coterie/select.h"
 
@@ -160,41 +162,37 @@ enum {
 	OPT_LIST_KEYS,
 };
 
-int cmd_explore(int argc, char **argv)
+/* Everything one `coterie explore` owns; released once at the end. */
+struct run {
+	struct cli_fit_opts o;
+	struct fit_params p;
+	const char *arg, *out;
+	int resume, is_dir;
+	struct checkpoint ck;        /* a result folder's saved fit, with its graph */
+	struct graph *g;             /* a graph loaded */
+	struct select_result sel;    /* -k auto */
+	char outbuf[4096];
+};
+
+/* The command line into r. Returns -1 to go on, else the exit status. */
+static int parse_args(struct run *r, int argc, char **argv)
 {
 	static const struct option opts[] = {
-		{ "communities", required_argument, NULL, 'k' },
-		{ "output", required_argument, NULL, 'o' },
-		{ "threads", required_argument, NULL, 'j' },
-		{ "seed", required_argument, NULL, CLI_OPT_SEED },
-		{ "tol", required_argument, NULL, CLI_OPT_TOL },
-		{ "patience", required_argument, NULL, CLI_OPT_PATIENCE },
-		{ "max-sweeps", required_argument, NULL, CLI_OPT_MAX_SWEEPS },
-		{ "epsilon", required_argument, NULL, CLI_OPT_EPSILON },
-		{ "format", required_argument, NULL, CLI_OPT_FORMAT },
+		CLI_FIT_OPTIONS,
 		{ "resume", no_argument, NULL, OPT_RESUME },
-		{ "starts", required_argument, NULL, CLI_OPT_STARTS },
-		{ "no-reseed", no_argument, NULL, CLI_OPT_NO_RESEED },
 		{ "list-keys", no_argument, NULL, OPT_LIST_KEYS }, /* for the tests */
-		{ "k-grid", required_argument, NULL, CLI_OPT_K_GRID },
-		{ "holdout", required_argument, NULL, CLI_OPT_HOLDOUT },
-		{ "checkpoint-every", required_argument, NULL, CLI_OPT_CHECKPOINT_EVERY },
-		{ "help", no_argument, NULL, 'h' },
 		{ NULL, 0, NULL, 0 },
 	};
-	struct cli_fit_opts o;
-	cli_fit_opts_init(&o);
-	int resume = 0;
-	const char *out = NULL;
+	struct cli_fit_opts *o = &r->o;
 	int c;
 	optind = 1;
 	opterr = 0;
 	while ((c = getopt_long(argc, argv, ":k:o:j:h", opts, NULL)) != -1) {
-		if (cli_fit_opts_take(&o, c, optarg))
+		if (cli_fit_opts_take(o, c, optarg))
 			continue;
 		switch (c) {
-		case 'o': out = optarg; break;
-		case OPT_RESUME: resume = 1; break;
+		case 'o': r->out = optarg; break;
+		case OPT_RESUME: r->resume = 1; break;
 		case OPT_LIST_KEYS: keys_list(stdout); return 0;
 		case 'h': explore_usage(stdout); return 0;
 		default:
@@ -203,130 +201,135 @@ int cmd_explore(int argc, char **argv)
 			return EXIT_USAGE;
 		}
 	}
-	struct fit_params p = o.p;
+	r->p = o->p;
 	if (argc - optind != 1) {
 		explore_usage(stderr);
 		die(EXIT_USAGE, "explore takes one graph file or result folder, not %d", argc - optind);
 	}
-	const char *arg = argv[optind];
-	if (!strcmp(arg, "-"))
+	r->arg = argv[optind];
+	if (!strcmp(r->arg, "-"))
 		die(EXIT_USAGE, "explore reads keys from the terminal, so the graph cannot come from "
 		    "standard input; use 'coterie fit -' or a file");
 	struct stat st;
-	int is_dir = stat(arg, &st) == 0 && S_ISDIR(st.st_mode);
-	if (resume && !is_dir)
-		die(EXIT_USAGE, "--resume continues a result folder; '%s' is not one", arg);
-	if (!is_dir && !o.have_k)
+	r->is_dir = stat(r->arg, &st) == 0 && S_ISDIR(st.st_mode);
+	if (r->resume && !r->is_dir)
+		die(EXIT_USAGE, "--resume continues a result folder; '%s' is not one", r->arg);
+	if (!r->is_dir && !o->have_k)
 		die(EXIT_USAGE, "explore needs the number of communities: -k N or -k auto");
-	if (is_dir && o.k_auto)
+	if (r->is_dir && o->k_auto)
 		die(EXIT_USAGE, "-k auto is for a graph; a result folder already has its k");
-	if (o.have_grid && !o.k_auto)
+	if (o->have_grid && !o->k_auto)
 		die(EXIT_USAGE, "--k-grid is for -k auto");
-	if (proc_signals_install())
-		return 1;
+	return -1;
+}
 
+/* A result folder: its checkpoint, shown as saved, its fit ready to go
+ * on. Returns 0 or -1 (reported). */
+static int open_folder(struct run *r, struct tui_config *cfg)
+{
+	char *path = atomicfile_path(r->arg, RESULT_CHECKPOINT);
+	if (!path)
+		return -1;
+	int missing = access(path, F_OK) != 0;
+	free(path);
+	if (missing) {
+		char esc[512];
+		die(1, "'%s' holds no %s: not a result folder", util_escape(r->arg, esc, sizeof esc, 1),
+		    RESULT_CHECKPOINT);
+	}
+	if (outdir_read(r->arg, &r->ck))
+		return -1;
+	const struct checkpoint *ck = &r->ck;
+	cli_fit_opts_resume(&r->o, &ck->params, "for a saved fit", &r->p);
+	r->p.hold_at_plateau = 1;
+	struct fit_origin origin;
+	outdir_resume(ck, &r->p, &origin);
+	if (!(cfg->fit = fit_new(ck->graph, &r->p, &origin)))
+		return -1;
+	cfg->g = ck->graph;
+	cfg->reopened = 1;
+	cfg->one_start = !ck->savepoint;
+	cfg->saved_state = ck->state;
+	cfg->saved_sweep = ck->sweep;
+	cfg->saved_loglik = ck->ntrace ? ck->trace[ck->ntrace - 1].loglik : 0;
+	cfg->start = r->resume;
+	cfg->outdir = r->out ? r->out : r->arg;
+	cfg->outdir_holds_result = r->out == NULL || !strcmp(r->out, r->arg);
+	cfg->graph_label = r->arg;
+	cfg->graph_path = ck->graph->source ? ck->graph->source : r->arg;
+	return 0;
+}
+
+/* A graph: loaded, k chosen (-k auto), the fit made. Returns -1 to go
+ * on, else the exit status. */
+static int open_graph(struct run *r, struct tui_config *cfg)
+{
+	if (r->out) {
+		/* refuse early: a long fit whose result cannot be written is lost work */
+		if (result_prepare_dir(r->out))
+			return 1;
+		cfg->outdir = r->out;
+	} else {
+		default_outdir(r->arg, r->outbuf, sizeof r->outbuf);
+		cfg->outdir = r->outbuf;
+		cfg->outdir_is_default = 1;
+	}
+	if (!(r->g = graph_load(r->arg, r->o.fmt)) || cli_graph_fittable(r->g, r->arg))
+		return 1;
+	cli_k_fits(r->p.k, r->g);
+	cli_fit_opts_starts(&r->o, r->g->m);
+	r->p.starts = r->o.p.starts;
+	if (r->o.k_auto) {
+		int ks = choose_k(r->g, r->arg, &r->p, &r->o, &r->sel);
+		if (ks >= 0)
+			return ks;
+		cfg->selection = &r->sel;
+	}
+	r->p.hold_at_plateau = 1;
+	if (!(cfg->fit = fit_new(r->g, &r->p, NULL)))
+		return 1;
+	cfg->g = r->g;
+	cfg->start = 1;
+	cfg->graph_label = r->arg;
+	cfg->graph_path = r->arg;
+	return -1;
+}
+
+int cmd_explore(int argc, char **argv)
+{
+	struct run *r = util_calloc(1, sizeof *r);
 	struct tui_config cfg;
 	memset(&cfg, 0, sizeof cfg);
+	if (!r)
+		return 1;
+	cli_fit_opts_init(&r->o);
+	int rc = parse_args(r, argc, argv);
+	if (rc >= 0)
+		goto out;
+	rc = 1;
+	if (proc_signals_install())
+		goto out;
 	cfg.t_begin = util_now();
-	struct checkpoint ck;
-	memset(&ck, 0, sizeof ck);
-	struct graph *g = NULL;
-	struct fit *f = NULL;
-	char outbuf[4096];
-	struct select_result sel;
-	memset(&sel, 0, sizeof sel);
-
-	if (is_dir) {
-		char path[4096];
-		snprintf(path, sizeof path, "%s/%s", arg, RESULT_CHECKPOINT);
-		if (access(path, F_OK) != 0) {
-			char esc[512];
-			die(1, "'%s' holds no %s: not a result folder", util_escape(arg, esc, sizeof esc, 1),
-			    RESULT_CHECKPOINT);
-		}
-		if (result_read_checkpoint(path, &ck))
-			return 1;
-		cli_fit_opts_resume(&o, &ck.params, "for a saved fit", &p);
-		p.hold_at_plateau = 1;
-		if (!ck.savepoint) {
-			/* what fit.h says such a fit does: one start, no moves */
-			p.starts = 1;
-			p.no_reseed = 1;
-		}
-		struct fit_origin origin;
-		checkpoint_origin(&ck, &origin);
-		f = fit_new(ck.graph, &p, &origin);
-		if (!f) {
-			checkpoint_release(&ck);
-			return 1;
-		}
-		cfg.g = ck.graph;
-		cfg.reopened = 1;
-		cfg.saved_state = ck.state;
-		cfg.saved_sweep = ck.sweep;
-		cfg.saved_loglik = ck.ntrace ? ck.trace[ck.ntrace - 1].loglik : 0;
-		cfg.start = resume;
-		cfg.outdir = out ? out : arg;
-		cfg.outdir_holds_result = out == NULL || !strcmp(out, arg);
-		cfg.graph_label = arg;
-		cfg.graph_path = ck.graph->source ? ck.graph->source : arg;
-	} else {
-		if (out) {
-			/* refuse early: a long fit whose result cannot be written is lost work */
-			if (result_prepare_dir(out))
-				return 1;
-			cfg.outdir = out;
-		} else {
-			default_outdir(arg, outbuf, sizeof outbuf);
-			cfg.outdir = outbuf;
-			cfg.outdir_is_default = 1;
-		}
-		g = graph_load(arg, o.fmt);
-		if (!g)
-			return 1;
-		if (cli_graph_fittable(g, arg)) {
-			graph_free(g);
-			return 1;
-		}
-		cli_k_fits(p.k, g);
-		cli_fit_opts_starts(&o, g->m);
-		p.starts = o.p.starts;
-		if (o.k_auto) {
-			int ks = choose_k(g, arg, &p, &o, &sel);
-			if (ks >= 0) {
-				graph_free(g);
-				return ks;
-			}
-			cfg.selection = &sel;
-		}
-		p.hold_at_plateau = 1;
-		f = fit_new(g, &p, NULL);
-		if (!f) {
-			graph_free(g);
-			return 1;
-		}
-		cfg.g = g;
-		cfg.start = 1;
-		cfg.graph_label = arg;
-		cfg.graph_path = arg;
+	if (r->is_dir) {
+		if (open_folder(r, &cfg))
+			goto out;
+	} else if ((rc = open_graph(r, &cfg)) >= 0) {
+		goto out;
 	}
-	if (memory_check_fit(cfg.g, &p)) {
-		fit_free(f);
-		graph_free(g);
-		checkpoint_release(&ck);
-		return 1;
-	}
-	if (resume && out && result_prepare_dir(out)) {
-		fit_free(f);
-		checkpoint_release(&ck);
-		return 1;
-	}
-	cfg.fit = f;
-	cfg.params = p;
-	cfg.checkpoint_every = o.checkpoint_every;
-	int rc = tui_run(&cfg); /* frees the fit */
-	select_result_release(&sel);
-	graph_free(g);
-	checkpoint_release(&ck);
+	rc = 1;
+	if (memory_check_fit(cfg.g, &r->p))
+		goto out;
+	if (r->resume && r->out && result_prepare_dir(r->out))
+		goto out;
+	cfg.params = r->p;
+	cfg.checkpoint_every = r->o.checkpoint_every;
+	rc = tui_run(&cfg); /* frees the fit */
+	cfg.fit = NULL;
+out:
+	fit_free(cfg.fit);
+	select_result_release(&r->sel);
+	graph_free(r->g);
+	checkpoint_release(&r->ck);
+	free(r);
 	return rc;
 }

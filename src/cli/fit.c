@@ -24,10 +24,11 @@
 #include "coterie/graph.h"
 #include "coterie/holdout.h"
 #include "coterie/memory.h"
+#include "coterie/outdir.h"
 #include "coterie/refine.h"
 #include "coterie/result.h"
-#include "coterie/select.h"
 #include "coterie/savepoint.h"
+#include "coterie/select.h"
 
 static void fit_usage(FILE *out)
 {
@@ -202,8 +203,9 @@ enum {
 
 /* --refine: the AGM refinement of the final cover into *out (released by
  * the caller with agm_release()). Returns 0 or -1 (reported). */
-static int refine_cover_of(const struct graph *g, const struct snapshot *s, unsigned rounds,
-			   uint64_t seed, int quiet, struct agm *out, struct refine_report *rep)
+static int refine_cover_of(const struct graph *g, const struct agm *agm, const struct fcsr *F,
+			   unsigned rounds, uint64_t seed, int quiet, struct agm *out,
+			   struct refine_report *rep)
 {
 	struct refine_params rp;
 	refine_params_default(&rp);
@@ -212,7 +214,7 @@ static int refine_cover_of(const struct graph *g, const struct snapshot *s, unsi
 	rp.stop = stop_asked;
 	if (!quiet)
 		notice("refining the cover under the AGM (at most %u rounds)", rounds);
-	if (refine_agm(g, &s->agm, &s->F, &rp, out, rep))
+	if (refine_agm(g, agm, F, &rp, out, rep))
 		return -1;
 	if (!quiet)
 		notice("refinement %s after %u round%s in %.1f s: +%llu -%llu memberships, AGM "
@@ -223,57 +225,70 @@ static int refine_cover_of(const struct graph *g, const struct snapshot *s, unsi
 	return 0;
 }
 
-int cmd_fit(int argc, char **argv)
+/* Everything one `coterie fit` owns; released once, by run_release(). */
+struct run {
+	struct cli_fit_opts o;
+	struct fit_params p;
+	const char *out, *resume, *gpath;
+	int quiet, refine;
+	unsigned refine_rounds;
+	double check_links;
+	double t_begin;
+	struct checkpoint ck;        /* --resume: the saved fit, with its graph */
+	struct graph *g;             /* the graph loaded (NULL: ck's) */
+	const struct graph *graph;   /* the one fitted and written */
+	struct select_result sel;    /* -k auto */
+	struct holdout check;        /* --check-links */
+	struct fit_origin origin;
+	int have_origin;
+	struct fit *f;
+	struct outdir *od;
+	int interrupted;             /* 1: once, 2: twice */
+};
+
+static void run_release(struct run *r)
+{
+	outdir_free(r->od);
+	fit_free(r->f);
+	holdout_release(&r->check);
+	select_result_release(&r->sel);
+	graph_free(r->g);
+	checkpoint_release(&r->ck);
+}
+
+/* The command line into r. Returns -1 to go on, else the exit status. */
+static int parse_args(struct run *r, int argc, char **argv)
 {
 	static const struct option opts[] = {
-		{ "communities", required_argument, NULL, 'k' },
-		{ "output", required_argument, NULL, 'o' },
-		{ "threads", required_argument, NULL, 'j' },
-		{ "seed", required_argument, NULL, CLI_OPT_SEED },
-		{ "tol", required_argument, NULL, CLI_OPT_TOL },
-		{ "patience", required_argument, NULL, CLI_OPT_PATIENCE },
-		{ "max-sweeps", required_argument, NULL, CLI_OPT_MAX_SWEEPS },
+		CLI_FIT_OPTIONS,
 		{ "past-plateau", no_argument, NULL, OPT_PAST_PLATEAU },
-		{ "epsilon", required_argument, NULL, CLI_OPT_EPSILON },
-		{ "format", required_argument, NULL, CLI_OPT_FORMAT },
 		{ "resume", required_argument, NULL, OPT_RESUME },
-		{ "checkpoint-every", required_argument, NULL, CLI_OPT_CHECKPOINT_EVERY },
-		{ "starts", required_argument, NULL, CLI_OPT_STARTS },
-		{ "no-reseed", no_argument, NULL, CLI_OPT_NO_RESEED },
 		{ "refine", no_argument, NULL, OPT_REFINE },
 		{ "refine-rounds", required_argument, NULL, OPT_REFINE_ROUNDS },
-		{ "k-grid", required_argument, NULL, CLI_OPT_K_GRID },
-		{ "holdout", required_argument, NULL, CLI_OPT_HOLDOUT },
 		{ "check-links", required_argument, NULL, OPT_CHECK_LINKS },
 		{ "quiet", no_argument, NULL, 'q' },
-		{ "help", no_argument, NULL, 'h' },
 		{ NULL, 0, NULL, 0 },
 	};
-	struct cli_fit_opts o;
-	cli_fit_opts_init(&o);
-	int quiet = 0, refine = 0;
-	unsigned refine_rounds = 50;
-	double check_links = 0.0;
-	const char *out = NULL, *resume = NULL;
+	struct cli_fit_opts *o = &r->o;
 	int c;
 	optind = 1;
 	opterr = 0;
 	while ((c = getopt_long(argc, argv, ":k:o:j:qh", opts, NULL)) != -1) {
-		if (cli_fit_opts_take(&o, c, optarg))
+		if (cli_fit_opts_take(o, c, optarg))
 			continue;
 		switch (c) {
 		case OPT_CHECK_LINKS:
-			check_links = cli_double("--check-links", optarg, 0.001, 0.5);
+			r->check_links = cli_double("--check-links", optarg, 0.001, 0.5);
 			break;
-		case 'o': out = optarg; break;
-		case OPT_PAST_PLATEAU: o.p.past_plateau = 1; break;
-		case OPT_RESUME: resume = optarg; break;
-		case OPT_REFINE: refine = 1; break;
+		case 'o': r->out = optarg; break;
+		case OPT_PAST_PLATEAU: o->p.past_plateau = 1; break;
+		case OPT_RESUME: r->resume = optarg; break;
+		case OPT_REFINE: r->refine = 1; break;
 		case OPT_REFINE_ROUNDS:
-			refine_rounds = cli_u32("--refine-rounds", optarg, 1, 1000000);
-			refine = 1;
+			r->refine_rounds = cli_u32("--refine-rounds", optarg, 1, 1000000);
+			r->refine = 1;
 			break;
-		case 'q': quiet = 1; break;
+		case 'q': r->quiet = 1; break;
 		case 'h': fit_usage(stdout); return 0;
 		default:
 			cli_option_error(c, argv);
@@ -283,283 +298,257 @@ int cmd_fit(int argc, char **argv)
 	}
 	if (argc - optind > 1)
 		die(EXIT_USAGE, "fit takes one graph, not %d", argc - optind);
-	const char *gpath = optind < argc ? argv[optind] : NULL;
-	if (!gpath && !resume) {
+	r->gpath = optind < argc ? argv[optind] : NULL;
+	if (!r->gpath && !r->resume) {
 		fit_usage(stderr);
 		die(EXIT_USAGE, "fit needs a graph file (or - for standard input)");
 	}
-	struct fit_params p = o.p;
-	if (!resume && !o.have_k)
+	r->p = o->p;
+	if (!r->resume && !o->have_k)
 		die(EXIT_USAGE, "fit needs the number of communities: -k N");
-	if (o.have_grid && !o.k_auto)
+	if (o->have_grid && !o->k_auto)
 		die(EXIT_USAGE, "--k-grid is for -k auto");
-	double save_every = o.checkpoint_every > 0 ? o.checkpoint_every : 120.0;
-	if (!out)
-		out = resume;
-	if (!out)
+	if (!r->out)
+		r->out = r->resume;
+	if (!r->out)
 		die(EXIT_USAGE, "fit needs an output folder: -o DIR");
-	util_set_quiet(quiet);
+	return -1;
+}
 
-	/* refuse early: a long fit whose result cannot be written is lost work */
-	if (result_prepare_dir(out))
-		return 1;
-	if (proc_signals_install())
-		return 1;
+/* --resume: the saved fit (and the graph given, which must be its own).
+ * Returns 0 or -1 (reported). */
+static int load_resume(struct run *r)
+{
+	if (outdir_read(r->resume, &r->ck))
+		return -1;
+	if (r->gpath) {
+		if (!(r->g = graph_load(r->gpath, r->o.fmt)))
+			return -1;
+		if (graph_fingerprint(r->g) != r->ck.fingerprint)
+			return error("'%s' is not the graph the fit in '%s' was made on; refusing "
+				     "to resume", r->gpath, r->resume);
+	}
+	if (r->o.k_auto)
+		die(EXIT_USAGE, "-k auto cannot be used when resuming");
+	if (r->check_links > 0)
+		die(EXIT_USAGE, "--check-links cannot be used when resuming");
+	cli_fit_opts_resume(&r->o, &r->ck.params, "when resuming", &r->p);
+	r->p.hold_at_plateau = 0;
+	outdir_resume(&r->ck, &r->p, &r->origin);
+	r->have_origin = 1;
+	if (r->ck.savepoint)
+		notice("the saved fit was interrupted in start %u of %u; it goes on from there",
+		       r->ck.savepoint->start, r->p.starts);
+	else if (r->ck.state == FIT_LEVELLED && !r->p.past_plateau)
+		notice("the saved fit had levelled off; it goes on until it levels off again");
+	return 0;
+}
 
-	double t_begin = util_now();
-	struct select_result sel;
-	memset(&sel, 0, sizeof sel);
-	struct holdout check;
-	memset(&check, 0, sizeof check);
-	struct checkpoint ck;
-	memset(&ck, 0, sizeof ck);
-	struct graph *g = NULL;
-	struct fit_origin origin, *orig = NULL;
-	if (resume) {
-		char path[4096];
-		snprintf(path, sizeof path, "%s/%s", resume, RESULT_CHECKPOINT);
-		if (result_read_checkpoint(path, &ck))
-			return 1;
-		if (gpath) {
-			g = graph_load(gpath, o.fmt);
-			if (!g) {
-				checkpoint_release(&ck);
-				return 1;
-			}
-			if (graph_fingerprint(g) != ck.fingerprint) {
-				error("'%s' is not the graph the fit in '%s' was made on; refusing to resume",
-				      gpath, resume);
-				graph_free(g);
-				checkpoint_release(&ck);
-				return 1;
-			}
-		}
-		if (o.k_auto)
-			die(EXIT_USAGE, "-k auto cannot be used when resuming");
-		if (check_links > 0)
-			die(EXIT_USAGE, "--check-links cannot be used when resuming");
-		cli_fit_opts_resume(&o, &ck.params, "when resuming", &p);
-		p.hold_at_plateau = 0;
-		if (!ck.savepoint) {
-			/* what fit.h says such a fit does: one start, no moves */
-			p.starts = 1;
-			p.no_reseed = 1;
-		}
-		if (ck.savepoint)
-			notice("the saved fit was interrupted in start %u of %u; it goes on from there",
-			       ck.savepoint->start, p.starts);
-		else if (ck.state == FIT_LEVELLED && !p.past_plateau)
-			notice("the saved fit had levelled off; it goes on until it levels off again");
-		checkpoint_origin(&ck, &origin);
-		orig = &origin;
-	} else {
-		g = graph_load(gpath, o.fmt);
-		if (!g)
-			return 1;
-		if (cli_graph_fittable(g, gpath)) {
-			graph_free(g);
-			return 1;
-		}
-		if (!o.k_auto)
-			cli_k_fits(p.k, g);
-		cli_fit_opts_starts(&o, g->m);
-		p.starts = o.p.starts;
-		if (o.k_auto && choose_k(g, &p, out, &o, quiet, &sel)) {
-			graph_free(g);
-			return proc_signal_caught() ? EXIT_INTERRUPTED : 1;
-		}
-		if (check_links > 0) {
-			/* the seed is offset so these pairs are not those -k auto held out */
-			if (holdout_split(&check, g, check_links, p.seed + 0x9e3779b97f4a7c15ULL)) {
-				graph_free(g);
-				select_result_release(&sel);
-				return 1;
-			}
-			if (!(p.epsilon > 0.0))
-				p.epsilon = model_default_epsilon(g); /* the whole graph's */
-			if (!quiet)
-				notice("checking links: %llu edges and %llu non-edges are held out of the "
-				       "fit", (unsigned long long)check.nedges,
-				       (unsigned long long)check.nnon);
-		}
+/* A new fit: the graph, -k auto and --check-links. Returns 0, -1, or -2
+ * when -k auto failed (perhaps interrupted). */
+static int load_graph(struct run *r)
+{
+	struct fit_params *p = &r->p;
+	if (!(r->g = graph_load(r->gpath, r->o.fmt)) || cli_graph_fittable(r->g, r->gpath))
+		return -1;
+	if (!r->o.k_auto)
+		cli_k_fits(p->k, r->g);
+	cli_fit_opts_starts(&r->o, r->g->m);
+	p->starts = r->o.p.starts;
+	if (r->o.k_auto && choose_k(r->g, p, r->out, &r->o, r->quiet, &r->sel))
+		return -2;
+	if (r->check_links > 0) {
+		/* the seed is offset so these pairs are not those -k auto held out */
+		if (holdout_split(&r->check, r->g, r->check_links, p->seed + 0x9e3779b97f4a7c15ULL))
+			return -1;
+		if (!(p->epsilon > 0.0))
+			p->epsilon = model_default_epsilon(r->g); /* the whole graph's */
+		if (!r->quiet)
+			notice("checking links: %llu edges and %llu non-edges are held out of the "
+			       "fit", (unsigned long long)r->check.nedges,
+			       (unsigned long long)r->check.nnon);
 	}
-	const struct graph *graph = g ? g : ck.graph;
-	if (memory_check_fit(graph, &p)) {
-		graph_free(g);
-		checkpoint_release(&ck);
-		return 1;
-	}
+	return 0;
+}
 
-	struct fit *f = fit_new(check.train ? check.train : graph, &p, orig);
-	if (!f) {
-		graph_free(g);
-		checkpoint_release(&ck);
-		holdout_release(&check);
-		select_result_release(&sel);
-		return 1;
-	}
-	if (check.held)
-		fit_exclude(f, check.held);
-	if (!quiet)
-		notice("fitting %u communities on %u nodes and %llu edges with %u thread%s",
-		       p.k, graph->n, (unsigned long long)graph->m, p.threads,
-		       p.threads == 1 ? "" : "s");
-	if (fit_start(f)) {
-		fit_free(f);
-		graph_free(g);
-		checkpoint_release(&ck);
-		holdout_release(&check);
-		select_result_release(&sel);
-		return 1;
-	}
-
-	struct progress pr = { isatty(2), quiet, 0, 0, 0, 0 };
-	double last_save = util_now();
-	int want_point = 0, one_start = resume && !ck.savepoint;
-	int interrupted = 0;
-	char ckpath[4096];
-	snprintf(ckpath, sizeof ckpath, "%s/%s", out, RESULT_CHECKPOINT);
+/* Watch the fit until it ends: progress, periodic checkpoints (through
+ * outdir.h), and the interrupts. */
+static void watch(struct run *r, struct progress *pr)
+{
 	for (;;) {
 		struct pollfd pfd[2] = {
-			{ fit_wake_fd(f), POLLIN, 0 },
+			{ fit_wake_fd(r->f), POLLIN, 0 },
 			{ proc_signal_fd(), POLLIN, 0 },
 		};
 		poll(pfd, 2, 500);
-		fit_drain_wake(f);
-		if (proc_signal_caught() && !interrupted) {
+		fit_drain_wake(r->f);
+		if (proc_signal_caught() && !r->interrupted) {
 			/* the sweep in progress ends first, so that --resume
 			 * continues exactly; a second signal stops at once */
-			interrupted = 1;
-			progress_break(&pr);
+			r->interrupted = 1;
+			progress_break(pr);
 			notice("interrupted: ending the sweep in progress and saving to '%s' "
-			       "(interrupt again to stop at once)", out);
-			fit_interrupt(f);
+			       "(interrupt again to stop at once)", r->out);
+			fit_interrupt(r->f);
 		}
-		if (proc_signal_count() >= 2 && interrupted == 1) {
-			interrupted = 2;
-			progress_break(&pr);
+		if (proc_signal_count() >= 2 && r->interrupted == 1) {
+			r->interrupted = 2;
+			progress_break(pr);
 			notice("interrupted again: stopping inside the sweep; a resumed fit goes on "
 			       "from the model as it is");
-			fit_stop(f);
+			fit_stop(r->f);
 		}
-		enum fit_state st = fit_get_state(f);
-		struct snapshot *s = fit_snapshot(f);
-		if (fit_state_ended(st) && s->state == st) {
-			snapshot_release(s);
-			break;
-		}
-		progress_show(&pr, s, 0);
-		/* a periodic checkpoint carries a savepoint, so that after a
-		 * kill -9 --resume continues exactly; the fit makes one at the end
-		 * of the next sweep when asked (a fit continued as one start
-		 * makes none, and saves its snapshot as it is) */
-		if (!want_point && util_now() - last_save >= save_every && !one_start) {
-			fit_want_savepoint(f);
-			want_point = 1;
-		}
-		struct snapshot *ps = want_point ? fit_take_savepoint(f) : NULL;
-		if (ps || (one_start && s->ntrace > 0 && util_now() - last_save >= save_every)) {
-			/* a failure is reported, and the next one tried later */
-			result_write_checkpoint(ckpath, graph, &p, ps ? ps : s);
-			last_save = util_now();
-			want_point = 0;
-		}
-		snapshot_release(ps);
+		enum fit_state st = fit_get_state(r->f);
+		struct snapshot *s = fit_snapshot(r->f);
+		int ended = fit_state_ended(st) && s->state == st;
+		if (!ended)
+			progress_show(pr, s, 0);
 		snapshot_release(s);
+		if (ended)
+			break;
+		outdir_tick(r->od, r->f);
 	}
-	enum fit_state st = fit_wait(f);
-	struct snapshot *s = fit_snapshot(f);
-	progress_show(&pr, s, 1);
+}
 
-	/* --check-links: score the held-out pairs, and read the AGM figures
-	 * (internal edges, conductance, p_c) from the whole graph, not from
-	 * the training one the fit saw */
+/* --check-links: score the held-out pairs, and read the AGM figures
+ * (internal edges, conductance, p_c) from the whole graph, not from the
+ * training one the fit saw, into *whole. Returns 1 when done. */
+static int score_links(struct run *r, const struct snapshot *s, struct result_links *links,
+		       struct agm *whole)
+{
+	*links = (struct result_links){ r->check_links, r->check.nedges, r->check.nnon, 0, 0 };
+	if (holdout_score(&r->check, &s->F, s->epsilon, &links->heldout_loglik, &links->auc) ||
+	    agm_from_strengths(whole, r->graph, &s->F, s->epsilon, s->delta, AGM_MIN_LINKS))
+		return 0;
+	if (!r->quiet)
+		notice("held-out links: AUC %.4f, log-likelihood %.6g over %llu edges and %llu "
+		       "non-edges", links->auc, links->heldout_loglik,
+		       (unsigned long long)links->held_edges,
+		       (unsigned long long)links->held_non_edges);
+	return 1;
+}
+
+static void say_written(const struct run *r, const struct snapshot *s, enum fit_state st,
+			const struct agm *a)
+{
+	const char *how = st == FIT_LEVELLED ? "levelled off" :
+			  st == FIT_FINISHED ? "reached the sweep limit" :
+			  r->interrupted ? "was interrupted" : "was stopped";
+	char best[64] = "";
+	if (s->starts > 1)
+		snprintf(best, sizeof best, " (start %u of %u, the most likely)", s->best_start,
+			 s->starts);
+	notice("the fit %s after %u sweeps%s in %.1f s: %u communities, %u of %u nodes in at "
+	       "least one, %u in two or more; results in '%s'", how, s->sweep, best, s->seconds,
+	       a->cover.k, a->covered, r->graph->n, a->overlapping, r->out);
+}
+
+/* The end of the fit: --check-links, --refine, the folder. Returns the
+ * exit status. */
+static int finish(struct run *r, enum fit_state st, const struct snapshot *s)
+{
 	struct result_links links;
-	struct snapshot whole;
-	const struct snapshot *ws = s;
-	int have_whole = 0;
-	if (check.held && s->ntrace > 0 && st != FIT_FAILED) {
-		links = (struct result_links){ check_links, check.nedges, check.nnon, 0, 0 };
-		whole = *s;
-		if (holdout_score(&check, &s->F, s->epsilon, &links.heldout_loglik, &links.auc) == 0 &&
-		    agm_from_strengths(&whole.agm, graph, &s->F, s->epsilon, s->delta,
-				       AGM_MIN_LINKS) == 0) {
-			have_whole = 1;
-			ws = &whole;
-			if (!quiet)
-				notice("held-out links: AUC %.4f, log-likelihood %.6g over %llu edges "
-				       "and %llu non-edges", links.auc, links.heldout_loglik,
-				       (unsigned long long)links.held_edges,
-				       (unsigned long long)links.held_non_edges);
-		}
-	}
-	/* the refined cover replaces the thresholded one in what is written */
-	struct snapshot written = *ws;
-	struct agm refined;
+	struct agm whole, refined;
 	struct refine_report rrep;
-	int have_refined = 0, refine_failed = 0;
+	int have_whole = 0, have_refined = 0, rc = 0;
+	memset(&whole, 0, sizeof whole);
 	memset(&refined, 0, sizeof refined);
-	if (refine && interrupted && !quiet)
+	struct result_model m;
+	result_model_of(&m, s);
+	if (r->check.held && s->ntrace > 0 && st != FIT_FAILED &&
+	    (have_whole = score_links(r, s, &links, &whole)))
+		m.agm = &whole;
+	/* the refined cover replaces the thresholded one in what is written */
+	if (r->refine && r->interrupted && !r->quiet)
 		notice("interrupted: the cover is not refined");
-	if (refine && !interrupted && st != FIT_FAILED && s->ntrace > 0) {
-		if (refine_cover_of(graph, ws, refine_rounds, p.seed, quiet, &refined, &rrep)) {
-			refine_failed = 1; /* reported; the unrefined result is still written */
+	if (r->refine && !r->interrupted && st != FIT_FAILED && s->ntrace > 0) {
+		if (refine_cover_of(r->graph, m.agm, &s->F, r->refine_rounds, r->p.seed, r->quiet,
+				    &refined, &rrep)) {
+			rc = 1; /* reported; the unrefined result is still written */
 		} else {
 			have_refined = 1;
-			written.agm = refined;
+			m.agm = &refined;
 			if (rrep.stopped)
-				interrupted = 1;
+				r->interrupted = 1;
 		}
 	}
-
-	const char *status = interrupted ? "interrupted" : fit_state_name(st);
 	struct result_meta meta = {
-		.k_auto = o.k_auto,
+		.k_auto = r->o.k_auto,
 		.command_line = proc_command_line(),
-		.graph_path = gpath ? gpath : (ck.graph ? ck.graph->source : ""),
-		.wall_seconds = util_now() - t_begin,
+		.graph_path = r->gpath ? r->gpath : (r->ck.graph ? r->ck.graph->source : ""),
+		.wall_seconds = util_now() - r->t_begin,
 		.peak_rss_kb = proc_peak_rss_kb(),
-		.status = status,
+		.status = r->interrupted ? "interrupted" : fit_state_name(st),
 		.refine = have_refined ? &rrep : NULL,
-		.refine_rounds = refine ? refine_rounds : 0,
-		.selection = o.k_auto ? &sel : NULL,
+		.refine_rounds = r->refine ? r->refine_rounds : 0,
+		.selection = r->o.k_auto ? &r->sel : NULL,
 		.links = have_whole ? &links : NULL,
 	};
-	int rc = 0;
 	if (st == FIT_FAILED || s->ntrace == 0) {
-		error("the fit failed; nothing written to '%s'", out);
+		error("the fit failed; nothing written to '%s'", r->out);
 		rc = 1;
-	} else if (check.held && !have_whole) {
-		error("cannot score the held-out links; nothing written to '%s'", out);
+	} else if (r->check.held && !have_whole) {
+		error("cannot score the held-out links; nothing written to '%s'", r->out);
 		rc = 1;
-	} else if (result_write(out, graph, &p, &written, &meta) ||
-		   (have_whole && result_write_links(out, graph, &check, &s->F, s->epsilon))) {
+	} else if (outdir_write(r->od, &m, &meta, have_whole ? &r->check : NULL)) {
 		rc = 1;
-	} else if (!quiet) {
-		const char *how = st == FIT_LEVELLED ? "levelled off" :
-				  st == FIT_FINISHED ? "reached the sweep limit" :
-				  interrupted ? "was interrupted" : "was stopped";
-		char best[64] = "";
-		if (s->starts > 1)
-			snprintf(best, sizeof best, " (start %u of %u, the most likely)",
-				 s->best_start, s->starts);
-		notice("the fit %s after %u sweeps%s in %.1f s: %u communities, %u of %u nodes "
-		       "in at least one, %u in two or more; results in '%s'",
-		       how, s->sweep, best, s->seconds, written.agm.cover.k, written.agm.covered,
-		       graph->n, written.agm.overlapping, out);
+	} else if (!r->quiet) {
+		say_written(r, s, st, m.agm);
 	}
 	agm_release(&refined);
-	if (refine_failed)
-		rc = 1;
-	if (have_whole)
-		agm_release(&whole.agm);
-	snapshot_release(s);
-	fit_free(f);
-	holdout_release(&check);
-	select_result_release(&sel);
-	graph_free(g);
-	checkpoint_release(&ck);
+	agm_release(&whole);
 	if (rc)
 		return rc;
-	return interrupted ? EXIT_INTERRUPTED : 0;
+	return r->interrupted ? EXIT_INTERRUPTED : 0;
+}
+
+int cmd_fit(int argc, char **argv)
+{
+	struct run run = { .refine_rounds = 50 }, *r = &run;
+	cli_fit_opts_init(&r->o);
+	int rc = parse_args(r, argc, argv);
+	if (rc >= 0)
+		return rc;
+	rc = 1;
+	util_set_quiet(r->quiet);
+	/* refuse early: a long fit whose result cannot be written is lost work */
+	if (result_prepare_dir(r->out) || proc_signals_install())
+		goto out;
+	r->t_begin = util_now();
+	int loaded = r->resume ? load_resume(r) : load_graph(r);
+	if (loaded) {
+		if (loaded == -2 && proc_signal_caught())
+			rc = EXIT_INTERRUPTED;
+		goto out;
+	}
+	r->graph = r->g ? r->g : r->ck.graph;
+	if (memory_check_fit(r->graph, &r->p))
+		goto out;
+	r->f = fit_new(r->check.train ? r->check.train : r->graph, &r->p,
+		       r->have_origin ? &r->origin : NULL);
+	struct outdir_config oc = {
+		.dir = r->out, .g = r->graph, .params = r->p,
+		.every = r->o.checkpoint_every > 0 ? r->o.checkpoint_every : 120.0,
+		.one_start = r->resume && !r->ck.savepoint,
+	};
+	if (!r->f || !(r->od = outdir_new(&oc)))
+		goto out;
+	if (r->check.held)
+		fit_exclude(r->f, r->check.held);
+	if (!r->quiet)
+		notice("fitting %u communities on %u nodes and %llu edges with %u thread%s",
+		       r->p.k, r->graph->n, (unsigned long long)r->graph->m, r->p.threads,
+		       r->p.threads == 1 ? "" : "s");
+	if (fit_start(r->f))
+		goto out;
+	struct progress pr = { isatty(2), r->quiet, 0, 0, 0, 0 };
+	watch(r, &pr);
+	enum fit_state st = fit_wait(r->f);
+	struct snapshot *s = fit_snapshot(r->f);
+	progress_show(&pr, s, 1);
+	rc = finish(r, st, s);
+	snapshot_release(s);
+out:
+	run_release(r);
+	return rc;
 }

@@ -32,9 +32,11 @@
 
 #include "cli.h"
 #include "coterie/agm.h"
+#include "coterie/checkpoint.h"
 #include "coterie/fit.h"
 #include "coterie/graph.h"
 #include "coterie/inspect.h"
+#include "coterie/jsonout.h"
 #include "coterie/model.h"
 #include "coterie/result.h"
 
@@ -166,17 +168,12 @@ static void more_note(size_t total, size_t n)
 		printf("  ... %zu more (--limit 0 shows all)\n", total - n);
 }
 
-static json_t *jint(uint64_t v)
-{
-	return json_integer(v > (uint64_t)INT64_MAX ? (json_int_t)INT64_MAX : (json_int_t)v);
-}
-
 static json_t *jcommunity(const struct agm_community *c)
 {
-	return json_pack("{s:o s:o s:o s:o s:o s:o s:o s:o}", "id", jint(c->id), "size",
-			 jint(c->size), "internal_edges", jint(c->internal_edges), "volume",
-			 jint(c->volume), "cut", jint(c->cut), "density", cli_json_real(c->density),
-			 "conductance", cli_json_real(c->conductance), "p", cli_json_real(c->p));
+	return json_pack("{s:o s:o s:o s:o s:o s:o s:o s:o}", "id", jsonout_uint(c->id), "size",
+			 jsonout_uint(c->size), "internal_edges", jsonout_uint(c->internal_edges), "volume",
+			 jsonout_uint(c->volume), "cut", jsonout_uint(c->cut), "density", jsonout_real(c->density),
+			 "conductance", jsonout_real(c->conductance), "p", jsonout_real(c->p));
 }
 
 /* The node called name: 0, or -1 with a message. */
@@ -194,16 +191,16 @@ static int find_node(const struct show *s, const char *name, uint32_t *u)
 
 static json_t *jaffil(const struct inspect_affil *f)
 {
-	return json_pack("{s:o s:o s:b s:o}", "community", jint(f->comm), "strength",
-			 cli_json_real(f->strength), "member", f->member, "explained",
-			 jint(f->explained));
+	return json_pack("{s:o s:o s:b s:o}", "community", jsonout_uint(f->comm), "strength",
+			 jsonout_real(f->strength), "member", f->member, "explained",
+			 jsonout_uint(f->explained));
 }
 
 static json_t *jshare(const struct inspect_share *sh)
 {
-	return json_pack("{s:o s:o s:o s:b s:o}", "community", jint(sh->comm), "product",
-			 cli_json_real(sh->product), "alone", cli_json_real(sh->alone),
-			 "both_members", sh->both_members, "p", cli_json_real(sh->p));
+	return json_pack("{s:o s:o s:o s:b s:o}", "community", jsonout_uint(sh->comm), "product",
+			 jsonout_real(sh->product), "alone", jsonout_real(sh->alone),
+			 "both_members", sh->both_members, "p", jsonout_real(sh->p));
 }
 
 /* ---- the summary ------------------------------------------------------ */
@@ -221,17 +218,17 @@ static int show_summary(const struct show *s)
 		json_t *list = json_array();
 		for (size_t i = 0; i < n; i++)
 			json_array_append_new(list, jcommunity(&a->comms[i]));
-		return cli_json_print(json_pack(
+		return jsonout_print(json_pack(
 			"{s:o s:o s:o s:o s:o s:o s:o s:o s:s s:o s:o s:o s:o s:o s:o s:o}",
-			"dir", cli_json_str(s->dir), "nodes", jint(g->n), "edges", jint(g->m),
-			"k", jint(ck->params.k), "ncommunities", jint(a->cover.k),
-			"covered", jint(a->covered), "overlapping", jint(a->overlapping),
-			"sweep", jint(ck->sweep), "state", fit_state_name(ck->state),
-			"seconds", cli_json_real(ck->seconds),
-			"loglik", have_ll ? cli_json_real(ll) : json_null(),
-			"agm_loglik", cli_json_real(a->loglik), "epsilon", cli_json_real(ck->epsilon),
-			"delta", cli_json_real(s->delta), "min_links", cli_json_real(AGM_MIN_LINKS),
-			"communities", list));
+			"dir", jsonout_str(s->dir), "nodes", jsonout_uint(g->n), "edges", jsonout_uint(g->m),
+			"k", jsonout_uint(ck->params.k), "ncommunities", jsonout_uint(a->cover.k),
+			"covered", jsonout_uint(a->covered), "overlapping", jsonout_uint(a->overlapping),
+			"sweep", jsonout_uint(ck->sweep), "state", fit_state_name(ck->state),
+			"seconds", jsonout_real(ck->seconds),
+			"loglik", have_ll ? jsonout_real(ll) : json_null(),
+			"agm_loglik", jsonout_real(a->loglik), "epsilon", jsonout_real(ck->epsilon),
+			"delta", jsonout_real(s->delta), "min_links", jsonout_real(AGM_MIN_LINKS),
+			"communities", list), stdout, CLI_JSON_FLAGS);
 	}
 
 	char buf[NAME_CAP];
@@ -294,12 +291,12 @@ static int show_node(const struct show *s, const char *name)
 		json_t *list = json_array();
 		for (size_t i = 0; i < n; i++)
 			json_array_append_new(list, jaffil(&nv.affil[i]));
-		rc = cli_json_print(json_pack("{s:o s:o s:o s:o s:o s:o s:o s:o s:o}",
-			"node", cli_json_str(graph_name(g, u)), "id", jint(u),
-			"degree", jint(nv.degree), "memberships", jint(nv.nmember),
-			"naffiliations", jint(nv.naffil), "unexplained", jint(nv.unexplained),
-			"delta", cli_json_real(s->delta), "min_links", cli_json_real(AGM_MIN_LINKS),
-			"affiliations", list));
+		rc = jsonout_print(json_pack("{s:o s:o s:o s:o s:o s:o s:o s:o s:o}",
+			"node", jsonout_str(graph_name(g, u)), "id", jsonout_uint(u),
+			"degree", jsonout_uint(nv.degree), "memberships", jsonout_uint(nv.nmember),
+			"naffiliations", jsonout_uint(nv.naffil), "unexplained", jsonout_uint(nv.unexplained),
+			"delta", jsonout_real(s->delta), "min_links", jsonout_real(AGM_MIN_LINKS),
+			"affiliations", list), stdout, CLI_JSON_FLAGS);
 		inspect_node_release(&nv);
 		return rc;
 	}
@@ -375,10 +372,10 @@ static int show_community(const struct show *s, uint32_t id)
 		json_t *list = json_array();
 		for (size_t i = 0; i < n; i++)
 			json_array_append_new(list, json_pack("{s:o s:o}",
-				"node", cli_json_str(graph_name(g, order[i])),
-				"strength", cli_json_real(str[i])));
+				"node", jsonout_str(graph_name(g, order[i])),
+				"strength", jsonout_real(str[i])));
 		json_object_set_new(root, "members", list);
-		rc = cli_json_print(root);
+		rc = jsonout_print(root, stdout, CLI_JSON_FLAGS);
 	} else {
 		printf("community    %" PRIu32 "\n", c->id);
 		printf("members      %" PRIu32 "\n", c->size);
@@ -422,28 +419,28 @@ static int show_pairs(const struct show *s, uint32_t id, int missing)
 	if (s->json) {
 		json_t *root = json_object();
 		json_t *list = json_array();
-		json_object_set_new(root, "community", jint(id));
-		json_object_set_new(root, "members", jint(size));
+		json_object_set_new(root, "community", jsonout_uint(id));
+		json_object_set_new(root, "members", jsonout_uint(size));
 		if (missing)
-			json_object_set_new(root, "pool", jint(pool));
-		json_object_set_new(root, "total", jint(total));
+			json_object_set_new(root, "pool", jsonout_uint(pool));
+		json_object_set_new(root, "total", jsonout_uint(total));
 		for (size_t i = 0; i < n; i++) {
 			json_t *o = json_object();
 			if (missing) {
-				json_object_set_new(o, "u", cli_json_str(graph_name(g, p[i].u)));
-				json_object_set_new(o, "v", cli_json_str(graph_name(g, p[i].v)));
+				json_object_set_new(o, "u", jsonout_str(graph_name(g, p[i].u)));
+				json_object_set_new(o, "v", jsonout_str(graph_name(g, p[i].v)));
 			} else {
 				int64_t e = inspect_explaining_community(F, p[i].u, p[i].v);
-				json_object_set_new(o, "member", cli_json_str(graph_name(g, p[i].u)));
-				json_object_set_new(o, "other", cli_json_str(graph_name(g, p[i].v)));
+				json_object_set_new(o, "member", jsonout_str(graph_name(g, p[i].u)));
+				json_object_set_new(o, "other", jsonout_str(graph_name(g, p[i].v)));
 				json_object_set_new(o, "explained_by",
-						    e < 0 ? json_null() : jint((uint64_t)e));
+						    e < 0 ? json_null() : jsonout_uint((uint64_t)e));
 			}
-			json_object_set_new(o, "prob", cli_json_real(p[i].prob));
+			json_object_set_new(o, "prob", jsonout_real(p[i].prob));
 			json_array_append_new(list, o);
 		}
 		json_object_set_new(root, missing ? "pairs" : "edges", list);
-		rc = cli_json_print(root);
+		rc = jsonout_print(root, stdout, CLI_JSON_FLAGS);
 		free(p);
 		return rc;
 	}
@@ -517,12 +514,12 @@ static int show_edge(const struct show *s, const char *na, const char *nb)
 		json_t *list = json_array();
 		for (size_t i = 0; i < n; i++)
 			json_array_append_new(list, jshare(&e.share[i]));
-		rc = cli_json_print(json_pack("{s:o s:o s:b s:o s:o s:o s:o s:o s:o}",
-			"a", cli_json_str(graph_name(g, u)), "b", cli_json_str(graph_name(g, v)),
-			"linked", e.linked, "dot", cli_json_real(e.x), "prob", cli_json_real(e.prob),
-			"prob_communities", cli_json_real(e.prob_comms),
-			"agm_prob", cli_json_real(e.agm_prob), "epsilon", cli_json_real(s->ck.epsilon),
-			"communities", list));
+		rc = jsonout_print(json_pack("{s:o s:o s:b s:o s:o s:o s:o s:o s:o}",
+			"a", jsonout_str(graph_name(g, u)), "b", jsonout_str(graph_name(g, v)),
+			"linked", e.linked, "dot", jsonout_real(e.x), "prob", jsonout_real(e.prob),
+			"prob_communities", jsonout_real(e.prob_comms),
+			"agm_prob", jsonout_real(e.agm_prob), "epsilon", jsonout_real(s->ck.epsilon),
+			"communities", list), stdout, CLI_JSON_FLAGS);
 		inspect_edge_release(&e);
 		return rc;
 	}
@@ -570,8 +567,8 @@ static int show_links(const struct show *s)
 	if (s->json) {
 		root = json_object();
 		list = json_array();
-		json_object_set_new(root, "total", jint(g->m));
-		json_object_set_new(root, "epsilon", cli_json_real(s->ck.epsilon));
+		json_object_set_new(root, "total", jsonout_uint(g->m));
+		json_object_set_new(root, "epsilon", jsonout_real(s->ck.epsilon));
 	} else {
 		printf("%" PRIu64 " edge%s in the order of the graph; probability is "
 		       "1 - exp(-(F_a.F_b + qeps))\n\n", g->m, g->m == 1 ? "" : "s");
@@ -589,11 +586,11 @@ static int show_links(const struct show *s)
 			i++;
 			if (s->json) {
 				json_t *o = json_object();
-				json_object_set_new(o, "a", cli_json_str(graph_name(g, u)));
-				json_object_set_new(o, "b", cli_json_str(graph_name(g, v)));
-				json_object_set_new(o, "prob", cli_json_real(p));
+				json_object_set_new(o, "a", jsonout_str(graph_name(g, u)));
+				json_object_set_new(o, "b", jsonout_str(graph_name(g, v)));
+				json_object_set_new(o, "prob", jsonout_real(p));
 				json_object_set_new(o, "explained_by",
-						    c < 0 ? json_null() : jint((uint64_t)c));
+						    c < 0 ? json_null() : jsonout_uint((uint64_t)c));
 				json_array_append_new(list, o);
 				continue;
 			}
@@ -606,7 +603,7 @@ static int show_links(const struct show *s)
 		}
 	if (s->json) {
 		json_object_set_new(root, "edges", list);
-		return cli_json_print(root);
+		return jsonout_print(root, stdout, CLI_JSON_FLAGS);
 	}
 	more_note((size_t)g->m, n);
 	return 0;
@@ -718,7 +715,7 @@ static int show_open(struct show *s)
 	if (w < 0 || (size_t)w >= sizeof path)
 		return error("the folder name is too long: %s",
 			     util_escape(s->dir, buf, sizeof buf, 1));
-	if (result_read_checkpoint(path, &s->ck))
+	if (checkpoint_read(path, &s->ck))
 		return -1;
 	s->delta = sqrt(model_qeps(s->ck.epsilon));
 	if (agm_from_strengths(&s->agm, s->ck.graph, &s->ck.F, s->ck.epsilon, s->delta,

@@ -99,7 +99,16 @@ enum {
 	OPT_EVEN_DEGREES,
 };
 
-int cmd_simulate(int argc, char **argv)
+/* The command line. */
+struct sim_args {
+	struct simulate_params p;
+	const char *out, *prefix;
+	int quiet, force;
+};
+
+/* Parse the command line into a. Returns -1 to go on, else the exit
+ * status (--help, a bad option; a bad value exits 2 at once). */
+static int parse_args(struct sim_args *a, int argc, char **argv)
 {
 	static const struct option opts[] = {
 		{ "nodes", required_argument, NULL, 'n' },
@@ -121,47 +130,47 @@ int cmd_simulate(int argc, char **argv)
 		{ "help", no_argument, NULL, 'h' },
 		{ NULL, 0, NULL, 0 },
 	};
-	struct simulate_params p;
-	simulate_params_default(&p);
+	struct simulate_params *p = &a->p;
+	simulate_params_default(p);
 	long cores = sysconf(_SC_NPROCESSORS_ONLN);
-	p.threads = cores > 0 ? (unsigned)(cores > 256 ? 256 : cores) : 1;
-	int have_sizes = 0, have_link = 0, have_degree = 0, quiet = 0, force = 0;
-	const char *out = NULL, *prefix = "";
+	p->threads = cores > 0 ? (unsigned)(cores > 256 ? 256 : cores) : 1;
+	a->prefix = "";
+	int have_sizes = 0, have_link = 0, have_degree = 0;
 	int c;
 	optind = 1;
 	opterr = 0;
 	while ((c = getopt_long(argc, argv, ":n:k:o:j:qh", opts, NULL)) != -1) {
 		switch (c) {
-		case 'n': p.n = cli_u32("-n", optarg, 2, SIMULATE_MAX_NODES); break;
-		case 'k': p.k = cli_u32("-k", optarg, 1, SIMULATE_MAX_NODES); break;
+		case 'n': p->n = cli_u32("-n", optarg, 2, SIMULATE_MAX_NODES); break;
+		case 'k': p->k = cli_u32("-k", optarg, 1, SIMULATE_MAX_NODES); break;
 		case OPT_SIZES:
-			parse_sizes(optarg, &p.size_min, &p.size_max);
+			parse_sizes(optarg, &p->size_min, &p->size_max);
 			have_sizes = 1;
 			break;
 		case OPT_SIZE_EXPONENT:
-			p.size_exponent = cli_double("--size-exponent", optarg, 0.0, 100.0);
+			p->size_exponent = cli_double("--size-exponent", optarg, 0.0, 100.0);
 			break;
-		case OPT_OVERLAP: p.overlap = cli_double("--overlap", optarg, 0.0, 1.0); break;
+		case OPT_OVERLAP: p->overlap = cli_double("--overlap", optarg, 0.0, 1.0); break;
 		case OPT_MAX_MEMBERSHIPS:
-			p.max_memberships = cli_u32("--max-memberships", optarg, 2,
-						    SIMULATE_MAX_MEMBERSHIPS);
+			p->max_memberships = cli_u32("--max-memberships", optarg, 2,
+						     SIMULATE_MAX_MEMBERSHIPS);
 			break;
 		case OPT_LINK_PROB:
-			parse_range_double("--link-prob", optarg, 0.0, 1.0, &p.p_lo, &p.p_hi);
+			parse_range_double("--link-prob", optarg, 0.0, 1.0, &p->p_lo, &p->p_hi);
 			have_link = 1;
 			break;
 		case OPT_MEAN_DEGREE:
-			p.mean_degree = cli_double("--mean-degree", optarg, 0.0, 2e9);
+			p->mean_degree = cli_double("--mean-degree", optarg, 0.0, 2e9);
 			have_degree = 1;
 			break;
-		case OPT_EVEN_DEGREES: p.even_degrees = 1; break;
-		case CLI_OPT_EPSILON: p.epsilon = cli_double("--epsilon", optarg, 0.0, 0.999); break;
-		case OPT_PREFIX: prefix = optarg; break;
-		case 'o': out = optarg; break;
-		case OPT_FORCE: force = 1; break;
-		case 'j': p.threads = cli_u32("-j", optarg, 1, 256); break;
-		case CLI_OPT_SEED: p.seed = cli_u64("--seed", optarg); break;
-		case 'q': quiet = 1; break;
+		case OPT_EVEN_DEGREES: p->even_degrees = 1; break;
+		case CLI_OPT_EPSILON: p->epsilon = cli_double("--epsilon", optarg, 0.0, 0.999); break;
+		case OPT_PREFIX: a->prefix = optarg; break;
+		case 'o': a->out = optarg; break;
+		case OPT_FORCE: a->force = 1; break;
+		case 'j': p->threads = cli_u32("-j", optarg, 1, 256); break;
+		case CLI_OPT_SEED: p->seed = cli_u64("--seed", optarg); break;
+		case 'q': a->quiet = 1; break;
 		case 'h': simulate_usage(stdout); return 0;
 		default:
 			cli_option_error(c, argv);
@@ -174,63 +183,72 @@ int cmd_simulate(int argc, char **argv)
 		die(EXIT_USAGE, "simulate takes no file argument ('%s'); the output is -o DIR",
 		    util_escape(argv[optind], buf, sizeof buf, 1));
 	}
-	if (!out)
+	if (!a->out)
 		die(EXIT_USAGE, "simulate needs an output folder: -o DIR");
 	/* --link-prob alone means the p_c as given; with --mean-degree, weights */
-	if (have_link && !have_degree && !p.even_degrees)
-		p.mean_degree = 0.0;
+	if (have_link && !have_degree && !p->even_degrees)
+		p->mean_degree = 0.0;
 	if (!have_sizes) {
-		if (p.size_max > p.n)
-			p.size_max = p.n;
-		if (p.size_min > p.size_max)
-			p.size_min = p.size_max;
+		if (p->size_max > p->n)
+			p->size_max = p->n;
+		if (p->size_min > p->size_max)
+			p->size_min = p->size_max;
 	}
-	if (simulate_prefix_check(prefix))
+	if (simulate_prefix_check(a->prefix) || simulate_params_check(p))
 		return EXIT_USAGE;
-	if (simulate_params_check(&p))
-		return EXIT_USAGE;
-	util_set_quiet(quiet);
-	if (!force && simulate_dir_taken(out)) {
+	return -1;
+}
+
+static void say_planted(const struct simulate *s, const char *out, double seconds,
+			double t_written)
+{
+	char buf[512];
+	notice("planted %u communities (%" PRIu64 " memberships, %" PRIu64
+	       " nodes in two or more) on %u nodes and drew %" PRIu64
+	       " edges (expected %.1f, mean degree %.3g) in %.1f s; written to '%s' in "
+	       "%.1f s",
+	       s->k, s->truth.off[s->k], s->overlapping, s->n, s->m, s->expected_edges,
+	       2.0 * (double)s->m / s->n, seconds, util_escape(out, buf, sizeof buf, 1),
+	       util_now() - t_written);
+	if (s->isolated)
+		notice("%" PRIu64 " nodes have no edge and are absent from '%s'", s->isolated,
+		       SIMULATE_EDGES);
+}
+
+int cmd_simulate(int argc, char **argv)
+{
+	struct sim_args a = { 0 };
+	struct simulate s = { 0 };
+	int rc = parse_args(&a, argc, argv);
+	if (rc >= 0)
+		return rc;
+	rc = 1;
+	util_set_quiet(a.quiet);
+	if (!a.force && simulate_dir_taken(a.out)) {
 		char buf[512];
 		error("'%s' already holds a planted graph; use --force to replace it",
-		      util_escape(out, buf, sizeof buf, 1));
-		return 1;
+		      util_escape(a.out, buf, sizeof buf, 1));
+		goto out;
 	}
-	if (result_prepare_dir(out))
-		return 1;
-
+	if (result_prepare_dir(a.out))
+		goto out;
 	double t0 = util_now();
-	struct simulate s;
-	if (simulate_run(&p, &s))
-		return 1;
+	if (simulate_run(&a.p, &s))
+		goto out;
 	double t1 = util_now();
-	struct simulate_meta meta = { proc_command_line(), prefix, t1 - t0 };
+	struct simulate_meta meta = { proc_command_line(), a.prefix, t1 - t0 };
 	/* an interrupt while sampling ends the process (nothing is written yet);
 	 * while writing it waits, so no temporary file is left behind */
-	if (proc_signals_install()) {
-		simulate_release(&s);
-		return 1;
-	}
-	int rc = simulate_write(out, &s, &p, &meta);
-	if (!rc && !quiet) {
-		char buf[512];
-		notice("planted %u communities (%" PRIu64 " memberships, %" PRIu64
-		       " nodes in two or more) on %u nodes and drew %" PRIu64
-		       " edges (expected %.1f, mean degree %.3g) in %.1f s; written to '%s' in "
-		       "%.1f s",
-		       s.k, s.truth.off[s.k], s.overlapping, s.n, s.m, s.expected_edges,
-		       2.0 * (double)s.m / s.n, t1 - t0, util_escape(out, buf, sizeof buf, 1),
-		       util_now() - t1);
-		if (s.isolated)
-			notice("%" PRIu64 " nodes have no edge and are absent from '%s'", s.isolated,
-			       SIMULATE_EDGES);
-	}
-	simulate_release(&s);
-	if (rc)
-		return 1;
+	if (proc_signals_install() || simulate_write(a.out, &s, &a.p, &meta))
+		goto out;
+	if (!a.quiet)
+		say_planted(&s, a.out, t1 - t0, t1);
+	rc = 0;
 	if (proc_signal_caught()) {
 		notice("interrupted; the planted graph was written first");
-		return EXIT_INTERRUPTED;
+		rc = EXIT_INTERRUPTED;
 	}
-	return 0;
+out:
+	simulate_release(&s);
+	return rc;
 }

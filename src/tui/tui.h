@@ -43,6 +43,8 @@ struct tui_config {
 	double t_begin;               /* when the command started (run.json) */
 	const struct select_result *selection; /* -k auto's search (borrowed), or NULL */
 	double checkpoint_every;      /* seconds between autosaves; 0: default */
+	int one_start;                /* the fit goes on as one start (reopened
+				       * without a savepoint): outdir.h */
 };
 
 /* What the explore command hands over for -k auto (kscreen.c). */

@@ -30,7 +30,7 @@
 
 #include "coterie/graph.h"
 #include "coterie/proc.h"
-#include "coterie/result.h"
+#include "coterie/outdir.h"
 #include "coterie/util.h"
 #include "keys.h"
 #include "panes.h"
@@ -99,77 +99,25 @@ static void stop_and_wait(struct view *v)
 
 /*
  * Autosave: while a fit runs, its checkpoint is written to the result
- * folder every AUTOSAVE_SECONDS on a thread of its own (a large model
+ * folder every AUTOSAVE_SECONDS, on a thread of its own (a large model
  * takes a while to write, and the screen must not wait), so a crash or a
- * killed machine loses at most that much work; `explore DIR` reopens it.
- * The thread holds its own snapshot reference; snapshots and the graph are
- * immutable. It is joined before the final write (both would use the same
- * temporary file name).
+ * killed machine loses at most that much work; `explore DIR` reopens it
+ * and `fit --resume DIR` ends as the uninterrupted fit would (outdir.h).
  */
 #define AUTOSAVE_SECONDS 120.0
 
-struct autosave {
-	pthread_t thread;
-	int running;
-	atomic_int done;
-	char path[4096];
-	const struct graph *g;
-	struct fit_params p;
-	struct snapshot *s;
-	char dir[4096];
-	double every;
-};
-
-static void *autosave_main(void *arg)
+static struct outdir *autosave_open(const struct view *v, const struct tui_config *cfg)
 {
-	struct autosave *a = arg;
-	if (result_prepare_dir(a->dir) == 0)
-		result_write_checkpoint(a->path, a->g, &a->p, a->s);
-	atomic_store(&a->done, 1);
-	return NULL;
-}
-
-static void autosave_join(struct autosave *a)
-{
-	if (!a->running)
-		return;
-	pthread_join(a->thread, NULL);
-	snapshot_release(a->s);
-	a->s = NULL;
-	a->running = 0;
-}
-
-static void autosave_maybe(struct view *v, struct autosave *a, double *last)
-{
-	double now = util_now();
-	if (a->running && atomic_load(&a->done))
-		autosave_join(a);
-	if (a->running || !v->started || fit_state_ended(v->state) ||
-	    now - *last < a->every)
-		return;
-	*last = now;
-	a->s = fit_snapshot(v->fit);
-	if (!a->s || a->s->ntrace == 0) {
-		snapshot_release(a->s);
-		a->s = NULL;
-		return;
-	}
-	a->g = v->g;
-	a->p = *fit_get_params(v->fit);
-	snprintf(a->dir, sizeof a->dir, "%s", v->outdir);
-	snprintf(a->path, sizeof a->path, "%s/%s", v->outdir, RESULT_CHECKPOINT);
-	atomic_store(&a->done, 0);
-	sigset_t all, old;
-	sigfillset(&all);
-	pthread_sigmask(SIG_BLOCK, &all, &old);
-	int rc = pthread_create(&a->thread, NULL, autosave_main, a);
-	pthread_sigmask(SIG_SETMASK, &old, NULL);
-	if (rc) {
-		snapshot_release(a->s);
-		a->s = NULL;
-		return;
-	}
-	a->running = 1;
+	/* COTERIE_AUTOSAVE_SECONDS: a shorter interval, for the tests */
+	const char *as_env = getenv("COTERIE_AUTOSAVE_SECONDS");
+	struct outdir_config oc = {
+		.dir = v->outdir, .g = v->g, .params = v->params,
+		.every = as_env && atof(as_env) > 0 ? atof(as_env) : AUTOSAVE_SECONDS,
+		.one_start = cfg->one_start, .background = 1,
+	};
+	if (cfg->checkpoint_every > 0)
+		oc.every = cfg->checkpoint_every;
+	return outdir_new(&oc);
 }
 
 /* What the loop keeps besides the view, and how the session ended. */
@@ -179,8 +127,6 @@ struct loop {
 	int pending;              /* the fit woke us: a snapshot is due */
 	int hangup;               /* the terminal went away */
 	double last_tick;         /* the trace pane's clock */
-	struct autosave autosave;
-	double last_autosave;
 	/* COTERIE_TUI_TIMING: from reading a key to doupdate() */
 	double t_key;
 	int took_snap;
@@ -221,12 +167,7 @@ static int start(struct view *v, struct loop *l, const struct tui_config *cfg)
 			 "(-o chooses another); ? lists the keys");
 
 	l->last_tick = util_now();
-	l->last_autosave = util_now();
-	/* COTERIE_AUTOSAVE_SECONDS: a shorter interval, for the tests */
-	const char *as_env = getenv("COTERIE_AUTOSAVE_SECONDS");
-	l->autosave.every = as_env && atof(as_env) > 0 ? atof(as_env) : AUTOSAVE_SECONDS;
-	if (cfg->checkpoint_every > 0)
-		l->autosave.every = cfg->checkpoint_every;
+	v->od = autosave_open(v, cfg);
 	return 0;
 }
 
@@ -255,7 +196,8 @@ static void update_and_draw(struct view *v, struct loop *l)
 		v->msg[0] = '\0';
 		v->dirty |= DIRTY_FOOTER;
 	}
-	autosave_maybe(v, &l->autosave, &l->last_autosave);
+	if (v->started && v->od)
+		outdir_tick(v->od, v->fit);
 	view_prepare(v);
 	if (v->dirty)
 		screen_draw(&l->screen, v);
@@ -342,7 +284,6 @@ static int wait_and_read(struct view *v, struct loop *l)
  * be lost. Returns the exit status so far. */
 static int leave(struct view *v, struct loop *l)
 {
-	autosave_join(&l->autosave);
 	l->sig = proc_signal_caught();
 	int status = 0;
 	if (l->sig || l->hangup) {
@@ -421,6 +362,7 @@ int tui_run(struct tui_config *cfg)
 		status = report(v, l, status);
 	}
 	free(l);
+	outdir_free(v->od);
 	fit_free(v->fit);
 	view_release(v);
 	return status;

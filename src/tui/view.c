@@ -31,6 +31,7 @@
 #include "coterie/graph.h"
 #include "coterie/proc.h"
 #include "coterie/result.h"
+#include "coterie/outdir.h"
 #include "coterie/util.h"
 
 void view_init(struct view *v, const struct tui_config *cfg)
@@ -675,10 +676,9 @@ int view_write(struct view *v, const char *status)
 	}
 	/* a reopened result's snapshot says "ready"; the record keeps the
 	 * state it was saved in */
-	struct snapshot copy = *s;
-	copy.state = st;
-	struct fit_params p = v->params;
-	p.hold_at_plateau = 0;
+	struct result_model m;
+	result_model_of(&m, s);
+	m.state = st;
 	struct result_meta meta = {
 		.command_line = proc_command_line(),
 		.graph_path = v->graph_path,
@@ -688,11 +688,7 @@ int view_write(struct view *v, const char *status)
 		.k_auto = v->selection != NULL,
 		.selection = v->selection,
 	};
-	int rc = -1;
-	if (result_prepare_dir(v->outdir) == 0 &&
-	    (!v->selection || result_write_selection(v->outdir, v->selection) == 0) &&
-	    result_write(v->outdir, v->g, &p, &copy, &meta) == 0)
-		rc = 0;
+	int rc = v->od ? outdir_write(v->od, &m, &meta, NULL) : error("out of memory");
 	if (rc == 0) {
 		v->saved = 1;
 		v->saved_sweep = s->sweep;

@@ -83,6 +83,7 @@ struct view {
 	int utf8, colour;
 	double t_begin;
 	const struct select_result *selection; /* -k auto's search, or NULL */
+	struct outdir *od;    /* the result folder (outdir.h); owned by tui_run() */
 
 	/* the snapshot on screen */
 	struct snapshot *snap;

@@ -1,12 +1,12 @@
 /*
- * libFuzzer entry for result_read_checkpoint(): the input is a checkpoint
+ * libFuzzer entry for checkpoint_read(): the input is a checkpoint
  * file. Its last 8 bytes are overwritten with the FNV-1a checksum of the
  * bytes before them (when there are at least 32), so the fuzzer reaches
  * the parser behind the checksum instead of being stopped by it on every
  * input; the checksum test itself is covered by tests/unit/test_result.c. The
  * bytes go to a memfd, read back through /proc/self/fd, so no disk is
  * touched. A checkpoint that reads must keep the rules the reader promises
- * (result.h, model.h, graph.h); anything else (a crash, a sanitizer report,
+ * (checkpoint.h, model.h, graph.h); anything else (a crash, a sanitizer report,
  * a broken rule, a message with a raw control byte) is a finding.
  *
  * Build and run: make fuzz (which builds every harness with clang and runs
@@ -24,6 +24,7 @@
 #include "coterie/fit.h"
 #include "coterie/graph.h"
 #include "coterie/model.h"
+#include "coterie/checkpoint.h"
 #include "coterie/result.h"
 #include "coterie/savepoint.h"
 #include "coterie/util.h"
@@ -127,7 +128,7 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
 	char path[64];
 	snprintf(path, sizeof path, "/proc/self/fd/%d", fd);
 	struct checkpoint ck;
-	if (result_read_checkpoint(path, &ck) == 0) {
+	if (checkpoint_read(path, &ck) == 0) {
 		check(&ck);
 		checkpoint_release(&ck);
 	}

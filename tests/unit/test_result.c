@@ -27,6 +27,7 @@
 #include <jansson.h>
 
 #include "coterie/agm.h"
+#include "coterie/checkpoint.h"
 #include "coterie/fit.h"
 #include "coterie/graph.h"
 #include "coterie/model.h"
@@ -94,6 +95,15 @@ struct fixture {
 };
 
 static struct fixture fx;
+
+/* The writers take a struct result_model; the fixture is kept as the
+ * snapshot a fit would publish, and pointed to (valid until the next call). */
+static const struct result_model *model_of(const struct snapshot *s)
+{
+	static struct result_model m;
+	result_model_of(&m, s);
+	return &m;
+}
 
 static void fixture_init(void)
 {
@@ -352,7 +362,7 @@ static const char *write_folder(void)
 	static char dir[4200];
 	snprintf(dir, sizeof dir, "%s/out/run1", tmp);
 	assert_int_equal(result_prepare_dir(dir), 0);
-	assert_int_equal(result_write(dir, fx.g, &fx.p, &fx.s, &fx.meta), 0);
+	assert_int_equal(result_write(dir, fx.g, &fx.p, model_of(&fx.s), &fx.meta), 0);
 	return dir;
 }
 
@@ -378,7 +388,7 @@ static void test_folder_holds_five_files_and_no_temporaries(void **state)
 	/* the five files of result.h; no ".NAME.tmp-PID" and no probe left */
 	assert_string_equal(names, "checkpoint.cot communities.tsv memberships.tsv run.json trace.tsv");
 	/* writing again over the same folder replaces the files, still no leftovers */
-	assert_int_equal(result_write(dir, fx.g, &fx.p, &fx.s, &fx.meta), 0);
+	assert_int_equal(result_write(dir, fx.g, &fx.p, model_of(&fx.s), &fx.meta), 0);
 	list_dir(dir, names, sizeof names);
 	assert_string_equal(names, "checkpoint.cot communities.tsv memberships.tsv run.json trace.tsv");
 	remove_folder(dir);
@@ -598,7 +608,7 @@ static void test_run_json_records_the_agm_refinement(void **state)
 	meta.refine = &rep;
 	meta.refine_rounds = 7;
 	const char *tmp = test_tmpdir();
-	assert_int_equal(result_write(tmp, fx.g, &fx.p, &fx.s, &meta), 0);
+	assert_int_equal(result_write(tmp, fx.g, &fx.p, model_of(&fx.s), &meta), 0);
 	json_error_t jerr;
 	json_t *root = json_load_file(path_in(tmp, "run.json"), 0, &jerr);
 	assert_non_null(root);
@@ -620,7 +630,7 @@ static void test_run_json_records_the_agm_refinement(void **state)
 
 	/* asked but not done (interrupted first): the figures are null */
 	meta.refine = NULL;
-	assert_int_equal(result_write(tmp, fx.g, &fx.p, &fx.s, &meta), 0);
+	assert_int_equal(result_write(tmp, fx.g, &fx.p, model_of(&fx.s), &meta), 0);
 	root = json_load_file(path_in(tmp, "run.json"), 0, &jerr);
 	assert_non_null(root);
 	assert_true(json_is_false(get(root, "agm_refine", "done")));
@@ -642,7 +652,7 @@ static void test_run_json_writes_big_seed_as_string_and_infinity_as_null(void **
 	meta.peak_rss_kb = 2048;
 	meta.command_line = "bad \xff utf-8";
 	const char *tmp = test_tmpdir();
-	assert_int_equal(result_write(tmp, fx.g, &p, &s, &meta), 0);
+	assert_int_equal(result_write(tmp, fx.g, &p, model_of(&s), &meta), 0);
 	json_error_t jerr;
 	json_t *root = json_load_file(path_in(tmp, "run.json"), 0, &jerr);
 	assert_non_null(root);
@@ -687,7 +697,7 @@ static void test_k_selection_and_link_check_are_recorded(void **state)
 	meta.links = &links;
 	const char *tmp = test_tmpdir();
 	assert_int_equal(result_write_selection(tmp, &sel), 0);
-	assert_int_equal(result_write(tmp, fx.g, &fx.p, &fx.s, &meta), 0);
+	assert_int_equal(result_write(tmp, fx.g, &fx.p, model_of(&fx.s), &meta), 0);
 
 	struct table t;
 	table_load(&t, path_in(tmp, "k-selection.tsv"));
@@ -797,7 +807,7 @@ static const char *checkpoint_file(char *dirbuf, size_t cap)
 	snprintf(dirbuf, cap, "%s", test_tmpdir());
 	static char path[4200];
 	snprintf(path, sizeof path, "%s/checkpoint.cot", dirbuf);
-	assert_int_equal(result_write_checkpoint(path, fx.g, &fx.p, &fx.s), 0);
+	assert_int_equal(checkpoint_write(path, fx.g, &fx.p, model_of(&fx.s)), 0);
 	return path;
 }
 
@@ -865,7 +875,7 @@ static void test_checkpoint_round_trip_keeps_every_field(void **state)
 	char dir[4096];
 	const char *path = checkpoint_file(dir, sizeof dir);
 	struct checkpoint ck;
-	assert_int_equal(result_read_checkpoint(path, &ck), 0);
+	assert_int_equal(checkpoint_read(path, &ck), 0);
 
 	assert_true(ck.fingerprint == graph_fingerprint(fx.g));
 	assert_graph_sane(ck.graph);
@@ -946,7 +956,7 @@ static void test_checkpoint_refuses_every_flipped_byte(void **state)
 			memcpy(buf, good, size);
 			buf[i] ^= masks[j];
 			spill(path, buf, size);
-			if (result_read_checkpoint(path, &ck) != -1)
+			if (checkpoint_read(path, &ck) != -1)
 				fail_msg("flipping byte %zu with %02x was not noticed", i, masks[j]);
 			assert_null(ck.graph);
 			assert_null(ck.trace);
@@ -972,7 +982,7 @@ static void test_checkpoint_refuses_every_truncation(void **state)
 	quiet_on();
 	for (size_t len = 0; len < size; len++) {
 		spill(path, good, len);
-		if (result_read_checkpoint(path, &ck) != -1)
+		if (checkpoint_read(path, &ck) != -1)
 			fail_msg("a checkpoint cut to %zu of %zu bytes was read", len, size);
 		assert_true(strstr(last_msg, path) != NULL); /* the message names the file */
 	}
@@ -981,7 +991,7 @@ static void test_checkpoint_refuses_every_truncation(void **state)
 	memcpy(longer, good, size);
 	longer[size] = 0;
 	spill(path, longer, size + 1);
-	assert_int_equal(result_read_checkpoint(path, &ck), -1);
+	assert_int_equal(checkpoint_read(path, &ck), -1);
 	quiet_off();
 	free(longer);
 	free(good);
@@ -1021,7 +1031,7 @@ static void craft_refused(struct crafted *c, size_t size, const char *want, int 
 	reseal(c->buf, size);
 	spill(c->path, c->buf, size);
 	quiet_on();
-	int rc = result_read_checkpoint(c->path, &ck);
+	int rc = checkpoint_read(c->path, &ck);
 	quiet_off();
 	if (rc != -1)
 		fail_msg("line %d: a crafted checkpoint was accepted", line);
@@ -1155,7 +1165,7 @@ static void test_checkpoint_refuses_bad_contents_under_a_valid_checksum(void **s
 
 	/* after all that, the good file still reads */
 	spill(path, c.good, c.size);
-	assert_int_equal(result_read_checkpoint(path, &ck), 0);
+	assert_int_equal(checkpoint_read(path, &ck), 0);
 	checkpoint_release(&ck);
 	free(c.buf);
 	free(c.good);
@@ -1183,7 +1193,7 @@ static void test_checkpoint_reads_format_1(void **state)
 	reseal(old, osize);
 	spill(path, old, osize);
 	struct checkpoint ck;
-	assert_int_equal(result_read_checkpoint(path, &ck), 0);
+	assert_int_equal(checkpoint_read(path, &ck), 0);
 	assert_int_equal(ck.params.k, K);
 	assert_int_equal(ck.params.max_sweeps, 500);
 	assert_int_equal(ck.params.starts, 1);
@@ -1195,7 +1205,7 @@ static void test_checkpoint_reads_format_1(void **state)
 	reseal(good, size);
 	spill(path, good, size);
 	quiet_on();
-	assert_int_equal(result_read_checkpoint(path, &ck), -1);
+	assert_int_equal(checkpoint_read(path, &ck), -1);
 	quiet_off();
 	assert_non_null(strstr(last_msg, "parameters take 52 bytes, not 44"));
 	free(old);
@@ -1234,7 +1244,7 @@ static void test_checkpoint_keeps_where_an_interrupt_left_the_starts(void **stat
 	fx.s.savepoint = NULL;
 
 	struct checkpoint ck;
-	assert_int_equal(result_read_checkpoint(path, &ck), 0);
+	assert_int_equal(checkpoint_read(path, &ck), 0);
 	assert_non_null(ck.savepoint);
 	const struct fit_savepoint *q = ck.savepoint;
 	assert_int_equal(q->start, 2);
@@ -1290,11 +1300,11 @@ static void test_checkpoint_keeps_where_an_interrupt_left_the_starts(void **stat
 	r.start = 4; /* of 3 starts */
 	fx.s.savepoint = &r;
 	quiet_on();
-	assert_int_equal(result_write_checkpoint(path, fx.g, &fx.p, &fx.s), 0);
+	assert_int_equal(checkpoint_write(path, fx.g, &fx.p, model_of(&fx.s)), 0);
 	quiet_off();
 	fx.s.savepoint = NULL;
 	assert_non_null(strstr(last_msg, "saved without its savepoint"));
-	assert_int_equal(result_read_checkpoint(path, &ck), 0);
+	assert_int_equal(checkpoint_read(path, &ck), 0);
 	assert_null(ck.savepoint);
 	assert_int_equal(ck.sweep, 4);
 	checkpoint_release(&ck);
@@ -1308,11 +1318,11 @@ static void test_checkpoint_refuses_what_is_not_a_checkpoint(void **state)
 	struct checkpoint ck;
 	quiet_on();
 	const char *p = test_write_file(dir, "edges.tsv", "a\tb\nb\tc\nc\ta\nthis is text, not a checkpoint\n");
-	assert_int_equal(result_read_checkpoint(p, &ck), -1);
+	assert_int_equal(checkpoint_read(p, &ck), -1);
 	assert_non_null(strstr(last_msg, "not a coterie checkpoint"));
-	assert_int_equal(result_read_checkpoint(dir, &ck), -1); /* a folder */
+	assert_int_equal(checkpoint_read(dir, &ck), -1); /* a folder */
 	assert_non_null(strstr(last_msg, "not a regular file"));
-	assert_int_equal(result_read_checkpoint(path_in(dir, "missing.cot"), &ck), -1);
+	assert_int_equal(checkpoint_read(path_in(dir, "missing.cot"), &ck), -1);
 	assert_non_null(strstr(last_msg, "missing.cot"));
 	quiet_off();
 	test_rmtree(dir);
@@ -1384,7 +1394,7 @@ static void test_failed_write_keeps_the_old_file_and_no_temporary(void **state)
 	struct snapshot s = fx.s;
 	s.sweep = 5; /* a different file would have been written */
 	quiet_on();
-	int rc = result_write_checkpoint(path, fx.g, &fx.p, &s);
+	int rc = checkpoint_write(path, fx.g, &fx.p, model_of(&s));
 	quiet_off();
 	assert_int_equal(setrlimit(RLIMIT_FSIZE, &saved), 0);
 	signal(SIGXFSZ, oldsig);
@@ -1401,7 +1411,7 @@ static void test_failed_write_keeps_the_old_file_and_no_temporary(void **state)
 	s = fx.s;
 	s.F.n = N - 1;
 	quiet_on();
-	assert_int_equal(result_write_checkpoint(path, fx.g, &fx.p, &s), -1);
+	assert_int_equal(checkpoint_write(path, fx.g, &fx.p, model_of(&s)), -1);
 	quiet_off();
 	now = slurp(path, &after);
 	assert_memory_equal(now, old, size);
@@ -1412,7 +1422,7 @@ static void test_failed_write_keeps_the_old_file_and_no_temporary(void **state)
 	snprintf(target, sizeof target, "%s/blocked", dir);
 	assert_int_equal(mkdir(target, 0700), 0);
 	quiet_on();
-	assert_int_equal(result_write_checkpoint(target, fx.g, &fx.p, &fx.s), -1);
+	assert_int_equal(checkpoint_write(target, fx.g, &fx.p, model_of(&fx.s)), -1);
 	quiet_off();
 	list_dir(dir, names, sizeof names);
 	assert_string_equal(names, "blocked checkpoint.cot");
@@ -1455,7 +1465,7 @@ static void test_resume_through_the_checkpoint_matches_the_uninterrupted_fit(voi
 	const char *dir = test_tmpdir();
 	struct result_meta meta = { "coterie fit karate", "karate/edges.tsv", 1.0, 0, "finished", 0,
 				    NULL, 0, NULL, NULL };
-	assert_int_equal(result_write(dir, g, &p, half, &meta), 0);
+	assert_int_equal(result_write(dir, g, &p, model_of(half), &meta), 0);
 
 	/* the folder agrees with the snapshot it was written from */
 	struct table t;
@@ -1470,7 +1480,7 @@ static void test_resume_through_the_checkpoint_matches_the_uninterrupted_fit(voi
 	free(t.text);
 
 	struct checkpoint ck;
-	assert_int_equal(result_read_checkpoint(path_in(dir, RESULT_CHECKPOINT), &ck), 0);
+	assert_int_equal(checkpoint_read(path_in(dir, RESULT_CHECKPOINT), &ck), 0);
 	assert_true(ck.fingerprint == graph_fingerprint(g));
 	assert_int_equal(ck.sweep, 3);
 	assert_int_equal(ck.F.off[ck.F.n], half->F.off[half->F.n]);

@@ -1,0 +1,66 @@
+/*
+ * outdir: the result folder of a run, over the run's life, for both
+ * `coterie fit` and the explorer: reading the checkpoint a run continues
+ * from, the periodic checkpoints while the fit runs, and the final write.
+ *
+ * Periodic checkpoints carry a savepoint (fit.h, struct fit_savepoint):
+ * outdir_tick() asks the fit for one (fit_want_savepoint()) when a
+ * checkpoint is due and writes the snapshot that brings it, so a fit
+ * resumed from any checkpoint (after a kill -9, say) ends with the bytes
+ * the uninterrupted fit would have written. A fit continued as one start
+ * makes no savepoints; its snapshot is written as it is.
+ *
+ * No curses, no exit: errors are reported through error() and returned.
+ */
+#ifndef COTERIE_OUTDIR_H
+#define COTERIE_OUTDIR_H
+
+#include "checkpoint.h"
+#include "fit.h"
+#include "result.h"
+
+struct graph;
+struct holdout;
+
+/* Read DIR/checkpoint.cot into ck (released by the caller with
+ * checkpoint_release()). Returns 0 or -1 with a message. */
+int outdir_read(const char *dir, struct checkpoint *ck);
+
+/* Continue the fit saved in ck: make p (the saved parameters, already
+ * merged with the command line by the caller) what fit.h says such a fit
+ * runs with (one start and no reseeding when ck has no savepoint), and
+ * fill origin, which points into ck (borrowed). */
+void outdir_resume(const struct checkpoint *ck, struct fit_params *p, struct fit_origin *origin);
+
+struct outdir_config {
+	const char *dir;            /* the folder (borrowed; made when first written) */
+	const struct graph *g;      /* the graph written (borrowed; outlives the outdir) */
+	struct fit_params params;   /* as written to the checkpoint and run.json */
+	double every;               /* seconds between periodic checkpoints; > 0 */
+	int one_start;              /* the fit goes on as one start (resumed from a
+				     * checkpoint without savepoint): no savepoints */
+	int background;             /* write periodic checkpoints on a thread of
+				     * their own (the explorer's screen must not wait) */
+};
+
+struct outdir;
+
+/* Returns NULL when out of memory (reported). Free with outdir_free(). */
+struct outdir *outdir_new(const struct outdir_config *cfg);
+/* Waits for a periodic write in progress. outdir_free(NULL) is a no-op. */
+void outdir_free(struct outdir *od);
+
+/* Call often while fit f (borrowed) runs: asks for a savepoint when a
+ * checkpoint is due and writes it when the fit brings it. A failed write
+ * is reported and the next one tried a period later. Does nothing once
+ * the fit has ended. */
+void outdir_tick(struct outdir *od, struct fit *f);
+
+/* The final write: waits for a periodic write, makes the folder, writes
+ * k-selection.tsv (when meta->selection), the whole folder from model m,
+ * and held-out-links.tsv when check is not NULL (its pairs scored with
+ * m->F and m->epsilon). All borrowed. Returns 0 or -1 with a message. */
+int outdir_write(struct outdir *od, const struct result_model *m,
+		 const struct result_meta *meta, const struct holdout *check);
+
+#endif

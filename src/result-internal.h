@@ -1,0 +1,16 @@
+/*
+ * What the pieces of the result module share (result.c writes the folder,
+ * runjson.c builds run.json). Not for other modules.
+ */
+#ifndef COTERIE_RESULT_INTERNAL_H
+#define COTERIE_RESULT_INTERNAL_H
+
+#include "coterie/result.h"
+
+/* The text of run.json for model m of a fit of g with parameters p (all
+ * borrowed; meta may be NULL). Caller frees with free(); NULL with a
+ * message when out of memory. */
+char *result_run_json(const struct graph *g, const struct fit_params *p,
+		      const struct result_model *m, const struct result_meta *meta);
+
+#endif

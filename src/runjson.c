@@ -1,0 +1,215 @@
+/*
+ * runjson: run.json, the record of a fit in its result folder (keys in
+ * coterie-files(5)). Part of the result module (src/result-internal.h).
+ *
+ * The idea: one object per section (coterie, graph, parameters, fit,
+ * k_selection, link_check, agm_refine, run), each built by its own
+ * function from the borrowed parts it describes; values go through
+ * jsonout.h, so a non-finite number is null, a count too large for JSON's
+ * integers a decimal string, a non-UTF-8 path escaped.
+ *
+ * Invariant: keys are written in insertion order (jansson keeps it), which
+ * is the order the manual lists; a failed constructor anywhere sets bad,
+ * and then nothing is written rather than a run.json missing a key.
+ */
+#include "result-internal.h"
+
+#include <inttypes.h>
+#include <stdio.h>
+#include <stdlib.h>
+
+#include <jansson.h>
+
+#include "coterie/agm.h"
+#include "coterie/graph.h"
+#include "coterie/jsonout.h"
+#include "coterie/refine.h"
+#include "coterie/select.h"
+#include "coterie/util.h"
+
+/* run.json's k_selection: the -k auto search. */
+static json_t *j_selection(const struct select_result *sel)
+{
+	int bad = 0;
+	json_t *o = json_object(), *grid = json_array(), *scores = json_array();
+	if (!o || !grid || !scores) {
+		json_decref(o);
+		json_decref(grid);
+		json_decref(scores);
+		return NULL;
+	}
+	jsonout_set(o, "criterion", json_string("held-out log-likelihood"), &bad);
+	jsonout_set(o, "chosen", jsonout_uint(sel->best), &bad);
+	for (uint32_t i = 0; i < sel->ngrid; i++)
+		jsonout_append(grid, jsonout_uint(sel->grid[i]), &bad);
+	jsonout_set(o, "grid", grid, &bad);
+	jsonout_set(o, "held_out_share", jsonout_real(sel->share), &bad);
+	jsonout_set(o, "held_out_edges", jsonout_uint(sel->held_edges), &bad);
+	jsonout_set(o, "held_out_non_edges", jsonout_uint(sel->held_non_edges), &bad);
+	for (uint32_t i = 0; i < sel->npts; i++) {
+		const struct select_point *pt = &sel->pts[i];
+		json_t *e = json_object();
+		if (!e) {
+			bad = 1;
+			break;
+		}
+		jsonout_set(e, "k", jsonout_uint(pt->k), &bad);
+		jsonout_set(e, "heldout_loglik", jsonout_real(pt->heldout), &bad);
+		jsonout_set(e, "heldout_auc", jsonout_real(pt->auc), &bad);
+		jsonout_set(e, "sweeps", jsonout_uint(pt->sweeps), &bad);
+		jsonout_set(e, "seconds", jsonout_real(pt->seconds), &bad);
+		jsonout_append(scores, e, &bad);
+	}
+	jsonout_set(o, "scores", scores, &bad);
+	if (bad) {
+		json_decref(o);
+		return NULL;
+	}
+	return o;
+}
+
+/* run.json's link_check: the held-out check of the final model. */
+static json_t *j_links(const struct result_links *l)
+{
+	int bad = 0;
+	json_t *o = json_object();
+	if (!o)
+		return NULL;
+	jsonout_set(o, "held_out_share", jsonout_real(l->share), &bad);
+	jsonout_set(o, "held_out_edges", jsonout_uint(l->held_edges), &bad);
+	jsonout_set(o, "held_out_non_edges", jsonout_uint(l->held_non_edges), &bad);
+	jsonout_set(o, "heldout_loglik", jsonout_real(l->heldout_loglik), &bad);
+	jsonout_set(o, "heldout_auc", jsonout_real(l->auc), &bad);
+	if (bad) {
+		json_decref(o);
+		return NULL;
+	}
+	return o;
+}
+
+
+static json_t *j_graph(const struct graph *g, const struct result_meta *meta, int *bad)
+{
+	const struct graph_report *r = &g->report;
+	char hex[17];
+	json_t *jg = json_object();
+	snprintf(hex, sizeof hex, "%016" PRIx64, graph_fingerprint(g));
+	jsonout_set(jg, "path", jsonout_str(meta && meta->graph_path ? meta->graph_path : g->source),
+		    bad);
+	jsonout_set(jg, "format", jsonout_str(graph_format_name(r->format)), bad);
+	jsonout_set(jg, "nodes", jsonout_uint(g->n), bad);
+	jsonout_set(jg, "edges", jsonout_uint(g->m), bad);
+	jsonout_set(jg, "fingerprint", json_string(hex), bad);
+	jsonout_set(jg, "lines", jsonout_uint(r->lines), bad);
+	jsonout_set(jg, "self_loops", jsonout_uint(r->self_loops), bad);
+	jsonout_set(jg, "duplicates", jsonout_uint(r->duplicates), bad);
+	jsonout_set(jg, "extra_columns", jsonout_uint(r->extra_columns), bad);
+	jsonout_set(jg, "isolated", jsonout_uint(r->isolated), bad);
+	jsonout_set(jg, "directed_input", json_boolean(r->directed_input), bad);
+	return jg;
+}
+
+static json_t *j_params(const struct fit_params *p, const struct result_model *m,
+			const struct result_meta *meta, int *bad)
+{
+	json_t *jp = json_object();
+	jsonout_set(jp, "k", jsonout_uint(p->k), bad);
+	jsonout_set(jp, "threads", jsonout_uint(p->threads), bad);
+	jsonout_set(jp, "seed", jsonout_uint(p->seed), bad);
+	jsonout_set(jp, "tol", jsonout_real(p->tol), bad);
+	jsonout_set(jp, "patience", jsonout_uint(p->patience), bad);
+	jsonout_set(jp, "max_sweeps", jsonout_uint(p->max_sweeps), bad);
+	jsonout_set(jp, "epsilon", jsonout_real(m->epsilon), bad);
+	jsonout_set(jp, "delta", jsonout_real(m->delta), bad);
+	jsonout_set(jp, "min_links", jsonout_real(AGM_MIN_LINKS), bad);
+	jsonout_set(jp, "past_plateau", json_boolean(p->past_plateau), bad);
+	jsonout_set(jp, "starts", jsonout_uint(p->starts), bad);
+	jsonout_set(jp, "reseed", json_boolean(!p->no_reseed), bad);
+	jsonout_set(jp, "k_chosen_by",
+		    jsonout_str(meta && meta->k_auto ? "held-out likelihood" : "given"), bad);
+	return jp;
+}
+
+static json_t *j_fit(const struct result_model *m, const struct result_meta *meta, int *bad)
+{
+	const struct agm *a = m->agm;
+	uint32_t nonempty = 0;
+	for (uint32_t i = 0; i < a->cover.k; i++)
+		if (cover_size(&a->cover, i) > 0)
+			nonempty++;
+	json_t *jf = json_object();
+	jsonout_set(jf, "status", jsonout_str(meta ? meta->status : NULL), bad);
+	jsonout_set(jf, "state", jsonout_str(fit_state_name(m->state)), bad);
+	jsonout_set(jf, "sweeps", jsonout_uint(m->sweep), bad);
+	jsonout_set(jf, "plateau_sweep",
+		    m->plateau_sweep ? jsonout_uint(m->plateau_sweep) : json_null(), bad);
+	jsonout_set(jf, "seconds", jsonout_real(m->seconds), bad);
+	jsonout_set(jf, "loglik",
+		    m->ntrace ? jsonout_real(m->trace[m->ntrace - 1].loglik) : json_null(), bad);
+	jsonout_set(jf, "agm_loglik", jsonout_real(a->loglik), bad);
+	jsonout_set(jf, "communities", jsonout_uint(nonempty), bad);
+	jsonout_set(jf, "covered_nodes", jsonout_uint(a->covered), bad);
+	jsonout_set(jf, "overlapping_nodes", jsonout_uint(a->overlapping), bad);
+	jsonout_set(jf, "start_kept", m->best_start ? jsonout_uint(m->best_start) : json_null(),
+		    bad);
+	jsonout_set(jf, "reseeds_kept", jsonout_uint(m->reseeds), bad);
+	jsonout_set(jf, "memberships_from",
+		    jsonout_str(meta && meta->refine ? "agm refinement" : "strengths"), bad);
+	return jf;
+}
+
+/* run.json's agm_refine: null without --refine. */
+static json_t *j_refine(const struct result_meta *meta, int *bad)
+{
+	if (!meta || !meta->refine_rounds)
+		return json_null();
+	const struct refine_report *rr = meta->refine;
+	json_t *ja = json_object();
+	if (!ja)
+		return json_null();
+	jsonout_set(ja, "max_rounds", jsonout_uint(meta->refine_rounds), bad);
+	jsonout_set(ja, "done", json_boolean(rr != NULL), bad);
+	jsonout_set(ja, "loglik_before", rr ? jsonout_real(rr->loglik_before) : json_null(), bad);
+	jsonout_set(ja, "loglik_after", rr ? jsonout_real(rr->loglik_after) : json_null(), bad);
+	jsonout_set(ja, "moves_added", rr ? jsonout_uint(rr->added) : json_null(), bad);
+	jsonout_set(ja, "moves_removed", rr ? jsonout_uint(rr->removed) : json_null(), bad);
+	jsonout_set(ja, "rounds", rr ? jsonout_uint(rr->rounds) : json_null(), bad);
+	jsonout_set(ja, "converged", rr ? json_boolean(rr->converged) : json_null(), bad);
+	jsonout_set(ja, "seconds", rr ? jsonout_real(rr->seconds) : json_null(), bad);
+	return ja;
+}
+
+char *result_run_json(const struct graph *g, const struct fit_params *p,
+		      const struct result_model *m, const struct result_meta *meta)
+{
+	int bad = 0;
+	json_t *root = json_object();
+	if (!root) {
+		error("out of memory building run.json");
+		return NULL;
+	}
+	json_t *jc = json_object();
+	jsonout_set(jc, "format", json_integer(1), &bad);
+	jsonout_set(root, "coterie", jc, &bad);
+	jsonout_set(root, "command", jsonout_str(meta ? meta->command_line : NULL), &bad);
+	jsonout_set(root, "graph", j_graph(g, meta, &bad), &bad);
+	jsonout_set(root, "parameters", j_params(p, m, meta, &bad), &bad);
+	jsonout_set(root, "fit", j_fit(m, meta, &bad), &bad);
+	jsonout_set(root, "k_selection", meta && meta->selection ? j_selection(meta->selection) :
+		    json_null(), &bad);
+	jsonout_set(root, "link_check", meta && meta->links ? j_links(meta->links) : json_null(),
+		    &bad);
+	jsonout_set(root, "agm_refine", j_refine(meta, &bad), &bad);
+
+	json_t *jr = json_object();
+	jsonout_set(jr, "wall_seconds", meta ? jsonout_real(meta->wall_seconds) : json_null(), &bad);
+	jsonout_set(jr, "peak_rss_kb",
+		    meta && meta->peak_rss_kb ? jsonout_uint(meta->peak_rss_kb) : json_null(), &bad);
+	jsonout_set(root, "run", jr, &bad);
+
+	char *text = bad ? NULL : json_dumps(root, JSON_INDENT(2));
+	json_decref(root);
+	if (!text)
+		error("out of memory building run.json");
+	return text;
+}

@@ -1,0 +1,33 @@
+/*
+ * What the pieces of the simulate module share: simulate.c (parameters,
+ * the four steps in order), simulate-cover.c (steps 1 to 3: the planted
+ * cover), simulate-expect.c (the exact expected edge count and p_c),
+ * simulate-edges.c (step 4: the edges), simulate-write.c (the planted
+ * folder). Not for other modules.
+ */
+#ifndef COTERIE_SIMULATE_INTERNAL_H
+#define COTERIE_SIMULATE_INTERNAL_H
+
+#include <stdint.h>
+
+#include "coterie/rng.h"
+#include "coterie/simulate.h"
+
+/* Independent streams: one tag per step, one index per item. */
+enum { S_MEMBERSHIPS = 1, S_SIZES, S_DEAL, S_LINKPROB, S_COMMUNITY, S_BACKGROUND };
+#define BACKGROUND_SLICES 64u
+
+/* Seed r with the stream of (seed, tag, index): no step's draws depend on
+ * another's, and an item's do not depend on the thread drawing it. */
+void simulate_stream(struct rng *r, uint64_t seed, uint64_t tag, uint64_t index);
+
+/* Steps 1 to 3: fill s->truth, s->k, s->overlapping, s->uncovered.
+ * Returns 0 or -1 with a message. */
+int simulate_plant_cover(const struct simulate_params *p, struct simulate *s);
+/* Step 2b: s->p (k probabilities), s->scale and s->expected_edges.
+ * Returns 0 or -1 with a message. */
+int simulate_plant_probabilities(const struct simulate_params *p, struct simulate *s);
+/* Step 4: s->edges, s->m and the draw counts. Returns 0 or -1. */
+int simulate_draw_edges(const struct simulate_params *p, struct simulate *s);
+
+#endif
