@@ -279,7 +279,7 @@ int result_write_links(const char *dir, const struct graph *g, const struct hold
 	char *path = atomicfile_path(dir, RESULT_LINKS);
 	if (!path)
 		return -1;
-	struct links_args a = { g, h, F, -log1p(-epsilon) };
+	struct links_args a = { g, h, F, model_qeps(epsilon) };
 	int rc = atomicfile_replace(path, fill_links, &a);
 	free(path);
 	return rc;
