@@ -77,6 +77,7 @@ struct fit {
 	double agm_time, agm_cost;
 	uint64_t agm_nnz; /* strengths stored when it was built */
 	uint32_t agm_sweep;
+	int live_agm;     /* fit_want_live_agm(): fitting snapshots rebuild it */
 };
 
 /* fit.c */

@@ -137,17 +137,25 @@ static struct snapshot *snapshot_of_counters(struct fit *f, enum fit_state state
 }
 
 /* The snapshot's AGM: built afresh, or the last one copied while it is
- * recent. Building costs in proportion to the strengths stored (rows are
- * densest after the first sweeps), so the last build's cost is scaled by
- * their count, and a fitting snapshot rebuilds only once AGM_SHARE times
- * that prediction has passed. A snapshot that ends or pauses a fit
+ * recent. Building walks the nodes and edges and the strengths stored
+ * (rows are densest after the first sweeps), so the last build's cost is
+ * scaled by n + m + nnz, and a fitting snapshot rebuilds only once
+ * AGM_SHARE times that prediction has passed: the AGM takes at most about
+ * a twentieth of the fitting thread's time. An AGM of an empty model (the
+ * one published before seeding) is never reused: scaled by the strengths
+ * alone, its near-zero cost once predicted a rebuild only after minutes,
+ * and the explorer showed no community until the fit ended. All this only
+ * for a fit asked for live AGMs (fit_want_live_agm()); otherwise a fitting
+ * snapshot copies the last one. A snapshot that ends or pauses a fit
  * always has a fresh one. 0 or -1. */
 static int snapshot_agm(struct fit *f, struct snapshot *s, enum fit_state state)
 {
 	double now = util_now();
 	uint64_t nnz = s->F.off[s->F.n];
-	double predicted = f->agm_cost * ((double)nnz + 1.0) / ((double)f->agm_nnz + 1.0);
-	if (state != FIT_FITTING || !f->have_agm || now - f->agm_time >= AGM_SHARE * predicted) {
+	double fixed = (double)f->g->n + (double)f->g->m; /* the walk over nodes and edges */
+	double predicted = f->agm_cost * (fixed + (double)nnz) / (fixed + (double)f->agm_nnz);
+	int stale_ok = !f->live_agm || (f->agm_nnz > 0 && now - f->agm_time < AGM_SHARE * predicted);
+	if (state != FIT_FITTING || !f->have_agm || !stale_ok) {
 		if (agm_from_strengths(&s->agm, f->g, &s->F, f->m.epsilon, f->m.delta,
 				       AGM_MIN_LINKS))
 			return -1;
@@ -487,6 +495,11 @@ fail:
 void fit_exclude(struct fit *f, const struct graph *excl)
 {
 	f->excl = excl;
+}
+
+void fit_want_live_agm(struct fit *f)
+{
+	f->live_agm = 1;
 }
 
 int fit_start(struct fit *f)

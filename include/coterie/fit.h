@@ -168,6 +168,16 @@ void fit_free(struct fit *f);
  * before fit_start(). */
 void fit_exclude(struct fit *f, const struct graph *excl);
 
+/* Ask that every snapshot published while fitting carry the AGM of a
+ * recent model (rebuilt as often as keeps it under about a twentieth of
+ * the fitting thread's time; snapshot.agm_sweep says which sweep), for a
+ * reader that shows the communities as they form (the explorer). Without
+ * it a fitting snapshot carries the last AGM built (on the model before
+ * seeding, at a pause or at a plateau), which costs nothing and may be
+ * empty: the batch command reads the AGM only of the final snapshot.
+ * Call before fit_start(). */
+void fit_want_live_agm(struct fit *f);
+
 /* Launch the fitting thread. Returns 0 or -1. */
 int fit_start(struct fit *f);
 void fit_pause(struct fit *f);

@@ -196,6 +196,7 @@ static int restart_fit(struct view *v, uint32_t max_sweeps)
 	struct fit *f = fit_new(v->g, &p, &o);
 	if (!f)
 		return -1;
+	fit_want_live_agm(f);
 	if (fit_start(f)) {
 		fit_free(f);
 		return -1;

@@ -157,6 +157,7 @@ static int start(struct view *v, struct loop *l, const struct tui_config *cfg)
 	if (l->pager && pager_start(l->pager) == 0)
 		v->pager = l->pager; /* else pages are fetched on this thread */
 	if (cfg->start) {
+		fit_want_live_agm(v->fit);
 		if (fit_start(v->fit) == 0)
 			v->started = 1;
 	}
