@@ -500,7 +500,7 @@ static int order_cmp(const void *pa, const void *pb)
 	const struct order *a = pa, *b = pb;
 	if (a->size != b->size)
 		return a->size > b->size ? -1 : 1;
-	return (a->id > b->id) - (a->id < b->id);
+	return util_cmp_uint(a->id, b->id);
 }
 
 /* Sorts ord (nord communities and their sizes) largest first and lays out

@@ -56,14 +56,14 @@ static int rec_cmp(const void *pa, const void *pb)
 	const struct rec *a = pa, *b = pb;
 	int c = (a->key > b->key) - (a->key < b->key);
 	if (c == 0)
-		c = (a->node > b->node) - (a->node < b->node);
-	return c ? c : (a->pos > b->pos) - (a->pos < b->pos);
+		c = util_cmp_uint(a->node, b->node);
+	return c ? c : util_cmp_uint(a->pos, b->pos);
 }
 
 static int group_cmp(const void *pa, const void *pb)
 {
 	const struct group *a = pa, *b = pb;
-	return (a->first > b->first) - (a->first < b->first);
+	return util_cmp_uint(a->first, b->first);
 }
 
 /*

@@ -503,7 +503,7 @@ struct by_id {
 static int by_id_cmp(const void *pa, const void *pb)
 {
 	const struct by_id *a = pa, *b = pb;
-	return (a->id > b->id) - (a->id < b->id);
+	return util_cmp_uint(a->id, b->id);
 }
 
 /* F[u][c], or 0 when row u holds no entry for c. */

@@ -90,12 +90,6 @@ static int check_cover(const struct cover *c)
 	return cover_check(c);
 }
 
-static int u64_cmp(const void *pa, const void *pb)
-{
-	uint64_t a = *(const uint64_t *)pa, b = *(const uint64_t *)pb;
-	return (a > b) - (a < b);
-}
-
 static int side_build(struct side *s, const struct cover *c)
 {
 	uint64_t n = c->n, total = 0;
@@ -149,7 +143,7 @@ static int side_build(struct side *s, const struct cover *c)
 	/* Group by size: distinct sizes sorted, then each community's group. */
 	memcpy(s->gval, s->size, (size_t)s->k * sizeof *s->gval);
 	if (s->k)
-		qsort(s->gval, s->k, sizeof *s->gval, u64_cmp);
+		qsort(s->gval, s->k, sizeof *s->gval, util_qsort_u64);
 	for (uint32_t i = 0; i < s->k; i++)
 		if (i == 0 || s->gval[i] != s->gval[s->ngrp - 1])
 			s->gval[s->ngrp++] = s->gval[i];
@@ -398,9 +392,8 @@ struct hnode {
 static int hnode_cmp(const void *pa, const void *pb)
 {
 	const struct hnode *a = pa, *b = pb;
-	if (a->hash != b->hash)
-		return a->hash < b->hash ? -1 : 1;
-	return (a->node > b->node) - (a->node < b->node);
+	int c = util_cmp_uint(a->hash, b->hash);
+	return c ? c : util_cmp_uint(a->node, b->node);
 }
 
 static int same_lists(const struct nidx *A, const struct nidx *B, uint32_t u, uint32_t v)
@@ -484,7 +477,7 @@ static int bigc_cmp(const void *pa, const void *pb)
 		return x->classes > y->classes ? -1 : 1;
 	if (x->side != y->side)
 		return x->side < y->side ? -1 : 1;
-	return (x->c > y->c) - (x->c < y->c);
+	return util_cmp_uint(x->c, y->c);
 }
 
 /* The state of one Omega computation; the steps below fill it in order. */

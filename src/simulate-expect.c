@@ -67,7 +67,7 @@ static int cmp_by_set(const void *a, const void *b)
 	uint64_t lu = sort_noff[u + 1] - sort_noff[u], lv = sort_noff[v + 1] - sort_noff[v];
 	if (lu != lv)
 		return lu < lv ? -1 : 1;
-	return (u > v) - (u < v);
+	return util_cmp_uint(u, v);
 }
 
 struct trip {
@@ -81,7 +81,7 @@ static int cmp_trip(const void *a, const void *b)
 		return x->c < y->c ? -1 : 1;
 	if (x->d != y->d)
 		return x->d < y->d ? -1 : 1;
-	return (x->t > y->t) - (x->t < y->t);
+	return util_cmp_uint(x->t, y->t);
 }
 
 /* A record: the pair count (two words, low first), the set's length, then
