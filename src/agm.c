@@ -77,14 +77,7 @@ struct index {
 
 static void index_release(struct index *ix)
 {
-	free(ix->noff);
-	free(ix->ncom);
-	free(ix->mc);
-	free(ix->solo);
-	free(ix->eoff);
-	free(ix->ecom);
-	free(ix->coff);
-	free(ix->cedge);
+	UTIL_FREE_ALL(ix->noff, ix->ncom, ix->mc, ix->solo, ix->eoff, ix->ecom, ix->coff, ix->cedge);
 	memset(ix, 0, sizeof *ix);
 }
 

@@ -352,6 +352,14 @@ void cover_release(struct cover *c)
 	memset(c, 0, sizeof *c);
 }
 
+int cover_same_n(const struct cover *a, const struct cover *b)
+{
+	if (a->n == b->n)
+		return 0;
+	return error("covers of different node sets: %" PRIu32 " and %" PRIu32 " nodes", a->n,
+		     b->n);
+}
+
 int cover_check(const struct cover *c)
 {
 	if (c->off[0] != 0)

@@ -143,12 +143,7 @@ struct mwork {
 
 static void mwork_release(struct mwork *w)
 {
-	free(w->noff);
-	free(w->ncom);
-	free(w->trep);
-	free(w->tcnt);
-	free(w->tr);
-	free(w->rec);
+	UTIL_FREE_ALL(w->noff, w->ncom, w->trep, w->tcnt, w->tr, w->rec);
 }
 
 /* Each node's communities, and per community C(size, 2). Returns 0 or -1. */
