@@ -18,8 +18,8 @@
  * and each edge's shared set is the merge of its two ends' lists. Edges
  * that share exactly one community c all have Q = qeps + q_c, so they are
  * only counted (solo_c) and enter as solo_c log(1 - exp(-qeps - q_c)); only
- * edges sharing two or more are kept one by one. On the planted bench
- * graphs that is 4% of the edges, and the estimate got 100 times faster.
+ * edges sharing two or more are kept one by one: in a good cover those
+ * are few, so the work follows them, not m.
  *
  * L is concave in q (log(1 - exp(-x)) is concave and Q is linear in q).
  * agm_estimate_p() does cyclic coordinate ascent: for one community at a

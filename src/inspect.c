@@ -15,7 +15,7 @@
  *     and keep the best pairs in a bounded heap in the same way. Whether
  *     a pool pair is linked comes from merging u's sorted neighbours with
  *     the sorted pool (the answer graph_has_edge() gives, without a
- *     binary search per pair: three times faster at 2M pairs).
+ *     binary search per pair).
  * Nothing here has static or global state; only results are allocated
  * (plus the heaps, freed before returning). The two sorts that fill
  * caller buffers (members, communities) cannot report an allocation
