@@ -71,9 +71,7 @@ int seed_triangles(const struct graph *g, uint64_t *tri)
 	}
 	rc = 0;
 out:
-	free(ooff);
-	free(oadj);
-	free(mark);
+	UTIL_FREE_ALL(ooff, oadj, mark);
 	return rc;
 }
 
