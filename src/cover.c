@@ -56,14 +56,14 @@ static int rec_cmp(const void *pa, const void *pb)
 	const struct rec *a = pa, *b = pb;
 	int c = (a->key > b->key) - (a->key < b->key);
 	if (c == 0)
-		c = (a->node > b->node) - (a->node < b->node);
-	return c ? c : (a->pos > b->pos) - (a->pos < b->pos);
+		c = util_cmp_uint(a->node, b->node);
+	return c ? c : util_cmp_uint(a->pos, b->pos);
 }
 
 static int group_cmp(const void *pa, const void *pb)
 {
 	const struct group *a = pa, *b = pb;
-	return (a->first > b->first) - (a->first < b->first);
+	return util_cmp_uint(a->first, b->first);
 }
 
 /*
@@ -350,6 +350,14 @@ void cover_release(struct cover *c)
 	free(c->off);
 	free(c->mem);
 	memset(c, 0, sizeof *c);
+}
+
+int cover_same_n(const struct cover *a, const struct cover *b)
+{
+	if (a->n == b->n)
+		return 0;
+	return error("covers of different node sets: %" PRIu32 " and %" PRIu32 " nodes", a->n,
+		     b->n);
 }
 
 int cover_check(const struct cover *c)

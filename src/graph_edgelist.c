@@ -358,8 +358,9 @@ static void reader_end(struct reader *rd)
  * back) are hashed first; then, while they are looked up one by one, the
  * slots of the line PREFETCH_AHEAD further on are prefetched, and the
  * long names in the slots of the line half as far on. On a large graph
- * every lookup is a cache miss or two; this lets them overlap (measured
- * better than prefetching the whole batch first).
+ * every lookup is a cache miss or two; this lets them overlap, a fixed
+ * distance ahead rather than a whole batch at once (DEVELOPERS.md,
+ * performance notes).
  */
 #define BATCH 128
 #define PREFETCH_AHEAD 32 /* lines between a slot's prefetch and its lookup */

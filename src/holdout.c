@@ -30,9 +30,8 @@
 static int cmp_pair(const void *a, const void *b)
 {
 	const uint32_t *x = a, *y = b;
-	if (x[0] != y[0])
-		return x[0] < y[0] ? -1 : 1;
-	return (x[1] > y[1]) - (x[1] < y[1]);
+	int c = util_cmp_uint(x[0], y[0]);
+	return c ? c : util_cmp_uint(x[1], y[1]);
 }
 
 void holdout_release(struct holdout *h)
@@ -142,9 +141,8 @@ struct scored {
 static int cmp_scored(const void *a, const void *b)
 {
 	const struct scored *p = a, *q = b;
-	if (p->x != q->x)
-		return p->x < q->x ? -1 : 1;
-	return p->pos - q->pos;
+	int c = util_cmp_double(p->x, q->x);
+	return c ? c : p->pos - q->pos;
 }
 
 double holdout_auc(const double *pos, uint64_t npos, const double *neg, uint64_t nneg)

@@ -600,12 +600,6 @@ void model_row_gradient(const struct model *m, const struct graph *g, uint32_t u
 		grad[w->cand[i]] = w->acc[w->cand[i]];
 }
 
-static int cmp_u32(const void *a, const void *b)
-{
-	uint32_t x = *(const uint32_t *)a, y = *(const uint32_t *)b;
-	return (x > y) - (x < y);
-}
-
 /* w->ltrial = the projected step of the given length over the live
  * candidates, *linear = the row objective's linear part there; returns 1 when it clipped a strength the free direction
  * would not have (when lin). The other candidates would stay at zero and
@@ -744,7 +738,7 @@ int model_update_row(const struct model *m, const struct graph *g, uint32_t u,
 			w->cand[o++] = w->lc[i];
 		}
 	if (o > 32)
-		qsort(w->cand, o, sizeof *w->cand, cmp_u32);
+		qsort(w->cand, o, sizeof *w->cand, util_qsort_u32);
 	else
 		for (uint32_t i = 1; i < o; i++) {
 			uint32_t c = w->cand[i], j = i;

@@ -48,12 +48,6 @@ int order_bfs(const struct graph *g, uint32_t *inner)
 	return 0;
 }
 
-static int cmp_u32(const void *a, const void *b)
-{
-	uint32_t x = *(const uint32_t *)a, y = *(const uint32_t *)b;
-	return (x > y) - (x < y);
-}
-
 int order_graph(const struct graph *g, const uint32_t *inner, struct graph *out)
 {
 	uint32_t n = g->n;
@@ -79,7 +73,7 @@ int order_graph(const struct graph *g, const uint32_t *inner, struct graph *out)
 		for (uint32_t j = 0; j < d; j++)
 			row[j] = inner[g->adj[g->off[u] + j]];
 		if (d > 16) {
-			qsort(row, d, sizeof *row, cmp_u32);
+			qsort(row, d, sizeof *row, util_qsort_u32);
 		} else {
 			for (uint32_t j = 1; j < d; j++) {
 				uint32_t x = row[j], k = j;

@@ -83,6 +83,8 @@ void refine_free(struct refine *r)
 {
 	if (!r)
 		return;
+	UTIL_FREE_ALL(r->len, r->cap, r->q, r->grow, r->size, r->gain, r->near, r->stamp, r->touched,
+		      r->shared);
 	if (r->row)
 		for (uint32_t u = 0; u < r->n; u++)
 			free(r->row[u]);
@@ -90,17 +92,7 @@ void refine_free(struct refine *r)
 		for (uint32_t c = 0; c < r->k; c++)
 			free(r->label[c]);
 	free(r->row);
-	free(r->len);
-	free(r->cap);
 	free(r->label);
-	free(r->q);
-	free(r->grow);
-	free(r->size);
-	free(r->gain);
-	free(r->near);
-	free(r->stamp);
-	free(r->touched);
-	free(r->shared);
 	free(r);
 }
 
@@ -503,7 +495,7 @@ struct by_id {
 static int by_id_cmp(const void *pa, const void *pb)
 {
 	const struct by_id *a = pa, *b = pb;
-	return (a->id > b->id) - (a->id < b->id);
+	return util_cmp_uint(a->id, b->id);
 }
 
 /* F[u][c], or 0 when row u holds no entry for c. */

@@ -149,9 +149,8 @@ struct ranked {
 static int cmp_ranked(const void *a, const void *b)
 {
 	const struct ranked *x = a, *y = b;
-	if (x->strength != y->strength)
-		return x->strength > y->strength ? -1 : 1;
-	return (x->node > y->node) - (x->node < y->node);
+	int c = util_cmp_double(y->strength, x->strength); /* the strongest first */
+	return c ? c : util_cmp_uint(x->node, y->node);
 }
 
 static int fill_memberships(struct atomicfile *w, const void *arg)

@@ -71,9 +71,7 @@ int seed_triangles(const struct graph *g, uint64_t *tri)
 	}
 	rc = 0;
 out:
-	free(ooff);
-	free(oadj);
-	free(mark);
+	UTIL_FREE_ALL(ooff, oadj, mark);
 	return rc;
 }
 
@@ -116,7 +114,7 @@ static int cmp_ranked(const void *a, const void *b)
 		return x->whole - y->whole;
 	if (x->phi != y->phi)
 		return x->phi < y->phi ? -1 : 1;
-	return (x->u > y->u) - (x->u < y->u);
+	return util_cmp_uint(x->u, y->u);
 }
 
 /* Take candidates in order as centres while fewer than k: a candidate

@@ -69,12 +69,6 @@ static int parse_k(const char *s, size_t len, uint32_t *out)
 	return 0;
 }
 
-static int cmp_u32(const void *a, const void *b)
-{
-	uint32_t x = *(const uint32_t *)a, y = *(const uint32_t *)b;
-	return (x > y) - (x < y);
-}
-
 int select_grid_parse(const char *s, struct select_params *sp)
 {
 	char shown[96];
@@ -97,7 +91,7 @@ int select_grid_parse(const char *s, struct select_params *sp)
 				break;
 			p = e + 1;
 		}
-		qsort(sp->list, n, sizeof *sp->list, cmp_u32);
+		qsort(sp->list, n, sizeof *sp->list, util_qsort_u32);
 		uint32_t o = 0;
 		for (uint32_t i = 0; i < n; i++)
 			if (o == 0 || sp->list[i] != sp->list[o - 1])

@@ -149,12 +149,6 @@ static int nudge_counts(uint8_t *m, const uint32_t *perm, uint32_t n, uint64_t *
 	return *cur == target ? 0 : error("cannot fit the memberships to the community sizes");
 }
 
-static int cmp_u32(const void *a, const void *b)
-{
-	uint32_t x = *(const uint32_t *)a, y = *(const uint32_t *)b;
-	return (x > y) - (x < y);
-}
-
 /* The community whose slots [off[c], off[c+1]) hold slot j. */
 static uint32_t chunk_of(const uint64_t *off, uint32_t k, uint64_t j)
 {
@@ -334,7 +328,7 @@ int simulate_plant_cover(const struct simulate_params *p, struct simulate *s)
 	if (deal_slots(p, m, n, cv->off, k, want, slot))
 		goto out;
 	for (uint32_t c = 0; c < k; c++) {
-		qsort(slot + cv->off[c], sizes[c], sizeof *slot, cmp_u32);
+		qsort(slot + cv->off[c], sizes[c], sizeof *slot, util_qsort_u32);
 		char lab[16];
 		snprintf(lab, sizeof lab, "%u", c);
 		if (!(cv->label[c] = util_strdup(lab)))

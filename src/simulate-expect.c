@@ -67,7 +67,7 @@ static int cmp_by_set(const void *a, const void *b)
 	uint64_t lu = sort_noff[u + 1] - sort_noff[u], lv = sort_noff[v + 1] - sort_noff[v];
 	if (lu != lv)
 		return lu < lv ? -1 : 1;
-	return (u > v) - (u < v);
+	return util_cmp_uint(u, v);
 }
 
 struct trip {
@@ -81,7 +81,7 @@ static int cmp_trip(const void *a, const void *b)
 		return x->c < y->c ? -1 : 1;
 	if (x->d != y->d)
 		return x->d < y->d ? -1 : 1;
-	return (x->t > y->t) - (x->t < y->t);
+	return util_cmp_uint(x->t, y->t);
 }
 
 /* A record: the pair count (two words, low first), the set's length, then
@@ -143,12 +143,7 @@ struct mwork {
 
 static void mwork_release(struct mwork *w)
 {
-	free(w->noff);
-	free(w->ncom);
-	free(w->trep);
-	free(w->tcnt);
-	free(w->tr);
-	free(w->rec);
+	UTIL_FREE_ALL(w->noff, w->ncom, w->trep, w->tcnt, w->tr, w->rec);
 }
 
 /* Each node's communities, and per community C(size, 2). Returns 0 or -1. */

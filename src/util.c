@@ -278,6 +278,22 @@ size_t util_lower_bound_u32(const uint32_t *x, size_t n, uint32_t v)
 	return lo;
 }
 
+int util_qsort_u32(const void *a, const void *b)
+{
+	return util_cmp_uint(*(const uint32_t *)a, *(const uint32_t *)b);
+}
+
+int util_qsort_u64(const void *a, const void *b)
+{
+	return util_cmp_uint(*(const uint64_t *)a, *(const uint64_t *)b);
+}
+
+void util_free_each(void *const *p, size_t n)
+{
+	for (size_t i = 0; i < n; i++)
+		free(p[i]);
+}
+
 int util_sync_dir(const char *dir)
 {
 	int fd = open(dir, O_RDONLY | O_DIRECTORY | O_CLOEXEC);

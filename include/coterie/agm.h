@@ -60,9 +60,8 @@ struct agm {
  * big graphs delta alone makes a membership of every stray link. The
  * second test asks c to account for two links (half the degree for a node
  * of degree 3 or less, which has no more to give). AGM_MIN_LINKS is our
- * rule of thumb, from planted graphs (tests/bench; DEVELOPERS.md gives the
- * figures): 10^5 nodes, overlapping NMI 0.596 -> 0.892; 10^4 nodes and
- * small real graphs with known groups unchanged.
+ * rule of thumb, chosen on planted graphs (the figures are in
+ * DEVELOPERS.md).
  */
 #define AGM_MIN_LINKS 2.0
 

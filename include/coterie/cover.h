@@ -64,6 +64,10 @@ int cover_read(struct cover *out, const char *path, struct names *nodes);
  * increasing). Returns 0, or -1 with a message. */
 int cover_check(const struct cover *c);
 
+/* 0 when a and b are covers of the same number of nodes, else -1 with a
+ * message (both borrowed). */
+int cover_same_n(const struct cover *a, const struct cover *b);
+
 /* Free the contents of c and zero it; c itself is the caller's. NULL is a
  * no-op. */
 void cover_release(struct cover *c);

@@ -67,7 +67,8 @@ struct fit_params {
 	int renumber;        /* 1: fit with the nodes renumbered breadth-first
 			      * (order.h); 0 (default): in the graph's own
 			      * ids. Results are in the graph's ids either
-			      * way. On the bench graphs it did not pay. */
+			      * way. Off by default (DEVELOPERS.md,
+			      * performance notes). */
 };
 
 /* Defaults: k 10, 1 thread, seed 1, tol 1e-4, patience 3, 500 sweeps,

@@ -72,6 +72,30 @@ uint64_t util_fnv1a(uint64_t h, const void *buf, size_t len);
  * x[i] >= v, or n when there is none: where v is, or would go. */
 size_t util_lower_bound_u32(const uint32_t *x, size_t n, uint32_t v);
 
+/* Three-way comparison for qsort comparators: -1, 0 or 1 as a is below,
+ * equal to or above b. The unsigned form takes any unsigned integer. The
+ * double form never calls unequal values equal (a NaN compares above
+ * anything, on either side). */
+static inline int util_cmp_uint(uint64_t a, uint64_t b)
+{
+	return (a > b) - (a < b);
+}
+
+static inline int util_cmp_double(double a, double b)
+{
+	return a != b ? (a < b ? -1 : 1) : 0;
+}
+
+/* qsort comparators for arrays of uint32_t and of uint64_t, ascending. */
+int util_qsort_u32(const void *a, const void *b);
+int util_qsort_u64(const void *a, const void *b);
+
+/* Free every pointer given (NULL ones are fine, as for free()): a release
+ * function's list of arrays in one statement. */
+#define UTIL_FREE_ALL(...)                                                                         \
+	util_free_each((void *[]){ __VA_ARGS__ }, sizeof((void *[]){ __VA_ARGS__ }) / sizeof(void *))
+void util_free_each(void *const *p, size_t n);
+
 /* fsync folder dir so that a rename in it is durable; filesystems that
  * cannot sync a folder (EINVAL, ENOTSUP) are tolerated. Returns 0 or -1
  * with a message. */

@@ -36,6 +36,12 @@ double cli_double(const char *opt, const char *s, double lo, double hi);
  * pass a leading ':' in the option string, and on '?' or ':' call this,
  * which reports the offending option escaped. */
 void cli_option_error(int c, char **argv);
+/* Before a command's getopt_long() loop: start at argv[1] (a command may
+ * run more than once in a process, as in the tests) with getopt's own
+ * messages off (see cli_option_error()). */
+void cli_getopt_reset(void);
+/* cli_option_error(), then "try 'coterie CMD --help'": returns EXIT_USAGE. */
+int cli_option_usage(int c, char **argv, const char *cmd);
 
 /* A loaded graph must have an edge to be fitted: 0, or -1 with a message
  * "FILE:LINE: expected ..., found ..." (the line where the edge list
@@ -64,6 +70,8 @@ enum {
 /* Below this many edges a fit makes 3 starts by default, above it 1. */
 #define CLI_MANY_STARTS_BELOW 100000u
 
+struct option;
+
 struct cli_fit_opts {
 	struct fit_params p;
 	enum graph_format fmt;
@@ -72,11 +80,11 @@ struct cli_fit_opts {
 	struct select_params sp;   /* --k-grid and --holdout for -k auto */
 	int have_grid;             /* --k-grid was given */
 	double checkpoint_every;   /* --checkpoint-every; 0: not given */
+	const char *out;           /* -o DIR; NULL: not given */
 };
 
-/* Defaults: fit_params_default() with one thread per core. */
-/* The getopt_long() entries fit and explore share (options handled by
- * cli_fit_opts_take(), -o and -h); each command adds its own. */
+/* The getopt_long() entries fit and explore share (the options handled by
+ * cli_fit_opts_take() and -h); each command adds its own. */
 #define CLI_FIT_OPTIONS \
 	{ "communities", required_argument, NULL, 'k' }, \
 	{ "output", required_argument, NULL, 'o' }, \
@@ -94,10 +102,15 @@ struct cli_fit_opts {
 	{ "checkpoint-every", required_argument, NULL, CLI_OPT_CHECKPOINT_EVERY }, \
 	{ "help", no_argument, NULL, 'h' }
 
+/* Defaults: fit_params_default() with one thread per core. */
 void cli_fit_opts_init(struct cli_fit_opts *o);
 /* Take option c with its argument if it is a shared one: returns 1, or 0
  * for an option the command handles itself. A bad value exits 2. */
 int cli_fit_opts_take(struct cli_fit_opts *o, int c, const char *arg);
+/* getopt_long() for fit and explore: takes the shared options into o and
+ * returns the next option the command handles itself, or -1 at the end. */
+int cli_fit_getopt(struct cli_fit_opts *o, int argc, char **argv, const char *shortopts,
+		   const struct option *opts);
 /* -k auto's grid: the --k-grid given, else select_params_default() for g
  * (minima may be NULL). Returns 0 or -1 (reported). */
 int cli_fit_opts_grid(struct cli_fit_opts *o, const struct graph *g, uint32_t *minima);

@@ -66,6 +66,19 @@ void cli_option_error(int c, char **argv)
 		error("unknown option '%s'", util_escape(argv[optind - 1], buf, sizeof buf, 1));
 }
 
+void cli_getopt_reset(void)
+{
+	optind = 1;
+	opterr = 0;
+}
+
+int cli_option_usage(int c, char **argv, const char *cmd)
+{
+	cli_option_error(c, argv);
+	fprintf(stderr, "try 'coterie %s --help'\n", cmd);
+	return EXIT_USAGE;
+}
+
 int cli_graph_fittable(const struct graph *g, const char *path)
 {
 	if (g->m > 0)
@@ -107,10 +120,21 @@ void cli_fit_opts_init(struct cli_fit_opts *o)
 	o->sp.step = 1.25;
 }
 
+int cli_fit_getopt(struct cli_fit_opts *o, int argc, char **argv, const char *shortopts,
+		   const struct option *opts)
+{
+	int c;
+	while ((c = getopt_long(argc, argv, shortopts, opts, NULL)) != -1)
+		if (!cli_fit_opts_take(o, c, optarg))
+			break;
+	return c;
+}
+
 int cli_fit_opts_take(struct cli_fit_opts *o, int c, const char *arg)
 {
 	struct fit_params *p = &o->p;
 	switch (c) {
+	case 'o': o->out = arg; return 1;
 	case 'k':
 		if (!strcmp(arg, "auto"))
 			o->k_auto = 1;

@@ -150,8 +150,7 @@ int cmd_compare(int argc, char **argv)
 	};
 	int json = 0, c;
 
-	optind = 1;
-	opterr = 0;
+	cli_getopt_reset();
 	while ((c = getopt_long(argc, argv, ":h", opts, NULL)) != -1) {
 		switch (c) {
 		case OPT_JSON: json = 1; break;

@@ -166,7 +166,7 @@ enum {
 struct run {
 	struct cli_fit_opts o;
 	struct fit_params p;
-	const char *arg, *out;
+	const char *arg;
 	int resume, is_dir;
 	struct checkpoint ck;        /* a result folder's saved fit, with its graph */
 	struct graph *g;             /* a graph loaded */
@@ -185,20 +185,13 @@ static int parse_args(struct run *r, int argc, char **argv)
 	};
 	struct cli_fit_opts *o = &r->o;
 	int c;
-	optind = 1;
-	opterr = 0;
-	while ((c = getopt_long(argc, argv, ":k:o:j:h", opts, NULL)) != -1) {
-		if (cli_fit_opts_take(o, c, optarg))
-			continue;
+	cli_getopt_reset();
+	while ((c = cli_fit_getopt(o, argc, argv, ":k:o:j:h", opts)) != -1) {
 		switch (c) {
-		case 'o': r->out = optarg; break;
 		case OPT_RESUME: r->resume = 1; break;
 		case OPT_LIST_KEYS: keys_list(stdout); return 0;
 		case 'h': explore_usage(stdout); return 0;
-		default:
-			cli_option_error(c, argv);
-			fprintf(stderr, "try 'coterie explore --help'\n");
-			return EXIT_USAGE;
+		default: return cli_option_usage(c, argv, "explore");
 		}
 	}
 	r->p = o->p;
@@ -253,8 +246,8 @@ static int open_folder(struct run *r, struct tui_config *cfg)
 	cfg->saved_sweep = ck->sweep;
 	cfg->saved_loglik = ck->ntrace ? ck->trace[ck->ntrace - 1].loglik : 0;
 	cfg->start = r->resume;
-	cfg->outdir = r->out ? r->out : r->arg;
-	cfg->outdir_holds_result = r->out == NULL || !strcmp(r->out, r->arg);
+	cfg->outdir = r->o.out ? r->o.out : r->arg;
+	cfg->outdir_holds_result = r->o.out == NULL || !strcmp(r->o.out, r->arg);
 	cfg->graph_label = r->arg;
 	cfg->graph_path = ck->graph->source ? ck->graph->source : r->arg;
 	return 0;
@@ -264,11 +257,11 @@ static int open_folder(struct run *r, struct tui_config *cfg)
  * on, else the exit status. */
 static int open_graph(struct run *r, struct tui_config *cfg)
 {
-	if (r->out) {
+	if (r->o.out) {
 		/* refuse early: a long fit whose result cannot be written is lost work */
-		if (result_prepare_dir(r->out))
+		if (result_prepare_dir(r->o.out))
 			return 1;
-		cfg->outdir = r->out;
+		cfg->outdir = r->o.out;
 	} else {
 		default_outdir(r->arg, r->outbuf, sizeof r->outbuf);
 		cfg->outdir = r->outbuf;
@@ -319,7 +312,7 @@ int cmd_explore(int argc, char **argv)
 	rc = 1;
 	if (memory_check_fit(cfg.g, &r->p))
 		goto out;
-	if (r->resume && r->out && result_prepare_dir(r->out))
+	if (r->resume && r->o.out && result_prepare_dir(r->o.out))
 		goto out;
 	cfg.params = r->p;
 	cfg.checkpoint_every = r->o.checkpoint_every;

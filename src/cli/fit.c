@@ -229,7 +229,7 @@ static int refine_cover_of(const struct graph *g, const struct agm *agm, const s
 struct run {
 	struct cli_fit_opts o;
 	struct fit_params p;
-	const char *out, *resume, *gpath;
+	const char *resume, *gpath;
 	int quiet, refine;
 	unsigned refine_rounds;
 	double check_links;
@@ -271,16 +271,12 @@ static int parse_args(struct run *r, int argc, char **argv)
 	};
 	struct cli_fit_opts *o = &r->o;
 	int c;
-	optind = 1;
-	opterr = 0;
-	while ((c = getopt_long(argc, argv, ":k:o:j:qh", opts, NULL)) != -1) {
-		if (cli_fit_opts_take(o, c, optarg))
-			continue;
+	cli_getopt_reset();
+	while ((c = cli_fit_getopt(o, argc, argv, ":k:o:j:qh", opts)) != -1) {
 		switch (c) {
 		case OPT_CHECK_LINKS:
 			r->check_links = cli_double("--check-links", optarg, 0.001, 0.5);
 			break;
-		case 'o': r->out = optarg; break;
 		case OPT_PAST_PLATEAU: o->p.past_plateau = 1; break;
 		case OPT_RESUME: r->resume = optarg; break;
 		case OPT_REFINE: r->refine = 1; break;
@@ -290,10 +286,7 @@ static int parse_args(struct run *r, int argc, char **argv)
 			break;
 		case 'q': r->quiet = 1; break;
 		case 'h': fit_usage(stdout); return 0;
-		default:
-			cli_option_error(c, argv);
-			fprintf(stderr, "try 'coterie fit --help'\n");
-			return EXIT_USAGE;
+		default: return cli_option_usage(c, argv, "fit");
 		}
 	}
 	if (argc - optind > 1)
@@ -308,9 +301,9 @@ static int parse_args(struct run *r, int argc, char **argv)
 		die(EXIT_USAGE, "fit needs the number of communities: -k N");
 	if (o->have_grid && !o->k_auto)
 		die(EXIT_USAGE, "--k-grid is for -k auto");
-	if (!r->out)
-		r->out = r->resume;
-	if (!r->out)
+	if (!r->o.out)
+		r->o.out = r->resume;
+	if (!r->o.out)
 		die(EXIT_USAGE, "fit needs an output folder: -o DIR");
 	return -1;
 }
@@ -355,7 +348,7 @@ static int load_graph(struct run *r)
 		cli_k_fits(p->k, r->g);
 	cli_fit_opts_starts(&r->o, r->g->m);
 	p->starts = r->o.p.starts;
-	if (r->o.k_auto && choose_k(r->g, p, r->out, &r->o, r->quiet, &r->sel))
+	if (r->o.k_auto && choose_k(r->g, p, r->o.out, &r->o, r->quiet, &r->sel))
 		return -2;
 	if (r->check_links > 0) {
 		/* the seed is offset so these pairs are not those -k auto held out */
@@ -388,7 +381,7 @@ static void watch(struct run *r, struct progress *pr)
 			r->interrupted = 1;
 			progress_break(pr);
 			notice("interrupted: ending the sweep in progress and saving to '%s' "
-			       "(interrupt again to stop at once)", r->out);
+			       "(interrupt again to stop at once)", r->o.out);
 			fit_interrupt(r->f);
 		}
 		if (proc_signal_count() >= 2 && r->interrupted == 1) {
@@ -440,7 +433,7 @@ static void say_written(const struct run *r, const struct snapshot *s, enum fit_
 			 s->starts);
 	notice("the fit %s after %u sweeps%s in %.1f s: %u communities, %u of %u nodes in at "
 	       "least one, %u in two or more; results in '%s'", how, s->sweep, best, s->seconds,
-	       a->cover.k, a->covered, r->graph->n, a->overlapping, r->out);
+	       a->cover.k, a->covered, r->graph->n, a->overlapping, r->o.out);
 }
 
 /* The end of the fit: --check-links, --refine, the folder. Returns the
@@ -485,10 +478,10 @@ static int finish(struct run *r, enum fit_state st, const struct snapshot *s)
 		.links = have_whole ? &links : NULL,
 	};
 	if (st == FIT_FAILED || s->ntrace == 0) {
-		error("the fit failed; nothing written to '%s'", r->out);
+		error("the fit failed; nothing written to '%s'", r->o.out);
 		rc = 1;
 	} else if (r->check.held && !have_whole) {
-		error("cannot score the held-out links; nothing written to '%s'", r->out);
+		error("cannot score the held-out links; nothing written to '%s'", r->o.out);
 		rc = 1;
 	} else if (outdir_write(r->od, &m, &meta, have_whole ? &r->check : NULL)) {
 		rc = 1;
@@ -512,7 +505,7 @@ int cmd_fit(int argc, char **argv)
 	rc = 1;
 	util_set_quiet(r->quiet);
 	/* refuse early: a long fit whose result cannot be written is lost work */
-	if (result_prepare_dir(r->out) || proc_signals_install())
+	if (result_prepare_dir(r->o.out) || proc_signals_install())
 		goto out;
 	r->t_begin = util_now();
 	int loaded = r->resume ? load_resume(r) : load_graph(r);
@@ -527,7 +520,7 @@ int cmd_fit(int argc, char **argv)
 	r->f = fit_new(r->check.train ? r->check.train : r->graph, &r->p,
 		       r->have_origin ? &r->origin : NULL);
 	struct outdir_config oc = {
-		.dir = r->out, .g = r->graph, .params = r->p,
+		.dir = r->o.out, .g = r->graph, .params = r->p,
 		.every = r->o.checkpoint_every > 0 ? r->o.checkpoint_every : 120.0,
 		.one_start = r->resume && !r->ck.savepoint,
 	};

@@ -643,12 +643,10 @@ static int show_parse(int argc, char **argv, struct show_args *o, int *status)
 		{ "help", no_argument, NULL, 'h' },
 		{ NULL, 0, NULL, 0 },
 	};
-	char buf[NAME_CAP];
 	int c;
 
 	*status = EXIT_USAGE;
-	optind = 1;
-	opterr = 0;
+	cli_getopt_reset();
 	while ((c = getopt_long(argc, argv, ":h", opts, NULL)) != -1) {
 		switch (c) {
 		case OPT_NODE: o->node = optarg; break;
@@ -674,17 +672,8 @@ static int show_parse(int argc, char **argv, struct show_args *o, int *status)
 			show_usage(stdout);
 			*status = 0;
 			return -1;
-		case ':':
-			error("option '%s' needs a value",
-			      util_escape(argv[optind - 1], buf, sizeof buf, 1));
-			show_usage_short(stderr);
-			return -1;
 		default:
-			if (optopt && optopt != '?')
-				error("unknown option '-%c'", (optopt > 32 && optopt < 127) ? optopt : '?');
-			else
-				error("unknown option '%s'",
-				      util_escape(argv[optind - 1], buf, sizeof buf, 1));
+			cli_option_error(c, argv);
 			show_usage_short(stderr);
 			return -1;
 		}

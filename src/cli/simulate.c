@@ -137,8 +137,7 @@ static int parse_args(struct sim_args *a, int argc, char **argv)
 	a->prefix = "";
 	int have_sizes = 0, have_link = 0, have_degree = 0;
 	int c;
-	optind = 1;
-	opterr = 0;
+	cli_getopt_reset();
 	while ((c = getopt_long(argc, argv, ":n:k:o:j:qh", opts, NULL)) != -1) {
 		switch (c) {
 		case 'n': p->n = cli_u32("-n", optarg, 2, SIMULATE_MAX_NODES); break;
@@ -172,10 +171,7 @@ static int parse_args(struct sim_args *a, int argc, char **argv)
 		case CLI_OPT_SEED: p->seed = cli_u64("--seed", optarg); break;
 		case 'q': a->quiet = 1; break;
 		case 'h': simulate_usage(stdout); return 0;
-		default:
-			cli_option_error(c, argv);
-			fprintf(stderr, "try 'coterie simulate --help'\n");
-			return EXIT_USAGE;
+		default: return cli_option_usage(c, argv, "simulate");
 		}
 	}
 	if (optind < argc) {

@@ -194,12 +194,13 @@ static void test_view_selection_survives_a_new_snapshot(void **state)
 	struct fit_origin o = { .F = &s->F, .trace = s->trace, .ntrace = s->ntrace,
 				.sweep = s->sweep, .seconds = s->seconds,
 				.plateau_sweep = s->plateau_sweep };
+	uint32_t old_sweep = s->sweep; /* s is released with the old snapshot */
 	struct fit *next = fitted(x->g, &p, &o);
 	fit_free(v->fit);
 	v->fit = next;
 	assert_int_equal(view_take_snapshot(v), 1);
 	assert_true(v->snap_gen > gen);
-	assert_true(v->snap->sweep > s->sweep || v->snap->ntrace > 0);
+	assert_true(v->snap->sweep > old_sweep || v->snap->ntrace > 0);
 	view_prepare(v);
 	/* the same community and node, wherever their rows are now */
 	assert_int_equal(v->comm_id, id);
