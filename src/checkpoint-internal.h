@@ -1,5 +1,5 @@
 /*
- * What the checkpoint writer (checkpoint.c) and reader (checkpoint-read.c)
+ * What the checkpoint writer (checkpoint.c) and reader (checkpoint_read.c)
  * share: the layout's sizes and the validators. Each validator returns
  * NULL when all is well, or a description of the first problem written
  * into why (cap bytes). Not for other modules.

@@ -2,7 +2,7 @@
  * score: agreement between two covers of the same n nodes, by counting:
  * the Omega index, the average best-match F1, plain NMI of partitions and
  * the counts of each side. (The overlapping NMIs, built on entropies, are
- * in score-onmi.c.)
+ * in score_onmi.c.)
  *
  * These read a cover through a node -> communities index (struct nidx),
  * over every non-empty community (a community of all n nodes included:

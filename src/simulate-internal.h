@@ -1,8 +1,8 @@
 /*
  * What the pieces of the simulate module share: simulate.c (parameters,
- * the four steps in order), simulate-cover.c (steps 1 to 3: the planted
- * cover), simulate-expect.c (the exact expected edge count and p_c),
- * simulate-edges.c (step 4: the edges), simulate-write.c (the planted
+ * the four steps in order), simulate_cover.c (steps 1 to 3: the planted
+ * cover), simulate_expect.c (the exact expected edge count and p_c),
+ * simulate_edges.c (step 4: the edges), simulate_write.c (the planted
  * folder). Not for other modules.
  */
 #ifndef COTERIE_SIMULATE_INTERNAL_H

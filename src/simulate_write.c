@@ -1,5 +1,5 @@
 /*
- * simulate-write: the planted folder (edges.tsv, truth.tsv, planted.tsv,
+ * simulate_write: the planted folder (edges.tsv, truth.tsv, planted.tsv,
  * simulate.json; formats in coterie-files(5)), written through
  * atomicfile.h: all four staged before any is renamed.
  *

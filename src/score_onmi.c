@@ -1,5 +1,5 @@
 /*
- * score-onmi: the overlapping NMI of two covers of the same n nodes, in
+ * score_onmi: the overlapping NMI of two covers of the same n nodes, in
  * the max-normalised form (McDaid, Greene & Hurley, arXiv:1110.2515) and
  * in the form of Lancichinetti, Fortunato & Kertesz (New J. Phys. 11,
  * 033015): the measures built on entropies. The measures built on counts

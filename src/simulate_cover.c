@@ -1,5 +1,5 @@
 /*
- * simulate-cover: steps 1 to 3 of a planted graph (see simulate.c):
+ * simulate_cover: steps 1 to 3 of a planted graph (see simulate.c):
  * memberships per node, community sizes from a truncated power law, and
  * the dealing of the membership slots to the communities.
  *

@@ -1,5 +1,5 @@
 /*
- * checkpoint-read: reading a checkpoint back (checkpoint.h; the layout is
+ * checkpoint_read: reading a checkpoint back (checkpoint.h; the layout is
  * in coterie-files(5)).
  *
  * The idea: slurp the file (a regular file only: a FIFO would block),

@@ -1,5 +1,5 @@
 /*
- * simulate-edges: step 4 of a planted graph (see simulate.c): the pairs of
+ * simulate_edges: step 4 of a planted graph (see simulate.c): the pairs of
  * each community and of the background drawn by geometric skipping, on
  * threads, then sorted and deduplicated.
  *

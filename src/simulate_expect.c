@@ -1,5 +1,5 @@
 /*
- * simulate-expect: the exact expected edge count of an AGM, and p_c with
+ * simulate_expect: the exact expected edge count of an AGM, and p_c with
  * the scale that meets a mean-degree target (see simulate.c).
  *
  * The idea: pairs in exactly one community give p_c each, so
