@@ -17,6 +17,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/ioctl.h>
 #include <unistd.h>
 
 #include "cli.h"
@@ -84,23 +85,107 @@ struct progress {
 	int line_open;
 };
 
-static void progress_show(struct progress *pr, const struct snapshot *s, int final)
+/* The width the progress line must fit: the terminal's (stderr's), else
+ * $COLUMNS, else 80. */
+static unsigned progress_width(int tty)
 {
-	if (pr->quiet || s->ntrace == 0)
-		return;
-	double now = util_now();
+	struct winsize ws;
+	if (tty && ioctl(STDERR_FILENO, TIOCGWINSZ, &ws) == 0 && ws.ws_col > 0)
+		return ws.ws_col;
+	const char *env = getenv("COLUMNS");
+	char *end;
+	unsigned long c = env ? strtoul(env, &end, 10) : 0;
+	if (env && *env && !*end && c > 0 && c < 10000)
+		return (unsigned)c;
+	return 80;
+}
+
+/* The fields of a progress line, in the order shown. */
+enum { PF_HEAD, PF_SWEEP, PF_LOGLIK, PF_GAIN, PF_RATE, PF_SECONDS, PF_STATE, PF_N };
+
+/* Join the fields of f not yet dropped into line (cap bytes); their width. */
+static size_t progress_join(char *line, size_t cap, char f[PF_N][64], const int *drop)
+{
+	size_t len = 0;
+	line[0] = '\0';
+	for (int i = 0; i < PF_N; i++) {
+		if (drop[i] || !f[i][0])
+			continue;
+		const char *sep = !len ? "" : i == PF_SWEEP && f[PF_HEAD][0] &&
+				  f[PF_HEAD][strlen(f[PF_HEAD]) - 1] == ':' ? " " : "  ";
+		int w = snprintf(line + len, cap - len, "%s%s", sep, f[i]);
+		if (w < 0 || (size_t)w >= cap - len)
+			break;
+		len += (size_t)w;
+	}
+	return len;
+}
+
+/*
+ * The progress line, made to fit width columns (less room, the "coterie: "
+ * of a line that is not redrawn): the least useful fields give way first
+ * (the speed, the gain, ...), then the start is said more briefly, and at
+ * last the line is cut, so that it never wraps. The final line of a fit of
+ * several starts names the start it kept (the model written), which is
+ * not the last one run when an earlier start was more likely.
+ */
+static void progress_format(const struct snapshot *s, int final, unsigned width, char *line,
+			    size_t cap)
+{
 	const struct trace_point *t = &s->trace[s->ntrace - 1];
 	double gain = 0.0;
 	if (s->ntrace >= 2) {
 		double prev = s->trace[s->ntrace - 2].loglik;
 		gain = (t->loglik - prev) / (fabs(prev) > 0 ? fabs(prev) : 1.0);
 	}
-	char line[256], start[32] = "";
-	if (s->starts > 1)
-		snprintf(start, sizeof start, "start %u/%u  ", s->start, s->starts);
-	snprintf(line, sizeof line,
-		 "%ssweep %u  loglik %.6g  gain %.2e  %.2f sweeps/s  %.1f s%s", start, s->sweep,
-		 t->loglik, gain, s->sweeps_per_sec, s->seconds, s->plateau ? "  [levelled]" : "");
+	char f[PF_N][64], brief[64] = "";
+	int kept = final && s->starts > 1 && s->best_start > 0;
+	f[PF_HEAD][0] = '\0';
+	if (kept) {
+		snprintf(f[PF_HEAD], sizeof f[0], "kept start %u of %u (the most likely):",
+			 s->best_start, s->starts);
+		snprintf(brief, sizeof brief, "kept start %u of %u:", s->best_start, s->starts);
+	} else if (s->starts > 1) {
+		snprintf(f[PF_HEAD], sizeof f[0], "start %u/%u", s->start, s->starts);
+		snprintf(brief, sizeof brief, "%u/%u", s->start, s->starts);
+	}
+	snprintf(f[PF_SWEEP], sizeof f[0], "sweep %u", s->sweep);
+	snprintf(f[PF_LOGLIK], sizeof f[0], "loglik %.6g", t->loglik);
+	snprintf(f[PF_GAIN], sizeof f[0], "gain %.2e", gain);
+	snprintf(f[PF_RATE], sizeof f[0], "%.2f sweeps/s", s->sweeps_per_sec);
+	snprintf(f[PF_SECONDS], sizeof f[0], "%.1f s", s->seconds);
+	snprintf(f[PF_STATE], sizeof f[0], "%s", s->plateau ? "[levelled]" : "");
+	/* what gives way, in turn; -1: the brief start */
+	static const int fitting[] = { PF_RATE, PF_GAIN, PF_SECONDS, PF_STATE, -1 };
+	static const int ending[] = { PF_RATE, PF_GAIN, PF_STATE, -1, PF_SECONDS };
+	const int *order = final ? ending : fitting;
+	size_t norder = final ? sizeof ending / sizeof *ending : sizeof fitting / sizeof *fitting;
+	int drop[PF_N] = { 0 };
+	/* one column spare: a line that fills the last column wraps on some terminals */
+	size_t room = width > 1 ? width - 1 : 1;
+	size_t len = progress_join(line, cap, f, drop);
+	for (size_t i = 0; i < norder && len > room; i++) {
+		if (order[i] < 0)
+			snprintf(f[PF_HEAD], sizeof f[0], "%s", brief);
+		else
+			drop[order[i]] = 1;
+		len = progress_join(line, cap, f, drop);
+	}
+	if (len > room && room < cap)
+		line[room] = '\0';
+}
+
+static void progress_show(struct progress *pr, const struct snapshot *s, int final)
+{
+	if (pr->quiet || s->ntrace == 0)
+		return;
+	double now = util_now();
+	char line[512];
+	unsigned width = progress_width(pr->tty);
+	const unsigned prefix = sizeof "coterie: " - 1;
+	if (!pr->tty)
+		width = width > prefix + 20 ? width - prefix : 20;
+	progress_format(s, final, width, line, sizeof line);
 	if (pr->tty) {
 		fprintf(stderr, "\r\033[K%s", line);
 		pr->line_open = 1;
