@@ -18,6 +18,7 @@
 #include <stdlib.h>
 #include <string.h>
 #include <sys/ioctl.h>
+#include <sys/stat.h>
 #include <unistd.h>
 
 #include "cli.h"
@@ -51,6 +52,9 @@ static void fit_usage(FILE *out)
 		"                        the final fit and report their link AUC and\n"
 		"                        log-likelihood in run.json\n"
 		"  -o, --output DIR      result folder (made if missing; required)\n"
+		"      --force           replace a result of another graph in DIR (without\n"
+		"                        it, fit refuses and exits 1; a result of the same\n"
+		"                        graph is replaced, and no file of it is left)\n"
 		"  -j, --threads N       worker threads (default: every core)\n"
 		"      --seed N          random seed (default 1); same seed, same result\n"
 		"      --starts N        fit N times from different seeds and sweep orders and\n"
@@ -284,6 +288,7 @@ enum {
 	OPT_REFINE,
 	OPT_REFINE_ROUNDS,
 	OPT_CHECK_LINKS,
+	OPT_FORCE,
 };
 
 /* --refine: the AGM refinement of the final cover into *out (released by
@@ -315,7 +320,7 @@ struct run {
 	struct cli_fit_opts o;
 	struct fit_params p;
 	const char *out, *resume, *gpath;
-	int quiet, refine;
+	int quiet, refine, force;
 	unsigned refine_rounds;
 	double check_links;
 	double t_begin;
@@ -351,6 +356,7 @@ static int parse_args(struct run *r, int argc, char **argv)
 		{ "refine", no_argument, NULL, OPT_REFINE },
 		{ "refine-rounds", required_argument, NULL, OPT_REFINE_ROUNDS },
 		{ "check-links", required_argument, NULL, OPT_CHECK_LINKS },
+		{ "force", no_argument, NULL, OPT_FORCE },
 		{ "quiet", no_argument, NULL, 'q' },
 		{ NULL, 0, NULL, 0 },
 	};
@@ -368,6 +374,7 @@ static int parse_args(struct run *r, int argc, char **argv)
 		case 'o': r->out = optarg; break;
 		case OPT_PAST_PLATEAU: o->p.past_plateau = 1; break;
 		case OPT_RESUME: r->resume = optarg; break;
+		case OPT_FORCE: r->force = 1; break;
 		case OPT_REFINE: r->refine = 1; break;
 		case OPT_REFINE_ROUNDS:
 			r->refine_rounds = cli_u32("--refine-rounds", optarg, 1, 1000000);
@@ -417,6 +424,8 @@ static int load_resume(struct run *r)
 		die(EXIT_USAGE, "-k auto cannot be used when resuming");
 	if (r->check_links > 0)
 		die(EXIT_USAGE, "--check-links cannot be used when resuming");
+	if (outdir_check_graph(r->out, r->ck.graph, r->force))
+		return -1;
 	cli_fit_opts_resume(&r->o, &r->ck.params, "when resuming", &r->p);
 	r->p.hold_at_plateau = 0;
 	outdir_resume(&r->ck, &r->p, &r->origin);
@@ -434,7 +443,8 @@ static int load_resume(struct run *r)
 static int load_graph(struct run *r)
 {
 	struct fit_params *p = &r->p;
-	if (!(r->g = graph_load(r->gpath, r->o.fmt)) || cli_graph_fittable(r->g, r->gpath))
+	if (!(r->g = graph_load(r->gpath, r->o.fmt)) || cli_graph_fittable(r->g, r->gpath) ||
+	    outdir_check_graph(r->out, r->g, r->force))
 		return -1;
 	if (!r->o.k_auto)
 		cli_k_fits(p->k, r->g);
@@ -587,6 +597,16 @@ static int finish(struct run *r, enum fit_state st, const struct snapshot *s)
 	return r->interrupted ? EXIT_INTERRUPTED : 0;
 }
 
+/* a and b name the same folder. */
+static int same_folder(const char *a, const char *b)
+{
+	struct stat sa, sb;
+	if (!strcmp(a, b))
+		return 1;
+	return stat(a, &sa) == 0 && stat(b, &sb) == 0 && sa.st_dev == sb.st_dev &&
+	       sa.st_ino == sb.st_ino;
+}
+
 int cmd_fit(int argc, char **argv)
 {
 	struct run run = { .refine_rounds = 50 }, *r = &run;
@@ -615,6 +635,7 @@ int cmd_fit(int argc, char **argv)
 		.dir = r->out, .g = r->graph, .params = r->p,
 		.every = r->o.checkpoint_every > 0 ? r->o.checkpoint_every : 120.0,
 		.one_start = r->resume && !r->ck.savepoint,
+		.continues = r->resume && same_folder(r->resume, r->out),
 	};
 	if (!r->f || !(r->od = outdir_new(&oc)))
 		goto out;
