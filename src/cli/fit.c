@@ -3,8 +3,11 @@
  *
  * The main thread loads the graph, proves the output folder writable,
  * starts the fitting thread and then only watches: it poll()s the fit's
- * wake-up pipe and the signal pipe, prints progress, writes a checkpoint
- * now and then, and writes the result folder at the end. An interrupt
+ * wake-up pipe and the signal pipe, prints progress (one line, made to
+ * fit the terminal's width, whose last state names the start kept),
+ * writes a checkpoint now and then, and writes the result folder at the
+ * end; a folder holding another graph's result is refused unless --force
+ * (outdir_check_graph()). An interrupt
  * (Ctrl-C, SIGTERM, a lost terminal) lets the sweep in progress end,
  * saves, and exits 130; a second one stops inside the sweep. Both the
  * interrupted folder and the periodic checkpoints carry a savepoint
