@@ -605,3 +605,18 @@ void checkpoint_origin(const struct checkpoint *ck, struct fit_origin *o)
 	o->plateau_sweep = ck->plateau_sweep;
 	o->savepoint = ck->savepoint;
 }
+
+int checkpoint_read_fingerprint(const char *path, uint64_t *fingerprint)
+{
+	int fd = open(path, O_RDONLY | O_CLOEXEC | O_NONBLOCK);
+	if (fd < 0)
+		return -1;
+	unsigned char head[CK_HEADER_LEN];
+	struct stat st;
+	ssize_t got = fstat(fd, &st) == 0 && S_ISREG(st.st_mode) ? read(fd, head, sizeof head) : -1;
+	close(fd);
+	if (got != CK_HEADER_LEN || memcmp(head, CK_MAGIC, CK_MAGIC_LEN) != 0)
+		return -1;
+	*fingerprint = dec_u64(head + 16);
+	return 0;
+}

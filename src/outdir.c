@@ -14,19 +14,31 @@
  * immutable), and is joined before the next one and before the final
  * write, since both use the same temporary file name (atomicfile.h).
  *
+ * A folder holds one result: a run refuses a folder that holds the result
+ * of another graph unless forced (outdir_check_graph(), by the graph
+ * fingerprint of the checkpoint, else of run.json), and its final write
+ * removes the files a result may have that this run did not write
+ * (held-out-links.tsv, k-selection.tsv), once its own are in place.
+ *
  * The one thing a newcomer gets wrong: a fit continued as one start never
  * makes a savepoint, so asking it for one would wait for ever; such a run
  * (config.one_start) writes its newest snapshot instead.
  */
 #include "coterie/outdir.h"
 
+#include <errno.h>
+#include <inttypes.h>
+#include <jansson.h>
 #include <pthread.h>
 #include <signal.h>
 #include <stdatomic.h>
+#include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <unistd.h>
 
 #include "coterie/atomicfile.h"
+#include "coterie/graph.h"
 #include "coterie/holdout.h"
 #include "coterie/util.h"
 
@@ -52,6 +64,81 @@ int outdir_read(const char *dir, struct checkpoint *ck)
 	int rc = checkpoint_read(path, ck);
 	free(path);
 	return rc;
+}
+
+/* What run.json says of the graph of the result in dir. */
+struct described {
+	int read;                 /* run.json was there and readable */
+	uint64_t fingerprint;
+	char what[600];           /* "'PATH', N nodes, M edges" (escaped) */
+};
+
+static void describe(const char *dir, struct described *d)
+{
+	memset(d, 0, sizeof *d);
+	char *path = atomicfile_path(dir, "run.json");
+	json_t *root = path ? json_load_file(path, 0, NULL) : NULL;
+	free(path);
+	json_t *g = json_object_get(root, "graph");
+	const char *hex = json_string_value(json_object_get(g, "fingerprint"));
+	const char *src = json_string_value(json_object_get(g, "path"));
+	char *end;
+	if (hex && *hex) {
+		unsigned long long fp = strtoull(hex, &end, 16);
+		if (!*end) {
+			char esc[400];
+			d->read = 1;
+			d->fingerprint = fp;
+			snprintf(d->what, sizeof d->what, "'%s', %" JSON_INTEGER_FORMAT " nodes, %"
+				 JSON_INTEGER_FORMAT " edges", util_escape(src ? src : "?", esc,
+				 sizeof esc, 1), json_integer_value(json_object_get(g, "nodes")),
+				 json_integer_value(json_object_get(g, "edges")));
+		}
+	}
+	json_decref(root);
+}
+
+int outdir_check_graph(const char *dir, const struct graph *g, int force)
+{
+	char *ckpath = atomicfile_path(dir, RESULT_CHECKPOINT);
+	if (!ckpath)
+		return -1;
+	struct described d;
+	describe(dir, &d);
+	uint64_t fp = 0;
+	int have = 0, unreadable = 0;
+	if (access(ckpath, F_OK) == 0) {
+		if (checkpoint_read_fingerprint(ckpath, &fp) == 0)
+			have = 1;
+		else
+			unreadable = 1;
+	}
+	free(ckpath);
+	if (!have && d.read) {
+		fp = d.fingerprint;
+		have = 1;
+		unreadable = 0;
+	}
+	if (!have && !unreadable)
+		return 0; /* no result there */
+	uint64_t mine = graph_fingerprint(g);
+	if (have && fp == mine)
+		return 0;
+	char esc[300];
+	util_escape(dir, esc, sizeof esc, 1);
+	if (force) {
+		notice("replacing the result in '%s', which is of another graph (--force)", esc);
+		return 0;
+	}
+	if (!have)
+		return error("'%s' holds a %s that cannot be read, so its graph is unknown; use "
+			     "--force to replace it, or -o to write elsewhere", esc, RESULT_CHECKPOINT);
+	if (d.read && d.fingerprint == fp)
+		return error("'%s' holds the result of a fit of another graph (%s); use --force to "
+			     "replace it, or -o to write elsewhere", esc, d.what);
+	return error("'%s' holds the result of a fit of another graph (fingerprint %016" PRIx64
+		     ", this graph's %016" PRIx64 "); use --force to replace it, or -o to write "
+		     "elsewhere", esc, fp, mine);
 }
 
 void outdir_resume(const struct checkpoint *ck, struct fit_params *p, struct fit_origin *origin)
@@ -164,6 +251,18 @@ void outdir_tick(struct outdir *od, struct fit *f)
 	write_periodic(od, s);
 }
 
+/* Remove DIR/name, a file of an earlier run; a failure is only a warning. */
+static void remove_earlier(const char *dir, const char *name)
+{
+	char *path = atomicfile_path(dir, name);
+	if (path && unlink(path) != 0 && errno != ENOENT) {
+		char esc[400];
+		warning("cannot remove '%s', left by an earlier run: %s",
+			util_escape(path, esc, sizeof esc, 1), strerror(errno));
+	}
+	free(path);
+}
+
 int outdir_write(struct outdir *od, const struct result_model *m,
 		 const struct result_meta *meta, const struct holdout *check)
 {
@@ -177,6 +276,12 @@ int outdir_write(struct outdir *od, const struct result_model *m,
 		return -1;
 	if (check && result_write_links(dir, od->cfg.g, check, m->F, m->epsilon))
 		return -1;
+	/* the folder holds this run's files only; a continued result keeps
+	 * the search that chose its k */
+	if (!check)
+		remove_earlier(dir, RESULT_LINKS);
+	if (!(meta && meta->selection) && !od->cfg.continues)
+		remove_earlier(dir, RESULT_SELECTION);
 	return 0;
 }
 

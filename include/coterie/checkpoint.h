@@ -55,6 +55,11 @@ struct checkpoint {
  * index) into out. Returns 0, or -1 with a message naming the file and
  * what is wrong (out is then empty). Release with checkpoint_release(). */
 int checkpoint_read(const char *path, struct checkpoint *out);
+/* Only the fingerprint of the graph of the checkpoint at path (its
+ * header; the rest is not read nor checked). Returns 0, or -1 without a
+ * message (the caller says what it means) when the file cannot be read
+ * or is not a checkpoint. */
+int checkpoint_read_fingerprint(const char *path, uint64_t *fingerprint);
 /* Free what ck owns and empty it; NULL and an empty one are no-ops. */
 void checkpoint_release(struct checkpoint *ck);
 

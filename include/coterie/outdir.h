@@ -26,6 +26,14 @@ struct holdout;
  * checkpoint_release()). Returns 0 or -1 with a message. */
 int outdir_read(const char *dir, struct checkpoint *ck);
 
+/* Refuse to replace the result of another graph: when DIR holds a result
+ * (checkpoint.cot, else run.json) whose graph fingerprint is not g's
+ * (borrowed), or one that cannot be read, return -1 with a message saying
+ * what is there and how to go on (--force, -o), unless force, which only
+ * says that it will be replaced. Returns 0 when DIR holds no result, one
+ * of g, or force is set. */
+int outdir_check_graph(const char *dir, const struct graph *g, int force);
+
 /* Continue the fit saved in ck: make p (the saved parameters, already
  * merged with the command line by the caller) what fit.h says such a fit
  * runs with (one start and no reseeding when ck has no savepoint), and
@@ -41,6 +49,9 @@ struct outdir_config {
 				     * checkpoint without savepoint): no savepoints */
 	int background;             /* write periodic checkpoints on a thread of
 				     * their own (the explorer's screen must not wait) */
+	int continues;              /* dir holds the result this run continues
+				     * (resumed in place): its k-selection.tsv,
+				     * the search that chose k, is kept */
 };
 
 struct outdir;
@@ -59,7 +70,10 @@ void outdir_tick(struct outdir *od, struct fit *f);
 /* The final write: waits for a periodic write, makes the folder, writes
  * k-selection.tsv (when meta->selection), the whole folder from model m,
  * and held-out-links.tsv when check is not NULL (its pairs scored with
- * m->F and m->epsilon). All borrowed. Returns 0 or -1 with a message. */
+ * m->F and m->epsilon). Then, the new files in place, it removes those of
+ * an earlier run that this one did not write: held-out-links.tsv, and
+ * k-selection.tsv unless config.continues. All borrowed. Returns 0 or -1
+ * with a message. */
 int outdir_write(struct outdir *od, const struct result_model *m,
 		 const struct result_meta *meta, const struct holdout *check);
 

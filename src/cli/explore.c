@@ -13,6 +13,8 @@
  * folder for names like edges.tsv, with a -2, -3, ... suffix when that
  * folder exists and is not empty). Nothing is
  * written until the user asks, quits with unsaved work, or a signal comes.
+ * As with `coterie fit`, a folder that holds the result of another graph
+ * is refused at start, before any fitting, unless --force.
  */
 #include <dirent.h>
 #include <getopt.h>
@@ -50,6 +52,8 @@ static void explore_usage(FILE *out)
 		"      --holdout X       share of edges -k auto holds out (default 0.1)\n"
 		"  -o, --output DIR      where w, quitting and signals write the result\n"
 		"                        (default: DIR itself, or ./NAME.coterie for a graph)\n"
+		"      --force           let the result replace one of another graph in the\n"
+		"                        -o folder (without it, explore refuses at start)\n"
 		"  -j, --threads N       worker threads (default: every core)\n"
 		"      --seed N          random seed (default 1)\n"
 		"      --starts N        fit N times and keep the most likely (default 3 below\n"
@@ -160,6 +164,7 @@ static int choose_k(const struct graph *g, const char *label, struct fit_params 
 enum {
 	OPT_RESUME = CLI_OPT_OWN,
 	OPT_LIST_KEYS,
+	OPT_FORCE,
 };
 
 /* Everything one `coterie explore` owns; released once at the end. */
@@ -167,7 +172,7 @@ struct run {
 	struct cli_fit_opts o;
 	struct fit_params p;
 	const char *arg;
-	int resume, is_dir;
+	int resume, is_dir, force;
 	struct checkpoint ck;        /* a result folder's saved fit, with its graph */
 	struct graph *g;             /* a graph loaded */
 	struct select_result sel;    /* -k auto */
@@ -180,6 +185,7 @@ static int parse_args(struct run *r, int argc, char **argv)
 	static const struct option opts[] = {
 		CLI_FIT_OPTIONS,
 		{ "resume", no_argument, NULL, OPT_RESUME },
+		{ "force", no_argument, NULL, OPT_FORCE },
 		{ "list-keys", no_argument, NULL, OPT_LIST_KEYS }, /* for the tests */
 		{ NULL, 0, NULL, 0 },
 	};
@@ -189,6 +195,7 @@ static int parse_args(struct run *r, int argc, char **argv)
 	while ((c = cli_fit_getopt(o, argc, argv, ":k:o:j:h", opts)) != -1) {
 		switch (c) {
 		case OPT_RESUME: r->resume = 1; break;
+		case OPT_FORCE: r->force = 1; break;
 		case OPT_LIST_KEYS: keys_list(stdout); return 0;
 		case 'h': explore_usage(stdout); return 0;
 		default: return cli_option_usage(c, argv, "explore");
@@ -233,6 +240,8 @@ static int open_folder(struct run *r, struct tui_config *cfg)
 	if (outdir_read(r->arg, &r->ck))
 		return -1;
 	const struct checkpoint *ck = &r->ck;
+	if (r->o.out && outdir_check_graph(r->o.out, ck->graph, r->force))
+		return -1;
 	cli_fit_opts_resume(&r->o, &ck->params, "for a saved fit", &r->p);
 	r->p.hold_at_plateau = 1;
 	struct fit_origin origin;
@@ -267,7 +276,8 @@ static int open_graph(struct run *r, struct tui_config *cfg)
 		cfg->outdir = r->outbuf;
 		cfg->outdir_is_default = 1;
 	}
-	if (!(r->g = graph_load(r->arg, r->o.fmt)) || cli_graph_fittable(r->g, r->arg))
+	if (!(r->g = graph_load(r->arg, r->o.fmt)) || cli_graph_fittable(r->g, r->arg) ||
+	    outdir_check_graph(cfg->outdir, r->g, r->force))
 		return 1;
 	cli_k_fits(r->p.k, r->g);
 	cli_fit_opts_starts(&r->o, r->g->m);

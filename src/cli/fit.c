@@ -3,8 +3,11 @@
  *
  * The main thread loads the graph, proves the output folder writable,
  * starts the fitting thread and then only watches: it poll()s the fit's
- * wake-up pipe and the signal pipe, prints progress, writes a checkpoint
- * now and then, and writes the result folder at the end. An interrupt
+ * wake-up pipe and the signal pipe, prints progress (one line, made to
+ * fit the terminal's width, whose last state names the start kept),
+ * writes a checkpoint now and then, and writes the result folder at the
+ * end; a folder holding another graph's result is refused unless --force
+ * (outdir_check_graph()). An interrupt
  * (Ctrl-C, SIGTERM, a lost terminal) lets the sweep in progress end,
  * saves, and exits 130; a second one stops inside the sweep. Both the
  * interrupted folder and the periodic checkpoints carry a savepoint
@@ -17,6 +20,8 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/ioctl.h>
+#include <sys/stat.h>
 #include <unistd.h>
 
 #include "cli.h"
@@ -50,6 +55,9 @@ static void fit_usage(FILE *out)
 		"                        the final fit and report their link AUC and\n"
 		"                        log-likelihood in run.json\n"
 		"  -o, --output DIR      result folder (made if missing; required)\n"
+		"      --force           replace a result of another graph in DIR (else fit\n"
+		"                        refuses, exit 1); one of the same graph is always\n"
+		"                        replaced, no file of the earlier run left behind\n"
 		"  -j, --threads N       worker threads (default: every core)\n"
 		"      --seed N          random seed (default 1); same seed, same result\n"
 		"      --starts N        fit N times from different seeds and sweep orders and\n"
@@ -84,23 +92,107 @@ struct progress {
 	int line_open;
 };
 
-static void progress_show(struct progress *pr, const struct snapshot *s, int final)
+/* The width the progress line must fit: the terminal's (stderr's), else
+ * $COLUMNS, else 80. */
+static unsigned progress_width(int tty)
 {
-	if (pr->quiet || s->ntrace == 0)
-		return;
-	double now = util_now();
+	struct winsize ws;
+	if (tty && ioctl(STDERR_FILENO, TIOCGWINSZ, &ws) == 0 && ws.ws_col > 0)
+		return ws.ws_col;
+	const char *env = getenv("COLUMNS");
+	char *end;
+	unsigned long c = env ? strtoul(env, &end, 10) : 0;
+	if (env && *env && !*end && c > 0 && c < 10000)
+		return (unsigned)c;
+	return 80;
+}
+
+/* The fields of a progress line, in the order shown. */
+enum { PF_HEAD, PF_SWEEP, PF_LOGLIK, PF_GAIN, PF_RATE, PF_SECONDS, PF_STATE, PF_N };
+
+/* Join the fields of f not yet dropped into line (cap bytes); their width. */
+static size_t progress_join(char *line, size_t cap, char f[PF_N][64], const int *drop)
+{
+	size_t len = 0;
+	line[0] = '\0';
+	for (int i = 0; i < PF_N; i++) {
+		if (drop[i] || !f[i][0])
+			continue;
+		const char *sep = !len ? "" : i == PF_SWEEP && f[PF_HEAD][0] &&
+				  f[PF_HEAD][strlen(f[PF_HEAD]) - 1] == ':' ? " " : "  ";
+		int w = snprintf(line + len, cap - len, "%s%s", sep, f[i]);
+		if (w < 0 || (size_t)w >= cap - len)
+			break;
+		len += (size_t)w;
+	}
+	return len;
+}
+
+/*
+ * The progress line, made to fit width columns (less room, the "coterie: "
+ * of a line that is not redrawn): the least useful fields give way first
+ * (the speed, the gain, ...), then the start is said more briefly, and at
+ * last the line is cut, so that it never wraps. The final line of a fit of
+ * several starts names the start it kept (the model written), which is
+ * not the last one run when an earlier start was more likely.
+ */
+static void progress_format(const struct snapshot *s, int final, unsigned width, char *line,
+			    size_t cap)
+{
 	const struct trace_point *t = &s->trace[s->ntrace - 1];
 	double gain = 0.0;
 	if (s->ntrace >= 2) {
 		double prev = s->trace[s->ntrace - 2].loglik;
 		gain = (t->loglik - prev) / (fabs(prev) > 0 ? fabs(prev) : 1.0);
 	}
-	char line[256], start[32] = "";
-	if (s->starts > 1)
-		snprintf(start, sizeof start, "start %u/%u  ", s->start, s->starts);
-	snprintf(line, sizeof line,
-		 "%ssweep %u  loglik %.6g  gain %.2e  %.2f sweeps/s  %.1f s%s", start, s->sweep,
-		 t->loglik, gain, s->sweeps_per_sec, s->seconds, s->plateau ? "  [levelled]" : "");
+	char f[PF_N][64], brief[64] = "";
+	int kept = final && s->starts > 1 && s->best_start > 0;
+	f[PF_HEAD][0] = '\0';
+	if (kept) {
+		snprintf(f[PF_HEAD], sizeof f[0], "kept start %u of %u (the most likely):",
+			 s->best_start, s->starts);
+		snprintf(brief, sizeof brief, "kept start %u of %u:", s->best_start, s->starts);
+	} else if (s->starts > 1) {
+		snprintf(f[PF_HEAD], sizeof f[0], "start %u/%u", s->start, s->starts);
+		snprintf(brief, sizeof brief, "%u/%u", s->start, s->starts);
+	}
+	snprintf(f[PF_SWEEP], sizeof f[0], "sweep %u", s->sweep);
+	snprintf(f[PF_LOGLIK], sizeof f[0], "loglik %.6g", t->loglik);
+	snprintf(f[PF_GAIN], sizeof f[0], "gain %.2e", gain);
+	snprintf(f[PF_RATE], sizeof f[0], "%.2f sweeps/s", s->sweeps_per_sec);
+	snprintf(f[PF_SECONDS], sizeof f[0], "%.1f s", s->seconds);
+	snprintf(f[PF_STATE], sizeof f[0], "%s", s->plateau ? "[levelled]" : "");
+	/* what gives way, in turn; -1: the brief start */
+	static const int fitting[] = { PF_RATE, PF_GAIN, PF_SECONDS, PF_STATE, -1 };
+	static const int ending[] = { PF_RATE, PF_GAIN, PF_STATE, -1, PF_SECONDS };
+	const int *order = final ? ending : fitting;
+	size_t norder = final ? sizeof ending / sizeof *ending : sizeof fitting / sizeof *fitting;
+	int drop[PF_N] = { 0 };
+	/* one column spare: a line that fills the last column wraps on some terminals */
+	size_t room = width > 1 ? width - 1 : 1;
+	size_t len = progress_join(line, cap, f, drop);
+	for (size_t i = 0; i < norder && len > room; i++) {
+		if (order[i] < 0)
+			snprintf(f[PF_HEAD], sizeof f[0], "%s", brief);
+		else
+			drop[order[i]] = 1;
+		len = progress_join(line, cap, f, drop);
+	}
+	if (len > room && room < cap)
+		line[room] = '\0';
+}
+
+static void progress_show(struct progress *pr, const struct snapshot *s, int final)
+{
+	if (pr->quiet || s->ntrace == 0)
+		return;
+	double now = util_now();
+	char line[512];
+	unsigned width = progress_width(pr->tty);
+	const unsigned prefix = sizeof "coterie: " - 1;
+	if (!pr->tty)
+		width = width > prefix + 20 ? width - prefix : 20;
+	progress_format(s, final, width, line, sizeof line);
 	if (pr->tty) {
 		fprintf(stderr, "\r\033[K%s", line);
 		pr->line_open = 1;
@@ -199,6 +291,7 @@ enum {
 	OPT_REFINE,
 	OPT_REFINE_ROUNDS,
 	OPT_CHECK_LINKS,
+	OPT_FORCE,
 };
 
 /* --refine: the AGM refinement of the final cover into *out (released by
@@ -230,7 +323,7 @@ struct run {
 	struct cli_fit_opts o;
 	struct fit_params p;
 	const char *resume, *gpath;
-	int quiet, refine;
+	int quiet, refine, force;
 	unsigned refine_rounds;
 	double check_links;
 	double t_begin;
@@ -266,6 +359,7 @@ static int parse_args(struct run *r, int argc, char **argv)
 		{ "refine", no_argument, NULL, OPT_REFINE },
 		{ "refine-rounds", required_argument, NULL, OPT_REFINE_ROUNDS },
 		{ "check-links", required_argument, NULL, OPT_CHECK_LINKS },
+		{ "force", no_argument, NULL, OPT_FORCE },
 		{ "quiet", no_argument, NULL, 'q' },
 		{ NULL, 0, NULL, 0 },
 	};
@@ -279,6 +373,7 @@ static int parse_args(struct run *r, int argc, char **argv)
 			break;
 		case OPT_PAST_PLATEAU: o->p.past_plateau = 1; break;
 		case OPT_RESUME: r->resume = optarg; break;
+		case OPT_FORCE: r->force = 1; break;
 		case OPT_REFINE: r->refine = 1; break;
 		case OPT_REFINE_ROUNDS:
 			r->refine_rounds = cli_u32("--refine-rounds", optarg, 1, 1000000);
@@ -325,6 +420,8 @@ static int load_resume(struct run *r)
 		die(EXIT_USAGE, "-k auto cannot be used when resuming");
 	if (r->check_links > 0)
 		die(EXIT_USAGE, "--check-links cannot be used when resuming");
+	if (outdir_check_graph(r->o.out, r->ck.graph, r->force))
+		return -1;
 	cli_fit_opts_resume(&r->o, &r->ck.params, "when resuming", &r->p);
 	r->p.hold_at_plateau = 0;
 	outdir_resume(&r->ck, &r->p, &r->origin);
@@ -342,7 +439,8 @@ static int load_resume(struct run *r)
 static int load_graph(struct run *r)
 {
 	struct fit_params *p = &r->p;
-	if (!(r->g = graph_load(r->gpath, r->o.fmt)) || cli_graph_fittable(r->g, r->gpath))
+	if (!(r->g = graph_load(r->gpath, r->o.fmt)) || cli_graph_fittable(r->g, r->gpath) ||
+	    outdir_check_graph(r->o.out, r->g, r->force))
 		return -1;
 	if (!r->o.k_auto)
 		cli_k_fits(p->k, r->g);
@@ -495,6 +593,16 @@ static int finish(struct run *r, enum fit_state st, const struct snapshot *s)
 	return r->interrupted ? EXIT_INTERRUPTED : 0;
 }
 
+/* a and b name the same folder. */
+static int same_folder(const char *a, const char *b)
+{
+	struct stat sa, sb;
+	if (!strcmp(a, b))
+		return 1;
+	return stat(a, &sa) == 0 && stat(b, &sb) == 0 && sa.st_dev == sb.st_dev &&
+	       sa.st_ino == sb.st_ino;
+}
+
 int cmd_fit(int argc, char **argv)
 {
 	struct run run = { .refine_rounds = 50 }, *r = &run;
@@ -523,6 +631,7 @@ int cmd_fit(int argc, char **argv)
 		.dir = r->o.out, .g = r->graph, .params = r->p,
 		.every = r->o.checkpoint_every > 0 ? r->o.checkpoint_every : 120.0,
 		.one_start = r->resume && !r->ck.savepoint,
+		.continues = r->resume && same_folder(r->resume, r->o.out),
 	};
 	if (!r->f || !(r->od = outdir_new(&oc)))
 		goto out;

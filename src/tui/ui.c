@@ -114,6 +114,7 @@ static struct outdir *autosave_open(const struct view *v, const struct tui_confi
 		.dir = v->outdir, .g = v->g, .params = v->params,
 		.every = as_env && atof(as_env) > 0 ? atof(as_env) : AUTOSAVE_SECONDS,
 		.one_start = cfg->one_start, .background = 1,
+		.continues = cfg->reopened && cfg->outdir_holds_result,
 	};
 	if (cfg->checkpoint_every > 0)
 		oc.every = cfg->checkpoint_every;
