@@ -40,6 +40,7 @@
 #include "coterie/cover.h"
 #include "coterie/result.h"
 #include "coterie/graph.h"
+#include "coterie/inspect.h"
 #include "coterie/util.h"
 
 #define RUN_JSON "run.json"
@@ -96,17 +97,54 @@ static double strength_at(const struct fcsr *F, uint32_t u, uint32_t c)
 int result_cover_has(const struct agm *a, uint32_t index, uint32_t u)
 {
 	const struct cover *c = &a->cover;
-	uint64_t lo = c->off[index], hi = c->off[index + 1];
-	while (lo < hi) {
-		uint64_t mid = lo + (hi - lo) / 2;
-		if (c->mem[mid] < u)
-			lo = mid + 1;
-		else if (c->mem[mid] > u)
-			hi = mid;
-		else
-			return 1;
+	const uint32_t *mem = c->mem + c->off[index];
+	size_t size = cover_size(c, index), at = util_lower_bound_u32(mem, size, u);
+	return at < size && mem[at] == u;
+}
+
+int result_cover_node(const struct agm *a, struct inspect_node *nv)
+{
+	uint32_t in_cover = 0;
+	nv->nmember = 0;
+	for (uint32_t i = 0; i < nv->naffil; i++) {
+		int64_t ix = inspect_find_community(a, nv->affil[i].comm);
+		nv->affil[i].member = ix >= 0 && result_cover_has(a, (uint32_t)ix, nv->node);
+		nv->nmember += (uint32_t)nv->affil[i].member;
+	}
+	for (uint32_t i = 0; i < a->cover.k; i++)
+		in_cover += (uint32_t)result_cover_has(a, i, nv->node);
+	if (in_cover == nv->nmember)
+		return 0;
+	struct inspect_affil *more =
+		realloc(nv->affil, ((size_t)nv->naffil + in_cover - nv->nmember) * sizeof *more);
+	if (!more)
+		return error("out of memory");
+	nv->affil = more;
+	uint32_t listed = nv->naffil;
+	for (uint32_t i = 0; i < a->cover.k; i++) {
+		int seen = 0;
+		for (uint32_t j = 0; j < listed && !seen; j++)
+			seen = more[j].comm == a->comms[i].id;
+		if (!seen && result_cover_has(a, i, nv->node)) {
+			more[nv->naffil++] = (struct inspect_affil){ a->comms[i].id, 0.0, 1, 0 };
+			nv->nmember++;
+		}
 	}
 	return 0;
+}
+
+void result_cover_edge(const struct agm *a, struct inspect_edge *e)
+{
+	double stay = 1.0 - a->epsilon;
+	for (uint32_t i = 0; i < e->nshare; i++) {
+		int64_t ix = inspect_find_community(a, e->share[i].comm);
+		e->share[i].both_members = ix >= 0 && result_cover_has(a, (uint32_t)ix, e->u) &&
+					   result_cover_has(a, (uint32_t)ix, e->v);
+	}
+	for (uint32_t i = 0; i < a->cover.k; i++)
+		if (result_cover_has(a, i, e->u) && result_cover_has(a, i, e->v))
+			stay *= 1.0 - a->comms[i].p;
+	e->agm_prob = 1.0 - stay;
 }
 
 /* run.json belongs to ck: its graph's fingerprint and its sweep. 0 or -1
@@ -159,14 +197,7 @@ static int read_p(const char *dir, uint32_t k, const uint32_t *id, const uint32_
 		for (int col = 0; col < 3 && *end == '\t'; col++)
 			strtod(end + 1, &end);
 		double pc = *end == '\t' ? strtod(end + 1, &end) : NAN;
-		uint32_t lo = 0, hi = k;
-		while (lo < hi) {
-			uint32_t mid = lo + (hi - lo) / 2;
-			if (id[mid] < c)
-				lo = mid + 1;
-			else
-				hi = mid;
-		}
+		size_t lo = c > UINT32_MAX ? k : util_lower_bound_u32(id, k, (uint32_t)c);
 		if (errno || lo == k || id[lo] != c || seen[lo] || size[lo] != sz ||
 		    !(pc >= 0.0 && pc <= 1.0)) {
 			warning("communities.tsv:%" PRIu32 " does not match memberships.tsv", lineno);
@@ -212,9 +243,8 @@ static int by_column(struct cover *c, const struct cover *in, const struct fcsr 
 	c->off = util_calloc((size_t)k + 1, sizeof *c->off);
 	c->label = util_calloc(k ? k : 1, sizeof *c->label);
 	c->mem = util_malloc(in->off[k] ? in->off[k] : 1, sizeof *c->mem);
-	if (!l || !ids || !c->off || !c->label || !c->mem)
-		goto fail;
-	for (uint32_t i = 0; i < k; i++) {
+	int ok = l && ids && c->off && c->label && c->mem;
+	for (uint32_t i = 0; ok && i < k; i++) {
 		char *end;
 		errno = 0;
 		unsigned long v = strtoul(in->label[i], &end, 10);
@@ -222,27 +252,27 @@ static int by_column(struct cover *c, const struct cover *in, const struct fcsr 
 			char buf[64];
 			warning("memberships.tsv names community '%s', not a column of the model",
 				util_escape(in->label[i], buf, sizeof buf, 1));
-			goto fail;
+			ok = 0;
 		}
 		l[i] = (struct labelled){ (uint32_t)v, i };
 	}
-	qsort(l, k, sizeof *l, by_id);
-	for (uint32_t j = 0; j < k; j++) {
+	if (ok)
+		qsort(l, k, sizeof *l, by_id);
+	for (uint32_t j = 0; ok && j < k; j++) {
 		uint32_t i = l[j].at, size = cover_size(in, i);
 		ids[j] = l[j].id;
 		c->off[j + 1] = c->off[j] + size;
 		memcpy(c->mem + c->off[j], in->mem + in->off[i], (size_t)size * sizeof *c->mem);
-		if (!(c->label[j] = util_strdup(in->label[i])))
-			goto fail;
+		ok = (c->label[j] = util_strdup(in->label[i])) != NULL;
 	}
 	free(l);
+	if (!ok) {
+		free(ids);
+		cover_release(c);
+		return -1;
+	}
 	*idsp = ids;
 	return 0;
-fail:
-	free(l);
-	free(ids);
-	cover_release(c);
-	return -1;
 }
 
 /* The refined cover of dir into out. 0 or -1 (warned; out empty). */

@@ -49,4 +49,20 @@ int result_cover_read(struct agm *out, const char *dir, const struct checkpoint 
  * sorted members)? */
 int result_cover_has(const struct agm *a, uint32_t index, uint32_t u);
 
+struct inspect_node;
+struct inspect_edge;
+
+/* The node view nv (from inspect_node(), which asks the threshold) with
+ * its memberships asked of the cover a instead (both borrowed; nv is
+ * changed): member flags and nmember, and a row (strength 0, last) for a
+ * membership with no strength. For a cover that is not the strengths'
+ * (RESULT_COVER_REFINED). Returns 0 or -1 (out of memory; nv unchanged
+ * but for its flags). */
+int result_cover_node(const struct agm *a, struct inspect_node *nv);
+
+/* The pair view e (from inspect_edge()) with "both members" and the AGM's
+ * probability asked of the cover a (borrowed): every community holding
+ * both counts, those without a shared strength too. */
+void result_cover_edge(const struct agm *a, struct inspect_edge *e);
+
 #endif

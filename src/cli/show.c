@@ -218,41 +218,6 @@ static int find_node(const struct show *s, const char *name, uint32_t *u)
 	return -1;
 }
 
-/* A refined cover is not the threshold's: the node view's memberships are
- * asked of the cover, and a membership with no strength gets a row of its
- * own (strength 0, last). 0 or -1. */
-static int node_from_cover(const struct show *s, struct inspect_node *nv)
-{
-	const struct agm *a = &s->agm;
-	uint32_t extra = 0;
-	nv->nmember = 0;
-	for (uint32_t i = 0; i < nv->naffil; i++) {
-		int64_t ix = inspect_find_community(a, nv->affil[i].comm);
-		nv->affil[i].member = ix >= 0 && result_cover_has(a, (uint32_t)ix, nv->node);
-		nv->nmember += (uint32_t)nv->affil[i].member;
-	}
-	for (uint32_t i = 0; i < a->cover.k; i++)
-		if (result_cover_has(a, i, nv->node))
-			extra++;
-	extra -= nv->nmember;
-	if (extra == 0)
-		return 0;
-	struct inspect_affil *more = realloc(nv->affil, (nv->naffil + extra) * sizeof *more);
-	if (!more)
-		return error("out of memory");
-	nv->affil = more;
-	for (uint32_t i = 0; i < a->cover.k; i++) {
-		int listed = 0;
-		for (uint32_t j = 0; j < nv->naffil && !listed; j++)
-			listed = nv->affil[j].comm == a->comms[i].id;
-		if (!listed && result_cover_has(a, i, nv->node)) {
-			more[nv->naffil++] = (struct inspect_affil){ a->comms[i].id, 0.0, 1, 0 };
-			nv->nmember++;
-		}
-	}
-	return 0;
-}
-
 static json_t *jaffil(const struct inspect_affil *f)
 {
 	return json_pack("{s:o s:o s:b s:o}", "community", jsonout_uint(f->comm), "strength",
@@ -352,7 +317,7 @@ static int show_node(const struct show *s, const char *name)
 	if (find_node(s, name, &u) ||
 	    inspect_node(&nv, g, &s->ck.F, s->delta, AGM_MIN_LINKS, u) < 0)
 		return -1;
-	if (s->from == RESULT_COVER_REFINED && node_from_cover(s, &nv)) {
+	if (s->from == RESULT_COVER_REFINED && result_cover_node(&s->agm, &nv)) {
 		inspect_node_release(&nv);
 		return -1;
 	}
@@ -573,24 +538,6 @@ static int show_pairs(const struct show *s, uint32_t id, int missing)
 
 /* ---- one pair, and every edge ----------------------------------------- */
 
-/* A refined cover is not the threshold's: "both members" and the AGM's
- * probability are asked of the cover (every community holding both,
- * those without a shared strength too). */
-static void edge_from_cover(const struct show *s, struct inspect_edge *e)
-{
-	const struct agm *a = &s->agm;
-	double stay = 1.0 - s->ck.epsilon;
-	for (uint32_t i = 0; i < e->nshare; i++) {
-		int64_t ix = inspect_find_community(a, e->share[i].comm);
-		e->share[i].both_members = ix >= 0 && result_cover_has(a, (uint32_t)ix, e->u) &&
-					   result_cover_has(a, (uint32_t)ix, e->v);
-	}
-	for (uint32_t i = 0; i < a->cover.k; i++)
-		if (result_cover_has(a, i, e->u) && result_cover_has(a, i, e->v))
-			stay *= 1.0 - a->comms[i].p;
-	e->agm_prob = 1.0 - stay;
-}
-
 static int show_edge(const struct show *s, const char *na, const char *nb)
 {
 	const struct graph *g = s->ck.graph;
@@ -603,7 +550,7 @@ static int show_edge(const struct show *s, const char *na, const char *nb)
 	if (inspect_edge(&e, g, &s->ck.F, &s->agm, s->ck.epsilon, s->delta, AGM_MIN_LINKS, u, v))
 		return -1;
 	if (s->from == RESULT_COVER_REFINED)
-		edge_from_cover(s, &e);
+		result_cover_edge(&s->agm, &e);
 	size_t n = shown(e.nshare, s->limit);
 	int rc = 0;
 	if (s->json) {
