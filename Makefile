@@ -12,7 +12,8 @@ CC       ?= cc
 PREFIX   ?= /usr/local
 PKGS     := igraph ncursesw cmocka jansson zlib
 DEB_PKGS := build-essential pkg-config libigraph-dev libncurses-dev libcmocka-dev \
-            libjansson-dev zlib1g-dev tmux python3 python3-networkx python3-sklearn python3-igraph python3-scipy
+            libjansson-dev zlib1g-dev tmux python3 python3-networkx python3-sklearn python3-igraph python3-scipy \
+            groff-base man-db
 
 comma := ,
 ifeq ($(SANITIZE),)

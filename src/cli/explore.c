@@ -33,6 +33,7 @@
 #include "coterie/memory.h"
 #include "coterie/outdir.h"
 #include "coterie/result.h"
+#include "coterie/result_cover.h"
 #include "coterie/select.h"
 
 static void explore_usage(FILE *out)
@@ -259,6 +260,10 @@ static int open_folder(struct run *r, struct tui_config *cfg)
 	cfg->outdir_holds_result = r->o.out == NULL || !strcmp(r->o.out, r->arg);
 	cfg->graph_label = r->arg;
 	cfg->graph_path = ck->graph->source ? ck->graph->source : r->arg;
+	/* the panes read the cover from the strengths; after fit --refine
+	 * memberships.tsv holds another one (result_cover.h): say so */
+	if (result_cover_is_refined(r->arg))
+		cfg->note = "cover from the strengths; memberships.tsv holds the refined one";
 	return 0;
 }
 

@@ -39,6 +39,8 @@
 #include "coterie/jsonout.h"
 #include "coterie/model.h"
 #include "coterie/result.h"
+#include "coterie/result_cover.h"
+#include "coterie/suggest.h"
 
 #define SHOW_DEFAULT_LIMIT 20u
 #define NAME_CAP 1024       /* bytes of an escaped name in text mode */
@@ -70,8 +72,9 @@ static void show_usage(FILE *out)
 		"                        B, and each shared community's part in it\n"
 		"      --links           every edge with its probability and the community that\n"
 		"                        explains it (all of them unless --limit is given)\n"
-		"      --limit N         show at most N rows (default %u; 0 shows all)\n"
-		"      --json            the same data as JSON\n"
+		"      --limit N         show at most N rows (default %u in text, all in JSON;\n"
+		"                        0 shows all)\n"
+		"      --json            the same data as JSON (coterie(1) lists the keys)\n"
 		"  -h, --help            this text\n",
 		SHOW_DEFAULT_LIMIT);
 }
@@ -79,7 +82,8 @@ static void show_usage(FILE *out)
 struct show {
 	const char *dir;
 	struct checkpoint ck;
-	struct agm agm;
+	struct agm agm;              /* the cover memberships.tsv holds (result_cover.h) */
+	enum result_cover_from from; /* and where it was read from */
 	double delta;
 	size_t limit; /* rows; SIZE_MAX for all */
 	int json;
@@ -168,31 +172,56 @@ static void more_note(size_t total, size_t n)
 		printf("  ... %zu more (--limit 0 shows all)\n", total - n);
 }
 
+/* The JSON word for where the cover shown comes from (coterie(1)). */
+static const char *cover_key(const struct show *s)
+{
+	switch (s->from) {
+	case RESULT_COVER_REFINED: return "refined";
+	case RESULT_COVER_UNREFINED: return "unrefined";
+	default: return "strengths";
+	}
+}
+
+/* Every JSON view that has a list says how long the whole list is. */
+static void set_total(json_t *root, size_t total)
+{
+	json_object_set_new(root, "total", jsonout_uint(total));
+}
+
 static json_t *jcommunity(const struct agm_community *c)
 {
-	return json_pack("{s:o s:o s:o s:o s:o s:o s:o s:o}", "id", jsonout_uint(c->id), "size",
+	return json_pack("{s:o s:o s:o s:o s:o s:o s:o s:o}", "community", jsonout_uint(c->id), "size",
 			 jsonout_uint(c->size), "internal_edges", jsonout_uint(c->internal_edges), "volume",
 			 jsonout_uint(c->volume), "cut", jsonout_uint(c->cut), "density", jsonout_real(c->density),
 			 "conductance", jsonout_real(c->conductance), "p", jsonout_real(c->p));
 }
 
-/* The node called name: 0, or -1 with a message. */
+/* The node called name: 0, or -1 with a message that lists the nodes
+ * with a near name (suggest.h), escaped as every name is. */
 static int find_node(const struct show *s, const char *name, uint32_t *u)
 {
 	int64_t i = graph_find(s->ck.graph, name);
-	if (i < 0) {
-		char b1[NAME_CAP], b2[NAME_CAP];
-		return error("no node named '%s' in %s", util_escape(name, b1, sizeof b1, s->ascii),
-			     util_escape(s->dir, b2, sizeof b2, s->ascii));
+	if (i >= 0) {
+		*u = (uint32_t)i;
+		return 0;
 	}
-	*u = (uint32_t)i;
-	return 0;
+	char b1[NAME_CAP], b2[NAME_CAP];
+	error("no node named '%s' in %s", util_escape(name, b1, sizeof b1, s->ascii),
+	      util_escape(s->dir, b2, sizeof b2, s->ascii));
+	uint32_t near[SUGGEST_MAX];
+	size_t n = suggest_nodes(s->ck.graph, name, near, SUGGEST_MAX);
+	if (n)
+		fprintf(stderr, "nodes with a similar name:\n");
+	for (size_t j = 0; j < n; j++)
+		fprintf(stderr, "  %s\n", util_escape(graph_name(s->ck.graph, near[j]), b1,
+							sizeof b1, s->ascii));
+	return -1;
 }
 
 static json_t *jaffil(const struct inspect_affil *f)
 {
 	return json_pack("{s:o s:o s:b s:o}", "community", jsonout_uint(f->comm), "strength",
-			 jsonout_real(f->strength), "member", f->member, "explained",
+			 jsonout_real(f->strength), "member", f->member, "explains",
 			 jsonout_uint(f->explained));
 }
 
@@ -218,9 +247,10 @@ static int show_summary(const struct show *s)
 		json_t *list = json_array();
 		for (size_t i = 0; i < n; i++)
 			json_array_append_new(list, jcommunity(&a->comms[i]));
-		return jsonout_print(json_pack(
-			"{s:o s:o s:o s:o s:o s:o s:o s:o s:s s:o s:o s:o s:o s:o s:o s:o}",
-			"dir", jsonout_str(s->dir), "nodes", jsonout_uint(g->n), "edges", jsonout_uint(g->m),
+		json_t *root = json_pack(
+			"{s:o s:s s:o s:o s:o s:o s:o s:o s:o s:s s:o s:o s:o s:o s:o s:o s:o}",
+			"dir", jsonout_str(s->dir), "cover", cover_key(s),
+			"nodes", jsonout_uint(g->n), "edges", jsonout_uint(g->m),
 			"k", jsonout_uint(ck->params.k), "ncommunities", jsonout_uint(a->cover.k),
 			"covered", jsonout_uint(a->covered), "overlapping", jsonout_uint(a->overlapping),
 			"sweep", jsonout_uint(ck->sweep), "state", fit_state_name(ck->state),
@@ -228,7 +258,9 @@ static int show_summary(const struct show *s)
 			"loglik", have_ll ? jsonout_real(ll) : json_null(),
 			"agm_loglik", jsonout_real(a->loglik), "epsilon", jsonout_real(ck->epsilon),
 			"delta", jsonout_real(s->delta), "min_links", jsonout_real(AGM_MIN_LINKS),
-			"communities", list), stdout, CLI_JSON_FLAGS);
+			"communities", list);
+		set_total(root, a->cover.k);
+		return jsonout_print(root, stdout, CLI_JSON_FLAGS);
 	}
 
 	char buf[NAME_CAP];
@@ -238,6 +270,7 @@ static int show_summary(const struct show *s)
 	printf("communities  %" PRIu32 " (k = %" PRIu32 ")\n", a->cover.k, ck->params.k);
 	printf("covered      %" PRIu32 " nodes in at least one, %" PRIu32 " in two or more\n",
 	       a->covered, a->overlapping);
+	printf("cover        %s\n", result_cover_words(s->from));
 	printf("sweep        %" PRIu32 " (%.1f s)\n", ck->sweep, ck->seconds);
 	printf("state        %s\n", fit_state_name(ck->state));
 	if (have_ll)
@@ -284,6 +317,10 @@ static int show_node(const struct show *s, const char *name)
 	if (find_node(s, name, &u) ||
 	    inspect_node(&nv, g, &s->ck.F, s->delta, AGM_MIN_LINKS, u) < 0)
 		return -1;
+	if (s->from == RESULT_COVER_REFINED && result_cover_node(&s->agm, &nv)) {
+		inspect_node_release(&nv);
+		return -1;
+	}
 	size_t n = shown(nv.naffil, s->limit);
 	int rc;
 
@@ -291,10 +328,11 @@ static int show_node(const struct show *s, const char *name)
 		json_t *list = json_array();
 		for (size_t i = 0; i < n; i++)
 			json_array_append_new(list, jaffil(&nv.affil[i]));
-		rc = jsonout_print(json_pack("{s:o s:o s:o s:o s:o s:o s:o s:o s:o}",
-			"node", jsonout_str(graph_name(g, u)), "id", jsonout_uint(u),
+		rc = jsonout_print(json_pack("{s:o s:o s:s s:o s:o s:o s:o s:o s:o s:o}",
+			"node", jsonout_str(graph_name(g, u)), "node_index", jsonout_uint(u),
+			"cover", cover_key(s),
 			"degree", jsonout_uint(nv.degree), "memberships", jsonout_uint(nv.nmember),
-			"naffiliations", jsonout_uint(nv.naffil), "unexplained", jsonout_uint(nv.unexplained),
+			"total", jsonout_uint(nv.naffil), "unexplained", jsonout_uint(nv.unexplained),
 			"delta", jsonout_real(s->delta), "min_links", jsonout_real(AGM_MIN_LINKS),
 			"affiliations", list), stdout, CLI_JSON_FLAGS);
 		inspect_node_release(&nv);
@@ -370,6 +408,8 @@ static int show_community(const struct show *s, uint32_t id)
 	if (s->json) {
 		json_t *root = jcommunity(c);
 		json_t *list = json_array();
+		json_object_set_new(root, "cover", json_string(cover_key(s)));
+		set_total(root, size);
 		for (size_t i = 0; i < n; i++)
 			json_array_append_new(list, json_pack("{s:o s:o}",
 				"node", jsonout_str(graph_name(g, order[i])),
@@ -420,19 +460,20 @@ static int show_pairs(const struct show *s, uint32_t id, int missing)
 		json_t *root = json_object();
 		json_t *list = json_array();
 		json_object_set_new(root, "community", jsonout_uint(id));
-		json_object_set_new(root, "members", jsonout_uint(size));
+		json_object_set_new(root, "cover", json_string(cover_key(s)));
+		json_object_set_new(root, "size", jsonout_uint(size));
 		if (missing)
 			json_object_set_new(root, "pool", jsonout_uint(pool));
-		json_object_set_new(root, "total", jsonout_uint(total));
+		set_total(root, total);
 		for (size_t i = 0; i < n; i++) {
 			json_t *o = json_object();
 			if (missing) {
-				json_object_set_new(o, "u", jsonout_str(graph_name(g, p[i].u)));
-				json_object_set_new(o, "v", jsonout_str(graph_name(g, p[i].v)));
+				json_object_set_new(o, "a", jsonout_str(graph_name(g, p[i].u)));
+				json_object_set_new(o, "b", jsonout_str(graph_name(g, p[i].v)));
 			} else {
 				int64_t e = inspect_explaining_community(F, p[i].u, p[i].v);
 				json_object_set_new(o, "member", jsonout_str(graph_name(g, p[i].u)));
-				json_object_set_new(o, "other", jsonout_str(graph_name(g, p[i].v)));
+				json_object_set_new(o, "neighbour", jsonout_str(graph_name(g, p[i].v)));
 				json_object_set_new(o, "explained_by",
 						    e < 0 ? json_null() : jsonout_uint((uint64_t)e));
 			}
@@ -508,15 +549,17 @@ static int show_edge(const struct show *s, const char *na, const char *nb)
 	struct inspect_edge e;
 	if (inspect_edge(&e, g, &s->ck.F, &s->agm, s->ck.epsilon, s->delta, AGM_MIN_LINKS, u, v))
 		return -1;
+	if (s->from == RESULT_COVER_REFINED)
+		result_cover_edge(&s->agm, &e);
 	size_t n = shown(e.nshare, s->limit);
 	int rc = 0;
 	if (s->json) {
 		json_t *list = json_array();
 		for (size_t i = 0; i < n; i++)
 			json_array_append_new(list, jshare(&e.share[i]));
-		rc = jsonout_print(json_pack("{s:o s:o s:b s:o s:o s:o s:o s:o s:o}",
+		rc = jsonout_print(json_pack("{s:o s:o s:s s:o s:b s:o s:o s:o s:o s:o s:o}",
 			"a", jsonout_str(graph_name(g, u)), "b", jsonout_str(graph_name(g, v)),
-			"linked", e.linked, "dot", jsonout_real(e.x), "prob", jsonout_real(e.prob),
+			"cover", cover_key(s), "total", jsonout_uint(e.nshare), "linked", e.linked, "dot", jsonout_real(e.x), "prob", jsonout_real(e.prob),
 			"prob_communities", jsonout_real(e.prob_comms),
 			"agm_prob", jsonout_real(e.agm_prob), "epsilon", jsonout_real(s->ck.epsilon),
 			"communities", list), stdout, CLI_JSON_FLAGS);
@@ -695,7 +738,7 @@ static int show_parse(int argc, char **argv, struct show_args *o, int *status)
 	return -1;
 }
 
-/* Reads the folder's checkpoint and its AGM into *s: 0, or -1 with a
+/* Reads the folder's checkpoint and its cover into *s: 0, or -1 with a
  * message (nothing left to release). */
 static int show_open(struct show *s)
 {
@@ -707,8 +750,7 @@ static int show_open(struct show *s)
 	if (checkpoint_read(path, &s->ck))
 		return -1;
 	s->delta = sqrt(model_qeps(s->ck.epsilon));
-	if (agm_from_strengths(&s->agm, s->ck.graph, &s->ck.F, s->ck.epsilon, s->delta,
-			       AGM_MIN_LINKS)) {
+	if (result_cover_read(&s->agm, s->dir, &s->ck, s->delta, &s->from)) {
 		checkpoint_release(&s->ck);
 		return -1;
 	}
@@ -747,7 +789,8 @@ static int show_run(int argc, char **argv, const char *edge_a, const char *edge_
 	s.dir = argv[optind];
 	s.json = o.json;
 	s.ascii = !proc_utf8();
-	s.limit = o.limit == 0 || (o.links && !o.have_limit) ? SIZE_MAX : o.limit;
+	/* scripts get the whole answer unless they ask for less */
+	s.limit = o.limit == 0 || ((o.links || o.json) && !o.have_limit) ? SIZE_MAX : o.limit;
 	if (show_open(&s))
 		return 1;
 

@@ -45,6 +45,7 @@ struct tui_config {
 	double checkpoint_every;      /* seconds between autosaves; 0: default */
 	int one_start;                /* the fit goes on as one start (reopened
 				       * without a savepoint): outdir.h */
+	const char *note;             /* said in the footer on opening (borrowed), or NULL */
 };
 
 /* What the explore command hands over for -k auto (kscreen.c). */

@@ -352,6 +352,8 @@ int tui_run(struct tui_config *cfg)
 	struct view view, *v = &view;
 	struct loop *l = util_calloc(1, sizeof *l);
 	view_init(v, cfg);
+	if (cfg->note)
+		view_say(v, UTIL_WARNING, "%s", cfg->note);
 	int status = 1;
 	if (l && start(v, l, cfg) == 0) {
 		while (!v->quit) {

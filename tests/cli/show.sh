@@ -74,7 +74,7 @@ assert abs(J["agm_loglik"] - f["agm_loglik"]) <= 1e-6 * abs(f["agm_loglik"])
 assert J["k"] == RUN["parameters"]["k"]
 assert (J["covered"], J["overlapping"]) == (f["covered_nodes"], f["overlapping_nodes"])'
 pycheck "show --json: the communities table matches communities.tsv" "$tmp/sum.json" '
-mine = {str(c["id"]): c for c in J["communities"]}
+mine = {str(c["community"]): c for c in J["communities"]}
 assert set(mine) == {r["community"] for r in COM}, (sorted(mine), [r["community"] for r in COM])
 for r in COM:
     c = mine[r["community"]]
@@ -106,10 +106,56 @@ for c in want:
     assert abs(mine[c] - want[c]) <= 1e-5 * want[c], (c, mine[c], want[c])
 assert J["memberships"] == len(want)'
 pycheck "show --node --json: no community explains more edges than the node has" "$tmp/node.json" '
-assert all(0 <= a["explained"] <= J["degree"] for a in J["affiliations"])'
+assert all(0 <= a["explains"] <= J["degree"] for a in J["affiliations"])'
 "$BIN" show "$res" --node "no such node" >/dev/null 2>"$tmp/nonode.err"
 check "show --node with an unknown name: exit 1" [ $? -eq 1 ]
 check "show --node with an unknown name: names it" grep -q 'no such node' "$tmp/nonode.err"
+
+# --- JSON: the whole answer by default, one vocabulary (issue 14, item 9) ----------
+# The largest community: its members touch more than 20 edges, so the
+# default limit of 20 rows bites.
+big=$(sed -n 2p "$res/communities.tsv" | cut -f1)
+bigsize=$(sed -n 2p "$res/communities.tsv" | cut -f2)
+"$BIN" show "$res" --weak-edges "$big" --json >"$tmp/bigweak.json"
+pycheck "show --weak-edges --json without --limit lists every edge (more than 20)" "$tmp/bigweak.json" '
+assert len(J["edges"]) == J["total"] > 20, (len(J["edges"]), J["total"])'
+"$BIN" show "$res" --weak-edges "$big" --json --limit 5 >"$tmp/bigweak5.json"
+pycheck "show --weak-edges --json --limit 5 lists 5 and says the total" "$tmp/bigweak5.json" '
+assert len(J["edges"]) == 5 and J["total"] > 20, (len(J["edges"]), J["total"])'
+"$BIN" show "$res" --weak-edges "$big" >"$tmp/bigweak.txt"
+check "show --weak-edges (text) keeps its limit of 20 rows and says how many more" \
+	grep -q "more (--limit 0 shows all)" "$tmp/bigweak.txt"
+"$BIN" show "$res" --community "$big" --json >"$tmp/big.json"
+pycheck "show --community --json lists all $bigsize members" "$tmp/big.json" '
+assert len(J["members"]) == J["size"] == J["total"] == '"$bigsize"', (len(J["members"]), J["size"])'
+"$BIN" show "$res" --edge 0 33 --json >"$tmp/edge.json"
+"$BIN" show "$res" --weak-edges "$big" --missing --json >"$tmp/bigmiss.json"
+# one vocabulary: a community is "community" in every view, "size" counts
+# members, "total" is the length of the whole list, a pair is "a" and "b"
+# (weak edges: "member" and "neighbour", as the text's columns say)
+pycheck "show --json: one vocabulary across the views" "$tmp/sum.json" '
+import os
+d = os.path.dirname(sys.argv[1])
+V = {n: json.load(open(d + "/" + n + ".json")) for n in
+     ("sum", "node", "big", "bigweak", "bigmiss", "edge")}
+assert "id" not in V["sum"]["communities"][0] and "community" in V["sum"]["communities"][0]
+assert "id" not in V["big"] and V["big"]["community"] == int('"$big"')
+assert isinstance(V["big"]["members"], list)
+for v in ("bigweak", "bigmiss"):
+    assert isinstance(V[v]["size"], int) and "members" not in V[v], v
+assert set(V["bigweak"]["edges"][0]) == {"member", "neighbour", "prob", "explained_by"}
+assert set(V["bigmiss"]["pairs"][0]) == {"a", "b", "prob"}
+assert V["edge"]["a"] == "0" and V["edge"]["b"] == "33"
+assert set(V["node"]["affiliations"][0]) == {"community", "strength", "member", "explains"}
+assert "id" not in V["node"] and V["node"]["node_index"] == 0
+for n, v in V.items():
+    assert "total" in v, n
+    assert v.get("cover", "strengths") == "strengths", n'
+"$BIN" show "$res" --links --json --limit 3 >"$tmp/links3.json"
+pycheck "show --links --json: a and b, total of all 78 edges" "$tmp/links3.json" '
+assert J["total"] == 78 and len(J["edges"]) == 3
+assert set(J["edges"][0]) == {"a", "b", "prob", "explained_by"}'
+
 
 # --- one community -----------------------------------------------------------------
 cid=$(sed -n 2p "$res/communities.tsv" | cut -f1)
@@ -118,7 +164,7 @@ check "show --community $cid: exit 0" [ $? -eq 0 ]
 "$BIN" show "$res" --community "$cid" --limit 0 --json >"$tmp/comm.json"
 check "show --community --json: exit 0" [ $? -eq 0 ]
 pycheck "show --community --json: members and strengths are memberships.tsv's" "$tmp/comm.json" '
-want = {r["node"]: float(r["strength"]) for r in MEM if r["community"] == str(J["id"])}
+want = {r["node"]: float(r["strength"]) for r in MEM if r["community"] == str(J["community"])}
 mine = {m["node"]: m["strength"] for m in J["members"]}
 assert set(mine) == set(want), (sorted(mine), sorted(want))
 for n in want:
@@ -144,7 +190,7 @@ check "show --weak-edges --json: exit 0" [ $? -eq 0 ]
 pycheck "show --weak-edges --json: every edge touching the members, each once" "$tmp/weak.json" '
 S = {r["node"] for r in MEM if r["community"] == str(J["community"])}
 want = {frozenset(e) for e in G.edges() if e[0] in S or e[1] in S}
-got = [frozenset((e["member"], e["other"])) for e in J["edges"]]
+got = [frozenset((e["member"], e["neighbour"])) for e in J["edges"]]
 assert J["total"] == len(want) == len(got), (J["total"], len(want), len(got))
 assert set(got) == want
 assert all(e["member"] in S for e in J["edges"])'
