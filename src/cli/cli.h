@@ -58,6 +58,8 @@ enum {
 	CLI_OPT_K_GRID,
 	CLI_OPT_HOLDOUT,
 	CLI_OPT_CHECKPOINT_EVERY,
+	CLI_OPT_SKIP_LINES,
+	CLI_OPT_NO_HEADER,
 	CLI_OPT_OWN,
 };
 
@@ -72,6 +74,8 @@ struct cli_fit_opts {
 	struct select_params sp;   /* --k-grid and --holdout for -k auto */
 	int have_grid;             /* --k-grid was given */
 	double checkpoint_every;   /* --checkpoint-every; 0: not given */
+	uint64_t skip_lines;       /* --skip-lines */
+	int no_header;             /* --no-header, or --skip-lines given */
 };
 
 /* Defaults: fit_params_default() with one thread per core. */
@@ -92,6 +96,8 @@ struct cli_fit_opts {
 	{ "k-grid", required_argument, NULL, CLI_OPT_K_GRID }, \
 	{ "holdout", required_argument, NULL, CLI_OPT_HOLDOUT }, \
 	{ "checkpoint-every", required_argument, NULL, CLI_OPT_CHECKPOINT_EVERY }, \
+	{ "skip-lines", required_argument, NULL, CLI_OPT_SKIP_LINES }, \
+	{ "no-header", no_argument, NULL, CLI_OPT_NO_HEADER }, \
 	{ "help", no_argument, NULL, 'h' }
 
 void cli_fit_opts_init(struct cli_fit_opts *o);
@@ -101,6 +107,9 @@ int cli_fit_opts_take(struct cli_fit_opts *o, int c, const char *arg);
 /* -k auto's grid: the --k-grid given, else select_params_default() for g
  * (minima may be NULL). Returns 0 or -1 (reported). */
 int cli_fit_opts_grid(struct cli_fit_opts *o, const struct graph *g, uint32_t *minima);
+/* graph_load_with() with --format, --skip-lines and --no-header: the
+ * graph, or NULL with error(); caller frees with graph_free(). */
+struct graph *cli_graph_load(const struct cli_fit_opts *o, const char *path);
 /* The starts default for a graph of m edges, unless --starts was given. */
 void cli_fit_opts_starts(struct cli_fit_opts *o, uint64_t m);
 /* The parameters for continuing a saved fit: the saved ones, with this
