@@ -29,6 +29,12 @@
  * comments only) is a graph of 0 nodes: it loads, and it is for the caller
  * to refuse it if it cannot use it.
  *
+ * Before the first edge, edge_preamble() skips the lines asked for
+ * (--skip-lines) and tries the header rule of graph.h on the first line
+ * that is not a comment or blank, chunk by chunk until settled; the edge
+ * lines are then parsed from the offset it returns, so the fast path and
+ * the per-line loop never look at it.
+ *
  * Names are interned in batches of lines with the slots prefetched a fixed
  * distance ahead (see edge_flush), through the inline lookup of
  * names-internal.h: on a large graph each lookup is a cache miss or two.
