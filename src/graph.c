@@ -2,7 +2,8 @@
  * graph: graph_load() and the small public functions of graph.h (the rules
  * of struct graph are there).
  *
- * graph_load() picks a reader by --format, or by the file's extension
+ * graph_load() (graph_load_with() with options: the format, lines to skip,
+ * no header guessing) picks a reader by --format, or by the file's extension
  * (".gz" stripped first), edge lists otherwise and always for stdin; the
  * reader (graph_edgelist.c, graph_formats.c) turns the file into a name
  * table and id pairs, and graph_assemble() (graph_csr.c) into the rows;
