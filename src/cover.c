@@ -19,6 +19,9 @@
  * appearance, which is then the key order, so the labels line up with the
  * communities. cover_read() interns node names in another such table,
  * shared by the two covers coterie compare reads, so their ids agree.
+ * cover_looks_like_edges() tells an edge list given as a cover from a
+ * cover by counts alone (names, overlap, a node in its namesake
+ * community); it is a warning's test, never a refusal.
  *
  * The one thing a newcomer gets wrong: "first appearance" is the first
  * record of a key in input order, not the smallest node of the community;
@@ -320,6 +323,7 @@ static int load(struct cover *out, const char *path, const struct graph *g, stru
 		goto out;
 	}
 	rc = build(out, g ? g->n : names_count(nodes), r, nrec, nm);
+	out->result_file = escaped;
 	r = NULL; /* taken by build() */
 out:
 	free(r);
@@ -337,6 +341,38 @@ int cover_load(struct cover *out, const char *path, const struct graph *g)
 int cover_read(struct cover *out, const char *path, struct names *nodes)
 {
 	return load(out, path, NULL, nodes);
+}
+
+int cover_looks_like_edges(const struct cover *c, const struct names *nodes,
+			   struct cover_edge_signs *why)
+{
+	struct cover_edge_signs w = { 0 };
+	uint32_t *in = c->n ? util_calloc(c->n, sizeof *in) : NULL;
+	if (c->n && !in)
+		return -1;
+	for (uint64_t j = 0; j < (c->k ? c->off[c->k] : 0); j++)
+		in[c->mem[j]]++;
+	for (uint32_t u = 0; u < c->n; u++) {
+		w.nodes += in[u] > 0;
+		w.overlapping += in[u] > 1;
+	}
+	for (uint32_t i = 0; i < c->k; i++) {
+		if (!cover_size(c, i))
+			continue;
+		w.labels++;
+		int64_t id = names_find(nodes, c->label[i]);
+		if (id < 0 || (uint64_t)id >= c->n || !in[id])
+			continue;
+		w.named++;
+		size_t at = util_lower_bound_u32(c->mem + c->off[i], cover_size(c, i), (uint32_t)id);
+		w.self += at < cover_size(c, i) && c->mem[c->off[i] + at] == (uint32_t)id;
+	}
+	free(in);
+	if (why)
+		*why = w;
+	return !c->result_file && w.named >= 3 && 2 * (uint64_t)w.named >= w.labels &&
+	       2 * (uint64_t)w.labels >= w.nodes && 10 * (uint64_t)w.self <= w.named &&
+	       5 * (uint64_t)w.overlapping >= w.nodes;
 }
 
 void cover_release(struct cover *c)

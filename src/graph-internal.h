@@ -51,7 +51,8 @@ int graph_input_error(gzFile gz, const char *shown);
 
 /* The readers behind graph_load(): NULL with error() on failure, caller
  * frees with graph_free(). path and shown are borrowed. */
-struct graph *graph_load_edges(const char *path, const char *shown);
+struct graph *graph_load_edges(const char *path, const char *shown,
+				const struct graph_load_opts *o);
 struct graph *graph_load_igraph(const char *path, const char *shown, enum graph_format fmt);
 
 #endif

@@ -2,7 +2,8 @@
  * graph: graph_load() and the small public functions of graph.h (the rules
  * of struct graph are there).
  *
- * graph_load() picks a reader by --format, or by the file's extension
+ * graph_load() (graph_load_with() with options: the format, lines to skip,
+ * no header guessing) picks a reader by --format, or by the file's extension
  * (".gz" stripped first), edge lists otherwise and always for stdin; the
  * reader (graph_edgelist.c, graph_formats.c) turns the file into a name
  * table and id pairs, and graph_assemble() (graph_csr.c) into the rows;
@@ -294,6 +295,13 @@ static enum graph_format format_by_name(const char *path)
 
 struct graph *graph_load(const char *path, enum graph_format fmt)
 {
+	struct graph_load_opts o = { .fmt = fmt };
+	return graph_load_with(path, &o);
+}
+
+struct graph *graph_load_with(const char *path, const struct graph_load_opts *o)
+{
+	enum graph_format fmt = o->fmt;
 	if (!path) {
 		error("no graph file given");
 		return NULL;
@@ -306,10 +314,15 @@ struct graph *graph_load(const char *path, enum graph_format fmt)
 		fmt = is_stdin ? GRAPH_FORMAT_EDGES : format_by_name(path);
 	struct graph *g;
 	switch (fmt) {
-	case GRAPH_FORMAT_EDGES: g = graph_load_edges(path, shown); break;
+	case GRAPH_FORMAT_EDGES: g = graph_load_edges(path, shown, o); break;
 	case GRAPH_FORMAT_GML:
 	case GRAPH_FORMAT_GRAPHML:
-	case GRAPH_FORMAT_PAJEK: g = graph_load_igraph(path, shown, fmt); break;
+	case GRAPH_FORMAT_PAJEK:
+		if (o->skip_lines || o->no_header)
+			warning("%s: skipping lines and header lines is for edge lists; a %s file "
+				"is read whole", shown, graph_format_name(fmt));
+		g = graph_load_igraph(path, shown, fmt);
+		break;
 	default:
 		error("unknown graph format %d", (int)fmt);
 		g = NULL;

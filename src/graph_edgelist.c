@@ -29,6 +29,12 @@
  * comments only) is a graph of 0 nodes: it loads, and it is for the caller
  * to refuse it if it cannot use it.
  *
+ * Before the first edge, edge_preamble() skips the lines asked for
+ * (--skip-lines) and tries the header rule of graph.h on the first line
+ * that is not a comment or blank, chunk by chunk until settled; the edge
+ * lines are then parsed from the offset it returns, so the fast path and
+ * the per-line loop never look at it.
+ *
  * Names are interned in batches of lines with the slots prefetched a fixed
  * distance ahead (see edge_flush), through the inline lookup of
  * names-internal.h: on a large graph each lookup is a cache miss or two.
@@ -46,6 +52,7 @@
 #include <signal.h>
 #include <stdlib.h>
 #include <string.h>
+#include <strings.h>
 
 #if defined(__SSE2__)
 #include <emmintrin.h>
@@ -381,6 +388,8 @@ struct edge_state {
 	const char *shown;
 	struct pending batch[BATCH];
 	int nbatch;
+	uint64_t skip_left; /* lines still to skip (graph_load_opts.skip_lines) */
+	int guess;          /* the header rule is still to be tried */
 };
 
 /* Start fetching the slots where the names of a line are probed first. */
@@ -587,7 +596,165 @@ static int edge_chunk(struct edge_state *st, const char *data, size_t len, int l
 	return 0;
 }
 
-struct graph *graph_load_edges(const char *path, const char *shown)
+/*
+ * The first lines of the input: the lines skipped as asked, then the
+ * header rule of graph.h on the first line that is not a comment or
+ * blank. It runs on each chunk before edge_chunk() until it is settled,
+ * so the per-line loop knows nothing of it. A header needs two or more
+ * fields that are all column names, or a word where the next line has a
+ * number (the third column); a node name that happens to be a word never
+ * makes a header on its own.
+ */
+static const char *const header_words[] = {
+	"source", "target", "from", "to", "src", "dst", "dest", "destination",
+	"u", "v", "node", "node1", "node2", "node_1", "node_2", "node_a", "node_b",
+	"nodea", "nodeb", "id1", "id2", "id_1", "id_2", "source_id", "target_id",
+	"from_id", "to_id", "vertex1", "vertex2", "head", "tail", "weight", "weights",
+	"w", "type", "id", "label", "value", "time", "timestamp", "sign",
+};
+
+#define HEADER_FIELDS 16 /* a header has at most this many columns */
+
+/* Field [b, e) of line with a UTF-8 byte order mark (first field) and
+ * one pair of double quotes taken off. */
+static void header_field(const char *line, size_t *b, size_t *e)
+{
+	if (*b == 0 && *e - *b >= 3 && !memcmp(line, "\xEF\xBB\xBF", 3))
+		*b += 3;
+	if (*e - *b >= 2 && line[*b] == '"' && line[*e - 1] == '"') {
+		(*b)++;
+		(*e)--;
+	}
+}
+
+static int is_header_word(const char *s, size_t len)
+{
+	for (size_t i = 0; i < sizeof header_words / sizeof header_words[0]; i++)
+		if (strlen(header_words[i]) == len && !strncasecmp(s, header_words[i], len))
+			return 1;
+	return 0;
+}
+
+static int is_number(const char *s, size_t len)
+{
+	char buf[64], *end;
+	if (len == 0 || len >= sizeof buf)
+		return 0;
+	memcpy(buf, s, len);
+	buf[len] = '\0';
+	(void)strtod(buf, &end);
+	return end == buf + len;
+}
+
+/* The fields of line[0..len) (at most max, the count up to max + 1) split
+ * as edge_line() splits them, cleaned by header_field(). */
+static int header_fields(const char *line, size_t len, size_t *b, size_t *e, int max)
+{
+	enum sep_mode mode = memchr(line, '\t', len)   ? SEP_TAB
+			     : memchr(line, ',', len) ? SEP_COMMA
+						      : SEP_SPACE;
+	size_t pos = 0, bb, ee;
+	int n = 0;
+	while (n <= max && next_field(line, len, &pos, mode, &bb, &ee)) {
+		header_field(line, &bb, &ee);
+		if (n < max) {
+			b[n] = bb;
+			e[n] = ee;
+		}
+		n++;
+	}
+	return n;
+}
+
+/* The next line of data[0..len) from *pos that is not a comment or blank:
+ * [*s, *s + *l) without its end of line, *pos moved past it. 0 when the
+ * data ends first. */
+static int next_data_line(const char *data, size_t len, size_t *pos, const char **s,
+			  size_t *l, uint64_t *passed)
+{
+	while (*pos < len) {
+		const char *line = data + *pos;
+		const char *nl = memchr(line, '\n', len - *pos);
+		size_t ll = nl ? (size_t)(nl - line) : len - *pos;
+		*pos += nl ? ll + 1 : ll;
+		if (ll && line[ll - 1] == '\r')
+			ll--;
+		if (ll == 0 || line[0] == '#' || line[0] == '%' ||
+		    (!memchr(line, '\0', ll) && is_blank(line, ll))) {
+			if (passed)
+				(*passed)++;
+			continue;
+		}
+		*s = line;
+		*l = ll;
+		return 1;
+	}
+	return 0;
+}
+
+/* The header rule of graph.h: line[0..len) is the first data line, and
+ * rest[0..rlen) what follows it in the chunk. */
+static int is_header(const char *line, size_t len, const char *rest, size_t rlen)
+{
+	size_t b[HEADER_FIELDS], e[HEADER_FIELDS];
+	if (memchr(line, '\0', len))
+		return 0;
+	int n = header_fields(line, len, b, e, HEADER_FIELDS);
+	if (n < 2)
+		return 0;
+	int words = n <= HEADER_FIELDS;
+	for (int i = 0; words && i < n; i++)
+		words = is_header_word(line + b[i], e[i] - b[i]);
+	if (words && !(e[0] - b[0] == e[1] - b[1] &&
+		       !strncasecmp(line + b[0], line + b[1], e[0] - b[0])))
+		return 1;
+	if (n < 3 || is_number(line + b[2], e[2] - b[2]))
+		return 0;
+	/* a word above a number in the third column */
+	size_t pos = 0, nl;
+	const char *next;
+	if (!next_data_line(rest, rlen, &pos, &next, &nl, NULL) || memchr(next, '\0', nl))
+		return 0;
+	size_t nb[3], ne[3];
+	return header_fields(next, nl, nb, ne, 3) >= 3 && is_number(next + nb[2], ne[2] - nb[2]);
+}
+
+/* The lines of data[0..len) before the edges, while st->skip_left or
+ * st->guess: returns the offset of the first line left to edge_chunk(),
+ * with the lines passed over counted in *lineno. */
+static size_t edge_preamble(struct edge_state *st, const char *data, size_t len,
+			    uint64_t *lineno)
+{
+	size_t pos = 0;
+	while (st->skip_left && pos < len) {
+		const char *nl = memchr(data + pos, '\n', len - pos);
+		pos = nl ? (size_t)(nl - data) + 1 : len;
+		(*lineno)++;
+		st->skip_left--;
+		st->rep.skipped_lines++;
+	}
+	if (st->skip_left || !st->guess)
+		return pos;
+	const char *line;
+	size_t ll, at = pos;
+	if (!next_data_line(data, len, &at, &line, &ll, lineno))
+		return at; /* comments and blanks only, so far */
+	st->guess = 0;
+	if (!is_header(line, ll, data + at, len - at))
+		return (size_t)(line - data);
+	(*lineno)++;
+	st->rep.header_line = *lineno;
+	char text[81], esc[400];
+	size_t l = ll < 80 ? ll : 80;
+	memcpy(text, line, l);
+	text[l] = '\0';
+	notice("%s:%" PRIu64 ": skipped a header line '%s' (--no-header reads it as an edge)",
+	       st->shown, *lineno, util_escape(text, esc, sizeof esc, 0));
+	return at;
+}
+
+struct graph *graph_load_edges(const char *path, const char *shown,
+			       const struct graph_load_opts *o)
 {
 	int regular = 0;
 	gzFile gz = graph_open_input(path, shown, &regular);
@@ -596,6 +763,8 @@ struct graph *graph_load_edges(const char *path, const char *shown)
 	struct reader rd;
 	reader_start(&rd, gz, regular);
 	struct edge_state st = { .shown = shown };
+	st.skip_left = o->skip_lines;
+	st.guess = !o->no_header && !o->skip_lines;
 	st.rep.format = GRAPH_FORMAT_EDGES;
 	st.t = names_new(0);
 	if (!st.t)
@@ -603,7 +772,10 @@ struct graph *graph_load_edges(const char *path, const char *shown)
 	uint64_t lineno = 0;
 	for (uint64_t k = 0;; k++) {
 		const struct chunk *c = reader_next(&rd, k);
-		if (edge_chunk(&st, c->data, c->len, c->last && !c->fail, &lineno) < 0 ||
+		size_t from = st.skip_left || st.guess ? edge_preamble(&st, c->data, c->len, &lineno)
+						       : 0;
+		if (edge_chunk(&st, c->data + from, c->len - from, c->last && !c->fail,
+			       &lineno) < 0 ||
 		    edge_flush(&st) < 0)
 			goto fail;
 		if (c->fail == FAIL_LINE) {
@@ -634,6 +806,9 @@ struct graph *graph_load_edges(const char *path, const char *shown)
 	struct graph *g = graph_assemble(st.t, st.pairs.v, st.pairs.len, &st.rep, path);
 	st.t = NULL;
 	free(st.pairs.v);
+	if (g && g->report.skipped_lines)
+		notice("%s: skipped the first %" PRIu64 " line%s, as asked", shown,
+		       g->report.skipped_lines, g->report.skipped_lines == 1 ? "" : "s");
 	if (g && g->report.extra_columns) {
 		if (st.max_fields == 3)
 			notice("%s: ignored the third column on %" PRIu64 " lines", shown,

@@ -22,6 +22,8 @@ struct cover {
 	uint64_t *off;  /* k + 1 */
 	uint32_t *mem;  /* off[k] node ids */
 	char **label;   /* k labels, owned */
+	int result_file; /* read from a file with a result's header (node,
+			    community, strength): a cover by construction */
 };
 
 /* Build from a partition: membership[u] is u's community (>= 0), or < 0
@@ -59,6 +61,37 @@ int cover_load(struct cover *out, const char *path, const struct graph *g);
  * Returns 0 or -1.
  */
 int cover_read(struct cover *out, const char *path, struct names *nodes);
+
+/*
+ * Signs that a file read as a cover is an edge list given by mistake: read
+ * "u<TAB>v" as node and community, an edge list's communities are named
+ * after its nodes, there are about as many of them as nodes, a node is
+ * never in the community of its own name (that would be a self-loop), and
+ * most nodes have two or more neighbours, so are in two or more
+ * communities. Covers name communities otherwise (a real cover, or a
+ * partition numbered 0, 1, ... whose nodes are numbers too, has far fewer
+ * communities than nodes, or no overlaps).
+ */
+struct cover_edge_signs {
+	uint32_t nodes;       /* nodes in at least one community of the file */
+	uint32_t labels;      /* communities with a member */
+	uint32_t named;       /* labels that are also names of those nodes */
+	uint32_t self;        /* named communities holding the node of their name */
+	uint32_t overlapping; /* nodes in two or more communities */
+};
+
+/*
+ * Whether c, read by cover_read() with its node names in nodes (both
+ * borrowed), looks like an edge list: no result header, at least 3 named
+ * labels, named >= labels / 2, labels >= nodes / 2, self <= named / 10
+ * and overlapping >= nodes / 5. Measured on tests/data: every edges.tsv
+ * trips it; no truth.tsv, no nmi fixture and no memberships.tsv does
+ * (those have the result header; a copy without it trips the rule only
+ * when k is about n / 2 or more). why (may be NULL) gets the counts.
+ * Returns 1 or 0; -1 with error() when out of memory.
+ */
+int cover_looks_like_edges(const struct cover *c, const struct names *nodes,
+			   struct cover_edge_signs *why);
 
 /* Check the rules above (offsets, ids in range, rows strictly
  * increasing). Returns 0, or -1 with a message. */

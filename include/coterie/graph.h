@@ -34,6 +34,31 @@ struct graph_report {
 	uint64_t extra_columns;    /* lines whose extra columns were ignored */
 	uint64_t isolated;         /* nodes of degree 0 (kept) */
 	int directed_input;        /* the file declared a directed graph */
+	uint64_t skipped_lines;    /* edge lists: lines skipped as asked (skip_lines) */
+	uint64_t header_line;      /* edge lists: the line taken for a header, or 0 */
+};
+
+/*
+ * How graph_load_with() reads a file. Zero-initialised means graph_load():
+ * the format by extension, no line skipped, a header line recognised.
+ *
+ * The header rule (edge lists only, on the first line that is not a
+ * comment or blank, after any skipped lines): that line is a header when
+ *   - it has two or more fields and every one is a usual column name
+ *     (source, target, from, to, weight, u, v, src, dst, node1, node2, ...:
+ *     graph_edgelist.c has the list; any case, double quotes around a
+ *     field allowed), the first two different; or
+ *   - its third field is not a number while the third field of the next
+ *     such line is one ("alice,bob,strength" over "carol,dave,3").
+ * A header is skipped with a notice naming the file and line. A graph
+ * whose first edge really joins nodes named like columns is read whole
+ * with no_header set.
+ */
+struct graph_load_opts {
+	enum graph_format fmt;
+	uint64_t skip_lines; /* edge lists: the first lines skipped, whatever they hold */
+	int no_header;       /* edge lists: never take a line for a header; skip_lines > 0
+				implies it (the user said where the edges start) */
 };
 
 struct names; /* the node names, both ways: graph_name(), graph_find() */
@@ -62,6 +87,12 @@ const char *graph_format_name(enum graph_format f);
  * Caller frees with graph_free().
  */
 struct graph *graph_load(const char *path, enum graph_format fmt);
+
+/* graph_load() with the options of o (borrowed; see struct graph_load_opts).
+ * skip_lines and no_header are for edge lists: with another format they
+ * are ignored with a warning. NULL with error(); caller frees with
+ * graph_free(). */
+struct graph *graph_load_with(const char *path, const struct graph_load_opts *o);
 
 /*
  * Build a graph from id pairs (tests, simulation). names may be NULL, in

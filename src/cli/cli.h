@@ -64,6 +64,8 @@ enum {
 	CLI_OPT_K_GRID,
 	CLI_OPT_HOLDOUT,
 	CLI_OPT_CHECKPOINT_EVERY,
+	CLI_OPT_SKIP_LINES,
+	CLI_OPT_NO_HEADER,
 	CLI_OPT_OWN,
 };
 
@@ -81,6 +83,8 @@ struct cli_fit_opts {
 	int have_grid;             /* --k-grid was given */
 	double checkpoint_every;   /* --checkpoint-every; 0: not given */
 	const char *out;           /* -o DIR; NULL: not given */
+	uint64_t skip_lines;       /* --skip-lines */
+	int no_header;             /* --no-header, or --skip-lines given */
 };
 
 /* The getopt_long() entries fit and explore share (the options handled by
@@ -100,6 +104,8 @@ struct cli_fit_opts {
 	{ "k-grid", required_argument, NULL, CLI_OPT_K_GRID }, \
 	{ "holdout", required_argument, NULL, CLI_OPT_HOLDOUT }, \
 	{ "checkpoint-every", required_argument, NULL, CLI_OPT_CHECKPOINT_EVERY }, \
+	{ "skip-lines", required_argument, NULL, CLI_OPT_SKIP_LINES }, \
+	{ "no-header", no_argument, NULL, CLI_OPT_NO_HEADER }, \
 	{ "help", no_argument, NULL, 'h' }
 
 /* Defaults: fit_params_default() with one thread per core. */
@@ -114,6 +120,9 @@ int cli_fit_getopt(struct cli_fit_opts *o, int argc, char **argv, const char *sh
 /* -k auto's grid: the --k-grid given, else select_params_default() for g
  * (minima may be NULL). Returns 0 or -1 (reported). */
 int cli_fit_opts_grid(struct cli_fit_opts *o, const struct graph *g, uint32_t *minima);
+/* graph_load_with() with --format, --skip-lines and --no-header: the
+ * graph, or NULL with error(); caller frees with graph_free(). */
+struct graph *cli_graph_load(const struct cli_fit_opts *o, const char *path);
 /* The starts default for a graph of m edges, unless --starts was given. */
 void cli_fit_opts_starts(struct cli_fit_opts *o, uint64_t m);
 /* The parameters for continuing a saved fit: the saved ones, with this

@@ -98,8 +98,10 @@ int cli_graph_fittable(const struct graph *g, const char *path)
 		return error("%s:%" PRIu64 ": expected an edge between two different nodes, found "
 			     "the end of the file after only self-loops", shown, r->lines + 1);
 	return error("%s:%" PRIu64 ": expected two node names, found the end of the file after "
-		     "%" PRIu64 " line%s of comments and blanks", shown, r->lines + 1, r->lines,
-		     r->lines == 1 ? "" : "s");
+		     "%" PRIu64 " line%s of %s", shown, r->lines + 1, r->lines,
+		     r->lines == 1 ? "" : "s",
+		     r->skipped_lines ? "skipped lines, comments and blanks"
+		     : r->header_line ? "header, comments and blanks" : "comments and blanks");
 }
 
 void cli_k_fits(uint32_t k, const struct graph *g)
@@ -175,6 +177,11 @@ int cli_fit_opts_take(struct cli_fit_opts *o, int c, const char *arg)
 		o->have_starts = 1;
 		return 1;
 	case CLI_OPT_NO_RESEED: p->no_reseed = 1; return 1;
+	case CLI_OPT_SKIP_LINES:
+		o->skip_lines = cli_u64("--skip-lines", arg);
+		o->no_header = 1; /* the user said where the edges start */
+		return 1;
+	case CLI_OPT_NO_HEADER: o->no_header = 1; return 1;
 	default: return 0;
 	}
 }
@@ -191,6 +198,13 @@ int cli_fit_opts_grid(struct cli_fit_opts *o, const struct graph *g, uint32_t *m
 		o->sp.nlist = 0;
 	}
 	return 0;
+}
+
+struct graph *cli_graph_load(const struct cli_fit_opts *o, const char *path)
+{
+	struct graph_load_opts lo = { .fmt = o->fmt, .skip_lines = o->skip_lines,
+				      .no_header = o->no_header };
+	return graph_load_with(path, &lo);
 }
 
 void cli_fit_opts_starts(struct cli_fit_opts *o, uint64_t m)

@@ -5,7 +5,9 @@
  * memberships.tsv) into one node-name table, so both are covers of the
  * union of their nodes: a node missing from a file is in none of that
  * file's communities. Then prints the counts of each side and the scores
- * of score.h, as a table for people or as one JSON object.
+ * of score.h, as a table for people or as one JSON object. A file that
+ * reads like an edge list (cover_looks_like_edges()) is still scored, with
+ * a warning: the rule can misfire on unusual covers, so it never refuses.
  *
  * Node names are never printed; file names are, through util_escape()
  * (ASCII-only when the locale is not UTF-8), and JSON gets them as UTF-8
@@ -44,10 +46,11 @@ static void compare_usage(FILE *out)
 		"\n"
 		"Score the cover FOUND against the cover TRUTH. Each is a file of\n"
 		"node<TAB>community lines or a result folder (its memberships.tsv).\n"
-		"Scores are computed over the nodes of both files; a node missing from\n"
+		"Scores are computed over the nodes in either file; a node missing from\n"
 		"one is in none of its communities. Prints overlapping NMI (max and LFK\n"
 		"forms), the Omega index, the average best-match F1, plain NMI when both\n"
-		"are partitions, and counts for each side.\n"
+		"are partitions, and counts for each side. Warns when a file looks like\n"
+		"an edge list (its community names are its node names).\n"
 		"\n"
 		"      --json      the same as one JSON object\n"
 		"  -h, --help      this text\n");
@@ -87,11 +90,18 @@ struct scores {
 	int partitions;
 };
 
+/* Nodes of the union that both files name. */
+static uint32_t in_both(const struct side *t, const struct side *f, uint32_t n)
+{
+	return n - t->s.only - f->s.only;
+}
+
 static int print_json(const struct side *t, const struct side *f, uint32_t n,
 		      const struct scores *sc)
 {
-	return jsonout_print(json_pack("{s:o s:o s:I s:o s:o s:o s:o s:o s:o s:b s:o}",
+	return jsonout_print(json_pack("{s:o s:o s:I s:I s:o s:o s:o s:o s:o s:o s:b s:o}",
 		"truth", jside(t), "found", jside(f), "nodes", (json_int_t)n,
+		"nodes_in_both", (json_int_t)in_both(t, f, n),
 		"onmi_max", jsonout_real(sc->onmi_max), "onmi_lfk", jsonout_real(sc->onmi_lfk),
 		"omega", jsonout_real(sc->omega), "f1", jsonout_real(sc->f1),
 		"f1_truth_to_found", jsonout_real(sc->f1_tf),
@@ -128,7 +138,8 @@ static void print_text(const struct side *t, const struct side *f, uint32_t n,
 	       f->s.overlapping);
 	printf("%-30s %10" PRIu32 " %10" PRIu32 "\n", "nodes only in this file", t->s.only,
 	       f->s.only);
-	printf("%-30s %10" PRIu32 "\n\n", "nodes compared (both files)", n);
+	printf("%-30s %10" PRIu32 "\n", "nodes in either file (scored)", n);
+	printf("%-30s %10" PRIu32 "\n\n", "nodes in both files", in_both(t, f, n));
 	printf("%-30s %10.6f\n", "overlapping NMI, max form", sc->onmi_max);
 	printf("%-30s %10.6f\n", "overlapping NMI, LFK form", sc->onmi_lfk);
 	printf("%-30s %10.6f\n", "Omega index", sc->omega);
@@ -139,6 +150,23 @@ static void print_text(const struct side *t, const struct side *f, uint32_t n,
 		printf("%-30s %10.6f\n", "NMI (partitions)", sc->nmi);
 	else
 		printf("%-30s %10s  (%s)\n", "NMI (partitions)", "-", not_partitions(t, f));
+}
+
+/* Warn when a side reads like an edge list (cover_looks_like_edges()):
+ * scored as a cover, it would give numbers that mean nothing. 0, or -1
+ * with error(). */
+static int warn_edge_list(const struct side *d, const char *which, const struct names *nodes)
+{
+	struct cover_edge_signs why;
+	int r = cover_looks_like_edges(&d->c, nodes, &why);
+	if (r <= 0)
+		return r;
+	char buf[PATH_CAP * 4];
+	warning("%s '%s' looks like an edge list, not a cover: %" PRIu32 " of its %" PRIu32
+		" community names are names of its nodes; a cover file holds node<TAB>community "
+		"lines", which, util_escape(d->path, buf, sizeof buf, !proc_utf8()), why.named,
+		why.labels);
+	return 0;
 }
 
 int cmd_compare(int argc, char **argv)
@@ -181,6 +209,8 @@ int cmd_compare(int argc, char **argv)
 		goto out;
 	uint32_t n = names_count(nodes);
 	t->c.n = f->c.n = n; /* both over the union of the nodes */
+	if (warn_edge_list(t, "TRUTH", nodes) || warn_edge_list(f, "FOUND", nodes))
+		goto out;
 
 	struct scores sc;
 	memset(&sc, 0, sizeof sc);

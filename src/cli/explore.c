@@ -65,6 +65,8 @@ static void explore_usage(FILE *out)
 		"      --max-sweeps N    stop after N sweeps in all (default 500)\n"
 		"      --epsilon X       background link probability (default: the density)\n"
 		"      --format F        edges, gml, graphml or pajek (default: by extension)\n"
+		"      --skip-lines N    edge lists: skip the first N lines (then no header is guessed)\n"
+		"      --no-header       edge lists: the first line is an edge, never a header\n"
 		"      --resume          with DIR: continue the saved fit at once\n"
 		"      --checkpoint-every SECONDS\n"
 		"                        write the checkpoint that often while fitting\n"
@@ -281,7 +283,7 @@ static int open_graph(struct run *r, struct tui_config *cfg)
 		cfg->outdir = r->outbuf;
 		cfg->outdir_is_default = 1;
 	}
-	if (!(r->g = graph_load(r->arg, r->o.fmt)) || cli_graph_fittable(r->g, r->arg) ||
+	if (!(r->g = cli_graph_load(&r->o, r->arg)) || cli_graph_fittable(r->g, r->arg) ||
 	    outdir_check_graph(cfg->outdir, r->g, r->force))
 		return 1;
 	cli_k_fits(r->p.k, r->g);

@@ -75,6 +75,8 @@ static void fit_usage(FILE *out)
 		"      --refine-rounds N at most N rounds of refinement (default 50)\n"
 		"      --epsilon X       background link probability (default: the density)\n"
 		"      --format F        edges, gml, graphml or pajek (default: by extension)\n"
+		"      --skip-lines N    edge lists: skip the first N lines (then no header is guessed)\n"
+		"      --no-header       edge lists: the first line is an edge, never a header\n"
 		"      --resume DIR      continue the fit saved in DIR (same graph only)\n"
 		"      --checkpoint-every SECONDS\n"
 		"                        write a checkpoint to the result folder that often\n"
@@ -410,7 +412,7 @@ static int load_resume(struct run *r)
 	if (outdir_read(r->resume, &r->ck))
 		return -1;
 	if (r->gpath) {
-		if (!(r->g = graph_load(r->gpath, r->o.fmt)))
+		if (!(r->g = cli_graph_load(&r->o, r->gpath)))
 			return -1;
 		if (graph_fingerprint(r->g) != r->ck.fingerprint)
 			return error("'%s' is not the graph the fit in '%s' was made on; refusing "
@@ -439,7 +441,7 @@ static int load_resume(struct run *r)
 static int load_graph(struct run *r)
 {
 	struct fit_params *p = &r->p;
-	if (!(r->g = graph_load(r->gpath, r->o.fmt)) || cli_graph_fittable(r->g, r->gpath) ||
+	if (!(r->g = cli_graph_load(&r->o, r->gpath)) || cli_graph_fittable(r->g, r->gpath) ||
 	    outdir_check_graph(r->o.out, r->g, r->force))
 		return -1;
 	if (!r->o.k_auto)

@@ -87,6 +87,16 @@ printf 'a\t1\nb\t1\nc\t2\nd\t2\nnew1\t3\nnew2\t3\n' >"$tmp/f6.tsv"
 jcheck "one side only: counted, union of 7 nodes, NMI does not apply" "$tmp/one.json" \
 	'J["truth"]["only_in_this_file"] == 1 and J["found"]["only_in_this_file"] == 2 and J["nodes"] == 7 and J["nmi"] is None'
 
+# ---- the count of nodes, labelled truthfully (issue 14, item 11) --------------
+"$BIN" compare "$tmp/t5.tsv" "$tmp/f6.tsv" >"$tmp/one.txt"
+check "text: 7 nodes in either file (the union: 5 + 6 - 4 shared)" \
+	grep -q '^nodes in either file (scored)  *7$' "$tmp/one.txt"
+check "text: 4 nodes in both files" grep -q '^nodes in both files  *4$' "$tmp/one.txt"
+check "text: no row claims the union is in both files" \
+	sh -c "! grep -q 'compared (both files)' '$tmp/one.txt'"
+jcheck "json: nodes_in_both 4, nodes 7 (the union)" "$tmp/one.json" \
+	'J["nodes_in_both"] == 4 and J["nodes"] == 7'
+
 # ---- result folders -----------------------------------------------------------
 "$BIN" fit "$karate/edges.tsv" -k 2 -j 1 --seed 1 -q -o "$tmp/res" >/dev/null 2>&1
 check "fit karate: exit 0" [ $? -eq 0 ]
@@ -98,6 +108,29 @@ jcheck "a folder means its memberships.tsv" "$tmp/dir.json" \
 "$BIN" compare --json "$tmp/res" "$tmp/res" >"$tmp/self.json"
 jcheck "a folder against itself: every measure is 1" "$tmp/self.json" \
 	'all(abs(J[k] - 1) < 1e-12 for k in ("onmi_max","onmi_lfk","omega","f1"))'
+
+# ---- an edge list given as a cover (issue 14, item 11) ----------------------
+# karate's edges.tsv (Zachary 1977) read as node<TAB>community: its
+# "communities" are its nodes; it is still scored, with a warning.
+"$BIN" compare "$karate/truth.tsv" "$karate/edges.tsv" >"$tmp/el.txt" 2>"$tmp/el.err"
+check "edge list as FOUND: still scored, exit 0" [ $? -eq 0 ]
+check "edge list as FOUND: a warning names the side, the file and why" \
+	grep -q "^coterie: warning: FOUND '.*karate/edges.tsv' looks like an edge list, not a cover: [0-9]* of its [0-9]* community names are names of its nodes" "$tmp/el.err"
+"$BIN" compare --json "$karate/edges.tsv" "$karate/truth.tsv" >/dev/null 2>"$tmp/el.err"
+check "edge list as TRUTH, --json: the warning too" grep -q "warning: TRUTH .*looks like an edge list" "$tmp/el.err"
+for name in dolphins football lesmis polbooks; do
+	"$BIN" compare "$DATA/$name/edges.tsv" "$DATA/$name/edges.tsv" >/dev/null 2>"$tmp/el.err"
+	check "edge list $name/edges.tsv: warned for both sides" [ "$(grep -c 'looks like an edge list' "$tmp/el.err")" -eq 2 ]
+done
+# real covers never warn: every truth file, every fixture, results of
+# several k (their memberships.tsv)
+for k in 2 10 34; do
+	"$BIN" fit "$karate/edges.tsv" -k $k -j 1 --seed 1 -q -o "$tmp/res$k" >/dev/null 2>&1
+done
+for f in "$DATA"/*/truth*.tsv "$nmi"/*.a.tsv "$nmi"/*.b.tsv "$tmp/res2" "$tmp/res10" "$tmp/res34"; do
+	"$BIN" compare "$f" "$f" >/dev/null 2>"$tmp/el.err"
+	check "a cover is not taken for an edge list: ${f#$DATA/}" [ ! -s "$tmp/el.err" ]
+done
 
 # ---- hostile names -----------------------------------------------------------
 esc=$(printf '\033')

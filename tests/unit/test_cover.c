@@ -317,6 +317,88 @@ static void test_read_refuses_a_file_without_memberships(void **state)
 	test_rmtree(dir);
 }
 
+/* Read one file into a fresh node table and apply the edge-list rule. */
+static int edge_like(const char *path, struct cover_edge_signs *why)
+{
+	struct names *nodes = names_new(0);
+	assert_non_null(nodes);
+	struct cover c;
+	assert_int_equal(cover_read(&c, path, nodes), 0);
+	int r = cover_looks_like_edges(&c, nodes, why);
+	cover_release(&c);
+	names_free(nodes);
+	return r;
+}
+
+/* An edge list read as a cover: its "communities" are its nodes. The open
+ * datasets' edges.tsv (tests/data/README.md) trip the rule; their truth
+ * files and the plain-NMI fixtures do not. The karate counts are worked
+ * from tests/data/karate/edges.tsv (first and second columns). */
+static void test_an_edge_list_read_as_a_cover_looks_like_one(void **state)
+{
+	(void)state;
+	struct cover_edge_signs why;
+	char path[4096];
+	snprintf(path, sizeof path, "%s", test_data("karate/edges.tsv"));
+	assert_int_equal(edge_like(path, &why), 1);
+	assert_int_equal(why.self, 0);        /* no self-loop in karate */
+	assert_true(why.named >= 3);
+	assert_true(2 * why.named >= why.labels);
+	assert_true(2 * why.labels >= why.nodes);
+	static const char *const edges[] = { "dolphins/edges.tsv", "football/edges.tsv",
+					     "lesmis/edges.tsv", "polbooks/edges.tsv" };
+	for (size_t i = 0; i < sizeof edges / sizeof edges[0]; i++) {
+		snprintf(path, sizeof path, "%s", test_data(edges[i]));
+		assert_int_equal(edge_like(path, NULL), 1);
+	}
+	static const char *const covers[] = {
+		"karate/truth.tsv", "football/truth.tsv", "football/truth-evans.tsv",
+		"polbooks/truth.tsv", "nmi/singletons.a.tsv", "nmi/large.a.tsv",
+	};
+	for (size_t i = 0; i < sizeof covers / sizeof covers[0]; i++) {
+		snprintf(path, sizeof path, "%s", test_data(covers[i]));
+		assert_int_equal(edge_like(path, NULL), 0);
+	}
+}
+
+/* Covers whose community names are node names too must not trip it: a
+ * partition numbered like its nodes (no overlap), a cover where nodes sit
+ * in the community of their own name, few communities, and any file with
+ * a result's header. */
+static void test_covers_named_like_their_nodes_are_not_edge_lists(void **state)
+{
+	(void)state;
+	const char *dir = test_tmpdir();
+	char text[4096];
+	size_t at = 0;
+	/* 12 nodes 0..11 in 6 groups named 0..5, shuffled: labels all node names */
+	static const int part[12] = { 3, 0, 5, 1, 4, 2, 0, 1, 2, 3, 4, 5 };
+	for (int u = 0; u < 12; u++)
+		at += (size_t)snprintf(text + at, sizeof text - at, "%d\t%d\n", u, part[u]);
+	struct cover_edge_signs why;
+	assert_int_equal(edge_like(test_write_file(dir, "part.tsv", text), &why), 0);
+	assert_int_equal(why.named, 6);
+	assert_int_equal(why.overlapping, 0);
+	/* the same nodes in two groups each, every group holding its namesake */
+	at = 0;
+	for (int u = 0; u < 12; u++)
+		at += (size_t)snprintf(text + at, sizeof text - at, "%d\t%d\n%d\t%d\n", u, u % 8,
+				       u, (u + 1) % 8);
+	assert_int_equal(edge_like(test_write_file(dir, "self.tsv", text), &why), 0);
+	assert_int_equal(why.self, 8);
+	/* an edge list (a ring 0-1-...-11 with chords), named as it is... */
+	at = 0;
+	for (int u = 0; u < 12; u++)
+		at += (size_t)snprintf(text + at, sizeof text - at, "%d\t%d\n%d\t%d\n", u,
+				       (u + 1) % 12, u, (u + 5) % 12);
+	assert_int_equal(edge_like(test_write_file(dir, "ring.tsv", text), &why), 1);
+	/* ...is a cover when it says it is a result's memberships.tsv */
+	char headed[4200];
+	snprintf(headed, sizeof headed, "node\tcommunity\tstrength\n%s", text);
+	assert_int_equal(edge_like(test_write_file(dir, "m.tsv", headed), NULL), 0);
+	test_rmtree(dir);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -342,6 +424,10 @@ int main(void)
 		    test_read_keeps_hostile_names_and_unescapes_memberships, setup, teardown),
 		cmocka_unit_test_setup_teardown(test_read_refuses_a_file_without_memberships,
 						setup, teardown),
+		cmocka_unit_test_setup_teardown(test_an_edge_list_read_as_a_cover_looks_like_one,
+						setup, teardown),
+		cmocka_unit_test_setup_teardown(
+		    test_covers_named_like_their_nodes_are_not_edge_lists, setup, teardown),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }

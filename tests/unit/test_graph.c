@@ -435,6 +435,185 @@ static void test_third_column_is_ignored_with_one_notice(void **state)
 	graph_free(g);
 }
 
+/* ---- edge lists: header lines and skipped lines --------------------------
+ * The rule is graph.h's (struct graph_load_opts); the column names tested
+ * are the usual ones of CSV exports: "source,target,weight" (Gephi,
+ * networkx.to_pandas_edgelist), "from","to" (R igraph's as_data_frame,
+ * quoted by write.csv), a byte order mark before the first field (Excel's
+ * "CSV UTF-8"). Common practice, not a standard. */
+
+static struct graph *load_with(const char *path, uint64_t skip, int no_header)
+{
+	struct graph_load_opts o = { .fmt = GRAPH_FORMAT_EDGES, .skip_lines = skip,
+				     .no_header = no_header };
+	capture_start();
+	struct graph *g = graph_load_with(path, &o);
+	capture_stop();
+	if (g)
+		assert_graph_sane(g);
+	return g;
+}
+
+static void test_csv_header_line_is_skipped_with_a_notice(void **state)
+{
+	(void)state;
+	const char *p = write_text("h.csv", "source,target,weight\na,b,1\nb,c,2\n");
+	struct graph *g = load(p, GRAPH_FORMAT_AUTO);
+	assert_non_null(g);
+	assert_int_equal(g->n, 3);
+	assert_int_equal(g->m, 2);
+	assert_int_equal(graph_find(g, "source"), -1);
+	assert_int_equal(g->report.header_line, 1);
+	assert_int_equal(g->report.lines, 3);
+	assert_int_equal(captured_with("h.csv:1: skipped a header line 'source,target,weight'"), 1);
+	assert_int_equal(captured_with("--no-header"), 1);
+	graph_free(g);
+	/* the fast path's usual line, name TAB name, is a header too */
+	p = write_text("h.tsv", "Source\tTarget\na\tb\n");
+	g = load(p, GRAPH_FORMAT_EDGES);
+	assert_non_null(g);
+	assert_int_equal(g->m, 1);
+	assert_int_equal(graph_find(g, "Source"), -1);
+	graph_free(g);
+	/* and through gzip */
+	const char *text = "from to\nx y\n";
+	p = write_gz("h.txt.gz", text, strlen(text));
+	g = load(p, GRAPH_FORMAT_AUTO);
+	assert_non_null(g);
+	assert_int_equal(g->m, 1);
+	assert_int_equal(graph_find(g, "from"), -1);
+	graph_free(g);
+}
+
+static void test_header_after_comments_quoted_or_after_a_bom_is_found(void **state)
+{
+	(void)state;
+	const char *p = write_text("q.tsv", "# made by hand\n\n\"from\"\t\"to\"\r\nx\ty\r\n");
+	struct graph *g = load(p, GRAPH_FORMAT_EDGES);
+	assert_non_null(g);
+	assert_int_equal(g->m, 1);
+	assert_int_equal(g->report.header_line, 3);
+	assert_int_equal(captured_with("q.tsv:3: skipped a header line"), 1);
+	graph_free(g);
+	p = write_text("bom.csv", "\xEF\xBB\xBFNode1,Node2\nx,y\n");
+	g = load(p, GRAPH_FORMAT_EDGES);
+	assert_non_null(g);
+	assert_int_equal(g->n, 2);
+	assert_int_equal(g->report.header_line, 1);
+	graph_free(g);
+	/* a header far down, after more than a chunk (1 MiB) of comments */
+	size_t len = (size_t)3 << 20;
+	char *big = malloc(len + 64);
+	assert_non_null(big);
+	size_t at = 0;
+	while (at + 64 < len) {
+		memset(big + at, 'x', 63);
+		big[at] = '#';
+		big[at + 63] = '\n';
+		at += 64;
+	}
+	uint64_t comments = at / 64;
+	at += (size_t)snprintf(big + at, 64, "u\tv\na\tb\n");
+	p = write_bytes("late.tsv", big, at);
+	free(big);
+	g = load(p, GRAPH_FORMAT_EDGES);
+	assert_non_null(g);
+	assert_int_equal(g->m, 1);
+	assert_int_equal(graph_find(g, "u"), -1);
+	assert_int_equal(g->report.header_line, comments + 1);
+	assert_int_equal(g->report.lines, comments + 2);
+	graph_free(g);
+}
+
+static void test_word_above_a_number_in_the_third_column_is_a_header(void **state)
+{
+	(void)state;
+	const char *p = write_text("b.csv", "Person1,Person2,Strength\nalice,bob,3\nbob,carol,0.5\n");
+	struct graph *g = load(p, GRAPH_FORMAT_EDGES);
+	assert_non_null(g);
+	assert_int_equal(g->m, 2);
+	assert_int_equal(graph_find(g, "Person1"), -1);
+	assert_int_equal(g->report.header_line, 1);
+	graph_free(g);
+}
+
+/* Node names are words too: only a line of column names, or a word over a
+ * number, is a header; nothing is guessed past the first data line. */
+static void test_node_names_that_are_words_stay_edges(void **state)
+{
+	(void)state;
+	static const char *const kept[] = {
+		"alice bob\nbob carol\n",          /* words, not column names */
+		"source alice\nalice bob\n",       /* one column name only */
+		"target target\na b\n",            /* the same name twice */
+		"a,b,x\nc,d,y\n",                  /* no number below the word */
+		"a,b,x\n",                         /* no line below */
+		"1 2 3\n2 3 4\n",                  /* numbers */
+		"a\tb\nsource\ttarget\n",          /* not the first data line */
+		"source target extra\nx y\n",      /* "extra" is no column name */
+	};
+	for (size_t i = 0; i < sizeof kept / sizeof kept[0]; i++) {
+		const char *p = write_text("k.txt", kept[i]);
+		struct graph *g = load(p, GRAPH_FORMAT_EDGES);
+		assert_non_null(g);
+		assert_int_equal(g->report.header_line, 0);
+		assert_int_equal(captured_with("header"), 0);
+		assert_int_equal(g->report.edges_read, 1 + (strchr(kept[i], '\n')[1] != '\0'));
+		graph_free(g);
+	}
+	/* a graph whose nodes are named source and target, said so */
+	const char *p = write_text("st.tsv", "source\ttarget\ntarget\tsink\n");
+	struct graph *g = load_with(p, 0, 1);
+	assert_non_null(g);
+	assert_int_equal(g->m, 2);
+	assert_true(linked(g, "source", "target"));
+	assert_int_equal(g->report.header_line, 0);
+	assert_int_equal(captured_with("header"), 0);
+	graph_free(g);
+}
+
+static void test_skip_lines_skips_any_lines_and_guesses_no_header(void **state)
+{
+	(void)state;
+	const char *p = write_text("s.txt", "Edges of a graph\n(2 of them)\na b\nb c\n");
+	struct graph *g = load_with(p, 2, 0);
+	assert_non_null(g);
+	assert_int_equal(g->m, 2);
+	assert_int_equal(g->report.skipped_lines, 2);
+	assert_int_equal(g->report.lines, 4);
+	assert_int_equal(captured_with("s.txt: skipped the first 2 lines, as asked"), 1);
+	graph_free(g);
+	/* the line after the skipped ones is an edge, whatever it looks like */
+	p = write_text("s2.txt", "# exported\nsource target\nb c\n");
+	g = load_with(p, 1, 0);
+	assert_non_null(g);
+	assert_int_equal(g->m, 2);
+	assert_true(linked(g, "source", "target"));
+	graph_free(g);
+	/* a line with a NUL byte is skipped without a word, when asked */
+	p = write_bytes("s3.txt", "x\0y\na b\n", 8);
+	g = load_with(p, 1, 0);
+	assert_non_null(g);
+	assert_int_equal(g->m, 1);
+	graph_free(g);
+	/* more lines skipped than the file has: no edge */
+	p = write_text("s4.txt", "a b\n");
+	g = load_with(p, 5, 0);
+	assert_non_null(g);
+	assert_int_equal(g->m, 0);
+	assert_int_equal(g->report.skipped_lines, 1);
+	graph_free(g);
+	/* another format is read whole, with a warning */
+	struct graph_load_opts o = { .skip_lines = 1 };
+	capture_start();
+	g = graph_load_with(test_data("graph/triangle-plus.gml"), &o);
+	capture_stop();
+	assert_non_null(g);
+	assert_int_equal(g->m, 4);
+	assert_int_equal(captured_with("a gml file is read whole"), 1);
+	graph_free(g);
+}
+
 /* ---- errors ------------------------------------------------------------ */
 
 static void test_line_with_one_name_is_an_error_naming_file_and_line(void **state)
@@ -1387,6 +1566,11 @@ int main(int argc, char **argv)
 		cmocka_unit_test(test_duplicates_and_reversed_duplicates_are_merged),
 		cmocka_unit_test(test_self_loops_are_dropped_and_counted),
 		cmocka_unit_test(test_third_column_is_ignored_with_one_notice),
+		cmocka_unit_test(test_csv_header_line_is_skipped_with_a_notice),
+		cmocka_unit_test(test_header_after_comments_quoted_or_after_a_bom_is_found),
+		cmocka_unit_test(test_word_above_a_number_in_the_third_column_is_a_header),
+		cmocka_unit_test(test_node_names_that_are_words_stay_edges),
+		cmocka_unit_test(test_skip_lines_skips_any_lines_and_guesses_no_header),
 		cmocka_unit_test(test_line_with_one_name_is_an_error_naming_file_and_line),
 		cmocka_unit_test(test_names_in_messages_are_escaped),
 		cmocka_unit_test(test_nul_byte_is_an_error_naming_the_line),
