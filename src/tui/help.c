@@ -141,7 +141,7 @@ void help_draw(const struct view *v, WINDOW *w)
 	attr_t ta = draw_attr(v, CP_FOCUS);
 	wattron(w, ta);
 	draw_fill(w, 0, 0, width);
-	draw_text(w, 0, 1, "Keys (from the table that dispatches them; any other key closes)",
+	draw_text(w, 0, 1, "Keys: what each one does (any other key closes this)",
 		  width - 2);
 	wattroff(w, ta);
 	int body = h - 1 - (int)NNOTES - 1;

@@ -346,10 +346,26 @@ static int report(const struct view *v, const struct loop *l, int status)
 	return status;
 }
 
+/*
+ * A session that made the result folder and leaves without writing
+ * anything into it takes the empty folder away again. rmdir() removes
+ * only an empty folder, so nothing written (by 'w', an autosave or
+ * another program) is ever lost; a folder that was there before is
+ * never touched.
+ */
+static void forget_empty_outdir(const char *dir, int created)
+{
+	if (created && dir && rmdir(dir) != 0 && errno != ENOTEMPTY && errno != EEXIST &&
+	    errno != ENOENT)
+		warning("cannot remove the empty folder '%s': %s", dir, strerror(errno));
+}
+
 int tui_run(struct tui_config *cfg)
 {
 	struct view view, *v = &view;
 	struct loop *l = util_calloc(1, sizeof *l);
+	/* the default folder is made only when something is written */
+	int created = cfg->outdir_created || (cfg->outdir && access(cfg->outdir, F_OK) != 0);
 	view_init(v, cfg);
 	int status = 1;
 	if (l && start(v, l, cfg) == 0) {
@@ -363,7 +379,8 @@ int tui_run(struct tui_config *cfg)
 		status = report(v, l, status);
 	}
 	free(l);
-	outdir_free(v->od);
+	outdir_free(v->od); /* joins the autosave thread */
+	forget_empty_outdir(v->outdir, created);
 	fit_free(v->fit);
 	view_release(v);
 	return status;
