@@ -85,6 +85,7 @@ static size_t build(struct help_line *out, size_t *nleft)
 static const char *const notes[] = {
 	"Find box: type part of a name, Up/Down choose, Enter goes there, Esc leaves.",
 	"Quit question: y saves and quits, d quits without saving, n stays.",
+	"Sweeps and tolerance questions: type a number, Enter goes on, Esc changes nothing.",
 	"Ctrl-C, SIGTERM or a lost connection save first, then end (status 130).",
 };
 #define NNOTES (sizeof notes / sizeof notes[0])

@@ -216,6 +216,14 @@ static void draw_footer(const struct view *v, WINDOW *w)
 				break;
 		}
 		at = draw_attr(v, CP_FOCUS);
+	} else if (v->mode == MODE_ASK) {
+		snprintf(line, sizeof line, "%s %s_   (Enter %s, Esc cancels)",
+			 v->ask == ASK_SWEEPS ? "Sweeps more:" : "Plateau tolerance:", v->ask_buf,
+			 v->ask == ASK_SWEEPS ? "runs them" : "fits to the next plateau at it");
+		if (draw_width(line) > width)
+			snprintf(line, sizeof line, "%s %s_", v->ask == ASK_SWEEPS ? "sweeps:" : "tol:",
+				 v->ask_buf);
+		at = draw_attr(v, CP_FOCUS);
 	} else if (v->mode == MODE_FIND) {
 		snprintf(line, sizeof line, "find: type a name; Enter goes to it, Esc cancels");
 	} else if (v->mode == MODE_HELP) {
@@ -231,7 +239,7 @@ static void draw_footer(const struct view *v, WINDOW *w)
 		at = draw_attr(v, CP_DIM);
 	}
 	wattron(w, at);
-	if (v->mode == MODE_QUIT)
+	if (v->mode == MODE_QUIT || v->mode == MODE_ASK)
 		draw_fill(w, 0, 0, width);
 	draw_text(w, 0, 0, line, width);
 	wattroff(w, at);

@@ -68,6 +68,9 @@ static void handle_key(struct view *v, int key, int is_char)
 		if (is_char)
 			keys_quit_answer(v, key);
 		return;
+	case MODE_ASK:
+		keys_ask_key(v, key, is_char);
+		return;
 	case MODE_NORMAL:
 		break;
 	}
@@ -122,6 +125,7 @@ static struct outdir *autosave_open(const struct view *v, const struct tui_confi
 
 /* What the loop keeps besides the view, and how the session ended. */
 struct loop {
+	const struct tui_config *cfg;
 	struct screen screen;
 	struct pager *pager;      /* NULL when its thread could not start */
 	int pending;              /* the fit woke us: a snapshot is due */
@@ -196,6 +200,12 @@ static void update_and_draw(struct view *v, struct loop *l)
 	    v->mode == MODE_NORMAL) {
 		v->msg[0] = '\0';
 		v->dirty |= DIRTY_FOOTER;
+	}
+	if (v->params_changed) {
+		/* the checkpoints and the result record the parameters in force */
+		outdir_free(v->od);
+		v->od = autosave_open(v, l->cfg);
+		v->params_changed = 0;
 	}
 	if (v->started && v->od)
 		outdir_tick(v->od, v->fit);
@@ -368,6 +378,8 @@ int tui_run(struct tui_config *cfg)
 	int created = cfg->outdir_created || (cfg->outdir && access(cfg->outdir, F_OK) != 0);
 	view_init(v, cfg);
 	int status = 1;
+	if (l)
+		l->cfg = cfg;
 	if (l && start(v, l, cfg) == 0) {
 		while (!v->quit) {
 			update_and_draw(v, l);
