@@ -52,6 +52,10 @@ low = lines[mid + 1:-1]
 mem = [l[:sep] for l in low if l[:sep].strip()]
 check(all(re.match(r"^ +\S.*\S +\S+ +[0-9.e+-]+ *$", l) for l in mem), "every member row keeps its shape")
 title = lines[mid][sep:]
+note = re.match(r"^.*─ 5 Weak edges of #\d+ ─+(?: (.*) ─)?$", title.rstrip())
+check(note is not None and (note.group(1) is None or
+      re.fullmatch(r"\d+-\d+ of \d+|of \d+|\d+", note.group(1))),
+      "the weak edges' title and note are whole (%s)" % title.strip())
 m = re.search(r"─ (\d+)-(\d+) of (\d+) ─|─ of (\d+) ─|─ (\d+) ─$", title)
 shown = m and next(x for x in (m.group(3), m.group(4), m.group(5)) if x)
 if total:
