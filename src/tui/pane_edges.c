@@ -30,6 +30,13 @@ static void draw_detail(const struct view *v, WINDOW *w, int y, int x, int cw, u
 	char line[256], item[64];
 	int o = snprintf(line, sizeof line, "P %.3g incl. background%s", e.prob,
 			 e.nshare ? ":" : ", no community shared");
+	/* room for at least the first community, else the short form */
+	if (e.nshare) {
+		snprintf(item, sizeof item, " #%u %.2g%s", e.share[0].comm, e.share[0].alone,
+			 e.nshare > 1 ? " +9" : "");
+		if (draw_width(line) + draw_width(item) > cw)
+			o = snprintf(line, sizeof line, "P %.3g:", e.prob);
+	}
 	if (draw_width(line) > cw)
 		o = snprintf(line, sizeof line, "P %.3g%s", e.prob, e.nshare ? ":" : ", none shared");
 	if (draw_width(line) > cw)
