@@ -39,6 +39,11 @@ struct fit {
 	enum fit_state state;
 
 	atomic_int stop_req, pause_req, extend_req, interrupt_req, point_req;
+	/* fit_set_tol(): the plateau tolerance in force, as the bits of a
+	 * double (f->p.tol keeps the one the fit began with) */
+	atomic_uint_least64_t tol_bits;
+	/* fit_extend_by(): -1 none, 0 to the next plateau, n > 0 sweeps */
+	atomic_llong extend_by_req;
 	int wake[2];
 
 	pthread_t thread;
@@ -50,6 +55,7 @@ struct fit {
 	uint32_t sweep;
 	uint32_t plateau_sweep;
 	unsigned streak;
+	uint32_t goal_sweep;       /* fit_extend_by(n): run to this sweep, then hold (0: none) */
 	double seconds_base, t0;
 	struct seed_report seeds;
 	struct fit_stats stats;
@@ -91,6 +97,8 @@ double fit_loglik(struct fit *f);
 /* Run the current start until a plateau, max_sweeps or a stop; returns
  * how it ended. With extend, fit_extend() lets it run past plateaus. */
 enum fit_state fit_run_start(struct fit *f, int extend);
+/* The plateau tolerance in force (fit_set_tol()). */
+double fit_tol(struct fit *f);
 /* 1 when asked to stop or to be interrupted. */
 int fit_stopping(struct fit *f);
 

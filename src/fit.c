@@ -249,6 +249,28 @@ int fit_trace_add(struct fit *f, double ll)
 	return 0;
 }
 
+double fit_tol(struct fit *f)
+{
+	uint64_t bits = atomic_load(&f->tol_bits);
+	double tol;
+	memcpy(&tol, &bits, sizeof tol);
+	return tol;
+}
+
+/* Take a fit_extend_by() request (between sweeps, on the fitting
+ * thread): set the sweep to hold at, or count the plateau afresh. */
+static void take_extend_by(struct fit *f)
+{
+	long long n = atomic_exchange(&f->extend_by_req, -1);
+	if (n < 0)
+		return;
+	f->streak = 0;
+	f->goal_sweep = 0;
+	if (n > 0)
+		f->goal_sweep = (uint64_t)f->sweep + (uint64_t)n > UINT32_MAX ? UINT32_MAX
+									    : f->sweep + (uint32_t)n;
+}
+
 int fit_stopping(struct fit *f)
 {
 	return atomic_load(&f->stop_req) || atomic_load(&f->interrupt_req);
@@ -317,6 +339,8 @@ enum fit_state fit_run_start(struct fit *f, int extend)
 	while (f->sweep < f->p.max_sweeps) {
 		if (fit_stopping(f))
 			return FIT_STOPPED;
+		if (extend)
+			take_extend_by(f);
 		int rc = one_sweep(f, &ll);
 		if (rc < 0)
 			return FIT_FAILED;
@@ -326,12 +350,20 @@ enum fit_state fit_run_start(struct fit *f, int extend)
 		if (rc == 1)
 			return FIT_STOPPED;
 		double gain = (ll - prev) / (fabs(prev) > 0 ? fabs(prev) : 1.0);
-		f->streak = gain < f->p.tol ? f->streak + 1 : 0;
+		f->streak = gain < fit_tol(f) ? f->streak + 1 : 0;
 		int fired = f->streak >= f->p.patience;
 		if (fired && f->plateau_sweep == 0)
 			f->plateau_sweep = f->sweep;
-		if (fired && !f->p.past_plateau && !(extend && atomic_load(&f->extend_req)))
+		int run_on = extend && atomic_load(&f->extend_req);
+		if (extend && f->goal_sweep && !run_on) {
+			/* fit_extend_by(n): past plateaus up to the goal, then hold */
+			if (f->sweep >= f->goal_sweep) {
+				f->goal_sweep = 0;
+				return FIT_LEVELLED;
+			}
+		} else if (fired && !f->p.past_plateau && !run_on) {
 			return FIT_LEVELLED;
+		}
 		if (f->in_starts && atomic_exchange(&f->point_req, 0)) {
 			fit_savepoint_free(f->res_out);
 			f->res_out = fit_make_savepoint(f);
@@ -341,21 +373,26 @@ enum fit_state fit_run_start(struct fit *f, int extend)
 	return FIT_FINISHED;
 }
 
-/* A levelled fit that should hold: publish, wait for fit_extend() or
- * fit_stop(), and on extend go on fitting past plateaus. */
+/* A levelled fit that should hold: publish, wait for fit_extend(),
+ * fit_extend_by() or fit_stop(); on extend go on fitting past plateaus,
+ * on extend by go on as asked and hold again. */
 static enum fit_state hold(struct fit *f)
 {
-	fit_publish(f, FIT_LEVELLED);
-	pthread_mutex_lock(&f->lock);
-	while (!atomic_load(&f->extend_req) && !atomic_load(&f->stop_req) &&
-	       !atomic_load(&f->interrupt_req))
-		pthread_cond_wait(&f->cond, &f->lock);
-	pthread_mutex_unlock(&f->lock);
-	if (!atomic_load(&f->extend_req))
-		return FIT_LEVELLED;
-	fit_set_state(f, FIT_FITTING);
-	fit_publish(f, FIT_FITTING);
-	return fit_run_start(f, 1);
+	for (;;) {
+		fit_publish(f, FIT_LEVELLED);
+		pthread_mutex_lock(&f->lock);
+		while (!atomic_load(&f->extend_req) && atomic_load(&f->extend_by_req) < 0 &&
+		       !atomic_load(&f->stop_req) && !atomic_load(&f->interrupt_req))
+			pthread_cond_wait(&f->cond, &f->lock);
+		pthread_mutex_unlock(&f->lock);
+		if (!atomic_load(&f->extend_req) && atomic_load(&f->extend_by_req) < 0)
+			return FIT_LEVELLED;
+		fit_set_state(f, FIT_FITTING);
+		fit_publish(f, FIT_FITTING);
+		enum fit_state st = fit_run_start(f, 1);
+		if (st != FIT_LEVELLED)
+			return st;
+	}
 }
 
 static void *fit_main(void *arg)
@@ -464,6 +501,8 @@ struct fit *fit_new(const struct graph *g, const struct fit_params *p,
 		f->p.starts = 1;
 	f->starts = origin && !origin->savepoint ? 1 : f->p.starts;
 	f->start = 1;
+	fit_set_tol(f, f->p.tol);
+	atomic_init(&f->extend_by_req, -1);
 	double eps = p->epsilon > 0 ? p->epsilon : model_default_epsilon(g);
 	f->p.epsilon = eps;
 	pthread_mutex_init(&f->lock, NULL);
@@ -574,8 +613,28 @@ struct snapshot *fit_take_savepoint(struct fit *f)
 
 void fit_extend(struct fit *f)
 {
+	atomic_store(&f->extend_by_req, -1);
 	atomic_store(&f->extend_req, 1);
 	poke(f);
+}
+
+void fit_extend_by(struct fit *f, uint32_t n)
+{
+	atomic_store(&f->extend_req, 0);
+	atomic_store(&f->extend_by_req, (long long)n);
+	poke(f);
+}
+
+void fit_set_tol(struct fit *f, double tol)
+{
+	uint64_t bits;
+	memcpy(&bits, &tol, sizeof bits);
+	atomic_store(&f->tol_bits, bits);
+}
+
+double fit_get_tol(struct fit *f)
+{
+	return fit_tol(f);
 }
 
 enum fit_state fit_wait(struct fit *f)

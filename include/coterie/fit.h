@@ -20,8 +20,9 @@
  * the thread count (sweep.h), so the same seed gives the same bytes for
  * any -j.
  *
- * All locking of the fit's state lives in fit.c (the pool's own in pool.c). Control calls (pause, unpause, stop, extend)
- * are safe from any thread and never block on a sweep.
+ * All locking of the fit's state lives in fit.c (the pool's own in
+ * pool.c). Control calls (pause, unpause, stop, extend, extend by, the
+ * tolerance) are safe from any thread and never block on a sweep.
  */
 #ifndef COTERIE_FIT_H
 #define COTERIE_FIT_H
@@ -199,9 +200,24 @@ void fit_want_savepoint(struct fit *f);
  * with snapshot_release(). */
 struct snapshot *fit_take_savepoint(struct fit *f);
 /* Let a fit that levelled off (or is about to) run on until stopped or
- * max_sweeps: a fit holding at a plateau goes on fitting. Has no effect
- * after the thread ended. */
+ * max_sweeps: a fit holding at a plateau goes on fitting. Replaces an
+ * earlier fit_extend_by(). Has no effect after the thread ended. */
 void fit_extend(struct fit *f);
+/* Let a fit that holds at a plateau (or is fitting past its starts) go
+ * on for n more sweeps from the next one, then hold again (state
+ * LEVELLED); n == 0: until the plateau rule fires again, its streak
+ * counted afresh at the tolerance then in force. Replaces an earlier
+ * fit_extend() or fit_extend_by(). The sweep limit still ends the fit
+ * (FINISHED). Read between sweeps; a request made while the starts run
+ * waits for them. No effect after the thread ended. */
+void fit_extend_by(struct fit *f, uint32_t n);
+/* Change the plateau tolerance (relative gain per sweep) from the next
+ * sweep on; tol > 0. The sweeps themselves never depend on it, so the
+ * same seed gives the same model at every sweep: only where the fit
+ * stops changes. fit_get_params() keeps the tolerance the fit began
+ * with; fit_get_tol() gives the one in force. */
+void fit_set_tol(struct fit *f, double tol);
+double fit_get_tol(struct fit *f);
 
 /* Wait for the thread to end; returns the final state. */
 enum fit_state fit_wait(struct fit *f);

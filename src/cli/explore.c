@@ -275,6 +275,7 @@ static int open_graph(struct run *r, struct tui_config *cfg)
 {
 	if (r->o.out) {
 		/* refuse early: a long fit whose result cannot be written is lost work */
+		cfg->outdir_created = access(r->o.out, F_OK) != 0;
 		if (result_prepare_dir(r->o.out))
 			return 1;
 		cfg->outdir = r->o.out;
@@ -329,13 +330,18 @@ int cmd_explore(int argc, char **argv)
 	rc = 1;
 	if (memory_check_fit(cfg.g, &r->p))
 		goto out;
-	if (r->resume && r->o.out && result_prepare_dir(r->o.out))
-		goto out;
+	if (r->resume && r->o.out) {
+		cfg.outdir_created = access(r->o.out, F_OK) != 0;
+		if (result_prepare_dir(r->o.out))
+			goto out;
+	}
 	cfg.params = r->p;
 	cfg.checkpoint_every = r->o.checkpoint_every;
 	rc = tui_run(&cfg); /* frees the fit */
 	cfg.fit = NULL;
 out:
+	if (cfg.outdir_created)
+		rmdir(cfg.outdir); /* made here, and still empty (quit while choosing k) */
 	fit_free(cfg.fit);
 	select_result_release(&r->sel);
 	graph_free(r->g);

@@ -125,6 +125,47 @@ int draw_text(WINDOW *w, int y, int x, const char *s, int maxcols)
 	return used;
 }
 
+int draw_wrap(WINDOW *w, int y, int x, const char *s, int width, int maxrows)
+{
+	int rows = 0;
+	char line[512];
+	while (*s && rows < maxrows && width > 0) {
+		while (*s == ' ')
+			s++;
+		/* the longest run of whole words that fits */
+		size_t fit = 0, i = 0;
+		int cols = 0;
+		while (s[i]) {
+			size_t j = i;
+			while (s[j] == ' ')
+				j++;
+			size_t k = j;
+			while (s[k] && s[k] != ' ')
+				k++;
+			if (k >= sizeof line)
+				break;
+			memcpy(line, s, k);
+			line[k] = '\0';
+			cols = draw_width(line);
+			if (cols > width)
+				break;
+			fit = k;
+			i = k;
+		}
+		if (fit == 0) /* one word wider than the line: cut it */
+			for (fit = 0; s[fit] && s[fit] != ' '; fit++)
+				;
+		if (fit >= sizeof line)
+			fit = sizeof line - 1;
+		memcpy(line, s, fit);
+		line[fit] = '\0';
+		draw_text(w, y + rows, x, line, width);
+		rows++;
+		s += fit;
+	}
+	return rows;
+}
+
 attr_t draw_row(const struct view *v, WINDOW *w, int pane, int y, int x0, size_t row,
 		attr_t extra)
 {
@@ -186,16 +227,20 @@ void draw_title(const struct view *v, WINDOW *w, int pane, const char *title, co
 	wattron(w, ta);
 	int used = draw_text(w, 0, x0 + 1, head, width - x0 - 2);
 	wattroff(w, ta);
-	if (note && *note) {
+	/* the note whole or not at all: a cut count ("1-5 of 124" for
+	 * 12456) misleads; its forms are tried longest first */
+	int room = width - (x0 + 1 + used) - 2;
+	while (note && *note) {
+		const char *end = strchr(note, '\n');
+		int len = end ? (int)(end - note) : (int)strlen(note);
 		char nb[200];
-		snprintf(nb, sizeof nb, " %s ", note);
+		snprintf(nb, sizeof nb, " %.*s ", len, note);
 		int nw = draw_width(nb);
-		int room = width - (x0 + 1 + used) - 2;
-		if (room > 3) {
-			if (nw > room)
-				nw = room;
+		if (nw <= room) {
 			draw_text(w, 0, width - 1 - nw, nb, nw);
+			break;
 		}
+		note = end ? end + 1 : NULL;
 	}
 }
 

@@ -85,6 +85,7 @@ static size_t build(struct help_line *out, size_t *nleft)
 static const char *const notes[] = {
 	"Find box: type part of a name, Up/Down choose, Enter goes there, Esc leaves.",
 	"Quit question: y saves and quits, d quits without saving, n stays.",
+	"Sweeps and tolerance questions: type a number, Enter goes on, Esc changes nothing.",
 	"Ctrl-C, SIGTERM or a lost connection save first, then end (status 130).",
 };
 #define NNOTES (sizeof notes / sizeof notes[0])
@@ -141,7 +142,7 @@ void help_draw(const struct view *v, WINDOW *w)
 	attr_t ta = draw_attr(v, CP_FOCUS);
 	wattron(w, ta);
 	draw_fill(w, 0, 0, width);
-	draw_text(w, 0, 1, "Keys (from the table that dispatches them; any other key closes)",
+	draw_text(w, 0, 1, "Keys: what each one does (any other key closes this)",
 		  width - 2);
 	wattroff(w, ta);
 	int body = h - 1 - (int)NNOTES - 1;

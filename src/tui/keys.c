@@ -9,8 +9,9 @@
  * something different in every list).
  *
  * Actions only change the view and mark panes dirty; they never draw.
- * The prompts (find, the quit question) and the help screen take the
- * keyboard while open: their keys are shown on the prompt itself.
+ * The prompts (find, the quit question, the number asked by '+' and
+ * 't') and the help screen take the keyboard while open: their keys are
+ * shown on the prompt itself.
  */
 #include "keys.h"
 
@@ -18,7 +19,9 @@
 #define NCURSES_WIDECHAR 1
 #endif
 #include <curses.h> /* the KEY_* codes only: nothing here draws */
+#include <ctype.h>
 #include <stdio.h>
+#include <stdlib.h>
 #include <string.h>
 
 #include "coterie/util.h"
@@ -211,13 +214,17 @@ static int restart_fit(struct view *v, uint32_t max_sweeps)
 	return 0;
 }
 
-static void act_extend(struct view *v, int arg)
+enum { GO_ON_UNTIL_STOP = -1, GO_ON_TO_PLATEAU = 0 };
+
+/* Let the fit go on: until s or the sweep limit (how < 0), to the next
+ * plateau (how == 0) or for how more sweeps. An ended or reopened fit is
+ * fitted again from the model on screen first. */
+static void go_on(struct view *v, long how)
 {
-	(void)arg;
 	uint32_t sweep = v->snap ? v->snap->sweep : 0;
-	uint32_t more = v->params.max_sweeps > 100 ? v->params.max_sweeps : 100;
 	enum fit_state st = view_state(v);
-	if (!v->started || (fit_state_ended(st) && (st != FIT_LEVELLED || v->stop_asked))) {
+	int ended = !v->started || (fit_state_ended(st) && (st != FIT_LEVELLED || v->stop_asked));
+	if (ended) {
 		if (!v->snap || v->snap->ntrace == 0) {
 			view_say(v, UTIL_NOTICE, "there is no model to go on from");
 			return;
@@ -226,22 +233,108 @@ static void act_extend(struct view *v, int arg)
 			view_say(v, UTIL_ERROR, "the fit failed; it cannot go on");
 			return;
 		}
-		uint32_t max = v->params.max_sweeps;
-		if (sweep >= max)
-			max = sweep > UINT32_MAX - more ? UINT32_MAX : sweep + more;
-		if (restart_fit(v, max) == 0)
-			view_say(v, UTIL_NOTICE, "fitting again from sweep %u (limit %u sweeps); s stops",
-				 sweep, max);
-		return;
+		uint64_t more = v->params.max_sweeps > 100 ? v->params.max_sweeps : 100;
+		if (how > 0)
+			more = (uint64_t)how;
+		uint64_t max = v->params.max_sweeps;
+		if (sweep >= max || (how > 0 && sweep + more > max))
+			max = sweep + more > UINT32_MAX ? UINT32_MAX : sweep + more;
+		if (restart_fit(v, (uint32_t)max))
+			return;
 	}
-	fit_extend(v->fit);
-	v->extend_asked = 1;
-	if (st == FIT_LEVELLED)
+	if (how < 0)
+		fit_extend(v->fit);
+	else
+		fit_extend_by(v->fit, (uint32_t)how);
+	v->extend_asked = how < 0;
+	char lim[64] = "";
+	if (how > 0 && sweep + (uint64_t)how > v->params.max_sweeps)
+		snprintf(lim, sizeof lim, " (to the sweep limit, %u)", v->params.max_sweeps);
+	if (how > 0)
+		view_say(v, UTIL_NOTICE, "%ld more sweeps from sweep %u%s, then it waits; s stops", how,
+			 sweep, lim);
+	else if (how == 0)
+		view_say(v, UTIL_NOTICE, "fitting on to the next plateau (relative gain below %.3g "
+			 "for %u sweeps); s stops", v->params.tol, v->params.patience);
+	else if (ended)
+		view_say(v, UTIL_NOTICE, "fitting again from sweep %u until s (limit %u sweeps)", sweep,
+			 v->params.max_sweeps);
+	else if (st == FIT_LEVELLED)
 		view_say(v, UTIL_NOTICE, "running on past the plateau; s stops it");
 	else
 		view_say(v, UTIL_NOTICE, "this fit will not wait at a plateau; it runs until s or "
 			 "the sweep limit");
 	v->dirty |= DIRTY_HEADER | DIRTY_PANE(PANE_TRACE);
+}
+
+static void act_extend(struct view *v, int arg)
+{
+	(void)arg;
+	go_on(v, GO_ON_UNTIL_STOP);
+}
+
+static void act_ask(struct view *v, int arg)
+{
+	v->mode = MODE_ASK;
+	v->ask = (enum ask_kind)arg;
+	v->ask_len = 0;
+	v->ask_buf[0] = '\0';
+	if (v->ask == ASK_TOL)
+		v->ask_len = (size_t)snprintf(v->ask_buf, sizeof v->ask_buf, "%.3g", v->params.tol / 10);
+	v->dirty |= DIRTY_FOOTER;
+}
+
+/* Enter at the number prompt: check the number, then act on it. */
+static void ask_done(struct view *v)
+{
+	char *end;
+	if (v->ask == ASK_SWEEPS) {
+		unsigned long n = strtoul(v->ask_buf, &end, 10);
+		if (end == v->ask_buf || *end || n < 1 || n > 100000000ul) {
+			view_say(v, UTIL_WARNING, "'%s' is no number of sweeps (1 to 100000000)", v->ask_buf);
+			return;
+		}
+		go_on(v, (long)n);
+		return;
+	}
+	double tol = strtod(v->ask_buf, &end);
+	if (end == v->ask_buf || *end || !(tol > 0) || !(tol < 1)) {
+		view_say(v, UTIL_WARNING, "'%s' is no tolerance (a number above 0 and below 1, e.g. 1e-6)",
+			 v->ask_buf);
+		return;
+	}
+	v->params.tol = tol; /* recorded with the result, and kept by a fit made again */
+	v->params_changed = 1;
+	enum fit_state st = view_state(v);
+	if (v->started && !fit_state_ended(st)) {
+		fit_set_tol(v->fit, tol);
+		view_say(v, UTIL_NOTICE, "the plateau tolerance is now %.3g: the fit waits at the first "
+			 "plateau at it", tol);
+		v->dirty |= DIRTY_PANE(PANE_TRACE);
+		return;
+	}
+	if (v->started && st == FIT_LEVELLED && !v->stop_asked)
+		fit_set_tol(v->fit, tol);
+	go_on(v, GO_ON_TO_PLATEAU);
+}
+
+void keys_ask_key(struct view *v, int key, int is_char)
+{
+	v->dirty |= DIRTY_FOOTER;
+	if (key == 27 || (!is_char && key == KEY_CANCEL)) {
+		v->mode = MODE_NORMAL;
+		view_say(v, UTIL_NOTICE, "nothing changed");
+	} else if (key == '\r' || key == '\n' || (!is_char && key == KEY_ENTER)) {
+		v->mode = MODE_NORMAL;
+		ask_done(v);
+	} else if (key == KEY_BACKSPACE || key == 127 || key == 8) {
+		if (v->ask_len > 0)
+			v->ask_buf[--v->ask_len] = '\0';
+	} else if (is_char && v->ask_len + 1 < sizeof v->ask_buf &&
+		   (isdigit(key) || (v->ask == ASK_TOL && strchr(".eE-+", key)))) {
+		v->ask_buf[v->ask_len++] = (char)key;
+		v->ask_buf[v->ask_len] = '\0';
+	}
 }
 
 static void act_write(struct view *v, int arg)
@@ -295,42 +388,44 @@ static void act_edges_mode(struct view *v, int arg)
 #define CTRL(c) ((c) & 0x1f)
 
 const struct key_binding keys_table[] = {
-	{ '\t', PANE_ANY, act_focus_step, 1, "go to the next pane" },
-	{ KEY_BTAB, PANE_ANY, act_focus_step, -1, "go to the previous pane" },
-	{ '1', PANE_ANY, act_focus, PANE_TRACE, "go to the pane of that number" },
-	{ '2', PANE_ANY, act_focus, PANE_COMMS, "go to the pane of that number" },
-	{ '3', PANE_ANY, act_focus, PANE_MEMBERS, "go to the pane of that number" },
-	{ '4', PANE_ANY, act_focus, PANE_NODE, "go to the pane of that number" },
-	{ '5', PANE_ANY, act_focus, PANE_EDGES, "go to the pane of that number" },
-	{ KEY_UP, PANE_ANY, act_move, MOVE_UP, "move up" },
-	{ 'k', PANE_ANY, act_move, MOVE_UP, "move up" },
-	{ KEY_DOWN, PANE_ANY, act_move, MOVE_DOWN, "move down" },
-	{ 'j', PANE_ANY, act_move, MOVE_DOWN, "move down" },
-	{ KEY_PPAGE, PANE_ANY, act_move, MOVE_PGUP, "page up" },
-	{ KEY_NPAGE, PANE_ANY, act_move, MOVE_PGDN, "page down" },
-	{ KEY_HOME, PANE_ANY, act_move, MOVE_HOME, "first row" },
-	{ 'g', PANE_ANY, act_move, MOVE_HOME, "first row" },
-	{ KEY_END, PANE_ANY, act_move, MOVE_END, "last row" },
-	{ 'G', PANE_ANY, act_move, MOVE_END, "last row" },
-	{ '/', PANE_ANY, act_find, 0, "find a node by name (any part, any case)" },
+	{ '\t', PANE_ANY, act_focus_step, 1, "move to the next pane" },
+	{ KEY_BTAB, PANE_ANY, act_focus_step, -1, "move to the previous pane" },
+	{ '1', PANE_ANY, act_focus, PANE_TRACE, "jump to pane 1 to 5 (the numbers are in the pane titles)" },
+	{ '2', PANE_ANY, act_focus, PANE_COMMS, "jump to pane 1 to 5 (the numbers are in the pane titles)" },
+	{ '3', PANE_ANY, act_focus, PANE_MEMBERS, "jump to pane 1 to 5 (the numbers are in the pane titles)" },
+	{ '4', PANE_ANY, act_focus, PANE_NODE, "jump to pane 1 to 5 (the numbers are in the pane titles)" },
+	{ '5', PANE_ANY, act_focus, PANE_EDGES, "jump to pane 1 to 5 (the numbers are in the pane titles)" },
+	{ KEY_UP, PANE_ANY, act_move, MOVE_UP, "move the cursor up a row" },
+	{ 'k', PANE_ANY, act_move, MOVE_UP, "move the cursor up a row" },
+	{ KEY_DOWN, PANE_ANY, act_move, MOVE_DOWN, "move the cursor down a row" },
+	{ 'j', PANE_ANY, act_move, MOVE_DOWN, "move the cursor down a row" },
+	{ KEY_PPAGE, PANE_ANY, act_move, MOVE_PGUP, "move the cursor up a page" },
+	{ KEY_NPAGE, PANE_ANY, act_move, MOVE_PGDN, "move the cursor down a page" },
+	{ KEY_HOME, PANE_ANY, act_move, MOVE_HOME, "jump to the first row" },
+	{ 'g', PANE_ANY, act_move, MOVE_HOME, "jump to the first row" },
+	{ KEY_END, PANE_ANY, act_move, MOVE_END, "jump to the last row" },
+	{ 'G', PANE_ANY, act_move, MOVE_END, "jump to the last row" },
+	{ '/', PANE_ANY, act_find, 0, "find a node: type any part of its name, in any case" },
 	/* the fit and the result */
-	{ 's', PANE_ANY, act_stop, 0, "stop fitting and keep the current model" },
-	{ 'p', PANE_ANY, act_pause, 0, "pause or resume the fit" },
-	{ 'e', PANE_ANY, act_extend, 0, "run on past a plateau, or continue an ended fit" },
-	{ 'w', PANE_ANY, act_write, 0, "write the result folder" },
+	{ 's', PANE_ANY, act_stop, 0, "stop the fit and keep the model as it is now" },
+	{ 'p', PANE_ANY, act_pause, 0, "pause the fit, or resume it" },
+	{ 'e', PANE_ANY, act_extend, 0, "keep fitting past the plateau until you stop it (or go on with an ended fit)" },
+	{ '+', PANE_ANY, act_ask, ASK_SWEEPS, "fit a number of sweeps more, then wait (asks how many)" },
+	{ 't', PANE_ANY, act_ask, ASK_TOL, "set the plateau tolerance, then fit on to the next plateau at it" },
+	{ 'w', PANE_ANY, act_write, 0, "save the result (memberships, communities, run.json) to the folder top right" },
 	/* the screen */
-	{ '?', PANE_ANY, act_help, 0, "this help" },
-	{ CTRL('l'), PANE_ANY, act_redraw, 0, "redraw the screen" },
-	{ 'q', PANE_ANY, act_quit, 0, "quit (asks first if the fit runs or is unsaved)" },
+	{ '?', PANE_ANY, act_help, 0, "show this list of keys" },
+	{ CTRL('l'), PANE_ANY, act_redraw, 0, "redraw the screen if it looks garbled" },
+	{ 'q', PANE_ANY, act_quit, 0, "quit; asks first while the fit runs or the result is unsaved" },
 	/* keys of one pane */
-	{ '\r', PANE_COMMS, act_enter_comm, 0, "go to this community's members" },
-	{ 'o', PANE_COMMS, act_sort_next, 0, "sort by the next column" },
-	{ 'r', PANE_COMMS, act_sort_flip, 0, "reverse the order" },
-	{ '\r', PANE_MEMBERS, act_enter_member, 0, "go to this node" },
-	{ '\r', PANE_NODE, act_enter_affil, 0, "select this row's community" },
-	{ 'a', PANE_NODE, act_weak, 0, "show or hide strengths that are no membership" },
-	{ '\r', PANE_EDGES, act_enter_edge, 0, "select a node of this pair (outside end first)" },
-	{ 'm', PANE_EDGES, act_edges_mode, 0, "switch between weak edges and missing links" },
+	{ '\r', PANE_COMMS, act_enter_comm, 0, "list the members of this community in pane 3" },
+	{ 'o', PANE_COMMS, act_sort_next, 0, "sort the communities by the next column" },
+	{ 'r', PANE_COMMS, act_sort_flip, 0, "reverse the sort order" },
+	{ '\r', PANE_MEMBERS, act_enter_member, 0, "show this node in pane 4" },
+	{ '\r', PANE_NODE, act_enter_affil, 0, "select this community in pane 2" },
+	{ 'a', PANE_NODE, act_weak, 0, "show or hide this node's weak strengths (below membership)" },
+	{ '\r', PANE_EDGES, act_enter_edge, 0, "show a node of this pair in pane 4 (the outside one first)" },
+	{ 'm', PANE_EDGES, act_edges_mode, 0, "switch between weak edges and likely missing links" },
 };
 const size_t keys_count = sizeof keys_table / sizeof keys_table[0];
 

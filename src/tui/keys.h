@@ -26,6 +26,9 @@ extern const size_t keys_count;
 
 /* Dispatch a key in MODE_NORMAL; returns 1 if bound. */
 int keys_dispatch(struct view *v, int key);
+/* A key typed at the number prompt (MODE_ASK): digits and the like,
+ * Backspace, Enter acts, Esc cancels. */
+void keys_ask_key(struct view *v, int key, int is_char);
 /* The answer to the quit question (y, d, n). */
 void keys_quit_answer(struct view *v, int key);
 /* A readable name ("Tab", "S-Tab", "Up", "Enter", "C-l", "q"): a constant

@@ -7,7 +7,9 @@
  * pipe, copies the points scored so far and redraws from them: the
  * held-out log-likelihood against k as a curve (the x axis spaced by grid
  * position, so a geometric grid reads as a log scale of k), and a table
- * of every point with its held-out link AUC, the best marked. It ends when
+ * of every point with its held-out link AUC, the best marked (a grid
+ * longer than the screen shows a window of it that holds the best k and
+ * the one being fitted, its range in the head). It ends when
  * the search ends (the explorer's normal view then opens on the final fit)
  * or when the user quits.
  *
@@ -125,6 +127,9 @@ static void draw_all(const struct kstate *k)
 		 "Choosing the number of communities by held-out likelihood: %u of %u k "
 		 "scored%s  %.0f s", k->npts, k->ngrid, k->done ? ", done" : "",
 		 util_now() - k->t0);
+	if (draw_width(line) > COLS) /* the counts whole, the words shorter */
+		snprintf(line, sizeof line, "Choosing k by held-out likelihood: %u of %u scored%s  %.0f s",
+			 k->npts, k->ngrid, k->done ? ", done" : "", util_now() - k->t0);
 	put(1, 0, line, COLS);
 	put(2, 0, "held-out log-likelihood against k (higher is better); the search stops "
 	    "after two k in a row below the best", COLS);
@@ -140,10 +145,34 @@ static void draw_all(const struct kstate *k)
 	}
 	draw_curve(k, 4, 0, curve_h, COLS);
 	int ty = 4 + curve_h + 2;
+	/* the rows that fit: all, or a window that holds the best k and the
+	 * one being fitted (the best alone when both do not fit), said in
+	 * the head so a cut table never passes for the whole grid */
+	int room = LINES - 1 - (ty + 1);
+	uint32_t first = 0, last = k->ngrid;
+	char head[160];
+	snprintf(head, sizeof head, "       k   held-out loglik   link AUC   sweeps   seconds");
+	if (room >= 1 && (int)k->ngrid > room) {
+		uint32_t want = k->npts < k->ngrid ? k->npts : k->ngrid - 1; /* the newest row */
+		uint32_t lo = k->npts ? (best < want ? best : want) : 0;
+		uint32_t hi = k->npts ? (best > want ? best : want) : 0;
+		if (hi - lo + 1 > (uint32_t)room)
+			lo = hi = best;
+		first = hi + 1 > (uint32_t)room ? hi + 1 - (uint32_t)room : 0; /* hi shows */
+		if (first > lo) /* and lo */
+			first = lo;
+		if (first + (uint32_t)room > k->ngrid)
+			first = k->ngrid - (uint32_t)room;
+		last = first + (uint32_t)room;
+		char note[96];
+		snprintf(note, sizeof note, "table: k %u-%u of %u, the best among them", k->grid[first],
+			 k->grid[last - 1], k->ngrid);
+		put(ty - 1, 2, note, COLS - 2);
+	}
 	attron(A_BOLD);
-	put(ty, 2, "       k   held-out loglik   link AUC   sweeps   seconds", COLS - 2);
+	put(ty, 2, head, COLS - 2);
 	attroff(A_BOLD);
-	for (uint32_t i = 0; i < k->ngrid && ty + 1 + (int)i < LINES - 1; i++) {
+	for (uint32_t i = first; i < last && ty + 1 + (int)(i - first) < LINES - 1; i++) {
 		if (i >= k->npts) {
 			snprintf(line, sizeof line, "  %6u   %s", k->grid[i],
 				 i == k->npts && !k->done ? "fitting..." : "");
@@ -160,7 +189,7 @@ static void draw_all(const struct kstate *k)
 		}
 		if (i == best && i < k->npts)
 			attron(A_BOLD);
-		put(ty + 1 + (int)i, 2, line, COLS - 2);
+		put(ty + 1 + (int)(i - first), 2, line, COLS - 2);
 		if (i == best && i < k->npts)
 			attroff(A_BOLD);
 	}

@@ -3,6 +3,11 @@
  * internal edges, density, conductance and p (the AGM link probability),
  * in the order view.c sorted them (inspect_sort_communities). The sorted
  * column carries an arrow; the selected row drives panes 3 to 5.
+ *
+ * Every width lays out cleanly: the columns take their wide forms when
+ * all fit, else their narrow ones, and a pane too narrow even for those
+ * drops whole columns (the edges first, the id, the size and the sorted
+ * column never), so a row never runs past the pane and wraps.
  */
 
 #include <stdio.h>
@@ -25,19 +30,42 @@ static const struct {
 };
 #define NCOLS (sizeof cols / sizeof cols[0])
 
-static int wide_enough(int width)
+/* The lower a column's rank, the longer it stays when the pane narrows. */
+static const int keep_rank[NCOLS] = { 0, 1, 5, 4, 3, 2 };
+
+/* Which columns to draw in width columns (from x = 1), and in which form;
+ * returns 1 for the wide forms. */
+static int choose_cols(const struct view *v, int width, int shown[NCOLS])
 {
 	int need = 0;
-	for (size_t i = 0; i < NCOLS; i++)
+	for (size_t i = 0; i < NCOLS; i++) {
 		need += cols[i].ww + 1;
-	return width - 2 >= need;
+		shown[i] = 1;
+	}
+	if (width - 2 >= need)
+		return 1;
+	need = 0;
+	for (size_t i = 0; i < NCOLS; i++)
+		need += cols[i].wn + 1;
+	for (int rank = (int)NCOLS - 1; rank > 1 && width - 1 < need; rank--)
+		for (size_t i = 0; i < NCOLS; i++)
+			if (keep_rank[i] == rank && cols[i].key != v->sort_key) {
+				shown[i] = 0;
+				need -= cols[i].wn + 1;
+			}
+	return 0;
 }
 
-static void put_cells(WINDOW *w, int y, int x, int wide, char cell[NCOLS][32])
+static void put_cells(WINDOW *w, int y, int x, int wide, const int shown[NCOLS],
+		      char cell[NCOLS][32])
 {
-	int at = x;
+	int at = x, right = getmaxx(w);
 	for (size_t i = 0; i < NCOLS; i++) {
+		if (!shown[i])
+			continue;
 		int cw = wide ? cols[i].ww : cols[i].wn;
+		if (at + cw > right)
+			break; /* never past the pane's edge */
 		int tw = draw_width(cell[i]);
 		if (tw > cw)
 			tw = cw;
@@ -52,19 +80,21 @@ void pane_comms_draw(const struct view *v, WINDOW *w)
 	char note[96] = "";
 	const struct snapshot *s = v->snap;
 	if (s)
-		snprintf(note, sizeof note, "%u with members", s->agm.cover.k);
+		snprintf(note, sizeof note, "%u with members\n%u", s->agm.cover.k, s->agm.cover.k);
 	draw_title(v, w, PANE_COMMS, "Communities", note);
 	if (!s)
 		return;
 	if (s->ntrace == 0) {
-		draw_text(w, 2, 1, "none yet: the fit is seeding", width - 2);
+		draw_wrap(w, 2, 1, "none yet: the fit is seeding", width - 2, getmaxy(w) - 2);
 		return;
 	}
 	if (v->norder == 0) {
-		draw_text(w, 2, 1, "no community has a member above the threshold", width - 2);
+		draw_wrap(w, 2, 1, "no community has a member above the threshold", width - 2,
+			  getmaxy(w) - 2);
 		return;
 	}
-	int wide = wide_enough(width);
+	int shown_col[NCOLS];
+	int wide = choose_cols(v, width, shown_col);
 	char cell[NCOLS][32];
 	for (size_t i = 0; i < NCOLS; i++) {
 		const char *name = wide ? cols[i].wide : cols[i].narrow;
@@ -76,7 +106,7 @@ void pane_comms_draw(const struct view *v, WINDOW *w)
 			snprintf(cell[i], sizeof cell[i], "%s", name);
 	}
 	wattron(w, A_BOLD);
-	put_cells(w, 1, 1, wide, cell);
+	put_cells(w, 1, 1, wide, shown_col, cell);
 	wattroff(w, A_BOLD);
 
 	size_t shown = view_rows_shown(v, PANE_COMMS);
@@ -91,7 +121,7 @@ void pane_comms_draw(const struct view *v, WINDOW *w)
 		fmt_frac(cell[4], sizeof cell[4], c->conductance);
 		fmt_frac(cell[5], sizeof cell[5], c->p);
 		attr_t at = draw_row(v, w, PANE_COMMS, y, 0, i, 0);
-		put_cells(w, y, 1, wide, cell);
+		put_cells(w, y, 1, wide, shown_col, cell);
 		wattroff(w, at);
 	}
 }

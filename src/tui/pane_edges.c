@@ -11,6 +11,7 @@
  */
 
 #include <stdio.h>
+#include <string.h>
 
 #include "panes.h"
 #include "view.h"
@@ -24,14 +25,35 @@ static void draw_detail(const struct view *v, WINDOW *w, int y, int x, int cw, u
 	if (!s || inspect_edge(&e, v->g, &s->F, &s->agm, s->epsilon, s->delta, AGM_MIN_LINKS, u,
 			       nv))
 		return;
-	char line[256];
+	/* whole items only: the probability, what it includes, then the
+	 * communities while they fit, "+N" for the rest */
+	char line[256], item[64];
 	int o = snprintf(line, sizeof line, "P %.3g incl. background%s", e.prob,
 			 e.nshare ? ":" : ", no community shared");
-	for (uint32_t i = 0; i < e.nshare && i < 4 && o > 0 && (size_t)o < sizeof line; i++)
-		o += snprintf(line + o, sizeof line - (size_t)o, " #%u %.2g", e.share[i].comm,
-			      e.share[i].alone);
-	if (e.nshare > 4 && o > 0 && (size_t)o < sizeof line)
-		snprintf(line + o, sizeof line - (size_t)o, " +%u", e.nshare - 4);
+	/* room for at least the first community, else the short form */
+	if (e.nshare) {
+		snprintf(item, sizeof item, " #%u %.2g%s", e.share[0].comm, e.share[0].alone,
+			 e.nshare > 1 ? " +9" : "");
+		if (draw_width(line) + draw_width(item) > cw)
+			o = snprintf(line, sizeof line, "P %.3g:", e.prob);
+	}
+	if (draw_width(line) > cw)
+		o = snprintf(line, sizeof line, "P %.3g%s", e.prob, e.nshare ? ":" : ", none shared");
+	if (draw_width(line) > cw)
+		o = snprintf(line, sizeof line, "P %.3g%s", e.prob, e.nshare ? ":" : "");
+	for (uint32_t i = 0; i < e.nshare && i < 4; i++) {
+		snprintf(item, sizeof item, " #%u %.2g", e.share[i].comm, e.share[i].alone);
+		char rest[16] = "";
+		if (i + 1 < e.nshare)
+			snprintf(rest, sizeof rest, " +%u", e.nshare - i - 1);
+		if (o + draw_width(item) + draw_width(rest) > cw || (size_t)o + strlen(item) >= sizeof line) {
+			snprintf(line + o, sizeof line - (size_t)o, " +%u", e.nshare - i);
+			break;
+		}
+		o += snprintf(line + o, sizeof line - (size_t)o, "%s", item);
+		if (i == 3 && e.nshare > 4)
+			snprintf(line + o, sizeof line - (size_t)o, " +%u", e.nshare - 4);
+	}
 	inspect_edge_release(&e);
 	wattron(w, A_DIM);
 	draw_text(w, y, x, line, cw);
@@ -43,7 +65,7 @@ void pane_edges_draw(const struct view *v, WINDOW *w)
 	draw_separator(v, w);
 	int width = getmaxx(w);
 	int weak = v->edges_mode == EDGES_WEAK;
-	char title[64], note[96] = "";
+	char title[64], note[128] = "";
 	if (v->has_comm && v->comm_index >= 0)
 		snprintf(title, sizeof title, "%s #%u", weak ? "Weak edges of" : "Missing links in",
 			 v->comm_id);
@@ -56,15 +78,17 @@ void pane_edges_draw(const struct view *v, WINDOW *w)
 			last = v->total;
 		char t[32];
 		fmt_count(t, sizeof t, v->total);
-		snprintf(note, sizeof note, "%zu-%zu of %s%s", v->edges.top + 1, last, t,
-			 v->req_open ? "..." : "");
+		/* the total whole, or no note (draw_title never cuts one) */
+		const char *more = v->req_open ? "..." : "";
+		snprintf(note, sizeof note, "%zu-%zu of %s%s\nof %s%s\n%s", v->edges.top + 1, last, t,
+			 more, t, more, t);
 	} else if (v->req_open) {
 		snprintf(note, sizeof note, "fetching...");
 	}
 	draw_title(v, w, PANE_EDGES, title, note);
 	int x = 2, cw = width - 3;
 	if (v->comm_index < 0) {
-		draw_text(w, 2, x, "select a community in pane 2", cw);
+		draw_wrap(w, 2, x, "select a community in pane 2", cw, getmaxy(w) - 2);
 		return;
 	}
 	if (!v->page_valid) {
@@ -73,8 +97,8 @@ void pane_edges_draw(const struct view *v, WINDOW *w)
 		return;
 	}
 	if (v->total == 0) {
-		draw_text(w, 2, x, weak ? "no edge touches this community"
-					: "every pair of its members is linked", cw);
+		draw_wrap(w, 2, x, weak ? "no edge touches this community"
+					: "every pair of its members is linked", cw, getmaxy(w) - 2);
 		return;
 	}
 	int pw = 7, mw = 1;
@@ -82,8 +106,8 @@ void pane_edges_draw(const struct view *v, WINDOW *w)
 	int xv = x + nw + 1 + mw + 1, xp = x + cw - pw;
 	wattron(w, A_BOLD);
 	draw_text(w, 1, x, "member", nw);
-	draw_text(w, 1, xv, !weak ? "member" : nw >= 21 ? "neighbour (> outside)" : "neighbour",
-		  nw);
+	draw_text(w, 1, xv, !weak ? "member" : nw >= 21 ? "neighbour (> outside)" :
+			    nw >= 9 ? "neighbour" : "neighb.", nw);
 	draw_text(w, 1, xp + pw - 4, "prob", 4);
 	wattroff(w, A_BOLD);
 	size_t shown = view_rows_shown(v, PANE_EDGES);

@@ -12,18 +12,18 @@
 void pane_members_draw(const struct view *v, WINDOW *w)
 {
 	int width = getmaxx(w);
-	char title[64], note[64] = "";
+	char title[64], note[96] = "";
 	if (v->comm_index >= 0 && v->has_comm) {
 		snprintf(title, sizeof title, "Members of #%u", v->comm_id);
 		char n[32];
 		fmt_count(n, sizeof n, v->nmem);
-		snprintf(note, sizeof note, "%s by strength", n);
+		snprintf(note, sizeof note, "%s by strength\n%s", n, n);
 	} else {
 		snprintf(title, sizeof title, "Members");
 	}
 	draw_title(v, w, PANE_MEMBERS, title, note);
 	if (v->comm_index < 0 || v->nmem == 0) {
-		draw_text(w, 2, 1, "select a community in pane 2", width - 2);
+		draw_wrap(w, 2, 1, "select a community in pane 2", width - 2, getmaxy(w) - 2);
 		return;
 	}
 	int vw = 7;

@@ -4,7 +4,9 @@
  * community explains; then one row per affiliation, strongest first, with
  * a bar, the strength, whether it is a membership (agm_is_member()) and how many
  * of the node's edges that community explains. Strengths below the
- * threshold are listed on request ('a').
+ * threshold are listed on request ('a'). A narrow pane takes shorter
+ * forms of the figures and heads, then drops the "explains" column: a
+ * line is never cut or wrapped.
  */
 
 #include <stdio.h>
@@ -26,7 +28,8 @@ void pane_node_draw(const struct view *v, WINDOW *w)
 	draw_title(v, w, PANE_NODE, "Node", note);
 	int x = 2, cw = width - 3;
 	if (v->node < 0 || !v->node_valid) {
-		draw_text(w, 2, x, "no node selected: pick one in pane 3, or / to find", cw);
+		draw_wrap(w, 2, x, "no node selected: pick one in pane 3, or / to find", cw,
+			  getmaxy(w) - 2);
 		return;
 	}
 	char name[512];
@@ -34,22 +37,41 @@ void pane_node_draw(const struct view *v, WINDOW *w)
 	wattron(w, A_BOLD);
 	draw_text(w, 1, x, name, cw);
 	wattroff(w, A_BOLD);
+	/* the figures in the longest form that fits whole */
 	char line[200];
-	snprintf(line, sizeof line, "degree %u, in %u communit%s, %u edge%s unexplained",
-		 nv->degree, nv->nmember, nv->nmember == 1 ? "y" : "ies", nv->unexplained,
-		 nv->unexplained == 1 ? "" : "s");
-	if (draw_width(line) > cw)
-		snprintf(line, sizeof line, "degree %u, %u comm., %u unexplained", nv->degree,
-			 nv->nmember, nv->unexplained);
+	for (int form = 0; form < 4; form++) {
+		if (form == 0)
+			snprintf(line, sizeof line, "degree %u, in %u communit%s, %u edge%s unexplained",
+				 nv->degree, nv->nmember, nv->nmember == 1 ? "y" : "ies",
+				 nv->unexplained, nv->unexplained == 1 ? "" : "s");
+		else if (form == 1)
+			snprintf(line, sizeof line, "degree %u, %u comm., %u unexplained", nv->degree,
+				 nv->nmember, nv->unexplained);
+		else if (form == 2)
+			snprintf(line, sizeof line, "deg %u, %u comm., %u unexpl.", nv->degree,
+				 nv->nmember, nv->unexplained);
+		else
+			snprintf(line, sizeof line, "deg %u, %u comm.", nv->degree, nv->nmember);
+		if (draw_width(line) <= cw)
+			break;
+	}
 	draw_text(w, 2, x, line, cw);
 	if (v->naffil_rows == 0) {
-		draw_text(w, 4, x, hidden ? "no membership; a shows the weak strengths"
-					  : "no strength in any community", cw);
+		draw_wrap(w, 4, x, hidden ? "no membership; a shows the weak strengths"
+					  : "no strength in any community", cw, getmaxy(w) - 4);
 		return;
 	}
-	/* columns: id, bar, strength, flag, explains */
+	/* columns: id, bar, strength, flag, explains; a narrow pane heads
+	 * the last "expl", and one narrower still leaves it out */
 	int idw = 6, vw = 6, fw = 6, ew = 8;
-	int bw = cw - idw - vw - fw - ew - 4;
+	const char *ehead = "explains";
+	if (cw - idw - vw - fw - ew - 4 < 3) {
+		ew = 5;
+		ehead = "expl";
+	}
+	if (cw - idw - vw - fw - ew - 4 < 3)
+		ew = 0;
+	int bw = cw - idw - vw - fw - ew - (ew ? 4 : 3);
 	if (bw > 24)
 		bw = 24;
 	if (bw < 3)
@@ -58,7 +80,8 @@ void pane_node_draw(const struct view *v, WINDOW *w)
 	wattron(w, A_BOLD);
 	draw_text(w, 3, x, "comm", idw);
 	draw_text(w, 3, xb, "strength", bw + vw + 1);
-	draw_text(w, 3, xe, "explains", ew);
+	if (ew)
+		draw_text(w, 3, xe + ew - draw_width(ehead), ehead, ew);
 	wattroff(w, A_BOLD);
 	double top = nv->naffil ? nv->affil[0].strength : 1.0;
 	if (!(top > 0))
@@ -71,7 +94,7 @@ void pane_node_draw(const struct view *v, WINDOW *w)
 		char id[32], val[32], ex[32];
 		snprintf(id, sizeof id, "#%u", a->comm);
 		snprintf(val, sizeof val, "%.3g", a->strength);
-		snprintf(ex, sizeof ex, "%8u", a->explained);
+		snprintf(ex, sizeof ex, "%*u", ew, a->explained);
 		attr_t at = draw_row(v, w, PANE_NODE, y, 1, i, a->member ? 0 : draw_attr(v, CP_DIM));
 		draw_text(w, y, x, id, idw);
 		wattroff(w, at);
@@ -79,7 +102,8 @@ void pane_node_draw(const struct view *v, WINDOW *w)
 		wattron(w, at);
 		draw_text(w, y, xv, val, vw);
 		draw_text(w, y, xf, a->member ? "member" : "weak", fw);
-		draw_text(w, y, xe, ex, ew);
+		if (ew)
+			draw_text(w, y, xe, ex, ew);
 		wattroff(w, at);
 	}
 }

@@ -29,6 +29,8 @@ static void fmt_real(char *buf, size_t cap, double x, int full)
 		snprintf(buf, cap, "%.3g", x);
 }
 
+#define PLOT_MIN_COLS 16 /* the curve's least width */
+
 static int state_pair(enum fit_state s)
 {
 	switch (s) {
@@ -63,10 +65,10 @@ static void state_words(const struct view *v, char *buf, size_t cap)
 		snprintf(buf, cap, "%s", label);
 }
 
-static void figures(const struct view *v, WINDOW *w, int x, int width, int rows)
+/* The figures' lines (at most 6) into line; returns how many. */
+static int figure_lines(const struct view *v, char line[6][160])
 {
 	const struct snapshot *s = v->snap;
-	char line[6][160];
 	int n = 0;
 	char a[64], b[64];
 	state_words(v, a, sizeof a);
@@ -117,6 +119,25 @@ static void figures(const struct view *v, WINDOW *w, int x, int width, int rows)
 	else
 		snprintf(line[n++], sizeof line[0], "plateau: rel gain < %.0e x%u", v->params.tol,
 			 v->params.patience);
+	return n;
+}
+
+/* The columns the figures need: their widest line. */
+static int figures_width(const struct view *v)
+{
+	char line[6][160];
+	int n = figure_lines(v, line), fw = 0;
+	for (int i = 0; i < n; i++)
+		if (draw_width(line[i]) > fw)
+			fw = draw_width(line[i]);
+	return fw;
+}
+
+static void figures(const struct view *v, WINDOW *w, int x, int width, int rows)
+{
+	const struct snapshot *s = v->snap;
+	char line[6][160];
+	int n = figure_lines(v, line);
 	/* too few rows: the plateau line replaces the speed line, which goes first */
 	int order[6] = { 0, 1, 2, 3, 4, 5 };
 	if (rows < n && s->plateau_sweep > 0 && n == 6) {
@@ -255,9 +276,13 @@ void pane_trace_draw(const struct view *v, WINDOW *w)
 	if (!v->snap)
 		return;
 	int rows = h - 1;
-	int fw = width * 45 / 100;
-	if (fw > 38)
+	/* the figures whole (at least 38 columns when there is room, so the
+	 * curve does not jump as they change), the curve in the rest */
+	int fw = figures_width(v) + 2;
+	if (fw < 38 && width >= 38 * 100 / 45)
 		fw = 38;
+	if (fw > width - PLOT_MIN_COLS - 2)
+		fw = width - PLOT_MIN_COLS - 2;
 	figures(v, w, 1, fw - 1, rows);
 	plot(v, w, fw + 1, width - fw - 2, rows);
 }

@@ -47,13 +47,19 @@ attr_t draw_attr(const struct view *v, int pair);
 /* Put s (already safe: escaped or ours) at (y, x) in at most maxcols
  * columns; wide characters are measured. Returns the columns used. */
 int draw_text(WINDOW *w, int y, int x, const char *s, int maxcols);
+/* s at (y, x) broken between words into lines of at most width columns,
+ * at most maxrows of them (a word wider than a line is cut); returns the
+ * lines used. */
+int draw_wrap(WINDOW *w, int y, int x, const char *s, int width, int maxrows);
 /* n spaces from (y, x) in the window's current attributes. */
 void draw_fill(WINDOW *w, int y, int x, int n);
 /* Columns s takes on screen. */
 int draw_width(const char *s);
 /* A bar of width cells for fraction f (clamped to 0..1). */
 void draw_bar(const struct view *v, WINDOW *w, int y, int x, int width, double f);
-/* The pane's title row: "N Title" and a right-hand note. */
+/* The pane's title row: "N Title" and a right-hand note. The note may
+ * hold several forms, longest first, separated by '\n': the first that
+ * fits whole is drawn, and none when none fits (a note is never cut). */
 void draw_title(const struct view *v, WINDOW *w, int pane, const char *title, const char *note);
 /* The separator column of a right-hand pane. */
 void draw_separator(const struct view *v, WINDOW *w);

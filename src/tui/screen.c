@@ -136,17 +136,56 @@ static void draw_header(const struct view *v, WINDOW *w)
 	wattroff(w, base);
 }
 
-static void hints(const struct view *v, char *buf, size_t cap)
+/* The items taken, one space apart, two before the first pane key (from
+ * index npane on). */
+static void join_hints(char *buf, size_t cap, const char *const *item, const int *take, int n,
+		       int npane)
 {
-	const char *pane = "";
+	size_t o = 0;
+	buf[0] = '\0';
+	int pane_started = 0;
+	for (int i = 0; i < n && o < cap; i++) {
+		if (!take[i])
+			continue;
+		const char *sep = o == 0 ? "" : i >= npane && !pane_started ? "  " : " ";
+		pane_started |= i >= npane;
+		o += (size_t)snprintf(buf + o, cap - o, "%s%s", sep, item[i]);
+	}
+}
+
+/* The keys of the footer: whole "key:what" items only, those that do
+ * not fit left out (help and quit first, then the focused pane's, then
+ * the rest), shown in their usual order. */
+static void hints(const struct view *v, char *buf, size_t cap, int width)
+{
+	static const char *const common[] = { "?:help", "/:find", "Tab:pane", "s:stop", "p:pause",
+					      "e:run on", "w:write", "q:quit" };
+	const char *pane[3] = { NULL, NULL, NULL };
 	switch (v->focus) {
-	case PANE_COMMS: pane = "  o:sort r:reverse Enter:members"; break;
-	case PANE_MEMBERS: pane = "  Enter:node"; break;
-	case PANE_NODE: pane = "  a:weak strengths Enter:community"; break;
-	case PANE_EDGES: pane = "  m:missing links Enter:node"; break;
+	case PANE_COMMS: pane[0] = "o:sort"; pane[1] = "r:reverse"; pane[2] = "Enter:members"; break;
+	case PANE_MEMBERS: pane[0] = "Enter:node"; break;
+	case PANE_NODE: pane[0] = "a:weak strengths"; pane[1] = "Enter:community"; break;
+	case PANE_EDGES: pane[0] = "m:missing links"; pane[1] = "Enter:node"; break;
 	default: break;
 	}
-	snprintf(buf, cap, "?:help /:find Tab:pane s:stop p:pause e:run on w:write q:quit%s", pane);
+	enum { NC = sizeof common / sizeof common[0], NI = NC + 3 };
+	const char *item[NI];
+	for (int i = 0; i < NC; i++)
+		item[i] = common[i];
+	for (int i = 0; i < 3; i++)
+		item[NC + i] = pane[i];
+	/* the order items are given room in */
+	static const int prio[NI] = { 0, 7, NC, NC + 1, NC + 2, 1, 6, 5, 4, 3, 2 };
+	int take[NI] = { 0 };
+	for (int p = 0; p < NI; p++) {
+		if (!item[prio[p]])
+			continue;
+		take[prio[p]] = 1;
+		join_hints(buf, cap, item, take, NI, NC);
+		if (draw_width(buf) > width)
+			take[prio[p]] = 0;
+	}
+	join_hints(buf, cap, item, take, NI, NC);
 }
 
 static void draw_footer(const struct view *v, WINDOW *w)
@@ -159,8 +198,31 @@ static void draw_footer(const struct view *v, WINDOW *w)
 		char dir[300];
 		util_escape(v->outdir, dir, sizeof dir, !v->utf8);
 		const char *why = view_running(v) ? "the fit is still running" : "the result is not saved";
-		snprintf(line, sizeof line, "Quit? %s.  y: %ssave to %s and quit   d: quit without "
-			 "saving   n: stay", why, view_running(v) ? "stop, " : "", dir);
+		const char *stop = view_running(v) ? "stop, " : "";
+		/* the longest form that fits whole: every choice must show */
+		for (int form = 0; form < 4; form++) {
+			if (form == 0)
+				snprintf(line, sizeof line, "Quit? %s.  y: %ssave to %s and quit   "
+					 "d: quit without saving   n: stay", why, stop, dir);
+			else if (form == 1)
+				snprintf(line, sizeof line, "Quit? y: %ssave to %s and quit  d: quit "
+					 "without saving  n: stay", stop, dir);
+			else if (form == 2)
+				snprintf(line, sizeof line, "Quit? y: save and quit  d: quit without "
+					 "saving  n: stay");
+			else
+				snprintf(line, sizeof line, "Quit? y: save  d: don't save  n: stay");
+			if (draw_width(line) <= width)
+				break;
+		}
+		at = draw_attr(v, CP_FOCUS);
+	} else if (v->mode == MODE_ASK) {
+		snprintf(line, sizeof line, "%s %s_   (Enter %s, Esc cancels)",
+			 v->ask == ASK_SWEEPS ? "Sweeps more:" : "Plateau tolerance:", v->ask_buf,
+			 v->ask == ASK_SWEEPS ? "runs them" : "fits to the next plateau at it");
+		if (draw_width(line) > width)
+			snprintf(line, sizeof line, "%s %s_", v->ask == ASK_SWEEPS ? "sweeps:" : "tol:",
+				 v->ask_buf);
 		at = draw_attr(v, CP_FOCUS);
 	} else if (v->mode == MODE_FIND) {
 		snprintf(line, sizeof line, "find: type a name; Enter goes to it, Esc cancels");
@@ -173,11 +235,11 @@ static void draw_footer(const struct view *v, WINDOW *w)
 		at = v->msg_level == UTIL_ERROR ? draw_attr(v, CP_ERROR) :
 		     v->msg_level == UTIL_WARNING ? draw_attr(v, CP_WARN) : A_BOLD;
 	} else {
-		hints(v, line, sizeof line);
+		hints(v, line, sizeof line, width);
 		at = draw_attr(v, CP_DIM);
 	}
 	wattron(w, at);
-	if (v->mode == MODE_QUIT)
+	if (v->mode == MODE_QUIT || v->mode == MODE_ASK)
 		draw_fill(w, 0, 0, width);
 	draw_text(w, 0, 0, line, width);
 	wattroff(w, at);
@@ -189,11 +251,13 @@ static void draw_too_small(const struct view *v, WINDOW *w)
 		return;
 	werase(w);
 	char line[160];
-	snprintf(line, sizeof line, "coterie explore needs %dx%d; this terminal is %dx%d (q quits)",
-		 VIEW_MIN_COLS, VIEW_MIN_ROWS, v->cols, v->rows);
-	draw_text(w, 0, 0, line, v->cols);
-	if (v->mode == MODE_QUIT && v->rows > 1)
-		draw_text(w, 1, 0, "Quit? y: save and quit  d: quit without saving  n: stay", v->cols);
+	snprintf(line, sizeof line, "coterie explore needs %dx%d; this terminal is %dx%d. "
+		 "q quits.", VIEW_MIN_COLS, VIEW_MIN_ROWS, v->cols, v->rows);
+	/* broken between words so the whole message shows */
+	int y = draw_wrap(w, 0, 0, line, v->cols, v->rows);
+	if (v->mode == MODE_QUIT && y < v->rows)
+		draw_wrap(w, y, 0, "Quit? y: save and quit  d: quit without saving  n: stay", v->cols,
+			  v->rows - y);
 	wnoutrefresh(w);
 }
 

@@ -34,6 +34,9 @@ struct tui_config {
 	const char *graph_path;       /* recorded in run.json (borrowed) */
 	const char *outdir;           /* where 'w' and quitting write (borrowed) */
 	int outdir_is_default;        /* chosen by us: say so on screen */
+	int outdir_created;           /* this command made outdir (the up-front
+				       * write check): removed on leaving
+				       * if still empty */
 	int reopened;                 /* a saved result is shown */
 	int outdir_holds_result;      /* outdir already holds this model */
 	uint32_t saved_sweep;         /* its sweep, when it does */

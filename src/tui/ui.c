@@ -68,6 +68,9 @@ static void handle_key(struct view *v, int key, int is_char)
 		if (is_char)
 			keys_quit_answer(v, key);
 		return;
+	case MODE_ASK:
+		keys_ask_key(v, key, is_char);
+		return;
 	case MODE_NORMAL:
 		break;
 	}
@@ -123,6 +126,7 @@ static struct outdir *autosave_open(const struct view *v, const struct tui_confi
 
 /* What the loop keeps besides the view, and how the session ended. */
 struct loop {
+	const struct tui_config *cfg;
 	struct screen screen;
 	struct pager *pager;      /* NULL when its thread could not start */
 	int pending;              /* the fit woke us: a snapshot is due */
@@ -197,6 +201,12 @@ static void update_and_draw(struct view *v, struct loop *l)
 	    v->mode == MODE_NORMAL) {
 		v->msg[0] = '\0';
 		v->dirty |= DIRTY_FOOTER;
+	}
+	if (v->params_changed) {
+		/* the checkpoints and the result record the parameters in force */
+		outdir_free(v->od);
+		v->od = autosave_open(v, l->cfg);
+		v->params_changed = 0;
 	}
 	if (v->started && v->od)
 		outdir_tick(v->od, v->fit);
@@ -347,14 +357,32 @@ static int report(const struct view *v, const struct loop *l, int status)
 	return status;
 }
 
+/*
+ * A session that made the result folder and leaves without writing
+ * anything into it takes the empty folder away again. rmdir() removes
+ * only an empty folder, so nothing written (by 'w', an autosave or
+ * another program) is ever lost; a folder that was there before is
+ * never touched.
+ */
+static void forget_empty_outdir(const char *dir, int created)
+{
+	if (created && dir && rmdir(dir) != 0 && errno != ENOTEMPTY && errno != EEXIST &&
+	    errno != ENOENT)
+		warning("cannot remove the empty folder '%s': %s", dir, strerror(errno));
+}
+
 int tui_run(struct tui_config *cfg)
 {
 	struct view view, *v = &view;
 	struct loop *l = util_calloc(1, sizeof *l);
+	/* the default folder is made only when something is written */
+	int created = cfg->outdir_created || (cfg->outdir && access(cfg->outdir, F_OK) != 0);
 	view_init(v, cfg);
 	if (cfg->note)
 		view_say(v, UTIL_WARNING, "%s", cfg->note);
 	int status = 1;
+	if (l)
+		l->cfg = cfg;
 	if (l && start(v, l, cfg) == 0) {
 		while (!v->quit) {
 			update_and_draw(v, l);
@@ -366,7 +394,8 @@ int tui_run(struct tui_config *cfg)
 		status = report(v, l, status);
 	}
 	free(l);
-	outdir_free(v->od);
+	outdir_free(v->od); /* joins the autosave thread */
+	forget_empty_outdir(v->outdir, created);
 	fit_free(v->fit);
 	view_release(v);
 	return status;

@@ -59,6 +59,12 @@ enum mode {
 	MODE_FIND,  /* the find prompt owns the keyboard */
 	MODE_HELP,  /* the help screen is open */
 	MODE_QUIT,  /* the quit question is asked */
+	MODE_ASK,   /* a number is asked: sweeps more, or the tolerance */
+};
+
+enum ask_kind {
+	ASK_SWEEPS = 0, /* how many more sweeps ('+') */
+	ASK_TOL,        /* the plateau tolerance ('t') */
 };
 
 #define FIND_QUERY_MAX 128
@@ -84,6 +90,7 @@ struct view {
 	double t_begin;
 	const struct select_result *selection; /* -k auto's search, or NULL */
 	struct outdir *od;    /* the result folder (outdir.h); owned by tui_run() */
+	int params_changed;   /* params changed ('t'): ui.c reopens od with them */
 
 	/* the snapshot on screen */
 	struct snapshot *snap;
@@ -170,6 +177,11 @@ struct view {
 
 	/* help */
 	size_t help_top;
+
+	/* the number prompt (MODE_ASK) */
+	enum ask_kind ask;
+	char ask_buf[24];
+	size_t ask_len;
 
 	/* the footer: a message from us or the core */
 	char msg[512];

@@ -21,8 +21,19 @@ check "no key is bound twice in the same pane${dups:+ ($dups)}" [ -z "$dups" ]
 start_ui 120x40 C.UTF-8 "$g" -k 6 -j 2 -o out
 wait_screen '─ 5 Weak edges' 10
 keys '?'
-check "? opens the help screen" wait_screen '^ Keys \(from the table'
+check "? opens the help screen, headed in the user's words" \
+	wait_screen '^ Keys: what each one does \(any other key closes this\)'
 screen >"$tmp/help"
+# the wording says what a key does for the user (issue 14, item 14): no
+# word of the code's inside, on the screen or in the key list
+jargon='table|dispatch|binding|snapshot|PANE_|act_|MODE_|cache|enum|struct'
+check "no internal jargon on the help screen" sh -c "! grep -Eiq '$jargon' '$tmp/help'"
+check "no internal jargon in the key list" sh -c "! cut -f3 '$tmp/keys' | grep -Eiq '$jargon'"
+check "the help says what Tab does for the user" grep -q 'move to the next pane' "$tmp/help"
+check "the help says what w writes and where" \
+	grep -q 'save the result (memberships, communities, run.json) to the folder top right' "$tmp/keys"
+check "the help says what Enter does in the communities pane" \
+	grep -q 'list the members of this community in pane 3' "$tmp/keys"
 "$PY" - "$tmp/keys" "$tmp/help" <<'PYEOF'
 import sys
 heading = {"any": "Everywhere", "likelihood": "Likelihood pane", "communities": "Communities pane",

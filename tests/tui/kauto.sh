@@ -55,10 +55,23 @@ check "q during the search quits" wait_gone_ui 30
 check "q during the search: status 0" [ "$(ui_rc)" = 0 ]
 check "q during the search writes nothing" [ ! -e "$tmp/out2/run.json" ]
 UI_ENV="COTERIE_KSCREEN_WAIT=600" start_ui 80x24 C "$g" -k auto -j 1 --starts 1 -o out3
-check "at 80x24 in ASCII the search screen appears" wait_screen 'Choosing the number of communities' 20
+check "at 80x24 in ASCII the search screen appears" wait_screen 'Choosing (the number of communities|k) by held-out likelihood: [0-9]+ of [0-9]+ (k )?scored' 20
 keys C-c
 check "Ctrl-C during the search ends it" wait_gone_ui 30
 check "Ctrl-C during the search: status 130" [ "$(ui_rc)" = 130 ]
 check "no sanitizer report (Ctrl-C)" no_sanitizer_report "$tmp/stderr"
+
+# a grid longer than the screen (issue 14, item 6): the table shows the
+# best k, marked, and says which part of the grid it shows, rather than
+# the first rows as if they were all
+grid=2,3,4,5,6,7,8,9,10,11,12,13,14,15,16,17,18,19,20,21,22,23,24,25,26
+UI_ENV="COTERIE_KSCREEN_WAIT=600" start_ui 60x16 C "$g" -k auto --k-grid $grid -j 1 --starts 1 -o out4
+check "at 60x16 the search ends and names the k chosen" wait_screen 'chose k = [0-9]+' 90
+chosen=$(screen | sed -n 's/.*chose k = \([0-9]*\).*/\1/p' | head -1)
+check "the chosen k ($chosen) is on screen, marked" wait_screen "^ *> +$chosen +-" 5
+check "the table's head says which k it shows of the 25" wait_screen 'k [0-9]+-[0-9]+ of 25' 5
+check "no line is cut inside the scored count" wait_screen '[0-9]+ of 25 scored' 5
+keys q
+check "q quits" wait_gone_ui 30
 
 finish

@@ -235,6 +235,88 @@ static void test_resume_continues_from_the_saved_state(void **state)
 	graph_free(g);
 }
 
+/* Until the snapshot says the fit holds at a plateau (LEVELLED) at a
+ * sweep other than not_at; returns that snapshot. */
+static struct snapshot *wait_held(struct fit *f, uint32_t not_at)
+{
+	for (int i = 0; i < 60000; i++) {
+		struct snapshot *s = fit_snapshot(f);
+		if (s->state == FIT_LEVELLED && s->sweep != not_at)
+			return s;
+		assert_true(s->state != FIT_FINISHED && s->state != FIT_FAILED);
+		snapshot_release(s);
+		fit_drain_wake(f);
+		struct timespec ts = { 0, 1000000 };
+		nanosleep(&ts, NULL);
+	}
+	fail_msg("the fit did not hold at a plateau");
+	return NULL;
+}
+
+static void test_extend_by_runs_n_sweeps_and_a_smaller_tol_runs_to_the_next_plateau(void **state)
+{
+	(void)state;
+	struct graph *g = graph_load(test_data("football/edges.tsv"), GRAPH_FORMAT_AUTO);
+	struct fit_params p;
+	fit_params_default(&p);
+	p.k = 12;
+	p.threads = 2;
+	p.starts = 1;
+	p.no_reseed = 1;
+	p.hold_at_plateau = 1;
+	p.max_sweeps = 100000;
+	struct fit *f = fit_new(g, &p, NULL);
+	assert_non_null(f);
+	assert_true(fit_get_tol(f) == p.tol);
+	assert_int_equal(fit_start(f), 0);
+	struct snapshot *a = wait_held(f, 0);
+	uint32_t s1 = a->sweep;
+	snapshot_release(a);
+
+	/* N more sweeps: exactly N, then it holds again */
+	fit_extend_by(f, 5);
+	struct snapshot *b = wait_held(f, s1);
+	assert_int_equal(b->sweep, s1 + 5);
+	snapshot_release(b);
+
+	/* a smaller tolerance, to the next plateau: the plateau rule (relative
+	 * gain below tol for patience sweeps in a row) holds at the new tol */
+	double tol = p.tol / 100;
+	fit_set_tol(f, tol);
+	assert_true(fit_get_tol(f) == tol);
+	assert_true(fit_get_params(f)->tol == p.tol); /* the one it began with */
+	fit_extend_by(f, 0);
+	struct snapshot *c = wait_held(f, s1 + 5);
+	assert_true(c->sweep > s1 + 5);
+	assert_true(c->ntrace > p.patience);
+	for (uint32_t i = c->ntrace - p.patience; i < c->ntrace; i++) {
+		double prev = c->trace[i - 1].loglik, ll = c->trace[i].loglik;
+		assert_true((ll - prev) / fabs(prev) < tol);
+	}
+	/* and not earlier: the sweep before it did not end such a streak */
+	double prev = c->trace[c->ntrace - 2 - p.patience].loglik;
+	double ll = c->trace[c->ntrace - 1 - p.patience].loglik;
+	assert_true((ll - prev) / fabs(prev) >= tol || c->ntrace - 1 - p.patience <= s1 + 5);
+	uint32_t s3 = c->sweep;
+	fit_stop(f);
+	assert_int_equal(fit_wait(f), FIT_LEVELLED);
+	fit_free(f);
+
+	/* determinism: the tolerance and the holds change only where the fit
+	 * stops; the model at sweep s3 is the one of a straight run to s3 */
+	p.hold_at_plateau = 0;
+	p.past_plateau = 1;
+	p.max_sweeps = s3;
+	int st;
+	struct snapshot *straight = test_fit_to_end(g, &p, NULL, &st);
+	assert_int_equal(straight->sweep, s3);
+	assert_same_strengths(&c->F, &straight->F);
+	assert_true(c->trace[c->ntrace - 1].loglik == straight->trace[straight->ntrace - 1].loglik);
+	snapshot_release(straight);
+	snapshot_release(c);
+	graph_free(g);
+}
+
 static void test_football_fit_rivals_leiden_on_conferences(void **state)
 {
 	(void)state;
@@ -288,6 +370,7 @@ int main(void)
 		cmocka_unit_test(test_likelihood_climbs_and_snapshot_is_consistent),
 		cmocka_unit_test(test_stop_keeps_the_model_and_pause_holds),
 		cmocka_unit_test(test_resume_continues_from_the_saved_state),
+		cmocka_unit_test(test_extend_by_runs_n_sweeps_and_a_smaller_tol_runs_to_the_next_plateau),
 		cmocka_unit_test(test_football_fit_rivals_leiden_on_conferences),
 		cmocka_unit_test(test_planted_overlapping_cover_is_recovered),
 	};
