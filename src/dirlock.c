@@ -132,14 +132,6 @@ int dirlock_take(struct dirlock *l)
 		    pwrite(fd, l->who, strlen(l->who), n) < 0 ||
 		    pwrite(fd, "\n", 1, n + (off_t)strlen(l->who)) != 1)
 			warning("cannot record this process in '%s': %s", l->path, strerror(errno));
-		if (dirlock_spare(l, 1) != 0) {
-			int e = errno;
-			dirlock_spare(l, 0);
-			unlink(l->path);
-			close(fd);
-			l->fd = -1;
-			return say_no_fd(l, e);
-		}
 		dirlock_clean_stale(l->dir);
 		return 0;
 	}
@@ -160,6 +152,11 @@ int dirlock_spare(struct dirlock *l, int give)
 		}
 	}
 	return 0;
+}
+
+int dirlock_reserve(struct dirlock *l)
+{
+	return dirlock_spare(l, 1) ? say_no_fd(l, errno) : 0;
 }
 
 void dirlock_free(struct dirlock *l)

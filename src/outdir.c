@@ -240,10 +240,8 @@ static int write_checkpoint(struct outdir *od, const struct snapshot *s)
 {
 	struct result_model m;
 	result_model_of(&m, s);
-	if (claim(od))
-		return -1;
 	dirlock_spare(od->cfg.lock, 0);
-	int rc = checkpoint_write(od->ckpath, od->cfg.g, &od->cfg.params, &m);
+	int rc = claim(od) ? -1 : checkpoint_write(od->ckpath, od->cfg.g, &od->cfg.params, &m);
 	dirlock_spare(od->cfg.lock, 1);
 	if (rc == 0)
 		identity_of(od->ckpath, &od->seen);
@@ -419,7 +417,6 @@ static int write_elsewhere(struct outdir *od, const struct result_model *m,
 {
 	char *alt[2];
 	int n = elsewhere_names(od->cfg.dir, alt), rc = -1;
-	dirlock_spare(od->cfg.lock, 0); /* the lock of a folder that failed */
 	for (int i = 0; i < n; i++) {
 		struct dirlock *l = rc ? dirlock_new(alt[i], "coterie (a result saved elsewhere)") : NULL;
 		if (l && result_prepare_dir(alt[i]) == 0 && dirlock_take(l) == 0) {
@@ -433,7 +430,6 @@ static int write_elsewhere(struct outdir *od, const struct result_model *m,
 		dirlock_free(l);
 		free(alt[i]);
 	}
-	dirlock_spare(od->cfg.lock, 1);
 	char esc[300], aesc[300];
 	util_escape(od->cfg.dir, esc, sizeof esc, 1);
 	if (rc == 0)
@@ -451,13 +447,14 @@ int outdir_write(struct outdir *od, const struct result_model *m,
 	join(od);
 	free(od->elsewhere);
 	od->elsewhere = NULL;
-	if (claim(od))
-		return write_elsewhere(od, m, meta, check), -1;
 	dirlock_spare(od->cfg.lock, 0);
-	int rc = write_files(od, dir, m, meta, check);
+	int rc = claim(od) ? -1 : write_files(od, dir, m, meta, check);
+	if (rc) {
+		write_elsewhere(od, m, meta, check);
+		dirlock_spare(od->cfg.lock, 1);
+		return -1;
+	}
 	dirlock_spare(od->cfg.lock, 1);
-	if (rc)
-		return write_elsewhere(od, m, meta, check), -1;
 	identity_of(od->ckpath, &od->seen);
 	/* the folder holds this run's files only; a continued result keeps
 	 * the search that chose its k */

@@ -20,7 +20,9 @@
 
 /* The name of the lock file in a folder. */
 #define DIRLOCK_NAME ".coterie.lock"
-/* Descriptors a write needs at once: the file staged and the folder synced. */
+/* Descriptors a write needs, the lock's own one held: one at a time (the
+ * file staged, the folder synced, the probe), and one more for the lock
+ * of the folder a result goes to when its own cannot take it. */
 #define DIRLOCK_SPARE 2
 
 struct dirlock;
@@ -41,9 +43,15 @@ int dirlock_take(struct dirlock *l);
 int dirlock_held(const struct dirlock *l);
 
 /* Let go of the spare descriptors (give 0) before a write, take them back
- * (give 1) after it. Returns 0, or -1 when they cannot be taken back (no
- * message: the next write may still succeed). NULL is a no-op. */
+ * (give 1) after it. Returns 0, or -1 (errno set, no message) when they
+ * cannot be taken back: the next write may still succeed. NULL, or a lock
+ * not held, is a no-op. */
 int dirlock_spare(struct dirlock *l, int give);
+
+/* Take the spare descriptors up front, after dirlock_take(), so that a
+ * long run cannot fail at its end for want of one. Returns 0, or -1 with
+ * a message naming the limit (ulimit -n). */
+int dirlock_reserve(struct dirlock *l);
 
 /* The folder l locks (borrowed from l). */
 const char *dirlock_dir(const struct dirlock *l);

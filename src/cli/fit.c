@@ -620,7 +620,8 @@ int cmd_fit(int argc, char **argv)
 	/* refuse early: a long fit whose result cannot be written is lost
 	 * work, and so is one a second writer of the folder would replace */
 	if (result_prepare_dir(r->o.out) || proc_signals_install() ||
-	    !(r->lock = dirlock_new(r->o.out, proc_command_line())) || dirlock_take(r->lock))
+	    !(r->lock = dirlock_new(r->o.out, proc_command_line())) || dirlock_take(r->lock) ||
+	    dirlock_reserve(r->lock))
 		goto out;
 	r->t_begin = util_now();
 	int loaded = r->resume ? load_resume(r) : load_graph(r);
