@@ -14,7 +14,16 @@
  *
  * Leaving never loses work: quitting with 'y', Ctrl-C, SIGTERM, SIGHUP or
  * a vanished terminal stop the fit, write the result folder if the model
- * on screen has not been written, and only then end curses. tui_run() has
+ * on screen has not been written, and only then end curses. A signal or a
+ * lost terminal lets the sweep in progress end (fit_interrupt()), so the
+ * folder it saves resumes exactly, as `w` and the autosave do.
+ *
+ * One writer per folder (dirlock.h): a session whose fit runs takes the
+ * result folder's lock as soon as the folder exists (at start, on 'e', or
+ * at the first write); a session that only browses takes none. When
+ * another process holds it, or rewrote the folder since it was opened,
+ * the footer says so and the model is not called saved: its writes go to
+ * a folder beside it (outdir.h). tui_run() has
  * one cleanup path: whatever start() got to is undone by teardown(), and
  * what must be said on the terminal is said after curses ended.
  */
@@ -28,6 +37,7 @@
 #include <string.h>
 #include <unistd.h>
 
+#include "coterie/dirlock.h"
 #include "coterie/graph.h"
 #include "coterie/proc.h"
 #include "coterie/outdir.h"
@@ -97,30 +107,6 @@ static void stop_and_wait(struct view *v)
 	view_take_snapshot(v);
 }
 
-/*
- * Autosave: while a fit runs, its checkpoint is written to the result
- * folder every AUTOSAVE_SECONDS, on a thread of its own (a large model
- * takes a while to write, and the screen must not wait), so a crash or a
- * killed machine loses at most that much work; `explore DIR` reopens it
- * and `fit --resume DIR` ends as the uninterrupted fit would (outdir.h).
- */
-#define AUTOSAVE_SECONDS 120.0
-
-static struct outdir *autosave_open(const struct view *v, const struct tui_config *cfg)
-{
-	/* COTERIE_AUTOSAVE_SECONDS: a shorter interval, for the tests */
-	const char *as_env = getenv("COTERIE_AUTOSAVE_SECONDS");
-	struct outdir_config oc = {
-		.dir = v->outdir, .g = v->g, .params = v->params,
-		.every = as_env && atof(as_env) > 0 ? atof(as_env) : AUTOSAVE_SECONDS,
-		.one_start = cfg->one_start, .background = 1,
-		.continues = cfg->reopened && cfg->outdir_holds_result,
-	};
-	if (cfg->checkpoint_every > 0)
-		oc.every = cfg->checkpoint_every;
-	return outdir_new(&oc);
-}
-
 /* What the loop keeps besides the view, and how the session ended. */
 struct loop {
 	struct screen screen;
@@ -135,8 +121,38 @@ struct loop {
 	/* the end, said after curses */
 	int sig;
 	int wrote, write_failed;
+	/* the result folder's writer lock (dirlock.h) */
+	struct dirlock *lock;
+	int lock_tried;
 	char last_error[512];
 };
+
+/*
+ * Autosave: while a fit runs, its checkpoint is written to the result
+ * folder every AUTOSAVE_SECONDS, on a thread of its own (a large model
+ * takes a while to write, and the screen must not wait), so a crash or a
+ * killed machine loses at most that much work; `explore DIR` reopens it
+ * and `fit --resume DIR` ends as the uninterrupted fit would (outdir.h).
+ */
+#define AUTOSAVE_SECONDS 120.0
+
+static struct outdir *autosave_open(const struct view *v, const struct loop *l,
+				    const struct tui_config *cfg)
+{
+	/* COTERIE_AUTOSAVE_SECONDS: a shorter interval, for the tests */
+	const char *as_env = getenv("COTERIE_AUTOSAVE_SECONDS");
+	struct outdir_config oc = {
+		.dir = v->outdir, .g = v->g, .params = v->params,
+		.every = as_env && atof(as_env) > 0 ? atof(as_env) : AUTOSAVE_SECONDS,
+		.one_start = cfg->one_start, .background = 1,
+		.continues = cfg->reopened && cfg->outdir_holds_result,
+		.lock = l->lock,
+	};
+	if (cfg->checkpoint_every > 0)
+		oc.every = cfg->checkpoint_every;
+	return outdir_new(&oc);
+}
+
 
 /* Take the terminal and start what runs beside the loop: the pager, the
  * fit (cfg->start), the autosave clock. Returns 0, or -1 with a message. */
@@ -169,8 +185,35 @@ static int start(struct view *v, struct loop *l, const struct tui_config *cfg)
 			 "(-o chooses another); ? lists the keys");
 
 	l->last_tick = util_now();
-	v->od = autosave_open(v, cfg);
+	l->lock = dirlock_new(v->outdir, proc_command_line());
+	v->od = autosave_open(v, l, cfg);
 	return 0;
+}
+
+/*
+ * The folder's lock, once the fit runs and the folder exists (a default
+ * folder not made yet is locked by its first write); and the truth about
+ * "saved": a folder another process rewrote no longer holds this model.
+ */
+static void guard_folder(struct view *v, struct loop *l)
+{
+	char esc[300];
+	if (v->started && !l->lock_tried && l->lock && access(v->outdir, F_OK) == 0) {
+		l->lock_tried = 1;
+		if (dirlock_take(l->lock) == 0) {
+			dirlock_reserve(l->lock); /* a failure is in the inbox */
+		} else {
+			v->saved = 0;
+			view_say(v, UTIL_WARNING, "another process writes '%s': this session "
+				 "saves beside it", util_escape(v->outdir, esc, sizeof esc, !v->utf8));
+		}
+	}
+	if (v->saved && v->od && outdir_changed(v->od)) {
+		v->saved = 0;
+		v->dirty |= DIRTY_HEADER;
+		view_say(v, UTIL_WARNING, "'%s' was rewritten by another process: this model is "
+			 "not saved there", util_escape(v->outdir, esc, sizeof esc, !v->utf8));
+	}
 }
 
 /* The first half of a pass: bring the state up to date and draw it. */
@@ -198,8 +241,11 @@ static void update_and_draw(struct view *v, struct loop *l)
 		v->msg[0] = '\0';
 		v->dirty |= DIRTY_FOOTER;
 	}
+	guard_folder(v, l);
 	if (v->started && v->od)
 		outdir_tick(v->od, v->fit);
+	if (v->write_asked)
+		view_write_asked(v);
 	view_prepare(v);
 	if (v->dirty)
 		screen_draw(&l->screen, v);
@@ -300,8 +346,16 @@ static int leave(struct view *v, struct loop *l)
 				 v->want_write && (view_running(v) || view_unsaved(v)) ? " and saving" : "");
 			screen_draw(&l->screen, v);
 		}
-		stop_and_wait(v);
+		if (v->want_write && v->started && !v->stop_asked) {
+			/* the sweep in progress ends, so that the save resumes exactly */
+			fit_interrupt(v->fit);
+			fit_wait(v->fit);
+			view_take_snapshot(v);
+		} else {
+			stop_and_wait(v);
+		}
 	}
+	v->write_asked = 0;
 	if (v->want_write && view_unsaved(v)) {
 		if (view_write(v, l->sig || l->hangup ? "interrupted" : NULL) == 0)
 			l->wrote = 1;
@@ -335,9 +389,15 @@ static int report(const struct view *v, const struct loop *l, int status)
 	char dir[300];
 	util_escape(v->outdir, dir, sizeof dir, 1);
 	if (l->write_failed) {
+		char alt[300];
+		const char *in = v->od ? outdir_saved_in(v->od) : NULL;
 		if (l->last_error[0])
 			error("%s", l->last_error);
-		error("the result could not be written to '%s'", dir);
+		if (in)
+			error("the result could not be written to '%s'; it is saved in '%s'", dir,
+			      util_escape(in, alt, sizeof alt, 1));
+		else
+			error("the result could not be written to '%s'", dir);
 		status = 1;
 	} else if (l->wrote) {
 		notice("the result at sweep %u is in '%s'", v->saved_sweep, dir);
@@ -365,8 +425,10 @@ int tui_run(struct tui_config *cfg)
 		teardown(v, l);
 		status = report(v, l, status);
 	}
-	free(l);
 	outdir_free(v->od);
+	if (l)
+		dirlock_free(l->lock);
+	free(l);
 	fit_free(v->fit);
 	view_release(v);
 	return status;
