@@ -472,11 +472,9 @@ const char *outdir_saved_in(const struct outdir *od)
 
 void outdir_free(struct outdir *od)
 {
-	if (!od)
-		return;
-	join(od);
-	snapshot_release(od->asked);
-	free(od->elsewhere);
-	free(od->ckpath);
-	free(od);
+	if (od) {
+		join(od); /* the periodic write, then what it and the caller leave */
+		snapshot_release(od->asked);
+		UTIL_FREE_ALL(od->elsewhere, od->ckpath, od);
+	}
 }
