@@ -28,6 +28,7 @@
  * what must be said on the terminal is said after curses ended.
  */
 #include <errno.h>
+#include <fcntl.h>
 #include <poll.h>
 #include <pthread.h>
 #include <signal.h>
@@ -35,6 +36,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/resource.h>
 #include <unistd.h>
 
 #include "coterie/dirlock.h"
@@ -154,12 +156,36 @@ static struct outdir *autosave_open(const struct view *v, const struct loop *l,
 }
 
 
+/* At least need descriptors are free (need <= FDS_MAX), else say so with
+ * the real cause: curses would blame the terminal type, a write would
+ * fail only at the end. Returns 0 or -1. */
+#define FDS_MAX 8
+static int fds_free(int need)
+{
+	int fd[FDS_MAX], got = 0, e = 0;
+	while (got < need && (fd[got] = fcntl(STDERR_FILENO, F_DUPFD_CLOEXEC, 0)) >= 0)
+		got++;
+	if (got < need)
+		e = errno;
+	while (got > 0)
+		close(fd[--got]);
+	if (!e)
+		return 0;
+	struct rlimit rl;
+	if (e == EMFILE && getrlimit(RLIMIT_NOFILE, &rl) == 0 && rl.rlim_cur != RLIM_INFINITY)
+		return error("too few file descriptors for the explorer: the limit (ulimit -n) is "
+			     "%llu; raise it", (unsigned long long)rl.rlim_cur);
+	return error("cannot start the explorer: %s", strerror(e));
+}
+
 /* Take the terminal and start what runs beside the loop: the pager, the
  * fit (cfg->start), the autosave clock. Returns 0, or -1 with a message. */
 static int start(struct view *v, struct loop *l, const struct tui_config *cfg)
 {
 	struct term_caps caps;
-	if (term_start("'coterie fit' works without one", &caps))
+	/* what the session opens: the terminal's description (curses), the
+	 * pager's pipe, the folder's lock and its spares for the writes */
+	if (fds_free(4 + DIRLOCK_SPARE) || term_start("'coterie fit' works without one", &caps))
 		return -1;
 	const char *tpath = getenv("COTERIE_TUI_TIMING");
 	if (tpath && *tpath)
