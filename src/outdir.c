@@ -20,6 +20,15 @@
  * removes the files a result may have that this run did not write
  * (held-out-links.tsv, k-selection.tsv), once its own are in place.
  *
+ * One writer per folder: every write first takes the folder's lock
+ * (config.lock, dirlock.h) if the caller has not, and lets go of the
+ * lock's spare descriptors just for the write. A finished result is never
+ * dropped: when the folder cannot take it, the final write goes to a
+ * sibling folder, else to $TMPDIR, and says where (outdir_saved_in()).
+ * A folder that holds the result this run continues is not written over
+ * once another process rewrote it (the checkpoint's identity, dev, inode,
+ * size and time, differs from the one this run last saw).
+ *
  * The one thing a newcomer gets wrong: a fit continued as one start never
  * makes a savepoint, so asking it for one would wait for ever; such a run
  * (config.one_start) writes its newest snapshot instead.
@@ -35,12 +44,41 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/stat.h>
 #include <unistd.h>
 
 #include "coterie/atomicfile.h"
+#include "coterie/dirlock.h"
 #include "coterie/graph.h"
 #include "coterie/holdout.h"
 #include "coterie/util.h"
+
+/* Which file a path names, and which version of it. */
+struct identity {
+	int present;
+	dev_t dev;
+	ino_t ino;
+	off_t size;
+	struct timespec mtime;
+};
+
+static void identity_of(const char *path, struct identity *id)
+{
+	struct stat st;
+	memset(id, 0, sizeof *id);
+	if (stat(path, &st) != 0)
+		return;
+	*id = (struct identity){ 1, st.st_dev, st.st_ino, st.st_size, st.st_mtim };
+}
+
+static int identity_same(const struct identity *a, const struct identity *b)
+{
+	if (a->present != b->present)
+		return 0;
+	return !a->present || (a->dev == b->dev && a->ino == b->ino && a->size == b->size &&
+			       a->mtime.tv_sec == b->mtime.tv_sec &&
+			       a->mtime.tv_nsec == b->mtime.tv_nsec);
+}
 
 struct outdir {
 	struct outdir_config cfg;
@@ -52,6 +90,11 @@ struct outdir {
 	int running;
 	atomic_int done;
 	struct snapshot *s;       /* what it writes; a reference of its own */
+	/* outdir_ask(): a savepoint the caller writes itself */
+	int ask;
+	struct snapshot *asked;
+	struct identity seen;     /* the checkpoint as this run last saw it */
+	char *elsewhere;          /* where the last failed final write went */
 };
 
 int outdir_read(const char *dir, struct checkpoint *ck)
@@ -163,17 +206,46 @@ struct outdir *outdir_new(const struct outdir_config *cfg)
 		return NULL;
 	}
 	od->last = util_now();
+	identity_of(od->ckpath, &od->seen);
 	return od;
 }
 
+int outdir_changed(const struct outdir *od)
+{
+	if (!od->cfg.continues || od->running)
+		return 0; /* (a write on its thread updates seen) */
+	struct identity now;
+	identity_of(od->ckpath, &now);
+	return !identity_same(&now, &od->seen);
+}
+
+/* Make the folder and take its lock; refuse a folder rewritten by
+ * another process since this run saw it. 0 or -1 (reported). */
+static int claim(struct outdir *od)
+{
+	if (result_prepare_dir(od->cfg.dir))
+		return -1;
+	if (od->cfg.lock && dirlock_take(od->cfg.lock))
+		return -1;
+	if (outdir_changed(od)) {
+		char esc[300];
+		return error("'%s' was rewritten by another process since this run read it; it "
+			     "is not written over", util_escape(od->cfg.dir, esc, sizeof esc, 1));
+	}
+	return 0;
+}
+
 /* Write snapshot s as the checkpoint; 0 or -1 (reported). */
-static int write_checkpoint(const struct outdir *od, const struct snapshot *s)
+static int write_checkpoint(struct outdir *od, const struct snapshot *s)
 {
 	struct result_model m;
 	result_model_of(&m, s);
-	if (result_prepare_dir(od->cfg.dir))
-		return -1;
-	return checkpoint_write(od->ckpath, od->cfg.g, &od->cfg.params, &m);
+	dirlock_spare(od->cfg.lock, 0);
+	int rc = claim(od) ? -1 : checkpoint_write(od->ckpath, od->cfg.g, &od->cfg.params, &m);
+	dirlock_spare(od->cfg.lock, 1);
+	if (rc == 0)
+		identity_of(od->ckpath, &od->seen);
+	return rc;
 }
 
 static void *write_main(void *arg)
@@ -220,12 +292,42 @@ static void write_periodic(struct outdir *od, struct snapshot *s)
 	od->running = 1;
 }
 
+int outdir_ask(struct outdir *od, struct fit *f)
+{
+	if (od->cfg.one_start)
+		return -1;
+	fit_want_savepoint(f);
+	od->want = 1;
+	od->ask = 1;
+	return 0;
+}
+
+struct snapshot *outdir_take_asked(struct outdir *od)
+{
+	struct snapshot *s = od->asked;
+	od->asked = NULL;
+	return s;
+}
+
 void outdir_tick(struct outdir *od, struct fit *f)
 {
 	if (od->running && atomic_load(&od->done))
 		join(od);
 	enum fit_state st = fit_get_state(f);
-	if (od->running || st == FIT_READY || fit_state_ended(st))
+	if (st == FIT_READY || fit_state_ended(st))
+		return;
+	if (od->ask) {
+		/* the caller's savepoint first; the periodic one waits a period */
+		struct snapshot *s = fit_take_savepoint(f);
+		if (s) {
+			snapshot_release(od->asked);
+			od->asked = s;
+			od->ask = od->want = 0;
+			od->last = util_now();
+		}
+		return;
+	}
+	if (od->running)
 		return;
 	double now = util_now();
 	int due = now - od->last >= od->cfg.every;
@@ -263,19 +365,97 @@ static void remove_earlier(const char *dir, const char *name)
 	free(path);
 }
 
-int outdir_write(struct outdir *od, const struct result_model *m,
-		 const struct result_meta *meta, const struct holdout *check)
+/* Every file of the result into dir (made, locked by the caller). */
+static int write_files(const struct outdir *od, const char *dir, const struct result_model *m,
+		       const struct result_meta *meta, const struct holdout *check)
 {
-	const char *dir = od->cfg.dir;
-	join(od);
-	if (result_prepare_dir(dir))
-		return -1;
 	if (meta && meta->selection && result_write_selection(dir, meta->selection))
 		return -1;
 	if (result_write(dir, od->cfg.g, &od->cfg.params, m, meta))
 		return -1;
 	if (check && result_write_links(dir, od->cfg.g, check, m->F, m->epsilon))
 		return -1;
+	return 0;
+}
+
+/* The folders a result goes to when its own cannot take it: DIR.saved-PID
+ * beside it, then NAME.saved-PID in $TMPDIR (or /tmp). Fills alt[i]
+ * (caller frees); returns how many. */
+static int elsewhere_names(const char *dir, char *alt[2])
+{
+	char *d = util_strdup(dir);
+	if (!d)
+		return 0;
+	size_t len = strlen(d);
+	while (len > 1 && d[len - 1] == '/')
+		d[--len] = '\0';
+	const char *slash = strrchr(d, '/');
+	const char *base = slash && slash[1] ? slash + 1 : d;
+	const char *tmpdir = getenv("TMPDIR");
+	if (!tmpdir || !*tmpdir)
+		tmpdir = "/tmp";
+	long pid = (long)getpid();
+	int n = 0;
+	size_t cap = len + strlen(tmpdir) + 64;
+	for (int i = 0; i < 2; i++) {
+		if (!(alt[n] = util_malloc(cap, 1)))
+			break;
+		if (i == 0)
+			snprintf(alt[n], cap, "%s.saved-%ld", d, pid);
+		else
+			snprintf(alt[n], cap, "%s/%s.saved-%ld", tmpdir, base, pid);
+		n++;
+	}
+	free(d);
+	return n;
+}
+
+/* The result into a folder of its own elsewhere; 0 and od->elsewhere set,
+ * or -1 (each failure reported). */
+static int write_elsewhere(struct outdir *od, const struct result_model *m,
+			   const struct result_meta *meta, const struct holdout *check)
+{
+	char *alt[2];
+	int n = elsewhere_names(od->cfg.dir, alt), rc = -1;
+	for (int i = 0; i < n; i++) {
+		struct dirlock *l = rc ? dirlock_new(alt[i], "coterie (a result saved elsewhere)") : NULL;
+		if (l && result_prepare_dir(alt[i]) == 0 && dirlock_take(l) == 0) {
+			dirlock_spare(l, 0);
+			if (write_files(od, alt[i], m, meta, check) == 0) {
+				rc = 0;
+				od->elsewhere = alt[i];
+				alt[i] = NULL;
+			}
+		}
+		dirlock_free(l);
+		free(alt[i]);
+	}
+	char esc[300], aesc[300];
+	util_escape(od->cfg.dir, esc, sizeof esc, 1);
+	if (rc == 0)
+		error("the result could not be written to '%s'; it is saved in '%s' instead", esc,
+		      util_escape(od->elsewhere, aesc, sizeof aesc, 1));
+	else
+		error("the result could not be written to '%s', nor anywhere else", esc);
+	return rc;
+}
+
+int outdir_write(struct outdir *od, const struct result_model *m,
+		 const struct result_meta *meta, const struct holdout *check)
+{
+	const char *dir = od->cfg.dir;
+	join(od);
+	free(od->elsewhere);
+	od->elsewhere = NULL;
+	dirlock_spare(od->cfg.lock, 0);
+	int rc = claim(od) ? -1 : write_files(od, dir, m, meta, check);
+	if (rc) {
+		write_elsewhere(od, m, meta, check);
+		dirlock_spare(od->cfg.lock, 1);
+		return -1;
+	}
+	dirlock_spare(od->cfg.lock, 1);
+	identity_of(od->ckpath, &od->seen);
 	/* the folder holds this run's files only; a continued result keeps
 	 * the search that chose its k */
 	if (!check)
@@ -285,11 +465,16 @@ int outdir_write(struct outdir *od, const struct result_model *m,
 	return 0;
 }
 
+const char *outdir_saved_in(const struct outdir *od)
+{
+	return od->elsewhere;
+}
+
 void outdir_free(struct outdir *od)
 {
-	if (!od)
-		return;
-	join(od);
-	free(od->ckpath);
-	free(od);
+	if (od) {
+		join(od); /* the periodic write, then what it and the caller leave */
+		snapshot_release(od->asked);
+		UTIL_FREE_ALL(od->elsewhere, od->ckpath, od);
+	}
 }

@@ -19,6 +19,7 @@
 #include "fit.h"
 #include "result.h"
 
+struct dirlock;
 struct graph;
 struct holdout;
 
@@ -51,7 +52,12 @@ struct outdir_config {
 				     * their own (the explorer's screen must not wait) */
 	int continues;              /* dir holds the result this run continues
 				     * (resumed in place): its k-selection.tsv,
-				     * the search that chose k, is kept */
+				     * the search that chose k, is kept; and it is
+				     * not written over once another process
+				     * rewrote it (outdir_changed()) */
+	struct dirlock *lock;       /* the writer's lock of dir (borrowed; NULL:
+				     * none); taken before the first write if
+				     * not held yet (dirlock.h) */
 };
 
 struct outdir;
@@ -67,14 +73,39 @@ void outdir_free(struct outdir *od);
  * the fit has ended. */
 void outdir_tick(struct outdir *od, struct fit *f);
 
-/* The final write: waits for a periodic write, makes the folder, writes
- * k-selection.tsv (when meta->selection), the whole folder from model m,
- * and held-out-links.tsv when check is not NULL (its pairs scored with
- * m->F and m->epsilon). Then, the new files in place, it removes those of
- * an earlier run that this one did not write: held-out-links.tsv, and
- * k-selection.tsv unless config.continues. All borrowed. Returns 0 or -1
- * with a message. */
+/* The final write: waits for a periodic write, makes the folder, takes
+ * its lock, writes k-selection.tsv (when meta->selection), the whole
+ * folder from model m, and held-out-links.tsv when check is not NULL (its
+ * pairs scored with m->F and m->epsilon). Then, the new files in place, it
+ * removes those of an earlier run that this one did not write:
+ * held-out-links.tsv, and k-selection.tsv unless config.continues. All
+ * borrowed. Returns 0 or -1 with a message. A result that cannot be
+ * written to the folder (locked by another writer, rewritten since it was
+ * opened, read-only, full, no descriptor) is written elsewhere before -1
+ * is returned: to the sibling folder DIR.saved-PID, else to
+ * $TMPDIR/NAME.saved-PID (/tmp without TMPDIR); outdir_saved_in() names
+ * it and the message says so. */
 int outdir_write(struct outdir *od, const struct result_model *m,
 		 const struct result_meta *meta, const struct holdout *check);
+
+/* The folder the last outdir_write() that failed saved the result in
+ * instead, or NULL (borrowed from od). */
+const char *outdir_saved_in(const struct outdir *od);
+
+/* 1 when config.continues and another process has rewritten the folder's
+ * checkpoint since od was made or last wrote it: the folder no longer
+ * holds the result this run continues, and od does not write over it.
+ * 0 while a periodic write runs on its thread. */
+int outdir_changed(const struct outdir *od);
+
+/* Ask fit f (borrowed) for a savepoint at the end of its sweep in
+ * progress, for a write the caller makes itself (the explorer's w): the
+ * snapshot that brings it is kept for outdir_take_asked() instead of
+ * being written as a periodic checkpoint. Returns 0, or -1 when the fit
+ * makes no savepoints (config.one_start): write its snapshot now. */
+int outdir_ask(struct outdir *od, struct fit *f);
+/* The snapshot asked for by outdir_ask(), once outdir_tick() found it;
+ * else NULL. Caller releases with snapshot_release(). */
+struct snapshot *outdir_take_asked(struct outdir *od);
 
 #endif

@@ -25,6 +25,7 @@
 #include <unistd.h>
 
 #include "cli.h"
+#include "coterie/dirlock.h"
 #include "coterie/fit.h"
 #include "coterie/graph.h"
 #include "coterie/holdout.h"
@@ -338,12 +339,14 @@ struct run {
 	int have_origin;
 	struct fit *f;
 	struct outdir *od;
+	struct dirlock *lock;        /* the output folder's, held from the start */
 	int interrupted;             /* 1: once, 2: twice */
 };
 
 static void run_release(struct run *r)
 {
 	outdir_free(r->od);
+	dirlock_free(r->lock);
 	fit_free(r->f);
 	holdout_release(&r->check);
 	select_result_release(&r->sel);
@@ -614,8 +617,11 @@ int cmd_fit(int argc, char **argv)
 		return rc;
 	rc = 1;
 	util_set_quiet(r->quiet);
-	/* refuse early: a long fit whose result cannot be written is lost work */
-	if (result_prepare_dir(r->o.out) || proc_signals_install())
+	/* refuse early: a long fit whose result cannot be written is lost
+	 * work, and so is one a second writer of the folder would replace */
+	if (result_prepare_dir(r->o.out) || proc_signals_install() ||
+	    !(r->lock = dirlock_new(r->o.out, proc_command_line())) || dirlock_take(r->lock) ||
+	    dirlock_reserve(r->lock))
 		goto out;
 	r->t_begin = util_now();
 	int loaded = r->resume ? load_resume(r) : load_graph(r);
@@ -634,6 +640,7 @@ int cmd_fit(int argc, char **argv)
 		.every = r->o.checkpoint_every > 0 ? r->o.checkpoint_every : 120.0,
 		.one_start = r->resume && !r->ck.savepoint,
 		.continues = r->resume && same_folder(r->resume, r->o.out),
+		.lock = r->lock,
 	};
 	if (!r->f || !(r->od = outdir_new(&oc)))
 		goto out;

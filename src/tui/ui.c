@@ -14,11 +14,21 @@
  *
  * Leaving never loses work: quitting with 'y', Ctrl-C, SIGTERM, SIGHUP or
  * a vanished terminal stop the fit, write the result folder if the model
- * on screen has not been written, and only then end curses. tui_run() has
+ * on screen has not been written, and only then end curses. A signal or a
+ * lost terminal lets the sweep in progress end (fit_interrupt()), so the
+ * folder it saves resumes exactly, as `w` and the autosave do.
+ *
+ * One writer per folder (dirlock.h): a session whose fit runs takes the
+ * result folder's lock as soon as the folder exists (at start, on 'e', or
+ * at the first write); a session that only browses takes none. When
+ * another process holds it, or rewrote the folder since it was opened,
+ * the footer says so and the model is not called saved: its writes go to
+ * a folder beside it (outdir.h). tui_run() has
  * one cleanup path: whatever start() got to is undone by teardown(), and
  * what must be said on the terminal is said after curses ended.
  */
 #include <errno.h>
+#include <fcntl.h>
 #include <poll.h>
 #include <pthread.h>
 #include <signal.h>
@@ -26,8 +36,10 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/resource.h>
 #include <unistd.h>
 
+#include "coterie/dirlock.h"
 #include "coterie/graph.h"
 #include "coterie/proc.h"
 #include "coterie/outdir.h"
@@ -100,30 +112,6 @@ static void stop_and_wait(struct view *v)
 	view_take_snapshot(v);
 }
 
-/*
- * Autosave: while a fit runs, its checkpoint is written to the result
- * folder every AUTOSAVE_SECONDS, on a thread of its own (a large model
- * takes a while to write, and the screen must not wait), so a crash or a
- * killed machine loses at most that much work; `explore DIR` reopens it
- * and `fit --resume DIR` ends as the uninterrupted fit would (outdir.h).
- */
-#define AUTOSAVE_SECONDS 120.0
-
-static struct outdir *autosave_open(const struct view *v, const struct tui_config *cfg)
-{
-	/* COTERIE_AUTOSAVE_SECONDS: a shorter interval, for the tests */
-	const char *as_env = getenv("COTERIE_AUTOSAVE_SECONDS");
-	struct outdir_config oc = {
-		.dir = v->outdir, .g = v->g, .params = v->params,
-		.every = as_env && atof(as_env) > 0 ? atof(as_env) : AUTOSAVE_SECONDS,
-		.one_start = cfg->one_start, .background = 1,
-		.continues = cfg->reopened && cfg->outdir_holds_result,
-	};
-	if (cfg->checkpoint_every > 0)
-		oc.every = cfg->checkpoint_every;
-	return outdir_new(&oc);
-}
-
 /* What the loop keeps besides the view, and how the session ended. */
 struct loop {
 	const struct tui_config *cfg;
@@ -139,15 +127,69 @@ struct loop {
 	/* the end, said after curses */
 	int sig;
 	int wrote, write_failed;
+	/* the result folder's writer lock (dirlock.h) */
+	struct dirlock *lock;
+	int lock_tried;
 	char last_error[512];
 };
+
+/*
+ * Autosave: while a fit runs, its checkpoint is written to the result
+ * folder every AUTOSAVE_SECONDS, on a thread of its own (a large model
+ * takes a while to write, and the screen must not wait), so a crash or a
+ * killed machine loses at most that much work; `explore DIR` reopens it
+ * and `fit --resume DIR` ends as the uninterrupted fit would (outdir.h).
+ */
+#define AUTOSAVE_SECONDS 120.0
+
+static struct outdir *autosave_open(const struct view *v, const struct loop *l,
+				    const struct tui_config *cfg)
+{
+	/* COTERIE_AUTOSAVE_SECONDS: a shorter interval, for the tests */
+	const char *as_env = getenv("COTERIE_AUTOSAVE_SECONDS");
+	struct outdir_config oc = {
+		.dir = v->outdir, .g = v->g, .params = v->params,
+		.every = as_env && atof(as_env) > 0 ? atof(as_env) : AUTOSAVE_SECONDS,
+		.one_start = cfg->one_start, .background = 1,
+		.continues = cfg->reopened && cfg->outdir_holds_result,
+		.lock = l->lock,
+	};
+	if (cfg->checkpoint_every > 0)
+		oc.every = cfg->checkpoint_every;
+	return outdir_new(&oc);
+}
+
+
+/* At least need descriptors are free (need <= FDS_MAX), else say so with
+ * the real cause: curses would blame the terminal type, a write would
+ * fail only at the end. Returns 0 or -1. */
+#define FDS_MAX 8
+static int fds_free(int need)
+{
+	int fd[FDS_MAX], got = 0, e = 0;
+	while (got < need && (fd[got] = fcntl(STDERR_FILENO, F_DUPFD_CLOEXEC, 0)) >= 0)
+		got++;
+	if (got < need)
+		e = errno;
+	while (got > 0)
+		close(fd[--got]);
+	if (!e)
+		return 0;
+	struct rlimit rl;
+	if (e == EMFILE && getrlimit(RLIMIT_NOFILE, &rl) == 0 && rl.rlim_cur != RLIM_INFINITY)
+		return error("too few file descriptors for the explorer: the limit (ulimit -n) is "
+			     "%llu; raise it", (unsigned long long)rl.rlim_cur);
+	return error("cannot start the explorer: %s", strerror(e));
+}
 
 /* Take the terminal and start what runs beside the loop: the pager, the
  * fit (cfg->start), the autosave clock. Returns 0, or -1 with a message. */
 static int start(struct view *v, struct loop *l, const struct tui_config *cfg)
 {
 	struct term_caps caps;
-	if (term_start("'coterie fit' works without one", &caps))
+	/* what the session opens: the terminal's description (curses), the
+	 * pager's pipe, the folder's lock and its spares for the writes */
+	if (fds_free(4 + DIRLOCK_SPARE) || term_start("'coterie fit' works without one", &caps))
 		return -1;
 	const char *tpath = getenv("COTERIE_TUI_TIMING");
 	if (tpath && *tpath)
@@ -173,8 +215,35 @@ static int start(struct view *v, struct loop *l, const struct tui_config *cfg)
 			 "(-o chooses another); ? lists the keys");
 
 	l->last_tick = util_now();
-	v->od = autosave_open(v, cfg);
+	l->lock = dirlock_new(v->outdir, proc_command_line());
+	v->od = autosave_open(v, l, cfg);
 	return 0;
+}
+
+/*
+ * The folder's lock, once the fit runs and the folder exists (a default
+ * folder not made yet is locked by its first write); and the truth about
+ * "saved": a folder another process rewrote no longer holds this model.
+ */
+static void guard_folder(struct view *v, struct loop *l)
+{
+	char esc[300];
+	if (v->started && !l->lock_tried && l->lock && access(v->outdir, F_OK) == 0) {
+		l->lock_tried = 1;
+		if (dirlock_take(l->lock) == 0) {
+			dirlock_reserve(l->lock); /* a failure is in the inbox */
+		} else {
+			v->saved = 0;
+			view_say(v, UTIL_WARNING, "another process writes '%s': this session "
+				 "saves beside it", util_escape(v->outdir, esc, sizeof esc, !v->utf8));
+		}
+	}
+	if (v->saved && v->od && outdir_changed(v->od)) {
+		v->saved = 0;
+		v->dirty |= DIRTY_HEADER;
+		view_say(v, UTIL_WARNING, "'%s' was rewritten by another process: this model is "
+			 "not saved there", util_escape(v->outdir, esc, sizeof esc, !v->utf8));
+	}
 }
 
 /* The first half of a pass: bring the state up to date and draw it. */
@@ -205,11 +274,14 @@ static void update_and_draw(struct view *v, struct loop *l)
 	if (v->params_changed) {
 		/* the checkpoints and the result record the parameters in force */
 		outdir_free(v->od);
-		v->od = autosave_open(v, l->cfg);
+		v->od = autosave_open(v, l, l->cfg);
 		v->params_changed = 0;
 	}
+	guard_folder(v, l);
 	if (v->started && v->od)
 		outdir_tick(v->od, v->fit);
+	if (v->write_asked)
+		view_write_asked(v);
 	view_prepare(v);
 	if (v->dirty)
 		screen_draw(&l->screen, v);
@@ -310,8 +382,16 @@ static int leave(struct view *v, struct loop *l)
 				 v->want_write && (view_running(v) || view_unsaved(v)) ? " and saving" : "");
 			screen_draw(&l->screen, v);
 		}
-		stop_and_wait(v);
+		if (v->want_write && v->started && !v->stop_asked) {
+			/* the sweep in progress ends, so that the save resumes exactly */
+			fit_interrupt(v->fit);
+			fit_wait(v->fit);
+			view_take_snapshot(v);
+		} else {
+			stop_and_wait(v);
+		}
 	}
+	v->write_asked = 0;
 	if (v->want_write && view_unsaved(v)) {
 		if (view_write(v, l->sig || l->hangup ? "interrupted" : NULL) == 0)
 			l->wrote = 1;
@@ -345,9 +425,15 @@ static int report(const struct view *v, const struct loop *l, int status)
 	char dir[300];
 	util_escape(v->outdir, dir, sizeof dir, 1);
 	if (l->write_failed) {
+		char alt[300];
+		const char *in = v->od ? outdir_saved_in(v->od) : NULL;
 		if (l->last_error[0])
 			error("%s", l->last_error);
-		error("the result could not be written to '%s'", dir);
+		if (in)
+			error("the result could not be written to '%s'; it is saved in '%s'", dir,
+			      util_escape(in, alt, sizeof alt, 1));
+		else
+			error("the result could not be written to '%s'", dir);
 		status = 1;
 	} else if (l->wrote) {
 		notice("the result at sweep %u is in '%s'", v->saved_sweep, dir);
@@ -393,8 +479,10 @@ int tui_run(struct tui_config *cfg)
 		teardown(v, l);
 		status = report(v, l, status);
 	}
-	free(l);
 	outdir_free(v->od); /* joins the autosave thread */
+	if (l)
+		dirlock_free(l->lock); /* before the folder is checked for emptiness */
+	free(l);
 	forget_empty_outdir(v->outdir, created);
 	fit_free(v->fit);
 	view_release(v);

@@ -660,20 +660,10 @@ void view_prepare(struct view *v)
 
 /* ---- writing ---- */
 
-int view_write(struct view *v, const char *status)
+/* Write snapshot s (borrowed) in state st. Returns 0 or -1. */
+static int write_snapshot(struct view *v, const struct snapshot *s, enum fit_state st,
+			  const char *status)
 {
-	struct snapshot *s = fit_snapshot(v->fit);
-	enum fit_state st = v->started ? fit_get_state(v->fit) : v->saved_state;
-	if (s->ntrace == 0) {
-		snapshot_release(s);
-		view_say(v, UTIL_WARNING, "nothing to write yet: the fit is still seeding");
-		return -1;
-	}
-	if (st == FIT_FAILED) {
-		snapshot_release(s);
-		view_say(v, UTIL_ERROR, "the fit failed; nothing is written");
-		return -1;
-	}
 	/* a reopened result's snapshot says "ready"; the record keeps the
 	 * state it was saved in */
 	struct result_model m;
@@ -689,19 +679,65 @@ int view_write(struct view *v, const char *status)
 		.selection = v->selection,
 	};
 	int rc = v->od ? outdir_write(v->od, &m, &meta, NULL) : error("out of memory");
+	char esc[300];
 	if (rc == 0) {
 		v->saved = 1;
 		v->saved_sweep = s->sweep;
 		v->saved_loglik = s->trace[s->ntrace - 1].loglik;
 		v->saved_as = st;
 		v->write_failed = 0;
-		char esc[300];
-		view_say(v, UTIL_NOTICE, "wrote the result at sweep %u to '%s'", s->sweep,
-			 util_escape(v->outdir, esc, sizeof esc, !v->utf8));
+		view_say(v, UTIL_NOTICE, "wrote the result at sweep %u to '%s'%s", s->sweep,
+			 util_escape(v->outdir, esc, sizeof esc, !v->utf8),
+			 s->savepoint ? " (it resumes exactly)" : "");
 	} else {
-		v->write_failed = 1; /* the core's message is on its way to the footer */
+		/* the folder does not hold this model; the core's message (and
+		 * where the result went instead) is on its way to the footer */
+		v->saved = 0;
+		v->write_failed = 1;
 	}
 	v->dirty |= DIRTY_HEADER | DIRTY_FOOTER;
+	return rc;
+}
+
+int view_write(struct view *v, const char *status)
+{
+	struct snapshot *s = fit_snapshot(v->fit);
+	enum fit_state st = v->started ? fit_get_state(v->fit) : v->saved_state;
+	if (s->ntrace == 0) {
+		snapshot_release(s);
+		view_say(v, UTIL_WARNING, "nothing to write yet: the fit is still seeding");
+		return -1;
+	}
+	if (st == FIT_FAILED) {
+		snapshot_release(s);
+		view_say(v, UTIL_ERROR, "the fit failed; nothing is written");
+		return -1;
+	}
+	if (!status && st == FIT_FITTING && !v->pause_asked && v->od &&
+	    (v->write_asked || outdir_ask(v->od, v->fit) == 0)) {
+		snapshot_release(s);
+		v->write_asked = 1;
+		view_say(v, UTIL_NOTICE, "writing at the end of the sweep in progress, so that the "
+			 "result resumes exactly");
+		return 0;
+	}
+	int rc = write_snapshot(v, s, st, status);
 	snapshot_release(s);
 	return rc;
+}
+
+int view_write_asked(struct view *v)
+{
+	struct snapshot *s = v->od ? outdir_take_asked(v->od) : NULL;
+	if (s) {
+		v->write_asked = 0;
+		int rc = write_snapshot(v, s, s->state, NULL);
+		snapshot_release(s);
+		return rc;
+	}
+	enum fit_state st = fit_get_state(v->fit);
+	if (st == FIT_FITTING && !v->pause_asked)
+		return 1;
+	v->write_asked = 0; /* no sweep will end: the model as it is */
+	return view_write(v, NULL);
 }

@@ -106,6 +106,8 @@ struct view {
 				   * same sweep with another model) */
 	enum fit_state saved_as;
 	int write_failed;
+	int write_asked;          /* w waits for the savepoint at the end of
+				   * the sweep in progress (outdir_ask()) */
 
 	/* layout (view_layout(); the windows are in struct screen) */
 	int rows, cols;
@@ -245,9 +247,18 @@ void view_say(struct view *v, int level, const char *fmt, ...) COTERIE_PRINTF(3,
 int view_unsaved(const struct view *v);
 /* 1 when the fitting thread is still working (not ended, not unstarted). */
 int view_running(const struct view *v);
-/* Write the result folder from the newest snapshot; status for run.json.
- * Returns 0 or -1 (the reason is in the footer). */
+/* Write the result folder; status for run.json. A fit that is fitting
+ * (and makes savepoints) is asked for one at the end of the sweep in
+ * progress and the write waits for it (write_asked, view_write_asked()),
+ * so every saved fit resumes exactly; else the newest snapshot is
+ * written at once. Returns 0 (written, or asked) or -1 (the reason is in
+ * the footer; a result the folder could not take is saved elsewhere and
+ * the footer names where). */
 int view_write(struct view *v, const char *status);
+/* Write the savepoint view_write() asked for once it came (takes it from
+ * v->od); the fit ended or paused meanwhile, its newest snapshot. Call
+ * every pass while write_asked. Returns as view_write(), 1 while waiting. */
+int view_write_asked(struct view *v);
 /* Display state: the live one, or the saved one for a reopened result. */
 enum fit_state view_state(const struct view *v);
 const char *view_state_label(enum fit_state s);
