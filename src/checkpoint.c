@@ -71,8 +71,8 @@ const char *checkpoint_check_params(const struct fit_params *p, char *why, size_
 			 CK_MAX_THREADS);
 	else if (!isfinite(p->tol) || p->tol < 0)
 		snprintf(why, cap, "tolerance %g is not a finite number >= 0", p->tol);
-	else if (!isfinite(p->epsilon) || p->epsilon >= 1.0)
-		snprintf(why, cap, "background %g is not a finite number below 1", p->epsilon);
+	else if (!(p->epsilon >= 0.0 && p->epsilon < 1.0))
+		snprintf(why, cap, "background %g is not in [0, 1) (0: the default)", p->epsilon);
 	else if (p->past_plateau != 0 && p->past_plateau != 1)
 		snprintf(why, cap, "past_plateau is %d, not 0 or 1", p->past_plateau);
 	else if (p->starts == 0 || p->starts > CK_MAX_STARTS)
@@ -85,18 +85,22 @@ const char *checkpoint_check_params(const struct fit_params *p, char *why, size_
 	return why;
 }
 
-const char *checkpoint_check_state(uint32_t sweep, uint32_t plateau_sweep, uint32_t state,
-			       double seconds, double epsilon, char *why, size_t cap)
+const char *checkpoint_check_state(const struct fit_params *p, uint32_t sweep,
+				   uint32_t plateau_sweep, uint32_t state, double seconds,
+				   double epsilon, char *why, size_t cap)
 {
-	if (plateau_sweep > sweep)
+	if (sweep > p->max_sweeps)
+		snprintf(why, cap, "sweep %" PRIu32 " is past the limit of %" PRIu32 " sweeps",
+			 sweep, p->max_sweeps);
+	else if (plateau_sweep > sweep)
 		snprintf(why, cap, "plateau at sweep %" PRIu32 " after the last sweep %" PRIu32,
 			 plateau_sweep, sweep);
 	else if (state > FIT_FAILED)
 		snprintf(why, cap, "unknown fit state %" PRIu32, state);
 	else if (!isfinite(seconds) || seconds < 0)
 		snprintf(why, cap, "elapsed time %g is not a finite number >= 0", seconds);
-	else if (!(epsilon >= 0.0 && epsilon < 1.0))
-		snprintf(why, cap, "background %g is not in [0, 1)", epsilon);
+	else if (!(epsilon > 0.0 && epsilon < 1.0))
+		snprintf(why, cap, "background %g is not in (0, 1)", epsilon);
 	else
 		return NULL;
 	return why;
@@ -116,11 +120,21 @@ const char *checkpoint_check_trace(const struct trace_point *t, uint32_t n, uint
 				 ", after the last sweep %" PRIu32, i, t[i].sweep, sweep);
 			return why;
 		}
-		if (!isfinite(t[i].seconds) || t[i].seconds < 0 || !isfinite(t[i].loglik)) {
-			snprintf(why, cap, "trace point %" PRIu32 " has time %g and log-likelihood %g",
-				 i, t[i].seconds, t[i].loglik);
+		/* every pair's log-probability is <= 0, so their sum is too
+		 * (held-out pairs are left out, not added); CK_LOGLIK_SLACK
+		 * allows rounding of the running sum near 0 */
+		if (!isfinite(t[i].seconds) || t[i].seconds < 0 || !isfinite(t[i].loglik) ||
+		    t[i].loglik > CK_LOGLIK_SLACK) {
+			snprintf(why, cap, "trace point %" PRIu32 " has time %g and log-likelihood %g"
+				 " (a time >= 0 and a log-likelihood <= 0 expected)", i,
+				 t[i].seconds, t[i].loglik);
 			return why;
 		}
+	}
+	if (n > 0 && t[n - 1].sweep != sweep) {
+		snprintf(why, cap, "the trace ends at sweep %" PRIu32 ", not at the last sweep %"
+			 PRIu32, t[n - 1].sweep, sweep);
+		return why;
 	}
 	return NULL;
 }
@@ -172,13 +186,16 @@ const char *checkpoint_check_strengths(const struct fcsr *F, char *why, size_t c
 
 /* One start's part of a savepoint: a trace ending at its sweep,
  * strengths of n x k. */
-static const char *check_part(const struct fit_part *pt, uint32_t n, uint32_t k,
+static const char *check_part(const struct fit_part *pt, uint32_t n, const struct fit_params *p,
 			      const char *what, char *why, size_t cap)
 {
 	char sub[200];
 	const char *bad = NULL;
+	uint32_t k = p->k;
 	if (pt->ntrace == 0 || !pt->trace)
 		bad = "its trace is empty";
+	else if (pt->sweep > p->max_sweeps)
+		bad = "its last sweep is past the limit of sweeps";
 	else if (pt->plateau_sweep > pt->sweep)
 		bad = "its plateau comes after its last sweep";
 	else if (pt->trace[pt->ntrace - 1].sweep != pt->sweep)
@@ -207,14 +224,14 @@ const char *checkpoint_check_resume(const struct fit_savepoint *r, uint32_t n,
 	else if (r->best_start >= r->start)
 		snprintf(why, cap, "the best start %" PRIu32 " is not before start %" PRIu32,
 			 r->best_start, r->start);
-	else if ((bad = check_part(&r->cur, n, p->k, "the interrupted start", why, cap)))
+	else if ((bad = check_part(&r->cur, n, p, "the interrupted start", why, cap)))
 		return bad;
 	else if (!r->best_start)
 		return NULL;
 	else if (r->best_state != FIT_LEVELLED && r->best_state != FIT_FINISHED)
 		snprintf(why, cap, "the best start ended in state %u, not levelled or finished",
 			 (unsigned)r->best_state);
-	else if ((bad = check_part(&r->best, n, p->k, "the best start", why, cap)))
+	else if ((bad = check_part(&r->best, n, p, "the best start", why, cap)))
 		return bad;
 	else if (!(r->best_loglik == r->best.trace[r->best.ntrace - 1].loglik))
 		snprintf(why, cap, "the best start's log-likelihood is not its trace's last");
@@ -231,6 +248,7 @@ struct ck_args {
 	const struct fit_params *p;
 	const struct result_model *m;
 	const struct fit_savepoint *savepoint; /* m->savepoint when it is sound, else NULL */
+	struct fit_params saved;               /* *p as stored (see stored_params()) */
 };
 
 static void put_section(struct atomicfile *w, const char *tag, uint64_t len)
@@ -306,7 +324,7 @@ static int fill_checkpoint(struct atomicfile *w, const void *arg)
 {
 	const struct ck_args *a = arg;
 	const struct graph *g = a->g;
-	const struct fit_params *p = a->p;
+	const struct fit_params *p = &a->saved;
 	const struct result_model *s = a->m;
 	const struct fcsr *F = s->F;
 
@@ -368,9 +386,27 @@ static int fill_checkpoint(struct atomicfile *w, const void *arg)
 	return 0;
 }
 
+/* The parameters as stored: a fit resumed with a --max-sweeps below the
+ * sweeps it had already run stops at once, as if its limit were those
+ * sweeps; that limit is stored, so that "sweep <= max_sweeps" holds in
+ * every checkpoint. */
+static void stored_params(const struct fit_params *p, const struct result_model *s,
+			  struct fit_params *out)
+{
+	*out = *p;
+	uint32_t most = s->sweep;
+	const struct fit_savepoint *r = s->savepoint;
+	if (r && r->cur.sweep > most)
+		most = r->cur.sweep;
+	if (r && r->best_start && r->best.sweep > most)
+		most = r->best.sweep;
+	if (out->max_sweeps < most)
+		out->max_sweeps = most;
+}
+
 /* Refuse to save what the reader would refuse: 0 or -1. A savepoint
  * the reader would refuse is left out with a warning rather than losing
- * the save (*resume says which). */
+ * the save (*resume says which). p is the parameters as stored. */
 static int checkpoint_ok(const char *path, const struct graph *g, const struct fit_params *p,
 			 const struct result_model *s, const struct fit_savepoint **resume)
 {
@@ -390,7 +426,7 @@ static int checkpoint_ok(const char *path, const struct graph *g, const struct f
 	if (!bad)
 		bad = checkpoint_check_params(p, why, sizeof why);
 	if (!bad)
-		bad = checkpoint_check_state(s->sweep, s->plateau_sweep, (uint32_t)s->state, s->seconds,
+		bad = checkpoint_check_state(p, s->sweep, s->plateau_sweep, (uint32_t)s->state, s->seconds,
 				  s->epsilon, why, sizeof why);
 	if (!bad)
 		bad = checkpoint_check_trace(s->trace, s->ntrace, s->sweep, why, sizeof why);
@@ -410,8 +446,9 @@ static int checkpoint_ok(const char *path, const struct graph *g, const struct f
 int checkpoint_write(const char *path, const struct graph *g, const struct fit_params *p,
 		     const struct result_model *m)
 {
-	struct ck_args a = { g, p, m, NULL };
-	if (checkpoint_ok(path, g, p, m, &a.savepoint))
+	struct ck_args a = { g, p, m, NULL, { 0 } };
+	stored_params(p, m, &a.saved);
+	if (checkpoint_ok(path, g, &a.saved, m, &a.savepoint))
 		return -1;
 	return atomicfile_replace(path, fill_checkpoint, &a);
 }
@@ -420,11 +457,12 @@ int checkpoint_stage(struct atomicfile_set *set, const char *dir, const char *na
 		     const struct graph *g, const struct fit_params *p,
 		     const struct result_model *m)
 {
-	struct ck_args a = { g, p, m, NULL };
+	struct ck_args a = { g, p, m, NULL, { 0 } };
+	stored_params(p, m, &a.saved);
 	char *path = atomicfile_path(dir, name);
 	if (!path)
 		return -1;
-	int rc = checkpoint_ok(path, g, p, m, &a.savepoint);
+	int rc = checkpoint_ok(path, g, &a.saved, m, &a.savepoint);
 	free(path);
 	if (rc)
 		return -1;

@@ -509,7 +509,7 @@ static int read_body(const char *path, struct rd *body, uint32_t version,
 	state = rd_u32(&sec);
 	ck->seconds = rd_f64(&sec);
 	ck->epsilon = rd_f64(&sec);
-	if ((bad = checkpoint_check_state(ck->sweep, ck->plateau_sweep, state, ck->seconds, ck->epsilon,
+	if ((bad = checkpoint_check_state(p, ck->sweep, ck->plateau_sweep, state, ck->seconds, ck->epsilon,
 			       why, sizeof why)))
 		return damaged(path, "%s", bad);
 	ck->state = (enum fit_state)state;

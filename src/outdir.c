@@ -51,6 +51,7 @@
 #include "coterie/dirlock.h"
 #include "coterie/graph.h"
 #include "coterie/holdout.h"
+#include "coterie/result_cover.h"
 #include "coterie/util.h"
 
 /* Which file a path names, and which version of it. */
@@ -106,6 +107,8 @@ int outdir_read(const char *dir, struct checkpoint *ck)
 	}
 	int rc = checkpoint_read(path, ck);
 	free(path);
+	if (rc == 0)
+		result_cover_check_folder(dir, ck); /* i18check: warn on a mix of files */
 	return rc;
 }
 

@@ -32,6 +32,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <unistd.h>
 
 #include <jansson.h>
 
@@ -41,6 +42,7 @@
 #include "coterie/result.h"
 #include "coterie/graph.h"
 #include "coterie/inspect.h"
+#include "coterie/model.h"
 #include "coterie/util.h"
 
 #define RUN_JSON "run.json"
@@ -339,4 +341,100 @@ int result_cover_read(struct agm *out, const char *dir, const struct checkpoint 
 		*from = RESULT_COVER_UNREFINED;
 	}
 	return agm_from_strengths(out, ck->graph, &ck->F, ck->epsilon, delta, AGM_MIN_LINKS);
+}
+
+/* ---- the folder's files against its checkpoint ---- */
+
+static int cmp_u64(const void *pa, const void *pb)
+{
+	uint64_t a = *(const uint64_t *)pa, b = *(const uint64_t *)pb;
+	return (a > b) - (a < b);
+}
+
+/* The (node, column) pairs of a cover whose community i is column
+ * a->comms[i].id (a NULL: its label, a number), sorted, into a new array
+ * (caller frees with free()); NULL on a label that is not a column below
+ * k, or no memory. */
+static uint64_t *cover_pairs(const struct cover *c, const struct agm *a, uint32_t k)
+{
+	uint64_t n = c->off[c->k], at = 0;
+	uint64_t *pairs = util_malloc(n ? n : 1, sizeof *pairs);
+	for (uint32_t i = 0; pairs && i < c->k; i++) {
+		unsigned long col = a ? a->comms[i].id : k;
+		if (!a) {
+			char *end;
+			errno = 0;
+			col = strtoul(c->label[i], &end, 10);
+			if (errno || end == c->label[i] || *end)
+				col = k;
+		}
+		if (col >= k) {
+			free(pairs);
+			return NULL;
+		}
+		for (uint64_t j = c->off[i]; j < c->off[i + 1]; j++)
+			pairs[at++] = (uint64_t)c->mem[j] << 32 | col;
+	}
+	if (pairs)
+		qsort(pairs, n, sizeof *pairs, cmp_u64);
+	return pairs;
+}
+
+/* Does memberships.tsv (present) list the cover the strengths of ck give
+ * by the rule? 1 yes, 0 no (or unreadable), -1 no memory. */
+static int memberships_match(const char *path, const struct checkpoint *ck)
+{
+	struct cover file;
+	struct agm a;
+	memset(&a, 0, sizeof a);
+	memset(&file, 0, sizeof file);
+	if (cover_load(&file, path, ck->graph)) /* said why */
+		return 0;
+	int same = -1;
+	double delta = sqrt(model_qeps(ck->epsilon));
+	if (agm_from_strengths(&a, ck->graph, &ck->F, ck->epsilon, delta, AGM_MIN_LINKS) == 0) {
+		uint64_t *x = cover_pairs(&file, NULL, ck->F.k);
+		uint64_t *y = cover_pairs(&a.cover, &a, ck->F.k);
+		uint64_t nx = file.off[file.k], ny = a.cover.off[a.cover.k];
+		same = y ? x && nx == ny && (nx == 0 || !memcmp(x, y, nx * sizeof *x)) : -1;
+		free(x);
+		free(y);
+		agm_release(&a);
+	}
+	cover_release(&file);
+	return same;
+}
+
+void result_cover_check_folder(const char *dir, const struct checkpoint *ck)
+{
+	json_t *root = load_run_json(dir);
+	if (root) {
+		const char *fp = json_string_value(
+			json_object_get(json_object_get(root, "graph"), "fingerprint"));
+		json_t *sweeps = json_object_get(json_object_get(root, "fit"), "sweeps");
+		char hex[17];
+		snprintf(hex, sizeof hex, "%016" PRIx64, ck->fingerprint);
+		int other_graph = !fp || strcmp(fp, hex) != 0;
+		if (other_graph)
+			warning("run.json is of another graph (fingerprint %s) than %s (%s): the "
+				"folder mixes two results; %s is the one read", fp ? fp : "missing",
+				RESULT_CHECKPOINT, hex, RESULT_CHECKPOINT);
+		else if (!json_is_integer(sweeps) ||
+			 json_integer_value(sweeps) != (json_int_t)ck->sweep)
+			warning("run.json is of another fit (%" JSON_INTEGER_FORMAT " sweeps) than "
+				"%s (%" PRIu32 " sweeps): the folder mixes two results; %s is the "
+				"one read", json_integer_value(sweeps), RESULT_CHECKPOINT, ck->sweep,
+				RESULT_CHECKPOINT);
+		int mixed = other_graph || json_integer_value(sweeps) != (json_int_t)ck->sweep;
+		json_decref(root);
+		if (mixed)
+			return;
+	}
+	if (result_cover_is_refined(dir))
+		return; /* read_refined() checks that cover against run.json */
+	char *path = atomicfile_path(dir, "memberships.tsv");
+	if (path && access(path, F_OK) == 0 && memberships_match(path, ck) == 0)
+		warning("memberships.tsv is not the cover of the strengths in %s (edited, or of "
+			"another fit): the strengths' cover is the one read", RESULT_CHECKPOINT);
+	free(path);
 }

@@ -45,6 +45,15 @@ int result_cover_is_refined(const char *dir);
 int result_cover_read(struct agm *out, const char *dir, const struct checkpoint *ck,
 		      double delta, enum result_cover_from *from);
 
+/* Warn when the files of result folder dir do not belong with its
+ * checkpoint ck (borrowed, read from dir): run.json of another graph
+ * (fingerprint) or another fit (sweeps), or, for a cover not refined, a
+ * memberships.tsv that is not the strengths' cover by the rule (edited,
+ * or of another fit). Missing files are not warned of. The checkpoint
+ * carries its own graph and is what readers use; a mix is warned, not
+ * refused (coterie-files(5)). */
+void result_cover_check_folder(const char *dir, const struct checkpoint *ck);
+
 /* Is node u a member of community a->comms[index] (a binary search of its
  * sorted members)? */
 int result_cover_has(const struct agm *a, uint32_t index, uint32_t u);

@@ -750,6 +750,7 @@ static int show_open(struct show *s)
 	if (checkpoint_read(path, &s->ck))
 		return -1;
 	s->delta = sqrt(model_qeps(s->ck.epsilon));
+	result_cover_check_folder(s->dir, &s->ck);
 	if (result_cover_read(&s->agm, s->dir, &s->ck, s->delta, &s->from)) {
 		checkpoint_release(&s->ck);
 		return -1;

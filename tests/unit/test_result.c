@@ -1172,6 +1172,72 @@ static void test_checkpoint_refuses_bad_contents_under_a_valid_checksum(void **s
 	test_rmtree(dir);
 }
 
+/* Each field is checked against what it means, not only its range: a
+ * checkpoint with a recomputed checksum but sweep 4294967295, a
+ * log-likelihood of 1e308 or max_sweeps 0 is refused (issue 18). PARM:
+ * k, threads, seed, tol, patience, max_sweeps (+28), epsilon (+32), ...;
+ * STAT: sweep, plateau_sweep, state, seconds (+12), epsilon (+20); trace
+ * point i at 4 + 20 i: sweep, seconds (+4), loglik (+12). The fixture ran
+ * 4 sweeps of at most 500. */
+static void test_checkpoint_checks_fields_against_their_meaning(void **state)
+{
+	(void)state;
+	char dir[4096];
+	const char *path = checkpoint_file(dir, sizeof dir);
+	struct crafted c;
+	craft_begin(&c, path);
+
+	put_le(c.buf + c.stat, 0xffffffffULL, 4);
+	REFUSED(&c, "past the limit of 500 sweeps");
+	put_le(c.buf + c.parm + 28, 0, 4);
+	REFUSED(&c, "sweep 4 is past the limit of 0 sweeps");
+	put_le(c.buf + c.parm + 28, 3, 4);
+	REFUSED(&c, "past the limit of 3 sweeps");
+	put_le(c.buf + c.stat, 6, 4); /* within the limit, but the trace stops at 4 */
+	REFUSED(&c, "the trace ends at sweep 4, not at the last sweep 6");
+	/* a log-likelihood is a sum of log-probabilities: never above 0 */
+	put_f64(c.buf + c.trac + 4 + 1 * 20 + 12, 1e308);
+	REFUSED(&c, "trace point 1");
+	put_f64(c.buf + c.trac + 4 + 1 * 20 + 12, 0.5);
+	REFUSED(&c, "log-likelihood <= 0");
+	put_f64(c.buf + c.trac + 4 + 2 * 20 + 4, -1.0); /* time of point 2 */
+	REFUSED(&c, "trace point 2");
+	put_f64(c.buf + c.stat + 12, -1.0);
+	REFUSED(&c, "elapsed time");
+	put_f64(c.buf + c.stat + 12, INFINITY);
+	REFUSED(&c, "elapsed time");
+	put_f64(c.buf + c.stat + 20, 0.0); /* the model's background is never 0 */
+	REFUSED(&c, "background 0 is not in (0, 1)");
+	put_f64(c.buf + c.stat + 20, -0.25);
+	REFUSED(&c, "background");
+	put_f64(c.buf + c.parm + 32, -0.25); /* the asked one may be 0, not below */
+	REFUSED(&c, "background -0.25");
+
+	/* the writer refuses the same (it shares the validators) */
+	struct trace_point saved = fx.trace[1];
+	fx.trace[1].loglik = 1e308;
+	quiet_on();
+	assert_int_equal(checkpoint_write(path, fx.g, &fx.p, model_of(&fx.s)), -1);
+	quiet_off();
+	assert_non_null(strstr(last_msg, "log-likelihood"));
+	fx.trace[1] = saved;
+
+	/* a fit resumed with --max-sweeps below the sweeps it has run stops
+	 * at once: its checkpoint stores those sweeps as its limit, so it
+	 * still reads back (and means the same) */
+	fx.p.max_sweeps = 2;
+	assert_int_equal(checkpoint_write(path, fx.g, &fx.p, model_of(&fx.s)), 0);
+	fx.p.max_sweeps = 500;
+	struct checkpoint ck;
+	assert_int_equal(checkpoint_read(path, &ck), 0);
+	assert_int_equal(ck.params.max_sweeps, 4);
+	assert_int_equal(ck.sweep, 4);
+	checkpoint_release(&ck);
+	free(c.buf);
+	free(c.good);
+	test_rmtree(dir);
+}
+
 /* Format 1 (before starts and no_reseed were stored) still reads: its
  * PARM section is the first 44 bytes of ours. Such a fit resumed as one
  * start without refinement, and reads back so. */
@@ -1289,6 +1355,13 @@ static void test_checkpoint_keeps_where_an_interrupt_left_the_starts(void **stat
 	REFUSED(&c, "plateau");
 	put_le(c.buf + rs + 16 + 12, 0xffffffffULL, 4); /* trace count */
 	REFUSED(&c, "claim");
+	/* the interrupted start's last sweep within max_sweeps (+28 of PARM:
+	 * 4 is the STAT sweep too, so only the parts can break a limit of 3
+	 * once STAT's own sweep is lowered along with its trace) */
+	put_le(c.buf + rs + 8, 0xffffffffULL, 4);
+	REFUSED(&c, "interrupted start");
+	put_f64(c.buf + rs + 16 + 12 + 4 + 2 * 20 + 12, 1e308); /* its trace's point 2 */
+	REFUSED(&c, "interrupted start: trace point 2");
 	put_le(c.buf + rs - 8, 1ULL << 40, 8); /* the RSUM length */
 	REFUSED(&c, "RSUM");
 	craft_refused(&c, rs - 12 + 4, "section", __LINE__); /* cut inside the tag */
@@ -1540,7 +1613,8 @@ int main(void)
 		cmocka_unit_test(test_checkpoint_refuses_every_truncation),
 		cmocka_unit_test(test_checkpoint_refuses_bad_contents_under_a_valid_checksum),
 		cmocka_unit_test(test_checkpoint_refuses_what_is_not_a_checkpoint),
-		cmocka_unit_test(test_checkpoint_reads_format_1),
+		cmocka_unit_test(test_checkpoint_checks_fields_against_their_meaning),
+	cmocka_unit_test(test_checkpoint_reads_format_1),
 		cmocka_unit_test(test_checkpoint_keeps_where_an_interrupt_left_the_starts),
 		cmocka_unit_test(test_prepare_dir_makes_parents_and_leaves_nothing),
 		cmocka_unit_test(test_prepare_dir_refuses_what_cannot_be_written),
