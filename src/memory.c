@@ -1,24 +1,26 @@
 /*
  * memory: the fit's memory estimate and the process's limit.
  *
- * The estimate is measured, not derived: the peak resident size of short
- * fits (tests in DEVELOPERS.md's table: 10^4 to 3 x 10^6 edges, k 10 to
- * 1000, one and two threads) less what the process held before the fit
- * (the loaded graph) grows with the nodes, and per node with k up to a
- * ceiling: a node ends in a few communities however large k is (about one
- * strength entry per node on a levelled fit), while the rows, the
- * snapshots' AGMs and the allocator's slack cost about NODE_BYTES_MAX
- * bytes a node once k passes a few dozen. So
- *     fit bytes = n x NODE_BYTES_MAX x k / (k + K_HALF)
- *               + threads x (scratch of a few arrays of k + a block)
- *               + FIXED (the allocator's arenas, the trace, the writers)
- * which keeps within 25% of the measured peak over the table.
+ * The estimate follows where fit.c keeps strengths. With E the entries the
+ * model may hold (a node in at most min(k, degree + 1) communities: its
+ * row update only proposes the communities of its neighbours, and seeding
+ * and refinement put it in one more) and C = (n + 1) offsets + E entries +
+ * k column sums, the bytes of one compressed copy of the strengths:
+ *   the working model       n rows + 2 E entries (rows grow by doubling)
+ *   strength copies         COPIES x C: the newest snapshot, one held by a
+ *                           reader, one being written as a checkpoint, the
+ *                           best start, refinement's saved model, the
+ *                           climb kept for an interrupt, and the resume
+ *                           point's two
+ *   the AGM of a snapshot   per copy: memberships (E x (id + strength)),
+ *                           per-node and per-community figures
+ *   per thread              scratch of a few arrays of k, plus its share
+ *                           of a block of new rows
+ *   the fitting thread      a permutation and marks over the nodes
  * The one thing a newcomer gets wrong: the limit may count address space
  * (ulimit -v), where every thread's stack counts in full whether touched
- * or not (and glibc's per-thread arenas reserve 64 MiB each, but an arena
- * that cannot be mapped is simply not made, so they are not counted), and
- * AddressSanitizer's shadow would count terabytes; so the comparison is
- * made against what the process already maps, plus stacks.
+ * or not, and AddressSanitizer's shadow would count terabytes; so the
+ * comparison is made against what the process already maps, plus stacks.
  */
 #include "coterie/memory.h"
 
@@ -36,10 +38,9 @@
 #include "coterie/model.h"
 #include "coterie/util.h"
 
-#define NODE_BYTES_MAX 224u  /* a node's share once k is large (measured) */
-#define K_HALF 12u           /* the k at which a node costs half of that */
-#define THREAD_BYTES (256u << 10) /* a worker's block buffers (sweep.c) */
-#define FIXED_BYTES (2u << 20)    /* arenas, trace, writers */
+#define COPIES 8u        /* compressed copies of the strengths alive at once */
+#define AGM_COPIES 3u    /* AGMs alive at once (snapshots and the fit's own) */
+#define BLOCK_ROWS 2048u /* rows computed together (fit.c, BLOCK_NODES) */
 #define EXTRA_THREADS 3u /* the fitting thread, the pager, the autosave */
 
 static uint64_t sat_add(uint64_t a, uint64_t b)
@@ -54,12 +55,26 @@ static uint64_t sat_mul(uint64_t a, uint64_t b)
 
 uint64_t memory_fit_estimate(const struct graph *g, const struct fit_params *p)
 {
-	uint64_t k = p->k ? p->k : 1;
+	uint64_t n = g->n, k = p->k ? p->k : 1;
+	uint64_t entries = 0;
+	for (uint32_t u = 0; u < g->n; u++) {
+		uint64_t deg = g->off[u + 1] - g->off[u];
+		entries = sat_add(entries, deg + 1 < k ? deg + 1 : k);
+	}
+	uint64_t ent = sizeof(struct fentry);
+	uint64_t copy = sat_add(sat_add(sat_mul(n + 1, 8), sat_mul(entries, ent)), sat_mul(k, 8));
+	uint64_t model = sat_add(sat_mul(n, sizeof(struct frow)), sat_mul(sat_mul(entries, 2), ent));
+	/* an AGM: members and strengths, node figures, community figures */
+	uint64_t agm = sat_add(sat_add(sat_mul(entries, 12), sat_mul(n, 16)), sat_mul(k, 128));
 	uint64_t threads = p->threads ? p->threads : 1;
-	uint64_t per_node = NODE_BYTES_MAX * k / (k + K_HALF);
-	uint64_t total = sat_mul(g->n, per_node);
-	total = sat_add(total, sat_mul(threads, sat_add(THREAD_BYTES, sat_mul(k, 64))));
-	return sat_add(total, FIXED_BYTES);
+	uint64_t per_thread = sat_add(sat_mul(k, 48), sat_mul(BLOCK_ROWS, sat_mul(k < 64 ? k : 64,
+										    ent)));
+	uint64_t total = model;
+	total = sat_add(total, sat_mul(COPIES, copy));
+	total = sat_add(total, sat_mul(AGM_COPIES, agm));
+	total = sat_add(total, sat_mul(threads, per_thread));
+	total = sat_add(total, sat_mul(n, 12)); /* permutation, marks, trace slack */
+	return total;
 }
 
 /* "123", "64M", "2G": bytes; 0 on a bad value. */
@@ -200,49 +215,6 @@ static void human(uint64_t b, char *buf, size_t cap)
 		snprintf(buf, cap, "%.0f KiB", (double)b / 1024.0);
 }
 
-/* What a fit of g with p would need in all, against a limit of the kind
- * virt says, given what the process maps and holds now. */
-static uint64_t need_for(const struct graph *g, const struct fit_params *p, int virt,
-			 uint64_t mapped, uint64_t resident)
-{
-	uint64_t fit = memory_fit_estimate(g, p);
-	if (!virt)
-		return sat_add(resident, fit);
-	struct rlimit st;
-	uint64_t stack = 8ull << 20;
-	if (getrlimit(RLIMIT_STACK, &st) == 0 && st.rlim_cur != RLIM_INFINITY)
-		stack = (uint64_t)st.rlim_cur;
-	uint64_t threads = (uint64_t)(p->threads ? p->threads : 1) + EXTRA_THREADS;
-	return sat_add(sat_add(mapped, fit), sat_mul(threads, stack));
-}
-
-/* What would fit instead, into buf: fewer threads at this k, or the
- * largest k (the estimate grows with k) at one thread. */
-static void what_fits(const struct graph *g, const struct fit_params *p, int virt,
-		      uint64_t mapped, uint64_t resident, uint64_t limit, char *buf, size_t cap)
-{
-	struct fit_params q = *p;
-	for (q.threads = p->threads > 1 ? p->threads - 1 : 1; q.threads >= 1; q.threads--)
-		if (need_for(g, &q, virt, mapped, resident) <= limit) {
-			snprintf(buf, cap, "-j %u would fit", q.threads);
-			return;
-		}
-	q.threads = 1;
-	uint32_t lo = 0, hi = p->k; /* fits at lo (0: none), not at hi */
-	while (hi - lo > 1) {
-		uint32_t mid = lo + (hi - lo) / 2;
-		q.k = mid;
-		if (need_for(g, &q, virt, mapped, resident) <= limit)
-			lo = mid;
-		else
-			hi = mid;
-	}
-	if (lo)
-		snprintf(buf, cap, "-k %u -j 1 would fit", lo);
-	else
-		snprintf(buf, cap, "not even -k 1 -j 1 would fit");
-}
-
 int memory_check_fit(const struct graph *g, const struct fit_params *p)
 {
 	uint64_t limit, mapped = 0, resident = 0;
@@ -251,17 +223,25 @@ int memory_check_fit(const struct graph *g, const struct fit_params *p)
 	if (memory_limit(&limit, &what, &virt) || process_size(&mapped, &resident))
 		return 0;
 	uint64_t fit = memory_fit_estimate(g, p);
-	uint64_t need = need_for(g, p, virt, mapped, resident);
+	uint64_t need;
+	if (virt) {
+		struct rlimit st;
+		uint64_t stack = 8ull << 20;
+		if (getrlimit(RLIMIT_STACK, &st) == 0 && st.rlim_cur != RLIM_INFINITY)
+			stack = (uint64_t)st.rlim_cur;
+		uint64_t threads = (uint64_t)(p->threads ? p->threads : 1) + EXTRA_THREADS;
+		need = sat_add(sat_add(mapped, fit), sat_mul(threads, stack));
+	} else {
+		need = sat_add(resident, fit);
+	}
 	if (need <= limit)
 		return 0;
-	char a[32], b[32], c[32], instead[64];
+	char a[32], b[32], c[32];
 	human(fit, a, sizeof a);
 	human(need, b, sizeof b);
 	human(limit, c, sizeof c);
-	what_fits(g, p, virt, mapped, resident, limit, instead, sizeof instead);
 	return error("not enough memory for this fit: it would need about %s more (%s in all, "
 		     "an estimate for %" PRIu32 " nodes, %" PRIu64 " edges, k = %u and %u "
-		     "thread%s), but %s is %s; %s",
-		     a, b, g->n, g->m, p->k, p->threads, p->threads == 1 ? "" : "s", what, c,
-		     instead);
+		     "thread%s), but %s is %s; try a smaller -k or fewer threads (-j)",
+		     a, b, g->n, g->m, p->k, p->threads, p->threads == 1 ? "" : "s", what, c);
 }

@@ -12,10 +12,11 @@ struct graph;
 struct fit_params;
 
 /* The bytes a fit of g (borrowed, already loaded) with p will add to the
- * resident size of the process: a measured model (memory.c) of its
- * nodes, k and threads, within 25% of the peaks measured in
- * DEVELOPERS.md's table. An estimate, not a bound. Thread stacks are not
- * included (see memory_check_fit()). */
+ * process: the working model, the copies of the strengths that snapshots,
+ * the best start, refinement and checkpoints keep, the AGM read from them,
+ * and each thread's scratch space. An estimate, not a bound: a node is
+ * taken to hold at most min(k, degree + 1) communities. Thread stacks are
+ * not included (see memory_check_fit()). */
 uint64_t memory_fit_estimate(const struct graph *g, const struct fit_params *p);
 
 /* What limits this process: the smallest of physical memory, the
@@ -27,10 +28,9 @@ uint64_t memory_fit_estimate(const struct graph *g, const struct fit_params *p);
  * when nothing is known (no message). */
 int memory_limit(uint64_t *bytes, const char **what, int *counts_virtual);
 
-/* Refuse (error() with the estimate, the limit and what would fit
- * instead: fewer threads, or the largest k at one thread; -1) when a fit
- * of g with p would not fit beside what the process already uses; 0
- * otherwise, or when the limit cannot be known. */
+/* Refuse (error() with the estimate and the limit, -1) when a fit of g with
+ * p would not fit beside what the process already uses; 0 otherwise, or
+ * when the limit cannot be known. */
 int memory_check_fit(const struct graph *g, const struct fit_params *p);
 
 #endif
