@@ -13,9 +13,7 @@ void fcsr_release(struct fcsr *f)
 {
 	if (!f)
 		return;
-	free(f->off);
-	free(f->e);
-	free(f->colsum);
+	UTIL_FREE_ALL(f->off, f->e, f->colsum);
 	memset(f, 0, sizeof *f);
 }
 

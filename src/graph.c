@@ -123,10 +123,7 @@ void graph_free(struct graph *g)
 	if (!g)
 		return;
 	names_free(g->names);
-	free(g->off);
-	free(g->adj);
-	free(g->source);
-	free(g);
+	UTIL_FREE_ALL(g->off, g->adj, g->source, g);
 }
 
 const char *graph_name(const struct graph *g, uint32_t u)

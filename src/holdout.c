@@ -40,8 +40,7 @@ void holdout_release(struct holdout *h)
 		return;
 	graph_free(h->train);
 	graph_free(h->held);
-	free(h->edges);
-	free(h->non);
+	UTIL_FREE_ALL(h->edges, h->non);
 	memset(h, 0, sizeof *h);
 }
 
