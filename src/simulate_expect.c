@@ -415,10 +415,11 @@ static uint64_t multi_pairs_together(const struct multi *mu)
  * The scale of the weights w (k of them) that gives target expected edges
  * with background eps, into *scale (p_c = min(1, scale w_c) left in pc).
  * p_c is non-decreasing in the scale, and so is the expectation: bisection
- * finds it. what names the target in messages. Returns 0 or -1.
+ * finds it. what names the target in messages, and mixing says what to
+ * raise. Returns 0 or -1.
  */
 static int solve_scale(const struct multi *mu, uint32_t n, const double *w, double *pc,
-		       double target, double eps, const char *what, double *scale)
+		       double target, double eps, const char *what, int mixing, double *scale)
 {
 	uint32_t k = mu->k;
 	double wmin = 1.0; /* the scale beyond which every p_c is 1 */
@@ -431,9 +432,10 @@ static int solve_scale(const struct multi *mu, uint32_t n, const double *w, doub
 	double top = multi_expected(mu, n, pc, eps);
 	double bottom = eps * n * (n - 1.0) / 2.0;
 	if (top < target)
-		return error("%s of %g is out of reach: these communities give at most %.6g (raise "
-			     "the sizes, the overlap or epsilon)", what, 2.0 * target / n,
-			     2.0 * top / n);
+		return error("%s of %g is out of reach: these communities give at most %.6g (%s)",
+			     what, 2.0 * target / n, 2.0 * top / n,
+			     mixing ? "raise the sizes or the overlap, or lower the mixing" :
+				      "raise the sizes, the overlap or epsilon");
 	if (bottom > target)
 		return error("%s of %g is out of reach: the background alone gives %.6g (lower "
 			     "epsilon)", what, 2.0 * target / n, 2.0 * bottom / n);
@@ -482,9 +484,9 @@ int simulate_plant_probabilities(const struct simulate_params *p, struct simulat
 		double target = p->mean_degree * p->n / 2.0;
 		if (mixing)
 			rc = solve_scale(&mu, p->n, w, s->p, (1.0 - p->mixing) * target, 0.0,
-					 "a mean degree within the communities", &s->scale);
+					 "a mean degree within the communities", 1, &s->scale);
 		else
-			rc = solve_scale(&mu, p->n, w, s->p, target, p->epsilon, "a mean degree",
+			rc = solve_scale(&mu, p->n, w, s->p, target, p->epsilon, "a mean degree", 0,
 					 &s->scale);
 		for (uint32_t c = 0; c < k; c++)
 			s->p[c] = fmin(1.0, s->scale * w[c]);
