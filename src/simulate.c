@@ -169,16 +169,11 @@ int simulate_run(const struct simulate_params *p, struct simulate *out)
 		return -1;
 	out->n = p->n;
 	out->epsilon = p->epsilon;
-	if (simulate_plant_cover(p, out) || simulate_plant_probabilities(p, out) ||
-	    simulate_draw_edges(p, out)) {
-		simulate_release(out);
-		return -1;
-	}
-	if (count_isolated_and_outside(out)) {
-		simulate_release(out);
-		return -1;
-	}
-	return 0;
+	int rc = simulate_plant_cover(p, out) || simulate_plant_probabilities(p, out) ||
+			 simulate_draw_edges(p, out) || count_isolated_and_outside(out) ? -1 : 0;
+	if (rc)
+		simulate_release(out); /* on failure out holds nothing */
+	return rc;
 }
 
 void simulate_release(struct simulate *s)
