@@ -21,6 +21,11 @@ enum { S_MEMBERSHIPS = 1, S_SIZES, S_DEAL, S_LINKPROB, S_COMMUNITY, S_BACKGROUND
  * another's, and an item's do not depend on the thread drawing it. */
 void simulate_stream(struct rng *r, uint64_t seed, uint64_t tag, uint64_t index);
 
+/* Each node's communities of cover cv (borrowed), increasing:
+ * (*ncom)[(*noff)[u] .. (*noff)[u + 1]). Both caller frees with free().
+ * Returns 0 or -1 (memory). */
+int simulate_node_lists(const struct cover *cv, uint64_t **noff, uint32_t **ncom);
+
 /* Steps 1 to 3: fill s->truth, s->k, s->overlapping, s->uncovered.
  * Returns 0 or -1 with a message. */
 int simulate_plant_cover(const struct simulate_params *p, struct simulate *s);

@@ -76,6 +76,7 @@ void simulate_params_default(struct simulate_params *p)
 	p->p_lo = p->p_hi = 1.0;
 	p->mean_degree = 10.0;
 	p->epsilon = 0.0;
+	p->mixing = -1.0;
 	p->seed = 1;
 	p->threads = 1;
 }
@@ -108,6 +109,14 @@ int simulate_params_check(const struct simulate_params *p)
 		return error("even degrees need a mean degree to aim at");
 	if (!(p->epsilon >= 0.0 && p->epsilon < 1.0))
 		return error("the background probability must be from 0 to below 1");
+	if (p->mixing >= 0.0) {
+		if (!(p->mixing < 1.0))
+			return error("the mixing share must be from 0 to below 1");
+		if (p->epsilon > 0.0)
+			return error("mixing and epsilon cannot both be given: mixing solves epsilon");
+		if (!(p->mean_degree > 0.0))
+			return error("mixing needs a mean degree to share out");
+	}
 	if (p->threads < 1)
 		return error("at least one thread is needed");
 	uint32_t cap = p->max_memberships;
@@ -121,6 +130,38 @@ int simulate_params_check(const struct simulate_params *p)
 	return 0;
 }
 
+/* The isolated nodes, and the edges whose ends share no community
+ * (s->outside_edges). Returns 0 or -1. */
+static int count_isolated_and_outside(struct simulate *s)
+{
+	uint32_t n = s->n;
+	uint8_t *seen = util_calloc(n, 1);
+	uint64_t *noff = NULL;
+	uint32_t *ncom = NULL;
+	if (!seen || simulate_node_lists(&s->truth, &noff, &ncom)) {
+		free(seen);
+		return -1;
+	}
+	s->outside_edges = 0;
+	for (uint64_t i = 0; i < s->m; i++) {
+		uint32_t u = (uint32_t)(s->edges[i] >> 32), v = (uint32_t)(s->edges[i] & 0xffffffffu);
+		seen[u] = seen[v] = 1;
+		uint64_t a = noff[u], b = noff[v];
+		while (a < noff[u + 1] && b < noff[v + 1] && ncom[a] != ncom[b]) {
+			if (ncom[a] < ncom[b])
+				a++;
+			else
+				b++;
+		}
+		s->outside_edges += !(a < noff[u + 1] && b < noff[v + 1]);
+	}
+	s->isolated = 0;
+	for (uint32_t u = 0; u < n; u++)
+		s->isolated += !seen[u];
+	UTIL_FREE_ALL(seen, noff, ncom);
+	return 0;
+}
+
 int simulate_run(const struct simulate_params *p, struct simulate *out)
 {
 	memset(out, 0, sizeof *out);
@@ -128,25 +169,11 @@ int simulate_run(const struct simulate_params *p, struct simulate *out)
 		return -1;
 	out->n = p->n;
 	out->epsilon = p->epsilon;
-	if (simulate_plant_cover(p, out) || simulate_plant_probabilities(p, out) ||
-	    simulate_draw_edges(p, out)) {
-		simulate_release(out);
-		return -1;
-	}
-	uint8_t *seen = util_calloc(p->n, 1);
-	if (!seen) {
-		simulate_release(out);
-		return -1;
-	}
-	for (uint64_t i = 0; i < out->m; i++) {
-		seen[out->edges[i] >> 32] = 1;
-		seen[out->edges[i] & 0xffffffffu] = 1;
-	}
-	out->isolated = 0;
-	for (uint32_t u = 0; u < p->n; u++)
-		out->isolated += !seen[u];
-	free(seen);
-	return 0;
+	int rc = simulate_plant_cover(p, out) || simulate_plant_probabilities(p, out) ||
+			 simulate_draw_edges(p, out) || count_isolated_and_outside(out) ? -1 : 0;
+	if (rc)
+		simulate_release(out); /* on failure out holds nothing */
+	return rc;
 }
 
 void simulate_release(struct simulate *s)

@@ -5,7 +5,10 @@
  *
  * Invariant: the result is the same set of edges whichever thread drew
  * what: each item (a community or a background slice) has its own stream,
- * and the union is sorted (LSD radix sort of 64-bit keys). A newcomer's
+ * and the union is sorted (LSD radix sort of 64-bit keys). While drawn,
+ * a key carries a tag in its lowest bit (1: drawn by the background), so
+ * that the edges the background alone drew can be counted when merging;
+ * node ids below 2^31 leave room for it. A newcomer's
  * trap: the pair decoder steps over whole rows of the pair triangle
  * rather than computing square roots, which would skip or repeat pairs.
  */
@@ -49,10 +52,11 @@ static int ebuf_push(struct ebuf *b, uint64_t key)
  * Draw each pair (i, j), i < j, with rows j in [j0, j1), independently with
  * probability prob, by geometric skips over the pair index
  * t = sum_{r < j} r + i. ids maps a row/column number to a node (NULL: the
- * number itself). Returns pairs drawn, or -1 on memory failure.
+ * number itself). Each pair (u, v) is pushed as the key (u << 33) | (v << 1)
+ * | tag. Returns pairs drawn, or -1 on memory failure.
  */
 static int64_t draw_pairs(struct ebuf *b, struct rng *r, const uint32_t *ids, uint64_t j0,
-			  uint64_t j1, double prob)
+			  uint64_t j1, double prob, uint64_t tag)
 {
 	if (prob <= 0.0 || j1 <= j0 || j1 < 2)
 		return 0;
@@ -79,7 +83,7 @@ static int64_t draw_pairs(struct ebuf *b, struct rng *r, const uint32_t *ids, ui
 			}
 		}
 		uint64_t u = ids ? ids[i] : i, v = ids ? ids[j] : j;
-		if (ebuf_push(b, (u << 32) | v))
+		if (ebuf_push(b, (u << 33) | (v << 1) | tag))
 			return -1;
 		drawn++;
 		if (++t >= total)
@@ -123,13 +127,15 @@ static void *work_run(void *arg)
 		if (it < cv->k) {
 			uint32_t c = (uint32_t)it;
 			simulate_stream(&r, w->p->seed, S_COMMUNITY, c);
-			d = draw_pairs(b, &r, cv->mem + cv->off[c], 0, cover_size(cv, c), w->s->p[c]);
+			d = draw_pairs(b, &r, cv->mem + cv->off[c], 0, cover_size(cv, c), w->s->p[c],
+				       0);
 			if (d >= 0)
 				b->drawn_c += (uint64_t)d;
 		} else {
 			uint64_t sl = it - cv->k;
 			simulate_stream(&r, w->p->seed, S_BACKGROUND, sl);
-			d = draw_pairs(b, &r, NULL, w->bounds[sl], w->bounds[sl + 1], w->p->epsilon);
+			d = draw_pairs(b, &r, NULL, w->bounds[sl], w->bounds[sl + 1], w->s->epsilon,
+				       1);
 			if (d >= 0)
 				b->drawn_b += (uint64_t)d;
 		}
@@ -189,7 +195,7 @@ int simulate_draw_edges(const struct simulate_params *p, struct simulate *s)
 		return -1;
 	w->p = p;
 	w->s = s;
-	w->slices = p->epsilon > 0.0 ? BACKGROUND_SLICES : 0;
+	w->slices = s->epsilon > 0.0 ? BACKGROUND_SLICES : 0;
 	/* slices of rows holding about equal numbers of pairs */
 	for (uint32_t b = 0; b <= w->slices; b++)
 		w->bounds[b] = (uint64_t)llround((double)p->n * sqrt((double)b / BACKGROUND_SLICES));
@@ -254,10 +260,17 @@ int simulate_draw_edges(const struct simulate_params *p, struct simulate *s)
 		goto out;
 	}
 	free(sorted == all ? tmp : all);
-	uint64_t m = 0;
-	for (uint64_t i = 0; i < total; i++)
-		if (m == 0 || sorted[m - 1] != sorted[i])
-			sorted[m++] = sorted[i];
+	/* a pair's keys are adjacent, a community's draw (tag 0) first: the
+	 * pair is the background's alone when its first key has tag 1 */
+	uint64_t m = 0, alone = 0;
+	for (uint64_t i = 0; i < total; i++) {
+		uint64_t e = (sorted[i] >> 33) << 32 | (sorted[i] >> 1 & 0xffffffffu);
+		if (m == 0 || sorted[m - 1] != e) {
+			alone += sorted[i] & 1;
+			sorted[m++] = e;
+		}
+	}
+	s->background_only = alone;
 	uint64_t *shrunk = m ? realloc(sorted, m * sizeof *sorted) : NULL;
 	s->edges = shrunk ? shrunk : sorted;
 	s->m = m;

@@ -146,32 +146,42 @@ static void mwork_release(struct mwork *w)
 	UTIL_FREE_ALL(w->noff, w->ncom, w->trep, w->tcnt, w->tr, w->rec);
 }
 
-/* Each node's communities, and per community C(size, 2). Returns 0 or -1. */
-static int node_lists(struct mwork *w, struct multi *mu, const struct cover *cv)
+int simulate_node_lists(const struct cover *cv, uint64_t **noffp, uint32_t **ncomp)
 {
 	uint32_t n = cv->n, k = cv->k;
 	uint64_t nm = cv->off[k];
-	w->noff = util_calloc((size_t)n + 1, sizeof *w->noff);
-	w->ncom = util_malloc(nm ? nm : 1, sizeof *w->ncom);
+	uint64_t *noff = util_calloc((size_t)n + 1, sizeof *noff);
+	uint32_t *ncom = util_malloc(nm ? nm : 1, sizeof *ncom);
+	uint64_t *fill = util_malloc((size_t)n + 1, sizeof *fill);
+	if (!noff || !ncom || !fill) {
+		UTIL_FREE_ALL(noff, ncom, fill);
+		return -1;
+	}
+	for (uint64_t i = 0; i < nm; i++)
+		noff[cv->mem[i] + 1]++;
+	for (uint32_t u = 0; u < n; u++)
+		noff[u + 1] += noff[u];
+	memcpy(fill, noff, ((size_t)n + 1) * sizeof *fill);
+	for (uint32_t c = 0; c < k; c++)
+		for (uint64_t i = cv->off[c]; i < cv->off[c + 1]; i++)
+			ncom[fill[cv->mem[i]]++] = c; /* increasing c per node */
+	free(fill);
+	*noffp = noff;
+	*ncomp = ncom;
+	return 0;
+}
+
+/* Each node's communities, and per community C(size, 2). Returns 0 or -1. */
+static int node_lists(struct mwork *w, struct multi *mu, const struct cover *cv)
+{
+	uint32_t k = cv->k;
 	mu->sizes2 = util_malloc(k ? k : 1, sizeof *mu->sizes2);
-	if (!w->noff || !w->ncom || !mu->sizes2)
+	if (!mu->sizes2 || simulate_node_lists(cv, &w->noff, &w->ncom))
 		return -1;
 	for (uint32_t c = 0; c < k; c++) {
 		uint64_t sz = cover_size(cv, c);
 		mu->sizes2[c] = sz * (sz - (sz > 0)) / 2;
-		for (uint64_t i = cv->off[c]; i < cv->off[c + 1]; i++)
-			w->noff[cv->mem[i] + 1]++;
 	}
-	for (uint32_t u = 0; u < n; u++)
-		w->noff[u + 1] += w->noff[u];
-	uint64_t *fill = util_malloc((size_t)n + 1, sizeof *fill);
-	if (!fill)
-		return -1;
-	memcpy(fill, w->noff, ((size_t)n + 1) * sizeof *fill);
-	for (uint32_t c = 0; c < k; c++)
-		for (uint64_t i = cv->off[c]; i < cv->off[c + 1]; i++)
-			w->ncom[fill[cv->mem[i]]++] = c; /* increasing c per node */
-	free(fill);
 	return 0;
 }
 
@@ -388,7 +398,64 @@ double simulate_expected_edges(const struct cover *c, const double *p, double ep
 	return e;
 }
 
-/* Step 2b: p_c, and the scale for a mean degree target. */
+/* Node pairs sharing at least one community: the pairs of each
+ * community, less the repeats of pairs sharing several (a pair sharing
+ * |S| communities is in |S| communities' pairs). */
+static uint64_t multi_pairs_together(const struct multi *mu)
+{
+	uint64_t t = 0;
+	for (uint32_t c = 0; c < mu->k; c++)
+		t += mu->sizes2[c];
+	for (uint64_t i = 0; i < mu->nsets; i++)
+		t -= mu->count[i] * (mu->off[i + 1] - mu->off[i] - 1);
+	return t;
+}
+
+/*
+ * The scale of the weights w (k of them) that gives target expected edges
+ * with background eps, into *scale (p_c = min(1, scale w_c) left in pc).
+ * p_c is non-decreasing in the scale, and so is the expectation: bisection
+ * finds it. what names the target in messages, and mixing says what to
+ * raise. Returns 0 or -1.
+ */
+static int solve_scale(const struct multi *mu, uint32_t n, const double *w, double *pc,
+		       double target, double eps, const char *what, int mixing, double *scale)
+{
+	uint32_t k = mu->k;
+	double wmin = 1.0; /* the scale beyond which every p_c is 1 */
+	for (uint32_t c = 0; c < k; c++)
+		if (w[c] > 0.0 && w[c] < wmin)
+			wmin = w[c];
+	double hi = 1.0 / wmin, lo = 0.0;
+	for (uint32_t c = 0; c < k; c++)
+		pc[c] = fmin(1.0, hi * w[c]);
+	double top = multi_expected(mu, n, pc, eps);
+	double bottom = eps * n * (n - 1.0) / 2.0;
+	if (top < target)
+		return error("%s of %g is out of reach: these communities give at most %.6g (%s)",
+			     what, 2.0 * target / n, 2.0 * top / n,
+			     mixing ? "raise the sizes or the overlap, or lower the mixing" :
+				      "raise the sizes, the overlap or epsilon");
+	if (bottom > target)
+		return error("%s of %g is out of reach: the background alone gives %.6g (lower "
+			     "epsilon)", what, 2.0 * target / n, 2.0 * bottom / n);
+	for (int it = 0; it < 200 && hi - lo > 1e-15 * hi; it++) {
+		double mid = 0.5 * (lo + hi);
+		for (uint32_t c = 0; c < k; c++)
+			pc[c] = fmin(1.0, mid * w[c]);
+		if (multi_expected(mu, n, pc, eps) < target)
+			lo = mid;
+		else
+			hi = mid;
+	}
+	*scale = 0.5 * (lo + hi);
+	return 0;
+}
+
+/* Step 2b: p_c, the scale for a mean degree target, and with mixing the
+ * background: the communities aim at (1 - mixing) of the target with no
+ * background, giving E(0); then E(eps) = E(0) + eps (pairs - E(0)) meets
+ * the whole target T exactly at eps = (T - E(0)) / (pairs - E(0)). */
 int simulate_plant_probabilities(const struct simulate_params *p, struct simulate *s)
 {
 	uint32_t k = s->k;
@@ -410,44 +477,29 @@ int simulate_plant_probabilities(const struct simulate_params *p, struct simulat
 		free(w);
 		return -1;
 	}
-	int rc = 0;
+	int rc = 0, mixing = p->mixing >= 0.0;
+	double pairs = (double)p->n * ((double)p->n - 1.0) / 2.0;
 	s->scale = 1.0;
 	if (p->mean_degree > 0.0) {
 		double target = p->mean_degree * p->n / 2.0;
-		double wmin = 1.0; /* the scale beyond which every p_c is 1 */
+		if (mixing)
+			rc = solve_scale(&mu, p->n, w, s->p, (1.0 - p->mixing) * target, 0.0,
+					 "a mean degree within the communities", 1, &s->scale);
+		else
+			rc = solve_scale(&mu, p->n, w, s->p, target, p->epsilon, "a mean degree", 0,
+					 &s->scale);
 		for (uint32_t c = 0; c < k; c++)
-			if (w[c] > 0.0 && w[c] < wmin)
-				wmin = w[c];
-		/* p_c = min(1, scale w_c) is non-decreasing in the scale, and so is
-		 * the expectation: bisection finds the scale */
-		double hi = 1.0 / wmin, lo = 0.0;
-		for (uint32_t c = 0; c < k; c++)
-			s->p[c] = fmin(1.0, hi * w[c]);
-		double top = multi_expected(&mu, p->n, s->p, p->epsilon);
-		double bottom = p->epsilon * p->n * (p->n - 1.0) / 2.0;
-		if (top < target) {
-			rc = error("a mean degree of %g is out of reach: these communities give at "
-				   "most %.6g (raise the sizes, the overlap or epsilon)",
-				   p->mean_degree, 2.0 * top / p->n);
-		} else if (bottom > target) {
-			rc = error("a mean degree of %g is out of reach: the background alone gives "
-				   "%.6g (lower epsilon)", p->mean_degree, 2.0 * bottom / p->n);
-		} else {
-			for (int it = 0; it < 200 && hi - lo > 1e-15 * hi; it++) {
-				double mid = 0.5 * (lo + hi);
-				for (uint32_t c = 0; c < k; c++)
-					s->p[c] = fmin(1.0, mid * w[c]);
-				if (multi_expected(&mu, p->n, s->p, p->epsilon) < target)
-					lo = mid;
-				else
-					hi = mid;
-			}
-			s->scale = 0.5 * (lo + hi);
+			s->p[c] = fmin(1.0, s->scale * w[c]);
+		if (!rc && mixing) {
+			double e0 = multi_expected(&mu, p->n, s->p, 0.0);
+			s->epsilon = p->mixing > 0.0 ? fmax(0.0, (target - e0) / (pairs - e0)) : 0.0;
 		}
 	}
 	for (uint32_t c = 0; c < k; c++)
 		s->p[c] = fmin(1.0, s->scale * w[c]);
-	s->expected_edges = multi_expected(&mu, p->n, s->p, p->epsilon);
+	s->expected_edges = multi_expected(&mu, p->n, s->p, s->epsilon);
+	s->expected_community_edges = multi_expected(&mu, p->n, s->p, 0.0);
+	s->pairs_apart = (uint64_t)p->n * (p->n - 1) / 2 - multi_pairs_together(&mu);
 	if (!rc && s->expected_edges > SIMULATE_MAX_EDGES)
 		rc = error("the model expects %.4g edges; at most %.3g can be drawn (lower the "
 			   "link probabilities, the mean degree or epsilon)", s->expected_edges,
@@ -456,4 +508,3 @@ int simulate_plant_probabilities(const struct simulate_params *p, struct simulat
 	free(w);
 	return rc;
 }
-

@@ -149,6 +149,36 @@ static int fill_json(struct atomicfile *w, const void *arg)
 	return 0;
 }
 
+/* With mixing: parameters.mixing, and an object "mixing" with the
+ * epsilon solved and the shares of background and outside edges (see
+ * struct simulate), expected and drawn. Returns 0 or -1. */
+static int add_mixing(json_t *root, const struct simulate *s, const struct simulate_params *p)
+{
+	double pairs = (double)s->n * ((double)s->n - 1.0) / 2.0, m = s->m ? (double)s->m : 1.0;
+	double e = s->expected_edges > 0.0 ? s->expected_edges : 1.0;
+	json_t *mix = json_pack(
+		"{s:f, s:f, s:f, s:f, s:f, s:I, s:f, s:f, s:I}",
+		"asked", p->mixing,
+		"epsilon", s->epsilon,
+		"background_share_expected", s->epsilon * (pairs - s->expected_community_edges) / e,
+		"background_share_realised", (double)s->background_only / m,
+		"outside_share_expected", s->epsilon * (double)s->pairs_apart / e,
+		"outside_edges", (json_int_t)s->outside_edges,
+		"outside_share_realised", (double)s->outside_edges / m,
+		"outside_edges_expected", s->epsilon * (double)s->pairs_apart,
+		"pairs_apart", (json_int_t)s->pairs_apart);
+	json_t *par = json_object_get(root, "parameters");
+	if (!mix || !par) {
+		json_decref(mix);
+		return -1;
+	}
+	/* both steal their value, on failure too; mix then belongs to root */
+	if (json_object_set_new(root, "mixing", mix) ||
+	    json_object_set_new(par, "mixing", json_real(p->mixing)))
+		return -1;
+	return 0;
+}
+
 static char *simulate_json(const struct simulate *s, const struct simulate_params *p,
 			   const struct simulate_meta *meta)
 {
@@ -207,6 +237,10 @@ static char *simulate_json(const struct simulate *s, const struct simulate_param
 		"planted", SIMULATE_PLANTED);
 	free(cmd);
 	free(pre);
+	if (root && p->mixing >= 0.0 && add_mixing(root, s, p)) {
+		json_decref(root);
+		root = NULL;
+	}
 	if (!root) {
 		error("cannot build '%s'", SIMULATE_JSON);
 		return NULL;

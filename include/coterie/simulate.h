@@ -39,13 +39,21 @@ struct simulate_params {
 				   * membership brings the same expected number of
 				   * neighbours; needs mean_degree > 0 */
 	double epsilon;           /* background link probability, [0, 1) */
+	double mixing;            /* negative: off (the default). In [0, 1): the
+				   * share of the expected edges that are
+				   * background edges (see struct simulate);
+				   * needs mean_degree > 0 and epsilon 0: p_c are
+				   * scaled so the communities alone expect
+				   * (1 - mixing) n mean_degree / 2 edges, and
+				   * epsilon is solved so that all expect
+				   * n mean_degree / 2 */
 	uint64_t seed;
 	unsigned threads;         /* >= 1; the result does not depend on it */
 };
 
 /* Defaults: 1000 nodes, k derived, sizes 10 .. 100 with exponent 2,
  * overlap 0.1 with at most 2 memberships, p_c 1 scaled to mean degree 10,
- * epsilon 0, seed 1, 1 thread. */
+ * epsilon 0, mixing off, seed 1, 1 thread. */
 void simulate_params_default(struct simulate_params *p);
 
 /* Check the parameters (ranges, sizes against n, enough room for the
@@ -60,7 +68,18 @@ int simulate_params_check(const struct simulate_params *p);
  *   - p[c] in [0, 1] for every community;
  *   - edges[0 .. m) are keys (u << 32) | v with u < v < n, strictly
  *     increasing (so sorted by u, then v, with no duplicate);
- *   - drawn_communities + drawn_background == m + duplicates.
+ *   - drawn_communities + drawn_background == m + duplicates;
+ *   - outside_edges <= background_only <= m.
+ *
+ * Background edges. The background overlaps the communities (a pair in a
+ * community can be drawn by both), so "background edges" means the edges
+ * the background adds: E(epsilon) - E(0) expected, where E(e) is the
+ * expected edge count with background e; E(epsilon) - E(0) =
+ * epsilon (pairs - E(0)). Drawn, they are the edges that only the
+ * background drew (background_only). Among them, the edges whose ends
+ * share no community (outside_edges) can be told from the graph and the
+ * truth alone: each of the pairs_apart such pairs is an edge with
+ * probability epsilon.
  */
 struct simulate {
 	uint32_t n, k;
@@ -78,13 +97,18 @@ struct simulate {
 	uint64_t uncovered;         /* nodes in none */
 	uint64_t isolated;          /* nodes with no edge (absent from edges.tsv) */
 	double expected_edges;      /* sum over all pairs of P(u, v), exactly */
+	double expected_community_edges; /* the same with epsilon 0 */
+	uint64_t pairs_apart;       /* node pairs sharing no community, exactly */
+	uint64_t background_only;   /* edges drawn by the background alone */
+	uint64_t outside_edges;     /* edges whose ends share no community */
 };
 
 /*
  * Sample a planted graph with parameters p (borrowed) into out (whose old
  * contents are not freed). The same parameters give the same graph,
- * whatever p->threads is. Returns 0, or -1 with a message (bad parameters,
- * memory, a mean degree out of reach, more than SIMULATE_MAX_EDGES edges
+ * whatever p->threads is. With p->mixing >= 0, out->epsilon is the
+ * background solved (else p->epsilon). Returns 0, or -1 with a message
+ * (bad parameters, memory, a mean degree out of reach, more than SIMULATE_MAX_EDGES edges
  * expected, more than SIMULATE_MAX_MULTI_PAIRS pairs sharing two or more
  * communities). Release with simulate_release().
  */

@@ -46,6 +46,11 @@ static void simulate_usage(FILE *out)
 		"                          membership brings as many neighbours (needs\n"
 		"                          --mean-degree)\n"
 		"      --epsilon X         background link probability (default 0)\n"
+		"      --mixing X          share of the edges that are background edges,\n"
+		"                          in [0, 1): the p_c are scaled so the communities\n"
+		"                          expect (1 - X) of the mean degree, and epsilon is\n"
+		"                          solved for the rest (needs a mean degree; not\n"
+		"                          with --epsilon); simulate.json records both\n"
 		"      --prefix STR        node names STR0, STR1, ... (default: 0, 1, ...)\n"
 		"  -o, --output DIR        folder to write (made if missing; required)\n"
 		"      --force             replace a planted graph already in DIR\n"
@@ -97,6 +102,7 @@ enum {
 	OPT_PREFIX,
 	OPT_FORCE,
 	OPT_EVEN_DEGREES,
+	OPT_MIXING,
 };
 
 /* The command line. */
@@ -121,6 +127,7 @@ static int parse_args(struct sim_args *a, int argc, char **argv)
 		{ "mean-degree", required_argument, NULL, OPT_MEAN_DEGREE },
 		{ "even-degrees", no_argument, NULL, OPT_EVEN_DEGREES },
 		{ "epsilon", required_argument, NULL, CLI_OPT_EPSILON },
+		{ "mixing", required_argument, NULL, OPT_MIXING },
 		{ "prefix", required_argument, NULL, OPT_PREFIX },
 		{ "output", required_argument, NULL, 'o' },
 		{ "force", no_argument, NULL, OPT_FORCE },
@@ -135,7 +142,7 @@ static int parse_args(struct sim_args *a, int argc, char **argv)
 	long cores = sysconf(_SC_NPROCESSORS_ONLN);
 	p->threads = cores > 0 ? (unsigned)(cores > 256 ? 256 : cores) : 1;
 	a->prefix = "";
-	int have_sizes = 0, have_link = 0, have_degree = 0;
+	int have_sizes = 0, have_link = 0, have_degree = 0, have_eps = 0;
 	int c;
 	cli_getopt_reset();
 	while ((c = getopt_long(argc, argv, ":n:k:o:j:qh", opts, NULL)) != -1) {
@@ -163,7 +170,11 @@ static int parse_args(struct sim_args *a, int argc, char **argv)
 			have_degree = 1;
 			break;
 		case OPT_EVEN_DEGREES: p->even_degrees = 1; break;
-		case CLI_OPT_EPSILON: p->epsilon = cli_double("--epsilon", optarg, 0.0, 0.999); break;
+		case CLI_OPT_EPSILON:
+			p->epsilon = cli_double("--epsilon", optarg, 0.0, 0.999);
+			have_eps = 1;
+			break;
+		case OPT_MIXING: p->mixing = cli_double("--mixing", optarg, 0.0, 0.999); break;
 		case OPT_PREFIX: a->prefix = optarg; break;
 		case 'o': a->out = optarg; break;
 		case OPT_FORCE: a->force = 1; break;
@@ -184,6 +195,10 @@ static int parse_args(struct sim_args *a, int argc, char **argv)
 	/* --link-prob alone means the p_c as given; with --mean-degree, weights */
 	if (have_link && !have_degree && !p->even_degrees)
 		p->mean_degree = 0.0;
+	if (p->mixing >= 0.0 && have_eps)
+		die(EXIT_USAGE, "--mixing and --epsilon cannot both be given: --mixing solves epsilon");
+	if (p->mixing >= 0.0 && !(p->mean_degree > 0.0))
+		die(EXIT_USAGE, "--mixing needs a mean degree to share out (--mean-degree D, above 0)");
 	if (!have_sizes) {
 		if (p->size_max > p->n)
 			p->size_max = p->n;
@@ -195,8 +210,8 @@ static int parse_args(struct sim_args *a, int argc, char **argv)
 	return -1;
 }
 
-static void say_planted(const struct simulate *s, const char *out, double seconds,
-			double t_written)
+static void say_planted(const struct simulate *s, const struct simulate_params *p,
+			const char *out, double seconds, double t_written)
 {
 	char buf[512];
 	notice("planted %u communities (%" PRIu64 " memberships, %" PRIu64
@@ -206,6 +221,13 @@ static void say_planted(const struct simulate *s, const char *out, double second
 	       s->k, s->truth.off[s->k], s->overlapping, s->n, s->m, s->expected_edges,
 	       2.0 * (double)s->m / s->n, seconds, util_escape(out, buf, sizeof buf, 1),
 	       util_now() - t_written);
+	if (p->mixing >= 0.0)
+		notice("mixing %g: background epsilon %.6g; %.4f of the edges drawn by the "
+		       "background alone (expected %.4f), %.4f join nodes sharing no community",
+		       p->mixing, s->epsilon, s->m ? (double)s->background_only / s->m : 0.0,
+		       s->expected_edges > 0.0 ? (s->expected_edges - s->expected_community_edges) /
+						  s->expected_edges : 0.0,
+		       s->m ? (double)s->outside_edges / s->m : 0.0);
 	if (s->isolated)
 		notice("%" PRIu64 " nodes have no edge and are absent from '%s'", s->isolated,
 		       SIMULATE_EDGES);
@@ -238,7 +260,7 @@ int cmd_simulate(int argc, char **argv)
 	if (proc_signals_install() || simulate_write(a.out, &s, &a.p, &meta))
 		goto out;
 	if (!a.quiet)
-		say_planted(&s, a.out, t1 - t0, t1);
+		say_planted(&s, &a.p, a.out, t1 - t0, t1);
 	rc = 0;
 	if (proc_signal_caught()) {
 		notice("interrupted; the planted graph was written first");

@@ -5,14 +5,18 @@
 #
 #   make bench               planted graphs of 10^4, 10^5 and 10^6 nodes,
 #                            email-Enron and cond-mat-2005 (about 20 min)
-#   BENCH=quick make bench   the 10^4-node graph only (under a minute)
+#   BENCH=quick make bench   the 10^4-node graph only, and one graph with
+#                            mixing (10^4 nodes, share 0.2) (about a minute)
 #
 # For each graph: one fit to its plateau with -j 2 (load, seeding, seconds
 # per sweep, sweeps, total, peak RSS, ONMI against the planted cover), a
 # few sweeps with -j 1 and with -j 2 (speed-up, ns per neighbour visit and
 # the bare-loop yardstick), and igraph's Leiden on the same graph. Then
 # loading the largest planted graph plain and gzip-compressed, beside
-# zlib's own inflate speed. tests/bench/README.md explains every column.
+# zlib's own inflate speed. Then planted graphs whose communities leak
+# (coterie simulate --mixing X, power-law sizes 20 to 2000; issues 12, 13):
+# one fit with the defaults of coterie fit, ONMI, and Leiden, in a second
+# table. tests/bench/README.md explains every column.
 #
 # Environment: COTERIE_BIN, BENCH_TOOLS (folder with benchtool and
 # gen_planted; make bench sets both), BENCH (full|quick), COTERIE_DATASETS
@@ -22,7 +26,10 @@
 # BENCH_BIG_SWEEPS (sweep limit of the 10^6-node fit, default 40),
 # BENCH_SIZES / BENCH_SETS (override the planted sizes / the datasets),
 # BENCH_REPEAT (runs of each of -j 1 and -j 2 for the speed-up, best taken;
-# default 3, quick 1).
+# default 3, quick 1), BENCH_MIX_SIZES / BENCH_MIXES (the nodes and shares
+# of the graphs with mixing; "" for none), BENCH_MIX_OPTS (more simulate
+# options for them, e.g. --even-degrees), BENCH_MIX_SWEEPS (their sweep
+# limit, default 500 as coterie fit).
 set -u
 
 here=$(cd "$(dirname "$0")" && pwd)
@@ -57,9 +64,14 @@ trap 'rm -rf "$work"' EXIT
 trap 'exit 130' INT TERM HUP
 
 case $mode in
-quick) sizes=10000 sets= repeat=1 ;;
-*) sizes="10000 100000 1000000" sets="email-Enron cond-mat-2005" repeat=3 ;;
+quick) sizes=10000 sets= repeat=1 mixsizes=10000 mixes=0.2 ;;
+*) sizes="10000 100000 1000000" sets="email-Enron cond-mat-2005" repeat=3
+	mixsizes="10000 100000 1000000" mixes="0.1 0.2 0.3" ;;
 esac
+mixsizes=${BENCH_MIX_SIZES-$mixsizes}
+mixes=${BENCH_MIXES-$mixes}
+mixopts=${BENCH_MIX_OPTS:-}
+mixsweeps=${BENCH_MIX_SWEEPS:-500}
 repeat=${BENCH_REPEAT:-$repeat}
 sizes=${BENCH_SIZES:-$sizes}
 sets=${BENCH_SETS-$sets}
@@ -69,6 +81,8 @@ get() { awk -F '\t' -v k="$2" '$1 == k { v = $2 } END { print v }' "$1" 2>/dev/n
 # minf A B: the smaller of two numbers ("" counts as none)
 minf() { awk -v a="$1" -v b="$2" 'BEGIN { if (a == "") print b; else if (b == "" || a + 0 <= b + 0) print a; else print b }'; }
 # div A B [FORMAT]
+# jget FILE OBJECT KEY: a number from simulate.json's OBJECT ("realised", "mixing")
+jget() { awk -v o="\"$2\":" -v k="\"$3\":" '$1 == o && $2 == "{" { in_o = 1 } in_o && $1 == k { gsub(/[^0-9.e+-]/, "", $2); print $2; exit }' "$1" 2>/dev/null; }
 div() { awk -v a="$1" -v b="$2" -v f="${3:-%.2f}" 'BEGIN { if (a == "" || b == "" || b + 0 == 0) print "-"; else printf f "\n", a / b }'; }
 
 table=$work/table.md
@@ -166,6 +180,59 @@ if [ -n "$largest" ]; then
 		"$(get "$work/zlib" zlib_mbps)" "$(get "$work/zlib" zlib_out_mbps)" >>"$notes"
 fi
 
+# Planted graphs with mixing: X of the expected edges are background edges
+# (simulate.h), sizes from a power law. One fit with coterie fit's
+# defaults (reseeding on; 3 starts below 100,000 edges, else 1, as the
+# command chooses), k the planted count, ONMI against truth.tsv (its
+# isolated nodes, absent from the graph, count as uncovered); then Leiden.
+mixtable=$work/mixtable.md
+mixnotes=$work/mixnotes.md
+: >"$mixnotes"
+{
+	echo "| graph | nodes | edges | k | mixing | outside share | s/sweep | sweeps | fit s | entries/row | entries/visit | peak MB | ONMI | Leiden s | fit/Leiden |"
+	echo "|---|---|---|---|---|---|---|---|---|---|---|---|---|---|---|"
+} >"$mixtable"
+tag=$(printf '%s' "$mixopts" | tr -c 'A-Za-z0-9' '_')
+for n in $mixsizes; do
+	for x in $mixes; do
+		label=mixing-$n-$x$tag
+		d=$cache/$label
+		if [ ! -s "$d/edges.tsv" ] || [ ! -s "$d/simulate.json" ]; then
+			echo "bench: $label: coterie simulate" >&2
+			"$BIN" simulate -n "$n" --sizes 20:2000 --size-exponent 2 --overlap 0.1 \
+				--mean-degree 20 --mixing "$x" $mixopts --seed 1 -j 2 -q --force -o "$d" ||
+				{ echo "bench: cannot write $d" >&2; continue; }
+		fi
+		k=$(jget "$d/simulate.json" realised communities)
+		m=$(jget "$d/simulate.json" realised edges)
+		starts=1
+		[ "$m" -lt 100000 ] && starts=3
+		f=$work/$label
+		echo "bench: $label: fit -k $k -j 2 --starts $starts (defaults otherwise)" >&2
+		"$tool" fit "$d/edges.tsv" -k "$k" -j 2 --starts "$starts" --max-sweeps "$mixsweeps" \
+			--truth "$d/truth.tsv" >"$f.fit" 2>"$f.err" ||
+			{ echo "bench: $label: fit failed:" >&2; tail -n 3 "$f.err" >&2; }
+		echo "bench: $label: igraph Leiden" >&2
+		"$tool" leiden "$d/edges.tsv" >"$f.leiden" 2>/dev/null
+		onmi=$(get "$f.fit" onmi)
+		sweeps="$(get "$f.fit" sweeps)"
+		[ "$(get "$f.fit" state)" = finished ] && sweeps="$sweeps (limit)"
+		printf '| %s | %s | %s | %s | %s | %s | %s | %s | %s | %s | %s | %s | %s | %s | %s |\n' \
+			"$label" "$(get "$f.fit" nodes)" "$(get "$f.fit" edges)" "$k" "$x" \
+			"$(jget "$d/simulate.json" mixing outside_share_realised | cut -c1-6)" \
+			"$(get "$f.fit" sweep_s)" "$sweeps" "$(get "$f.fit" fit_s)" \
+			"$(div "$(get "$f.fit" strength_entries)" "$(get "$f.fit" nodes)")" \
+			"$(get "$f.fit" entries_per_visit)" "$(get "$f.fit" peak_rss_mb)" "${onmi:--}" \
+			"$(get "$f.leiden" leiden_s)" \
+			"$(div "$(get "$f.fit" fit_s)" "$(get "$f.leiden" leiden_s)" %.1f)" >>"$mixtable"
+		printf -- '- %s: loglik %s, %s communities, state %s, plateau at sweep %s; fit CPU %s s, seeding %s s; epsilon solved %s; Leiden %s clusters\n' \
+			"$label" "$(get "$f.fit" loglik)" "$(get "$f.fit" communities)" \
+			"$(get "$f.fit" state)" "$(get "$f.fit" plateau_sweep)" "$(get "$f.fit" fit_cpu_s)" \
+			"$(get "$f.fit" seed_s)" "$(jget "$d/simulate.json" mixing epsilon)" \
+			"$(get "$f.leiden" leiden_clusters)" >>"$mixnotes"
+	done
+done
+
 {
 	echo "# coterie benchmark ($mode)"
 	echo
@@ -176,5 +243,15 @@ fi
 	cat "$table"
 	echo
 	cat "$notes"
+	if [ -n "$mixsizes" ] && [ -n "$mixes" ]; then
+		echo
+		echo "## Planted graphs with mixing"
+		echo
+		echo "- coterie simulate -n N --sizes 20:2000 --size-exponent 2 --overlap 0.1 --mean-degree 20 --mixing X ${mixopts:+$mixopts }--seed 1; fit: benchtool fit GRAPH -k K -j 2 with coterie fit's defaults (3 starts below 100,000 edges, else 1; reseeding on; at most $mixsweeps sweeps)"
+		echo
+		cat "$mixtable"
+		echo
+		cat "$mixnotes"
+	fi
 } | tee "$results"
 exit 0

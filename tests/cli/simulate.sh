@@ -4,7 +4,8 @@
 # (man/coterie-files.5). Checked here on the real binary: the files agree
 # with each other (read with python3-networkx, Debian 2.8.8), the edge count
 # is within 5 sd of the expectation simulate.json states, the same seed
-# gives the same bytes whatever -j is, coterie fit reads the edge list, an
+# gives the same bytes whatever -j is (and, without --mixing, as before it),
+# --mixing shares the edges as simulate.json says, coterie fit reads the edge list, an
 # existing planted graph is not replaced without --force, and bad options
 # exit 2 without raw control bytes.
 . "$(dirname "$0")/lib"
@@ -118,6 +119,76 @@ sys.exit(0 if max(v) - min(v) <= 1e-9 * max(v) else 1)"
 check "--even-degrees without a mean degree: exit 2" [ $? -eq 2 ]
 check "--link-prob alone keeps p_c as given" [ "$(json_get "$tmp/e/simulate.json" realised.p_max)" = 0.3 ]
 
+# Without --mixing the bytes are those of the binary before it existed
+# (commit ead9fde; cksum of each file, x86-64 glibc: the draws go through
+# log1p, so another libm may differ in the last bits and pick other pairs).
+if [ "$(uname -m)" = x86_64 ]; then
+	"$BIN" simulate -n 3000 --sizes 20:300 --size-exponent 2 --overlap 0.1 --mean-degree 20 \
+		--seed 9 -j 2 -q -o "$tmp/g1" 2>/dev/null
+	check "no --mixing: the same edges.tsv as before it" [ "$(cksum <"$tmp/g1/edges.tsv")" = "1832179816 278154" ]
+	check "... the same truth.tsv" [ "$(cksum <"$tmp/g1/truth.tsv")" = "954887450 24708" ]
+	check "... the same planted.tsv" [ "$(cksum <"$tmp/g1/planted.tsv")" = "887185485 1213" ]
+	check "... and no mixing in simulate.json" sh -c "! grep -q '\"mixing\"' '$tmp/g1/simulate.json'"
+	check "with --epsilon: the same edges.tsv as before" [ "$(cksum <"$tmp/b/edges.tsv")" = "549058372 47127" ]
+	check "... the same planted.tsv" [ "$(cksum <"$tmp/b/planted.tsv")" = "640963525 1333" ]
+fi
+
+# --mixing X: the background solved so that X of the expected edges are
+# background edges (E(eps) - E(0) over E(eps); simulate.h). Checked from
+# the files alone: a pair sharing no planted community is linked with
+# probability eps (the AGM's P(u, v) with S empty), so the edges between
+# such pairs are Binomial(N0, eps), N0 counted here exactly from truth.tsv
+# as C(n, 2) less the distinct pairs inside a community; |X - N0 eps| <=
+# 5 sqrt(N0 eps (1 - eps)) fails by chance with probability below 6e-7
+# (normal approximation; N0 eps is in the thousands here).
+for x in 0.1 0.3; do
+	"$BIN" simulate -n 3000 --sizes 20:300 --size-exponent 2 --overlap 0.1 --mean-degree 20 \
+		--mixing $x --seed 9 -j 2 -o "$tmp/mix$x" 2>"$tmp/mix.err"
+	check "--mixing $x: exit 0" [ $? -eq 0 ]
+	check "... the notice gives the epsilon solved" grep -q "mixing $x: background epsilon" "$tmp/mix.err"
+	if "$PY" - "$tmp/mix$x" "$x" >"$tmp/py.out" 2>&1 <<'EOF'
+import json, math, sys
+D, X = sys.argv[1], float(sys.argv[2])
+J = json.load(open(D + "/simulate.json"))
+R, P, M = J["realised"], J["parameters"], J["mixing"]
+n = P["nodes"]
+assert P["mixing"] == X and M["asked"] == X and P["epsilon"] == 0, (P, M)
+E = R["expected_edges"]
+assert abs(E - n * P["mean_degree"] / 2) < 1e-6 * E, E
+assert abs(M["background_share_expected"] - X) < 1e-9, M
+comm = {}
+for line in list(open(D + "/truth.tsv"))[1:]:
+    u, c = line.split()
+    comm.setdefault(c, []).append(int(u))
+together = set()
+for ms in comm.values():
+    ms.sort()
+    together.update((a, b) for i, a in enumerate(ms) for b in ms[i + 1:])
+N0 = n * (n - 1) // 2 - len(together)
+assert N0 == M["pairs_apart"], (N0, M["pairs_apart"])
+out = m = 0
+for line in open(D + "/edges.tsv"):
+    if line.startswith("#"):
+        continue
+    a, b = sorted(map(int, line.split()))
+    m += 1
+    out += (a, b) not in together
+assert m == R["edges"] and out == M["outside_edges"], (m, out, M)
+eps = M["epsilon"]
+mean, sd = N0 * eps, math.sqrt(N0 * eps * (1 - eps))
+assert abs(out - mean) <= 5 * sd, (out, mean, sd)
+assert abs(M["outside_share_realised"] - out / m) < 1e-12
+assert M["outside_edges"] <= M["background_share_realised"] * m + 1e-6
+EOF
+	then
+		pass "... outside edges within 5 sd of eps x (pairs sharing none)"
+	else
+		fail "... outside edges within 5 sd of eps x (pairs sharing none)"
+		sed 's/^/# /' "$tmp/py.out"
+	fi
+done
+check "--help names --mixing" grep -q -- '--mixing X' "$tmp/help.txt"
+
 # bad usage: exit 2, message without raw control bytes
 bad()
 {
@@ -140,6 +211,9 @@ bad "a prefix with an escape" --prefix "$(printf 'a\033[31m')" -o "$tmp/x"
 bad "a stray argument" "$(printf 'x\033[2J')" -o "$tmp/x"
 bad "an unknown option" --frobnicate -o "$tmp/x"
 bad "too many communities for the nodes" -n 100 -k 50 --sizes 10:20 -o "$tmp/x"
+bad "--mixing with --epsilon" --mixing 0.2 --epsilon 0.001 -o "$tmp/x"
+bad "--mixing with no mean degree" --mixing 0.2 --link-prob 0.3 -o "$tmp/x"
+bad "--mixing of 1" --mixing 1 -o "$tmp/x"
 check "nothing written by refused runs" [ ! -e "$tmp/x" ]
 
 finish

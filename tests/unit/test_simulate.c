@@ -650,6 +650,132 @@ static void test_bad_parameters_are_refused(void **state)
 	assert_int_equal(simulate_prefix_check("a\x1b[31m"), -1);
 }
 
+/* 1 when u and v share a planted community (merging their lists). */
+static int shares_any(const struct memb *mb, uint32_t u, uint32_t v)
+{
+	uint64_t a = mb->off[u], b = mb->off[v];
+	while (a < mb->off[u + 1] && b < mb->off[v + 1]) {
+		if (mb->lists[a] == mb->lists[b])
+			return 1;
+		if (mb->lists[a] < mb->lists[b])
+			a++;
+		else
+			b++;
+	}
+	return 0;
+}
+
+static void test_mixing_makes_that_share_of_the_edges_background(void **state)
+{
+	(void)state;
+	/* The recipe of issue 12 made small: power-law sizes 20 .. 300,
+	 * exponent 2, 10% of nodes in two communities, mean degree 20. For
+	 * each share X, by visiting every pair with the definition of P(u, v):
+	 *  - sum P = n D / 2 and sum P with eps 0 = (1 - X) n D / 2, so X of
+	 *    the expected edges are the background's (E(eps) - E(0) over E);
+	 *  - the pairs sharing no community, N0, counted here, equal
+	 *    pairs_apart; each is an edge with probability eps (P with S
+	 *    empty), so the edges between them are Binomial(N0, eps);
+	 *  - the edges drawn by the background alone: per pair a Bernoulli of
+	 *    eps prod (1 - p_c), summed to their mean and variance. */
+	const double shares[] = { 0.1, 0.2, 0.3 };
+	for (unsigned t = 0; t < 3; t++) {
+		struct simulate_params p;
+		simulate_params_default(&p);
+		p.n = 3000;
+		p.size_min = 20;
+		p.size_max = 300;
+		p.size_exponent = 2.0;
+		p.overlap = 0.1;
+		p.mean_degree = 20.0;
+		p.mixing = shares[t];
+		p.seed = 40 + t;
+		p.threads = 2;
+		struct simulate s;
+		sim(&s, &p);
+		struct memb mb;
+		memb_build(&mb, &s.truth);
+		double e = 0.0, e0 = 0.0, alone = 0.0, alone_var = 0.0;
+		uint64_t n0 = 0, outside = 0;
+		for (uint32_t u = 0; u < s.n; u++)
+			for (uint32_t v = u + 1; v < s.n; v++) {
+				double q0 = pair_prob(&mb, s.p, 0.0, u, v), b = s.epsilon * (1.0 - q0);
+				e += q0 + b;
+				e0 += q0;
+				alone += b;
+				alone_var += b * (1.0 - b);
+				n0 += !shares_any(&mb, u, v);
+			}
+		for (uint64_t i = 0; i < s.m; i++)
+			outside += !shares_any(&mb, (uint32_t)(s.edges[i] >> 32),
+					       (uint32_t)(s.edges[i] & 0xffffffffu));
+		double target = p.n * p.mean_degree / 2.0, eps = s.epsilon;
+		assert_true(eps > 0.0);
+		assert_true(fabs(e - target) < 1e-6 * target);
+		assert_true(fabs(e0 - (1.0 - p.mixing) * target) < 1e-6 * target);
+		assert_true(fabs(s.expected_edges - e) < 1e-6 * e);
+		assert_true(fabs(s.expected_community_edges - e0) < 1e-6 * e);
+		assert_true(s.pairs_apart == n0);
+		assert_true(s.outside_edges == outside);
+		assert_within_5sd((double)outside, (double)n0 * eps, (double)n0 * eps * (1.0 - eps));
+		assert_within_5sd((double)s.background_only, alone, alone_var);
+		assert_true(s.outside_edges <= s.background_only && s.background_only <= s.m);
+		memb_free(&mb);
+		simulate_release(&s);
+	}
+}
+
+static void test_mixing_zero_or_absent_draws_the_same_graph(void **state)
+{
+	(void)state;
+	/* mixing 0 solves eps 0: the p_c meet the whole mean degree, as with
+	 * no mixing and no background */
+	struct simulate_params p;
+	simulate_params_default(&p);
+	p.n = 2000;
+	p.size_min = 20;
+	p.size_max = 200;
+	struct simulate a, b;
+	sim(&a, &p);
+	p.mixing = 0.0;
+	sim(&b, &p);
+	assert_true(b.epsilon == 0.0);
+	assert_int_equal(a.m, b.m);
+	assert_memory_equal(a.edges, b.edges, a.m * sizeof *a.edges);
+	assert_memory_equal(a.p, b.p, a.k * sizeof *a.p);
+	assert_int_equal(b.background_only, 0);
+	simulate_release(&a);
+	simulate_release(&b);
+}
+
+static void test_mixing_is_refused_with_epsilon_or_without_mean_degree(void **state)
+{
+	(void)state;
+	struct simulate_params p, q;
+	simulate_params_default(&p);
+	p.mixing = 0.2;
+	assert_int_equal(simulate_params_check(&p), 0);
+	q = p;
+	q.epsilon = 0.001; /* mixing solves epsilon */
+	assert_int_equal(simulate_params_check(&q), -1);
+	q = p;
+	q.mean_degree = 0.0; /* nothing to share out */
+	assert_int_equal(simulate_params_check(&q), -1);
+	q = p;
+	q.mixing = 1.0; /* no community edge left */
+	assert_int_equal(simulate_params_check(&q), -1);
+	/* out of reach within the communities: complete communities of 5 to
+	 * 10 give each node at most 9 neighbours, short of 0.5 x 30 */
+	q = p;
+	q.size_min = 5;
+	q.size_max = 10;
+	q.overlap = 0.0;
+	q.mean_degree = 30.0;
+	q.mixing = 0.5;
+	struct simulate s;
+	assert_int_equal(simulate_run(&q, &s), -1);
+}
+
 static void test_same_seed_same_graph_whatever_the_threads(void **state)
 {
 	(void)state;
@@ -803,6 +929,9 @@ int main(void)
 		cmocka_unit_test(test_even_degrees_give_small_and_large_communities_alike),
 		cmocka_unit_test(test_unreachable_mean_degree_is_refused),
 		cmocka_unit_test(test_bad_parameters_are_refused),
+		cmocka_unit_test(test_mixing_makes_that_share_of_the_edges_background),
+		cmocka_unit_test(test_mixing_zero_or_absent_draws_the_same_graph),
+		cmocka_unit_test(test_mixing_is_refused_with_epsilon_or_without_mean_degree),
 		cmocka_unit_test(test_same_seed_same_graph_whatever_the_threads),
 		cmocka_unit_test(test_written_files_read_back),
 		cmocka_unit_test(test_planted_graph_is_recovered_by_the_fit),
