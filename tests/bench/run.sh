@@ -28,7 +28,7 @@
 # BENCH_REPEAT (runs of each of -j 1 and -j 2 for the speed-up, best taken;
 # default 3, quick 1), BENCH_MIX_SIZES / BENCH_MIXES (the nodes and shares
 # of the graphs with mixing; "" for none), BENCH_MIX_OPTS (more simulate
-# options for them, e.g. --even-degrees), BENCH_MIX_SWEEPS (their sweep
+# options for them; default --even-degrees, "" for none), BENCH_MIX_SWEEPS (their sweep
 # limit, default 500 as coterie fit).
 set -u
 
@@ -70,7 +70,7 @@ quick) sizes=10000 sets= repeat=1 mixsizes=10000 mixes=0.2 ;;
 esac
 mixsizes=${BENCH_MIX_SIZES-$mixsizes}
 mixes=${BENCH_MIXES-$mixes}
-mixopts=${BENCH_MIX_OPTS:-}
+mixopts=${BENCH_MIX_OPTS---even-degrees}
 mixsweeps=${BENCH_MIX_SWEEPS:-500}
 repeat=${BENCH_REPEAT:-$repeat}
 sizes=${BENCH_SIZES:-$sizes}
