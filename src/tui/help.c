@@ -89,13 +89,7 @@ static const char *const notes[] = {
 	"Ctrl-C, SIGTERM or a lost connection save first, then end (status 130).",
 };
 #define NNOTES (sizeof notes / sizeof notes[0])
-
-static size_t help_line_count(void)
-{
-	struct help_line lines[HELP_MAX];
-	size_t left;
-	return build(lines, &left) + NNOTES + 1;
-}
+#define NOTES_HEADING "Questions and signals"
 
 /* Columns of the key names, and of a whole line, over lines [a, b). */
 static int key_width(const struct help_line *l, size_t a, size_t b)
@@ -118,19 +112,156 @@ static int line_width(const struct help_line *l, size_t a, size_t b, int kw)
 	return lw;
 }
 
+/* The key lines, then the notes as lines without keys under a heading of
+ * their own: what the one-column help scrolls through. */
+static size_t build_all(struct help_line *out, size_t *nleft)
+{
+	size_t n = build(out, nleft);
+	if (n + 1 + NNOTES > HELP_MAX)
+		return n;
+	snprintf(out[n].keys, sizeof out[n].keys, "%s", NOTES_HEADING);
+	out[n++].text = NULL;
+	for (size_t i = 0; i < NNOTES; i++) {
+		out[n].keys[0] = '\0';
+		out[n++].text = notes[i];
+	}
+	return n;
+}
+
+/* Where the next row of a text broken between words at tw columns
+ * starts: s + *len is the row's end. */
+static const char *wrap_next(const char *s, int tw, size_t *len)
+{
+	while (*s == ' ')
+		s++;
+	size_t fit = 0, i = 0;
+	char buf[256];
+	while (s[i]) {
+		size_t k = i;
+		while (s[k] == ' ')
+			k++;
+		while (s[k] && s[k] != ' ')
+			k++;
+		if (k >= sizeof buf)
+			break;
+		memcpy(buf, s, k);
+		buf[k] = '\0';
+		if (draw_width(buf) > tw)
+			break;
+		fit = i = k;
+	}
+	if (fit == 0) /* a word wider than the row: it is cut */
+		while (s[fit] && s[fit] != ' ')
+			fit++;
+	*len = fit;
+	return s;
+}
+
+/* Rows a line takes when its text is broken between words at tw columns. */
+static int line_rows(const struct help_line *l, int tw)
+{
+	if (!l->text || tw < 1)
+		return 1;
+	int rows = 0;
+	const char *s = l->text;
+	size_t len;
+	while (*(s = wrap_next(s, tw, &len))) {
+		rows++;
+		s += len;
+	}
+	return rows ? rows : 1;
+}
+
+/* The one-column layout at a width: key column, text column, rows in all. */
+static size_t one_column(const struct help_line *l, size_t n, int width, int *kw, int *tw)
+{
+	*kw = key_width(l, 0, n);
+	*tw = width - 2 - 2 - *kw;
+	if (*tw < 12) { /* too narrow for a key column: text under the keys */
+		*kw = 0;
+		*tw = width - 4;
+	}
+	size_t rows = 0;
+	for (size_t i = 0; i < n; i++)
+		rows += (size_t)line_rows(&l[i], *tw) + (*kw == 0 && l[i].text && l[i].keys[0]);
+	return rows;
+}
+
+static size_t help_row_count(int width)
+{
+	struct help_line lines[HELP_MAX];
+	size_t left;
+	size_t n = build_all(lines, &left);
+	int kw, tw;
+	return one_column(lines, n, width, &kw, &tw);
+}
+
+static void put_heading(const struct view *v, WINDOW *w, int y, int x, int width, const char *t)
+{
+	wattron(w, draw_attr(v, CP_TITLE));
+	draw_text(w, y, x, t, width);
+	wattroff(w, draw_attr(v, CP_TITLE));
+}
+
 static void put_line(const struct view *v, WINDOW *w, int y, int x, int width, int kw,
 		     const struct help_line *l)
 {
 	if (!l->text) {
-		wattron(w, draw_attr(v, CP_TITLE));
-		draw_text(w, y, x, l->keys, width);
-		wattroff(w, draw_attr(v, CP_TITLE));
+		put_heading(v, w, y, x, width, l->keys);
 		return;
 	}
 	wattron(w, A_BOLD);
 	draw_text(w, y, x + 2, l->keys, kw - 1);
 	wattroff(w, A_BOLD);
 	draw_text(w, y, x + 2 + kw, l->text, width - 2 - kw);
+}
+
+/* The one-column help from display row top: every text whole, broken
+ * between words. */
+static void draw_rows(const struct view *v, WINDOW *w, const struct help_line *l, size_t n,
+		      size_t top, int body, int width)
+{
+	int kw, tw;
+	one_column(l, n, width, &kw, &tw);
+	size_t row = 0;
+	for (size_t i = 0; i < n; i++) {
+		int keys_above = kw == 0 && l[i].text && l[i].keys[0];
+		if (keys_above) {
+			if (row >= top && row < top + (size_t)body) {
+				wattron(w, A_BOLD);
+				draw_text(w, 1 + (int)(row - top), 3, l[i].keys, width - 4);
+				wattroff(w, A_BOLD);
+			}
+			row++;
+		}
+		if (!l[i].text) {
+			if (row >= top && row < top + (size_t)body)
+				put_heading(v, w, 1 + (int)(row - top), 1, width - 2, l[i].keys);
+			row++;
+			continue;
+		}
+		const char *s = l[i].text;
+		size_t len;
+		int first = 1;
+		while (*(s = wrap_next(s, tw, &len))) {
+			if (row >= top && row < top + (size_t)body) {
+				int y = 1 + (int)(row - top);
+				if (first && kw > 0) {
+					wattron(w, A_BOLD);
+					draw_text(w, y, 3, l[i].keys, kw - 1);
+					wattroff(w, A_BOLD);
+				}
+				char buf[256];
+				size_t c = len < sizeof buf ? len : sizeof buf - 1;
+				memcpy(buf, s, c);
+				buf[c] = '\0';
+				draw_text(w, y, 3 + kw, buf, tw);
+			}
+			first = 0;
+			row++;
+			s += len;
+		}
+	}
 }
 
 void help_draw(const struct view *v, WINDOW *w)
@@ -145,49 +276,63 @@ void help_draw(const struct view *v, WINDOW *w)
 	draw_text(w, 0, 1, "Keys: what each one does (any other key closes this)",
 		  width - 2);
 	wattroff(w, ta);
+	int notes_fit = 1;
+	for (size_t i = 0; i < NNOTES; i++)
+		notes_fit &= draw_width(notes[i]) <= width - 2;
 	int body = h - 1 - (int)NNOTES - 1;
-	if (body < 1)
-		body = 1;
 	int kl = key_width(lines, 0, nleft), kr = key_width(lines, nleft, n);
 	int wl = line_width(lines, 0, nleft, kl), wr = line_width(lines, nleft, n, kr);
-	int kw = key_width(lines, 0, n);
-	/* one column when it fits; two when that avoids scrolling and
-	 * nothing is cut; else one column that scrolls */
-	int two = n > (size_t)body && nleft <= (size_t)body && n - nleft <= (size_t)body &&
-		  wl + wr + 4 <= width;
+	/* two columns, the notes below, when that avoids scrolling and nothing
+	 * is cut; else one column, every text broken between words, the notes
+	 * at the end, scrolling when it must */
+	int two = body >= 1 && n > (size_t)body && nleft <= (size_t)body &&
+		  n - nleft <= (size_t)body && wl + wr + 4 <= width && notes_fit;
 	if (two) {
 		for (size_t i = 0; i < nleft; i++)
 			put_line(v, w, 1 + (int)i, 1, wl + 1, kl, &lines[i]);
 		for (size_t i = nleft; i < n; i++)
 			put_line(v, w, 1 + (int)(i - nleft), wl + 4, width - wl - 5, kr, &lines[i]);
-	} else {
-		if (n > (size_t)body && body > 1)
-			body--; /* a line for "lines a-b of n" */
-		size_t top = v->help_top;
-		if (n > (size_t)body && top > n - (size_t)body)
-			top = n - (size_t)body;
-		if (n <= (size_t)body)
-			top = 0;
-		for (int r = 0; r < body && top + (size_t)r < n; r++)
-			put_line(v, w, 1 + r, 1, width - 2, kw, &lines[top + (size_t)r]);
-		if (n > (size_t)body) {
-			char more[64];
-			snprintf(more, sizeof more, "lines %zu-%zu of %zu; j/k scroll", top + 1,
-				 top + (size_t)body < n ? top + (size_t)body : n, n);
-			wattron(w, draw_attr(v, CP_DIM));
-			draw_text(w, 1 + body, width - 2 - draw_width(more), more, width - 2);
-			wattroff(w, draw_attr(v, CP_DIM));
-		}
+		wattron(w, draw_attr(v, CP_DIM));
+		for (size_t i = 0; i < NNOTES; i++)
+			draw_text(w, h - (int)NNOTES + (int)i, 1, notes[i], width - 2);
+		wattroff(w, draw_attr(v, CP_DIM));
+		return;
 	}
-	wattron(w, draw_attr(v, CP_DIM));
-	for (size_t i = 0; i < NNOTES; i++)
-		draw_text(w, h - (int)NNOTES + (int)i, 1, notes[i], width - 2);
-	wattroff(w, draw_attr(v, CP_DIM));
+	/* one column with the notes below when it all fits; else the notes
+	 * join the scrolling body */
+	int kw, tw;
+	if (notes_fit && body >= 1 && one_column(lines, n, width, &kw, &tw) <= (size_t)body) {
+		draw_rows(v, w, lines, n, 0, body, width);
+		wattron(w, draw_attr(v, CP_DIM));
+		for (size_t i = 0; i < NNOTES; i++)
+			draw_text(w, h - (int)NNOTES + (int)i, 1, notes[i], width - 2);
+		wattroff(w, draw_attr(v, CP_DIM));
+		return;
+	}
+	n = build_all(lines, &nleft);
+	body = h - 1;
+	size_t rows = help_row_count(width);
+	if (rows > (size_t)body && body > 1)
+		body--; /* a line for "rows a-b of n" */
+	size_t top = v->help_top;
+	if (rows > (size_t)body && top > rows - (size_t)body)
+		top = rows - (size_t)body;
+	if (rows <= (size_t)body)
+		top = 0;
+	draw_rows(v, w, lines, n, top, body, width);
+	if (rows > (size_t)body) {
+		char more[64];
+		snprintf(more, sizeof more, "lines %zu-%zu of %zu; j/k scroll", top + 1,
+			 top + (size_t)body < rows ? top + (size_t)body : rows, rows);
+		wattron(w, draw_attr(v, CP_DIM));
+		draw_text(w, 1 + body, width - 2 - draw_width(more), more, width - 2);
+		wattroff(w, draw_attr(v, CP_DIM));
+	}
 }
 
 void help_key(struct view *v, int key)
 {
-	size_t n = help_line_count();
+	size_t n = help_row_count(v->cols);
 	switch (key) {
 	case KEY_DOWN:
 	case 'j':

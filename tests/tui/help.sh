@@ -73,6 +73,40 @@ i=0
 while [ $i -lt 30 ]; do keys j; i=$((i + 1)); done
 check "scrolling reaches the last key of the table" wait_screen "$last"
 keys x
+
+# Narrow screens break the help's texts between words instead of cutting
+# them: tall enough not to scroll, every key's text and every note is on
+# the screen whole (joined across its rows) at 80 and at 60 columns. The
+# check is retried for a few seconds: the explorer redraws after it has
+# taken the resize.
+help_whole()
+{
+	hw_i=0
+	while [ "$hw_i" -lt $((50 * slow)) ]; do
+		screen >"$tmp/help-whole"
+		"$PY" - "$tmp/help-whole" "$tmp/keys" >"$tmp/help-missing" <<'PYEOF' && return 0
+import sys
+screen = " ".join(open(sys.argv[1], encoding="utf-8").read().split())
+texts = {l.rstrip("\n").split("\t")[2] for l in open(sys.argv[2], encoding="utf-8") if l.count("\t") >= 2}
+texts |= {"Sweeps and tolerance questions: type a number, Enter goes on, Esc changes nothing.",
+          "Ctrl-C, SIGTERM or a lost connection save first, then end (status 130)."}
+missing = [t for t in sorted(texts) if " ".join(t.split()) not in screen]
+for t in missing:
+    print("# not whole on the screen: " + t)
+sys.exit(1 if missing else 0)
+PYEOF
+		sleep 0.1
+		hw_i=$((hw_i + 1))
+	done
+	cat "$tmp/help-missing"
+	return 1
+}
+for size in 80x70 60x90; do
+	$T resize-window -x "${size%x*}" -y "${size#*x}"
+	keys '?'
+	check "at ${size%x*} columns every help text is whole (broken between words)" help_whole
+	keys x
+done
 keys q
 wait_screen 'Quit\?' 5
 keys d
