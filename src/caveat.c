@@ -51,14 +51,15 @@ void caveats_of_selection(struct caveats *cv, const struct select_result *sel, u
 		    "-k auto chose k = %u, the smallest k it scored (the grid was a list): the best "
 		    "k may be smaller; try --k-grid starting at 2", sel->best);
 	}
-	uint64_t scored = sel->held_edges * (sel->folds ? sel->folds : 1);
+	uint32_t folds = sel->folds ? sel->folds : 1;
+	uint64_t scored = sel->held_edges * folds;
 	if (scored < CAVEAT_FEW_HELD_OUT)
 		add(cv, "few_held_out",
 		    "-k auto scored each k on only %llu held-out edges and as many non-edges "
 		    "(%u split%s of %llu): too few for the scores of different k to differ by "
 		    "more than chance, so the chosen k = %u is weakly supported; try a larger "
 		    "--holdout, or give -k from what you know of the graph",
-		    (unsigned long long)scored, sel->folds, sel->folds == 1 ? "" : "s",
+		    (unsigned long long)scored, folds, folds == 1 ? "" : "s",
 		    (unsigned long long)sel->held_edges, sel->best);
 }
 

@@ -98,10 +98,11 @@ uint32_t select_grid(const struct select_params *sp, uint32_t *ks);
 struct select_point {
 	uint32_t k;
 	double heldout;    /* held-out log-likelihood, mean over the folds */
-	double heldout_sd; /* its standard deviation over the folds (0 with one) */
 	double auc;        /* held-out link AUC, mean (NAN when undefined) */
 	uint32_t sweeps;   /* of the fits that scored it, mean rounded */
 	double seconds;    /* of those fits, summed */
+	double heldout_sd; /* the log-likelihood's standard deviation over the
+			    * folds (sample form; 0 with one fold) */
 	uint32_t folds;
 	int added;         /* 1: beyond the grid asked for (its edge scored best) */
 };
