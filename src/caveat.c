@@ -10,6 +10,7 @@
  */
 #include "coterie/caveat.h"
 
+#include <math.h>
 #include <stdarg.h>
 #include <stdio.h>
 #include <string.h>
@@ -70,7 +71,7 @@ void caveats_of_cover(struct caveats *cv, uint32_t covered, uint32_t n)
 		    "only %u of %u nodes (%.0f%%) are in a community: the rest are explained by "
 		    "the background alone, so the communities describe a minority of the graph; "
 		    "try a smaller --epsilon (the background), --refine, or another k",
-		    covered, n, 100.0 * covered / n);
+		    covered, n, floor(100.0 * covered / n));
 }
 
 void caveats_of_links(struct caveats *cv, uint64_t held_edges)
