@@ -234,9 +234,11 @@ static struct select_point point_of(uint32_t k, const struct fold_score *sc, uin
 				    int added)
 {
 	double ll = 0, auc = 0, sweeps = 0, secs = 0, ss = 0;
-	for (uint32_t f = 0; f < folds; f++) {
+	for (uint32_t f = 0; f < folds; f++) { /* the scores */
 		ll += sc[f].ll;
 		auc += sc[f].auc;
+	}
+	for (uint32_t f = 0; f < folds; f++) { /* the cost */
 		sweeps += sc[f].sweeps;
 		secs += sc[f].seconds;
 	}
