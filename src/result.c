@@ -211,7 +211,8 @@ static int fill_trace(struct atomicfile *w, const void *arg)
 static int fill_selection(struct atomicfile *w, const void *arg)
 {
 	const struct select_result *a = arg;
-	atomicfile_str(w, "k\theldout_loglik\theldout_auc\tsweeps\tseconds\tchosen\n");
+	atomicfile_str(w, "k\theldout_loglik\theldout_auc\tsweeps\tseconds\tchosen\tfolds\t"
+		       "heldout_loglik_sd\tgrid\n");
 	for (uint32_t i = 0; i < a->npts && !atomicfile_failed(w); i++) {
 		const struct select_point *pt = &a->pts[i];
 		atomicfile_printf(w, "%" PRIu32 "\t%.17g\t", pt->k, pt->heldout);
@@ -219,8 +220,10 @@ static int fill_selection(struct atomicfile *w, const void *arg)
 			atomicfile_printf(w, "%.9f", pt->auc);
 		else
 			atomicfile_str(w, "NA");
-		atomicfile_printf(w, "\t%" PRIu32 "\t%.3f\t%s\n", pt->sweeps, pt->seconds,
+		atomicfile_printf(w, "\t%" PRIu32 "\t%.3f\t%s", pt->sweeps, pt->seconds,
 			  pt->k == a->best ? "yes" : "no");
+		atomicfile_printf(w, "\t%" PRIu32 "\t%.17g\t%s\n", pt->folds, pt->heldout_sd,
+				  pt->added ? "added" : "asked");
 	}
 	return 0;
 }

@@ -3,7 +3,7 @@
  * coterie-files(5)). Part of the result module (src/result-internal.h).
  *
  * The idea: one object per section (coterie, graph, parameters, fit,
- * k_selection, link_check, agm_refine, run), each built by its own
+ * k_selection, link_check, agm_refine, warnings, run), each built by its own
  * function from the borrowed parts it describes; values go through
  * jsonout.h, so a non-finite number is null, a count too large for JSON's
  * integers a decimal string, a non-UTF-8 path escaped.
@@ -21,6 +21,7 @@
 #include <jansson.h>
 
 #include "coterie/agm.h"
+#include "coterie/caveat.h"
 #include "coterie/graph.h"
 #include "coterie/jsonout.h"
 #include "coterie/refine.h"
@@ -46,6 +47,13 @@ static json_t *j_selection(const struct select_result *sel)
 	jsonout_set(o, "held_out_share", jsonout_real(sel->share), &bad);
 	jsonout_set(o, "held_out_edges", jsonout_uint(sel->held_edges), &bad);
 	jsonout_set(o, "held_out_non_edges", jsonout_uint(sel->held_non_edges), &bad);
+	jsonout_set(o, "folds", jsonout_uint(sel->folds), &bad);
+	jsonout_set(o, "rule", json_string("the highest mean over the folds"), &bad);
+	jsonout_set(o, "extended", sel->extended ? json_string(sel->extended > 0 ? "up" : "down") :
+		    json_null(), &bad);
+	jsonout_set(o, "extension_bound", sel->extended > 0 ? jsonout_uint(sel->bound) :
+		    json_null(), &bad);
+	jsonout_set(o, "chosen_at_edge", json_boolean(sel->edge != 0), &bad);
 	for (uint32_t i = 0; i < sel->npts; i++) {
 		const struct select_point *pt = &sel->pts[i];
 		json_t *e = json_object();
@@ -58,6 +66,9 @@ static json_t *j_selection(const struct select_result *sel)
 		jsonout_set(e, "heldout_auc", jsonout_real(pt->auc), &bad);
 		jsonout_set(e, "sweeps", jsonout_uint(pt->sweeps), &bad);
 		jsonout_set(e, "seconds", jsonout_real(pt->seconds), &bad);
+		jsonout_set(e, "heldout_loglik_sd", jsonout_real(pt->heldout_sd), &bad);
+		jsonout_set(e, "folds", jsonout_uint(pt->folds), &bad);
+		jsonout_set(e, "added", json_boolean(pt->added), &bad);
 		jsonout_append(scores, e, &bad);
 	}
 	jsonout_set(o, "scores", scores, &bad);
@@ -66,6 +77,30 @@ static json_t *j_selection(const struct select_result *sel)
 		return NULL;
 	}
 	return o;
+}
+
+/* run.json's warnings: the caveats of the search, the link check and the
+ * cover, in that order (the order fit prints them). */
+static json_t *j_warnings(const struct graph *g, const struct result_model *m,
+			  const struct result_meta *meta, int *bad)
+{
+	struct caveats cv;
+	caveats_init(&cv);
+	if (meta && meta->selection)
+		caveats_of_selection(&cv, meta->selection, g->n);
+	if (meta && meta->links)
+		caveats_of_links(&cv, meta->links->held_edges);
+	caveats_of_cover(&cv, m->agm->covered, g->n);
+	json_t *a = json_array();
+	for (uint32_t i = 0; a && i < cv.n; i++) {
+		json_t *e = json_object();
+		jsonout_set(e, "code", json_string(cv.c[i].code), bad);
+		jsonout_set(e, "text", jsonout_str(cv.c[i].text), bad);
+		jsonout_append(a, e, bad);
+	}
+	if (!a)
+		*bad = 1;
+	return a;
 }
 
 /* run.json's link_check: the held-out check of the final model. */
@@ -200,6 +235,7 @@ char *result_run_json(const struct graph *g, const struct fit_params *p,
 	jsonout_set(root, "link_check", meta && meta->links ? j_links(meta->links) : json_null(),
 		    &bad);
 	jsonout_set(root, "agm_refine", j_refine(meta, &bad), &bad);
+	jsonout_set(root, "warnings", j_warnings(g, m, meta, &bad), &bad);
 
 	json_t *jr = json_object();
 	jsonout_set(jr, "wall_seconds", meta ? jsonout_real(meta->wall_seconds) : json_null(), &bad);

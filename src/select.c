@@ -25,6 +25,7 @@
 #include "coterie/fit.h"
 #include "coterie/graph.h"
 #include "coterie/holdout.h"
+#include "coterie/memory.h"
 #include "coterie/model.h"
 #include "coterie/seed.h"
 #include "coterie/util.h"
@@ -79,9 +80,9 @@ int select_grid_parse(const char *s, struct select_params *sp)
 		for (;;) {
 			const char *e = strchr(p, ',');
 			size_t len = e ? (size_t)(e - p) : strlen(p);
-			if (n == SELECT_MAX_GRID)
+			if (n == SELECT_MAX_LIST)
 				return error("--k-grid takes at most %d values, '%s' has more",
-					     SELECT_MAX_GRID, shown);
+					     SELECT_MAX_LIST, shown);
 			if (parse_k(p, len, &sp->list[n]))
 				return error("--k-grid expects A:B, A:B:RATIO or a list like 4,8,16 "
 					     "of whole numbers from 1 to %u, not '%s'", MODEL_MAX_K,
@@ -126,21 +127,21 @@ int select_grid_parse(const char *s, struct select_params *sp)
 uint32_t select_grid(const struct select_params *sp, uint32_t *ks)
 {
 	if (sp->nlist) {
-		uint32_t n = sp->nlist < SELECT_MAX_GRID ? sp->nlist : SELECT_MAX_GRID;
+		uint32_t n = sp->nlist < SELECT_MAX_LIST ? sp->nlist : SELECT_MAX_LIST;
 		memcpy(ks, sp->list, n * sizeof *ks);
 		return n;
 	}
 	uint32_t n = 0;
 	double k = sp->kmin;
-	while (n < SELECT_MAX_GRID && (uint32_t)llround(k) <= sp->kmax) {
+	while (n < SELECT_MAX_LIST && (uint32_t)llround(k) <= sp->kmax) {
 		uint32_t ki = (uint32_t)llround(k);
 		if (n == 0 || ki > ks[n - 1])
 			ks[n++] = ki;
 		k *= sp->step;
 	}
-	if (n < SELECT_MAX_GRID && (n == 0 || ks[n - 1] < sp->kmax))
+	if (n < SELECT_MAX_LIST && (n == 0 || ks[n - 1] < sp->kmax))
 		ks[n++] = sp->kmax;
-	else if (n == SELECT_MAX_GRID && ks[n - 1] < sp->kmax)
+	else if (n == SELECT_MAX_LIST && ks[n - 1] < sp->kmax)
 		ks[n - 1] = sp->kmax; /* a very fine grid: still end at kmax */
 	return n;
 }
@@ -153,22 +154,54 @@ void select_result_release(struct select_result *r)
 	memset(r, 0, sizeof *r);
 }
 
-/* One fit of the search. */
-struct slot {
-	struct fit *f;
-	uint32_t idx; /* into the grid */
+uint32_t select_folds(uint64_t m, double share)
+{
+	double held = share * (double)m;
+	if (!(held >= 1.0))
+		held = 1.0;
+	double f = ceil((double)SELECT_FOLD_EDGES / held);
+	return f >= SELECT_MAX_FOLDS ? SELECT_MAX_FOLDS : f <= 1.0 ? 1 : (uint32_t)f;
+}
+
+/* What every fit of a search shares: the folds' splits and parameters. */
+struct search {
+	const struct select_hooks *hooks;
+	struct fit_params p; /* one thread, the whole graph's epsilon */
+	struct holdout h[SELECT_MAX_FOLDS];
+	uint32_t folds, nslots;
 };
 
-static int slot_launch(struct slot *sl, const struct holdout *h, const struct fit_params *p,
-		       uint32_t k, uint32_t idx)
+/* Fold f's seed, for its split and its fits: fold 0 is a one-fold
+ * search's, so one fold scores exactly as a search without folds. */
+static uint64_t fold_seed(uint64_t seed, uint32_t f)
 {
-	struct fit_params q = *p;
+	return seed + (uint64_t)f * 0x632be59bd9b4e019ULL;
+}
+
+/* One fit of the search: task t fits the pass's k number t / folds on
+ * fold t % folds. */
+struct slot {
+	struct fit *f;
+	uint32_t task;
+};
+
+/* One fold's score of one k. */
+struct fold_score {
+	double ll, auc, seconds;
+	uint32_t sweeps;
+};
+
+static int slot_launch(struct slot *sl, const struct search *s, uint32_t k, uint32_t task)
+{
+	uint32_t fold = task % s->folds;
+	struct fit_params q = s->p;
 	q.k = k;
-	sl->idx = idx;
-	sl->f = fit_new(h->train, &q, NULL);
+	q.seed = fold_seed(s->p.seed, fold);
+	sl->task = task;
+	sl->f = fit_new(s->h[fold].train, &q, NULL);
 	if (!sl->f)
 		return -1;
-	fit_exclude(sl->f, h->held);
+	fit_exclude(sl->f, s->h[fold].held);
 	if (fit_start(sl->f)) {
 		fit_free(sl->f);
 		sl->f = NULL;
@@ -177,22 +210,224 @@ static int slot_launch(struct slot *sl, const struct holdout *h, const struct fi
 	return 0;
 }
 
-/* Score a fit that ended; frees it. Returns 0 or -1. */
-static int slot_score(struct slot *sl, const struct holdout *h, uint32_t k,
-		      struct select_point *pt)
+/* Score a fit that ended on its fold's pairs; frees it. Returns 0 or -1. */
+static int slot_score(struct slot *sl, const struct holdout *h, struct fold_score *sc)
 {
 	enum fit_state st = fit_wait(sl->f);
 	struct snapshot *s = fit_snapshot(sl->f);
 	int rc = -1;
 	if (st != FIT_FAILED) {
-		double l, auc;
-		rc = holdout_score(h, &s->F, s->epsilon, &l, &auc);
-		*pt = (struct select_point){ k, l, auc, s->sweep, s->seconds };
+		rc = holdout_score(h, &s->F, s->epsilon, &sc->ll, &sc->auc);
+		sc->sweeps = s->sweep;
+		sc->seconds = s->seconds;
 	}
 	snapshot_release(s);
 	fit_free(sl->f);
 	sl->f = NULL;
 	return rc;
+}
+
+/* The point of k from its folds' scores: means, the spread of the
+ * log-likelihood (sample standard deviation), the time summed. With one
+ * fold every figure is that fold's, bit for bit. */
+static struct select_point point_of(uint32_t k, const struct fold_score *sc, uint32_t folds,
+				    int added)
+{
+	double ll = 0, auc = 0, sweeps = 0, secs = 0, ss = 0;
+	for (uint32_t f = 0; f < folds; f++) { /* the scores */
+		ll += sc[f].ll;
+		auc += sc[f].auc;
+	}
+	for (uint32_t f = 0; f < folds; f++) { /* the cost */
+		sweeps += sc[f].sweeps;
+		secs += sc[f].seconds;
+	}
+	ll /= folds;
+	for (uint32_t f = 0; f < folds && folds > 1; f++)
+		ss += (sc[f].ll - ll) * (sc[f].ll - ll);
+	return (struct select_point){
+		.k = k, .heldout = ll, .heldout_sd = folds > 1 ? sqrt(ss / (folds - 1)) : 0.0,
+		.auc = auc / folds, .sweeps = (uint32_t)llround(sweeps / folds), .seconds = secs,
+		.folds = folds, .added = added,
+	};
+}
+
+/* The best so far: its k (0: none yet) and mean held-out score. */
+struct best {
+	uint32_t k;
+	double heldout;
+};
+
+static void stop_all(struct slot *sl, uint32_t nslots)
+{
+	for (uint32_t i = 0; sl && i < nslots; i++)
+		if (sl[i].f) {
+			fit_stop(sl[i].f);
+			fit_free(sl[i].f);
+			sl[i].f = NULL;
+		}
+}
+
+/*
+ * Score ks[0 .. nk) in that order, each on every fold, into pts; with
+ * early, stop after two k in a row below the best (*b, updated). The
+ * decisions are taken in list order whatever order the fits end in.
+ * *npts receives the points scored. Returns 0, -1 (reported) or -2.
+ */
+static int search_pass(struct search *s, const uint32_t *ks, uint32_t nk, int added, int early,
+		       struct select_point *pts, uint32_t *npts, struct best *b)
+{
+	uint32_t F = s->folds, ntask = nk * F;
+	uint32_t nslots = s->nslots < ntask ? s->nslots : ntask;
+	struct fold_score *sc = util_calloc(ntask, sizeof *sc);
+	unsigned char *done = util_calloc(ntask, 1);
+	struct slot *sl = util_calloc(nslots, sizeof *sl);
+	struct pollfd *pfd = util_calloc(nslots, sizeof *pfd);
+	int rc = sc && done && sl && pfd ? 0 : -1;
+	uint32_t next = 0, consumed = 0, worse = 0;
+	int halt = 0;
+	while (rc == 0) {
+		uint32_t active = 0;
+		for (uint32_t i = 0; i < nslots && rc == 0; i++) {
+			if (!sl[i].f && !halt && next < ntask) {
+				rc = slot_launch(&sl[i], s, ks[next / F], next);
+				next++;
+			}
+			active += sl[i].f != NULL;
+		}
+		if (rc || active == 0)
+			break;
+		for (uint32_t i = 0; i < nslots; i++)
+			pfd[i] = (struct pollfd){ sl[i].f ? fit_wake_fd(sl[i].f) : -1, POLLIN, 0 };
+		poll(pfd, nslots, 200);
+		for (uint32_t i = 0; i < nslots && rc == 0; i++) {
+			if (!sl[i].f)
+				continue;
+			fit_drain_wake(sl[i].f);
+			if (!fit_state_ended(fit_get_state(sl[i].f)))
+				continue;
+			uint32_t t = sl[i].task;
+			rc = slot_score(&sl[i], &s->h[t % F], &sc[t]);
+			done[t] = 1;
+		}
+		/* the decisions, in list order, once all folds of a k are in */
+		while (rc == 0 && !halt && consumed < nk &&
+		       !memchr(done + consumed * F, 0, F)) {
+			pts[consumed] = point_of(ks[consumed], sc + consumed * F, F, added);
+			const struct select_point *pt = &pts[consumed];
+			if (s->hooks && s->hooks->scored)
+				s->hooks->scored(pt, s->hooks->arg);
+			if (b->k == 0 || pt->heldout > b->heldout) {
+				*b = (struct best){ pt->k, pt->heldout };
+				worse = 0;
+			} else if (++worse >= 2 && early) {
+				halt = 1;
+			}
+			consumed++;
+		}
+		if (consumed == nk)
+			halt = 1;
+		if (rc == 0 && s->hooks && s->hooks->should_stop &&
+		    s->hooks->should_stop(s->hooks->arg))
+			rc = -2;
+		if (halt) /* fits started past the stopping point are not needed */
+			stop_all(sl, nslots);
+	}
+	stop_all(sl, nslots);
+	UTIL_FREE_ALL(sc, done, sl, pfd);
+	*npts = consumed;
+	return rc;
+}
+
+/* A fit of k with the search's threads fits in memory (or the limit is
+ * not known). */
+static int fits_memory(const struct search *s, uint32_t k, unsigned threads)
+{
+	uint64_t lim;
+	const char *what;
+	int virt;
+	if (memory_limit(&lim, &what, &virt))
+		return 1;
+	struct fit_params q = s->p;
+	q.k = k;
+	q.threads = threads;
+	return memory_fit_estimate(s->h[0].train, &q) <= lim;
+}
+
+/* The k beyond an edge of a geometric grid, same ratio: up from `from`
+ * to bound (ending there), or down to 2; at most room. Returns the count. */
+static uint32_t beyond(uint32_t from, double step, int up, uint32_t bound, uint32_t *ks,
+		       uint32_t room)
+{
+	uint32_t n = 0, last = from;
+	double k = from;
+	while (n < room) {
+		k = up ? k * step : k / step;
+		uint32_t ki = (uint32_t)llround(k);
+		if (up && ki > bound)
+			ki = bound;
+		if (!up && ki < 2)
+			ki = 2;
+		if (up ? ki <= last : ki >= last) {
+			if ((up && last >= bound) || (!up && last <= 2))
+				break;
+			continue; /* a fine ratio: the next rounded k */
+		}
+		ks[n++] = last = ki;
+	}
+	return n;
+}
+
+/*
+ * The grid's edge: when the largest k of a geometric grid scored best,
+ * score k beyond it while the scores rise (the early stop), up to n/4,
+ * MODEL_MAX_K and memory; when its smallest above 2 did, down to 2.
+ * Points go after pts[0 .. *np). Sets res->extended, bound and edge.
+ */
+static int extend(struct search *s, const struct graph *g, const struct select_params *sp,
+		  struct select_result *res, struct select_point *pts, uint32_t *np, struct best *b,
+		  unsigned threads)
+{
+	uint32_t top = res->grid[res->ngrid - 1], bottom = res->grid[0];
+	uint32_t ks[SELECT_MAX_GRID], n = 0, got = 0;
+	int up = b->k == top && *np == res->ngrid && !sp->nlist;
+	int down = !up && b->k == bottom && bottom > 2 && !sp->nlist;
+	uint64_t bound = g->n / 4 < MODEL_MAX_K ? g->n / 4 : MODEL_MAX_K;
+	res->bound = (uint32_t)(bound > top ? bound : top);
+	int rc = 0;
+	if (up || down)
+		n = beyond(up ? top : bottom, sp->step, up, res->bound, ks, SELECT_MAX_GRID - *np);
+	if (up) /* no further than memory allows */
+		for (uint32_t i = 0; i < n; i++)
+			if (!fits_memory(s, ks[i], threads)) {
+				n = i;
+				res->bound = i ? ks[i - 1] : top;
+				break;
+			}
+	if (n > 0) {
+		res->extended = up ? 1 : -1;
+		notice("choosing k: k %u, the %s of the grid, scored best; scoring k %s %u "
+		       "beyond it while the scores rise", b->k, up ? "largest" : "smallest",
+		       up ? "up to" : "down to", ks[n - 1]);
+		rc = search_pass(s, ks, n, 1, 1, pts + *np, &got, b);
+		*np += got;
+	}
+	uint32_t lo = pts[0].k, hi = pts[0].k;
+	for (uint32_t i = 1; i < *np; i++) {
+		lo = pts[i].k < lo ? pts[i].k : lo;
+		hi = pts[i].k > hi ? pts[i].k : hi;
+	}
+	if (*np > 1 && b->k == hi)
+		res->edge = 1;
+	else if (*np > 1 && b->k == lo && lo > 2)
+		res->edge = -1;
+	return rc;
+}
+
+static int cmp_point_k(const void *a, const void *b)
+{
+	return util_cmp_uint(((const struct select_point *)a)->k,
+			     ((const struct select_point *)b)->k);
 }
 
 int select_k(const struct graph *g, const struct fit_params *base, const struct select_params *sp,
@@ -209,92 +444,48 @@ int select_k(const struct graph *g, const struct fit_params *base, const struct 
 	uint32_t nk = select_grid(sp, res->grid);
 	res->ngrid = nk;
 	res->share = sp->share;
-	struct holdout h;
-	if (holdout_split(&h, g, sp->share, base->seed))
+	res->list = sp->nlist > 0;
+	struct search *s = util_calloc(1, sizeof *s);
+	struct select_point *pts = util_calloc(SELECT_MAX_GRID, sizeof *pts);
+	if (!s || !pts) {
+		UTIL_FREE_ALL(s, pts);
 		return -1;
-	res->held_edges = h.nedges;
-	res->held_non_edges = h.nnon;
-	struct fit_params p = *base;
-	if (!(p.epsilon > 0.0))
-		p.epsilon = model_default_epsilon(g); /* the whole graph's, for every k */
-	p.hold_at_plateau = 0;
-	p.past_plateau = 0;
-	uint32_t nslots = base->threads < nk ? base->threads : nk;
-	if (nslots < 1)
-		nslots = 1;
-	p.threads = 1;
-	struct select_point *pts = util_calloc(nk, sizeof *pts);
-	unsigned char *done = util_calloc(nk, 1);
-	struct slot *sl = util_calloc(nslots, sizeof *sl);
-	struct pollfd *pfd = util_calloc(nslots, sizeof *pfd);
-	int rc = pts && done && sl && pfd ? 0 : -1;
-	uint32_t next = 0, consumed = 0, bi = 0, worse = 0;
-	int halt = 0;
-	while (rc == 0) {
-		uint32_t active = 0;
-		for (uint32_t i = 0; i < nslots && rc == 0; i++) {
-			if (!sl[i].f && !halt && next < nk) {
-				rc = slot_launch(&sl[i], &h, &p, res->grid[next], next);
-				next++;
-			}
-			active += sl[i].f != NULL;
-		}
-		if (rc || active == 0)
-			break;
-		for (uint32_t i = 0; i < nslots; i++)
-			pfd[i] = (struct pollfd){ sl[i].f ? fit_wake_fd(sl[i].f) : -1, POLLIN, 0 };
-		poll(pfd, nslots, 200);
-		for (uint32_t i = 0; i < nslots && rc == 0; i++) {
-			if (!sl[i].f)
-				continue;
-			fit_drain_wake(sl[i].f);
-			if (!fit_state_ended(fit_get_state(sl[i].f)))
-				continue;
-			uint32_t idx = sl[i].idx;
-			rc = slot_score(&sl[i], &h, res->grid[idx], &pts[idx]);
-			done[idx] = 1;
-		}
-		/* the decisions, in grid order */
-		while (rc == 0 && !halt && consumed < nk && done[consumed]) {
-			if (hooks && hooks->scored)
-				hooks->scored(&pts[consumed], hooks->arg);
-			if (consumed == 0 || pts[consumed].heldout > pts[bi].heldout) {
-				bi = consumed;
-				worse = 0;
-			} else if (++worse >= 2 && !sp->nlist) {
-				halt = 1;
-			}
-			consumed++;
-		}
-		if (consumed == nk)
-			halt = 1;
-		if (rc == 0 && hooks && hooks->should_stop && hooks->should_stop(hooks->arg))
-			rc = -2;
-		if (halt) /* fits started past the stopping point are not needed */
-			for (uint32_t i = 0; i < nslots; i++)
-				if (sl[i].f) {
-					fit_stop(sl[i].f);
-					fit_free(sl[i].f);
-					sl[i].f = NULL;
-				}
 	}
-	for (uint32_t i = 0; sl && i < nslots; i++)
-		if (sl[i].f) {
-			fit_stop(sl[i].f);
-			fit_free(sl[i].f);
-		}
-	free(sl);
-	free(pfd);
-	free(done);
-	holdout_release(&h);
-	if (rc || consumed == 0) {
+	s->hooks = hooks;
+	s->folds = sp->folds ? sp->folds : select_folds(g->m, sp->share);
+	if (s->folds > SELECT_MAX_FOLDS)
+		s->folds = SELECT_MAX_FOLDS;
+	res->folds = s->folds;
+	int rc = 0;
+	for (uint32_t f = 0; f < s->folds && rc == 0; f++)
+		rc = holdout_split(&s->h[f], g, sp->share, fold_seed(base->seed, f));
+	s->p = *base;
+	if (!(s->p.epsilon > 0.0))
+		s->p.epsilon = model_default_epsilon(g); /* the whole graph's, for every k */
+	s->p.hold_at_plateau = 0;
+	s->p.past_plateau = 0;
+	s->p.threads = 1;
+	s->nslots = base->threads > 1 ? base->threads : 1;
+	struct best b = { 0, 0.0 };
+	uint32_t np = 0;
+	if (rc == 0) {
+		res->held_edges = s->h[0].nedges;
+		res->held_non_edges = s->h[0].nnon;
+		rc = search_pass(s, res->grid, nk, 0, !sp->nlist, pts, &np, &b);
+	}
+	if (rc == 0 && np > 0)
+		rc = extend(s, g, sp, res, pts, &np, &b, base->threads);
+	for (uint32_t f = 0; f < s->folds; f++)
+		holdout_release(&s->h[f]);
+	free(s);
+	if (rc || np == 0) {
 		free(pts);
-		res->pts = NULL;
 		return rc ? rc : -1;
 	}
-	res->best = pts[bi].k;
+	qsort(pts, np, sizeof *pts, cmp_point_k);
+	res->best = b.k;
 	res->pts = pts;
-	res->npts = consumed;
+	res->npts = np;
 	return 0;
 }
 
@@ -331,6 +522,13 @@ static void run_scored(const struct select_point *pt, void *arg)
 	pthread_mutex_lock(&r->lock);
 	if (r->npts < SELECT_MAX_GRID)
 		r->pts[r->npts++] = *pt;
+	if (pt->added && r->ngrid < SELECT_MAX_GRID) { /* the grid grows, kept sorted */
+		uint32_t i = r->ngrid;
+		for (; i > 0 && r->grid[i - 1] > pt->k; i--)
+			r->grid[i] = r->grid[i - 1];
+		r->grid[i] = pt->k;
+		r->ngrid++;
+	}
 	pthread_mutex_unlock(&r->lock);
 	run_wake(r);
 }

@@ -22,7 +22,8 @@ struct refine_report;
 struct select_result;
 
 /* Write DIR/k-selection.tsv (k, held-out log-likelihood, held-out AUC,
- * sweeps, seconds, chosen) for a -k auto search (sel borrowed),
+ * sweeps, seconds, chosen, folds, the log-likelihood's standard deviation
+ * over the folds, asked/added) for a -k auto search (sel borrowed),
  * atomically. Returns 0 or -1. */
 int result_write_selection(const char *dir, const struct select_result *sel);
 

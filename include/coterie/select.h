@@ -15,6 +15,21 @@
  * early once two k in a row (in grid order) score below the best so far;
  * an explicit list is scored in full.
  *
+ * Folds: on a small graph one split is noise (62 nodes, 16 held-out
+ * edges: seeds 1, 2, 3 chose 8, 2 and 15), so each k is scored on F
+ * distinct splits (select_folds()), each fit leaving out its own split's
+ * pairs, and the k with the best MEAN held-out log-likelihood wins; the
+ * spread (standard deviation over folds) is reported beside it. Fold 0
+ * is the split and the fit seed of a one-fold search, so a graph large
+ * enough for one fold is scored exactly as before.
+ *
+ * The grid's edge: when a geometric grid's largest k scores best, the
+ * grid is extended beyond it (same ratio) while the scores rise, up to
+ * n/4, MODEL_MAX_K and what memory allows (the default grid's cap of 500
+ * is lifted there); when its smallest k scores best and is above 2, down
+ * to 2. An explicit list is never extended. Points added are marked
+ * (select_point.added); a choice still on the edge sets select_result.edge.
+ *
  * Parallel: up to base->threads fits run at once, each on one thread.
  * Every fit is deterministic and the early stop is decided in grid order,
  * so the scores and the choice do not depend on the thread count.
@@ -27,15 +42,29 @@
 struct graph;
 struct fit_params;
 
-#define SELECT_MAX_GRID 64
+#define SELECT_MAX_GRID 128 /* points of a search, extension included */
+#define SELECT_MAX_LIST 64  /* values of --k-grid LIST */
+#define SELECT_MAX_FOLDS 10
 
 struct select_params {
 	uint32_t kmin, kmax; /* geometric grid bounds (inclusive) */
 	double share;        /* share of the edges held out, (0, 0.5] */
 	double step;         /* grid ratio, > 1 */
 	uint32_t nlist;      /* > 0: the grid is list[0 .. nlist), increasing */
-	uint32_t list[SELECT_MAX_GRID];
+	uint32_t list[SELECT_MAX_LIST];
+	uint32_t folds;      /* splits per k; 0: select_folds() decides */
 };
+
+/*
+ * The folds for a graph of m edges holding out share of them: enough
+ * splits that about SELECT_FOLD_EDGES held-out edges score each k, at
+ * most SELECT_MAX_FOLDS, at least 1: ceil(SELECT_FOLD_EDGES / (share * m)).
+ * So a graph of 20,000 edges or more (at share 0.1) gets one fold, and
+ * the folds of a smaller one cost about as much as one fold of a
+ * 20,000-edge graph: the search is never dearer than there.
+ */
+#define SELECT_FOLD_EDGES 2000
+uint32_t select_folds(uint64_t m, double share);
 
 /*
  * The default grid for g: kmin 2, ratio 1.25, share 0.1, and kmax from
@@ -62,18 +91,25 @@ int select_params_default(struct select_params *sp, const struct graph *g, uint3
  */
 int select_grid_parse(const char *s, struct select_params *sp);
 
-/* The grid for sp, into ks (room for SELECT_MAX_GRID); returns how many. */
+/* The grid for sp, into ks (room for SELECT_MAX_GRID; at most
+ * SELECT_MAX_LIST are used); returns how many. */
 uint32_t select_grid(const struct select_params *sp, uint32_t *ks);
 
 struct select_point {
 	uint32_t k;
-	double heldout;   /* held-out log-likelihood */
-	double auc;       /* held-out link AUC (NAN when undefined) */
-	uint32_t sweeps;  /* of the fit that scored it */
-	double seconds;
+	double heldout;    /* held-out log-likelihood, mean over the folds */
+	double auc;        /* held-out link AUC, mean (NAN when undefined) */
+	uint32_t sweeps;   /* of the fits that scored it, mean rounded */
+	double seconds;    /* of those fits, summed */
+	double heldout_sd; /* the log-likelihood's standard deviation over the
+			    * folds (sample form; 0 with one fold) */
+	uint32_t folds;
+	int added;         /* 1: beyond the grid asked for (its edge scored best) */
 };
 
-/* Called after each k is scored, in grid order (may be NULL). Return
+/* Called after each k is scored (may be NULL): in grid order, then the
+ * points an extension adds (upwards in increasing, downwards in
+ * decreasing k). Return
  * nonzero from should_stop (may be NULL; polled a few times a second) to
  * abandon the search; select_k() then returns -2. */
 struct select_hooks {
@@ -86,10 +122,18 @@ struct select_result {
 	uint32_t best;                    /* the chosen k */
 	uint32_t ngrid;                   /* the grid asked for */
 	uint32_t grid[SELECT_MAX_GRID];
-	struct select_point *pts;         /* npts points scored, grid order; owned */
+	struct select_point *pts;         /* npts points scored, increasing k
+					   * (extension included); owned */
 	uint32_t npts;
 	double share;                     /* held-out share of the edges */
-	uint64_t held_edges, held_non_edges;
+	uint64_t held_edges, held_non_edges; /* of one fold */
+	uint32_t folds;
+	int list;                         /* the grid was a list (never extended) */
+	int extended;                     /* +1 up, -1 down, 0 not */
+	uint32_t bound;                   /* how far up an extension could go */
+	int edge;                         /* the choice is still the largest
+					   * (+1) or smallest above 2 (-1) k
+					   * scored, with no further k to try */
 };
 
 void select_result_release(struct select_result *r);
@@ -114,9 +158,11 @@ struct select_run *select_run_start(const struct graph *g, const struct fit_para
 				    const struct select_params *sp);
 int select_run_wake_fd(const struct select_run *r);
 void select_run_drain(struct select_run *r);
-/* Copy the points scored so far (grid order) into pts (room for
- * SELECT_MAX_GRID) and the grid into grid/ngrid; returns the count and
- * sets *done once the search has ended. */
+/* Copy the points scored so far (in the order scored: the grid's, then
+ * an extension's) into pts (room for SELECT_MAX_GRID) and the grid into
+ * grid/ngrid (increasing; the points an extension scored are added to it
+ * as they come); returns the count and sets *done once the search has
+ * ended. */
 uint32_t select_run_points(struct select_run *r, struct select_point *pts, uint32_t *grid,
 			   uint32_t *ngrid, int *done);
 /* Ask the search to stop (it ends with -2). */

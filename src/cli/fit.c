@@ -25,6 +25,7 @@
 #include <unistd.h>
 
 #include "cli.h"
+#include "coterie/caveat.h"
 #include "coterie/dirlock.h"
 #include "coterie/fit.h"
 #include "coterie/graph.h"
@@ -281,9 +282,10 @@ static int choose_k(const struct graph *g, struct fit_params *p, const char *out
 	if (!quiet)
 		notice("chose k = %u, the highest held-out log-likelihood; the scores are in "
 		       "'%s/%s'", res->best, out, RESULT_SELECTION);
-	if (res->npts == res->ngrid && res->best == res->grid[res->ngrid - 1] && res->ngrid > 1)
-		warning("the chosen k is the largest tried; a grid reaching further (--k-grid) "
-			"may find a better one");
+	struct caveats cv; /* a thin choice: said now, before the long fit */
+	caveats_init(&cv);
+	caveats_of_selection(&cv, res, g->n);
+	caveats_print(&cv);
 	p->k = res->best;
 	return 0;
 }
@@ -588,8 +590,15 @@ static int finish(struct run *r, enum fit_state st, const struct snapshot *s)
 		rc = 1;
 	} else if (outdir_write(r->od, &m, &meta, have_whole ? &r->check : NULL)) {
 		rc = 1;
-	} else if (!r->quiet) {
-		say_written(r, s, st, m.agm);
+	} else {
+		if (!r->quiet)
+			say_written(r, s, st, m.agm);
+		struct caveats cv; /* a thin answer, said even with -q */
+		caveats_init(&cv);
+		if (have_whole)
+			caveats_of_links(&cv, links.held_edges);
+		caveats_of_cover(&cv, m.agm->covered, r->graph->n);
+		caveats_print(&cv);
 	}
 	agm_release(&refined);
 	agm_release(&whole);

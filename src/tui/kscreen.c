@@ -9,7 +9,11 @@
  * position, so a geometric grid reads as a log scale of k), and a table
  * of every point with its held-out link AUC, the best marked (a grid
  * longer than the screen shows a window of it that holds the best k and
- * the one being fitted, its range in the head). It ends when
+ * the one being fitted, its range in the head; with folds, the spread
+ * over them). Points are matched to the grid by k, since an extension
+ * past the grid's edge adds k as they are scored (downwards too). Once
+ * done, the search's caveats (caveat.h) are shown above the footer. It
+ * ends when
  * the search ends (the explorer's normal view then opens on the final fit)
  * or when the user quits.
  *
@@ -27,6 +31,7 @@
 #include <string.h>
 #include <unistd.h>
 
+#include "coterie/caveat.h"
 #include "coterie/graph.h"
 #include "coterie/proc.h"
 #include "coterie/select.h"
@@ -54,6 +59,30 @@ static void put(int y, int x, const char *s, int maxcols)
 	draw_text(stdscr, y, x, s, maxcols);
 }
 
+/* The point scored for grid position i, or NULL (not yet). Points come
+ * in the order scored, the grid's then an extension's, so they are
+ * matched by k. */
+static const struct select_point *point_at(const struct kstate *k, uint32_t i)
+{
+	for (uint32_t j = 0; j < k->npts; j++)
+		if (k->pts[j].k == k->grid[i])
+			return &k->pts[j];
+	return NULL;
+}
+
+/* The grid position of the best point (the highest mean held-out
+ * log-likelihood; the first scored among equals), or ngrid when none. */
+static uint32_t best_at(const struct kstate *k)
+{
+	uint32_t best = k->ngrid;
+	for (uint32_t i = 0; i < k->ngrid; i++) {
+		const struct select_point *p = point_at(k, i);
+		if (p && (best == k->ngrid || p->heldout > point_at(k, best)->heldout))
+			best = i;
+	}
+	return best;
+}
+
 /* The curve in the rectangle (y0, x0, h, w) of the screen. */
 static void draw_curve(const struct kstate *k, int y0, int x0, int h, int w)
 {
@@ -62,9 +91,11 @@ static void draw_curve(const struct kstate *k, int y0, int x0, int h, int w)
 	double y[SELECT_MAX_GRID], lo = INFINITY, hi = -INFINITY;
 	for (uint32_t i = 0; i < k->ngrid; i++)
 		y[i] = NAN;
-	for (uint32_t i = 0; i < k->npts; i++) {
-		/* points arrive in grid order: point i is grid position i */
-		y[i] = k->pts[i].heldout;
+	for (uint32_t i = 0; i < k->ngrid; i++) {
+		const struct select_point *p = point_at(k, i);
+		if (!p)
+			continue;
+		y[i] = p->heldout;
 		lo = y[i] < lo ? y[i] : lo;
 		hi = y[i] > hi ? y[i] : hi;
 	}
@@ -119,10 +150,10 @@ static void draw_all(const struct kstate *k)
 		 (unsigned long long)g->m);
 	put(0, 0, line, COLS);
 	attroff(A_BOLD);
-	uint32_t best = 0;
-	for (uint32_t i = 1; i < k->npts; i++)
-		if (k->pts[i].heldout > k->pts[best].heldout)
-			best = i;
+	uint32_t best = best_at(k), pending = 0; /* grid positions; ngrid: none */
+	while (pending < k->ngrid && point_at(k, pending))
+		pending++;
+	uint32_t folds = k->npts ? k->pts[0].folds : 0;
 	snprintf(line, sizeof line,
 		 "Choosing the number of communities by held-out likelihood: %u of %u k "
 		 "scored%s  %.0f s", k->npts, k->ngrid, k->done ? ", done" : "",
@@ -131,8 +162,14 @@ static void draw_all(const struct kstate *k)
 		snprintf(line, sizeof line, "Choosing k by held-out likelihood: %u of %u scored%s  %.0f s",
 			 k->npts, k->ngrid, k->done ? ", done" : "", util_now() - k->t0);
 	put(1, 0, line, COLS);
-	put(2, 0, "held-out log-likelihood against k (higher is better); the search stops "
-	    "after two k in a row below the best", COLS);
+	if (folds > 1)
+		snprintf(line, sizeof line, "mean held-out log-likelihood of %u splits against k "
+			 "(higher is better); the search stops after two k in a row below the best",
+			 folds);
+	else
+		snprintf(line, sizeof line, "held-out log-likelihood against k (higher is better); "
+			 "the search stops after two k in a row below the best");
+	put(2, 0, line, COLS);
 
 	int rows = LINES - 4;      /* header 3, footer 1 */
 	int table = (int)k->ngrid + 1;
@@ -151,11 +188,13 @@ static void draw_all(const struct kstate *k)
 	int room = LINES - 1 - (ty + 1);
 	uint32_t first = 0, last = k->ngrid;
 	char head[160];
-	snprintf(head, sizeof head, "       k   held-out loglik   link AUC   sweeps   seconds");
+	int sd = folds > 1 && COLS >= 72; /* the spread, where it fits whole */
+	snprintf(head, sizeof head, "       k   held-out loglik   link AUC   sweeps   seconds%s",
+		 sd ? "        sd" : "");
 	if (room >= 1 && (int)k->ngrid > room) {
-		uint32_t want = k->npts < k->ngrid ? k->npts : k->ngrid - 1; /* the newest row */
-		uint32_t lo = k->npts ? (best < want ? best : want) : 0;
-		uint32_t hi = k->npts ? (best > want ? best : want) : 0;
+		uint32_t want = pending < k->ngrid ? pending : k->ngrid - 1; /* the newest row */
+		uint32_t lo = best < k->ngrid ? (best < want ? best : want) : 0;
+		uint32_t hi = best < k->ngrid ? (best > want ? best : want) : 0;
 		if (hi - lo + 1 > (uint32_t)room)
 			lo = hi = best;
 		first = hi + 1 > (uint32_t)room ? hi + 1 - (uint32_t)room : 0; /* hi shows */
@@ -173,11 +212,11 @@ static void draw_all(const struct kstate *k)
 	put(ty, 2, head, COLS - 2);
 	attroff(A_BOLD);
 	for (uint32_t i = first; i < last && ty + 1 + (int)(i - first) < LINES - 1; i++) {
-		if (i >= k->npts) {
+		const struct select_point *p = point_at(k, i);
+		if (!p) {
 			snprintf(line, sizeof line, "  %6u   %s", k->grid[i],
-				 i == k->npts && !k->done ? "fitting..." : "");
+				 i == pending && !k->done ? "fitting..." : "");
 		} else {
-			const struct select_point *p = &k->pts[i];
 			char auc[16];
 			if (isfinite(p->auc))
 				snprintf(auc, sizeof auc, "%.4f", p->auc);
@@ -186,22 +225,50 @@ static void draw_all(const struct kstate *k)
 			snprintf(line, sizeof line, "%s %6u   %15.6g   %8s   %6u   %7.1f",
 				 i == best ? (k->utf8 ? "\u25b6" : ">") : " ", p->k, p->heldout, auc,
 				 p->sweeps, p->seconds);
+			size_t l = strlen(line);
+			if (sd)
+				snprintf(line + l, sizeof line - l, "   %7.3g", p->heldout_sd);
 		}
-		if (i == best && i < k->npts)
+		if (i == best)
 			attron(A_BOLD);
 		put(ty + 1 + (int)(i - first), 2, line, COLS - 2);
-		if (i == best && i < k->npts)
+		if (i == best)
 			attroff(A_BOLD);
 	}
-	if (k->done && k->npts > 0)
-		snprintf(line, sizeof line, "chose k = %u (the highest held-out log-likelihood); "
-			 "the final fit starts now (any key: at once; q quits)", k->pts[best].k);
+	if (k->done && best < k->ngrid)
+		snprintf(line, sizeof line, "chose k = %u (the highest %sheld-out log-likelihood); "
+			 "the final fit starts now (any key: at once; q quits)", k->grid[best],
+			 folds > 1 ? "mean " : "");
 	else
 		snprintf(line, sizeof line, "q quits (nothing is saved before the final fit)");
 	attron(A_REVERSE);
 	put(LINES - 1, 0, line, COLS);
 	attroff(A_REVERSE);
 	refresh();
+}
+
+/* The search's caveats (caveat.h) above the footer, each broken
+ * between words over up to three rows. Returns how many there are. */
+static uint32_t draw_caveats(const struct select_result *res, uint32_t n)
+{
+	struct caveats cv;
+	caveats_init(&cv);
+	caveats_of_selection(&cv, res, n);
+	int y = LINES - 1 - 3 * (int)cv.n;
+	for (uint32_t i = 0; i < cv.n && y >= 4; i++) {
+		char text[520];
+		snprintf(text, sizeof text, "warning: %s", cv.c[i].text);
+		for (int r = 0; r < 3; r++) {
+			move(y + r, 0);
+			clrtoeol();
+		}
+		attron(A_BOLD);
+		draw_wrap(stdscr, y, 0, text, COLS, 3);
+		attroff(A_BOLD);
+		y += 3;
+	}
+	refresh();
+	return cv.n;
 }
 
 int tui_choose_k(const struct tui_kconfig *cfg, struct select_result *res)
@@ -263,6 +330,8 @@ int tui_choose_k(const struct tui_kconfig *cfg, struct select_result *res)
 		 * seconds, default 1; the tests wait longer); a key goes on */
 		const char *env = getenv("COTERIE_KSCREEN_WAIT");
 		double wait = env && atof(env) > 0 ? atof(env) : 1.0;
+		if (draw_caveats(res, cfg->g->n) > 0 && wait < 5.0)
+			wait = 5.0; /* a caveat needs the time to be read */
 		double until = util_now() + wait;
 		while (util_now() < until && !proc_signal_caught()) {
 			struct pollfd pfd[2] = { { STDIN_FILENO, POLLIN, 0 },

@@ -12,8 +12,13 @@ check "football -k auto --k-grid 6:16: exit 0" [ $? -eq 0 ]
 sel=$tmp/a/k-selection.tsv
 check "k-selection.tsv written" [ -f "$sel" ]
 check "k-selection.tsv header" \
-	[ "$(head -1 "$sel")" = "$(printf 'k\theldout_loglik\theldout_auc\tsweeps\tseconds\tchosen')" ]
-check "exactly one k chosen" [ "$(grep -c '	yes$' "$sel")" -eq 1 ]
+	[ "$(head -1 "$sel")" = "$(printf 'k\theldout_loglik\theldout_auc\tsweeps\tseconds\tchosen\tfolds\theldout_loglik_sd\tgrid')" ]
+check "exactly one k chosen" [ "$(awk -F'\t' '$6 == "yes"' "$sel" | wc -l)" -eq 1 ]
+# folds: 61 held-out edges a split, so ceil(2000 / 61) = 33 splits wanted,
+# at most 10 (select.h, SELECT_FOLD_EDGES and SELECT_MAX_FOLDS)
+check "football is scored on 10 folds (run.json)" [ "$(json_get "$tmp/a/run.json" k_selection.folds)" = 10 ]
+check "every k of k-selection.tsv: 10 folds, a spread >= 0, asked or added" \
+	awk -F'\t' 'NR > 1 && !($7 == 10 && $8 >= 0 && ($9 == "asked" || $9 == "added")) { bad = 1 } END { exit bad }' "$sel"
 chosen=$(awk -F'\t' '$6 == "yes" { print $1 }' "$sel")
 # the grid 6:16 at ratio 1.25, by hand: 6, 7.5 -> 8, 9.4 -> 9, 11.7 -> 12,
 # 14.6 -> 15, then 16 (the end)
@@ -51,9 +56,66 @@ cut -f1,2,3,6 "$tmp/a/k-selection.tsv" >"$tmp/a.sel"
 cut -f1,2,3,6 "$tmp/b/k-selection.tsv" >"$tmp/b.sel"
 check "-k auto: the same choice and scores with -j 1" cmp -s "$tmp/a.sel" "$tmp/b.sel"
 
-"$BIN" fit "$football" -k auto --k-grid 4,9,13 -j 2 -q -o "$tmp/l"
-check "--k-grid 4,9,13 scores exactly 4, 9 and 13" \
+"$BIN" fit "$football" -k auto --k-grid 4,9,13 -j 2 -q -o "$tmp/l" 2>"$tmp/l.err"
+check "--k-grid 4,9,13 scores exactly 4, 9 and 13 (a list is never extended)" \
 	[ "$(cut -f1 "$tmp/l/k-selection.tsv" | tr '\n' ' ')" = "k 4 9 13 " ]
+# the edge of a list: when 13 is chosen it is said (printed with -q, and
+# recorded with its code); when it is not, no edge warning
+codes() { "$PY" -c 'import json, sys; print(" ".join(w["code"] for w in json.load(open(sys.argv[1]))["warnings"]))' "$1"; }
+if [ "$(json_get "$tmp/l/run.json" k_selection.chosen)" = 13 ]; then
+	check "the list's largest k chosen: k_at_grid_edge in run.json" \
+		sh -c 'case "$1" in *k_at_grid_edge*) exit 0;; esac; exit 1' - "$(codes "$tmp/l/run.json")"
+	check "... and a warning on stderr despite -q" grep -q 'warning: -k auto chose k = 13, the largest' "$tmp/l.err"
+else
+	check "a k inside the list chosen: no k_at_grid_edge" \
+		sh -c 'case "$1" in *k_at_grid_edge*) exit 1;; esac; exit 0' - "$(codes "$tmp/l/run.json")"
+fi
+
+# the grid's edge: football's 12 conferences are beyond 2:6, so the top
+# (6) scores best and the grid is extended past it at the same ratio,
+# the added k marked, while the scores rise
+"$BIN" fit "$football" -k auto --k-grid 2:6 -j 2 -q -o "$tmp/x"
+check "2:6 on football: the grid is extended up (run.json)" \
+	[ "$(json_get "$tmp/x/run.json" k_selection.extended)" = up ]
+check "2:6 on football: k above 6 are scored, marked added, and only they" \
+	awk -F'\t' 'NR > 1 && (($1 > 6) != ($9 == "added")) { bad = 1 } NR > 1 && $1 > 6 { n++ } END { exit bad || n == 0 }' "$tmp/x/k-selection.tsv"
+check "2:6 on football: the chosen k is above 6" [ "$(json_get "$tmp/x/run.json" k_selection.chosen)" -gt 6 ]
+
+# -k auto agrees with itself: on dolphins (62 nodes, 159 edges) seeds 1,
+# 2 and 3 chose 8, 2 and 15 with one split; with the folds the choices
+# must lie within a factor of 2 of each other (a property, not a value)
+dolphins=$DATA/dolphins/edges.tsv
+need_file "$dolphins"
+ks=""
+for s in 1 2 3; do
+	"$BIN" fit "$dolphins" -k auto -j 2 --seed $s -q -o "$tmp/dol$s" 2>/dev/null
+	ks="$ks $(json_get "$tmp/dol$s/run.json" k_selection.chosen)"
+done
+check "dolphins, seeds 1-3: the chosen k ($ks) within a factor of 2" \
+	sh -c 'min=$1 max=$1; for k; do [ "$k" -lt "$min" ] && min=$k; [ "$k" -gt "$max" ] && max=$k; done; [ "$max" -le $((2 * min)) ]' - $ks
+
+# a thin answer is said: fewer than half the nodes covered gives
+# few_covered (checked against the counts run.json gives); a graph of
+# 21 edges gives few_held_out (10 folds of 2 held-out edges, below 50)
+covered=$(json_get "$tmp/dol1/run.json" fit.covered_nodes)
+if [ $((2 * covered)) -lt 62 ]; then
+	check "dolphins: $covered of 62 covered, few_covered said" \
+		sh -c 'case "$1" in *few_covered*) exit 0;; esac; exit 1' - "$(codes "$tmp/dol1/run.json")"
+else
+	check "dolphins: $covered of 62 covered, no few_covered" \
+		sh -c 'case "$1" in *few_covered*) exit 1;; esac; exit 0' - "$(codes "$tmp/dol1/run.json")"
+fi
+: >"$tmp/two.tsv"
+for c in 0 5; do for i in 0 1 2 3 4; do for j in 0 1 2 3 4; do
+	[ $i -lt $j ] && printf 'n%d\tn%d\n' $((c + i)) $((c + j)) >>"$tmp/two.tsv"
+done; done; done
+printf 'n0\tn5\n' >>"$tmp/two.tsv"
+"$BIN" fit "$tmp/two.tsv" -k auto --k-grid 2,3 -q -o "$tmp/two" 2>"$tmp/two.err"
+check "21 edges: few_held_out in run.json" \
+	sh -c 'case "$1" in *few_held_out*) exit 0;; esac; exit 1' - "$(codes "$tmp/two/run.json")"
+check "21 edges: the warning printed despite -q" grep -q 'warning: -k auto scored each k on only' "$tmp/two.err"
+check "a fit with k given records an empty or short warnings list" \
+	"$PY" -c 'import json, sys; w = json.load(open(sys.argv[1]))["warnings"]; assert isinstance(w, list) and all(set(x) == {"code", "text"} for x in w)' "$tmp/g/run.json"
 
 "$BIN" fit "$football" -k 12 --max-sweeps 3 -q -o "$tmp/c"
 "$BIN" fit --resume "$tmp/c" -k auto -q 2>"$tmp/err"

@@ -13,9 +13,13 @@ need_file "$karate"
 cr=$(printf '\r')
 
 # --- -q and progress ---------------------------------------------------------
-"$BIN" fit "$karate" -k 3 -q -o "$tmp/quiet" >"$tmp/quiet.out" 2>"$tmp/quiet.err"
+# (an epsilon that leaves no caveat: warnings are said even with -q)
+"$BIN" fit "$karate" -k 3 --epsilon 1e-4 -q -o "$tmp/quiet" >"$tmp/quiet.out" 2>"$tmp/quiet.err"
 check "-q: the fit exits 0" [ $? -eq 0 ]
 check "-q: nothing on stderr" [ ! -s "$tmp/quiet.err" ]
+"$BIN" fit "$karate" -k 3 -q -o "$tmp/quiet2" >/dev/null 2>"$tmp/quiet2.err"
+check "-q: anything on stderr is a warning (a thin answer is said even so)" \
+	awk '!/^coterie: warning: / { bad = 1 } END { exit bad }' "$tmp/quiet2.err"
 check "-q: nothing on stdout" [ ! -s "$tmp/quiet.out" ]
 
 "$BIN" fit "$karate" -k 3 -o "$tmp/loud" >"$tmp/loud.out" 2>"$tmp/loud.err"

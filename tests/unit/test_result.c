@@ -535,7 +535,8 @@ static void test_run_json_has_every_key_in_order_with_values(void **state)
 		fail_msg("run.json: %s at line %d", jerr.text, jerr.line);
 
 	static const char *const top[] = { "coterie", "command", "graph", "parameters", "fit",
-					   "k_selection", "link_check", "agm_refine", "run" };
+					   "k_selection", "link_check", "agm_refine", "warnings",
+					   "run" };
 	static const char *const graph[] = { "path", "format", "nodes", "edges", "fingerprint",
 					     "lines", "self_loops", "duplicates", "extra_columns",
 					     "isolated", "directed_input" };
@@ -547,7 +548,7 @@ static void test_run_json_has_every_key_in_order_with_values(void **state)
 					   "covered_nodes", "overlapping_nodes", "start_kept",
 					   "reseeds_kept", "memberships_from" };
 	static const char *const run[] = { "wall_seconds", "peak_rss_kb" };
-	assert_keys(root, top, 9);
+	assert_keys(root, top, 10);
 	/* k was given and no link check was asked: both null */
 	assert_true(json_is_null(get(root, "k_selection", NULL)));
 	assert_true(json_is_null(get(root, "link_check", NULL)));
@@ -703,8 +704,9 @@ static void test_k_selection_and_link_check_are_recorded(void **state)
 	table_load(&t, path_in(tmp, "k-selection.tsv"));
 	assert_int_equal(t.nrows, 4);
 	static const char *const head[] = { "k", "heldout_loglik", "heldout_auc", "sweeps",
-					    "seconds", "chosen" };
-	for (int i = 0; i < 6; i++)
+					    "seconds", "chosen", "folds", "heldout_loglik_sd",
+					    "grid" };
+	for (int i = 0; i < 9; i++)
 		assert_string_equal(t.field[0][i], head[i]);
 	assert_string_equal(t.field[1][0], "2");
 	assert_true(num(t.field[1][1]) == -120.5);
@@ -722,8 +724,10 @@ static void test_k_selection_and_link_check_are_recorded(void **state)
 			    "held-out likelihood");
 	json_t *ks = get(root, "k_selection", NULL);
 	static const char *const kkeys[] = { "criterion", "chosen", "grid", "held_out_share",
-					     "held_out_edges", "held_out_non_edges", "scores" };
-	assert_keys(ks, kkeys, 7);
+					     "held_out_edges", "held_out_non_edges", "folds", "rule",
+					     "extended", "extension_bound", "chosen_at_edge",
+					     "scores" };
+	assert_keys(ks, kkeys, 12);
 	assert_int_equal(json_integer_value(get(root, "k_selection", "chosen")), 4);
 	json_t *grid = get(root, "k_selection", "grid");
 	assert_int_equal(json_array_size(grid), 4);
@@ -731,8 +735,8 @@ static void test_k_selection_and_link_check_are_recorded(void **state)
 	json_t *scores = get(root, "k_selection", "scores");
 	assert_int_equal(json_array_size(scores), 3);
 	static const char *const skeys[] = { "k", "heldout_loglik", "heldout_auc", "sweeps",
-					     "seconds" };
-	assert_keys(json_array_get(scores, 0), skeys, 5);
+					     "seconds", "heldout_loglik_sd", "folds", "added" };
+	assert_keys(json_array_get(scores, 0), skeys, 8);
 	assert_true(json_real_value(json_object_get(json_array_get(scores, 1), "heldout_loglik")) ==
 		    -100.25);
 	assert_true(json_is_null(json_object_get(json_array_get(scores, 2), "heldout_auc")));
@@ -741,6 +745,17 @@ static void test_k_selection_and_link_check_are_recorded(void **state)
 	assert_keys(get(root, "link_check", NULL), lkeys, 5);
 	assert_int_equal(json_integer_value(get(root, "link_check", "held_out_non_edges")), 13);
 	assert_true(json_real_value(get(root, "link_check", "heldout_auc")) == 0.875);
+	/* 7 held-out edges in one split and 14 for the link check: both are
+	 * below CAVEAT_FEW_HELD_OUT, so both are said, each with a code */
+	json_t *warn = get(root, "warnings", NULL);
+	assert_true(json_is_array(warn));
+	assert_true(json_array_size(warn) >= 2);
+	assert_string_equal(json_string_value(json_object_get(json_array_get(warn, 0), "code")),
+			    "few_held_out");
+	assert_string_equal(json_string_value(json_object_get(json_array_get(warn, 1), "code")),
+			    "few_check_pairs");
+	static const char *const wkeys[] = { "code", "text" };
+	assert_keys(json_array_get(warn, 0), wkeys, 2);
 	json_decref(root);
 	test_rmtree(tmp);
 }

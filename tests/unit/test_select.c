@@ -274,6 +274,53 @@ static void test_search_on_its_own_thread_reports_every_point(void **state)
 	graph_free(g);
 }
 
+static void test_folds_aim_at_two_thousand_held_out_edges(void **state)
+{
+	(void)state;
+	/* by hand: share 0.1 of 20,000 edges holds out 2,000: one fold; of
+	 * 5,000, 500: ceil(2000 / 500) = 4; of 613 (football), 61.3: 33,
+	 * capped at 10; of 10 edges, 1: capped at 10 */
+	assert_int_equal(select_folds(20000, 0.1), 1);
+	assert_int_equal(select_folds(1000000, 0.1), 1);
+	assert_int_equal(select_folds(5000, 0.1), 4);
+	assert_int_equal(select_folds(613, 0.1), SELECT_MAX_FOLDS);
+	assert_int_equal(select_folds(10, 0.1), SELECT_MAX_FOLDS);
+}
+
+static void test_folds_give_mean_and_spread_and_one_fold_is_the_old_split(void **state)
+{
+	(void)state;
+	struct cover truth;
+	struct graph *g = test_planted_ring(&truth, 6);
+	struct fit_params p;
+	fit_params_default(&p);
+	p.starts = 1;
+	p.threads = 2;
+	struct select_params sp;
+	assert_int_equal(select_params_default(&sp, g, NULL), 0);
+	assert_int_equal(select_grid_parse("4,6", &sp), 0);
+	sp.folds = 1;
+	struct select_result one, three;
+	assert_int_equal(select_k(g, &p, &sp, NULL, &one), 0);
+	sp.folds = 3;
+	assert_int_equal(select_k(g, &p, &sp, NULL, &three), 0);
+	assert_int_equal(one.folds, 1);
+	assert_int_equal(three.folds, 3);
+	for (uint32_t i = 0; i < 2; i++) {
+		assert_int_equal(one.pts[i].folds, 1);
+		assert_true(one.pts[i].heldout_sd == 0.0);
+		assert_int_equal(three.pts[i].folds, 3);
+		assert_true(three.pts[i].heldout_sd >= 0.0);
+		assert_false(three.pts[i].added);
+	}
+	/* fold 0 of three is the one-fold split: its pairs are the same */
+	assert_true(one.held_edges == three.held_edges);
+	select_result_release(&one);
+	select_result_release(&three);
+	cover_release(&truth);
+	graph_free(g);
+}
+
 static void test_bad_parameters_are_refused(void **state)
 {
 	(void)state;
@@ -301,6 +348,8 @@ int main(void)
 		cmocka_unit_test(test_chosen_k_lands_near_the_planted_k_with_the_default_grid),
 		cmocka_unit_test(test_same_seed_same_choice_for_any_thread_count),
 		cmocka_unit_test(test_search_on_its_own_thread_reports_every_point),
+		cmocka_unit_test(test_folds_aim_at_two_thousand_held_out_edges),
+		cmocka_unit_test(test_folds_give_mean_and_spread_and_one_fold_is_the_old_split),
 		cmocka_unit_test(test_bad_parameters_are_refused),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
