@@ -125,43 +125,46 @@ int draw_text(WINDOW *w, int y, int x, const char *s, int maxcols)
 	return used;
 }
 
+const char *draw_wrap_next(const char *s, int width, size_t *len)
+{
+	while (*s == ' ')
+		s++;
+	/* the longest run of whole words that fits */
+	size_t fit = 0, i = 0;
+	char line[512];
+	while (s[i]) {
+		size_t k = i;
+		while (s[k] == ' ')
+			k++;
+		while (s[k] && s[k] != ' ')
+			k++;
+		if (k >= sizeof line)
+			break;
+		memcpy(line, s, k);
+		line[k] = '\0';
+		if (draw_width(line) > width)
+			break;
+		fit = i = k;
+	}
+	if (fit == 0) /* one word wider than the line: it is cut */
+		while (s[fit] && s[fit] != ' ')
+			fit++;
+	*len = fit;
+	return s;
+}
+
 int draw_wrap(WINDOW *w, int y, int x, const char *s, int width, int maxrows)
 {
 	int rows = 0;
 	char line[512];
-	while (*s && rows < maxrows && width > 0) {
-		while (*s == ' ')
-			s++;
-		/* the longest run of whole words that fits */
-		size_t fit = 0, i = 0;
-		int cols = 0;
-		while (s[i]) {
-			size_t j = i;
-			while (s[j] == ' ')
-				j++;
-			size_t k = j;
-			while (s[k] && s[k] != ' ')
-				k++;
-			if (k >= sizeof line)
-				break;
-			memcpy(line, s, k);
-			line[k] = '\0';
-			cols = draw_width(line);
-			if (cols > width)
-				break;
-			fit = k;
-			i = k;
-		}
-		if (fit == 0) /* one word wider than the line: cut it */
-			for (fit = 0; s[fit] && s[fit] != ' '; fit++)
-				;
-		if (fit >= sizeof line)
-			fit = sizeof line - 1;
-		memcpy(line, s, fit);
-		line[fit] = '\0';
+	size_t len;
+	while (rows < maxrows && width > 0 && *(s = draw_wrap_next(s, width, &len))) {
+		size_t c = len < sizeof line ? len : sizeof line - 1;
+		memcpy(line, s, c);
+		line[c] = '\0';
 		draw_text(w, y + rows, x, line, width);
 		rows++;
-		s += fit;
+		s += len;
 	}
 	return rows;
 }

@@ -128,35 +128,6 @@ static size_t build_all(struct help_line *out, size_t *nleft)
 	return n;
 }
 
-/* Where the next row of a text broken between words at tw columns
- * starts: s + *len is the row's end. */
-static const char *wrap_next(const char *s, int tw, size_t *len)
-{
-	while (*s == ' ')
-		s++;
-	size_t fit = 0, i = 0;
-	char buf[256];
-	while (s[i]) {
-		size_t k = i;
-		while (s[k] == ' ')
-			k++;
-		while (s[k] && s[k] != ' ')
-			k++;
-		if (k >= sizeof buf)
-			break;
-		memcpy(buf, s, k);
-		buf[k] = '\0';
-		if (draw_width(buf) > tw)
-			break;
-		fit = i = k;
-	}
-	if (fit == 0) /* a word wider than the row: it is cut */
-		while (s[fit] && s[fit] != ' ')
-			fit++;
-	*len = fit;
-	return s;
-}
-
 /* Rows a line takes when its text is broken between words at tw columns. */
 static int line_rows(const struct help_line *l, int tw)
 {
@@ -165,7 +136,7 @@ static int line_rows(const struct help_line *l, int tw)
 	int rows = 0;
 	const char *s = l->text;
 	size_t len;
-	while (*(s = wrap_next(s, tw, &len))) {
+	while (*(s = draw_wrap_next(s, tw, &len))) {
 		rows++;
 		s += len;
 	}
@@ -243,7 +214,7 @@ static void draw_rows(const struct view *v, WINDOW *w, const struct help_line *l
 		const char *s = l[i].text;
 		size_t len;
 		int first = 1;
-		while (*(s = wrap_next(s, tw, &len))) {
+		while (*(s = draw_wrap_next(s, tw, &len))) {
 			if (row >= top && row < top + (size_t)body) {
 				int y = 1 + (int)(row - top);
 				if (first && kw > 0) {

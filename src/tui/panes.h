@@ -51,6 +51,10 @@ int draw_text(WINDOW *w, int y, int x, const char *s, int maxcols);
  * at most maxrows of them (a word wider than a line is cut); returns the
  * lines used. */
 int draw_wrap(WINDOW *w, int y, int x, const char *s, int width, int maxrows);
+/* Where the next row of s broken between words at width columns starts
+ * (leading spaces skipped); *len is the row's length in bytes (a word wider
+ * than the row is cut). An empty string at the returned place: no more. */
+const char *draw_wrap_next(const char *s, int width, size_t *len);
 /* n spaces from (y, x) in the window's current attributes. */
 void draw_fill(WINDOW *w, int y, int x, int n);
 /* Columns s takes on screen. */
