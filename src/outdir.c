@@ -422,6 +422,7 @@ static int write_elsewhere(struct outdir *od, const struct result_model *m,
 	int n = elsewhere_names(od->cfg.dir, alt), rc = -1;
 	for (int i = 0; i < n; i++) {
 		struct dirlock *l = rc ? dirlock_new(alt[i], "coterie (a result saved elsewhere)") : NULL;
+		int made = l && access(alt[i], F_OK) != 0;
 		if (l && result_prepare_dir(alt[i]) == 0 && dirlock_take(l) == 0) {
 			dirlock_spare(l, 0);
 			if (write_files(od, alt[i], m, meta, check) == 0) {
@@ -431,6 +432,8 @@ static int write_elsewhere(struct outdir *od, const struct result_model *m,
 			}
 		}
 		dirlock_free(l);
+		if (alt[i] && made)
+			rmdir(alt[i]); /* a folder made for nothing; never one with files */
 		free(alt[i]);
 	}
 	char esc[300], aesc[300];

@@ -142,6 +142,8 @@ check "a write error: the message names the file and the reason" \
 check "a write error: the previous result is byte for byte as it was" [ "$(sum_prev)" = "$before" ]
 check "a write error: no temporary file is left" \
 	[ -z "$(find "$tmp/prev" -name '.*' ! -name . 2>/dev/null)" ]
+check "a write error everywhere: no empty folder is left where the result was tried elsewhere" \
+	[ -z "$(find "$tmp" -maxdepth 1 -name 'prev.saved-*' 2>/dev/null)" ]
 # Room for the checkpoint but not for every file: still nothing replaced,
 # since every file is written before any is renamed (result.h).
 blocks=$(((cksize + blk - 1) / blk))
