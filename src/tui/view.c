@@ -176,7 +176,9 @@ int view_take_snapshot(struct view *v)
 	return changed;
 }
 
-int view_page_height(const struct view *v, int pane)
+/* Rows of pane's window that hold list rows; 0 when a short pane has
+ * room only for its title and heads. */
+static int list_rows(const struct view *v, int pane)
 {
 	int h = v->box[pane].h - 1; /* the title row */
 	if (pane == PANE_COMMS || pane == PANE_EDGES)
@@ -185,6 +187,12 @@ int view_page_height(const struct view *v, int pane)
 		h -= 1; /* the selected pair's probability, community by community */
 	if (pane == PANE_NODE)
 		h -= 3; /* name, figures, column header */
+	return h > 0 ? h : 0;
+}
+
+int view_page_height(const struct view *v, int pane)
+{
+	int h = list_rows(v, pane);
 	return h > 1 ? h : 1;
 }
 
@@ -218,7 +226,7 @@ static struct listpos *pos_of(struct view *v, int pane)
 size_t view_rows_shown(const struct view *v, int pane)
 {
 	const struct listpos *p = view_pos(v, pane);
-	size_t rows = view_rows(v, pane), h = (size_t)view_page_height(v, pane);
+	size_t rows = view_rows(v, pane), h = (size_t)list_rows(v, pane);
 	if (!p || p->top >= rows)
 		return 0;
 	return rows - p->top < h ? rows - p->top : h;

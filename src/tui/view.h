@@ -214,12 +214,14 @@ void view_prepare(struct view *v);
 void view_page_answer(struct view *v, struct page_res *res);
 /* Rows the content of pane p has (for cursor moves). */
 size_t view_rows(const struct view *v, int pane);
-/* Visible content rows of pane p. */
+/* Visible content rows of pane p, at least 1 (what a page moves the
+ * cursor by). */
 int view_page_height(const struct view *v, int pane);
 /* The cursor of pane p's list (NULL for the likelihood pane). */
 const struct listpos *view_pos(const struct view *v, int pane);
-/* How many rows of pane p's list are on screen: the page height, or
- * fewer at the end of the list. */
+/* How many rows of pane p's list are on screen: the rows its window has
+ * for them (0 in a pane with room only for its heads), or fewer at the
+ * end of the list. */
 size_t view_rows_shown(const struct view *v, int pane);
 /* Move the cursor of the focused pane by delta rows (clamped). */
 void view_move(struct view *v, long delta);

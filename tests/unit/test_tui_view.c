@@ -100,6 +100,27 @@ static void test_view_layout_tiles_the_terminal_and_refuses_a_small_one(void **s
 	assert_false(v->too_small);
 }
 
+/* No pane draws more list rows than its window holds: at the smallest
+ * screen the node pane (title, name, figures, heads) has room for none,
+ * and a row drawn below it landed at the end of its heads line. */
+static void test_view_rows_shown_fit_each_window(void **state)
+{
+	struct view *v = &((struct fixture *)*state)->v;
+	static const int sizes[][2] = { { VIEW_MIN_ROWS, VIEW_MIN_COLS }, { 24, 80 }, { 40, 120 } };
+	for (size_t i = 0; i < sizeof sizes / sizeof sizes[0]; i++) {
+		view_layout(v, sizes[i][0], sizes[i][1]);
+		view_prepare(v);
+		static const int heads[PANE_COUNT] = { [PANE_COMMS] = 2, [PANE_MEMBERS] = 1,
+						       [PANE_NODE] = 4, [PANE_EDGES] = 2 };
+		for (int p = PANE_COMMS; p < PANE_COUNT; p++) {
+			/* title and heads take the first rows of the window */
+			int room = v->box[p].h - heads[p];
+			size_t shown = view_rows_shown(v, p);
+			assert_true((long)shown <= (room > 0 ? room : 0));
+		}
+	}
+}
+
 static void test_view_move_clamps_the_cursor_and_keeps_it_visible(void **state)
 {
 	struct view *v = &((struct fixture *)*state)->v;
@@ -293,6 +314,7 @@ int main(void)
 		cmocka_unit_test_setup_teardown(
 			test_view_selection_follows_the_community_when_the_order_changes, setup,
 			teardown),
+		cmocka_unit_test_setup_teardown(test_view_rows_shown_fit_each_window, setup, teardown),
 		cmocka_unit_test_setup_teardown(test_view_selection_survives_a_new_snapshot, setup,
 						teardown),
 		cmocka_unit_test_setup_teardown(test_view_toggles_reset_their_lists, setup, teardown),
