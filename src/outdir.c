@@ -104,8 +104,16 @@ struct outdir {
 	int ask;
 	struct snapshot *asked;
 	struct identity seen;     /* the checkpoint as this run last saw it */
+	int keep_selection;       /* k-selection.tsv is the continued fit's */
 	char *elsewhere;          /* where the last failed final write went */
 };
+
+/* 1 when file a was last written after file b (both present). */
+static int modified_after(const struct identity *a, const struct identity *b)
+{
+	return a->mtime.tv_sec > b->mtime.tv_sec ||
+	       (a->mtime.tv_sec == b->mtime.tv_sec && a->mtime.tv_nsec > b->mtime.tv_nsec);
+}
 
 /* 1 when DIR/checkpoint.partial.cot is there and newer than the result's
  * checkpoint (or the folder has none): the unfinished fit a run continues.
@@ -118,10 +126,7 @@ static int partial_newer(const char *ckpath, const char *partpath)
 	identity_of(partpath, &part);
 	if (!part.present)
 		return 0;
-	if (!ck.present)
-		return 1;
-	return part.mtime.tv_sec > ck.mtime.tv_sec ||
-	       (part.mtime.tv_sec == ck.mtime.tv_sec && part.mtime.tv_nsec > ck.mtime.tv_nsec);
+	return !ck.present || modified_after(&part, &ck);
 }
 
 int outdir_read(const char *dir, struct checkpoint *ck)
@@ -262,6 +267,23 @@ void outdir_resume(const struct checkpoint *ck, struct fit_params *p, struct fit
 	checkpoint_origin(ck, origin);
 }
 
+/* 1 when DIR/k-selection.tsv is the search of the fit continued: the
+ * result's own, or, when the run continues the unfinished fit beside the
+ * result (outdir_read()), one written since that result (by the -k auto
+ * run of the unfinished fit), not the previous result's. */
+static int selection_continued(const char *dir, const struct outdir *od)
+{
+	if (!partial_newer(od->ckpath, od->partpath))
+		return 1;
+	char *sel = atomicfile_path(dir, RESULT_SELECTION);
+	if (!sel)
+		return 0;
+	struct identity s;
+	identity_of(sel, &s);
+	free(sel);
+	return !od->seen.present || (s.present && modified_after(&s, &od->seen));
+}
+
 struct outdir *outdir_new(const struct outdir_config *cfg)
 {
 	struct outdir *od = util_calloc(1, sizeof *od);
@@ -276,6 +298,7 @@ struct outdir *outdir_new(const struct outdir_config *cfg)
 	}
 	od->last = util_now();
 	identity_of(od->ckpath, &od->seen);
+	od->keep_selection = cfg->continues && selection_continued(cfg->dir, od);
 	return od;
 }
 
@@ -532,7 +555,7 @@ int outdir_write(struct outdir *od, const struct result_model *m,
 	 * the search that chose its k */
 	if (!check)
 		remove_earlier(dir, RESULT_LINKS);
-	if (!(meta && meta->selection) && !od->cfg.continues)
+	if (!(meta && meta->selection) && !od->keep_selection)
 		remove_earlier(dir, RESULT_SELECTION);
 	/* last: until the result is whole, the unfinished fit is what a
 	 * resumed run continues */

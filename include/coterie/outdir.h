@@ -87,7 +87,9 @@ void outdir_tick(struct outdir *od, struct fit *f);
  * folder from model m, and held-out-links.tsv when check is not NULL (its
  * pairs scored with m->F and m->epsilon). Then, the new files in place, it
  * removes those of an earlier run that this one did not write:
- * held-out-links.tsv, and k-selection.tsv unless config.continues, and
+ * held-out-links.tsv, and k-selection.tsv unless config.continues and it
+ * is the continued fit's (not the previous result's when the run continues
+ * the unfinished fit of checkpoint.partial.cot), and
  * last the periodic checkpoint.partial.cot. All
  * borrowed. Returns 0 or -1 with a message. A result that cannot be
  * written to the folder (locked by another writer, rewritten since it was

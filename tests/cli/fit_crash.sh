@@ -81,6 +81,21 @@ while [ "$n" -le 400 ]; do
 	fi
 	n=$((n + 1))
 done
+# X's search for k is not Y's: a resumed unfinished fit of Y does not keep it
+d=$tmp/ksel
+cp -R "$tmp/X" "$d"
+printf 'k\tloglik\n5\t-1\n' >"$d/k-selection.tsv"
+touch -d '2001-01-01' "$d/k-selection.tsv"
+COTERIE_CRASH_AT=3 "$BIN" fit "$tmp/gy/edges.tsv" -k 30 --seed 3 -j 1 -q --force \
+	--checkpoint-every 0.1 -o "$d" 2>/dev/null
+check "a stop after the first periodic checkpoint leaves it beside X's result" \
+	[ -s "$d/checkpoint.partial.cot" ]
+"$BIN" fit --resume "$d" -j 1 2>"$d.err"
+check "fit --resume continues the unfinished fit" \
+	same "$d" "$tmp/Y" memberships.tsv communities.tsv
+check "and says it continues the unfinished fit" grep -q 'unfinished fit' "$d.err"
+check "and drops X's k-selection.tsv" [ ! -e "$d/k-selection.tsv" ]
+
 check "every stop left X's result whole, Y's whole, or a mix show warns of" [ "$bad" -eq 0 ]
 check "the fit was stopped while writing its periodic checkpoints" [ "$resumed" -gt 0 ]
 check "the fit ends on its own within 400 steps ($n)" [ "$n" -le 400 ]
