@@ -22,6 +22,7 @@
 
 #include <errno.h>
 #include <fcntl.h>
+#include <stdatomic.h>
 #include <stdarg.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -214,6 +215,24 @@ static int path_split(const char *path, char **dir, char **base)
 /* ------------------------------------------------------------------ */
 /* Staging and committing */
 
+/* The test hook: COTERIE_CRASH_AT=N ends the process (_exit(137), as a
+ * kill -9 would) right after the N-th fsync, rename or removal that
+ * replaces a result, so a test can stop a writer at each step. */
+static atomic_int crash_count;
+
+void atomicfile_crash_point(void)
+{
+	static atomic_int at = -1;
+	int n = atomic_load(&at);
+	if (n < 0) {
+		const char *e = getenv("COTERIE_CRASH_AT");
+		n = e && *e ? atoi(e) : 0;
+		atomic_store(&at, n);
+	}
+	if (n > 0 && atomic_fetch_add(&crash_count, 1) + 1 == n)
+		_exit(137);
+}
+
 /* Flush, sync and close w's file; 0 or -1 with a message naming path. */
 static int finish(struct atomicfile *w, const char *path)
 {
@@ -222,6 +241,7 @@ static int finish(struct atomicfile *w, const char *path)
 		return error("cannot write '%s': %s", path, strerror(w->err));
 	if (fsync(w->fd) != 0)
 		return error("cannot write '%s': %s", path, strerror(errno));
+	atomicfile_crash_point();
 	int fd = w->fd;
 	w->fd = -1;
 	if (close(fd) != 0)
@@ -287,6 +307,8 @@ static int commit(char *tmp, const char *path)
 		unlink(tmp);
 	}
 	free(tmp);
+	if (rc == 0)
+		atomicfile_crash_point();
 	return rc;
 }
 
@@ -298,6 +320,7 @@ int atomicfile_replace(const char *path, atomicfile_fill_fn fill, const void *ar
 	if (path_split(path, &dir, &base) != 0)
 		return -1;
 	int rc = util_sync_dir(dir);
+	atomicfile_crash_point();
 	free(dir);
 	free(base);
 	return rc;
@@ -339,8 +362,10 @@ int atomicfile_set_commit(struct atomicfile_set *set, const char *dir)
 		}
 		set->tmp[i] = NULL;
 	}
-	if (rc == 0)
+	if (rc == 0) {
 		rc = util_sync_dir(dir);
+		atomicfile_crash_point();
+	}
 	atomicfile_set_release(set);
 	return rc;
 }

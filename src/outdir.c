@@ -9,6 +9,14 @@
  * at the end of a whole sweep with the state of the starts, as the one an
  * interrupt leaves.
  *
+ * Periodic checkpoints go to checkpoint.partial.cot, never to the
+ * result's checkpoint.cot: while a fit runs (or after it was killed) the
+ * folder still holds the previous result whole, beside a resumable
+ * checkpoint of the new fit that show does not take for the result. The
+ * final write removes the partial checkpoint last, once the new result is
+ * in place; outdir_read() continues from it only when it is newer than
+ * the result.
+ *
  * Invariants: at most one periodic write at a time; a background write
  * holds its own snapshot reference (snapshots and the graph are
  * immutable), and is joined before the next one and before the final
@@ -83,7 +91,8 @@ static int identity_same(const struct identity *a, const struct identity *b)
 
 struct outdir {
 	struct outdir_config cfg;
-	char *ckpath;             /* DIR/checkpoint.cot */
+	char *ckpath;             /* DIR/checkpoint.cot, the result's */
+	char *partpath;           /* DIR/checkpoint.partial.cot, the periodic ones */
 	double last;              /* when the last periodic checkpoint was due */
 	int want;                 /* a savepoint is asked for */
 	/* the periodic write in progress on its thread */
@@ -95,21 +104,66 @@ struct outdir {
 	int ask;
 	struct snapshot *asked;
 	struct identity seen;     /* the checkpoint as this run last saw it */
+	int keep_selection;       /* k-selection.tsv is the continued fit's */
 	char *elsewhere;          /* where the last failed final write went */
 };
+
+/* 1 when file a was last written after file b (both present). */
+static int modified_after(const struct identity *a, const struct identity *b)
+{
+	return a->mtime.tv_sec > b->mtime.tv_sec ||
+	       (a->mtime.tv_sec == b->mtime.tv_sec && a->mtime.tv_nsec > b->mtime.tv_nsec);
+}
+
+/* 1 when DIR/checkpoint.partial.cot is there and newer than the result's
+ * checkpoint (or the folder has none): the unfinished fit a run continues.
+ * A partial checkpoint older than the result is one the final write was
+ * stopped before removing. */
+static int partial_newer(const char *ckpath, const char *partpath)
+{
+	struct identity ck, part;
+	identity_of(ckpath, &ck);
+	identity_of(partpath, &part);
+	if (!part.present)
+		return 0;
+	return !ck.present || modified_after(&part, &ck);
+}
 
 int outdir_read(const char *dir, struct checkpoint *ck)
 {
 	char *path = atomicfile_path(dir, RESULT_CHECKPOINT);
-	if (!path) {
-		memset(ck, 0, sizeof *ck);
-		return -1;
+	char *part = atomicfile_path(dir, RESULT_PARTIAL);
+	int rc = -1;
+	memset(ck, 0, sizeof *ck);
+	if (path && part && partial_newer(path, part)) {
+		char esc[300];
+		util_escape(dir, esc, sizeof esc, 1);
+		if (checkpoint_read(part, ck) == 0) {
+			notice("'%s' holds an unfinished fit (%s, %" PRIu32 " sweeps), newer than "
+			       "its result%s: it is the one continued", esc, RESULT_PARTIAL, ck->sweep,
+			       access(path, F_OK) == 0 ? "" : " (there is none yet)");
+			rc = 0;
+		} else {
+			warning("the unfinished fit in '%s' (%s) cannot be read; its result is "
+				"read instead", esc, RESULT_PARTIAL);
+		}
 	}
-	int rc = checkpoint_read(path, ck);
+	if (rc != 0 && path) {
+		rc = checkpoint_read(path, ck);
+		if (rc == 0)
+			result_cover_check_folder(dir, ck); /* i18check: warn on a mix of files */
+	}
+	free(part);
 	free(path);
-	if (rc == 0)
-		result_cover_check_folder(dir, ck); /* i18check: warn on a mix of files */
 	return rc;
+}
+
+int outdir_has_partial(const char *dir)
+{
+	char *part = atomicfile_path(dir, RESULT_PARTIAL);
+	int there = part && access(part, F_OK) == 0;
+	free(part);
+	return there;
 }
 
 /* What run.json says of the graph of the result in dir. */
@@ -144,6 +198,17 @@ static void describe(const char *dir, struct described *d)
 	json_decref(root);
 }
 
+/* 1 when DIR/checkpoint.partial.cot is a fit of the graph of fingerprint fp. */
+static int partial_of(const char *dir, uint64_t fp)
+{
+	char *part = atomicfile_path(dir, RESULT_PARTIAL);
+	uint64_t have;
+	int yes = part && access(part, F_OK) == 0 && checkpoint_read_fingerprint(part, &have) == 0 &&
+		  have == fp;
+	free(part);
+	return yes;
+}
+
 int outdir_check_graph(const char *dir, const struct graph *g, int force)
 {
 	char *ckpath = atomicfile_path(dir, RESULT_CHECKPOINT);
@@ -172,6 +237,11 @@ int outdir_check_graph(const char *dir, const struct graph *g, int force)
 		return 0;
 	char esc[300];
 	util_escape(dir, esc, sizeof esc, 1);
+	if (partial_of(dir, mine)) {
+		notice("the result in '%s' is of another graph; the unfinished fit there (%s), "
+		       "of this graph, was started to replace it", esc, RESULT_PARTIAL);
+		return 0;
+	}
 	if (force) {
 		notice("replacing the result in '%s', which is of another graph (--force)", esc);
 		return 0;
@@ -197,6 +267,23 @@ void outdir_resume(const struct checkpoint *ck, struct fit_params *p, struct fit
 	checkpoint_origin(ck, origin);
 }
 
+/* 1 when DIR/k-selection.tsv is the search of the fit continued: the
+ * result's own, or, when the run continues the unfinished fit beside the
+ * result (outdir_read()), one written since that result (by the -k auto
+ * run of the unfinished fit), not the previous result's. */
+static int selection_continued(const char *dir, const struct outdir *od)
+{
+	if (!partial_newer(od->ckpath, od->partpath))
+		return 1;
+	char *sel = atomicfile_path(dir, RESULT_SELECTION);
+	if (!sel)
+		return 0;
+	struct identity s;
+	identity_of(sel, &s);
+	free(sel);
+	return !od->seen.present || (s.present && modified_after(&s, &od->seen));
+}
+
 struct outdir *outdir_new(const struct outdir_config *cfg)
 {
 	struct outdir *od = util_calloc(1, sizeof *od);
@@ -204,12 +291,14 @@ struct outdir *outdir_new(const struct outdir_config *cfg)
 		return NULL;
 	od->cfg = *cfg;
 	od->ckpath = atomicfile_path(cfg->dir, RESULT_CHECKPOINT);
-	if (!od->ckpath) {
-		free(od);
+	od->partpath = atomicfile_path(cfg->dir, RESULT_PARTIAL);
+	if (!od->ckpath || !od->partpath) {
+		UTIL_FREE_ALL(od->ckpath, od->partpath, od);
 		return NULL;
 	}
 	od->last = util_now();
 	identity_of(od->ckpath, &od->seen);
+	od->keep_selection = cfg->continues && selection_continued(cfg->dir, od);
 	return od;
 }
 
@@ -238,16 +327,15 @@ static int claim(struct outdir *od)
 	return 0;
 }
 
-/* Write snapshot s as the checkpoint; 0 or -1 (reported). */
+/* Write snapshot s as the periodic checkpoint, beside the result, which
+ * it leaves as it is; 0 or -1 (reported). */
 static int write_checkpoint(struct outdir *od, const struct snapshot *s)
 {
 	struct result_model m;
 	result_model_of(&m, s);
 	dirlock_spare(od->cfg.lock, 0);
-	int rc = claim(od) ? -1 : checkpoint_write(od->ckpath, od->cfg.g, &od->cfg.params, &m);
+	int rc = claim(od) ? -1 : checkpoint_write(od->partpath, od->cfg.g, &od->cfg.params, &m);
 	dirlock_spare(od->cfg.lock, 1);
-	if (rc == 0)
-		identity_of(od->ckpath, &od->seen);
 	return rc;
 }
 
@@ -366,6 +454,7 @@ static void remove_earlier(const char *dir, const char *name)
 			util_escape(path, esc, sizeof esc, 1), strerror(errno));
 	}
 	free(path);
+	atomicfile_crash_point();
 }
 
 /* Every file of the result into dir (made, locked by the caller). */
@@ -466,8 +555,11 @@ int outdir_write(struct outdir *od, const struct result_model *m,
 	 * the search that chose its k */
 	if (!check)
 		remove_earlier(dir, RESULT_LINKS);
-	if (!(meta && meta->selection) && !od->cfg.continues)
+	if (!(meta && meta->selection) && !od->keep_selection)
 		remove_earlier(dir, RESULT_SELECTION);
+	/* last: until the result is whole, the unfinished fit is what a
+	 * resumed run continues */
+	remove_earlier(dir, RESULT_PARTIAL);
 	return 0;
 }
 
@@ -481,6 +573,6 @@ void outdir_free(struct outdir *od)
 	if (od) {
 		join(od); /* the periodic write, then what it and the caller leave */
 		snapshot_release(od->asked);
-		UTIL_FREE_ALL(od->elsewhere, od->ckpath, od);
+		UTIL_FREE_ALL(od->elsewhere, od->ckpath, od->partpath, od);
 	}
 }

@@ -72,6 +72,12 @@ int atomicfile_set_stage(struct atomicfile_set *set, const char *dir, const char
  * Returns 0 or -1 (the first failure; the files not yet renamed are
  * removed). The set is empty afterwards. */
 int atomicfile_set_commit(struct atomicfile_set *set, const char *dir);
+/* A test hook, not for users: with COTERIE_CRASH_AT=N in the
+ * environment, the N-th call in the process (counting every fsync of a
+ * staged file, every rename and every folder sync made here, and the calls
+ * of other writers of a result folder after a removal) ends the process
+ * with _exit(137), as a kill -9 there would. Does nothing otherwise. */
+void atomicfile_crash_point(void);
 /* Remove whatever is staged and not committed, free the names. */
 void atomicfile_set_release(struct atomicfile_set *set);
 

@@ -23,16 +23,24 @@ struct dirlock;
 struct graph;
 struct holdout;
 
-/* Read DIR/checkpoint.cot into ck (released by the caller with
- * checkpoint_release()). Returns 0 or -1 with a message. */
+/* Read the fit DIR holds into ck (released by the caller with
+ * checkpoint_release()), to continue it: DIR/checkpoint.partial.cot, the
+ * unfinished fit, when it is there and newer than DIR/checkpoint.cot (a
+ * notice says so), else DIR/checkpoint.cot. Returns 0 or -1 with a
+ * message. */
 int outdir_read(const char *dir, struct checkpoint *ck);
+
+/* 1 when DIR holds checkpoint.partial.cot (a fit running, or stopped
+ * before its final write), else 0. */
+int outdir_has_partial(const char *dir);
 
 /* Refuse to replace the result of another graph: when DIR holds a result
  * (checkpoint.cot, else run.json) whose graph fingerprint is not g's
  * (borrowed), or one that cannot be read, return -1 with a message saying
  * what is there and how to go on (--force, -o), unless force, which only
  * says that it will be replaced. Returns 0 when DIR holds no result, one
- * of g, or force is set. */
+ * of g, an unfinished fit of g (checkpoint.partial.cot: a run already
+ * allowed to replace it; a notice says so), or force is set. */
 int outdir_check_graph(const char *dir, const struct graph *g, int force);
 
 /* Continue the fit saved in ck: make p (the saved parameters, already
@@ -68,7 +76,8 @@ struct outdir *outdir_new(const struct outdir_config *cfg);
 void outdir_free(struct outdir *od);
 
 /* Call often while fit f (borrowed) runs: asks for a savepoint when a
- * checkpoint is due and writes it when the fit brings it. A failed write
+ * checkpoint is due and writes it, as DIR/checkpoint.partial.cot (the
+ * result in DIR is left whole), when the fit brings it. A failed write
  * is reported and the next one tried a period later. Does nothing once
  * the fit has ended. */
 void outdir_tick(struct outdir *od, struct fit *f);
@@ -78,7 +87,10 @@ void outdir_tick(struct outdir *od, struct fit *f);
  * folder from model m, and held-out-links.tsv when check is not NULL (its
  * pairs scored with m->F and m->epsilon). Then, the new files in place, it
  * removes those of an earlier run that this one did not write:
- * held-out-links.tsv, and k-selection.tsv unless config.continues. All
+ * held-out-links.tsv, and k-selection.tsv unless config.continues and it
+ * is the continued fit's (not the previous result's when the run continues
+ * the unfinished fit of checkpoint.partial.cot), and
+ * last the periodic checkpoint.partial.cot. All
  * borrowed. Returns 0 or -1 with a message. A result that cannot be
  * written to the folder (locked by another writer, rewritten since it was
  * opened, read-only, full, no descriptor) is written elsewhere before -1

@@ -16,6 +16,12 @@
 struct graph;
 
 #define RESULT_CHECKPOINT "checkpoint.cot"
+/* The periodic checkpoint of a fit still running (or killed), beside the
+ * previous result, which stays whole; removed by the final write once the
+ * new result is in place. Readers of the result (show) ignore it; those
+ * that continue a fit (fit --resume, explore DIR) take it when it is
+ * newer than RESULT_CHECKPOINT (outdir_read()). */
+#define RESULT_PARTIAL "checkpoint.partial.cot"
 #define RESULT_SELECTION "k-selection.tsv"
 
 struct refine_report;

@@ -233,7 +233,7 @@ static int open_folder(struct run *r, struct tui_config *cfg)
 	char *path = atomicfile_path(r->arg, RESULT_CHECKPOINT);
 	if (!path)
 		return -1;
-	int missing = access(path, F_OK) != 0;
+	int missing = access(path, F_OK) != 0 && !outdir_has_partial(r->arg);
 	free(path);
 	if (missing) {
 		char esc[512];

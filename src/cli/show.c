@@ -26,6 +26,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <unistd.h>
 #include <wchar.h>
 
 #include <jansson.h>
@@ -38,6 +39,7 @@
 #include "coterie/inspect.h"
 #include "coterie/jsonout.h"
 #include "coterie/model.h"
+#include "coterie/outdir.h"
 #include "coterie/result.h"
 #include "coterie/result_cover.h"
 #include "coterie/suggest.h"
@@ -747,8 +749,20 @@ static int show_open(struct show *s)
 	if (w < 0 || (size_t)w >= sizeof path)
 		return error("the folder name is too long: %s",
 			     util_escape(s->dir, buf, sizeof buf, 1));
+	/* the result, never the unfinished fit beside it; that one only
+	 * when the folder has no result yet, and said */
+	int partial = outdir_has_partial(s->dir), none = partial && access(path, F_OK) != 0;
+	util_escape(s->dir, buf, sizeof buf, 1);
+	if (none)
+		snprintf(path, sizeof path, "%s/%s", s->dir, RESULT_PARTIAL);
 	if (checkpoint_read(path, &s->ck))
 		return -1;
+	if (none)
+		notice("'%s' holds no result yet, only an unfinished fit (%s, %" PRIu32 " sweeps): "
+		       "it is the one shown", buf, RESULT_PARTIAL, s->ck.sweep);
+	else if (partial)
+		notice("'%s' also holds an unfinished fit (%s), running or stopped before its "
+		       "end; the result shown is the one written before it", buf, RESULT_PARTIAL);
 	s->delta = sqrt(model_qeps(s->ck.epsilon));
 	result_cover_check_folder(s->dir, &s->ck);
 	if (result_cover_read(&s->agm, s->dir, &s->ck, s->delta, &s->from)) {

@@ -1,6 +1,7 @@
 #!/bin/sh
 # While a fit runs, the explorer writes its checkpoint to the result folder
-# now and then (every 120 s; --checkpoint-every 1 shortens it here), so
+# now and then (every 120 s; --checkpoint-every 1 shortens it here), as
+# checkpoint.partial.cot (a result written before stays whole), so
 # a killed explorer loses little: the folder reopens with `coterie show`.
 . "$(dirname "$0")/lib"
 
@@ -12,7 +13,7 @@ check "the explorer starts fitting" wait_screen '─ 5 Weak edges' 20
 got=0
 i=0
 while [ "$i" -lt $((100 * slow)) ]; do
-	if [ -s "$tmp/out/checkpoint.cot" ]; then got=1; break; fi
+	if [ -s "$tmp/out/checkpoint.partial.cot" ]; then got=1; break; fi
 	sleep 0.1
 	i=$((i + 1))
 done

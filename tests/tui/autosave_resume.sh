@@ -19,7 +19,7 @@ start_ui 120x40 C.UTF-8 "$g" -k 30 --seed 3 -j 1 --checkpoint-every 0.3 -o "$tmp
 got=0
 i=0
 while [ "$i" -lt $((300 * slow)) ]; do
-	if [ -s "$tmp/out/checkpoint.cot" ] && grep -aq RSUM "$tmp/out/checkpoint.cot"; then
+	if [ -s "$tmp/out/checkpoint.partial.cot" ] && grep -aq RSUM "$tmp/out/checkpoint.partial.cot"; then
 		got=1
 		break
 	fi
