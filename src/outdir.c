@@ -151,7 +151,7 @@ int outdir_read(const char *dir, struct checkpoint *ck)
 	if (rc != 0 && path) {
 		rc = checkpoint_read(path, ck);
 		if (rc == 0)
-			result_cover_check_folder(dir, ck); /* i18check: warn on a mix of files */
+			result_cover_check_folder(dir, ck, NULL); /* warn of a mix of files */
 	}
 	free(part);
 	free(path);

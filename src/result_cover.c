@@ -381,8 +381,10 @@ static uint64_t *cover_pairs(const struct cover *c, const struct agm *a, uint32_
 }
 
 /* Does memberships.tsv (present) list the cover the strengths of ck give
- * by the rule? 1 yes, 0 no (or unreadable), -1 no memory. */
-static int memberships_match(const char *path, const struct checkpoint *ck)
+ * by the rule (given, borrowed, or built here when NULL)? 1 yes, 0 no (or
+ * unreadable), -1 no memory. */
+static int memberships_match(const char *path, const struct checkpoint *ck,
+			     const struct agm *given)
 {
 	struct cover file;
 	struct agm a;
@@ -392,20 +394,25 @@ static int memberships_match(const char *path, const struct checkpoint *ck)
 		return 0;
 	int same = -1;
 	double delta = sqrt(model_qeps(ck->epsilon));
-	if (agm_from_strengths(&a, ck->graph, &ck->F, ck->epsilon, delta, AGM_MIN_LINKS) == 0) {
+	const struct agm *rule = given;
+	if (!rule && agm_from_strengths(&a, ck->graph, &ck->F, ck->epsilon, delta,
+					AGM_MIN_LINKS) == 0)
+		rule = &a;
+	if (rule) {
 		uint64_t *x = cover_pairs(&file, NULL, ck->F.k);
-		uint64_t *y = cover_pairs(&a.cover, &a, ck->F.k);
-		uint64_t nx = file.off[file.k], ny = a.cover.off[a.cover.k];
+		uint64_t *y = cover_pairs(&rule->cover, rule, ck->F.k);
+		uint64_t nx = file.off[file.k], ny = rule->cover.off[rule->cover.k];
 		same = y ? x && nx == ny && (nx == 0 || !memcmp(x, y, nx * sizeof *x)) : -1;
 		free(x);
 		free(y);
-		agm_release(&a);
 	}
+	agm_release(&a);
 	cover_release(&file);
 	return same;
 }
 
-void result_cover_check_folder(const char *dir, const struct checkpoint *ck)
+void result_cover_check_folder(const char *dir, const struct checkpoint *ck,
+			       const struct agm *rule)
 {
 	json_t *root = load_run_json(dir);
 	if (root) {
@@ -433,7 +440,7 @@ void result_cover_check_folder(const char *dir, const struct checkpoint *ck)
 	if (result_cover_is_refined(dir))
 		return; /* read_refined() checks that cover against run.json */
 	char *path = atomicfile_path(dir, "memberships.tsv");
-	if (path && access(path, F_OK) == 0 && memberships_match(path, ck) == 0)
+	if (path && access(path, F_OK) == 0 && memberships_match(path, ck, rule) == 0)
 		warning("memberships.tsv is not the cover of the strengths in %s (edited, or of "
 			"another fit): the strengths' cover is the one read", RESULT_CHECKPOINT);
 	free(path);

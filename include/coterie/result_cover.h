@@ -51,8 +51,11 @@ int result_cover_read(struct agm *out, const char *dir, const struct checkpoint 
  * memberships.tsv that is not the strengths' cover by the rule (edited,
  * or of another fit). Missing files are not warned of. The checkpoint
  * carries its own graph and is what readers use; a mix is warned, not
- * refused (coterie-files(5)). */
-void result_cover_check_folder(const char *dir, const struct checkpoint *ck);
+ * refused (coterie-files(5)). rule (borrowed, may be NULL) is the cover
+ * the strengths give by the rule when the caller already has it, so it is
+ * not built twice. */
+void result_cover_check_folder(const char *dir, const struct checkpoint *ck,
+			       const struct agm *rule);
 
 /* Is node u a member of community a->comms[index] (a binary search of its
  * sorted members)? */

@@ -764,11 +764,13 @@ static int show_open(struct show *s)
 		notice("'%s' also holds an unfinished fit (%s), running or stopped before its "
 		       "end; the result shown is the one written before it", buf, RESULT_PARTIAL);
 	s->delta = sqrt(model_qeps(s->ck.epsilon));
-	result_cover_check_folder(s->dir, &s->ck);
 	if (result_cover_read(&s->agm, s->dir, &s->ck, s->delta, &s->from)) {
 		checkpoint_release(&s->ck);
 		return -1;
 	}
+	/* the strengths' cover just read serves the check of memberships.tsv */
+	result_cover_check_folder(s->dir, &s->ck,
+				  s->from == RESULT_COVER_REFINED ? NULL : &s->agm);
 	return 0;
 }
 
