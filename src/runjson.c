@@ -3,7 +3,7 @@
  * coterie-files(5)). Part of the result module (src/result-internal.h).
  *
  * The idea: one object per section (coterie, graph, parameters, fit,
- * k_selection, link_check, agm_refine, warnings, run), each built by its own
+ * k_selection, background, link_check, agm_refine, warnings, run), each built by its own
  * function from the borrowed parts it describes; values go through
  * jsonout.h, so a non-finite number is null, a count too large for JSON's
  * integers a decimal string, a non-UTF-8 path escaped.
@@ -21,6 +21,7 @@
 #include <jansson.h>
 
 #include "coterie/agm.h"
+#include "coterie/background.h"
 #include "coterie/caveat.h"
 #include "coterie/graph.h"
 #include "coterie/jsonout.h"
@@ -101,6 +102,42 @@ static json_t *j_warnings(const struct graph *g, const struct result_model *m,
 	if (!a)
 		*bad = 1;
 	return a;
+}
+
+/* run.json's background: how epsilon was chosen, and the candidates the
+ * coverage guard fitted (background.h). */
+static json_t *j_background(const struct background_choice *b)
+{
+	int bad = 0;
+	json_t *o = json_object(), *a = json_array();
+	if (!o || !a) {
+		json_decref(o);
+		json_decref(a);
+		return NULL;
+	}
+	jsonout_set(o, "rule", json_string(background_rule_name(b->rule)), &bad);
+	jsonout_set(o, "epsilon", jsonout_real(b->epsilon), &bad);
+	jsonout_set(o, "density", jsonout_real(b->density), &bad);
+	jsonout_set(o, "linked_nodes", jsonout_uint(b->linked), &bad);
+	jsonout_set(o, "cover_share_wanted", jsonout_real(BACKGROUND_COVER), &bad);
+	for (uint32_t i = 0; i < b->ncand; i++) {
+		const struct background_candidate *c = &b->cand[i];
+		json_t *e = json_object();
+		jsonout_set(e, "multiple", jsonout_real(c->multiple), &bad);
+		jsonout_set(e, "epsilon", jsonout_real(c->epsilon), &bad);
+		jsonout_set(e, "covered", jsonout_uint(c->covered), &bad);
+		jsonout_set(e, "loglik", jsonout_real(c->loglik), &bad);
+		jsonout_set(e, "agm_loglik", jsonout_real(c->agm_loglik), &bad);
+		jsonout_set(e, "sweeps", jsonout_uint(c->sweeps), &bad);
+		jsonout_set(e, "seconds", jsonout_real(c->seconds), &bad);
+		jsonout_append(a, e, &bad);
+	}
+	jsonout_set(o, "candidates", a, &bad);
+	if (bad) {
+		json_decref(o);
+		return NULL;
+	}
+	return o;
 }
 
 /* run.json's link_check: the held-out check of the final model. */
@@ -232,6 +269,8 @@ char *result_run_json(const struct graph *g, const struct fit_params *p,
 	jsonout_set(root, "fit", j_fit(m, meta, &bad), &bad);
 	jsonout_set(root, "k_selection", meta && meta->selection ? j_selection(meta->selection) :
 		    json_null(), &bad);
+	jsonout_set(root, "background", meta && meta->background ?
+		    j_background(meta->background) : json_null(), &bad);
 	jsonout_set(root, "link_check", meta && meta->links ? j_links(meta->links) : json_null(),
 		    &bad);
 	jsonout_set(root, "agm_refine", j_refine(meta, &bad), &bad);

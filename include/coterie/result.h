@@ -26,6 +26,7 @@ struct graph;
 
 struct refine_report;
 struct select_result;
+struct background_choice;
 
 /* Write DIR/k-selection.tsv (k, held-out log-likelihood, held-out AUC,
  * sweeps, seconds, chosen, folds, the log-likelihood's standard deviation
@@ -64,6 +65,8 @@ struct result_meta {
 	unsigned refine_rounds;     /* --refine-rounds (0: --refine not asked) */
 	const struct select_result *selection; /* the -k auto search, or NULL */
 	const struct result_links *links;      /* the link check, or NULL */
+	const struct background_choice *background; /* how epsilon was chosen,
+						     * or NULL (not recorded) */
 };
 
 /* Create dir (and parents) if needed and prove it can be written by

@@ -27,6 +27,7 @@
 #include "../tui/keys.h"
 #include "../tui/tui.h"
 #include "cli.h"
+#include "coterie/background.h"
 #include "coterie/atomicfile.h"
 #include "coterie/fit.h"
 #include "coterie/graph.h"
@@ -63,7 +64,7 @@ static void explore_usage(FILE *out)
 		"      --tol X           plateau: relative gain per sweep below X ...\n"
 		"      --patience N      ... for N sweeps in a row (defaults 1e-4, 3)\n"
 		"      --max-sweeps N    stop after N sweeps in all (default 500)\n"
-		"      --epsilon X       background link probability (default: the density)\n"
+		"      --epsilon X       background link probability (default: as fit chooses it)\n"
 		"      --format F        edges, gml, graphml or pajek (default: by extension)\n"
 		"      --skip-lines N    edge lists: skip the first N lines (then no header is guessed)\n"
 		"      --no-header       edge lists: the first line is an edge, never a header\n"
@@ -295,6 +296,14 @@ static int open_graph(struct run *r, struct tui_config *cfg)
 		if (ks >= 0)
 			return ks;
 		cfg->selection = &r->sel;
+	}
+	if (!(r->p.epsilon > 0.0) && r->g->m < BACKGROUND_MAX_EDGES) {
+		/* the same background as fit would choose (background.h) */
+		struct background_choice bg;
+		notice("choosing the background epsilon (see --epsilon) ...");
+		if (background_choose(r->g, &r->p, NULL, NULL, &bg))
+			return 1;
+		r->p.epsilon = bg.epsilon;
 	}
 	r->p.hold_at_plateau = 1;
 	if (!(cfg->fit = fit_new(r->g, &r->p, NULL)))

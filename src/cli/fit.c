@@ -25,12 +25,14 @@
 #include <unistd.h>
 
 #include "cli.h"
+#include "coterie/background.h"
 #include "coterie/caveat.h"
 #include "coterie/dirlock.h"
 #include "coterie/fit.h"
 #include "coterie/graph.h"
 #include "coterie/holdout.h"
 #include "coterie/memory.h"
+#include "coterie/model.h"
 #include "coterie/outdir.h"
 #include "coterie/refine.h"
 #include "coterie/result.h"
@@ -75,7 +77,9 @@ static void fit_usage(FILE *out)
 		"      --refine          after the fit, improve the cover under the AGM by\n"
 		"                        local moves; memberships.tsv holds the refined cover\n"
 		"      --refine-rounds N at most N rounds of refinement (default 50)\n"
-		"      --epsilon X       background link probability (default: the density)\n"
+		"      --epsilon X       background link probability (default: the density;\n"
+		"                        below 20000 edges, the largest multiple of it whose\n"
+		"                        cover holds 90%% of the linked nodes)\n"
 		"      --format F        edges, gml, graphml or pajek (default: by extension)\n"
 		"      --skip-lines N    edge lists: skip the first N lines (then no header is guessed)\n"
 		"      --no-header       edge lists: the first line is an edge, never a header\n"
@@ -336,6 +340,8 @@ struct run {
 	struct graph *g;             /* the graph loaded (NULL: ck's) */
 	const struct graph *graph;   /* the one fitted and written */
 	struct select_result sel;    /* -k auto */
+	struct background_choice bg; /* how epsilon was chosen (new fits) */
+	int have_bg;
 	struct holdout check;        /* --check-links */
 	struct fit_origin origin;
 	int have_origin;
@@ -441,6 +447,38 @@ static int load_resume(struct run *r)
 	return 0;
 }
 
+/* The background of a new fit (background.h): given, the density, or
+ * chosen by the coverage guard on a small graph. Returns 0 or -1. */
+static int choose_background(struct run *r)
+{
+	struct fit_params *p = &r->p;
+	int searches = !(p->epsilon > 0.0) && r->g->m < BACKGROUND_MAX_EDGES;
+	if (searches && !r->quiet)
+		notice("choosing the background epsilon: the largest multiple of the density "
+		       "(%.4g) whose cover holds %.0f%% of the linked nodes (see --epsilon)",
+		       model_default_epsilon(r->g), 100.0 * BACKGROUND_COVER);
+	int rc = background_choose(r->g, p, stop_asked, &r->quiet, &r->bg);
+	if (rc == -2)
+		error("interrupted while choosing the background; no fit to save yet");
+	if (rc)
+		return -1;
+	r->have_bg = 1;
+	if (r->bg.rule == BACKGROUND_COVERAGE) {
+		p->epsilon = r->bg.epsilon;
+		if (!r->quiet) {
+			const struct background_candidate *c = &r->bg.cand[r->bg.ncand - 1];
+			for (uint32_t i = 0; i < r->bg.ncand; i++)
+				if (r->bg.cand[i].epsilon == r->bg.epsilon)
+					c = &r->bg.cand[i];
+			notice("epsilon %.4g (%g x the density): %u of %u linked nodes covered "
+			       "after %u trial fit%s; the trials are in run.json", c->epsilon,
+			       c->multiple, c->covered, r->bg.linked, r->bg.ncand,
+			       r->bg.ncand == 1 ? "" : "s");
+		}
+	}
+	return 0;
+}
+
 /* A new fit: the graph, -k auto and --check-links. Returns 0, -1, or -2
  * when -k auto failed (perhaps interrupted). */
 static int load_graph(struct run *r)
@@ -454,6 +492,8 @@ static int load_graph(struct run *r)
 	cli_fit_opts_starts(&r->o, r->g->m);
 	p->starts = r->o.p.starts;
 	if (r->o.k_auto && choose_k(r->g, p, r->o.out, &r->o, r->quiet, &r->sel))
+		return -2;
+	if (choose_background(r))
 		return -2;
 	if (r->check_links > 0) {
 		/* the seed is offset so these pairs are not those -k auto held out */
@@ -581,6 +621,7 @@ static int finish(struct run *r, enum fit_state st, const struct snapshot *s)
 		.refine_rounds = r->refine ? r->refine_rounds : 0,
 		.selection = r->o.k_auto ? &r->sel : NULL,
 		.links = have_whole ? &links : NULL,
+		.background = r->have_bg ? &r->bg : NULL,
 	};
 	if (st == FIT_FAILED || s->ntrace == 0) {
 		error("the fit failed; nothing written to '%s'", r->o.out);

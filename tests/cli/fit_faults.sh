@@ -78,7 +78,8 @@ check "twice: the resumed fit, interrupted again, exits 130" [ $? -eq 130 ]
 resume_same twice
 
 # A second signal stops inside the sweep at once; the folder is still saved.
-"$BIN" fit "$g" -k 20 -j 2 --seed 3 --tol 0 --max-sweeps 100000 -o "$tmp/hard" \
+# (--epsilon: the signals must reach the fit, not the background's trials)
+"$BIN" fit "$g" -k 20 -j 2 --seed 3 --tol 0 --max-sweeps 100000 --epsilon 0.02 -o "$tmp/hard" \
 	2>"$tmp/hard.err" &
 pid=$!
 bg_pids="$bg_pids $pid"

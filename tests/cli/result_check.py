@@ -61,11 +61,26 @@ def main():
     n, m = G.number_of_nodes(), G.number_of_edges()
     run = json.load(open(out + "/run.json"))
 
-    # DESIGN.md "Background and threshold": epsilon defaults to the density.
-    eps = 2.0 * m / (n * (n - 1))
-    report(close(run["parameters"]["epsilon"], eps, 1e-12),
-           "run.json epsilon %.10g is the density 2*%d/(%d*%d) = %.10g"
-           % (run["parameters"]["epsilon"], m, n, n - 1, eps))
+    # DESIGN.md "Background and threshold": epsilon defaults to the density,
+    # or below 20000 edges to the multiple of it the coverage guard chose
+    # (man/coterie.1, --epsilon; run.json's background).
+    density = 2.0 * m / (n * (n - 1))
+    bg = run.get("background") or {"rule": "density"}
+    eps = density
+    if bg["rule"] == "coverage":
+        report(close(bg["density"], density, 1e-12),
+               "run.json background.density %.10g is 2*%d/(%d*%d) = %.10g"
+               % (bg["density"], m, n, n - 1, density))
+        mult = [c["multiple"] for c in bg["candidates"] if c["epsilon"] == bg["epsilon"]]
+        report(len(mult) == 1 and mult[0] in (1.0, 0.7, 0.5, 0.3, 0.2, 0.1, 0.05, 0.03,
+                                              0.01, 0.001),
+               "run.json background.epsilon is one of its trials, a multiple of the density")
+        eps = density * mult[0] if mult else bg["epsilon"]
+    if bg["rule"] != "given":
+        report(close(run["parameters"]["epsilon"], eps, 1e-12),
+               "run.json epsilon %.10g is %s: %.10g (density 2*%d/(%d*%d))"
+               % (run["parameters"]["epsilon"], bg["rule"], eps, m, n, n - 1))
+    eps = run["parameters"]["epsilon"]
     delta = math.sqrt(-math.log1p(-eps))
     report(close(run["parameters"]["delta"], delta, 1e-12),
            "run.json delta is sqrt(-ln(1 - epsilon)) = %.10g" % delta)

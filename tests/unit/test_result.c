@@ -26,6 +26,7 @@
 
 #include <jansson.h>
 
+#include "coterie/background.h"
 #include "coterie/agm.h"
 #include "coterie/checkpoint.h"
 #include "coterie/fit.h"
@@ -535,8 +536,8 @@ static void test_run_json_has_every_key_in_order_with_values(void **state)
 		fail_msg("run.json: %s at line %d", jerr.text, jerr.line);
 
 	static const char *const top[] = { "coterie", "command", "graph", "parameters", "fit",
-					   "k_selection", "link_check", "agm_refine", "warnings",
-					   "run" };
+					   "k_selection", "background", "link_check", "agm_refine",
+					   "warnings", "run" };
 	static const char *const graph[] = { "path", "format", "nodes", "edges", "fingerprint",
 					     "lines", "self_loops", "duplicates", "extra_columns",
 					     "isolated", "directed_input" };
@@ -548,9 +549,11 @@ static void test_run_json_has_every_key_in_order_with_values(void **state)
 					   "covered_nodes", "overlapping_nodes", "start_kept",
 					   "reseeds_kept", "memberships_from" };
 	static const char *const run[] = { "wall_seconds", "peak_rss_kb" };
-	assert_keys(root, top, 10);
-	/* k was given and no link check was asked: both null */
+	assert_keys(root, top, 11);
+	/* k was given, no background choice recorded and no link check was
+	 * asked: all three null */
 	assert_true(json_is_null(get(root, "k_selection", NULL)));
+	assert_true(json_is_null(get(root, "background", NULL)));
 	assert_true(json_is_null(get(root, "link_check", NULL)));
 	assert_keys(get(root, "graph", NULL), graph, 11);
 	assert_keys(get(root, "parameters", NULL), params, 13);
@@ -692,10 +695,18 @@ static void test_k_selection_and_link_check_are_recorded(void **state)
 	sel.held_edges = 7;
 	sel.held_non_edges = 7;
 	struct result_links links = { 0.2, 14, 13, -30.5, 0.875 };
+	/* a made-up coverage search of two trials (values chosen here) */
+	struct background_choice bg = {
+		.rule = BACKGROUND_COVERAGE, .density = 0.25, .epsilon = 0.175, .linked = 8,
+		.ncand = 2,
+		.cand = { { 1.0, 0.25, 3, -50.5, -60.25, 12, 0.5 },
+			  { 0.7, 0.175, 8, -48.0, -61.0, 15, 0.75 } },
+	};
 	struct result_meta meta = fx.meta;
 	meta.k_auto = 1;
 	meta.selection = &sel;
 	meta.links = &links;
+	meta.background = &bg;
 	const char *tmp = test_tmpdir();
 	assert_int_equal(result_write_selection(tmp, &sel), 0);
 	assert_int_equal(result_write(tmp, fx.g, &fx.p, model_of(&fx.s), &meta), 0);
@@ -744,6 +755,18 @@ static void test_k_selection_and_link_check_are_recorded(void **state)
 					     "held_out_non_edges", "heldout_loglik", "heldout_auc" };
 	assert_keys(get(root, "link_check", NULL), lkeys, 5);
 	assert_int_equal(json_integer_value(get(root, "link_check", "held_out_non_edges")), 13);
+	static const char *const bkeys[] = { "rule", "epsilon", "density", "linked_nodes",
+					     "cover_share_wanted", "candidates" };
+	assert_keys(get(root, "background", NULL), bkeys, 6);
+	assert_string_equal(json_string_value(get(root, "background", "rule")), "coverage");
+	assert_true(json_real_value(get(root, "background", "epsilon")) == 0.175);
+	json_t *cands = get(root, "background", "candidates");
+	assert_int_equal(json_array_size(cands), 2);
+	static const char *const ckeys[] = { "multiple", "epsilon", "covered", "loglik",
+					     "agm_loglik", "sweeps", "seconds" };
+	assert_keys(json_array_get(cands, 1), ckeys, 7);
+	assert_int_equal(json_integer_value(json_object_get(json_array_get(cands, 1), "covered")),
+			 8);
 	assert_true(json_real_value(get(root, "link_check", "heldout_auc")) == 0.875);
 	/* 7 held-out edges in one split and 14 for the link check: both are
 	 * below CAVEAT_FEW_HELD_OUT, so both are said, each with a code */
