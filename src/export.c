@@ -115,18 +115,37 @@ static int by_node_build(struct by_node *b, const struct agm *a, uint32_t n)
 	return 0;
 }
 
-/* F[u][c], or 0 when u has no strength in c (rows sorted by community). */
-static double strength_of(const struct fcsr *F, uint32_t u, uint32_t c)
+/* The strengths by column (F transposed): column c's entries are
+ * node[start[c] .. start[c+1]) with their strengths in value, so a
+ * strength attribute costs its own entries plus n, not n searches. */
+struct by_column {
+	uint64_t *start;
+	uint32_t *node;
+	double *value;
+};
+
+static int by_column_build(struct by_column *t, const struct fcsr *F)
 {
-	uint64_t lo = F->off[u], hi = F->off[u + 1];
-	while (lo < hi) {
-		uint64_t mid = lo + (hi - lo) / 2;
-		if (F->e[mid].c < c)
-			lo = mid + 1;
-		else
-			hi = mid;
+	uint64_t nnz = F->off[F->n];
+	t->start = util_calloc((size_t)F->k + 2, sizeof *t->start);
+	t->node = util_malloc(nnz + 1, sizeof *t->node);
+	t->value = util_malloc(nnz + 1, sizeof *t->value);
+	if (!t->start || !t->node || !t->value) {
+		UTIL_FREE_ALL(t->start, t->node, t->value);
+		return -1;
 	}
-	return lo < F->off[u + 1] && F->e[lo].c == c ? F->e[lo].v : 0.0;
+	for (uint64_t j = 0; j < nnz; j++)
+		t->start[F->e[j].c + 2]++;
+	for (uint32_t c = 0; c < F->k; c++)
+		t->start[c + 2] += t->start[c + 1];
+	/* start[c + 1] is the next free place of column c while filling */
+	for (uint32_t u = 0; u < F->n; u++)
+		for (uint64_t j = F->off[u]; j < F->off[u + 1]; j++) {
+			uint64_t at = t->start[F->e[j].c + 1]++;
+			t->node[at] = u;
+			t->value[at] = F->e[j].v;
+		}
+	return 0;
 }
 
 /* ---- attributes ------------------------------------------------------- */
@@ -186,6 +205,32 @@ out:
 	return rc;
 }
 
+/* strengthC for the first `columns` communities of the cover, through v
+ * (borrowed scratch of n values). 0 or -1. */
+static int strength_columns(igraph_t *ig, const struct export_fit *x, uint32_t columns,
+			    igraph_vector_t *v)
+{
+	const struct agm *a = x->cover;
+	uint32_t want = a->cover.k < columns ? a->cover.k : columns, i = 0;
+	struct by_column t;
+	if (want == 0)
+		return 0;
+	if (by_column_build(&t, x->F))
+		return -1;
+	for (; i < want; i++) {
+		uint32_t c = a->comms[i].id;
+		char key[32];
+		snprintf(key, sizeof key, "strength%" PRIu32, c);
+		igraph_vector_null(v);
+		for (uint64_t j = t.start[c]; j < t.start[c + 1]; j++)
+			VECTOR(*v)[t.node[j]] = t.value[j];
+		if (SETVANV(ig, key, v) != IGRAPH_SUCCESS)
+			break;
+	}
+	UTIL_FREE_ALL(t.start, t.node, t.value);
+	return i == want ? 0 : -1;
+}
+
 /* strongest, ncommunities and one strengthC per column asked for. */
 static int node_numbers(igraph_t *ig, const struct export_fit *x, const struct by_node *b,
 			uint32_t columns)
@@ -203,16 +248,7 @@ static int node_numbers(igraph_t *ig, const struct export_fit *x, const struct b
 		VECTOR(v)[u] = (double)(b->off[u + 1] - b->off[u]);
 	if (SETVANV(ig, "ncommunities", &v) != IGRAPH_SUCCESS)
 		goto out;
-	const struct agm *a = x->cover;
-	for (uint32_t i = 0; i < a->cover.k && i < columns; i++) {
-		char key[32];
-		snprintf(key, sizeof key, "strength%" PRIu32, a->comms[i].id);
-		for (uint32_t u = 0; u < n; u++)
-			VECTOR(v)[u] = strength_of(x->F, u, a->comms[i].id);
-		if (SETVANV(ig, key, &v) != IGRAPH_SUCCESS)
-			goto out;
-	}
-	rc = 0;
+	rc = strength_columns(ig, x, columns, &v);
 out:
 	igraph_vector_destroy(&v);
 	return rc;

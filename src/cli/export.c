@@ -92,50 +92,54 @@ struct export_args {
 	struct cli_fit_opts load; /* --format, --skip-lines, --no-header for --graph */
 };
 
-/* Reads the options into *o: 0 to go on, else -1 with the exit status in
- * *status (0 after --help, EXIT_USAGE with a message). */
+/* Where the option c that names a file keeps it, or NULL. */
+static const char **file_of(struct export_args *o, int c)
+{
+	switch (c) {
+	case OPT_GRAPHML: return &o->graphml;
+	case OPT_GML: return &o->gml;
+	case OPT_MATRIX: return &o->matrix;
+	case OPT_GRAPH: return &o->graph;
+	default: return NULL;
+	}
+}
+
+/* The command line into *o. Returns 0 to go on; else -1, and *status is
+ * 0 after --help or EXIT_USAGE after a message. */
 static int export_parse(int argc, char **argv, struct export_args *o, int *status)
 {
 	static const struct option opts[] = {
 		{ "graphml", required_argument, NULL, OPT_GRAPHML },
 		{ "gml", required_argument, NULL, OPT_GML },
 		{ "matrix", required_argument, NULL, OPT_MATRIX },
-		{ "strength-columns", required_argument, NULL, OPT_COLUMNS },
 		{ "graph", required_argument, NULL, OPT_GRAPH },
+		{ "strength-columns", required_argument, NULL, OPT_COLUMNS },
 		{ "format", required_argument, NULL, CLI_OPT_FORMAT },
 		{ "skip-lines", required_argument, NULL, CLI_OPT_SKIP_LINES },
 		{ "no-header", no_argument, NULL, CLI_OPT_NO_HEADER },
 		{ "help", no_argument, NULL, 'h' },
 		{ NULL, 0, NULL, 0 },
 	};
-	int c;
-	*status = EXIT_USAGE;
 	cli_getopt_reset();
-	while ((c = getopt_long(argc, argv, ":h", opts, NULL)) != -1) {
-		switch (c) {
-		case OPT_GRAPHML: o->graphml = optarg; break;
-		case OPT_GML: o->gml = optarg; break;
-		case OPT_MATRIX: o->matrix = optarg; break;
-		case OPT_GRAPH: o->graph = optarg; break;
-		case OPT_COLUMNS:
-			o->columns = !strcmp(optarg, "all")
-				? EXPORT_ALL_COLUMNS
-				: cli_u32("--strength-columns", optarg, 0, MODEL_MAX_K);
-			break;
-		case CLI_OPT_FORMAT:
-		case CLI_OPT_SKIP_LINES:
-		case CLI_OPT_NO_HEADER:
-			cli_fit_opts_take(&o->load, c, optarg);
-			break;
-		case 'h':
+	for (int c; (c = getopt_long(argc, argv, ":h", opts, NULL)) != -1;) {
+		const char **file = file_of(o, c);
+		if (file) {
+			*file = optarg;
+		} else if (c == OPT_COLUMNS) {
+			o->columns = strcmp(optarg, "all")
+				? cli_u32("--strength-columns", optarg, 0, MODEL_MAX_K)
+				: EXPORT_ALL_COLUMNS;
+		} else if (c == 'h') {
 			export_usage(stdout);
 			*status = 0;
 			return -1;
-		default:
+		} else if (!cli_fit_opts_take(&o->load, c, optarg)) {
+			/* --format, --skip-lines and --no-header are taken above */
 			*status = cli_option_usage(c, argv, "export");
 			return -1;
 		}
 	}
+	*status = EXIT_USAGE;
 	if (argc - optind != 1)
 		error(argc == optind ? "export needs a result folder"
 				     : "export takes one result folder");
