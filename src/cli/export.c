@@ -78,12 +78,14 @@ static void export_usage(FILE *out)
 		EXPORT_DEFAULT_COLUMNS);
 }
 
+/* The four options that name a file come first, in the order of
+ * file_of()'s table. */
 enum {
 	OPT_GRAPHML = CLI_OPT_OWN,
 	OPT_GML,
 	OPT_MATRIX,
-	OPT_COLUMNS,
 	OPT_GRAPH,
+	OPT_COLUMNS,
 };
 
 struct export_args {
@@ -95,13 +97,8 @@ struct export_args {
 /* Where the option c that names a file keeps it, or NULL. */
 static const char **file_of(struct export_args *o, int c)
 {
-	switch (c) {
-	case OPT_GRAPHML: return &o->graphml;
-	case OPT_GML: return &o->gml;
-	case OPT_MATRIX: return &o->matrix;
-	case OPT_GRAPH: return &o->graph;
-	default: return NULL;
-	}
+	const char **files[] = { &o->graphml, &o->gml, &o->matrix, &o->graph };
+	return c >= OPT_GRAPHML && c <= OPT_GRAPH ? files[c - OPT_GRAPHML] : NULL;
 }
 
 /* The command line into *o. Returns 0 to go on; else -1, and *status is
