@@ -25,7 +25,7 @@ check "fit karate: exit 0" [ $? -eq 0 ]
 	--strength-columns all 2>"$tmp/export.err"
 check "export --graphml --gml --matrix: exit 0" [ $? -eq 0 ]
 check "export: the matrix's row and column files are beside it" \
-	[ -s "$tmp/F.rows.txt" ] && [ -s "$tmp/F.cols.txt" ]
+	test -s "$tmp/F.rows.txt" -a -s "$tmp/F.cols.txt"
 check "export: no temporary file is left" [ -z "$(ls -A "$tmp" | grep '\.tmp-')" ]
 "$PY" "$ROOT/tests/cli/export_check.py" fit "$BIN" "$res" "$karate" "$tmp/k.graphml" \
 	"$tmp/k.gml" "$tmp/F.mtx"
@@ -42,8 +42,10 @@ want=$(($(wc -l <"$res/communities.tsv") - 1))
 check "by default one strength column per community, at most 10 ($n, want $want)" [ "$n" -eq "$want" ]
 "$BIN" export "$res" --gml "$tmp/k1.gml" --strength-columns 1
 big=$(sed -n 2p "$res/communities.tsv" | cut -f1)
-check "--strength-columns 1: the largest community's column only (strength$big)" \
-	[ "$(grep -c '^    strength[0-9]' "$tmp/k1.gml")" -eq 34 ] && grep -q "^    strength$big " "$tmp/k1.gml"
+ncol=$(grep -c '^    strength[0-9]' "$tmp/k1.gml")
+nbig=$(grep -c "^    strength$big " "$tmp/k1.gml")
+check "--strength-columns 1: the largest community's column only (strength$big, 34 nodes)" \
+	test "$ncol" -eq 34 -a "$nbig" -eq 34
 
 # the graph file: the fit's is taken, another is refused
 "$BIN" export "$res" --graph "$karate" --matrix "$tmp/G.mtx"
@@ -58,7 +60,7 @@ check "--graph with another graph: nothing written" [ ! -e "$tmp/no.graphml" ]
 # one edge fewer: same nodes, another fingerprint
 sed '$d' "$karate" >"$tmp/karate-1.tsv"
 "$BIN" export "$res" --graph "$tmp/karate-1.tsv" --matrix "$tmp/no.mtx" 2>/dev/null
-check "--graph with one edge fewer: exit 1, nothing written" [ $? -eq 1 ] && [ ! -e "$tmp/no.mtx" ]
+check "--graph with one edge fewer: exit 1, nothing written" test $? -eq 1 -a ! -e "$tmp/no.mtx"
 
 # usage
 "$BIN" export "$res" 2>/dev/null
@@ -146,6 +148,6 @@ fi
 "$BIN" fit "$karate" -k auto --k-grid 2,3,4 -j 2 --seed 1 -q -o "$tmp/auto" 2>/dev/null
 check "fit -k auto: exit 0" [ $? -eq 0 ]
 "$BIN" export "$tmp/auto" --gml "$tmp/auto.gml" --matrix "$tmp/auto.mtx"
-check "a folder of -k auto exports" [ $? -eq 0 ] && [ -s "$tmp/auto.gml" ] && [ -s "$tmp/auto.mtx" ]
+check "a folder of -k auto exports" test $? -eq 0 -a -s "$tmp/auto.gml" -a -s "$tmp/auto.mtx"
 
 finish
