@@ -195,6 +195,9 @@ static size_t utf8_printable(const unsigned char *s)
 	if ((cp >= 0x202a && cp <= 0x202e) || (cp >= 0x2066 && cp <= 0x2069) ||
 	    cp == 0x2028 || cp == 0x2029 || cp == 0x200e || cp == 0x200f || cp == 0xfeff)
 		return 0;
+	/* the noncharacters U+FFFE and U+FFFF of every plane (XML forbids two) */
+	if ((cp & 0xfffe) == 0xfffe)
+		return 0;
 	return len;
 }
 

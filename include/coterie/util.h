@@ -52,7 +52,8 @@ char *util_strdup(const char *s);
 /*
  * Make a string from an unvetted file safe for a terminal: printable UTF-8
  * passes through, everything else (C0/C1 controls, DEL, ESC, invalid UTF-8,
- * backslash) is shown as a C-style escape (\t, \n, \e, \x1b, \\).
+ * the noncharacters U+FFFE and U+FFFF of every plane, backslash) is shown
+ * as a C-style escape (\t, \n, \e, \x1b, \\).
  * Writes at most cap bytes including the NUL into buf (borrowed) and returns
  * buf. ascii_only escapes every non-ASCII byte too (for non-UTF-8 locales).
  */

@@ -17,6 +17,7 @@ static const struct {
 	{ "explore", cmd_explore, "fit in the background and browse the communities, or browse a result" },
 	{ "simulate", cmd_simulate, "sample a graph with planted overlapping communities (an AGM)" },
 	{ "compare", cmd_compare, "score a found cover against a known one (overlapping NMI, Omega, F1)" },
+	{ "export", cmd_export, "write a result's fit as graph attributes (GraphML, GML) or a matrix" },
 };
 
 static void usage(FILE *out)
