@@ -17,6 +17,7 @@ static const struct {
 	{ "explore", cmd_explore, "fit in the background and browse the communities, or browse a result" },
 	{ "simulate", cmd_simulate, "sample a graph with planted overlapping communities (an AGM)" },
 	{ "compare", cmd_compare, "score a found cover against a known one (overlapping NMI, Omega, F1)" },
+	{ "draw", cmd_draw, "draw a result's figures for a paper (PDF, SVG, PNG)" },
 };
 
 static void usage(FILE *out)
