@@ -328,11 +328,14 @@ static int titles(const char *const *dirs, uint32_t nruns, const struct cover *c
 		m->row_title = util_strdup(line);
 		snprintf(line, sizeof line, "communities of %s", base_name(dirs[1], b, sizeof b));
 		m->col_title = util_strdup(line);
-		snprintf(line, sizeof line, "%u of %u rows, %u of %u columns", m->rows, c[0].k,
-			 m->cols, c[1].k);
-		m->note = util_strdup(line);
+		if (m->rows < c[0].k || m->cols < c[1].k) {
+			snprintf(line, sizeof line, "the %u largest of %u rows, %u of %u columns",
+				 m->rows, c[0].k, m->cols, c[1].k);
+			if (!(m->note = util_strdup(line)))
+				return -1;
+		}
 		m->value_title = util_strdup("Jaccard index");
-		return m->row_title && m->col_title && m->note && m->value_title ? 0 : -1;
+		return m->row_title && m->col_title && m->value_title ? 0 : -1;
 	}
 	for (uint32_t r = 0; r < nruns; r++) {
 		base_name(dirs[r], a, sizeof a);

@@ -208,11 +208,13 @@ int figure_draw_kcurve(const char *path, const struct figure_opts *o,
 
 /* ---- distributions ---- */
 
-/* A note at the plot area's top right, inside. */
+/* A note above the plot area's top right corner (fig_layout() with
+ * NOTE_ROOM on top). */
+#define NOTE_ROOM (FIG_SMALL + 3)
 static void corner_note(struct fig *f, const char *s)
 {
 	fig_colour(f, FIG_BLACK);
-	fig_text(f, f->x1 - 4, f->y0 + 4, s, FIG_SMALL, 1, 0, 0);
+	fig_text(f, f->x1, f->y0 - 4, s, FIG_SMALL, 1, 1, 0);
 }
 
 int figure_draw_sizes(const char *path, const struct figure_opts *o,
@@ -233,7 +235,7 @@ int figure_draw_sizes(const char *path, const struct figure_opts *o,
 		return -1;
 	fig_axis_fit(&f.ax, lo, hi, 1);
 	fig_axis_fit(&f.ay, 1, (double)comms, 1);
-	fig_layout(&f, 0, 0);
+	fig_layout(&f, 0, NOTE_ROOM);
 	cairo_t *cr = f.cr;
 	cairo_save(cr);
 	clip_to_plot(&f);
@@ -291,7 +293,7 @@ int figure_draw_memberships(const char *path, const struct figure_opts *o,
 	f.ax = (struct fig_axis){ .lo = first - 0.7, .hi = m->max + 0.7, .integer = 1 };
 	fig_axis_fit(&f.ay, 1, (double)top, 1);
 	f.ay.lo = 0.7; /* a bar of one node stands clear of the axis */
-	fig_layout(&f, 0, 0);
+	fig_layout(&f, 0, NOTE_ROOM);
 	cairo_t *cr = f.cr;
 	double bw = fmin(0.8 * (fig_x(&f, 1) - fig_x(&f, 0)), 24);
 	for (uint32_t v = first; v <= m->max; v++) {
@@ -311,8 +313,7 @@ int figure_draw_memberships(const char *path, const struct figure_opts *o,
 		 (unsigned long long)multi);
 	corner_note(&f, note);
 	if (!m->zero_known)
-		fig_text(&f, f.x1 - 4, f.y0 + 6 + FIG_SMALL, "(nodes in none not known)", FIG_SMALL, 1,
-			 0, 0);
+		fig_text(&f, f.x1 - 4, f.y0 + 4, "(nodes in none not known)", FIG_SMALL, 1, 0, 0);
 	return fig_finish(&f, path);
 }
 
@@ -396,15 +397,18 @@ int figure_draw_matrix(const char *path, const struct figure_opts *o,
 		return -1;
 	cairo_t *cr = f.cr;
 	char title[160];
+	double wcol = widest(&f, m->col_label, m->cols);
 	double left = 4 + FIG_LABEL + 4 + widest(&f, m->row_label, m->rows) + 3;
-	double below = 4 + FIG_LABEL + 4 + widest(&f, m->col_label, m->cols) + 3;
+	double below = 2 + wcol + 4 + FIG_LABEL + 4;
 	double bar = 5 + BAR_W + 6 + fig_text_width(&f, "0.5", FIG_SMALL) + FIG_LABEL + 6;
-	double top = m->note ? 8 + FIG_SMALL + 4 : 8;
+	double top = m->note ? 6 + FIG_SMALL + 5 : 6;
 	double cell = fmin((f.w - left - bar) / m->cols, (f.h - top - below) / m->rows);
+	/* the block (note, matrix, labels, title) centred on the page's height */
+	double spare = f.h - top - below - cell * m->rows;
 	f.x0 = left;
 	f.x1 = left + cell * m->cols;
-	f.y0 = top;
-	f.y1 = top + cell * m->rows;
+	f.y0 = top + spare / 2;
+	f.y1 = f.y0 + cell * m->rows;
 	for (uint32_t i = 0; i < m->rows; i++)
 		for (uint32_t j = 0; j < m->cols; j++) {
 			cell_colour(&f, m->v[(size_t)i * m->cols + j]);
@@ -435,10 +439,11 @@ int figure_draw_matrix(const char *path, const struct figure_opts *o,
 	fig_label(m->row_title ? m->row_title : "", title, sizeof title, 60);
 	fig_text(&f, 4 + FIG_LABEL * 0.8, (f.y0 + f.y1) / 2, title, FIG_LABEL, 0.5, 1, -M_PI / 2);
 	fig_label(m->col_title ? m->col_title : "", title, sizeof title, 60);
-	fig_text(&f, (f.x0 + f.x1) / 2, f.h - 4, title, FIG_LABEL, 0.5, 1, 0);
+	fig_text(&f, (f.x0 + f.x1) / 2, f.y1 + 2 + wcol + 4 + FIG_LABEL, title, FIG_LABEL, 0.5, 1,
+		 0);
 	if (m->note) {
 		fig_label(m->note, title, sizeof title, 70);
-		fig_text(&f, f.x0, 5, title, FIG_SMALL, 0, 0, 0);
+		fig_text(&f, f.x0, f.y0 - 5, title, FIG_SMALL, 0, 1, 0);
 	}
 	colour_bar(&f, f.x1 + 5, f.y0, f.y1, m->value_title ? m->value_title : "value");
 	return fig_finish(&f, path);
