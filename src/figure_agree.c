@@ -33,6 +33,19 @@
 #include "coterie/util.h"
 #include "figure-internal.h"
 
+void figure_matrix_release(struct figure_matrix *m)
+{
+	if (!m)
+		return;
+	for (uint32_t i = 0; m->row_label && i < m->rows; i++)
+		free(m->row_label[i]);
+	for (uint32_t j = 0; m->col_label && j < m->cols; j++)
+		free(m->col_label[j]);
+	UTIL_FREE_ALL(m->row_label, m->col_label, m->v, m->row_title, m->col_title,
+		      m->value_title, m->note);
+	memset(m, 0, sizeof *m);
+}
+
 /* Node -> communities of a cover: idx[off[u] .. off[u+1]). */
 struct incidence {
 	uint64_t *off;
@@ -67,19 +80,46 @@ static int incidence_of(const struct cover *c, struct incidence *x)
 	return 0;
 }
 
+/* What meet() works with for one cover y: its incidence, the
+ * intersection counts (all zero between calls) and the communities met. */
+struct meeting {
+	struct incidence iy;
+	uint32_t *inter;
+	uint32_t *touched;
+};
+
+static void meeting_release(struct meeting *w)
+{
+	incidence_release(&w->iy);
+	free(w->inter);
+	free(w->touched);
+	memset(w, 0, sizeof *w);
+}
+
+static int meeting_init(struct meeting *w, const struct cover *y)
+{
+	memset(w, 0, sizeof *w);
+	w->inter = util_calloc(y->k ? y->k : 1, sizeof *w->inter);
+	w->touched = util_malloc(y->k ? y->k : 1, sizeof *w->touched);
+	if (!w->inter || !w->touched || incidence_of(y, &w->iy)) {
+		meeting_release(w);
+		return -1;
+	}
+	return 0;
+}
+
 /* The intersections of community a of x with every community of y into
- * inter (y->k zeros on entry); the communities met are listed in touched
- * (returns how many). */
-static uint32_t meet(const struct cover *x, uint32_t a, const struct incidence *iy,
-		     uint32_t *inter, uint32_t *touched)
+ * w->inter; the communities met are listed in w->touched (returns how
+ * many). The caller zeroes their counts again. */
+static uint32_t meet(const struct cover *x, uint32_t a, struct meeting *w)
 {
 	uint32_t nt = 0;
 	for (uint64_t e = x->off[a]; e < x->off[a + 1]; e++) {
 		uint32_t u = x->mem[e];
-		for (uint64_t j = iy->off[u]; j < iy->off[u + 1]; j++) {
-			uint32_t b = iy->idx[j];
-			if (inter[b]++ == 0)
-				touched[nt++] = b;
+		for (uint64_t j = w->iy.off[u]; j < w->iy.off[u + 1]; j++) {
+			uint32_t b = w->iy.idx[j];
+			if (w->inter[b]++ == 0)
+				w->touched[nt++] = b;
 		}
 	}
 	return nt;
@@ -95,27 +135,21 @@ int figure_best_jaccard(const struct cover *x, const struct cover *y, double *be
 {
 	if (cover_same_n(x, y))
 		return -1;
-	struct incidence iy = { 0 };
-	uint32_t *inter = util_calloc(y->k ? y->k : 1, sizeof *inter);
-	uint32_t *touched = util_malloc(y->k ? y->k : 1, sizeof *touched);
-	if (!inter || !touched || incidence_of(y, &iy)) {
-		free(inter);
-		free(touched);
+	struct meeting w;
+	if (meeting_init(&w, y))
 		return -1;
-	}
 	for (uint32_t a = 0; a < x->k; a++) {
-		uint32_t sa = cover_size(x, a), nt = meet(x, a, &iy, inter, touched);
+		uint32_t sa = cover_size(x, a), nt = meet(x, a, &w);
 		double b = sa ? 0 : NAN;
 		for (uint32_t t = 0; t < nt; t++) {
-			double j = jaccard(inter[touched[t]], sa, cover_size(y, touched[t]));
+			uint32_t c = w.touched[t];
+			double j = jaccard(w.inter[c], sa, cover_size(y, c));
 			b = j > b ? j : b;
-			inter[touched[t]] = 0;
+			w.inter[c] = 0;
 		}
 		best[a] = b;
 	}
-	incidence_release(&iy);
-	free(inter);
-	free(touched);
+	meeting_release(&w);
 	return 0;
 }
 
@@ -147,25 +181,18 @@ static uint32_t *largest_first(const struct cover *c)
 static int jaccard_rows(const struct cover *x, const uint32_t *rows, uint32_t nrows,
 			const struct cover *y, double *full)
 {
-	struct incidence iy = { 0 };
-	uint32_t *inter = util_calloc(y->k ? y->k : 1, sizeof *inter);
-	uint32_t *touched = util_malloc(y->k ? y->k : 1, sizeof *touched);
-	if (!inter || !touched || incidence_of(y, &iy)) {
-		free(inter);
-		free(touched);
+	struct meeting w;
+	if (meeting_init(&w, y))
 		return -1;
-	}
 	for (uint32_t i = 0; i < nrows; i++) {
-		uint32_t a = rows[i], nt = meet(x, a, &iy, inter, touched);
+		uint32_t a = rows[i], nt = meet(x, a, &w);
 		for (uint32_t t = 0; t < nt; t++) {
-			uint32_t b = touched[t];
-			full[(size_t)i * y->k + b] = jaccard(inter[b], cover_size(x, a), cover_size(y, b));
-			inter[b] = 0;
+			uint32_t b = w.touched[t];
+			full[(size_t)i * y->k + b] = jaccard(w.inter[b], cover_size(x, a), cover_size(y, b));
+			w.inter[b] = 0;
 		}
 	}
-	incidence_release(&iy);
-	free(inter);
-	free(touched);
+	meeting_release(&w);
 	return 0;
 }
 
@@ -390,22 +417,4 @@ out:
 	if (rc)
 		figure_matrix_release(out);
 	return rc;
-}
-
-void figure_matrix_release(struct figure_matrix *m)
-{
-	if (!m)
-		return;
-	for (uint32_t i = 0; m->row_label && i < m->rows; i++)
-		free(m->row_label[i]);
-	for (uint32_t j = 0; m->col_label && j < m->cols; j++)
-		free(m->col_label[j]);
-	free(m->row_label);
-	free(m->col_label);
-	free(m->v);
-	free(m->row_title);
-	free(m->col_title);
-	free(m->value_title);
-	free(m->note);
-	memset(m, 0, sizeof *m);
 }

@@ -23,14 +23,12 @@ enum kind { KIND_TRACE, KIND_HELDOUT, KIND_SIZES, KIND_MEMBERSHIPS, KIND_AGREEME
 static const char *const kind_names[] = { "trace", "heldout", "sizes", "memberships",
 					   "agreement" };
 
-static void draw_usage_short(FILE *out)
+/* The usage line, and with full the whole help text. */
+static void draw_usage(FILE *out, int full)
 {
 	fprintf(out, "usage: coterie draw KIND DIR... -o FILE [--format pdf|svg|png] [--dpi N]\n");
-}
-
-static void draw_usage(FILE *out)
-{
-	draw_usage_short(out);
+	if (!full)
+		return;
 	fprintf(out,
 		"\n"
 		"Draw a figure of the result folder DIR for a paper: one column wide (85 mm),\n"
@@ -81,14 +79,14 @@ static int draw_parse(int argc, char **argv, struct figure_opts *o, const char *
 		case 'o': *out = optarg; break;
 		case OPT_FORMAT: format = optarg; break;
 		case OPT_DPI: o->dpi = cli_double("--dpi", optarg, 72, 1200); break;
-		case 'h': draw_usage(stdout); return 0;
+		case 'h': draw_usage(stdout, 1); return 0;
 		default: return cli_option_usage(c, argv, "draw");
 		}
 	}
 	char buf[512];
 	if (!*out) {
 		error("draw needs the file to write: -o FILE");
-		draw_usage_short(stderr);
+		draw_usage(stderr, 0);
 		return EXIT_USAGE;
 	}
 	if (format && figure_format_of_name(format, &o->format)) {
@@ -116,37 +114,28 @@ static int kind_of(const char *s, enum kind *k)
 
 static int draw_one(enum kind k, const char *dir, const char *out, const struct figure_opts *o)
 {
+	/* each kind reads then draws; the releases are no-ops on what a kind
+	 * did not read (the readers zero their output, also on failure) */
+	struct figure_trace t = { 0 };
+	struct figure_kcurve kc = { 0 };
+	struct figure_counts c = { 0 };
 	int rc = -1;
 	switch (k) {
-	case KIND_TRACE: {
-		struct figure_trace t;
-		if (!figure_read_trace(dir, &t)) {
-			rc = figure_draw_trace(out, o, &t);
-			figure_trace_release(&t);
-		}
+	case KIND_TRACE: rc = figure_read_trace(dir, &t) ? -1 : figure_draw_trace(out, o, &t); break;
+	case KIND_HELDOUT:
+		rc = figure_read_kcurve(dir, &kc) ? -1 : figure_draw_kcurve(out, o, &kc);
 		break;
-	}
-	case KIND_HELDOUT: {
-		struct figure_kcurve kc;
-		if (!figure_read_kcurve(dir, &kc)) {
-			rc = figure_draw_kcurve(out, o, &kc);
-			figure_kcurve_release(&kc);
-		}
-		break;
-	}
 	case KIND_SIZES:
-	case KIND_MEMBERSHIPS: {
-		struct figure_counts c;
-		int sizes = k == KIND_SIZES;
-		if (!figure_read_counts(dir, sizes ? &c : NULL, sizes ? NULL : &c)) {
-			rc = sizes ? figure_draw_sizes(out, o, &c) : figure_draw_memberships(out, o, &c);
-			figure_counts_release(&c);
-		}
+		rc = figure_read_counts(dir, &c, NULL) ? -1 : figure_draw_sizes(out, o, &c);
 		break;
-	}
-	case KIND_AGREEMENT:
+	case KIND_MEMBERSHIPS:
+		rc = figure_read_counts(dir, NULL, &c) ? -1 : figure_draw_memberships(out, o, &c);
 		break;
+	case KIND_AGREEMENT: break;
 	}
+	figure_trace_release(&t);
+	figure_kcurve_release(&kc);
+	figure_counts_release(&c);
 	return rc;
 }
 
@@ -161,7 +150,7 @@ int cmd_draw(int argc, char **argv)
 	enum kind k;
 	if (optind >= argc) {
 		error("draw needs a kind of figure and a result folder");
-		draw_usage_short(stderr);
+		draw_usage(stderr, 0);
 		return EXIT_USAGE;
 	}
 	if (kind_of(argv[optind], &k)) {
@@ -175,7 +164,7 @@ int cmd_draw(int argc, char **argv)
 			error("draw agreement takes two result folders or more, not %d", ndirs);
 		else
 			error("draw %s takes one result folder, not %d", kind_names[k], ndirs);
-		draw_usage_short(stderr);
+		draw_usage(stderr, 0);
 		return EXIT_USAGE;
 	}
 	if (k != KIND_AGREEMENT)
