@@ -21,6 +21,7 @@
 #include <strings.h>
 
 #include <cairo-pdf.h>
+#include <fontconfig/fontconfig.h>
 #include <cairo-svg.h>
 
 #include "coterie/atomicfile.h"
@@ -206,6 +207,12 @@ int fig_finish(struct fig *f, const char *path)
 	}
 	fig_abandon(f);
 	return rc;
+}
+
+void figure_release_caches(void)
+{
+	cairo_debug_reset_static_data();
+	FcFini();
 }
 
 /* ---- axes ---- */

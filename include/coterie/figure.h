@@ -166,4 +166,9 @@ int figure_draw_memberships(const char *path, const struct figure_opts *o,
 int figure_draw_matrix(const char *path, const struct figure_opts *o,
 		       const struct figure_matrix *m);
 
+/* Free the font caches cairo and fontconfig keep for the whole process,
+ * so that a leak checker sees none. Call it once, when no figure is being
+ * drawn and none will be (a command's last step). */
+void figure_release_caches(void);
+
 #endif

@@ -167,12 +167,16 @@ int cmd_draw(int argc, char **argv)
 		draw_usage(stderr, 0);
 		return EXIT_USAGE;
 	}
-	if (k != KIND_AGREEMENT)
-		return draw_one(k, argv[optind + 1], out, &o) ? 1 : 0;
-	struct figure_matrix m;
-	if (figure_agreement((const char *const *)argv + optind + 1, (uint32_t)ndirs, &m))
-		return 1;
-	int rc = figure_draw_matrix(out, &o, &m);
-	figure_matrix_release(&m);
+	int rc;
+	if (k != KIND_AGREEMENT) {
+		rc = draw_one(k, argv[optind + 1], out, &o);
+	} else {
+		struct figure_matrix m;
+		rc = figure_agreement((const char *const *)argv + optind + 1, (uint32_t)ndirs, &m);
+		if (!rc)
+			rc = figure_draw_matrix(out, &o, &m);
+		figure_matrix_release(&m);
+	}
+	figure_release_caches();
 	return rc ? 1 : 0;
 }
