@@ -10,10 +10,10 @@
 
 CC       ?= cc
 PREFIX   ?= /usr/local
-PKGS     := igraph ncursesw cmocka jansson zlib
+PKGS     := igraph ncursesw cmocka jansson zlib cairo fontconfig
 DEB_PKGS := build-essential pkg-config libigraph-dev libncurses-dev libcmocka-dev \
             libjansson-dev zlib1g-dev tmux python3 python3-networkx python3-sklearn python3-igraph python3-scipy \
-            groff-base man-db
+            groff-base man-db libcairo2-dev poppler-utils
 
 comma := ,
 ifeq ($(SANITIZE),)
@@ -33,7 +33,7 @@ WARN += -Werror
 endif
 
 PKG_CFLAGS := $(filter-out -D_XOPEN_SOURCE=% -D_DEFAULT_SOURCE,$(shell pkg-config --cflags $(PKGS) 2>/dev/null))
-PKG_LIBS   := $(shell pkg-config --libs igraph ncursesw jansson zlib 2>/dev/null)
+PKG_LIBS   := $(shell pkg-config --libs igraph ncursesw jansson zlib cairo fontconfig 2>/dev/null)
 CMOCKA_LIBS := $(shell pkg-config --libs cmocka 2>/dev/null)
 
 CFLAGS   ?= -O2 -g

@@ -18,6 +18,7 @@ static const struct {
 	{ "simulate", cmd_simulate, "sample a graph with planted overlapping communities (an AGM)" },
 	{ "compare", cmd_compare, "score a found cover against a known one (overlapping NMI, Omega, F1)" },
 	{ "export", cmd_export, "write a result's fit as graph attributes (GraphML, GML) or a matrix" },
+	{ "draw", cmd_draw, "draw a result's figures for a paper (PDF, SVG, PNG)" },
 };
 
 static void usage(FILE *out)
