@@ -101,3 +101,20 @@ double graph_total_weight(const struct graph *g)
 				s += g->wt[i];
 	return s;
 }
+
+int graph_set_edge_weights(struct graph *g, const double *w)
+{
+	free(g->wt);
+	g->wt = util_calloc(g->off[g->n] ? g->off[g->n] : 1, sizeof *g->wt);
+	if (!g->wt)
+		return -1;
+	uint64_t e = 0;
+	for (uint32_t u = 0; u < g->n; u++)
+		for (uint64_t i = g->off[u]; i < g->off[u + 1]; i++)
+			if (g->adj[i] > u) {
+				g->wt[i] = w[e];
+				add_at(g, g->adj[i], u, w[e]);
+				e++;
+			}
+	return 0;
+}

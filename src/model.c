@@ -31,6 +31,7 @@
 #include <string.h>
 
 #include "coterie/graph.h"
+#include "coterie/model_poisson.h"
 #include "coterie/objective.h"
 #include "coterie/util.h"
 
@@ -831,4 +832,22 @@ static const struct objective_ops bigclam_ops = {
 const struct objective_ops *model_objective(void)
 {
 	return &bigclam_ops;
+}
+
+const char *model_kind_name(enum model_kind kind)
+{
+	switch (kind) {
+	case MODEL_BIGCLAM: return "bigclam";
+	case MODEL_POISSON: return "poisson";
+	default: return "unknown";
+	}
+}
+
+const struct objective_ops *model_objective_of(enum model_kind kind)
+{
+	switch (kind) {
+	case MODEL_BIGCLAM: return model_objective();
+	case MODEL_POISSON: return model_poisson_objective();
+	default: return NULL;
+	}
 }

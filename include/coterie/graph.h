@@ -139,6 +139,11 @@ static inline double graph_weight(const struct graph *g, uint64_t i)
 int graph_set_weights(struct graph *g, const uint32_t *pairs, const double *w, uint64_t npairs,
 		      const char *shown);
 
+/* Weights for g's edges given in the order u < v, by u then by v (a
+ * checkpoint's order): w borrowed, g->m values, finite and > 0. Replaces
+ * g->wt. Returns 0 or -1 (out of memory). */
+int graph_set_edge_weights(struct graph *g, const double *w);
+
 /* The sum of the weights of all edges (m in an unweighted graph). */
 double graph_total_weight(const struct graph *g);
 

@@ -177,4 +177,16 @@ int model_gain_exact(const struct model *m);
 struct objective_ops;
 const struct objective_ops *model_objective(void);
 
+/* Which likelihood a fit maximises (fit_params.model; run.json and the
+ * checkpoint record it). The strengths are a struct model for each. */
+enum model_kind {
+	MODEL_BIGCLAM = 0, /* links: 1 - exp(-F_u . F_v) (this file) */
+	MODEL_POISSON = 1, /* weights: Poisson(F_u . F_v) (model_poisson.h) */
+	MODEL_KINDS
+};
+/* "bigclam", "poisson" (static); "unknown" out of range. */
+const char *model_kind_name(enum model_kind kind);
+/* The objective of a kind (static), or NULL out of range. */
+const struct objective_ops *model_objective_of(enum model_kind kind);
+
 #endif
