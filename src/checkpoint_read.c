@@ -485,9 +485,10 @@ static int read_model(const char *path, struct rd *sec, struct checkpoint *ck)
 	for (uint64_t i = 0; i < g->m; i++) {
 		w[i] = rd_f64(sec);
 		if (!isfinite(w[i]) || !(w[i] > 0.0)) {
+			double bad = w[i];
 			free(w);
 			return damaged(path, "the weight of edge %" PRIu64 " is %g, not a finite "
-				       "number above zero", i, w[i]);
+				       "number above zero", i, bad);
 		}
 	}
 	int rc = graph_set_edge_weights(g, w);
