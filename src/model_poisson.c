@@ -26,7 +26,7 @@
  * edges included, pays -x_uv, so the neighbours' rows are not taken out
  * of the linear term. The update is BigCLAM's (model.c): a projected
  * gradient step (strengths below the floor to 0, capped at MODEL_FMAX)
- * with Armijo backtracking from a first step that moves no strength by
+ * with Armijo backtracking (model_backtrack()) from a first step that moves no strength by
  * more than STEP_REACH, along the free direction; a trial that clips
  * nothing beyond it is scored from x_v + a d_v (d_v = dir . F_v) without
  * reading the neighbour rows again.
@@ -46,24 +46,26 @@
 #include "coterie/objective.h"
 #include "coterie/util.h"
 
-#define ARMIJO_SIGMA 1e-4
-#define ARMIJO_TRIES 16
 #define STEP_REACH 10.0 /* largest change of a strength in a first trial step */
 #define X_FLOOR 1e-12   /* smallest x + q used in a gradient weight */
 
 struct poisson_work {
 	uint32_t k;
 	double *cur, *acc, *oth, *dir, *trial; /* dense over candidates (k each) */
-	uint32_t *stamp, *cand;
-	uint32_t epoch, ncand;
+	uint32_t *stamp, *cand; /* stamp[c] = 1 for the candidates c, else 0 */
+	uint32_t ncand;
 	double *xv, *dv; /* per neighbour: x + q, dir . F_v */
 	size_t cap;
 	struct fentry *out;
+	const struct model *m; /* the row being updated, for poisson_trial() */
+	const struct graph *g;
+	uint32_t u;
+	int lin;
 	double gain, gmax;
 	uint64_t rows, trials, visits, entries;
 };
 
-static void *pw_new(const struct model *m)
+static void *pw_work_new(const struct model *m)
 {
 	struct poisson_work *w = util_calloc(1, sizeof *w);
 	if (!w)
@@ -87,7 +89,7 @@ static void *pw_new(const struct model *m)
 	return w;
 }
 
-static void pw_free(void *vw)
+static void pw_work_free(void *vw)
 {
 	struct poisson_work *w = vw;
 	if (!w)
@@ -97,8 +99,8 @@ static void pw_free(void *vw)
 
 static inline void add_cand(struct poisson_work *w, uint32_t c)
 {
-	if (w->stamp[c] != w->epoch) {
-		w->stamp[c] = w->epoch;
+	if (!w->stamp[c]) {
+		w->stamp[c] = 1;
 		w->cand[w->ncand++] = c;
 		w->cur[c] = w->acc[c] = w->oth[c] = w->trial[c] = 0.0;
 	}
@@ -109,16 +111,14 @@ static inline void add_cand(struct poisson_work *w, uint32_t c)
 static void gather(const struct model *m, const struct graph *g, uint32_t u,
 		   struct poisson_work *w)
 {
-	if (++w->epoch == 0) {
-		memset(w->stamp, 0, w->k * sizeof *w->stamp);
-		w->epoch = 1;
-	}
-	w->ncand = 0;
+	/* the last row's marks are taken off through its candidate list */
+	while (w->ncand)
+		w->stamp[w->cand[--w->ncand]] = 0;
 	const struct frow *ru = &m->rows[u];
-	for (uint32_t i = 0; i < ru->nnz; i++) {
+	for (uint32_t i = 0; i < ru->nnz; i++)
 		add_cand(w, ru->e[i].c);
+	for (uint32_t i = 0; i < ru->nnz; i++)
 		w->cur[ru->e[i].c] = ru->e[i].v;
-	}
 	for (uint64_t i = g->off[u]; i < g->off[u + 1]; i++) {
 		const struct frow *rv = &m->rows[g->adj[i]];
 		for (uint32_t j = 0; j < rv->nnz; j++)
@@ -231,8 +231,21 @@ static double trial(const struct model *m, const struct graph *g, uint32_t u,
 	return f;
 }
 
+static int cmp_entry(const void *a, const void *b)
+{
+	return util_cmp_uint(((const struct fentry *)a)->c, ((const struct fentry *)b)->c);
+}
+
+/* trial() as a model_trial_fn (model_backtrack()): the row being updated
+ * is named in the work buffer. */
+static double poisson_trial(void *ctx, double step, double *gd, int *moved)
+{
+	struct poisson_work *w = ctx;
+	return trial(w->m, w->g, w->u, w, w->lin, step, gd, moved);
+}
+
 /* objective.h's update_row. */
-static int pw_update(const struct model *m, const struct graph *g, uint32_t u, void *vw,
+static int pw_update_row(const struct model *m, const struct graph *g, uint32_t u, void *vw,
 		     const struct fentry **out, uint32_t *out_nnz)
 {
 	struct poisson_work *w = vw;
@@ -249,36 +262,25 @@ static int pw_update(const struct model *m, const struct graph *g, uint32_t u, v
 		w->visits += deg;
 	}
 	double a = w->gmax > STEP_REACH ? STEP_REACH / w->gmax : 1.0;
-	int accepted = 0;
-	for (int t = 0; t < ARMIJO_TRIES; t++, a *= 0.5) {
-		double gd;
-		int moved;
-		double f1 = trial(m, g, u, w, lin, a, &gd, &moved);
-		if (!moved)
-			break;
-		if (f1 >= f0 + ARMIJO_SIGMA * gd && f1 > f0) {
-			w->gain = f1 - f0;
-			accepted = 1;
-			break;
-		}
-	}
-	if (!accepted)
+	w->m = m;
+	w->g = g;
+	w->u = u;
+	w->lin = lin;
+	if (!model_backtrack(poisson_trial, w, f0, a, &w->gain))
 		return 0;
+	/* the positive entries, sorted by community (the candidate list
+	 * stays whole: the next row takes its marks off through it) */
 	uint32_t o = 0;
 	for (uint32_t i = 0; i < w->ncand; i++)
 		if (w->trial[w->cand[i]] > 0.0)
-			w->cand[o++] = w->cand[i];
-	qsort(w->cand, o, sizeof *w->cand, util_qsort_u32);
-	for (uint32_t i = 0; i < o; i++) {
-		w->out[i].c = w->cand[i];
-		w->out[i].v = w->trial[w->cand[i]];
-	}
+			w->out[o++] = (struct fentry){ w->cand[i], w->trial[w->cand[i]] };
+	qsort(w->out, o, sizeof *w->out, cmp_entry);
 	*out = w->out;
 	*out_nnz = o;
 	return 1;
 }
 
-static double pw_gain(const void *w)
+static double pw_work_gain(const void *w)
 {
 	return ((const struct poisson_work *)w)->gain;
 }
@@ -291,7 +293,7 @@ static int pw_gain_exact(const struct model *m)
 	return 1;
 }
 
-static void pw_counts(const void *vw, struct objective_counts *c)
+static void pw_work_counts(const void *vw, struct objective_counts *c)
 {
 	const struct poisson_work *w = vw;
 	c->rows += w->rows;
@@ -300,70 +302,62 @@ static void pw_counts(const void *vw, struct objective_counts *c)
 	c->entries += w->entries;
 }
 
-void model_poisson_loglik_range(const struct model *m, const struct graph *g, uint32_t u0, uint32_t u1,
-			  struct model_poisson_llpart *part)
+/* The log-likelihood's terms over nodes [u0, u1) (edges counted from
+ * their smaller end), combined in order by pw_part_combine(): the same
+ * bits for any split into ranges. */
+enum {
+	EDGE_LOG,    /* sum over edges of w log(x + qeps) */
+	EDGE_LGAMMA, /* sum over edges of lgamma(w + 1) */
+	SELF_SQ,     /* sum over nodes of F_u . F_u */
+	EXCL_DOT,    /* sum over held-out pairs of x */
+	TERMS
+};
+struct poisson_llpart {
+	double t[TERMS];
+};
+
+static void pw_part_range(const struct model *m, const struct graph *g, uint32_t u0,
+			  uint32_t u1, void *vpart)
 {
+	struct poisson_llpart *part = vpart;
 	memset(part, 0, sizeof *part);
+	model_pair_parts(m, u0, u1, &part->t[SELF_SQ], &part->t[EXCL_DOT]);
 	for (uint32_t u = u0; u < u1; u++) {
 		const struct frow *ru = &m->rows[u];
-		for (uint32_t i = 0; i < ru->nnz; i++)
-			part->self_sq += ru->e[i].v * ru->e[i].v;
-		if (m->excl)
-			for (uint64_t i = m->excl->off[u]; i < m->excl->off[u + 1]; i++) {
-				uint32_t v = m->excl->adj[i];
-				if (v > u)
-					part->excl_dot += model_dot(ru->e, ru->nnz, m->rows[v].e,
-								    m->rows[v].nnz);
-			}
-		for (uint64_t i = g->off[u]; i < g->off[u + 1]; i++) {
-			uint32_t v = g->adj[i];
-			if (v < u)
-				continue;
-			double x = model_dot(ru->e, ru->nnz, m->rows[v].e, m->rows[v].nnz);
+		/* each edge from its smaller end: the row's part above u */
+		uint64_t above = g->off[u] + util_lower_bound_u32(g->adj + g->off[u],
+								  graph_degree(g, u), u);
+		for (uint64_t i = above; i < g->off[u + 1]; i++) {
+			const struct frow *rv = &m->rows[g->adj[i]];
+			double x = model_dot(ru->e, ru->nnz, rv->e, rv->nnz);
 			double wt = graph_weight(g, i);
-			part->edge_log += wt * log(x + m->qeps);
-			part->edge_lgamma += lgamma(wt + 1.0);
+			part->t[EDGE_LOG] += wt * log(x + m->qeps);
+			part->t[EDGE_LGAMMA] += lgamma(wt + 1.0);
 		}
 	}
 }
 
-double model_poisson_loglik_combine(const struct model *m, const struct graph *g,
-			      const struct model_poisson_llpart *parts, size_t nparts)
+static double pw_part_combine(const struct model *m, const struct graph *g, const void *vparts,
+			      size_t nparts)
 {
-	double edge_log = 0.0, lg = 0.0, self_sq = 0.0, excl_dot = 0.0, col_sq = 0.0;
-	for (size_t i = 0; i < nparts; i++) {
-		edge_log += parts[i].edge_log;
-		lg += parts[i].edge_lgamma;
-		self_sq += parts[i].self_sq;
-		excl_dot += parts[i].excl_dot;
-	}
-	for (uint32_t c = 0; c < m->k; c++)
-		col_sq += m->colsum[c] * m->colsum[c];
-	double pair_dot = 0.5 * (col_sq - self_sq) - excl_dot;
+	const struct poisson_llpart *parts = vparts;
+	double t[TERMS] = { 0.0 };
+	for (size_t i = 0; i < nparts; i++)
+		for (int j = 0; j < TERMS; j++)
+			t[j] += parts[i].t[j];
+	double pair_dot = model_all_dot(m, t[SELF_SQ]) - t[EXCL_DOT];
 	if (pair_dot < 0.0)
 		pair_dot = 0.0; /* rounding only */
 	double n = g->n;
 	double pairs = 0.5 * n * (n - 1.0) - (m->excl ? (double)m->excl->m : 0.0);
-	return edge_log - lg - pair_dot - m->qeps * pairs;
+	return t[EDGE_LOG] - t[EDGE_LGAMMA] - pair_dot - m->qeps * pairs;
 }
 
 double model_poisson_loglik(const struct model *m, const struct graph *g)
 {
-	struct model_poisson_llpart part;
-	model_poisson_loglik_range(m, g, 0, g->n, &part);
-	return model_poisson_loglik_combine(m, g, &part, 1);
-}
-
-static void pw_part_range(const struct model *m, const struct graph *g, uint32_t u0, uint32_t u1,
-			  void *part)
-{
-	model_poisson_loglik_range(m, g, u0, u1, part);
-}
-
-static double pw_part_combine(const struct model *m, const struct graph *g, const void *parts,
-			      size_t nparts)
-{
-	return model_poisson_loglik_combine(m, g, parts, nparts);
+	struct poisson_llpart part;
+	pw_part_range(m, g, 0, g->n, &part);
+	return pw_part_combine(m, g, &part, 1);
 }
 
 static double pw_row_objective(const struct model *m, const struct graph *g, uint32_t u,
@@ -398,21 +392,8 @@ static void pw_row_gradient(const struct model *m, const struct graph *g, uint32
 		grad[w->cand[i]] = w->acc[w->cand[i]];
 }
 
-static const struct objective_ops poisson_ops = {
-	.name = "poisson",
-	.work_new = pw_new,
-	.work_free = pw_free,
-	.update_row = pw_update,
-	.work_gain = pw_gain,
-	.gain_exact = pw_gain_exact,
-	.work_counts = pw_counts,
-	.part_size = sizeof(struct model_poisson_llpart),
-	.part_range = pw_part_range,
-	.part_combine = pw_part_combine,
-	.row_objective = pw_row_objective,
-	.row_gradient = pw_row_gradient,
-	.coupling = 1,
-};
+static const struct objective_ops poisson_ops =
+	OBJECTIVE_OPS_INIT("poisson", pw_, struct poisson_llpart, 1);
 
 const struct objective_ops *model_poisson_objective(void)
 {

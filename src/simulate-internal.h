@@ -26,6 +26,11 @@ void simulate_stream(struct rng *r, uint64_t seed, uint64_t tag, uint64_t index)
  * (*ncom)[(*noff)[u] .. (*noff)[u + 1]). Both caller frees with free().
  * Returns 0 or -1 (memory). */
 int simulate_node_lists(const struct cover *cv, uint64_t **noff, uint32_t **ncom);
+/* The communities u and v share, increasing, into set (room for
+ * SIMULATE_MAX_MEMBERSHIPS), from simulate_node_lists()' arrays; returns
+ * their count. (simulate_expect.c) */
+uint32_t simulate_shared(const uint64_t *noff, const uint32_t *ncom, uint32_t u, uint32_t v,
+			 uint32_t *set);
 
 /* Steps 1 to 3: fill s->truth, s->k, s->overlapping, s->uncovered.
  * Returns 0 or -1 with a message. */

@@ -73,18 +73,11 @@ int simulate_draw_weights(const struct simulate_params *p, struct simulate *s)
 	double qeps = model_qeps(s->epsilon);
 	for (uint64_t i = 0; i < s->m; i++) {
 		uint32_t u = (uint32_t)(s->edges[i] >> 32), v = (uint32_t)(s->edges[i] & 0xffffffffu);
+		uint32_t set[SIMULATE_MAX_MEMBERSHIPS];
+		uint32_t ns = simulate_shared(noff, ncom, u, v, set);
 		double L = qeps;
-		for (uint64_t a = noff[u], b = noff[v]; a < noff[u + 1] && b < noff[v + 1];) {
-			if (ncom[a] == ncom[b]) {
-				L += rate[ncom[a]];
-				a++;
-				b++;
-			} else if (ncom[a] < ncom[b]) {
-				a++;
-			} else {
-				b++;
-			}
-		}
+		for (uint32_t j = 0; j < ns; j++)
+			L += rate[set[j]];
 		if (L > SIM_RATE_MAX)
 			L = SIM_RATE_MAX;
 		struct rng r;

@@ -24,21 +24,10 @@ struct graph;
 struct model;
 struct objective_ops;
 
-/* The whole-graph log-likelihood above, in O(m nnz + n nnz). */
+/* The whole-graph log-likelihood above, in O(m nnz + n nnz) (the
+ * engine's recompute sums the same terms over fixed node ranges through
+ * the ops' part_range/part_combine). */
 double model_poisson_loglik(const struct model *m, const struct graph *g);
-
-/* The same in pieces over fixed node ranges (edges counted from their
- * smaller end), then combined in order: the same bits for any split. */
-struct model_poisson_llpart {
-	double edge_log;    /* sum over edges of w log(x + qeps) */
-	double edge_lgamma; /* sum over edges of lgamma(w + 1) */
-	double self_sq;     /* sum over nodes of F_u . F_u */
-	double excl_dot;    /* sum over held-out pairs of x */
-};
-void model_poisson_loglik_range(const struct model *m, const struct graph *g, uint32_t u0,
-				uint32_t u1, struct model_poisson_llpart *part);
-double model_poisson_loglik_combine(const struct model *m, const struct graph *g,
-				    const struct model_poisson_llpart *parts, size_t nparts);
 
 /* The Poisson model as the sweep engine sees it (objective.h): rows
  * coupled through -F_u . F_v (coupling 1), gains exact. Static; never
