@@ -80,6 +80,8 @@ const char *checkpoint_check_params(const struct fit_params *p, char *why, size_
 			 CK_MAX_STARTS);
 	else if (p->no_reseed != 0 && p->no_reseed != 1)
 		snprintf(why, cap, "no_reseed is %d, not 0 or 1", p->no_reseed);
+	else if ((unsigned)p->model >= MODEL_KINDS)
+		snprintf(why, cap, "model %u is not one this coterie knows", (unsigned)p->model);
 	else
 		return NULL;
 	return why;
@@ -320,6 +322,23 @@ static void put_resume_section(struct atomicfile *w, const struct fit_savepoint 
 	}
 }
 
+/* The optional MODL section, written only for another model than BigCLAM
+ * or a weighted graph (so a BigCLAM checkpoint keeps its bytes): the
+ * model, whether weights follow, and the weights in the GRPH section's
+ * edge order. */
+static void put_model_section(struct atomicfile *w, const struct graph *g,
+			      const struct fit_params *p)
+{
+	put_section(w, "MODL", 8 + (g->wt ? g->m * 8 : 0));
+	put_u32(w, (uint32_t)p->model);
+	put_u32(w, g->wt ? 1 : 0);
+	if (g->wt)
+		for (uint32_t u = 0; u < g->n; u++)
+			for (uint64_t i = g->off[u]; i < g->off[u + 1]; i++)
+				if (g->adj[i] > u)
+					put_f64(w, g->wt[i]);
+}
+
 static int fill_checkpoint(struct atomicfile *w, const void *arg)
 {
 	const struct ck_args *a = arg;
@@ -381,6 +400,8 @@ static int fill_checkpoint(struct atomicfile *w, const void *arg)
 	put_strn_section(w, F);
 	if (a->savepoint)
 		put_resume_section(w, a->savepoint);
+	if (p->model != MODEL_BIGCLAM || g->wt)
+		put_model_section(w, g, p);
 
 	put_u64(w, atomicfile_sum(w));
 	return 0;

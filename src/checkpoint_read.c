@@ -17,6 +17,7 @@
 #include <errno.h>
 #include <fcntl.h>
 #include <inttypes.h>
+#include <math.h>
 #include <stdarg.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -460,6 +461,41 @@ static int read_resume(const char *path, struct rd *sec, struct checkpoint *ck)
 	return 0;
 }
 
+/* The optional MODL section: the model and, when flagged, the weights of
+ * the graph's edges (in the GRPH section's order). Absent: BigCLAM on an
+ * unweighted graph. */
+static int read_model(const char *path, struct rd *sec, struct checkpoint *ck)
+{
+	struct graph *g = ck->graph;
+	if (sec->left < 8)
+		return damaged(path, "the model section is too short");
+	uint32_t model = rd_u32(sec), weighted = rd_u32(sec);
+	if (model >= MODEL_KINDS || weighted > 1)
+		return damaged(path, "model %" PRIu32 " or weight flag %" PRIu32 " out of range",
+			       model, weighted);
+	ck->params.model = (enum model_kind)model;
+	if (!weighted)
+		return rd_section_end(path, sec, "MODL");
+	if (sec->left / 8 != g->m || sec->left % 8)
+		return damaged(path, "the model section holds %zu bytes of weights for %" PRIu64
+			       " edges", sec->left, g->m);
+	double *w = util_malloc(g->m + 1, sizeof *w);
+	if (!w)
+		return -1;
+	for (uint64_t i = 0; i < g->m; i++) {
+		w[i] = rd_f64(sec);
+		if (!isfinite(w[i]) || !(w[i] > 0.0)) {
+			double bad = w[i];
+			free(w);
+			return damaged(path, "the weight of edge %" PRIu64 " is %g, not a finite "
+				       "number above zero", i, bad);
+		}
+	}
+	int rc = graph_set_edge_weights(g, w);
+	free(w);
+	return rc;
+}
+
 static int read_body(const char *path, struct rd *body, uint32_t version,
 		     struct checkpoint *ck)
 {
@@ -536,6 +572,10 @@ static int read_body(const char *path, struct rd *body, uint32_t version,
 			       ck->F.k, p->k);
 	if (version >= 2 && body->left >= CK_SECTION_HEAD && !memcmp(body->p, "RSUM", 4)) {
 		if (rd_section(path, body, "RSUM", &sec) || read_resume(path, &sec, ck))
+			return -1;
+	}
+	if (version >= 2 && body->left >= CK_SECTION_HEAD && !memcmp(body->p, "MODL", 4)) {
+		if (rd_section(path, body, "MODL", &sec) || read_model(path, &sec, ck))
 			return -1;
 	}
 	if (body->left != 0)

@@ -491,7 +491,11 @@ struct fit *fit_new(const struct graph *g, const struct fit_params *p,
 	f->g = g;
 	f->gw = g;
 	f->p = *p;
-	f->ops = model_objective();
+	if (!(f->ops = model_objective_of(p->model))) {
+		error("unknown model %d", (int)p->model);
+		free(f);
+		return NULL;
+	}
 	f->wake[0] = f->wake[1] = -1;
 	if (f->p.threads < 1)
 		f->p.threads = 1;

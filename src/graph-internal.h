@@ -53,6 +53,12 @@ int graph_input_error(gzFile gz, const char *shown);
  * frees with graph_free(). path and shown are borrowed. */
 struct graph *graph_load_edges(const char *path, const char *shown,
 				const struct graph_load_opts *o);
-struct graph *graph_load_igraph(const char *path, const char *shown, enum graph_format fmt);
+struct graph *graph_load_igraph(const char *path, const char *shown, enum graph_format fmt,
+				 const struct graph_load_opts *o);
+
+/* Parse the weight field s (len bytes, not NUL-terminated) of a weighted
+ * record: a finite number > 0. Returns NULL and *out, or what is wrong
+ * with it ("not a number", "zero", ...), static. (graph_weights.c) */
+const char *graph_weight_parse(const char *s, size_t len, double *out);
 
 #endif

@@ -123,7 +123,7 @@ void graph_free(struct graph *g)
 	if (!g)
 		return;
 	names_free(g->names);
-	UTIL_FREE_ALL(g->off, g->adj, g->source, g);
+	UTIL_FREE_ALL(g->off, g->adj, g->wt, g->source, g);
 }
 
 const char *graph_name(const struct graph *g, uint32_t u)
@@ -318,7 +318,7 @@ struct graph *graph_load_with(const char *path, const struct graph_load_opts *o)
 		if (o->skip_lines || o->no_header)
 			warning("%s: skipping lines and header lines is for edge lists; a %s file "
 				"is read whole", shown, graph_format_name(fmt));
-		g = graph_load_igraph(path, shown, fmt);
+		g = graph_load_igraph(path, shown, fmt, o);
 		break;
 	default:
 		error("unknown graph format %d", (int)fmt);

@@ -22,7 +22,10 @@
  * Empty fields are skipped. A line that is empty or holds only spaces and
  * TABs is blank; a line whose first byte is '#' or '%' is a comment (so a
  * name cannot start a line with those bytes). A trailing '\r' is stripped.
- * Fields after the second are ignored and counted. A line with fewer than
+ * Fields after the second are ignored and counted; with
+ * graph_load_opts.weighted the third is the weight (graph_weights.c: it
+ * is required, checked where the line is known, and the weights of one
+ * pair add up), and the fast path is not taken. A line with fewer than
  * two names, a NUL byte, or more than LINE_MAX_BYTES (16 MiB) bytes is an
  * error that names the file and line; names quoted in messages, like the
  * path itself, go through util_escape() first. An empty file (or one of
@@ -390,6 +393,9 @@ struct edge_state {
 	int nbatch;
 	uint64_t skip_left; /* lines still to skip (graph_load_opts.skip_lines) */
 	int guess;          /* the header rule is still to be tried */
+	int weighted;       /* graph_load_opts.weighted: the third field is the weight */
+	double *wv;         /* weighted: one weight per record pushed (pairs + batch) */
+	uint64_t wcap;
 };
 
 /* Start fetching the slots where the names of a line are probed first. */
@@ -464,6 +470,36 @@ static inline int edge_push(struct edge_state *st, const char *a, size_t la, con
 	return st->nbatch == BATCH ? edge_flush(st) : 0;
 }
 
+/* The weight of the record being read (the third field at *pos), into
+ * st->wv at the index the record will have. 0 or -1 with error(). */
+static int edge_weight(struct edge_state *st, const char *line, size_t len, size_t *pos,
+		       enum sep_mode mode, uint64_t lineno)
+{
+	size_t b, e;
+	uint64_t at = st->pairs.len + (uint64_t)st->nbatch;
+	if (at >= st->wcap) {
+		uint64_t cap = st->wcap ? st->wcap * 2 : 4096;
+		double *nw = util_realloc(st->wv, cap, sizeof *nw);
+		if (!nw)
+			return -1;
+		st->wv = nw;
+		st->wcap = cap;
+	}
+	if (!next_field(line, len, pos, mode, &b, &e))
+		return error("%s:%" PRIu64 ": expected a weight in the third column, found none",
+			     st->shown, lineno);
+	const char *why = graph_weight_parse(line + b, e - b, &st->wv[at]);
+	if (why) {
+		char field[65], esc[300];
+		size_t l = e - b < 64 ? e - b : 64;
+		memcpy(field, line + b, l);
+		field[l] = '\0';
+		return error("%s:%" PRIu64 ": expected a weight above zero, found '%s' (%s)",
+			     st->shown, lineno, util_escape(field, esc, sizeof esc, 0), why);
+	}
+	return 0;
+}
+
 /* One line (no newline, no '\r' at the end), by the rules of the header.
  * Lines in chunks only: names may be read 8 bytes at a time. 0 or -1 with
  * error(). */
@@ -495,9 +531,12 @@ static int edge_line(struct edge_state *st, const char *line, size_t len, uint64
 	}
 	size_t b3, e3;
 	int fields = 2;
+	if (st->weighted && edge_weight(st, line, len, &pos, mode, lineno))
+		return -1;
+	fields += st->weighted;
 	while (next_field(line, len, &pos, mode, &b3, &e3))
 		fields++;
-	if (fields > 2) {
+	if (fields > 2 + st->weighted) {
 		st->rep.extra_columns++;
 		if (fields > st->max_fields)
 			st->max_fields = fields;
@@ -553,7 +592,8 @@ static inline int edge_line_at(struct edge_state *st, const char *s, const char 
 {
 	const char *end = e > s && e[-1] == '\r' ? e - 1 : e;
 	/* not a comment, not blank (a blank line would start with a space) */
-	if (clean && tab && tab > s && end > tab + 1 && *s != '#' && *s != '%' && *s != ' ')
+	if (clean && tab && tab > s && end > tab + 1 && *s != '#' && *s != '%' && *s != ' ' &&
+	    !st->weighted)
 		return edge_push(st, s, (size_t)(tab - s), tab + 1, (size_t)(end - tab - 1),
 				 lineno);
 	return edge_line(st, s, (size_t)(end - s), lineno);
@@ -765,6 +805,7 @@ struct graph *graph_load_edges(const char *path, const char *shown,
 	struct edge_state st = { .shown = shown };
 	st.skip_left = o->skip_lines;
 	st.guess = !o->no_header && !o->skip_lines;
+	st.weighted = o->weighted != 0;
 	st.rep.format = GRAPH_FORMAT_EDGES;
 	st.t = names_new(0);
 	if (!st.t)
@@ -805,13 +846,21 @@ struct graph *graph_load_edges(const char *path, const char *shown,
 
 	struct graph *g = graph_assemble(st.t, st.pairs.v, st.pairs.len, &st.rep, path);
 	st.t = NULL;
+	if (g && st.weighted && graph_set_weights(g, st.pairs.v, st.wv, st.pairs.len, shown)) {
+		graph_free(g);
+		g = NULL;
+	}
 	free(st.pairs.v);
+	free(st.wv);
 	if (g && g->report.skipped_lines)
 		notice("%s: skipped the first %" PRIu64 " line%s, as asked", shown,
 		       g->report.skipped_lines, g->report.skipped_lines == 1 ? "" : "s");
 	if (g && g->report.extra_columns) {
-		if (st.max_fields == 3)
+		if (st.max_fields == 3 && !st.weighted)
 			notice("%s: ignored the third column on %" PRIu64 " lines", shown,
+			       g->report.extra_columns);
+		else if (st.max_fields == 4 && st.weighted)
+			notice("%s: ignored the fourth column on %" PRIu64 " lines", shown,
 			       g->report.extra_columns);
 		else
 			notice("%s: ignored the columns after the second on %" PRIu64 " lines",
@@ -824,5 +873,6 @@ fail:
 		gzclose(gz);
 	names_free(st.t);
 	free(st.pairs.v);
+	free(st.wv);
 	return NULL;
 }

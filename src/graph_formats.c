@@ -20,6 +20,11 @@
  * says so (except for Pajek, where numbers are the usual names). Numeric
  * attributes are printed as integers when they are whole.
  *
+ * With graph_load_opts.weighted the weights come from an edge attribute
+ * (weight_attr, else "weight"); an edge without one, or with a weight
+ * that is not a finite number above zero, is refused, named by its place
+ * among the edges and its ends (igraph keeps no line numbers).
+ *
  * The thing a newcomer gets wrong: igraph aborts the process on an error
  * by default. Its error handler is swapped, for the time of one read, for
  * one that frees igraph's temporaries and keeps the message (per thread,
@@ -295,9 +300,44 @@ static struct names *igraph_names(const igraph_t *ig, enum graph_format fmt,
 	return t;
 }
 
+/* The weights of ig's ne edges from the numeric edge attribute attr, into
+ * w (ne values). There is no line to name: an edge is named by its place
+ * among the file's edges (1-based) and its ends. 0 or -1 with error(). */
+static int igraph_weights(const igraph_t *ig, const struct names *t, const char *attr,
+			  const char *shown, double *w)
+{
+	igraph_attribute_type_t type;
+	char esc[300];
+	util_escape(attr, esc, sizeof esc, 0);
+	if (!igraph_cattribute_has_attr(ig, IGRAPH_ATTRIBUTE_EDGE, attr))
+		return error("%s: expected the edge attribute '%s' for the weights, found none",
+			     shown, esc);
+	if (igraph_cattribute_table.gettype(ig, &type, IGRAPH_ATTRIBUTE_EDGE, attr) !=
+		    IGRAPH_SUCCESS ||
+	    type != IGRAPH_ATTRIBUTE_NUMERIC)
+		return error("%s: expected numbers in the edge attribute '%s', found another kind",
+			     shown, esc);
+	igraph_integer_t ne = igraph_ecount(ig);
+	for (igraph_integer_t e = 0; e < ne; e++) {
+		double x = igraph_cattribute_EAN(ig, attr, e);
+		if (isfinite(x) && x > 0.0) {
+			w[e] = x;
+			continue;
+		}
+		char a[300], b[300];
+		util_escape(names_name(t, (uint32_t)IGRAPH_FROM(ig, e)), a, sizeof a, 0);
+		util_escape(names_name(t, (uint32_t)IGRAPH_TO(ig, e)), b, sizeof b, 0);
+		return error("%s: edge %" PRId64 " ('%s' - '%s'): expected a weight above zero in "
+			     "'%s', found %s", shown, (int64_t)e + 1, a, b, esc,
+			     isnan(x) ? "none" : isinf(x) ? "an infinite one" : x == 0.0 ? "zero"
+										   : "a negative one");
+	}
+	return 0;
+}
+
 /* Our graph from igraph's ig (borrowed). NULL with error(). */
 static struct graph *from_igraph(const igraph_t *ig, enum graph_format fmt, const char *path,
-				 const char *shown)
+				 const char *shown, const struct graph_load_opts *o)
 {
 	igraph_integer_t n = igraph_vcount(ig), ne = igraph_ecount(ig);
 	if ((uint64_t)n > GRAPH_MAX_NODES) {
@@ -309,6 +349,7 @@ static struct graph *from_igraph(const igraph_t *ig, enum graph_format fmt, cons
 		return NULL;
 	struct graph *g = NULL;
 	uint32_t *pairs = NULL;
+	double *w = NULL;
 	igraph_vector_int_t el;
 	if (igraph_vector_int_init(&el, 0) != IGRAPH_SUCCESS) {
 		error("%s: out of memory", shown);
@@ -324,6 +365,10 @@ static struct graph *from_igraph(const igraph_t *ig, enum graph_format fmt, cons
 		goto out;
 	for (igraph_integer_t i = 0; i < 2 * ne; i++)
 		pairs[i] = (uint32_t)VECTOR(el)[i];
+	if (o->weighted &&
+	    (!(w = util_malloc((size_t)ne + 1, sizeof *w)) ||
+	     igraph_weights(ig, t, o->weight_attr ? o->weight_attr : "weight", shown, w)))
+		goto out;
 	struct graph_report rep = { .format = fmt };
 	if (igraph_is_directed(ig)) {
 		rep.directed_input = 1;
@@ -331,14 +376,20 @@ static struct graph *from_igraph(const igraph_t *ig, enum graph_format fmt, cons
 	}
 	g = graph_assemble(t, pairs, (uint64_t)ne, &rep, path);
 	t = NULL;
+	if (g && w && graph_set_weights(g, pairs, w, (uint64_t)ne, shown)) {
+		graph_free(g);
+		g = NULL;
+	}
 out:
 	igraph_vector_int_destroy(&el);
 	free(pairs);
+	free(w);
 	names_free(t);
 	return g;
 }
 
-struct graph *graph_load_igraph(const char *path, const char *shown, enum graph_format fmt)
+struct graph *graph_load_igraph(const char *path, const char *shown, enum graph_format fmt,
+				 const struct graph_load_opts *o)
 {
 	FILE *tf = spool(path, shown, fmt);
 	if (!tf)
@@ -363,7 +414,7 @@ struct graph *graph_load_igraph(const char *path, const char *shown, enum graph_
 		      util_escape(igraph_reason[0] ? igraph_reason : igraph_strerror(rc), esc,
 				  sizeof esc, 1));
 	} else {
-		g = from_igraph(&ig, fmt, path, shown);
+		g = from_igraph(&ig, fmt, path, shown, o);
 		igraph_destroy(&ig);
 	}
 	igraph_set_attribute_table(old_attr);

@@ -31,6 +31,7 @@
 #include <string.h>
 
 #include "coterie/graph.h"
+#include "coterie/model_poisson.h"
 #include "coterie/objective.h"
 #include "coterie/util.h"
 
@@ -175,21 +176,40 @@ double model_log1mexp(double x)
 	return log1p(-exp(-x));
 }
 
-void model_loglik_range(const struct model *m, const struct graph *g, uint32_t u0, uint32_t u1,
-			struct model_llpart *part)
+void model_pair_parts(const struct model *m, uint32_t u0, uint32_t u1, double *self_sq,
+		      double *excl_dot)
 {
-	part->edge_log = part->edge_dot = part->self_sq = part->excl_dot = 0.0;
+	double ss = 0.0, xd = 0.0;
 	for (uint32_t u = u0; u < u1; u++) {
 		const struct frow *ru = &m->rows[u];
 		for (uint32_t i = 0; i < ru->nnz; i++)
-			part->self_sq += ru->e[i].v * ru->e[i].v;
+			ss += ru->e[i].v * ru->e[i].v;
 		if (m->excl)
 			for (uint64_t i = m->excl->off[u]; i < m->excl->off[u + 1]; i++) {
 				uint32_t v = m->excl->adj[i];
 				if (v > u)
-					part->excl_dot += model_dot(ru->e, ru->nnz, m->rows[v].e,
-								    m->rows[v].nnz);
+					xd += model_dot(ru->e, ru->nnz, m->rows[v].e, m->rows[v].nnz);
 			}
+	}
+	*self_sq = ss;
+	*excl_dot = xd;
+}
+
+double model_all_dot(const struct model *m, double self_sq)
+{
+	double col_sq = 0.0;
+	for (uint32_t c = 0; c < m->k; c++)
+		col_sq += m->colsum[c] * m->colsum[c];
+	return 0.5 * (col_sq - self_sq);
+}
+
+void model_loglik_range(const struct model *m, const struct graph *g, uint32_t u0, uint32_t u1,
+			struct model_llpart *part)
+{
+	part->edge_log = part->edge_dot = 0.0;
+	model_pair_parts(m, u0, u1, &part->self_sq, &part->excl_dot);
+	for (uint32_t u = u0; u < u1; u++) {
+		const struct frow *ru = &m->rows[u];
 		for (uint64_t i = g->off[u]; i < g->off[u + 1]; i++) {
 			uint32_t v = g->adj[i];
 			if (v < u)
@@ -205,17 +225,14 @@ void model_loglik_range(const struct model *m, const struct graph *g, uint32_t u
 double model_loglik_combine(const struct model *m, const struct graph *g,
 			    const struct model_llpart *parts, size_t nparts)
 {
-	double edge_log = 0.0, edge_dot = 0.0, self_sq = 0.0, col_sq = 0.0, excl_dot = 0.0;
+	double edge_log = 0.0, edge_dot = 0.0, self_sq = 0.0, excl_dot = 0.0;
 	for (size_t i = 0; i < nparts; i++) {
 		edge_log += parts[i].edge_log;
 		edge_dot += parts[i].edge_dot;
 		self_sq += parts[i].self_sq;
 		excl_dot += parts[i].excl_dot;
 	}
-	for (uint32_t c = 0; c < m->k; c++)
-		col_sq += m->colsum[c] * m->colsum[c];
-	/* sum over all pairs u<v of x_uv = (|colsum|^2 - sum_u |F_u|^2) / 2 */
-	double all_dot = 0.5 * (col_sq - self_sq);
+	double all_dot = model_all_dot(m, self_sq);
 	double nonedge_dot = all_dot - edge_dot - excl_dot;
 	if (nonedge_dot < 0.0)
 		nonedge_dot = 0.0; /* rounding only */
@@ -683,6 +700,38 @@ static double eval_trial(const struct model *m, const struct graph *g, uint32_t 
 	return f1;
 }
 
+int model_backtrack(model_trial_fn trial, void *ctx, double f0, double step, double *gain)
+{
+	for (int t = 0; t < ARMIJO_TRIES; t++, step *= 0.5) {
+		int moved;
+		double gd;
+		double f1 = trial(ctx, step, &gd, &moved);
+		if (!moved)
+			return 0;
+		if (f1 >= f0 + ARMIJO_SIGMA * gd && f1 > f0) {
+			*gain = f1 - f0;
+			return 1;
+		}
+	}
+	return 0;
+}
+
+/* eval_trial() as a model_trial_fn. */
+struct trial_ctx {
+	const struct model *m;
+	const struct graph *g;
+	uint32_t u;
+	struct model_work *w;
+	int lin;
+	double f0;
+};
+
+static double bigclam_trial(void *ctx, double step, double *gd, int *moved)
+{
+	struct trial_ctx *c = ctx;
+	return eval_trial(c->m, c->g, c->u, c->w, c->lin, step, c->f0, moved, gd);
+}
+
 int model_update_row(const struct model *m, const struct graph *g, uint32_t u,
 		     struct model_work *w, const struct fentry **out, uint32_t *out_nnz)
 {
@@ -712,21 +761,11 @@ int model_update_row(const struct model *m, const struct graph *g, uint32_t u,
 		w->visits += deg;
 	}
 	/* Plain backtracking from the reach limit (a search from near the
-	 * Cauchy step needs fewer trials but levels off lower: DEVELOPERS.md) */
-	for (int t = 0; t < ARMIJO_TRIES; t++, step *= 0.5) {
-		int moved;
-		double gd;
-		double f1 = eval_trial(m, g, u, w, lin, step, f0, &moved, &gd);
-		if (!moved)
-			break;
-		if (f1 >= f0 + ARMIJO_SIGMA * gd && f1 > f0) {
-			/* an accepted trial summed every term (the early exit
-			 * only cuts trials that fail), so f1 is the objective */
-			w->gain = f1 - f0;
-			accepted = 1;
-			break;
-		}
-	}
+	 * Cauchy step needs fewer trials but levels off lower: DEVELOPERS.md);
+	 * an accepted trial summed every term (the early exit only cuts
+	 * trials that fail), so f1 is the objective */
+	struct trial_ctx tc = { m, g, u, w, lin, f0 };
+	accepted = model_backtrack(bigclam_trial, &tc, f0, step, &w->gain);
 	if (!accepted)
 		return 0;
 	/* keep the positive entries, then sort those few by community (the
@@ -812,23 +851,33 @@ static void ops_row_gradient(const struct model *m, const struct graph *g, uint3
 	model_row_gradient(m, g, u, w, grad);
 }
 
-static const struct objective_ops bigclam_ops = {
-	.name = "bigclam",
-	.work_new = ops_work_new,
-	.work_free = ops_work_free,
-	.update_row = ops_update_row,
-	.work_gain = ops_work_gain,
-	.gain_exact = model_gain_exact,
-	.work_counts = ops_work_counts,
-	.part_size = sizeof(struct model_llpart),
-	.part_range = ops_part_range,
-	.part_combine = ops_part_combine,
-	.row_objective = ops_row_objective,
-	.row_gradient = ops_row_gradient,
-	.coupling = 1,
-};
+static int ops_gain_exact(const struct model *m)
+{
+	return model_gain_exact(m);
+}
+
+static const struct objective_ops bigclam_ops =
+	OBJECTIVE_OPS_INIT("bigclam", ops_, struct model_llpart, 1);
 
 const struct objective_ops *model_objective(void)
 {
 	return &bigclam_ops;
+}
+
+const char *model_kind_name(enum model_kind kind)
+{
+	switch (kind) {
+	case MODEL_BIGCLAM: return "bigclam";
+	case MODEL_POISSON: return "poisson";
+	default: return "unknown";
+	}
+}
+
+const struct objective_ops *model_objective_of(enum model_kind kind)
+{
+	switch (kind) {
+	case MODEL_BIGCLAM: return model_objective();
+	case MODEL_POISSON: return model_poisson_objective();
+	default: return NULL;
+	}
 }

@@ -185,6 +185,7 @@ static json_t *j_params(const struct fit_params *p, const struct result_model *m
 			const struct result_meta *meta, int *bad)
 {
 	json_t *jp = json_object();
+	jsonout_set(jp, "model", jsonout_str(model_kind_name(p->model)), bad);
 	jsonout_set(jp, "k", jsonout_uint(p->k), bad);
 	jsonout_set(jp, "threads", jsonout_uint(p->threads), bad);
 	jsonout_set(jp, "seed", jsonout_uint(p->seed), bad);

@@ -170,7 +170,8 @@ int simulate_run(const struct simulate_params *p, struct simulate *out)
 	out->n = p->n;
 	out->epsilon = p->epsilon;
 	int rc = simulate_plant_cover(p, out) || simulate_plant_probabilities(p, out) ||
-			 simulate_draw_edges(p, out) || count_isolated_and_outside(out) ? -1 : 0;
+			 simulate_draw_edges(p, out) || count_isolated_and_outside(out) ||
+			 (p->weighted && simulate_draw_weights(p, out)) ? -1 : 0;
 	if (rc)
 		simulate_release(out); /* on failure out holds nothing */
 	return rc;
@@ -183,5 +184,6 @@ void simulate_release(struct simulate *s)
 	cover_release(&s->truth);
 	free(s->p);
 	free(s->edges);
+	free(s->weights);
 	memset(s, 0, sizeof *s);
 }

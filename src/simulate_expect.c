@@ -306,19 +306,8 @@ static int shared_sets(struct mwork *w, uint64_t g, uint64_t h)
 	for (uint64_t i = g; i < h; i++)
 		for (uint64_t j = i; j < h; j++) {
 			uint32_t ta = tr[i].t, tb = tr[j].t, u = w->trep[ta], v = w->trep[tb];
-			uint32_t set[SIMULATE_MAX_MEMBERSHIPS], ns = 0;
-			uint64_t a = noff[u], b = noff[v];
-			while (a < noff[u + 1] && b < noff[v + 1]) {
-				if (ncom[a] == ncom[b]) {
-					set[ns++] = ncom[a];
-					a++;
-					b++;
-				} else if (ncom[a] < ncom[b]) {
-					a++;
-				} else {
-					b++;
-				}
-			}
+			uint32_t set[SIMULATE_MAX_MEMBERSHIPS];
+			uint32_t ns = simulate_shared(noff, ncom, u, v, set);
 			if (set[0] != tr[g].c || set[1] != tr[g].d)
 				continue;
 			uint64_t pairs = i == j ? w->tcnt[ta] * (w->tcnt[ta] - 1) / 2 :
@@ -507,4 +496,23 @@ int simulate_plant_probabilities(const struct simulate_params *p, struct simulat
 	multi_release(&mu);
 	free(w);
 	return rc;
+}
+
+uint32_t simulate_shared(const uint64_t *noff, const uint32_t *ncom, uint32_t u, uint32_t v,
+			 uint32_t *set)
+{
+	uint32_t ns = 0;
+	uint64_t a = noff[u], b = noff[v];
+	while (a < noff[u + 1] && b < noff[v + 1]) {
+		if (ncom[a] == ncom[b]) {
+			set[ns++] = ncom[a];
+			a++;
+			b++;
+		} else if (ncom[a] < ncom[b]) {
+			a++;
+		} else {
+			b++;
+		}
+	}
+	return ns;
 }

@@ -109,6 +109,11 @@ static int fill_edges(struct atomicfile *w, const void *arg)
 		q = put_name(q, a->prefix, a->plen, (uint32_t)(s->edges[i] >> 32));
 		*q++ = '\t';
 		q = put_name(q, a->prefix, a->plen, (uint32_t)(s->edges[i] & 0xffffffffu));
+		if (s->weights) { /* whole numbers below 2^31 (the rate is capped) */
+			atomicfile_advance(w, (size_t)(q - q0));
+			atomicfile_printf(w, "\t%.0f\n", s->weights[i]);
+			continue;
+		}
 		*q++ = '\n';
 		atomicfile_advance(w, (size_t)(q - q0));
 	}
@@ -179,6 +184,20 @@ static int add_mixing(json_t *root, const struct simulate *s, const struct simul
 	return 0;
 }
 
+/* simulate.json's "weights" (with --weighted only, so an unweighted
+ * planted folder keeps its bytes): the law and the sum. */
+static int add_weights(json_t *root, const struct simulate *s)
+{
+	double total = 0.0;
+	for (uint64_t i = 0; i < s->m; i++)
+		total += s->weights[i];
+	json_t *wj = json_pack("{s:s, s:f}", "law",
+			       "Poisson of the planted rate, above zero (Ball, Karrer & Newman, "
+			       "PRE 2011)",
+			       "total", total);
+	return !wj || json_object_set_new(root, "weights", wj) ? -1 : 0;
+}
+
 static char *simulate_json(const struct simulate *s, const struct simulate_params *p,
 			   const struct simulate_meta *meta)
 {
@@ -238,6 +257,10 @@ static char *simulate_json(const struct simulate *s, const struct simulate_param
 	free(cmd);
 	free(pre);
 	if (root && p->mixing >= 0.0 && add_mixing(root, s, p)) {
+		json_decref(root);
+		root = NULL;
+	}
+	if (root && s->weights && add_weights(root, s)) {
 		json_decref(root);
 		root = NULL;
 	}

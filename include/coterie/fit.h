@@ -65,6 +65,7 @@ struct fit_params {
 	int no_reseed;       /* 1: skip the reseeding moves after a plateau */
 	int hold_at_plateau; /* 1: at a plateau wait (state LEVELLED) for
 			      * fit_extend() or fit_stop() instead of ending */
+	enum model_kind model; /* the likelihood (model.h); 0: BigCLAM */
 	int renumber;        /* 1: fit with the nodes renumbered breadth-first
 			      * (order.h); 0 (default): in the graph's own
 			      * ids. Results are in the graph's ids either

@@ -59,6 +59,9 @@ struct graph_load_opts {
 	uint64_t skip_lines; /* edge lists: the first lines skipped, whatever they hold */
 	int no_header;       /* edge lists: never take a line for a header; skip_lines > 0
 				implies it (the user said where the edges start) */
+	int weighted;        /* read edge weights: an edge list's third column, the
+				edge attribute weight_attr of GML/GraphML (graph_weights.c) */
+	const char *weight_attr; /* GML/GraphML: the attribute; NULL is "weight" */
 };
 
 struct names; /* the node names, both ways: graph_name(), graph_find() */
@@ -68,6 +71,9 @@ struct graph {
 	uint64_t m;        /* undirected edges, each counted once */
 	uint64_t *off;     /* n + 1 row offsets */
 	uint32_t *adj;     /* 2 * m neighbour ids */
+	double *wt;        /* NULL (unweighted), or 2 * m weights parallel to adj:
+			      the weight of edge u-v in both rows, finite and > 0,
+			      the sum of the records of that pair (graph_weights.c) */
 	struct names *names; /* private to graph*.c: use graph_name(), graph_find() */
 	struct graph_report report;
 	char *source;      /* the path it was loaded from ("-" for stdin) */
@@ -117,6 +123,29 @@ static inline uint32_t graph_degree(const struct graph *g, uint32_t u)
 {
 	return (uint32_t)(g->off[u + 1] - g->off[u]);
 }
+
+/* The weight of the edge at adj[i]: 1 in an unweighted graph. */
+static inline double graph_weight(const struct graph *g, uint64_t i)
+{
+	return g->wt ? g->wt[i] : 1.0;
+}
+
+/*
+ * Weights for g's edges (graph_weights.c): npairs records (2 * npairs ids
+ * and npairs weights, borrowed, in file order), self-loops skipped, the
+ * records of one pair added up in file order. Replaces g->wt. Returns 0,
+ * or -1 with error() (a sum that overflows, naming shown; out of memory).
+ */
+int graph_set_weights(struct graph *g, const uint32_t *pairs, const double *w, uint64_t npairs,
+		      const char *shown);
+
+/* Weights for g's edges given in the order u < v, by u then by v (a
+ * checkpoint's order): w borrowed, g->m values, finite and > 0. Replaces
+ * g->wt. Returns 0 or -1 (out of memory). */
+int graph_set_edge_weights(struct graph *g, const double *w);
+
+/* The sum of the weights of all edges (m in an unweighted graph). */
+double graph_total_weight(const struct graph *g);
 
 /* The name of node u < g->n (borrowed, valid until graph_free()). */
 const char *graph_name(const struct graph *g, uint32_t u);

@@ -96,6 +96,14 @@ void model_loglik_range(const struct model *m, const struct graph *g, uint32_t u
 double model_loglik_combine(const struct model *m, const struct graph *g,
 			    const struct model_llpart *parts, size_t nparts);
 
+/* The pair terms every model built on F_u . F_v shares, over nodes
+ * [u0, u1): the sum of F_u . F_u, and of x over held-out pairs (from
+ * their smaller end). Then the sum of x over all pairs u < v from the
+ * whole sum of F_u . F_u: (|colsum|^2 - sum_u |F_u|^2) / 2. */
+void model_pair_parts(const struct model *m, uint32_t u0, uint32_t u1, double *self_sq,
+		      double *excl_dot);
+double model_all_dot(const struct model *m, double self_sq);
+
 /* Copy the model into compressed rows. Returns 0 or -1. Release the copy
  * with fcsr_release(). */
 int model_export(const struct model *m, struct fcsr *out);
@@ -157,6 +165,15 @@ void model_row_gradient(const struct model *m, const struct graph *g, uint32_t u
 int model_update_row(const struct model *m, const struct graph *g, uint32_t u,
 		     struct model_work *w, const struct fentry **out, uint32_t *out_nnz);
 
+/* The backtracking of a row update, shared by every objective: trial(ctx,
+ * a, &gd, &moved) is the row objective at the projected step of length a
+ * (gd: the gradient times the move; moved: whether any strength moved).
+ * Tries a, a/2, a/4, ... (16 at most) until f1 >= f0 + 1e-4 gd and
+ * f1 > f0: then *gain = f1 - f0 and 1; 0 when no trial passed or one
+ * moved nothing. */
+typedef double (*model_trial_fn)(void *ctx, double step, double *gd, int *moved);
+int model_backtrack(model_trial_fn trial, void *ctx, double f0, double step, double *gain);
+
 /* The rise f1 - f0 of u's row objective (model_row_objective()) made by
  * the last update of w that returned 1. The row objective holds every
  * term of l(F) that involves u, so with the other rows fixed this is the
@@ -176,5 +193,17 @@ int model_gain_exact(const struct model *m);
  * with a background, rows coupled through -F_u . F_v. Static; never NULL. */
 struct objective_ops;
 const struct objective_ops *model_objective(void);
+
+/* Which likelihood a fit maximises (fit_params.model; run.json and the
+ * checkpoint record it). The strengths are a struct model for each. */
+enum model_kind {
+	MODEL_BIGCLAM = 0, /* links: 1 - exp(-F_u . F_v) (this file) */
+	MODEL_POISSON = 1, /* weights: Poisson(F_u . F_v) (model_poisson.h) */
+	MODEL_KINDS
+};
+/* "bigclam", "poisson" (static); "unknown" out of range. */
+const char *model_kind_name(enum model_kind kind);
+/* The objective of a kind (static), or NULL out of range. */
+const struct objective_ops *model_objective_of(enum model_kind kind);
 
 #endif

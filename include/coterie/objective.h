@@ -81,4 +81,17 @@ struct objective_ops {
 	int coupling;
 };
 
+/* The ops of an objective whose functions are named PREFIX##work_new,
+ * PREFIX##work_free, ... after the fields (parts of type PART), so that
+ * every objective's table is this one line and cannot miss a field. */
+#define OBJECTIVE_OPS_INIT(NAME, PREFIX, PART, COUPLING)                                    \
+	{                                                                                  \
+		.name = NAME, .work_new = PREFIX##work_new, .work_free = PREFIX##work_free,  \
+		.update_row = PREFIX##update_row, .work_gain = PREFIX##work_gain,            \
+		.gain_exact = PREFIX##gain_exact, .work_counts = PREFIX##work_counts,        \
+		.part_size = sizeof(PART), .part_range = PREFIX##part_range,                 \
+		.part_combine = PREFIX##part_combine, .row_objective = PREFIX##row_objective, \
+		.row_gradient = PREFIX##row_gradient, .coupling = COUPLING                   \
+	}
+
 #endif

@@ -47,6 +47,9 @@ struct simulate_params {
 				   * (1 - mixing) n mean_degree / 2 edges, and
 				   * epsilon is solved so that all expect
 				   * n mean_degree / 2 */
+	int weighted;             /* 1: each edge gets a weight, its count under the
+				   * Poisson model with the planted rates, given
+				   * that it is above zero (simulate_weights.c) */
 	uint64_t seed;
 	unsigned threads;         /* >= 1; the result does not depend on it */
 };
@@ -90,6 +93,8 @@ struct simulate {
 				   * (1 without a mean degree target) */
 	uint64_t m;               /* edges */
 	uint64_t *edges;          /* m keys, see above; owned */
+	double *weights;          /* NULL, or (weighted) m weights, whole numbers >= 1,
+				   * of edges[i]; owned */
 	uint64_t drawn_communities; /* pairs drawn by the communities ... */
 	uint64_t drawn_background;  /* ... and by the background, before merging */
 	uint64_t duplicates;        /* pairs drawn more than once */

@@ -66,6 +66,8 @@ enum {
 	CLI_OPT_CHECKPOINT_EVERY,
 	CLI_OPT_SKIP_LINES,
 	CLI_OPT_NO_HEADER,
+	CLI_OPT_WEIGHTED,
+	CLI_OPT_WEIGHT_ATTR,
 	CLI_OPT_OWN,
 };
 
@@ -85,6 +87,8 @@ struct cli_fit_opts {
 	const char *out;           /* -o DIR; NULL: not given */
 	uint64_t skip_lines;       /* --skip-lines */
 	int no_header;             /* --no-header, or --skip-lines given */
+	int weighted;              /* --weighted or --weight-attr: p.model is MODEL_POISSON */
+	const char *weight_attr;   /* --weight-attr NAME; NULL: "weight" */
 };
 
 /* The getopt_long() entries fit and explore share (the options handled by
@@ -106,6 +110,8 @@ struct cli_fit_opts {
 	{ "checkpoint-every", required_argument, NULL, CLI_OPT_CHECKPOINT_EVERY }, \
 	{ "skip-lines", required_argument, NULL, CLI_OPT_SKIP_LINES }, \
 	{ "no-header", no_argument, NULL, CLI_OPT_NO_HEADER }, \
+	{ "weighted", no_argument, NULL, CLI_OPT_WEIGHTED }, \
+	{ "weight-attr", required_argument, NULL, CLI_OPT_WEIGHT_ATTR }, \
 	{ "help", no_argument, NULL, 'h' }
 
 /* Defaults: fit_params_default() with one thread per core. */
@@ -131,6 +137,11 @@ void cli_fit_opts_starts(struct cli_fit_opts *o, uint64_t m);
  * warning ("when" ends those messages, e.g. "when resuming"). */
 void cli_fit_opts_resume(const struct cli_fit_opts *o, const struct fit_params *saved,
 			 const char *when, struct fit_params *out);
+
+/* What the Poisson model (--weighted) cannot do yet: -k auto, --check-links
+ * and --refine score or search with the links alone. Exits 2 naming the
+ * option when p->model is not BigCLAM and one of them is asked for. */
+void cli_model_can(const struct fit_params *p, int k_auto, int check_links, int refine);
 
 int cmd_fit(int argc, char **argv);
 int cmd_show(int argc, char **argv);

@@ -182,6 +182,13 @@ int cli_fit_opts_take(struct cli_fit_opts *o, int c, const char *arg)
 		o->no_header = 1; /* the user said where the edges start */
 		return 1;
 	case CLI_OPT_NO_HEADER: o->no_header = 1; return 1;
+	case CLI_OPT_WEIGHT_ATTR:
+	case CLI_OPT_WEIGHTED:
+		if (c == CLI_OPT_WEIGHT_ATTR) /* naming the attribute asks for the weights */
+			o->weight_attr = arg;
+		o->weighted = 1;
+		p->model = MODEL_POISSON;
+		return 1;
 	default: return 0;
 	}
 }
@@ -203,7 +210,8 @@ int cli_fit_opts_grid(struct cli_fit_opts *o, const struct graph *g, uint32_t *m
 struct graph *cli_graph_load(const struct cli_fit_opts *o, const char *path)
 {
 	struct graph_load_opts lo = { .fmt = o->fmt, .skip_lines = o->skip_lines,
-				      .no_header = o->no_header };
+				      .no_header = o->no_header, .weighted = o->weighted,
+				      .weight_attr = o->weight_attr };
 	return graph_load_with(path, &lo);
 }
 
@@ -221,6 +229,9 @@ void cli_fit_opts_resume(const struct cli_fit_opts *o, const struct fit_params *
 		    saved->k, o->p.k);
 	if (o->have_eps && o->p.epsilon != saved->epsilon)
 		die(EXIT_USAGE, "--epsilon cannot change %s", when);
+	if (o->weighted && saved->model != MODEL_POISSON)
+		die(EXIT_USAGE, "the saved fit is of the %s model; --weighted cannot change that %s",
+		    model_kind_name(saved->model), when);
 	if (o->have_seed && o->p.seed != saved->seed)
 		warning("--seed is ignored %s; the fit keeps seed %llu", when,
 			(unsigned long long)saved->seed);
@@ -234,4 +245,13 @@ void cli_fit_opts_resume(const struct cli_fit_opts *o, const struct fit_params *
 		out->patience = o->p.patience;
 	if (o->have_max)
 		out->max_sweeps = o->p.max_sweeps;
+}
+
+void cli_model_can(const struct fit_params *p, int k_auto, int check_links, int refine)
+{
+	const char *opt = k_auto ? "-k auto" : check_links ? "--check-links" : refine ? "--refine"
+											 : NULL;
+	if (p->model != MODEL_BIGCLAM && opt)
+		die(EXIT_USAGE, "%s is not yet available with the %s model (--weighted)", opt,
+		    model_kind_name(p->model));
 }

@@ -68,6 +68,8 @@ static void explore_usage(FILE *out)
 		"      --format F        edges, gml, graphml or pajek (default: by extension)\n"
 		"      --skip-lines N    edge lists: skip the first N lines (then no header is guessed)\n"
 		"      --no-header       edge lists: the first line is an edge, never a header\n"
+		"      --weighted        fit the Poisson model of edge weights (see coterie fit)\n"
+		"      --weight-attr NAME  the edge attribute holding the weights\n"
 		"      --resume          with DIR: continue the saved fit at once\n"
 		"      --checkpoint-every SECONDS\n"
 		"                        write the checkpoint that often while fitting\n"
@@ -224,6 +226,7 @@ static int parse_args(struct run *r, int argc, char **argv)
 		die(EXIT_USAGE, "-k auto is for a graph; a result folder already has its k");
 	if (o->have_grid && !o->k_auto)
 		die(EXIT_USAGE, "--k-grid is for -k auto");
+	cli_model_can(&o->p, o->k_auto, 0, 0);
 	return -1;
 }
 

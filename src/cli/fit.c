@@ -83,6 +83,11 @@ static void fit_usage(FILE *out)
 		"      --format F        edges, gml, graphml or pajek (default: by extension)\n"
 		"      --skip-lines N    edge lists: skip the first N lines (then no header is guessed)\n"
 		"      --no-header       edge lists: the first line is an edge, never a header\n"
+		"      --weighted        fit the Poisson model of edge weights (Ball, Karrer &\n"
+		"                        Newman 2011): an edge list's third column, the edge\n"
+		"                        attribute 'weight' of GML/GraphML/Pajek\n"
+		"      --weight-attr NAME  the edge attribute holding the weights (implies\n"
+		"                        --weighted)\n"
 		"      --resume DIR      continue the fit saved in DIR (same graph only)\n"
 		"      --checkpoint-every SECONDS\n"
 		"                        write a checkpoint to the result folder that often\n"
@@ -409,6 +414,7 @@ static int parse_args(struct run *r, int argc, char **argv)
 		die(EXIT_USAGE, "fit needs the number of communities: -k N");
 	if (o->have_grid && !o->k_auto)
 		die(EXIT_USAGE, "--k-grid is for -k auto");
+	cli_model_can(&o->p, o->k_auto, r->check_links > 0, r->refine);
 	if (!r->o.out)
 		r->o.out = r->resume;
 	if (!r->o.out)
@@ -436,6 +442,7 @@ static int load_resume(struct run *r)
 	if (outdir_check_graph(r->o.out, r->ck.graph, r->force))
 		return -1;
 	cli_fit_opts_resume(&r->o, &r->ck.params, "when resuming", &r->p);
+	cli_model_can(&r->p, 0, r->check_links > 0, r->refine);
 	r->p.hold_at_plateau = 0;
 	outdir_resume(&r->ck, &r->p, &r->origin);
 	r->have_origin = 1;

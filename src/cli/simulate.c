@@ -51,6 +51,9 @@ static void simulate_usage(FILE *out)
 		"                          expect (1 - X) of the mean degree, and epsilon is\n"
 		"                          solved for the rest (needs a mean degree; not\n"
 		"                          with --epsilon); simulate.json records both\n"
+		"      --weighted          give each edge a weight: its count under the Poisson\n"
+		"                          model of the planted rates (Ball, Karrer & Newman\n"
+		"                          2011), given that it is above zero; a third column\n"
 		"      --prefix STR        node names STR0, STR1, ... (default: 0, 1, ...)\n"
 		"  -o, --output DIR        folder to write (made if missing; required)\n"
 		"      --force             replace a planted graph already in DIR\n"
@@ -103,6 +106,7 @@ enum {
 	OPT_FORCE,
 	OPT_EVEN_DEGREES,
 	OPT_MIXING,
+	OPT_WEIGHTED,
 };
 
 /* The command line. */
@@ -128,6 +132,7 @@ static int parse_args(struct sim_args *a, int argc, char **argv)
 		{ "even-degrees", no_argument, NULL, OPT_EVEN_DEGREES },
 		{ "epsilon", required_argument, NULL, CLI_OPT_EPSILON },
 		{ "mixing", required_argument, NULL, OPT_MIXING },
+		{ "weighted", no_argument, NULL, OPT_WEIGHTED },
 		{ "prefix", required_argument, NULL, OPT_PREFIX },
 		{ "output", required_argument, NULL, 'o' },
 		{ "force", no_argument, NULL, OPT_FORCE },
@@ -175,6 +180,7 @@ static int parse_args(struct sim_args *a, int argc, char **argv)
 			have_eps = 1;
 			break;
 		case OPT_MIXING: p->mixing = cli_double("--mixing", optarg, 0.0, 0.999); break;
+		case OPT_WEIGHTED: p->weighted = 1; break;
 		case OPT_PREFIX: a->prefix = optarg; break;
 		case 'o': a->out = optarg; break;
 		case OPT_FORCE: a->force = 1; break;

@@ -13,6 +13,7 @@
 #include "coterie/graph.h"
 #include "coterie/model.h"
 #include "coterie/rng.h"
+#include "coterie/util.h"
 
 void assert_graph_sane(const struct graph *g)
 {
@@ -28,6 +29,12 @@ void assert_graph_sane(const struct graph *g)
 			if (i > g->off[u])
 				assert_true(g->adj[i - 1] < v);
 			assert_true(graph_has_edge(g, v, u));
+			if (g->wt) { /* graph.h: finite, > 0, the same in both rows */
+				assert_true(isfinite(g->wt[i]) && g->wt[i] > 0.0);
+				const uint32_t *rv = g->adj + g->off[v];
+				uint64_t j = g->off[v] + util_lower_bound_u32(rv, graph_degree(g, v), u);
+				assert_true(g->wt[j] == g->wt[i]);
+			}
 		}
 		assert_non_null(graph_name(g, u));
 		assert_int_equal(graph_find(g, graph_name(g, u)), u);

@@ -541,7 +541,7 @@ static void test_run_json_has_every_key_in_order_with_values(void **state)
 	static const char *const graph[] = { "path", "format", "nodes", "edges", "fingerprint",
 					     "lines", "self_loops", "duplicates", "extra_columns",
 					     "isolated", "directed_input" };
-	static const char *const params[] = { "k", "threads", "seed", "tol", "patience",
+	static const char *const params[] = { "model", "k", "threads", "seed", "tol", "patience",
 					      "max_sweeps", "epsilon", "delta", "min_links", "past_plateau",
 					      "starts", "reseed", "k_chosen_by" };
 	static const char *const fit[] = { "status", "state", "sweeps", "plateau_sweep",
@@ -556,7 +556,7 @@ static void test_run_json_has_every_key_in_order_with_values(void **state)
 	assert_true(json_is_null(get(root, "background", NULL)));
 	assert_true(json_is_null(get(root, "link_check", NULL)));
 	assert_keys(get(root, "graph", NULL), graph, 11);
-	assert_keys(get(root, "parameters", NULL), params, 13);
+	assert_keys(get(root, "parameters", NULL), params, 14);
 	assert_keys(get(root, "fit", NULL), fit, 13);
 	assert_keys(get(root, "run", NULL), run, 2);
 
