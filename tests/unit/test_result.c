@@ -188,7 +188,7 @@ static void fixture_init(void)
 	fx.comms[2] = (struct agm_community){ 2, 2, 1, 4, 2, 1.0, 0.5, 0.25 };
 	fx.s.agm.n = N;
 	fx.s.agm.epsilon = 0.05;
-	fx.s.agm.cover = (struct cover){ N, K, fx.coff, fx.cmem, fx.labels };
+	fx.s.agm.cover = (struct cover){ N, K, fx.coff, fx.cmem, fx.labels, 0 };
 	fx.s.agm.strength = fx.cstrength;
 	fx.s.agm.comms = fx.comms;
 	fx.s.agm.loglik = -17.5;
@@ -677,9 +677,9 @@ static void test_k_selection_and_link_check_are_recorded(void **state)
 	(void)state;
 	/* a made-up search of three k (values chosen here, not computed) */
 	struct select_point pts[3] = {
-		{ 2, -120.5, 0.625, 10, 0.25 },
-		{ 4, -100.25, 0.75, 20, 0.5 },
-		{ 8, -110.0, NAN, 30, 1.0 },
+		{ 2, -120.5, 0.625, 10, 0.25, 0.0, 1, 0 },
+		{ 4, -100.25, 0.75, 20, 0.5, 0.0, 1, 0 },
+		{ 8, -110.0, NAN, 30, 1.0, 0.0, 1, 0 },
 	};
 	struct select_result sel;
 	memset(&sel, 0, sizeof sel);
@@ -1575,7 +1575,7 @@ static void test_resume_through_the_checkpoint_matches_the_uninterrupted_fit(voi
 
 	const char *dir = test_tmpdir();
 	struct result_meta meta = { "coterie fit karate", "karate/edges.tsv", 1.0, 0, "finished", 0,
-				    NULL, 0, NULL, NULL };
+				    NULL, 0, NULL, NULL, NULL };
 	assert_int_equal(result_write(dir, g, &p, model_of(half), &meta), 0);
 
 	/* the folder agrees with the snapshot it was written from */
