@@ -13,9 +13,11 @@
  * result's checkpoint.cot: while a fit runs (or after it was killed) the
  * folder still holds the previous result whole, beside a resumable
  * checkpoint of the new fit that show does not take for the result. The
- * final write removes the partial checkpoint last, once the new result is
- * in place; outdir_read() continues from it only when it is newer than
- * the result.
+ * final write is one commit (result_commit.h): the new files, the files
+ * of an earlier result this run did not write and the partial files
+ * dropped, all at one commit point, so a kill at any moment leaves the
+ * old result whole or the new one; outdir_read() continues from the
+ * partial checkpoint only when it is newer than the result.
  *
  * Invariants: at most one periodic write at a time; a background write
  * holds its own snapshot reference (snapshots and the graph are
@@ -25,8 +27,8 @@
  * A folder holds one result: a run refuses a folder that holds the result
  * of another graph unless forced (outdir_check_graph(), by the graph
  * fingerprint of the checkpoint, else of run.json), and its final write
- * removes the files a result may have that this run did not write
- * (held-out-links.tsv, k-selection.tsv), once its own are in place.
+ * drops the files a result may have that this run did not write
+ * (held-out-links.tsv, k-selection.tsv) in the commit of its own.
  *
  * One writer per folder: every write first takes the folder's lock
  * (config.lock, dirlock.h) if the caller has not, and lets go of the
