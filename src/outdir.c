@@ -476,13 +476,7 @@ static int write_files(const struct outdir *od, const char *dir, const struct re
 		else
 			result_commit_drop(c, RESULT_SELECTION);
 	}
-	if (rc == 0) {
-		result_commit_drop(c, RESULT_PARTIAL);
-		result_commit_drop(c, RESULT_SELECTION_PARTIAL);
-		rc = result_commit_finish(c);
-	}
-	result_commit_free(c);
-	return rc;
+	return result_finish(c, rc);
 }
 
 /* The folders a result goes to when its own cannot take it: DIR.saved-PID

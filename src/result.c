@@ -336,9 +336,13 @@ int result_write(const char *dir, const struct graph *g, const struct fit_params
 	if (check_agm(g, m) || make_dirs(dir))
 		return -1;
 	struct result_commit *c = result_commit_new(dir, graph_fingerprint(g));
-	int rc = c ? result_stage(c, g, p, m, meta) : -1;
+	return result_finish(c, c ? result_stage(c, g, p, m, meta) : -1);
+}
+
+int result_finish(struct result_commit *c, int rc)
+{
 	if (rc == 0) {
-		/* the folder holds this result only */
+		/* the folder holds this result only: no unfinished fit beside it */
 		result_commit_drop(c, RESULT_PARTIAL);
 		result_commit_drop(c, RESULT_SELECTION_PARTIAL);
 		rc = result_commit_finish(c);

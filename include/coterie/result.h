@@ -115,4 +115,10 @@ int result_stage(struct result_commit *c, const struct graph *g, const struct fi
 int result_write(const char *dir, const struct graph *g, const struct fit_params *p,
 		 const struct result_model *m, const struct result_meta *meta);
 
+/* End commit c (takes ownership; NULL allowed when rc is -1): when rc is
+ * 0 (all staged), drop the partial files (checkpoint.partial.cot,
+ * k-selection.partial.tsv) and commit (result_commit_finish()); then free
+ * c. Returns 0 once committed, else -1. */
+int result_finish(struct result_commit *c, int rc);
+
 #endif
