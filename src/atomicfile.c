@@ -38,6 +38,8 @@ struct atomicfile {
 	int err;        /* errno of the first failure, 0 if none */
 	int summing;    /* sum is kept */
 	uint64_t sum;   /* FNV-1a of every byte written since atomicfile_sum_start() */
+	uint64_t whole; /* FNV-1a of every byte flushed to the file */
+	uint64_t total; /* bytes flushed */
 	size_t len;
 	unsigned char *buf; /* BUF_SIZE bytes */
 };
@@ -45,6 +47,10 @@ struct atomicfile {
 static void flush(struct atomicfile *w)
 {
 	size_t done = 0;
+	if (!w->err) {
+		w->whole = util_fnv1a(w->whole, w->buf, w->len);
+		w->total += w->len;
+	}
 	while (!w->err && done < w->len) {
 		ssize_t k = write(w->fd, w->buf + done, w->len - done);
 		if (k < 0) {
@@ -263,7 +269,7 @@ static int stage(const char *path, atomicfile_fill_fn fill, const void *arg, cha
 	size_t cap = strlen(base) + 32;
 	char *tmpname = util_malloc(cap, 1);
 	char *tmp = NULL;
-	struct atomicfile w = { .fd = -1 };
+	struct atomicfile w = { .fd = -1, .whole = UTIL_FNV_INIT };
 	int rc = -1, made = 0;
 	if (!tmpname)
 		goto out;
@@ -323,6 +329,31 @@ int atomicfile_replace(const char *path, atomicfile_fill_fn fill, const void *ar
 	atomicfile_crash_point();
 	free(dir);
 	free(base);
+	return rc;
+}
+
+int atomicfile_stage_as(const char *path, const char *name, atomicfile_fill_fn fill,
+			const void *arg, uint64_t *size, uint64_t *sum)
+{
+	struct atomicfile w = { .fd = -1, .whole = UTIL_FNV_INIT };
+	int rc = -1, made;
+	w.buf = util_malloc(BUF_SIZE, 1);
+	if (!w.buf)
+		return -1;
+	w.fd = open(path, O_WRONLY | O_CREAT | O_TRUNC | O_CLOEXEC | O_NOFOLLOW, 0666);
+	made = w.fd >= 0;
+	if (w.fd < 0) {
+		error("cannot write '%s': %s", name, strerror(errno));
+	} else if (fill(&w, arg) == 0 && finish(&w, name) == 0) {
+		*size = w.total;
+		*sum = w.whole;
+		rc = 0;
+	}
+	if (w.fd >= 0)
+		close(w.fd);
+	if (rc && made)
+		unlink(path);
+	free(w.buf);
 	return rc;
 }
 

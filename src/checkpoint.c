@@ -31,6 +31,7 @@
 #include "coterie/graph.h"
 #include "coterie/model.h"
 #include "coterie/result.h"
+#include "coterie/result_commit.h"
 #include "coterie/savepoint.h"
 #include "coterie/util.h"
 
@@ -474,18 +475,12 @@ int checkpoint_write(const char *path, const struct graph *g, const struct fit_p
 	return atomicfile_replace(path, fill_checkpoint, &a);
 }
 
-int checkpoint_stage(struct atomicfile_set *set, const char *dir, const char *name,
-		     const struct graph *g, const struct fit_params *p,
-		     const struct result_model *m)
+int checkpoint_stage(struct result_commit *c, const char *name, const struct graph *g,
+		     const struct fit_params *p, const struct result_model *m)
 {
 	struct ck_args a = { g, p, m, NULL, { 0 } };
 	stored_params(p, m, &a.saved);
-	char *path = atomicfile_path(dir, name);
-	if (!path)
+	if (checkpoint_ok(name, g, &a.saved, m, &a.savepoint))
 		return -1;
-	int rc = checkpoint_ok(path, g, &a.saved, m, &a.savepoint);
-	free(path);
-	if (rc)
-		return -1;
-	return atomicfile_set_stage(set, dir, name, fill_checkpoint, &a);
+	return result_commit_stage(c, name, fill_checkpoint, &a);
 }

@@ -32,6 +32,7 @@
 #include <unistd.h>
 
 #include "coterie/atomicfile.h"
+#include "coterie/result_commit.h"
 #include "coterie/util.h"
 
 struct dirlock {
@@ -133,6 +134,8 @@ int dirlock_take(struct dirlock *l)
 		    pwrite(fd, "\n", 1, n + (off_t)strlen(l->who)) != 1)
 			warning("cannot record this process in '%s': %s", l->path, strerror(errno));
 		dirlock_clean_stale(l->dir);
+		/* a commit a dead writer left is finished before anything else */
+		result_commit_recover(l->dir);
 		return 0;
 	}
 	return error("cannot lock '%s': its lock file keeps changing", l->path);

@@ -13,9 +13,11 @@
  * result's checkpoint.cot: while a fit runs (or after it was killed) the
  * folder still holds the previous result whole, beside a resumable
  * checkpoint of the new fit that show does not take for the result. The
- * final write removes the partial checkpoint last, once the new result is
- * in place; outdir_read() continues from it only when it is newer than
- * the result.
+ * final write is one commit (result_commit.h): the new files, the files
+ * of an earlier result this run did not write and the partial files
+ * dropped, all at one commit point, so a kill at any moment leaves the
+ * old result whole or the new one; outdir_read() continues from the
+ * partial checkpoint only when it is newer than the result.
  *
  * Invariants: at most one periodic write at a time; a background write
  * holds its own snapshot reference (snapshots and the graph are
@@ -25,8 +27,8 @@
  * A folder holds one result: a run refuses a folder that holds the result
  * of another graph unless forced (outdir_check_graph(), by the graph
  * fingerprint of the checkpoint, else of run.json), and its final write
- * removes the files a result may have that this run did not write
- * (held-out-links.tsv, k-selection.tsv), once its own are in place.
+ * drops the files a result may have that this run did not write
+ * (held-out-links.tsv, k-selection.tsv) in the commit of its own.
  *
  * One writer per folder: every write first takes the folder's lock
  * (config.lock, dirlock.h) if the caller has not, and lets go of the
@@ -59,6 +61,7 @@
 #include "coterie/dirlock.h"
 #include "coterie/graph.h"
 #include "coterie/holdout.h"
+#include "coterie/result_commit.h"
 #include "coterie/result_cover.h"
 #include "coterie/util.h"
 
@@ -105,6 +108,7 @@ struct outdir {
 	struct snapshot *asked;
 	struct identity seen;     /* the checkpoint as this run last saw it */
 	int keep_selection;       /* k-selection.tsv is the continued fit's */
+	char *selection_from;     /* the continued unfinished fit's search */
 	char *elsewhere;          /* where the last failed final write went */
 };
 
@@ -131,8 +135,8 @@ static int partial_newer(const char *ckpath, const char *partpath)
 
 int outdir_read(const char *dir, struct checkpoint *ck)
 {
-	char *path = atomicfile_path(dir, RESULT_CHECKPOINT);
-	char *part = atomicfile_path(dir, RESULT_PARTIAL);
+	char *path = result_file(dir, RESULT_CHECKPOINT);
+	char *part = result_file(dir, RESULT_PARTIAL);
 	int rc = -1;
 	memset(ck, 0, sizeof *ck);
 	if (path && part && partial_newer(path, part)) {
@@ -160,7 +164,7 @@ int outdir_read(const char *dir, struct checkpoint *ck)
 
 int outdir_has_partial(const char *dir)
 {
-	char *part = atomicfile_path(dir, RESULT_PARTIAL);
+	char *part = result_file(dir, RESULT_PARTIAL);
 	int there = part && access(part, F_OK) == 0;
 	free(part);
 	return there;
@@ -176,7 +180,7 @@ struct described {
 static void describe(const char *dir, struct described *d)
 {
 	memset(d, 0, sizeof *d);
-	char *path = atomicfile_path(dir, "run.json");
+	char *path = result_file(dir, "run.json");
 	json_t *root = path ? json_load_file(path, 0, NULL) : NULL;
 	free(path);
 	json_t *g = json_object_get(root, "graph");
@@ -201,7 +205,7 @@ static void describe(const char *dir, struct described *d)
 /* 1 when DIR/checkpoint.partial.cot is a fit of the graph of fingerprint fp. */
 static int partial_of(const char *dir, uint64_t fp)
 {
-	char *part = atomicfile_path(dir, RESULT_PARTIAL);
+	char *part = result_file(dir, RESULT_PARTIAL);
 	uint64_t have;
 	int yes = part && access(part, F_OK) == 0 && checkpoint_read_fingerprint(part, &have) == 0 &&
 		  have == fp;
@@ -211,7 +215,7 @@ static int partial_of(const char *dir, uint64_t fp)
 
 int outdir_check_graph(const char *dir, const struct graph *g, int force)
 {
-	char *ckpath = atomicfile_path(dir, RESULT_CHECKPOINT);
+	char *ckpath = result_file(dir, RESULT_CHECKPOINT);
 	if (!ckpath)
 		return -1;
 	struct described d;
@@ -267,21 +271,26 @@ void outdir_resume(const struct checkpoint *ck, struct fit_params *p, struct fit
 	checkpoint_origin(ck, origin);
 }
 
-/* 1 when DIR/k-selection.tsv is the search of the fit continued: the
- * result's own, or, when the run continues the unfinished fit beside the
- * result (outdir_read()), one written since that result (by the -k auto
- * run of the unfinished fit), not the previous result's. */
-static int selection_continued(const char *dir, const struct outdir *od)
+/* The search of the fit continued, when the run continues the result in
+ * its own folder: the result's k-selection.tsv is kept (od->keep_selection);
+ * or, when it continues the unfinished fit beside the result
+ * (outdir_read()), that fit's k-selection.partial.tsv, if any, is put in
+ * place as k-selection.tsv (od->selection_from). */
+static void selection_continued(const char *dir, struct outdir *od)
 {
-	if (!partial_newer(od->ckpath, od->partpath))
-		return 1;
-	char *sel = atomicfile_path(dir, RESULT_SELECTION);
-	if (!sel)
-		return 0;
-	struct identity s;
-	identity_of(sel, &s);
-	free(sel);
-	return !od->seen.present || (s.present && modified_after(&s, &od->seen));
+	char *ck = result_file(dir, RESULT_CHECKPOINT);
+	char *part = result_file(dir, RESULT_PARTIAL);
+	if (ck && part && partial_newer(ck, part)) {
+		char *sel = result_file(dir, RESULT_SELECTION_PARTIAL);
+		if (sel && access(sel, F_OK) == 0)
+			od->selection_from = sel;
+		else
+			free(sel);
+	} else {
+		od->keep_selection = 1;
+	}
+	free(ck);
+	free(part);
 }
 
 struct outdir *outdir_new(const struct outdir_config *cfg)
@@ -298,7 +307,8 @@ struct outdir *outdir_new(const struct outdir_config *cfg)
 	}
 	od->last = util_now();
 	identity_of(od->ckpath, &od->seen);
-	od->keep_selection = cfg->continues && selection_continued(cfg->dir, od);
+	if (cfg->continues)
+		selection_continued(cfg->dir, od);
 	return od;
 }
 
@@ -444,30 +454,29 @@ void outdir_tick(struct outdir *od, struct fit *f)
 	write_periodic(od, s);
 }
 
-/* Remove DIR/name, a file of an earlier run; a failure is only a warning. */
-static void remove_earlier(const char *dir, const char *name)
-{
-	char *path = atomicfile_path(dir, name);
-	if (path && unlink(path) != 0 && errno != ENOENT) {
-		char esc[400];
-		warning("cannot remove '%s', left by an earlier run: %s",
-			util_escape(path, esc, sizeof esc, 1), strerror(errno));
-	}
-	free(path);
-	atomicfile_crash_point();
-}
-
-/* Every file of the result into dir (made, locked by the caller). */
+/* Every file of the result into dir (made, locked by the caller), as one
+ * commit (result_commit.h): the folder holds this run's files only, so
+ * the files of an earlier result this run did not write are dropped in
+ * the same commit (a continued result keeps the search that chose its k),
+ * and so are the partial files of the unfinished fit. */
 static int write_files(const struct outdir *od, const char *dir, const struct result_model *m,
 		       const struct result_meta *meta, const struct holdout *check)
 {
-	if (meta && meta->selection && result_write_selection(dir, meta->selection))
-		return -1;
-	if (result_write(dir, od->cfg.g, &od->cfg.params, m, meta))
-		return -1;
-	if (check && result_write_links(dir, od->cfg.g, check, m->F, m->epsilon))
-		return -1;
-	return 0;
+	struct result_commit *c = result_commit_new(dir, graph_fingerprint(od->cfg.g));
+	int rc = c ? result_stage(c, od->cfg.g, &od->cfg.params, m, meta) : -1;
+	if (rc == 0 && check)
+		rc = result_stage_links(c, od->cfg.g, check, m->F, m->epsilon);
+	if (rc == 0 && !check)
+		result_commit_drop(c, RESULT_LINKS);
+	if (rc == 0 && !(meta && meta->selection)) {
+		if (od->selection_from)
+			rc = result_commit_stage_copy(c, RESULT_SELECTION, od->selection_from);
+		else if (od->keep_selection)
+			result_commit_keep(c, RESULT_SELECTION);
+		else
+			result_commit_drop(c, RESULT_SELECTION);
+	}
+	return result_finish(c, rc);
 }
 
 /* The folders a result goes to when its own cannot take it: DIR.saved-PID
@@ -551,15 +560,6 @@ int outdir_write(struct outdir *od, const struct result_model *m,
 	}
 	dirlock_spare(od->cfg.lock, 1);
 	identity_of(od->ckpath, &od->seen);
-	/* the folder holds this run's files only; a continued result keeps
-	 * the search that chose its k */
-	if (!check)
-		remove_earlier(dir, RESULT_LINKS);
-	if (!(meta && meta->selection) && !od->keep_selection)
-		remove_earlier(dir, RESULT_SELECTION);
-	/* last: until the result is whole, the unfinished fit is what a
-	 * resumed run continues */
-	remove_earlier(dir, RESULT_PARTIAL);
 	return 0;
 }
 
@@ -573,6 +573,6 @@ void outdir_free(struct outdir *od)
 	if (od) {
 		join(od); /* the periodic write, then what it and the caller leave */
 		snapshot_release(od->asked);
-		UTIL_FREE_ALL(od->elsewhere, od->ckpath, od->partpath, od);
+		UTIL_FREE_ALL(od->elsewhere, od->selection_from, od->ckpath, od->partpath, od);
 	}
 }

@@ -3,13 +3,12 @@
  * described once, in coterie-files(5) (man/coterie-files.5); keep the two
  * in step.
  *
- * The idea: result_write() stages all five files through atomicfile.h
- * (written, synced, closed under temporary names) before it renames any of
- * them, so a full disk or any write error leaves the old folder whole; then
- * it renames the checkpoint first (it alone holds the strengths) and
- * run.json last, which marks a folder whose files all belong to the same
- * model. The checkpoint is checkpoint.c's, run.json runjson.c's; the TSV
- * files are here.
+ * The idea: result_stage() stages every file of a result into one commit
+ * (result_commit.h: written, synced, closed under hidden names), and the
+ * commit replaces them as one, so a full disk, a write error or a kill at
+ * any moment leaves the old folder whole or the new one whole. The
+ * checkpoint is checkpoint.c's, run.json runjson.c's; the TSV files are
+ * here.
  *
  * The one thing a newcomer gets wrong: the TSV files are written from the
  * model's AGM (struct result_model.agm), which is not always the one read
@@ -36,6 +35,7 @@
 #include "coterie/graph.h"
 #include "coterie/holdout.h"
 #include "coterie/model.h"
+#include "coterie/result_commit.h"
 #include "coterie/select.h"
 #include "coterie/util.h"
 
@@ -232,7 +232,7 @@ int result_write_selection(const char *dir, const struct select_result *sel)
 {
 	if (make_dirs(dir))
 		return -1;
-	char *path = atomicfile_path(dir, RESULT_SELECTION);
+	char *path = atomicfile_path(dir, RESULT_SELECTION_PARTIAL);
 	if (!path)
 		return -1;
 	int rc = atomicfile_replace(path, fill_selection, sel);
@@ -271,20 +271,13 @@ static int fill_links(struct atomicfile *w, const void *arg)
 	return 0;
 }
 
-int result_write_links(const char *dir, const struct graph *g, const struct holdout *h,
+int result_stage_links(struct result_commit *c, const struct graph *g, const struct holdout *h,
 		       const struct fcsr *F, double epsilon)
 {
 	if (F->n != g->n)
 		return error("cannot write held-out links: %u rows for %u nodes", F->n, g->n);
-	if (make_dirs(dir))
-		return -1;
-	char *path = atomicfile_path(dir, RESULT_LINKS);
-	if (!path)
-		return -1;
 	struct links_args a = { g, h, F, model_qeps(epsilon) };
-	int rc = atomicfile_replace(path, fill_links, &a);
-	free(path);
-	return rc;
+	return result_commit_stage(c, RESULT_LINKS, fill_links, &a);
 }
 
 static int fill_text(struct atomicfile *w, const void *arg)
@@ -317,28 +310,43 @@ static int check_agm(const struct graph *g, const struct result_model *s)
 	return 0;
 }
 
+int result_stage(struct result_commit *c, const struct graph *g, const struct fit_params *p,
+		 const struct result_model *m, const struct result_meta *meta)
+{
+	struct tsv_args ta = { g, m };
+	if (check_agm(g, m))
+		return -1;
+	if (meta && meta->selection &&
+	    result_commit_stage(c, RESULT_SELECTION, fill_selection, meta->selection))
+		return -1;
+	if (checkpoint_stage(c, RESULT_CHECKPOINT, g, p, m) ||
+	    result_commit_stage(c, "memberships.tsv", fill_memberships, &ta) ||
+	    result_commit_stage(c, "communities.tsv", fill_communities, &ta) ||
+	    result_commit_stage(c, "trace.tsv", fill_trace, &ta))
+		return -1;
+	char *text = result_run_json(g, p, m, meta);
+	int rc = text ? result_commit_stage(c, "run.json", fill_text, text) : -1;
+	free(text);
+	return rc;
+}
+
 int result_write(const char *dir, const struct graph *g, const struct fit_params *p,
 		 const struct result_model *m, const struct result_meta *meta)
 {
-	struct atomicfile_set set;
-	struct tsv_args ta = { g, m };
-	char *text = NULL;
-	int rc = -1;
-	atomicfile_set_init(&set);
 	if (check_agm(g, m) || make_dirs(dir))
 		return -1;
-	/* the checkpoint first and run.json last, in the order of renaming */
-	if (checkpoint_stage(&set, dir, RESULT_CHECKPOINT, g, p, m) ||
-	    atomicfile_set_stage(&set, dir, "memberships.tsv", fill_memberships, &ta) ||
-	    atomicfile_set_stage(&set, dir, "communities.tsv", fill_communities, &ta) ||
-	    atomicfile_set_stage(&set, dir, "trace.tsv", fill_trace, &ta))
-		goto out;
-	text = result_run_json(g, p, m, meta);
-	if (!text || atomicfile_set_stage(&set, dir, "run.json", fill_text, text))
-		goto out;
-	rc = atomicfile_set_commit(&set, dir);
-out:
-	atomicfile_set_release(&set);
-	free(text);
+	struct result_commit *c = result_commit_new(dir, graph_fingerprint(g));
+	return result_finish(c, c ? result_stage(c, g, p, m, meta) : -1);
+}
+
+int result_finish(struct result_commit *c, int rc)
+{
+	if (rc == 0) {
+		/* the folder holds this result only: no unfinished fit beside it */
+		result_commit_drop(c, RESULT_PARTIAL);
+		result_commit_drop(c, RESULT_SELECTION_PARTIAL);
+		rc = result_commit_finish(c);
+	}
+	result_commit_free(c);
 	return rc;
 }

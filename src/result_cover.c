@@ -40,6 +40,7 @@
 #include "coterie/checkpoint.h"
 #include "coterie/cover.h"
 #include "coterie/result.h"
+#include "coterie/result_commit.h"
 #include "coterie/graph.h"
 #include "coterie/inspect.h"
 #include "coterie/model.h"
@@ -62,7 +63,7 @@ const char *result_cover_words(enum result_cover_from from)
 
 static json_t *load_run_json(const char *dir)
 {
-	char *path = atomicfile_path(dir, RUN_JSON);
+	char *path = result_file(dir, RUN_JSON);
 	if (!path)
 		return NULL;
 	json_t *root = json_load_file(path, 0, NULL);
@@ -177,7 +178,7 @@ static int run_matches(const char *dir, const struct checkpoint *ck, double *agm
 static int read_p(const char *dir, uint32_t k, const uint32_t *id, const uint32_t *size,
 		  double *p)
 {
-	char *path = atomicfile_path(dir, "communities.tsv");
+	char *path = result_file(dir, "communities.tsv");
 	FILE *f = path ? fopen(path, "r") : NULL;
 	free(path);
 	if (!f) {
@@ -291,7 +292,7 @@ static int read_refined(struct agm *out, const char *dir, const struct checkpoin
 	memset(out, 0, sizeof *out);
 	if (run_matches(dir, ck, &loglik_run))
 		return -1;
-	char *path = atomicfile_path(dir, "memberships.tsv");
+	char *path = result_file(dir, "memberships.tsv");
 	int loaded = path && cover_load(&raw, path, g) == 0;
 	free(path);
 	if (!loaded || by_column(&c, &raw, &ck->F, &ids))
@@ -439,7 +440,7 @@ void result_cover_check_folder(const char *dir, const struct checkpoint *ck,
 	}
 	if (result_cover_is_refined(dir))
 		return; /* read_refined() checks that cover against run.json */
-	char *path = atomicfile_path(dir, "memberships.tsv");
+	char *path = result_file(dir, "memberships.tsv");
 	if (path && access(path, F_OK) == 0 && memberships_match(path, ck, rule) == 0)
 		warning("memberships.tsv is not the cover of the strengths in %s (edited, or of "
 			"another fit): the strengths' cover is the one read", RESULT_CHECKPOINT);

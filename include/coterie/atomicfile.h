@@ -55,6 +55,14 @@ char *atomicfile_path(const char *dir, const char *name);
  * renamed, folder synced. Returns 0 or -1 with a message naming path. */
 int atomicfile_replace(const char *path, atomicfile_fill_fn fill, const void *arg);
 
+/* Write path itself (not a temporary name: path is already a staged
+ * name, see result_commit.h) through fill (arg borrowed), flushed,
+ * fsync()ed and closed; *size and *sum get its length and the FNV-1a of
+ * all its bytes (util_fnv1a()). Messages name the file as name. Returns
+ * 0, or -1 with a message and path removed. */
+int atomicfile_stage_as(const char *path, const char *name, atomicfile_fill_fn fill,
+			const void *arg, uint64_t *size, uint64_t *sum);
+
 /* Files staged together, renamed together. */
 #define ATOMICFILE_SET_MAX 8
 struct atomicfile_set {

@@ -13,7 +13,7 @@
 
 #include "fit.h"
 
-struct atomicfile_set;
+struct result_commit;
 struct graph;
 struct result_model;
 
@@ -26,11 +26,11 @@ struct result_model;
 int checkpoint_write(const char *path, const struct graph *g, const struct fit_params *p,
 		     const struct result_model *m);
 
-/* The same, staged as DIR/name in set (to be committed with the folder's
- * other files). Returns 0 or -1 with a message. */
-int checkpoint_stage(struct atomicfile_set *set, const char *dir, const char *name,
-		     const struct graph *g, const struct fit_params *p,
-		     const struct result_model *m);
+/* The same, staged as name in commit c (result_commit.h), to be
+ * committed with the folder's other files. Returns 0 or -1 with a
+ * message. */
+int checkpoint_stage(struct result_commit *c, const char *name, const struct graph *g,
+		     const struct fit_params *p, const struct result_model *m);
 
 /* A checkpoint read back. Rules: graph->n == F.n, F.k == params.k, the
  * trace ends at or before sweep, and savepoint (when present) fits the

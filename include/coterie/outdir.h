@@ -83,15 +83,15 @@ void outdir_free(struct outdir *od);
 void outdir_tick(struct outdir *od, struct fit *f);
 
 /* The final write: waits for a periodic write, makes the folder, takes
- * its lock, writes k-selection.tsv (when meta->selection), the whole
- * folder from model m, and held-out-links.tsv when check is not NULL (its
- * pairs scored with m->F and m->epsilon). Then, the new files in place, it
- * removes those of an earlier run that this one did not write:
- * held-out-links.tsv, and k-selection.tsv unless config.continues and it
- * is the continued fit's (not the previous result's when the run continues
- * the unfinished fit of checkpoint.partial.cot), and
- * last the periodic checkpoint.partial.cot. All
- * borrowed. Returns 0 or -1 with a message. A result that cannot be
+ * its lock, and replaces the result there as one (result_commit.h) by
+ * k-selection.tsv (when meta->selection; else, when the run continues the
+ * unfinished fit, that fit's k-selection.partial.tsv), the whole folder
+ * from model m, and held-out-links.tsv when check is not NULL (its pairs
+ * scored with m->F and m->epsilon); the same commit drops the files of an
+ * earlier run that this one did not write: held-out-links.tsv, and
+ * k-selection.tsv unless config.continues the result in its folder, and
+ * the partial files (checkpoint.partial.cot, k-selection.partial.tsv).
+ * All borrowed. Returns 0 or -1 with a message. A result that cannot be
  * written to the folder (locked by another writer, rewritten since it was
  * opened, read-only, full, no descriptor) is written elsewhere before -1
  * is returned: to the sibling folder DIR.saved-PID, else to

@@ -23,25 +23,32 @@ struct graph;
  * newer than RESULT_CHECKPOINT (outdir_read()). */
 #define RESULT_PARTIAL "checkpoint.partial.cot"
 #define RESULT_SELECTION "k-selection.tsv"
+/* The search of a -k auto fit still running (or killed): written before
+ * the fit, beside the previous result; the fit's final write puts it in
+ * place as RESULT_SELECTION (outdir.h). */
+#define RESULT_SELECTION_PARTIAL "k-selection.partial.tsv"
 
 struct refine_report;
 struct select_result;
 struct background_choice;
 
-/* Write DIR/k-selection.tsv (k, held-out log-likelihood, held-out AUC,
- * sweeps, seconds, chosen, folds, the log-likelihood's standard deviation
- * over the folds, asked/added) for a -k auto search (sel borrowed),
- * atomically. Returns 0 or -1. */
+/* Write DIR/k-selection.partial.tsv (the columns of k-selection.tsv: k,
+ * held-out log-likelihood, held-out AUC, sweeps, seconds, chosen, folds,
+ * the log-likelihood's standard deviation over the folds, asked/added)
+ * for a -k auto search (sel borrowed), atomically, before the fit: the
+ * previous result in DIR stays whole. Returns 0 or -1. */
 int result_write_selection(const char *dir, const struct select_result *sel);
 
 #define RESULT_LINKS "held-out-links.tsv"
 
 struct holdout;
 
-/* Write DIR/held-out-links.tsv (node_a, node_b, edge 1/0, the model's
+struct result_commit;
+
+/* Stage DIR/held-out-links.tsv (node_a, node_b, edge 1/0, the model's
  * probability 1 - exp(-(F_a.F_b + qeps))) for every held-out pair of h,
- * edges first; g, h and F borrowed. Returns 0 or -1. */
-int result_write_links(const char *dir, const struct graph *g, const struct holdout *h,
+ * edges first, into commit c; g, h and F borrowed. Returns 0 or -1. */
+int result_stage_links(struct result_commit *c, const struct graph *g, const struct holdout *h,
 		       const struct fcsr *F, double epsilon);
 
 /* The held-out check of the final model (fit --check-links). */
@@ -98,10 +105,23 @@ struct result_model {
 /* Point every field of m into snapshot s (borrowed: s must outlive m). */
 void result_model_of(struct result_model *m, const struct snapshot *s);
 
-/* Write the whole folder from model m of a fit of g with parameters p (all
- * borrowed; meta may be NULL). Returns 0 or -1 with a message; on failure
- * no file is replaced (every file is staged before any is renamed). */
+/* Stage every file of the result of model m of a fit of g with
+ * parameters p into commit c (result_commit.h): k-selection.tsv when
+ * meta->selection, checkpoint.cot, memberships.tsv, communities.tsv,
+ * trace.tsv, run.json. All borrowed; meta may be NULL. 0 or -1. */
+int result_stage(struct result_commit *c, const struct graph *g, const struct fit_params *p,
+		 const struct result_model *m, const struct result_meta *meta);
+
+/* Write the whole folder from model m (result_stage()), replacing the
+ * result there as one, partial files dropped (all borrowed; meta may be
+ * NULL). Returns 0 or -1 with a message; on failure no file is replaced. */
 int result_write(const char *dir, const struct graph *g, const struct fit_params *p,
 		 const struct result_model *m, const struct result_meta *meta);
+
+/* End commit c (takes ownership; NULL allowed when rc is -1): when rc is
+ * 0 (all staged), drop the partial files (checkpoint.partial.cot,
+ * k-selection.partial.tsv) and commit (result_commit_finish()); then free
+ * c. Returns 0 once committed, else -1. */
+int result_finish(struct result_commit *c, int rc);
 
 #endif

@@ -29,6 +29,7 @@
 
 #include "cli.h"
 #include "coterie/cover.h"
+#include "coterie/result_commit.h"
 #include "coterie/jsonout.h"
 #include "coterie/score.h"
 
@@ -69,7 +70,11 @@ static int resolve(const char *arg, char *path)
 {
 	struct stat st;
 	int dir = stat(arg, &st) == 0 && S_ISDIR(st.st_mode);
-	int w = snprintf(path, PATH_CAP, "%s%s", arg, dir ? "/memberships.tsv" : "");
+	char *in = dir ? result_file(arg, "memberships.tsv") : NULL; /* result_commit.h */
+	if (dir && !in)
+		return -1;
+	int w = snprintf(path, PATH_CAP, "%s", in ? in : arg);
+	free(in);
 	if (w < 0 || w >= PATH_CAP) {
 		char buf[256];
 		return error("the file name is too long: %s", util_escape(arg, buf, sizeof buf, 1));

@@ -34,6 +34,7 @@
 #include "coterie/memory.h"
 #include "coterie/outdir.h"
 #include "coterie/result.h"
+#include "coterie/result_commit.h"
 #include "coterie/result_cover.h"
 #include "coterie/select.h"
 
@@ -234,7 +235,7 @@ static int parse_args(struct run *r, int argc, char **argv)
  * on. Returns 0 or -1 (reported). */
 static int open_folder(struct run *r, struct tui_config *cfg)
 {
-	char *path = atomicfile_path(r->arg, RESULT_CHECKPOINT);
+	char *path = result_file(r->arg, RESULT_CHECKPOINT);
 	if (!path)
 		return -1;
 	int missing = access(path, F_OK) != 0 && !outdir_has_partial(r->arg);

@@ -41,6 +41,7 @@
 #include "coterie/model.h"
 #include "coterie/outdir.h"
 #include "coterie/result.h"
+#include "coterie/result_commit.h"
 #include "coterie/result_cover.h"
 #include "coterie/suggest.h"
 
@@ -744,18 +745,23 @@ static int show_parse(int argc, char **argv, struct show_args *o, int *status)
  * message (nothing left to release). */
 static int show_open(struct show *s)
 {
-	char path[4096], buf[NAME_CAP];
-	int w = snprintf(path, sizeof path, "%s/%s", s->dir, RESULT_CHECKPOINT);
-	if (w < 0 || (size_t)w >= sizeof path)
-		return error("the folder name is too long: %s",
-			     util_escape(s->dir, buf, sizeof buf, 1));
-	/* the result, never the unfinished fit beside it; that one only
-	 * when the folder has no result yet, and said */
+	char buf[NAME_CAP];
+	/* the result (read through a commit a writer left, result_commit.h),
+	 * never the unfinished fit beside it; that one only when the folder
+	 * has no result yet, and said */
+	char *path = result_file(s->dir, RESULT_CHECKPOINT);
+	if (!path)
+		return -1;
 	int partial = outdir_has_partial(s->dir), none = partial && access(path, F_OK) != 0;
 	util_escape(s->dir, buf, sizeof buf, 1);
-	if (none)
-		snprintf(path, sizeof path, "%s/%s", s->dir, RESULT_PARTIAL);
-	if (checkpoint_read(path, &s->ck))
+	if (none) {
+		free(path);
+		if (!(path = result_file(s->dir, RESULT_PARTIAL)))
+			return -1;
+	}
+	int rc = checkpoint_read(path, &s->ck);
+	free(path);
+	if (rc)
 		return -1;
 	if (none)
 		notice("'%s' holds no result yet, only an unfinished fit (%s, %" PRIu32 " sweeps): "

@@ -34,8 +34,8 @@ check "a fit resumed in its folder keeps the k-selection.tsv that chose its k" \
 "$BIN" fit "$karate" -k 3 -q --seed 2 -o "$b"
 check "a second fit with a given k leaves no k-selection.tsv" [ ! -e "$b/k-selection.tsv" ]
 check "and its run.json has no k selection" [ "$(json_get "$b/run.json" k_selection)" = null ]
-check "and no temporary or stray file: the five files of a result" \
-	[ "$(ls -A "$b" | wc -l)" -eq 5 ]
+check "and no temporary or stray file: the five files of a result and its manifest" \
+	[ "$(ls -A "$b" | wc -l)" -eq 6 ] && [ -f "$b/.coterie.manifest" ]
 
 # A different graph: refused, the folder untouched; --force replaces it.
 cp "$a/run.json" "$tmp/a.run.json"

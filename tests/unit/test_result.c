@@ -386,12 +386,15 @@ static void test_folder_holds_five_files_and_no_temporaries(void **state)
 	const char *dir = write_folder();
 	char names[2048];
 	list_dir(dir, names, sizeof names);
-	/* the five files of result.h; no ".NAME.tmp-PID" and no probe left */
-	assert_string_equal(names, "checkpoint.cot communities.tsv memberships.tsv run.json trace.tsv");
+	/* the five files of result.h and the manifest of result_commit.h; no
+	 * ".NAME.tmp-PID", no staged file and no probe left */
+	assert_string_equal(names, ".coterie.manifest checkpoint.cot communities.tsv memberships.tsv "
+			    "run.json trace.tsv");
 	/* writing again over the same folder replaces the files, still no leftovers */
 	assert_int_equal(result_write(dir, fx.g, &fx.p, model_of(&fx.s), &fx.meta), 0);
 	list_dir(dir, names, sizeof names);
-	assert_string_equal(names, "checkpoint.cot communities.tsv memberships.tsv run.json trace.tsv");
+	assert_string_equal(names, ".coterie.manifest checkpoint.cot communities.tsv memberships.tsv "
+			    "run.json trace.tsv");
 	remove_folder(dir);
 }
 

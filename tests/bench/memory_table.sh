@@ -1,0 +1,53 @@
+#!/bin/sh
+# The memory estimate against the measured peak (issue 18): for each graph
+# and k, at -j 1 and 2, the fit's estimate "in all" (what the refusal
+# message prints; COTERIE_MEMORY_LIMIT=1K forces it) beside the peak RSS
+# run.json records, and their ratio. Graphs: planted with clean
+# communities (simulate's defaults) and ones that leak (--mixing 0.1, 0.2,
+# 0.3: the bench's graphs with mixing), at 10^4 and 10^5 nodes (10^5 and
+# 10^6 edges); k: 10, 100, 1000 and the planted count. Every fit runs
+# --starts 1 --max-sweeps 10 (the peak is in the first sweeps: rows fill
+# then empty, DEVELOPERS.md). Prints a Markdown table.
+# usage: tests/bench/memory_table.sh [BIN] [SIZES]   (SIZES default "10000 100000")
+set -u
+BIN=$(readlink -f "${1:-./coterie}")
+SIZES=${2:-"10000 100000"}
+work=$(mktemp -d)
+trap 'rm -rf "$work"' EXIT
+echo "| graph | n | edges | k | -j | resident at the check MiB | estimate in all MiB | peak MiB | estimate/peak |"
+echo "|---|---|---|---|---|---|---|---|---|"
+for n in $SIZES; do
+	for g in clean 0.1 0.2 0.3; do
+		d=$work/$g-$n
+		if [ "$g" = clean ]; then
+			"$BIN" simulate -n "$n" --seed 1 -o "$d" -q
+		else
+			"$BIN" simulate -n "$n" --sizes 20:2000 --size-exponent 2 --overlap 0.1 \
+				--mean-degree 20 --even-degrees --mixing "$g" --seed 1 -o "$d" -q
+		fi
+		planted=$(tail -n +2 "$d/planted.tsv" | wc -l)
+		m=$(grep -vc '^#' "$d/edges.tsv")
+		for k in 10 100 1000 "$planted"; do
+			for j in 1 2; do
+				est=$(COTERIE_MEMORY_LIMIT=1K "$BIN" fit "$d/edges.tsv" -k "$k" -j "$j" \
+					--starts 1 --max-sweeps 10 -q -o "$work/o" 2>&1 |
+					sed -n 's/.*about \([0-9.]*\) \([MGK]i*B\) more (\([0-9.]*\) \([MGK]i*B\) in all.*/\1 \2 \3 \4/p')
+				rm -rf "$work/o"
+				"$BIN" fit "$d/edges.tsv" -k "$k" -j "$j" --starts 1 --max-sweeps 10 -q \
+					-o "$work/o" 2>/dev/null
+				peak=$(python3 -c "import json,sys; print(json.load(open(sys.argv[1]))['run']['peak_rss_kb'])" "$work/o/run.json")
+				rm -rf "$work/o"
+				python3 - "$g" "$n" "$m" "$k" "$j" "$est" "$peak" <<'PY'
+import sys
+g, n, m, k, j, est, peak = sys.argv[1:]
+f = est.split()
+unit = {"KiB": 1 / 1024, "MiB": 1, "GiB": 1024}
+more, mib = float(f[0]) * unit[f[1]], float(f[2]) * unit[f[3]]
+p = int(peak) / 1024
+print("| %s | %s | %s | %s | %s | %.0f | %.0f | %.1f | %.2f |" % (
+    "clean" if g == "clean" else "mixing " + g, n, m, k, j, mib - more, mib, p, mib / p))
+PY
+			done
+		done
+	done
+done
