@@ -131,7 +131,8 @@ int background_choose(const struct graph *g, const struct fit_params *p, int (*s
 		out->ncand = i + 1;
 		if (out->cand[i].covered > out->cand[best].covered)
 			best = i;
-		if (out->cand[i].covered >= need) {
+		if (out->cand[i].covered >= need ||
+		    (i == 0 && out->cand[0].covered >= BACKGROUND_THIN * out->linked)) {
 			best = i;
 			break;
 		}

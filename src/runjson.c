@@ -119,6 +119,7 @@ static json_t *j_background(const struct background_choice *b)
 	jsonout_set(o, "epsilon", jsonout_real(b->epsilon), &bad);
 	jsonout_set(o, "density", jsonout_real(b->density), &bad);
 	jsonout_set(o, "linked_nodes", jsonout_uint(b->linked), &bad);
+	jsonout_set(o, "thin_share", jsonout_real(BACKGROUND_THIN), &bad);
 	jsonout_set(o, "cover_share_wanted", jsonout_real(BACKGROUND_COVER), &bad);
 	for (uint32_t i = 0; i < b->ncand; i++) {
 		const struct background_candidate *c = &b->cand[i];

@@ -78,8 +78,8 @@ static void fit_usage(FILE *out)
 		"                        local moves; memberships.tsv holds the refined cover\n"
 		"      --refine-rounds N at most N rounds of refinement (default 50)\n"
 		"      --epsilon X       background link probability (default: the density;\n"
-		"                        below 20000 edges, the largest multiple of it whose\n"
-		"                        cover holds 90%% of the linked nodes)\n"
+		"                        below 20000 edges, when it leaves most nodes out,\n"
+		"                        the largest multiple of it whose cover holds 90%%)\n"
 		"      --format F        edges, gml, graphml or pajek (default: by extension)\n"
 		"      --skip-lines N    edge lists: skip the first N lines (then no header is guessed)\n"
 		"      --no-header       edge lists: the first line is an edge, never a header\n"
@@ -461,9 +461,10 @@ static int choose_background(struct run *r)
 	struct fit_params *p = &r->p;
 	int searches = !(p->epsilon > 0.0) && r->g->m < BACKGROUND_MAX_EDGES;
 	if (searches && !r->quiet)
-		notice("choosing the background epsilon: the largest multiple of the density "
-		       "(%.4g) whose cover holds %.0f%% of the linked nodes (see --epsilon)",
-		       model_default_epsilon(r->g), 100.0 * BACKGROUND_COVER);
+		notice("choosing the background epsilon: the density (%.4g) unless it leaves "
+		       "%.0f%% of the linked nodes out, then the largest multiple of it whose "
+		       "cover holds %.0f%% (see --epsilon)", model_default_epsilon(r->g),
+		       100.0 * (1.0 - BACKGROUND_THIN), 100.0 * BACKGROUND_COVER);
 	int rc = background_choose(r->g, p, stop_asked, &r->quiet, &r->bg);
 	if (rc == -2)
 		error("interrupted while choosing the background; no fit to save yet");

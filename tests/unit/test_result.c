@@ -759,8 +759,8 @@ static void test_k_selection_and_link_check_are_recorded(void **state)
 	assert_keys(get(root, "link_check", NULL), lkeys, 5);
 	assert_int_equal(json_integer_value(get(root, "link_check", "held_out_non_edges")), 13);
 	static const char *const bkeys[] = { "rule", "epsilon", "density", "linked_nodes",
-					     "cover_share_wanted", "candidates" };
-	assert_keys(get(root, "background", NULL), bkeys, 6);
+					     "thin_share", "cover_share_wanted", "candidates" };
+	assert_keys(get(root, "background", NULL), bkeys, 7);
 	assert_string_equal(json_string_value(get(root, "background", "rule")), "coverage");
 	assert_true(json_real_value(get(root, "background", "epsilon")) == 0.175);
 	json_t *cands = get(root, "background", "candidates");
