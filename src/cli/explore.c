@@ -70,6 +70,7 @@ static void explore_usage(FILE *out)
 		"      --skip-lines N    edge lists: skip the first N lines (then no header is guessed)\n"
 		"      --no-header       edge lists: the first line is an edge, never a header\n"
 		"      --weighted        fit the Poisson model of edge weights (see coterie fit)\n"
+		"      --directed, --two-mode  not yet available in the explorer\n"
 		"      --weight-attr NAME  the edge attribute holding the weights\n"
 		"      --resume          with DIR: continue the saved fit at once\n"
 		"      --checkpoint-every SECONDS\n"
