@@ -330,9 +330,12 @@ static void put_resume_section(struct atomicfile *w, const struct fit_savepoint 
 static void put_model_section(struct atomicfile *w, const struct graph *g,
 			      const struct fit_params *p)
 {
-	put_section(w, "MODL", 8 + (g->wt ? g->m * 8 : 0));
+	int sided = model_kind_sided(p->model);
+	put_section(w, "MODL", 8 + (sided ? 4 : 0) + (g->wt ? g->m * 8 : 0));
 	put_u32(w, (uint32_t)p->model);
 	put_u32(w, g->wt ? 1 : 0);
+	if (sided) /* a two-sided graph: its senders come first */
+		put_u32(w, g->nsend);
 	if (g->wt)
 		for (uint32_t u = 0; u < g->n; u++)
 			for (uint64_t i = g->off[u]; i < g->off[u + 1]; i++)

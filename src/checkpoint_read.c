@@ -474,6 +474,16 @@ static int read_model(const char *path, struct rd *sec, struct checkpoint *ck)
 		return damaged(path, "model %" PRIu32 " or weight flag %" PRIu32 " out of range",
 			       model, weighted);
 	ck->params.model = (enum model_kind)model;
+	if (model_kind_sided(ck->params.model)) {
+		char why[160];
+		if (sec->left < 4)
+			return damaged(path, "the model section is too short");
+		uint32_t nsend = rd_u32(sec);
+		if (weighted || graph_check_sides(g, nsend, model == MODEL_DIRECTED, why, sizeof why))
+			return damaged(path, "%s", weighted ? "a two-sided graph with weights" : why);
+		g->nsend = nsend;
+		g->paired = model == MODEL_DIRECTED;
+	}
 	if (!weighted)
 		return rd_section_end(path, sec, "MODL");
 	if (sec->left / 8 != g->m || sec->left % 8)

@@ -26,6 +26,10 @@ struct fit {
 	uint32_t *inner;
 	const struct graph *excl;  /* held-out pairs in g's ids (borrowed) */
 	struct graph excl_i;       /* the same in gw's ids */
+	/* a directed fit (g->paired): the pairs (F_u, H_u), which are no
+	 * term of the likelihood (held out for good), and the undirected
+	 * view the seeds are drawn from; owned, else NULL */
+	struct graph *self_pairs, *view;
 	struct fit_params p;
 	struct model m;
 	const struct objective_ops *ops; /* the likelihood (model_objective()) */

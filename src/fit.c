@@ -41,6 +41,7 @@
 #include <time.h>
 #include <unistd.h>
 
+#include "coterie/model_directed.h"
 #include "coterie/order.h"
 #include "coterie/util.h"
 #include "fit-internal.h"
@@ -513,7 +514,9 @@ struct fit *fit_new(const struct graph *g, const struct fit_params *p,
 	pthread_cond_init(&f->cond, NULL);
 	if (model_init(&f->m, g->n, p->k, eps))
 		goto fail;
-	if (p->renumber) {
+	if (model_kind_sided(p->model) && model_directed_prepare(g, &f->m, &f->self_pairs, &f->view))
+		goto fail;
+	if (p->renumber && !g->nsend) { /* a two-sided model keeps its sides in order */
 		f->inner = util_malloc(g->n, sizeof *f->inner);
 		if (!f->inner || order_bfs(g, f->inner) || order_graph(g, f->inner, &f->gi))
 			goto fail;
@@ -549,7 +552,7 @@ int fit_start(struct fit *f)
 {
 	if (f->started)
 		return error("the fit is already running");
-	f->m.excl = f->excl;
+	f->m.excl = f->excl ? f->excl : f->self_pairs;
 	if (f->excl && f->inner) {
 		order_graph_release(&f->excl_i);
 		if (order_graph(f->excl, f->inner, &f->excl_i))
@@ -703,6 +706,8 @@ void fit_free(struct fit *f)
 	model_release(&f->m);
 	order_graph_release(&f->gi);
 	order_graph_release(&f->excl_i);
+	graph_free(f->self_pairs);
+	graph_free(f->view);
 	free(f->inner);
 	free(f->trace);
 	for (int i = 0; i < 2; i++)

@@ -34,6 +34,24 @@
 struct graph *graph_assemble(struct names *t, const uint32_t *pairs, uint64_t npairs,
 			     const struct graph_report *rep, const char *source);
 
+/* graph_assemble() for a two-sided graph (graph_directed.c): the pairs
+ * are arcs (first id sends), or with two_mode links from a first-column
+ * node to a second-column node, two kinds whose names may repeat. t
+ * taken. NULL with error(); caller frees with graph_free(). */
+struct graph *graph_assemble_sided(struct names *t, const uint32_t *pairs, uint64_t npairs,
+				   const struct graph_report *rep, const char *source,
+				   int two_mode);
+
+/* graph_assemble() or graph_assemble_sided() as o asks (o borrowed). */
+static inline struct graph *graph_assemble_as(struct names *t, const uint32_t *pairs,
+					      uint64_t npairs, const struct graph_report *rep,
+					      const char *source, const struct graph_load_opts *o)
+{
+	if (o && (o->directed || o->two_mode))
+		return graph_assemble_sided(t, pairs, npairs, rep, source, !o->directed);
+	return graph_assemble(t, pairs, npairs, rep, source);
+}
+
 /* names_intern() for node names: the table full is the error "too many
  * nodes". Returns the id, or -1 with error(). (graph.c) */
 int64_t graph_intern(struct names *t, const char *s, size_t len, int *added);

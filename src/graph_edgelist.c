@@ -844,7 +844,7 @@ struct graph *graph_load_edges(const char *path, const char *shown,
 	gz = NULL;
 	st.rep.lines = lineno;
 
-	struct graph *g = graph_assemble(st.t, st.pairs.v, st.pairs.len, &st.rep, path);
+	struct graph *g = graph_assemble_as(st.t, st.pairs.v, st.pairs.len, &st.rep, path, o);
 	st.t = NULL;
 	if (g && st.weighted && graph_set_weights(g, st.pairs.v, st.wv, st.pairs.len, shown)) {
 		graph_free(g);

@@ -372,9 +372,10 @@ static struct graph *from_igraph(const igraph_t *ig, enum graph_format fmt, cons
 	struct graph_report rep = { .format = fmt };
 	if (igraph_is_directed(ig)) {
 		rep.directed_input = 1;
-		notice("%s: the graph is directed; it is read as undirected", shown);
+		if (!o->directed)
+			notice("%s: the graph is directed; it is read as undirected", shown);
 	}
-	g = graph_assemble(t, pairs, (uint64_t)ne, &rep, path);
+	g = graph_assemble_as(t, pairs, (uint64_t)ne, &rep, path, o);
 	t = NULL;
 	if (g && w && graph_set_weights(g, pairs, w, (uint64_t)ne, shown)) {
 		graph_free(g);

@@ -48,6 +48,10 @@ double model_default_epsilon(const struct graph *g)
 {
 	double n = g->n;
 	double eps = n > 1 ? 2.0 * (double)g->m / (n * (n - 1.0)) : 0.0;
+	if (g->nsend) { /* two-sided: links over sending x receiving pairs */
+		double pairs = (double)g->nsend * (n - g->nsend) - (g->paired ? g->nsend : 0.0);
+		eps = pairs > 0 ? (double)g->m / pairs : 0.0;
+	}
 	if (!(eps >= 1e-12))
 		eps = 1e-12;
 	if (eps > 0.5)
@@ -88,6 +92,27 @@ int model_init(struct model *m, uint32_t n, uint32_t k, double epsilon)
 	return 0;
 }
 
+int model_set_sides(struct model *m, uint32_t nsend)
+{
+	if (nsend == 0 || nsend >= m->n)
+		return error("a two-sided model needs rows on both sides (%u of %u send)", nsend,
+			     m->n);
+	double *cs = util_calloc(2 * (size_t)m->k, sizeof *cs);
+	if (!cs)
+		return -1;
+	free(m->colsum);
+	m->colsum = cs;
+	m->nsend = nsend;
+	model_recount(m);
+	return 0;
+}
+
+/* The column sums row u adds to: its side's. */
+static inline double *own_colsum(struct model *m, uint32_t u)
+{
+	return m->nsend && u >= m->nsend ? m->colsum + m->k : m->colsum;
+}
+
 void model_release(struct model *m)
 {
 	if (!m)
@@ -103,8 +128,9 @@ void model_release(struct model *m)
 int model_set_row(struct model *m, uint32_t u, const struct fentry *e, uint32_t nnz)
 {
 	struct frow *r = &m->rows[u];
+	double *colsum = own_colsum(m, u);
 	for (uint32_t i = 0; i < r->nnz; i++)
-		m->colsum[r->e[i].c] -= r->e[i].v;
+		colsum[r->e[i].c] -= r->e[i].v;
 	if (nnz > r->cap) {
 		uint32_t cap = nnz < 4 ? 4 : nnz + nnz / 2;
 		if (cap > m->k)
@@ -112,7 +138,7 @@ int model_set_row(struct model *m, uint32_t u, const struct fentry *e, uint32_t 
 		struct fentry *ne = util_realloc(r->e, cap, sizeof *ne);
 		if (!ne) {
 			for (uint32_t i = 0; i < r->nnz; i++)
-				m->colsum[r->e[i].c] += r->e[i].v;
+				colsum[r->e[i].c] += r->e[i].v;
 			return -1;
 		}
 		r->e = ne;
@@ -135,7 +161,7 @@ int model_set_row(struct model *m, uint32_t u, const struct fentry *e, uint32_t 
 			v = MODEL_FMAX;
 		r->e[o].c = e[i].c;
 		r->e[o].v = v;
-		m->colsum[e[i].c] += v;
+		colsum[e[i].c] += v;
 		o++;
 	}
 	r->nnz = o;
@@ -144,10 +170,12 @@ int model_set_row(struct model *m, uint32_t u, const struct fentry *e, uint32_t 
 
 void model_recount(struct model *m)
 {
-	memset(m->colsum, 0, m->k * sizeof *m->colsum);
-	for (uint32_t u = 0; u < m->n; u++)
+	memset(m->colsum, 0, (m->nsend ? 2 : 1) * (size_t)m->k * sizeof *m->colsum);
+	for (uint32_t u = 0; u < m->n; u++) {
+		double *colsum = own_colsum(m, u);
 		for (uint32_t i = 0; i < m->rows[u].nnz; i++)
-			m->colsum[m->rows[u].e[i].c] += m->rows[u].e[i].v;
+			colsum[m->rows[u].e[i].c] += m->rows[u].e[i].v;
+	}
 }
 
 double model_dot(const struct fentry *a, uint32_t na, const struct fentry *b, uint32_t nb)
@@ -197,6 +225,12 @@ void model_pair_parts(const struct model *m, uint32_t u0, uint32_t u1, double *s
 
 double model_all_dot(const struct model *m, double self_sq)
 {
+	if (m->nsend) { /* sending x receiving pairs: S_send . S_recv */
+		double d = 0.0;
+		for (uint32_t c = 0; c < m->k; c++)
+			d += m->colsum[c] * m->colsum[m->k + c];
+		return d;
+	}
 	double col_sq = 0.0;
 	for (uint32_t c = 0; c < m->k; c++)
 		col_sq += m->colsum[c] * m->colsum[c];
@@ -237,7 +271,8 @@ double model_loglik_combine(const struct model *m, const struct graph *g,
 	if (nonedge_dot < 0.0)
 		nonedge_dot = 0.0; /* rounding only */
 	double n = g->n;
-	double nonedges = 0.5 * n * (n - 1.0) - (double)g->m - (m->excl ? (double)m->excl->m : 0.0);
+	double pairs = m->nsend ? (double)m->nsend * (n - m->nsend) : 0.5 * n * (n - 1.0);
+	double nonedges = pairs - (double)g->m - (m->excl ? (double)m->excl->m : 0.0);
 	return edge_log - nonedge_dot - m->qeps * nonedges;
 }
 
@@ -277,6 +312,9 @@ int model_export_order(const struct model *m, const uint32_t *inner, struct fcsr
 			memcpy(out->e + out->off[u], r->e, r->nnz * sizeof *out->e);
 	}
 	memcpy(out->colsum, m->colsum, m->k * sizeof *out->colsum);
+	if (m->nsend) /* a snapshot's colsum is the whole column's */
+		for (uint32_t c = 0; c < m->k; c++)
+			out->colsum[c] += m->colsum[m->k + c];
 	return 0;
 fail:
 	fcsr_release(out);
@@ -460,12 +498,14 @@ static double objective_dense(const struct model *m, const struct graph *g, uint
 			      const struct model_work *w, const double *row)
 {
 	double f = 0.0;
+	const double *oc = model_other_colsum(m, u);
 	for (uint64_t i = g->off[u]; i < g->off[u + 1]; i++)
 		f += model_log1mexp(dense_dot(row, &m->rows[g->adj[i]]) + m->qeps);
 	for (uint32_t i = 0; i < w->ncand; i++) {
 		uint32_t c = w->cand[i];
 		if (row[c] != 0.0)
-			f -= row[c] * (m->colsum[c] - w->cur[c] - w->nbrsum[c]);
+			f -= row[c] * (m->nsend ? oc[c] - w->nbrsum[c] /* u is not on that side */
+						: oc[c] - w->cur[c] - w->nbrsum[c]);
 	}
 	return f;
 }
@@ -581,10 +621,12 @@ static double gather_gradient(const struct model *m, const struct graph *g, uint
 	 * candidates (those with a nonzero dir) packed for the trials */
 	double gmax = 0.0;
 	uint32_t nlive = 0;
+	/* two-sided: the other side's sums, which do not hold u's own row */
+	const double *oc = model_other_colsum(m, u);
 	for (uint32_t i = 0; i < w->ncand; i++) {
 		uint32_t c = w->cand[i];
 		double cur = w->cur[c];
-		double others = m->colsum[c] - cur - w->nbrsum[c];
+		double others = m->nsend ? oc[c] - w->nbrsum[c] : oc[c] - cur - w->nbrsum[c];
 		double a = w->acc[c] - others;
 		w->acc[c] = a;
 		f -= cur * others;
@@ -611,8 +653,9 @@ void model_row_gradient(const struct model *m, const struct graph *g, uint32_t u
 {
 	gather_gradient(m, g, u, w);
 	/* outside the candidates the gradient is -(colsum - F_u - nbrsum) = -colsum */
+	const double *oc = model_other_colsum(m, u);
 	for (uint32_t c = 0; c < m->k; c++)
-		grad[c] = -m->colsum[c];
+		grad[c] = -oc[c];
 	for (uint32_t i = 0; i < w->ncand; i++)
 		grad[w->cand[i]] = w->acc[w->cand[i]];
 }
@@ -859,6 +902,11 @@ static int ops_gain_exact(const struct model *m)
 static const struct objective_ops bigclam_ops =
 	OBJECTIVE_OPS_INIT("bigclam", ops_, struct model_llpart, 1);
 
+/* A two-sided model (model_directed.h) is BigCLAM's row update on the
+ * sending/receiving rows: only the coupling of a block's rows differs. */
+static const struct objective_ops sided_ops =
+	OBJECTIVE_OPS_INIT("directed", ops_, struct model_llpart, OBJECTIVE_COUPLING_SIDES);
+
 const struct objective_ops *model_objective(void)
 {
 	return &bigclam_ops;
@@ -869,6 +917,8 @@ const char *model_kind_name(enum model_kind kind)
 	switch (kind) {
 	case MODEL_BIGCLAM: return "bigclam";
 	case MODEL_POISSON: return "poisson";
+	case MODEL_DIRECTED: return "directed";
+	case MODEL_TWO_MODE: return "two-mode";
 	default: return "unknown";
 	}
 }
@@ -878,6 +928,8 @@ const struct objective_ops *model_objective_of(enum model_kind kind)
 	switch (kind) {
 	case MODEL_BIGCLAM: return model_objective();
 	case MODEL_POISSON: return model_poisson_objective();
+	case MODEL_DIRECTED:
+	case MODEL_TWO_MODE: return &sided_ops;
 	default: return NULL;
 	}
 }

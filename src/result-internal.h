@@ -13,4 +13,10 @@
 char *result_run_json(const struct graph *g, const struct fit_params *p,
 		      const struct result_model *m, const struct result_meta *meta);
 
+/* Stage memberships.tsv and communities.tsv of a two-sided fit (g two-sided,
+ * m's strengths; result_directed.c) into c. All borrowed. 0 or -1. */
+struct result_commit;
+int result_directed_stage(struct result_commit *c, const struct graph *g,
+			  const struct result_model *m);
+
 #endif

@@ -319,9 +319,13 @@ int result_stage(struct result_commit *c, const struct graph *g, const struct fi
 	if (meta && meta->selection &&
 	    result_commit_stage(c, RESULT_SELECTION, fill_selection, meta->selection))
 		return -1;
-	if (checkpoint_stage(c, RESULT_CHECKPOINT, g, p, m) ||
-	    result_commit_stage(c, "memberships.tsv", fill_memberships, &ta) ||
-	    result_commit_stage(c, "communities.tsv", fill_communities, &ta) ||
+	if (checkpoint_stage(c, RESULT_CHECKPOINT, g, p, m))
+		return -1;
+	if (g->nsend ? result_directed_stage(c, g, m)
+		     : result_commit_stage(c, "memberships.tsv", fill_memberships, &ta) ||
+			       result_commit_stage(c, "communities.tsv", fill_communities, &ta))
+		return -1;
+	if (
 	    result_commit_stage(c, "trace.tsv", fill_trace, &ta))
 		return -1;
 	char *text = result_run_json(g, p, m, meta);

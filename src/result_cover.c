@@ -440,6 +440,8 @@ void result_cover_check_folder(const char *dir, const struct checkpoint *ck,
 	}
 	if (result_cover_is_refined(dir))
 		return; /* read_refined() checks that cover against run.json */
+	if (model_kind_sided(ck->params.model))
+		return; /* its memberships.tsv holds sides (result_directed.c): not this cover */
 	char *path = result_file(dir, "memberships.tsv");
 	if (path && access(path, F_OK) == 0 && memberships_match(path, ck, rule) == 0)
 		warning("memberships.tsv is not the cover of the strengths in %s (edited, or of "

@@ -162,6 +162,23 @@ static int count_isolated_and_outside(struct simulate *s)
 	return 0;
 }
 
+/* A directed graph's arcs v -> u (u < v): a draw of the same cover and
+ * probabilities from a stream of their own (the arcs u -> v are the usual
+ * draw, made after this one), so the two directions of a pair are
+ * independent and each has the AGM's probability. */
+static int draw_back(const struct simulate_params *p, struct simulate *out)
+{
+	struct simulate_params q = *p;
+	q.seed = p->seed ^ 0x5eed0fd1ec7edULL;
+	if (simulate_draw_edges(&q, out))
+		return -1;
+	out->back = out->edges;
+	out->mback = out->m;
+	out->edges = NULL;
+	out->m = 0;
+	return 0;
+}
+
 int simulate_run(const struct simulate_params *p, struct simulate *out)
 {
 	memset(out, 0, sizeof *out);
@@ -169,7 +186,10 @@ int simulate_run(const struct simulate_params *p, struct simulate *out)
 		return -1;
 	out->n = p->n;
 	out->epsilon = p->epsilon;
+	if (p->directed && p->weighted)
+		return error("a directed planted graph cannot have weights yet");
 	int rc = simulate_plant_cover(p, out) || simulate_plant_probabilities(p, out) ||
+			 (p->directed && draw_back(p, out)) ||
 			 simulate_draw_edges(p, out) || count_isolated_and_outside(out) ||
 			 (p->weighted && simulate_draw_weights(p, out)) ? -1 : 0;
 	if (rc)
@@ -185,5 +205,6 @@ void simulate_release(struct simulate *s)
 	free(s->p);
 	free(s->edges);
 	free(s->weights);
+	free(s->back);
 	memset(s, 0, sizeof *s);
 }

@@ -101,8 +101,9 @@ static int fill_edges(struct atomicfile *w, const void *arg)
 {
 	const struct planted_args *a = arg;
 	const struct simulate *s = a->s;
-	atomicfile_printf(w, "# coterie simulate: planted AGM, %u nodes, %" PRIu64 " edges, "
-			  "%u communities, seed %" PRIu64 "\n", s->n, s->m, s->k, a->p->seed);
+	atomicfile_printf(w, "# coterie simulate: planted AGM, %u nodes, %" PRIu64 " %s, "
+			  "%u communities, seed %" PRIu64 "\n", s->n, s->m + s->mback,
+			  s->back ? "arcs" : "edges", s->k, a->p->seed);
 	size_t line = 2 * (a->plen + 10) + 2;
 	for (uint64_t i = 0; i < s->m; i++) {
 		char *q = atomicfile_room(w, line), *q0 = q;
@@ -114,6 +115,14 @@ static int fill_edges(struct atomicfile *w, const void *arg)
 			atomicfile_printf(w, "\t%.0f\n", s->weights[i]);
 			continue;
 		}
+		*q++ = '\n';
+		atomicfile_advance(w, (size_t)(q - q0));
+	}
+	for (uint64_t i = 0; i < s->mback; i++) { /* directed: the arcs v -> u */
+		char *q = atomicfile_room(w, line), *q0 = q;
+		q = put_name(q, a->prefix, a->plen, (uint32_t)(s->back[i] & 0xffffffffu));
+		*q++ = '\t';
+		q = put_name(q, a->prefix, a->plen, (uint32_t)(s->back[i] >> 32));
 		*q++ = '\n';
 		atomicfile_advance(w, (size_t)(q - q0));
 	}

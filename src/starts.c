@@ -30,6 +30,7 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "coterie/model_directed.h"
 #include "coterie/rng.h"
 #include "coterie/seed.h"
 #include "coterie/util.h"
@@ -394,7 +395,8 @@ static int begin_start(struct fit *f, uint32_t r)
 	}
 	fit_set_state(f, FIT_SEEDING);
 	double t = util_now();
-	int seeded = seed_model(f->gw, &f->m, f->p.seed, r, &f->seeds);
+	int seeded = f->m.nsend ? model_directed_seed(f->gw, f->view, &f->m, f->p.seed, r, &f->seeds)
+				: seed_model(f->gw, &f->m, f->p.seed, r, &f->seeds);
 	f->stats.seed_seconds += util_now() - t;
 	if (seeded || fit_trace_add(f, fit_loglik(f)))
 		return -1;

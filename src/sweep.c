@@ -47,6 +47,7 @@
 
 #include "coterie/graph.h"
 #include "coterie/model.h"
+#include "coterie/objective.h"
 #include "coterie/pool.h"
 #include "coterie/rng.h"
 #include "coterie/util.h"
@@ -135,8 +136,10 @@ struct sweep *sweep_new(struct model *m, const struct graph *g, const struct obj
 	s->blk = util_calloc(2 * BLOCK_NODES + 2 * PEND_MAX, sizeof *s->blk);
 	s->nparts = (g->n + LL_CHUNK - 1) / LL_CHUNK;
 	s->parts = util_calloc(s->nparts ? s->nparts : 1, ops->part_size);
-	s->ll_col = util_calloc(m->k, sizeof *s->ll_col);
-	s->ll_stamp = util_calloc(m->k, sizeof *s->ll_stamp);
+	/* two-sided models keep the block's sending and receiving changes apart */
+	size_t llk = (m->nsend ? 2 : 1) * (size_t)m->k;
+	s->ll_col = util_calloc(llk, sizeof *s->ll_col);
+	s->ll_stamp = util_calloc(llk, sizeof *s->ll_stamp);
 	if (!s->pool || !s->slots || !s->res || !s->perm || !s->blk || !s->parts || !s->ll_col ||
 	    !s->ll_stamp)
 		goto fail;
@@ -353,12 +356,17 @@ static double change_dot(const struct sweep *s, uint32_t j, uint32_t i)
 	       model_dot(ou->e, ou->nnz, nv, rv->nnz) + model_dot(ou->e, ou->nnz, ov->e, ov->nnz);
 }
 
-/* sum_{u < v in the block} a_u . a_v, in block order, over all pairs */
+/* sum_{u < v in the block} a_u . a_v, in block order, over all pairs; in
+ * a two-sided model (OBJECTIVE_COUPLING_SIDES) over the pairs of a
+ * sending and a receiving row only: a row's change meets the sum of the
+ * other side's earlier changes (ll_col[k..2k) holds the receiving rows'). */
 static double block_cross(struct sweep *s)
 {
 	double cross = 0.0;
+	uint32_t k = s->m->k, nsend = s->m->nsend;
+	int sides = s->ops->coupling == OBJECTIVE_COUPLING_SIDES;
 	if (++s->ll_epoch == 0) {
-		memset(s->ll_stamp, 0, s->m->k * sizeof *s->ll_stamp);
+		memset(s->ll_stamp, 0, (nsend ? 2 : 1) * (size_t)k * sizeof *s->ll_stamp);
 		s->ll_epoch = 1;
 	}
 	uint32_t ep = s->ll_epoch;
@@ -366,6 +374,12 @@ static double block_cross(struct sweep *s)
 		const struct rowres *rr = &s->res[j];
 		if (!rr->changed)
 			continue;
+		/* own: where this row's change is added; other: what it meets */
+		uint32_t own = 0, other = 0;
+		if (sides) {
+			own = s->block[j] >= nsend ? k : 0;
+			other = k - own;
+		}
 		const struct frow *o = &s->m->rows[s->block[j]];
 		const struct fentry *e = s->slots[rr->owner].arena.e + rr->at;
 		uint32_t a = 0, b = 0;
@@ -384,12 +398,16 @@ static double block_cross(struct sweep *s)
 			}
 			if (d == 0.0)
 				continue;
-			if (s->ll_stamp[c] != ep) {
-				s->ll_stamp[c] = ep;
-				s->ll_col[c] = 0.0;
+			if (s->ll_stamp[c + own] != ep) {
+				s->ll_stamp[c + own] = ep;
+				s->ll_col[c + own] = 0.0;
 			}
-			cross += d * s->ll_col[c];
-			s->ll_col[c] += d;
+			if (s->ll_stamp[c + other] != ep) {
+				s->ll_stamp[c + other] = ep;
+				s->ll_col[c + other] = 0.0;
+			}
+			cross += d * s->ll_col[c + other];
+			s->ll_col[c + own] += d;
 		}
 	}
 	return cross;

@@ -14,6 +14,7 @@
 #ifndef COTERIE_GRAPH_H
 #define COTERIE_GRAPH_H
 
+#include <stddef.h>
 #include <stdint.h>
 
 enum graph_format {
@@ -62,6 +63,10 @@ struct graph_load_opts {
 	int weighted;        /* read edge weights: an edge list's third column, the
 				edge attribute weight_attr of GML/GraphML (graph_weights.c) */
 	const char *weight_attr; /* GML/GraphML: the attribute; NULL is "weight" */
+	int directed;        /* read lines (GML/GraphML: edges of a directed graph) as
+				arcs into a two-sided graph (graph_directed.c) */
+	int two_mode;        /* the first column's names and the second's are two
+				kinds of nodes: a two-sided graph (graph_directed.c) */
 };
 
 struct names; /* the node names, both ways: graph_name(), graph_find() */
@@ -74,6 +79,13 @@ struct graph {
 	double *wt;        /* NULL (unweighted), or 2 * m weights parallel to adj:
 			      the weight of edge u-v in both rows, finite and > 0,
 			      the sum of the records of that pair (graph_weights.c) */
+	/* 0: a one-mode graph. Else a two-sided graph (graph_directed.c):
+	 * nodes [0, nsend) are senders, [nsend, n) receivers, every edge
+	 * joins a sender to a receiver (an arc, or a two-mode link); with
+	 * paired, n = 2 nsend and receiver nsend + i is sender i's own node
+	 * (a directed graph; that pair is no term of the likelihood). */
+	uint32_t nsend;
+	int paired;
 	struct names *names; /* private to graph*.c: use graph_name(), graph_find() */
 	struct graph_report report;
 	char *source;      /* the path it was loaded from ("-" for stdin) */
@@ -115,6 +127,30 @@ struct graph *graph_from_pairs(uint32_t n, const uint32_t *pairs, uint64_t npair
  * graph_from_pairs(). Caller frees with graph_free(); NULL on failure.
  */
 struct graph *graph_with_edges(const struct graph *g, const uint32_t *pairs, uint64_t npairs);
+
+/* ---- two-sided graphs: directed and two-mode (graph_directed.c) ---- */
+
+/* The tags that end every node name of a two-sided graph: a sending copy
+ * is "NAME [out]", a receiving copy "NAME [in]" (both sides tagged, so
+ * names never collide, whatever the input's names hold). */
+#define GRAPH_SEND_TAG " [out]"
+#define GRAPH_RECV_TAG " [in]"
+
+/* 0 when u sends (or g is one-mode), 1 when u receives. */
+int graph_side_of(const struct graph *g, uint32_t u);
+/* u's name without its side's tag: the pointer (borrowed, as
+ * graph_name()) and its length in *len (not NUL-terminated there). */
+const char *graph_side_name(const struct graph *g, uint32_t u, size_t *len);
+/* 0 when g can be two-sided with nsend senders (paired: a directed graph,
+ * n = 2 nsend), every edge joining a sender to a receiver; else -1 with
+ * what is wrong in why (len bytes). For readers of saved graphs. */
+int graph_check_sides(const struct graph *g, uint32_t nsend, int paired, char *why, size_t len);
+/* A paired graph's own pairs (sender i, receiver nsend + i) as a graph on
+ * g's nodes (as graph_with_edges()); NULL on failure; graph_free(). */
+struct graph *graph_self_pairs(const struct graph *g);
+/* A paired graph's undirected view: nsend nodes named by id, u -- v when
+ * an arc joins them either way; NULL on failure; graph_free(). */
+struct graph *graph_undirected_view(const struct graph *g);
 
 /* Free g and everything it holds. graph_free(NULL) is a no-op. */
 void graph_free(struct graph *g);

@@ -44,7 +44,13 @@ struct model {
 	double delta;   /* membership threshold sqrt(qeps) */
 	double floor;   /* strengths below this become 0 (MODEL_FLOOR * delta) */
 	struct frow *rows; /* n rows */
-	double *colsum;    /* k column sums */
+	double *colsum;    /* k column sums; with nsend, 2k: the sending rows'
+			      sums, then the receiving rows' (model_set_sides()) */
+	/* 0: one kind of row, every pair of rows a term. Else a two-sided
+	 * model (model_directed.h): rows [0, nsend) send, [nsend, n)
+	 * receive, and only pairs of a sending and a receiving row are terms
+	 * of the likelihood (x = F_u . H_v); same-side rows never meet. */
+	uint32_t nsend;
 	/* Held-out pairs (borrowed, may be NULL): pairs left out of the
 	 * likelihood altogether, neither edges nor non-edges. Must not share
 	 * a pair with the graph's edges. Used to choose k. */
@@ -63,6 +69,17 @@ double model_qeps(double epsilon);
 /* Set up an all-zero model. epsilon in [0, 1). Returns 0 or -1. */
 int model_init(struct model *m, uint32_t n, uint32_t k, double epsilon);
 void model_release(struct model *m);
+
+/* Make an all-zero model two-sided: rows [0, nsend) send and [nsend, n)
+ * receive (0 < nsend < n). colsum grows to 2k. Returns 0 or -1. */
+int model_set_sides(struct model *m, uint32_t nsend);
+
+/* The column sums row u's update reads as "the other rows": the other
+ * side's in a two-sided model, else colsum (k values, borrowed). */
+static inline const double *model_other_colsum(const struct model *m, uint32_t u)
+{
+	return m->nsend && u < m->nsend ? m->colsum + m->k : m->colsum;
+}
 
 /* Replace row u by the nnz entries e (borrowed; sorted, positive, capped
  * on the way in) and keep colsum up to date. Returns 0 or -1. */
@@ -199,9 +216,17 @@ const struct objective_ops *model_objective(void);
 enum model_kind {
 	MODEL_BIGCLAM = 0, /* links: 1 - exp(-F_u . F_v) (this file) */
 	MODEL_POISSON = 1, /* weights: Poisson(F_u . F_v) (model_poisson.h) */
+	MODEL_DIRECTED = 2, /* arcs: 1 - exp(-F_u . H_v), sending and receiving rows
+			       of one node set (model_directed.h) */
+	MODEL_TWO_MODE = 3, /* the same between two kinds of nodes */
 	MODEL_KINDS
 };
-/* "bigclam", "poisson" (static); "unknown" out of range. */
+/* 1 for the two-sided kinds (directed, two-mode). */
+static inline int model_kind_sided(enum model_kind kind)
+{
+	return kind == MODEL_DIRECTED || kind == MODEL_TWO_MODE;
+}
+/* "bigclam", "poisson", "directed", "two-mode" (static); "unknown" out of range. */
 const char *model_kind_name(enum model_kind kind);
 /* The objective of a kind (static), or NULL out of range. */
 const struct objective_ops *model_objective_of(enum model_kind kind);

@@ -77,9 +77,13 @@ struct objective_ops {
 	void (*row_gradient)(const struct model *m, const struct graph *g, uint32_t u, void *work,
 			     double *grad);
 	/* 1: two rows of a block share the term -F_u . F_v of the objective
-	 * (unless they are held-out pairs, model.excl); 0: rows do not interact. */
+	 * (unless they are held-out pairs, model.excl); 0: rows do not interact;
+	 * OBJECTIVE_COUPLING_SIDES: only a sending and a receiving row of a
+	 * two-sided model (model.nsend) share it. */
 	int coupling;
 };
+
+#define OBJECTIVE_COUPLING_SIDES 2
 
 /* The ops of an objective whose functions are named PREFIX##work_new,
  * PREFIX##work_free, ... after the fields (parts of type PART), so that

@@ -50,6 +50,10 @@ struct simulate_params {
 	int weighted;             /* 1: each edge gets a weight, its count under the
 				   * Poisson model with the planted rates, given
 				   * that it is above zero (simulate_weights.c) */
+	int directed;             /* 1: arcs; each direction of a pair drawn on its
+				   * own from the same cover (simulate.c), so
+				   * P(u -> v) is the AGM's P(u, v); not with
+				   * weighted */
 	uint64_t seed;
 	unsigned threads;         /* >= 1; the result does not depend on it */
 };
@@ -95,6 +99,8 @@ struct simulate {
 	uint64_t *edges;          /* m keys, see above; owned */
 	double *weights;          /* NULL, or (weighted) m weights, whole numbers >= 1,
 				   * of edges[i]; owned */
+	uint64_t mback;           /* directed: the arcs v -> u of the second draw, */
+	uint64_t *back;           /* as keys (u << 32) | v, u < v (edges[] are u -> v); owned */
 	uint64_t drawn_communities; /* pairs drawn by the communities ... */
 	uint64_t drawn_background;  /* ... and by the background, before merging */
 	uint64_t duplicates;        /* pairs drawn more than once */

@@ -68,6 +68,8 @@ enum {
 	CLI_OPT_NO_HEADER,
 	CLI_OPT_WEIGHTED,
 	CLI_OPT_WEIGHT_ATTR,
+	CLI_OPT_DIRECTED,
+	CLI_OPT_TWO_MODE,
 	CLI_OPT_OWN,
 };
 
@@ -89,6 +91,8 @@ struct cli_fit_opts {
 	int no_header;             /* --no-header, or --skip-lines given */
 	int weighted;              /* --weighted or --weight-attr: p.model is MODEL_POISSON */
 	const char *weight_attr;   /* --weight-attr NAME; NULL: "weight" */
+	int sided;                 /* --directed or --two-mode: p.model is MODEL_DIRECTED or
+				      MODEL_TWO_MODE */
 };
 
 /* The getopt_long() entries fit and explore share (the options handled by
@@ -112,6 +116,8 @@ struct cli_fit_opts {
 	{ "no-header", no_argument, NULL, CLI_OPT_NO_HEADER }, \
 	{ "weighted", no_argument, NULL, CLI_OPT_WEIGHTED }, \
 	{ "weight-attr", required_argument, NULL, CLI_OPT_WEIGHT_ATTR }, \
+	{ "directed", no_argument, NULL, CLI_OPT_DIRECTED }, \
+	{ "two-mode", no_argument, NULL, CLI_OPT_TWO_MODE }, \
 	{ "help", no_argument, NULL, 'h' }
 
 /* Defaults: fit_params_default() with one thread per core. */

@@ -186,9 +186,22 @@ int cli_fit_opts_take(struct cli_fit_opts *o, int c, const char *arg)
 	case CLI_OPT_WEIGHTED:
 		if (c == CLI_OPT_WEIGHT_ATTR) /* naming the attribute asks for the weights */
 			o->weight_attr = arg;
+		if (o->sided)
+			die(EXIT_USAGE, "--weighted is not yet available with --directed or --two-mode");
 		o->weighted = 1;
 		p->model = MODEL_POISSON;
 		return 1;
+	case CLI_OPT_DIRECTED:
+	case CLI_OPT_TWO_MODE: {
+		enum model_kind want = c == CLI_OPT_DIRECTED ? MODEL_DIRECTED : MODEL_TWO_MODE;
+		if (o->weighted)
+			die(EXIT_USAGE, "--weighted is not yet available with --directed or --two-mode");
+		if (o->sided && p->model != want)
+			die(EXIT_USAGE, "--directed and --two-mode exclude each other");
+		o->sided = 1;
+		p->model = want;
+		return 1;
+	}
 	default: return 0;
 	}
 }
@@ -211,7 +224,9 @@ struct graph *cli_graph_load(const struct cli_fit_opts *o, const char *path)
 {
 	struct graph_load_opts lo = { .fmt = o->fmt, .skip_lines = o->skip_lines,
 				      .no_header = o->no_header, .weighted = o->weighted,
-				      .weight_attr = o->weight_attr };
+				      .weight_attr = o->weight_attr,
+				      .directed = o->p.model == MODEL_DIRECTED,
+				      .two_mode = o->p.model == MODEL_TWO_MODE };
 	return graph_load_with(path, &lo);
 }
 
@@ -232,6 +247,9 @@ void cli_fit_opts_resume(const struct cli_fit_opts *o, const struct fit_params *
 	if (o->weighted && saved->model != MODEL_POISSON)
 		die(EXIT_USAGE, "the saved fit is of the %s model; --weighted cannot change that %s",
 		    model_kind_name(saved->model), when);
+	if (o->sided && saved->model != o->p.model)
+		die(EXIT_USAGE, "the saved fit is of the %s model; --%s cannot change that %s",
+		    model_kind_name(saved->model), model_kind_name(o->p.model), when);
 	if (o->have_seed && o->p.seed != saved->seed)
 		warning("--seed is ignored %s; the fit keeps seed %llu", when,
 			(unsigned long long)saved->seed);
@@ -252,6 +270,7 @@ void cli_model_can(const struct fit_params *p, int k_auto, int check_links, int 
 	const char *opt = k_auto ? "-k auto" : check_links ? "--check-links" : refine ? "--refine"
 											 : NULL;
 	if (p->model != MODEL_BIGCLAM && opt)
-		die(EXIT_USAGE, "%s is not yet available with the %s model (--weighted)", opt,
-		    model_kind_name(p->model));
+		die(EXIT_USAGE, "%s is not yet available with the %s model (--%s)", opt,
+		    model_kind_name(p->model),
+		    p->model == MODEL_POISSON ? "weighted" : model_kind_name(p->model));
 }

@@ -70,6 +70,7 @@ static void explore_usage(FILE *out)
 		"      --skip-lines N    edge lists: skip the first N lines (then no header is guessed)\n"
 		"      --no-header       edge lists: the first line is an edge, never a header\n"
 		"      --weighted        fit the Poisson model of edge weights (see coterie fit)\n"
+		"      --directed, --two-mode  not yet available in the explorer\n"
 		"      --weight-attr NAME  the edge attribute holding the weights\n"
 		"      --resume          with DIR: continue the saved fit at once\n"
 		"      --checkpoint-every SECONDS\n"
@@ -228,6 +229,9 @@ static int parse_args(struct run *r, int argc, char **argv)
 	if (o->have_grid && !o->k_auto)
 		die(EXIT_USAGE, "--k-grid is for -k auto");
 	cli_model_can(&o->p, o->k_auto, 0, 0);
+	if (o->sided)
+		die(EXIT_USAGE, "the explorer is not yet available for the %s model; use coterie fit",
+		    model_kind_name(o->p.model));
 	return -1;
 }
 
@@ -248,6 +252,10 @@ static int open_folder(struct run *r, struct tui_config *cfg)
 	if (outdir_read(r->arg, &r->ck))
 		return -1;
 	const struct checkpoint *ck = &r->ck;
+	if (model_kind_sided(ck->params.model))
+		die(EXIT_USAGE, "the explorer is not yet available for a %s result; read its "
+			       "memberships.tsv and communities.tsv",
+		    model_kind_name(ck->params.model));
 	if (r->o.out && outdir_check_graph(r->o.out, ck->graph, r->force))
 		return -1;
 	cli_fit_opts_resume(&r->o, &ck->params, "for a saved fit", &r->p);

@@ -54,6 +54,8 @@ static void simulate_usage(FILE *out)
 		"      --weighted          give each edge a weight: its count under the Poisson\n"
 		"                          model of the planted rates (Ball, Karrer & Newman\n"
 		"                          2011), given that it is above zero; a third column\n"
+		"      --directed          arcs: each direction of a pair drawn on its own with\n"
+		"                          the pair's probability (for fit --directed)\n"
 		"      --prefix STR        node names STR0, STR1, ... (default: 0, 1, ...)\n"
 		"  -o, --output DIR        folder to write (made if missing; required)\n"
 		"      --force             replace a planted graph already in DIR\n"
@@ -107,6 +109,7 @@ enum {
 	OPT_EVEN_DEGREES,
 	OPT_MIXING,
 	OPT_WEIGHTED,
+	OPT_DIRECTED,
 };
 
 /* The command line. */
@@ -133,6 +136,7 @@ static int parse_args(struct sim_args *a, int argc, char **argv)
 		{ "epsilon", required_argument, NULL, CLI_OPT_EPSILON },
 		{ "mixing", required_argument, NULL, OPT_MIXING },
 		{ "weighted", no_argument, NULL, OPT_WEIGHTED },
+		{ "directed", no_argument, NULL, OPT_DIRECTED },
 		{ "prefix", required_argument, NULL, OPT_PREFIX },
 		{ "output", required_argument, NULL, 'o' },
 		{ "force", no_argument, NULL, OPT_FORCE },
@@ -181,6 +185,7 @@ static int parse_args(struct sim_args *a, int argc, char **argv)
 			break;
 		case OPT_MIXING: p->mixing = cli_double("--mixing", optarg, 0.0, 0.999); break;
 		case OPT_WEIGHTED: p->weighted = 1; break;
+		case OPT_DIRECTED: p->directed = 1; break;
 		case OPT_PREFIX: a->prefix = optarg; break;
 		case 'o': a->out = optarg; break;
 		case OPT_FORCE: a->force = 1; break;

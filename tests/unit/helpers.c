@@ -43,7 +43,9 @@ void assert_graph_sane(const struct graph *g)
 
 void assert_model_sane(const struct model *m)
 {
-	double *sum = calloc(m->k ? m->k : 1, sizeof *sum);
+	/* a two-sided model keeps each side's sums (model.h) */
+	uint32_t cols = (m->nsend ? 2 : 1) * m->k;
+	double *sum = calloc(cols ? cols : 1, sizeof *sum);
 	assert_non_null(sum);
 	for (uint32_t u = 0; u < m->n; u++) {
 		const struct frow *r = &m->rows[u];
@@ -53,10 +55,10 @@ void assert_model_sane(const struct model *m)
 			if (i)
 				assert_true(r->e[i - 1].c < r->e[i].c);
 			assert_true(r->e[i].v > 0 && r->e[i].v <= MODEL_FMAX);
-			sum[r->e[i].c] += r->e[i].v;
+			sum[r->e[i].c + (m->nsend && u >= m->nsend ? m->k : 0)] += r->e[i].v;
 		}
 	}
-	for (uint32_t c = 0; c < m->k; c++)
+	for (uint32_t c = 0; c < cols; c++)
 		assert_true(fabs(sum[c] - m->colsum[c]) <= 1e-9 * (1.0 + fabs(sum[c])));
 	free(sum);
 }

@@ -1,0 +1,60 @@
+/*
+ * model_directed: the directed (and two-mode) form of the model, on a
+ * two-sided graph (graph.h: nsend, paired; graph_directed.c).
+ *
+ * Every node u has a sending row F_u and a receiving row H_u, and
+ *     P(u -> v) = 1 - exp(-(F_u . H_v + qeps)),
+ * the directed form of BigCLAM's link function (Yang & Leskovec, WSDM
+ * 2013), with separate sender and receiver factors as in factorisations
+ * of directed and bipartite data (e.g. Gopalan, Hofman & Blei, UAI 2015).
+ * The rows live in one struct model of the two-sided graph's n rows:
+ * sending rows first (model.nsend), receiving rows after; the row update
+ * is model.c's (the other side's column sums replace colsum), blocks
+ * couple only a sending and a receiving row (sweep.c), and a directed
+ * graph's pairs (F_u, H_u) are held out for good (no self-arcs).
+ */
+#ifndef COTERIE_MODEL_DIRECTED_H
+#define COTERIE_MODEL_DIRECTED_H
+
+#include <stdint.h>
+
+#include "fcsr.h"
+
+struct graph;
+struct model;
+struct seed_report;
+
+/* Make the all-zero model m of g's rows two-sided, and for a directed
+ * graph (g->paired) make *self_pairs (the pairs to leave out) and *view
+ * (the undirected view seeds are drawn from), else set both to NULL.
+ * Caller frees both with graph_free(). Returns 0 or -1 (g not two-sided,
+ * out of memory). */
+int model_directed_prepare(const struct graph *g, struct model *m, struct graph **self_pairs,
+			   struct graph **view);
+
+/* Seed an all-zero two-sided model. The rule (ours, measured in
+ * DEVELOPERS.md): a directed graph is seeded by seed_model() on its
+ * undirected view, each seed ego-net giving its members strength 1 on
+ * both rows (sending and receiving); a two-mode graph by seed_model() on
+ * the bipartite graph itself (an ego-net is a node and its partners of
+ * the other kind). view borrowed (NULL for two-mode). Returns 0 or -1. */
+int model_directed_seed(const struct graph *g, const struct graph *view, struct model *m,
+			uint64_t seed, uint32_t variant, struct seed_report *rep);
+
+/* The column sums of each side of F (g two-sided, F its rows): into
+ * sums (2 F->k values, borrowed): the sending rows', then the receiving. */
+void model_directed_side_sums(const struct graph *g, const struct fcsr *F, double *sums);
+
+/* Is entry j of F (in row u of a two-sided g) a membership? The rule of
+ * agm_is_member() with the other side's column sum (sums from
+ * model_directed_side_sums()) and u's degree on its side (out-degree for
+ * a sending row, in-degree for a receiving one). */
+int model_directed_member_at(const struct graph *g, const struct fcsr *F, const double *sums,
+			     uint32_t u, uint64_t j, double delta);
+
+/* The log-likelihood pair by pair, for tests: over ordered pairs of a
+ * sending and a receiving row (a directed graph's own pairs left out).
+ * O(n^2 nnz). */
+double model_directed_loglik_pairs(const struct model *m, const struct graph *g);
+
+#endif

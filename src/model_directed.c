@@ -1,0 +1,102 @@
+/*
+ * model_directed: what the directed model adds to BigCLAM's machinery
+ * (include/coterie/model_directed.h); the derivation of its row update
+ * is in DEVELOPERS.md ("The directed model").
+ *
+ * The idea: a directed graph is a bipartite graph of sending and
+ * receiving copies (graph_directed.c), and the directed likelihood is
+ * BigCLAM's on that graph with the pairs restricted to one sending and
+ * one receiving row. For a sending row u the terms holding F_u are
+ *     f_u(r) = sum_{v in out(u)} log(1 - exp(-(r . H_v + q)))
+ *              - r . (S_H - sum_{v in out(u)} H_v - H_u)
+ * (S_H the receiving rows' column sums; H_u leaves the sum because the
+ * pair (u, u) is no term), and its gradient is
+ *     g_u = sum_{v in out(u)} H_v / expm1(F_u . H_v + q)
+ *           - (S_H - sum_{v in out(u)} H_v - H_u),
+ * so model.c's update does it all once colsum is the other side's and
+ * H_u is a held-out partner (fit.c gives the self pairs as model.excl).
+ * This file prepares the model, seeds it and reads memberships by side.
+ *
+ * The one thing a newcomer gets wrong: a snapshot's fcsr colsum is the
+ * whole column (both sides); the membership rule needs the other side's
+ * sums, which model_directed_side_sums() recomputes from the rows.
+ */
+#include "coterie/model_directed.h"
+
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "coterie/agm.h"
+#include "coterie/graph.h"
+#include "coterie/model.h"
+#include "coterie/seed.h"
+#include "coterie/util.h"
+
+int model_directed_prepare(const struct graph *g, struct model *m, struct graph **self_pairs,
+			   struct graph **view)
+{
+	*self_pairs = *view = NULL;
+	if (!g->nsend)
+		return error("the directed and two-mode models need a graph read with --directed "
+			     "or --two-mode");
+	if (model_set_sides(m, g->nsend))
+		return -1;
+	if (!g->paired)
+		return 0;
+	if (!(*self_pairs = graph_self_pairs(g)) || !(*view = graph_undirected_view(g))) {
+		graph_free(*self_pairs);
+		*self_pairs = NULL;
+		return -1;
+	}
+	return 0;
+}
+
+int model_directed_seed(const struct graph *g, const struct graph *view, struct model *m,
+			uint64_t seed, uint32_t variant, struct seed_report *rep)
+{
+	if (!view)
+		return seed_model(g, m, seed, variant, rep);
+	struct model one;
+	if (model_init(&one, view->n, m->k, m->epsilon))
+		return -1;
+	int rc = seed_model(view, &one, seed, variant, rep);
+	for (uint32_t u = 0; rc == 0 && u < view->n; u++)
+		if (model_set_row(m, u, one.rows[u].e, one.rows[u].nnz) ||
+		    model_set_row(m, g->nsend + u, one.rows[u].e, one.rows[u].nnz))
+			rc = -1;
+	model_release(&one);
+	return rc;
+}
+
+void model_directed_side_sums(const struct graph *g, const struct fcsr *F, double *sums)
+{
+	memset(sums, 0, 2 * (size_t)F->k * sizeof *sums);
+	for (uint32_t u = 0; u < F->n; u++) {
+		double *s = sums + (graph_side_of(g, u) ? F->k : 0);
+		for (uint64_t j = F->off[u]; j < F->off[u + 1]; j++)
+			s[F->e[j].c] += F->e[j].v;
+	}
+}
+
+int model_directed_member_at(const struct graph *g, const struct fcsr *F, const double *sums,
+			     uint32_t u, uint64_t j, double delta)
+{
+	const double *other = sums + (graph_side_of(g, u) ? 0 : F->k);
+	return agm_is_member(F->e[j].v, other[F->e[j].c], delta, AGM_MIN_LINKS,
+			     graph_degree(g, u));
+}
+
+double model_directed_loglik_pairs(const struct model *m, const struct graph *g)
+{
+	double l = 0.0;
+	for (uint32_t u = 0; u < g->nsend; u++)
+		for (uint32_t v = g->nsend; v < g->n; v++) {
+			if (g->paired && v == g->nsend + u)
+				continue;
+			double x = model_dot(m->rows[u].e, m->rows[u].nnz, m->rows[v].e,
+					     m->rows[v].nnz) + m->qeps;
+			l += graph_has_edge(g, u, v) ? model_log1mexp(x) : -x;
+		}
+	return l;
+}

@@ -1,0 +1,312 @@
+/*
+ * test_model_directed: the directed model (sending rows F, receiving rows
+ * H, P(u -> v) = 1 - exp(-(F_u . H_v + qeps)); model_directed.h) on the
+ * two-sided graph of graph_directed.c, two-mode graphs, and the checkpoint.
+ *
+ * References: a 4-node directed graph worked by hand (below); central
+ * finite differences of the row objective for the gradient; the pair by
+ * pair definition (model_directed_loglik_pairs(), O(n^2)); the sweep
+ * engine's rule that a summed log-likelihood equals a recompute
+ * (sweep.c) and identical bits for one and two threads (DEVELOPERS.md,
+ * Determinism).
+ */
+#include "helpers.h"
+
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "coterie/checkpoint.h"
+#include "coterie/fit.h"
+#include "coterie/graph.h"
+#include "coterie/model.h"
+#include "coterie/model_directed.h"
+#include "coterie/objective.h"
+#include "coterie/result.h"
+#include "coterie/rng.h"
+#include "coterie/sweep.h"
+#include "coterie/util.h"
+
+static struct graph *load_text(const char *text, int two_mode)
+{
+	const char *dir = test_tmpdir();
+	const char *path = test_write_file(dir, "d.tsv", text);
+	struct graph_load_opts o = { .directed = !two_mode, .two_mode = two_mode };
+	struct graph *g = graph_load_with(path, &o);
+	assert_non_null(g);
+	assert_graph_sane(g);
+	test_rmtree(dir);
+	return g;
+}
+
+/* A model of g's rows, two-sided, with the self pairs held out (as fit.c
+ * does); *sp and *view to free. */
+static void sided_model(struct model *m, const struct graph *g, uint32_t k, double eps,
+			struct graph **sp, struct graph **view)
+{
+	assert_int_equal(model_init(m, g->n, k, eps), 0);
+	assert_int_equal(model_directed_prepare(g, m, sp, view), 0);
+	m->excl = *sp;
+}
+
+static void test_arcs_make_a_two_sided_graph(void **state)
+{
+	(void)state;
+	/* a -> b twice, a self-arc, and the reverse b -> a */
+	struct graph *g = load_text("a\tb\na\tb\na\ta\nb\ta\nb\tc\n", 0);
+	assert_int_equal(g->n, 6); /* 3 nodes, two copies each */
+	assert_int_equal(g->nsend, 3);
+	assert_true(g->paired);
+	assert_int_equal(g->m, 3); /* a->b, b->a, b->c */
+	assert_int_equal(g->report.self_loops, 1);
+	assert_int_equal(g->report.duplicates, 1);
+	size_t len;
+	const char *s = graph_side_name(g, 4, &len); /* b's receiving copy */
+	assert_int_equal(len, 1);
+	assert_memory_equal(s, "b", 1);
+	assert_true(graph_side_of(g, 4));
+	assert_true(graph_has_edge(g, 0, 4)); /* a -> b */
+	assert_true(graph_has_edge(g, 1, 3)); /* b -> a */
+	assert_false(graph_has_edge(g, 2, 4)); /* no c -> b */
+	graph_free(g);
+}
+
+static void test_two_mode_names_repeat_across_kinds(void **state)
+{
+	(void)state;
+	struct graph *g = load_text("x\ty\nx\tx\nw\ty\n", 1);
+	assert_int_equal(g->nsend, 2); /* x, w */
+	assert_int_equal(g->n, 4);     /* and y, x of the second kind */
+	assert_false(g->paired);
+	assert_int_equal(g->m, 3);     /* x -- x is a link between two nodes */
+	assert_int_equal(g->report.self_loops, 0);
+	graph_free(g);
+}
+
+/*
+ * The hand example. Arcs a->b, b->c, c->a, d->a (ids 0 1 2 3 by first
+ * appearance); k = 1, qeps = 0.1 (epsilon = 1 - e^-0.1), strengths
+ *     F = (1, 0.5, 0, 0) (sending), H = (0, 1, 2, 0) (receiving).
+ * Ordered pairs u != v, x = F_u H_v + 0.1:
+ *     arcs: ab 1.1, bc 1.1, ca 0.1, da 0.1;
+ *     non-arcs: ac 2.1, ad 0.1, ba 0.1, bd 0.1, cb 0.1, cd 0.1, db 0.1, dc 0.1 (sum 2.8).
+ * ln(1 - e^-1.1) = ln(1 - 0.33287108) = -0.40477197;
+ * ln(1 - e^-0.1) = ln(0.09516258) = -2.35216846;
+ *     l = 2 (-0.40477197) + 2 (-2.35216846) - 2.8 = -8.31388087.
+ * Sending row a: out(a) = {b}, S_H = 3, the others S_H - H_b - H_a = 2:
+ *     g = H_b / expm1(1.1) - 2 = 1 / 2.00416602 - 2 = -1.50103934.
+ * Receiving row c: in(c) = {b}, S_F = 1.5, S_F - F_b - F_c = 1:
+ *     g = F_b / expm1(1.1) - 1 = 0.5 / 2.00416602 - 1 = -0.75051967.
+ */
+static void test_loglik_and_gradient_match_the_hand_example(void **state)
+{
+	(void)state;
+	struct graph *g = load_text("a\tb\nb\tc\nc\ta\nd\ta\n", 0);
+	struct model m;
+	struct graph *sp, *view;
+	sided_model(&m, g, 1, -expm1(-0.1), &sp, &view);
+	struct fentry one = { 0, 1.0 }, half = { 0, 0.5 }, two = { 0, 2.0 };
+	assert_int_equal(model_set_row(&m, 0, &one, 1), 0);  /* F_a */
+	assert_int_equal(model_set_row(&m, 1, &half, 1), 0); /* F_b */
+	assert_int_equal(model_set_row(&m, 5, &one, 1), 0);  /* H_b */
+	assert_int_equal(model_set_row(&m, 6, &two, 1), 0);  /* H_c */
+	assert_true(fabs(model_loglik(&m, g) - -8.31388087) < 1e-7);
+	assert_true(fabs(model_directed_loglik_pairs(&m, g) - -8.31388087) < 1e-7);
+	const struct objective_ops *ops = model_objective_of(MODEL_DIRECTED);
+	void *w = ops->work_new(&m);
+	double grad[1];
+	ops->row_gradient(&m, g, 0, w, grad);
+	assert_true(fabs(grad[0] - -1.50103934) < 1e-7);
+	ops->row_gradient(&m, g, 6, w, grad);
+	assert_true(fabs(grad[0] - -0.75051967) < 1e-7);
+	ops->work_free(w);
+	model_release(&m);
+	graph_free(sp);
+	graph_free(view);
+	graph_free(g);
+}
+
+/* A random directed graph of n nodes: arcs inside blocks of 20 with
+ * probability pin, else pout (the text of an edge list). */
+static char *random_arcs(uint32_t n, double pin, double pout, uint64_t seed)
+{
+	struct rng r;
+	rng_init(&r, seed);
+	size_t cap = 1 << 16, len = 0;
+	char *t = malloc(cap);
+	assert_non_null(t);
+	for (uint32_t u = 0; u < n; u++)
+		for (uint32_t v = 0; v < n; v++) {
+			if (u == v || rng_uniform(&r) >= (u / 20 == v / 20 ? pin : pout))
+				continue;
+			if (len + 32 > cap)
+				assert_non_null(t = realloc(t, cap *= 2));
+			len += (size_t)snprintf(t + len, cap - len, "n%u\tn%u\n", u, v);
+		}
+	t[len] = '\0';
+	return t;
+}
+
+static void random_rows(struct model *m, uint64_t seed)
+{
+	struct rng r;
+	rng_init(&r, seed);
+	struct fentry e[4];
+	for (uint32_t u = 0; u < m->n; u++) {
+		uint32_t nnz = 0;
+		for (uint32_t c = 0; c < m->k; c++)
+			if (rng_uniform(&r) < 0.5)
+				e[nnz++] = (struct fentry){ c, 0.05 + rng_uniform(&r) };
+		assert_int_equal(model_set_row(m, u, e, nnz), 0);
+	}
+}
+
+static void test_gradient_matches_finite_differences(void **state)
+{
+	(void)state;
+	char *text = random_arcs(60, 0.3, 0.02, 3);
+	struct graph *g = load_text(text, 0);
+	free(text);
+	struct model m;
+	struct graph *sp, *view;
+	sided_model(&m, g, 4, 0.01, &sp, &view);
+	random_rows(&m, 4);
+	/* the summed pieces are the pair-by-pair definition */
+	double l = model_loglik(&m, g), lp = model_directed_loglik_pairs(&m, g);
+	assert_true(fabs(l - lp) <= 1e-10 * fabs(lp));
+	const struct objective_ops *ops = model_objective_of(MODEL_DIRECTED);
+	void *w = ops->work_new(&m);
+	double grad[4], h = 1e-6;
+	int checked = 0;
+	for (uint32_t u = 0; u < g->n; u += 7) {
+		ops->row_gradient(&m, g, u, w, grad);
+		for (uint32_t c = 0; c < 4; c++) {
+			struct fentry lo[4], hi[4];
+			for (uint32_t i = 0; i < 4; i++)
+				lo[i] = hi[i] = (struct fentry){ i, 0.0 };
+			for (uint32_t i = 0; i < m.rows[u].nnz; i++)
+				lo[m.rows[u].e[i].c].v = hi[m.rows[u].e[i].c].v = m.rows[u].e[i].v;
+			double cur = lo[c].v, a = cur > h ? cur - h : cur;
+			lo[c].v = a;
+			hi[c].v = cur + h;
+			double fd = (ops->row_objective(&m, g, u, hi, 4, w) -
+				     ops->row_objective(&m, g, u, lo, 4, w)) / (cur + h - a);
+			assert_true(fabs(fd - grad[c]) <= 1e-4 * (1.0 + fabs(grad[c])));
+			checked++;
+		}
+		/* the row objective holds every term with u: its change is l's */
+		struct fentry bump[4];
+		uint32_t nnz = 0;
+		for (uint32_t c = 0; c < 4; c++)
+			bump[nnz++] = (struct fentry){ c, 0.3 + 0.1 * c };
+		double f0 = ops->row_objective(&m, g, u, m.rows[u].e, m.rows[u].nnz, w);
+		double f1 = ops->row_objective(&m, g, u, bump, nnz, w);
+		struct fentry keep[4];
+		uint32_t kn = m.rows[u].nnz;
+		memcpy(keep, m.rows[u].e, kn * sizeof *keep);
+		double l0 = model_directed_loglik_pairs(&m, g);
+		assert_int_equal(model_set_row(&m, u, bump, nnz), 0);
+		double l1 = model_directed_loglik_pairs(&m, g);
+		assert_int_equal(model_set_row(&m, u, keep, kn), 0);
+		assert_true(fabs((f1 - f0) - (l1 - l0)) <= 1e-9 * (1.0 + fabs(l0)));
+	}
+	assert_true(checked >= 60);
+	ops->work_free(w);
+	model_release(&m);
+	graph_free(sp);
+	graph_free(view);
+	graph_free(g);
+}
+
+static double sweeps(const struct graph *g, unsigned threads, struct fcsr *out)
+{
+	struct model m;
+	struct graph *sp, *view;
+	struct seed_report rep;
+	sided_model(&m, g, 20, 0.002, &sp, &view);
+	assert_int_equal(model_directed_seed(g, view, &m, 5, 0, &rep), 0);
+	struct sweep *s = sweep_new(&m, g, model_objective_of(MODEL_DIRECTED), threads);
+	assert_non_null(s);
+	sweep_pool_start(s);
+	double ll = sweep_objective(s);
+	for (uint64_t k = 0; k < 6; k++) {
+		double before = ll;
+		assert_int_equal(sweep_run(s, 7 + k, NULL, NULL, &ll), 0);
+		double again = model_directed_loglik_pairs(&m, g);
+		assert_true(fabs(ll - again) <= 1e-10 * fabs(again)); /* sweep.c */
+		assert_true(ll >= before - 1e-12 * fabs(before));
+	}
+	assert_model_sane(&m);
+	sweep_pool_stop(s);
+	sweep_free(s);
+	assert_int_equal(model_export(&m, out), 0);
+	model_release(&m);
+	graph_free(sp);
+	graph_free(view);
+	return ll;
+}
+
+static void test_sweeps_sum_to_a_recompute_with_the_same_bits_for_any_thread_count(void **state)
+{
+	(void)state;
+	char *text = random_arcs(400, 0.25, 0.003, 9);
+	struct graph *g = load_text(text, 0);
+	free(text);
+	struct fcsr a, b;
+	double la = sweeps(g, 1, &a), lb = sweeps(g, 2, &b);
+	assert_memory_equal(&la, &lb, sizeof la);
+	assert_int_equal(a.off[a.n], b.off[b.n]);
+	assert_memory_equal(a.e, b.e, a.off[a.n] * sizeof *a.e);
+	fcsr_release(&a);
+	fcsr_release(&b);
+	graph_free(g);
+}
+
+/* The checkpoint keeps the model and the sides; the graph read back is
+ * two-sided again. */
+static void test_checkpoint_keeps_the_sides(void **state)
+{
+	(void)state;
+	for (int two_mode = 0; two_mode < 2; two_mode++) {
+		char *text = random_arcs(60, 0.3, 0.02, 5);
+		struct graph *g = load_text(text, two_mode);
+		free(text);
+		struct fit_params p;
+		fit_params_default(&p);
+		p.k = 3;
+		p.model = two_mode ? MODEL_TWO_MODE : MODEL_DIRECTED;
+		p.starts = 1;
+		p.epsilon = 0.01;
+		struct snapshot *s = test_fit_to_end(g, &p, NULL, NULL);
+		struct result_model rm;
+		result_model_of(&rm, s);
+		const char *dir = test_tmpdir();
+		char path[4096];
+		snprintf(path, sizeof path, "%s/ck.cot", dir);
+		assert_int_equal(checkpoint_write(path, g, &p, &rm), 0);
+		struct checkpoint ck;
+		assert_int_equal(checkpoint_read(path, &ck), 0);
+		assert_int_equal(ck.params.model, p.model);
+		assert_int_equal(ck.graph->nsend, g->nsend);
+		assert_int_equal(ck.graph->paired, !two_mode);
+		assert_true(graph_fingerprint(ck.graph) == graph_fingerprint(g));
+		checkpoint_release(&ck);
+		snapshot_release(s);
+		test_rmtree(dir);
+		graph_free(g);
+	}
+}
+
+int main(void)
+{
+	const struct CMUnitTest tests[] = {
+		cmocka_unit_test(test_arcs_make_a_two_sided_graph),
+		cmocka_unit_test(test_two_mode_names_repeat_across_kinds),
+		cmocka_unit_test(test_loglik_and_gradient_match_the_hand_example),
+		cmocka_unit_test(test_gradient_matches_finite_differences),
+		cmocka_unit_test(test_sweeps_sum_to_a_recompute_with_the_same_bits_for_any_thread_count),
+		cmocka_unit_test(test_checkpoint_keeps_the_sides),
+	};
+	return cmocka_run_group_tests(tests, NULL, NULL);
+}
