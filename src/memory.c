@@ -302,8 +302,8 @@ static uint64_t need_of(const struct graph *g, const struct fit_params *p, int v
 	return sat_add(sat_add(mapped, fit), sat_mul(threads, stack));
 }
 
-/* What would fit instead, into buf: the largest k at p's threads (the
- * estimate grows with k), else one thread. */
+/* What would fit instead, into buf: -j 1 at p's k, else the largest k at
+ * p's threads (the estimate grows with k, so a bisection finds it). */
 static void what_fits(const struct graph *g, const struct fit_params *p, int virt,
 		      uint64_t mapped, uint64_t resident, uint64_t limit, char *buf, size_t cap)
 {
@@ -330,9 +330,14 @@ static void what_fits(const struct graph *g, const struct fit_params *p, int vir
 	else if (lo)
 		snprintf(buf, cap, "k = %u is the largest that would fit at %u thread%s", lo,
 			 p->threads, p->threads == 1 ? "" : "s");
+	else if (p->threads > 1)
+		/* threads already started map stacks and arenas of their own,
+		 * counted in what the process maps now: fewer may well fit */
+		snprintf(buf, cap, "no k of 2 or more would fit at %u threads; try fewer "
+			 "threads (-j 1)", p->threads);
 	else
-		snprintf(buf, cap, "no k of 2 or more would fit at %u thread%s; free memory or "
-			 "raise the limit", p->threads, p->threads == 1 ? "" : "s");
+		snprintf(buf, cap, "no k of 2 or more would fit at 1 thread; free memory or "
+			 "raise the limit");
 }
 
 int memory_check_fit(const struct graph *g, const struct fit_params *p)
