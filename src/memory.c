@@ -1,22 +1,18 @@
 /*
  * memory: the fit's memory estimate and the process's limit.
  *
- * The estimate follows where fit.c keeps strengths. With E the entries the
- * model may hold (a node in at most min(k, degree + 1) communities: its
- * row update only proposes the communities of its neighbours, and seeding
- * and refinement put it in one more) and C = (n + 1) offsets + E entries +
- * k column sums, the bytes of one compressed copy of the strengths:
- *   the working model       n rows + 2 E entries (rows grow by doubling)
- *   strength copies         COPIES x C: the newest snapshot, one held by a
- *                           reader, one being written as a checkpoint, the
- *                           best start, refinement's saved model, the
- *                           climb kept for an interrupt, and the resume
- *                           point's two
- *   the AGM of a snapshot   per copy: memberships (E x (id + strength)),
- *                           per-node and per-community figures
- *   per thread              scratch of a few arrays of k, plus its share
- *                           of a block of new rows
- *   the fitting thread      a permutation and marks over the nodes
+ * The estimate is measured, not derived: what a fit adds to the resident
+ * size is a fixed part, a part a node and a part an entry of the "fill",
+ * the most strength entries the rows hold at once (in the first sweeps:
+ * a node whose row shares no community with a neighbour's takes that
+ * neighbour's communities, then most are dropped again). The fill is
+ * what a formula of n, degrees, k and threads alone cannot know: at equal
+ * n, degrees and k it is 5x larger on a graph whose communities leak. So
+ * it is predicted from a leak measure taken before the fit, the share of
+ * edges that close no triangle (edges between communities rarely do),
+ * with k and n / k; the constants are fitted to the peaks of
+ * tests/bench/memory_table.sh and scaled to lie slightly above them (an
+ * estimate below the peak starts fits that do not fit).
  * The one thing a newcomer gets wrong: the limit may count address space
  * (ulimit -v), where every thread's stack counts in full whether touched
  * or not, and AddressSanitizer's shadow would count terabytes; so the
@@ -27,6 +23,7 @@
 #include <ctype.h>
 #include <errno.h>
 #include <inttypes.h>
+#include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -35,12 +32,8 @@
 
 #include "coterie/fit.h"
 #include "coterie/graph.h"
-#include "coterie/model.h"
 #include "coterie/util.h"
 
-#define COPIES 8u        /* compressed copies of the strengths alive at once */
-#define AGM_COPIES 3u    /* AGMs alive at once (snapshots and the fit's own) */
-#define BLOCK_ROWS 2048u /* rows computed together (fit.c, BLOCK_NODES) */
 #define EXTRA_THREADS 3u /* the fitting thread, the pager, the autosave */
 
 static uint64_t sat_add(uint64_t a, uint64_t b)
@@ -53,28 +46,105 @@ static uint64_t sat_mul(uint64_t a, uint64_t b)
 	return b && a > UINT64_MAX / b ? UINT64_MAX : a * b;
 }
 
+/* Whether the sorted rows a and b share a value (a is the shorter);
+ * stops at the first one. */
+static int rows_meet(const uint32_t *a, uint64_t na, const uint32_t *b, uint64_t nb)
+{
+	for (uint64_t i = 0; i < na; i++) {
+		uint64_t lo = 0, hi = nb;
+		while (lo < hi) {
+			uint64_t mid = lo + (hi - lo) / 2;
+			if (b[mid] < a[i])
+				lo = mid + 1;
+			else
+				hi = mid;
+		}
+		if (lo < nb && b[lo] == a[i])
+			return 1;
+	}
+	return 0;
+}
+
+#define LEAK_SAMPLE 20000u /* edges looked at for the leak share */
+
+double memory_leak_share(const struct graph *g)
+{
+	uint64_t m = g->off[g->n] / 2;
+	if (!m)
+		return 0.0;
+	uint64_t stride = m > LEAK_SAMPLE ? m / LEAK_SAMPLE : 1, seen = 0, open = 0, idx = 0;
+	for (uint32_t u = 0; u < g->n; u++) {
+		for (uint64_t i = g->off[u]; i < g->off[u + 1]; i++) {
+			uint32_t v = g->adj[i];
+			if (v < u)
+				continue;
+			if (idx++ % stride)
+				continue;
+			const uint32_t *a = g->adj + g->off[u], *b = g->adj + g->off[v];
+			uint64_t na = g->off[u + 1] - g->off[u], nb = g->off[v + 1] - g->off[v];
+			seen++;
+			open += na <= nb ? !rows_meet(a, na, b, nb) : !rows_meet(b, nb, a, na);
+		}
+	}
+	return (double)open / (double)seen;
+}
+
+/*
+ * The fill: the most strength entries the model holds at once, a node on
+ * average (the peak of rows in the first sweeps), fitted in logarithms to
+ * the measured peaks (DEVELOPERS.md, "The memory estimate against the
+ * peak"; tests/bench/memory_table.sh): with lk = ln k, lx = ln(mean
+ * degree x leak share) (the edges of a node that close no triangle, at
+ * least 0.05) and ln = ln(n / k) (at least 0),
+ *   ln fill = F0 + F1 lk + F2 lx + F3 lx lk + F4 ln + F5 ln lk.
+ * Capped at k and at twice the mean of min(k, degree + 1) (the fill
+ * measured never passed 1.6 times it).
+ */
+#define F0 (-0.8757)
+#define F1 0.1646
+#define F2 0.4469
+#define F3 0.0744
+#define F4 (-0.2024)
+#define F5 0.0545
+/* Bytes the fit adds beside the resident size at the check, fitted to
+ * the same peaks (least squares) and then all scaled by MARGIN so that
+ * no measured peak is above the estimate by more than 1%: */
+#define MARGIN 1.3
+#define FIXED_BYTES 1712396.0 /* the pool, the first snapshot, the trace */
+#define NODE_BYTES 81.2        /* rows, offsets, permutation, marks, AGM node figures */
+#define ENTRY_BYTES 33.6       /* an entry of the fill: the row (grown by doubling), its
+				* snapshot, the AGM read from it */
+#define THREAD_BYTES 262144.0  /* a further thread's scratch, beside 64 bytes a community */
+
+double memory_fill(const struct graph *g, uint32_t k)
+{
+	if (!g->n || !k)
+		return 0.0;
+	double n = g->n, kk = k, mean_deg = (double)g->off[g->n] / n;
+	double summin = 0.0;
+	for (uint32_t u = 0; u < g->n; u++) {
+		double deg = (double)(g->off[u + 1] - g->off[u]);
+		summin += deg + 1 < kk ? deg + 1 : kk;
+	}
+	double x = mean_deg * memory_leak_share(g);
+	double lk = log(kk), lx = log(x > 0.05 ? x : 0.05), ln = log(n > kk ? n / kk : 1.0);
+	double fill = exp(F0 + F1 * lk + F2 * lx + F3 * lx * lk + F4 * ln + F5 * ln * lk);
+	if (fill > kk)
+		fill = kk;
+	if (fill > 2.0 * summin / n)
+		fill = 2.0 * summin / n;
+	return fill;
+}
+
 uint64_t memory_fit_estimate(const struct graph *g, const struct fit_params *p)
 {
-	uint64_t n = g->n, k = p->k ? p->k : 1;
-	uint64_t entries = 0;
-	for (uint32_t u = 0; u < g->n; u++) {
-		uint64_t deg = g->off[u + 1] - g->off[u];
-		entries = sat_add(entries, deg + 1 < k ? deg + 1 : k);
-	}
-	uint64_t ent = sizeof(struct fentry);
-	uint64_t copy = sat_add(sat_add(sat_mul(n + 1, 8), sat_mul(entries, ent)), sat_mul(k, 8));
-	uint64_t model = sat_add(sat_mul(n, sizeof(struct frow)), sat_mul(sat_mul(entries, 2), ent));
-	/* an AGM: members and strengths, node figures, community figures */
-	uint64_t agm = sat_add(sat_add(sat_mul(entries, 12), sat_mul(n, 16)), sat_mul(k, 128));
-	uint64_t threads = p->threads ? p->threads : 1;
-	uint64_t per_thread = sat_add(sat_mul(k, 48), sat_mul(BLOCK_ROWS, sat_mul(k < 64 ? k : 64,
-										    ent)));
-	uint64_t total = model;
-	total = sat_add(total, sat_mul(COPIES, copy));
-	total = sat_add(total, sat_mul(AGM_COPIES, agm));
-	total = sat_add(total, sat_mul(threads, per_thread));
-	total = sat_add(total, sat_mul(n, 12)); /* permutation, marks, trace slack */
-	return total;
+	uint32_t k = p->k ? p->k : 1;
+	double threads = p->threads > 1 ? p->threads - 1 : 0;
+	double bytes = FIXED_BYTES + NODE_BYTES * g->n +
+		       ENTRY_BYTES * memory_fill(g, k) * g->n +
+		       threads * (THREAD_BYTES + 64.0 * k);
+	bytes *= MARGIN;
+	return bytes >= 1.8e19 ? UINT64_MAX : (uint64_t)bytes;
 }
 
 /* "123", "64M", "2G": bytes; 0 on a bad value. */
@@ -215,6 +285,61 @@ static void human(uint64_t b, char *buf, size_t cap)
 		snprintf(buf, cap, "%.0f KiB", (double)b / 1024.0);
 }
 
+/* The bytes a fit of g with p needs beside what the process holds now,
+ * against the limit: the estimate plus the resident size, or (a limit of
+ * address space) plus everything mapped and every thread's stack. */
+static uint64_t need_of(const struct graph *g, const struct fit_params *p, int virt,
+			uint64_t mapped, uint64_t resident)
+{
+	uint64_t fit = memory_fit_estimate(g, p);
+	if (!virt)
+		return sat_add(resident, fit);
+	struct rlimit st;
+	uint64_t stack = 8ull << 20;
+	if (getrlimit(RLIMIT_STACK, &st) == 0 && st.rlim_cur != RLIM_INFINITY)
+		stack = (uint64_t)st.rlim_cur;
+	uint64_t threads = (uint64_t)(p->threads ? p->threads : 1) + EXTRA_THREADS;
+	return sat_add(sat_add(mapped, fit), sat_mul(threads, stack));
+}
+
+/* What would fit instead, into buf: -j 1 at p's k, else the largest k at
+ * p's threads (the estimate grows with k, so a bisection finds it). */
+static void what_fits(const struct graph *g, const struct fit_params *p, int virt,
+		      uint64_t mapped, uint64_t resident, uint64_t limit, char *buf, size_t cap)
+{
+	struct fit_params q = *p;
+	uint32_t lo = 1, hi = p->k; /* need(lo) fits unless lo == 0 below; need(hi) does not */
+	q.k = 2;
+	if (p->k <= 2 || need_of(g, &q, virt, mapped, resident) > limit) {
+		lo = 0;
+	} else {
+		lo = 2;
+		while (hi - lo > 1) {
+			q.k = lo + (hi - lo) / 2;
+			if (need_of(g, &q, virt, mapped, resident) <= limit)
+				lo = q.k;
+			else
+				hi = q.k;
+		}
+	}
+	q = *p;
+	q.threads = 1;
+	int one = p->threads > 1 && need_of(g, &q, virt, mapped, resident) <= limit;
+	if (one)
+		snprintf(buf, cap, "-j 1 would fit at k = %u", p->k);
+	else if (lo)
+		snprintf(buf, cap, "k = %u is the largest that would fit at %u thread%s", lo,
+			 p->threads, p->threads == 1 ? "" : "s");
+	else if (p->threads > 1)
+		/* threads already started map stacks and arenas of their own,
+		 * counted in what the process maps now: fewer may well fit */
+		snprintf(buf, cap, "no k of 2 or more would fit at %u threads; try fewer "
+			 "threads (-j 1)", p->threads);
+	else
+		snprintf(buf, cap, "no k of 2 or more would fit at 1 thread; free memory or "
+			 "raise the limit");
+}
+
 int memory_check_fit(const struct graph *g, const struct fit_params *p)
 {
 	uint64_t limit, mapped = 0, resident = 0;
@@ -222,26 +347,17 @@ int memory_check_fit(const struct graph *g, const struct fit_params *p)
 	int virt;
 	if (memory_limit(&limit, &what, &virt) || process_size(&mapped, &resident))
 		return 0;
-	uint64_t fit = memory_fit_estimate(g, p);
-	uint64_t need;
-	if (virt) {
-		struct rlimit st;
-		uint64_t stack = 8ull << 20;
-		if (getrlimit(RLIMIT_STACK, &st) == 0 && st.rlim_cur != RLIM_INFINITY)
-			stack = (uint64_t)st.rlim_cur;
-		uint64_t threads = (uint64_t)(p->threads ? p->threads : 1) + EXTRA_THREADS;
-		need = sat_add(sat_add(mapped, fit), sat_mul(threads, stack));
-	} else {
-		need = sat_add(resident, fit);
-	}
+	uint64_t need = need_of(g, p, virt, mapped, resident);
 	if (need <= limit)
 		return 0;
-	char a[32], b[32], c[32];
+	uint64_t fit = memory_fit_estimate(g, p);
+	char a[32], b[32], c[32], alt[160];
 	human(fit, a, sizeof a);
 	human(need, b, sizeof b);
 	human(limit, c, sizeof c);
+	what_fits(g, p, virt, mapped, resident, limit, alt, sizeof alt);
 	return error("not enough memory for this fit: it would need about %s more (%s in all, "
 		     "an estimate for %" PRIu32 " nodes, %" PRIu64 " edges, k = %u and %u "
-		     "thread%s), but %s is %s; try a smaller -k or fewer threads (-j)",
-		     a, b, g->n, g->m, p->k, p->threads, p->threads == 1 ? "" : "s", what, c);
+		     "thread%s), but %s is %s; %s",
+		     a, b, g->n, g->m, p->k, p->threads, p->threads == 1 ? "" : "s", what, c, alt);
 }

@@ -12,12 +12,24 @@ struct graph;
 struct fit_params;
 
 /* The bytes a fit of g (borrowed, already loaded) with p will add to the
- * process: the working model, the copies of the strengths that snapshots,
- * the best start, refinement and checkpoints keep, the AGM read from them,
- * and each thread's scratch space. An estimate, not a bound: a node is
- * taken to hold at most min(k, degree + 1) communities. Thread stacks are
- * not included (see memory_check_fit()). */
+ * resident size at its peak: a fixed part, a part a node, a part an entry
+ * of the predicted fill (memory_fill()) and each further thread's
+ * scratch, fitted to measured peaks and set slightly above them. An
+ * estimate, not a bound. Thread stacks are not included (see
+ * memory_check_fit()). Costs a pass over the nodes and a sample of edges. */
 uint64_t memory_fit_estimate(const struct graph *g, const struct fit_params *p);
+
+/* The predicted fill of a fit of g (borrowed) with k communities: the
+ * most strength entries the model holds at once (in its first sweeps),
+ * a node on average; from k, n / k and the mean degree times
+ * memory_leak_share(). 0 for an empty graph or k = 0. */
+double memory_fill(const struct graph *g, uint32_t k);
+
+/* The share of g's edges (borrowed) that close no triangle, from a
+ * sample of at most about 20,000 edges spread evenly over the edge list:
+ * edges between communities rarely close one, so it measures how much the
+ * communities leak. 0 for a graph without edges. */
+double memory_leak_share(const struct graph *g);
 
 /* What limits this process: the smallest of physical memory, the
  * address-space and data limits (ulimit -v, ulimit -d), the cgroup's
@@ -28,7 +40,8 @@ uint64_t memory_fit_estimate(const struct graph *g, const struct fit_params *p);
  * when nothing is known (no message). */
 int memory_limit(uint64_t *bytes, const char **what, int *counts_virtual);
 
-/* Refuse (error() with the estimate and the limit, -1) when a fit of g with
+/* Refuse (error() with the estimate, the limit and what would fit: -j 1
+ * at this k, or the largest k at these threads; -1) when a fit of g with
  * p would not fit beside what the process already uses; 0 otherwise, or
  * when the limit cannot be known. */
 int memory_check_fit(const struct graph *g, const struct fit_params *p);
