@@ -259,3 +259,52 @@ int stability_same_graph(const char *const *dirs, uint32_t n)
 	}
 	return 0;
 }
+
+/* ---- reading a folder's stability back ---- */
+
+#define STABILITY_MAX_ID (1u << 24) /* far above any k a fit allows */
+
+int stability_read(const char *dir, double **score, uint32_t *nid, uint32_t *sweep)
+{
+	*score = NULL;
+	*nid = 0;
+	*sweep = 0;
+	char *path = result_file(dir, "run.json");
+	json_t *run = path ? json_load_file(path, 0, NULL) : NULL;
+	free(path);
+	json_t *list = json_object_get(json_object_get(run, "stability"), "communities");
+	json_t *sw = json_object_get(json_object_get(run, "fit"), "sweeps");
+	uint32_t top = 0;
+	size_t i;
+	json_t *c;
+	json_array_foreach(list, i, c) {
+		json_int_t id = json_integer_value(json_object_get(c, "community"));
+		if (json_is_integer(json_object_get(c, "community")) && id >= 0 &&
+		    id < STABILITY_MAX_ID && (uint32_t)id + 1 > top)
+			top = (uint32_t)id + 1;
+	}
+	int rc = 0;
+	if (top > 0 && json_is_integer(sw) && json_integer_value(sw) >= 0 &&
+	    json_integer_value(sw) <= UINT32_MAX) {
+		double *s = util_malloc(top, sizeof *s);
+		if (!s) {
+			rc = -1;
+		} else {
+			for (uint32_t j = 0; j < top; j++)
+				s[j] = NAN;
+			json_array_foreach(list, i, c) {
+				json_t *id = json_object_get(c, "community");
+				json_t *v = json_object_get(c, "stability");
+				if (json_is_integer(id) && json_integer_value(id) >= 0 &&
+				    json_integer_value(id) < top && json_is_number(v) &&
+				    json_number_value(v) >= 0 && json_number_value(v) <= 1)
+					s[json_integer_value(id)] = json_number_value(v);
+			}
+			*score = s;
+			*nid = top;
+			*sweep = (uint32_t)json_integer_value(sw);
+		}
+	}
+	json_decref(run);
+	return rc;
+}

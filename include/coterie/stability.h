@@ -101,4 +101,16 @@ int stability_fit_runs(const struct graph *g, const struct fit_params *p,
  */
 int stability_same_graph(const char *const *dirs, uint32_t n);
 
+/*
+ * The stability run.json in dir records (its "stability" section, read
+ * through result_file()), for a reader showing the result: *score gets
+ * an array indexed by community id (*nid entries, NaN for an id not
+ * scored; caller frees with free()), *sweep the sweep of the fit scored
+ * (run.json's fit.sweeps), to tell whether a model shown is that one.
+ * No section (a fit made once), or a run.json that cannot be read, gives
+ * *score NULL and *nid 0 and returns 0 (nothing to show is not an error).
+ * Returns -1 only when out of memory (reported).
+ */
+int stability_read(const char *dir, double **score, uint32_t *nid, uint32_t *sweep);
+
 #endif
