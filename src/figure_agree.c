@@ -220,18 +220,11 @@ int figure_agreement(const char *const *dirs, uint32_t nruns, struct figure_matr
 	memset(out, 0, sizeof *out);
 	if (nruns < 2)
 		return error("the agreement of runs needs two result folders or more, not %u", nruns);
-	if (stability_same_graph(dirs, nruns))
-		return -1;
 	struct names *nodes = names_new(0);
 	struct cover *c = util_calloc(nruns, sizeof *c);
 	int rc = -1;
-	if (!nodes || !c)
+	if (!nodes || !c || stability_read_folders(dirs, nruns, nodes, c))
 		goto out;
-	for (uint32_t r = 0; r < nruns; r++)
-		if (figure_read_cover(dirs[r], nodes, &c[r]))
-			goto out;
-	for (uint32_t r = 0; r < nruns; r++)
-		c[r].n = names_count(nodes); /* all over the union of the nodes */
 	if (nruns == 2) {
 		rc = two_runs(&c[0], &c[1], out);
 	} else {

@@ -24,9 +24,11 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/stat.h>
 
 #include <jansson.h>
 
+#include "coterie/names.h"
 #include "coterie/result_commit.h"
 #include "coterie/util.h"
 
@@ -257,6 +259,43 @@ int stability_same_graph(const char *const *dirs, uint32_t n)
 				     util_escape(dirs[r], b, sizeof b, 1));
 		}
 	}
+	return 0;
+}
+
+/* DIR/memberships.tsv into c, its names into nodes. 0 or -1 (reported). */
+static int read_folder(const char *dir, struct names *nodes, struct cover *c)
+{
+	struct stat st;
+	char buf[512];
+	if (stat(dir, &st) != 0 || !S_ISDIR(st.st_mode))
+		return error("'%s' is not a result folder", util_escape(dir, buf, sizeof buf, 1));
+	char *path = result_file(dir, "memberships.tsv");
+	if (!path)
+		return -1;
+	int rc = -1;
+	if (stat(path, &st) != 0)
+		error("'%s' has no memberships.tsv: the communities a fit writes",
+		      util_escape(dir, buf, sizeof buf, 1));
+	else
+		rc = cover_read(c, path, nodes);
+	free(path);
+	return rc;
+}
+
+int stability_read_folders(const char *const *dirs, uint32_t n, struct names *nodes,
+			   struct cover *out)
+{
+	memset(out, 0, n * sizeof *out);
+	if (stability_same_graph(dirs, n))
+		return -1;
+	for (uint32_t r = 0; r < n; r++)
+		if (read_folder(dirs[r], nodes, &out[r])) {
+			for (uint32_t q = 0; q <= r; q++)
+				cover_release(&out[q]);
+			return -1;
+		}
+	for (uint32_t r = 0; r < n; r++)
+		out[r].n = names_count(nodes); /* all over the union of the nodes */
 	return 0;
 }
 

@@ -51,14 +51,14 @@ static int slot_launch(struct slot *sl, const struct graph *g, const struct fit_
 	return 0;
 }
 
-static void stop_all(struct slot *sl, uint32_t nslots)
+/* Stop the fit of a slot, if it has one, and let it go. */
+static void slot_drop(struct slot *sl)
 {
-	for (uint32_t i = 0; sl && i < nslots; i++)
-		if (sl[i].f) {
-			fit_stop(sl[i].f);
-			fit_free(sl[i].f);
-			sl[i].f = NULL;
-		}
+	if (!sl->f)
+		return;
+	fit_stop(sl->f); /* fit_free() joins the thread */
+	fit_free(sl->f);
+	sl->f = NULL;
 }
 
 /* A slot's fit has ended: its snapshot into snap[run]; frees the fit. */
@@ -80,6 +80,27 @@ static int slot_take(struct slot *sl, const struct fit_params *p,
 	return 0;
 }
 
+/* Wait (up to 200 ms) until a fit of sl has ended: its slot, or nslots
+ * when none has yet. */
+static uint32_t next_ended(struct slot *sl, uint32_t nslots, struct pollfd *pfd)
+{
+	uint32_t np = 0;
+	for (uint32_t i = 0; i < nslots; i++)
+		if (sl[i].f)
+			pfd[np++] = (struct pollfd){ fit_wake_fd(sl[i].f), POLLIN, 0 };
+	if (np)
+		poll(pfd, np, 200);
+	uint32_t ended = nslots;
+	for (uint32_t i = nslots; i-- > 0;) {
+		if (!sl[i].f)
+			continue;
+		fit_drain_wake(sl[i].f);
+		if (fit_state_ended(fit_get_state(sl[i].f)))
+			ended = i;
+	}
+	return ended;
+}
+
 int stability_fit_runs(const struct graph *g, const struct fit_params *p,
 		       const struct holdout *held, uint32_t first, uint32_t runs,
 		       const struct stability_hooks *hooks, struct snapshot **snap)
@@ -87,40 +108,29 @@ int stability_fit_runs(const struct graph *g, const struct fit_params *p,
 	if (first >= runs)
 		return 0;
 	uint32_t todo = runs - first, threads = p->threads ? p->threads : 1;
-	uint32_t nslots = todo < threads ? todo : threads;
+	uint32_t nslots = todo < threads ? todo : threads, taken = 0, next = first;
 	struct slot *sl = util_calloc(nslots, sizeof *sl);
 	struct pollfd *pfd = util_calloc(nslots, sizeof *pfd);
 	int rc = sl && pfd ? 0 : -1;
-	uint32_t next = first;
 	for (uint32_t r = first; r < runs; r++)
 		snap[r] = NULL;
-	while (rc == 0) {
-		uint32_t active = 0;
-		for (uint32_t i = 0; i < nslots && rc == 0; i++) {
-			if (!sl[i].f && next < runs) {
-				/* fewer runs than threads: slot i gets its share */
-				unsigned t = todo < threads ? threads / nslots +
-					     (i < threads % nslots) : 1;
-				rc = slot_launch(&sl[i], g, p, held, next++, t);
-			}
-			active += sl[i].f != NULL;
-		}
-		if (rc || active == 0)
-			break;
-		for (uint32_t i = 0; i < nslots; i++)
-			pfd[i] = (struct pollfd){ sl[i].f ? fit_wake_fd(sl[i].f) : -1, POLLIN, 0 };
-		poll(pfd, nslots, 200);
-		for (uint32_t i = 0; i < nslots && rc == 0; i++) {
-			if (!sl[i].f)
-				continue;
-			fit_drain_wake(sl[i].f);
-			if (fit_state_ended(fit_get_state(sl[i].f)))
-				rc = slot_take(&sl[i], p, hooks, snap);
+	/* fewer runs than threads: each slot gets its share of them */
+	for (uint32_t i = 0; i < nslots && rc == 0; i++)
+		rc = slot_launch(&sl[i], g, p, held, next++,
+				 todo < threads ? threads / nslots + (i < threads % nslots) : 1);
+	while (rc == 0 && taken < todo) {
+		uint32_t i = next_ended(sl, nslots, pfd);
+		if (i < nslots) {
+			rc = slot_take(&sl[i], p, hooks, snap);
+			taken++;
+			if (rc == 0 && next < runs)
+				rc = slot_launch(&sl[i], g, p, held, next++, 1);
 		}
 		if (rc == 0 && hooks && hooks->should_stop && hooks->should_stop(hooks->arg))
 			rc = -2;
 	}
-	stop_all(sl, nslots);
+	for (uint32_t i = 0; sl && i < nslots; i++)
+		slot_drop(&sl[i]);
 	UTIL_FREE_ALL(sl, pfd);
 	if (rc)
 		for (uint32_t r = first; r < runs; r++) {

@@ -101,6 +101,20 @@ int stability_fit_runs(const struct graph *g, const struct fit_params *p,
  */
 int stability_same_graph(const char *const *dirs, uint32_t n);
 
+struct names;
+
+/*
+ * The covers of the result folders dirs[0 .. n) of one graph
+ * (stability_same_graph() first): each one's memberships.tsv, read through
+ * result_file() into the name table nodes (borrowed), then every cover
+ * widened to the table's count so that all share node ids. out gets n
+ * covers (caller releases each with cover_release(); on failure they are
+ * released here). Returns 0, or -1 with a message (another graph, not a
+ * folder, no memberships.tsv, a bad line).
+ */
+int stability_read_folders(const char *const *dirs, uint32_t n, struct names *nodes,
+			   struct cover *out);
+
 /*
  * The stability run.json in dir records (its "stability" section, read
  * through result_file()), for a reader showing the result: *score gets

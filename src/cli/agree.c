@@ -19,7 +19,6 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
-#include <sys/stat.h>
 
 #include <jansson.h>
 
@@ -27,46 +26,22 @@
 #include "coterie/cover.h"
 #include "coterie/jsonout.h"
 #include "coterie/names.h"
-#include "coterie/result_commit.h"
 #include "coterie/stability.h"
 
-static void agree_usage_short(FILE *out)
+/* The usage line, and with full the whole text. */
+static void agree_usage(FILE *out, int full)
 {
-	fprintf(out, "usage: coterie agree DIR1 DIR2 [DIR ...] [--json]\n");
-}
-
-static void agree_usage(FILE *out)
-{
-	agree_usage_short(out);
-	fprintf(out,
-		"\n"
-		"Score every community of the result folder DIR1 by how well the other\n"
-		"folders (fits of the same graph) find it again: its best-match Jaccard\n"
-		"index |a & b| / |a | b| in each, and their mean (its stability, as\n"
-		"fit --repeats writes). Folders of different graphs are refused.\n"
-		"\n"
-		"      --json    the scores as JSON\n"
-		"  -h, --help    this text\n");
-}
-
-/* DIR/memberships.tsv into c, its names into nodes. 0 or -1 (reported). */
-static int read_folder(const char *dir, struct names *nodes, struct cover *c)
-{
-	struct stat st;
-	char buf[512];
-	if (stat(dir, &st) != 0 || !S_ISDIR(st.st_mode))
-		return error("'%s' is not a result folder", util_escape(dir, buf, sizeof buf, 1));
-	char *path = result_file(dir, "memberships.tsv");
-	if (!path)
-		return -1;
-	int rc = -1;
-	if (stat(path, &st) != 0)
-		error("'%s' has no memberships.tsv: the communities a fit writes",
-		      util_escape(dir, buf, sizeof buf, 1));
-	else
-		rc = cover_read(c, path, nodes);
-	free(path);
-	return rc;
+	fputs("usage: coterie agree DIR1 DIR2 [DIR ...] [--json]\n", out);
+	if (!full)
+		return;
+	fputs("\n"
+	      "Score every community of the result folder DIR1 by how well the other\n"
+	      "folders (fits of the same graph) find it again: its best-match Jaccard\n"
+	      "index |a & b| / |a | b| in each, and their mean (its stability, as\n"
+	      "fit --repeats writes). Folders of different graphs are refused.\n"
+	      "\n"
+	      "      --json    the scores as JSON\n"
+	      "  -h, --help    this text\n", out);
 }
 
 static void print_text(char **dirs, uint32_t nd, const struct cover *c, const double *score,
@@ -135,25 +110,26 @@ static int print_json(char **dirs, uint32_t nd, const struct cover *c, const dou
 
 int cmd_agree(int argc, char **argv)
 {
-	enum { OPT_JSON = 256 };
 	static const struct option opts[] = {
-		{ "json", no_argument, NULL, OPT_JSON },
+		{ "json", no_argument, NULL, 'J' },
 		{ "help", no_argument, NULL, 'h' },
 		{ NULL, 0, NULL, 0 },
 	};
-	int json = 0, c;
+	int json = 0;
 	cli_getopt_reset();
-	while ((c = getopt_long(argc, argv, ":h", opts, NULL)) != -1) {
-		switch (c) {
-		case OPT_JSON: json = 1; break;
-		case 'h': agree_usage(stdout); return 0;
-		default: return cli_option_usage(c, argv, "agree");
+	for (int c; (c = getopt_long(argc, argv, ":h", opts, NULL)) != -1;) {
+		if (c == 'h') {
+			agree_usage(stdout, 1);
+			return 0;
 		}
+		if (c != 'J')
+			return cli_option_usage(c, argv, "agree");
+		json = 1;
 	}
 	int nd = argc - optind;
 	if (nd < 2) {
 		error("agree takes two result folders or more, not %d", nd);
-		agree_usage_short(stderr);
+		agree_usage(stderr, 0);
 		return EXIT_USAGE;
 	}
 	char **dirs = argv + optind;
@@ -161,13 +137,9 @@ int cmd_agree(int argc, char **argv)
 	struct cover *cv = util_calloc((size_t)nd, sizeof *cv);
 	double *score = NULL, *each = NULL;
 	int rc = 1;
-	if (!nodes || !cv || stability_same_graph((const char *const *)dirs, (uint32_t)nd))
+	if (!nodes || !cv ||
+	    stability_read_folders((const char *const *)dirs, (uint32_t)nd, nodes, cv))
 		goto out;
-	for (int r = 0; r < nd; r++)
-		if (read_folder(dirs[r], nodes, &cv[r]))
-			goto out;
-	for (int r = 0; r < nd; r++)
-		cv[r].n = names_count(nodes); /* all over the union of the nodes */
 	uint32_t k = cv[0].k ? cv[0].k : 1;
 	score = util_malloc(k, sizeof *score);
 	each = util_malloc((size_t)k * (uint32_t)(nd - 1), sizeof *each);
