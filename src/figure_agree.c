@@ -11,10 +11,9 @@
  * row run's communities in the column run (asymmetric: a run with a few
  * extra small communities scores lower as the row than as the column).
  *
- * Intersections come from one node -> communities index of the second
- * cover: a community a of the first meets only the communities of its
- * members, so the cost is the sum over nodes of (memberships in x) x
- * (memberships in y), not k_x x k_y x n.
+ * The Jaccard indices themselves, and the check that the folders hold
+ * one graph, are stability.c's (the same scores fit --repeats and
+ * coterie agree give).
  *
  * The one thing a newcomer would get wrong: two folders' community ids
  * mean nothing to each other, and their node ids only agree because both
@@ -26,10 +25,9 @@
 #include <stdlib.h>
 #include <string.h>
 
-#include <jansson.h>
-
 #include "coterie/figure.h"
 #include "coterie/names.h"
+#include "coterie/stability.h"
 #include "coterie/util.h"
 #include "figure-internal.h"
 
@@ -44,113 +42,6 @@ void figure_matrix_release(struct figure_matrix *m)
 	UTIL_FREE_ALL(m->row_label, m->col_label, m->v, m->row_title, m->col_title,
 		      m->value_title, m->note);
 	memset(m, 0, sizeof *m);
-}
-
-/* Node -> communities of a cover: idx[off[u] .. off[u+1]). */
-struct incidence {
-	uint64_t *off;
-	uint32_t *idx;
-};
-
-static void incidence_release(struct incidence *x)
-{
-	free(x->off);
-	free(x->idx);
-	memset(x, 0, sizeof *x);
-}
-
-static int incidence_of(const struct cover *c, struct incidence *x)
-{
-	x->off = util_calloc((size_t)c->n + 1, sizeof *x->off);
-	x->idx = util_malloc(c->off[c->k] ? c->off[c->k] : 1, sizeof *x->idx);
-	if (!x->off || !x->idx) {
-		incidence_release(x);
-		return -1;
-	}
-	for (uint64_t e = 0; e < c->off[c->k]; e++)
-		x->off[c->mem[e] + 1]++;
-	for (uint32_t u = 0; u < c->n; u++)
-		x->off[u + 1] += x->off[u];
-	for (uint32_t b = 0; b < c->k; b++)
-		for (uint64_t e = c->off[b]; e < c->off[b + 1]; e++)
-			x->idx[x->off[c->mem[e]]++] = b;
-	for (uint32_t u = c->n; u > 0; u--) /* the fill moved each start to the next */
-		x->off[u] = x->off[u - 1];
-	x->off[0] = 0;
-	return 0;
-}
-
-/* What meet() works with for one cover y: its incidence, the
- * intersection counts (all zero between calls) and the communities met. */
-struct meeting {
-	struct incidence iy;
-	uint32_t *inter;
-	uint32_t *touched;
-};
-
-static void meeting_release(struct meeting *w)
-{
-	incidence_release(&w->iy);
-	free(w->inter);
-	free(w->touched);
-	memset(w, 0, sizeof *w);
-}
-
-static int meeting_init(struct meeting *w, const struct cover *y)
-{
-	memset(w, 0, sizeof *w);
-	w->inter = util_calloc(y->k ? y->k : 1, sizeof *w->inter);
-	w->touched = util_malloc(y->k ? y->k : 1, sizeof *w->touched);
-	if (!w->inter || !w->touched || incidence_of(y, &w->iy)) {
-		meeting_release(w);
-		return -1;
-	}
-	return 0;
-}
-
-/* The intersections of community a of x with every community of y into
- * w->inter; the communities met are listed in w->touched (returns how
- * many). The caller zeroes their counts again. */
-static uint32_t meet(const struct cover *x, uint32_t a, struct meeting *w)
-{
-	uint32_t nt = 0;
-	for (uint64_t e = x->off[a]; e < x->off[a + 1]; e++) {
-		uint32_t u = x->mem[e];
-		for (uint64_t j = w->iy.off[u]; j < w->iy.off[u + 1]; j++) {
-			uint32_t b = w->iy.idx[j];
-			if (w->inter[b]++ == 0)
-				w->touched[nt++] = b;
-		}
-	}
-	return nt;
-}
-
-static double jaccard(uint32_t inter, uint32_t sa, uint32_t sb)
-{
-	uint64_t uni = (uint64_t)sa + sb - inter;
-	return uni ? (double)inter / (double)uni : NAN;
-}
-
-int figure_best_jaccard(const struct cover *x, const struct cover *y, double *best)
-{
-	if (cover_same_n(x, y))
-		return -1;
-	struct meeting w;
-	if (meeting_init(&w, y))
-		return -1;
-	for (uint32_t a = 0; a < x->k; a++) {
-		uint32_t sa = cover_size(x, a), nt = meet(x, a, &w);
-		double b = sa ? 0 : NAN;
-		for (uint32_t t = 0; t < nt; t++) {
-			uint32_t c = w.touched[t];
-			double j = jaccard(w.inter[c], sa, cover_size(y, c));
-			b = j > b ? j : b;
-			w.inter[c] = 0;
-		}
-		best[a] = b;
-	}
-	meeting_release(&w);
-	return 0;
 }
 
 /* ---- the matrix of two runs ---- */
@@ -174,26 +65,6 @@ static uint32_t *largest_first(const struct cover *c)
 		o[i] = (uint32_t)key[i];
 	free(key);
 	return o;
-}
-
-/* The Jaccard of the chosen rows of x with every community of y into
- * full (rows x y->k). */
-static int jaccard_rows(const struct cover *x, const uint32_t *rows, uint32_t nrows,
-			const struct cover *y, double *full)
-{
-	struct meeting w;
-	if (meeting_init(&w, y))
-		return -1;
-	for (uint32_t i = 0; i < nrows; i++) {
-		uint32_t a = rows[i], nt = meet(x, a, &w);
-		for (uint32_t t = 0; t < nt; t++) {
-			uint32_t b = w.touched[t];
-			full[(size_t)i * y->k + b] = jaccard(w.inter[b], cover_size(x, a), cover_size(y, b));
-			w.inter[b] = 0;
-		}
-	}
-	meeting_release(&w);
-	return 0;
 }
 
 /* Columns: each row's best match (once, in row order), then the rest of
@@ -231,7 +102,7 @@ static int two_runs(const struct cover *x, const struct cover *y, struct figure_
 	uint32_t *cols = util_malloc(FIGURE_MATRIX_MAX, sizeof *cols);
 	unsigned char *used = util_calloc(y->k ? y->k : 1, 1);
 	int rc = -1;
-	if (!xo || !yo || !full || !cols || !used || jaccard_rows(x, xo, nrows, y, full))
+	if (!xo || !yo || !full || !cols || !used || stability_jaccard_rows(x, xo, nrows, y, full))
 		goto out;
 	uint32_t ncols = pick_columns(full, nrows, y, yo, cols, used);
 	m->rows = nrows;
@@ -273,7 +144,7 @@ static int many_runs(const struct cover *c, uint32_t nruns, struct figure_matrix
 		if (!best)
 			return -1;
 		for (uint32_t j = 0; j < nruns; j++) {
-			if (figure_best_jaccard(&c[i], &c[j], best)) {
+			if (stability_best_jaccard(&c[i], &c[j], best)) {
 				free(best);
 				return -1;
 			}
@@ -307,42 +178,6 @@ static const char *base_name(const char *dir, char *buf, size_t cap)
 	memcpy(buf, dir + start, n);
 	buf[n] = '\0';
 	return buf;
-}
-
-/* run.json's graph fingerprint of dir into fp (17 bytes), or "" when unknown. */
-static void fingerprint(const char *dir, char *fp)
-{
-	char path[4096];
-	fp[0] = '\0';
-	if (snprintf(path, sizeof path, "%s/run.json", dir) >= (int)sizeof path)
-		return;
-	json_t *run = json_load_file(path, 0, NULL);
-	const char *s = json_string_value(json_object_get(json_object_get(run, "graph"), "fingerprint"));
-	if (s && strlen(s) == 16)
-		memcpy(fp, s, 17);
-	json_decref(run);
-}
-
-/* Refuse folders whose run.json name different graphs. */
-static int same_graph(const char *const *dirs, uint32_t nruns)
-{
-	char first[17] = "", fp[17];
-	uint32_t from = 0;
-	for (uint32_t r = 0; r < nruns; r++) {
-		fingerprint(dirs[r], fp);
-		if (!fp[0])
-			continue;
-		if (!first[0]) {
-			memcpy(first, fp, sizeof fp);
-			from = r;
-		} else if (strcmp(first, fp)) {
-			char a[512], b[512];
-			return error("'%s' and '%s' are fits of different graphs (run.json's "
-				     "fingerprints differ)", util_escape(dirs[from], a, sizeof a, 1),
-				     util_escape(dirs[r], b, sizeof b, 1));
-		}
-	}
-	return 0;
 }
 
 /* The labels and titles of the matrix. */
@@ -385,18 +220,11 @@ int figure_agreement(const char *const *dirs, uint32_t nruns, struct figure_matr
 	memset(out, 0, sizeof *out);
 	if (nruns < 2)
 		return error("the agreement of runs needs two result folders or more, not %u", nruns);
-	if (same_graph(dirs, nruns))
-		return -1;
 	struct names *nodes = names_new(0);
 	struct cover *c = util_calloc(nruns, sizeof *c);
 	int rc = -1;
-	if (!nodes || !c)
+	if (!nodes || !c || stability_read_folders(dirs, nruns, nodes, c))
 		goto out;
-	for (uint32_t r = 0; r < nruns; r++)
-		if (figure_read_cover(dirs[r], nodes, &c[r]))
-			goto out;
-	for (uint32_t r = 0; r < nruns; r++)
-		c[r].n = names_count(nodes); /* all over the union of the nodes */
 	if (nruns == 2) {
 		rc = two_runs(&c[0], &c[1], out);
 	} else {

@@ -37,6 +37,7 @@
 #include "coterie/model.h"
 #include "coterie/result_commit.h"
 #include "coterie/select.h"
+#include "coterie/stability.h"
 #include "coterie/util.h"
 
 void result_model_of(struct result_model *m, const struct snapshot *s)
@@ -139,6 +140,7 @@ int result_prepare_dir(const char *dir)
 struct tsv_args {
 	const struct graph *g;
 	const struct result_model *m;
+	const struct stability *st; /* NULL: not scored */
 };
 
 struct ranked {
@@ -187,12 +189,19 @@ static int fill_communities(struct atomicfile *w, const void *arg)
 {
 	const struct tsv_args *a = arg;
 	const struct agm *agm = a->m->agm;
-	atomicfile_str(w, "community\tsize\tinternal_edges\tdensity\tconductance\tp\tvolume\tcut\n");
+	/* stability last, so readers of the first eight columns go on working */
+	atomicfile_str(w, "community\tsize\tinternal_edges\tdensity\tconductance\tp\tvolume\tcut"
+		       "\tstability\n");
+	const double *score = a->st && a->st->k == agm->cover.k ? a->st->score : NULL;
 	for (uint32_t i = 0; i < agm->cover.k && !atomicfile_failed(w); i++) {
 		const struct agm_community *c = &agm->comms[i];
 		atomicfile_printf(w, "%" PRIu32 "\t%" PRIu32 "\t%" PRIu64 "\t%.6g\t%.6g\t%.9g\t%" PRIu64
-			  "\t%" PRIu64 "\n", c->id, c->size, c->internal_edges, c->density,
+			  "\t%" PRIu64 "\t", c->id, c->size, c->internal_edges, c->density,
 			  c->conductance, c->p, c->volume, c->cut);
+		if (score && !isnan(score[i]))
+			atomicfile_printf(w, "%.4f\n", score[i]);
+		else
+			atomicfile_str(w, "NA\n");
 	}
 	return 0;
 }
@@ -313,7 +322,7 @@ static int check_agm(const struct graph *g, const struct result_model *s)
 int result_stage(struct result_commit *c, const struct graph *g, const struct fit_params *p,
 		 const struct result_model *m, const struct result_meta *meta)
 {
-	struct tsv_args ta = { g, m };
+	struct tsv_args ta = { g, m, meta ? meta->stability : NULL };
 	if (check_agm(g, m))
 		return -1;
 	if (meta && meta->selection &&

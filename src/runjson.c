@@ -27,6 +27,7 @@
 #include "coterie/jsonout.h"
 #include "coterie/refine.h"
 #include "coterie/select.h"
+#include "coterie/stability.h"
 #include "coterie/util.h"
 
 /* run.json's k_selection: the -k auto search. */
@@ -253,6 +254,37 @@ static json_t *j_refine(const struct result_meta *meta, int *bad)
 	return ja;
 }
 
+/* run.json's stability (fit --repeats): each run's seed and
+ * log-likelihood, the one kept, and each community's score; null when the
+ * fit was made once. */
+static json_t *j_stability(const struct agm *a, const struct stability *st, int *bad)
+{
+	if (!st || st->k != a->cover.k)
+		return json_null();
+	json_t *js = json_object(), *runs = json_array(), *comms = json_array();
+	for (uint32_t r = 0; r < st->runs; r++) {
+		json_t *jr = json_object();
+		jsonout_set(jr, "seed", jsonout_uint(st->seed[r]), bad);
+		jsonout_set(jr, "loglik", jsonout_real(st->loglik[r]), bad);
+		jsonout_set(jr, "kept", json_boolean(r == st->kept), bad);
+		jsonout_append(runs, jr, bad);
+	}
+	for (uint32_t i = 0; i < st->k; i++) {
+		if (cover_size(&a->cover, i) == 0)
+			continue;
+		json_t *jc = json_object();
+		jsonout_set(jc, "community", jsonout_uint(a->comms[i].id), bad);
+		jsonout_set(jc, "stability", jsonout_real(st->score[i]), bad);
+		jsonout_append(comms, jc, bad);
+	}
+	jsonout_set(js, "score", jsonout_str("mean best-match Jaccard in the other runs"), bad);
+	jsonout_set(js, "runs", runs, bad);
+	jsonout_set(js, "run_kept", jsonout_uint(st->kept + 1), bad);
+	jsonout_set(js, "mean", jsonout_real(stability_mean(st)), bad);
+	jsonout_set(js, "communities", comms, bad);
+	return js;
+}
+
 char *result_run_json(const struct graph *g, const struct fit_params *p,
 		      const struct result_model *m, const struct result_meta *meta)
 {
@@ -276,6 +308,8 @@ char *result_run_json(const struct graph *g, const struct fit_params *p,
 	jsonout_set(root, "link_check", meta && meta->links ? j_links(meta->links) : json_null(),
 		    &bad);
 	jsonout_set(root, "agm_refine", j_refine(meta, &bad), &bad);
+	jsonout_set(root, "stability", j_stability(m->agm, meta ? meta->stability : NULL, &bad),
+		    &bad);
 	jsonout_set(root, "warnings", j_warnings(g, m, meta, &bad), &bad);
 
 	json_t *jr = json_object();

@@ -118,16 +118,8 @@ int figure_read_kcurve(const char *dir, struct figure_kcurve *out);
 int figure_read_counts(const char *dir, struct figure_counts *sizes,
 		       struct figure_counts *members);
 
-/* ---- agreement of covers (figure_agree.c) ---- */
-
-/*
- * For every community a of cover x, the best-match Jaccard index
- * max_b |a & b| / |a | b| over the communities b of cover y (0 when a
- * shares no node with any; NaN for an empty a). x and y must cover the
- * same node ids (x->n == y->n). best gets x->k values (borrowed). Returns
- * 0, or -1 with a message (different n, out of memory).
- */
-int figure_best_jaccard(const struct cover *x, const struct cover *y, double *best);
+/* ---- agreement of covers (figure_agree.c; the Jaccard indices are
+ * stability.h's) ---- */
 
 /*
  * The agreement of nruns result folders of one graph (dirs borrowed; 2 or

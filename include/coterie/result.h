@@ -31,6 +31,7 @@ struct graph;
 struct refine_report;
 struct select_result;
 struct background_choice;
+struct stability;
 
 /* Write DIR/k-selection.partial.tsv (the columns of k-selection.tsv: k,
  * held-out log-likelihood, held-out AUC, sweeps, seconds, chosen, folds,
@@ -74,6 +75,10 @@ struct result_meta {
 	const struct result_links *links;      /* the link check, or NULL */
 	const struct background_choice *background; /* how epsilon was chosen,
 						     * or NULL (not recorded) */
+	const struct stability *stability; /* fit --repeats: the runs and the
+					    * score of each community of agm
+					    * (same order, same k), or NULL:
+					    * the column says NA */
 };
 
 /* Create dir (and parents) if needed and prove it can be written by

@@ -156,6 +156,7 @@ int cmd_simulate(int argc, char **argv);
 int cmd_compare(int argc, char **argv);
 int cmd_export(int argc, char **argv);
 int cmd_draw(int argc, char **argv);
+int cmd_agree(int argc, char **argv);
 
 /* The flags of the commands' --json output (jsonout_print()): indented,
  * reals to 17 digits. */

@@ -38,6 +38,7 @@
 #include "coterie/result.h"
 #include "coterie/savepoint.h"
 #include "coterie/select.h"
+#include "coterie/stability.h"
 
 static void fit_usage(FILE *out)
 {
@@ -67,6 +68,10 @@ static void fit_usage(FILE *out)
 		"      --starts N        fit N times from different seeds and sweep orders and\n"
 		"                        keep the most likely (default 3 below 100000 edges,\n"
 		"                        else 1; the likelihood has local maxima)\n"
+		"      --repeats N       fit N times in all, from seeds S, S+1, ... (several\n"
+		"                        fits at once), keep the most likely and score each\n"
+		"                        of its communities by how well the other fits find\n"
+		"                        it again (communities.tsv's stability column)\n"
 		"      --no-reseed       skip the moves that re-seed the weakest community\n"
 		"                        after a plateau (faster, often less likely); they\n"
 		"                        stop after 3 unkept in a row, 12 moves, or as many\n"
@@ -313,6 +318,7 @@ enum {
 	OPT_REFINE_ROUNDS,
 	OPT_CHECK_LINKS,
 	OPT_FORCE,
+	OPT_REPEATS,
 };
 
 /* --refine: the AGM refinement of the final cover into *out (released by
@@ -361,10 +367,18 @@ struct run {
 	struct outdir *od;
 	struct dirlock *lock;        /* the output folder's, held from the start */
 	int interrupted;             /* 1: once, 2: twice */
+	struct outdir_config oc;     /* r->od's */
+	uint32_t repeats;            /* --repeats (0: one fit) */
+	struct snapshot **runs;      /* --repeats: every run's final snapshot */
+	struct stability stab;       /* --repeats: the record written */
 };
 
 static void run_release(struct run *r)
 {
+	for (uint32_t i = 0; r->runs && i < r->repeats; i++)
+		snapshot_release(r->runs[i]);
+	free(r->runs);
+	stability_release(&r->stab);
 	outdir_free(r->od);
 	dirlock_free(r->lock);
 	fit_free(r->f);
@@ -385,6 +399,7 @@ static int parse_args(struct run *r, int argc, char **argv)
 		{ "refine-rounds", required_argument, NULL, OPT_REFINE_ROUNDS },
 		{ "check-links", required_argument, NULL, OPT_CHECK_LINKS },
 		{ "force", no_argument, NULL, OPT_FORCE },
+		{ "repeats", required_argument, NULL, OPT_REPEATS },
 		{ "quiet", no_argument, NULL, 'q' },
 		{ NULL, 0, NULL, 0 },
 	};
@@ -399,6 +414,7 @@ static int parse_args(struct run *r, int argc, char **argv)
 		case OPT_PAST_PLATEAU: o->p.past_plateau = 1; break;
 		case OPT_RESUME: r->resume = optarg; break;
 		case OPT_FORCE: r->force = 1; break;
+		case OPT_REPEATS: r->repeats = cli_u32("--repeats", optarg, 1, 1000); break;
 		case OPT_REFINE: r->refine = 1; break;
 		case OPT_REFINE_ROUNDS:
 			r->refine_rounds = cli_u32("--refine-rounds", optarg, 1, 1000000);
@@ -421,6 +437,10 @@ static int parse_args(struct run *r, int argc, char **argv)
 		die(EXIT_USAGE, "fit needs the number of communities: -k N");
 	if (o->have_grid && !o->k_auto)
 		die(EXIT_USAGE, "--k-grid is for -k auto");
+	if (r->repeats > 1 && r->resume)
+		die(EXIT_USAGE, "--repeats cannot be used when resuming (it makes new fits)");
+	if (r->repeats <= 1)
+		r->repeats = 0;
 	cli_model_can(&o->p, o->k_auto, r->check_links > 0, r->refine);
 	if (!r->o.out)
 		r->o.out = r->resume;
@@ -581,6 +601,98 @@ static int score_links(struct run *r, const struct snapshot *s, struct result_li
 	return 1;
 }
 
+static void on_run_ended(uint32_t run, uint64_t seed, double loglik, void *arg)
+{
+	const struct run *r = arg;
+	if (!r->quiet)
+		notice("repeat %u of %u (seed %llu) ended: loglik %.6g", run + 1, r->repeats,
+		       (unsigned long long)seed, loglik);
+}
+
+/*
+ * --repeats: fit runs 2 .. N from seeds S+1 .. S+N-1 (the fit just made
+ * from S is run 1, its final snapshot main), keep the most likely (the
+ * first of equals) and record the runs in r->stab. Returns the snapshot
+ * to write (main, or one of r->runs: borrowed) and its state in *st. An
+ * interrupt or a failure leaves main alone to be written, unscored.
+ */
+static const struct snapshot *repeat_fits(struct run *r, const struct snapshot *main,
+					  enum fit_state *st)
+{
+	uint32_t n = r->repeats;
+	struct fit_params q = r->p;
+	q.hold_at_plateau = 0;
+	if (!(r->runs = util_calloc(n, sizeof *r->runs)))
+		return main;
+	r->runs[0] = fit_snapshot(r->f); /* main again, a reference of our own */
+	if (!r->quiet)
+		notice("fitting %u more times (seeds %llu to %llu, %u at a time) to score how "
+		       "stable each community is", n - 1, (unsigned long long)q.seed + 1,
+		       (unsigned long long)(q.seed + n - 1), q.threads < n - 1 ? q.threads : n - 1);
+	struct stability_hooks hooks = { on_run_ended, stop_asked, r };
+	int rc = stability_fit_runs(r->graph, &q, r->check.held ? &r->check : NULL, 1, n, &hooks,
+				    r->runs);
+	if (rc) {
+		if (rc == -2)
+			r->interrupted = 1;
+		error("%s: the communities are not scored; the first fit is written",
+		      rc == -2 ? "interrupted while fitting again" : "a repeated fit failed");
+		return main;
+	}
+	struct stability *sb = &r->stab;
+	sb->seed = util_calloc(n, sizeof *sb->seed);
+	sb->loglik = util_calloc(n, sizeof *sb->loglik);
+	if (!sb->seed || !sb->loglik)
+		return main;
+	sb->runs = n;
+	for (uint32_t i = 0; i < n; i++) {
+		const struct snapshot *x = r->runs[i];
+		sb->seed[i] = q.seed + i;
+		sb->loglik[i] = x->trace[x->ntrace - 1].loglik;
+		if (sb->loglik[i] > sb->loglik[sb->kept])
+			sb->kept = i;
+	}
+	if (sb->kept == 0)
+		return main;
+	/* the checkpoint and run.json say the seed of the fit kept, so that
+	 * --resume and a fit from that seed alone go on from the same bits */
+	r->p.seed = sb->seed[sb->kept];
+	r->oc.params = r->p;
+	outdir_free(r->od);
+	r->od = outdir_new(&r->oc);
+	*st = r->runs[sb->kept]->state;
+	return r->od ? r->runs[sb->kept] : NULL;
+}
+
+/* --repeats: the stability of every community of the cover written
+ * (a: the refined or whole-graph one when asked) against the other runs'
+ * strengths' covers. Returns 0 or -1 (reported). */
+static int score_stability(struct run *r, const struct agm *a)
+{
+	struct stability *sb = &r->stab;
+	struct cover *others = util_calloc(sb->runs, sizeof *others);
+	sb->score = util_malloc(a->cover.k ? a->cover.k : 1, sizeof *sb->score);
+	if (!others || !sb->score) {
+		free(others);
+		return -1;
+	}
+	uint32_t no = 0;
+	for (uint32_t i = 0; i < sb->runs; i++)
+		if (i != sb->kept)
+			others[no++] = r->runs[i]->agm.cover; /* shallow: r->runs owns it */
+	int rc = stability_score(&a->cover, others, no, sb->score, NULL);
+	free(others);
+	if (rc)
+		return -1;
+	sb->k = a->cover.k;
+	if (!r->quiet)
+		notice("kept repeat %u of %u (seed %llu), the most likely; mean stability of its "
+		       "communities %.3f (the best-match Jaccard in the %u other fits)",
+		       sb->kept + 1, sb->runs, (unsigned long long)sb->seed[sb->kept],
+		       stability_mean(sb), no);
+	return 0;
+}
+
 static void say_written(const struct run *r, const struct snapshot *s, enum fit_state st,
 			const struct agm *a)
 {
@@ -638,6 +750,8 @@ static int finish(struct run *r, enum fit_state st, const struct snapshot *s)
 		.links = have_whole ? &links : NULL,
 		.background = r->have_bg ? &r->bg : NULL,
 	};
+	if (r->stab.runs && st != FIT_FAILED && s->ntrace > 0 && score_stability(r, m.agm) == 0)
+		meta.stability = &r->stab;
 	if (st == FIT_FAILED || s->ntrace == 0) {
 		error("the fit failed; nothing written to '%s'", r->o.out);
 		rc = 1;
@@ -700,14 +814,14 @@ int cmd_fit(int argc, char **argv)
 		goto out;
 	r->f = fit_new(r->check.train ? r->check.train : r->graph, &r->p,
 		       r->have_origin ? &r->origin : NULL);
-	struct outdir_config oc = {
+	r->oc = (struct outdir_config){
 		.dir = r->o.out, .g = r->graph, .params = r->p,
 		.every = r->o.checkpoint_every > 0 ? r->o.checkpoint_every : 120.0,
 		.one_start = r->resume && !r->ck.savepoint,
 		.continues = r->resume && same_folder(r->resume, r->o.out),
 		.lock = r->lock,
 	};
-	if (!r->f || !(r->od = outdir_new(&oc)))
+	if (!r->f || !(r->od = outdir_new(&r->oc)))
 		goto out;
 	if (r->check.held)
 		fit_exclude(r->f, r->check.held);
@@ -720,10 +834,13 @@ int cmd_fit(int argc, char **argv)
 	struct progress pr = { isatty(2), r->quiet, 0, 0, 0, 0 };
 	watch(r, &pr);
 	enum fit_state st = fit_wait(r->f);
-	struct snapshot *s = fit_snapshot(r->f);
-	progress_show(&pr, s, 1);
-	rc = finish(r, st, s);
-	snapshot_release(s);
+	struct snapshot *own = fit_snapshot(r->f);
+	const struct snapshot *s = own;
+	progress_show(&pr, own, 1);
+	if (r->repeats && !r->interrupted && st != FIT_FAILED && own->ntrace > 0)
+		s = repeat_fits(r, own, &st);
+	rc = s ? finish(r, st, s) : 1;
+	snapshot_release(own);
 out:
 	run_release(r);
 	return rc;

@@ -19,6 +19,7 @@ static const struct {
 	{ "compare", cmd_compare, "score a found cover against a known one (overlapping NMI, Omega, F1)" },
 	{ "export", cmd_export, "write a result's fit as graph attributes (GraphML, GML) or a matrix" },
 	{ "draw", cmd_draw, "draw a result's figures for a paper (PDF, SVG, PNG)" },
+	{ "agree", cmd_agree, "score each community of a result by how well other fits find it" },
 };
 
 static void usage(FILE *out)

@@ -369,6 +369,16 @@ static void act_sort_flip(struct view *v, int arg)
 	say_sort(v);
 }
 
+static void act_sort_stability(struct view *v, int arg)
+{
+	(void)arg;
+	if (view_sort_stability(v))
+		view_say(v, UTIL_NOTICE, "no stability to sort by: it comes from a folder "
+			 "written by fit --repeats, while its model is shown");
+	else
+		say_sort(v);
+}
+
 static void act_weak(struct view *v, int arg)
 {
 	(void)arg;
@@ -421,6 +431,7 @@ const struct key_binding keys_table[] = {
 	{ '\r', PANE_COMMS, act_enter_comm, 0, "list the members of this community in pane 3" },
 	{ 'o', PANE_COMMS, act_sort_next, 0, "sort the communities by the next column" },
 	{ 'r', PANE_COMMS, act_sort_flip, 0, "reverse the sort order" },
+	{ 'S', PANE_COMMS, act_sort_stability, 0, "sort by stability (fit --repeats), or back to the column" },
 	{ '\r', PANE_MEMBERS, act_enter_member, 0, "show this node in pane 4" },
 	{ '\r', PANE_NODE, act_enter_affil, 0, "select this community in pane 2" },
 	{ 'a', PANE_NODE, act_weak, 0, "show or hide this node's weak strengths (below membership)" },

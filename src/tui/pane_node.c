@@ -2,7 +2,9 @@
  * tui/pane_node: pane 4, the selected node (inspect_node): its name made
  * safe, degree, how many memberships and how many of its edges no
  * community explains; then one row per affiliation, strongest first, with
- * a bar, the strength, whether it is a membership (agm_is_member()) and how many
+ * a bar, the strength, whether it is a membership (agm_is_member()), or
+ * the community's stability in its place when the folder has one
+ * (fit --repeats; a weak row still says "weak"), and how many
  * of the node's edges that community explains. Strengths below the
  * threshold are listed on request ('a'). A narrow pane takes shorter
  * forms of the figures and heads, then drops the "explains" column: a
@@ -77,9 +79,12 @@ void pane_node_draw(const struct view *v, WINDOW *w)
 	if (bw < 3)
 		bw = 3;
 	int xb = x + idw + 1, xv = xb + bw + 1, xf = xv + vw + 1, xe = xf + fw + 1;
+	int stab = view_has_stability(v);
 	wattron(w, A_BOLD);
 	draw_text(w, 3, x, "comm", idw);
 	draw_text(w, 3, xb, "strength", bw + vw + 1);
+	if (stab)
+		draw_text(w, 3, xf, "stab", fw);
 	if (ew)
 		draw_text(w, 3, xe + ew - draw_width(ehead), ehead, ew);
 	wattroff(w, A_BOLD);
@@ -91,7 +96,7 @@ void pane_node_draw(const struct view *v, WINDOW *w)
 		size_t i = v->affil.top + r;
 		const struct inspect_affil *a = &nv->affil[v->affil_rows[i]];
 		int y = 4 + (int)r;
-		char id[32], val[32], ex[32];
+		char id[32], val[32], ex[32], flag[32] = "member";
 		snprintf(id, sizeof id, "#%u", a->comm);
 		snprintf(val, sizeof val, "%.3g", a->strength);
 		snprintf(ex, sizeof ex, "%*u", ew, a->explained);
@@ -101,7 +106,9 @@ void pane_node_draw(const struct view *v, WINDOW *w)
 		draw_bar(v, w, y, xb, bw, a->strength / top);
 		wattron(w, at);
 		draw_text(w, y, xv, val, vw);
-		draw_text(w, y, xf, a->member ? "member" : "weak", fw);
+		if (stab)
+			fmt_frac(flag, sizeof flag, view_stability(v, a->comm));
+		draw_text(w, y, xf, a->member ? flag : "weak", fw);
 		if (ew)
 			draw_text(w, y, xe, ex, ew);
 		wattroff(w, at);

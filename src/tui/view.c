@@ -22,6 +22,7 @@
  */
 #include "view.h"
 
+#include <math.h>
 #include <stdarg.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -31,6 +32,7 @@
 #include "coterie/graph.h"
 #include "coterie/proc.h"
 #include "coterie/result.h"
+#include "coterie/stability.h"
 #include "coterie/outdir.h"
 #include "coterie/util.h"
 
@@ -51,6 +53,14 @@ void view_init(struct view *v, const struct tui_config *cfg)
 		.saved_loglik = holds ? cfg->saved_loglik : 0,
 		.saved_as = holds ? cfg->saved_state : FIT_READY,
 	};
+	/* fit --repeats scored the communities of the model this folder holds */
+	if (holds && cfg->outdir &&
+	    stability_read(cfg->outdir, &v->stab, &v->nstab, &v->stab_sweep) == 0 && v->stab &&
+	    v->stab_sweep != cfg->saved_sweep) {
+		free(v->stab);
+		v->stab = NULL;
+		v->nstab = 0;
+	}
 }
 
 void view_layout(struct view *v, int rows, int cols)
@@ -91,6 +101,9 @@ void view_release(struct view *v)
 	free(v->mem_strength);
 	free(v->affil_rows);
 	free(v->page);
+	free(v->stab);
+	v->stab = NULL;
+	v->nstab = 0;
 	if (v->node_valid)
 		inspect_node_release(&v->nodeview);
 	v->order = NULL;
@@ -387,11 +400,73 @@ static size_t sort_slot(enum inspect_key k)
 
 const char *view_sort_name(const struct view *v)
 {
-	return sorts[sort_slot(v->sort_key)].name;
+	return v->by_stability ? "stability" : sorts[sort_slot(v->sort_key)].name;
+}
+
+double view_stability(const struct view *v, uint32_t id)
+{
+	if (!v->stab || id >= v->nstab || !v->snap || v->snap->sweep != v->stab_sweep)
+		return NAN;
+	return v->stab[id];
+}
+
+int view_has_stability(const struct view *v)
+{
+	const struct agm *a = v->snap ? &v->snap->agm : NULL;
+	for (uint32_t i = 0; a && i < a->cover.k; i++)
+		if (!isnan(view_stability(v, a->comms[i].id)))
+			return 1;
+	return 0;
+}
+
+int view_sort_stability(struct view *v)
+{
+	if (!v->by_stability && !view_has_stability(v))
+		return -1;
+	v->by_stability = !v->by_stability;
+	v->ascending = v->by_stability ? 0 : sorts[sort_slot(v->sort_key)].ascending;
+	v->order_gen = 0;
+	v->dirty |= DIRTY_PANE(PANE_COMMS);
+	return 0;
+}
+
+/* A row of the order by stability: its score and its place in the
+ * column sort, which breaks ties. */
+struct stab_row {
+	double score;
+	uint32_t rank, index;
+};
+
+static int stab_most_first(const void *pa, const void *pb)
+{
+	const struct stab_row *a = pa, *b = pb;
+	int na = isnan(a->score), nb = isnan(b->score);
+	if (na != nb)
+		return na - nb; /* unscored last */
+	int c = na ? 0 : util_cmp_double(b->score, a->score);
+	return c ? c : util_cmp_uint(a->rank, b->rank);
+}
+
+/* Reorder v->order (the column sort) by stability, most stable first, or
+ * least first when ascending; unscored communities stay last. */
+static void order_by_stability(struct view *v, const struct agm *a)
+{
+	struct stab_row *r = util_malloc(v->norder ? v->norder : 1, sizeof *r);
+	if (!r)
+		return; /* the column order stays */
+	for (uint32_t i = 0; i < v->norder; i++) {
+		double x = view_stability(v, a->comms[v->order[i]].id);
+		r[i] = (struct stab_row){ v->ascending && !isnan(x) ? -x : x, i, v->order[i] };
+	}
+	qsort(r, v->norder, sizeof *r, stab_most_first);
+	for (uint32_t i = 0; i < v->norder; i++)
+		v->order[i] = r[i].index;
+	free(r);
 }
 
 void view_sort_next(struct view *v)
 {
+	v->by_stability = 0;
 	size_t i = (sort_slot(v->sort_key) + 1) % NSORTS;
 	v->sort_key = sorts[i].key;
 	v->ascending = sorts[i].ascending;
@@ -446,7 +521,11 @@ static void prepare_order(struct view *v)
 	v->order = o;
 	v->norder = k;
 	if (k)
-		inspect_sort_communities(a, v->sort_key, v->ascending, v->order);
+		inspect_sort_communities(a, v->sort_key, v->by_stability ?
+					 sorts[sort_slot(v->sort_key)].ascending : v->ascending,
+					 v->order);
+	if (k && v->by_stability)
+		order_by_stability(v, a);
 	v->order_gen = v->snap_gen;
 	v->dirty |= DIRTY_PANE(PANE_COMMS);
 	/* put the cursor back on the selected community */

@@ -123,6 +123,11 @@ struct view {
 	unsigned long order_gen;
 	enum inspect_key sort_key;
 	int ascending;
+	int by_stability;         /* sorted by stability ('S'), sort_key breaks ties */
+	/* fit --repeats: the folder's stability by community id (NULL: none),
+	 * true of the model of sweep stab_sweep only (view_stability()) */
+	double *stab;
+	uint32_t nstab, stab_sweep;
 	struct listpos comms;
 	int has_comm;
 	uint32_t comm_id;         /* the selected community's id */
@@ -234,6 +239,16 @@ void view_set_focus(struct view *v, int pane);
  * reverse the order; the selected community keeps the cursor. */
 void view_sort_next(struct view *v);
 void view_sort_flip(struct view *v);
+/* Sort the communities by stability, the most stable first, or go back
+ * to the column sort; returns 0, or -1 when no stability is known (the
+ * order is unchanged). */
+int view_sort_stability(struct view *v);
+/* The stability of community id in the model shown (stability.h): a number
+ * in [0, 1] when the folder opened records one and the model shown is the
+ * one it scored, else NaN. */
+double view_stability(const struct view *v, uint32_t id);
+/* 1 when some community of the model shown has a stability. */
+int view_has_stability(const struct view *v);
 /* The name of the sort column, as in "communities by NAME". */
 const char *view_sort_name(const struct view *v);
 /* Show or hide the node's strengths that are no membership. */

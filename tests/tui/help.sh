@@ -42,8 +42,9 @@ table = [l.rstrip("\n").split("\t") for l in open(sys.argv[1], encoding="utf-8")
 entries = []  # (heading, [keys], text)
 current = None
 for line in open(sys.argv[2], encoding="utf-8").read().split("\n"):
-    if line.startswith(" ") and not line.startswith("  ") and line.strip() in heading.values():
-        current = line.strip()
+    if line.startswith(" ") and not line.startswith("  ") and line.strip():
+        # a pane's heading, or another section (the questions): no keys
+        current = line.strip() if line.strip() in heading.values() else None
     elif line.startswith("   ") and current and line.strip():
         keys, _, text = line.strip().partition("  ")
         entries.append((current, [k.strip() for k in keys.split(", ")], text.strip()))

@@ -1,5 +1,4 @@
-/* Tests for figure: the best-match Jaccard index against hand-worked
- * covers, the agreement matrix of two and three folders, the readers of
+/* Tests for figure: the agreement matrix of two and three folders, the readers of
  * trace.tsv, k-selection.tsv and memberships.tsv (values, the marks from
  * run.json, refusals naming file and line), and the formats of names. */
 #include <stdio.h>
@@ -12,54 +11,6 @@
 
 #include "coterie/cover.h"
 #include "coterie/figure.h"
-
-static void pairs_cover(struct cover *c, uint32_t n, const uint32_t *node, const uint32_t *comm,
-			uint64_t np)
-{
-	assert_int_equal(cover_from_pairs(c, n, node, comm, np), 0);
-	assert_cover_sane(c);
-}
-
-/* x: {0,1,2,3} {4,5}; y: {0,1,2} {3,4,5} {6}. By hand (|a & b| / |a | b|):
- * x0 with y0: 3 / 4 = 0.75, with y1: 1 / 6; so best 0.75.
- * x1 with y1: 2 / 3; best 2/3. The other way: y0 best 0.75 (x0); y1 best
- * max(1/6, 2/3) = 2/3; y2 = {6} shares no node: 0. */
-static void test_best_jaccard_matches_hand_worked_covers(void **state)
-{
-	(void)state;
-	struct cover x, y;
-	uint32_t xn[] = { 0, 1, 2, 3, 4, 5 }, xc[] = { 0, 0, 0, 0, 1, 1 };
-	uint32_t yn[] = { 0, 1, 2, 3, 4, 5, 6 }, yc[] = { 0, 0, 0, 1, 1, 1, 2 };
-	pairs_cover(&x, 7, xn, xc, 6);
-	pairs_cover(&y, 7, yn, yc, 7);
-	double bx[2], by[3];
-	assert_int_equal(figure_best_jaccard(&x, &y, bx), 0);
-	assert_true(fabs(bx[0] - 0.75) < 1e-15);
-	assert_true(fabs(bx[1] - 2.0 / 3.0) < 1e-15);
-	assert_int_equal(figure_best_jaccard(&y, &x, by), 0);
-	assert_true(fabs(by[0] - 0.75) < 1e-15);
-	assert_true(fabs(by[1] - 2.0 / 3.0) < 1e-15);
-	assert_true(by[2] == 0);
-	/* a cover against itself: every community matches itself whole */
-	assert_int_equal(figure_best_jaccard(&y, &y, by), 0);
-	for (int i = 0; i < 3; i++)
-		assert_true(by[i] == 1);
-	cover_release(&x);
-	cover_release(&y);
-}
-
-static void test_best_jaccard_refuses_covers_of_other_sizes(void **state)
-{
-	(void)state;
-	struct cover x, y;
-	uint32_t n[] = { 0, 1 }, c[] = { 0, 0 };
-	pairs_cover(&x, 2, n, c, 2);
-	pairs_cover(&y, 3, n, c, 2);
-	double b[1];
-	assert_int_equal(figure_best_jaccard(&x, &y, b), -1);
-	cover_release(&x);
-	cover_release(&y);
-}
 
 /* The same covers as files: A = {a,b,c,d} "p", {e,f} "q"; B = {a,b,c}
  * "r", {d,e,f} "s". Rows of A largest first (p, q); columns by the rows'
@@ -201,8 +152,6 @@ static void test_formats_by_extension_and_name(void **state)
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
-		cmocka_unit_test(test_best_jaccard_matches_hand_worked_covers),
-		cmocka_unit_test(test_best_jaccard_refuses_covers_of_other_sizes),
 		cmocka_unit_test(test_agreement_of_two_folders_orders_and_scores),
 		cmocka_unit_test(test_trace_reader_takes_marks_from_run_json),
 		cmocka_unit_test(test_kcurve_reader_reads_by_column_name),

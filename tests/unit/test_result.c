@@ -440,11 +440,11 @@ static void test_communities_tsv_lists_figures_largest_first(void **state)
 	const char *dir = write_folder();
 	struct table t;
 	table_load(&t, path_in(dir, "communities.tsv"));
-	static const char *const head[8] = { "community", "size", "internal_edges", "density",
-					     "conductance", "p", "volume", "cut" };
+	static const char *const head[9] = { "community", "size", "internal_edges", "density",
+					     "conductance", "p", "volume", "cut", "stability" };
 	assert_int_equal(t.nrows, 4);
-	assert_int_equal(t.nfields[0], 8);
-	for (int j = 0; j < 8; j++)
+	assert_int_equal(t.nfields[0], 9);
+	for (int j = 0; j < 9; j++)
 		assert_string_equal(t.field[0][j], head[j]);
 	/* the figures worked out by hand in fixture_init() */
 	static const struct {
@@ -458,7 +458,7 @@ static void test_communities_tsv_lists_figures_largest_first(void **state)
 	};
 	for (int i = 0; i < 3; i++) {
 		char **f = t.field[i + 1];
-		assert_int_equal(t.nfields[i + 1], 8);
+		assert_int_equal(t.nfields[i + 1], 9);
 		assert_string_equal(f[0], want[i].id);
 		assert_string_equal(f[1], want[i].size);
 		assert_string_equal(f[2], want[i].internal);
@@ -468,6 +468,7 @@ static void test_communities_tsv_lists_figures_largest_first(void **state)
 		assert_true(fabs(num(f[5]) - want[i].p) <= 5e-9 * want[i].p);
 		assert_string_equal(f[6], want[i].volume);
 		assert_string_equal(f[7], want[i].cut);
+		assert_string_equal(f[8], "NA"); /* no fit --repeats: not computed */
 	}
 	free(t.text);
 	remove_folder(dir);
@@ -540,7 +541,7 @@ static void test_run_json_has_every_key_in_order_with_values(void **state)
 
 	static const char *const top[] = { "coterie", "command", "graph", "parameters", "fit",
 					   "k_selection", "background", "link_check", "agm_refine",
-					   "warnings", "run" };
+					   "stability", "warnings", "run" };
 	static const char *const graph[] = { "path", "format", "nodes", "edges", "fingerprint",
 					     "lines", "self_loops", "duplicates", "extra_columns",
 					     "isolated", "directed_input" };
@@ -552,7 +553,7 @@ static void test_run_json_has_every_key_in_order_with_values(void **state)
 					   "covered_nodes", "overlapping_nodes", "start_kept",
 					   "reseeds_kept", "memberships_from" };
 	static const char *const run[] = { "wall_seconds", "peak_rss_kb" };
-	assert_keys(root, top, 11);
+	assert_keys(root, top, 12);
 	/* k was given, no background choice recorded and no link check was
 	 * asked: all three null */
 	assert_true(json_is_null(get(root, "k_selection", NULL)));
@@ -599,6 +600,7 @@ static void test_run_json_has_every_key_in_order_with_values(void **state)
 	assert_int_equal(json_integer_value(get(root, "fit", "overlapping_nodes")), 2);
 	assert_string_equal(json_string_value(get(root, "fit", "memberships_from")), "strengths");
 	assert_true(json_is_null(get(root, "agm_refine", NULL))); /* --refine not asked */
+	assert_true(json_is_null(get(root, "stability", NULL))); /* --repeats not asked */
 
 	assert_true(json_real_value(get(root, "run", "wall_seconds")) == 2.5);
 	assert_true(json_is_null(get(root, "run", "peak_rss_kb"))); /* 0 means unknown */
@@ -1578,7 +1580,7 @@ static void test_resume_through_the_checkpoint_matches_the_uninterrupted_fit(voi
 
 	const char *dir = test_tmpdir();
 	struct result_meta meta = { "coterie fit karate", "karate/edges.tsv", 1.0, 0, "finished", 0,
-				    NULL, 0, NULL, NULL, NULL };
+				    NULL, 0, NULL, NULL, NULL, NULL };
 	assert_int_equal(result_write(dir, g, &p, model_of(half), &meta), 0);
 
 	/* the folder agrees with the snapshot it was written from */
