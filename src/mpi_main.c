@@ -12,13 +12,11 @@
  * processes agreed to fit strands the others in an exchange, so it ends
  * the whole job with MPI_Abort() instead.
  */
-#include <locale.h>
 #include <mpi.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 
-#include <igraph.h>
 
 #include "cli/cli.h"
 #include "coterie/mpi_group.h"
@@ -59,22 +57,9 @@ static void print_stats(const struct mpi_group *g)
 
 int main(int argc, char **argv)
 {
-	setlocale(LC_ALL, "");
-	igraph_set_error_handler(igraph_error_handler_printignore);
-	igraph_set_warning_handler(igraph_warning_handler_ignore);
-	proc_set_command_line(argc, argv);
-	if (argc < 2) {
-		usage(stderr);
-		return EXIT_USAGE;
-	}
-	if (!strcmp(argv[1], "--help") || !strcmp(argv[1], "-h") || !strcmp(argv[1], "help")) {
-		usage(stdout);
-		return 0;
-	}
-	if (!strcmp(argv[1], "--version") || !strcmp(argv[1], "-V")) {
-		printf("coterie-mpi %s\n", COTERIE_VERSION);
-		return 0;
-	}
+	int rc = cli_main_begin(argc, argv, "coterie-mpi", usage);
+	if (rc >= 0)
+		return rc;
 	if (strcmp(argv[1], "fit")) {
 		char buf[256];
 		error("coterie-mpi runs only 'fit'; use coterie for '%s'",
@@ -98,7 +83,7 @@ int main(int argc, char **argv)
 	sink_rank = mpi_group_rank(g);
 	if (sink_rank > 0)
 		util_set_sink(follower_sink);
-	int rc = cli_fit_in_group(argc - 1, argv + 1, mpi_group_cli(g));
+	rc = cli_fit_in_group(argc - 1, argv + 1, mpi_group_cli(g));
 	if (mpi_group_stranding(g)) {
 		error("rank %u failed during the fit; ending every process", sink_rank);
 		MPI_Abort(MPI_COMM_WORLD, rc ? rc : 1);

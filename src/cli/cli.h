@@ -9,6 +9,7 @@
 #define COTERIE_CLI_H
 
 #include <stdint.h>
+#include <stdio.h>
 
 #include <jansson.h>
 
@@ -144,6 +145,12 @@ void cli_fit_opts_resume(const struct cli_fit_opts *o, const struct fit_params *
 void cli_model_can(const struct fit_params *p, int k_auto, int check_links, int refine);
 
 int cmd_fit(int argc, char **argv);
+
+/* What a program's main() does first (coterie, coterie-mpi): locale,
+ * igraph's handlers, the command line for run.json; then no command,
+ * --help and --version (usage() prints the program's usage). Returns the
+ * exit status when that was all, else -1 to go on with argv[1]. */
+int cli_main_begin(int argc, char **argv, const char *program, void (*usage)(FILE *out));
 
 /* `fit` run by every process of a group (coterie-mpi: src/mpi_main.c).
  * Every process parses, loads and fits alike; only rank 0 takes the
