@@ -13,7 +13,7 @@ PREFIX   ?= /usr/local
 PKGS     := igraph ncursesw cmocka jansson zlib cairo fontconfig
 DEB_PKGS := build-essential pkg-config libigraph-dev libncurses-dev libcmocka-dev \
             libjansson-dev zlib1g-dev tmux python3 python3-networkx python3-sklearn python3-igraph python3-scipy \
-            groff-base man-db libcairo2-dev poppler-utils
+            groff-base man-db libcairo2-dev poppler-utils libopenmpi-dev openmpi-bin
 
 comma := ,
 ifeq ($(SANITIZE),)
@@ -42,7 +42,9 @@ ALL_CFLAGS := -std=c11 -D_POSIX_C_SOURCE=200809L -D_DEFAULT_SOURCE -D_XOPEN_SOUR
 ALL_LDFLAGS := -pthread $(SANFLAGS) $(LDFLAGS)
 LIBS := $(PKG_LIBS) -lm
 
-CORE_SRC := $(wildcard src/*.c)
+# src/mpi*.c are the MPI front end: built into coterie-mpi only, never the core.
+MPI_SRC  := $(wildcard src/mpi*.c)
+CORE_SRC := $(filter-out $(MPI_SRC),$(wildcard src/*.c))
 APP_SRC  := $(wildcard src/cli/*.c src/tui/*.c)
 TEST_SRC := $(wildcard tests/unit/test_*.c)
 
@@ -52,9 +54,29 @@ TEST_BIN := $(TEST_SRC:tests/unit/%.c=$(BUILD)/tests/unit/%)
 TEST_HELPER_OBJ := $(BUILD)/tests/unit/helpers.o
 LIB := $(BUILD)/libcoterie.a
 
-.PHONY: all check unit bench install clean deps demo fuzz memcheck
+# coterie-mpi (the fit shared among MPI processes) is built beside coterie
+# whenever mpicc is found; coterie itself links no MPI. It takes the core,
+# `fit`'s command code and src/mpi*.c.
+MPICC    ?= mpicc
+HAVE_MPI := $(shell command -v $(MPICC) >/dev/null 2>&1 && echo 1)
+MPI_BIN  := $(if $(SANITIZE),$(BUILD)/coterie-mpi,coterie-mpi)
+MPI_OBJ  := $(MPI_SRC:%.c=$(BUILD)/%.o)
+MPI_APP_OBJ := $(BUILD)/src/cli/fit.o $(BUILD)/src/cli/common.o
+MPI_TARGET := $(if $(HAVE_MPI),$(MPI_BIN),mpi-skip)
 
-all: $(BIN)
+.PHONY: all check unit bench install clean deps demo fuzz memcheck mpi-skip
+
+all: $(BIN) $(MPI_TARGET)
+
+$(BUILD)/src/mpi%.o: src/mpi%.c
+	@mkdir -p $(dir $@)
+	$(MPICC) $(ALL_CFLAGS) -c $< -o $@
+
+$(MPI_BIN): $(MPI_OBJ) $(MPI_APP_OBJ) $(LIB)
+	$(MPICC) $(ALL_LDFLAGS) -o $@ $(MPI_OBJ) $(MPI_APP_OBJ) $(LIB) $(LIBS)
+
+mpi-skip:
+	@echo "note: $(MPICC) not found, coterie-mpi not built (make deps installs Open MPI)"
 
 $(BUILD)/%.o: %.c
 	@mkdir -p $(dir $@)
@@ -91,7 +113,7 @@ unit: $(TEST_BIN)
 	@COTERIE_BIN=$(abspath $(BIN)) tests/run.sh --unit $(TEST_BIN)
 
 # CHECK_FLAGS=--no-tui leaves out the explorer tests (CI's sanitizer run).
-check: $(BIN) $(TEST_BIN)
+check: $(BIN) $(MPI_TARGET) $(TEST_BIN)
 	@COTERIE_BIN=$(abspath $(BIN)) tests/run.sh $(CHECK_FLAGS) $(TEST_BIN)
 
 # The command tests of fit under valgrind's memcheck: COTERIE_BIN is a
@@ -139,7 +161,7 @@ install: $(BIN)
 	install -m 644 man/coterie-files.5 $(DESTDIR)$(PREFIX)/share/man/man5/coterie-files.5
 
 clean:
-	rm -rf build build-* coterie
+	rm -rf build build-* coterie coterie-mpi
 
 -include $(shell find build* -name '*.d' 2>/dev/null)
 

@@ -43,6 +43,9 @@ struct fit {
 	enum fit_state state;
 
 	atomic_int stop_req, pause_req, extend_req, interrupt_req, point_req;
+	/* fit_share(): stop and interrupt are wishes (0, 1, 2) until agreed */
+	int shared;
+	atomic_int wish;
 	/* fit_set_tol(): the plateau tolerance in force, as the bits of a
 	 * double (f->p.tol keeps the one the fit began with) */
 	atomic_uint_least64_t tol_bits;

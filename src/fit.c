@@ -27,7 +27,11 @@
  * very bits the uninterrupted fit added to.
  *
  * Control. pause/stop/extend are atomics read between blocks; a paused or
- * holding fit sleeps on a condition variable. The one thing a newcomer
+ * holding fit sleeps on a condition variable. A fit shared with other
+ * processes (fit_share(), MPI) turns stop and interrupt into a wish that
+ * the exchange of rows carries to every process; each fitting thread
+ * then sets the request itself at the same block (fit_agree()), so all
+ * processes check the same requests at the same points. The one thing a newcomer
  * gets wrong: the pool's threads are made on the fitting thread, whose
  * signals are all blocked, so that no worker takes a signal meant for the
  * command layer.
@@ -591,17 +595,53 @@ void fit_unpause(struct fit *f)
 	poke(f);
 }
 
+/* A shared fit's wish rises to w (never falls): 1 when recorded. */
+static int wish(struct fit *f, int w)
+{
+	if (!f->shared)
+		return 0;
+	int old = atomic_load(&f->wish);
+	while (old < w && !atomic_compare_exchange_weak(&f->wish, &old, w))
+		;
+	return 1;
+}
+
 void fit_stop(struct fit *f)
 {
+	if (wish(f, 2))
+		return;
 	atomic_store(&f->stop_req, 1);
 	poke(f);
 }
 
 void fit_interrupt(struct fit *f)
 {
+	if (wish(f, 1))
+		return;
 	atomic_store(&f->interrupt_req, 1);
 	atomic_store(&f->pause_req, 0);
 	poke(f);
+}
+
+void fit_share(struct fit *f, const struct sweep_group *grp)
+{
+	sweep_set_group(f->sw, grp);
+	f->shared = grp != NULL;
+}
+
+int fit_wish(struct fit *f)
+{
+	return atomic_load(&f->wish);
+}
+
+void fit_agree(struct fit *f, int w)
+{
+	if (w >= 2)
+		atomic_store(&f->stop_req, 1);
+	if (w >= 1) {
+		atomic_store(&f->interrupt_req, 1);
+		atomic_store(&f->pause_req, 0);
+	}
 }
 
 void fit_want_savepoint(struct fit *f)

@@ -36,11 +36,21 @@
  * Recomputing. sweep_objective() sums parts of LL_CHUNK nodes, computed
  * on the pool, in their fixed order: the same bits for any thread count.
  *
+ * Sharing with other processes (sweep_set_group(), MPI). Each process
+ * computes its fixed share of a block's rows (and of the recompute's
+ * parts), then the shares are exchanged as packed rows (share_rows()) and
+ * every process has every row of the block, as if it had computed them
+ * all: block_gain() and apply_block() run unchanged, on every process,
+ * in block order. Rows from other processes live in one more arena (the
+ * slot after the threads'). A process short of memory still takes part in
+ * the exchange and says so, so that every process fails at the same block.
+ *
  * The one thing a newcomer gets wrong: workers read the model while rows
  * are computed, so rows are applied only after pool_end(), between blocks.
  */
 #include "coterie/sweep.h"
 
+#include <math.h>
 #include <stdatomic.h>
 #include <stdlib.h>
 #include <string.h>
@@ -92,11 +102,15 @@ struct sweep {
 	const struct objective_ops *ops;
 	struct pool *pool;
 	unsigned nslots; /* the threads asked for */
-	struct slot *slots;
+	struct slot *slots; /* nslots, then one whose arena holds other processes' rows */
+	const struct sweep_group *grp; /* NULL: alone */
+	unsigned char *pk;             /* this process's share, packed for grp */
+	size_t pk_len, pk_cap;
 	/* the block being computed */
 	const uint32_t *block;
 	uint32_t block_len;
 	atomic_uint next;
+	uint32_t job_end;     /* rows (or parts) [next, job_end) are this process's */
 	atomic_int failed;
 	struct rowres *res;   /* BLOCK_NODES */
 	/* cutting blocks */
@@ -130,7 +144,7 @@ struct sweep *sweep_new(struct model *m, const struct graph *g, const struct obj
 	s->nslots = threads ? threads : 1;
 	size_t n = g->n;
 	s->pool = pool_new(s->nslots);
-	s->slots = util_calloc(s->nslots, sizeof *s->slots);
+	s->slots = util_calloc(s->nslots + 1, sizeof *s->slots);
 	s->res = util_calloc(BLOCK_NODES, sizeof *s->res);
 	s->perm = util_calloc(2 * n + 1, sizeof *s->perm);
 	s->blk = util_calloc(2 * BLOCK_NODES + 2 * PEND_MAX, sizeof *s->blk);
@@ -163,7 +177,10 @@ void sweep_free(struct sweep *s)
 		s->ops->work_free(s->slots[t].work);
 		free(s->slots[t].arena.e);
 	}
+	if (s->slots)
+		free(s->slots[s->nslots].arena.e);
 	free(s->slots);
+	free(s->pk);
 	free(s->res);
 	free(s->perm); /* and mark */
 	free(s->blk);  /* and pend */
@@ -224,7 +241,7 @@ static void rows_job(void *arg, unsigned tid)
 	const struct graph *g = s->g;
 	for (;;) {
 		uint32_t i = atomic_fetch_add(&s->next, 1);
-		if (i >= s->block_len)
+		if (i >= s->job_end)
 			break;
 		uint32_t u = s->block[i];
 		/* the rows ahead in the block: their adjacency and own
@@ -264,7 +281,7 @@ static void parts_job(void *arg, unsigned tid)
 	struct sweep *s = arg;
 	for (;;) {
 		uint32_t i = atomic_fetch_add(&s->next, 1);
-		if (i >= s->nparts)
+		if (i >= s->job_end)
 			break;
 		uint32_t u0 = i * LL_CHUNK;
 		uint32_t u1 = u0 + LL_CHUNK < s->g->n ? u0 + LL_CHUNK : s->g->n;
@@ -272,12 +289,49 @@ static void parts_job(void *arg, unsigned tid)
 	}
 }
 
+/* This process's share [*lo, *hi) of len items (all of them when alone). */
+static void share_of(const struct sweep *s, uint32_t len, unsigned rank, uint32_t *lo,
+		     uint32_t *hi)
+{
+	if (!s->grp) {
+		*lo = 0;
+		*hi = len;
+		return;
+	}
+	*lo = (uint32_t)((uint64_t)len * rank / s->grp->size);
+	*hi = (uint32_t)((uint64_t)len * (rank + 1) / s->grp->size);
+}
+
+/* Every process's parts into s->parts: the shares are consecutive ranges
+ * in rank order, so the concatenation is the parts in order. */
+static int share_parts(struct sweep *s, uint32_t lo, uint32_t hi)
+{
+	size_t ps = s->ops->part_size;
+	const unsigned char *all;
+	const size_t *lens;
+	if (s->grp->gather(s->grp->arg, s->parts + lo * ps, (hi - lo) * ps, &all, &lens))
+		return -1;
+	size_t total = 0;
+	for (unsigned r = 0; r < s->grp->size; r++)
+		total += lens[r];
+	if (total != (size_t)s->nparts * ps)
+		return error("the processes disagree on the likelihood's parts (%zu bytes, not %zu)",
+			     total, (size_t)s->nparts * ps);
+	memcpy(s->parts, all, total);
+	return 0;
+}
+
 double sweep_objective(struct sweep *s)
 {
-	atomic_store(&s->next, 0);
-	pool_begin(s->pool, parts_job, s, s->nparts < 2);
+	uint32_t lo, hi;
+	share_of(s, s->nparts, s->grp ? s->grp->rank : 0, &lo, &hi);
+	atomic_store(&s->next, lo);
+	s->job_end = hi;
+	pool_begin(s->pool, parts_job, s, hi - lo < 2);
 	parts_job(s, 0);
 	pool_end(s->pool);
+	if (s->grp && share_parts(s, lo, hi))
+		return NAN;
 	return s->ops->part_combine(s->m, s->g, s->parts, s->nparts);
 }
 
@@ -332,8 +386,13 @@ static uint32_t block_next(struct sweep *s, struct blockgen *bg, uint32_t *blk)
  * next block meanwhile. */
 static void run_block(struct sweep *s)
 {
-	atomic_store(&s->next, 0);
-	pool_begin(s->pool, rows_job, s, s->block_len < POOL_MIN_ROWS);
+	uint32_t lo, hi;
+	share_of(s, s->block_len, s->grp ? s->grp->rank : 0, &lo, &hi);
+	for (uint32_t i = 0; s->grp && i < s->block_len; i++)
+		s->res[i].changed = 0; /* rows of other processes, until they arrive */
+	atomic_store(&s->next, lo);
+	s->job_end = hi;
+	pool_begin(s->pool, rows_job, s, hi - lo < POOL_MIN_ROWS);
 	if (s->gen) {
 		s->gen_len = block_next(s, s->gen, s->gen_out);
 		s->gen = NULL;
@@ -451,6 +510,130 @@ static double block_gain(struct sweep *s)
 	return gain - cross;
 }
 
+/* ---- sharing a block's rows with other processes ---- */
+
+/* A packed share: u32 failed, then for each of its rows in block order
+ * u32 nnz (UNCHANGED when the row stays), and for a changed row its f64
+ * gain and nnz entries of 12 bytes (struct fentry is packed). */
+#define UNCHANGED UINT32_MAX
+
+static int pack_bytes(struct sweep *s, const void *p, size_t len)
+{
+	if (s->pk_len + len > s->pk_cap) {
+		size_t nc = s->pk_cap ? s->pk_cap * 2 : 4096;
+		while (nc < s->pk_len + len)
+			nc *= 2;
+		unsigned char *np = realloc(s->pk, nc);
+		if (!np)
+			return -1;
+		s->pk = np;
+		s->pk_cap = nc;
+	}
+	memcpy(s->pk + s->pk_len, p, len);
+	s->pk_len += len;
+	return 0;
+}
+
+/* Rows [lo, hi) of the block, packed into s->pk. */
+static int pack_share(struct sweep *s, uint32_t lo, uint32_t hi)
+{
+	s->pk_len = 0;
+	uint32_t failed = (uint32_t)atomic_load(&s->failed);
+	int rc = pack_bytes(s, &failed, sizeof failed);
+	for (uint32_t i = lo; i < hi && !rc; i++) {
+		const struct rowres *rr = &s->res[i];
+		uint32_t nnz = rr->changed ? rr->nnz : UNCHANGED;
+		rc = pack_bytes(s, &nnz, sizeof nnz);
+		if (rr->changed && !rc)
+			rc = pack_bytes(s, &rr->gain, sizeof rr->gain) ||
+			     pack_bytes(s, s->slots[rr->owner].arena.e + rr->at,
+					(size_t)rr->nnz * sizeof(struct fentry));
+	}
+	return rc;
+}
+
+/* Process r's rows [lo, hi) from its packed bytes p[0, len) into res[]
+ * and the arena of other processes' rows; *failed when it ran out of
+ * memory. 0 or -1 (bytes that do not parse). */
+static int unpack_share(struct sweep *s, const unsigned char *p, size_t len, uint32_t lo,
+			uint32_t hi, uint32_t *failed)
+{
+	struct arena *a = &s->slots[s->nslots].arena;
+	size_t at = 0;
+	if (len < sizeof *failed)
+		return -1;
+	memcpy(failed, p, sizeof *failed);
+	if (*failed)
+		return 0;
+	at += sizeof *failed;
+	for (uint32_t i = lo; i < hi; i++) {
+		uint32_t nnz;
+		if (len - at < sizeof nnz)
+			return -1;
+		memcpy(&nnz, p + at, sizeof nnz);
+		at += sizeof nnz;
+		struct rowres *rr = &s->res[i];
+		rr->changed = nnz != UNCHANGED;
+		if (!rr->changed)
+			continue;
+		size_t bytes = (size_t)nnz * sizeof(struct fentry);
+		if (nnz > s->m->k || len - at < sizeof rr->gain + bytes)
+			return -1;
+		memcpy(&rr->gain, p + at, sizeof rr->gain);
+		at += sizeof rr->gain;
+		if (arena_push(a, (const struct fentry *)(const void *)(p + at), nnz, &rr->at)) {
+			*failed = 1;
+			return 0;
+		}
+		at += bytes;
+		rr->nnz = nnz;
+		rr->owner = s->nslots;
+	}
+	return at == len ? 0 : -1;
+}
+
+/* Every process's share of the block's rows, to every process: after it
+ * res[] holds the whole block. -1 (reported) when any process failed. */
+static int share_rows(struct sweep *s)
+{
+	const struct sweep_group *grp = s->grp;
+	uint32_t lo, hi, any_failed = 0;
+	share_of(s, s->block_len, grp->rank, &lo, &hi);
+	static const uint32_t failed_share = 1;
+	const void *mine;
+	size_t mine_len;
+	if (pack_share(s, lo, hi)) {
+		atomic_store(&s->failed, 1);
+		mine = &failed_share;
+		mine_len = sizeof failed_share;
+	} else {
+		mine = s->pk;
+		mine_len = s->pk_len;
+	}
+	const unsigned char *all;
+	const size_t *lens;
+	if (grp->gather(grp->arg, mine, mine_len, &all, &lens))
+		return -1;
+	size_t at = 0;
+	for (unsigned r = 0; r < grp->size; r++) {
+		uint32_t failed = 0;
+		share_of(s, s->block_len, r, &lo, &hi);
+		if (r != grp->rank && unpack_share(s, all + at, lens[r], lo, hi, &failed))
+			return error("the rows of process %u do not parse", r);
+		any_failed |= failed;
+		at += lens[r];
+	}
+	if (any_failed)
+		return error("out of memory while fitting (on process %s)",
+			     atomic_load(&s->failed) ? "this one" : "another one");
+	return 0;
+}
+
+void sweep_set_group(struct sweep *s, const struct sweep_group *grp)
+{
+	s->grp = grp;
+}
+
 /* ---- one sweep ---- */
 
 static int apply_block(struct sweep *s)
@@ -495,9 +678,11 @@ int sweep_run(struct sweep *s, uint64_t order_seed, sweep_between_fn *between, v
 		s->gen_len = 0;
 		s->block = s->blk + cur * BLOCK_NODES;
 		s->block_len = nb;
-		for (unsigned t = 0; t < s->nslots; t++)
+		for (unsigned t = 0; t <= s->nslots; t++)
 			s->slots[t].arena.len = 0;
 		run_block(s);
+		if (s->grp && share_rows(s))
+			return -1;
 		if (atomic_load(&s->failed))
 			return error("out of memory while fitting");
 		*dl += block_gain(s);

@@ -192,6 +192,21 @@ void fit_stop(struct fit *f);
  * the end of it first), and to leave in its last snapshot what an exact
  * resume needs (snapshot.savepoint), unless fit_stop() comes too. */
 void fit_interrupt(struct fit *f);
+
+struct sweep_group;
+/* Share the fit's sweeps with other processes running the same fit
+ * (sweep.h, struct sweep_group; borrowed, it must outlive f); before
+ * fit_start(). Then fit_stop() and fit_interrupt() only record a wish
+ * (fit_wish()) that the group carries to every process, and each acts on
+ * it at the same block with fit_agree(): a fit that stopped on one
+ * process alone would leave the others waiting in an exchange. */
+void fit_share(struct fit *f, const struct sweep_group *grp);
+/* The wish of a shared fit: 0 none, 1 interrupt, 2 stop. Any thread. */
+int fit_wish(struct fit *f);
+/* What every process agreed (the largest wish of any): as fit_interrupt()
+ * (1) or fit_stop() (2) on a fit alone. On the fitting thread, inside
+ * the group's exchange; 0 does nothing. */
+void fit_agree(struct fit *f, int wish);
 /* Ask that the next sweep to end publish a snapshot with a savepoint
  * (snapshot.savepoint), for a periodic checkpoint that resumes exactly. A fit
  * continued as one start (fit_origin without savepoint) never makes one. */

@@ -57,4 +57,28 @@ double sweep_objective(struct sweep *s);
 /* What the threads' work buffers have done so far, summed. */
 void sweep_counts(const struct sweep *s, struct objective_counts *c);
 
+/* Sweeps shared among processes that each hold the whole graph and model
+ * (MPI: src/mpi_group.c, built into coterie-mpi only). Every process runs
+ * the same sweeps on the same blocks; of a block of len rows, process
+ * `rank` computes rows [len * rank / size, len * (rank + 1) / size) with
+ * its threads, gather() hands every process the rows of all, and each
+ * applies them in permutation order: every model stays the one-process
+ * model bit for bit. A recompute shares its parts the same way, and the
+ * parts are combined in their fixed order on every process. */
+struct sweep_group {
+	unsigned rank, size;
+	/* Every process's bytes in rank order. mine (len bytes, borrowed)
+	 * goes out; *all is the concatenation and (*lens)[r] process r's
+	 * length (both owned by the group, valid until its next call). A
+	 * collective: every process calls it at the same point of the same
+	 * sweep. 0, or -1 (reported). */
+	int (*gather)(void *arg, const void *mine, size_t len, const unsigned char **all,
+		      const size_t **lens);
+	void *arg;
+};
+
+/* Share s's sweeps and recomputes with a group (borrowed: it must
+ * outlive s; NULL: alone again). */
+void sweep_set_group(struct sweep *s, const struct sweep_group *grp);
+
 #endif

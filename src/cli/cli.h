@@ -9,6 +9,7 @@
 #define COTERIE_CLI_H
 
 #include <stdint.h>
+#include <stdio.h>
 
 #include <jansson.h>
 
@@ -150,6 +151,31 @@ void cli_fit_opts_resume(const struct cli_fit_opts *o, const struct fit_params *
 void cli_model_can(const struct fit_params *p, int k_auto, int check_links, int refine);
 
 int cmd_fit(int argc, char **argv);
+
+/* What a program's main() does first (coterie, coterie-mpi): locale,
+ * igraph's handlers, the command line for run.json; then no command,
+ * --help and --version (usage() prints the program's usage). Returns the
+ * exit status when that was all, else -1 to go on with argv[1]. */
+int cli_main_begin(int argc, char **argv, const char *program, void (*usage)(FILE *out));
+
+/* `fit` run by every process of a group (coterie-mpi: src/mpi_main.c).
+ * Every process parses, loads and fits alike; only rank 0 takes the
+ * folder, prints and writes. The hooks are collectives that every process
+ * calls at the same points: agree() twice before the fit starts (after
+ * rank 0 took the folder, then once everything is loaded), share() to
+ * hand the fit to the group, end() once after it with rank 0's status. */
+struct cli_group {
+	unsigned rank, size;
+	/* 1 when every process passed ok = 1 */
+	int (*agree)(void *arg, int ok);
+	/* the fit's sweeps shared with the group (fit_share()) */
+	void (*share)(void *arg, struct fit *f);
+	/* rank 0's exit status, returned on every process */
+	int (*end)(void *arg, int rc);
+	void *arg;
+};
+/* cmd_fit() inside a group (borrowed; NULL: cmd_fit() itself). */
+int cli_fit_in_group(int argc, char **argv, const struct cli_group *grp);
 int cmd_show(int argc, char **argv);
 int cmd_explore(int argc, char **argv);
 int cmd_simulate(int argc, char **argv);

@@ -4,6 +4,7 @@
 #include <errno.h>
 #include <getopt.h>
 #include <inttypes.h>
+#include <locale.h>
 #include <math.h>
 #include <stdarg.h>
 #include <stdio.h>
@@ -11,6 +12,8 @@
 #include <string.h>
 #include <strings.h>
 #include <unistd.h>
+
+#include <igraph.h>
 
 void die(int status, const char *fmt, ...)
 {
@@ -273,4 +276,25 @@ void cli_model_can(const struct fit_params *p, int k_auto, int check_links, int 
 		die(EXIT_USAGE, "%s is not yet available with the %s model (--%s)", opt,
 		    model_kind_name(p->model),
 		    p->model == MODEL_POISSON ? "weighted" : model_kind_name(p->model));
+}
+
+int cli_main_begin(int argc, char **argv, const char *program, void (*usage)(FILE *out))
+{
+	setlocale(LC_ALL, "");
+	igraph_set_error_handler(igraph_error_handler_printignore);
+	igraph_set_warning_handler(igraph_warning_handler_ignore);
+	proc_set_command_line(argc, argv);
+	if (argc < 2) {
+		usage(stderr);
+		return EXIT_USAGE;
+	}
+	if (!strcmp(argv[1], "--help") || !strcmp(argv[1], "-h") || !strcmp(argv[1], "help")) {
+		usage(stdout);
+		return 0;
+	}
+	if (!strcmp(argv[1], "--version") || !strcmp(argv[1], "-V")) {
+		printf("%s %s\n", program, COTERIE_VERSION);
+		return 0;
+	}
+	return -1;
 }

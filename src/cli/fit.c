@@ -371,7 +371,19 @@ struct run {
 	uint32_t repeats;            /* --repeats (0: one fit) */
 	struct snapshot **runs;      /* --repeats: every run's final snapshot */
 	struct stability stab;       /* --repeats: the record written */
+	const struct cli_group *grp; /* coterie-mpi: the processes fitting together */
+	int writer;                  /* this process takes the folder and prints */
+	unsigned agreed;             /* grp->agree() calls made (two before the fit) */
 };
+
+/* grp->agree(ok), or ok alone. */
+static int agreed(struct run *r, int ok)
+{
+	if (!r->grp)
+		return ok;
+	r->agreed++;
+	return r->grp->agree(r->grp->arg, ok);
+}
 
 static void run_release(struct run *r)
 {
@@ -439,6 +451,8 @@ static int parse_args(struct run *r, int argc, char **argv)
 		die(EXIT_USAGE, "--k-grid is for -k auto");
 	if (r->repeats > 1 && r->resume)
 		die(EXIT_USAGE, "--repeats cannot be used when resuming (it makes new fits)");
+	if (r->repeats > 1 && r->grp)
+		die(EXIT_USAGE, "--repeats is not yet available across processes");
 	if (r->repeats <= 1)
 		r->repeats = 0;
 	cli_model_can(&o->p, o->k_auto, r->check_links > 0, r->refine);
@@ -579,7 +593,8 @@ static void watch(struct run *r, struct progress *pr)
 		snapshot_release(s);
 		if (ended)
 			break;
-		outdir_tick(r->od, r->f);
+		if (r->od)
+			outdir_tick(r->od, r->f);
 	}
 }
 
@@ -789,18 +804,29 @@ static int same_folder(const char *a, const char *b)
 
 int cmd_fit(int argc, char **argv)
 {
-	struct run run = { .refine_rounds = 50 }, *r = &run;
+	return cli_fit_in_group(argc, argv, NULL);
+}
+
+int cli_fit_in_group(int argc, char **argv, const struct cli_group *grp)
+{
+	struct run run = { .refine_rounds = 50, .grp = grp }, *r = &run;
+	r->writer = !grp || grp->rank == 0;
 	cli_fit_opts_init(&r->o);
 	int rc = parse_args(r, argc, argv);
 	if (rc >= 0)
 		return rc;
+	if (grp && grp->size > 1 && r->o.k_auto)
+		die(EXIT_USAGE, "-k auto is not yet available across processes: choose k with "
+				"'coterie fit -k auto', then fit with -k N");
 	rc = 1;
-	util_set_quiet(r->quiet);
+	util_set_quiet(r->quiet || !r->writer);
 	/* refuse early: a long fit whose result cannot be written is lost
 	 * work, and so is one a second writer of the folder would replace */
-	if (result_prepare_dir(r->o.out) || proc_signals_install() ||
-	    !(r->lock = dirlock_new(r->o.out, proc_command_line())) || dirlock_take(r->lock) ||
-	    dirlock_reserve(r->lock))
+	if (proc_signals_install() ||
+	    !agreed(r, !r->writer ||
+			   (!result_prepare_dir(r->o.out) &&
+			    (r->lock = dirlock_new(r->o.out, proc_command_line())) &&
+			    !dirlock_take(r->lock) && !dirlock_reserve(r->lock))))
 		goto out;
 	r->t_begin = util_now();
 	int loaded = r->resume ? load_resume(r) : load_graph(r);
@@ -821,7 +847,7 @@ int cmd_fit(int argc, char **argv)
 		.continues = r->resume && same_folder(r->resume, r->o.out),
 		.lock = r->lock,
 	};
-	if (!r->f || !(r->od = outdir_new(&r->oc)))
+	if (!r->f || (r->writer && !(r->od = outdir_new(&r->oc))))
 		goto out;
 	if (r->check.held)
 		fit_exclude(r->f, r->check.held);
@@ -829,19 +855,27 @@ int cmd_fit(int argc, char **argv)
 		notice("fitting %u communities on %u nodes and %llu edges with %u thread%s",
 		       r->p.k, r->graph->n, (unsigned long long)r->graph->m, r->p.threads,
 		       r->p.threads == 1 ? "" : "s");
-	if (fit_start(r->f))
+	if (grp)
+		grp->share(grp->arg, r->f);
+	if (!agreed(r, 1) || fit_start(r->f))
 		goto out;
-	struct progress pr = { isatty(2), r->quiet, 0, 0, 0, 0 };
+	struct progress pr = { isatty(2), r->quiet || !r->writer, 0, 0, 0, 0 };
 	watch(r, &pr);
 	enum fit_state st = fit_wait(r->f);
 	struct snapshot *own = fit_snapshot(r->f);
 	const struct snapshot *s = own;
 	progress_show(&pr, own, 1);
+	if (grp && st == FIT_STOPPED && !r->interrupted)
+		r->interrupted = 1; /* another process was interrupted */
 	if (r->repeats && !r->interrupted && st != FIT_FAILED && own->ntrace > 0)
 		s = repeat_fits(r, own, &st);
-	rc = s ? finish(r, st, s) : 1;
+	rc = !s ? 1 : r->writer ? finish(r, st, s) : 0;
 	snapshot_release(own);
+	if (grp)
+		rc = grp->end(grp->arg, rc);
 out:
+	while (grp && r->agreed < 2)
+		agreed(r, 0); /* the others learn that this process failed */
 	run_release(r);
 	return rc;
 }

@@ -1,9 +1,7 @@
 /* main: dispatch to a subcommand. */
-#include <locale.h>
 #include <stdio.h>
 #include <string.h>
 
-#include <igraph.h>
 
 #include "cli.h"
 
@@ -32,22 +30,9 @@ static void usage(FILE *out)
 
 int main(int argc, char **argv)
 {
-	setlocale(LC_ALL, "");
-	igraph_set_error_handler(igraph_error_handler_printignore);
-	igraph_set_warning_handler(igraph_warning_handler_ignore);
-	proc_set_command_line(argc, argv);
-	if (argc < 2) {
-		usage(stderr);
-		return EXIT_USAGE;
-	}
-	if (!strcmp(argv[1], "--help") || !strcmp(argv[1], "-h") || !strcmp(argv[1], "help")) {
-		usage(stdout);
-		return 0;
-	}
-	if (!strcmp(argv[1], "--version") || !strcmp(argv[1], "-V")) {
-		printf("coterie %s\n", COTERIE_VERSION);
-		return 0;
-	}
+	int rc = cli_main_begin(argc, argv, "coterie", usage);
+	if (rc >= 0)
+		return rc;
 	for (size_t i = 0; i < sizeof commands / sizeof commands[0]; i++)
 		if (!strcmp(argv[1], commands[i].name))
 			return commands[i].fn(argc - 1, argv + 1);
