@@ -17,6 +17,7 @@
 #include <fcntl.h>
 #include <math.h>
 #include <poll.h>
+#include <stdio.h>
 #include <pthread.h>
 #include <stdlib.h>
 #include <string.h>
@@ -51,6 +52,7 @@ int select_params_default(struct select_params *sp, const struct graph *g, uint3
 	if (top < sp->kmin)
 		top = sp->kmin;
 	sp->kmax = (uint32_t)top;
+	sp->start = L; /* kept within [kmin, kmax] by the search */
 	return 0;
 }
 
@@ -169,6 +171,7 @@ struct search {
 	struct fit_params p; /* one thread, the whole graph's epsilon */
 	struct holdout h[SELECT_MAX_FOLDS];
 	uint32_t folds, nslots;
+	uint32_t decided; /* points decided so far (select_point.order) */
 };
 
 /* Fold f's seed, for its split and its fits: fold 0 is a one-fold
@@ -268,13 +271,27 @@ static void stop_all(struct slot *sl, uint32_t nslots)
 		}
 }
 
+/* A k to score, marked added when beyond the grid asked for, and why. */
+struct want {
+	uint32_t k;
+	int added;
+	char why[SELECT_REASON];
+};
+
+static struct want want_of(uint32_t k, int added, const char *why)
+{
+	struct want w = { k, added, { 0 } };
+	snprintf(w.why, sizeof w.why, "%s", why);
+	return w;
+}
+
 /*
- * Score ks[0 .. nk) in that order, each on every fold, into pts; with
+ * Score w[0 .. nk) in that order, each on every fold, into pts; with
  * early, stop after two k in a row below the best (*b, updated). The
  * decisions are taken in list order whatever order the fits end in.
  * *npts receives the points scored. Returns 0, -1 (reported) or -2.
  */
-static int search_pass(struct search *s, const uint32_t *ks, uint32_t nk, int added, int early,
+static int search_pass(struct search *s, const struct want *w, uint32_t nk, int early,
 		       struct select_point *pts, uint32_t *npts, struct best *b)
 {
 	uint32_t F = s->folds, ntask = nk * F;
@@ -290,7 +307,7 @@ static int search_pass(struct search *s, const uint32_t *ks, uint32_t nk, int ad
 		uint32_t active = 0;
 		for (uint32_t i = 0; i < nslots && rc == 0; i++) {
 			if (!sl[i].f && !halt && next < ntask) {
-				rc = slot_launch(&sl[i], s, ks[next / F], next);
+				rc = slot_launch(&sl[i], s, w[next / F].k, next);
 				next++;
 			}
 			active += sl[i].f != NULL;
@@ -313,7 +330,9 @@ static int search_pass(struct search *s, const uint32_t *ks, uint32_t nk, int ad
 		/* the decisions, in list order, once all folds of a k are in */
 		while (rc == 0 && !halt && consumed < nk &&
 		       !memchr(done + consumed * F, 0, F)) {
-			pts[consumed] = point_of(ks[consumed], sc + consumed * F, F, added);
+			pts[consumed] = point_of(w[consumed].k, sc + consumed * F, F, w[consumed].added);
+			pts[consumed].order = ++s->decided;
+			memcpy(pts[consumed].reason, w[consumed].why, SELECT_REASON);
 			const struct select_point *pt = &pts[consumed];
 			if (s->hooks && s->hooks->scored)
 				s->hooks->scored(pt, s->hooks->arg);
@@ -409,7 +428,13 @@ static int extend(struct search *s, const struct graph *g, const struct select_p
 		notice("choosing k: k %u, the %s of the grid, scored best; scoring k %s %u "
 		       "beyond it while the scores rise", b->k, up ? "largest" : "smallest",
 		       up ? "up to" : "down to", ks[n - 1]);
-		rc = search_pass(s, ks, n, 1, 1, pts + *np, &got, b);
+		struct want *w = util_calloc(n, sizeof *w);
+		if (!w)
+			return -1;
+		for (uint32_t i = 0; i < n; i++)
+			w[i] = want_of(ks[i], 1, "extend past edge");
+		rc = search_pass(s, w, n, 1, pts + *np, &got, b);
+		free(w);
 		*np += got;
 	}
 	uint32_t lo = pts[0].k, hi = pts[0].k;
@@ -421,6 +446,124 @@ static int extend(struct search *s, const struct graph *g, const struct select_p
 		res->edge = 1;
 	else if (*np > 1 && b->k == lo && lo > 2)
 		res->edge = -1;
+	return rc;
+}
+
+int select_by_shape(uint64_t m, const struct select_params *sp)
+{
+	uint32_t folds = sp->folds ? sp->folds : select_folds(m, sp->share);
+	return !sp->nlist && !sp->full && folds == 1;
+}
+
+/* The k scored next to k among pts[0 .. np): the largest below (0: none)
+ * and the smallest above (0: none). */
+static void around(const struct select_point *pts, uint32_t np, uint32_t k, uint32_t *below,
+		   uint32_t *above)
+{
+	*below = *above = 0;
+	for (uint32_t i = 0; i < np; i++) {
+		if (pts[i].k < k && pts[i].k > *below)
+			*below = pts[i].k;
+		if (pts[i].k > k && (*above == 0 || pts[i].k < *above))
+			*above = pts[i].k;
+	}
+}
+
+/* Score the wants w[0 .. n) not scored yet, after pts[0 .. *np), as one
+ * batch (in parallel, decided in the order of w). 0, -1 or -2. */
+static int shape_batch(struct search *s, struct want *w, uint32_t n, struct select_point *pts,
+		       uint32_t *np, struct best *b)
+{
+	uint32_t o = 0;
+	for (uint32_t i = 0; i < n; i++) {
+		int seen = 0;
+		for (uint32_t j = 0; j < *np && !seen; j++)
+			seen = pts[j].k == w[i].k;
+		for (uint32_t j = 0; j < o && !seen; j++)
+			seen = w[j].k == w[i].k;
+		if (!seen)
+			w[o++] = w[i];
+	}
+	if (o == 0 || *np + o > SELECT_MAX_GRID)
+		return 0;
+	uint32_t got = 0;
+	int rc = search_pass(s, w, o, 0, pts + *np, &got, b);
+	*np += got;
+	return rc;
+}
+
+static uint32_t clamp_k(double k, uint32_t lo, uint32_t hi)
+{
+	uint32_t r = k < 1.0 ? 1 : (uint32_t)llround(k);
+	return r < lo ? lo : r > hi ? hi : r;
+}
+
+/*
+ * The search by the curve's shape (select.h): k0 and k0 / 2, 2 k0; while
+ * the best is the largest (smallest) k scored, a walk doubling (halving)
+ * it, past the grid's edge up to n/4, MODEL_MAX_K and memory (down to
+ * 2); then each gap around the best wider than one grid step is halved
+ * in log k, both sides in one batch, until none is. Points go after
+ * pts[0 .. *np). Sets res->start, extended, bound and edge.
+ */
+static int shape_search(struct search *s, const struct graph *g, const struct select_params *sp,
+			struct select_result *res, struct select_point *pts, uint32_t *np,
+			struct best *b, unsigned threads)
+{
+	uint32_t kmin = sp->kmin, kmax = sp->kmax, lo = kmin > 2 ? 2 : kmin;
+	uint64_t bound = g->n / 4 < MODEL_MAX_K ? g->n / 4 : MODEL_MAX_K;
+	uint32_t hi = bound > kmax ? (uint32_t)bound : kmax;
+	double mid = sp->start ? sp->start : sqrt((double)kmin * (double)kmax);
+	uint32_t k0 = clamp_k(mid, kmin, kmax);
+	res->start = k0;
+	struct want w[3];
+	w[0] = want_of(k0, 0, "start");
+	w[1] = want_of(clamp_k(k0 / 2.0, kmin, kmax), 0, "bracket");
+	w[2] = want_of(clamp_k(k0 * 2.0, kmin, kmax), 0, "bracket");
+	int rc = shape_batch(s, w, 3, pts, np, b);
+	uint32_t below, above;
+	while (rc == 0) { /* the walk: the best at an end moves that way */
+		around(pts, *np, b->k, &below, &above);
+		int up = !above && b->k < hi;
+		if (!up && (below || b->k <= lo))
+			break;
+		uint32_t next = up ? clamp_k(b->k * 2.0, b->k, hi) : clamp_k(b->k / 2.0, lo, b->k);
+		if (up && next > kmax && !fits_memory(s, next, threads)) {
+			hi = b->k;
+			break;
+		}
+		int past = next > kmax || next < kmin;
+		if (past)
+			res->extended = up ? 1 : -1;
+		w[0] = want_of(next, past, past ? "extend past edge" : up ? "walk up" : "walk down");
+		uint32_t before = *np;
+		rc = shape_batch(s, w, 1, pts, np, b);
+		if (*np == before)
+			break;
+	}
+	res->bound = hi;
+	while (rc == 0) { /* the refinement: halve the wide gaps around the best */
+		around(pts, *np, b->k, &below, &above);
+		uint32_t n = 0, side[2] = { below, above };
+		for (int i = 0; i < 2; i++) {
+			uint32_t nb = side[i];
+			double ratio = nb > b->k ? (double)nb / b->k : (double)b->k / nb;
+			if (!nb || !(ratio > sp->step * (1.0 + 1e-9)))
+				continue;
+			uint32_t m = (uint32_t)llround(sqrt((double)nb * (double)b->k));
+			if (m == nb || m == b->k)
+				continue;
+			w[n] = want_of(m, m > kmax || m < kmin, "");
+			snprintf(w[n].why, sizeof w[n].why, "refine between %u and %u",
+				 nb < b->k ? nb : b->k, nb < b->k ? b->k : nb);
+			n++;
+		}
+		uint32_t before = *np;
+		if (n == 0 || (rc = shape_batch(s, w, n, pts, np, b)) || *np == before)
+			break;
+	}
+	around(pts, *np, b->k, &below, &above);
+	res->edge = !above && *np > 1 ? 1 : !below && *np > 1 && b->k > 2 ? -1 : 0;
 	return rc;
 }
 
@@ -471,10 +614,19 @@ int select_k(const struct graph *g, const struct fit_params *base, const struct 
 	if (rc == 0) {
 		res->held_edges = s->h[0].nedges;
 		res->held_non_edges = s->h[0].nnon;
-		rc = search_pass(s, res->grid, nk, 0, !sp->nlist, pts, &np, &b);
+		res->shape = select_by_shape(g->m, sp);
+		if (res->shape)
+			rc = shape_search(s, g, sp, res, pts, &np, &b, base->threads);
 	}
-	if (rc == 0 && np > 0)
-		rc = extend(s, g, sp, res, pts, &np, &b, base->threads);
+	if (rc == 0 && !res->shape) {
+		struct want *w = util_calloc(nk, sizeof *w);
+		for (uint32_t i = 0; w && i < nk; i++)
+			w[i] = want_of(res->grid[i], 0, "grid");
+		rc = w ? search_pass(s, w, nk, !sp->nlist, pts, &np, &b) : -1;
+		free(w);
+		if (rc == 0 && np > 0)
+			rc = extend(s, g, sp, res, pts, &np, &b, base->threads);
+	}
 	for (uint32_t f = 0; f < s->folds; f++)
 		holdout_release(&s->h[f]);
 	free(s);
@@ -499,6 +651,7 @@ struct select_run {
 	int joined;
 	pthread_mutex_t lock;
 	int wake[2];
+	int shape;                                /* the k scored are the grid */
 	int stop;                                 /* under lock */
 	struct select_point pts[SELECT_MAX_GRID]; /* under lock */
 	uint32_t npts;
@@ -522,7 +675,7 @@ static void run_scored(const struct select_point *pt, void *arg)
 	pthread_mutex_lock(&r->lock);
 	if (r->npts < SELECT_MAX_GRID)
 		r->pts[r->npts++] = *pt;
-	if (pt->added && r->ngrid < SELECT_MAX_GRID) { /* the grid grows, kept sorted */
+	if ((pt->added || r->shape) && r->ngrid < SELECT_MAX_GRID) { /* the grid grows, sorted */
 		uint32_t i = r->ngrid;
 		for (; i > 0 && r->grid[i - 1] > pt->k; i--)
 			r->grid[i] = r->grid[i - 1];
@@ -567,7 +720,8 @@ struct select_run *select_run_start(const struct graph *g, const struct fit_para
 	r->g = g;
 	r->base = *base;
 	r->sp = *sp;
-	r->ngrid = select_grid(sp, r->grid);
+	r->shape = select_by_shape(g->m, sp);
+	r->ngrid = r->shape ? 0 : select_grid(sp, r->grid);
 	r->joined = 1;
 	if (pipe(r->wake)) {
 		error("cannot make a pipe: %s", strerror(errno));

@@ -45,6 +45,7 @@ struct fit_params;
 #define SELECT_MAX_GRID 128 /* points of a search, extension included */
 #define SELECT_MAX_LIST 64  /* values of --k-grid LIST */
 #define SELECT_MAX_FOLDS 10
+#define SELECT_REASON 40  /* room for a point's reason, NUL included */
 
 struct select_params {
 	uint32_t kmin, kmax; /* geometric grid bounds (inclusive) */
@@ -53,7 +54,21 @@ struct select_params {
 	uint32_t nlist;      /* > 0: the grid is list[0 .. nlist), increasing */
 	uint32_t list[SELECT_MAX_LIST];
 	uint32_t folds;      /* splits per k; 0: select_folds() decides */
+	uint32_t start;      /* the k a search by the curve's shape begins at
+			      * (0: the grid's geometric middle); kept within
+			      * [kmin, kmax] */
+	int full;            /* 1: score the whole grid even on a graph of one
+			      * fold (no search by the shape) */
 };
+
+/*
+ * Whether select_k() searches by the curve's shape (1) or scores the grid
+ * (0) for a graph of m edges: the shape for a geometric grid on a graph
+ * that gets one fold (select_folds() == 1, 20,000 edges or more at share
+ * 0.1), unless sp->full; a list and the folds of a small graph are
+ * scored in full, as they always were.
+ */
+int select_by_shape(uint64_t m, const struct select_params *sp);
 
 /*
  * The folds for a graph of m edges holding out share of them: enough
@@ -105,6 +120,13 @@ struct select_point {
 			    * folds (sample form; 0 with one fold) */
 	uint32_t folds;
 	int added;         /* 1: beyond the grid asked for (its edge scored best) */
+	uint32_t order;    /* 1-based: the order the points were decided in */
+	char reason[SELECT_REASON]; /* why this k was tried: "grid", "start",
+				     * "bracket", "walk up", "walk down",
+				     * "extend past edge", "refine between A
+				     * and B" (A, B the k around it) */
+	uint32_t warm_from; /* 0: its fits started from seeds; else the k
+			     * of the fit on the same split it started from */
 };
 
 /* Called after each k is scored (may be NULL): in grid order, then the
@@ -131,6 +153,9 @@ struct select_result {
 	int list;                         /* the grid was a list (never extended) */
 	int extended;                     /* +1 up, -1 down, 0 not */
 	uint32_t bound;                   /* how far up an extension could go */
+	int shape;                        /* 1: searched by the curve's shape
+					   * (select_by_shape()), 0: the grid */
+	uint32_t start;                   /* the shape search's first k */
 	int edge;                         /* the choice is still the largest
 					   * (+1) or smallest above 2 (-1) k
 					   * scored, with no further k to try */
