@@ -30,6 +30,7 @@
 #include "coterie/model.h"
 #include "coterie/seed.h"
 #include "coterie/util.h"
+#include "select-internal.h"
 
 int select_params_default(struct select_params *sp, const struct graph *g, uint32_t *minima)
 {
@@ -153,6 +154,9 @@ void select_result_release(struct select_result *r)
 	if (!r)
 		return;
 	free(r->pts);
+	if (r->fit)
+		fcsr_release(r->fit);
+	free(r->fit);
 	memset(r, 0, sizeof *r);
 }
 
@@ -165,6 +169,21 @@ uint32_t select_folds(uint64_t m, double share)
 	return f >= SELECT_MAX_FOLDS ? SELECT_MAX_FOLDS : f <= 1.0 ? 1 : (uint32_t)f;
 }
 
+/* A k to score, marked added when beyond the grid asked for, and why. */
+struct want {
+	uint32_t k;
+	int added;
+	uint32_t from; /* 0, or the k whose kept fit starts this one */
+	char why[SELECT_REASON];
+};
+
+static struct want want_of(uint32_t k, int added, const char *why)
+{
+	struct want w = { k, added, 0, { 0 } };
+	snprintf(w.why, sizeof w.why, "%s", why);
+	return w;
+}
+
 /* What every fit of a search shares: the folds' splits and parameters. */
 struct search {
 	const struct select_hooks *hooks;
@@ -172,7 +191,26 @@ struct search {
 	struct holdout h[SELECT_MAX_FOLDS];
 	uint32_t folds, nslots;
 	uint32_t decided; /* points decided so far (select_point.order) */
+	int keep;         /* keep each fit's strengths (one fold only) for
+			   * warm starts: kept[0 .. nkept) */
+	struct fcsr kept[SELECT_MAX_GRID];
+	uint32_t nkept;
 };
+
+/* Release the kept fits except that of k (0: all). */
+static void keep_only(struct search *s, uint32_t k)
+{
+	uint32_t o = 0;
+	for (uint32_t i = 0; i < s->nkept; i++) {
+		if (k && s->kept[i].k == k)
+			s->kept[o++] = s->kept[i];
+		else
+			fcsr_release(&s->kept[i]);
+	}
+	for (uint32_t i = o; i < s->nkept; i++)
+		memset(&s->kept[i], 0, sizeof s->kept[i]);
+	s->nkept = o;
+}
 
 /* Fold f's seed, for its split and its fits: fold 0 is a one-fold
  * search's, so one fold scores exactly as a search without folds. */
@@ -192,16 +230,35 @@ struct slot {
 struct fold_score {
 	double ll, auc, seconds;
 	uint32_t sweeps;
+	uint32_t warm_from; /* the k its start came from (0: seeds) */
+	struct fcsr F;      /* its strengths, when the search keeps them */
 };
 
-static int slot_launch(struct slot *sl, const struct search *s, uint32_t k, uint32_t task)
+/* A warm start for w from the kept fit of w->from, into *F (empty when
+ * there is none: the fit then seeds). */
+static void warm_of(const struct search *s, const struct want *w, const struct graph *train,
+		    struct fcsr *F)
+{
+	memset(F, 0, sizeof *F);
+	for (uint32_t i = 0; w->from && i < s->nkept; i++)
+		if (s->kept[i].k == w->from && select_warm_start(&s->kept[i], train, w->k, F))
+			memset(F, 0, sizeof *F);
+}
+
+static int slot_launch(struct slot *sl, const struct search *s, const struct want *w,
+		       uint32_t task, struct fold_score *sc)
 {
 	uint32_t fold = task % s->folds;
 	struct fit_params q = s->p;
-	q.k = k;
+	q.k = w->k;
 	q.seed = fold_seed(s->p.seed, fold);
 	sl->task = task;
-	sl->f = fit_new(s->h[fold].train, &q, NULL);
+	struct fcsr warm;
+	warm_of(s, w, s->h[fold].train, &warm);
+	struct fit_origin o = { .F = &warm };
+	sl->f = fit_new(s->h[fold].train, &q, warm.e ? &o : NULL);
+	sc->warm_from = warm.e ? w->from : 0;
+	fcsr_release(&warm);
 	if (!sl->f)
 		return -1;
 	fit_exclude(sl->f, s->h[fold].held);
@@ -214,7 +271,7 @@ static int slot_launch(struct slot *sl, const struct search *s, uint32_t k, uint
 }
 
 /* Score a fit that ended on its fold's pairs; frees it. Returns 0 or -1. */
-static int slot_score(struct slot *sl, const struct holdout *h, struct fold_score *sc)
+static int slot_score(struct slot *sl, const struct holdout *h, struct fold_score *sc, int keep)
 {
 	enum fit_state st = fit_wait(sl->f);
 	struct snapshot *s = fit_snapshot(sl->f);
@@ -223,6 +280,8 @@ static int slot_score(struct slot *sl, const struct holdout *h, struct fold_scor
 		rc = holdout_score(h, &s->F, s->epsilon, &sc->ll, &sc->auc);
 		sc->sweeps = s->sweep;
 		sc->seconds = s->seconds;
+		if (rc == 0 && keep)
+			rc = fcsr_copy(&sc->F, &s->F);
 	}
 	snapshot_release(s);
 	fit_free(sl->f);
@@ -271,20 +330,6 @@ static void stop_all(struct slot *sl, uint32_t nslots)
 		}
 }
 
-/* A k to score, marked added when beyond the grid asked for, and why. */
-struct want {
-	uint32_t k;
-	int added;
-	char why[SELECT_REASON];
-};
-
-static struct want want_of(uint32_t k, int added, const char *why)
-{
-	struct want w = { k, added, { 0 } };
-	snprintf(w.why, sizeof w.why, "%s", why);
-	return w;
-}
-
 /*
  * Score w[0 .. nk) in that order, each on every fold, into pts; with
  * early, stop after two k in a row below the best (*b, updated). The
@@ -307,7 +352,7 @@ static int search_pass(struct search *s, const struct want *w, uint32_t nk, int 
 		uint32_t active = 0;
 		for (uint32_t i = 0; i < nslots && rc == 0; i++) {
 			if (!sl[i].f && !halt && next < ntask) {
-				rc = slot_launch(&sl[i], s, w[next / F].k, next);
+				rc = slot_launch(&sl[i], s, &w[next / F], next, &sc[next]);
 				next++;
 			}
 			active += sl[i].f != NULL;
@@ -324,7 +369,7 @@ static int search_pass(struct search *s, const struct want *w, uint32_t nk, int 
 			if (!fit_state_ended(fit_get_state(sl[i].f)))
 				continue;
 			uint32_t t = sl[i].task;
-			rc = slot_score(&sl[i], &s->h[t % F], &sc[t]);
+			rc = slot_score(&sl[i], &s->h[t % F], &sc[t], s->keep);
 			done[t] = 1;
 		}
 		/* the decisions, in list order, once all folds of a k are in */
@@ -332,6 +377,11 @@ static int search_pass(struct search *s, const struct want *w, uint32_t nk, int 
 		       !memchr(done + consumed * F, 0, F)) {
 			pts[consumed] = point_of(w[consumed].k, sc + consumed * F, F, w[consumed].added);
 			pts[consumed].order = ++s->decided;
+			pts[consumed].warm_from = sc[consumed * F].warm_from;
+			if (s->keep && s->nkept < SELECT_MAX_GRID && sc[consumed * F].F.e) {
+				s->kept[s->nkept++] = sc[consumed * F].F; /* moves; its k is w's */
+				memset(&sc[consumed * F].F, 0, sizeof sc->F);
+			}
 			memcpy(pts[consumed].reason, w[consumed].why, SELECT_REASON);
 			const struct select_point *pt = &pts[consumed];
 			if (s->hooks && s->hooks->scored)
@@ -353,6 +403,8 @@ static int search_pass(struct search *s, const struct want *w, uint32_t nk, int 
 			stop_all(sl, nslots);
 	}
 	stop_all(sl, nslots);
+	for (uint32_t t = 0; sc && t < ntask; t++)
+		fcsr_release(&sc[t].F);
 	UTIL_FREE_ALL(sc, done, sl, pfd);
 	*npts = consumed;
 	return rc;
@@ -469,6 +521,37 @@ static void around(const struct select_point *pts, uint32_t np, uint32_t k, uint
 	}
 }
 
+/* The mean held-out score of k among pts[0 .. np) (k scored). */
+static double score_of(const struct select_point *pts, uint32_t np, uint32_t k)
+{
+	for (uint32_t i = 0; i < np; i++)
+		if (pts[i].k == k)
+			return pts[i].heldout;
+	return -INFINITY;
+}
+
+/*
+ * Which gap around the best k b to refine first: 0 the one below (to
+ * a), 1 the one above (to c). With both neighbours, the side of the
+ * vertex of the parabola through the three scores in ln k (successive
+ * parabolic interpolation, as in Brent, Algorithms for Minimization
+ * without Derivatives, 1973, ch. 5), when it opens downwards; else the
+ * better neighbour's side.
+ */
+static int toward(const struct select_point *pts, uint32_t np, uint32_t a, uint32_t b, uint32_t c)
+{
+	if (!a || !c)
+		return !a;
+	double xa = log(a), xb = log(b), xc = log(c);
+	double ya = score_of(pts, np, a), yb = score_of(pts, np, b), yc = score_of(pts, np, c);
+	double den = (xa - xb) * (xa - xc) * (xb - xc);
+	double A = (xc * (yb - ya) + xb * (ya - yc) + xa * (yc - yb)) / den;
+	double B = (xc * xc * (ya - yb) + xb * xb * (yc - ya) + xa * xa * (yb - yc)) / den;
+	if (A < 0 && isfinite(B / A))
+		return -B / (2 * A) > xb;
+	return yc > ya;
+}
+
 /* Score the wants w[0 .. n) not scored yet, after pts[0 .. *np), as one
  * batch (in parallel, decided in the order of w). 0, -1 or -2. */
 static int shape_batch(struct search *s, struct want *w, uint32_t n, struct select_point *pts,
@@ -489,6 +572,7 @@ static int shape_batch(struct search *s, struct want *w, uint32_t n, struct sele
 	uint32_t got = 0;
 	int rc = search_pass(s, w, o, 0, pts + *np, &got, b);
 	*np += got;
+	keep_only(s, b->k); /* the next batch starts from the best's fit only */
 	return rc;
 }
 
@@ -545,18 +629,25 @@ static int shape_search(struct search *s, const struct graph *g, const struct se
 	while (rc == 0) { /* the refinement: halve the wide gaps around the best */
 		around(pts, *np, b->k, &below, &above);
 		uint32_t n = 0, side[2] = { below, above };
-		for (int i = 0; i < 2; i++) {
+		double ratio[2];
+		for (int i = 0; i < 2; i++)
+			ratio[i] = !side[i] ? 0.0 : side[i] > b->k ? (double)side[i] / b->k
+							     : (double)b->k / side[i];
+		int better = toward(pts, *np, below, b->k, above);
+		for (int j = 0; j < 2; j++) {
+			int i = j == 0 ? better : !better;
 			uint32_t nb = side[i];
-			double ratio = nb > b->k ? (double)nb / b->k : (double)b->k / nb;
-			if (!nb || !(ratio > sp->step * (1.0 + 1e-9)))
+			if (!nb || !(ratio[i] > sp->step * (1.0 + 1e-9)))
 				continue;
 			uint32_t m = (uint32_t)llround(sqrt((double)nb * (double)b->k));
 			if (m == nb || m == b->k)
 				continue;
 			w[n] = want_of(m, m > kmax || m < kmin, "");
+			w[n].from = b->k; /* warm: from the best's fit, same split */
 			snprintf(w[n].why, sizeof w[n].why, "refine between %u and %u",
 				 nb < b->k ? nb : b->k, nb < b->k ? b->k : nb);
 			n++;
+			break; /* one gap a round: the next round sees its score */
 		}
 		uint32_t before = *np;
 		if (n == 0 || (rc = shape_batch(s, w, n, pts, np, b)) || *np == before)
@@ -615,8 +706,17 @@ int select_k(const struct graph *g, const struct fit_params *base, const struct 
 		res->held_edges = s->h[0].nedges;
 		res->held_non_edges = s->h[0].nnon;
 		res->shape = select_by_shape(g->m, sp);
-		if (res->shape)
+		if (res->shape) {
+			s->keep = 1;
+			s->p.no_reseed = 1;
 			rc = shape_search(s, g, sp, res, pts, &np, &b, base->threads);
+			keep_only(s, b.k);
+			if (rc == 0 && s->nkept == 1 && (res->fit = util_malloc(1, sizeof *res->fit))) {
+				*res->fit = s->kept[0]; /* moves */
+				s->nkept = 0;
+			}
+			keep_only(s, 0);
+		}
 	}
 	if (rc == 0 && !res->shape) {
 		struct want *w = util_calloc(nk, sizeof *w);
