@@ -867,6 +867,11 @@ uint32_t select_run_points(struct select_run *r, struct select_point *pts, uint3
 	return n;
 }
 
+int select_run_by_shape(const struct select_run *r)
+{
+	return r->shape;
+}
+
 void select_run_stop(struct select_run *r)
 {
 	pthread_mutex_lock(&r->lock);

@@ -198,6 +198,9 @@ void select_run_drain(struct select_run *r);
  * ended. */
 uint32_t select_run_points(struct select_run *r, struct select_point *pts, uint32_t *grid,
 			   uint32_t *ngrid, int *done);
+/* 1 when the run searches by the curve's shape (select_by_shape()): its
+ * grid is then the k tried so far, growing as they are scored. */
+int select_run_by_shape(const struct select_run *r);
 /* Ask the search to stop (it ends with -2). */
 void select_run_stop(struct select_run *r);
 /* Wait for the end; returns select_k()'s value and, on 0, fills *res. */
