@@ -140,21 +140,10 @@ static void draw_curve(const struct kstate *k, int y0, int x0, int h, int w)
 	put(y0 + h, px + pw - l, lab, l);
 }
 
-static void draw_all(const struct kstate *k)
+/* Lines 1 and 2: what is being done, how far, and how to read it. */
+static void draw_head(const struct kstate *k, uint32_t folds)
 {
-	erase();
-	const struct graph *g = k->cfg->g;
-	char line[512], name[256];
-	util_escape(k->cfg->graph_label, name, sizeof name, !k->utf8);
-	attron(A_BOLD);
-	snprintf(line, sizeof line, "coterie  %s  %u nodes, %llu edges", name, g->n,
-		 (unsigned long long)g->m);
-	put(0, 0, line, COLS);
-	attroff(A_BOLD);
-	uint32_t best = best_at(k), pending = 0; /* grid positions; ngrid: none */
-	while (pending < k->ngrid && point_at(k, pending))
-		pending++;
-	uint32_t folds = k->npts ? k->pts[0].folds : 0;
+	char line[512];
 	if (k->shape) {
 		snprintf(line, sizeof line, "Choosing the number of communities by held-out "
 			 "likelihood, following the curve: %u k tried%s  %.0f s", k->npts,
@@ -183,6 +172,24 @@ static void draw_all(const struct kstate *k)
 		snprintf(line, sizeof line, "held-out log-likelihood against k (higher is better); "
 			 "the search stops after two k in a row below the best");
 	put(2, 0, line, COLS);
+}
+
+static void draw_all(const struct kstate *k)
+{
+	erase();
+	const struct graph *g = k->cfg->g;
+	char line[512], name[256];
+	util_escape(k->cfg->graph_label, name, sizeof name, !k->utf8);
+	attron(A_BOLD);
+	snprintf(line, sizeof line, "coterie  %s  %u nodes, %llu edges", name, g->n,
+		 (unsigned long long)g->m);
+	put(0, 0, line, COLS);
+	attroff(A_BOLD);
+	uint32_t best = best_at(k), pending = 0; /* grid positions; ngrid: none */
+	while (pending < k->ngrid && point_at(k, pending))
+		pending++;
+	uint32_t folds = k->npts ? k->pts[0].folds : 0;
+	draw_head(k, folds);
 
 	int rows = LINES - 4;      /* header 3, footer 1 */
 	int table = (int)k->ngrid + 1;
