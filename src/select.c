@@ -157,9 +157,6 @@ void select_result_release(struct select_result *r)
 	if (!r)
 		return;
 	free(r->pts);
-	if (r->fit)
-		fcsr_release(r->fit);
-	free(r->fit);
 	memset(r, 0, sizeof *r);
 }
 
@@ -600,13 +597,22 @@ static int shape_search(struct search *s, const struct graph *g, const struct se
 	uint32_t kmin = sp->kmin, kmax = sp->kmax, lo = kmin > 2 ? 2 : kmin;
 	uint64_t bound = g->n / 4 < MODEL_MAX_K ? g->n / 4 : MODEL_MAX_K;
 	uint32_t hi = bound > kmax ? (uint32_t)bound : kmax;
+	/* the start: sp->start up to the bound (the default grid's cap of 500
+	 * bounds the cost of a full grid, not where the curve's top is), or
+	 * the grid's geometric middle; the bracket within the same range */
+	uint32_t top = kmax;
+	while (sp->start && top < hi && fits_memory(s, top < hi / 2 ? 2 * top : hi, threads))
+		top = top < hi / 2 ? 2 * top : hi;
 	double mid = sp->start ? sp->start : sqrt((double)kmin * (double)kmax);
-	uint32_t k0 = clamp_k(mid, kmin, kmax);
+	uint32_t k0 = clamp_k(mid, kmin, top);
 	res->start = k0;
 	struct want w[3];
 	w[0] = want_of(k0, 0, "start");
-	w[1] = want_of(clamp_k(k0 / 2.0, kmin, kmax), 0, "bracket");
-	w[2] = want_of(clamp_k(k0 * 2.0, kmin, kmax), 0, "bracket");
+	w[1] = want_of(clamp_k(k0 / 2.0, kmin, top), 0, "bracket");
+	w[2] = want_of(clamp_k(k0 * 2.0, kmin, top), 0, "bracket");
+	for (int i = 0; i < 3; i++)
+		if ((w[i].added = w[i].k > kmax))
+			res->extended = 1;
 	int rc = shape_batch(s, w, 3, pts, np, b);
 	uint32_t below, above;
 	while (rc == 0) { /* the walk: the best at an end moves that way */
@@ -713,11 +719,6 @@ int select_k(const struct graph *g, const struct fit_params *base, const struct 
 			s->keep = 1;
 			s->p.no_reseed = 1;
 			rc = shape_search(s, g, sp, res, pts, &np, &b, base->threads);
-			keep_only(s, b.k);
-			if (rc == 0 && s->nkept == 1 && (res->fit = util_malloc(1, sizeof *res->fit))) {
-				*res->fit = s->kept[0]; /* moves */
-				s->nkept = 0;
-			}
 			keep_only(s, 0);
 		}
 	}

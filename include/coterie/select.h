@@ -44,8 +44,7 @@
  * around the best are within one grid step. Its fits skip the reseeding
  * moves, and each refinement starts from the best fit so far (same split:
  * there is only one) with its weakest columns dropped or its strongest
- * split (select_warm.c); select_result.fit keeps the chosen k's fit for
- * the final fit on the whole graph. Each point says why it was tried
+ * split (select_warm.c). Each point says why it was tried
  * (select_point.reason) and in which order (.order).
  *
  * Parallel: up to base->threads fits run at once, each on one thread.
@@ -59,7 +58,6 @@
 
 struct graph;
 struct fit_params;
-struct fcsr;
 
 #define SELECT_MAX_GRID 128 /* points of a search, extension included */
 #define SELECT_MAX_LIST 64  /* values of --k-grid LIST */
@@ -175,13 +173,6 @@ struct select_result {
 	int shape;                        /* 1: searched by the curve's shape
 					   * (select_by_shape()), 0: the grid */
 	uint32_t start;                   /* the shape search's first k */
-	struct fcsr *fit;                 /* the chosen k's strengths fitted on
-					   * the training graph (a shape search;
-					   * else NULL), owned: a warm start for
-					   * the final fit on the whole graph
-					   * (the held-out pairs then enter it,
-					   * which is fine: it is not scored on
-					   * them) */
 	int edge;                         /* the choice is still the largest
 					   * (+1) or smallest above 2 (-1) k
 					   * scored, with no further k to try */

@@ -503,16 +503,6 @@ static int load_graph(struct run *r)
 		return -2;
 	if (choose_background(r))
 		return -2;
-	if (r->o.k_auto && r->sel.fit && r->check_links <= 0 && r->sel.fit->k == p->k) {
-		/* the chosen k's fit on the training graph starts the final fit:
-		 * the held-out pairs enter it now (it is not scored on them); not
-		 * with --check-links, whose pairs that fit has seen */
-		r->origin = (struct fit_origin){ .F = r->sel.fit };
-		r->have_origin = 1;
-		if (!r->quiet)
-			notice("the final fit starts from the chosen k's fit on the training graph, "
-			       "as one start");
-	}
 	if (r->check_links > 0) {
 		/* the seed is offset so these pairs are not those -k auto held out */
 		if (holdout_split(&r->check, r->g, r->check_links, p->seed + 0x9e3779b97f4a7c15ULL))
@@ -706,7 +696,7 @@ int cmd_fit(int argc, char **argv)
 	struct outdir_config oc = {
 		.dir = r->o.out, .g = r->graph, .params = r->p,
 		.every = r->o.checkpoint_every > 0 ? r->o.checkpoint_every : 120.0,
-		.one_start = r->have_origin && !r->ck.savepoint,
+		.one_start = r->resume && !r->ck.savepoint,
 		.continues = r->resume && same_folder(r->resume, r->o.out),
 		.lock = r->lock,
 	};
