@@ -613,7 +613,11 @@ static int shape_search(struct search *s, const struct graph *g, const struct se
 	for (int i = 0; i < 3; i++)
 		if ((w[i].added = w[i].k > kmax))
 			res->extended = 1;
-	int rc = shape_batch(s, w, 3, pts, np, b);
+	/* k0 alone from seeds, then every other fit from the best one so far */
+	int rc = shape_batch(s, w, 1, pts, np, b);
+	w[1].from = w[2].from = k0;
+	if (rc == 0)
+		rc = shape_batch(s, w + 1, 2, pts, np, b);
 	uint32_t below, above;
 	while (rc == 0) { /* the walk: the best at an end moves that way */
 		around(pts, *np, b->k, &below, &above);
@@ -629,6 +633,7 @@ static int shape_search(struct search *s, const struct graph *g, const struct se
 		if (past)
 			res->extended = up ? 1 : -1;
 		w[0] = want_of(next, past, past ? "extend past edge" : up ? "walk up" : "walk down");
+		w[0].from = b->k;
 		uint32_t before = *np;
 		rc = shape_batch(s, w, 1, pts, np, b);
 		if (*np == before)
