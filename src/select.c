@@ -583,11 +583,14 @@ static uint32_t clamp_k(double k, uint32_t lo, uint32_t hi)
 }
 
 /*
- * The search by the curve's shape (select.h): k0 and k0 / 2, 2 k0; while
- * the best is the largest (smallest) k scored, a walk doubling (halving)
- * it, past the grid's edge up to n/4, MODEL_MAX_K and memory (down to
- * 2); then each gap around the best wider than one grid step is halved
- * in log k, both sides in one batch, until none is. Points go after
+ * The search by the curve's shape (select.h): k0 from seeds, then k0 / r
+ * and k0 r (r = step^2, two grid steps) warm-started from it; while the
+ * best is the largest (smallest) k scored, a walk multiplying (dividing)
+ * it by r, past the grid's edge up to n/4, MODEL_MAX_K and memory (down
+ * to 2); then, one gap a round, the gap around the best on the side of the
+ * parabola's vertex (toward()) is halved in log k until both gaps are
+ * within one grid step. Every fit after the first starts from the best
+ * fit so far (the only split). Points go after
  * pts[0 .. *np). Sets res->start, extended, bound and edge.
  */
 static int shape_search(struct search *s, const struct graph *g, const struct select_params *sp,
@@ -602,14 +605,15 @@ static int shape_search(struct search *s, const struct graph *g, const struct se
 	 * the grid's geometric middle; the bracket within the same range */
 	uint32_t top = kmax;
 	while (sp->start && top < hi && fits_memory(s, top < hi / 2 ? 2 * top : hi, threads))
-		top = top < hi / 2 ? 2 * top : hi;
+		top = top < hi / 2 ? 2 * top : hi; /* memory checked in steps of 2 */
 	double mid = sp->start ? sp->start : sqrt((double)kmin * (double)kmax);
 	uint32_t k0 = clamp_k(mid, kmin, top);
 	res->start = k0;
 	struct want w[3];
 	w[0] = want_of(k0, 0, "start");
-	w[1] = want_of(clamp_k(k0 / 2.0, kmin, top), 0, "bracket");
-	w[2] = want_of(clamp_k(k0 * 2.0, kmin, top), 0, "bracket");
+	double r = sp->step * sp->step; /* two grid steps: one halving refines */
+	w[1] = want_of(clamp_k(k0 / r, kmin, top), 0, "bracket");
+	w[2] = want_of(clamp_k(k0 * r, kmin, top), 0, "bracket");
 	for (int i = 0; i < 3; i++)
 		if ((w[i].added = w[i].k > kmax))
 			res->extended = 1;
@@ -624,7 +628,7 @@ static int shape_search(struct search *s, const struct graph *g, const struct se
 		int up = !above && b->k < hi;
 		if (!up && (below || b->k <= lo))
 			break;
-		uint32_t next = up ? clamp_k(b->k * 2.0, b->k, hi) : clamp_k(b->k / 2.0, lo, b->k);
+		uint32_t next = up ? clamp_k(b->k * r, b->k, hi) : clamp_k(b->k / r, lo, b->k);
 		if (up && next > kmax && !fits_memory(s, next, threads)) {
 			hi = b->k;
 			break;

@@ -36,15 +36,17 @@
  * fits of small k are as dear as those near the top (a fit at k 15 of a
  * 20,000-node graph took more sweeps than one at k 200), so instead of the
  * grid: k0 (sp->start, the number L of locally minimal ego-nets of the
- * default grid, kept within the grid), k0 / 2 and 2 k0; while the best is
- * the largest (smallest) k tried, a walk doubling (halving) it, past the
- * grid's edge as an extension would go; then, one gap a round, the gap
+ * default grid, up to n/4: the grid's cap of 500 bounds the cost of a full
+ * grid, not where the top is) from seeds, then k0 / r and k0 r (r =
+ * step^2); while the best is the largest (smallest) k tried, a walk by
+ * the factor r, past the grid's edge as an extension would go; then, one
+ * gap a round, the gap
  * around the best on the side of the vertex of the parabola through the
  * three scores around it (in ln k) is halved in log k, until both gaps
  * around the best are within one grid step. Its fits skip the reseeding
- * moves, and each refinement starts from the best fit so far (same split:
- * there is only one) with its weakest columns dropped or its strongest
- * split (select_warm.c). Each point says why it was tried
+ * moves, and every fit after the first starts from the best fit so far
+ * (same split: there is only one) with its weakest columns dropped or its
+ * strongest split (select_warm.c). Each point says why it was tried
  * (select_point.reason) and in which order (.order).
  *
  * Parallel: up to base->threads fits run at once, each on one thread.
