@@ -13,11 +13,10 @@ struct graph;
 
 /*
  * A start for a fit of k columns on train (borrowed) from the strengths
- * from (borrowed) of a fit of another k ON THE SAME training graph:
- * fewer columns drop the weakest, more split the strongest (k at most
- * twice from->k). *out receives a new matrix (fcsr_release() it).
- * Returns 0, or -1 (out of memory, or k out of reach: no message; the
- * caller then seeds).
+ * from (borrowed) of a fit of k or more columns ON THE SAME training
+ * graph: the weakest columns dropped. *out receives a new matrix
+ * (fcsr_release() it). Returns 0, or -1 (out of memory, or k above
+ * from->k: no message; the caller then seeds).
  */
 int select_warm_start(const struct fcsr *from, const struct graph *train, uint32_t k,
 		      struct fcsr *out);

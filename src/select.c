@@ -192,7 +192,9 @@ struct search {
 	uint32_t folds, nslots;
 	uint32_t decided; /* points decided so far (select_point.order) */
 	int keep;         /* keep each fit's strengths (one fold only) for
-			   * warm starts: kept[0 .. nkept) */
+			   * warm starts: kept[0 .. nkept), released at
+			   * the end (strengths are sparse: a few entries
+			   * a node per fit) */
 	struct fcsr kept[SELECT_MAX_GRID];
 	uint32_t nkept;
 };
@@ -569,10 +571,13 @@ static int shape_batch(struct search *s, struct want *w, uint32_t n, struct sele
 	}
 	if (o == 0 || *np + o > SELECT_MAX_GRID)
 		return 0;
+	for (uint32_t i = 0; i < o; i++) { /* warm: from the nearest k above */
+		uint32_t below;
+		around(pts, *np, w[i].k, &below, &w[i].from);
+	}
 	uint32_t got = 0;
 	int rc = search_pass(s, w, o, 0, pts + *np, &got, b);
 	*np += got;
-	keep_only(s, b->k); /* the next batch starts from the best's fit only */
 	return rc;
 }
 
@@ -589,8 +594,10 @@ static uint32_t clamp_k(double k, uint32_t lo, uint32_t hi)
  * it by r, past the grid's edge up to n/4, MODEL_MAX_K and memory (down
  * to 2); then, one gap a round, the gap around the best on the side of the
  * parabola's vertex (toward()) is halved in log k until both gaps are
- * within one grid step. Every fit after the first starts from the best
- * fit so far (the only split). Points go after
+ * within one grid step. A fit below a k already tried starts from the
+ * fit of the nearest k above it (the only split), its weakest columns
+ * dropped (select_warm.c); one above every k tried starts from seeds.
+ * Points go after
  * pts[0 .. *np). Sets res->start, extended, bound and edge.
  */
 static int shape_search(struct search *s, const struct graph *g, const struct select_params *sp,
@@ -619,7 +626,6 @@ static int shape_search(struct search *s, const struct graph *g, const struct se
 			res->extended = 1;
 	/* k0 alone from seeds, then every other fit from the best one so far */
 	int rc = shape_batch(s, w, 1, pts, np, b);
-	w[1].from = w[2].from = k0;
 	if (rc == 0)
 		rc = shape_batch(s, w + 1, 2, pts, np, b);
 	uint32_t below, above;
@@ -637,7 +643,6 @@ static int shape_search(struct search *s, const struct graph *g, const struct se
 		if (past)
 			res->extended = up ? 1 : -1;
 		w[0] = want_of(next, past, past ? "extend past edge" : up ? "walk up" : "walk down");
-		w[0].from = b->k;
 		uint32_t before = *np;
 		rc = shape_batch(s, w, 1, pts, np, b);
 		if (*np == before)
@@ -661,7 +666,6 @@ static int shape_search(struct search *s, const struct graph *g, const struct se
 			if (m == nb || m == b->k)
 				continue;
 			w[n] = want_of(m, m > kmax || m < kmin, "");
-			w[n].from = b->k; /* warm: from the best's fit, same split */
 			snprintf(w[n].why, sizeof w[n].why, "refine between %u and %u",
 				 nb < b->k ? nb : b->k, nb < b->k ? b->k : nb);
 			n++;

@@ -44,9 +44,9 @@
  * around the best on the side of the vertex of the parabola through the
  * three scores around it (in ln k) is halved in log k, until both gaps
  * around the best are within one grid step. Its fits skip the reseeding
- * moves, and every fit after the first starts from the best fit so far
- * (same split: there is only one) with its weakest columns dropped or its
- * strongest split (select_warm.c). Each point says why it was tried
+ * moves; a fit below a k already tried starts from the fit of the
+ * nearest k above it (same split: there is only one) with its weakest
+ * columns dropped (select_warm.c), one above every k tried from seeds. Each point says why it was tried
  * (select_point.reason) and in which order (.order).
  *
  * Parallel: up to base->threads fits run at once, each on one thread.
@@ -145,7 +145,8 @@ struct select_point {
 				     * "extend past edge", "refine between A
 				     * and B" (A, B the k around it) */
 	uint32_t warm_from; /* 0: its fits started from seeds; else the k
-			     * of the fit on the same split it started from */
+			     * of the fit on the same split it started from
+			     * (a larger k, its weakest columns dropped) */
 };
 
 /* Called after each k is scored (may be NULL): in grid order, then the

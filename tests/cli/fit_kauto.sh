@@ -160,13 +160,17 @@ for order, k, ll, why, warm in pts:
     if why.startswith("refine between "):
         a, b = map(int, why[len("refine between "):].split(" and "))
         assert a in seen and b in seen and a < k < b, why
-        # a warm start comes from a fit of the same split decided before
-        assert warm in (a, b) and warm in seen, (k, warm)
+        # a warm start comes from the nearest k above, decided before
+        assert warm == b, (k, warm)
         # the refined point is the geometric middle of its gap, rounded
         assert abs(k - (a * b) ** 0.5) <= 1, (k, a, b)
+    elif why == "start":
+        assert warm == 0 and order == 1
     else:
-        assert why in ("start", "bracket", "walk up", "walk down", "extend past edge"), why
-        assert warm == 0
+        # from the nearest k above decided before, or seeds above them all
+        assert why in ("bracket", "walk up", "walk down", "extend past edge"), why
+        above = [x for x in seen if x > k]
+        assert warm == (min(above) if above else 0), (k, warm, above)
     seen[k] = ll
 best = max(seen, key=lambda k: seen[k])
 assert best == sel["chosen"]
