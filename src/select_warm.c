@@ -39,34 +39,34 @@ static int alloc_fcsr(struct fcsr *o, uint32_t n, uint32_t k, uint64_t nnz)
 	return -1;
 }
 
-/* Column ids by decreasing column sum (ties by id). */
-struct colsum {
-	double s;
-	uint32_t c;
-};
-
-static int cmp_by_sum(const void *a, const void *b)
+static int cmp_desc(const void *a, const void *b)
 {
-	const struct colsum *x = a, *y = b;
-	int c = util_cmp_double(y->s, x->s);
-	return c ? c : util_cmp_uint(x->c, y->c);
+	return util_cmp_double(*(const double *)b, *(const double *)a);
 }
 
-static uint32_t *by_sum(const struct fcsr *F)
+/* The columns of F kept when k remain: map[c] is the new id of column c
+ * (kept in order), UINT32_MAX for a dropped one. The k largest column
+ * sums are kept, ties at the k-th by lower id. 0 or -1. */
+static int kept_columns(const struct fcsr *F, uint32_t k, uint32_t *map)
 {
-	uint32_t *ord = util_malloc(F->k, sizeof *ord);
-	struct colsum *cs = util_malloc(F->k, sizeof *cs);
-	if (!ord || !cs) {
-		UTIL_FREE_ALL(ord, cs);
-		return NULL;
+	double *s = util_malloc(F->k, sizeof *s);
+	if (!s)
+		return -1;
+	memcpy(s, F->colsum, F->k * sizeof *s);
+	qsort(s, F->k, sizeof *s, cmp_desc);
+	double t = s[k - 1]; /* the k-th largest */
+	uint32_t above = 0, id = 0;
+	for (uint32_t c = 0; c < F->k; c++)
+		above += F->colsum[c] > t;
+	uint32_t ties = k - above; /* columns at t kept, by id */
+	for (uint32_t c = 0; c < F->k; c++) {
+		int keep = F->colsum[c] > t || (F->colsum[c] == t && ties > 0);
+		if (keep && !(F->colsum[c] > t))
+			ties--;
+		map[c] = keep ? id++ : UINT32_MAX;
 	}
-	for (uint32_t c = 0; c < F->k; c++)
-		cs[c] = (struct colsum){ F->colsum[c], c };
-	qsort(cs, F->k, sizeof *cs, cmp_by_sum);
-	for (uint32_t c = 0; c < F->k; c++)
-		ord[c] = cs[c].c;
-	free(cs);
-	return ord;
+	free(s);
+	return 0;
 }
 
 static void sums(struct fcsr *o)
@@ -78,16 +78,11 @@ static void sums(struct fcsr *o)
 
 static int drop(const struct fcsr *F, uint32_t k, struct fcsr *o)
 {
-	uint32_t *ord = by_sum(F), *map = util_malloc(F->k, sizeof *map);
-	if (!ord || !map || alloc_fcsr(o, F->n, k, F->off[F->n])) {
-		UTIL_FREE_ALL(ord, map);
+	uint32_t *map = util_malloc(F->k, sizeof *map);
+	if (!map || kept_columns(F, k, map) || alloc_fcsr(o, F->n, k, F->off[F->n])) {
+		free(map);
 		return -1;
 	}
-	for (uint32_t i = 0; i < F->k; i++)
-		map[ord[i]] = i < k ? 0 : UINT32_MAX;
-	for (uint32_t c = 0, id = 0; c < F->k; c++) /* the kept keep their order */
-		if (map[c] == 0)
-			map[c] = id++;
 	uint64_t w = 0;
 	for (uint32_t u = 0; u < F->n; u++) {
 		for (uint64_t i = F->off[u]; i < F->off[u + 1]; i++)
@@ -96,7 +91,7 @@ static int drop(const struct fcsr *F, uint32_t k, struct fcsr *o)
 		o->off[u + 1] = w;
 	}
 	sums(o);
-	UTIL_FREE_ALL(ord, map);
+	free(map);
 	return 0;
 }
 
