@@ -221,7 +221,7 @@ static int fill_selection(struct atomicfile *w, const void *arg)
 {
 	const struct select_result *a = arg;
 	atomicfile_str(w, "k\theldout_loglik\theldout_auc\tsweeps\tseconds\tchosen\tfolds\t"
-		       "heldout_loglik_sd\tgrid\n");
+		       "heldout_loglik_sd\tgrid\torder\treason\twarm_from\n");
 	for (uint32_t i = 0; i < a->npts && !atomicfile_failed(w); i++) {
 		const struct select_point *pt = &a->pts[i];
 		atomicfile_printf(w, "%" PRIu32 "\t%.17g\t", pt->k, pt->heldout);
@@ -231,8 +231,10 @@ static int fill_selection(struct atomicfile *w, const void *arg)
 			atomicfile_str(w, "NA");
 		atomicfile_printf(w, "\t%" PRIu32 "\t%.3f\t%s", pt->sweeps, pt->seconds,
 			  pt->k == a->best ? "yes" : "no");
-		atomicfile_printf(w, "\t%" PRIu32 "\t%.17g\t%s\n", pt->folds, pt->heldout_sd,
+		atomicfile_printf(w, "\t%" PRIu32 "\t%.17g\t%s", pt->folds, pt->heldout_sd,
 				  pt->added ? "added" : "asked");
+		atomicfile_printf(w, "\t%" PRIu32 "\t%s\t%" PRIu32 "\n", pt->order, pt->reason,
+				  pt->warm_from);
 	}
 	return 0;
 }

@@ -56,6 +56,8 @@ static json_t *j_selection(const struct select_result *sel)
 	jsonout_set(o, "extension_bound", sel->extended > 0 ? jsonout_uint(sel->bound) :
 		    json_null(), &bad);
 	jsonout_set(o, "chosen_at_edge", json_boolean(sel->edge != 0), &bad);
+	jsonout_set(o, "search", json_string(sel->shape ? "shape" : "grid"), &bad);
+	jsonout_set(o, "start", sel->shape ? jsonout_uint(sel->start) : json_null(), &bad);
 	for (uint32_t i = 0; i < sel->npts; i++) {
 		const struct select_point *pt = &sel->pts[i];
 		json_t *e = json_object();
@@ -71,6 +73,10 @@ static json_t *j_selection(const struct select_result *sel)
 		jsonout_set(e, "heldout_loglik_sd", jsonout_real(pt->heldout_sd), &bad);
 		jsonout_set(e, "folds", jsonout_uint(pt->folds), &bad);
 		jsonout_set(e, "added", json_boolean(pt->added), &bad);
+		jsonout_set(e, "order", jsonout_uint(pt->order), &bad);
+		jsonout_set(e, "reason", json_string(pt->reason), &bad);
+		jsonout_set(e, "warm_from", pt->warm_from ? jsonout_uint(pt->warm_from) : json_null(),
+			    &bad);
 		jsonout_append(scores, e, &bad);
 	}
 	jsonout_set(o, "scores", scores, &bad);

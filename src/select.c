@@ -8,19 +8,23 @@
  * decided, so the outcome is the same for any number of fits at once.
  * Fits started beyond the stopping point are stopped and discarded.
  *
+ * The search by the shape is a series of such batches (the bracket, each
+ * step of the walk, each refinement), each built from the points decided
+ * before it, so it too is the same for any number of fits at once.
+ *
  * The one thing a newcomer gets wrong: the held-out pairs must leave the
- * likelihood (fit_exclude()), not become non-edges; see holdout.c.
+ * likelihood (fit_exclude()), not become non-edges; see holdout.c. And a
+ * warm start may come only from a fit on the same split (with several
+ * folds there is none: warm starts are for the one-fold search only).
  */
 #include "coterie/select.h"
 
 #include <errno.h>
-#include <fcntl.h>
 #include <math.h>
 #include <poll.h>
-#include <pthread.h>
+#include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
-#include <unistd.h>
 
 #include "coterie/fit.h"
 #include "coterie/graph.h"
@@ -29,6 +33,7 @@
 #include "coterie/model.h"
 #include "coterie/seed.h"
 #include "coterie/util.h"
+#include "select-internal.h"
 
 int select_params_default(struct select_params *sp, const struct graph *g, uint32_t *minima)
 {
@@ -51,6 +56,7 @@ int select_params_default(struct select_params *sp, const struct graph *g, uint3
 	if (top < sp->kmin)
 		top = sp->kmin;
 	sp->kmax = (uint32_t)top;
+	sp->start = L; /* kept within [kmin, kmax] by the search */
 	return 0;
 }
 
@@ -163,13 +169,50 @@ uint32_t select_folds(uint64_t m, double share)
 	return f >= SELECT_MAX_FOLDS ? SELECT_MAX_FOLDS : f <= 1.0 ? 1 : (uint32_t)f;
 }
 
+/* A k to score, marked added when beyond the grid asked for, and why. */
+struct want {
+	uint32_t k;
+	int added;
+	uint32_t from; /* 0, or the k whose kept fit starts this one */
+	char why[SELECT_REASON];
+};
+
+static struct want want_of(uint32_t k, int added, const char *why)
+{
+	struct want w = { k, added, 0, { 0 } };
+	snprintf(w.why, sizeof w.why, "%s", why);
+	return w;
+}
+
 /* What every fit of a search shares: the folds' splits and parameters. */
 struct search {
 	const struct select_hooks *hooks;
 	struct fit_params p; /* one thread, the whole graph's epsilon */
 	struct holdout h[SELECT_MAX_FOLDS];
 	uint32_t folds, nslots;
+	uint32_t decided; /* points decided so far (select_point.order) */
+	int keep;         /* keep each fit's strengths (one fold only) for
+			   * warm starts: kept[0 .. nkept), released at
+			   * the end (strengths are sparse: a few entries
+			   * a node per fit) */
+	struct fcsr kept[SELECT_MAX_GRID];
+	uint32_t nkept;
 };
+
+/* Release the kept fits except that of k (0: all). */
+static void keep_only(struct search *s, uint32_t k)
+{
+	uint32_t o = 0;
+	for (uint32_t i = 0; i < s->nkept; i++) {
+		if (k && s->kept[i].k == k)
+			s->kept[o++] = s->kept[i];
+		else
+			fcsr_release(&s->kept[i]);
+	}
+	for (uint32_t i = o; i < s->nkept; i++)
+		memset(&s->kept[i], 0, sizeof s->kept[i]);
+	s->nkept = o;
+}
 
 /* Fold f's seed, for its split and its fits: fold 0 is a one-fold
  * search's, so one fold scores exactly as a search without folds. */
@@ -189,16 +232,35 @@ struct slot {
 struct fold_score {
 	double ll, auc, seconds;
 	uint32_t sweeps;
+	uint32_t warm_from; /* the k its start came from (0: seeds) */
+	struct fcsr F;      /* its strengths, when the search keeps them */
 };
 
-static int slot_launch(struct slot *sl, const struct search *s, uint32_t k, uint32_t task)
+/* A warm start for w from the kept fit of w->from, into *F (empty when
+ * there is none: the fit then seeds). */
+static void warm_of(const struct search *s, const struct want *w, const struct graph *train,
+		    struct fcsr *F)
+{
+	memset(F, 0, sizeof *F);
+	for (uint32_t i = 0; w->from && i < s->nkept; i++)
+		if (s->kept[i].k == w->from && select_warm_start(&s->kept[i], train, w->k, F))
+			memset(F, 0, sizeof *F);
+}
+
+static int slot_launch(struct slot *sl, const struct search *s, const struct want *w,
+		       uint32_t task, struct fold_score *sc)
 {
 	uint32_t fold = task % s->folds;
 	struct fit_params q = s->p;
-	q.k = k;
+	q.k = w->k;
 	q.seed = fold_seed(s->p.seed, fold);
 	sl->task = task;
-	sl->f = fit_new(s->h[fold].train, &q, NULL);
+	struct fcsr warm;
+	warm_of(s, w, s->h[fold].train, &warm);
+	struct fit_origin o = { .F = &warm };
+	sl->f = fit_new(s->h[fold].train, &q, warm.e ? &o : NULL);
+	sc->warm_from = warm.e ? w->from : 0;
+	fcsr_release(&warm);
 	if (!sl->f)
 		return -1;
 	fit_exclude(sl->f, s->h[fold].held);
@@ -211,7 +273,7 @@ static int slot_launch(struct slot *sl, const struct search *s, uint32_t k, uint
 }
 
 /* Score a fit that ended on its fold's pairs; frees it. Returns 0 or -1. */
-static int slot_score(struct slot *sl, const struct holdout *h, struct fold_score *sc)
+static int slot_score(struct slot *sl, const struct holdout *h, struct fold_score *sc, int keep)
 {
 	enum fit_state st = fit_wait(sl->f);
 	struct snapshot *s = fit_snapshot(sl->f);
@@ -220,6 +282,8 @@ static int slot_score(struct slot *sl, const struct holdout *h, struct fold_scor
 		rc = holdout_score(h, &s->F, s->epsilon, &sc->ll, &sc->auc);
 		sc->sweeps = s->sweep;
 		sc->seconds = s->seconds;
+		if (rc == 0 && keep)
+			rc = fcsr_copy(&sc->F, &s->F);
 	}
 	snapshot_release(s);
 	fit_free(sl->f);
@@ -269,12 +333,12 @@ static void stop_all(struct slot *sl, uint32_t nslots)
 }
 
 /*
- * Score ks[0 .. nk) in that order, each on every fold, into pts; with
+ * Score w[0 .. nk) in that order, each on every fold, into pts; with
  * early, stop after two k in a row below the best (*b, updated). The
  * decisions are taken in list order whatever order the fits end in.
  * *npts receives the points scored. Returns 0, -1 (reported) or -2.
  */
-static int search_pass(struct search *s, const uint32_t *ks, uint32_t nk, int added, int early,
+static int search_pass(struct search *s, const struct want *w, uint32_t nk, int early,
 		       struct select_point *pts, uint32_t *npts, struct best *b)
 {
 	uint32_t F = s->folds, ntask = nk * F;
@@ -290,7 +354,7 @@ static int search_pass(struct search *s, const uint32_t *ks, uint32_t nk, int ad
 		uint32_t active = 0;
 		for (uint32_t i = 0; i < nslots && rc == 0; i++) {
 			if (!sl[i].f && !halt && next < ntask) {
-				rc = slot_launch(&sl[i], s, ks[next / F], next);
+				rc = slot_launch(&sl[i], s, &w[next / F], next, &sc[next]);
 				next++;
 			}
 			active += sl[i].f != NULL;
@@ -307,13 +371,20 @@ static int search_pass(struct search *s, const uint32_t *ks, uint32_t nk, int ad
 			if (!fit_state_ended(fit_get_state(sl[i].f)))
 				continue;
 			uint32_t t = sl[i].task;
-			rc = slot_score(&sl[i], &s->h[t % F], &sc[t]);
+			rc = slot_score(&sl[i], &s->h[t % F], &sc[t], s->keep);
 			done[t] = 1;
 		}
 		/* the decisions, in list order, once all folds of a k are in */
 		while (rc == 0 && !halt && consumed < nk &&
 		       !memchr(done + consumed * F, 0, F)) {
-			pts[consumed] = point_of(ks[consumed], sc + consumed * F, F, added);
+			pts[consumed] = point_of(w[consumed].k, sc + consumed * F, F, w[consumed].added);
+			pts[consumed].order = ++s->decided;
+			pts[consumed].warm_from = sc[consumed * F].warm_from;
+			if (s->keep && s->nkept < SELECT_MAX_GRID && sc[consumed * F].F.e) {
+				s->kept[s->nkept++] = sc[consumed * F].F; /* moves; its k is w's */
+				memset(&sc[consumed * F].F, 0, sizeof sc->F);
+			}
+			memcpy(pts[consumed].reason, w[consumed].why, SELECT_REASON);
 			const struct select_point *pt = &pts[consumed];
 			if (s->hooks && s->hooks->scored)
 				s->hooks->scored(pt, s->hooks->arg);
@@ -334,6 +405,8 @@ static int search_pass(struct search *s, const uint32_t *ks, uint32_t nk, int ad
 			stop_all(sl, nslots);
 	}
 	stop_all(sl, nslots);
+	for (uint32_t t = 0; sc && t < ntask; t++)
+		fcsr_release(&sc[t].F);
 	UTIL_FREE_ALL(sc, done, sl, pfd);
 	*npts = consumed;
 	return rc;
@@ -409,7 +482,13 @@ static int extend(struct search *s, const struct graph *g, const struct select_p
 		notice("choosing k: k %u, the %s of the grid, scored best; scoring k %s %u "
 		       "beyond it while the scores rise", b->k, up ? "largest" : "smallest",
 		       up ? "up to" : "down to", ks[n - 1]);
-		rc = search_pass(s, ks, n, 1, 1, pts + *np, &got, b);
+		struct want *w = util_calloc(n, sizeof *w);
+		if (!w)
+			return -1;
+		for (uint32_t i = 0; i < n; i++)
+			w[i] = want_of(ks[i], 1, "extend past edge");
+		rc = search_pass(s, w, n, 1, pts + *np, &got, b);
+		free(w);
 		*np += got;
 	}
 	uint32_t lo = pts[0].k, hi = pts[0].k;
@@ -421,6 +500,183 @@ static int extend(struct search *s, const struct graph *g, const struct select_p
 		res->edge = 1;
 	else if (*np > 1 && b->k == lo && lo > 2)
 		res->edge = -1;
+	return rc;
+}
+
+int select_by_shape(uint64_t m, const struct select_params *sp)
+{
+	uint32_t folds = sp->folds ? sp->folds : select_folds(m, sp->share);
+	return !sp->nlist && !sp->full && folds == 1;
+}
+
+/* The k scored next to k among pts[0 .. np): the largest below (0: none)
+ * and the smallest above (0: none). */
+static void around(const struct select_point *pts, uint32_t np, uint32_t k, uint32_t *below,
+		   uint32_t *above)
+{
+	*below = *above = 0;
+	for (uint32_t i = 0; i < np; i++) {
+		if (pts[i].k < k && pts[i].k > *below)
+			*below = pts[i].k;
+		if (pts[i].k > k && (*above == 0 || pts[i].k < *above))
+			*above = pts[i].k;
+	}
+}
+
+/* The mean held-out score of k among pts[0 .. np) (k scored). */
+static double score_of(const struct select_point *pts, uint32_t np, uint32_t k)
+{
+	for (uint32_t i = 0; i < np; i++)
+		if (pts[i].k == k)
+			return pts[i].heldout;
+	return -INFINITY;
+}
+
+/*
+ * Which gap around the best k b to refine first: 0 the one below (to
+ * a), 1 the one above (to c). With both neighbours, the side of the
+ * vertex of the parabola through the three scores in ln k (successive
+ * parabolic interpolation, as in Brent, Algorithms for Minimization
+ * without Derivatives, 1973, ch. 5), when it opens downwards; else the
+ * better neighbour's side.
+ */
+static int toward(const struct select_point *pts, uint32_t np, uint32_t a, uint32_t b, uint32_t c)
+{
+	if (!a || !c)
+		return !a;
+	double xa = log(a), xb = log(b), xc = log(c);
+	double ya = score_of(pts, np, a), yb = score_of(pts, np, b), yc = score_of(pts, np, c);
+	double den = (xa - xb) * (xa - xc) * (xb - xc);
+	double A = (xc * (yb - ya) + xb * (ya - yc) + xa * (yc - yb)) / den;
+	double B = (xc * xc * (ya - yb) + xb * xb * (yc - ya) + xa * xa * (yb - yc)) / den;
+	if (A < 0 && isfinite(B / A))
+		return -B / (2 * A) > xb;
+	return yc > ya;
+}
+
+/* Score the wants w[0 .. n) not scored yet, after pts[0 .. *np), as one
+ * batch (in parallel, decided in the order of w). 0, -1 or -2. */
+static int shape_batch(struct search *s, struct want *w, uint32_t n, struct select_point *pts,
+		       uint32_t *np, struct best *b)
+{
+	uint32_t o = 0;
+	for (uint32_t i = 0; i < n; i++) {
+		int seen = 0;
+		for (uint32_t j = 0; j < *np && !seen; j++)
+			seen = pts[j].k == w[i].k;
+		for (uint32_t j = 0; j < o && !seen; j++)
+			seen = w[j].k == w[i].k;
+		if (!seen)
+			w[o++] = w[i];
+	}
+	if (o == 0 || *np + o > SELECT_MAX_GRID)
+		return 0;
+	for (uint32_t i = 0; i < o; i++) { /* warm: from the nearest k above */
+		uint32_t below;
+		around(pts, *np, w[i].k, &below, &w[i].from);
+	}
+	uint32_t got = 0;
+	int rc = search_pass(s, w, o, 0, pts + *np, &got, b);
+	*np += got;
+	return rc;
+}
+
+static uint32_t clamp_k(double k, uint32_t lo, uint32_t hi)
+{
+	uint32_t r = k < 1.0 ? 1 : (uint32_t)llround(k);
+	return r < lo ? lo : r > hi ? hi : r;
+}
+
+/*
+ * The search by the curve's shape (select.h): k0 from seeds, then k0 / r
+ * and k0 r (r = step^2, two grid steps) warm-started from it; while the
+ * best is the largest (smallest) k scored, a walk multiplying (dividing)
+ * it by r, past the grid's edge up to n/4, MODEL_MAX_K and memory (down
+ * to 2); then, one gap a round, the gap around the best on the side of the
+ * parabola's vertex (toward()) is halved in log k until both gaps are
+ * within one grid step. A fit below a k already tried starts from the
+ * fit of the nearest k above it (the only split), its weakest columns
+ * dropped (select_warm.c); one above every k tried starts from seeds.
+ * Points go after
+ * pts[0 .. *np). Sets res->start, extended, bound and edge.
+ */
+static int shape_search(struct search *s, const struct graph *g, const struct select_params *sp,
+			struct select_result *res, struct select_point *pts, uint32_t *np,
+			struct best *b, unsigned threads)
+{
+	uint32_t kmin = sp->kmin, kmax = sp->kmax, lo = kmin > 2 ? 2 : kmin;
+	uint64_t bound = g->n / 4 < MODEL_MAX_K ? g->n / 4 : MODEL_MAX_K;
+	uint32_t hi = bound > kmax ? (uint32_t)bound : kmax;
+	/* the start: sp->start up to the bound (the default grid's cap of 500
+	 * bounds the cost of a full grid, not where the curve's top is), or
+	 * the grid's geometric middle; the bracket within the same range */
+	uint32_t top = kmax;
+	while (sp->start && top < hi && fits_memory(s, top < hi / 2 ? 2 * top : hi, threads))
+		top = top < hi / 2 ? 2 * top : hi; /* memory checked in steps of 2 */
+	double mid = sp->start ? sp->start : sqrt((double)kmin * (double)kmax);
+	uint32_t k0 = clamp_k(mid, kmin, top);
+	res->start = k0;
+	struct want w[3];
+	w[0] = want_of(k0, 0, "start");
+	double r = sp->step * sp->step; /* two grid steps: one halving refines */
+	w[1] = want_of(clamp_k(k0 / r, kmin, top), 0, "bracket");
+	w[2] = want_of(clamp_k(k0 * r, kmin, top), 0, "bracket");
+	for (int i = 0; i < 3; i++)
+		if ((w[i].added = w[i].k > kmax))
+			res->extended = 1;
+	/* k0 alone from seeds, then every other fit from the best one so far */
+	int rc = shape_batch(s, w, 1, pts, np, b);
+	if (rc == 0)
+		rc = shape_batch(s, w + 1, 2, pts, np, b);
+	uint32_t below, above;
+	while (rc == 0) { /* the walk: the best at an end moves that way */
+		around(pts, *np, b->k, &below, &above);
+		int up = !above && b->k < hi;
+		if (!up && (below || b->k <= lo))
+			break;
+		uint32_t next = up ? clamp_k(b->k * r, b->k, hi) : clamp_k(b->k / r, lo, b->k);
+		if (up && next > kmax && !fits_memory(s, next, threads)) {
+			hi = b->k;
+			break;
+		}
+		int past = next > kmax || next < kmin;
+		if (past)
+			res->extended = up ? 1 : -1;
+		w[0] = want_of(next, past, past ? "extend past edge" : up ? "walk up" : "walk down");
+		uint32_t before = *np;
+		rc = shape_batch(s, w, 1, pts, np, b);
+		if (*np == before)
+			break;
+	}
+	res->bound = hi;
+	while (rc == 0) { /* the refinement: halve the wide gaps around the best */
+		around(pts, *np, b->k, &below, &above);
+		uint32_t n = 0, side[2] = { below, above };
+		double ratio[2];
+		for (int i = 0; i < 2; i++)
+			ratio[i] = !side[i] ? 0.0 : side[i] > b->k ? (double)side[i] / b->k
+							     : (double)b->k / side[i];
+		int better = toward(pts, *np, below, b->k, above);
+		for (int j = 0; j < 2; j++) {
+			int i = j == 0 ? better : !better;
+			uint32_t nb = side[i];
+			if (!nb || !(ratio[i] > sp->step * (1.0 + 1e-9)))
+				continue;
+			uint32_t m = (uint32_t)llround(sqrt((double)nb * (double)b->k));
+			if (m == nb || m == b->k)
+				continue;
+			w[n] = want_of(m, m > kmax || m < kmin, "");
+			snprintf(w[n].why, sizeof w[n].why, "refine between %u and %u",
+				 nb < b->k ? nb : b->k, nb < b->k ? b->k : nb);
+			n++;
+			break; /* one gap a round: the next round sees its score */
+		}
+		uint32_t before = *np;
+		if (n == 0 || (rc = shape_batch(s, w, n, pts, np, b)) || *np == before)
+			break;
+	}
+	around(pts, *np, b->k, &below, &above);
+	res->edge = !above && *np > 1 ? 1 : !below && *np > 1 && b->k > 2 ? -1 : 0;
 	return rc;
 }
 
@@ -471,10 +727,23 @@ int select_k(const struct graph *g, const struct fit_params *base, const struct 
 	if (rc == 0) {
 		res->held_edges = s->h[0].nedges;
 		res->held_non_edges = s->h[0].nnon;
-		rc = search_pass(s, res->grid, nk, 0, !sp->nlist, pts, &np, &b);
+		res->shape = select_by_shape(g->m, sp);
+		if (res->shape) {
+			s->keep = 1;
+			s->p.no_reseed = 1;
+			rc = shape_search(s, g, sp, res, pts, &np, &b, base->threads);
+			keep_only(s, 0);
+		}
 	}
-	if (rc == 0 && np > 0)
-		rc = extend(s, g, sp, res, pts, &np, &b, base->threads);
+	if (rc == 0 && !res->shape) {
+		struct want *w = util_calloc(nk, sizeof *w);
+		for (uint32_t i = 0; w && i < nk; i++)
+			w[i] = want_of(res->grid[i], 0, "grid");
+		rc = w ? search_pass(s, w, nk, !sp->nlist, pts, &np, &b) : -1;
+		free(w);
+		if (rc == 0 && np > 0)
+			rc = extend(s, g, sp, res, pts, &np, &b, base->threads);
+	}
 	for (uint32_t f = 0; f < s->folds; f++)
 		holdout_release(&s->h[f]);
 	free(s);
@@ -487,163 +756,4 @@ int select_k(const struct graph *g, const struct fit_params *base, const struct 
 	res->pts = pts;
 	res->npts = np;
 	return 0;
-}
-
-/* ---- the search on a thread of its own ---- */
-
-struct select_run {
-	const struct graph *g;
-	struct fit_params base;
-	struct select_params sp;
-	pthread_t thread;
-	int joined;
-	pthread_mutex_t lock;
-	int wake[2];
-	int stop;                                 /* under lock */
-	struct select_point pts[SELECT_MAX_GRID]; /* under lock */
-	uint32_t npts;
-	uint32_t grid[SELECT_MAX_GRID];
-	uint32_t ngrid;
-	int done;
-	int rc;
-	struct select_result res;
-};
-
-static void run_wake(struct select_run *r)
-{
-	char b = 1;
-	ssize_t w = write(r->wake[1], &b, 1); /* full pipe: a wake-up is pending anyway */
-	(void)w;
-}
-
-static void run_scored(const struct select_point *pt, void *arg)
-{
-	struct select_run *r = arg;
-	pthread_mutex_lock(&r->lock);
-	if (r->npts < SELECT_MAX_GRID)
-		r->pts[r->npts++] = *pt;
-	if (pt->added && r->ngrid < SELECT_MAX_GRID) { /* the grid grows, kept sorted */
-		uint32_t i = r->ngrid;
-		for (; i > 0 && r->grid[i - 1] > pt->k; i--)
-			r->grid[i] = r->grid[i - 1];
-		r->grid[i] = pt->k;
-		r->ngrid++;
-	}
-	pthread_mutex_unlock(&r->lock);
-	run_wake(r);
-}
-
-static int run_should_stop(void *arg)
-{
-	struct select_run *r = arg;
-	pthread_mutex_lock(&r->lock);
-	int s = r->stop;
-	pthread_mutex_unlock(&r->lock);
-	return s;
-}
-
-static void *run_main(void *arg)
-{
-	struct select_run *r = arg;
-	struct select_hooks hooks = { run_scored, run_should_stop, r };
-	struct select_result res;
-	int rc = select_k(r->g, &r->base, &r->sp, &hooks, &res);
-	pthread_mutex_lock(&r->lock);
-	r->rc = rc;
-	if (rc == 0)
-		r->res = res;
-	r->done = 1;
-	pthread_mutex_unlock(&r->lock);
-	run_wake(r);
-	return NULL;
-}
-
-struct select_run *select_run_start(const struct graph *g, const struct fit_params *base,
-				    const struct select_params *sp)
-{
-	struct select_run *r = util_calloc(1, sizeof *r);
-	if (!r)
-		return NULL;
-	r->g = g;
-	r->base = *base;
-	r->sp = *sp;
-	r->ngrid = select_grid(sp, r->grid);
-	r->joined = 1;
-	if (pipe(r->wake)) {
-		error("cannot make a pipe: %s", strerror(errno));
-		free(r);
-		return NULL;
-	}
-	for (int i = 0; i < 2; i++) {
-		fcntl(r->wake[i], F_SETFL, fcntl(r->wake[i], F_GETFL) | O_NONBLOCK);
-		fcntl(r->wake[i], F_SETFD, FD_CLOEXEC);
-	}
-	pthread_mutex_init(&r->lock, NULL);
-	if (pthread_create(&r->thread, NULL, run_main, r)) {
-		error("cannot start a thread to choose k");
-		select_run_free(r);
-		return NULL;
-	}
-	r->joined = 0;
-	return r;
-}
-
-int select_run_wake_fd(const struct select_run *r)
-{
-	return r->wake[0];
-}
-
-void select_run_drain(struct select_run *r)
-{
-	char buf[64];
-	while (read(r->wake[0], buf, sizeof buf) > 0)
-		;
-}
-
-uint32_t select_run_points(struct select_run *r, struct select_point *pts, uint32_t *grid,
-			   uint32_t *ngrid, int *done)
-{
-	pthread_mutex_lock(&r->lock);
-	uint32_t n = r->npts;
-	memcpy(pts, r->pts, n * sizeof *pts);
-	memcpy(grid, r->grid, r->ngrid * sizeof *grid);
-	*ngrid = r->ngrid;
-	*done = r->done;
-	pthread_mutex_unlock(&r->lock);
-	return n;
-}
-
-void select_run_stop(struct select_run *r)
-{
-	pthread_mutex_lock(&r->lock);
-	r->stop = 1;
-	pthread_mutex_unlock(&r->lock);
-}
-
-int select_run_finish(struct select_run *r, struct select_result *res)
-{
-	if (!r->joined) {
-		pthread_join(r->thread, NULL);
-		r->joined = 1;
-	}
-	if (r->rc == 0) {
-		*res = r->res; /* the points move to the caller */
-		memset(&r->res, 0, sizeof r->res);
-	}
-	return r->rc;
-}
-
-void select_run_free(struct select_run *r)
-{
-	if (!r)
-		return;
-	if (!r->joined) {
-		select_run_stop(r);
-		pthread_join(r->thread, NULL);
-	}
-	select_result_release(&r->res);
-	pthread_mutex_destroy(&r->lock);
-	close(r->wake[0]);
-	close(r->wake[1]);
-	free(r);
 }

@@ -30,6 +30,25 @@
  * to 2. An explicit list is never extended. Points added are marked
  * (select_point.added); a choice still on the edge sets select_result.edge.
  *
+ * The search by the curve's shape (select_by_shape(): a geometric grid on
+ * a graph of one fold, 20,000 edges or more at share 0.1). The held-out
+ * curve rises with k, then falls or flattens, and on large graphs the
+ * fits of small k are as dear as those near the top (a fit at k 15 of a
+ * 20,000-node graph took more sweeps than one at k 200), so instead of the
+ * grid: k0 (sp->start, the number L of locally minimal ego-nets of the
+ * default grid, up to n/4: the grid's cap of 500 bounds the cost of a full
+ * grid, not where the top is) from seeds, then k0 / r and k0 r (r =
+ * step^2); while the best is the largest (smallest) k tried, a walk by
+ * the factor r, past the grid's edge as an extension would go; then, one
+ * gap a round, the gap
+ * around the best on the side of the vertex of the parabola through the
+ * three scores around it (in ln k) is halved in log k, until both gaps
+ * around the best are within one grid step. Its fits skip the reseeding
+ * moves; a fit below a k already tried starts from the fit of the
+ * nearest k above it (same split: there is only one) with its weakest
+ * columns dropped (select_warm.c), one above every k tried from seeds. Each point says why it was tried
+ * (select_point.reason) and in which order (.order).
+ *
  * Parallel: up to base->threads fits run at once, each on one thread.
  * Every fit is deterministic and the early stop is decided in grid order,
  * so the scores and the choice do not depend on the thread count.
@@ -45,6 +64,7 @@ struct fit_params;
 #define SELECT_MAX_GRID 128 /* points of a search, extension included */
 #define SELECT_MAX_LIST 64  /* values of --k-grid LIST */
 #define SELECT_MAX_FOLDS 10
+#define SELECT_REASON 40  /* room for a point's reason, NUL included */
 
 struct select_params {
 	uint32_t kmin, kmax; /* geometric grid bounds (inclusive) */
@@ -53,7 +73,21 @@ struct select_params {
 	uint32_t nlist;      /* > 0: the grid is list[0 .. nlist), increasing */
 	uint32_t list[SELECT_MAX_LIST];
 	uint32_t folds;      /* splits per k; 0: select_folds() decides */
+	uint32_t start;      /* the k a search by the curve's shape begins at
+			      * (0: the grid's geometric middle); kept within
+			      * [kmin, kmax] */
+	int full;            /* 1: score the whole grid even on a graph of one
+			      * fold (no search by the shape) */
 };
+
+/*
+ * Whether select_k() searches by the curve's shape (1) or scores the grid
+ * (0) for a graph of m edges: the shape for a geometric grid on a graph
+ * that gets one fold (select_folds() == 1, 20,000 edges or more at share
+ * 0.1), unless sp->full; a list and the folds of a small graph are
+ * scored in full, as they always were.
+ */
+int select_by_shape(uint64_t m, const struct select_params *sp);
 
 /*
  * The folds for a graph of m edges holding out share of them: enough
@@ -105,6 +139,14 @@ struct select_point {
 			    * folds (sample form; 0 with one fold) */
 	uint32_t folds;
 	int added;         /* 1: beyond the grid asked for (its edge scored best) */
+	uint32_t order;    /* 1-based: the order the points were decided in */
+	char reason[SELECT_REASON]; /* why this k was tried: "grid", "start",
+				     * "bracket", "walk up", "walk down",
+				     * "extend past edge", "refine between A
+				     * and B" (A, B the k around it) */
+	uint32_t warm_from; /* 0: its fits started from seeds; else the k
+			     * of the fit on the same split it started from
+			     * (a larger k, its weakest columns dropped) */
 };
 
 /* Called after each k is scored (may be NULL): in grid order, then the
@@ -131,6 +173,9 @@ struct select_result {
 	int list;                         /* the grid was a list (never extended) */
 	int extended;                     /* +1 up, -1 down, 0 not */
 	uint32_t bound;                   /* how far up an extension could go */
+	int shape;                        /* 1: searched by the curve's shape
+					   * (select_by_shape()), 0: the grid */
+	uint32_t start;                   /* the shape search's first k */
 	int edge;                         /* the choice is still the largest
 					   * (+1) or smallest above 2 (-1) k
 					   * scored, with no further k to try */
@@ -165,6 +210,9 @@ void select_run_drain(struct select_run *r);
  * ended. */
 uint32_t select_run_points(struct select_run *r, struct select_point *pts, uint32_t *grid,
 			   uint32_t *ngrid, int *done);
+/* 1 when the run searches by the curve's shape (select_by_shape()): its
+ * grid is then the k tried so far, growing as they are scored. */
+int select_run_by_shape(const struct select_run *r);
 /* Ask the search to stop (it ends with -2). */
 void select_run_stop(struct select_run *r);
 /* Wait for the end; returns select_k()'s value and, on 0, fills *res. */

@@ -251,8 +251,9 @@ static void on_scored(const struct select_point *pt, void *arg)
 {
 	const int *quiet = arg;
 	if (!*quiet)
-		notice("choosing k: k %u scores %.6g on the held-out pairs, link AUC %.4f "
-		       "(%u sweeps, %.1f s)", pt->k, pt->heldout, pt->auc, pt->sweeps, pt->seconds);
+		notice("choosing k: k %u (%s) scores %.6g on the held-out pairs, link AUC %.4f "
+		       "(%u sweeps, %.1f s)", pt->k, pt->reason, pt->heldout, pt->auc, pt->sweeps,
+		       pt->seconds);
 }
 
 static int stop_asked(void *arg)

@@ -48,6 +48,7 @@ struct kstate {
 	uint32_t grid[SELECT_MAX_GRID];
 	uint32_t ngrid;
 	int done;
+	int shape; /* a search by the curve's shape: the grid is the k tried */
 	int utf8;
 	double t0;
 };
@@ -139,6 +140,40 @@ static void draw_curve(const struct kstate *k, int y0, int x0, int h, int w)
 	put(y0 + h, px + pw - l, lab, l);
 }
 
+/* Lines 1 and 2: what is being done, how far, and how to read it. */
+static void draw_head(const struct kstate *k, uint32_t folds)
+{
+	char line[512];
+	if (k->shape) {
+		snprintf(line, sizeof line, "Choosing the number of communities by held-out "
+			 "likelihood, following the curve: %u k tried%s  %.0f s", k->npts,
+			 k->done ? ", done" : "", util_now() - k->t0);
+		if (draw_width(line) > COLS)
+			snprintf(line, sizeof line, "Choosing k by held-out likelihood: %u tried%s  "
+				 "%.0f s", k->npts, k->done ? ", done" : "", util_now() - k->t0);
+	} else {
+		snprintf(line, sizeof line, "Choosing the number of communities by held-out "
+			 "likelihood: %u of %u k scored%s  %.0f s", k->npts, k->ngrid,
+			 k->done ? ", done" : "", util_now() - k->t0);
+		if (draw_width(line) > COLS) /* the counts whole, the words shorter */
+			snprintf(line, sizeof line, "Choosing k by held-out likelihood: %u of %u "
+				 "scored%s  %.0f s", k->npts, k->ngrid, k->done ? ", done" : "",
+				 util_now() - k->t0);
+	}
+	put(1, 0, line, COLS);
+	if (k->shape)
+		snprintf(line, sizeof line, "held-out log-likelihood against k (higher is better): "
+			 "a bracket around its top, then closing in");
+	else if (folds > 1)
+		snprintf(line, sizeof line, "mean held-out log-likelihood of %u splits against k "
+			 "(higher is better); the search stops after two k in a row below the best",
+			 folds);
+	else
+		snprintf(line, sizeof line, "held-out log-likelihood against k (higher is better); "
+			 "the search stops after two k in a row below the best");
+	put(2, 0, line, COLS);
+}
+
 static void draw_all(const struct kstate *k)
 {
 	erase();
@@ -154,22 +189,7 @@ static void draw_all(const struct kstate *k)
 	while (pending < k->ngrid && point_at(k, pending))
 		pending++;
 	uint32_t folds = k->npts ? k->pts[0].folds : 0;
-	snprintf(line, sizeof line,
-		 "Choosing the number of communities by held-out likelihood: %u of %u k "
-		 "scored%s  %.0f s", k->npts, k->ngrid, k->done ? ", done" : "",
-		 util_now() - k->t0);
-	if (draw_width(line) > COLS) /* the counts whole, the words shorter */
-		snprintf(line, sizeof line, "Choosing k by held-out likelihood: %u of %u scored%s  %.0f s",
-			 k->npts, k->ngrid, k->done ? ", done" : "", util_now() - k->t0);
-	put(1, 0, line, COLS);
-	if (folds > 1)
-		snprintf(line, sizeof line, "mean held-out log-likelihood of %u splits against k "
-			 "(higher is better); the search stops after two k in a row below the best",
-			 folds);
-	else
-		snprintf(line, sizeof line, "held-out log-likelihood against k (higher is better); "
-			 "the search stops after two k in a row below the best");
-	put(2, 0, line, COLS);
+	draw_head(k, folds);
 
 	int rows = LINES - 4;      /* header 3, footer 1 */
 	int table = (int)k->ngrid + 1;
@@ -189,8 +209,9 @@ static void draw_all(const struct kstate *k)
 	uint32_t first = 0, last = k->ngrid;
 	char head[160];
 	int sd = folds > 1 && COLS >= 72; /* the spread, where it fits whole */
+	int why = !sd && COLS >= 72; /* why each k was tried, cut to the width */
 	snprintf(head, sizeof head, "       k   held-out loglik   link AUC   sweeps   seconds%s",
-		 sd ? "        sd" : "");
+		 sd ? "        sd" : why ? "   why" : "");
 	if (room >= 1 && (int)k->ngrid > room) {
 		uint32_t want = pending < k->ngrid ? pending : k->ngrid - 1; /* the newest row */
 		uint32_t lo = best < k->ngrid ? (best < want ? best : want) : 0;
@@ -228,6 +249,9 @@ static void draw_all(const struct kstate *k)
 			size_t l = strlen(line);
 			if (sd)
 				snprintf(line + l, sizeof line - l, "   %7.3g", p->heldout_sd);
+			else if (why)
+				snprintf(line + l, sizeof line - l, "   %s%s", p->reason,
+					 p->warm_from ? " (warm)" : "");
 		}
 		if (i == best)
 			attron(A_BOLD);
@@ -289,6 +313,7 @@ int tui_choose_k(const struct tui_kconfig *cfg, struct select_result *res)
 	double last_draw = 0;
 	for (;;) {
 		k.npts = select_run_points(cfg->run, k.pts, k.grid, &k.ngrid, &k.done);
+		k.shape = select_run_by_shape(cfg->run);
 		double now = util_now();
 		if (now - last_draw >= 0.2 || k.done) {
 			draw_all(&k);

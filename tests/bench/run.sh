@@ -16,7 +16,8 @@
 # zlib's own inflate speed. Then planted graphs whose communities leak
 # (coterie simulate --mixing X, power-law sizes 20 to 2000; issues 12, 13):
 # one fit with the defaults of coterie fit, ONMI, and Leiden, in a second
-# table. tests/bench/README.md explains every column.
+# table; at mixing 0.2, -k auto against one fit at the planted k and one
+# at the chosen k (wall and CPU time, chosen k, ONMI), in a third. tests/bench/README.md explains every column.
 #
 # Environment: COTERIE_BIN, BENCH_TOOLS (folder with benchtool and
 # gen_planted; make bench sets both), BENCH (full|quick), COTERIE_DATASETS
@@ -29,7 +30,9 @@
 # default 3, quick 1), BENCH_MIX_SIZES / BENCH_MIXES (the nodes and shares
 # of the graphs with mixing; "" for none), BENCH_MIX_OPTS (more simulate
 # options for them; default --even-degrees, "" for none), BENCH_MIX_SWEEPS (their sweep
-# limit, default 500 as coterie fit).
+# limit, default 500 as coterie fit), BENCH_KAUTO_SIZES (the graphs with
+# mixing 0.2 on which -k auto is timed beside one fit at the planted and
+# at the chosen k; full: "10000 100000 1000000", quick: "").
 set -u
 
 here=$(cd "$(dirname "$0")" && pwd)
@@ -64,10 +67,11 @@ trap 'rm -rf "$work"' EXIT
 trap 'exit 130' INT TERM HUP
 
 case $mode in
-quick) sizes=10000 sets= repeat=1 mixsizes=10000 mixes=0.2 ;;
+quick) sizes=10000 sets= repeat=1 mixsizes=10000 mixes=0.2 kautosizes= ;;
 *) sizes="10000 100000 1000000" sets="email-Enron cond-mat-2005" repeat=3
-	mixsizes="10000 100000 1000000" mixes="0.1 0.2 0.3" ;;
+	mixsizes="10000 100000 1000000" mixes="0.1 0.2 0.3" kautosizes="10000 100000 1000000" ;;
 esac
+kautosizes=${BENCH_KAUTO_SIZES-$kautosizes}
 mixsizes=${BENCH_MIX_SIZES-$mixsizes}
 mixes=${BENCH_MIXES-$mixes}
 mixopts=${BENCH_MIX_OPTS---even-degrees}
@@ -233,6 +237,40 @@ for n in $mixsizes; do
 	done
 done
 
+# -k auto (issue 19) on the graphs with mixing 0.2: coterie fit -k auto
+# -j 2 beside coterie fit -k K -j 2 at the planted K and at the chosen K,
+# wall and CPU (user + system) seconds from /usr/bin/time, ONMI (max form)
+# by tests/tools/onmi.py against truth.tsv.
+autotable=$work/autotable.md
+: >"$autotable"
+# timed NAME ARGS...: run coterie, its "wall cpu" seconds into $work/NAME.time
+timed() {
+	name=$1
+	shift
+	/usr/bin/time -f '%e %U %S' -o "$work/$name.time" "$BIN" "$@" 2>"$work/$name.err" >/dev/null
+}
+twall() { awk '{ print $1 }' "$work/$1.time" 2>/dev/null; }
+tcpu() { awk '{ printf "%.2f\n", $2 + $3 }' "$work/$1.time" 2>/dev/null; }
+onmi() { /usr/bin/python3 "$root/tests/tools/onmi.py" "$1/truth.tsv" "$2/memberships.tsv" 2>/dev/null; }
+for n in $kautosizes; do
+	[ -x /usr/bin/time ] || { echo "bench: no /usr/bin/time, -k auto skipped" >&2; break; }
+	d=$cache/mixing-$n-0.2$tag
+	[ -s "$d/edges.tsv" ] || continue
+	k=$(jget "$d/simulate.json" realised communities)
+	echo "bench: mixing-$n-0.2: fit -k auto, -k $k" >&2
+	timed auto fit "$d/edges.tsv" -k auto -j 2 -q --force -o "$work/auto-$n"
+	timed planted fit "$d/edges.tsv" -k "$k" -j 2 -q --force -o "$work/planted-$n"
+	chosen=$(/usr/bin/python3 -c 'import json, sys; print(json.load(open(sys.argv[1]))["k_selection"]["chosen"])' "$work/auto-$n/run.json" 2>/dev/null)
+	tried=$(($(wc -l <"$work/auto-$n/k-selection.tsv" 2>/dev/null || echo 1) - 1))
+	[ -n "$chosen" ] && timed chosen fit "$d/edges.tsv" -k "$chosen" -j 2 -q --force -o "$work/chosen-$n"
+	printf '| mixing-%s-0.2 | %s | %s | %s | %s (%s) | %s (%s) | %s (%s) | %s | %s | %s | %s |\n' \
+		"$n" "$k" "${chosen:--}" "$tried" "$(twall auto)" "$(tcpu auto)" \
+		"$(twall planted)" "$(tcpu planted)" "$(twall chosen)" "$(tcpu chosen)" \
+		"$(div "$(twall auto)" "$(twall chosen)" %.1f)" "$(div "$(tcpu auto)" "$(tcpu chosen)" %.1f)" \
+		"$(onmi "$d" "$work/planted-$n")" "$(onmi "$d" "$work/auto-$n")" >>"$autotable"
+	rm -rf "$work/auto-$n" "$work/planted-$n" "$work/chosen-$n"
+done
+
 {
 	echo "# coterie benchmark ($mode)"
 	echo
@@ -252,6 +290,16 @@ done
 		cat "$mixtable"
 		echo
 		cat "$mixnotes"
+	fi
+	if [ -s "$autotable" ]; then
+		echo
+		echo "## -k auto on the graphs with mixing 0.2"
+		echo
+		echo "- coterie fit GRAPH -k auto -j 2, beside coterie fit GRAPH -k K -j 2 at the planted K and at the chosen K; seconds wall (CPU, user + system); ratios of -k auto to the fit at the chosen K; ONMI (max form, tests/tools/onmi.py)"
+		echo
+		echo "| graph | planted k | chosen k | k tried | -k auto s | planted k s | chosen k s | wall ratio | CPU ratio | ONMI planted k | ONMI -k auto |"
+		echo "|---|---|---|---|---|---|---|---|---|---|---|"
+		cat "$autotable"
 	fi
 } | tee "$results"
 exit 0

@@ -12,7 +12,11 @@ check "football -k auto --k-grid 6:16: exit 0" [ $? -eq 0 ]
 sel=$tmp/a/k-selection.tsv
 check "k-selection.tsv written" [ -f "$sel" ]
 check "k-selection.tsv header" \
-	[ "$(head -1 "$sel")" = "$(printf 'k\theldout_loglik\theldout_auc\tsweeps\tseconds\tchosen\tfolds\theldout_loglik_sd\tgrid')" ]
+	[ "$(head -1 "$sel")" = "$(printf 'k\theldout_loglik\theldout_auc\tsweeps\tseconds\tchosen\tfolds\theldout_loglik_sd\tgrid\torder\treason\twarm_from')" ]
+check "a small graph (10 folds) scores the grid: run.json search is grid" \
+	[ "$(json_get "$tmp/a/run.json" k_selection.search)" = grid ]
+check "football: every row's reason is grid, warm_from 0, order a permutation" \
+	awk -F'\t' 'NR > 1 { if ($11 != "grid" || $12 != 0 || seen[$10]++) bad = 1; n++; s += $10 } END { exit bad || s != n * (n + 1) / 2 }' "$sel"
 check "exactly one k chosen" [ "$(awk -F'\t' '$6 == "yes"' "$sel" | wc -l)" -eq 1 ]
 # folds: 61 held-out edges a split, so ceil(2000 / 61) = 33 splits wanted,
 # at most 10 (select.h, SELECT_FOLD_EDGES and SELECT_MAX_FOLDS)
@@ -130,5 +134,67 @@ check "--k-grid without -k auto is a usage error (exit 2)" [ $? -eq 2 ]
 check "the old --k-range is gone (exit 2)" [ $? -eq 2 ]
 "$BIN" fit "$football" -k auto --holdout 0.9 -q -o "$tmp/d" 2>/dev/null
 check "--holdout above 0.5 is a usage error (exit 2)" [ $? -eq 2 ]
+
+# the search by the curve's shape (select.h): a planted graph of 3,000
+# nodes and about 21,000 edges has one fold at share 0.1 (2,100 held-out
+# edges >= 2,000), so the default grid is searched, not scored in full
+"$BIN" simulate -n 3000 --sizes 20:300 --size-exponent 2 --overlap 0.1 --mean-degree 14 \
+	--even-degrees --mixing 0.2 --seed 1 -o "$tmp/pl" 2>/dev/null
+"$BIN" fit "$tmp/pl/edges.tsv" -k auto -j 2 -q -o "$tmp/sh" 2>/dev/null
+check "one fold: run.json search is shape, 1 fold" \
+	[ "$(json_get "$tmp/sh/run.json" k_selection.search)" = shape ] &&
+	[ "$(json_get "$tmp/sh/run.json" k_selection.folds)" = 1 ]
+"$PY" - "$tmp/sh/run.json" "$tmp/sh/k-selection.tsv" "$tmp/pl/planted.tsv" <<'PYEOF' && pass "shape search: reasons, order, warm starts, the gaps around the choice" || fail "shape search: reasons, order, warm starts, the gaps around the choice"
+import json, sys
+sel = json.load(open(sys.argv[1]))["k_selection"]
+rows = [l.rstrip("\n").split("\t") for l in open(sys.argv[2])]
+head, rows = rows[0], rows[1:]
+col = {h: i for i, h in enumerate(head)}
+pts = sorted(((int(r[col["order"]]), int(r[col["k"]]), float(r[col["heldout_loglik"]]),
+               r[col["reason"]], int(r[col["warm_from"]])) for r in rows))
+assert [p[0] for p in pts] == list(range(1, len(pts) + 1)), "order is 1..N"
+start = sel["start"]
+assert pts[0][1] == start and pts[0][3] == "start"
+seen = {}
+for order, k, ll, why, warm in pts:
+    if why.startswith("refine between "):
+        a, b = map(int, why[len("refine between "):].split(" and "))
+        assert a in seen and b in seen and a < k < b, why
+        # a warm start comes from the nearest k above, decided before
+        assert warm == b, (k, warm)
+        # the refined point is the geometric middle of its gap, rounded
+        assert abs(k - (a * b) ** 0.5) <= 1, (k, a, b)
+    elif why == "start":
+        assert warm == 0 and order == 1
+    else:
+        # from the nearest k above decided before, or seeds above them all
+        assert why in ("bracket", "walk up", "walk down", "extend past edge"), why
+        above = [x for x in seen if x > k]
+        assert warm == (min(above) if above else 0), (k, warm, above)
+    seen[k] = ll
+best = max(seen, key=lambda k: seen[k])
+assert best == sel["chosen"]
+ks = sorted(seen)
+i = ks.index(best)
+# the search ends with both gaps around the choice within one grid step
+# (ratio 1.25) unless the choice is at an end of what was tried
+if 0 < i < len(ks) - 1:
+    assert ks[i + 1] / best <= 1.25 + 1e-9 and best / ks[i - 1] <= 1.25 + 1e-9, ks
+# fewer fits than the grid asked for
+assert len(seen) < len(sel["grid"]), (len(seen), len(sel["grid"]))
+# the planted count (rows of planted.tsv minus the header): within 30%
+planted = sum(1 for _ in open(sys.argv[3])) - 1
+assert abs(best - planted) <= 0.3 * planted, (best, planted)
+PYEOF
+"$BIN" fit "$tmp/pl/edges.tsv" -k auto -j 1 -q -o "$tmp/sh1" 2>/dev/null
+cut -f1,2,6,10,11,12 "$tmp/sh/k-selection.tsv" >"$tmp/sh.sel"
+cut -f1,2,6,10,11,12 "$tmp/sh1/k-selection.tsv" >"$tmp/sh1.sel"
+check "shape search: the same points, order, scores and choice with -j 1" cmp -s "$tmp/sh.sel" "$tmp/sh1.sel"
+check "shape search: the final fit starts from seeds (trace.tsv begins at sweep 0)" \
+	[ "$(sed -n 2p "$tmp/sh/trace.tsv" | cut -f1)" = 0 ]
+"$BIN" fit "$tmp/pl/edges.tsv" -k auto --k-grid 10,20,40 -q -o "$tmp/shl" 2>/dev/null
+check "a list is scored in full even with one fold (search grid, 3 rows)" \
+	[ "$(json_get "$tmp/shl/run.json" k_selection.search)" = grid ] &&
+	[ "$(($(wc -l <"$tmp/shl/k-selection.tsv") - 1))" = 3 ]
 
 finish

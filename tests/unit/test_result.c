@@ -289,7 +289,7 @@ struct table {
 	char *text;
 	int nrows;
 	int nfields[64];
-	char *field[64][10];
+	char *field[64][16];
 };
 
 static void table_load(struct table *t, const char *path)
@@ -308,7 +308,7 @@ static void table_load(struct table *t, const char *path)
 		char *f = line;
 		for (;;) {
 			char *tab = strchr(f, '\t');
-			assert_true(nf < 10);
+			assert_true(nf < 16);
 			t->field[t->nrows][nf++] = f;
 			if (!tab)
 				break;
@@ -682,9 +682,9 @@ static void test_k_selection_and_link_check_are_recorded(void **state)
 	(void)state;
 	/* a made-up search of three k (values chosen here, not computed) */
 	struct select_point pts[3] = {
-		{ 2, -120.5, 0.625, 10, 0.25, 0.0, 1, 0 },
-		{ 4, -100.25, 0.75, 20, 0.5, 0.0, 1, 0 },
-		{ 8, -110.0, NAN, 30, 1.0, 0.0, 1, 0 },
+		{ 2, -120.5, 0.625, 10, 0.25, 0.0, 1, 0, 1, "grid", 0 },
+		{ 4, -100.25, 0.75, 20, 0.5, 0.0, 1, 0, 3, "refine between 2 and 8", 8 },
+		{ 8, -110.0, NAN, 30, 1.0, 0.0, 1, 0, 2, "grid", 0 },
 	};
 	struct select_result sel;
 	memset(&sel, 0, sizeof sel);
@@ -721,9 +721,13 @@ static void test_k_selection_and_link_check_are_recorded(void **state)
 	assert_int_equal(t.nrows, 4);
 	static const char *const head[] = { "k", "heldout_loglik", "heldout_auc", "sweeps",
 					    "seconds", "chosen", "folds", "heldout_loglik_sd",
-					    "grid" };
-	for (int i = 0; i < 9; i++)
+					    "grid", "order", "reason", "warm_from" };
+	assert_int_equal(t.nfields[0], 12);
+	for (int i = 0; i < 12; i++)
 		assert_string_equal(t.field[0][i], head[i]);
+	assert_string_equal(t.field[2][10], "refine between 2 and 8");
+	assert_string_equal(t.field[2][11], "8");
+	assert_string_equal(t.field[3][9], "2");
 	assert_string_equal(t.field[1][0], "2");
 	assert_true(num(t.field[1][1]) == -120.5);
 	assert_string_equal(t.field[1][2], "0.625000000"); /* %.9f */
@@ -742,8 +746,8 @@ static void test_k_selection_and_link_check_are_recorded(void **state)
 	static const char *const kkeys[] = { "criterion", "chosen", "grid", "held_out_share",
 					     "held_out_edges", "held_out_non_edges", "folds", "rule",
 					     "extended", "extension_bound", "chosen_at_edge",
-					     "scores" };
-	assert_keys(ks, kkeys, 12);
+					     "search", "start", "scores" };
+	assert_keys(ks, kkeys, 14);
 	assert_int_equal(json_integer_value(get(root, "k_selection", "chosen")), 4);
 	json_t *grid = get(root, "k_selection", "grid");
 	assert_int_equal(json_array_size(grid), 4);
@@ -751,8 +755,12 @@ static void test_k_selection_and_link_check_are_recorded(void **state)
 	json_t *scores = get(root, "k_selection", "scores");
 	assert_int_equal(json_array_size(scores), 3);
 	static const char *const skeys[] = { "k", "heldout_loglik", "heldout_auc", "sweeps",
-					     "seconds", "heldout_loglik_sd", "folds", "added" };
-	assert_keys(json_array_get(scores, 0), skeys, 8);
+					     "seconds", "heldout_loglik_sd", "folds", "added",
+					     "order", "reason", "warm_from" };
+	assert_keys(json_array_get(scores, 0), skeys, 11);
+	assert_true(json_is_null(json_object_get(json_array_get(scores, 0), "warm_from")));
+	assert_int_equal(json_integer_value(json_object_get(json_array_get(scores, 1),
+							    "warm_from")), 8);
 	assert_true(json_real_value(json_object_get(json_array_get(scores, 1), "heldout_loglik")) ==
 		    -100.25);
 	assert_true(json_is_null(json_object_get(json_array_get(scores, 2), "heldout_auc")));

@@ -51,7 +51,7 @@ static struct graph *cliques(uint32_t c, uint32_t s)
 static void test_grid_is_geometric_and_ends_at_kmax(void **state)
 {
 	(void)state;
-	struct select_params sp = { 2, 12, 0.1, 1.25, 0, { 0 } };
+	struct select_params sp = { 2, 12, 0.1, 1.25, 0, { 0 }, 0, 0, 0 };
 	uint32_t ks[SELECT_MAX_GRID];
 	uint32_t n = select_grid(&sp, ks);
 	/* worked by hand: 2, 2.5 -> 3 (rounded), 3.125 -> 3 (dropped, not
@@ -60,7 +60,7 @@ static void test_grid_is_geometric_and_ends_at_kmax(void **state)
 	assert_int_equal(n, 8);
 	for (uint32_t i = 0; i < n; i++)
 		assert_int_equal(ks[i], want[i]);
-	struct select_params one = { 5, 5, 0.1, 2.0, 0, { 0 } };
+	struct select_params one = { 5, 5, 0.1, 2.0, 0, { 0 }, 0, 0, 0 };
 	assert_int_equal(select_grid(&one, ks), 1);
 	assert_int_equal(ks[0], 5);
 }
@@ -68,7 +68,7 @@ static void test_grid_is_geometric_and_ends_at_kmax(void **state)
 static void test_grid_option_reads_ranges_ratios_and_lists(void **state)
 {
 	(void)state;
-	struct select_params sp = { 2, 100, 0.1, 1.25, 0, { 0 } };
+	struct select_params sp = { 2, 100, 0.1, 1.25, 0, { 0 }, 0, 0, 0 };
 	uint32_t ks[SELECT_MAX_GRID];
 	/* A:B keeps the ratio already set: 2:12 is the grid worked above */
 	assert_int_equal(select_grid_parse("2:12", &sp), 0);
@@ -99,7 +99,7 @@ static void test_grid_option_refuses_malformed_values(void **state)
 					   "2:8:x", "2:", ":8", "-2:8", "2:8:1e400", "", "1:2:3:4",
 					   "99999999999" };
 	for (size_t i = 0; i < sizeof bad / sizeof bad[0]; i++) {
-		struct select_params sp = { 2, 10, 0.1, 1.25, 0, { 0 } };
+		struct select_params sp = { 2, 10, 0.1, 1.25, 0, { 0 }, 0, 0, 0 };
 		assert_int_equal(select_grid_parse(bad[i], &sp), -1);
 	}
 }
@@ -328,10 +328,10 @@ static void test_bad_parameters_are_refused(void **state)
 	struct graph *g = test_planted_ring(&truth, 3);
 	struct fit_params p;
 	fit_params_default(&p);
-	struct select_params sp = { 5, 4, 0.1, 1.25, 0, { 0 } };
+	struct select_params sp = { 5, 4, 0.1, 1.25, 0, { 0 }, 0, 0, 0 };
 	struct select_result res;
 	assert_int_equal(select_k(g, &p, &sp, NULL, &res), -1);
-	sp = (struct select_params){ 2, 4, 0.9, 1.25, 0, { 0 } };
+	sp = (struct select_params){ 2, 4, 0.9, 1.25, 0, { 0 }, 0, 0, 0 };
 	assert_int_equal(select_k(g, &p, &sp, NULL, &res), -1);
 	cover_release(&truth);
 	graph_free(g);

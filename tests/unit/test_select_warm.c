@@ -1,0 +1,103 @@
+/*
+ * test_select_warm: the warm starts of -k auto's refinement
+ * (src/select_warm.c), on matrices small enough to work by hand: fewer
+ * columns drop the weakest (smallest column sum) and keep the others in
+ * order; more columns are refused (the caller seeds).
+ */
+#include "helpers.h"
+
+#include <stdlib.h>
+#include <string.h>
+
+#include "coterie/fcsr.h"
+#include "coterie/graph.h"
+#include "../../src/select-internal.h"
+
+/* A matrix of n rows from (row, column, value) triples given row by row,
+ * columns increasing within a row. */
+static void make_fcsr(struct fcsr *F, uint32_t n, uint32_t k, const double (*t)[3], uint32_t nt)
+{
+	F->n = n;
+	F->k = k;
+	F->off = calloc(n + 1, sizeof *F->off);
+	F->e = malloc(nt * sizeof *F->e);
+	F->colsum = calloc(k, sizeof *F->colsum);
+	assert_non_null(F->off);
+	assert_non_null(F->e);
+	assert_non_null(F->colsum);
+	for (uint32_t i = 0; i < nt; i++) {
+		uint32_t u = (uint32_t)t[i][0], c = (uint32_t)t[i][1];
+		F->e[i] = (struct fentry){ c, t[i][2] };
+		F->off[u + 1] = i + 1;
+		F->colsum[c] += t[i][2];
+	}
+	for (uint32_t u = 1; u <= n; u++)
+		if (F->off[u] < F->off[u - 1])
+			F->off[u] = F->off[u - 1];
+}
+
+/* The strength of u in column c of F (0 when absent). */
+static double at(const struct fcsr *F, uint32_t u, uint32_t c)
+{
+	for (uint64_t i = F->off[u]; i < F->off[u + 1]; i++)
+		if (F->e[i].c == c)
+			return F->e[i].v;
+	return 0.0;
+}
+
+/* Two triangles {0, 1, 2} and {3, 4, 5}, no link between them. */
+static struct graph *two_triangles(void)
+{
+	static const uint32_t pairs[] = { 0, 1, 0, 2, 1, 2, 3, 4, 3, 5, 4, 5 };
+	return graph_from_pairs(6, pairs, 6, NULL);
+}
+
+static void test_fewer_columns_drop_the_weakest_and_keep_the_order(void **state)
+{
+	(void)state;
+	struct graph *g = two_triangles();
+	/* column sums: c0 = 3, c1 = 0.5 (the weakest), c2 = 2 */
+	static const double t[][3] = { { 0, 0, 1 }, { 0, 1, 0.5 }, { 1, 0, 1 }, { 2, 0, 1 },
+				       { 3, 2, 1 }, { 4, 2, 1 } };
+	struct fcsr F, W;
+	make_fcsr(&F, 6, 3, t, 6);
+	assert_int_equal(select_warm_start(&F, g, 2, &W), 0);
+	assert_fcsr_sane(&W);
+	assert_int_equal(W.k, 2);
+	/* c0 stays 0, c2 becomes 1; node 0 loses its 0.5 in the dropped c1 */
+	assert_true(at(&W, 0, 0) == 1.0 && at(&W, 0, 1) == 0.0);
+	assert_true(at(&W, 3, 1) == 1.0 && at(&W, 4, 1) == 1.0);
+	assert_true(W.colsum[0] == 3.0 && W.colsum[1] == 2.0);
+	assert_int_equal(W.off[6], 5);
+	fcsr_release(&W);
+	fcsr_release(&F);
+	graph_free(g);
+}
+
+static void test_out_of_reach_and_same_k(void **state)
+{
+	(void)state;
+	struct graph *g = two_triangles();
+	static const double t[][3] = { { 0, 0, 1 }, { 1, 0, 1 } };
+	struct fcsr F, W;
+	make_fcsr(&F, 6, 1, t, 2);
+	/* more columns: no warm start (the caller seeds; select_warm.c says
+	 * why splitting was dropped) */
+	assert_int_equal(select_warm_start(&F, g, 2, &W), -1);
+	assert_null(W.e);
+	assert_int_equal(select_warm_start(&F, g, 1, &W), 0);
+	assert_int_equal(W.k, 1);
+	assert_true(at(&W, 1, 0) == 1.0);
+	fcsr_release(&W);
+	fcsr_release(&F);
+	graph_free(g);
+}
+
+int main(void)
+{
+	const struct CMUnitTest tests[] = {
+		cmocka_unit_test(test_fewer_columns_drop_the_weakest_and_keep_the_order),
+		cmocka_unit_test(test_out_of_reach_and_same_k),
+	};
+	return cmocka_run_group_tests(tests, NULL, NULL);
+}
