@@ -103,9 +103,11 @@ static int print_json(char **dirs, uint32_t nd, const struct cover *c, const dou
 		    &bad);
 	jsonout_set(root, "mean", jsonout_real(scored ? sum / scored : NAN), &bad);
 	jsonout_set(root, "communities", comms, &bad);
-	int rc = bad ? -1 : jsonout_print(root, stdout, CLI_JSON_FLAGS);
-	json_decref(root);
-	return rc;
+	if (bad) {
+		json_decref(root);
+		return -1;
+	}
+	return jsonout_print(root, stdout, CLI_JSON_FLAGS); /* takes root */
 }
 
 int cmd_agree(int argc, char **argv)
