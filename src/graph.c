@@ -325,8 +325,9 @@ struct graph *graph_load_with(const char *path, const struct graph_load_opts *o)
 		g = NULL;
 	}
 	if (g) {
-		notice("%s: %" PRIu32 " node%s, %" PRIu64 " edge%s", shown, g->n,
-		       g->n == 1 ? "" : "s", g->m, g->m == 1 ? "" : "s");
+		char size[160];
+		graph_describe(g, size, sizeof size);
+		notice("%s: %s", shown, size);
 		if (g->report.self_loops)
 			notice("%s: dropped %" PRIu64 " self-loop%s", shown, g->report.self_loops,
 			       g->report.self_loops == 1 ? "" : "s");

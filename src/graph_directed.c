@@ -21,11 +21,16 @@
  * whatever bytes the input's names hold, no two nodes collide.
  * graph_side_name() gives the name back without its tag.
  *
+ * Counts said to the user are of the nodes and arcs as given
+ * (graph_describe()), never of the copies.
+ *
  * The one thing a newcomer gets wrong: a self-arc u -> u joins two
  * different nodes of the bipartite graph (u and n + u); it is dropped here
  * (counted as a self-loop), since the pair (F_u, H_u) is no term of the
  * model (fit.c leaves it out as a held-out pair).
  */
+#include <inttypes.h>
+#include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 
@@ -148,6 +153,20 @@ const char *graph_side_name(const struct graph *g, uint32_t u, size_t *len)
 	}
 	*len = l;
 	return s;
+}
+
+void graph_describe(const struct graph *g, char *buf, size_t len)
+{
+	unsigned long long m = (unsigned long long)g->m;
+	if (!g->nsend)
+		snprintf(buf, len, "%" PRIu32 " node%s, %llu edge%s", g->n, g->n == 1 ? "" : "s", m,
+			 m == 1 ? "" : "s");
+	else if (g->paired)
+		snprintf(buf, len, "%" PRIu32 " node%s, %llu arc%s", g->nsend,
+			 g->nsend == 1 ? "" : "s", m, m == 1 ? "" : "s");
+	else
+		snprintf(buf, len, "%" PRIu32 " + %" PRIu32 " nodes of two kinds, %llu link%s",
+			 g->nsend, g->n - g->nsend, m, m == 1 ? "" : "s");
 }
 
 int graph_check_sides(const struct graph *g, uint32_t nsend, int paired, char *why, size_t len)

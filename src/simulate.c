@@ -36,6 +36,14 @@
  * they share, and corrected to 1 - prod (1 - p_c). A mean-degree target is
  * met by bisection on the common scale of p_c over this exact expectation.
  *
+ * Directed (--directed): the arcs v -> u, u < v, are a second draw of
+ * the same cover from streams of their own; the counts are of both draws.
+ * Two-mode (--two-mode): the cover is planted on all nodes of both kinds,
+ * each community then made to hold both kinds (simulate_cover.c), and
+ * step 4 draws only pairs of two kinds, a community's first-kind members
+ * against its second-kind ones (a rectangle, not a triangle, of pairs);
+ * the expectation counts those pairs only (simulate_expect.c).
+ *
  * The one thing a newcomer gets wrong: the pair decoder must step over
  * whole rows of the pair triangle (i -= j; j++) rather than compute square
  * roots, or rounding will skip or repeat pairs near row ends; and the
@@ -86,12 +94,20 @@ int simulate_params_check(const struct simulate_params *p)
 	if (p->n < 2 || p->n > SIMULATE_MAX_NODES)
 		return error("the number of nodes must be from 2 to %u, not %u", SIMULATE_MAX_NODES,
 			     p->n);
+	if (p->second && (p->second > SIMULATE_MAX_NODES - p->n))
+		return error("%u nodes of the first kind and %u of the second are more than %u",
+			     p->n, p->second, SIMULATE_MAX_NODES);
+	if (p->directed && p->weighted)
+		return error("a directed planted graph cannot have weights yet");
+	if (p->second && (p->directed || p->weighted))
+		return error("a two-mode planted graph cannot be directed or weighted");
+	uint32_t all = p->n + p->second; /* both kinds */
 	if (p->size_min < 2 || p->size_min > p->size_max)
 		return error("community sizes must satisfy 2 <= min <= max, not %u:%u", p->size_min,
 			     p->size_max);
-	if (p->size_max > p->n)
+	if (p->size_max > all)
 		return error("communities of up to %u members do not fit in %u nodes", p->size_max,
-			     p->n);
+			     all);
 	if (!(p->size_exponent >= 0.0 && p->size_exponent <= 100.0))
 		return error("the size exponent must be from 0 to 100");
 	if (!(p->overlap >= 0.0 && p->overlap <= 1.0))
@@ -101,7 +117,7 @@ int simulate_params_check(const struct simulate_params *p)
 			     SIMULATE_MAX_MEMBERSHIPS, p->max_memberships);
 	if (!(p->p_lo >= 0.0 && p->p_lo <= p->p_hi && p->p_hi <= 1.0))
 		return error("link probabilities must satisfy 0 <= low <= high <= 1");
-	if (!(p->mean_degree >= 0.0 && p->mean_degree < (double)p->n))
+	if (!(p->mean_degree >= 0.0 && p->mean_degree < (double)all))
 		return error("the mean degree must be from 0 to the number of nodes less one");
 	if (p->mean_degree > 0.0 && p->p_hi <= 0.0)
 		return error("a mean degree needs link probabilities above 0");
@@ -123,15 +139,36 @@ int simulate_params_check(const struct simulate_params *p)
 	if (p->k) {
 		if (p->k < cap)
 			cap = p->k;
-		if ((uint64_t)p->k * p->size_min > (uint64_t)p->n * cap)
+		if ((uint64_t)p->k * p->size_min > (uint64_t)all * cap)
 			return error("%u communities of at least %u members need more than %u nodes "
-				     "with at most %u memberships each", p->k, p->size_min, p->n, cap);
+				     "with at most %u memberships each", p->k, p->size_min, all, cap);
 	}
 	return 0;
 }
 
-/* The isolated nodes, and the edges whose ends share no community
- * (s->outside_edges). Returns 0 or -1. */
+/* The edges of keys[0 .. m) whose ends share no community, marking
+ * their ends in seen. */
+static uint64_t count_outside(const uint64_t *keys, uint64_t m, const uint64_t *noff,
+			      const uint32_t *ncom, uint8_t *seen)
+{
+	uint64_t outside = 0;
+	for (uint64_t i = 0; i < m; i++) {
+		uint32_t u = (uint32_t)(keys[i] >> 32), v = (uint32_t)(keys[i] & 0xffffffffu);
+		seen[u] = seen[v] = 1;
+		uint64_t a = noff[u], b = noff[v];
+		while (a < noff[u + 1] && b < noff[v + 1] && ncom[a] != ncom[b]) {
+			if (ncom[a] < ncom[b])
+				a++;
+			else
+				b++;
+		}
+		outside += !(a < noff[u + 1] && b < noff[v + 1]);
+	}
+	return outside;
+}
+
+/* The isolated nodes, and the edges (directed: arcs of both draws) whose
+ * ends share no community (s->outside_edges). Returns 0 or -1. */
 static int count_isolated_and_outside(struct simulate *s)
 {
 	uint32_t n = s->n;
@@ -142,19 +179,8 @@ static int count_isolated_and_outside(struct simulate *s)
 		free(seen);
 		return -1;
 	}
-	s->outside_edges = 0;
-	for (uint64_t i = 0; i < s->m; i++) {
-		uint32_t u = (uint32_t)(s->edges[i] >> 32), v = (uint32_t)(s->edges[i] & 0xffffffffu);
-		seen[u] = seen[v] = 1;
-		uint64_t a = noff[u], b = noff[v];
-		while (a < noff[u + 1] && b < noff[v + 1] && ncom[a] != ncom[b]) {
-			if (ncom[a] < ncom[b])
-				a++;
-			else
-				b++;
-		}
-		s->outside_edges += !(a < noff[u + 1] && b < noff[v + 1]);
-	}
+	s->outside_edges = count_outside(s->edges, s->m, noff, ncom, seen) +
+			   count_outside(s->back, s->mback, noff, ncom, seen);
 	s->isolated = 0;
 	for (uint32_t u = 0; u < n; u++)
 		s->isolated += !seen[u];
@@ -165,8 +191,11 @@ static int count_isolated_and_outside(struct simulate *s)
 /* A directed graph's arcs v -> u (u < v): a draw of the same cover and
  * probabilities from a stream of their own (the arcs u -> v are the usual
  * draw, made after this one), so the two directions of a pair are
- * independent and each has the AGM's probability. */
-static int draw_back(const struct simulate_params *p, struct simulate *out)
+ * independent and each has the AGM's probability. The draw's counts are
+ * kept in back_counts[4] (communities, background, duplicates, background
+ * alone) to be added to the other draw's. */
+static int draw_back(const struct simulate_params *p, struct simulate *out,
+		     uint64_t back_counts[4])
 {
 	struct simulate_params q = *p;
 	q.seed = p->seed ^ 0x5eed0fd1ec7edULL;
@@ -176,7 +205,24 @@ static int draw_back(const struct simulate_params *p, struct simulate *out)
 	out->mback = out->m;
 	out->edges = NULL;
 	out->m = 0;
+	back_counts[0] = out->drawn_communities;
+	back_counts[1] = out->drawn_background;
+	back_counts[2] = out->duplicates;
+	back_counts[3] = out->background_only;
 	return 0;
+}
+
+/* Directed: the counts and expectations of both directions' draws. */
+static void count_both_draws(struct simulate *s, const uint64_t back_counts[4])
+{
+	s->drawn_communities += back_counts[0];
+	s->drawn_background += back_counts[1];
+	s->duplicates += back_counts[2];
+	s->background_only += back_counts[3];
+	s->expected_edges *= 2.0;
+	s->expected_community_edges *= 2.0;
+	s->pairs_apart *= 2;
+	s->pairs *= 2.0;
 }
 
 int simulate_run(const struct simulate_params *p, struct simulate *out)
@@ -184,14 +230,20 @@ int simulate_run(const struct simulate_params *p, struct simulate *out)
 	memset(out, 0, sizeof *out);
 	if (simulate_params_check(p))
 		return -1;
-	out->n = p->n;
+	/* two-mode: the steps see all nodes of both kinds as n, the
+	 * second kind's count as q.second */
+	struct simulate_params q = *p;
+	q.n = p->n + p->second;
+	out->n = q.n;
+	out->n1 = p->second ? p->n : 0;
 	out->epsilon = p->epsilon;
-	if (p->directed && p->weighted)
-		return error("a directed planted graph cannot have weights yet");
-	int rc = simulate_plant_cover(p, out) || simulate_plant_probabilities(p, out) ||
-			 (p->directed && draw_back(p, out)) ||
-			 simulate_draw_edges(p, out) || count_isolated_and_outside(out) ||
-			 (p->weighted && simulate_draw_weights(p, out)) ? -1 : 0;
+	uint64_t back_counts[4] = { 0, 0, 0, 0 };
+	int rc = simulate_plant_cover(&q, out) || simulate_plant_probabilities(&q, out) ||
+			 (q.directed && draw_back(&q, out, back_counts)) ||
+			 simulate_draw_edges(&q, out) || count_isolated_and_outside(out) ||
+			 (q.weighted && simulate_draw_weights(&q, out)) ? -1 : 0;
+	if (!rc && q.directed)
+		count_both_draws(out, back_counts);
 	if (rc)
 		simulate_release(out); /* on failure out holds nothing */
 	return rc;

@@ -8,6 +8,11 @@
  * dealt[] tracks each node's communities so that a swap into an earlier
  * community is checked too. A newcomer's trap: the counts are nudged to
  * add up to the sizes before dealing, never after.
+ *
+ * Two-mode (p->second > 0): the dealing ignores the kinds; then
+ * both_kinds() swaps a member of each community holding one kind only
+ * with a member of the missing kind from another community that keeps it
+ * (memberships per node unchanged).
  */
 #include "simulate-internal.h"
 
@@ -302,6 +307,72 @@ static int plant_counts(const struct simulate_params *p, uint8_t *m, uint32_t *p
 	return nudge_counts(m, perm, n, &total, *want, cap, p->k ? p->overlap : 0.0);
 }
 
+/* Members of community c of cv below n1 (members are increasing). */
+static uint64_t first_kind_count(const struct cover *cv, uint32_t c, uint32_t n1)
+{
+	uint64_t lo = cv->off[c], hi = cv->off[c + 1];
+	while (lo < hi) {
+		uint64_t mid = lo + (hi - lo) / 2;
+		if (cv->mem[mid] < n1)
+			lo = mid + 1;
+		else
+			hi = mid;
+	}
+	return lo - cv->off[c];
+}
+
+static int holds(const struct cover *cv, uint32_t c, uint32_t u)
+{
+	const uint32_t *a = cv->mem + cv->off[c];
+	return bsearch(&u, a, cover_size(cv, c), sizeof *a, util_qsort_u32) != NULL;
+}
+
+/* Community c holds one kind only: swap one of its members with a member
+ * of the missing kind of another community that holds two of that kind
+ * or more, neither swapped node being already in the other community.
+ * Returns 0 or -1 when no community can spare one. */
+static int give_missing_kind(struct cover *cv, uint32_t c, uint32_t n1)
+{
+	uint64_t s = cover_size(cv, c), a = first_kind_count(cv, c, n1);
+	int want_first = a == 0;
+	for (uint32_t step = 1; step < cv->k; step++) {
+		uint32_t d = (c + step) % cv->k;
+		uint64_t da = first_kind_count(cv, d, n1), ds = cover_size(cv, d);
+		if ((want_first ? da : ds - da) < 2)
+			continue;
+		uint64_t y0 = cv->off[d] + (want_first ? 0 : da), y1 = want_first ? cv->off[d] + da :
+									       cv->off[d + 1];
+		for (uint64_t i = cv->off[c]; i < cv->off[c] + s; i++) {
+			if (holds(cv, d, cv->mem[i]))
+				continue;
+			for (uint64_t j = y0; j < y1; j++) {
+				if (holds(cv, c, cv->mem[j]))
+					continue;
+				uint32_t t = cv->mem[i];
+				cv->mem[i] = cv->mem[j];
+				cv->mem[j] = t;
+				qsort(cv->mem + cv->off[c], s, sizeof *cv->mem, util_qsort_u32);
+				qsort(cv->mem + cv->off[d], ds, sizeof *cv->mem, util_qsort_u32);
+				return 0;
+			}
+		}
+	}
+	return error("community %u of the planted cover holds one kind of node and no other "
+		     "community can spare one of the other kind (raise the smaller kind's count)",
+		     c);
+}
+
+/* Two-mode: every community holds both kinds (ids below n1, and not). */
+static int both_kinds(struct cover *cv, uint32_t n1)
+{
+	for (uint32_t c = 0; c < cv->k; c++) {
+		uint64_t a = first_kind_count(cv, c, n1);
+		if ((a == 0 || a == cover_size(cv, c)) && give_missing_kind(cv, c, n1))
+			return -1;
+	}
+	return 0;
+}
+
 /* Steps 1 to 3: fill s->truth. */
 int simulate_plant_cover(const struct simulate_params *p, struct simulate *s)
 {
@@ -336,6 +407,8 @@ int simulate_plant_cover(const struct simulate_params *p, struct simulate *s)
 	}
 	cv->mem = slot;
 	slot = NULL;
+	if (p->second && both_kinds(cv, n - p->second))
+		goto out;
 	s->overlapping = s->uncovered = 0;
 	for (uint32_t u = 0; u < n; u++) { /* m[u]: u's communities, all dealt */
 		s->overlapping += m[u] >= 2;

@@ -11,6 +11,10 @@
  * node ids below 2^31 leave room for it. A newcomer's
  * trap: the pair decoder steps over whole rows of the pair triangle
  * rather than computing square roots, which would skip or repeat pairs.
+ * Two-mode: a community's pairs are its first-kind members (ids below
+ * n1, first in its increasing list) against its second-kind ones, and
+ * the background's the rows 0 .. n1-1 against the columns n1 .. n-1:
+ * rectangles, decoded by row and column (draw_rect()).
  */
 #include "simulate-internal.h"
 
@@ -97,6 +101,54 @@ static int64_t draw_pairs(struct ebuf *b, struct rng *r, const uint32_t *ids, ui
 	return drawn;
 }
 
+/*
+ * The two-mode draw: each pair (rows[i], cols[j]), i in [i0, i1), j < nc,
+ * independently with probability prob, by geometric skips over the pair
+ * index t = (i - i0) nc + j. rows (cols) NULL: row (column) i is node
+ * rbase + i (cbase + j). Keys, tags and the return as draw_pairs().
+ */
+static int64_t draw_rect(struct ebuf *b, struct rng *r, const uint32_t *rows, uint64_t rbase,
+			 uint64_t i0, uint64_t i1, const uint32_t *cols, uint64_t cbase,
+			 uint64_t nc, double prob, uint64_t tag)
+{
+	if (prob <= 0.0 || i1 <= i0 || nc == 0)
+		return 0;
+	uint64_t total = (i1 - i0) * nc; /* below 2^62: ids below 2^31 */
+	double lq = prob < 1.0 ? log1p(-prob) : 0.0;
+	int64_t drawn = 0;
+	for (uint64_t t = 0;; t++) {
+		if (prob < 1.0) {
+			double skip = floor(log1p(-rng_uniform(r)) / lq);
+			if (!(skip < (double)(total - t)))
+				break;
+			t += (uint64_t)skip;
+		}
+		if (t >= total)
+			break;
+		uint64_t i = i0 + t / nc, j = t % nc;
+		uint64_t u = rows ? rows[i] : rbase + i, v = cols ? cols[j] : cbase + j;
+		if (ebuf_push(b, (u << 33) | (v << 1) | tag))
+			return -1;
+		drawn++;
+	}
+	return drawn;
+}
+
+/* Community c's pairs: the triangle of its members, or (two-mode, n1 >
+ * 0) the rectangle of its first-kind members against its others. */
+static int64_t draw_community(struct ebuf *b, struct rng *r, const struct cover *cv, uint32_t c,
+			      uint32_t n1, double prob)
+{
+	const uint32_t *mem = cv->mem + cv->off[c];
+	uint64_t s = cover_size(cv, c);
+	if (!n1)
+		return draw_pairs(b, r, mem, 0, s, prob, 0);
+	uint64_t a = 0;
+	while (a < s && mem[a] < n1)
+		a++;
+	return draw_rect(b, r, mem, 0, 0, a, mem + a, 0, s - a, prob, 0);
+}
+
 struct work {
 	const struct simulate_params *p;
 	const struct simulate *s;
@@ -127,15 +179,17 @@ static void *work_run(void *arg)
 		if (it < cv->k) {
 			uint32_t c = (uint32_t)it;
 			simulate_stream(&r, w->p->seed, S_COMMUNITY, c);
-			d = draw_pairs(b, &r, cv->mem + cv->off[c], 0, cover_size(cv, c), w->s->p[c],
-				       0);
+			d = draw_community(b, &r, cv, c, w->s->n1, w->s->p[c]);
 			if (d >= 0)
 				b->drawn_c += (uint64_t)d;
 		} else {
 			uint64_t sl = it - cv->k;
 			simulate_stream(&r, w->p->seed, S_BACKGROUND, sl);
-			d = draw_pairs(b, &r, NULL, w->bounds[sl], w->bounds[sl + 1], w->s->epsilon,
-				       1);
+			uint32_t n1 = w->s->n1;
+			d = n1 ? draw_rect(b, &r, NULL, 0, w->bounds[sl], w->bounds[sl + 1], NULL, n1,
+					   w->s->n - n1, w->s->epsilon, 1) :
+				 draw_pairs(b, &r, NULL, w->bounds[sl], w->bounds[sl + 1],
+					    w->s->epsilon, 1);
 			if (d >= 0)
 				b->drawn_b += (uint64_t)d;
 		}
@@ -196,11 +250,15 @@ int simulate_draw_edges(const struct simulate_params *p, struct simulate *s)
 	w->p = p;
 	w->s = s;
 	w->slices = s->epsilon > 0.0 ? BACKGROUND_SLICES : 0;
-	/* slices of rows holding about equal numbers of pairs */
+	/* slices of rows holding about equal numbers of pairs (two-mode:
+	 * every row of the first kind holds as many) */
+	uint32_t rows = s->n1 ? s->n1 : p->n;
 	for (uint32_t b = 0; b <= w->slices; b++)
-		w->bounds[b] = (uint64_t)llround((double)p->n * sqrt((double)b / BACKGROUND_SLICES));
+		w->bounds[b] = s->n1 ? (uint64_t)rows * b / BACKGROUND_SLICES :
+				       (uint64_t)llround((double)p->n *
+							 sqrt((double)b / BACKGROUND_SLICES));
 	if (w->slices)
-		w->bounds[w->slices] = p->n;
+		w->bounds[w->slices] = rows;
 	w->items = (uint64_t)s->k + w->slices;
 	atomic_init(&w->next, 0);
 	unsigned nt = p->threads;

@@ -7,6 +7,11 @@
  * communities are listed, grouped by the set they share (struct multi),
  * and corrected to 1 - prod (1 - p_c). A newcomer's trap: a shared set must
  * be counted once, in the group of its first two communities.
+ *
+ * Two-mode (s->n1 > 0): only pairs of two kinds count: a community gives
+ * a_c b_c pairs (its members of each kind), node types are split by kind,
+ * and two types share pairs only when of two kinds (never a type with
+ * itself); all pairs are n1 (n - n1).
  */
 #include "simulate-internal.h"
 
@@ -40,9 +45,22 @@ struct multi {
 	uint64_t *off;
 	uint32_t *ids;
 	uint64_t *count;
-	uint64_t *sizes2; /* per community C(size, 2) */
+	uint64_t *sizes2; /* per community C(size, 2); two-mode a_c b_c */
 	uint32_t k;
+	uint32_t n1;      /* two-mode: ids below are the first kind; else 0 */
 };
+
+/* Two-mode: 1 when u and v are of one kind (their pair is no pair). */
+static int same_kind(uint32_t n1, uint32_t u, uint32_t v)
+{
+	return n1 && (u < n1) == (v < n1);
+}
+
+/* The pairs that may be linked among n nodes. */
+static double all_pairs(const struct multi *mu, uint32_t n)
+{
+	return mu->n1 ? (double)mu->n1 * (double)(n - mu->n1) : (double)n * ((double)n - 1.0) / 2.0;
+}
 
 static void multi_release(struct multi *mu)
 {
@@ -179,14 +197,20 @@ static int node_lists(struct mwork *w, struct multi *mu, const struct cover *cv)
 	if (!mu->sizes2 || simulate_node_lists(cv, &w->noff, &w->ncom))
 		return -1;
 	for (uint32_t c = 0; c < k; c++) {
-		uint64_t sz = cover_size(cv, c);
-		mu->sizes2[c] = sz * (sz - (sz > 0)) / 2;
+		uint64_t sz = cover_size(cv, c), a = 0;
+		if (!mu->n1) {
+			mu->sizes2[c] = sz * (sz - (sz > 0)) / 2;
+			continue;
+		}
+		while (a < sz && cv->mem[cv->off[c] + a] < mu->n1)
+			a++;
+		mu->sizes2[c] = a * (sz - a);
 	}
 	return 0;
 }
 
 /* The types: overlapping nodes sorted by their sets. Returns 0 or -1. */
-static int node_types(struct mwork *w, uint32_t n)
+static int node_types(struct mwork *w, uint32_t n, uint32_t n1)
 {
 	const uint64_t *noff = w->noff;
 	const uint32_t *ncom = w->ncom;
@@ -220,7 +244,8 @@ static int node_types(struct mwork *w, uint32_t n)
 		if (ntype) {
 			uint32_t r = w->trep[ntype - 1];
 			uint64_t lu = noff[u + 1] - noff[u], lr = noff[r + 1] - noff[r];
-			same = lu == lr && !memcmp(ncom + noff[u], ncom + noff[r], lu * sizeof *ncom);
+			same = lu == lr && !memcmp(ncom + noff[u], ncom + noff[r], lu * sizeof *ncom) &&
+			       (!n1 || same_kind(n1, u, r));
 		}
 		if (same) {
 			w->tcnt[ntype - 1]++;
@@ -298,7 +323,7 @@ static int add_record(struct mwork *w, uint64_t pairs, const uint32_t *set, uint
 
 /* The sets shared by two types of the group tr[g .. h) (all holding c and
  * d), each counted once: in the group of its first two communities. */
-static int shared_sets(struct mwork *w, uint64_t g, uint64_t h)
+static int shared_sets(struct mwork *w, uint64_t g, uint64_t h, uint32_t n1)
 {
 	const struct trip *tr = w->tr;
 	const uint64_t *noff = w->noff;
@@ -306,6 +331,8 @@ static int shared_sets(struct mwork *w, uint64_t g, uint64_t h)
 	for (uint64_t i = g; i < h; i++)
 		for (uint64_t j = i; j < h; j++) {
 			uint32_t ta = tr[i].t, tb = tr[j].t, u = w->trep[ta], v = w->trep[tb];
+			if (same_kind(n1, u, v))
+				continue; /* two-mode: with itself too */
 			uint32_t set[SIMULATE_MAX_MEMBERSHIPS];
 			uint32_t ns = simulate_shared(noff, ncom, u, v, set);
 			if (set[0] != tr[g].c || set[1] != tr[g].d)
@@ -318,19 +345,20 @@ static int shared_sets(struct mwork *w, uint64_t g, uint64_t h)
 	return 0;
 }
 
-static int multi_build(struct multi *mu, const struct cover *cv)
+static int multi_build(struct multi *mu, const struct cover *cv, uint32_t n1)
 {
 	struct mwork w;
 	memset(mu, 0, sizeof *mu);
 	memset(&w, 0, sizeof w);
 	mu->k = cv->k;
+	mu->n1 = n1;
 	int rc = -1;
-	if (node_lists(&w, mu, cv) || node_types(&w, cv->n) || type_triples(&w))
+	if (node_lists(&w, mu, cv) || node_types(&w, cv->n, n1) || type_triples(&w))
 		goto out;
 	for (uint64_t g = 0, h; g < w.ntrip; g = h) {
 		for (h = g; h < w.ntrip && w.tr[h].c == w.tr[g].c && w.tr[h].d == w.tr[g].d; h++)
 			;
-		if (shared_sets(&w, g, h))
+		if (shared_sets(&w, g, h, n1))
 			goto out;
 	}
 	uint64_t nrec = rec_compress(w.rec, w.nrec), nids = 0;
@@ -373,14 +401,13 @@ static double multi_expected(const struct multi *mu, uint32_t n, const double *p
 		}
 		corr += (double)mu->count[i] * ((1.0 - prod) - sum);
 	}
-	double pairs = (double)n * ((double)n - 1.0) / 2.0;
-	return eps * pairs + (1.0 - eps) * (one + corr);
+	return eps * all_pairs(mu, n) + (1.0 - eps) * (one + corr);
 }
 
 double simulate_expected_edges(const struct cover *c, const double *p, double epsilon)
 {
 	struct multi mu;
-	if (multi_build(&mu, c))
+	if (multi_build(&mu, c, 0))
 		return -1.0;
 	double e = multi_expected(&mu, c->n, p, epsilon);
 	multi_release(&mu);
@@ -419,7 +446,7 @@ static int solve_scale(const struct multi *mu, uint32_t n, const double *w, doub
 	for (uint32_t c = 0; c < k; c++)
 		pc[c] = fmin(1.0, hi * w[c]);
 	double top = multi_expected(mu, n, pc, eps);
-	double bottom = eps * n * (n - 1.0) / 2.0;
+	double bottom = eps * all_pairs(mu, n);
 	if (top < target)
 		return error("%s of %g is out of reach: these communities give at most %.6g (%s)",
 			     what, 2.0 * target / n, 2.0 * top / n,
@@ -462,12 +489,13 @@ int simulate_plant_probabilities(const struct simulate_params *p, struct simulat
 		for (uint32_t c = 0; c < k; c++)
 			w[c] /= (double)cover_size(&s->truth, c) - 1.0; /* sizes >= 2 */
 	struct multi mu;
-	if (multi_build(&mu, &s->truth)) {
+	if (multi_build(&mu, &s->truth, s->n1)) {
 		free(w);
 		return -1;
 	}
 	int rc = 0, mixing = p->mixing >= 0.0;
-	double pairs = (double)p->n * ((double)p->n - 1.0) / 2.0;
+	double pairs = all_pairs(&mu, p->n);
+	s->pairs = pairs;
 	s->scale = 1.0;
 	if (p->mean_degree > 0.0) {
 		double target = p->mean_degree * p->n / 2.0;
@@ -488,7 +516,8 @@ int simulate_plant_probabilities(const struct simulate_params *p, struct simulat
 		s->p[c] = fmin(1.0, s->scale * w[c]);
 	s->expected_edges = multi_expected(&mu, p->n, s->p, s->epsilon);
 	s->expected_community_edges = multi_expected(&mu, p->n, s->p, 0.0);
-	s->pairs_apart = (uint64_t)p->n * (p->n - 1) / 2 - multi_pairs_together(&mu);
+	s->pairs_apart = (s->n1 ? (uint64_t)s->n1 * (p->n - s->n1) : (uint64_t)p->n * (p->n - 1) / 2) -
+			 multi_pairs_together(&mu);
 	if (!rc && s->expected_edges > SIMULATE_MAX_EDGES)
 		rc = error("the model expects %.4g edges; at most %.3g can be drawn (lower the "
 			   "link probabilities, the mean degree or epsilon)", s->expected_edges,

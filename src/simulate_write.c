@@ -8,6 +8,12 @@
  * (atomicfile_room()), the bulk of a large graph's writing time. A
  * newcomer's trap: a prefix is checked (simulate_prefix_check()) before
  * anything is written, so that every name reads back as one token.
+ *
+ * Two-mode: ids 0 .. n1-1 are the first kind, n1 .. n-1 the second, so
+ * names never repeat across kinds and read back as `fit --two-mode`
+ * names the nodes (without its side tag); edges.tsv has the first kind
+ * in its first column, and truth.tsv a third column, kind (first or
+ * second), so that a score can be taken on each side.
  */
 #include "simulate-internal.h"
 
@@ -101,9 +107,15 @@ static int fill_edges(struct atomicfile *w, const void *arg)
 {
 	const struct planted_args *a = arg;
 	const struct simulate *s = a->s;
-	atomicfile_printf(w, "# coterie simulate: planted AGM, %u nodes, %" PRIu64 " %s, "
-			  "%u communities, seed %" PRIu64 "\n", s->n, s->m + s->mback,
-			  s->back ? "arcs" : "edges", s->k, a->p->seed);
+	if (s->n1)
+		atomicfile_printf(w, "# coterie simulate: planted two-mode AGM, %u + %u nodes "
+				  "(first column: ids below %u), %" PRIu64 " links, %u communities, "
+				  "seed %" PRIu64 "\n", s->n1, s->n - s->n1, s->n1, s->m, s->k,
+				  a->p->seed);
+	else
+		atomicfile_printf(w, "# coterie simulate: planted AGM, %u nodes, %" PRIu64 " %s, "
+				  "%u communities, seed %" PRIu64 "\n", s->n, s->m + s->mback,
+				  s->back ? "arcs" : "edges", s->k, a->p->seed);
 	size_t line = 2 * (a->plen + 10) + 2;
 	for (uint64_t i = 0; i < s->m; i++) {
 		char *q = atomicfile_room(w, line), *q0 = q;
@@ -133,14 +145,20 @@ static int fill_truth(struct atomicfile *w, const void *arg)
 {
 	const struct planted_args *a = arg;
 	const struct cover *cv = &a->s->truth;
-	size_t line = a->plen + 10 + 1 + 10 + 1;
-	atomicfile_str(w, "node\tcommunity\n");
+	uint32_t n1 = a->s->n1;
+	size_t line = a->plen + 10 + 1 + 10 + sizeof "\tsecond\n";
+	atomicfile_str(w, n1 ? "node\tcommunity\tkind\n" : "node\tcommunity\n");
 	for (uint32_t c = 0; c < cv->k; c++)
 		for (uint64_t i = cv->off[c]; i < cv->off[c + 1]; i++) {
 			char *q = atomicfile_room(w, line), *q0 = q;
 			q = put_name(q, a->prefix, a->plen, cv->mem[i]);
 			*q++ = '\t';
 			q = put_u32(q, c);
+			if (n1) {
+				const char *kind = cv->mem[i] < n1 ? "\tfirst" : "\tsecond";
+				memcpy(q, kind, strlen(kind));
+				q += strlen(kind);
+			}
 			*q++ = '\n';
 			atomicfile_advance(w, (size_t)(q - q0));
 		}
@@ -168,7 +186,7 @@ static int fill_json(struct atomicfile *w, const void *arg)
  * struct simulate), expected and drawn. Returns 0 or -1. */
 static int add_mixing(json_t *root, const struct simulate *s, const struct simulate_params *p)
 {
-	double pairs = (double)s->n * ((double)s->n - 1.0) / 2.0, m = s->m ? (double)s->m : 1.0;
+	double pairs = s->pairs, written = (double)(s->m + s->mback), m = written > 0 ? written : 1.0;
 	double e = s->expected_edges > 0.0 ? s->expected_edges : 1.0;
 	json_t *mix = json_pack(
 		"{s:f, s:f, s:f, s:f, s:f, s:I, s:f, s:f, s:I}",
@@ -191,6 +209,17 @@ static int add_mixing(json_t *root, const struct simulate *s, const struct simul
 	    json_object_set_new(par, "mixing", json_real(p->mixing)))
 		return -1;
 	return 0;
+}
+
+/* simulate.json's "two_mode" (with --two-mode only): the kinds' counts and
+ * id ranges. */
+static int add_two_mode(json_t *root, const struct simulate *s)
+{
+	json_t *tj = json_pack("{s:I, s:I, s:s}", "first", (json_int_t)s->n1, "second",
+			       (json_int_t)(s->n - s->n1), "ids",
+			       "first kind below 'first', in edges.tsv's first column; "
+			       "truth.tsv's third column names the kind");
+	return !tj || json_object_set_new(root, "two_mode", tj) ? -1 : 0;
 }
 
 /* simulate.json's "weights" (with --weighted only, so an unweighted
@@ -217,6 +246,10 @@ static char *simulate_json(const struct simulate *s, const struct simulate_param
 	}
 	if (s->k == 0)
 		pmin = pmax = 0.0;
+	/* directed: every arc written, and the mean out-degree (= in-degree),
+	 * which is what --mean-degree asked of each direction */
+	uint64_t written = s->m + s->mback;
+	double per_node = s->back ? 1.0 : 2.0;
 	char *cmd = meta && meta->command_line ? util_escape_dup(meta->command_line, 1) : NULL;
 	char *pre = util_escape_dup(meta && meta->prefix ? meta->prefix : "", 1);
 	json_t *root = json_pack(
@@ -247,11 +280,11 @@ static char *simulate_json(const struct simulate *s, const struct simulate_param
 		"memberships", (json_int_t)s->truth.off[s->k],
 		"overlapping_nodes", (json_int_t)s->overlapping,
 		"uncovered_nodes", (json_int_t)s->uncovered,
-		"edges", (json_int_t)s->m,
+		"edges", (json_int_t)written,
 		"isolated_nodes", (json_int_t)s->isolated,
-		"mean_degree", 2.0 * (double)s->m / s->n,
+		"mean_degree", per_node * (double)written / s->n,
 		"expected_edges", s->expected_edges,
-		"expected_mean_degree", 2.0 * s->expected_edges / s->n,
+		"expected_mean_degree", per_node * s->expected_edges / s->n,
 		"p_scale", s->scale,
 		"pairs_drawn_by_communities", (json_int_t)s->drawn_communities,
 		"pairs_drawn_by_background", (json_int_t)s->drawn_background,
@@ -266,6 +299,10 @@ static char *simulate_json(const struct simulate *s, const struct simulate_param
 	free(cmd);
 	free(pre);
 	if (root && p->mixing >= 0.0 && add_mixing(root, s, p)) {
+		json_decref(root);
+		root = NULL;
+	}
+	if (root && s->n1 && add_two_mode(root, s)) {
 		json_decref(root);
 		root = NULL;
 	}

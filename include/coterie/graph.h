@@ -141,6 +141,10 @@ int graph_side_of(const struct graph *g, uint32_t u);
 /* u's name without its side's tag: the pointer (borrowed, as
  * graph_name()) and its length in *len (not NUL-terminated there). */
 const char *graph_side_name(const struct graph *g, uint32_t u, size_t *len);
+/* The size of g as the user gave it, into buf (len bytes, truncated):
+ * "N nodes, M edges"; directed, "N nodes, M arcs" (not the 2N copies);
+ * two-mode, "A + B nodes of two kinds, M links". */
+void graph_describe(const struct graph *g, char *buf, size_t len);
 /* 0 when g can be two-sided with nsend senders (paired: a directed graph,
  * n = 2 nsend), every edge joining a sender to a receiver; else -1 with
  * what is wrong in why (len bytes). For readers of saved graphs. */

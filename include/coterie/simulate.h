@@ -54,6 +54,14 @@ struct simulate_params {
 				   * own from the same cover (simulate.c), so
 				   * P(u -> v) is the AGM's P(u, v); not with
 				   * weighted */
+	uint32_t second;          /* > 0: a two-mode graph: n nodes of the first
+				   * kind (ids 0 .. n-1) and this many of the
+				   * second (ids n .. n+second-1); the cover is
+				   * planted on all n + second nodes, every
+				   * community holds both kinds, and only pairs
+				   * of two kinds are linked (simulate.c); sizes,
+				   * mean degree and mixing count all nodes; not
+				   * with directed or weighted */
 	uint64_t seed;
 	unsigned threads;         /* >= 1; the result does not depend on it */
 };
@@ -74,8 +82,9 @@ int simulate_params_check(const struct simulate_params *p);
  *     community with at least 2 members and no node twice;
  *   - p[c] in [0, 1] for every community;
  *   - edges[0 .. m) are keys (u << 32) | v with u < v < n, strictly
- *     increasing (so sorted by u, then v, with no duplicate);
- *   - drawn_communities + drawn_background == m + duplicates;
+ *     increasing (so sorted by u, then v, with no duplicate); two-mode:
+ *     u < n1 <= v;
+ *   - drawn_communities + drawn_background == m + mback + duplicates;
  *   - outside_edges <= background_only <= m.
  *
  * Background edges. The background overlaps the communities (a pair in a
@@ -89,7 +98,12 @@ int simulate_params_check(const struct simulate_params *p);
  * probability epsilon.
  */
 struct simulate {
-	uint32_t n, k;
+	uint32_t n, k;            /* n: all nodes (two-mode: both kinds) */
+	uint32_t n1;              /* two-mode: ids below n1 are the first kind;
+				   * 0 otherwise */
+	double pairs;             /* the pairs that may be linked: n(n-1)/2;
+				   * directed, ordered: n(n-1); two-mode, the
+				   * pairs of two kinds: n1 (n - n1) */
 	struct cover truth;       /* the planted memberships; owned */
 	double *p;                /* k link probabilities; owned */
 	double epsilon;
@@ -107,6 +121,8 @@ struct simulate {
 	uint64_t overlapping;       /* nodes in two or more communities */
 	uint64_t uncovered;         /* nodes in none */
 	uint64_t isolated;          /* nodes with no edge (absent from edges.tsv) */
+	/* Directed: the counts from here on (and m + mback against the
+	 * drawn and duplicate counts) are of both directions' draws. */
 	double expected_edges;      /* sum over all pairs of P(u, v), exactly */
 	double expected_community_edges; /* the same with epsilon 0 */
 	uint64_t pairs_apart;       /* node pairs sharing no community, exactly */

@@ -852,10 +852,16 @@ int cli_fit_in_group(int argc, char **argv, const struct cli_group *grp)
 		goto out;
 	if (r->check.held)
 		fit_exclude(r->f, r->check.held);
-	if (!r->quiet)
+	if (!r->quiet && r->graph->nsend) { /* the nodes and arcs given, not the copies */
+		char size[160];
+		graph_describe(r->graph, size, sizeof size);
+		notice("fitting %u communities on %s with %u thread%s", r->p.k, size, r->p.threads,
+		       r->p.threads == 1 ? "" : "s");
+	} else if (!r->quiet) {
 		notice("fitting %u communities on %u nodes and %llu edges with %u thread%s",
 		       r->p.k, r->graph->n, (unsigned long long)r->graph->m, r->p.threads,
 		       r->p.threads == 1 ? "" : "s");
+	}
 	if (grp)
 		grp->share(grp->arg, r->f);
 	if (!agreed(r, 1) || fit_start(r->f))

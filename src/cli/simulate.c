@@ -56,6 +56,11 @@ static void simulate_usage(FILE *out)
 		"                          2011), given that it is above zero; a third column\n"
 		"      --directed          arcs: each direction of a pair drawn on its own with\n"
 		"                          the pair's probability (for fit --directed)\n"
+		"      --two-mode M        two kinds of node (for fit --two-mode): -n nodes of\n"
+		"                          the first kind, M of the second (named after the\n"
+		"                          first: ids N .. N+M-1); every community holds both\n"
+		"                          kinds; only pairs of two kinds are linked; the\n"
+		"                          sizes, mean degree and mixing count all nodes"
 		"      --prefix STR        node names STR0, STR1, ... (default: 0, 1, ...)\n"
 		"  -o, --output DIR        folder to write (made if missing; required)\n"
 		"      --force             replace a planted graph already in DIR\n"
@@ -110,6 +115,7 @@ enum {
 	OPT_MIXING,
 	OPT_WEIGHTED,
 	OPT_DIRECTED,
+	OPT_TWO_MODE,
 };
 
 /* The command line. */
@@ -137,6 +143,7 @@ static int parse_args(struct sim_args *a, int argc, char **argv)
 		{ "mixing", required_argument, NULL, OPT_MIXING },
 		{ "weighted", no_argument, NULL, OPT_WEIGHTED },
 		{ "directed", no_argument, NULL, OPT_DIRECTED },
+		{ "two-mode", required_argument, NULL, OPT_TWO_MODE },
 		{ "prefix", required_argument, NULL, OPT_PREFIX },
 		{ "output", required_argument, NULL, 'o' },
 		{ "force", no_argument, NULL, OPT_FORCE },
@@ -186,6 +193,9 @@ static int parse_args(struct sim_args *a, int argc, char **argv)
 		case OPT_MIXING: p->mixing = cli_double("--mixing", optarg, 0.0, 0.999); break;
 		case OPT_WEIGHTED: p->weighted = 1; break;
 		case OPT_DIRECTED: p->directed = 1; break;
+		case OPT_TWO_MODE:
+			p->second = cli_u32("--two-mode", optarg, 1, SIMULATE_MAX_NODES);
+			break;
 		case OPT_PREFIX: a->prefix = optarg; break;
 		case 'o': a->out = optarg; break;
 		case OPT_FORCE: a->force = 1; break;
@@ -211,8 +221,9 @@ static int parse_args(struct sim_args *a, int argc, char **argv)
 	if (p->mixing >= 0.0 && !(p->mean_degree > 0.0))
 		die(EXIT_USAGE, "--mixing needs a mean degree to share out (--mean-degree D, above 0)");
 	if (!have_sizes) {
-		if (p->size_max > p->n)
-			p->size_max = p->n;
+		uint64_t all = (uint64_t)p->n + p->second;
+		if (p->size_max > all)
+			p->size_max = (uint32_t)all;
 		if (p->size_min > p->size_max)
 			p->size_min = p->size_max;
 	}
@@ -224,21 +235,26 @@ static int parse_args(struct sim_args *a, int argc, char **argv)
 static void say_planted(const struct simulate *s, const struct simulate_params *p,
 			const char *out, double seconds, double t_written)
 {
-	char buf[512];
+	char buf[512], on[96];
+	uint64_t written = s->m + s->mback; /* directed: both directions */
+	if (s->n1)
+		snprintf(on, sizeof on, "%u + %u nodes of two kinds", s->n1, s->n - s->n1);
+	else
+		snprintf(on, sizeof on, "%u nodes", s->n);
 	notice("planted %u communities (%" PRIu64 " memberships, %" PRIu64
-	       " nodes in two or more) on %u nodes and drew %" PRIu64
-	       " edges (expected %.1f, mean degree %.3g) in %.1f s; written to '%s' in "
-	       "%.1f s",
-	       s->k, s->truth.off[s->k], s->overlapping, s->n, s->m, s->expected_edges,
-	       2.0 * (double)s->m / s->n, seconds, util_escape(out, buf, sizeof buf, 1),
-	       util_now() - t_written);
+	       " nodes in two or more) on %s and drew %" PRIu64
+	       " %s (expected %.1f, mean %s %.3g) in %.1f s; written to '%s' in %.1f s",
+	       s->k, s->truth.off[s->k], s->overlapping, on, written,
+	       s->back ? "arcs" : s->n1 ? "links" : "edges", s->expected_edges,
+	       s->back ? "out-degree" : "degree", (s->back ? 1.0 : 2.0) * (double)written / s->n,
+	       seconds, util_escape(out, buf, sizeof buf, 1), util_now() - t_written);
 	if (p->mixing >= 0.0)
 		notice("mixing %g: background epsilon %.6g; %.4f of the edges drawn by the "
 		       "background alone (expected %.4f), %.4f join nodes sharing no community",
-		       p->mixing, s->epsilon, s->m ? (double)s->background_only / s->m : 0.0,
+		       p->mixing, s->epsilon, written ? (double)s->background_only / written : 0.0,
 		       s->expected_edges > 0.0 ? (s->expected_edges - s->expected_community_edges) /
 						  s->expected_edges : 0.0,
-		       s->m ? (double)s->outside_edges / s->m : 0.0);
+		       written ? (double)s->outside_edges / written : 0.0);
 	if (s->isolated)
 		notice("%" PRIu64 " nodes have no edge and are absent from '%s'", s->isolated,
 		       SIMULATE_EDGES);

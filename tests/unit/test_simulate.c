@@ -40,7 +40,8 @@ static void assert_simulate_sane(const struct simulate *s)
 		if (i)
 			assert_true(s->edges[i - 1] < s->edges[i]);
 	}
-	assert_true(s->drawn_communities + s->drawn_background == s->m + s->duplicates);
+	assert_true(s->drawn_communities + s->drawn_background ==
+		    s->m + s->mback + s->duplicates);
 }
 
 static void sim(struct simulate *s, const struct simulate_params *p)
@@ -776,6 +777,49 @@ static void test_mixing_is_refused_with_epsilon_or_without_mean_degree(void **st
 	assert_int_equal(simulate_run(&q, &s), -1);
 }
 
+/* Two-mode: every community holds both kinds, every edge joins the two
+ * kinds, the expectation is the definition summed over the pairs of two
+ * kinds (and pairs_apart counted there), and threads change nothing. */
+static void test_two_mode_links_only_kinds_with_exact_expectation(void **state)
+{
+	(void)state;
+	struct simulate_params p;
+	params_overlapping(&p, 12);
+	p.n = 350;
+	p.second = 250;
+	struct simulate s, t;
+	sim(&s, &p);
+	assert_int_equal(s.n, 600);
+	assert_int_equal(s.n1, 350);
+	for (uint32_t c = 0; c < s.k; c++) {
+		const uint32_t *mem = s.truth.mem + s.truth.off[c];
+		uint32_t sz = cover_size(&s.truth, c);
+		assert_true(mem[0] < 350 && mem[sz - 1] >= 350); /* both kinds */
+	}
+	for (uint64_t i = 0; i < s.m; i++)
+		assert_true((s.edges[i] >> 32) < 350 && (s.edges[i] & 0xffffffffu) >= 350);
+	struct memb mb;
+	memb_build(&mb, &s.truth);
+	double e = 0.0;
+	uint64_t apart = 0;
+	for (uint32_t u = 0; u < 350; u++)
+		for (uint32_t v = 350; v < 600; v++) {
+			e += pair_prob(&mb, s.p, p.epsilon, u, v);
+			apart += !shares_any(&mb, u, v);
+		}
+	/* the definition summed over the 350 x 250 pairs of two kinds */
+	assert_true(fabs(s.expected_edges - e) <= 1e-9 * e);
+	assert_int_equal(s.pairs_apart, apart);
+	assert_true(s.pairs == 350.0 * 250.0);
+	p.threads = 1;
+	sim(&t, &p);
+	assert_int_equal(t.m, s.m);
+	assert_memory_equal(t.edges, s.edges, s.m * sizeof *s.edges);
+	memb_free(&mb);
+	simulate_release(&s);
+	simulate_release(&t);
+}
+
 static void test_same_seed_same_graph_whatever_the_threads(void **state)
 {
 	(void)state;
@@ -935,6 +979,7 @@ int main(void)
 		cmocka_unit_test(test_same_seed_same_graph_whatever_the_threads),
 		cmocka_unit_test(test_written_files_read_back),
 		cmocka_unit_test(test_planted_graph_is_recovered_by_the_fit),
+		cmocka_unit_test(test_two_mode_links_only_kinds_with_exact_expectation),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
