@@ -130,7 +130,12 @@ void pane_edges_draw(const struct view *v, WINDOW *w)
 		else
 			draw_text(w, y, x + nw + 1, v->utf8 ? "\u00b7" : "-", 1);
 		draw_text(w, y, xv, b, nw);
+		/* fewer digits rather than a number cut short by the column */
 		snprintf(pr, sizeof pr, "%.3g", p->prob);
+		if (draw_width(pr) > pw)
+			snprintf(pr, sizeof pr, "%.2g", p->prob);
+		if (draw_width(pr) > pw)
+			snprintf(pr, sizeof pr, "%.0e", p->prob);
 		int prw = draw_width(pr);
 		draw_text(w, y, xp + pw - prw, pr, pw);
 		wattroff(w, at);
