@@ -454,6 +454,9 @@ static int parse_args(struct run *r, int argc, char **argv)
 		die(EXIT_USAGE, "--repeats cannot be used when resuming (it makes new fits)");
 	if (r->repeats > 1 && r->grp)
 		die(EXIT_USAGE, "--repeats is not yet available across processes");
+	if (r->repeats > 1 && (o->p.model == MODEL_DIRECTED || o->p.model == MODEL_TWO_MODE))
+		die(EXIT_USAGE, "--repeats is not yet available with --directed or --two-mode "
+				"(their communities.tsv has no stability column yet)");
 	if (r->repeats <= 1)
 		r->repeats = 0;
 	cli_model_can(&o->p, o->k_auto, r->check_links > 0, r->refine);
