@@ -137,6 +137,7 @@ int background_choose(const struct graph *g, const struct fit_params *p, int (*s
 			break;
 		}
 	}
+	out->chosen = best;
 	out->epsilon = out->cand[best].epsilon;
 	return 0;
 }

@@ -61,6 +61,7 @@ struct background_choice {
 	double epsilon;   /* the choice */
 	uint32_t linked;  /* nodes with at least one link */
 	uint32_t ncand;
+	uint32_t chosen;  /* the candidate kept (rule coverage) */
 	struct background_candidate cand[BACKGROUND_MAX_CAND];
 };
 

@@ -519,10 +519,7 @@ static int choose_background(struct run *r)
 	if (r->bg.rule == BACKGROUND_COVERAGE) {
 		p->epsilon = r->bg.epsilon;
 		if (!r->quiet) {
-			const struct background_candidate *c = &r->bg.cand[r->bg.ncand - 1];
-			for (uint32_t i = 0; i < r->bg.ncand; i++)
-				if (r->bg.cand[i].epsilon == r->bg.epsilon)
-					c = &r->bg.cand[i];
+			const struct background_candidate *c = &r->bg.cand[r->bg.chosen];
 			notice("epsilon %.4g (%g x the density): %u of %u linked nodes covered "
 			       "after %u trial fit%s; the trials are in run.json", c->epsilon,
 			       c->multiple, c->covered, r->bg.linked, r->bg.ncand,

@@ -13,6 +13,7 @@
 #include "coterie/graph.h"
 #include "coterie/model.h"
 #include "coterie/rng.h"
+#include "coterie/sweep.h"
 #include "coterie/util.h"
 
 void assert_graph_sane(const struct graph *g)
@@ -235,4 +236,28 @@ struct snapshot *test_fit_to_end(const struct graph *g, const struct fit_params 
 	assert_non_null(s);
 	fit_free(f);
 	return s;
+}
+
+double test_sweeps_sum_exactly(struct model *m, const struct graph *g,
+			       const struct objective_ops *ops, unsigned threads,
+			       double (*recompute)(const struct model *, const struct graph *),
+			       double rel, struct fcsr *out)
+{
+	struct sweep *s = sweep_new(m, g, ops, threads);
+	assert_non_null(s);
+	sweep_pool_start(s);
+	double ll = sweep_objective(s);
+	for (uint64_t k = 0; k < 6; k++) {
+		double before = ll;
+		assert_int_equal(sweep_run(s, 7 + k, NULL, NULL, &ll), 0);
+		double again = recompute(m, g);
+		assert_true(fabs(ll - again) <= rel * fabs(again)); /* sweep.c */
+		assert_true(ll >= before - 1e-12 * fabs(before));
+	}
+	assert_model_sane(m);
+	sweep_pool_stop(s);
+	sweep_free(s);
+	assert_int_equal(model_export(m, out), 0);
+	model_release(m);
+	return ll;
 }

@@ -22,6 +22,17 @@ void assert_model_sane(const struct model *m);
 void assert_cover_sane(const struct cover *c);
 void assert_fcsr_sane(const struct fcsr *f);
 
+struct objective_ops;
+
+/* Six sweeps of m (seeded by the caller) on g with ops and threads, each
+ * checked: the summed log-likelihood equals recompute(m, g) within rel
+ * (sweep.c's summing) and never falls; then m is exported into out and
+ * released. Returns the last log-likelihood. */
+double test_sweeps_sum_exactly(struct model *m, const struct graph *g,
+			       const struct objective_ops *ops, unsigned threads,
+			       double (*recompute)(const struct model *, const struct graph *),
+			       double rel, struct fcsr *out);
+
 /* Path of a file under tests/data (static buffer; copy if you keep it). */
 const char *test_data(const char *rel);
 /* A fresh empty temporary folder (static buffer), removed by nothing:

@@ -227,22 +227,8 @@ static double sweeps(const struct graph *g, unsigned threads, struct fcsr *out)
 	struct seed_report rep;
 	sided_model(&m, g, 20, 0.002, &sp, &view);
 	assert_int_equal(model_directed_seed(g, view, &m, 5, 0, &rep), 0);
-	struct sweep *s = sweep_new(&m, g, model_objective_of(MODEL_DIRECTED), threads);
-	assert_non_null(s);
-	sweep_pool_start(s);
-	double ll = sweep_objective(s);
-	for (uint64_t k = 0; k < 6; k++) {
-		double before = ll;
-		assert_int_equal(sweep_run(s, 7 + k, NULL, NULL, &ll), 0);
-		double again = model_directed_loglik_pairs(&m, g);
-		assert_true(fabs(ll - again) <= 1e-10 * fabs(again)); /* sweep.c */
-		assert_true(ll >= before - 1e-12 * fabs(before));
-	}
-	assert_model_sane(&m);
-	sweep_pool_stop(s);
-	sweep_free(s);
-	assert_int_equal(model_export(&m, out), 0);
-	model_release(&m);
+	double ll = test_sweeps_sum_exactly(&m, g, model_objective_of(MODEL_DIRECTED), threads,
+					    model_directed_loglik_pairs, 1e-10, out);
 	graph_free(sp);
 	graph_free(view);
 	return ll;

@@ -221,23 +221,8 @@ static double sweeps(const struct graph *g, unsigned threads, struct fcsr *out)
 	struct seed_report rep;
 	assert_int_equal(model_init(&m, g->n, 30, 0.001), 0);
 	assert_int_equal(seed_model(g, &m, 5, 0, &rep), 0);
-	struct sweep *s = sweep_new(&m, g, model_poisson_objective(), threads);
-	assert_non_null(s);
-	sweep_pool_start(s);
-	double ll = sweep_objective(s);
-	for (uint64_t k = 0; k < 6; k++) {
-		double before = ll;
-		assert_int_equal(sweep_run(s, 7 + k, NULL, NULL, &ll), 0);
-		double again = model_poisson_loglik(&m, g);
-		assert_true(fabs(ll - again) <= 1e-11 * fabs(again)); /* sweep.c */
-		assert_true(ll >= before - 1e-12 * fabs(before));
-	}
-	assert_model_sane(&m);
-	sweep_pool_stop(s);
-	sweep_free(s);
-	assert_int_equal(model_export(&m, out), 0);
-	model_release(&m);
-	return ll;
+	return test_sweeps_sum_exactly(&m, g, model_poisson_objective(), threads,
+				       model_poisson_loglik, 1e-11, out);
 }
 
 static void test_sweeps_sum_to_a_recompute_with_the_same_bits_for_any_thread_count(void **state)
