@@ -102,7 +102,7 @@ $(BUILD)/tests/unit/test_%: tests/unit/test_%.c $(TEST_HELPER_OBJ) $(LIB)
 # src/tui/ hold the view and its caches (view.h) and include no curses, so
 # their objects link into test_tui_view beside the core library. Keep the
 # list to such files.
-TUI_STATE_OBJ := $(BUILD)/src/tui/view.o $(BUILD)/src/tui/pager.o
+TUI_STATE_OBJ := $(BUILD)/src/tui/view.o $(BUILD)/src/tui/pager.o $(BUILD)/src/tui/sides.o
 
 $(BUILD)/tests/unit/test_tui_view: tests/unit/test_tui_view.c $(TUI_STATE_OBJ) $(TEST_HELPER_OBJ) $(LIB)
 	@mkdir -p $(dir $@)

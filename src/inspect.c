@@ -514,6 +514,11 @@ int inspect_missing_links(const struct graph *g, const struct fcsr *F, const str
 				nb++;
 			if (nb < nend && *nb == v)
 				continue;
+			/* a two-sided graph: only a sending and a receiving row
+			 * make a pair of the model, and a node's own two rows none */
+			if (g->nsend && (graph_side_of(g, u) == graph_side_of(g, v) ||
+					 (g->paired && v == g->nsend + u)))
+				continue;
 			double x = model_dot(ru, nu, row_of(F, v), row_len(F, v));
 			topk_push(&t, u, v, -expm1(-x));
 		}

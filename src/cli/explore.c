@@ -229,9 +229,6 @@ static int parse_args(struct run *r, int argc, char **argv)
 	if (o->have_grid && !o->k_auto)
 		die(EXIT_USAGE, "--k-grid is for -k auto");
 	cli_model_can(&o->p, o->k_auto, 0, 0);
-	if (o->sided)
-		die(EXIT_USAGE, "the explorer is not yet available for the %s model; use coterie fit",
-		    model_kind_name(o->p.model));
 	return -1;
 }
 
@@ -252,10 +249,6 @@ static int open_folder(struct run *r, struct tui_config *cfg)
 	if (outdir_read(r->arg, &r->ck))
 		return -1;
 	const struct checkpoint *ck = &r->ck;
-	if (model_kind_sided(ck->params.model))
-		die(EXIT_USAGE, "the explorer is not yet available for a %s result; read its "
-			       "memberships.tsv and communities.tsv",
-		    model_kind_name(ck->params.model));
 	if (r->o.out && outdir_check_graph(r->o.out, ck->graph, r->force))
 		return -1;
 	cli_fit_opts_resume(&r->o, &ck->params, "for a saved fit", &r->p);

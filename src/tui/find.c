@@ -43,12 +43,34 @@ static int match_rank(const char *name, const char *q, size_t qlen)
 	return -1;
 }
 
+/* The rows find scans: a directed graph's sending copies only (each
+ * stands for its node), else every row. */
+static uint32_t find_rows(const struct view *v)
+{
+	return v->g->paired ? v->g->nsend : v->g->n;
+}
+
+/* Node u's rank for the query; a two-sided graph's name without its tag. */
+static int rank_of(const struct view *v, uint32_t u)
+{
+	if (!v->g->nsend)
+		return match_rank(graph_name(v->g, u), v->query, v->qlen);
+	size_t len;
+	const char *s = graph_side_name(v->g, u, &len);
+	char buf[1024];
+	if (len >= sizeof buf) /* a very long name is matched on its start */
+		len = sizeof buf - 1;
+	memcpy(buf, s, len);
+	buf[len] = '\0';
+	return match_rank(buf, v->query, v->qlen);
+}
+
 static void restart(struct view *v)
 {
 	v->nfound = 0;
 	v->nkept = 0;
 	v->find_cur = 0;
-	v->scan_next = v->qlen ? 0 : v->g->n;
+	v->scan_next = v->qlen ? 0 : find_rows(v);
 	v->dirty |= DIRTY_OVERLAY;
 }
 
@@ -83,12 +105,12 @@ static void keep(struct view *v, uint32_t node, int rank)
 
 int find_step(struct view *v)
 {
-	if (v->mode != MODE_FIND || v->scan_next >= v->g->n)
+	uint32_t rows = find_rows(v);
+	if (v->mode != MODE_FIND || v->scan_next >= rows)
 		return 0;
-	uint32_t end = v->g->n - v->scan_next > FIND_SCAN_STEP ? v->scan_next + FIND_SCAN_STEP
-							       : v->g->n;
+	uint32_t end = rows - v->scan_next > FIND_SCAN_STEP ? v->scan_next + FIND_SCAN_STEP : rows;
 	for (uint32_t u = v->scan_next; u < end; u++) {
-		int r = match_rank(graph_name(v->g, u), v->query, v->qlen);
+		int r = rank_of(v, u);
 		if (r >= 0) {
 			v->nfound++;
 			keep(v, u, r);
@@ -96,7 +118,7 @@ int find_step(struct view *v)
 	}
 	v->scan_next = end;
 	v->dirty |= DIRTY_OVERLAY;
-	return v->scan_next < v->g->n;
+	return v->scan_next < rows;
 }
 
 static void close_find(struct view *v)
@@ -214,9 +236,9 @@ void find_draw(const struct view *v, WINDOW *w)
 	char line[200];
 	if (v->qlen == 0) {
 		snprintf(line, sizeof line, "type any part of a name; case does not matter");
-	} else if (v->scan_next < v->g->n) {
+	} else if (v->scan_next < find_rows(v)) {
 		snprintf(line, sizeof line, "%zu found so far (searched %u%%)", v->nfound,
-			 (unsigned)((uint64_t)v->scan_next * 100 / (v->g->n ? v->g->n : 1)));
+			 (unsigned)((uint64_t)v->scan_next * 100 / (find_rows(v) ? find_rows(v) : 1)));
 	} else {
 		snprintf(line, sizeof line, "%zu node%s match%s%s", v->nfound,
 			 v->nfound == 1 ? "" : "s", v->nfound == 1 ? "es" : "",

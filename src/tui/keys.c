@@ -24,6 +24,7 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "coterie/graph.h"
 #include "coterie/util.h"
 #include "view.h"
 
@@ -92,7 +93,11 @@ static void act_enter_edge(struct view *v, int arg)
 		view_say(v, UTIL_NOTICE, "that row is still being fetched");
 		return;
 	}
-	const struct page_row *p = &v->page[v->edges.cur - v->page_off];
+	const struct page_row *row = &v->page[v->edges.cur - v->page_off];
+	/* a directed graph's copies are one node (sides.h) */
+	struct page_row one = { sides_user(v->g, row->u), sides_user(v->g, row->v), row->prob,
+				row->outside };
+	const struct page_row *p = &one;
 	uint32_t pick;
 	const char *why;
 	if (v->page_mode == EDGES_WEAK && p->outside) {
@@ -387,6 +392,21 @@ static void act_weak(struct view *v, int arg)
 					      : "showing memberships only");
 }
 
+static void act_side(struct view *v, int arg)
+{
+	(void)arg;
+	if (view_next_side(v)) {
+		view_say(v, UTIL_NOTICE, "every member has one side: the graph is neither directed "
+			 "nor two-mode");
+		return;
+	}
+	static const char *const say[2][3] = {
+		{ "all members, each with its side", "the sending members", "the receiving members" },
+		{ "all members, each with its kind", "the members of the first kind (first column)",
+		  "the members of the second kind (second column)" } };
+	view_say(v, UTIL_NOTICE, "listing %s", say[!v->g->paired][v->side_filter]);
+}
+
 static void act_edges_mode(struct view *v, int arg)
 {
 	(void)arg;
@@ -433,6 +453,7 @@ const struct key_binding keys_table[] = {
 	{ 'r', PANE_COMMS, act_sort_flip, 0, "reverse the sort order" },
 	{ 'S', PANE_COMMS, act_sort_stability, 0, "sort by stability (fit --repeats), or back to the column" },
 	{ '\r', PANE_MEMBERS, act_enter_member, 0, "show this node in pane 4" },
+	{ 'd', PANE_MEMBERS, act_side, 0, "directed or two-mode: list all members, the sending ones or the receiving ones" },
 	{ '\r', PANE_NODE, act_enter_affil, 0, "select this community in pane 2" },
 	{ 'a', PANE_NODE, act_weak, 0, "show or hide this node's weak strengths (below membership)" },
 	{ '\r', PANE_EDGES, act_enter_edge, 0, "show a node of this pair in pane 4 (the outside one first)" },

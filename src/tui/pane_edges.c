@@ -8,11 +8,18 @@
  * model's probability with the background (1 - exp(-(F_u.F_v + qeps)),
  * where the list shows the communities' part alone) and the communities
  * that make it, each with the probability it alone gives.
+ *
+ * A two-sided graph's rows are arcs (two-mode: links from the first kind
+ * to the second) between a sending row u and a receiving row v, so the
+ * same lists rank 1 - exp(-F_u.H_v), the model's own P(u -> v); the
+ * middle column is the arc's direction seen from the member (an arrow),
+ * in place of the outside mark, and names lose their side tag.
  */
 
 #include <stdio.h>
 #include <string.h>
 
+#include "coterie/graph.h"
 #include "panes.h"
 #include "view.h"
 
@@ -101,12 +108,14 @@ void pane_edges_draw(const struct view *v, WINDOW *w)
 					: "every pair of its members is linked", cw, getmaxy(w) - 2);
 		return;
 	}
-	int pw = 7, mw = 1;
+	int sided = v->g->nsend != 0;
+	int pw = 7, mw = sided ? 2 : 1;
 	int nw = (cw - pw - mw - 3) / 2;
 	int xv = x + nw + 1 + mw + 1, xp = x + cw - pw;
 	wattron(w, A_BOLD);
 	draw_text(w, 1, x, "member", nw);
-	draw_text(w, 1, xv, !weak ? "member" : nw >= 21 ? "neighbour (> outside)" :
+	draw_text(w, 1, xv, !weak ? "member" : sided ? (nw >= 9 ? "neighbour" : "neighb.") :
+			    nw >= 21 ? "neighbour (> outside)" :
 			    nw >= 9 ? "neighbour" : "neighb.", nw);
 	draw_text(w, 1, xp + pw - 4, "prob", 4);
 	wattroff(w, A_BOLD);
@@ -125,7 +134,10 @@ void pane_edges_draw(const struct view *v, WINDOW *w)
 		view_node_name(v, p->u, a, sizeof a);
 		view_node_name(v, p->v, b, sizeof b);
 		draw_text(w, y, x, a, nw);
-		if (p->outside)
+		if (sided) /* the member sends (u -> v) or receives (u <- v) */
+			draw_text(w, y, x + nw + 1, p->u < v->g->nsend ? (v->utf8 ? "\u2192" : "->")
+								     : (v->utf8 ? "\u2190" : "<-"), 2);
+		else if (p->outside)
 			draw_text(w, y, x + nw + 1, ">", 1);
 		else
 			draw_text(w, y, x + nw + 1, v->utf8 ? "\u00b7" : "-", 1);

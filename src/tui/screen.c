@@ -95,8 +95,10 @@ static void draw_header(const struct view *v, WINDOW *w)
 	util_escape(v->graph_label, label, sizeof label, !v->utf8);
 	util_escape(v->outdir, dir, sizeof dir, !v->utf8);
 	char n[32], m[32];
-	fmt_count(n, sizeof n, v->g->n);
+	/* a two-sided graph: its nodes as given (not the copies), arcs or links */
+	fmt_count(n, sizeof n, v->g->paired ? v->g->nsend : v->g->n);
 	fmt_count(m, sizeof m, v->g->m);
+	const char *edges = v->g->paired ? "arcs" : v->g->nsend ? "links" : "edges";
 	const char *how = v->write_failed ? "NOT WRITTEN" :
 			  view_unsaved(v) ? "unsaved" :
 			  v->saved ? "saved" : "nothing to save yet";
@@ -110,16 +112,16 @@ static void draw_header(const struct view *v, WINDOW *w)
 		switch (form) {
 		case 0:
 		case 2:
-			snprintf(left, sizeof left, " coterie explore  %s  %s nodes, %s edges, k %u",
-				 label, n, m, v->params.k);
+			snprintf(left, sizeof left, " coterie explore  %s  %s nodes, %s %s, k %u",
+				 label, n, m, edges, v->params.k);
 			break;
 		case 1:
 		case 3:
-			snprintf(left, sizeof left, " coterie explore  %s  %s nodes, %s edges, k %u",
-				 shortl, n, m, v->params.k);
+			snprintf(left, sizeof left, " coterie explore  %s  %s nodes, %s %s, k %u",
+				 shortl, n, m, edges, v->params.k);
 			break;
 		case 4:
-			snprintf(left, sizeof left, " %s  %s nodes, %s edges", shortl, n, m);
+			snprintf(left, sizeof left, " %s  %s nodes, %s %s", shortl, n, m, edges);
 			break;
 		default:
 			snprintf(left, sizeof left, " %s", shortl);

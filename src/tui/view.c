@@ -99,6 +99,8 @@ void view_release(struct view *v)
 	free(v->order);
 	free(v->mem);
 	free(v->mem_strength);
+	free(v->mem_side);
+	free(v->side_sums);
 	free(v->affil_rows);
 	free(v->page);
 	free(v->stab);
@@ -106,9 +108,12 @@ void view_release(struct view *v)
 	v->nstab = 0;
 	if (v->node_valid)
 		inspect_node_release(&v->nodeview);
+	sides_node_release(&v->sidenode);
 	v->order = NULL;
 	v->mem = NULL;
 	v->mem_strength = NULL;
+	v->mem_side = NULL;
+	v->side_sums = NULL;
 	v->affil_rows = NULL;
 	v->page = NULL;
 	v->node_valid = 0;
@@ -352,6 +357,7 @@ void view_select_node(struct view *v, uint32_t node, int with_comm)
 {
 	if (node >= v->g->n)
 		return;
+	node = sides_user(v->g, node);
 	v->node = node;
 	v->node_pinned = 1;
 	v->affil.cur = v->affil.top = 0;
@@ -489,6 +495,16 @@ void view_toggle_weak(struct view *v)
 	v->dirty |= DIRTY_PANE(PANE_NODE);
 }
 
+int view_next_side(struct view *v)
+{
+	if (!v->g->nsend)
+		return -1;
+	v->side_filter = (enum sides_filter)((v->side_filter + 1) % 3);
+	v->mem_gen = 0; /* list again; the cursor stays on the node if it is listed */
+	v->dirty |= DIRTY_PANE(PANE_MEMBERS);
+	return 0;
+}
+
 void view_toggle_edges_mode(struct view *v)
 {
 	v->edges_mode = v->edges_mode == EDGES_WEAK ? EDGES_MISSING : EDGES_WEAK;
@@ -502,6 +518,8 @@ const char *view_node_name(const struct view *v, uint32_t node, char *buf, size_
 		snprintf(buf, cap, "?");
 		return buf;
 	}
+	if (v->g->nsend) /* the name given, without the side tag */
+		return sides_name(v->g, node, buf, cap, !v->utf8);
 	return util_escape(graph_name(v->g, node), buf, cap, !v->utf8);
 }
 
@@ -550,6 +568,23 @@ static void prepare_order(struct view *v)
 	}
 }
 
+/* The per-side column sums of the snapshot on screen (two-sided graphs).
+ * Returns 0 or -1 (the footer says why). */
+static int prepare_sides(struct view *v)
+{
+	if (v->side_sums && v->sums_gen == v->snap_gen)
+		return 0;
+	free(v->side_sums);
+	v->side_sums = sides_sums(v->g, &v->snap->F);
+	if (!v->side_sums) {
+		view_say(v, UTIL_ERROR, "out of memory summing the sides of %u columns",
+			 v->snap->F.k);
+		return -1;
+	}
+	v->sums_gen = v->snap_gen;
+	return 0;
+}
+
 static void prepare_members(struct view *v)
 {
 	const struct agm *a = &v->snap->agm;
@@ -565,17 +600,28 @@ static void prepare_members(struct view *v)
 		uint32_t cap = size ? size : 1;
 		uint32_t *m = realloc(v->mem, cap * sizeof *m);
 		double *s = m ? realloc(v->mem_strength, cap * sizeof *s) : NULL;
+		uint8_t *sd = s ? realloc(v->mem_side, cap * sizeof *sd) : NULL;
 		if (m)
 			v->mem = m;
-		if (!s) {
+		if (s)
+			v->mem_strength = s;
+		if (!sd) {
 			view_say(v, UTIL_ERROR, "out of memory listing %u members", size);
 			v->nmem = 0;
 			return;
 		}
-		v->mem_strength = s;
+		v->mem_side = sd;
 		v->mem_cap = cap;
 	}
-	inspect_members(a, (uint32_t)v->comm_index, v->mem, v->mem_strength);
+	if (v->g->nsend) {
+		int64_t got = prepare_sides(v) ? -1 :
+			sides_members(v->g, &v->snap->F, v->side_sums, v->snap->delta, v->comm_id,
+				      a->cover.mem + a->cover.off[v->comm_index], size,
+				      v->side_filter, v->mem, v->mem_strength, v->mem_side);
+		size = got < 0 ? 0 : (uint32_t)got;
+	} else {
+		inspect_members(a, (uint32_t)v->comm_index, v->mem, v->mem_strength);
+	}
 	v->nmem = size;
 	v->mem_gen = v->snap_gen;
 	v->mem_for = v->comm_index;
@@ -622,13 +668,17 @@ static void prepare_node(struct view *v)
 		return;
 	if (v->node_valid)
 		inspect_node_release(&v->nodeview);
+	sides_node_release(&v->sidenode);
 	v->node_valid = 0;
 	v->naffil_rows = 0;
 	v->node_gen = v->snap_gen;
 	v->node_for = v->node;
 	v->dirty |= DIRTY_PANE(PANE_NODE);
-	if (inspect_node(&v->nodeview, v->g, &v->snap->F, v->snap->delta, AGM_MIN_LINKS,
-			 (uint32_t)v->node))
+	if (v->g->nsend ? prepare_sides(v) ||
+				  sides_node(&v->nodeview, &v->sidenode, v->g, &v->snap->F,
+					     v->side_sums, v->snap->delta, (uint32_t)v->node)
+			: inspect_node(&v->nodeview, v->g, &v->snap->F, v->snap->delta,
+				       AGM_MIN_LINKS, (uint32_t)v->node))
 		return;
 	v->node_valid = 1;
 	uint32_t n = v->nodeview.naffil;

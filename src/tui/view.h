@@ -16,6 +16,7 @@
 #include "coterie/inspect.h"
 #include "coterie/util.h"
 #include "pager.h"
+#include "sides.h"
 #include "tui.h"
 
 enum pane_id {
@@ -136,7 +137,9 @@ struct view {
 	/* members of the selected community, strongest first */
 	uint32_t *mem;
 	double *mem_strength;
+	uint8_t *mem_side;        /* two-sided graphs: SIDES_S | SIDES_R of each */
 	uint32_t nmem, mem_cap;
+	enum sides_filter side_filter; /* two-sided graphs: which members ('d') */
 	unsigned long mem_gen;
 	int64_t mem_for;          /* comm_index the cache was made for */
 	struct listpos members;
@@ -146,6 +149,9 @@ struct view {
 	int64_t node;             /* -1: none */
 	int node_pinned;          /* chosen by find or an edge, not the members list */
 	struct inspect_node nodeview;
+	struct sides_node sidenode;  /* two-sided graphs: nodeview's rows by side */
+	double *side_sums;        /* two-sided graphs: per-side column sums ... */
+	unsigned long sums_gen;   /* ... of this snapshot generation (0: none) */
 	int node_valid;
 	unsigned long node_gen;
 	int64_t node_for;
@@ -253,6 +259,10 @@ int view_has_stability(const struct view *v);
 const char *view_sort_name(const struct view *v);
 /* Show or hide the node's strengths that are no membership. */
 void view_toggle_weak(struct view *v);
+/* Two-sided graphs: list all members, the sending ones, or the
+ * receiving ones (two-mode: of the first kind, the second). Returns 0,
+ * or -1 for a one-mode graph (nothing changes). */
+int view_next_side(struct view *v);
 /* Switch pane 5 between weak edges and missing links. */
 void view_toggle_edges_mode(struct view *v);
 /* A node name made safe (util_escape; ASCII only when not UTF-8) into
