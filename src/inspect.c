@@ -27,6 +27,12 @@
  * probability then (u, v); strengths descending then id ascending;
  * community keys in the direction asked, ties always by id ascending.
  *
+ * A weighted graph (the Poisson model) ranks its weak edges by the upper
+ * tail P(W >= w) of the edge's weight w under Poisson(F_u . F_v): the
+ * chance the communities give a weight at least this heavy. For w = 1 it
+ * is 1 - exp(-F_u . F_v), the unweighted ranking, and a heavy edge the
+ * communities barely explain gets a tiny tail and ranks first.
+ *
  * The one thing a newcomer gets wrong: an edge between two members is
  * one edge, reported once with u < v; an edge from a member to an
  * outsider is reported with the member as u even when its id is larger.
@@ -108,6 +114,55 @@ static double pair_prob(const struct fcsr *F, uint32_t u, uint32_t v)
 {
 	double x = model_dot(row_of(F, u), row_len(F, u), row_of(F, v), row_len(F, v));
 	return -expm1(-x);
+}
+
+/* The regularized lower incomplete gamma function P(a, x), a > 0, x >= 0:
+ * the series for x < a + 1, else 1 - Q from Q's continued fraction by
+ * the modified Lentz method (Press et al., Numerical Recipes, 2nd ed.,
+ * section 6.2, eqs. 6.2.5 and 6.2.7), to a relative 1e-15. */
+static double gamma_p(double a, double x)
+{
+	if (!(x > 0.0))
+		return 0.0;
+	if (isinf(x))
+		return 1.0;
+	double front = exp(a * log(x) - x - lgamma(a));
+	if (x < a + 1.0) {
+		double ap = a, del = 1.0 / a, sum = del;
+		for (int n = 0; n < 1000 && fabs(del) > fabs(sum) * 1e-15; n++) {
+			ap += 1.0;
+			del *= x / ap;
+			sum += del;
+		}
+		return sum * front;
+	}
+	const double tiny = 1e-300;
+	double b = x + 1.0 - a, c = 1.0 / tiny, d = 1.0 / b, h = d;
+	for (int i = 1; i < 1000; i++) {
+		double an = -i * (i - a);
+		b += 2.0;
+		d = an * d + b;
+		if (fabs(d) < tiny)
+			d = tiny;
+		c = b + an / c;
+		if (fabs(c) < tiny)
+			c = tiny;
+		d = 1.0 / d;
+		double del = d * c;
+		h *= del;
+		if (fabs(del - 1.0) < 1e-15)
+			break;
+	}
+	return 1.0 - front * h;
+}
+
+double inspect_weight_tail(double w, double x)
+{
+	if (!(w > 0.0))
+		return 1.0;
+	if (w == 1.0)
+		return -expm1(-x); /* exact for the unweighted case */
+	return gamma_p(w, x);
 }
 
 static size_t add_sat(size_t a, size_t b)
@@ -400,7 +455,9 @@ int inspect_weak_edges(const struct graph *g, const struct fcsr *F, const struct
 			uint32_t v = g->adj[e];
 			if (v < u && in_sorted(mem, s, v))
 				continue; /* reported from v's side */
-			topk_push(&t, u, v, pair_prob(F, u, v));
+			double x = model_dot(row_of(F, u), row_len(F, u), row_of(F, v),
+					     row_len(F, v));
+			topk_push(&t, u, v, inspect_weight_tail(graph_weight(g, e), x));
 		}
 	}
 	topk_finish(&t, offset, limit, out, nout, total);

@@ -88,9 +88,16 @@ struct inspect_pair {
 	double prob;
 };
 
+/* P(W >= w) for W ~ Poisson(x), w > 0 (the regularized lower incomplete
+ * gamma function P(w, x), so also for weights that are not whole):
+ * 1 - exp(-x) for w = 1, 0 for x = 0; 1 for w <= 0. */
+double inspect_weight_tail(double w, double x);
+
 /*
  * Edges touching members of community a->comms[index] (each edge once),
- * lowest probability first, ties by (u, v). Fills at most limit pairs
+ * lowest probability first, ties by (u, v). On a weighted graph (g->wt)
+ * the "probability" is inspect_weight_tail(w_uv, F_u . F_v): how likely
+ * the communities make a weight at least as heavy as the edge's. Fills at most limit pairs
  * starting at rank offset into *out (caller frees with free()), sets *nout
  * and, if total is not NULL, the number of such edges. Returns 0 or -1.
  */

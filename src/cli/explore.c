@@ -70,7 +70,9 @@ static void explore_usage(FILE *out)
 		"      --skip-lines N    edge lists: skip the first N lines (then no header is guessed)\n"
 		"      --no-header       edge lists: the first line is an edge, never a header\n"
 		"      --weighted        fit the Poisson model of edge weights (see coterie fit)\n"
-		"      --directed, --two-mode  not yet available in the explorer\n"
+		"      --directed        lines are arcs: fit sending and receiving strengths\n"
+		"                        (see coterie fit); pane 4 shows both side by side\n"
+		"      --two-mode        the two columns are two kinds of nodes (see coterie fit)\n"
 		"      --weight-attr NAME  the edge attribute holding the weights\n"
 		"      --resume          with DIR: continue the saved fit at once\n"
 		"      --checkpoint-every SECONDS\n"
@@ -79,7 +81,9 @@ static void explore_usage(FILE *out)
 		"  -h, --help            this text\n"
 		"\n"
 		"In the explorer, ? lists the keys. The fit waits when it levels off:\n"
-		"e runs it on, s ends it, w writes the result, q quits (asking first).\n");
+		"e runs it on, s ends it, w writes the result, q quits (asking first).\n"
+		"For a directed or two-mode fit, d in the members pane lists all members,\n"
+		"the sending ones or the receiving ones.\n");
 }
 
 static int dir_is_empty(const char *path)

@@ -14,6 +14,10 @@
  * same lists rank 1 - exp(-F_u.H_v), the model's own P(u -> v); the
  * middle column is the arc's direction seen from the member (an arrow),
  * in place of the outside mark, and names lose their side tag.
+ *
+ * A weighted graph's weak edges are ranked by P(W >= w), the chance the
+ * Poisson model's expectation F_u.F_v gives a weight at least the edge's
+ * (inspect_weight_tail()); the column is headed so.
  */
 
 #include <stdio.h>
@@ -117,7 +121,9 @@ void pane_edges_draw(const struct view *v, WINDOW *w)
 	draw_text(w, 1, xv, !weak ? "member" : sided ? (nw >= 9 ? "neighbour" : "neighb.") :
 			    nw >= 21 ? "neighbour (> outside)" :
 			    nw >= 9 ? "neighbour" : "neighb.", nw);
-	draw_text(w, 1, xp + pw - 4, "prob", 4);
+	/* a weighted graph's weak edges: P(W >= w) under the model (inspect.h) */
+	const char *ph = weak && v->g->wt ? (v->utf8 ? "P(\u2265w)" : "P>=w") : "prob";
+	draw_text(w, 1, xp + pw - draw_width(ph), ph, pw);
 	wattroff(w, A_BOLD);
 	size_t shown = view_rows_shown(v, PANE_EDGES);
 	for (size_t r = 0; r < shown; r++) {

@@ -1209,6 +1209,27 @@ static void test_missing_links_uses_only_the_strongest_pool(void **state)
 	free(D);
 }
 
+/* The weighted weak-edge score, P(W >= w) for W ~ Poisson(x). By hand:
+ * w = 1 gives 1 - e^-x (0.5: 0.393469340287); w = 2 gives
+ * 1 - e^-x (1 + x) (0.5: 1 - 0.60653066 * 1.5 = 0.090204010431). The rest
+ * against scipy.special.gammainc(w, x), scipy 1.10.1 as in Debian 12. */
+static void test_weight_tail_is_the_poisson_upper_tail(void **state)
+{
+	(void)state;
+	static const double t[][3] = {
+		{ 1, 0.5, 0.3934693402873665 },  { 2, 0.5, 0.09020401043104986 },
+		{ 5, 1.0, 0.003659846827343713 }, { 10, 2.0, 4.649807501726386e-05 },
+		{ 3, 20.0, 0.9999995444850495 },  { 2.5, 1.7, 0.36143007689620493 },
+		{ 50, 30.0, 0.0005188914625480344 }, { 4, 4.0, 0.566529879633291 },
+	};
+	for (size_t i = 0; i < sizeof t / sizeof t[0]; i++)
+		assert_true(fabs(inspect_weight_tail(t[i][0], t[i][1]) - t[i][2]) <=
+			    1e-12 * t[i][2]);
+	assert_true(inspect_weight_tail(3, 0.0) == 0.0);
+	/* heavier is less likely at the same mean */
+	assert_true(inspect_weight_tail(6, 2.0) < inspect_weight_tail(5, 2.0));
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -1247,6 +1268,7 @@ int main(void)
 		cmocka_unit_test(test_random_graphs_match_brute_force),
 		cmocka_unit_test(test_sort_communities_matches_brute_force_on_many),
 		cmocka_unit_test(test_missing_links_uses_only_the_strongest_pool),
+		cmocka_unit_test(test_weight_tail_is_the_poisson_upper_tail),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
