@@ -258,7 +258,11 @@ void find_draw(const struct view *v, WINDOW *w)
 		char name[512];
 		view_node_name(v, u, name, sizeof name);
 		char deg[48];
-		snprintf(deg, sizeof deg, "degree %u", graph_degree(v->g, u));
+		if (v->g->paired) /* a directed node: its arcs out and in */
+			snprintf(deg, sizeof deg, "arcs %u", graph_degree(v->g, u) +
+							     graph_degree(v->g, v->g->nsend + u));
+		else
+			snprintf(deg, sizeof deg, "degree %u", graph_degree(v->g, u));
 		int sel = i == v->find_cur;
 		if (sel)
 			wattron(w, A_REVERSE);

@@ -38,12 +38,12 @@ void pane_members_draw(const struct view *v, WINDOW *w)
 		return;
 	}
 	int vw = 7;
-	int bw = width / 3;
+	int sw = v->g->nsend ? 5 : 0; /* the side column, paid for by the bar */
+	int bw = width / 3 - (sw ? 4 : 0);
 	if (bw > 24)
 		bw = 24;
 	if (bw < 4)
 		bw = 4;
-	int sw = v->g->nsend ? 5 : 0; /* the side column */
 	int nw = width - 2 - bw - vw - 2 - sw;
 	double top = v->mem_strength[0] > 0 ? v->mem_strength[0] : 1.0;
 	size_t shown = view_rows_shown(v, PANE_MEMBERS);
