@@ -75,6 +75,7 @@ check "--directed --two-mode: exit 2" [ $? -eq 2 ]
 "$BIN" fit "$tmp/tm.tsv" --directed --repeats 2 -k 2 -o "$tmp/x" -q 2>"$tmp/err"
 check "--directed --repeats: exit 2 (no stability column yet)" [ $? -eq 2 ]
 "$BIN" explore "$tmp/d" </dev/null 2>"$tmp/err"
-check "explore of a directed folder: exit 2, no crash" [ $? -eq 2 ]
-check "... not yet available" grep -q "not yet available" "$tmp/err"
+check "explore of a directed folder without a terminal: exit 1, no crash" [ $? -eq 1 ]
+check "... it opens as any folder (tests/tui/directed.sh), here asking for a terminal" \
+	grep -q "needs a terminal" "$tmp/err"
 finish
