@@ -23,6 +23,13 @@
 #include "panes.h"
 #include "view.h"
 
+/* What a full bar stands for: the node's strongest strength (or 1). */
+static double top_strength(const struct inspect_node *nv)
+{
+	double top = nv->naffil ? nv->affil[0].strength : 1.0;
+	return top > 0 ? top : 1.0;
+}
+
 /* The figures line of a two-sided node, the longest form that fits. */
 static void sided_figures(const struct sides_node *sn, char *line, size_t cap, int cw)
 {
@@ -103,9 +110,7 @@ static void draw_sided(const struct view *v, WINDOW *w, int x, int cw)
 		draw_text(w, 3, xr + sw - (sw >= 9 ? 9 : 4), sw >= 9 ? "receiving" : "recv", sw);
 	draw_text(w, 3, xf, "side", fw);
 	wattroff(w, A_BOLD);
-	double top = nv->naffil ? nv->affil[0].strength : 1.0;
-	if (!(top > 0))
-		top = 1.0;
+	double top = top_strength(nv);
 	size_t shown = view_rows_shown(v, PANE_NODE);
 	for (size_t r = 0; r < shown; r++) {
 		size_t i = v->affil.top + r;
@@ -207,9 +212,7 @@ void pane_node_draw(const struct view *v, WINDOW *w)
 	if (ew)
 		draw_text(w, 3, xe + ew - draw_width(ehead), ehead, ew);
 	wattroff(w, A_BOLD);
-	double top = nv->naffil ? nv->affil[0].strength : 1.0;
-	if (!(top > 0))
-		top = 1.0;
+	double top = top_strength(nv);
 	size_t shown = view_rows_shown(v, PANE_NODE);
 	for (size_t r = 0; r < shown; r++) {
 		size_t i = v->affil.top + r;
