@@ -459,7 +459,7 @@ static int parse_args(struct run *r, int argc, char **argv)
 				"(their communities.tsv has no stability column yet)");
 	if (r->repeats <= 1)
 		r->repeats = 0;
-	cli_model_can(&o->p, o->k_auto, r->check_links > 0, r->refine);
+	cli_model_can(&o->p, r->refine);
 	if (!r->o.out)
 		r->o.out = r->resume;
 	if (!r->o.out)
@@ -487,7 +487,7 @@ static int load_resume(struct run *r)
 	if (outdir_check_graph(r->o.out, r->ck.graph, r->force))
 		return -1;
 	cli_fit_opts_resume(&r->o, &r->ck.params, "when resuming", &r->p);
-	cli_model_can(&r->p, 0, r->check_links > 0, r->refine);
+	cli_model_can(&r->p, r->refine);
 	r->p.hold_at_plateau = 0;
 	outdir_resume(&r->ck, &r->p, &r->origin);
 	r->have_origin = 1;
@@ -606,7 +606,8 @@ static int score_links(struct run *r, const struct snapshot *s, struct result_li
 		       struct agm *whole)
 {
 	*links = (struct result_links){ r->check_links, r->check.nedges, r->check.nnon, 0, 0 };
-	if (holdout_score(&r->check, &s->F, s->epsilon, &links->heldout_loglik, &links->auc) ||
+	if (holdout_score(&r->check, &s->F, s->epsilon, r->p.model, &links->heldout_loglik,
+			  &links->auc) ||
 	    agm_from_strengths(whole, r->graph, &s->F, s->epsilon, s->delta, AGM_MIN_LINKS))
 		return 0;
 	if (!r->quiet)

@@ -154,7 +154,7 @@ static void test_score_matches_definition_on_a_small_model(void **state)
 	double colsum[] = { 2.5 };
 	struct fcsr F = { 4, 1, off, e, colsum };
 	double l, auc, qeps = -log(0.9);
-	assert_int_equal(holdout_score(&h, &F, 0.1, &l, &auc), 0);
+	assert_int_equal(holdout_score(&h, &F, 0.1, MODEL_BIGCLAM, &l, &auc), 0);
 	double want = log(1.0 - exp(-(1.0 + qeps))) - (0.5 + qeps) - qeps;
 	assert_true(fabs(l - want) < 1e-12);
 	assert_true(auc == 1.0);
