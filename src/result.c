@@ -262,21 +262,10 @@ struct links_args {
  * by the name as given (the pair's order says which sends). */
 static void link_name(struct atomicfile *w, const struct graph *g, uint32_t u)
 {
-	if (!g->nsend) {
+	if (g->nsend)
+		result_side_name(w, g, u);
+	else
 		atomicfile_tsv_name(w, graph_name(g, u));
-		return;
-	}
-	size_t len;
-	const char *s = graph_side_name(g, u, &len);
-	char *copy = util_malloc(len + 1, 1);
-	if (!copy) {
-		atomicfile_tsv_name(w, graph_name(g, u)); /* the tagged name rather than none */
-		return;
-	}
-	memcpy(copy, s, len);
-	copy[len] = 0;
-	atomicfile_tsv_name(w, copy);
-	free(copy);
 }
 
 static void fill_link_rows(struct atomicfile *w, const struct links_args *a, const uint32_t *pairs,
