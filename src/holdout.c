@@ -15,6 +15,15 @@
  * held-out pairs travel as a graph of their own (for model.excl), and
  * why the non-edges are drawn from the whole graph, not from the
  * training one (a held-out edge is not a non-edge).
+ *
+ * Every model reads the split the same way. A weighted graph's training
+ * graph keeps the weights of its edges and the held-out edges keep
+ * theirs (h->wedges) for the Poisson score. A two-sided graph (directed,
+ * two-mode: graph_directed.c) draws its non-edges among the pairs the
+ * model has, one sending and one receiving row, never a node's own pair;
+ * its training graph keeps the sides, and for a directed graph the held
+ * graph also holds the own pairs (F_u, H_u), since fit_exclude() takes
+ * the place of the fit's own list of them (fit.c).
  */
 #include "coterie/holdout.h"
 
@@ -40,8 +49,102 @@ void holdout_release(struct holdout *h)
 		return;
 	graph_free(h->train);
 	graph_free(h->held);
-	UTIL_FREE_ALL(h->edges, h->non);
+	UTIL_FREE_ALL(h->edges, h->non, h->wedges);
 	memset(h, 0, sizeof *h);
+}
+
+/* A pair the model has that is not an edge, drawn uniformly: any two
+ * nodes of a one-mode graph; a sending and a receiving row of a
+ * two-sided one, not a node's own pair. Returns 0 when the draw is
+ * rejected (the caller draws again), else 1 with the pair in p (p[0] <
+ * p[1]). */
+static int draw_non_edge(const struct graph *g, struct rng *r, uint32_t *p)
+{
+	uint32_t u, v;
+	if (g->nsend) {
+		u = (uint32_t)rng_below(r, g->nsend);
+		v = g->nsend + (uint32_t)rng_below(r, g->n - g->nsend);
+		if (g->paired && v == g->nsend + u)
+			return 0;
+	} else {
+		u = (uint32_t)rng_below(r, g->n);
+		v = (uint32_t)rng_below(r, g->n);
+		if (u == v)
+			return 0;
+	}
+	if (graph_has_edge(g, u, v))
+		return 0;
+	p[0] = u < v ? u : v;
+	p[1] = u < v ? v : u;
+	return 1;
+}
+
+/* The pairs of the model's likelihood (edges and non-edges). */
+static double model_pairs(const struct graph *g)
+{
+	if (g->nsend)
+		return (double)g->nsend * (double)(g->n - g->nsend) -
+		       (g->paired ? (double)g->nsend : 0.0);
+	return 0.5 * (double)g->n * ((double)g->n - 1.0);
+}
+
+/* Draw up to want non-edges into hn, distinct and sorted; the count. */
+static uint64_t draw_non_edges(const struct graph *g, struct rng *r, uint64_t want,
+			       uint32_t *hn)
+{
+	uint64_t nn = 0;
+	for (int round = 0; nn < want && round < 64; round++) {
+		uint64_t tries = 0;
+		while (nn < want && tries++ < 64 * want + 1024)
+			nn += (uint64_t)draw_non_edge(g, r, hn + 2 * nn);
+		qsort(hn, nn, 2 * sizeof *hn, cmp_pair);
+		uint64_t o = 0;
+		for (uint64_t i = 0; i < nn; i++)
+			if (o == 0 || cmp_pair(hn + 2 * i, hn + 2 * (o - 1)) != 0) {
+				hn[2 * o] = hn[2 * i];
+				hn[2 * o + 1] = hn[2 * i + 1];
+				o++;
+			}
+		nn = o;
+	}
+	return nn;
+}
+
+/* The training graph: g's nodes, sides and names with the kept edges
+ * (nk pairs) and, for a weighted g, their weights wk. NULL on failure. */
+static struct graph *train_graph(const struct graph *g, const uint32_t *keep, const double *wk,
+				 uint64_t nk)
+{
+	struct graph *t = graph_with_edges(g, keep, nk);
+	if (!t)
+		return NULL;
+	t->nsend = g->nsend;
+	t->paired = g->paired;
+	if (wk && graph_set_weights(t, keep, wk, nk, "(training edges)")) {
+		graph_free(t);
+		return NULL;
+	}
+	return t;
+}
+
+/* The held graph: the held-out pairs (ne edges he, nn non-edges hn) and,
+ * for a directed g, every node's own pair. NULL on failure. */
+static struct graph *held_graph(const struct graph *g, const uint32_t *he, uint64_t ne,
+				const uint32_t *hn, uint64_t nn)
+{
+	uint64_t own = g->paired ? g->nsend : 0;
+	uint32_t *all = util_malloc(2 * (ne + nn + own) + 1, sizeof *all);
+	if (!all)
+		return NULL;
+	memcpy(all, he, 2 * ne * sizeof *all);
+	memcpy(all + 2 * ne, hn, 2 * nn * sizeof *all);
+	for (uint64_t i = 0; i < own; i++) {
+		all[2 * (ne + nn + i)] = (uint32_t)i;
+		all[2 * (ne + nn + i) + 1] = g->nsend + (uint32_t)i;
+	}
+	struct graph *x = graph_with_edges(g, all, ne + nn + own);
+	free(all);
+	return x;
 }
 
 int holdout_split(struct holdout *h, const struct graph *g, double share, uint64_t seed)
@@ -61,8 +164,9 @@ int holdout_split(struct holdout *h, const struct graph *g, double share, uint64
 	uint32_t *keep = util_malloc(2 * (m - want), sizeof *keep);
 	uint32_t *he = util_malloc(2 * want, sizeof *he);
 	uint32_t *hn = util_malloc(2 * want, sizeof *hn);
-	uint32_t *all = NULL;
-	if (!keep || !he || !hn)
+	double *wk = g->wt ? util_malloc(m - want, sizeof *wk) : NULL;
+	double *wh = g->wt ? util_malloc(want, sizeof *wh) : NULL;
+	if (!keep || !he || !hn || (g->wt && (!wk || !wh)))
 		goto fail;
 	uint64_t nk = 0, ne = 0, seen = 0;
 	for (uint32_t u = 0; u < g->n; u++)
@@ -73,6 +177,8 @@ int holdout_split(struct holdout *h, const struct graph *g, double share, uint64
 			/* Algorithm S: take with probability (want - ne) / (m - seen) */
 			int take = (double)(m - seen) * rng_uniform(&r) < (double)(want - ne);
 			seen++;
+			if (g->wt)
+				*(take ? wh + ne : wk + nk) = g->wt[i];
 			uint32_t *dst = take ? he + 2 * ne++ : keep + 2 * nk++;
 			dst[0] = u;
 			dst[1] = v;
@@ -80,52 +186,26 @@ int holdout_split(struct holdout *h, const struct graph *g, double share, uint64
 	if (ne != want || nk != m - want)
 		BUG("the split took %llu edges, not %llu", (unsigned long long)ne,
 		    (unsigned long long)want);
-	double pairs = 0.5 * (double)g->n * ((double)g->n - 1.0);
+	double pairs = model_pairs(g);
 	uint64_t wn = want;
 	if ((double)wn > pairs - (double)m)
 		wn = (uint64_t)(pairs - (double)m);
-	uint64_t nn = 0;
-	for (int round = 0; nn < wn && round < 64; round++) {
-		uint64_t tries = 0;
-		while (nn < wn && tries++ < 64 * wn + 1024) {
-			uint32_t u = (uint32_t)rng_below(&r, g->n), v = (uint32_t)rng_below(&r, g->n);
-			if (u == v || graph_has_edge(g, u, v))
-				continue;
-			hn[2 * nn] = u < v ? u : v;
-			hn[2 * nn + 1] = u < v ? v : u;
-			nn++;
-		}
-		qsort(hn, nn, 2 * sizeof *hn, cmp_pair);
-		uint64_t o = 0;
-		for (uint64_t i = 0; i < nn; i++)
-			if (o == 0 || cmp_pair(hn + 2 * i, hn + 2 * (o - 1)) != 0) {
-				hn[2 * o] = hn[2 * i];
-				hn[2 * o + 1] = hn[2 * i + 1];
-				o++;
-			}
-		nn = o;
-	}
-	all = util_malloc(2 * (ne + nn), sizeof *all);
-	if (!all)
-		goto fail;
-	memcpy(all, he, 2 * ne * sizeof *all);
-	memcpy(all + 2 * ne, hn, 2 * nn * sizeof *all);
-	h->train = graph_with_edges(g, keep, nk);
-	h->held = graph_from_pairs(g->n, all, ne + nn, NULL);
-	free(all);
-	free(keep);
+	uint64_t nn = draw_non_edges(g, &r, wn, hn);
+	h->train = train_graph(g, keep, wk, nk);
+	h->held = held_graph(g, he, ne, hn, nn);
+	UTIL_FREE_ALL(keep, wk);
 	keep = NULL;
+	wk = NULL;
 	if (!h->train || !h->held)
 		goto fail;
 	h->edges = he; /* already sorted: the pass above visits u < v in order */
+	h->wedges = wh;
 	h->nedges = ne;
 	h->non = hn;
 	h->nnon = nn;
 	return 0;
 fail:
-	free(keep);
-	free(he);
-	free(hn);
+	UTIL_FREE_ALL(keep, he, hn, wk, wh);
 	graph_free(h->train);
 	graph_free(h->held);
 	h->train = h->held = NULL;
@@ -183,8 +263,15 @@ static double row_dot(const struct fcsr *F, uint32_t u, uint32_t v)
 			 (uint32_t)(F->off[v + 1] - F->off[v]));
 }
 
-int holdout_score(const struct holdout *h, const struct fcsr *F, double epsilon, double *loglik,
-		  double *auc)
+double holdout_pair_loglik(enum model_kind kind, double x, double qeps, double w)
+{
+	if (kind == MODEL_POISSON)
+		return w > 0.0 ? w * log(x + qeps) - lgamma(w + 1.0) - (x + qeps) : -(x + qeps);
+	return w > 0.0 ? model_log1mexp(x + qeps) : -(x + qeps);
+}
+
+int holdout_score(const struct holdout *h, const struct fcsr *F, double epsilon,
+		  enum model_kind kind, double *loglik, double *auc)
 {
 	double *xe = util_malloc(h->nedges ? h->nedges : 1, sizeof *xe);
 	double *xn = util_malloc(h->nnon ? h->nnon : 1, sizeof *xn);
@@ -196,11 +283,11 @@ int holdout_score(const struct holdout *h, const struct fcsr *F, double epsilon,
 	double qeps = model_qeps(epsilon), l = 0.0;
 	for (uint64_t i = 0; i < h->nedges; i++) {
 		xe[i] = row_dot(F, h->edges[2 * i], h->edges[2 * i + 1]);
-		l += model_log1mexp(xe[i] + qeps);
+		l += holdout_pair_loglik(kind, xe[i], qeps, h->wedges ? h->wedges[i] : 1.0);
 	}
 	for (uint64_t i = 0; i < h->nnon; i++) {
 		xn[i] = row_dot(F, h->non[2 * i], h->non[2 * i + 1]);
-		l -= xn[i] + qeps;
+		l += holdout_pair_loglik(kind, xn[i], qeps, 0.0);
 	}
 	*loglik = l;
 	*auc = holdout_auc(xe, h->nedges, xn, h->nnon);

@@ -13,6 +13,11 @@
 char *result_run_json(const struct graph *g, const struct fit_params *p,
 		      const struct result_model *m, const struct result_meta *meta);
 
+/* Node u of a two-sided g as a TSV field, by its name as given (without
+ * the tag of its side; result_directed.c). */
+struct atomicfile;
+void result_side_name(struct atomicfile *w, const struct graph *g, uint32_t u);
+
 /* Stage memberships.tsv and communities.tsv of a two-sided fit (g two-sided,
  * m's strengths; result_directed.c) into c. All borrowed. 0 or -1. */
 struct result_commit;

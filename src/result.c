@@ -258,27 +258,41 @@ struct links_args {
 	double qeps;
 };
 
+/* A node of a held-out pair as a TSV field: a two-sided graph's copies
+ * by the name as given (the pair's order says which sends). */
+static void link_name(struct atomicfile *w, const struct graph *g, uint32_t u)
+{
+	if (g->nsend)
+		result_side_name(w, g, u);
+	else
+		atomicfile_tsv_name(w, graph_name(g, u));
+}
+
 static void fill_link_rows(struct atomicfile *w, const struct links_args *a, const uint32_t *pairs,
-			   uint64_t n, int edge)
+			   const double *wts, uint64_t n, int edge)
 {
 	const struct fcsr *F = a->F;
 	for (uint64_t i = 0; i < n && !atomicfile_failed(w); i++) {
 		uint32_t u = pairs[2 * i], v = pairs[2 * i + 1];
 		double x = model_dot(F->e + F->off[u], (uint32_t)(F->off[u + 1] - F->off[u]),
 				     F->e + F->off[v], (uint32_t)(F->off[v + 1] - F->off[v]));
-		atomicfile_tsv_name(w, graph_name(a->g, u));
+		link_name(w, a->g, u);
 		atomicfile_str(w, "\t");
-		atomicfile_tsv_name(w, graph_name(a->g, v));
-		atomicfile_printf(w, "\t%d\t%.17g\n", edge, -expm1(-(x + a->qeps)));
+		link_name(w, a->g, v);
+		atomicfile_printf(w, "\t%d\t%.17g", edge, -expm1(-(x + a->qeps)));
+		if (a->h->wedges) /* a weighted fit: the weight and its Poisson mean */
+			atomicfile_printf(w, "\t%.17g\t%.17g", edge ? wts[i] : 0.0, x + a->qeps);
+		atomicfile_str(w, "\n");
 	}
 }
 
 static int fill_links(struct atomicfile *w, const void *arg)
 {
 	const struct links_args *a = arg;
-	atomicfile_str(w, "node_a\tnode_b\tedge\tprobability\n");
-	fill_link_rows(w, a, a->h->edges, a->h->nedges, 1);
-	fill_link_rows(w, a, a->h->non, a->h->nnon, 0);
+	atomicfile_str(w, a->h->wedges ? "node_a\tnode_b\tedge\tprobability\tweight\texpected\n"
+				       : "node_a\tnode_b\tedge\tprobability\n");
+	fill_link_rows(w, a, a->h->edges, a->h->wedges, a->h->nedges, 1);
+	fill_link_rows(w, a, a->h->non, NULL, a->h->nnon, 0);
 	return 0;
 }
 

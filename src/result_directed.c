@@ -122,7 +122,7 @@ static int dcover_build(struct dcover *d, const struct graph *g, const struct fc
 	return 0;
 }
 
-static void put_name(struct atomicfile *w, const struct graph *g, uint32_t u)
+void result_side_name(struct atomicfile *w, const struct graph *g, uint32_t u)
 {
 	size_t len;
 	const char *s = graph_side_name(g, u, &len);
@@ -143,7 +143,7 @@ static int fill_dmemberships(struct atomicfile *w, const void *arg)
 	atomicfile_str(w, "node\tcommunity\tstrength\tside\tsending\treceiving\n");
 	for (uint64_t i = 0; i < d->nlist && !atomicfile_failed(w); i++) {
 		const struct dmember *e = &d->list[i];
-		put_name(w, d->g, e->node);
+		result_side_name(w, d->g, e->node);
 		const char *side = e->s > 0.0 && e->r > 0.0 ? "both" : e->s > 0.0 ? "sending"
 										   : "receiving";
 		atomicfile_printf(w, "\t%" PRIu32 "\t%.6g\t%s\t%.6g\t%.6g\n", e->c,

@@ -48,8 +48,15 @@ int select_params_default(struct select_params *sp, const struct graph *g, uint3
 	sp->share = 0.1;
 	sp->step = 1.25;
 	uint32_t L;
-	if (seed_count_minima(g, &L))
+	/* a directed graph is seeded on its undirected view (model_directed.h),
+	 * so its ego-nets are counted there; a two-mode graph on itself */
+	struct graph *view = g->paired ? graph_undirected_view(g) : NULL;
+	if ((g->paired && !view) || seed_count_minima(view ? view : g, &L)) {
+		graph_free(view);
 		return -1;
+	}
+	uint32_t n = view ? view->n : g->n; /* the nodes as given, not the copies */
+	graph_free(view);
 	if (minima)
 		*minima = L;
 	uint64_t top = 3 * (uint64_t)L;
@@ -57,8 +64,8 @@ int select_params_default(struct select_params *sp, const struct graph *g, uint3
 		top = 10;
 	if (top > 500)
 		top = 500;
-	if (top > g->n / 4)
-		top = g->n / 4;
+	if (top > n / 4)
+		top = n / 4;
 	if (top < sp->kmin)
 		top = sp->kmin;
 	sp->kmax = (uint32_t)top;
@@ -278,14 +285,16 @@ static int slot_launch(struct slot *sl, const struct search *s, const struct wan
 	return 0;
 }
 
-/* Score a fit that ended on its fold's pairs; frees it. Returns 0 or -1. */
-static int slot_score(struct slot *sl, const struct holdout *h, struct fold_score *sc, int keep)
+/* Score a fit (of the model kind) that ended on its fold's pairs; frees
+ * it. Returns 0 or -1. */
+static int slot_score(struct slot *sl, const struct holdout *h, enum model_kind kind,
+		      struct fold_score *sc, int keep)
 {
 	enum fit_state st = fit_wait(sl->f);
 	struct snapshot *s = fit_snapshot(sl->f);
 	int rc = -1;
 	if (st != FIT_FAILED) {
-		rc = holdout_score(h, &s->F, s->epsilon, &sc->ll, &sc->auc);
+		rc = holdout_score(h, &s->F, s->epsilon, kind, &sc->ll, &sc->auc);
 		sc->sweeps = s->sweep;
 		sc->seconds = s->seconds;
 		if (rc == 0 && keep)
@@ -377,7 +386,7 @@ static int search_pass(struct search *s, const struct want *w, uint32_t nk, int 
 			if (!fit_state_ended(fit_get_state(sl[i].f)))
 				continue;
 			uint32_t t = sl[i].task;
-			rc = slot_score(&sl[i], &s->h[t % F], &sc[t], s->keep);
+			rc = slot_score(&sl[i], &s->h[t % F], s->p.model, &sc[t], s->keep);
 			done[t] = 1;
 		}
 		/* the decisions, in list order, once all folds of a k are in */

@@ -145,10 +145,11 @@ void cli_fit_opts_starts(struct cli_fit_opts *o, uint64_t m);
 void cli_fit_opts_resume(const struct cli_fit_opts *o, const struct fit_params *saved,
 			 const char *when, struct fit_params *out);
 
-/* What the Poisson model (--weighted) cannot do yet: -k auto, --check-links
- * and --refine score or search with the links alone. Exits 2 naming the
- * option when p->model is not BigCLAM and one of them is asked for. */
-void cli_model_can(const struct fit_params *p, int k_auto, int check_links, int refine);
+/* What only the BigCLAM model can do: --refine (the AGM's single-membership
+ * moves; a weighted, directed or two-mode fit has no such reading). Exits
+ * 2 saying why when p->model is not BigCLAM and refine is set. (-k auto and
+ * --check-links score every model by its own likelihood: holdout.h.) */
+void cli_model_can(const struct fit_params *p, int refine);
 
 int cmd_fit(int argc, char **argv);
 

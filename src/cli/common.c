@@ -270,14 +270,12 @@ void cli_fit_opts_resume(const struct cli_fit_opts *o, const struct fit_params *
 		out->max_sweeps = o->p.max_sweeps;
 }
 
-void cli_model_can(const struct fit_params *p, int k_auto, int check_links, int refine)
+void cli_model_can(const struct fit_params *p, int refine)
 {
-	const char *opt = k_auto ? "-k auto" : check_links ? "--check-links" : refine ? "--refine"
-											 : NULL;
-	if (p->model != MODEL_BIGCLAM && opt)
-		die(EXIT_USAGE, "%s is not yet available with the %s model (--%s)", opt,
-		    model_kind_name(p->model),
-		    p->model == MODEL_POISSON ? "weighted" : model_kind_name(p->model));
+	if (p->model != MODEL_BIGCLAM && refine)
+		die(EXIT_USAGE, "--refine is for the unweighted, undirected model only: its moves "
+				"are those of the AGM, whose links have no weight and no direction "
+				"(the %s model's do)", model_kind_name(p->model));
 }
 
 int cli_main_begin(int argc, char **argv, const char *program, void (*usage)(FILE *out))

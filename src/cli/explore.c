@@ -232,7 +232,6 @@ static int parse_args(struct run *r, int argc, char **argv)
 		die(EXIT_USAGE, "-k auto is for a graph; a result folder already has its k");
 	if (o->have_grid && !o->k_auto)
 		die(EXIT_USAGE, "--k-grid is for -k auto");
-	cli_model_can(&o->p, o->k_auto, 0, 0);
 	return -1;
 }
 

@@ -50,7 +50,8 @@ static void fit_usage(FILE *out)
 		"GRAPH is an edge list (.gz too; - for standard input), GML, GraphML or Pajek.\n"
 		"\n"
 		"  -k, --communities N   number of communities to fit (required); 'auto'\n"
-		"                        chooses it by held-out likelihood (see --k-grid)\n"
+		"                        chooses it by held-out likelihood, the fitted\n"
+		"                        model's own (weights, arcs; see --k-grid)\n"
 		"      --k-grid G        the k tried by -k auto: A:B (geometric, ratio 1.25),\n"
 		"                        A:B:RATIO, or a list such as 4,8,16 (default: 2 up\n"
 		"                        to a bound from the graph; see the manual)\n"
@@ -58,7 +59,7 @@ static void fit_usage(FILE *out)
 		"                        non-edges (default 0.1)\n"
 		"      --check-links X   hold out X of the edges and as many non-edges from\n"
 		"                        the final fit and report their link AUC and\n"
-		"                        log-likelihood in run.json\n"
+		"                        log-likelihood (the model's own) in run.json\n"
 		"  -o, --output DIR      result folder (made if missing; required)\n"
 		"      --force           replace a result of another graph in DIR (else fit\n"
 		"                        refuses, exit 1); one of the same graph is always\n"
@@ -83,6 +84,7 @@ static void fit_usage(FILE *out)
 		"      --past-plateau    do not stop at a plateau; run to --max-sweeps\n"
 		"      --refine          after the fit, improve the cover under the AGM by\n"
 		"                        local moves; memberships.tsv holds the refined cover\n"
+		"                        (not with --weighted, --directed, --two-mode)\n"
 		"      --refine-rounds N at most N rounds of refinement (default 50)\n"
 		"      --epsilon X       background link probability (default: the density;\n"
 		"                        below 20000 edges, when it leaves most nodes out,\n"
@@ -459,7 +461,7 @@ static int parse_args(struct run *r, int argc, char **argv)
 				"(their communities.tsv has no stability column yet)");
 	if (r->repeats <= 1)
 		r->repeats = 0;
-	cli_model_can(&o->p, o->k_auto, r->check_links > 0, r->refine);
+	cli_model_can(&o->p, r->refine);
 	if (!r->o.out)
 		r->o.out = r->resume;
 	if (!r->o.out)
@@ -487,7 +489,7 @@ static int load_resume(struct run *r)
 	if (outdir_check_graph(r->o.out, r->ck.graph, r->force))
 		return -1;
 	cli_fit_opts_resume(&r->o, &r->ck.params, "when resuming", &r->p);
-	cli_model_can(&r->p, 0, r->check_links > 0, r->refine);
+	cli_model_can(&r->p, r->refine);
 	r->p.hold_at_plateau = 0;
 	outdir_resume(&r->ck, &r->p, &r->origin);
 	r->have_origin = 1;
@@ -606,7 +608,8 @@ static int score_links(struct run *r, const struct snapshot *s, struct result_li
 		       struct agm *whole)
 {
 	*links = (struct result_links){ r->check_links, r->check.nedges, r->check.nnon, 0, 0 };
-	if (holdout_score(&r->check, &s->F, s->epsilon, &links->heldout_loglik, &links->auc) ||
+	if (holdout_score(&r->check, &s->F, s->epsilon, r->p.model, &links->heldout_loglik,
+			  &links->auc) ||
 	    agm_from_strengths(whole, r->graph, &s->F, s->epsilon, s->delta, AGM_MIN_LINKS))
 		return 0;
 	if (!r->quiet)

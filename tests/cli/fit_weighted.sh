@@ -48,9 +48,10 @@ check "resumed: still poisson" [ "$(json_get "$tmp/part/run.json" parameters.mod
 check "resume of a BigCLAM fit with --weighted: exit 2" [ $? -eq 2 ]
 check "... saying the model cannot change" grep -q "cannot change" "$tmp/err"
 
-# what the Poisson model cannot do yet is refused, not done wrong
-"$BIN" fit "$tmp/w.tsv" -k auto --weighted -o "$tmp/y" -q 2>"$tmp/err"
-check "-k auto --weighted: exit 2" [ $? -eq 2 ]
+# what the Poisson model has no reading for is refused, not done wrong
+# (-k auto and --check-links: tests/cli/fit_models_heldout.sh)
+"$BIN" fit "$tmp/w.tsv" -k 2 --refine --weighted -o "$tmp/y" -q 2>"$tmp/err"
+check "--refine --weighted: exit 2" [ $? -eq 2 ]
 
 # a bad weight names the file and line
 printf 'a\tb\t1\nb\tc\t0\n' >"$tmp/bad.tsv"

@@ -5,7 +5,9 @@
  * References: the AUC as the Mann-Whitney statistic, P(edge score >
  * non-edge score) + P(equal) / 2 (Hanley & McNeil, Radiology 143, 1982),
  * worked by hand below and cross-checked against a pair-by-pair count;
- * the held-out log-likelihood from its definition in holdout.h.
+ * the held-out log-likelihood from its definition in holdout.h (the
+ * Poisson one: Ball, Karrer & Newman, PRE 84, 036103, 2011, the weight of
+ * a pair Poisson with mean x + qeps, worked by hand below).
  */
 #include "helpers.h"
 
@@ -17,6 +19,7 @@
 #include "coterie/holdout.h"
 #include "coterie/model.h"
 #include "coterie/rng.h"
+#include "coterie/util.h"
 
 static void test_auc_counts_ties_as_half(void **state)
 {
@@ -154,10 +157,142 @@ static void test_score_matches_definition_on_a_small_model(void **state)
 	double colsum[] = { 2.5 };
 	struct fcsr F = { 4, 1, off, e, colsum };
 	double l, auc, qeps = -log(0.9);
-	assert_int_equal(holdout_score(&h, &F, 0.1, &l, &auc), 0);
+	assert_int_equal(holdout_score(&h, &F, 0.1, MODEL_BIGCLAM, &l, &auc), 0);
 	double want = log(1.0 - exp(-(1.0 + qeps))) - (0.5 + qeps) - qeps;
 	assert_true(fabs(l - want) < 1e-12);
 	assert_true(auc == 1.0);
+}
+
+/* A graph read from text (arcs, two-mode links or weighted edges). */
+static struct graph *load_text(const char *text, const struct graph_load_opts *o)
+{
+	const char *dir = test_tmpdir();
+	struct graph *g = graph_load_with(test_write_file(dir, "g.tsv", text), o);
+	assert_non_null(g);
+	assert_graph_sane(g);
+	test_rmtree(dir);
+	return g;
+}
+
+/* Random lines "a<TAB>b[<TAB>w]" over n names, each pair with probability p. */
+static char *random_lines(struct rng *r, uint32_t n, double p, int weights)
+{
+	size_t cap = (size_t)n * n * 24 + 1, len = 0;
+	char *t = util_malloc(cap, 1);
+	assert_non_null(t);
+	for (uint32_t a = 0; a < n; a++)
+		for (uint32_t b = 0; b < n; b++)
+			if (a != b && rng_uniform(r) < p)
+				len += (size_t)snprintf(t + len, cap - len, weights ? "%u\t%u\t%u\n"
+										 : "%u\t%u\n",
+							a, b, 1 + (unsigned)rng_below(r, 5));
+	t[len] = 0;
+	return t;
+}
+
+/* What every split of a two-sided graph keeps: its sides in the training
+ * graph, non-edges of one sending and one receiving row (never a node's
+ * own pair), and, directed, every own pair in the held graph. */
+static void check_sided_split(const struct graph *g, const struct holdout *h)
+{
+	assert_int_equal(h->train->nsend, g->nsend);
+	assert_int_equal(h->train->paired, g->paired);
+	assert_int_equal(h->nnon, h->nedges);
+	for (uint64_t i = 0; i < h->nnon; i++) {
+		uint32_t u = h->non[2 * i], v = h->non[2 * i + 1];
+		assert_true(u < g->nsend && v >= g->nsend && !graph_has_edge(g, u, v));
+		assert_false(g->paired && v == g->nsend + u);
+	}
+	uint64_t own = g->paired ? g->nsend : 0;
+	assert_int_equal(h->held->m, h->nedges + h->nnon + own);
+	for (uint64_t i = 0; i < own; i++)
+		assert_true(graph_has_edge(h->held, (uint32_t)i, g->nsend + (uint32_t)i));
+	for (uint32_t u = 0; u < g->n; u++) /* no training edge is held out */
+		for (uint64_t i = h->train->off[u]; i < h->train->off[u + 1]; i++)
+			assert_false(graph_has_edge(h->held, u, h->train->adj[i]));
+}
+
+static void test_split_of_a_two_sided_graph_stays_on_its_sides(void **state)
+{
+	(void)state;
+	struct rng r;
+	rng_init(&r, 11);
+	for (int two_mode = 0; two_mode < 2; two_mode++) {
+		char *text = random_lines(&r, 30, 0.15, 0);
+		struct graph_load_opts o = { .directed = !two_mode, .two_mode = two_mode };
+		struct graph *g = load_text(text, &o);
+		free(text);
+		assert_true(g->nsend > 0);
+		for (uint64_t seed = 1; seed <= 5; seed++) {
+			struct holdout h;
+			assert_int_equal(holdout_split(&h, g, 0.2, seed), 0);
+			check_sided_split(g, &h);
+			holdout_release(&h);
+		}
+		graph_free(g);
+	}
+}
+
+static void test_split_of_a_weighted_graph_keeps_the_weights(void **state)
+{
+	(void)state;
+	struct rng r;
+	rng_init(&r, 12);
+	char *text = random_lines(&r, 40, 0.1, 1);
+	struct graph_load_opts o = { .weighted = 1 };
+	struct graph *g = load_text(text, &o);
+	free(text);
+	assert_non_null(g->wt);
+	struct holdout h;
+	assert_int_equal(holdout_split(&h, g, 0.25, 3), 0);
+	assert_non_null(h.wedges);
+	assert_non_null(h.train->wt);
+	for (uint64_t i = 0; i < h.nedges; i++) { /* each held-out edge's own weight */
+		uint32_t u = h.edges[2 * i], v = h.edges[2 * i + 1];
+		uint64_t at = g->off[u] + util_lower_bound_u32(g->adj + g->off[u], graph_degree(g, u), v);
+		assert_true(h.wedges[i] == g->wt[at]);
+	}
+	for (uint32_t u = 0; u < h.train->n; u++) /* and each training edge's */
+		for (uint64_t i = h.train->off[u]; i < h.train->off[u + 1]; i++) {
+			uint32_t v = h.train->adj[i];
+			uint64_t at = g->off[u] +
+				      util_lower_bound_u32(g->adj + g->off[u], graph_degree(g, u), v);
+			assert_true(h.train->wt[i] == g->wt[at]);
+		}
+	holdout_release(&h);
+	graph_free(g);
+}
+
+static void test_poisson_score_matches_definition_on_a_small_model(void **state)
+{
+	(void)state;
+	/* the model of the test above, the held-out edge 0-1 of weight 3:
+	 * Poisson with mean x + qeps = 1 + qeps, log P(3) = 3 log(1 + qeps)
+	 * - log 3! - (1 + qeps); the non-edges (weight 0): -(0.5 + qeps) and
+	 * -(0 + qeps). log 3! = log 6 = lgamma(4). AUC as before: 1. */
+	struct holdout h;
+	memset(&h, 0, sizeof h);
+	uint32_t he[] = { 0, 1 }, hn[] = { 0, 2, 2, 3 };
+	double w[] = { 3.0 };
+	h.edges = he;
+	h.wedges = w;
+	h.nedges = 1;
+	h.non = hn;
+	h.nnon = 2;
+	uint64_t off[] = { 0, 1, 2, 3, 3 };
+	struct fentry e[] = { { 0, 1.0 }, { 0, 1.0 }, { 0, 0.5 } };
+	double colsum[] = { 2.5 };
+	struct fcsr F = { 4, 1, off, e, colsum };
+	double l, auc, qeps = -log(0.9);
+	assert_int_equal(holdout_score(&h, &F, 0.1, MODEL_POISSON, &l, &auc), 0);
+	double want = 3.0 * log(1.0 + qeps) - log(6.0) - (1.0 + qeps) - (0.5 + qeps) - qeps;
+	assert_true(fabs(l - want) < 1e-12);
+	assert_true(auc == 1.0);
+	/* the two-sided kinds score as BigCLAM (weights are not theirs) */
+	h.wedges = NULL;
+	assert_int_equal(holdout_score(&h, &F, 0.1, MODEL_DIRECTED, &l, &auc), 0);
+	want = log(1.0 - exp(-(1.0 + qeps))) - (0.5 + qeps) - qeps;
+	assert_true(fabs(l - want) < 1e-12);
 }
 
 int main(void)
@@ -169,6 +304,9 @@ int main(void)
 		cmocka_unit_test(test_split_depends_on_the_seed_only),
 		cmocka_unit_test(test_split_refuses_what_it_cannot_do),
 		cmocka_unit_test(test_score_matches_definition_on_a_small_model),
+		cmocka_unit_test(test_split_of_a_two_sided_graph_stays_on_its_sides),
+		cmocka_unit_test(test_split_of_a_weighted_graph_keeps_the_weights),
+		cmocka_unit_test(test_poisson_score_matches_definition_on_a_small_model),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
