@@ -13,6 +13,7 @@
 #include "coterie/fit.h"
 #include "coterie/graph.h"
 #include "coterie/model.h"
+#include "coterie/rng.h"
 #include "coterie/savepoint.h"
 #include "coterie/sweep.h"
 
@@ -119,5 +120,13 @@ enum fit_state fit_run_starts(struct fit *f);
 struct fit_savepoint *fit_make_savepoint(struct fit *f);
 /* A deep copy of a savepoint; NULL when out of memory. */
 struct fit_savepoint *fit_savepoint_dup(const struct fit_savepoint *src);
+
+/* The merge move (fit_merge.c): join at most limit pairs of columns that
+ * hold pieces of one community (the edges between them more likely in
+ * one block than in the background) and plant the freed columns on the
+ * ego-nets a new column would explain best; *made gets the joins made.
+ * 1 made, 0 nothing to join, -1 error. The caller climbs and keeps it
+ * only if l(F) rose. BigCLAM one-sided models only. */
+int fit_merge_move(struct fit *f, struct rng *r, uint32_t limit, uint32_t *made);
 
 #endif

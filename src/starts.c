@@ -9,11 +9,16 @@
  * fit_part as a savepoint holds it). Ties keep the earlier start.
  *
  * Reseeding moves. A start often levels off with one column spread over
- * two true communities and another wasted on a sliver of a third. A move
- * takes the weakest column (smallest column sum), empties it, and seeds it
- * again inside the largest community (the ego-net of one of its members,
- * restricted to that community), then fits to a plateau again. The move
- * is kept only if the log-likelihood rose; otherwise the model goes back.
+ * two true communities and another wasted on a sliver of a third, or (where
+ * communities leak links) with a large community cut into pieces and small
+ * ones sharing a column. A move is a merge (fit_merge.c: join the pieces,
+ * plant the freed columns where new columns would explain most) while
+ * there are pieces to join, else a split: take the weakest column
+ * (smallest column sum), empty it, and seed it again inside the largest
+ * community (the ego-net of one of its members, restricted to that
+ * community). Either way the start then fits to a plateau again, and the
+ * move is kept only if the log-likelihood rose; otherwise the model goes
+ * back (a failed merge halves the joins the next one may make).
  * Moves stop after RESEED_FAILS failures in a row, RESEED_MAX moves, or
  * when they have used as many sweeps as the climb to the first plateau.
  *
@@ -330,6 +335,7 @@ static enum fit_state reseed(struct fit *f)
 	memset(&saved, 0, sizeof saved);
 	enum fit_state st = FIT_LEVELLED;
 	unsigned fails = 0;
+	uint32_t merge_limit = UINT32_MAX;
 	/* the moves may spend at most as many sweeps as the climb did (and at
 	 * least RESEED_MIN_BUDGET), so reseeding at most about doubles a fit */
 	uint32_t budget = f->sweep > RESEED_MIN_BUDGET ? f->sweep : RESEED_MIN_BUDGET;
@@ -345,7 +351,10 @@ static enum fit_state reseed(struct fit *f)
 		fcsr_release(&saved);
 		if (model_export(&f->m, &saved))
 			return FIT_FAILED;
-		int rc = reseed_column(f, &r);
+		uint32_t made = 0;
+		int rc = f->p.model == MODEL_BIGCLAM ? fit_merge_move(f, &r, merge_limit, &made) : 0;
+		if (rc == 0)
+			rc = reseed_column(f, &r);
 		if (rc <= 0) {
 			st = rc < 0 ? FIT_FAILED : FIT_LEVELLED;
 			break;
@@ -370,6 +379,8 @@ static enum fit_state reseed(struct fit *f)
 			f->sweep = sweep;
 			f->plateau_sweep = plateau;
 			fails++;
+			if (made)
+				merge_limit = made / 2;
 		}
 		if (st != FIT_LEVELLED)
 			break;

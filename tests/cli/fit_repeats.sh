@@ -85,6 +85,12 @@ check "--repeats with --resume is refused (status 2)" [ $? -eq 2 ]
 # mean stability 0.952 (9 at Jaccard >= 0.72 with stability 0.875-1,
 # conference 6 at 0.538 with 0.769); the 5 independents (0.1) and
 # conference 10 (0.444) both best match one community of stability 0.75.
+# Since the merge move (fit_merge.c) the five fits agree more: 10 found,
+# mean stability 0.981, and the independents with conference 10 now make
+# one community that all five fits find (stability 1.000): stability says
+# that a group recurs, not that it is a known one. So the check is that
+# the conferences found are found stably (mean at least 0.85, and at
+# least 9 of the 12 found), not that the others are less stable.
 "$BIN" fit "$DATA/football/edges.tsv" -k 12 --epsilon 0.0935 --repeats 5 -j 2 -q -o "$tmp/fb"
 "$PY" - "$tmp/fb" "$DATA/football/truth.tsv" >"$tmp/fb.out" 2>&1 <<'PYEOF'
 import sys, csv
@@ -110,8 +116,8 @@ for conf in sorted(t, key=int):
     (good if j >= 0.5 else bad).append(stab[c])
 print("# found (Jaccard >= 0.5): %d, mean stability %.3f; not: %d, mean %.3f"
       % (len(good), sum(good) / len(good), len(bad), sum(bad) / max(len(bad), 1)))
-assert not bad or sum(good) / len(good) > sum(bad) / len(bad)
+assert len(good) >= 9 and sum(good) / len(good) >= 0.85
 PYEOF
-check "football: the conferences found are on more stable communities than those not" [ $? -eq 0 ]
+check "football: at least 9 conferences found, on communities of mean stability >= 0.85" [ $? -eq 0 ]
 cat "$tmp/fb.out"
 finish

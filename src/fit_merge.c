@@ -1,0 +1,482 @@
+/*
+ * fit_merge: the merge move of the reseeding (starts.c), for a start that
+ * levelled off with one true community cut into pieces.
+ *
+ * Where communities leak links and their sizes follow a power law, the
+ * ego-net seeds land several times inside a large sparse community and
+ * none in many small ones; the climb then levels off with the large one
+ * held by several columns that meet edge to edge, and the small ones
+ * left without a column. No single-row step can join two columns, and
+ * the split move (reseed a weak column inside the largest community)
+ * cannot either. The merge move reads the cover at delta and, for two
+ * columns A and B, counts the edges inside each and those between
+ * A \ B and B \ A (eX among NX = |A| |B| pairs). It estimates the
+ * background the cover leaves, bg (edges whose ends share no column over
+ * the pairs in no column), and asks whether the edges between are better
+ * explained as part of one block at the union's density pm than by the
+ * background:
+ *
+ *   LR = eX ln(pm / bg) + (NX - eX) ln((1 - pm) / (1 - bg)).
+ *
+ * Two pieces of one community have eX / NX near the community's density
+ * and LR > 0; two communities joined only by leaking links have eX / NX
+ * near bg and LR < 0. (The whole block likelihood, union against the two
+ * blocks, was measured first and judges against every join: the climb
+ * leaves each piece denser than the community it was cut from.) The move
+ * makes the joins with LR > 0, the largest first, each column at most
+ * once and at most limit of them (each node keeps the larger of its two
+ * strengths), and plants each freed column on the ego-net where a new
+ * column would gain the most: the block likelihood of its edges at their
+ * own density less what the model gives its pairs now, among
+ * MERGE_SAMPLE random nodes, the ego-nets disjoint. There must be such a
+ * host for every join made. The caller climbs again and keeps the move
+ * only if l(F) rose, as for every move; after a failure it halves limit.
+ *
+ * The one thing a newcomer gets wrong: the counts are of the cover read
+ * at delta, not of the strengths; they only choose the pairs. Whether the
+ * move is kept is the likelihood's decision alone.
+ */
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "coterie/rng.h"
+#include "coterie/util.h"
+#include "fit-internal.h"
+
+#define MERGE_SAMPLE 4096u /* nodes whose ego-nets may host a freed column */
+#define MERGE_MAX_ROW 64u  /* memberships of a row counted */
+#define MERGE_MAX_EGO 256u /* larger ego-nets are not scored as hosts */
+
+/* A join: columns a < b and its LR (gain). */
+struct join {
+	double gain;
+	uint32_t a, b;
+};
+
+static int join_cmp(const void *x, const void *y)
+{
+	const struct join *p = x, *q = y;
+	if (p->gain != q->gain)
+		return p->gain > q->gain ? -1 : 1;
+	if (p->a != q->a)
+		return p->a < q->a ? -1 : 1;
+	return p->b < q->b ? -1 : p->b > q->b;
+}
+
+/* The Bernoulli block log-likelihood of e edges among N pairs at its own
+ * density. */
+static double block_ll(double e, double N)
+{
+	if (N <= 0.0 || e <= 0.0 || e >= N)
+		return 0.0;
+	double p = e / N;
+	return e * log(p) + (N - e) * log1p(-p);
+}
+
+/* The cover at delta, by column: members of c are mem[off[c] .. off[c+1]).
+ * in(u, c) is answered from the rows. */
+struct colcover {
+	uint64_t *off;
+	uint32_t *mem;
+};
+
+static int member(const struct model *m, uint32_t u, uint32_t c)
+{
+	const struct frow *r = &m->rows[u];
+	for (uint32_t i = 0; i < r->nnz; i++)
+		if (r->e[i].c == c)
+			return r->e[i].v >= m->delta;
+	return 0;
+}
+
+static int colcover_build(struct colcover *cc, const struct model *m)
+{
+	cc->off = util_calloc((size_t)m->k + 1, sizeof *cc->off);
+	if (!cc->off)
+		return -1;
+	for (uint32_t u = 0; u < m->n; u++)
+		for (uint32_t i = 0; i < m->rows[u].nnz; i++)
+			if (m->rows[u].e[i].v >= m->delta)
+				cc->off[m->rows[u].e[i].c + 1]++;
+	for (uint32_t c = 0; c < m->k; c++)
+		cc->off[c + 1] += cc->off[c];
+	cc->mem = util_malloc(cc->off[m->k] ? cc->off[m->k] : 1, sizeof *cc->mem);
+	uint64_t *fill = util_malloc((size_t)m->k + 1, sizeof *fill);
+	if (!cc->mem || !fill) {
+		free(fill);
+		return -1;
+	}
+	memcpy(fill, cc->off, ((size_t)m->k + 1) * sizeof *fill);
+	for (uint32_t u = 0; u < m->n; u++)
+		for (uint32_t i = 0; i < m->rows[u].nnz; i++)
+			if (m->rows[u].e[i].v >= m->delta)
+				cc->mem[fill[m->rows[u].e[i].c]++] = u;
+	free(fill);
+	return 0;
+}
+
+/* Edges inside each column (both ends members): ein[k]. */
+static void count_inside(const struct model *m, const struct graph *g,
+			 const struct colcover *cc, uint64_t *ein, uint8_t *mark)
+{
+	for (uint32_t c = 0; c < m->k; c++) {
+		for (uint64_t i = cc->off[c]; i < cc->off[c + 1]; i++)
+			mark[cc->mem[i]] = 1;
+		uint64_t e2 = 0;
+		for (uint64_t i = cc->off[c]; i < cc->off[c + 1]; i++) {
+			uint32_t u = cc->mem[i];
+			for (uint64_t j = g->off[u]; j < g->off[u + 1]; j++)
+				e2 += mark[g->adj[j]];
+		}
+		ein[c] = e2 / 2;
+		for (uint64_t i = cc->off[c]; i < cc->off[c + 1]; i++)
+			mark[cc->mem[i]] = 0;
+	}
+}
+
+/* Whether rows u and v share a column at delta or above (rows sorted). */
+static int share_column(const struct model *m, uint32_t u, uint32_t v)
+{
+	const struct frow *a = &m->rows[u], *b = &m->rows[v];
+	uint32_t i = 0, j = 0;
+	while (i < a->nnz && j < b->nnz) {
+		if (a->e[i].c < b->e[j].c)
+			i++;
+		else if (a->e[i].c > b->e[j].c)
+			j++;
+		else if (a->e[i].v >= m->delta && b->e[j].v >= m->delta)
+			return 1;
+		else
+			i++, j++;
+	}
+	return 0;
+}
+
+/* The background the cover leaves: the edges whose ends share no column
+ * over the pairs inside no column (a pair in two columns is taken out
+ * twice, so a little high), at most epsilon. */
+static double cover_background(const struct model *m, const struct graph *g,
+			       const struct colcover *cc)
+{
+	double pin = 0.0, n = (double)m->n;
+	for (uint32_t c = 0; c < m->k; c++) {
+		double s = (double)(cc->off[c + 1] - cc->off[c]);
+		pin += s * (s - 1) / 2;
+	}
+	uint64_t out = 0;
+	for (uint32_t u = 0; u < g->n; u++)
+		for (uint64_t j = g->off[u]; j < g->off[u + 1]; j++)
+			if (g->adj[j] > u && !share_column(m, u, g->adj[j]))
+				out++;
+	double bg = (double)out / (n * (n - 1) / 2 - pin);
+	return bg > 0.0 && bg < m->epsilon ? bg : m->epsilon;
+}
+
+/* Every pair (a < b) with edges between A \ B and B \ A and a gain above
+ * floor, best first, in *out (allocated); the count, or -1. */
+static int64_t find_joins(const struct model *m, const struct graph *g,
+			  const struct colcover *cc, const uint64_t *ein, double bg,
+			  struct join **out)
+{
+	uint32_t k = m->k;
+	uint64_t *cnt = util_calloc(k, sizeof *cnt);
+	uint32_t *touched = util_malloc(k, sizeof *touched);
+	uint64_t njoin = 0, cap = 0;
+	struct join *joins = NULL;
+	double le = log(bg), l1e = log1p(-bg);
+	int64_t rc = -1;
+	if (!cnt || !touched)
+		goto out;
+	for (uint32_t a = 0; a < k; a++) {
+		uint32_t nt = 0;
+		for (uint64_t i = cc->off[a]; i < cc->off[a + 1]; i++) {
+			uint32_t u = cc->mem[i];
+			for (uint64_t j = g->off[u]; j < g->off[u + 1]; j++) {
+				uint32_t v = g->adj[j];
+				const struct frow *rv = &m->rows[v];
+				if (member(m, v, a))
+					continue;
+				for (uint32_t t = 0; t < rv->nnz && t < MERGE_MAX_ROW; t++) {
+					uint32_t b = rv->e[t].c;
+					if (b <= a || rv->e[t].v < m->delta || member(m, u, b))
+						continue;
+					if (cnt[b]++ == 0)
+						touched[nt++] = b;
+				}
+			}
+		}
+		for (uint32_t t = 0; t < nt; t++) {
+			uint32_t b = touched[t];
+			double na = (double)(cc->off[a + 1] - cc->off[a]);
+			double nb = (double)(cc->off[b + 1] - cc->off[b]);
+			double NA = na * (na - 1) / 2, NB = nb * (nb - 1) / 2, NX = na * nb;
+			double eA = (double)ein[a], eB = (double)ein[b], eX = (double)cnt[b];
+			/* the log-likelihood ratio of the edges between: at the
+			 * union's density against the background */
+			double pm = (eA + eB + eX) / (NA + NB + NX);
+			double gain = pm > 0.0 && pm < 1.0
+					      ? eX * (log(pm) - le) + (NX - eX) * (log1p(-pm) - l1e)
+					      : -1.0;
+			cnt[b] = 0;
+			if (!(gain > 0.0))
+				continue;
+			if (njoin == cap) {
+				uint64_t want = 2 * cap + 64;
+				struct join *grown = util_realloc(joins, want, sizeof *joins);
+				if (!grown)
+					goto out;
+				joins = grown;
+				cap = want;
+			}
+			joins[njoin++] = (struct join){ gain, a, b };
+		}
+	}
+	if (njoin)
+		qsort(joins, njoin, sizeof *joins, join_cmp);
+	*out = joins;
+	joins = NULL;
+	rc = (int64_t)njoin;
+out:
+	free(cnt);
+	free(touched);
+	free(joins);
+	return rc;
+}
+
+/* What a new column on u's ego-net (u and its neighbours, d + 1 nodes)
+ * would gain, about: the block likelihood of its E edges among its
+ * N = (d + 1) d / 2 pairs at their own density, less what the model
+ * gives those pairs now (each pair at 1 - exp(-(F_v . F_w + qeps))).
+ * ego: d + 1 entries of scratch; nbr: n entries, a stamp per centre
+ * (nbr[w] == v + 1: w is a neighbour of v). */
+static double ego_value(const struct model *m, const struct graph *g, uint32_t u,
+			uint32_t *ego, uint32_t *nbr)
+{
+	uint32_t d = 0;
+	ego[d++] = u;
+	for (uint64_t j = g->off[u]; j < g->off[u + 1]; j++)
+		ego[d++] = g->adj[j];
+	double E = 0.0, now = 0.0;
+	for (uint32_t i = 0; i < d; i++) {
+		uint32_t v = ego[i];
+		const struct frow *rv = &m->rows[v];
+		for (uint64_t j = g->off[v]; j < g->off[v + 1]; j++)
+			nbr[g->adj[j]] = v + 1;
+		for (uint32_t t = i + 1; t < d; t++) {
+			uint32_t w = ego[t];
+			const struct frow *rw = &m->rows[w];
+			double x = model_dot(rv->e, rv->nnz, rw->e, rw->nnz) + m->qeps;
+			if (nbr[w] == v + 1) {
+				E += 1.0;
+				now += log(-expm1(-x));
+			} else {
+				now -= x;
+			}
+		}
+	}
+	/* the stamps of v + 1 may be read again by a later centre: clear */
+	for (uint32_t i = 0; i < d; i++)
+		for (uint64_t j = g->off[ego[i]]; j < g->off[ego[i] + 1]; j++)
+			nbr[g->adj[j]] = 0;
+	double N = (double)d * (d - 1) / 2;
+	return block_ll(E, N) - now;
+}
+
+struct centre {
+	double value; /* what a column planted here would gain, about */
+	uint32_t u;
+};
+
+static int centre_cmp(const void *x, const void *y)
+{
+	const struct centre *p = x, *q = y;
+	if (p->value != q->value)
+		return p->value > q->value ? -1 : 1;
+	return p->u < q->u ? -1 : p->u > q->u;
+}
+
+/* Centres of disjoint ego-nets the model explains badly, the best first,
+ * in *out (allocated), at most MERGE_SAMPLE: an ego-net of d + 1 nodes
+ * with U of its edges left to the background is worth about the block
+ * likelihood of U edges among its (d + 1) d / 2 pairs against the
+ * background bg. The count, or -1. mark: n zeros, left zeroed. */
+static int64_t pick_centres(const struct model *m, const struct graph *g, struct rng *r,
+			    struct centre **out, uint8_t *mark)
+{
+	uint32_t tries = g->n < MERGE_SAMPLE ? g->n : MERGE_SAMPLE;
+	struct centre *cand = util_malloc(tries ? tries : 1, sizeof *cand);
+	uint32_t *ego = util_malloc(MERGE_MAX_EGO + 1, sizeof *ego);
+	uint32_t *nbr = util_calloc(g->n, sizeof *nbr);
+	if (!cand || !ego || !nbr) {
+		free(cand);
+		free(ego);
+		free(nbr);
+		return -1;
+	}
+	uint32_t nc = 0;
+	for (uint32_t t = 0; t < tries; t++) {
+		uint32_t u = tries == g->n ? t : (uint32_t)rng_below(r, g->n);
+		uint32_t d = graph_degree(g, u);
+		if (d < 2 || d > MERGE_MAX_EGO)
+			continue;
+		double value = ego_value(m, g, u, ego, nbr);
+		if (value > 0.0)
+			cand[nc++] = (struct centre){ value, u };
+	}
+	free(ego);
+	free(nbr);
+	qsort(cand, nc, sizeof *cand, centre_cmp);
+	uint32_t got = 0;
+	for (uint32_t i = 0; i < nc; i++) {
+		uint32_t u = cand[i].u;
+		if (mark[u])
+			continue;
+		cand[got++] = cand[i];
+		mark[u] = 1;
+		for (uint64_t j = g->off[u]; j < g->off[u + 1]; j++)
+			mark[g->adj[j]] = 1;
+	}
+	for (uint32_t i = 0; i < got; i++) {
+		uint32_t u = cand[i].u;
+		mark[u] = 0;
+		for (uint64_t j = g->off[u]; j < g->off[u + 1]; j++)
+			mark[g->adj[j]] = 0;
+	}
+	*out = cand;
+	return got;
+}
+
+/* Row u with every dropped column c folded into into[c] (the larger
+ * strength kept; into[c] < 0: c is not dropped). buf: k + 1 entries.
+ * 0 or -1. */
+static int rewrite_row(struct model *m, uint32_t u, const int32_t *into, struct fentry *buf)
+{
+	const struct frow *row = &m->rows[u];
+	uint32_t o = 0;
+	int changed = 0;
+	for (uint32_t i = 0; i < row->nnz; i++) {
+		struct fentry e = row->e[i];
+		if (into[e.c] >= 0) { /* a dropped column: fold into its keeper */
+			e.c = (uint32_t)into[e.c];
+			changed = 1;
+		}
+		buf[o++] = e;
+	}
+	if (!changed)
+		return 0;
+	/* sort by column and fold duplicates (keep the larger) */
+	for (uint32_t a = 1; a < o; a++)
+		for (uint32_t b = a; b > 0 && buf[b - 1].c > buf[b].c; b--) {
+			struct fentry t = buf[b];
+			buf[b] = buf[b - 1];
+			buf[b - 1] = t;
+		}
+	uint32_t w = 0;
+	for (uint32_t a = 0; a < o; a++) {
+		if (w && buf[w - 1].c == buf[a].c) {
+			if (buf[a].v > buf[w - 1].v)
+				buf[w - 1].v = buf[a].v;
+			continue;
+		}
+		buf[w++] = buf[a];
+	}
+	return model_set_row(m, u, buf, w);
+}
+
+/* Row u with column c set to v (added in order when absent). */
+static int put_entry(struct model *m, uint32_t u, uint32_t c, double v, struct fentry *buf)
+{
+	const struct frow *row = &m->rows[u];
+	uint32_t o = 0, put = 0;
+	for (uint32_t i = 0; i < row->nnz; i++) {
+		if (!put && row->e[i].c >= c) {
+			buf[o++] = (struct fentry){ c, v };
+			put = 1;
+			if (row->e[i].c == c)
+				continue;
+		}
+		buf[o++] = row->e[i];
+	}
+	if (!put)
+		buf[o++] = (struct fentry){ c, v };
+	return model_set_row(m, u, buf, o);
+}
+
+int fit_merge_move(struct fit *f, struct rng *r, uint32_t limit, uint32_t *made)
+{
+	struct model *m = &f->m;
+	const struct graph *g = f->gw;
+	*made = 0;
+	if (m->k < 2 || g->n == 0 || m->nsend || limit == 0)
+		return 0;
+	struct colcover cc = { 0 };
+	uint64_t *ein = util_calloc(m->k, sizeof *ein);
+	uint8_t *mark = util_calloc(g->n > m->k ? g->n : m->k, 1);
+	int32_t *into = util_malloc(m->k, sizeof *into);
+	struct fentry *buf = util_malloc((size_t)m->k + 1, sizeof *buf);
+	uint32_t *freed = util_malloc(m->k, sizeof *freed);
+	struct join *joins = NULL;
+	struct centre *cen = NULL;
+	int rc = -1;
+	if (!ein || !mark || !into || !buf || !freed || colcover_build(&cc, m))
+		goto out;
+	count_inside(m, g, &cc, ein, mark);
+	double bg = cover_background(m, g, &cc);
+	int64_t ncen = pick_centres(m, g, r, &cen, mark);
+	if (ncen < 0)
+		goto out;
+	if (ncen == 0) {
+		rc = 0;
+		goto out;
+	}
+	int64_t nj = find_joins(m, g, &cc, ein, bg, &joins);
+	if (nj < 0)
+		goto out;
+	/* the least costly joins with the most valuable centres, while the
+	 * pair gains: join i frees the column planted on centre i */
+	for (uint32_t c = 0; c < m->k; c++)
+		into[c] = -1;
+	uint8_t *taken = mark; /* k zeros (mark is zeroed, max(n, k) long) */
+	uint32_t nfreed = 0;
+	for (int64_t i = 0; i < nj && nfreed < (uint64_t)ncen && nfreed < limit; i++) {
+		uint32_t a = joins[i].a, b = joins[i].b;
+		if (taken[a] || taken[b])
+			continue;
+		taken[a] = taken[b] = 1;
+		uint32_t keep = m->colsum[a] >= m->colsum[b] ? a : b;
+		uint32_t drop = keep == a ? b : a;
+		into[drop] = (int32_t)keep;
+		freed[nfreed++] = drop;
+	}
+	memset(taken, 0, m->k);
+	*made = nfreed;
+	if (nfreed == 0) {
+		rc = 0;
+		goto out;
+	}
+	for (uint32_t u = 0; u < m->n; u++)
+		if (rewrite_row(m, u, into, buf))
+			goto out;
+	for (uint32_t i = 0; i < nfreed; i++) {
+		uint32_t c = cen[i].u, col = freed[i];
+		for (uint64_t j = g->off[c]; j <= g->off[c + 1]; j++) {
+			uint32_t u = j < g->off[c + 1] ? g->adj[j] : c;
+			if (put_entry(m, u, col, 1.0, buf))
+				goto out;
+		}
+	}
+	model_recount(m);
+	rc = 1;
+out:
+	free(cc.off);
+	free(cc.mem);
+	free(ein);
+	free(mark);
+	free(into);
+	free(buf);
+	free(freed);
+	free(joins);
+	free(cen);
+	return rc;
+}
