@@ -11,8 +11,11 @@
  * it is predicted from a leak measure taken before the fit, the share of
  * edges that close no triangle (edges between communities rarely do),
  * with k and n / k; the constants are fitted to the peaks of
- * tests/bench/memory_table.sh and scaled to lie slightly above them (an
- * estimate below the peak starts fits that do not fit).
+ * tests/bench/memory_table.sh and scaled by 1.1 (an estimate far below
+ * the peak starts fits that do not fit). The peak is in the first
+ * sweeps on most graphs, but at the end (the final AGM index counts every
+ * edge times the communities its ends share) on graphs of many edges a
+ * node: the estimate is the larger of the two.
  * The one thing a newcomer gets wrong: the limit may count address space
  * (ulimit -v), where every thread's stack counts in full whether touched
  * or not, and AddressSanitizer's shadow would count terabytes; so the
