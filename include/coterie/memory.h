@@ -12,9 +12,11 @@ struct graph;
 struct fit_params;
 
 /* The bytes a fit of g (borrowed, already loaded) with p will add to the
- * resident size at its peak: a fixed part, a part a node, a part an entry
- * of the predicted fill (memory_fill()) and each further thread's
- * scratch, fitted to measured peaks and set slightly above them. An
+ * resident size at its peak: a fixed part, a part a node and each further
+ * thread's scratch, plus the larger of a part an entry of the predicted
+ * fill (memory_fill(); the first sweeps) and a part an edge and an entry
+ * of the fill (the end of the fit), fitted to measured peaks and scaled
+ * by 1.1. An
  * estimate, not a bound. Thread stacks are not included (see
  * memory_check_fit()). Costs a pass over the nodes and a sample of edges. */
 uint64_t memory_fit_estimate(const struct graph *g, const struct fit_params *p);

@@ -10,7 +10,10 @@
 # then empty, DEVELOPERS.md). Then graphs the estimate's constants were
 # not fitted to ("held out": mixing 0.15 at 3x10^4 nodes, and a 10^5-node
 # graph of mean degree 16 whose communities leak through the background,
-# --epsilon 4e-5). Prints a Markdown table.
+# --epsilon 4e-5; a weighted graph, fitted with --weighted) and one of
+# mean degree 40 whose peak is at the end of the fit, not in the sweeps
+# (its end-phase constant, END_BYTES in src/memory.c, was fitted to it).
+# Prints a Markdown table.
 # usage: tests/bench/memory_table.sh [BIN] [SIZES] [HELDOUT]
 #   SIZES default "10000 100000"; HELDOUT 0 skips the held-out graphs
 set -u
@@ -20,14 +23,17 @@ work=$(mktemp -d)
 trap 'rm -rf "$work"' EXIT
 echo "| graph | n | edges | k | -j | resident at the check MiB | estimate in all MiB | peak MiB | estimate/peak |"
 echo "|---|---|---|---|---|---|---|---|---|"
-# row LABEL DIR N M K J: one line of the table
+# row LABEL DIR N M K J: one line of the table ($EXTRA: more fit options)
+EXTRA=
 row()
 {
-	est=$(COTERIE_MEMORY_LIMIT=1K "$BIN" fit "$2/edges.tsv" -k "$5" -j "$6" \
+	# shellcheck disable=SC2086
+	est=$(COTERIE_MEMORY_LIMIT=1K "$BIN" fit "$2/edges.tsv" -k "$5" -j "$6" $EXTRA \
 		--starts 1 --max-sweeps 10 -q -o "$work/o" 2>&1 |
 		sed -n 's/.*about \([0-9.]*\) \([MGK]i*B\) more (\([0-9.]*\) \([MGK]i*B\) in all.*/\1 \2 \3 \4/p')
 	rm -rf "$work/o"
-	"$BIN" fit "$2/edges.tsv" -k "$5" -j "$6" --starts 1 --max-sweeps 10 -q \
+	# shellcheck disable=SC2086
+	"$BIN" fit "$2/edges.tsv" -k "$5" -j "$6" $EXTRA --starts 1 --max-sweeps 10 -q \
 		-o "$work/o" 2>/dev/null
 	peak=$(python3 -c "import json,sys; print(json.load(open(sys.argv[1]))['run']['peak_rss_kb'])" "$work/o/run.json")
 	rm -rf "$work/o"
@@ -76,3 +82,19 @@ d=$work/held2
 	--seed 1 -o "$d" -q
 m=$(grep -vc '^#' "$d/edges.tsv")
 row "held out: background 4e-5" "$d" 100000 "$m" 1134 2
+d=$work/held3
+"$BIN" simulate -n 30000 --sizes 10:500 --overlap 0.2 --max-memberships 3 --mean-degree 12 \
+	--mixing 0.2 --weighted --seed 3 -o "$d" -q
+m=$(grep -vc '^#' "$d/edges.tsv")
+EXTRA=--weighted
+for k in 100 1000; do
+	row "held out: weighted, mixing 0.2" "$d" 30000 "$m" "$k" 2
+done
+EXTRA=
+d=$work/dense
+"$BIN" simulate -n 50000 --sizes 50:5000 --overlap 0.1 --mean-degree 40 --mixing 0.05 \
+	--seed 5 -o "$d" -q
+m=$(grep -vc '^#' "$d/edges.tsv")
+for k in 100 1000; do
+	row "end phase: mean degree 40" "$d" 50000 "$m" "$k" 2
+done

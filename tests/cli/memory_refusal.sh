@@ -20,7 +20,7 @@ in_all()
 lo=$(in_all 2)
 hi=$(in_all 2000)
 check "the estimate grows from k = 2 ($lo KiB) to k = 2000 ($hi KiB)" \
-	[ "${hi:-0}" -gt $((${lo:-0} + 4096)) ]
+	[ "${hi:-0}" -gt $((${lo:-0} + 3072)) ]
 lim=$(((lo + hi) / 2))K
 COTERIE_MEMORY_LIMIT=$lim "$BIN" fit "$g" -k 2000 -j 1 --starts 1 \
 	--max-sweeps 1 -q -o "$tmp/big" 2>"$tmp/big.err"
