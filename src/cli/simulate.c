@@ -60,7 +60,7 @@ static void simulate_usage(FILE *out)
 		"                          the first kind, M of the second (named after the\n"
 		"                          first: ids N .. N+M-1); every community holds both\n"
 		"                          kinds; only pairs of two kinds are linked; the\n"
-		"                          sizes, mean degree and mixing count all nodes"
+		"                          sizes, mean degree and mixing count all nodes\n"
 		"      --prefix STR        node names STR0, STR1, ... (default: 0, 1, ...)\n"
 		"  -o, --output DIR        folder to write (made if missing; required)\n"
 		"      --force             replace a planted graph already in DIR\n"
