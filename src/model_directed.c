@@ -28,6 +28,7 @@
 #include <string.h>
 
 #include "coterie/agm.h"
+#include "coterie/cover.h"
 #include "coterie/graph.h"
 #include "coterie/model.h"
 #include "coterie/seed.h"
@@ -85,6 +86,45 @@ int model_directed_member_at(const struct graph *g, const struct fcsr *F, const 
 	const double *other = sums + (graph_side_of(g, u) ? 0 : F->k);
 	return agm_is_member(F->e[j].v, other[F->e[j].c], delta, AGM_MIN_LINKS,
 			     graph_degree(g, u));
+}
+
+int model_directed_cover(const struct graph *g, const struct fcsr *F, double delta,
+			 struct cover *out)
+{
+	memset(out, 0, sizeof *out);
+	if (F->n != g->n || !g->nsend)
+		return error("a per-side cover needs the rows of a two-sided graph (%u rows, %u "
+			     "nodes)", F->n, g->n);
+	double *sums = util_malloc(2 * (size_t)F->k + 1, sizeof *sums);
+	out->off = util_calloc((size_t)F->k + 1, sizeof *out->off);
+	out->mem = util_malloc(F->off[F->n] + 1, sizeof *out->mem);
+	uint64_t *at = util_malloc((size_t)F->k + 1, sizeof *at);
+	if (!sums || !out->off || !out->mem || !at) {
+		UTIL_FREE_ALL(sums, at);
+		cover_release(out);
+		return -1;
+	}
+	out->n = g->n;
+	out->k = F->k;
+	model_directed_side_sums(g, F, sums);
+	/* twice over the entries: count each column, then fill it in row
+	 * order, so every column's members come out increasing */
+	for (int fill = 0; fill < 2; fill++) {
+		for (uint32_t u = 0; u < F->n; u++)
+			for (uint64_t j = F->off[u]; j < F->off[u + 1]; j++)
+				if (F->e[j].c < F->k && model_directed_member_at(g, F, sums, u, j, delta)) {
+					if (fill)
+						out->mem[at[F->e[j].c]++] = u;
+					else
+						out->off[F->e[j].c + 1]++;
+				}
+		for (uint32_t c = 0; !fill && c < F->k; c++) {
+			out->off[c + 1] += out->off[c];
+			at[c] = out->off[c];
+		}
+	}
+	UTIL_FREE_ALL(sums, at);
+	return 0;
 }
 
 double model_directed_loglik_pairs(const struct model *m, const struct graph *g)

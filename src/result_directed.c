@@ -19,6 +19,7 @@
 #include "result-internal.h"
 
 #include <inttypes.h>
+#include <math.h>
 #include <stdlib.h>
 #include <string.h>
 
@@ -26,6 +27,7 @@
 #include "coterie/graph.h"
 #include "coterie/model_directed.h"
 #include "coterie/result_commit.h"
+#include "coterie/stability.h"
 #include "coterie/util.h"
 
 /* One (node, community) membership: node is the sending row of a
@@ -45,6 +47,7 @@ struct dcover {
 	double *mv;
 	struct dmember *list;
 	uint64_t nlist;
+	const double *score; /* fit --repeats: F->k stabilities by column, or NULL */
 };
 
 static void dcover_release(struct dcover *d)
@@ -189,8 +192,9 @@ static void figures_of(const struct dcover *d, uint64_t a, uint64_t b, struct df
 static int fill_dcommunities(struct atomicfile *w, const void *arg)
 {
 	const struct dcover *d = arg;
+	/* stability last, as in a one-mode communities.tsv */
 	atomicfile_str(w, "community\tsize\tsenders\treceivers\tboth\tarcs_inside\tdensity\t"
-			  "one_way\n");
+			  "one_way\tstability\n");
 	for (uint64_t a = 0, b; a < d->nlist && !atomicfile_failed(w); a = b) {
 		for (b = a; b < d->nlist && d->list[b].c == d->list[a].c; b++)
 			;
@@ -198,18 +202,24 @@ static int fill_dcommunities(struct atomicfile *w, const void *arg)
 		figures_of(d, a, b, &f);
 		double pairs = (double)f.senders * f.receivers - (d->g->paired ? f.both : 0);
 		atomicfile_printf(w, "%" PRIu32 "\t%" PRIu32 "\t%" PRIu32 "\t%" PRIu32 "\t%" PRIu32
-				  "\t%" PRIu64 "\t%.6g\t%.6g\n", d->list[a].c, f.size, f.senders,
+				  "\t%" PRIu64 "\t%.6g\t%.6g\t", d->list[a].c, f.size, f.senders,
 				  f.receivers, f.both, f.arcs, pairs > 0 ? (double)f.arcs / pairs : 0.0,
 				  f.arcs ? (double)f.one_way / (double)f.arcs : 0.0);
+		double st = d->score ? d->score[d->list[a].c] : NAN;
+		if (isnan(st))
+			atomicfile_str(w, "NA\n");
+		else
+			atomicfile_printf(w, "%.4f\n", st);
 	}
 	return 0;
 }
 
 int result_directed_stage(struct result_commit *c, const struct graph *g,
-			  const struct result_model *m)
+			  const struct result_model *m, const struct stability *st)
 {
 	struct dcover d;
 	int rc = dcover_build(&d, g, m->F, m->delta);
+	d.score = st && st->k == m->F->k ? st->score : NULL;
 	if (rc == 0)
 		rc = result_commit_stage(c, "memberships.tsv", fill_dmemberships, &d) ||
 				     result_commit_stage(c, "communities.tsv", fill_dcommunities, &d)

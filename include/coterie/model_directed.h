@@ -52,6 +52,17 @@ void model_directed_side_sums(const struct graph *g, const struct fcsr *F, doubl
 int model_directed_member_at(const struct graph *g, const struct fcsr *F, const double *sums,
 			     uint32_t u, uint64_t j, double delta);
 
+/* The per-side cover of F (g two-sided, F its rows): community c holds
+ * row u when entry (u, c) passes model_directed_member_at(), so a node
+ * of a directed graph is in it once per side it is a member on (its
+ * sending row u, its receiving row nsend + u); a two-mode node once.
+ * out gets F->k communities (id = column, empty ones kept) over g->n
+ * rows, no labels; caller releases with cover_release(). Returns 0, or
+ * -1 with a message (not two-sided, rows and graph differ, out of memory). */
+struct cover;
+int model_directed_cover(const struct graph *g, const struct fcsr *F, double delta,
+			 struct cover *out);
+
 /* The log-likelihood pair by pair, for tests: over ordered pairs of a
  * sending and a receiving row (a directed graph's own pairs left out).
  * O(n^2 nnz). */
