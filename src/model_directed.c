@@ -127,6 +127,49 @@ int model_directed_cover(const struct graph *g, const struct fcsr *F, double del
 	return 0;
 }
 
+int model_directed_figures(const struct graph *g, const struct cover *sided,
+			   struct model_directed_figures *fig)
+{
+	if (sided->n != g->n || !g->nsend)
+		return error("figures by side need a per-side cover of a two-sided graph");
+	uint8_t *in = util_calloc((size_t)g->n + 1, 1); /* rows of the column at hand */
+	if (!in)
+		return -1;
+	uint32_t ns = g->nsend;
+	for (uint32_t c = 0; c < sided->k; c++) {
+		struct model_directed_figures *f = &fig[c];
+		memset(f, 0, sizeof *f);
+		for (uint64_t j = sided->off[c]; j < sided->off[c + 1]; j++)
+			in[sided->mem[j]] = 1;
+		for (uint64_t j = sided->off[c]; j < sided->off[c + 1]; j++) {
+			uint32_t u = sided->mem[j];
+			if (graph_side_of(g, u)) {
+				f->receivers++;
+				continue;
+			}
+			f->senders++;
+			f->both += g->paired && in[ns + u];
+			for (uint64_t t = g->off[u]; t < g->off[u + 1]; t++) {
+				uint32_t v = g->adj[t];
+				if (!in[v])
+					continue;
+				f->arcs++;
+				/* directed: the reverse arc v -> u inside as well? */
+				if (!g->paired || !(in[v - ns] && in[ns + u] && graph_has_edge(g, v - ns, ns + u)))
+					f->one_way++;
+			}
+		}
+		for (uint64_t j = sided->off[c]; j < sided->off[c + 1]; j++)
+			in[sided->mem[j]] = 0;
+		f->size = f->senders + f->receivers - f->both;
+		double pairs = (double)f->senders * f->receivers - (g->paired ? f->both : 0);
+		f->density = pairs > 0 ? (double)f->arcs / pairs : 0.0;
+		f->one_way_share = f->arcs ? (double)f->one_way / (double)f->arcs : 0.0;
+	}
+	free(in);
+	return 0;
+}
+
 double model_directed_loglik_pairs(const struct model *m, const struct graph *g)
 {
 	double l = 0.0;

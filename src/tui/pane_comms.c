@@ -1,9 +1,11 @@
 /*
  * tui/pane_comms: pane 2, the communities, one row each with id, size,
  * internal edges, density, conductance and p (the AGM link probability),
- * and the stability when the folder shown was written by fit --repeats,
- * in the order view.c sorted them (inspect_sort_communities, or by
- * stability). The sorted column carries an arrow; the selected row drives
+ * or for a two-sided fit (directed, two-mode) communities.tsv's figures
+ * (size in nodes, senders, receivers, arcs inside, density, one-way
+ * share; sides.c), and the stability when the folder shown was written by
+ * fit --repeats, in the order view.c sorted them (inspect_sort_communities,
+ * sides_sort_communities, or by stability). The sorted column carries an arrow; the selected row drives
  * panes 3 to 5, and the title says the selected one's stability.
  *
  * Every width lays out cleanly: the columns take their wide forms when
@@ -16,65 +18,97 @@
 #include <stdio.h>
 #include <string.h>
 
+#include "coterie/graph.h"
 #include "panes.h"
 #include "view.h"
 
-static const struct {
-	enum inspect_key key; /* for the stability column: none (stab is 1) */
+struct col {
+	enum inspect_key key; /* what sorts by it (none when nokey or stab) */
 	const char *narrow, *wide;
 	int wn, ww;
-	int stab;
-} cols[] = {
-	{ INSPECT_BY_ID, "id", "id", 5, 6, 0 },
-	{ INSPECT_BY_SIZE, "size", "size", 6, 8, 0 },
-	{ INSPECT_BY_EDGES, "edges", "edges", 7, 9, 0 },
-	{ INSPECT_BY_DENSITY, "dens", "density", 5, 8, 0 },
-	{ INSPECT_BY_CONDUCTANCE, "cond", "conductance", 5, 12, 0 },
-	{ INSPECT_BY_P, "p", "p", 5, 8, 0 },
-	{ INSPECT_BY_ID, "stab", "stability", 5, 9, 1 },
+	int stab, nokey;
 };
-#define NCOLS (sizeof cols / sizeof cols[0])
+
+/* The columns of a one-mode fit: the AGM's figures. */
+static const struct col one_cols[] = {
+	{ INSPECT_BY_ID, "id", "id", 5, 6, 0, 0 },
+	{ INSPECT_BY_SIZE, "size", "size", 6, 8, 0, 0 },
+	{ INSPECT_BY_EDGES, "edges", "edges", 7, 9, 0, 0 },
+	{ INSPECT_BY_DENSITY, "dens", "density", 5, 8, 0, 0 },
+	{ INSPECT_BY_CONDUCTANCE, "cond", "conductance", 5, 12, 0, 0 },
+	{ INSPECT_BY_P, "p", "p", 5, 8, 0, 0 },
+	{ INSPECT_BY_ID, "stab", "stability", 5, 9, 1, 0 },
+};
+
+/* The columns of a two-sided fit: communities.tsv's (sides_figures()),
+ * the keys as sides_sort_communities() reads them. */
+static const struct col two_cols[] = {
+	{ INSPECT_BY_ID, "id", "id", 5, 6, 0, 0 },
+	{ INSPECT_BY_SIZE, "size", "size", 6, 7, 0, 0 },
+	{ INSPECT_BY_P, "send", "senders", 6, 8, 0, 0 },
+	{ INSPECT_BY_ID, "recv", "receivers", 6, 10, 0, 1 },
+	{ INSPECT_BY_EDGES, "arcs", "arcs in", 7, 8, 0, 0 },
+	{ INSPECT_BY_DENSITY, "dens", "density", 5, 8, 0, 0 },
+	{ INSPECT_BY_CONDUCTANCE, "1-way", "one-way", 6, 8, 0, 0 },
+	{ INSPECT_BY_ID, "stab", "stability", 5, 9, 1, 0 },
+};
+#define MAXCOLS 8
 
 /* The lower a column's rank, the longer it stays when the pane narrows. */
-static const int keep_rank[NCOLS] = { 0, 1, 6, 5, 4, 3, 2 };
+static const int one_keep[] = { 0, 1, 6, 5, 4, 3, 2 };
+static const int two_keep[] = { 0, 1, 3, 4, 6, 5, 7, 2 };
 
-/* Column i is the one the rows are sorted by. */
-static int sorted_col(const struct view *v, size_t i)
+struct table {
+	const struct col *cols;
+	const int *keep;
+	size_t n;
+};
+
+static struct table table_of(const struct view *v)
 {
-	return cols[i].stab ? v->by_stability : !v->by_stability && cols[i].key == v->sort_key;
+	if (v->g->nsend)
+		return (struct table){ two_cols, two_keep, sizeof two_cols / sizeof two_cols[0] };
+	return (struct table){ one_cols, one_keep, sizeof one_cols / sizeof one_cols[0] };
+}
+
+/* Column c is the one the rows are sorted by. */
+static int sorted_col(const struct view *v, const struct col *c)
+{
+	return c->stab ? v->by_stability : !v->by_stability && !c->nokey && c->key == v->sort_key;
 }
 
 /* Which columns to draw in width columns (from x = 1), and in which form;
  * returns 1 for the wide forms. */
-static int choose_cols(const struct view *v, int width, int shown[NCOLS])
+static int choose_cols(const struct view *v, const struct table *t, int width,
+		       int shown[MAXCOLS])
 {
 	int need = 0, stab = view_has_stability(v);
-	for (size_t i = 0; i < NCOLS; i++) {
-		shown[i] = !cols[i].stab || stab;
-		need += shown[i] ? cols[i].ww + 1 : 0;
+	for (size_t i = 0; i < t->n; i++) {
+		shown[i] = !t->cols[i].stab || stab;
+		need += shown[i] ? t->cols[i].ww + 1 : 0;
 	}
 	if (width - 2 >= need)
 		return 1;
 	need = 0;
-	for (size_t i = 0; i < NCOLS; i++)
-		need += shown[i] ? cols[i].wn + 1 : 0;
-	for (int rank = (int)NCOLS - 1; rank > 1 && width - 1 < need; rank--)
-		for (size_t i = 0; i < NCOLS; i++)
-			if (keep_rank[i] == rank && shown[i] && !sorted_col(v, i)) {
+	for (size_t i = 0; i < t->n; i++)
+		need += shown[i] ? t->cols[i].wn + 1 : 0;
+	for (int rank = (int)t->n - 1; rank > 1 && width - 1 < need; rank--)
+		for (size_t i = 0; i < t->n; i++)
+			if (t->keep[i] == rank && shown[i] && !sorted_col(v, &t->cols[i])) {
 				shown[i] = 0;
-				need -= cols[i].wn + 1;
+				need -= t->cols[i].wn + 1;
 			}
 	return 0;
 }
 
-static void put_cells(WINDOW *w, int y, int x, int wide, const int shown[NCOLS],
-		      char cell[NCOLS][32])
+static void put_cells(WINDOW *w, int y, int x, int wide, const struct table *t,
+		      const int shown[MAXCOLS], char cell[MAXCOLS][32])
 {
 	int at = x, right = getmaxx(w);
-	for (size_t i = 0; i < NCOLS; i++) {
+	for (size_t i = 0; i < t->n; i++) {
 		if (!shown[i])
 			continue;
-		int cw = wide ? cols[i].ww : cols[i].wn;
+		int cw = wide ? t->cols[i].ww : t->cols[i].wn;
 		if (at + cw > right)
 			break; /* never past the pane's edge */
 		int tw = draw_width(cell[i]);
@@ -85,6 +119,31 @@ static void put_cells(WINDOW *w, int y, int x, int wide, const int shown[NCOLS],
 	}
 }
 
+/* The cells of a row: the AGM's community c, or communities.tsv's
+ * figures of it for a two-sided fit. */
+static void row_cells(const struct view *v, const struct agm_community *c,
+		      char cell[MAXCOLS][32])
+{
+	snprintf(cell[0], sizeof cell[0], "#%u", c->id);
+	if (v->g->nsend && v->side_figs && c->id < v->snap->F.k) {
+		const struct model_directed_figures *f = &v->side_figs[c->id];
+		fmt_count(cell[1], sizeof cell[1], f->size);
+		fmt_count(cell[2], sizeof cell[2], f->senders);
+		fmt_count(cell[3], sizeof cell[3], f->receivers);
+		fmt_count(cell[4], sizeof cell[4], f->arcs);
+		fmt_frac(cell[5], sizeof cell[5], f->density);
+		fmt_frac(cell[6], sizeof cell[6], f->one_way_share);
+		fmt_frac(cell[7], sizeof cell[7], view_stability(v, c->id));
+		return;
+	}
+	fmt_count(cell[1], sizeof cell[1], c->size);
+	fmt_count(cell[2], sizeof cell[2], c->internal_edges);
+	fmt_frac(cell[3], sizeof cell[3], c->density);
+	fmt_frac(cell[4], sizeof cell[4], c->conductance);
+	fmt_frac(cell[5], sizeof cell[5], c->p);
+	fmt_frac(cell[6], sizeof cell[6], view_stability(v, c->id));
+}
+
 void pane_comms_draw(const struct view *v, WINDOW *w)
 {
 	int width = getmaxx(w);
@@ -92,12 +151,14 @@ void pane_comms_draw(const struct view *v, WINDOW *w)
 	const struct snapshot *s = v->snap;
 	double sel = v->comm_index >= 0 && s && v->comm_index < s->agm.cover.k ?
 		     view_stability(v, s->agm.comms[v->comm_index].id) : NAN;
+	/* a two-sided fit lists those with a member by side (communities.tsv's) */
+	uint32_t with = s && v->g->nsend ? v->norder : s ? s->agm.cover.k : 0;
 	if (s && !isnan(sel))
 		snprintf(note, sizeof note, "#%u stability %.2f, %u with members\n#%u stability "
-			 "%.2f\n%u", s->agm.comms[v->comm_index].id, sel, s->agm.cover.k,
-			 s->agm.comms[v->comm_index].id, sel, s->agm.cover.k);
+			 "%.2f\n%u", s->agm.comms[v->comm_index].id, sel, with,
+			 s->agm.comms[v->comm_index].id, sel, with);
 	else if (s)
-		snprintf(note, sizeof note, "%u with members\n%u", s->agm.cover.k, s->agm.cover.k);
+		snprintf(note, sizeof note, "%u with members\n%u", with, with);
 	draw_title(v, w, PANE_COMMS, "Communities", note);
 	if (!s)
 		return;
@@ -110,12 +171,13 @@ void pane_comms_draw(const struct view *v, WINDOW *w)
 			  getmaxy(w) - 2);
 		return;
 	}
-	int shown_col[NCOLS];
-	int wide = choose_cols(v, width, shown_col);
-	char cell[NCOLS][32];
-	for (size_t i = 0; i < NCOLS; i++) {
-		const char *name = wide ? cols[i].wide : cols[i].narrow;
-		if (sorted_col(v, i))
+	struct table t = table_of(v);
+	int shown_col[MAXCOLS];
+	int wide = choose_cols(v, &t, width, shown_col);
+	char cell[MAXCOLS][32];
+	for (size_t i = 0; i < t.n; i++) {
+		const char *name = wide ? t.cols[i].wide : t.cols[i].narrow;
+		if (sorted_col(v, &t.cols[i]))
 			snprintf(cell[i], sizeof cell[i], "%s%s",
 				 v->utf8 ? (v->ascending ? "\u2191" : "\u2193") : (v->ascending ? "^" : "v"),
 				 name);
@@ -123,23 +185,16 @@ void pane_comms_draw(const struct view *v, WINDOW *w)
 			snprintf(cell[i], sizeof cell[i], "%s", name);
 	}
 	wattron(w, A_BOLD);
-	put_cells(w, 1, 1, wide, shown_col, cell);
+	put_cells(w, 1, 1, wide, &t, shown_col, cell);
 	wattroff(w, A_BOLD);
 
 	size_t shown = view_rows_shown(v, PANE_COMMS);
 	for (size_t r = 0; r < shown; r++) {
 		size_t i = v->comms.top + r;
 		int y = 2 + (int)r;
-		const struct agm_community *c = &s->agm.comms[v->order[i]];
-		snprintf(cell[0], sizeof cell[0], "#%u", c->id);
-		fmt_count(cell[1], sizeof cell[1], c->size);
-		fmt_count(cell[2], sizeof cell[2], c->internal_edges);
-		fmt_frac(cell[3], sizeof cell[3], c->density);
-		fmt_frac(cell[4], sizeof cell[4], c->conductance);
-		fmt_frac(cell[5], sizeof cell[5], c->p);
-		fmt_frac(cell[6], sizeof cell[6], view_stability(v, c->id));
+		row_cells(v, &s->agm.comms[v->order[i]], cell);
 		attr_t at = draw_row(v, w, PANE_COMMS, y, 0, i, 0);
-		put_cells(w, y, 1, wide, shown_col, cell);
+		put_cells(w, y, 1, wide, &t, shown_col, cell);
 		wattroff(w, at);
 	}
 }
