@@ -27,49 +27,29 @@ struct col {
 	const char *narrow, *wide;
 	int wn, ww;
 	int stab, nokey;
+	unsigned fits; /* ONE: of a one-mode fit (the AGM's figures), TWO: of a
+			* two-sided one (communities.tsv's, sides_figures(),
+			* keyed as sides_sort_communities() reads them) */
+	int keep[2];   /* rank (one-mode, two-sided): the lower, the longer it
+			* stays when the pane narrows */
 };
+#define ONE 1u
+#define TWO 2u
 
-/* The columns of a one-mode fit: the AGM's figures. */
-static const struct col one_cols[] = {
-	{ INSPECT_BY_ID, "id", "id", 5, 6, 0, 0 },
-	{ INSPECT_BY_SIZE, "size", "size", 6, 8, 0, 0 },
-	{ INSPECT_BY_EDGES, "edges", "edges", 7, 9, 0, 0 },
-	{ INSPECT_BY_DENSITY, "dens", "density", 5, 8, 0, 0 },
-	{ INSPECT_BY_CONDUCTANCE, "cond", "conductance", 5, 12, 0, 0 },
-	{ INSPECT_BY_P, "p", "p", 5, 8, 0, 0 },
-	{ INSPECT_BY_ID, "stab", "stability", 5, 9, 1, 0 },
+static const struct col cols[] = {
+	{ INSPECT_BY_ID, "id", "id", 5, 6, 0, 0, ONE | TWO, { 0, 0 } },
+	{ INSPECT_BY_SIZE, "size", "size", 6, 8, 0, 0, ONE | TWO, { 1, 1 } },
+	{ INSPECT_BY_EDGES, "edges", "edges", 7, 9, 0, 0, ONE, { 6, 0 } },
+	{ INSPECT_BY_P, "send", "senders", 6, 8, 0, 0, TWO, { 0, 3 } },
+	{ INSPECT_BY_ID, "recv", "receivers", 6, 10, 0, 1, TWO, { 0, 4 } },
+	{ INSPECT_BY_EDGES, "arcs", "arcs in", 7, 8, 0, 0, TWO, { 0, 6 } },
+	{ INSPECT_BY_DENSITY, "dens", "density", 5, 8, 0, 0, ONE | TWO, { 5, 5 } },
+	{ INSPECT_BY_CONDUCTANCE, "cond", "conductance", 5, 12, 0, 0, ONE, { 4, 0 } },
+	{ INSPECT_BY_P, "p", "p", 5, 8, 0, 0, ONE, { 3, 0 } },
+	{ INSPECT_BY_CONDUCTANCE, "1-way", "one-way", 6, 8, 0, 0, TWO, { 0, 7 } },
+	{ INSPECT_BY_ID, "stab", "stability", 5, 9, 1, 0, ONE | TWO, { 2, 2 } },
 };
-
-/* The columns of a two-sided fit: communities.tsv's (sides_figures()),
- * the keys as sides_sort_communities() reads them. */
-static const struct col two_cols[] = {
-	{ INSPECT_BY_ID, "id", "id", 5, 6, 0, 0 },
-	{ INSPECT_BY_SIZE, "size", "size", 6, 7, 0, 0 },
-	{ INSPECT_BY_P, "send", "senders", 6, 8, 0, 0 },
-	{ INSPECT_BY_ID, "recv", "receivers", 6, 10, 0, 1 },
-	{ INSPECT_BY_EDGES, "arcs", "arcs in", 7, 8, 0, 0 },
-	{ INSPECT_BY_DENSITY, "dens", "density", 5, 8, 0, 0 },
-	{ INSPECT_BY_CONDUCTANCE, "1-way", "one-way", 6, 8, 0, 0 },
-	{ INSPECT_BY_ID, "stab", "stability", 5, 9, 1, 0 },
-};
-#define MAXCOLS 8
-
-/* The lower a column's rank, the longer it stays when the pane narrows. */
-static const int one_keep[] = { 0, 1, 6, 5, 4, 3, 2 };
-static const int two_keep[] = { 0, 1, 3, 4, 6, 5, 7, 2 };
-
-struct table {
-	const struct col *cols;
-	const int *keep;
-	size_t n;
-};
-
-static struct table table_of(const struct view *v)
-{
-	if (v->g->nsend)
-		return (struct table){ two_cols, two_keep, sizeof two_cols / sizeof two_cols[0] };
-	return (struct table){ one_cols, one_keep, sizeof one_cols / sizeof one_cols[0] };
-}
+#define NCOLS (sizeof cols / sizeof cols[0])
 
 /* Column c is the one the rows are sorted by. */
 static int sorted_col(const struct view *v, const struct col *c)
@@ -79,36 +59,35 @@ static int sorted_col(const struct view *v, const struct col *c)
 
 /* Which columns to draw in width columns (from x = 1), and in which form;
  * returns 1 for the wide forms. */
-static int choose_cols(const struct view *v, const struct table *t, int width,
-		       int shown[MAXCOLS])
+static int choose_cols(const struct view *v, int width, int shown[NCOLS])
 {
-	int need = 0, stab = view_has_stability(v);
-	for (size_t i = 0; i < t->n; i++) {
-		shown[i] = !t->cols[i].stab || stab;
-		need += shown[i] ? t->cols[i].ww + 1 : 0;
+	int need = 0, stab = view_has_stability(v), two = v->g->nsend > 0;
+	for (size_t i = 0; i < NCOLS; i++) {
+		shown[i] = (cols[i].fits & (two ? TWO : ONE)) && (!cols[i].stab || stab);
+		need += shown[i] ? cols[i].ww + 1 : 0;
 	}
 	if (width - 2 >= need)
 		return 1;
 	need = 0;
-	for (size_t i = 0; i < t->n; i++)
-		need += shown[i] ? t->cols[i].wn + 1 : 0;
-	for (int rank = (int)t->n - 1; rank > 1 && width - 1 < need; rank--)
-		for (size_t i = 0; i < t->n; i++)
-			if (t->keep[i] == rank && shown[i] && !sorted_col(v, &t->cols[i])) {
+	for (size_t i = 0; i < NCOLS; i++)
+		need += shown[i] ? cols[i].wn + 1 : 0;
+	for (int rank = (int)NCOLS - 1; rank > 1 && width - 1 < need; rank--)
+		for (size_t i = 0; i < NCOLS; i++)
+			if (cols[i].keep[two] == rank && shown[i] && !sorted_col(v, &cols[i])) {
 				shown[i] = 0;
-				need -= t->cols[i].wn + 1;
+				need -= cols[i].wn + 1;
 			}
 	return 0;
 }
 
-static void put_cells(WINDOW *w, int y, int x, int wide, const struct table *t,
-		      const int shown[MAXCOLS], char cell[MAXCOLS][32])
+static void put_cells(WINDOW *w, int y, int x, int wide, const int shown[NCOLS],
+		      char cell[NCOLS][32])
 {
 	int at = x, right = getmaxx(w);
-	for (size_t i = 0; i < t->n; i++) {
+	for (size_t i = 0; i < NCOLS; i++) {
 		if (!shown[i])
 			continue;
-		int cw = wide ? t->cols[i].ww : t->cols[i].wn;
+		int cw = wide ? cols[i].ww : cols[i].wn;
 		if (at + cw > right)
 			break; /* never past the pane's edge */
 		int tw = draw_width(cell[i]);
@@ -119,29 +98,28 @@ static void put_cells(WINDOW *w, int y, int x, int wide, const struct table *t,
 	}
 }
 
-/* The cells of a row: the AGM's community c, or communities.tsv's
+/* The cells of a row (by cols[] index; those of the other kind of fit
+ * are left as they are): the AGM's community c, or communities.tsv's
  * figures of it for a two-sided fit. */
-static void row_cells(const struct view *v, const struct agm_community *c,
-		      char cell[MAXCOLS][32])
+static void row_cells(const struct view *v, const struct agm_community *c, char cell[NCOLS][32])
 {
 	snprintf(cell[0], sizeof cell[0], "#%u", c->id);
+	fmt_frac(cell[10], sizeof cell[10], view_stability(v, c->id));
 	if (v->g->nsend && v->side_figs && c->id < v->snap->F.k) {
 		const struct model_directed_figures *f = &v->side_figs[c->id];
 		fmt_count(cell[1], sizeof cell[1], f->size);
-		fmt_count(cell[2], sizeof cell[2], f->senders);
-		fmt_count(cell[3], sizeof cell[3], f->receivers);
-		fmt_count(cell[4], sizeof cell[4], f->arcs);
-		fmt_frac(cell[5], sizeof cell[5], f->density);
-		fmt_frac(cell[6], sizeof cell[6], f->one_way_share);
-		fmt_frac(cell[7], sizeof cell[7], view_stability(v, c->id));
+		fmt_count(cell[3], sizeof cell[3], f->senders);
+		fmt_count(cell[4], sizeof cell[4], f->receivers);
+		fmt_count(cell[5], sizeof cell[5], f->arcs);
+		fmt_frac(cell[6], sizeof cell[6], f->density);
+		fmt_frac(cell[9], sizeof cell[9], f->one_way_share);
 		return;
 	}
 	fmt_count(cell[1], sizeof cell[1], c->size);
 	fmt_count(cell[2], sizeof cell[2], c->internal_edges);
-	fmt_frac(cell[3], sizeof cell[3], c->density);
-	fmt_frac(cell[4], sizeof cell[4], c->conductance);
-	fmt_frac(cell[5], sizeof cell[5], c->p);
-	fmt_frac(cell[6], sizeof cell[6], view_stability(v, c->id));
+	fmt_frac(cell[6], sizeof cell[6], c->density);
+	fmt_frac(cell[7], sizeof cell[7], c->conductance);
+	fmt_frac(cell[8], sizeof cell[8], c->p);
 }
 
 void pane_comms_draw(const struct view *v, WINDOW *w)
@@ -171,13 +149,12 @@ void pane_comms_draw(const struct view *v, WINDOW *w)
 			  getmaxy(w) - 2);
 		return;
 	}
-	struct table t = table_of(v);
-	int shown_col[MAXCOLS];
-	int wide = choose_cols(v, &t, width, shown_col);
-	char cell[MAXCOLS][32];
-	for (size_t i = 0; i < t.n; i++) {
-		const char *name = wide ? t.cols[i].wide : t.cols[i].narrow;
-		if (sorted_col(v, &t.cols[i]))
+	int shown_col[NCOLS];
+	int wide = choose_cols(v, width, shown_col);
+	char cell[NCOLS][32];
+	for (size_t i = 0; i < NCOLS; i++) {
+		const char *name = wide ? cols[i].wide : cols[i].narrow;
+		if (sorted_col(v, &cols[i]))
 			snprintf(cell[i], sizeof cell[i], "%s%s",
 				 v->utf8 ? (v->ascending ? "\u2191" : "\u2193") : (v->ascending ? "^" : "v"),
 				 name);
@@ -185,7 +162,7 @@ void pane_comms_draw(const struct view *v, WINDOW *w)
 			snprintf(cell[i], sizeof cell[i], "%s", name);
 	}
 	wattron(w, A_BOLD);
-	put_cells(w, 1, 1, wide, &t, shown_col, cell);
+	put_cells(w, 1, 1, wide, shown_col, cell);
 	wattroff(w, A_BOLD);
 
 	size_t shown = view_rows_shown(v, PANE_COMMS);
@@ -194,7 +171,7 @@ void pane_comms_draw(const struct view *v, WINDOW *w)
 		int y = 2 + (int)r;
 		row_cells(v, &s->agm.comms[v->order[i]], cell);
 		attr_t at = draw_row(v, w, PANE_COMMS, y, 0, i, 0);
-		put_cells(w, y, 1, wide, &t, shown_col, cell);
+		put_cells(w, y, 1, wide, shown_col, cell);
 		wattroff(w, at);
 	}
 }
