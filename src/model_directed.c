@@ -15,7 +15,10 @@
  *           - (S_H - sum_{v in out(u)} H_v - H_u),
  * so model.c's update does it all once colsum is the other side's and
  * H_u is a held-out partner (fit.c gives the self pairs as model.excl).
- * This file prepares the model, seeds it and reads memberships by side.
+ * This file prepares the model, seeds it and reads memberships by side:
+ * the per-side cover (rows of the two-sided graph as members; what
+ * memberships.tsv lists and fit --repeats scores) and its figures (what
+ * communities.tsv and the explorer's pane 2 show).
  *
  * The one thing a newcomer gets wrong: a snapshot's fcsr colsum is the
  * whole column (both sides); the membership rule needs the other side's

@@ -12,6 +12,9 @@
  * per (node, community). A node of a two-mode graph has one row and one
  * side, its kind's.
  *
+ * communities.tsv's figures are model_directed_figures()'s (shared with
+ * the explorer), its last column fit --repeats' stability by column.
+ *
  * The one thing a newcomer gets wrong: the names of a two-sided graph end
  * in a side tag (graph_directed.c); the files carry the name without it
  * and the side in its own column.
