@@ -19,9 +19,12 @@ struct atomicfile;
 void result_side_name(struct atomicfile *w, const struct graph *g, uint32_t u);
 
 /* Stage memberships.tsv and communities.tsv of a two-sided fit (g two-sided,
- * m's strengths; result_directed.c) into c. All borrowed. 0 or -1. */
+ * m's strengths; result_directed.c) into c; st (NULL: none) gives the
+ * stability column, by column of m->F (stability_score_sided()). All
+ * borrowed. 0 or -1. */
 struct result_commit;
+struct stability;
 int result_directed_stage(struct result_commit *c, const struct graph *g,
-			  const struct result_model *m);
+			  const struct result_model *m, const struct stability *st);
 
 #endif

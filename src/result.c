@@ -346,7 +346,7 @@ int result_stage(struct result_commit *c, const struct graph *g, const struct fi
 		return -1;
 	if (checkpoint_stage(c, RESULT_CHECKPOINT, g, p, m))
 		return -1;
-	if (g->nsend ? result_directed_stage(c, g, m)
+	if (g->nsend ? result_directed_stage(c, g, m, ta.st)
 		     : result_commit_stage(c, "memberships.tsv", fill_memberships, &ta) ||
 			       result_commit_stage(c, "communities.tsv", fill_communities, &ta))
 		return -1;

@@ -12,6 +12,9 @@
  * per (node, community). A node of a two-mode graph has one row and one
  * side, its kind's.
  *
+ * communities.tsv's figures are model_directed_figures()'s (shared with
+ * the explorer), its last column fit --repeats' stability by column.
+ *
  * The one thing a newcomer gets wrong: the names of a two-sided graph end
  * in a side tag (graph_directed.c); the files carry the name without it
  * and the side in its own column.
@@ -19,13 +22,16 @@
 #include "result-internal.h"
 
 #include <inttypes.h>
+#include <math.h>
 #include <stdlib.h>
 #include <string.h>
 
 #include "coterie/atomicfile.h"
+#include "coterie/cover.h"
 #include "coterie/graph.h"
 #include "coterie/model_directed.h"
 #include "coterie/result_commit.h"
+#include "coterie/stability.h"
 #include "coterie/util.h"
 
 /* One (node, community) membership: node is the sending row of a
@@ -45,11 +51,13 @@ struct dcover {
 	double *mv;
 	struct dmember *list;
 	uint64_t nlist;
+	const double *score; /* fit --repeats: F->k stabilities by column, or NULL */
+	struct model_directed_figures *fig; /* F->k: communities.tsv's figures */
 };
 
 static void dcover_release(struct dcover *d)
 {
-	UTIL_FREE_ALL(d->mo, d->mc, d->mv, d->list);
+	UTIL_FREE_ALL(d->mo, d->mc, d->mv, d->list, d->fig);
 }
 
 static int dcover_has(const struct dcover *d, uint32_t u, uint32_t c, double *v)
@@ -152,64 +160,41 @@ static int fill_dmemberships(struct atomicfile *w, const void *arg)
 	return 0;
 }
 
-/* The figures of community c over the lines [a, b) of the sorted list. */
-struct dfig {
-	uint32_t size, senders, receivers, both;
-	uint64_t arcs, one_way;
-};
-
-static void figures_of(const struct dcover *d, uint64_t a, uint64_t b, struct dfig *f)
-{
-	const struct graph *g = d->g;
-	memset(f, 0, sizeof *f);
-	for (uint64_t i = a; i < b; i++) {
-		const struct dmember *e = &d->list[i];
-		f->size++;
-		f->senders += e->s > 0.0;
-		f->receivers += e->r > 0.0;
-		f->both += e->s > 0.0 && e->r > 0.0;
-		if (!(e->s > 0.0))
-			continue;
-		/* arcs from this sending member to receiving members */
-		for (uint64_t t = g->off[e->node]; t < g->off[e->node + 1]; t++) {
-			uint32_t v = g->adj[t];
-			if (!dcover_has(d, v, e->c, NULL))
-				continue;
-			f->arcs++;
-			/* directed: the reverse arc, inside as well? */
-			uint32_t vs = v - g->nsend, ur = g->nsend + e->node;
-			if (!g->paired ||
-			    !(dcover_has(d, vs, e->c, NULL) && dcover_has(d, ur, e->c, NULL) &&
-			      graph_has_edge(g, vs, ur)))
-				f->one_way++;
-		}
-	}
-}
-
 static int fill_dcommunities(struct atomicfile *w, const void *arg)
 {
 	const struct dcover *d = arg;
+	/* stability last, as in a one-mode communities.tsv */
 	atomicfile_str(w, "community\tsize\tsenders\treceivers\tboth\tarcs_inside\tdensity\t"
-			  "one_way\n");
-	for (uint64_t a = 0, b; a < d->nlist && !atomicfile_failed(w); a = b) {
-		for (b = a; b < d->nlist && d->list[b].c == d->list[a].c; b++)
-			;
-		struct dfig f;
-		figures_of(d, a, b, &f);
-		double pairs = (double)f.senders * f.receivers - (d->g->paired ? f.both : 0);
+			  "one_way\tstability\n");
+	for (uint32_t c = 0; c < d->F->k && !atomicfile_failed(w); c++) {
+		const struct model_directed_figures *f = &d->fig[c];
+		if (!f->size)
+			continue; /* a community with no member on either side */
 		atomicfile_printf(w, "%" PRIu32 "\t%" PRIu32 "\t%" PRIu32 "\t%" PRIu32 "\t%" PRIu32
-				  "\t%" PRIu64 "\t%.6g\t%.6g\n", d->list[a].c, f.size, f.senders,
-				  f.receivers, f.both, f.arcs, pairs > 0 ? (double)f.arcs / pairs : 0.0,
-				  f.arcs ? (double)f.one_way / (double)f.arcs : 0.0);
+				  "\t%" PRIu64 "\t%.6g\t%.6g\t", c, f->size, f->senders, f->receivers,
+				  f->both, f->arcs, f->density, f->one_way_share);
+		double st = d->score ? d->score[c] : NAN;
+		if (isnan(st))
+			atomicfile_str(w, "NA\n");
+		else
+			atomicfile_printf(w, "%.4f\n", st);
 	}
 	return 0;
 }
 
 int result_directed_stage(struct result_commit *c, const struct graph *g,
-			  const struct result_model *m)
+			  const struct result_model *m, const struct stability *st)
 {
 	struct dcover d;
 	int rc = dcover_build(&d, g, m->F, m->delta);
+	d.score = st && st->k == m->F->k ? st->score : NULL;
+	struct cover sided;
+	if (rc == 0 && !(rc = model_directed_cover(g, m->F, m->delta, &sided))) {
+		if (!(d.fig = util_malloc((size_t)m->F->k + 1, sizeof *d.fig)) ||
+		    model_directed_figures(g, &sided, d.fig))
+			rc = -1;
+		cover_release(&sided);
+	}
 	if (rc == 0)
 		rc = result_commit_stage(c, "memberships.tsv", fill_dmemberships, &d) ||
 				     result_commit_stage(c, "communities.tsv", fill_dcommunities, &d)

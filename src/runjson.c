@@ -15,6 +15,7 @@
 #include "result-internal.h"
 
 #include <inttypes.h>
+#include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 
@@ -263,9 +264,12 @@ static json_t *j_refine(const struct result_meta *meta, int *bad)
 /* run.json's stability (fit --repeats): each run's seed and
  * log-likelihood, the one kept, and each community's score; null when the
  * fit was made once. */
-static json_t *j_stability(const struct agm *a, const struct stability *st, int *bad)
+static json_t *j_stability(const struct graph *g, const struct result_model *m,
+			  const struct stability *st, int *bad)
 {
-	if (!st || st->k != a->cover.k)
+	const struct agm *a = m->agm;
+	/* a two-sided fit is scored by column (stability_score_sided()) */
+	if (!st || st->k != (g->nsend ? m->F->k : a->cover.k))
 		return json_null();
 	json_t *js = json_object(), *runs = json_array(), *comms = json_array();
 	for (uint32_t r = 0; r < st->runs; r++) {
@@ -276,10 +280,10 @@ static json_t *j_stability(const struct agm *a, const struct stability *st, int 
 		jsonout_append(runs, jr, bad);
 	}
 	for (uint32_t i = 0; i < st->k; i++) {
-		if (cover_size(&a->cover, i) == 0)
-			continue;
+		if (g->nsend ? isnan(st->score[i]) : cover_size(&a->cover, i) == 0)
+			continue; /* no member (a two-sided column's score is NaN) */
 		json_t *jc = json_object();
-		jsonout_set(jc, "community", jsonout_uint(a->comms[i].id), bad);
+		jsonout_set(jc, "community", jsonout_uint(g->nsend ? i : a->comms[i].id), bad);
 		jsonout_set(jc, "stability", jsonout_real(st->score[i]), bad);
 		jsonout_append(comms, jc, bad);
 	}
@@ -314,7 +318,7 @@ char *result_run_json(const struct graph *g, const struct fit_params *p,
 	jsonout_set(root, "link_check", meta && meta->links ? j_links(meta->links) : json_null(),
 		    &bad);
 	jsonout_set(root, "agm_refine", j_refine(meta, &bad), &bad);
-	jsonout_set(root, "stability", j_stability(m->agm, meta ? meta->stability : NULL, &bad),
+	jsonout_set(root, "stability", j_stability(g, m, meta ? meta->stability : NULL, &bad),
 		    &bad);
 	jsonout_set(root, "warnings", j_warnings(g, m, meta, &bad), &bad);
 

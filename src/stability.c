@@ -28,6 +28,7 @@
 
 #include <jansson.h>
 
+#include "coterie/model_directed.h"
 #include "coterie/names.h"
 #include "coterie/result_commit.h"
 #include "coterie/util.h"
@@ -180,6 +181,30 @@ int stability_score(const struct cover *kept, const struct cover *others, uint32
 		score[a] = nothers ? score[a] / nothers : NAN;
 	free(best);
 	return 0;
+}
+
+int stability_score_sided(const struct graph *g, struct snapshot *const *runs, uint32_t nruns,
+			  uint32_t kept, double *score)
+{
+	if (kept >= nruns)
+		return error("run %u kept of %u runs", kept + 1, nruns);
+	struct cover *cv = util_calloc(nruns, sizeof *cv);
+	if (!cv)
+		return -1;
+	int rc = 0;
+	for (uint32_t i = 0; i < nruns && rc == 0; i++)
+		rc = model_directed_cover(g, &runs[i]->F, runs[i]->delta, &cv[i]);
+	if (rc == 0) {
+		/* the others first, the kept one last: one array, no copy */
+		struct cover mine = cv[kept];
+		cv[kept] = cv[nruns - 1];
+		cv[nruns - 1] = mine;
+		rc = stability_score(&cv[nruns - 1], cv, nruns - 1, score, NULL);
+	}
+	for (uint32_t i = 0; i < nruns; i++)
+		cover_release(&cv[i]);
+	free(cv);
+	return rc;
 }
 
 void stability_init(struct stability *st)

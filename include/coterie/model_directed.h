@@ -52,6 +52,34 @@ void model_directed_side_sums(const struct graph *g, const struct fcsr *F, doubl
 int model_directed_member_at(const struct graph *g, const struct fcsr *F, const double *sums,
 			     uint32_t u, uint64_t j, double delta);
 
+/* The per-side cover of F (g two-sided, F its rows): community c holds
+ * row u when entry (u, c) passes model_directed_member_at(), so a node
+ * of a directed graph is in it once per side it is a member on (its
+ * sending row u, its receiving row nsend + u); a two-mode node once.
+ * out gets F->k communities (id = column, empty ones kept) over g->n
+ * rows, no labels; caller releases with cover_release(). Returns 0, or
+ * -1 with a message (not two-sided, rows and graph differ, out of memory). */
+struct cover;
+int model_directed_cover(const struct graph *g, const struct fcsr *F, double delta,
+			 struct cover *out);
+
+/* What communities.tsv of a two-sided fit says of a community. */
+struct model_directed_figures {
+	uint32_t size;            /* nodes with either side (directed: counted once) */
+	uint32_t senders, receivers, both; /* two-mode: first kind, second kind, 0 */
+	uint64_t arcs;            /* arcs from a sending member to a receiving member */
+	uint64_t one_way;         /* of them, those whose reverse arc is not inside */
+	double density;           /* arcs / (senders x receivers, less both) */
+	double one_way_share;     /* one_way / arcs (0 with no arc) */
+};
+
+/* The figures of every community of the per-side cover sided (from
+ * model_directed_cover() on g) into fig (sided->k entries, borrowed;
+ * size 0 for a community with no member). The one computation behind
+ * communities.tsv and the explorer's pane 2. Returns 0 or -1 (reported). */
+int model_directed_figures(const struct graph *g, const struct cover *sided,
+			   struct model_directed_figures *fig);
+
 /* The log-likelihood pair by pair, for tests: over ordered pairs of a
  * sending and a receiving row (a directed graph's own pairs left out).
  * O(n^2 nnz). */

@@ -53,6 +53,19 @@ int stability_jaccard_rows(const struct cover *x, const uint32_t *rows, uint32_t
 int stability_score(const struct cover *kept, const struct cover *others, uint32_t nothers,
 		    double *score, double *each);
 
+/*
+ * stability_score() for the runs of a two-sided fit (directed, two-mode):
+ * each run's per-side cover (model_directed_cover(): a node of a directed
+ * graph counts once per side it is a member on, so a community whose
+ * senders came back as receivers does not match), the run kept scored
+ * against the others. g is the graph whose rows the runs' strengths are
+ * (borrowed; the whole graph when links were held out, as the files are
+ * written from it). score gets runs[kept]->F.k values indexed by column
+ * = community id (NaN for one with no member). Returns 0 or -1.
+ */
+int stability_score_sided(const struct graph *g, struct snapshot *const *runs, uint32_t nruns,
+			  uint32_t kept, double *score);
+
 /* The record of fit --repeats, for communities.tsv and run.json. */
 struct stability {
 	uint32_t runs;      /* fits made, the kept one included (>= 2) */

@@ -72,7 +72,8 @@ static void fit_usage(FILE *out)
 		"      --repeats N       fit N times in all, from seeds S, S+1, ... (several\n"
 		"                        fits at once), keep the most likely and score each\n"
 		"                        of its communities by how well the other fits find\n"
-		"                        it again (communities.tsv's stability column)\n"
+		"                        it again (communities.tsv's stability column;\n"
+		"                        --directed, --two-mode: members on each side)\n"
 		"      --no-reseed       skip the moves that join pieces of a community or\n"
 		"                        re-seed the weakest one\n"
 		"                        after a plateau (faster, often less likely); they\n"
@@ -457,9 +458,6 @@ static int parse_args(struct run *r, int argc, char **argv)
 		die(EXIT_USAGE, "--repeats cannot be used when resuming (it makes new fits)");
 	if (r->repeats > 1 && r->grp)
 		die(EXIT_USAGE, "--repeats is not yet available across processes");
-	if (r->repeats > 1 && (o->p.model == MODEL_DIRECTED || o->p.model == MODEL_TWO_MODE))
-		die(EXIT_USAGE, "--repeats is not yet available with --directed or --two-mode "
-				"(their communities.tsv has no stability column yet)");
 	if (r->repeats <= 1)
 		r->repeats = 0;
 	cli_model_can(&o->p, r->refine);
@@ -690,21 +688,24 @@ static const struct snapshot *repeat_fits(struct run *r, const struct snapshot *
 static int score_stability(struct run *r, const struct agm *a)
 {
 	struct stability *sb = &r->stab;
+	/* a two-sided fit: one score per column, on the per-side covers */
+	uint32_t k = r->graph->nsend ? r->runs[sb->kept]->F.k : a->cover.k, no = 0;
 	struct cover *others = util_calloc(sb->runs, sizeof *others);
-	sb->score = util_malloc(a->cover.k ? a->cover.k : 1, sizeof *sb->score);
+	sb->score = util_malloc(k ? k : 1, sizeof *sb->score);
 	if (!others || !sb->score) {
 		free(others);
 		return -1;
 	}
-	uint32_t no = 0;
 	for (uint32_t i = 0; i < sb->runs; i++)
 		if (i != sb->kept)
 			others[no++] = r->runs[i]->agm.cover; /* shallow: r->runs owns it */
-	int rc = stability_score(&a->cover, others, no, sb->score, NULL);
+	int rc = r->graph->nsend
+			 ? stability_score_sided(r->graph, r->runs, sb->runs, sb->kept, sb->score)
+			 : stability_score(&a->cover, others, no, sb->score, NULL);
 	free(others);
 	if (rc)
 		return -1;
-	sb->k = a->cover.k;
+	sb->k = k;
 	if (!r->quiet)
 		notice("kept repeat %u of %u (seed %llu), the most likely; mean stability of its "
 		       "communities %.3f (the best-match Jaccard in the %u other fits)",

@@ -24,6 +24,8 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "coterie/agm.h"
+#include "coterie/cover.h"
 #include "coterie/fcsr.h"
 #include "coterie/graph.h"
 #include "coterie/inspect.h"
@@ -245,4 +247,83 @@ int64_t sides_members(const struct graph *g, const struct fcsr *F, const double 
 	}
 	free(m);
 	return w;
+}
+
+struct model_directed_figures *sides_figures(const struct graph *g, const struct fcsr *F,
+					     double delta)
+{
+	struct cover sided;
+	struct model_directed_figures *fig = util_malloc((size_t)F->k + 1, sizeof *fig);
+	if (!fig || model_directed_cover(g, F, delta, &sided)) {
+		free(fig);
+		return NULL;
+	}
+	if (model_directed_figures(g, &sided, fig)) {
+		free(fig);
+		fig = NULL;
+	}
+	cover_release(&sided);
+	return fig;
+}
+
+/* A row of the sort: the key's value (negated when the largest come
+ * first), the community id, its index in the AGM. */
+struct fig_row {
+	double x;
+	uint32_t id, index;
+};
+
+static int fig_row_cmp(const void *pa, const void *pb)
+{
+	const struct fig_row *a = pa, *b = pb;
+	int c = util_cmp_double(a->x, b->x);
+	return c ? c : util_cmp_uint(a->id, b->id);
+}
+
+static double fig_key(const struct model_directed_figures *f, enum inspect_key key, uint32_t id)
+{
+	switch (key) {
+	case INSPECT_BY_SIZE: return f->size;
+	case INSPECT_BY_EDGES: return (double)f->arcs;
+	case INSPECT_BY_DENSITY: return f->density;
+	case INSPECT_BY_CONDUCTANCE: return f->one_way_share;
+	case INSPECT_BY_P: return f->senders;
+	case INSPECT_BY_ID:
+	default: return id;
+	}
+}
+
+uint32_t sides_sort_communities(const struct agm *a, const struct model_directed_figures *fig,
+				uint32_t nfig, enum inspect_key key, int ascending,
+				uint32_t *order)
+{
+	struct fig_row *r = util_malloc(a->cover.k ? a->cover.k : 1, sizeof *r);
+	if (!r)
+		return 0;
+	uint32_t n = 0;
+	for (uint32_t i = 0; i < a->cover.k; i++) {
+		uint32_t id = a->comms[i].id;
+		if (id >= nfig || !fig[id].size)
+			continue; /* no member on either side: not in communities.tsv */
+		double x = fig_key(&fig[id], key, id);
+		r[n++] = (struct fig_row){ ascending ? x : -x, id, i };
+	}
+	qsort(r, n, sizeof *r, fig_row_cmp);
+	for (uint32_t i = 0; i < n; i++)
+		order[i] = r[i].index;
+	free(r);
+	return n;
+}
+
+const char *sides_sort_name(enum inspect_key key)
+{
+	switch (key) {
+	case INSPECT_BY_SIZE: return "size";
+	case INSPECT_BY_EDGES: return "arcs inside";
+	case INSPECT_BY_DENSITY: return "density";
+	case INSPECT_BY_CONDUCTANCE: return "one-way share";
+	case INSPECT_BY_P: return "senders";
+	case INSPECT_BY_ID:
+	default: return "id";
+	}
 }

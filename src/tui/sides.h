@@ -11,6 +11,10 @@
 #include <stddef.h>
 #include <stdint.h>
 
+#include "coterie/inspect.h"
+#include "coterie/model_directed.h"
+
+struct agm;
 struct graph;
 struct fcsr;
 struct inspect_node;
@@ -72,5 +76,25 @@ void sides_node_release(struct sides_node *sn);
 int64_t sides_members(const struct graph *g, const struct fcsr *F, const double *sums,
 		      double delta, uint32_t c, const uint32_t *cand, uint32_t n,
 		      enum sides_filter filter, uint32_t *out, double *strength, uint8_t *side);
+
+/* Pane 2's figures of every column of F (F->k entries, by community id;
+ * caller frees), those communities.tsv of a two-sided fit writes
+ * (model_directed_figures() on the per-side cover), or NULL (reported). */
+struct model_directed_figures *sides_figures(const struct graph *g, const struct fcsr *F,
+					     double delta);
+
+/* The communities of a (the two-sided graph's AGM) that have a member by
+ * the per-side rule, as indexes into a->comms sorted by key read on fig
+ * (nfig entries by id): size, arcs inside (INSPECT_BY_EDGES), density,
+ * the one-way share (INSPECT_BY_CONDUCTANCE), senders (INSPECT_BY_P) or
+ * id; descending unless ascending, ties by id. order holds a->cover.k.
+ * Returns how many are kept (as many as communities.tsv has rows), or 0
+ * when out of memory (reported). */
+uint32_t sides_sort_communities(const struct agm *a, const struct model_directed_figures *fig,
+				uint32_t nfig, enum inspect_key key, int ascending,
+				uint32_t *order);
+
+/* What key sorts a two-sided fit's pane 2 by, in words. */
+const char *sides_sort_name(enum inspect_key key);
 
 #endif

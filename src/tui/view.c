@@ -101,6 +101,7 @@ void view_release(struct view *v)
 	free(v->mem_strength);
 	free(v->mem_side);
 	free(v->side_sums);
+	free(v->side_figs);
 	free(v->affil_rows);
 	free(v->page);
 	free(v->stab);
@@ -114,6 +115,7 @@ void view_release(struct view *v)
 	v->mem_strength = NULL;
 	v->mem_side = NULL;
 	v->side_sums = NULL;
+	v->side_figs = NULL;
 	v->affil_rows = NULL;
 	v->page = NULL;
 	v->node_valid = 0;
@@ -406,6 +408,8 @@ static size_t sort_slot(enum inspect_key k)
 
 const char *view_sort_name(const struct view *v)
 {
+	if (!v->by_stability && v->g->nsend)
+		return sides_sort_name(v->sort_key);
 	return v->by_stability ? "stability" : sorts[sort_slot(v->sort_key)].name;
 }
 
@@ -525,6 +529,8 @@ const char *view_node_name(const struct view *v, uint32_t node, char *buf, size_
 
 /* ---- caches ---- */
 
+static int prepare_sides(struct view *v);
+
 static void prepare_order(struct view *v)
 {
 	const struct agm *a = &v->snap->agm;
@@ -537,11 +543,13 @@ static void prepare_order(struct view *v)
 		return;
 	}
 	v->order = o;
+	int asc = v->by_stability ? sorts[sort_slot(v->sort_key)].ascending : v->ascending;
+	if (k && v->g->nsend) /* communities.tsv's rows and figures */
+		k = prepare_sides(v) ? 0 : sides_sort_communities(a, v->side_figs, v->snap->F.k,
+								  v->sort_key, asc, v->order);
+	else if (k)
+		inspect_sort_communities(a, v->sort_key, asc, v->order);
 	v->norder = k;
-	if (k)
-		inspect_sort_communities(a, v->sort_key, v->by_stability ?
-					 sorts[sort_slot(v->sort_key)].ascending : v->ascending,
-					 v->order);
 	if (k && v->by_stability)
 		order_by_stability(v, a);
 	v->order_gen = v->snap_gen;
@@ -568,15 +576,17 @@ static void prepare_order(struct view *v)
 	}
 }
 
-/* The per-side column sums of the snapshot on screen (two-sided graphs).
- * Returns 0 or -1 (the footer says why). */
+/* The per-side column sums of the snapshot on screen and pane 2's
+ * figures (two-sided graphs). Returns 0 or -1 (the footer says why). */
 static int prepare_sides(struct view *v)
 {
 	if (v->side_sums && v->sums_gen == v->snap_gen)
 		return 0;
 	free(v->side_sums);
+	free(v->side_figs);
 	v->side_sums = sides_sums(v->g, &v->snap->F);
-	if (!v->side_sums) {
+	v->side_figs = sides_figures(v->g, &v->snap->F, v->snap->delta);
+	if (!v->side_sums || !v->side_figs) {
 		view_say(v, UTIL_ERROR, "out of memory summing the sides of %u columns",
 			 v->snap->F.k);
 		return -1;

@@ -151,6 +151,7 @@ struct view {
 	struct inspect_node nodeview;
 	struct sides_node sidenode;  /* two-sided graphs: nodeview's rows by side */
 	double *side_sums;        /* two-sided graphs: per-side column sums ... */
+	struct model_directed_figures *side_figs; /* ... pane 2's figures by id ... */
 	unsigned long sums_gen;   /* ... of this snapshot generation (0: none) */
 	int node_valid;
 	unsigned long node_gen;

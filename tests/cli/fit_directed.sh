@@ -73,8 +73,6 @@ check "... saying why" grep -q "AGM" "$tmp/err"
 check "--directed --weighted: exit 2" [ $? -eq 2 ]
 "$BIN" fit "$tmp/tm.tsv" --directed --two-mode -k 2 -o "$tmp/x" -q 2>"$tmp/err"
 check "--directed --two-mode: exit 2" [ $? -eq 2 ]
-"$BIN" fit "$tmp/tm.tsv" --directed --repeats 2 -k 2 -o "$tmp/x" -q 2>"$tmp/err"
-check "--directed --repeats: exit 2 (no stability column yet)" [ $? -eq 2 ]
 "$BIN" explore "$tmp/d" </dev/null 2>"$tmp/err"
 check "explore of a directed folder without a terminal: exit 1, no crash" [ $? -eq 1 ]
 check "... it opens as any folder (tests/tui/directed.sh), here asking for a terminal" \

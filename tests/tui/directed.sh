@@ -7,7 +7,11 @@
 #    all: the counts are communities.tsv's senders, receivers and size;
 #  - pane 5's rows are arcs: the arrow points the way the arc goes in the
 #    graph file, and the probability is 1 - exp(-F_u . H_v) computed here
-#    from the strengths `coterie export --matrix` writes.
+#    from the strengths `coterie export --matrix` writes;
+#  - pane 2 (at 132x30, every column shown) lists the rows of
+#    communities.tsv with its figures (size in nodes, senders, receivers,
+#    arcs inside, density, one-way share), sorted by size, then ('o') by
+#    arcs inside, and counts them in its title.
 . "$(dirname "$0")/lib"
 
 "$BIN" simulate -n 1500 --sizes 40:100 --overlap 0.1 --mean-degree 8 --mixing 0.2 \
@@ -115,5 +119,47 @@ for l in lines[head + 1:]:
     assert shown in (f"{p:.3g}", f"{p:.2g}", f"{p:.0e}"), (u, v, shown, p)
     seen += 1
 assert seen >= 3, seen
+PY
+start_ui 132x30 C.UTF-8 saved
+check "the directed result opens wide" wait_screen '─ 2 Communities ─+ [0-9]+ with members'
+check "pane 2 heads communities.tsv's figures" \
+	wait_screen 'id +↓size +senders +receivers +arcs in +density +one-way'
+screen >"$tmp/wide.txt"
+keys o
+check "o: sorted by arcs inside" wait_screen '↓arcs in'
+screen >"$tmp/byarcs.txt"
+keys q
+wait_gone_ui 10 || fail "the explorer quits"
+
+check "pane 2's rows are communities.tsv's, figure for figure, in the order asked" "$PY" - \
+	"$tmp/wide.txt" "$tmp/byarcs.txt" "$tmp/saved/communities.tsv" <<'PY'
+import re, sys, csv
+rows = {r["community"]: r for r in csv.DictReader(open(sys.argv[3]), delimiter="\t")}
+def count(x):  # draw.c fmt_count
+    x = int(x)
+    return str(x) if x < 100000 else "%.1fk" % (x / 1e3)
+def frac(x):  # draw.c fmt_frac
+    x = float(x)
+    if x >= 0.9995: return "%.2f" % x
+    if x >= 0.0005 or x == 0:
+        t = "%.3f" % x
+        return t[1:] if t[0] == "0" else t
+    return "%.0e" % x
+for path, col in ((sys.argv[1], "size"), (sys.argv[2], "arcs_inside")):
+    lines = open(path, encoding="utf-8").read().splitlines()
+    t = next(i for i, l in enumerate(lines) if "2 Communities" in l)
+    m = re.search(r"(\d+) with members", lines[t])
+    assert m and int(m.group(1)) == len(rows), (lines[t], len(rows))
+    seen = []
+    for l in lines[t + 2:]:
+        cells = l.split("│")[0].split()
+        if not cells or not cells[0].startswith("#"):
+            break
+        r = rows[cells[0][1:]]
+        want = [count(r["size"]), count(r["senders"]), count(r["receivers"]),
+                count(r["arcs_inside"]), frac(r["density"]), frac(r["one_way"])]
+        assert cells[1:7] == want, (cells, want)
+        seen.append(int(r[col]))
+    assert len(seen) >= 5 and seen == sorted(seen, reverse=True), (col, seen)
 PY
 finish
