@@ -752,3 +752,41 @@ fail:
 	agm_release(dst);
 	return -1;
 }
+
+int agm_coverage_as_given(const struct agm *a, const struct graph *g, uint32_t *covered,
+			  uint32_t *overlapping, uint32_t *nodes)
+{
+	if (!g->paired) {
+		*covered = a->covered;
+		*overlapping = a->overlapping;
+		*nodes = g->n;
+		return 0;
+	}
+	uint32_t n = g->nsend;
+	uint32_t *count = util_calloc(n ? n : 1, sizeof *count);
+	uint32_t *last = util_malloc(n ? n : 1, sizeof *last); /* community seen last, + 1 */
+	if (!count || !last) {
+		free(count);
+		free(last);
+		return -1;
+	}
+	memset(last, 0, (size_t)n * sizeof *last);
+	for (uint32_t c = 0; c < a->cover.k; c++)
+		for (uint64_t i = a->cover.off[c]; i < a->cover.off[c + 1]; i++) {
+			uint32_t u = a->cover.mem[i];
+			u = u >= n ? u - n : u; /* the receiving copy's own node */
+			if (u < n && last[u] != c + 1) {
+				last[u] = c + 1;
+				count[u]++;
+			}
+		}
+	*covered = *overlapping = 0;
+	for (uint32_t u = 0; u < n; u++) {
+		*covered += count[u] > 0;
+		*overlapping += count[u] > 1;
+	}
+	*nodes = n;
+	free(count);
+	free(last);
+	return 0;
+}

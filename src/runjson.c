@@ -99,7 +99,9 @@ static json_t *j_warnings(const struct graph *g, const struct result_model *m,
 		caveats_of_selection(&cv, meta->selection, g->n);
 	if (meta && meta->links)
 		caveats_of_links(&cv, meta->links->held_edges);
-	caveats_of_cover(&cv, m->agm->covered, g->n);
+	uint32_t covered, overlapping, nodes;
+	if (!agm_coverage_as_given(m->agm, g, &covered, &overlapping, &nodes))
+		caveats_of_cover(&cv, covered, nodes);
 	json_t *a = json_array();
 	for (uint32_t i = 0; a && i < cv.n; i++) {
 		json_t *e = json_object();

@@ -119,4 +119,11 @@ int agm_copy(struct agm *dst, const struct agm *src);
 
 void agm_release(struct agm *a);
 
+/* The coverage said to the user, in nodes as given: for a directed graph
+ * (g->paired) a node is covered when its sending or its receiving copy is
+ * (a community counted once per node), else a->covered and a->overlapping
+ * as they are. *nodes gets the nodes as given. 0, or -1 (no memory). */
+int agm_coverage_as_given(const struct agm *a, const struct graph *g, uint32_t *covered,
+			  uint32_t *overlapping, uint32_t *nodes);
+
 #endif

@@ -724,9 +724,12 @@ static void say_written(const struct run *r, const struct snapshot *s, enum fit_
 	if (s->starts > 1)
 		snprintf(best, sizeof best, " (start %u of %u, the most likely)", s->best_start,
 			 s->starts);
+	uint32_t covered, overlapping, nodes;
+	if (agm_coverage_as_given(a, r->graph, &covered, &overlapping, &nodes))
+		return;
 	notice("the fit %s after %u sweeps%s in %.1f s: %u communities, %u of %u nodes in at "
 	       "least one, %u in two or more; results in '%s'", how, s->sweep, best, s->seconds,
-	       a->cover.k, a->covered, r->graph->n, a->overlapping, r->o.out);
+	       a->cover.k, covered, nodes, overlapping, r->o.out);
 }
 
 /* The end of the fit: --check-links, --refine, the folder. Returns the
@@ -788,7 +791,9 @@ static int finish(struct run *r, enum fit_state st, const struct snapshot *s)
 		caveats_init(&cv);
 		if (have_whole)
 			caveats_of_links(&cv, links.held_edges);
-		caveats_of_cover(&cv, m.agm->covered, r->graph->n);
+		uint32_t covered, overlapping, nodes;
+		if (!agm_coverage_as_given(m.agm, r->graph, &covered, &overlapping, &nodes))
+			caveats_of_cover(&cv, covered, nodes);
 		caveats_print(&cv);
 	}
 	agm_release(&refined);
