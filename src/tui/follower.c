@@ -34,6 +34,7 @@
 #include "coterie/graph.h"
 #include "coterie/outdir.h"
 #include "coterie/result.h"
+#include "coterie/result_commit.h"
 #include "coterie/util.h"
 #include "view.h"
 
@@ -187,7 +188,11 @@ static int reload(struct view *v)
 	struct follower *fo = v->follow;
 	struct checkpoint ck;
 	memset(&ck, 0, sizeof ck);
-	if (outdir_read(fo->dir, &ck))
+	int quiet = util_quiet();
+	util_set_quiet(1); /* its notice of the unfinished fit, at every reload */
+	int rc = outdir_read(fo->dir, &ck);
+	util_set_quiet(quiet);
+	if (rc)
 		return -1;
 	if (ck.fingerprint != graph_fingerprint(v->g) || ck.F.n != v->g->n) {
 		checkpoint_release(&ck);
@@ -197,7 +202,12 @@ static int reload(struct view *v)
 	p.threads = v->params.threads;
 	p.hold_at_plateau = 1;
 	struct fit_origin origin;
+	/* as one start from the strengths saved: a fit made from a savepoint
+	 * shows nothing until it runs, and this one never runs */
+	struct fit_savepoint *sp = ck.savepoint;
+	ck.savepoint = NULL;
 	outdir_resume(&ck, &p, &origin);
+	ck.savepoint = sp;
 	struct fit *f = fit_new(v->g, &p, &origin);
 	enum fit_state st = ck.state;
 	uint32_t sweep = ck.sweep;
@@ -232,11 +242,11 @@ int follower_start(struct view *v, const char *dir)
 	fo->dir = dir;
 	fo->changed = util_now();
 	v->follow = fo;
-	fo->base = fit_snapshot(v->fit);
-	fo->start = fo->base->start;
-	set_trace(fo, fo->base->trace, fo->base->ntrace);
 	fo->part = id_of(dir, RESULT_PARTIAL);
-	fo->manifest = id_of(dir, ".coterie.manifest");
+	fo->manifest = id_of(dir, RESULT_MANIFEST);
+	if (reload(v))
+		return -1;
+	fo->start = fo->base->start;
 	follower_poll(v);
 	return 0;
 }
@@ -284,7 +294,7 @@ void follower_poll(struct view *v)
 		return;
 	}
 	struct file_id part = id_of(fo->dir, RESULT_PARTIAL);
-	struct file_id man = id_of(fo->dir, ".coterie.manifest");
+	struct file_id man = id_of(fo->dir, RESULT_MANIFEST);
 	if (!id_same(&part, &fo->part) || !id_same(&man, &fo->manifest)) {
 		fo->part = part;
 		fo->manifest = man;
