@@ -298,10 +298,8 @@ void follower_poll(struct view *v)
 	if (!id_same(&part, &fo->part) || !id_same(&man, &fo->manifest)) {
 		fo->part = part;
 		fo->manifest = man;
-		if (part.present && reload(v) == 0) {
-			news = 1;
-			view_say(v, UTIL_NOTICE, "panes from the checkpoint at sweep %u", fo->base->sweep);
-		}
+		if (part.present && reload(v) == 0)
+			news = 1; /* the panes now show the newest checkpoint */
 	}
 	if (news)
 		show(v);

@@ -164,9 +164,9 @@ static void hints(const struct view *v, char *buf, size_t cap, int width)
 {
 	static const char *const own[] = { "?:help", "/:find", "Tab:pane", "s:stop", "p:pause",
 					   "e:run on", "w:write", "q:quit" };
-	/* a followed fit: its keys in the same places */
-	static const char *const followed[] = { "?:help", "/:find", "Tab:pane", "X:stop it",
-						"P:pause it", "W:checkpoint", "", "q:quit" };
+	/* a followed fit: its keys, X given room first */
+	static const char *const followed[] = { "?:help", "X:stop it", "P:pause it", "W:checkpoint",
+						"/:find", "Tab:pane", "", "q:quit" };
 	const char *const *common = follower_live(v) ? followed : own;
 	const char *pane[3] = { NULL, NULL, NULL };
 	switch (v->focus) {
