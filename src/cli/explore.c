@@ -85,7 +85,9 @@ static void explore_usage(FILE *out)
 		"In the explorer, ? lists the keys. The fit waits when it levels off:\n"
 		"e runs it on, s ends it, w writes the result, q quits (asking first).\n"
 		"For a directed or two-mode fit, d in the members pane lists all members,\n"
-		"the sending ones or the receiving ones.\n");
+		"the sending ones or the receiving ones.\n"
+		"A DIR whose fit runs in another process is followed, not reopened: X, P\n"
+		"and W ask that fit to stop, to pause or continue, to write its checkpoint.\n");
 }
 
 static int dir_is_empty(const char *path)
