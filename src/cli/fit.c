@@ -109,9 +109,9 @@ static void fit_usage(FILE *out)
 		"                        write a checkpoint to the result folder that often\n"
 		"                        while fitting (default 120; --resume goes on from it)\n"
 		"  -q, --quiet           no progress or notices\n"
+		"  -h, --help            this text\n"
 		"While it runs, DIR/.coterie.request holding stop, pause, continue or save\n"
-		"steers it (coterie explore DIR does this; see coterie(1)).\n"
-		"  -h, --help            this text\n");
+		"steers it (coterie explore DIR does this; see coterie(1)).\n");
 }
 
 struct progress {
