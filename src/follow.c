@@ -43,6 +43,12 @@
 
 #define PROGRESS_MAX (64 * 1024) /* bytes read of a progress file, at most */
 
+/* The counters a progress file shares with a snapshot (one list for both
+ * directions). */
+#define FOLLOW_COUNTERS(X) \
+	X(state) X(start) X(starts) X(best_start) X(sweep) X(plateau_sweep) X(seconds) \
+	X(sweeps_per_sec)
+
 static const char *const request_words[] = { "", "stop", "pause", "continue", "save" };
 
 const char *follow_request_name(enum follow_request r)
@@ -77,20 +83,23 @@ void follow_progress_of(struct follow_progress *p, const struct snapshot *s,
 	p->pid = (uint64_t)getpid();
 	host_name(p->host, sizeof p->host);
 	p->written = wall_now();
-	p->state = s->state;
-	p->start = s->start;
-	p->starts = s->starts;
-	p->best_start = s->best_start;
-	p->sweep = s->sweep;
-	p->plateau_sweep = s->plateau_sweep;
+#define TAKE(field) p->field = s->field;
+	FOLLOW_COUNTERS(TAKE)
+#undef TAKE
 	p->max_sweeps = params->max_sweeps;
 	p->k = params->k;
-	p->seconds = s->seconds;
-	p->sweeps_per_sec = s->sweeps_per_sec;
 	uint32_t n = s->ntrace < FOLLOW_TRACE_MAX ? s->ntrace : FOLLOW_TRACE_MAX;
 	p->ntrace = n;
 	if (n)
 		memcpy(p->trace, s->trace + (s->ntrace - n), n * sizeof *p->trace);
+}
+
+void follow_progress_apply(const struct follow_progress *p, struct snapshot *s)
+{
+#define GIVE(field) s->field = p->field;
+	FOLLOW_COUNTERS(GIVE)
+#undef GIVE
+	s->plateau = p->plateau_sweep > 0;
 }
 
 /* ---- writing ---- */

@@ -65,6 +65,10 @@ struct follow_progress {
 void follow_progress_of(struct follow_progress *p, const struct snapshot *s,
 			const struct fit_params *params);
 
+/* The state, start, sweep, plateau and time of p into snapshot s (both
+ * borrowed), for a reader that shows the followed fit. */
+void follow_progress_apply(const struct follow_progress *p, struct snapshot *s);
+
 /* Write p as DIR/.coterie.progress: a temporary file renamed into place,
  * not fsync()ed (a follower's view, not a result: after a crash it may be
  * missing or empty, and is then ignored). Only for the folder's writer.

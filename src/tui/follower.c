@@ -160,15 +160,7 @@ static void show(struct view *v)
 		return;
 	if (fo->have_p) {
 		v->saved_state = p->state;
-		s->state = p->state;
-		s->sweep = p->sweep;
-		s->start = p->start;
-		s->starts = p->starts;
-		s->best_start = p->best_start;
-		s->plateau_sweep = p->plateau_sweep;
-		s->plateau = p->plateau_sweep > 0;
-		s->seconds = p->seconds;
-		s->sweeps_per_sec = p->sweeps_per_sec;
+		follow_progress_apply(p, s);
 	}
 	struct trace_point *t = util_malloc(fo->ntrace ? fo->ntrace : 1, sizeof *t);
 	if (t) {
