@@ -101,6 +101,26 @@ void snapshot_release(struct snapshot *s)
 	free(s);
 }
 
+struct snapshot *snapshot_copy(const struct snapshot *s)
+{
+	struct snapshot *c = util_malloc(1, sizeof *c);
+	if (!c)
+		return NULL;
+	*c = *s;
+	c->refs_ = 1;
+	c->savepoint = NULL;
+	c->trace = util_malloc(s->ntrace ? s->ntrace : 1, sizeof *c->trace);
+	memset(&c->F, 0, sizeof c->F);
+	memset(&c->agm, 0, sizeof c->agm);
+	if (c->trace && s->ntrace)
+		memcpy(c->trace, s->trace, s->ntrace * sizeof *c->trace);
+	if (!c->trace || fcsr_copy(&c->F, &s->F) || agm_copy(&c->agm, &s->agm)) {
+		snapshot_release(c);
+		return NULL;
+	}
+	return c;
+}
+
 static double rate_of(const struct trace_point *t, uint32_t n)
 {
 	if (n < 2)

@@ -410,6 +410,11 @@ struct snapshot *outdir_take_asked(struct outdir *od)
 	return s;
 }
 
+void outdir_due_now(struct outdir *od)
+{
+	od->last = -1e300;
+}
+
 void outdir_tick(struct outdir *od, struct fit *f)
 {
 	if (od->running && atomic_load(&od->done))

@@ -134,6 +134,10 @@ struct snapshot {
 };
 
 void snapshot_release(struct snapshot *s);
+/* A copy of s (borrowed) of its own (one reference, no savepoint), for a
+ * reader that shows another trace over the same strengths (a followed
+ * fit, follow.h). NULL when out of memory (reported). */
+struct snapshot *snapshot_copy(const struct snapshot *s);
 
 /* Where an interrupted fit stands and one start's model in it: see
  * savepoint.h (only the checkpoint code and fit.c need their fields). */

@@ -82,6 +82,10 @@ void outdir_free(struct outdir *od);
  * the fit has ended. */
 void outdir_tick(struct outdir *od, struct fit *f);
 
+/* Make the next periodic checkpoint due now (a follower's save request,
+ * follow.h); outdir_tick() then writes it as usual. */
+void outdir_due_now(struct outdir *od);
+
 /* The final write: waits for a periodic write, makes the folder, takes
  * its lock, and replaces the result there as one (result_commit.h) by
  * k-selection.tsv (when meta->selection; else, when the run continues the

@@ -30,6 +30,7 @@
 #include "coterie/background.h"
 #include "coterie/atomicfile.h"
 #include "coterie/fit.h"
+#include "coterie/follow.h"
 #include "coterie/graph.h"
 #include "coterie/memory.h"
 #include "coterie/outdir.h"
@@ -84,7 +85,9 @@ static void explore_usage(FILE *out)
 		"In the explorer, ? lists the keys. The fit waits when it levels off:\n"
 		"e runs it on, s ends it, w writes the result, q quits (asking first).\n"
 		"For a directed or two-mode fit, d in the members pane lists all members,\n"
-		"the sending ones or the receiving ones.\n");
+		"the sending ones or the receiving ones.\n"
+		"A DIR whose fit runs in another process is followed, not reopened: X, P\n"
+		"and W ask that fit to stop, to pause or continue, to write its checkpoint.\n");
 }
 
 static int dir_is_empty(const char *path)
@@ -236,15 +239,71 @@ static int parse_args(struct run *r, int argc, char **argv)
 	return -1;
 }
 
-/* A result folder: its checkpoint, shown as saved, its fit ready to go
- * on. Returns 0 or -1 (reported). */
-static int open_folder(struct run *r, struct tui_config *cfg)
+/* 1 when the folder has no checkpoint to read, 0 when it has, -1 on
+ * failure (reported). */
+static int no_checkpoint(const char *dir)
 {
-	char *path = result_file(r->arg, RESULT_CHECKPOINT);
+	char *path = result_file(dir, RESULT_CHECKPOINT);
 	if (!path)
 		return -1;
-	int missing = access(path, F_OK) != 0 && !outdir_has_partial(r->arg);
+	int missing = access(path, F_OK) != 0 && !outdir_has_partial(dir);
 	free(path);
+	return missing;
+}
+
+/*
+ * A fit runs in the folder (its progress file is fresh, follow.h): follow
+ * it. --resume would make a second writer, and is refused; a fit that has
+ * not written a checkpoint yet is asked for one (the panes need its
+ * strengths), and waited for. Returns 1 when following, 0 when no fit
+ * runs there, -1 on failure (reported).
+ */
+static int want_follow(struct run *r)
+{
+	struct follow_progress *p = util_malloc(1, sizeof *p);
+	if (!p)
+		return -1;
+	int live = follow_progress_read(r->arg, p) == 1 && !follow_progress_stale(p);
+	char esc[512], host[200];
+	util_escape(r->arg, esc, sizeof esc, 1);
+	util_escape(p->host, host, sizeof host, 1);
+	unsigned long long pid = p->pid;
+	free(p);
+	if (!live)
+		return 0;
+	if (r->resume)
+		die(1, "a fit runs in '%s' (pid %llu on %s): explore follows it without --resume",
+		    esc, pid, host);
+	if (r->o.out)
+		die(EXIT_USAGE, "a fit runs in '%s' (pid %llu on %s): explore follows it and writes "
+		    "nothing, so -o is not for it", esc, pid, host);
+	int missing = no_checkpoint(r->arg);
+	if (missing == 1) {
+		notice("a fit runs in '%s' (pid %llu on %s) and has written no checkpoint yet: "
+		       "asking it for one", esc, pid, host);
+		if (follow_request_send(r->arg, FOLLOW_SAVE))
+			return -1;
+		for (int i = 0; i < 600 && missing == 1; i++) { /* a minute at most */
+			if (proc_signal_caught())
+				return -1;
+			usleep(100000);
+			missing = no_checkpoint(r->arg);
+		}
+	}
+	return missing < 0 ? -1 : 1;
+}
+
+/* A result folder: its checkpoint, shown as saved, its fit ready to go
+ * on; or, when its fit runs elsewhere, followed. Returns 0 or -1
+ * (reported). */
+static int open_folder(struct run *r, struct tui_config *cfg)
+{
+	int follow = want_follow(r);
+	if (follow < 0)
+		return -1;
+	int missing = no_checkpoint(r->arg);
+	if (missing < 0)
+		return -1;
 	if (missing) {
 		char esc[512];
 		die(1, "'%s' holds no %s: not a result folder", util_escape(r->arg, esc, sizeof esc, 1),
@@ -272,6 +331,9 @@ static int open_folder(struct run *r, struct tui_config *cfg)
 	cfg->outdir_holds_result = r->o.out == NULL || !strcmp(r->o.out, r->arg);
 	cfg->graph_label = r->arg;
 	cfg->graph_path = ck->graph->source ? ck->graph->source : r->arg;
+	cfg->follow = follow;
+	if (follow)
+		cfg->start = 0;
 	/* the panes read the cover from the strengths; after fit --refine
 	 * memberships.tsv holds another one (result_cover.h): say so */
 	if (result_cover_is_refined(r->arg))

@@ -29,6 +29,7 @@
 #include "coterie/caveat.h"
 #include "coterie/dirlock.h"
 #include "coterie/fit.h"
+#include "coterie/follow.h"
 #include "coterie/graph.h"
 #include "coterie/holdout.h"
 #include "coterie/memory.h"
@@ -109,7 +110,9 @@ static void fit_usage(FILE *out)
 		"                        write a checkpoint to the result folder that often\n"
 		"                        while fitting (default 120; --resume goes on from it)\n"
 		"  -q, --quiet           no progress or notices\n"
-		"  -h, --help            this text\n");
+		"  -h, --help            this text\n"
+		"While it runs, DIR/.coterie.request holding stop, pause, continue or save\n"
+		"steers it (coterie explore DIR does this; see coterie(1)).\n");
 }
 
 struct progress {
@@ -373,6 +376,7 @@ struct run {
 	struct dirlock *lock;        /* the output folder's, held from the start */
 	int interrupted;             /* 1: once, 2: twice */
 	struct outdir_config oc;     /* r->od's */
+	struct follow_host *follow;  /* the progress and request files (follow.h) */
 	uint32_t repeats;            /* --repeats (0: one fit) */
 	struct snapshot **runs;      /* --repeats: every run's final snapshot */
 	struct stability stab;       /* --repeats: the record written */
@@ -397,6 +401,7 @@ static void run_release(struct run *r)
 	free(r->runs);
 	stability_release(&r->stab);
 	outdir_free(r->od);
+	follow_host_free(r->follow); /* after the final write, before the lock goes */
 	dirlock_free(r->lock);
 	fit_free(r->f);
 	holdout_release(&r->check);
@@ -571,13 +576,15 @@ static void watch(struct run *r, struct progress *pr)
 		};
 		poll(pfd, 2, 500);
 		fit_drain_wake(r->f);
-		if (proc_signal_caught() && !r->interrupted) {
+		int asked = r->follow && follow_host_tick(r->follow, r->f, r->od);
+		if ((proc_signal_caught() || asked) && !r->interrupted) {
 			/* the sweep in progress ends first, so that --resume
 			 * continues exactly; a second signal stops at once */
 			r->interrupted = 1;
 			progress_break(pr);
-			notice("interrupted: ending the sweep in progress and saving to '%s' "
-			       "(interrupt again to stop at once)", r->o.out);
+			notice("%s: ending the sweep in progress and saving to '%s' (interrupt "
+			       "again to stop at once)", asked ? "asked to stop" : "interrupted",
+			       r->o.out);
 			fit_interrupt(r->f);
 		}
 		if (proc_signal_count() >= 2 && r->interrupted == 1) {
@@ -858,7 +865,8 @@ int cli_fit_in_group(int argc, char **argv, const struct cli_group *grp)
 		.continues = r->resume && same_folder(r->resume, r->o.out),
 		.lock = r->lock,
 	};
-	if (!r->f || (r->writer && !(r->od = outdir_new(&r->oc))))
+	if (!r->f || (r->writer && (!(r->od = outdir_new(&r->oc)) ||
+				    !(r->follow = follow_host_new(r->o.out, &r->p)))))
 		goto out;
 	if (r->check.held)
 		fit_exclude(r->f, r->check.held);

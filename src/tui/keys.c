@@ -26,6 +26,7 @@
 
 #include "coterie/graph.h"
 #include "coterie/util.h"
+#include "follower.h"
 #include "view.h"
 
 /* ---- actions ---- */
@@ -147,6 +148,8 @@ static void act_quit(struct view *v, int arg)
 
 static void act_stop(struct view *v, int arg)
 {
+	if (follower_refuses(v))
+		return;
 	(void)arg;
 	if (!v->started) {
 		view_say(v, UTIL_NOTICE, "this saved fit is not running (e continues it)");
@@ -166,6 +169,8 @@ static void act_stop(struct view *v, int arg)
 
 static void act_pause(struct view *v, int arg)
 {
+	if (follower_refuses(v))
+		return;
 	(void)arg;
 	if (!v->started) {
 		view_say(v, UTIL_NOTICE, "this saved fit is not running (e continues it)");
@@ -274,12 +279,16 @@ static void go_on(struct view *v, long how)
 
 static void act_extend(struct view *v, int arg)
 {
+	if (follower_refuses(v))
+		return;
 	(void)arg;
 	go_on(v, GO_ON_UNTIL_STOP);
 }
 
 static void act_ask(struct view *v, int arg)
 {
+	if (follower_refuses(v))
+		return;
 	v->mode = MODE_ASK;
 	v->ask = (enum ask_kind)arg;
 	v->ask_len = 0;
@@ -344,6 +353,8 @@ void keys_ask_key(struct view *v, int key, int is_char)
 
 static void act_write(struct view *v, int arg)
 {
+	if (follower_refuses(v))
+		return;
 	(void)arg;
 	if (v->saved && !view_unsaved(v)) {
 		char esc[300];
@@ -443,6 +454,10 @@ const struct key_binding keys_table[] = {
 	{ '+', PANE_ANY, act_ask, ASK_SWEEPS, "fit a number of sweeps more, then wait (asks how many)" },
 	{ 't', PANE_ANY, act_ask, ASK_TOL, "set the plateau tolerance, then fit on to the next plateau at it" },
 	{ 'w', PANE_ANY, act_write, 0, "save the result (memberships, communities, run.json) to the folder top right" },
+	/* a fit followed in another process (explore DIR while it runs) */
+	{ 'X', PANE_ANY, follower_act_stop, 0, "followed fit: ask it to stop; it saves and ends as after an interrupt" },
+	{ 'P', PANE_ANY, follower_act_pause, 0, "followed fit: ask it to pause, or to continue" },
+	{ 'W', PANE_ANY, follower_act_save, 0, "followed fit: ask it to write its checkpoint now (the panes show it)" },
 	/* the screen */
 	{ '?', PANE_ANY, act_help, 0, "show this list of keys" },
 	{ CTRL('l'), PANE_ANY, act_redraw, 0, "redraw the screen if it looks garbled" },

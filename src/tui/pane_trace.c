@@ -10,6 +10,7 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "follower.h"
 #include "coterie/util.h"
 #include "panes.h"
 #include "plot.h"
@@ -49,7 +50,9 @@ static void state_words(const struct view *v, char *buf, size_t cap)
 {
 	enum fit_state st = view_state(v);
 	const char *label = view_state_label(st);
-	if (!v->started && v->reopened)
+	if (v->follow)
+		snprintf(buf, cap, "%.63s", v->follow_line);
+	else if (!v->started && v->reopened)
 		snprintf(buf, cap, "%s, as saved", label);
 	else if (v->stop_asked && !fit_state_ended(st))
 		snprintf(buf, cap, "stopping...");
@@ -78,7 +81,7 @@ static int figure_lines(const struct view *v, char line[6][160])
 	} else {
 		/* several starts: which one runs, or, once they are done, that
 		 * the model shown is the most likely of them */
-		int done = fit_state_ended(view_state(v)) || !v->started;
+		int done = fit_state_ended(view_state(v)) || (!v->started && !follower_live(v));
 		char st[48] = "";
 		if (s->starts > 1 && !done)
 			snprintf(st, sizeof st, ", start %u of %u", s->start, s->starts);
@@ -107,7 +110,8 @@ static int figure_lines(const struct view *v, char line[6][160])
 	/* the time of the last sweep; while fitting the clock runs on
 	 * between sweeps (a fit waiting at a plateau is not fitting) */
 	double secs = s->ntrace ? s->trace[s->ntrace - 1].seconds : s->seconds;
-	if (v->started && (v->state == FIT_FITTING || v->state == FIT_SEEDING) && v->snap_taken > 0)
+	if ((v->started || (v->follow && v->snap_taken > 0)) &&
+	    (view_state(v) == FIT_FITTING || view_state(v) == FIT_SEEDING) && v->snap_taken > 0)
 		secs = s->seconds + (util_now() - v->snap_taken);
 	fmt_duration(b, sizeof b, secs);
 	if (s->ntrace >= 2)

@@ -12,6 +12,7 @@
  * where the result goes and whether it is saved, the footer carries the
  * newest message, the prompt of the mode, or the keys of the pane.
  */
+#include "follower.h"
 #include "screen.h"
 
 #include <stdio.h>
@@ -99,7 +100,8 @@ static void draw_header(const struct view *v, WINDOW *w)
 	fmt_count(n, sizeof n, v->g->paired ? v->g->nsend : v->g->n);
 	fmt_count(m, sizeof m, v->g->m);
 	const char *edges = v->g->paired ? "arcs" : v->g->nsend ? "links" : "edges";
-	const char *how = v->write_failed ? "NOT WRITTEN" :
+	const char *how = follower_live(v) ? "following its fit" :
+			  v->write_failed ? "NOT WRITTEN" :
 			  view_unsaved(v) ? "unsaved" :
 			  v->saved ? "saved" : "nothing to save yet";
 	/* the longest form that fits: the result folder and whether it is
@@ -160,8 +162,12 @@ static void join_hints(char *buf, size_t cap, const char *const *item, const int
  * the rest), shown in their usual order. */
 static void hints(const struct view *v, char *buf, size_t cap, int width)
 {
-	static const char *const common[] = { "?:help", "/:find", "Tab:pane", "s:stop", "p:pause",
-					      "e:run on", "w:write", "q:quit" };
+	static const char *const own[] = { "?:help", "/:find", "Tab:pane", "s:stop", "p:pause",
+					   "e:run on", "w:write", "q:quit" };
+	/* a followed fit: its keys, X given room first */
+	static const char *const followed[] = { "?:help", "X:stop it", "P:pause it", "W:checkpoint",
+						"/:find", "Tab:pane", "", "q:quit" };
+	const char *const *common = follower_live(v) ? followed : own;
 	const char *pane[3] = { NULL, NULL, NULL };
 	switch (v->focus) {
 	case PANE_COMMS: pane[0] = "o:sort"; pane[1] = "r:reverse"; pane[2] = "Enter:members"; break;
@@ -170,7 +176,7 @@ static void hints(const struct view *v, char *buf, size_t cap, int width)
 	case PANE_EDGES: pane[0] = "m:missing links"; pane[1] = "Enter:node"; break;
 	default: break;
 	}
-	enum { NC = sizeof common / sizeof common[0], NI = NC + 3 };
+	enum { NC = sizeof own / sizeof own[0], NI = NC + 3 };
 	const char *item[NI];
 	for (int i = 0; i < NC; i++)
 		item[i] = common[i];
@@ -180,7 +186,7 @@ static void hints(const struct view *v, char *buf, size_t cap, int width)
 	static const int prio[NI] = { 0, 7, NC, NC + 1, NC + 2, 1, 6, 5, 4, 3, 2 };
 	int take[NI] = { 0 };
 	for (int p = 0; p < NI; p++) {
-		if (!item[prio[p]])
+		if (!item[prio[p]] || !item[prio[p]][0])
 			continue;
 		take[prio[p]] = 1;
 		join_hints(buf, cap, item, take, NI, NC);

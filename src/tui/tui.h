@@ -49,6 +49,8 @@ struct tui_config {
 	int one_start;                /* the fit goes on as one start (reopened
 				       * without a savepoint): outdir.h */
 	const char *note;             /* said in the footer on opening (borrowed), or NULL */
+	int follow;                   /* outdir's fit runs in another process:
+				       * follow it (tui/follower.h), write nothing */
 };
 
 /* What the explore command hands over for -k auto (kscreen.c). */

@@ -44,6 +44,7 @@
 #include "coterie/proc.h"
 #include "coterie/outdir.h"
 #include "coterie/util.h"
+#include "follower.h"
 #include "keys.h"
 #include "panes.h"
 #include "screen.h"
@@ -215,6 +216,8 @@ static int start(struct view *v, struct loop *l, const struct tui_config *cfg)
 			 "(-o chooses another); ? lists the keys");
 
 	l->last_tick = util_now();
+	if (cfg->follow) /* the fit elsewhere is the folder's writer */
+		return follower_start(v, cfg->outdir);
 	l->lock = dirlock_new(v->outdir, proc_command_line());
 	v->od = autosave_open(v, l, cfg);
 	return 0;
@@ -278,6 +281,7 @@ static void update_and_draw(struct view *v, struct loop *l)
 		v->params_changed = 0;
 	}
 	guard_folder(v, l);
+	follower_poll(v);
 	if (v->started && v->od)
 		outdir_tick(v->od, v->fit);
 	if (v->write_asked)
@@ -329,6 +333,8 @@ static int wait_and_read(struct view *v, struct loop *l)
 		int ms = (int)((SNAP_INTERVAL - (util_now() - v->snap_taken)) * 1e3) + 1;
 		timeout = ms < 0 ? 0 : ms < timeout ? ms : timeout;
 	}
+	if (v->follow && follower_timeout_ms(v) < timeout)
+		timeout = follower_timeout_ms(v);
 	if (scanning)
 		timeout = 0;
 	struct pollfd pfd[5] = {
@@ -345,7 +351,7 @@ static int wait_and_read(struct view *v, struct loop *l)
 		return 1;
 	if (pfd[1].revents & POLLIN) {
 		fit_drain_wake(v->fit);
-		l->pending = 1;
+		l->pending = !v->follow; /* a followed fit's snapshots are the follower's */
 	}
 	if (pfd[3].revents & POLLIN)
 		inbox_take(v);
@@ -480,6 +486,7 @@ int tui_run(struct tui_config *cfg)
 		status = report(v, l, status);
 	}
 	outdir_free(v->od); /* joins the autosave thread */
+	follower_free(v);
 	if (l)
 		dirlock_free(l->lock); /* before the folder is checked for emptiness */
 	free(l);

@@ -19,6 +19,8 @@
 #include "sides.h"
 #include "tui.h"
 
+struct follower;
+
 enum pane_id {
 	PANE_TRACE = 0, /* the likelihood */
 	PANE_COMMS,
@@ -92,6 +94,11 @@ struct view {
 	const struct select_result *selection; /* -k auto's search, or NULL */
 	struct outdir *od;    /* the result folder (outdir.h); owned by tui_run() */
 	int params_changed;   /* params changed ('t'): ui.c reopens od with them */
+	/* a fit running in another process, followed through the folder
+	 * (tui/follow.h; owned by tui_run()), or NULL; once it ended the
+	 * session only browses its result */
+	struct follower *follow;
+	char follow_line[64];     /* what the state line says of it */
 
 	/* the snapshot on screen */
 	struct snapshot *snap;

@@ -18,7 +18,7 @@ done
 dups=$(cut -f1,2 "$tmp/keys" | sort | uniq -d)
 check "no key is bound twice in the same pane${dups:+ ($dups)}" [ -z "$dups" ]
 
-start_ui 120x40 C.UTF-8 "$g" -k 6 -j 2 -o out
+start_ui 120x46 C.UTF-8 "$g" -k 6 -j 2 -o out  # tall enough for every key unscrolled
 wait_screen '─ 5 Weak edges' 10
 keys '?'
 check "? opens the help screen, headed in the user's words" \
