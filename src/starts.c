@@ -32,6 +32,7 @@
  * it, against which the plateau rule measures and the move is judged.
  */
 #include <math.h>
+#include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 
@@ -352,7 +353,9 @@ static enum fit_state reseed(struct fit *f)
 		if (model_export(&f->m, &saved))
 			return FIT_FAILED;
 		uint32_t made = 0;
-		int rc = f->p.model == MODEL_BIGCLAM ? fit_merge_move(f, &r, merge_limit, &made) : 0;
+		int rc = f->p.model == MODEL_BIGCLAM || f->p.model == MODEL_DIRECTED
+				 ? fit_merge_move(f, &r, merge_limit, &made)
+				 : 0;
 		if (rc == 0)
 			rc = reseed_column(f, &r);
 		if (rc <= 0) {
@@ -367,6 +370,8 @@ static enum fit_state reseed(struct fit *f)
 		if (st == FIT_FAILED)
 			break;
 		double after = f->trace[f->ntrace - 1].loglik;
+		if (getenv("DIRQ_DEBUG"))
+			fprintf(stderr, "move: made %u before %.1f after %.1f\n", made, before, after);
 		if (after > before) {
 			fails = 0;
 			f->reseeds++;
