@@ -32,7 +32,6 @@
  * it, against which the plateau rule measures and the move is judged.
  */
 #include <math.h>
-#include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 
@@ -370,8 +369,6 @@ static enum fit_state reseed(struct fit *f)
 		if (st == FIT_FAILED)
 			break;
 		double after = f->trace[f->ntrace - 1].loglik;
-		if (getenv("DIRQ_DEBUG"))
-			fprintf(stderr, "move: made %u before %.1f after %.1f\n", made, before, after);
 		if (after > before) {
 			fails = 0;
 			f->reseeds++;
