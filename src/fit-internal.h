@@ -126,7 +126,8 @@ struct fit_savepoint *fit_savepoint_dup(const struct fit_savepoint *src);
  * one block than in the background) and plant the freed columns on the
  * ego-nets a new column would explain best; *made gets the joins made.
  * 1 made, 0 nothing to join, -1 error. The caller climbs and keeps it
- * only if l(F) rose. BigCLAM one-sided models only. */
+ * only if l(F) rose. BigCLAM and directed models (chosen on the
+ * undirected view); 0 for other models. */
 int fit_merge_move(struct fit *f, struct rng *r, uint32_t limit, uint32_t *made);
 
 #endif
