@@ -140,7 +140,7 @@ static void fixture_init(void)
 	fx.colsum[0] = 1.5 + 1.2 + 0.9;
 	fx.colsum[1] = 0.4 + 1.1 + 0.8 + 1.3;
 	fx.colsum[2] = 0.01 + 0.3 + 0.7;
-	fx.s.F = (struct fcsr){ N, K, fx.foff, fx.fe, fx.colsum };
+	fx.s.F = (struct fcsr){ N, K, fx.foff, fx.fe, fx.colsum, NULL };
 	assert_fcsr_sane(&fx.s.F);
 
 	/* Trace: sweep 0 is the seeded model. -50/3 needs all 17 digits. */
