@@ -590,8 +590,131 @@ static int agm_begin(struct agm *out, const struct graph *g, double epsilon)
 int agm_member_at(const struct graph *g, const struct fcsr *F, uint32_t u, uint64_t j,
 		  double delta, double min_links)
 {
-	return agm_is_member(F->e[j].v, F->colsum[F->e[j].c], delta, min_links,
-			     graph_degree(g, u));
+	uint32_t c = F->e[j].c;
+	if (F->thr && F->thr[c] > delta)
+		delta = F->thr[c];
+	return agm_is_member(F->e[j].v, F->colsum[c], delta, min_links, graph_degree(g, u));
+}
+
+/* ---- the AGM's own end of each community (agm_trim()) ---- */
+
+struct ranked {
+	double v;
+	uint32_t u;
+};
+
+static int ranked_cmp(const void *x, const void *y)
+{
+	const struct ranked *a = x, *b = y;
+	if (a->v != b->v)
+		return a->v > b->v ? -1 : 1;
+	return a->u < b->u ? -1 : a->u > b->u;
+}
+
+/* The threshold of one column: its members (rows[0 .. s), by the rule at
+ * delta) in order of strength; the prefix whose block likelihood beats
+ * the background most; the strength of its last member, or 0 when the
+ * whole column is kept. pos: n zeros, left zeroed. */
+static double column_threshold(const struct graph *g, struct ranked *rows, uint32_t s,
+			       double le, double l1e, uint32_t *pos)
+{
+	if (s < 3)
+		return 0.0;
+	qsort(rows, s, sizeof *rows, ranked_cmp);
+	double E = 0.0, best = -HUGE_VAL;
+	uint32_t keep = s;
+	for (uint32_t i = 0; i < s; i++) {
+		uint32_t u = rows[i].u;
+		for (uint64_t j = g->off[u]; j < g->off[u + 1]; j++)
+			E += pos[g->adj[j]] != 0;
+		pos[u] = i + 1;
+		if (i == 0)
+			continue;
+		double P = (double)(i + 1) * i / 2, p = E / P;
+		double ll = 0.0;
+		if (p > 0.0 && p < 1.0)
+			ll = E * log(p) + (P - E) * log1p(-p);
+		ll -= E * le + (P - E) * l1e;
+		if (ll > best) {
+			best = ll;
+			keep = i + 1;
+		}
+	}
+	for (uint32_t i = 0; i < s; i++)
+		pos[rows[i].u] = 0;
+	return keep < s ? rows[keep - 1].v : 0.0;
+}
+
+int agm_trim(const struct graph *g, struct fcsr *F, double epsilon, double delta,
+	     double min_links)
+{
+	free(F->thr);
+	F->thr = NULL;
+	if (F->n != g->n || !(epsilon > 0.0 && epsilon < 1.0) || F->k == 0)
+		return F->n == g->n ? 0 : error("strengths and graph differ in size");
+	uint64_t *off = util_calloc((size_t)F->k + 1, sizeof *off);
+	uint32_t *pos = util_calloc(g->n, sizeof *pos);
+	double *thr = util_calloc(F->k, sizeof *thr);
+	struct ranked *rows = NULL;
+	int rc = -1;
+	if (!off || !pos || !thr)
+		goto out;
+	for (uint32_t u = 0; u < F->n; u++)
+		for (uint64_t j = F->off[u]; j < F->off[u + 1]; j++)
+			if (agm_member_at(g, F, u, j, delta, min_links))
+				off[F->e[j].c + 1]++;
+	for (uint32_t c = 0; c < F->k; c++)
+		off[c + 1] += off[c];
+	if (!(rows = util_malloc(off[F->k] ? off[F->k] : 1, sizeof *rows)))
+		goto out;
+	for (uint32_t u = 0; u < F->n; u++) /* column by column, through off[] as a cursor */
+		for (uint64_t j = F->off[u]; j < F->off[u + 1]; j++)
+			if (agm_member_at(g, F, u, j, delta, min_links))
+				rows[off[F->e[j].c]++] = (struct ranked){ F->e[j].v, u };
+	for (uint32_t c = F->k; c > 0; c--) /* the cursors moved each start one column on */
+		off[c] = off[c - 1];
+	off[0] = 0;
+	double le = log(epsilon), l1e = log1p(-epsilon);
+	for (uint32_t c = 0; c < F->k; c++)
+		thr[c] = column_threshold(g, rows + off[c], (uint32_t)(off[c + 1] - off[c]), le, l1e,
+					  pos);
+	F->thr = thr;
+	thr = NULL;
+	rc = 0;
+out:
+	free(off);
+	free(pos);
+	free(thr);
+	free(rows);
+	return rc;
+}
+
+int agm_from_strengths_trimmed(struct agm *out, const struct graph *g, struct fcsr *F,
+			       double epsilon, double delta, double min_links)
+{
+	free(F->thr);
+	F->thr = NULL;
+	if (agm_from_strengths(out, g, F, epsilon, delta, min_links))
+		return -1;
+	if (g->nsend) /* the two-sided models read their covers by side */
+		return 0;
+	struct agm trimmed;
+	if (agm_trim(g, F, epsilon, delta, min_links) ||
+	    agm_from_strengths(&trimmed, g, F, epsilon, delta, min_links)) {
+		agm_release(out);
+		return -1;
+	}
+	if (trimmed.loglik >= out->loglik) { /* the AGM's likelihood must not fall */
+		agm_release(out);
+		*out = trimmed;
+		for (uint32_t c = 0; c < F->k; c++)
+			out->ended_sooner += F->thr[c] > delta;
+	} else {
+		agm_release(&trimmed);
+		free(F->thr);
+		F->thr = NULL;
+	}
+	return 0;
 }
 
 int agm_from_strengths(struct agm *out, const struct graph *g, const struct fcsr *F,
@@ -721,7 +844,8 @@ void agm_release(struct agm *a)
 int agm_copy(struct agm *dst, const struct agm *src)
 {
 	*dst = (struct agm){ .n = src->n, .epsilon = src->epsilon, .loglik = src->loglik,
-			     .covered = src->covered, .overlapping = src->overlapping };
+			     .covered = src->covered, .overlapping = src->overlapping,
+			     .ended_sooner = src->ended_sooner };
 	uint32_t k = src->cover.k;
 	uint64_t total = src->cover.off ? src->cover.off[k] : 0;
 	struct cover *cv = &dst->cover;

@@ -362,6 +362,7 @@ static int read_strengths(const char *path, struct rd *sec, struct fcsr *F)
 	F->off = util_malloc((size_t)n + 1, sizeof *F->off);
 	F->e = util_malloc((size_t)nnz, sizeof *F->e);
 	F->colsum = util_calloc(k, sizeof *F->colsum);
+	F->thr = NULL;
 	if (!F->off || !F->e || !F->colsum)
 		return -1;
 	for (uint32_t u = 0; u <= n; u++)

@@ -13,7 +13,7 @@ void fcsr_release(struct fcsr *f)
 {
 	if (!f)
 		return;
-	UTIL_FREE_ALL(f->off, f->e, f->colsum);
+	UTIL_FREE_ALL(f->off, f->e, f->colsum, f->thr);
 	memset(f, 0, sizeof *f);
 }
 
@@ -34,5 +34,12 @@ int fcsr_copy(struct fcsr *dst, const struct fcsr *src)
 	if (nnz)
 		memcpy(dst->e, src->e, nnz * sizeof *dst->e);
 	memcpy(dst->colsum, src->colsum, src->k * sizeof *dst->colsum);
+	if (src->thr) {
+		if (!(dst->thr = util_malloc(src->k ? src->k : 1, sizeof *dst->thr))) {
+			fcsr_release(dst);
+			return -1;
+		}
+		memcpy(dst->thr, src->thr, src->k * sizeof *dst->thr);
+	}
 	return 0;
 }

@@ -181,8 +181,8 @@ static int snapshot_agm(struct fit *f, struct snapshot *s, enum fit_state state)
 	double predicted = f->agm_cost * (fixed + (double)nnz) / (fixed + (double)f->agm_nnz);
 	int stale_ok = !f->live_agm || (f->agm_nnz > 0 && now - f->agm_time < AGM_SHARE * predicted);
 	if (state != FIT_FITTING || !f->have_agm || !stale_ok) {
-		if (agm_from_strengths(&s->agm, f->g, &s->F, f->m.epsilon, f->m.delta,
-				       AGM_MIN_LINKS))
+		if (agm_from_strengths_trimmed(&s->agm, f->g, &s->F, f->m.epsilon, f->m.delta,
+					       AGM_MIN_LINKS))
 			return -1;
 		f->agm_time = util_now();
 		f->agm_cost = f->agm_time - now;

@@ -329,7 +329,7 @@ out:
 	return rc;
 }
 
-int result_cover_read(struct agm *out, const char *dir, const struct checkpoint *ck,
+int result_cover_read(struct agm *out, const char *dir, struct checkpoint *ck,
 		      double delta, enum result_cover_from *from)
 {
 	*from = RESULT_COVER_STRENGTHS;
@@ -341,7 +341,8 @@ int result_cover_read(struct agm *out, const char *dir, const struct checkpoint 
 		warning("showing the cover read from the strengths, not the refined one");
 		*from = RESULT_COVER_UNREFINED;
 	}
-	return agm_from_strengths(out, ck->graph, &ck->F, ck->epsilon, delta, AGM_MIN_LINKS);
+	return agm_from_strengths_trimmed(out, ck->graph, &ck->F, ck->epsilon, delta,
+					  AGM_MIN_LINKS);
 }
 
 /* ---- the folder's files against its checkpoint ---- */
@@ -384,7 +385,7 @@ static uint64_t *cover_pairs(const struct cover *c, const struct agm *a, uint32_
 /* Does memberships.tsv (present) list the cover the strengths of ck give
  * by the rule (given, borrowed, or built here when NULL)? 1 yes, 0 no (or
  * unreadable), -1 no memory. */
-static int memberships_match(const char *path, const struct checkpoint *ck,
+static int memberships_match(const char *path, struct checkpoint *ck,
 			     const struct agm *given)
 {
 	struct cover file;
@@ -396,8 +397,8 @@ static int memberships_match(const char *path, const struct checkpoint *ck,
 	int same = -1;
 	double delta = sqrt(model_qeps(ck->epsilon));
 	const struct agm *rule = given;
-	if (!rule && agm_from_strengths(&a, ck->graph, &ck->F, ck->epsilon, delta,
-					AGM_MIN_LINKS) == 0)
+	if (!rule && agm_from_strengths_trimmed(&a, ck->graph, &ck->F, ck->epsilon, delta,
+						AGM_MIN_LINKS) == 0)
 		rule = &a;
 	if (rule) {
 		uint64_t *x = cover_pairs(&file, NULL, ck->F.k);
@@ -412,7 +413,7 @@ static int memberships_match(const char *path, const struct checkpoint *ck,
 	return same;
 }
 
-void result_cover_check_folder(const char *dir, const struct checkpoint *ck,
+void result_cover_check_folder(const char *dir, struct checkpoint *ck,
 			       const struct agm *rule)
 {
 	json_t *root = load_run_json(dir);

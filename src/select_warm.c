@@ -33,6 +33,7 @@ static int alloc_fcsr(struct fcsr *o, uint32_t n, uint32_t k, uint64_t nnz)
 	o->off = util_calloc((size_t)n + 1, sizeof *o->off);
 	o->e = util_malloc(nnz ? nnz : 1, sizeof *o->e);
 	o->colsum = util_calloc(k, sizeof *o->colsum);
+	o->thr = NULL;
 	if (o->off && o->e && o->colsum)
 		return 0;
 	fcsr_release(o);

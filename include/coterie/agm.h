@@ -46,6 +46,8 @@ struct agm {
 	double loglik;               /* AGM log-likelihood of the answer */
 	uint32_t covered;            /* nodes in at least one community */
 	uint32_t overlapping;        /* nodes in two or more */
+	uint32_t ended_sooner;       /* agm_from_strengths_trimmed(): communities read
+					at their own threshold above delta */
 };
 
 /*
@@ -80,6 +82,24 @@ static inline int agm_is_member(double strength, double colsum, double delta,
  * column sums and g be the graph F describes (for the degree). */
 int agm_member_at(const struct graph *g, const struct fcsr *F, uint32_t u, uint64_t j,
 		  double delta, double min_links);
+
+/* Where each community of F ends, by the AGM's own likelihood: for each
+ * column, its members by the rule at delta in order of strength, the
+ * prefix whose edges are most likely as one block at their own density
+ * against the background epsilon (each community alone); F->thr gets the
+ * strength of the last member kept (0: the whole column), replacing any
+ * earlier thresholds. 0 or -1 (reported). */
+int agm_trim(const struct graph *g, struct fcsr *F, double epsilon, double delta,
+	     double min_links);
+
+/* agm_from_strengths() read with the thresholds of agm_trim() when the
+ * AGM log-likelihood of that cover is not below the one at delta alone,
+ * else at delta alone (F->thr is then NULL): the membership reading of
+ * the commands. F's thresholds are set to match (so agm_member_at() on F
+ * agrees with out). Two-sided graphs (g->nsend) are read at delta. 0 or
+ * -1; release with agm_release(). */
+int agm_from_strengths_trimmed(struct agm *out, const struct graph *g, struct fcsr *F,
+			       double epsilon, double delta, double min_links);
 
 /* Memberships by agm_is_member() with F->colsum, figures and p for every
  * non-empty column of F. g and F borrowed. Cover labels are the column

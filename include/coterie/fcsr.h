@@ -29,6 +29,11 @@ struct fcsr {
 	uint64_t *off;
 	struct fentry *e;
 	double *colsum;
+	/* NULL, or k thresholds of membership per column, each at least the
+	 * fit's delta (agm_trim(): the AGM's own choice of where a
+	 * community's members end); not stored in checkpoints: derived
+	 * again from the strengths and the graph */
+	double *thr;
 };
 
 /* Free the arrays of f and zero it; NULL is a no-op. */

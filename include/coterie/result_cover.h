@@ -42,7 +42,7 @@ int result_cover_is_refined(const char *dir);
  * Returns 0, or -1 with a message when not even the strengths could be
  * read; release out with agm_release().
  */
-int result_cover_read(struct agm *out, const char *dir, const struct checkpoint *ck,
+int result_cover_read(struct agm *out, const char *dir, struct checkpoint *ck,
 		      double delta, enum result_cover_from *from);
 
 /* Warn when the files of result folder dir do not belong with its
@@ -54,7 +54,7 @@ int result_cover_read(struct agm *out, const char *dir, const struct checkpoint 
  * refused (coterie-files(5)). rule (borrowed, may be NULL) is the cover
  * the strengths give by the rule when the caller already has it, so it is
  * not built twice. */
-void result_cover_check_folder(const char *dir, const struct checkpoint *ck,
+void result_cover_check_folder(const char *dir, struct checkpoint *ck,
 			       const struct agm *rule);
 
 /* Is node u a member of community a->comms[index] (a binary search of its

@@ -614,9 +614,15 @@ static int score_links(struct run *r, const struct snapshot *s, struct result_li
 		       struct agm *whole)
 {
 	*links = (struct result_links){ r->check_links, r->check.nedges, r->check.nnon, 0, 0 };
+	struct fcsr F; /* the thresholds of the whole graph's reading, not the training one's */
 	if (holdout_score(&r->check, &s->F, s->epsilon, r->p.model, &links->heldout_loglik,
 			  &links->auc) ||
-	    agm_from_strengths(whole, r->graph, &s->F, s->epsilon, s->delta, AGM_MIN_LINKS))
+	    fcsr_copy(&F, &s->F))
+		return 0;
+	int rc = agm_from_strengths_trimmed(whole, r->graph, &F, s->epsilon, s->delta,
+					    AGM_MIN_LINKS);
+	fcsr_release(&F);
+	if (rc)
 		return 0;
 	if (!r->quiet)
 		notice("held-out links: AUC %.4f, log-likelihood %.6g over %llu edges and %llu "

@@ -284,6 +284,9 @@ static int show_summary(const struct show *s)
 	printf("epsilon      %.6g (membership: strength %.6g or more and %g links into the\n"
 	       "             community, or half the degree when less)\n",
 	       ck->epsilon, s->delta, AGM_MIN_LINKS);
+	if (a->ended_sooner)
+		printf("             %u communities end sooner, at the AGM's own threshold\n",
+		       a->ended_sooner);
 	if (a->cover.k == 0) {
 		printf("\nno community has a member\n");
 		return 0;

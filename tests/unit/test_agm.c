@@ -302,7 +302,7 @@ static void test_from_strengths_thresholds_at_delta_inclusive(void **state)
 	};
 	uint64_t off[] = { 0, 2, 4, 6, 8 };
 	double colsum[] = { 1.4, 0.0, 2.1, 1.29999 };
-	struct fcsr F = { 4, 4, off, ent, colsum };
+	struct fcsr F = { 4, 4, off, ent, colsum, NULL };
 	assert_fcsr_sane(&F);
 	struct agm a;
 	assert_int_equal(agm_from_strengths(&a, g, &F, 0.01, 0.5, 0.0), 0);
@@ -329,7 +329,7 @@ static void test_from_strengths_thresholds_at_delta_inclusive(void **state)
 	assert_int_equal(a.overlapping, 1); /* node 2: c2 and c3 */
 	agm_release(&a);
 
-	struct fcsr bad = { 3, 4, off, ent, colsum }; /* 3 rows, 4 nodes */
+	struct fcsr bad = { 3, 4, off, ent, colsum, NULL }; /* 3 rows, 4 nodes */
 	assert_int_equal(agm_from_strengths(&a, g, &bad, 0.01, 0.5, 0.0), -1);
 	graph_free(g);
 }
@@ -357,7 +357,7 @@ static void test_from_strengths_needs_links_into_the_community(void **state)
 	};
 	uint64_t off[] = { 0, 2, 3, 4, 5, 6, 7 };
 	double colsum[] = { 2.4, 2.5 };
-	struct fcsr F = { 6, 2, off, ent, colsum };
+	struct fcsr F = { 6, 2, off, ent, colsum, NULL };
 	assert_fcsr_sane(&F);
 	struct agm a;
 	assert_int_equal(agm_from_strengths(&a, g, &F, 0.01, 0.1, AGM_MIN_LINKS), 0);
@@ -384,6 +384,58 @@ static void test_from_strengths_needs_links_into_the_community(void **state)
 	assert_int_equal(a.comms[1].size, 3);
 	assert_int_equal(a.covered, 6);
 	agm_release(&a);
+	graph_free(g);
+}
+
+/*
+ * agm_trim() by hand. Nodes 0-3 form a clique (6 edges); node 4 has one
+ * link, to 0, and node 5 one, to 1. One column: strengths 1.0 for 0-3,
+ * 0.5 for 4, 0.4 for 5 (column sum 4.9). epsilon 0.1, so delta =
+ * sqrt(-ln 0.9) = 0.3246; every node passes the rule at delta (4: 0.5 x
+ * 4.9 = 2.45 >= min(2, 1/2); 5: 0.4 x 4.9 = 1.96 >= 0.5). The prefixes in
+ * order of strength (ties by id), gain = E ln(E/P) + (P-E) ln(1-E/P)
+ * - [E ln 0.1 + (P-E) ln 0.9]:
+ *   {0,1}       E 1 P 1:   0 + 2.3026                         =  2.3026
+ *   {0,1,2}     E 3 P 3:                                      =  6.9078
+ *   {0..3}      E 6 P 6:   6 x 2.302585                       = 13.8155
+ *   {0..3,4}    E 7 P 10:  -6.10864 + 16.43417                = 10.3255
+ *   {0..3,4,5}  E 8 P 15:  -10.36385 + 19.15820               =  8.7944
+ * so the community ends after node 3: its threshold is 1.0, and 4 and 5
+ * are no longer members.
+ */
+static void test_trim_ends_a_community_at_its_dense_core(void **state)
+{
+	(void)state;
+	const uint32_t e[] = { 0, 1, 0, 2, 0, 3, 1, 2, 1, 3, 2, 3, 0, 4, 1, 5 };
+	struct graph *g = make_graph(6, e, 8);
+	struct fentry ent[] = { { 0, 1.0 }, { 0, 1.0 }, { 0, 1.0 }, { 0, 1.0 }, { 0, 0.5 }, { 0, 0.4 } };
+	uint64_t off[] = { 0, 1, 2, 3, 4, 5, 6 };
+	double colsum[] = { 4.9 };
+	struct fcsr F = { .n = 6, .k = 1, .off = off, .e = ent, .colsum = colsum };
+	double delta = sqrt(-log1p(-0.1));
+	for (uint64_t j = 0; j < 6; j++)
+		assert_true(agm_member_at(g, &F, (uint32_t)j, j, delta, AGM_MIN_LINKS));
+	assert_int_equal(agm_trim(g, &F, 0.1, delta, AGM_MIN_LINKS), 0);
+	assert_non_null(F.thr);
+	assert_true(F.thr[0] == 1.0);
+	for (uint64_t j = 0; j < 6; j++) /* the per-entry test reads the threshold */
+		assert_int_equal(agm_member_at(g, &F, (uint32_t)j, j, delta, AGM_MIN_LINKS), j < 4);
+
+	/* the reading keeps the trimmed cover only if the AGM likelihood does
+	 * not fall; whichever it keeps, it is the better of the two and F's
+	 * thresholds agree with it */
+	struct agm at, a0;
+	free(F.thr);
+	F.thr = NULL;
+	assert_int_equal(agm_from_strengths(&a0, g, &F, 0.1, delta, AGM_MIN_LINKS), 0);
+	assert_int_equal(agm_from_strengths_trimmed(&at, g, &F, 0.1, delta, AGM_MIN_LINKS), 0);
+	assert_true(at.loglik >= a0.loglik);
+	uint32_t members = (uint32_t)at.cover.off[at.cover.k];
+	assert_int_equal(members, F.thr ? 4u : 6u);
+	assert_int_equal(at.ended_sooner, F.thr ? 1u : 0u);
+	agm_release(&at);
+	agm_release(&a0);
+	free(F.thr);
 	graph_free(g);
 }
 
@@ -676,6 +728,7 @@ int main(void)
 		cmocka_unit_test(test_random_graph_matches_brute_force),
 		cmocka_unit_test(test_improve_p_reaches_the_maximum_from_any_start),
 		cmocka_unit_test(test_rejects_bad_input),
+		cmocka_unit_test(test_trim_ends_a_community_at_its_dense_core),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }

@@ -57,7 +57,7 @@ static int setup(void **state)
 	ex->e[3] = (struct fentry){ 1, 2.0 };
 	ex->colsum[0] = 1.5;
 	ex->colsum[1] = 2.2;
-	ex->F = (struct fcsr){ 4, 2, ex->off, ex->e, ex->colsum };
+	ex->F = (struct fcsr){ 4, 2, ex->off, ex->e, ex->colsum, NULL };
 	assert_fcsr_sane(&ex->F);
 	assert_int_equal(agm_from_strengths(&ex->a, ex->g, &ex->F, 0.1, 0.1, 0.0), 0);
 	ex->x = (struct export_fit){ ex->g, &ex->F, &ex->a, 0.1 };

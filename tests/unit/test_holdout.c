@@ -155,7 +155,7 @@ static void test_score_matches_definition_on_a_small_model(void **state)
 	uint64_t off[] = { 0, 1, 2, 3, 3 };
 	struct fentry e[] = { { 0, 1.0 }, { 0, 1.0 }, { 0, 0.5 } };
 	double colsum[] = { 2.5 };
-	struct fcsr F = { 4, 1, off, e, colsum };
+	struct fcsr F = { 4, 1, off, e, colsum, NULL };
 	double l, auc, qeps = -log(0.9);
 	assert_int_equal(holdout_score(&h, &F, 0.1, MODEL_BIGCLAM, &l, &auc), 0);
 	double want = log(1.0 - exp(-(1.0 + qeps))) - (0.5 + qeps) - qeps;
@@ -282,7 +282,7 @@ static void test_poisson_score_matches_definition_on_a_small_model(void **state)
 	uint64_t off[] = { 0, 1, 2, 3, 3 };
 	struct fentry e[] = { { 0, 1.0 }, { 0, 1.0 }, { 0, 0.5 } };
 	double colsum[] = { 2.5 };
-	struct fcsr F = { 4, 1, off, e, colsum };
+	struct fcsr F = { 4, 1, off, e, colsum, NULL };
 	double l, auc, qeps = -log(0.9);
 	assert_int_equal(holdout_score(&h, &F, 0.1, MODEL_POISSON, &l, &auc), 0);
 	double want = 3.0 * log(1.0 + qeps) - log(6.0) - (1.0 + qeps) - (0.5 + qeps) - qeps;

@@ -140,7 +140,7 @@ static void fixture_init(void)
 	fx.colsum[0] = 1.5 + 1.2 + 0.9;
 	fx.colsum[1] = 0.4 + 1.1 + 0.8 + 1.3;
 	fx.colsum[2] = 0.01 + 0.3 + 0.7;
-	fx.s.F = (struct fcsr){ N, K, fx.foff, fx.fe, fx.colsum };
+	fx.s.F = (struct fcsr){ N, K, fx.foff, fx.fe, fx.colsum, NULL };
 	assert_fcsr_sane(&fx.s.F);
 
 	/* Trace: sweep 0 is the seeded model. -50/3 needs all 17 digits. */
@@ -550,8 +550,9 @@ static void test_run_json_has_every_key_in_order_with_values(void **state)
 					      "starts", "reseed", "k_chosen_by" };
 	static const char *const fit[] = { "status", "state", "sweeps", "plateau_sweep",
 					   "seconds", "loglik", "agm_loglik", "communities",
-					   "covered_nodes", "overlapping_nodes", "start_kept",
-					   "reseeds_kept", "memberships_from" };
+					   "covered_nodes", "overlapping_nodes",
+					   "communities_ended_sooner", "start_kept", "reseeds_kept",
+					   "memberships_from" };
 	static const char *const run[] = { "wall_seconds", "peak_rss_kb" };
 	assert_keys(root, top, 12);
 	/* k was given, no background choice recorded and no link check was
@@ -561,7 +562,7 @@ static void test_run_json_has_every_key_in_order_with_values(void **state)
 	assert_true(json_is_null(get(root, "link_check", NULL)));
 	assert_keys(get(root, "graph", NULL), graph, 11);
 	assert_keys(get(root, "parameters", NULL), params, 14);
-	assert_keys(get(root, "fit", NULL), fit, 13);
+	assert_keys(get(root, "fit", NULL), fit, 14);
 	assert_keys(get(root, "run", NULL), run, 2);
 
 	assert_int_equal(json_integer_value(get(root, "coterie", "format")), 1);
