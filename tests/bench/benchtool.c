@@ -187,7 +187,9 @@ out:
 	return r;
 }
 
-static int cmd_fit(int argc, char **argv)
+/* cmd_fit()'s options into p, lo, *path, *truth, *yard; 0, or 2 (said why). */
+static int fit_args(int argc, char **argv, struct fit_params *pp, struct graph_load_opts *plo,
+		    const char **path_out, const char **truth_out, int *yard_out)
 {
 	struct fit_params p;
 	fit_params_default(&p);
@@ -232,6 +234,23 @@ static int cmd_fit(int argc, char **argv)
 		fprintf(stderr, "benchtool fit: no graph\n");
 		return 2;
 	}
+	*pp = p;
+	*plo = lo;
+	*path_out = path;
+	*truth_out = truth;
+	*yard_out = yard;
+	return 0;
+}
+
+static int cmd_fit(int argc, char **argv)
+{
+	struct fit_params p;
+	struct graph_load_opts lo;
+	const char *path, *truth;
+	int yard;
+	int rc = fit_args(argc, argv, &p, &lo, &path, &truth, &yard);
+	if (rc)
+		return rc;
 	p.model = lo.directed ? MODEL_DIRECTED : MODEL_BIGCLAM;
 	if (lo.weighted)
 		p.model = model_kind_with_weights(p.model);
