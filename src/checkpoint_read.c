@@ -480,10 +480,11 @@ static int read_model(const char *path, struct rd *sec, struct checkpoint *ck)
 		if (sec->left < 4)
 			return damaged(path, "the model section is too short");
 		uint32_t nsend = rd_u32(sec);
-		if (weighted || graph_check_sides(g, nsend, model == MODEL_DIRECTED, why, sizeof why))
-			return damaged(path, "%s", weighted ? "a two-sided graph with weights" : why);
+		int paired = model_kind_directed(ck->params.model);
+		if (graph_check_sides(g, nsend, paired, why, sizeof why))
+			return damaged(path, "%s", why);
 		g->nsend = nsend;
-		g->paired = model == MODEL_DIRECTED;
+		g->paired = paired;
 	}
 	if (!weighted)
 		return rd_section_end(path, sec, "MODL");

@@ -36,20 +36,30 @@ struct graph *graph_assemble(struct names *t, const uint32_t *pairs, uint64_t np
 
 /* graph_assemble() for a two-sided graph (graph_directed.c): the pairs
  * are arcs (first id sends), or with two_mode links from a first-column
- * node to a second-column node, two kinds whose names may repeat. t
- * taken. NULL with error(); caller frees with graph_free(). */
+ * node to a second-column node, two kinds whose names may repeat. w (NULL:
+ * unweighted) holds one weight a pair, laid on the two-sided graph's
+ * edges by graph_set_weights() (a dropped self-arc's weight with it);
+ * shown names the input in messages. t taken. NULL with error(); caller
+ * frees with graph_free(). */
 struct graph *graph_assemble_sided(struct names *t, const uint32_t *pairs, uint64_t npairs,
-				   const struct graph_report *rep, const char *source,
-				   int two_mode);
+				   const double *w, const struct graph_report *rep,
+				   const char *source, const char *shown, int two_mode);
 
-/* graph_assemble() or graph_assemble_sided() as o asks (o borrowed). */
+/* graph_assemble() or graph_assemble_sided() as o asks (o borrowed), then
+ * the weights w (NULL: none; one a pair, borrowed). NULL with error(). */
 static inline struct graph *graph_assemble_as(struct names *t, const uint32_t *pairs,
-					      uint64_t npairs, const struct graph_report *rep,
-					      const char *source, const struct graph_load_opts *o)
+					      uint64_t npairs, const double *w,
+					      const struct graph_report *rep, const char *source,
+					      const char *shown, const struct graph_load_opts *o)
 {
 	if (o && (o->directed || o->two_mode))
-		return graph_assemble_sided(t, pairs, npairs, rep, source, !o->directed);
-	return graph_assemble(t, pairs, npairs, rep, source);
+		return graph_assemble_sided(t, pairs, npairs, w, rep, source, shown, !o->directed);
+	struct graph *g = graph_assemble(t, pairs, npairs, rep, source);
+	if (g && w && graph_set_weights(g, pairs, w, npairs, shown)) {
+		graph_free(g);
+		return NULL;
+	}
+	return g;
 }
 
 /* names_intern() for node names: the table full is the error "too many

@@ -24,6 +24,10 @@
  * Counts said to the user are of the nodes and arcs as given
  * (graph_describe()), never of the copies.
  *
+ * Weights (fit --directed --weighted): each arc's weight goes with its
+ * translated pair to graph_set_weights(), so the records of one arc add
+ * up and u -> v and v -> u keep their own weights (two edges of B).
+ *
  * The one thing a newcomer gets wrong: a self-arc u -> u joins two
  * different nodes of the bipartite graph (u and n + u); it is dropped here
  * (counted as a self-loop), since the pair (F_u, H_u) is no term of the
@@ -85,8 +89,8 @@ static uint32_t side_ids(const uint32_t *pairs, uint64_t npairs, int col, uint32
 }
 
 struct graph *graph_assemble_sided(struct names *t, const uint32_t *pairs, uint64_t npairs,
-				   const struct graph_report *rep, const char *source,
-				   int two_mode)
+				   const double *w, const struct graph_report *rep,
+				   const char *source, const char *shown, int two_mode)
 {
 	uint32_t n0 = names_count(t);
 	struct graph *g = NULL;
@@ -96,8 +100,9 @@ struct graph *graph_assemble_sided(struct names *t, const uint32_t *pairs, uint6
 	uint32_t *map = util_calloc(2 * (size_t)n0 + 1, sizeof *map);
 	uint32_t *order = util_malloc(2 * (size_t)n0 + 1, sizeof *order);
 	uint32_t *bp = util_malloc(2 * npairs + 1, sizeof *bp);
+	double *bw = w ? util_malloc(npairs + 1, sizeof *bw) : NULL; /* the kept pairs' weights */
 	struct graph_report r = *rep;
-	if (!map || !order || !bp)
+	if (!map || !order || !bp || (w && !bw))
 		goto out;
 	uint32_t ns = side_ids(pairs, npairs, 0, n0, !two_mode, map, order);
 	uint32_t nr = side_ids(pairs, npairs, 1, n0, !two_mode, map + n0, order + ns);
@@ -121,10 +126,16 @@ struct graph *graph_assemble_sided(struct names *t, const uint32_t *pairs, uint6
 		}
 		bp[2 * np] = map[a] - 1;
 		bp[2 * np + 1] = ns + map[n0 + c] - 1;
+		if (bw)
+			bw[np] = w[i];
 		np++;
 	}
 	g = graph_assemble(b, bp, np, &r, source);
 	b = NULL;
+	if (g && bw && graph_set_weights(g, bp, bw, np, shown)) {
+		graph_free(g);
+		g = NULL;
+	}
 	if (g) {
 		g->report.edges_read = npairs;
 		g->report.self_loops += self;
@@ -134,7 +145,7 @@ struct graph *graph_assemble_sided(struct names *t, const uint32_t *pairs, uint6
 out:
 	names_free(b);
 	names_free(t);
-	UTIL_FREE_ALL(map, order, bp, buf);
+	UTIL_FREE_ALL(map, order, bp, bw, buf);
 	return g;
 }
 

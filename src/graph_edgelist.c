@@ -844,12 +844,9 @@ struct graph *graph_load_edges(const char *path, const char *shown,
 	gz = NULL;
 	st.rep.lines = lineno;
 
-	struct graph *g = graph_assemble_as(st.t, st.pairs.v, st.pairs.len, &st.rep, path, o);
+	struct graph *g = graph_assemble_as(st.t, st.pairs.v, st.pairs.len,
+					    st.weighted ? st.wv : NULL, &st.rep, path, shown, o);
 	st.t = NULL;
-	if (g && st.weighted && graph_set_weights(g, st.pairs.v, st.wv, st.pairs.len, shown)) {
-		graph_free(g);
-		g = NULL;
-	}
 	free(st.pairs.v);
 	free(st.wv);
 	if (g && g->report.skipped_lines)

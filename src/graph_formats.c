@@ -375,12 +375,8 @@ static struct graph *from_igraph(const igraph_t *ig, enum graph_format fmt, cons
 		if (!o->directed)
 			notice("%s: the graph is directed; it is read as undirected", shown);
 	}
-	g = graph_assemble_as(t, pairs, (uint64_t)ne, &rep, path, o);
+	g = graph_assemble_as(t, pairs, (uint64_t)ne, w, &rep, path, shown, o);
 	t = NULL;
-	if (g && w && graph_set_weights(g, pairs, w, (uint64_t)ne, shown)) {
-		graph_free(g);
-		g = NULL;
-	}
 out:
 	igraph_vector_int_destroy(&el);
 	free(pairs);

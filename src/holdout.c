@@ -265,7 +265,7 @@ static double row_dot(const struct fcsr *F, uint32_t u, uint32_t v)
 
 double holdout_pair_loglik(enum model_kind kind, double x, double qeps, double w)
 {
-	if (kind == MODEL_POISSON)
+	if (model_kind_weighted(kind))
 		return w > 0.0 ? w * log(x + qeps) - lgamma(w + 1.0) - (x + qeps) : -(x + qeps);
 	return w > 0.0 ? model_log1mexp(x + qeps) : -(x + qeps);
 }

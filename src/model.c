@@ -919,6 +919,8 @@ const char *model_kind_name(enum model_kind kind)
 	case MODEL_POISSON: return "poisson";
 	case MODEL_DIRECTED: return "directed";
 	case MODEL_TWO_MODE: return "two-mode";
+	case MODEL_DIRECTED_POISSON: return "directed-poisson";
+	case MODEL_TWO_MODE_POISSON: return "two-mode-poisson";
 	default: return "unknown";
 	}
 }
@@ -930,6 +932,8 @@ const struct objective_ops *model_objective_of(enum model_kind kind)
 	case MODEL_POISSON: return model_poisson_objective();
 	case MODEL_DIRECTED:
 	case MODEL_TWO_MODE: return &sided_ops;
+	case MODEL_DIRECTED_POISSON:
+	case MODEL_TWO_MODE_POISSON: return model_poisson_sided_objective();
 	default: return NULL;
 	}
 }

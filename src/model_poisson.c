@@ -31,6 +31,17 @@
  * nothing beyond it is scored from x_v + a d_v (d_v = dir . F_v) without
  * reading the neighbour rows again.
  *
+ * Two-sided (directed and two-mode graphs, model.nsend > 0; the graph B
+ * of graph_directed.c, arc u -> v the edge u -- nsend + v): the weight of
+ * an arc is Poisson with mean F_u . H_v + q and every (sending,
+ * receiving) pair pays F_u . H_v + q. A sending row's terms are then
+ *     f_u(r) = sum_{v in out(u)} w_uv log(r . H_v + q) - r . (S_H - X_u)
+ * with S_H the receiving rows' column sums (model_other_colsum()): u's own
+ * row is not on that side, so no "- F_u", and a directed node's own pair
+ * (F_u, H_u) is a held-out partner in X_u (fit.c's self pairs in
+ * model.excl). Symmetrically for a receiving row with S_F. Two rows of a
+ * block share a term only across sides (OBJECTIVE_COUPLING_SIDES).
+ *
  * The one thing a newcomer gets wrong: edge terms w log(x + q) can be
  * positive (x + q > 1), so the early exit of BigCLAM's trials (every edge
  * term is negative) does not carry over: every trial sums every term.
@@ -157,6 +168,16 @@ static int grow(struct poisson_work *w, uint32_t deg)
 	return 0;
 }
 
+/* The linear term's sum for community c of u's row: S - F_u - X_u, or
+ * for a two-sided model the other side's S - X_u (oc from
+ * model_other_colsum(); cur = F_uc, excl = X_uc). One-mode keeps the
+ * order of the subtractions (its bits). */
+static inline double others(const struct model *m, const double *oc, uint32_t c, double cur,
+			    double excl)
+{
+	return m->nsend ? oc[c] - excl : oc[c] - cur - excl;
+}
+
 /* After gather(): the gradient into acc, the "others" S - F_u - X_u into
  * oth, the free direction, x_v + q into xv (when room), gmax; returns
  * f_u at the current row. */
@@ -164,6 +185,7 @@ static double gradient(const struct model *m, const struct graph *g, uint32_t u,
 		       struct poisson_work *w, int keep)
 {
 	double f = 0.0, q = m->qeps;
+	const double *oc = model_other_colsum(m, u);
 	for (uint64_t i = g->off[u]; i < g->off[u + 1]; i++) {
 		const struct frow *rv = &m->rows[g->adj[i]];
 		double x = dense_dot(w->cur, rv) + q;
@@ -180,7 +202,7 @@ static double gradient(const struct model *m, const struct graph *g, uint32_t u,
 	w->gmax = 0.0;
 	for (uint32_t i = 0; i < w->ncand; i++) {
 		uint32_t c = w->cand[i];
-		double oth = m->colsum[c] - w->cur[c] - w->oth[c];
+		double oth = others(m, oc, c, w->cur[c], w->oth[c]);
 		w->oth[c] = oth;
 		w->acc[c] -= oth;
 		f -= w->cur[c] * oth;
@@ -349,7 +371,8 @@ static double pw_part_combine(const struct model *m, const struct graph *g, cons
 	if (pair_dot < 0.0)
 		pair_dot = 0.0; /* rounding only */
 	double n = g->n;
-	double pairs = 0.5 * n * (n - 1.0) - (m->excl ? (double)m->excl->m : 0.0);
+	double all = m->nsend ? (double)m->nsend * (n - m->nsend) : 0.5 * n * (n - 1.0);
+	double pairs = all - (m->excl ? (double)m->excl->m : 0.0);
 	return t[EDGE_LOG] - t[EDGE_LGAMMA] - pair_dot - m->qeps * pairs;
 }
 
@@ -370,11 +393,12 @@ static double pw_row_objective(const struct model *m, const struct graph *g, uin
 	for (uint32_t i = 0; i < nnz; i++)
 		w->trial[r[i].c] = r[i].v;
 	double f = 0.0;
+	const double *oc = model_other_colsum(m, u);
 	for (uint64_t i = g->off[u]; i < g->off[u + 1]; i++)
 		f += graph_weight(g, i) * log(dense_dot(w->trial, &m->rows[g->adj[i]]) + m->qeps);
 	for (uint32_t i = 0; i < w->ncand; i++) {
 		uint32_t c = w->cand[i];
-		f -= w->trial[c] * (m->colsum[c] - w->cur[c] - w->oth[c]);
+		f -= w->trial[c] * others(m, oc, c, w->cur[c], w->oth[c]);
 		w->trial[c] = 0.0;
 	}
 	return f;
@@ -386,8 +410,9 @@ static void pw_row_gradient(const struct model *m, const struct graph *g, uint32
 	struct poisson_work *w = vw;
 	gather(m, g, u, w);
 	gradient(m, g, u, w, 0);
+	const double *oc = model_other_colsum(m, u);
 	for (uint32_t c = 0; c < m->k; c++)
-		grad[c] = -m->colsum[c]; /* outside the candidates F_u and X_u are 0 there */
+		grad[c] = -oc[c]; /* outside the candidates F_u and X_u are 0 there */
 	for (uint32_t i = 0; i < w->ncand; i++)
 		grad[w->cand[i]] = w->acc[w->cand[i]];
 }
@@ -395,7 +420,18 @@ static void pw_row_gradient(const struct model *m, const struct graph *g, uint32
 static const struct objective_ops poisson_ops =
 	OBJECTIVE_OPS_INIT("poisson", pw_, struct poisson_llpart, 1);
 
+/* The two-sided form: the same functions (they read model.nsend); only
+ * the coupling of a block's rows differs. */
+static const struct objective_ops poisson_sided_ops =
+	OBJECTIVE_OPS_INIT("directed-poisson", pw_, struct poisson_llpart,
+			   OBJECTIVE_COUPLING_SIDES);
+
 const struct objective_ops *model_poisson_objective(void)
 {
 	return &poisson_ops;
+}
+
+const struct objective_ops *model_poisson_sided_objective(void)
+{
+	return &poisson_sided_ops;
 }

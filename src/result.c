@@ -36,6 +36,7 @@
 #include "coterie/holdout.h"
 #include "coterie/model.h"
 #include "coterie/result_commit.h"
+#include "coterie/result_weight.h"
 #include "coterie/select.h"
 #include "coterie/stability.h"
 #include "coterie/util.h"
@@ -141,6 +142,8 @@ struct tsv_args {
 	const struct graph *g;
 	const struct result_model *m;
 	const struct stability *st; /* NULL: not scored */
+	double *wobs, *wexp; /* a weighted graph's weight figures by community
+				(result_weight.h), else NULL */
 };
 
 struct ranked {
@@ -191,7 +194,10 @@ static int fill_communities(struct atomicfile *w, const void *arg)
 	const struct agm *agm = a->m->agm;
 	/* stability last, so readers of the first eight columns go on working */
 	atomicfile_str(w, "community\tsize\tinternal_edges\tdensity\tconductance\tp\tvolume\tcut"
-		       "\tstability\n");
+		       "\tstability");
+	/* a weighted fit's two weight columns after it (an unweighted file
+	 * keeps its bytes) */
+	atomicfile_str(w, a->wobs ? "\tweight_inside\texpected_weight_inside\n" : "\n");
 	const double *score = a->st && a->st->k == agm->cover.k ? a->st->score : NULL;
 	for (uint32_t i = 0; i < agm->cover.k && !atomicfile_failed(w); i++) {
 		const struct agm_community *c = &agm->comms[i];
@@ -199,9 +205,32 @@ static int fill_communities(struct atomicfile *w, const void *arg)
 			  "\t%" PRIu64 "\t", c->id, c->size, c->internal_edges, c->density,
 			  c->conductance, c->p, c->volume, c->cut);
 		if (score && !isnan(score[i]))
-			atomicfile_printf(w, "%.4f\n", score[i]);
+			atomicfile_printf(w, "%.4f", score[i]);
 		else
-			atomicfile_str(w, "NA\n");
+			atomicfile_str(w, "NA");
+		if (a->wobs)
+			atomicfile_printf(w, "\t%.9g\t%.9g", a->wobs[i], a->wexp[i]);
+		atomicfile_str(w, "\n");
+	}
+	return 0;
+}
+
+/* The weight figures of a weighted one-mode fit into ta (NULL arrays
+ * otherwise). Returns 0 or -1. */
+static int weight_figures(const struct graph *g, const struct result_model *m,
+			  struct tsv_args *ta)
+{
+	if (!g->wt || g->nsend)
+		return 0;
+	const struct cover *cv = &m->agm->cover;
+	ta->wobs = util_malloc(2 * (size_t)cv->k + 1, sizeof *ta->wobs);
+	if (!ta->wobs)
+		return -1;
+	ta->wexp = ta->wobs + cv->k;
+	if (result_weight_figures(g, m->F, cv, model_qeps(m->epsilon), ta->wobs, ta->wexp)) {
+		free(ta->wobs);
+		ta->wobs = ta->wexp = NULL;
+		return -1;
 	}
 	return 0;
 }
@@ -338,7 +367,7 @@ static int check_agm(const struct graph *g, const struct result_model *s)
 int result_stage(struct result_commit *c, const struct graph *g, const struct fit_params *p,
 		 const struct result_model *m, const struct result_meta *meta)
 {
-	struct tsv_args ta = { g, m, meta ? meta->stability : NULL };
+	struct tsv_args ta = { g, m, meta ? meta->stability : NULL, NULL, NULL };
 	if (check_agm(g, m))
 		return -1;
 	if (meta && meta->selection &&
@@ -347,9 +376,13 @@ int result_stage(struct result_commit *c, const struct graph *g, const struct fi
 	if (checkpoint_stage(c, RESULT_CHECKPOINT, g, p, m))
 		return -1;
 	if (g->nsend ? result_directed_stage(c, g, m, ta.st)
-		     : result_commit_stage(c, "memberships.tsv", fill_memberships, &ta) ||
-			       result_commit_stage(c, "communities.tsv", fill_communities, &ta))
+		     : weight_figures(g, m, &ta) ||
+			       result_commit_stage(c, "memberships.tsv", fill_memberships, &ta) ||
+			       result_commit_stage(c, "communities.tsv", fill_communities, &ta)) {
+		free(ta.wobs);
 		return -1;
+	}
+	free(ta.wobs);
 	if (
 	    result_commit_stage(c, "trace.tsv", fill_trace, &ta))
 		return -1;

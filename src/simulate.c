@@ -97,10 +97,8 @@ int simulate_params_check(const struct simulate_params *p)
 	if (p->second && (p->second > SIMULATE_MAX_NODES - p->n))
 		return error("%u nodes of the first kind and %u of the second are more than %u",
 			     p->n, p->second, SIMULATE_MAX_NODES);
-	if (p->directed && p->weighted)
-		return error("a directed planted graph cannot have weights yet");
-	if (p->second && (p->directed || p->weighted))
-		return error("a two-mode planted graph cannot be directed or weighted");
+	if (p->second && p->directed)
+		return error("a two-mode planted graph cannot be directed");
 	uint32_t all = p->n + p->second; /* both kinds */
 	if (p->size_min < 2 || p->size_min > p->size_max)
 		return error("community sizes must satisfy 2 <= min <= max, not %u:%u", p->size_min,

@@ -17,6 +17,10 @@
  * Each edge draws from its own stream (S_WEIGHT, edge index), so the
  * weights do not depend on the thread count, nor the edges on the weights.
  * A rate is capped at SIM_RATE_MAX (p_c = 1 would make it infinite).
+ * Directed: the arcs of the second draw (s->back) follow the edges, with
+ * streams m, m + 1, ...: an arc's rate is its pair's (both directions
+ * share the communities), as F_u . H_v + qeps with F = H planted.
+ * Two-mode: the same rate over a pair of two kinds.
  */
 #include "simulate-internal.h"
 
@@ -63,7 +67,8 @@ int simulate_draw_weights(const struct simulate_params *p, struct simulate *s)
 	uint64_t *noff = NULL;
 	uint32_t *ncom = NULL;
 	double *rate = util_malloc(s->k ? s->k : 1, sizeof *rate);
-	s->weights = util_malloc(s->m ? s->m : 1, sizeof *s->weights);
+	uint64_t all = s->m + s->mback;
+	s->weights = util_malloc(all ? all : 1, sizeof *s->weights);
 	if (!rate || !s->weights || simulate_node_lists(&s->truth, &noff, &ncom)) {
 		UTIL_FREE_ALL(rate, noff, ncom);
 		return -1;
@@ -71,8 +76,9 @@ int simulate_draw_weights(const struct simulate_params *p, struct simulate *s)
 	for (uint32_t c = 0; c < s->k; c++)
 		rate[c] = s->p[c] < 1.0 ? -log1p(-s->p[c]) : SIM_RATE_MAX;
 	double qeps = model_qeps(s->epsilon);
-	for (uint64_t i = 0; i < s->m; i++) {
-		uint32_t u = (uint32_t)(s->edges[i] >> 32), v = (uint32_t)(s->edges[i] & 0xffffffffu);
+	for (uint64_t i = 0; i < all; i++) {
+		uint64_t key = i < s->m ? s->edges[i] : s->back[i - s->m];
+		uint32_t u = (uint32_t)(key >> 32), v = (uint32_t)(key & 0xffffffffu);
 		uint32_t set[SIMULATE_MAX_MEMBERSHIPS];
 		uint32_t ns = simulate_shared(noff, ncom, u, v, set);
 		double L = qeps;

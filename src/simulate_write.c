@@ -135,6 +135,11 @@ static int fill_edges(struct atomicfile *w, const void *arg)
 		q = put_name(q, a->prefix, a->plen, (uint32_t)(s->back[i] & 0xffffffffu));
 		*q++ = '\t';
 		q = put_name(q, a->prefix, a->plen, (uint32_t)(s->back[i] >> 32));
+		if (s->weights) {
+			atomicfile_advance(w, (size_t)(q - q0));
+			atomicfile_printf(w, "\t%.0f\n", s->weights[s->m + i]);
+			continue;
+		}
 		*q++ = '\n';
 		atomicfile_advance(w, (size_t)(q - q0));
 	}
@@ -227,7 +232,7 @@ static int add_two_mode(json_t *root, const struct simulate *s)
 static int add_weights(json_t *root, const struct simulate *s)
 {
 	double total = 0.0;
-	for (uint64_t i = 0; i < s->m; i++)
+	for (uint64_t i = 0; i < s->m + s->mback; i++)
 		total += s->weights[i];
 	json_t *wj = json_pack("{s:s, s:f}", "law",
 			       "Poisson of the planted rate, above zero (Ball, Karrer & Newman, "

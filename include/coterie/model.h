@@ -219,14 +219,40 @@ enum model_kind {
 	MODEL_DIRECTED = 2, /* arcs: 1 - exp(-F_u . H_v), sending and receiving rows
 			       of one node set (model_directed.h) */
 	MODEL_TWO_MODE = 3, /* the same between two kinds of nodes */
+	MODEL_DIRECTED_POISSON = 4, /* arc weights: Poisson(F_u . H_v) (model_poisson.h) */
+	MODEL_TWO_MODE_POISSON = 5, /* the same between two kinds of nodes */
 	MODEL_KINDS
 };
-/* 1 for the two-sided kinds (directed, two-mode). */
+/* 1 for the two-sided kinds (directed, two-mode; weighted or not). */
 static inline int model_kind_sided(enum model_kind kind)
 {
-	return kind == MODEL_DIRECTED || kind == MODEL_TWO_MODE;
+	return kind == MODEL_DIRECTED || kind == MODEL_TWO_MODE ||
+	       kind == MODEL_DIRECTED_POISSON || kind == MODEL_TWO_MODE_POISSON;
 }
-/* "bigclam", "poisson", "directed", "two-mode" (static); "unknown" out of range. */
+/* 1 for the kinds whose pairs carry a Poisson weight (model_poisson.h). */
+static inline int model_kind_weighted(enum model_kind kind)
+{
+	return kind == MODEL_POISSON || kind == MODEL_DIRECTED_POISSON ||
+	       kind == MODEL_TWO_MODE_POISSON;
+}
+/* 1 for the directed kinds (a node's two rows are a pair: graph.paired). */
+static inline int model_kind_directed(enum model_kind kind)
+{
+	return kind == MODEL_DIRECTED || kind == MODEL_DIRECTED_POISSON;
+}
+/* The weighted form of kind (bigclam -> poisson, directed -> directed-poisson,
+ * two-mode -> two-mode-poisson; a weighted kind is its own). */
+static inline enum model_kind model_kind_with_weights(enum model_kind kind)
+{
+	switch (kind) {
+	case MODEL_BIGCLAM: return MODEL_POISSON;
+	case MODEL_DIRECTED: return MODEL_DIRECTED_POISSON;
+	case MODEL_TWO_MODE: return MODEL_TWO_MODE_POISSON;
+	default: return kind;
+	}
+}
+/* "bigclam", "poisson", "directed", "two-mode", "directed-poisson",
+ * "two-mode-poisson" (static); "unknown" out of range. */
 const char *model_kind_name(enum model_kind kind);
 /* The objective of a kind (static), or NULL out of range. */
 const struct objective_ops *model_objective_of(enum model_kind kind);

@@ -9,7 +9,9 @@
  * weights have a value and l(F) <= 0):
  *     l(F) = sum_{uv in E} [w_uv log(x_uv + qeps) - lgamma(w_uv + 1)]
  *            - sum_{u < v} (x_uv + qeps),        x_uv = F_u . F_v,
- * held-out pairs (model.excl) in neither sum. The weights are the graph's
+ * held-out pairs (model.excl) in neither sum. On a two-sided model
+ * (model.nsend > 0; directed and two-mode graphs) x_uv = F_u . H_v and the
+ * pairs are the (sending, receiving) ones. The weights are the graph's
  * (graph_weight(): 1 in an unweighted graph, where this is the Poisson
  * reading of a simple graph). The derivation of the row update is at the
  * top of src/model_poisson.c.
@@ -33,5 +35,14 @@ double model_poisson_loglik(const struct model *m, const struct graph *g);
  * coupled through -F_u . F_v (coupling 1), gains exact. Static; never
  * NULL. */
 const struct objective_ops *model_poisson_objective(void);
+
+/* The same likelihood on a two-sided model (model_directed.h; the
+ * derivation at the top of src/model_poisson.c): the weight of the arc
+ * u -> v is Poisson with mean F_u . H_v + qeps, every (sending,
+ * receiving) pair pays F_u . H_v + qeps, rows read the other side's
+ * column sums, and a block's rows couple only across sides
+ * (OBJECTIVE_COUPLING_SIDES). model_poisson_loglik() is its
+ * log-likelihood too (it reads model.nsend). Static; never NULL. */
+const struct objective_ops *model_poisson_sided_objective(void);
 
 #endif

@@ -111,8 +111,9 @@ struct simulate {
 				   * (1 without a mean degree target) */
 	uint64_t m;               /* edges */
 	uint64_t *edges;          /* m keys, see above; owned */
-	double *weights;          /* NULL, or (weighted) m weights, whole numbers >= 1,
-				   * of edges[i]; owned */
+	double *weights;          /* NULL, or (weighted) m + mback weights, whole
+				   * numbers >= 1, of edges[i] then (directed)
+				   * back[i - m]; owned */
 	uint64_t mback;           /* directed: the arcs v -> u of the second draw, */
 	uint64_t *back;           /* as keys (u << 32) | v, u < v (edges[] are u -> v); owned */
 	uint64_t drawn_communities; /* pairs drawn by the communities ... */

@@ -90,10 +90,9 @@ struct cli_fit_opts {
 	const char *out;           /* -o DIR; NULL: not given */
 	uint64_t skip_lines;       /* --skip-lines */
 	int no_header;             /* --no-header, or --skip-lines given */
-	int weighted;              /* --weighted or --weight-attr: p.model is MODEL_POISSON */
+	int weighted;              /* --weighted or --weight-attr: model_kind_weighted(p.model) */
 	const char *weight_attr;   /* --weight-attr NAME; NULL: "weight" */
-	int sided;                 /* --directed or --two-mode: p.model is MODEL_DIRECTED or
-				      MODEL_TWO_MODE */
+	int sided;                 /* --directed or --two-mode: model_kind_sided(p.model) */
 };
 
 /* The getopt_long() entries fit and explore share (the options handled by

@@ -189,16 +189,14 @@ int cli_fit_opts_take(struct cli_fit_opts *o, int c, const char *arg)
 	case CLI_OPT_WEIGHTED:
 		if (c == CLI_OPT_WEIGHT_ATTR) /* naming the attribute asks for the weights */
 			o->weight_attr = arg;
-		if (o->sided)
-			die(EXIT_USAGE, "--weighted is not yet available with --directed or --two-mode");
 		o->weighted = 1;
-		p->model = MODEL_POISSON;
+		p->model = model_kind_with_weights(p->model); /* Poisson, one- or two-sided */
 		return 1;
 	case CLI_OPT_DIRECTED:
 	case CLI_OPT_TWO_MODE: {
 		enum model_kind want = c == CLI_OPT_DIRECTED ? MODEL_DIRECTED : MODEL_TWO_MODE;
 		if (o->weighted)
-			die(EXIT_USAGE, "--weighted is not yet available with --directed or --two-mode");
+			want = model_kind_with_weights(want);
 		if (o->sided && p->model != want)
 			die(EXIT_USAGE, "--directed and --two-mode exclude each other");
 		o->sided = 1;
@@ -230,8 +228,9 @@ struct graph *cli_graph_load(const struct cli_fit_opts *o, const char *path)
 	struct graph_load_opts lo = { .fmt = o->fmt, .skip_lines = o->skip_lines,
 				      .no_header = o->no_header, .weighted = o->weighted,
 				      .weight_attr = o->weight_attr,
-				      .directed = o->p.model == MODEL_DIRECTED,
-				      .two_mode = o->p.model == MODEL_TWO_MODE };
+				      .directed = model_kind_directed(o->p.model),
+				      .two_mode = model_kind_sided(o->p.model) &&
+						  !model_kind_directed(o->p.model) };
 	return graph_load_with(path, &lo);
 }
 
@@ -249,12 +248,14 @@ void cli_fit_opts_resume(const struct cli_fit_opts *o, const struct fit_params *
 		    saved->k, o->p.k);
 	if (o->have_eps && o->p.epsilon != saved->epsilon)
 		die(EXIT_USAGE, "--epsilon cannot change %s", when);
-	if (o->weighted && saved->model != MODEL_POISSON)
+	if (o->weighted && !model_kind_weighted(saved->model))
 		die(EXIT_USAGE, "the saved fit is of the %s model; --weighted cannot change that %s",
 		    model_kind_name(saved->model), when);
-	if (o->sided && saved->model != o->p.model)
+	if (o->sided && (!model_kind_sided(saved->model) ||
+			 model_kind_directed(saved->model) != model_kind_directed(o->p.model)))
 		die(EXIT_USAGE, "the saved fit is of the %s model; --%s cannot change that %s",
-		    model_kind_name(saved->model), model_kind_name(o->p.model), when);
+		    model_kind_name(saved->model),
+		    model_kind_directed(o->p.model) ? "directed" : "two-mode", when);
 	if (o->have_seed && o->p.seed != saved->seed)
 		warning("--seed is ignored %s; the fit keeps seed %llu", when,
 			(unsigned long long)saved->seed);

@@ -54,6 +54,7 @@ static void simulate_usage(FILE *out)
 		"      --weighted          give each edge a weight: its count under the Poisson\n"
 		"                          model of the planted rates (Ball, Karrer & Newman\n"
 		"                          2011), given that it is above zero; a third column\n"
+		"                          (with --directed or --two-mode, of every arc or link)\n"
 		"      --directed          arcs: each direction of a pair drawn on its own with\n"
 		"                          the pair's probability (for fit --directed)\n"
 		"      --two-mode M        two kinds of node (for fit --two-mode): -n nodes of\n"

@@ -32,7 +32,11 @@
 # options for them; default --even-degrees, "" for none), BENCH_MIX_SWEEPS (their sweep
 # limit, default 500 as coterie fit), BENCH_KAUTO_SIZES (the graphs with
 # mixing 0.2 on which -k auto is timed beside one fit at the planted and
-# at the chosen k; full: "10000 100000 1000000", quick: "").
+# at the chosen k; full: "10000 100000 1000000", quick: ""),
+# BENCH_MODEL_SIZES (the nodes of the weighted and the directed planted
+# graphs whose time per sweep is set beside the undirected, unweighted fit
+# of the same lines; full: "1000000", quick: ""), BENCH_MODEL_SWEEPS (the
+# sweeps timed there, default 5).
 set -u
 
 here=$(cd "$(dirname "$0")" && pwd)
@@ -67,10 +71,13 @@ trap 'rm -rf "$work"' EXIT
 trap 'exit 130' INT TERM HUP
 
 case $mode in
-quick) sizes=10000 sets= repeat=1 mixsizes=10000 mixes=0.2 kautosizes= ;;
+quick) sizes=10000 sets= repeat=1 mixsizes=10000 mixes=0.2 kautosizes= modelsizes= ;;
 *) sizes="10000 100000 1000000" sets="email-Enron cond-mat-2005" repeat=3
-	mixsizes="10000 100000 1000000" mixes="0.1 0.2 0.3" kautosizes="10000 100000 1000000" ;;
+	mixsizes="10000 100000 1000000" mixes="0.1 0.2 0.3" kautosizes="10000 100000 1000000"
+	modelsizes=1000000 ;;
 esac
+modelsizes=${BENCH_MODEL_SIZES-$modelsizes}
+modelsweeps=${BENCH_MODEL_SWEEPS:-5}
 kautosizes=${BENCH_KAUTO_SIZES-$kautosizes}
 mixsizes=${BENCH_MIX_SIZES-$mixsizes}
 mixes=${BENCH_MIXES-$mixes}
@@ -271,6 +278,57 @@ for n in $kautosizes; do
 	rm -rf "$work/auto-$n" "$work/planted-$n" "$work/chosen-$n"
 done
 
+# Weighted and directed fits (issue 15): the time per sweep of fit
+# --weighted on a weighted planted graph, and of fit --directed and fit
+# --directed --weighted on a directed one (weighted too), each beside the
+# undirected, unweighted fit of the same file (a directed file read
+# undirected merges an arc and its reverse into one edge). The same k (the
+# planted count), one start, no reseeding, $modelsweeps sweeps past any
+# plateau, -j 2.
+modeltable=$work/modeltable.md
+: >"$modeltable"
+# modelfit LABEL GRAPH K NAME OPTIONS...: one timed fit into $work/LABEL-NAME
+modelfit() {
+	ml=$1 mg=$2 mk=$3 mn=$4
+	shift 4
+	echo "bench: $ml: fit $* -k $mk, $modelsweeps sweeps" >&2
+	"$tool" fit "$mg" -k "$mk" -j 2 --no-reseed --past-plateau --max-sweeps "$modelsweeps" "$@" \
+		>"$work/$ml-$mn" 2>"$work/$ml-$mn.err" ||
+		{ echo "bench: $ml: fit $* failed:" >&2; tail -n 3 "$work/$ml-$mn.err" >&2; }
+}
+# modelrow LABEL NAME WHAT: a row, the ratio to $work/LABEL-base
+modelrow() {
+	f=$work/$1-$2 b=$work/$1-base
+	printf '| %s | %s | %s | %s | %s | %s | %s | %s | %s |\n' "$1" "$3" "$(get "$f" model)" \
+		"$(get "$f" nodes)" "$(get "$f" edges)" "$(get "$f" sweep_s)" "$(get "$b" sweep_s)" \
+		"$(div "$(get "$f" sweep_s)" "$(get "$b" sweep_s)")" "$(get "$f" ns_per_visit)" >>"$modeltable"
+}
+for n in $modelsizes; do
+	for kind in weighted directed; do
+		label=$kind-$n
+		d=$cache/$label
+		if [ ! -s "$d/edges.tsv" ] || [ ! -s "$d/simulate.json" ]; then
+			echo "bench: $label: coterie simulate" >&2
+			deg=20 dir=
+			[ "$kind" = directed ] && deg=10 dir=--directed # as many lines as undirected 20
+			"$BIN" simulate -n "$n" --sizes 20:2000 --size-exponent 2 --overlap 0.1 \
+				--mean-degree "$deg" --mixing 0.2 --even-degrees --weighted $dir --seed 1 \
+				-j 2 -q --force -o "$d" || { echo "bench: cannot write $d" >&2; continue; }
+		fi
+		k=$(jget "$d/simulate.json" realised communities)
+		modelfit "$label" "$d/edges.tsv" "$k" base
+		if [ "$kind" = weighted ]; then
+			modelfit "$label" "$d/edges.tsv" "$k" w --weighted
+			modelrow "$label" w "--weighted"
+		else
+			modelfit "$label" "$d/edges.tsv" "$k" d --directed
+			modelfit "$label" "$d/edges.tsv" "$k" dw --directed --weighted
+			modelrow "$label" d "--directed"
+			modelrow "$label" dw "--directed --weighted"
+		fi
+	done
+done
+
 {
 	echo "# coterie benchmark ($mode)"
 	echo
@@ -300,6 +358,16 @@ done
 		echo "| graph | planted k | chosen k | k tried | -k auto s | planted k s | chosen k s | wall ratio | CPU ratio | ONMI planted k | ONMI -k auto |"
 		echo "|---|---|---|---|---|---|---|---|---|---|---|"
 		cat "$autotable"
+	fi
+	if [ -s "$modeltable" ]; then
+		echo
+		echo "## Weighted and directed fits beside the undirected, unweighted fit of the same lines"
+		echo
+		echo "- coterie simulate -n N --sizes 20:2000 --size-exponent 2 --overlap 0.1 --mean-degree D --mixing 0.2 --even-degrees --weighted [--directed] --seed 1 (D 20, directed 10: as many lines); benchtool fit GRAPH -k K -j 2 --no-reseed --past-plateau --max-sweeps $modelsweeps [OPTIONS], K the planted count; edges: as the fit reads them (arcs for --directed; the undirected reading merges an arc and its reverse); s/sweep wall, ns/visit CPU of the fitting thread a neighbour visit"
+		echo
+		echo "| graph | fit | model | nodes | edges | s/sweep | undirected unweighted s/sweep | ratio | ns/visit |"
+		echo "|---|---|---|---|---|---|---|---|---|"
+		cat "$modeltable"
 	fi
 } | tee "$results"
 exit 0

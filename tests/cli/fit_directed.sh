@@ -69,8 +69,9 @@ check "... without a warning" [ ! -s "$tmp/err" ]
 "$BIN" fit "$tmp/tm.tsv" --directed -k 2 --refine -o "$tmp/x" -q 2>"$tmp/err"
 check "--refine --directed: exit 2" [ $? -eq 2 ]
 check "... saying why" grep -q "AGM" "$tmp/err"
-"$BIN" fit "$tmp/tm.tsv" --directed --weighted -k 2 -o "$tmp/x" -q 2>"$tmp/err"
-check "--directed --weighted: exit 2" [ $? -eq 2 ]
+"$BIN" fit "$tmp/tm.tsv" --directed --weighted --refine -k 2 -o "$tmp/x" -q 2>"$tmp/err"
+check "--refine --directed --weighted: exit 2 (--directed --weighted: fit_directed_weighted.sh)" \
+	[ $? -eq 2 ]
 "$BIN" fit "$tmp/tm.tsv" --directed --two-mode -k 2 -o "$tmp/x" -q 2>"$tmp/err"
 check "--directed --two-mode: exit 2" [ $? -eq 2 ]
 "$BIN" explore "$tmp/d" </dev/null 2>"$tmp/err"

@@ -30,6 +30,11 @@ check "weights that carry the communities: recovered better with --weighted (by 
 	"$PY" -c "import sys; sys.exit(0 if $pois >= $plain + 0.15 else 1)"
 check "run.json: parameters.model is poisson" \
 	[ "$(json_get "$tmp/pois/run.json" parameters.model)" = poisson ]
+check "communities.tsv: the weight columns after stability" \
+	[ "$(head -n 1 "$tmp/pois/communities.tsv" | cut -f9-11)" = \
+	  "$(printf 'stability\tweight_inside\texpected_weight_inside')" ]
+check "communities.tsv: no weight columns without --weighted" \
+	[ "$(head -n 1 "$tmp/plain/communities.tsv" | cut -f10)" = "" ]
 check "run.json: parameters.model is bigclam without --weighted" \
 	[ "$(json_get "$tmp/plain/run.json" parameters.model)" = bigclam ]
 

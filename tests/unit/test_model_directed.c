@@ -8,7 +8,9 @@
  * pair definition (model_directed_loglik_pairs(), O(n^2)); the sweep
  * engine's rule that a summed log-likelihood equals a recompute
  * (sweep.c) and identical bits for one and two threads (DEVELOPERS.md,
- * Determinism).
+ * Determinism). The weighted form (arc weights Poisson with mean
+ * F_u . H_v + qeps, model_poisson.h) by a second hand example, the same
+ * finite differences and a pair-by-pair Poisson sum.
  */
 #include "helpers.h"
 
@@ -22,22 +24,29 @@
 #include "coterie/graph.h"
 #include "coterie/model.h"
 #include "coterie/model_directed.h"
+#include "coterie/model_poisson.h"
 #include "coterie/objective.h"
 #include "coterie/result.h"
 #include "coterie/rng.h"
 #include "coterie/sweep.h"
 #include "coterie/util.h"
 
-static struct graph *load_text(const char *text, int two_mode)
+static struct graph *load_text_w(const char *text, int two_mode, int weighted)
 {
 	const char *dir = test_tmpdir();
 	const char *path = test_write_file(dir, "d.tsv", text);
-	struct graph_load_opts o = { .directed = !two_mode, .two_mode = two_mode };
+	struct graph_load_opts o = { .directed = !two_mode, .two_mode = two_mode,
+				     .weighted = weighted };
 	struct graph *g = graph_load_with(path, &o);
 	assert_non_null(g);
 	assert_graph_sane(g);
 	test_rmtree(dir);
 	return g;
+}
+
+static struct graph *load_text(const char *text, int two_mode)
+{
+	return load_text_w(text, two_mode, 0);
 }
 
 /* A model of g's rows, two-sided, with the self pairs held out (as fit.c
@@ -128,8 +137,9 @@ static void test_loglik_and_gradient_match_the_hand_example(void **state)
 }
 
 /* A random directed graph of n nodes: arcs inside blocks of 20 with
- * probability pin, else pout (the text of an edge list). */
-static char *random_arcs(uint32_t n, double pin, double pout, uint64_t seed)
+ * probability pin, else pout (the text of an edge list); with weighted a
+ * third column, whole weights 1 to 5 (heavier inside a block). */
+static char *random_arcs_w(uint32_t n, double pin, double pout, uint64_t seed, int weighted)
 {
 	struct rng r;
 	rng_init(&r, seed);
@@ -142,10 +152,20 @@ static char *random_arcs(uint32_t n, double pin, double pout, uint64_t seed)
 				continue;
 			if (len + 32 > cap)
 				assert_non_null(t = realloc(t, cap *= 2));
-			len += (size_t)snprintf(t + len, cap - len, "n%u\tn%u\n", u, v);
+			if (weighted)
+				len += (size_t)snprintf(t + len, cap - len, "n%u\tn%u\t%u\n", u, v,
+							1 + (u / 20 == v / 20 ? 2 : 0) +
+								(uint32_t)rng_below(&r, 3));
+			else
+				len += (size_t)snprintf(t + len, cap - len, "n%u\tn%u\n", u, v);
 		}
 	t[len] = '\0';
 	return t;
+}
+
+static char *random_arcs(uint32_t n, double pin, double pout, uint64_t seed)
+{
+	return random_arcs_w(n, pin, pout, seed, 0);
 }
 
 static void random_rows(struct model *m, uint64_t seed)
@@ -285,6 +305,222 @@ static void test_checkpoint_keeps_the_sides(void **state)
 	}
 }
 
+/* ---- arc weights: the Poisson model on the two-sided graph ---- */
+
+/* The Poisson log-likelihood pair by pair (O(n^2)): every (sending,
+ * receiving) row pair, not a directed node's own pair, not held out by
+ * other means; w the arc's weight or 0. */
+static double poisson_pairs(const struct model *m, const struct graph *g)
+{
+	double l = 0.0;
+	for (uint32_t u = 0; u < g->nsend; u++)
+		for (uint32_t v = g->nsend; v < g->n; v++) {
+			if (g->paired && v == g->nsend + u)
+				continue;
+			double x = model_dot(m->rows[u].e, m->rows[u].nnz, m->rows[v].e,
+					     m->rows[v].nnz) + m->qeps;
+			double w = 0.0;
+			for (uint64_t i = g->off[u]; i < g->off[u + 1]; i++)
+				if (g->adj[i] == v)
+					w = graph_weight(g, i);
+			l += (w > 0.0 ? w * log(x) - lgamma(w + 1.0) : 0.0) - x;
+		}
+	return l;
+}
+
+/*
+ * The hand example of the weighted directed model. Arcs a->b weight 2,
+ * b->c 1, c->a 3, d->a 1; k = 1, qeps = 0.1; F = (1, 0.5, 0, 0),
+ * H = (0, 1, 2, 0) as above, so x + q: ab 1.1, bc 1.1, ca 0.1, da 0.1, and
+ * the 8 non-arcs sum to 2.8 (every ordered pair u != v: 2.4 + 2.8 = 5.2).
+ *     l = 2 ln 1.1 - ln 2! + ln 1.1 + 3 ln 0.1 - ln 3! + ln 0.1 - 5.2
+ *       = 3 (0.09531018) + 4 (-2.30258509) - 0.69314718 - 1.79175947 - 5.2
+ *       = -16.60931648.
+ * Sending row a: out(a) = {b} (w 2), S_H = 3, H_a = 0 (its own pair):
+ *     g = 2 H_b / 1.1 - (3 - 0) = 1.81818182 - 3 = -1.18181818.
+ * Receiving row c: in(c) = {b} (w 1), S_F = 1.5, F_c = 0:
+ *     g = F_b / 1.1 - 1.5 = 0.45454545 - 1.5 = -1.04545455.
+ * Receiving row a: in(a) = {c, d}, both with F = 0; its own pair (F_a = 1)
+ * is out: g = 0 - (1.5 - 1) = -0.5.
+ */
+static void test_weighted_loglik_and_gradient_match_the_hand_example(void **state)
+{
+	(void)state;
+	struct graph *g = load_text_w("a\tb\t2\nb\tc\t1\nc\ta\t3\nd\ta\t1\n", 0, 1);
+	assert_non_null(g->wt);
+	struct model m;
+	struct graph *sp, *view;
+	sided_model(&m, g, 1, -expm1(-0.1), &sp, &view);
+	struct fentry one = { 0, 1.0 }, half = { 0, 0.5 }, two = { 0, 2.0 };
+	assert_int_equal(model_set_row(&m, 0, &one, 1), 0);  /* F_a */
+	assert_int_equal(model_set_row(&m, 1, &half, 1), 0); /* F_b */
+	assert_int_equal(model_set_row(&m, 5, &one, 1), 0);  /* H_b */
+	assert_int_equal(model_set_row(&m, 6, &two, 1), 0);  /* H_c */
+	assert_true(fabs(model_poisson_loglik(&m, g) - -16.60931648) < 1e-7);
+	assert_true(fabs(poisson_pairs(&m, g) - -16.60931648) < 1e-7);
+	const struct objective_ops *ops = model_objective_of(MODEL_DIRECTED_POISSON);
+	assert_int_equal(ops->coupling, OBJECTIVE_COUPLING_SIDES);
+	void *w = ops->work_new(&m);
+	double grad[1];
+	ops->row_gradient(&m, g, 0, w, grad);
+	assert_true(fabs(grad[0] - -1.18181818) < 1e-7);
+	ops->row_gradient(&m, g, 6, w, grad);
+	assert_true(fabs(grad[0] - -1.04545455) < 1e-7);
+	ops->row_gradient(&m, g, 4, w, grad);
+	assert_true(fabs(grad[0] - -0.5) < 1e-12);
+	ops->work_free(w);
+	model_release(&m);
+	graph_free(sp);
+	graph_free(view);
+	graph_free(g);
+}
+
+/* Central finite differences of the row objective (one-sided at 0) match
+ * the row gradient, and the row objective's change is l's, for directed
+ * and two-mode weighted graphs. */
+static void test_weighted_gradient_matches_finite_differences(void **state)
+{
+	(void)state;
+	for (int two_mode = 0; two_mode < 2; two_mode++) {
+		char *text = random_arcs_w(60, 0.3, 0.02, 3, 1);
+		struct graph *g = load_text_w(text, two_mode, 1);
+		free(text);
+		struct model m;
+		struct graph *sp, *view;
+		sided_model(&m, g, 4, 0.01, &sp, &view);
+		random_rows(&m, 4);
+		double l = model_poisson_loglik(&m, g), lp = poisson_pairs(&m, g);
+		assert_true(fabs(l - lp) <= 1e-10 * fabs(lp));
+		const struct objective_ops *ops =
+			model_objective_of(two_mode ? MODEL_TWO_MODE_POISSON : MODEL_DIRECTED_POISSON);
+		void *w = ops->work_new(&m);
+		double grad[4], h = 1e-6;
+		int checked = 0;
+		for (uint32_t u = 0; u < g->n; u += 7) {
+			ops->row_gradient(&m, g, u, w, grad);
+			struct fentry row[4];
+			for (uint32_t i = 0; i < 4; i++)
+				row[i] = (struct fentry){ i, 0.0 };
+			for (uint32_t i = 0; i < m.rows[u].nnz; i++)
+				row[m.rows[u].e[i].c].v = m.rows[u].e[i].v;
+			for (uint32_t c = 0; c < 4; c++) {
+				struct fentry lo[4], hi[4];
+				memcpy(lo, row, sizeof lo);
+				memcpy(hi, row, sizeof hi);
+				double cur = row[c].v, a = cur > h ? cur - h : cur;
+				lo[c].v = a;
+				hi[c].v = cur + h;
+				double fd = (ops->row_objective(&m, g, u, hi, 4, w) -
+					     ops->row_objective(&m, g, u, lo, 4, w)) / (cur + h - a);
+				assert_true(fabs(fd - grad[c]) <= 1e-4 * (1.0 + fabs(grad[c])));
+				checked++;
+			}
+			struct fentry bump[4];
+			for (uint32_t c = 0; c < 4; c++)
+				bump[c] = (struct fentry){ c, 0.3 + 0.1 * c };
+			double f0 = ops->row_objective(&m, g, u, m.rows[u].e, m.rows[u].nnz, w);
+			double f1 = ops->row_objective(&m, g, u, bump, 4, w);
+			struct fentry keep[4];
+			uint32_t kn = m.rows[u].nnz;
+			if (kn)
+				memcpy(keep, m.rows[u].e, kn * sizeof *keep);
+			double l0 = poisson_pairs(&m, g);
+			assert_int_equal(model_set_row(&m, u, bump, 4), 0);
+			double l1 = poisson_pairs(&m, g);
+			assert_int_equal(model_set_row(&m, u, keep, kn), 0);
+			assert_true(fabs((f1 - f0) - (l1 - l0)) <= 1e-9 * (1.0 + fabs(l0)));
+		}
+		assert_true(checked >= 60);
+		ops->work_free(w);
+		model_release(&m);
+		graph_free(sp);
+		graph_free(view);
+		graph_free(g);
+	}
+}
+
+static double weighted_sweeps(const struct graph *g, unsigned threads, struct fcsr *out)
+{
+	struct model m;
+	struct graph *sp, *view;
+	struct seed_report rep;
+	sided_model(&m, g, 20, 0.002, &sp, &view);
+	assert_int_equal(model_directed_seed(g, view, &m, 5, 0, &rep), 0);
+	double ll = test_sweeps_sum_exactly(&m, g, model_objective_of(MODEL_DIRECTED_POISSON),
+					    threads, poisson_pairs, 1e-10, out);
+	graph_free(sp);
+	graph_free(view);
+	return ll;
+}
+
+static void test_weighted_sweeps_sum_to_a_recompute_with_the_same_bits(void **state)
+{
+	(void)state;
+	char *text = random_arcs_w(400, 0.25, 0.003, 9, 1);
+	struct graph *g = load_text_w(text, 0, 1);
+	free(text);
+	struct fcsr a, b;
+	double la = weighted_sweeps(g, 1, &a), lb = weighted_sweeps(g, 2, &b);
+	assert_memory_equal(&la, &lb, sizeof la);
+	assert_int_equal(a.off[a.n], b.off[b.n]);
+	assert_memory_equal(a.e, b.e, a.off[a.n] * sizeof *a.e);
+	fcsr_release(&a);
+	fcsr_release(&b);
+	graph_free(g);
+}
+
+/* Arc weights go with their arcs into the two-sided graph: records of one
+ * arc add up, the two directions of a pair keep their own, a self-arc's
+ * weight goes with it. */
+static void test_arc_weights_follow_their_arcs(void **state)
+{
+	(void)state;
+	struct graph *g = load_text_w("a\tb\t2\nb\ta\t5\na\tb\t1.5\na\ta\t7\n", 0, 1);
+	assert_int_equal(g->m, 2);
+	assert_true(graph_total_weight(g) == 8.5);
+	for (uint64_t i = g->off[0]; i < g->off[1]; i++) /* a's sending copy: a -> b */
+		assert_true(g->wt[i] == 3.5);
+	for (uint64_t i = g->off[1]; i < g->off[2]; i++) /* b -> a */
+		assert_true(g->wt[i] == 5.0);
+	graph_free(g);
+}
+
+/* The checkpoint of a weighted two-sided fit keeps the model, the sides
+ * and the weights. */
+static void test_checkpoint_keeps_the_sides_and_the_weights(void **state)
+{
+	(void)state;
+	for (int two_mode = 0; two_mode < 2; two_mode++) {
+		char *text = random_arcs_w(60, 0.3, 0.02, 5, 1);
+		struct graph *g = load_text_w(text, two_mode, 1);
+		free(text);
+		struct fit_params p;
+		fit_params_default(&p);
+		p.k = 3;
+		p.model = two_mode ? MODEL_TWO_MODE_POISSON : MODEL_DIRECTED_POISSON;
+		p.starts = 1;
+		p.epsilon = 0.01;
+		struct snapshot *s = test_fit_to_end(g, &p, NULL, NULL);
+		struct result_model rm;
+		result_model_of(&rm, s);
+		const char *dir = test_tmpdir();
+		char path[4096];
+		snprintf(path, sizeof path, "%s/ck.cot", dir);
+		assert_int_equal(checkpoint_write(path, g, &p, &rm), 0);
+		struct checkpoint ck;
+		assert_int_equal(checkpoint_read(path, &ck), 0);
+		assert_int_equal(ck.params.model, p.model);
+		assert_int_equal(ck.graph->nsend, g->nsend);
+		assert_int_equal(ck.graph->paired, !two_mode);
+		assert_non_null(ck.graph->wt);
+		assert_memory_equal(ck.graph->wt, g->wt, g->off[g->n] * sizeof *g->wt);
+		checkpoint_release(&ck);
+		snapshot_release(s);
+		test_rmtree(dir);
+		graph_free(g);
+	}
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -294,6 +530,11 @@ int main(void)
 		cmocka_unit_test(test_gradient_matches_finite_differences),
 		cmocka_unit_test(test_sweeps_sum_to_a_recompute_with_the_same_bits_for_any_thread_count),
 		cmocka_unit_test(test_checkpoint_keeps_the_sides),
+		cmocka_unit_test(test_weighted_loglik_and_gradient_match_the_hand_example),
+		cmocka_unit_test(test_weighted_gradient_matches_finite_differences),
+		cmocka_unit_test(test_weighted_sweeps_sum_to_a_recompute_with_the_same_bits),
+		cmocka_unit_test(test_arc_weights_follow_their_arcs),
+		cmocka_unit_test(test_checkpoint_keeps_the_sides_and_the_weights),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }

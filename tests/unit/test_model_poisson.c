@@ -17,12 +17,15 @@
 #include <string.h>
 
 #include "coterie/checkpoint.h"
+#include "coterie/cover.h"
+#include "coterie/fcsr.h"
 #include "coterie/fit.h"
 #include "coterie/graph.h"
 #include "coterie/model.h"
 #include "coterie/model_poisson.h"
 #include "coterie/objective.h"
 #include "coterie/result.h"
+#include "coterie/result_weight.h"
 #include "coterie/rng.h"
 #include "coterie/seed.h"
 #include "coterie/sweep.h"
@@ -344,11 +347,39 @@ static void test_checkpoint_keeps_the_model_and_the_weights(void **state)
 	graph_free(g);
 }
 
+/* communities.tsv's weight figures (result_weight.h) on the hand example:
+ * community 0 = {a, b, c}, community 1 = {c, d} (c in both).
+ *   0: pairs ab, ac, bc: x = 1, 0, 0.5, so expected 1.5 + 3 (0.1) = 1.8;
+ *      by the formula R = (2, 1.5), |R|^2 = 6.25, sum |F_u|^2 = 1 + 1.25 + 1
+ *      = 3.25, (6.25 - 3.25) / 2 = 1.5; observed weights 2 + 1 + 1 = 4.
+ *   1: pair cd: x = 2, expected 2.1; observed 3. */
+static void test_weight_figures_match_the_hand_example(void **state)
+{
+	(void)state;
+	struct graph *g = hand_graph();
+	struct model m;
+	hand_model(&m);
+	struct fcsr F;
+	assert_int_equal(model_export(&m, &F), 0);
+	uint64_t off[] = { 0, 3, 5 };
+	uint32_t mem[] = { 0, 1, 2, 2, 3 };
+	struct cover cv = { .n = 4, .k = 2, .off = off, .mem = mem };
+	double obs[2], exp_w[2];
+	assert_int_equal(result_weight_figures(g, &F, &cv, 0.1, obs, exp_w), 0);
+	assert_true(obs[0] == 4.0 && obs[1] == 3.0);
+	assert_true(fabs(exp_w[0] - 1.8) < 1e-12);
+	assert_true(fabs(exp_w[1] - 2.1) < 1e-12);
+	fcsr_release(&F);
+	model_release(&m);
+	graph_free(g);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_weights_of_an_edge_list_add_up_in_both_rows),
 		cmocka_unit_test(test_loglik_matches_the_hand_example),
+		cmocka_unit_test(test_weight_figures_match_the_hand_example),
 		cmocka_unit_test(test_gradient_matches_finite_differences),
 		cmocka_unit_test(test_sweeps_sum_to_a_recompute_with_the_same_bits_for_any_thread_count),
 		cmocka_unit_test(test_bad_weights_are_refused_with_the_line),
