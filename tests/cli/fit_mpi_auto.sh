@@ -14,22 +14,6 @@
 football=$DATA/football/edges.tsv
 need_file "$football"
 
-# same_choice A B WHAT: the two folders chose k alike and fitted alike.
-same_choice()
-{
-	# column 5 is the wall time of the fits, the one figure that differs
-	cut -f1-4,6- "$1/k-selection.tsv" >"$tmp/s1"
-	cut -f1-4,6- "$2/k-selection.tsv" >"$tmp/s2"
-	check "$3: k-selection.tsv identical but for its seconds" cmp -s "$tmp/s1" "$tmp/s2"
-	k1=$(json_get "$1/run.json" k_selection.chosen 2>/dev/null)
-	k2=$(json_get "$2/run.json" k_selection.chosen 2>/dev/null)
-	check "$3: run.json's chosen k ($k1, $k2)" [ -n "$k1" ] && [ "$k1" = "$k2" ]
-	f1=$(json_get "$2/run.json" parameters.k 2>/dev/null)
-	check "$3: the final fit is at the chosen k ($f1)" [ "$f1" = "$k1" ]
-	check "$3: memberships.tsv byte-identical" cmp -s "$1/memberships.tsv" "$2/memberships.tsv"
-	check "$3: communities.tsv byte-identical" cmp -s "$1/communities.tsv" "$2/communities.tsv"
-}
-
 # --- the grid with folds (football: 613 edges, 10 folds) -------------------------
 A="-k auto --seed 3"
 # shellcheck disable=SC2086
