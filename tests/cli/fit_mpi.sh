@@ -4,7 +4,7 @@
 # communities.tsv and the trace's log-likelihoods byte for byte, for any
 # number of processes and threads (DEVELOPERS.md "Determinism"); a resume
 # on another process count ends as the uninterrupted fit; an interrupt to
-# rank 0 or to mpirun ends every process with the folder saved.
+# rank 0, to rank 1 or to mpirun ends every process with the folder saved.
 # Skipped (a "# SKIP" line) when coterie-mpi was not built or mpirun
 # cannot start it.
 . "$(dirname "$0")/lib"
@@ -48,7 +48,7 @@ check "coterie-mpi show: refused with exit 2 (fit is its one command)" [ $? -eq 
 
 # --- interrupts and resume --------------------------------------------------------
 # interrupt_run NAME TARGET SIGNAL GRAPH OPTIONS: a fit on 2 processes,
-# sent SIGNAL at rank 0 or at mpirun once progress shows; leaves mpirun's
+# sent SIGNAL at rank0, rank1 or mpirun once progress shows; leaves mpirun's
 # status in $st. (mpirun itself is run in the background, so that $! is
 # its pid; a background job of sh ignores SIGINT, rank 0 does not.)
 interrupt_run()
@@ -62,8 +62,9 @@ interrupt_run()
 		stop_job "$mp"
 		return
 	fi
-	if [ "$2" = rank0 ]; then
-		target=$(rank_pid "$mp" 0) || { fail "$1: rank 0 found"; stop_job "$mp"; return; }
+	if [ "$2" = rank0 ] || [ "$2" = rank1 ]; then
+		n=${2#rank}
+		target=$(rank_pid "$mp" "$n") || { fail "$1: rank $n found"; stop_job "$mp"; return; }
 	else
 		target=$mp
 	fi
@@ -89,6 +90,16 @@ mpi 3 fit --resume "$tmp/int0" -q
 check "resumed on 3 processes: exit 0" [ $? -eq 0 ]
 "$BIN" fit "$planted" $C -j 2 -q -o "$tmp/whole"
 same_fit "$tmp/whole" "$tmp/int0" "interrupted on 2 processes, resumed on 3"
+
+# SIGTERM to one process that is not rank 0 (a batch system's signal that
+# reached one node): it raises its wish, every process stops at the same
+# block, rank 0 saves, and every process (so mpirun) exits 130.
+interrupt_run term1 rank1 TERM "$planted" "$C"
+check "SIGTERM to rank 1: exit status 130 ($st)" [ "$st" -eq 130 ]
+check "SIGTERM to rank 1: run.json says interrupted" grep -q '"status": "interrupted"' "$tmp/term1/run.json"
+mpi 1 fit --resume "$tmp/term1" -q
+check "SIGTERM to rank 1, resumed on 1 process: exit 0" [ $? -eq 0 ]
+same_fit "$tmp/whole" "$tmp/term1" "SIGTERM to rank 1, resumed on 1 process"
 
 # mpirun passes SIGTERM (as a batch system sends it) to every process, and
 # SIGKILL after odls_base_sigkill_timeout (1 s by default): a football
