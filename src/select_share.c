@@ -29,28 +29,14 @@
 #include "coterie/util.h"
 #include "select-internal.h"
 
+/* A writer into a buffer sized beforehand (score_bytes()). */
 struct wbuf {
 	unsigned char *b;
-	size_t len, cap;
-	int oom;
+	size_t len;
 };
 
 static void put(struct wbuf *w, const void *p, size_t n)
 {
-	if (w->oom)
-		return;
-	if (w->len + n > w->cap) {
-		size_t cap = w->cap ? w->cap : 256;
-		while (cap < w->len + n)
-			cap *= 2;
-		unsigned char *nb = realloc(w->b, cap);
-		if (!nb) {
-			w->oom = 1;
-			return;
-		}
-		w->b = nb;
-		w->cap = cap;
-	}
 	memcpy(w->b + w->len, p, n);
 	w->len += n;
 }
@@ -58,6 +44,17 @@ static void put(struct wbuf *w, const void *p, size_t n)
 static void put_u32(struct wbuf *w, uint32_t v)
 {
 	put(w, &v, sizeof v);
+}
+
+/* The bytes put_score() writes for sc. */
+static size_t score_bytes(const struct fold_score *sc, int keep)
+{
+	size_t b = 4 + 3 * 8 + 3 * 4;
+	const struct fcsr *F = &sc->F;
+	if (keep && F->e)
+		b += 4 + 4 + 8 + ((size_t)F->n + 1) * sizeof *F->off +
+		     (size_t)F->off[F->n] * sizeof *F->e + (size_t)F->k * sizeof *F->colsum;
+	return b;
 }
 
 static void put_score(struct wbuf *w, uint32_t t, const struct fold_score *sc, int keep)
@@ -150,22 +147,28 @@ int select_share_round(const struct sweep_group *grp, int failed, int *stop, uin
 		       uint32_t t1, struct fold_score *sc, unsigned char *done, int keep)
 {
 	uint32_t P = grp->size, me = grp->rank, count = 0;
-	struct wbuf w = { NULL, 0, 0, 0 };
-	for (uint32_t t = t0; t < t1; t++)
-		count += t % P == me && done[t];
-	put_u32(&w, *stop ? 1 : 0);
-	put_u32(&w, count);
-	for (uint32_t t = t0; t < t1; t++)
-		if (t % P == me && done[t])
-			put_score(&w, t, &sc[t], keep);
-	if (w.oom) /* still take part, with nothing: every process then fails */
+	size_t size = 8;
+	for (uint32_t t = t0; t < t1 && !failed; t++)
+		if (t % P == me && done[t]) {
+			count++;
+			size += score_bytes(&sc[t], keep);
+		}
+	struct wbuf w = { failed ? NULL : util_malloc(size, 1), 0 };
+	if (w.b) {
+		put_u32(&w, *stop ? 1 : 0);
+		put_u32(&w, count);
+		for (uint32_t t = t0; t < t1; t++)
+			if (t % P == me && done[t])
+				put_score(&w, t, &sc[t], keep);
+	} else if (!failed) {
 		error("out of memory sharing the scores of -k auto");
-	if (w.oom || failed)
-		w.len = 0;
+	}
+	/* w.len 0 (failed, or out of memory): still take part, with
+	 * nothing, and every process fails */
 	const unsigned char *all;
 	const size_t *lens;
 	int rc = grp->gather(grp->arg, w.b, w.len, &all, &lens);
-	int bad = w.oom || failed;
+	int bad = !w.b;
 	free(w.b);
 	if (rc)
 		return -1;
