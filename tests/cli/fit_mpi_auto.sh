@@ -16,7 +16,6 @@ need_file "$football"
 
 # --- the grid with folds (football: 613 edges, 10 folds) -------------------------
 A="-k auto --seed 3"
-# shellcheck disable=SC2086
 "$BIN" fit "$football" $A -j 2 -q -o "$tmp/fb"
 check "football: the search is the grid" grep -q '"search": "grid"' "$tmp/fb/run.json"
 mpi 1 fit "$football" $A -j 1 -q -o "$tmp/fb1"
