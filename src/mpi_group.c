@@ -138,7 +138,7 @@ struct mpi_group *mpi_group_new(void)
 	}
 	g->sg = (struct sweep_group){ (unsigned)g->rank, (unsigned)g->size, group_gather, g };
 	g->cg = (struct cli_group){ (unsigned)g->rank, (unsigned)g->size, group_agree,
-				    group_share, group_end, g };
+				    group_share, group_end, g, &g->sg };
 	return g;
 }
 

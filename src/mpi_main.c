@@ -36,8 +36,8 @@ static void usage(FILE *out)
 	fprintf(out, "usage: mpirun -np P coterie-mpi fit GRAPH -k N -o DIR [fit options]\n\n"
 		     "The fit of 'coterie fit', its sweeps shared among P processes (MPI); the\n"
 		     "result folder is the one 'coterie fit' writes with the same seed.\n"
-		     "Every process loads the whole graph. 'coterie-mpi fit --help' lists the\n"
-		     "options; -k auto needs a single process.\n");
+		     "Every process loads the whole graph; -k auto spreads its fits over the\n"
+		     "processes. 'coterie-mpi fit --help' lists the options.\n");
 }
 
 /* COTERIE_MPI_STATS set: what this process exchanged, on stderr. */

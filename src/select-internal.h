@@ -10,6 +10,15 @@
 #include "coterie/fcsr.h"
 
 struct graph;
+struct sweep_group;
+
+/* One fold's score of one k (select.c's search_pass()). */
+struct fold_score {
+	double ll, auc, seconds;
+	uint32_t sweeps;
+	uint32_t warm_from; /* the k its start came from (0: seeds) */
+	struct fcsr F;      /* its strengths, when the search keeps them */
+};
 
 /*
  * A start for a fit of k columns on train (borrowed) from the strengths
@@ -20,5 +29,22 @@ struct graph;
  */
 int select_warm_start(const struct fcsr *from, const struct graph *train, uint32_t k,
 		      struct fcsr *out);
+
+/*
+ * The end of a round of a search shared among processes (select_share.c):
+ * this process's finished tasks in [t0, t1) (those with done[t] set; a
+ * task t is this process's when t % size == rank) go to every process,
+ * the others' arrive in sc[] (their kept strengths copied, when keep)
+ * and set done[]. *stop: in, this process was asked to stop; out, some
+ * process was. failed: this process failed (it sends nothing, and every
+ * process returns -1). A collective. 0, or -1 (reported; sc[] then holds
+ * what was unpacked, released by the caller as usual).
+ */
+int select_share_round(const struct sweep_group *grp, int failed, int *stop, uint32_t t0,
+		       uint32_t t1, struct fold_score *sc, unsigned char *done, int keep);
+
+/* 1 when ok is nonzero on every process of grp (a collective), -1 on a
+ * failed exchange (reported). */
+int select_share_all(const struct sweep_group *grp, int ok);
 
 #endif

@@ -32,6 +32,7 @@
 #include "coterie/memory.h"
 #include "coterie/model.h"
 #include "coterie/seed.h"
+#include "coterie/sweep.h"
 #include "coterie/util.h"
 #include "select-internal.h"
 
@@ -210,6 +211,8 @@ struct search {
 			   * a node per fit) */
 	struct fcsr kept[SELECT_MAX_GRID];
 	uint32_t nkept;
+	const struct sweep_group *grp; /* NULL: alone; else the fits are
+					* spread over its processes */
 };
 
 /* Release the kept fits except that of k (0: all). */
@@ -239,14 +242,6 @@ static uint64_t fold_seed(uint64_t seed, uint32_t f)
 struct slot {
 	struct fit *f;
 	uint32_t task;
-};
-
-/* One fold's score of one k. */
-struct fold_score {
-	double ll, auc, seconds;
-	uint32_t sweeps;
-	uint32_t warm_from; /* the k its start came from (0: seeds) */
-	struct fcsr F;      /* its strengths, when the search keeps them */
 };
 
 /* A warm start for w from the kept fit of w->from, into *F (empty when
@@ -347,35 +342,98 @@ static void stop_all(struct slot *sl, uint32_t nslots)
 		}
 }
 
+/* The first task at or after t that is this process's (t % P == me). */
+static uint32_t own_from(uint32_t t, uint32_t P, uint32_t me)
+{
+	return t + (me + P - t % P) % P;
+}
+
+/* The points decided in list order from the scores in: once all folds
+ * of a k are in, its point, the kept fit, the hook, the best and the
+ * early stop. Sets *halt once the pass is over. */
+static void decide(struct search *s, const struct want *w, uint32_t nk, int early,
+		   struct fold_score *sc, const unsigned char *done, struct select_point *pts,
+		   uint32_t *consumed, uint32_t *worse, int *halt, struct best *b)
+{
+	uint32_t F = s->folds;
+	while (!*halt && *consumed < nk && !memchr(done + *consumed * F, 0, F)) {
+		uint32_t c = *consumed;
+		pts[c] = point_of(w[c].k, sc + c * F, F, w[c].added);
+		pts[c].order = ++s->decided;
+		pts[c].warm_from = sc[c * F].warm_from;
+		if (s->keep && s->nkept < SELECT_MAX_GRID && sc[c * F].F.e) {
+			s->kept[s->nkept++] = sc[c * F].F; /* moves; its k is w's */
+			memset(&sc[c * F].F, 0, sizeof sc->F);
+		}
+		memcpy(pts[c].reason, w[c].why, SELECT_REASON);
+		if (s->hooks && s->hooks->scored)
+			s->hooks->scored(&pts[c], s->hooks->arg);
+		if (b->k == 0 || pts[c].heldout > b->heldout) {
+			*b = (struct best){ pts[c].k, pts[c].heldout };
+			*worse = 0;
+		} else if (++*worse >= 2 && early) {
+			*halt = 1;
+		}
+		(*consumed)++;
+	}
+	if (*consumed == nk)
+		*halt = 1;
+}
+
 /*
  * Score w[0 .. nk) in that order, each on every fold, into pts; with
  * early, stop after two k in a row below the best (*b, updated). The
  * decisions are taken in list order whatever order the fits end in.
  * *npts receives the points scored. Returns 0, -1 (reported) or -2.
+ *
+ * Shared among P processes (s->grp): process me runs the tasks t with
+ * t % P == me, in rounds; at the end of a round (all its tasks of the
+ * round ended, or it halted or was asked to stop) the scores are
+ * exchanged (select_share_round()) and decided as above. A pass without
+ * an early stop is one round; one with it, rounds of P x slots tasks,
+ * so that little is fitted past the stopping point.
  */
 static int search_pass(struct search *s, const struct want *w, uint32_t nk, int early,
 		       struct select_point *pts, uint32_t *npts, struct best *b)
 {
 	uint32_t F = s->folds, ntask = nk * F;
+	uint32_t P = s->grp ? s->grp->size : 1, me = s->grp ? s->grp->rank : 0;
 	uint32_t nslots = s->nslots < ntask ? s->nslots : ntask;
+	uint32_t span = P == 1 || !early ? ntask : P * nslots;
 	struct fold_score *sc = util_calloc(ntask, sizeof *sc);
 	unsigned char *done = util_calloc(ntask, 1);
 	struct slot *sl = util_calloc(nslots, sizeof *sl);
 	struct pollfd *pfd = util_calloc(nslots, sizeof *pfd);
 	int rc = sc && done && sl && pfd ? 0 : -1;
-	uint32_t next = 0, consumed = 0, worse = 0;
-	int halt = 0;
+	uint32_t consumed = 0, worse = 0, t0 = 0, t1 = span < ntask ? span : ntask;
+	uint32_t next = own_from(0, P, me);
+	int halt = 0, stop = 0, exchanged = 0;
 	while (rc == 0) {
 		uint32_t active = 0;
 		for (uint32_t i = 0; i < nslots && rc == 0; i++) {
-			if (!sl[i].f && !halt && next < ntask) {
+			if (!sl[i].f && !halt && !stop && next < t1) {
 				rc = slot_launch(&sl[i], s, &w[next / F], next, &sc[next]);
-				next++;
+				next += P;
 			}
 			active += sl[i].f != NULL;
 		}
-		if (rc || active == 0)
+		if (rc || (active == 0 && P == 1))
 			break;
+		if (active == 0) { /* shared: the round is over here */
+			exchanged = 1;
+			if ((rc = select_share_round(s->grp, 0, &stop, t0, t1, sc, done, s->keep)))
+				break;
+			exchanged = 0;
+			decide(s, w, nk, early, sc, done, pts, &consumed, &worse, &halt, b);
+			if (stop)
+				rc = -2;
+			if (stop || halt || t1 == ntask)
+				break;
+			t0 = t1;
+			t1 = ntask - t1 < span ? ntask : t1 + span;
+			next = own_from(t0, P, me);
+			continue;
+		}
 		for (uint32_t i = 0; i < nslots; i++)
 			pfd[i] = (struct pollfd){ sl[i].f ? fit_wake_fd(sl[i].f) : -1, POLLIN, 0 };
 		poll(pfd, nslots, 200);
@@ -389,37 +447,20 @@ static int search_pass(struct search *s, const struct want *w, uint32_t nk, int 
 			rc = slot_score(&sl[i], &s->h[t % F], s->p.model, &sc[t], s->keep);
 			done[t] = 1;
 		}
-		/* the decisions, in list order, once all folds of a k are in */
-		while (rc == 0 && !halt && consumed < nk &&
-		       !memchr(done + consumed * F, 0, F)) {
-			pts[consumed] = point_of(w[consumed].k, sc + consumed * F, F, w[consumed].added);
-			pts[consumed].order = ++s->decided;
-			pts[consumed].warm_from = sc[consumed * F].warm_from;
-			if (s->keep && s->nkept < SELECT_MAX_GRID && sc[consumed * F].F.e) {
-				s->kept[s->nkept++] = sc[consumed * F].F; /* moves; its k is w's */
-				memset(&sc[consumed * F].F, 0, sizeof sc->F);
-			}
-			memcpy(pts[consumed].reason, w[consumed].why, SELECT_REASON);
-			const struct select_point *pt = &pts[consumed];
-			if (s->hooks && s->hooks->scored)
-				s->hooks->scored(pt, s->hooks->arg);
-			if (b->k == 0 || pt->heldout > b->heldout) {
-				*b = (struct best){ pt->k, pt->heldout };
-				worse = 0;
-			} else if (++worse >= 2 && early) {
-				halt = 1;
-			}
-			consumed++;
-		}
-		if (consumed == nk)
-			halt = 1;
+		if (rc == 0 && P == 1)
+			decide(s, w, nk, early, sc, done, pts, &consumed, &worse, &halt, b);
 		if (rc == 0 && s->hooks && s->hooks->should_stop &&
-		    s->hooks->should_stop(s->hooks->arg))
-			rc = -2;
-		if (halt) /* fits started past the stopping point are not needed */
+		    s->hooks->should_stop(s->hooks->arg)) {
+			if (P == 1)
+				rc = -2;
+			stop = 1;
+		}
+		if (halt || stop) /* fits started past the stopping point are not needed */
 			stop_all(sl, nslots);
 	}
 	stop_all(sl, nslots);
+	if (rc == -1 && P > 1 && !exchanged) /* the others learn it at the round's end */
+		select_share_round(s->grp, 1, &stop, t0, t0, sc, done, 0);
 	for (uint32_t t = 0; sc && t < ntask; t++)
 		fcsr_release(&sc[t].F);
 	UTIL_FREE_ALL(sc, done, sl, pfd);
@@ -434,12 +475,13 @@ static int fits_memory(const struct search *s, uint32_t k, unsigned threads)
 	uint64_t lim;
 	const char *what;
 	int virt;
-	if (memory_limit(&lim, &what, &virt))
-		return 1;
 	struct fit_params q = s->p;
 	q.k = k;
 	q.threads = threads;
-	return memory_fit_estimate(s->h[0].train, &q) <= lim;
+	int ok = memory_limit(&lim, &what, &virt) || memory_fit_estimate(s->h[0].train, &q) <= lim;
+	if (s->grp) /* the processes' limits may differ: the search must not */
+		ok = select_share_all(s->grp, ok) == 1;
+	return ok;
 }
 
 /* The k beyond an edge of a geometric grid, same ratio: up from `from`
@@ -723,6 +765,8 @@ int select_k(const struct graph *g, const struct fit_params *base, const struct 
 		return -1;
 	}
 	s->hooks = hooks;
+	if (hooks && hooks->group && hooks->group->size > 1)
+		s->grp = hooks->group;
 	s->folds = sp->folds ? sp->folds : select_folds(g->m, sp->share);
 	if (s->folds > SELECT_MAX_FOLDS)
 		s->folds = SELECT_MAX_FOLDS;

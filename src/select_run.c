@@ -78,7 +78,7 @@ static int run_should_stop(void *arg)
 static void *run_main(void *arg)
 {
 	struct select_run *r = arg;
-	struct select_hooks hooks = { run_scored, run_should_stop, r };
+	struct select_hooks hooks = { run_scored, run_should_stop, r, NULL };
 	struct select_result res;
 	int rc = select_k(r->g, &r->base, &r->sp, &hooks, &res);
 	pthread_mutex_lock(&r->lock);

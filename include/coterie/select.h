@@ -60,6 +60,7 @@
 
 struct graph;
 struct fit_params;
+struct sweep_group;
 
 #define SELECT_MAX_GRID 128 /* points of a search, extension included */
 #define SELECT_MAX_LIST 64  /* values of --k-grid LIST */
@@ -158,6 +159,14 @@ struct select_hooks {
 	void (*scored)(const struct select_point *pt, void *arg);
 	int (*should_stop)(void *arg);
 	void *arg;
+	/* NULL (or a group of one): the fits run here. Else every process
+	 * of the group (borrowed; sweep.h) runs select_k() alike and fits
+	 * its share of each batch (task t of a batch, a k on a fold, on
+	 * process t % size, up to threads at once); the scores are
+	 * exchanged at the end of each round and decided alike, so every
+	 * process returns the same result as one process would. A stop
+	 * asked on one process stops every process at its round's end. */
+	const struct sweep_group *group;
 };
 
 struct select_result {

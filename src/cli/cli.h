@@ -173,6 +173,8 @@ struct cli_group {
 	/* rank 0's exit status, returned on every process */
 	int (*end)(void *arg, int rc);
 	void *arg;
+	/* the byte exchange -k auto spreads its fits with (select.h) */
+	const struct sweep_group *gather;
 };
 /* cmd_fit() inside a group (borrowed; NULL: cmd_fit() itself). */
 int cli_fit_in_group(int argc, char **argv, const struct cli_group *grp);

@@ -271,10 +271,12 @@ static int stop_asked(void *arg)
 }
 
 /* -k auto: score a grid of k by held-out likelihood, write
- * k-selection.tsv, and set p->k to the winner; sp holds --k-grid and
- * --holdout (in o). Returns 0 or -1 (reported). */
+ * k-selection.tsv (the writer only), and set p->k to the winner; sp
+ * holds --k-grid and --holdout (in o); grp (NULL: alone) spreads the
+ * fits over processes. Returns 0, -1 (reported) or -2 (interrupted). */
 static int choose_k(const struct graph *g, struct fit_params *p, const char *out,
-		    struct cli_fit_opts *o, int quiet, struct select_result *res)
+		    struct cli_fit_opts *o, int quiet, struct select_result *res,
+		    const struct cli_group *grp)
 {
 	uint32_t minima = 0;
 	int have_grid = o->have_grid;
@@ -283,6 +285,7 @@ static int choose_k(const struct graph *g, struct fit_params *p, const char *out
 	struct select_params *sp = &o->sp;
 	uint32_t grid[SELECT_MAX_GRID];
 	uint32_t ng = select_grid(sp, grid);
+	unsigned at_once = p->threads * (grp ? grp->size : 1); /* fits at a time */
 	if (!quiet) {
 		if (!have_grid)
 			notice("choosing k from %u to %u (three times the %u distinct locally "
@@ -290,7 +293,7 @@ static int choose_k(const struct graph *g, struct fit_params *p, const char *out
 			       sp->kmax, minima);
 		notice("choosing k among %u values from %u to %u by the likelihood of %.0f%% of "
 		       "the edges and as many non-edges, held out; %u fits at a time", ng, grid[0],
-		       grid[ng - 1], 100.0 * sp->share, p->threads < ng ? p->threads : ng);
+		       grid[ng - 1], 100.0 * sp->share, at_once < ng ? at_once : ng);
 	}
 	/* one fit of the largest k of the grid (the parallel fits of smaller k
 	 * are not added up) */
@@ -299,15 +302,17 @@ static int choose_k(const struct graph *g, struct fit_params *p, const char *out
 	big.threads = p->threads;
 	if (memory_check_fit(g, &big))
 		return -1;
-	struct select_hooks hooks = { on_scored, stop_asked, &quiet };
+	struct select_hooks hooks = { on_scored, stop_asked, &quiet, grp ? grp->gather : NULL };
+	int writer = !grp || grp->rank == 0;
 	int rc = select_k(g, p, sp, &hooks, res);
 	if (rc == -2) {
-		error("interrupted while choosing k; no fit to save yet");
-		return -1;
+		if (writer)
+			error("interrupted while choosing k; no fit to save yet");
+		return -2;
 	}
 	if (rc)
 		return -1;
-	if (result_write_selection(out, res))
+	if (writer && result_write_selection(out, res))
 		return -1;
 	if (!quiet)
 		notice("chose k = %u, the highest held-out log-likelihood; the scores are in "
@@ -536,8 +541,8 @@ static int choose_background(struct run *r)
 	return 0;
 }
 
-/* A new fit: the graph, -k auto and --check-links. Returns 0, -1, or -2
- * when -k auto failed (perhaps interrupted). */
+/* A new fit: the graph, -k auto and --check-links. Returns 0, -1, -2
+ * when -k auto failed, or -3 when every process was interrupted in it. */
 static int load_graph(struct run *r)
 {
 	struct fit_params *p = &r->p;
@@ -548,8 +553,9 @@ static int load_graph(struct run *r)
 		cli_k_fits(p->k, r->g);
 	cli_fit_opts_starts(&r->o, r->g->m);
 	p->starts = r->o.p.starts;
-	if (r->o.k_auto && choose_k(r->g, p, r->o.out, &r->o, r->quiet, &r->sel))
-		return -2;
+	int rc = r->o.k_auto ? choose_k(r->g, p, r->o.out, &r->o, r->quiet, &r->sel, r->grp) : 0;
+	if (rc)
+		return rc == -2 && r->grp ? -3 : -2;
 	if (choose_background(r))
 		return -2;
 	if (r->check_links > 0) {
@@ -840,9 +846,6 @@ int cli_fit_in_group(int argc, char **argv, const struct cli_group *grp)
 	int rc = parse_args(r, argc, argv);
 	if (rc >= 0)
 		return rc;
-	if (grp && grp->size > 1 && r->o.k_auto)
-		die(EXIT_USAGE, "-k auto is not yet available across processes: choose k with "
-				"'coterie fit -k auto', then fit with -k N");
 	rc = 1;
 	util_set_quiet(r->quiet || !r->writer);
 	/* refuse early: a long fit whose result cannot be written is lost
@@ -856,7 +859,7 @@ int cli_fit_in_group(int argc, char **argv, const struct cli_group *grp)
 	r->t_begin = util_now();
 	int loaded = r->resume ? load_resume(r) : load_graph(r);
 	if (loaded) {
-		if (loaded == -2 && proc_signal_caught())
+		if (loaded == -3 || (loaded == -2 && proc_signal_caught()))
 			rc = EXIT_INTERRUPTED;
 		goto out;
 	}

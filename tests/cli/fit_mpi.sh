@@ -4,45 +4,14 @@
 # communities.tsv and the trace's log-likelihoods byte for byte, for any
 # number of processes and threads (DEVELOPERS.md "Determinism"); a resume
 # on another process count ends as the uninterrupted fit; an interrupt to
-# rank 0 or to mpirun ends every process with the folder saved.
+# rank 0, to rank 1 or to mpirun ends every process with the folder saved.
 # Skipped (a "# SKIP" line) when coterie-mpi was not built or mpirun
 # cannot start it.
 . "$(dirname "$0")/lib"
 
-MPIBIN=${COTERIE_MPI_BIN:-$(dirname "$BIN")/coterie-mpi}
-if [ ! -x "$MPIBIN" ] || ! command -v mpirun >/dev/null 2>&1; then
-	echo "# SKIP coterie-mpi or mpirun missing (make deps; make): MPI fits not checked"
-	exit 0
-fi
-# Open MPI refuses root without a flag and more processes than cores
-# without another; MPICH needs neither (and knows neither).
-MPIFLAGS=""
-if mpirun --version 2>&1 | grep -q "Open MPI"; then
-	MPIFLAGS="--oversubscribe"
-	[ "$(id -u)" -eq 0 ] && MPIFLAGS="$MPIFLAGS --allow-run-as-root"
-fi
-karate=$DATA/karate/edges.tsv
+. "$(dirname "$0")/mpi_lib"
 football=$DATA/football/edges.tsv
-need_file "$karate"
 need_file "$football"
-# shellcheck disable=SC2086
-mpi() { np=$1; shift; mpirun $MPIFLAGS -np "$np" "$MPIBIN" "$@"; }
-
-if ! mpi 2 fit "$karate" -k 2 --epsilon 1e-4 -q -o "$tmp/probe" >"$tmp/probe.err" 2>&1; then
-	echo "# SKIP mpirun cannot start coterie-mpi here: MPI fits not checked"
-	sed 's/^/# /' "$tmp/probe.err" | head -5
-	exit 0
-fi
-
-# same_fit A B WHAT: the two folders hold the same fit.
-same_fit()
-{
-	check "$3: memberships.tsv byte-identical" cmp -s "$1/memberships.tsv" "$2/memberships.tsv"
-	check "$3: communities.tsv byte-identical" cmp -s "$1/communities.tsv" "$2/communities.tsv"
-	cut -f1,3 "$1/trace.tsv" >"$tmp/t1"
-	cut -f1,3 "$2/trace.tsv" >"$tmp/t2"
-	check "$3: the trace's sweeps and log-likelihoods byte-identical" cmp -s "$tmp/t1" "$tmp/t2"
-}
 
 # --- the same answer ------------------------------------------------------------
 # A planted graph large enough that a block has many rows to share (blocks
@@ -74,48 +43,18 @@ check "--check-links, 2 processes: held-out-links.tsv byte-identical" \
 	cmp -s "$tmp/cl1/held-out-links.tsv" "$tmp/cl2/held-out-links.tsv"
 
 # --- refusals -------------------------------------------------------------------
-mpi 2 fit "$football" -k auto -q -o "$tmp/auto" >/dev/null 2>"$tmp/auto.err"
-check "-k auto on 2 processes: refused with exit 2" [ $? -eq 2 ]
-check "-k auto on 2 processes: the message says why" grep -q "not yet available across processes" "$tmp/auto.err"
 "$MPIBIN" show "$tmp/fb1" >/dev/null 2>"$tmp/show.err"
 check "coterie-mpi show: refused with exit 2 (fit is its one command)" [ $? -eq 2 ]
 
 # --- interrupts and resume --------------------------------------------------------
-# rank_pid MPIRUN_PID RANK: the pid of that rank, a child of mpirun (Open
-# MPI and MPICH name the rank in its environment).
-rank_pid()
-{
-	for p in $(pgrep -P "$1"); do
-		if tr '\0' '\n' <"/proc/$p/environ" 2>/dev/null |
-			grep -qx -e "OMPI_COMM_WORLD_RANK=$2" -e "PMI_RANK=$2"; then
-			echo "$p"
-			return 0
-		fi
-	done
-	return 1
-}
-
-# stop_job MPIRUN_PID: end a job that did not end (its ranks first, by pid,
-# so that none is left running without mpirun).
-stop_job()
-{
-	sj_ranks=$(pgrep -P "$1")
-	kill -TERM "$1" 2>/dev/null
-	wait_gone "$1" 10 || kill -KILL "$1" 2>/dev/null
-	for p in $sj_ranks; do
-		kill -KILL "$p" 2>/dev/null
-	done
-	wait "$1" 2>/dev/null
-}
-
 # interrupt_run NAME TARGET SIGNAL GRAPH OPTIONS: a fit on 2 processes,
-# sent SIGNAL at rank 0 or at mpirun once progress shows; leaves mpirun's
+# sent SIGNAL at rank0, rank1 or mpirun once progress shows; leaves mpirun's
 # status in $st. (mpirun itself is run in the background, so that $! is
 # its pid; a background job of sh ignores SIGINT, rank 0 does not.)
 interrupt_run()
 {
 	# shellcheck disable=SC2086
-	mpirun $MPIFLAGS -np 2 "$MPIBIN" fit "$4" $5 -j 1 -o "$tmp/$1" 2>"$tmp/$1.err" &
+	"$MPIRUN" $MPIFLAGS -np 2 "$MPIBIN" fit "$4" $5 -j 1 -o "$tmp/$1" 2>"$tmp/$1.err" &
 	mp=$!
 	st=255
 	if ! wait_for_grep 'sweep [0-9]' "$tmp/$1.err" 60 2; then
@@ -123,8 +62,9 @@ interrupt_run()
 		stop_job "$mp"
 		return
 	fi
-	if [ "$2" = rank0 ]; then
-		target=$(rank_pid "$mp" 0) || { fail "$1: rank 0 found"; stop_job "$mp"; return; }
+	if [ "$2" = rank0 ] || [ "$2" = rank1 ]; then
+		n=${2#rank}
+		target=$(rank_pid "$mp" "$n") || { fail "$1: rank $n found"; stop_job "$mp"; return; }
 	else
 		target=$mp
 	fi
@@ -150,6 +90,16 @@ mpi 3 fit --resume "$tmp/int0" -q
 check "resumed on 3 processes: exit 0" [ $? -eq 0 ]
 "$BIN" fit "$planted" $C -j 2 -q -o "$tmp/whole"
 same_fit "$tmp/whole" "$tmp/int0" "interrupted on 2 processes, resumed on 3"
+
+# SIGTERM to one process that is not rank 0 (a batch system's signal that
+# reached one node): it raises its wish, every process stops at the same
+# block, rank 0 saves, and every process (so mpirun) exits 130.
+interrupt_run term1 rank1 TERM "$planted" "$C"
+check "SIGTERM to rank 1: exit status 130 ($st)" [ "$st" -eq 130 ]
+check "SIGTERM to rank 1: run.json says interrupted" grep -q '"status": "interrupted"' "$tmp/term1/run.json"
+mpi 1 fit --resume "$tmp/term1" -q
+check "SIGTERM to rank 1, resumed on 1 process: exit 0" [ $? -eq 0 ]
+same_fit "$tmp/whole" "$tmp/term1" "SIGTERM to rank 1, resumed on 1 process"
 
 # mpirun passes SIGTERM (as a batch system sends it) to every process, and
 # SIGKILL after odls_base_sigkill_timeout (1 s by default): a football
