@@ -82,9 +82,9 @@ static void test_a_score_and_its_strengths_arrive_bit_for_bit(void **state)
 	unsigned char done1[2] = { 0, 1 }, done0[2] = { 1, 0 };
 	memset(sc1, 0, sizeof sc1);
 	memset(sc0, 0, sizeof sc0);
-	sc1[1] = (struct fold_score){ -123.456789, 0.8125, 1.5, 17, 40, { 0, 0, 0, 0, 0 } };
+	sc1[1] = (struct fold_score){ -123.456789, 0.8125, 1.5, 17, 40, { 0, 0, 0, 0, 0, NULL } };
 	small_fcsr(&sc1[1].F);
-	sc0[0] = (struct fold_score){ -99.0, 0.75, 0.5, 9, 0, { 0, 0, 0, 0, 0 } };
+	sc0[0] = (struct fold_score){ -99.0, 0.75, 0.5, 9, 0, { 0, 0, 0, 0, 0, NULL } };
 	int stop = 0;
 	/* process 1 speaks first; process 0 then sees both */
 	fake_quiet(&f, 0);
