@@ -1,0 +1,183 @@
+/*
+ * agm_trim: where each community of a fit ends, read by the AGM's own
+ * likelihood (agm_trim(), agm_from_strengths_trimmed()), and the coverage
+ * said to the user in nodes as given (agm_coverage_as_given()).
+ *
+ * The membership rule (agm.h) reads a column down to delta; a community
+ * whose relaxed strengths reach a few nodes tied to it by stray links
+ * (communities that leak) then holds them. Each column's members, in
+ * order of strength, are cut where the prefix's links are most likely as
+ * one block at their own density against the background; the whole
+ * cover so read is kept only if its AGM log-likelihood is not below the
+ * cover at delta. The thresholds travel with the strengths (fcsr.thr) so
+ * that every reader of one entry (agm_member_at()) agrees with the cover.
+ *
+ * The one thing a newcomer gets wrong: thresholds are derived, never
+ * stored; a reader of a checkpoint gets them again by reading it through
+ * agm_from_strengths_trimmed() (result_cover.c), with the same result.
+ */
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "coterie/agm.h"
+#include "coterie/fcsr.h"
+#include "coterie/graph.h"
+#include "coterie/util.h"
+
+struct ranked {
+	double v;
+	uint32_t u;
+};
+
+static int ranked_cmp(const void *x, const void *y)
+{
+	const struct ranked *a = x, *b = y;
+	if (a->v != b->v)
+		return a->v > b->v ? -1 : 1;
+	return a->u < b->u ? -1 : a->u > b->u;
+}
+
+/* The threshold of one column: its members (rows[0 .. s), by the rule at
+ * delta) in order of strength; the prefix whose block likelihood beats
+ * the background most; the strength of its last member, or 0 when the
+ * whole column is kept. pos: n zeros, left zeroed. */
+static double column_threshold(const struct graph *g, struct ranked *rows, uint32_t s,
+			       double le, double l1e, uint32_t *pos)
+{
+	if (s < 3)
+		return 0.0;
+	qsort(rows, s, sizeof *rows, ranked_cmp);
+	double E = 0.0, best = -HUGE_VAL;
+	uint32_t keep = s;
+	for (uint32_t i = 0; i < s; i++) {
+		uint32_t u = rows[i].u;
+		for (uint64_t j = g->off[u]; j < g->off[u + 1]; j++)
+			E += pos[g->adj[j]] != 0;
+		pos[u] = i + 1;
+		if (i == 0)
+			continue;
+		double P = (double)(i + 1) * i / 2, p = E / P;
+		double ll = 0.0;
+		if (p > 0.0 && p < 1.0)
+			ll = E * log(p) + (P - E) * log1p(-p);
+		ll -= E * le + (P - E) * l1e;
+		if (ll > best) {
+			best = ll;
+			keep = i + 1;
+		}
+	}
+	for (uint32_t i = 0; i < s; i++)
+		pos[rows[i].u] = 0;
+	return keep < s ? rows[keep - 1].v : 0.0;
+}
+
+int agm_trim(const struct graph *g, struct fcsr *F, double epsilon, double delta,
+	     double min_links)
+{
+	free(F->thr);
+	F->thr = NULL;
+	if (F->n != g->n || !(epsilon > 0.0 && epsilon < 1.0) || F->k == 0)
+		return F->n == g->n ? 0 : error("strengths and graph differ in size");
+	uint64_t *off = util_calloc((size_t)F->k + 1, sizeof *off);
+	uint32_t *pos = util_calloc(g->n, sizeof *pos);
+	double *thr = util_calloc(F->k, sizeof *thr);
+	struct ranked *rows = NULL;
+	int rc = -1;
+	if (!off || !pos || !thr)
+		goto out;
+	for (uint32_t u = 0; u < F->n; u++)
+		for (uint64_t j = F->off[u]; j < F->off[u + 1]; j++)
+			if (agm_member_at(g, F, u, j, delta, min_links))
+				off[F->e[j].c + 1]++;
+	for (uint32_t c = 0; c < F->k; c++)
+		off[c + 1] += off[c];
+	if (!(rows = util_malloc(off[F->k] ? off[F->k] : 1, sizeof *rows)))
+		goto out;
+	for (uint32_t u = 0; u < F->n; u++) /* column by column, through off[] as a cursor */
+		for (uint64_t j = F->off[u]; j < F->off[u + 1]; j++)
+			if (agm_member_at(g, F, u, j, delta, min_links))
+				rows[off[F->e[j].c]++] = (struct ranked){ F->e[j].v, u };
+	for (uint32_t c = F->k; c > 0; c--) /* the cursors moved each start one column on */
+		off[c] = off[c - 1];
+	off[0] = 0;
+	double le = log(epsilon), l1e = log1p(-epsilon);
+	for (uint32_t c = 0; c < F->k; c++)
+		thr[c] = column_threshold(g, rows + off[c], (uint32_t)(off[c + 1] - off[c]), le, l1e,
+					  pos);
+	F->thr = thr;
+	thr = NULL;
+	rc = 0;
+out:
+	free(off);
+	free(pos);
+	free(thr);
+	free(rows);
+	return rc;
+}
+
+int agm_from_strengths_trimmed(struct agm *out, const struct graph *g, struct fcsr *F,
+			       double epsilon, double delta, double min_links)
+{
+	free(F->thr);
+	F->thr = NULL;
+	if (agm_from_strengths(out, g, F, epsilon, delta, min_links))
+		return -1;
+	if (g->nsend) /* the two-sided models read their covers by side */
+		return 0;
+	struct agm trimmed;
+	if (agm_trim(g, F, epsilon, delta, min_links) ||
+	    agm_from_strengths(&trimmed, g, F, epsilon, delta, min_links)) {
+		agm_release(out);
+		return -1;
+	}
+	if (trimmed.loglik >= out->loglik) { /* the AGM's likelihood must not fall */
+		agm_release(out);
+		*out = trimmed;
+		for (uint32_t c = 0; c < F->k; c++)
+			out->ended_sooner += F->thr[c] > delta;
+	} else {
+		agm_release(&trimmed);
+		free(F->thr);
+		F->thr = NULL;
+	}
+	return 0;
+}
+
+int agm_coverage_as_given(const struct agm *a, const struct graph *g, uint32_t *covered,
+			  uint32_t *overlapping, uint32_t *nodes)
+{
+	if (!g->paired) {
+		*covered = a->covered;
+		*overlapping = a->overlapping;
+		*nodes = g->n;
+		return 0;
+	}
+	uint32_t n = g->nsend;
+	uint32_t *count = util_calloc(n ? n : 1, sizeof *count);
+	uint32_t *last = util_malloc(n ? n : 1, sizeof *last); /* community seen last, + 1 */
+	if (!count || !last) {
+		free(count);
+		free(last);
+		return -1;
+	}
+	memset(last, 0, (size_t)n * sizeof *last);
+	for (uint32_t c = 0; c < a->cover.k; c++)
+		for (uint64_t i = a->cover.off[c]; i < a->cover.off[c + 1]; i++) {
+			uint32_t u = a->cover.mem[i];
+			u = u >= n ? u - n : u; /* the receiving copy's own node */
+			if (u < n && last[u] != c + 1) {
+				last[u] = c + 1;
+				count[u]++;
+			}
+		}
+	*covered = *overlapping = 0;
+	for (uint32_t u = 0; u < n; u++) {
+		*covered += count[u] > 0;
+		*overlapping += count[u] > 1;
+	}
+	*nodes = n;
+	free(count);
+	free(last);
+	return 0;
+}
