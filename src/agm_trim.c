@@ -25,6 +25,14 @@
 #include "coterie/graph.h"
 #include "coterie/util.h"
 
+double agm_block_loglik(double e, double N)
+{
+	if (N <= 0.0 || e <= 0.0 || e >= N)
+		return 0.0;
+	double p = e / N;
+	return e * log(p) + (N - e) * log1p(-p);
+}
+
 struct ranked {
 	double v;
 	uint32_t u;
@@ -57,11 +65,8 @@ static double column_threshold(const struct graph *g, struct ranked *rows, uint3
 		pos[u] = i + 1;
 		if (i == 0)
 			continue;
-		double P = (double)(i + 1) * i / 2, p = E / P;
-		double ll = 0.0;
-		if (p > 0.0 && p < 1.0)
-			ll = E * log(p) + (P - E) * log1p(-p);
-		ll -= E * le + (P - E) * l1e;
+		double P = (double)(i + 1) * i / 2;
+		double ll = agm_block_loglik(E, P) - (E * le + (P - E) * l1e);
 		if (ll > best) {
 			best = ll;
 			keep = i + 1;

@@ -51,6 +51,7 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "coterie/agm.h"
 #include "coterie/rng.h"
 #include "coterie/util.h"
 #include "fit-internal.h"
@@ -77,13 +78,6 @@ static int join_cmp(const void *x, const void *y)
 
 /* The Bernoulli block log-likelihood of e edges among N pairs at its own
  * density. */
-static double block_ll(double e, double N)
-{
-	if (N <= 0.0 || e <= 0.0 || e >= N)
-		return 0.0;
-	double p = e / N;
-	return e * log(p) + (N - e) * log1p(-p);
-}
 
 /* The cover at delta, by column: members of c are mem[off[c] .. off[c+1]).
  * in(u, c) is answered from the rows. */
@@ -308,7 +302,7 @@ static double ego_value(const struct model *m, const struct graph *g, uint32_t u
 		for (uint64_t j = g->off[ego[i]]; j < g->off[ego[i] + 1]; j++)
 			nbr[g->adj[j]] = 0;
 	double N = (double)d * (d - 1) / 2;
-	return block_ll(E, N) - now;
+	return agm_block_loglik(E, N) - now;
 }
 
 struct centre {

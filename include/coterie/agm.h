@@ -83,6 +83,11 @@ static inline int agm_is_member(double strength, double colsum, double delta,
 int agm_member_at(const struct graph *g, const struct fcsr *F, uint32_t u, uint64_t j,
 		  double delta, double min_links);
 
+/* The Bernoulli log-likelihood of e edges among N pairs at their own
+ * density e / N (0 when e is 0 or N): the block term agm_trim() and the
+ * merge move (fit_merge.c) compare against the background. */
+double agm_block_loglik(double e, double N);
+
 /* Where each community of F ends, by the AGM's own likelihood: for each
  * column, its members by the rule at delta in order of strength, the
  * prefix whose edges are most likely as one block at their own density
