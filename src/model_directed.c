@@ -13,7 +13,7 @@
  * pair (u, u) is no term), and its gradient is
  *     g_u = sum_{v in out(u)} H_v / expm1(F_u . H_v + q)
  *           - (S_H - sum_{v in out(u)} H_v - H_u),
- * so model.c's update does it all once colsum is the other side's and
+ * so model_row.c's update does it all once colsum is the other side's and
  * H_u is a held-out partner (fit.c gives the self pairs as model.excl).
  * This file prepares the model, seeds it and reads memberships by side:
  * the per-side cover (rows of the two-sided graph as members; what

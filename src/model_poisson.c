@@ -24,7 +24,7 @@
  *     g_u = sum_{v in N(u)} w_uv F_v / (F_u . F_v + q) - (S - F_u - X_u):
  * a row costs O(deg(u) * nnz), as in BigCLAM. Unlike BigCLAM every pair,
  * edges included, pays -x_uv, so the neighbours' rows are not taken out
- * of the linear term. The update is BigCLAM's (model.c): a projected
+ * of the linear term. The update is BigCLAM's (model_row.c): a projected
  * gradient step (strengths below the floor to 0, capped at MODEL_FMAX)
  * with Armijo backtracking (model_backtrack()) from a first step that moves no strength by
  * more than STEP_REACH, along the free direction; a trial that clips

@@ -133,7 +133,7 @@ int model_export_order(const struct model *m, const uint32_t *inner, struct fcsr
 int model_import_order(struct model *m, const struct fcsr *in, const uint32_t *inner);
 
 /*
- * One node's update. A struct model_work holds a thread's scratch space
+ * One node's update (src/model_row.c). A struct model_work holds a thread's scratch space
  * (dense arrays of length k, reused across rows). The update reads the
  * model (neighbour rows, colsum) and never writes it, so many threads may
  * compute rows at once; the caller applies the result with

@@ -9,7 +9,7 @@
  * of directed and bipartite data (e.g. Gopalan, Hofman & Blei, UAI 2015).
  * The rows live in one struct model of the two-sided graph's n rows:
  * sending rows first (model.nsend), receiving rows after; the row update
- * is model.c's (the other side's column sums replace colsum), blocks
+ * is model_row.c's (the other side's column sums replace colsum), blocks
  * couple only a sending and a receiving row (sweep.c), and a directed
  * graph's pairs (F_u, H_u) are held out for good (no self-arcs).
  */

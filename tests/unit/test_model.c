@@ -372,7 +372,7 @@ static void test_row_gradient_with_held_out_pairs_matches_pair_by_pair_sum(void 
  * Pass one gathers the candidates (communities of u's row, its
  * neighbours' and held-out partners' rows) and the neighbour sum; pass
  * two takes each neighbour's weight 1 / expm1(x), x = F_u . F_v + qeps
- * (floored at 1e-12 as model.c does), and scatters it. The real one
+ * (floored at 1e-12 as model_row.c does), and scatters it. The real one
  * (model_row_gradient(), the pass model_update_row() steps along) does
  * both in one pass and must give the same bits: its sums run in the same
  * order.
