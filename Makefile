@@ -61,7 +61,7 @@ MPICC    ?= mpicc
 HAVE_MPI := $(shell command -v $(MPICC) >/dev/null 2>&1 && echo 1)
 MPI_BIN  := $(if $(SANITIZE),$(BUILD)/coterie-mpi,coterie-mpi)
 MPI_OBJ  := $(MPI_SRC:%.c=$(BUILD)/%.o)
-MPI_APP_OBJ := $(BUILD)/src/cli/fit.o $(BUILD)/src/cli/common.o
+MPI_APP_OBJ := $(BUILD)/src/cli/fit.o $(BUILD)/src/cli/fit_progress.o $(BUILD)/src/cli/common.o
 MPI_TARGET := $(if $(HAVE_MPI),$(MPI_BIN),mpi-skip)
 
 .PHONY: all check unit bench install clean deps demo fuzz memcheck mpi-skip
