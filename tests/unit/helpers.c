@@ -12,6 +12,7 @@
 #include "coterie/fit.h"
 #include "coterie/graph.h"
 #include "coterie/model.h"
+#include "coterie/objective.h"
 #include "coterie/rng.h"
 #include "coterie/sweep.h"
 #include "coterie/util.h"
@@ -260,4 +261,87 @@ double test_sweeps_sum_exactly(struct model *m, const struct graph *g,
 	assert_int_equal(model_export(m, out), 0);
 	model_release(m);
 	return ll;
+}
+
+struct graph *test_load_text(const char *name, const char *text, const struct graph_load_opts *o)
+{
+	const char *dir = test_tmpdir();
+	struct graph *g = graph_load_with(test_write_file(dir, name, text), o);
+	assert_non_null(g);
+	assert_graph_sane(g);
+	test_rmtree(dir);
+	return g;
+}
+
+void test_random_rows(struct model *m, uint64_t seed)
+{
+	struct rng r;
+	rng_init(&r, seed);
+	struct fentry e[TEST_ROW_MAX_K];
+	assert_true(m->k <= TEST_ROW_MAX_K);
+	for (uint32_t u = 0; u < m->n; u++) {
+		uint32_t nnz = 0;
+		for (uint32_t c = 0; c < m->k; c++)
+			if (rng_uniform(&r) < 0.5)
+				e[nnz++] = (struct fentry){ c, 0.05 + rng_uniform(&r) };
+		assert_int_equal(model_set_row(m, u, e, nnz), 0);
+	}
+}
+
+/* The change of the row objective of u when its row becomes bump equals
+ * the change of recompute(): the row objective holds every term with u. */
+static void check_row_change(struct model *m, const struct graph *g, uint32_t u,
+			     const struct objective_ops *ops, void *w,
+			     double (*recompute)(const struct model *, const struct graph *))
+{
+	uint32_t k = m->k;
+	struct fentry bump[TEST_ROW_MAX_K], keep[TEST_ROW_MAX_K];
+	for (uint32_t c = 0; c < k; c++)
+		bump[c] = (struct fentry){ c, 0.3 + 0.1 * c };
+	double f0 = ops->row_objective(m, g, u, m->rows[u].e, m->rows[u].nnz, w);
+	double f1 = ops->row_objective(m, g, u, bump, k, w);
+	uint32_t kn = m->rows[u].nnz;
+	if (kn)
+		memcpy(keep, m->rows[u].e, kn * sizeof *keep);
+	double l0 = recompute(m, g);
+	assert_int_equal(model_set_row(m, u, bump, k), 0);
+	double l1 = recompute(m, g);
+	assert_int_equal(model_set_row(m, u, keep, kn), 0);
+	assert_true(fabs((f1 - f0) - (l1 - l0)) <= 1e-9 * (1.0 + fabs(l0)));
+}
+
+int test_check_row_gradient(struct model *m, const struct graph *g,
+			    const struct objective_ops *ops,
+			    double (*recompute)(const struct model *, const struct graph *))
+{
+	uint32_t k = m->k;
+	assert_true(k <= TEST_ROW_MAX_K);
+	void *w = ops->work_new(m);
+	assert_non_null(w);
+	double grad[TEST_ROW_MAX_K], h = 1e-6;
+	int checked = 0;
+	for (uint32_t u = 0; u < g->n; u += 7) {
+		ops->row_gradient(m, g, u, w, grad);
+		struct fentry row[TEST_ROW_MAX_K], lo[TEST_ROW_MAX_K], hi[TEST_ROW_MAX_K];
+		for (uint32_t i = 0; i < k; i++)
+			row[i] = (struct fentry){ i, 0.0 };
+		for (uint32_t i = 0; i < m->rows[u].nnz; i++)
+			row[m->rows[u].e[i].c].v = m->rows[u].e[i].v;
+		for (uint32_t c = 0; c < k; c++) {
+			memcpy(lo, row, k * sizeof *lo);
+			memcpy(hi, row, k * sizeof *hi);
+			/* central where the strength is positive, one-sided at 0 */
+			double cur = row[c].v, a = cur > h ? cur - h : cur;
+			lo[c].v = a;
+			hi[c].v = cur + h;
+			double fd = (ops->row_objective(m, g, u, hi, k, w) -
+				     ops->row_objective(m, g, u, lo, k, w)) / (cur + h - a);
+			assert_true(fabs(fd - grad[c]) <= 1e-4 * (1.0 + fabs(grad[c])));
+			checked++;
+		}
+		if (recompute)
+			check_row_change(m, g, u, ops, w, recompute);
+	}
+	ops->work_free(w);
+	return checked;
 }

@@ -33,6 +33,28 @@ double test_sweeps_sum_exactly(struct model *m, const struct graph *g,
 			       double (*recompute)(const struct model *, const struct graph *),
 			       double rel, struct fcsr *out);
 
+/* A graph loaded from text written to a file called name (its extension
+ * picks the format under GRAPH_FORMAT_AUTO) in a fresh temporary folder,
+ * with the options o (borrowed; NULL: the defaults), checked with
+ * assert_graph_sane(). Caller frees with graph_free(). */
+struct graph_load_opts;
+struct graph *test_load_text(const char *name, const char *text, const struct graph_load_opts *o);
+
+/* The most columns the row helpers below take. */
+#define TEST_ROW_MAX_K 16u
+/* Fill every row of m (k <= TEST_ROW_MAX_K) from seed: each strength
+ * present with probability 1/2, uniform in [0.05, 1.05). */
+void test_random_rows(struct model *m, uint64_t seed);
+/* ops's row gradient against central finite differences of its row
+ * objective (one-sided at a zero strength; step 1e-6, agreement within
+ * 1e-4 (1 + |g|)) for rows 0, 7, 14, ... of m; with recompute (else NULL),
+ * also that moving a row changes the row objective as much as
+ * recompute(m, g) (within 1e-9 (1 + |l|)), the row put back after.
+ * Returns the number of derivatives checked. */
+int test_check_row_gradient(struct model *m, const struct graph *g,
+			    const struct objective_ops *ops,
+			    double (*recompute)(const struct model *, const struct graph *));
+
 /* Path of a file under tests/data (static buffer; copy if you keep it). */
 const char *test_data(const char *rel);
 /* A fresh empty temporary folder (static buffer), removed by nothing:

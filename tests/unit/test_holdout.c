@@ -137,6 +137,23 @@ static void test_split_refuses_what_it_cannot_do(void **state)
 	graph_free(g);
 }
 
+/* The small model of the hand examples below: 4 nodes, one community,
+ * F = (1, 1, 0.5, 0); held out the edge 0-1 and the non-edges 0-2, 2-3.
+ * Everything points into static arrays: nothing to release. */
+static void hand_model(struct holdout *h, struct fcsr *F)
+{
+	static uint32_t he[] = { 0, 1 }, hn[] = { 0, 2, 2, 3 };
+	static uint64_t off[] = { 0, 1, 2, 3, 3 };
+	static struct fentry e[] = { { 0, 1.0 }, { 0, 1.0 }, { 0, 0.5 } };
+	static double colsum[] = { 2.5 };
+	memset(h, 0, sizeof *h);
+	h->edges = he;
+	h->nedges = 1;
+	h->non = hn;
+	h->nnon = 2;
+	*F = (struct fcsr){ 4, 1, off, e, colsum, NULL };
+}
+
 static void test_score_matches_definition_on_a_small_model(void **state)
 {
 	(void)state;
@@ -146,16 +163,8 @@ static void test_score_matches_definition_on_a_small_model(void **state)
 	 * loglik = log(1 - e^{-(1 + qeps)}) - (0.5 + qeps) - (0 + qeps)
 	 * AUC: the edge (1) beats both non-edges (0.5, 0): 1 */
 	struct holdout h;
-	memset(&h, 0, sizeof h);
-	uint32_t he[] = { 0, 1 }, hn[] = { 0, 2, 2, 3 };
-	h.edges = he;
-	h.nedges = 1;
-	h.non = hn;
-	h.nnon = 2;
-	uint64_t off[] = { 0, 1, 2, 3, 3 };
-	struct fentry e[] = { { 0, 1.0 }, { 0, 1.0 }, { 0, 0.5 } };
-	double colsum[] = { 2.5 };
-	struct fcsr F = { 4, 1, off, e, colsum, NULL };
+	struct fcsr F;
+	hand_model(&h, &F);
 	double l, auc, qeps = -log(0.9);
 	assert_int_equal(holdout_score(&h, &F, 0.1, MODEL_BIGCLAM, &l, &auc), 0);
 	double want = log(1.0 - exp(-(1.0 + qeps))) - (0.5 + qeps) - qeps;
@@ -166,12 +175,7 @@ static void test_score_matches_definition_on_a_small_model(void **state)
 /* A graph read from text (arcs, two-mode links or weighted edges). */
 static struct graph *load_text(const char *text, const struct graph_load_opts *o)
 {
-	const char *dir = test_tmpdir();
-	struct graph *g = graph_load_with(test_write_file(dir, "g.tsv", text), o);
-	assert_non_null(g);
-	assert_graph_sane(g);
-	test_rmtree(dir);
-	return g;
+	return test_load_text("g.tsv", text, o);
 }
 
 /* Random lines "a<TAB>b[<TAB>w]" over n names, each pair with probability p. */
@@ -271,18 +275,10 @@ static void test_poisson_score_matches_definition_on_a_small_model(void **state)
 	 * - log 3! - (1 + qeps); the non-edges (weight 0): -(0.5 + qeps) and
 	 * -(0 + qeps). log 3! = log 6 = lgamma(4). AUC as before: 1. */
 	struct holdout h;
-	memset(&h, 0, sizeof h);
-	uint32_t he[] = { 0, 1 }, hn[] = { 0, 2, 2, 3 };
+	struct fcsr F;
+	hand_model(&h, &F);
 	double w[] = { 3.0 };
-	h.edges = he;
 	h.wedges = w;
-	h.nedges = 1;
-	h.non = hn;
-	h.nnon = 2;
-	uint64_t off[] = { 0, 1, 2, 3, 3 };
-	struct fentry e[] = { { 0, 1.0 }, { 0, 1.0 }, { 0, 0.5 } };
-	double colsum[] = { 2.5 };
-	struct fcsr F = { 4, 1, off, e, colsum, NULL };
 	double l, auc, qeps = -log(0.9);
 	assert_int_equal(holdout_score(&h, &F, 0.1, MODEL_POISSON, &l, &auc), 0);
 	double want = 3.0 * log(1.0 + qeps) - log(6.0) - (1.0 + qeps) - (0.5 + qeps) - qeps;

@@ -33,15 +33,9 @@
 
 static struct graph *load_text_w(const char *text, int two_mode, int weighted)
 {
-	const char *dir = test_tmpdir();
-	const char *path = test_write_file(dir, "d.tsv", text);
 	struct graph_load_opts o = { .directed = !two_mode, .two_mode = two_mode,
 				     .weighted = weighted };
-	struct graph *g = graph_load_with(path, &o);
-	assert_non_null(g);
-	assert_graph_sane(g);
-	test_rmtree(dir);
-	return g;
+	return test_load_text("d.tsv", text, &o);
 }
 
 static struct graph *load_text(const char *text, int two_mode)
@@ -168,20 +162,6 @@ static char *random_arcs(uint32_t n, double pin, double pout, uint64_t seed)
 	return random_arcs_w(n, pin, pout, seed, 0);
 }
 
-static void random_rows(struct model *m, uint64_t seed)
-{
-	struct rng r;
-	rng_init(&r, seed);
-	struct fentry e[4];
-	for (uint32_t u = 0; u < m->n; u++) {
-		uint32_t nnz = 0;
-		for (uint32_t c = 0; c < m->k; c++)
-			if (rng_uniform(&r) < 0.5)
-				e[nnz++] = (struct fentry){ c, 0.05 + rng_uniform(&r) };
-		assert_int_equal(model_set_row(m, u, e, nnz), 0);
-	}
-}
-
 static void test_gradient_matches_finite_differences(void **state)
 {
 	(void)state;
@@ -191,49 +171,14 @@ static void test_gradient_matches_finite_differences(void **state)
 	struct model m;
 	struct graph *sp, *view;
 	sided_model(&m, g, 4, 0.01, &sp, &view);
-	random_rows(&m, 4);
+	test_random_rows(&m, 4);
 	/* the summed pieces are the pair-by-pair definition */
 	double l = model_loglik(&m, g), lp = model_directed_loglik_pairs(&m, g);
 	assert_true(fabs(l - lp) <= 1e-10 * fabs(lp));
-	const struct objective_ops *ops = model_objective_of(MODEL_DIRECTED);
-	void *w = ops->work_new(&m);
-	double grad[4], h = 1e-6;
-	int checked = 0;
-	for (uint32_t u = 0; u < g->n; u += 7) {
-		ops->row_gradient(&m, g, u, w, grad);
-		for (uint32_t c = 0; c < 4; c++) {
-			struct fentry lo[4], hi[4];
-			for (uint32_t i = 0; i < 4; i++)
-				lo[i] = hi[i] = (struct fentry){ i, 0.0 };
-			for (uint32_t i = 0; i < m.rows[u].nnz; i++)
-				lo[m.rows[u].e[i].c].v = hi[m.rows[u].e[i].c].v = m.rows[u].e[i].v;
-			double cur = lo[c].v, a = cur > h ? cur - h : cur;
-			lo[c].v = a;
-			hi[c].v = cur + h;
-			double fd = (ops->row_objective(&m, g, u, hi, 4, w) -
-				     ops->row_objective(&m, g, u, lo, 4, w)) / (cur + h - a);
-			assert_true(fabs(fd - grad[c]) <= 1e-4 * (1.0 + fabs(grad[c])));
-			checked++;
-		}
-		/* the row objective holds every term with u: its change is l's */
-		struct fentry bump[4];
-		uint32_t nnz = 0;
-		for (uint32_t c = 0; c < 4; c++)
-			bump[nnz++] = (struct fentry){ c, 0.3 + 0.1 * c };
-		double f0 = ops->row_objective(&m, g, u, m.rows[u].e, m.rows[u].nnz, w);
-		double f1 = ops->row_objective(&m, g, u, bump, nnz, w);
-		struct fentry keep[4];
-		uint32_t kn = m.rows[u].nnz;
-		if (kn)
-			memcpy(keep, m.rows[u].e, kn * sizeof *keep);
-		double l0 = model_directed_loglik_pairs(&m, g);
-		assert_int_equal(model_set_row(&m, u, bump, nnz), 0);
-		double l1 = model_directed_loglik_pairs(&m, g);
-		assert_int_equal(model_set_row(&m, u, keep, kn), 0);
-		assert_true(fabs((f1 - f0) - (l1 - l0)) <= 1e-9 * (1.0 + fabs(l0)));
-	}
+	/* the row objective holds every term with u: its change is l's */
+	int checked = test_check_row_gradient(&m, g, model_objective_of(MODEL_DIRECTED),
+					      model_directed_loglik_pairs);
 	assert_true(checked >= 60);
-	ops->work_free(w);
 	model_release(&m);
 	graph_free(sp);
 	graph_free(view);
@@ -388,50 +333,14 @@ static void test_weighted_gradient_matches_finite_differences(void **state)
 		struct model m;
 		struct graph *sp, *view;
 		sided_model(&m, g, 4, 0.01, &sp, &view);
-		random_rows(&m, 4);
+		test_random_rows(&m, 4);
 		double l = model_poisson_loglik(&m, g), lp = poisson_pairs(&m, g);
 		assert_true(fabs(l - lp) <= 1e-10 * fabs(lp));
-		const struct objective_ops *ops =
-			model_objective_of(two_mode ? MODEL_TWO_MODE_POISSON : MODEL_DIRECTED_POISSON);
-		void *w = ops->work_new(&m);
-		double grad[4], h = 1e-6;
-		int checked = 0;
-		for (uint32_t u = 0; u < g->n; u += 7) {
-			ops->row_gradient(&m, g, u, w, grad);
-			struct fentry row[4];
-			for (uint32_t i = 0; i < 4; i++)
-				row[i] = (struct fentry){ i, 0.0 };
-			for (uint32_t i = 0; i < m.rows[u].nnz; i++)
-				row[m.rows[u].e[i].c].v = m.rows[u].e[i].v;
-			for (uint32_t c = 0; c < 4; c++) {
-				struct fentry lo[4], hi[4];
-				memcpy(lo, row, sizeof lo);
-				memcpy(hi, row, sizeof hi);
-				double cur = row[c].v, a = cur > h ? cur - h : cur;
-				lo[c].v = a;
-				hi[c].v = cur + h;
-				double fd = (ops->row_objective(&m, g, u, hi, 4, w) -
-					     ops->row_objective(&m, g, u, lo, 4, w)) / (cur + h - a);
-				assert_true(fabs(fd - grad[c]) <= 1e-4 * (1.0 + fabs(grad[c])));
-				checked++;
-			}
-			struct fentry bump[4];
-			for (uint32_t c = 0; c < 4; c++)
-				bump[c] = (struct fentry){ c, 0.3 + 0.1 * c };
-			double f0 = ops->row_objective(&m, g, u, m.rows[u].e, m.rows[u].nnz, w);
-			double f1 = ops->row_objective(&m, g, u, bump, 4, w);
-			struct fentry keep[4];
-			uint32_t kn = m.rows[u].nnz;
-			if (kn)
-				memcpy(keep, m.rows[u].e, kn * sizeof *keep);
-			double l0 = poisson_pairs(&m, g);
-			assert_int_equal(model_set_row(&m, u, bump, 4), 0);
-			double l1 = poisson_pairs(&m, g);
-			assert_int_equal(model_set_row(&m, u, keep, kn), 0);
-			assert_true(fabs((f1 - f0) - (l1 - l0)) <= 1e-9 * (1.0 + fabs(l0)));
-		}
+		int checked = test_check_row_gradient(
+			&m, g,
+			model_objective_of(two_mode ? MODEL_TWO_MODE_POISSON : MODEL_DIRECTED_POISSON),
+			poisson_pairs);
 		assert_true(checked >= 60);
-		ops->work_free(w);
 		model_release(&m);
 		graph_free(sp);
 		graph_free(view);

@@ -51,16 +51,9 @@
  */
 static struct graph *hand_graph(void)
 {
-	const char *dir = test_tmpdir();
 	/* the a-b weight comes as 1.5 + 0.5 (a duplicate, reversed) */
-	const char *path = test_write_file(dir, "w.tsv", "a\tb\t1.5\nb\tc\t1\nc\td\t3\na\tc\t1\n"
-							  "b\ta\t0.5\n");
 	struct graph_load_opts o = { .weighted = 1 };
-	struct graph *g = graph_load_with(path, &o);
-	assert_non_null(g);
-	assert_graph_sane(g);
-	test_rmtree(dir);
-	return g;
+	return test_load_text("w.tsv", "a\tb\t1.5\nb\tc\t1\nc\td\t3\na\tc\t1\nb\ta\t0.5\n", &o);
 }
 
 static void hand_model(struct model *m)
@@ -134,53 +127,15 @@ static struct graph *random_weighted(uint64_t seed)
 	return g;
 }
 
-static void random_rows(struct model *m, uint64_t seed)
-{
-	struct rng r;
-	rng_init(&r, seed);
-	for (uint32_t u = 0; u < m->n; u++) {
-		struct fentry e[4];
-		uint32_t nnz = 0;
-		for (uint32_t c = 0; c < m->k; c++)
-			if (rng_uniform(&r) < 0.5)
-				e[nnz++] = (struct fentry){ c, 0.05 + rng_uniform(&r) };
-		assert_int_equal(model_set_row(m, u, e, nnz), 0);
-	}
-}
-
 static void test_gradient_matches_finite_differences(void **state)
 {
 	(void)state;
 	struct graph *g = random_weighted(3);
 	struct model m;
 	assert_int_equal(model_init(&m, g->n, 4, 0.01), 0);
-	random_rows(&m, 4);
-	const struct objective_ops *ops = model_poisson_objective();
-	void *w = ops->work_new(&m);
-	double grad[4], h = 1e-6;
-	int checked = 0;
-	for (uint32_t u = 0; u < g->n; u += 7) {
-		ops->row_gradient(&m, g, u, w, grad);
-		for (uint32_t c = 0; c < 4; c++) {
-			struct fentry lo[4], hi[4];
-			double cur = 0.0;
-			for (uint32_t i = 0; i < 4; i++)
-				lo[i] = hi[i] = (struct fentry){ i, 0.0 };
-			for (uint32_t i = 0; i < m.rows[u].nnz; i++)
-				lo[m.rows[u].e[i].c].v = hi[m.rows[u].e[i].c].v = m.rows[u].e[i].v;
-			cur = lo[c].v;
-			/* central where the strength is positive, one-sided at 0 */
-			double a = cur > h ? cur - h : cur;
-			lo[c].v = a;
-			hi[c].v = cur + h;
-			double fd = (ops->row_objective(&m, g, u, hi, 4, w) -
-				     ops->row_objective(&m, g, u, lo, 4, w)) / (cur + h - a);
-			assert_true(fabs(fd - grad[c]) <= 1e-4 * (1.0 + fabs(grad[c])));
-			checked++;
-		}
-	}
+	test_random_rows(&m, 4);
+	int checked = test_check_row_gradient(&m, g, model_poisson_objective(), NULL);
 	assert_true(checked >= 30);
-	ops->work_free(w);
 	model_release(&m);
 	graph_free(g);
 }
