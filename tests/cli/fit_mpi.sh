@@ -14,11 +14,7 @@ football=$DATA/football/edges.tsv
 need_file "$football"
 
 # --- the same answer ------------------------------------------------------------
-# A planted graph large enough that a block has many rows to share (blocks
-# hold up to n/64 nodes; football's 115 nodes make blocks of one).
-"$BIN" simulate -n 3000 --sizes 20:150 --mean-degree 10 --seed 9 -o "$tmp/planted" -q
-planted=$tmp/planted/edges.tsv
-need_file "$planted"
+mpi_planted
 
 A="-k 12 --seed 3 --epsilon 0.05"
 "$BIN" fit "$football" $A -j 1 -q -o "$tmp/fb1"
@@ -48,35 +44,13 @@ check "coterie-mpi show: refused with exit 2 (fit is its one command)" [ $? -eq 
 
 # --- interrupts and resume --------------------------------------------------------
 # interrupt_run NAME TARGET SIGNAL GRAPH OPTIONS: a fit on 2 processes,
-# sent SIGNAL at rank0, rank1 or mpirun once progress shows; leaves mpirun's
-# status in $st. (mpirun itself is run in the background, so that $! is
-# its pid; a background job of sh ignores SIGINT, rank 0 does not.)
+# sent SIGNAL at rank0, rank1 or mpirun once progress shows (signal_job);
+# leaves mpirun's status in $st.
 interrupt_run()
 {
 	# shellcheck disable=SC2086
 	"$MPIRUN" $MPIFLAGS -np 2 "$MPIBIN" fit "$4" $5 -j 1 -o "$tmp/$1" 2>"$tmp/$1.err" &
-	mp=$!
-	st=255
-	if ! wait_for_grep 'sweep [0-9]' "$tmp/$1.err" 60 2; then
-		fail "$1: the fit shows progress before the signal"
-		stop_job "$mp"
-		return
-	fi
-	if [ "$2" = rank0 ] || [ "$2" = rank1 ]; then
-		n=${2#rank}
-		target=$(rank_pid "$mp" "$n") || { fail "$1: rank $n found"; stop_job "$mp"; return; }
-	else
-		target=$mp
-	fi
-	kill -"$3" "$target"
-	if ! wait_gone "$mp" 60; then
-		fail "$1: every process ends after the signal"
-		stop_job "$mp"
-		return
-	fi
-	wait "$mp"
-	st=$?
-	pass "$1: every process ends after SIG$3"
+	signal_job "$1" $! "$tmp/$1.err" 'sweep [0-9]' 2 "$2" "$3"
 }
 
 # (the planted graph: about 10 ms a sweep on one process, 400 sweeps)

@@ -28,9 +28,7 @@ mpi 3 fit "$football" $A -j 2 -q -o "$tmp/fb3"
 same_choice "$tmp/fb" "$tmp/fb3" "football -k auto, 3 processes x 2 threads"
 
 # --- the search by the shape (one fold: warm starts cross processes) --------------
-"$BIN" simulate -n 3000 --sizes 20:150 --mean-degree 10 --seed 9 -o "$tmp/planted" -q
-planted=$tmp/planted/edges.tsv
-need_file "$planted"
+mpi_planted
 B="-k auto --holdout 0.2 --seed 2"
 "$BIN" fit "$planted" $B -j 2 -q -o "$tmp/pl"
 check "planted: the search is by the shape" grep -q '"search": "shape"' "$tmp/pl/run.json"
@@ -47,25 +45,7 @@ same_choice "$tmp/pl" "$tmp/pl3" "planted -k auto, 3 processes x 1 thread"
 # about 2 s of search after k 2 is scored); every process exits 130.
 # shellcheck disable=SC2086
 "$MPIRUN" $MPIFLAGS -np 2 "$MPIBIN" fit "$football" $A -j 1 -o "$tmp/int" 2>"$tmp/int.err" &
-mp=$!
-st=255
-if ! wait_for_grep 'choosing k: k [0-9]' "$tmp/int.err" 60; then
-	fail "interrupted -k auto: the search shows progress before the signal"
-	stop_job "$mp"
-elif ! r1=$(rank_pid "$mp" 1); then
-	fail "interrupted -k auto: rank 1 found"
-	stop_job "$mp"
-else
-	kill -INT "$r1"
-	if wait_gone "$mp" 60; then
-		wait "$mp"
-		st=$?
-		pass "interrupted -k auto: every process ends after SIGINT to rank 1"
-	else
-		fail "interrupted -k auto: every process ends after SIGINT to rank 1"
-		stop_job "$mp"
-	fi
-fi
+signal_job "interrupted -k auto" $! "$tmp/int.err" 'choosing k: k [0-9]' 1 rank1 INT
 check "interrupted -k auto: exit status 130 ($st)" [ "$st" -eq 130 ]
 check "interrupted -k auto: rank 0 says so" grep -q "interrupted while choosing k" "$tmp/int.err"
 check "interrupted -k auto: no fit written" [ ! -e "$tmp/int/memberships.tsv" ]

@@ -19,9 +19,7 @@ COTERIE_MPI_BIN=${COTERIE_MPICH_BIN:-$(dirname "$BIN")/coterie-mpi-mpich}
 COTERIE_MPIRUN=mpirun.mpich
 . "$(dirname "$0")/mpi_lib"
 
-"$BIN" simulate -n 3000 --sizes 20:150 --mean-degree 10 --seed 9 -o "$tmp/planted" -q
-planted=$tmp/planted/edges.tsv
-need_file "$planted"
+mpi_planted
 
 B="-k 40 --seed 4 --starts 2 --max-sweeps 40 --epsilon 1e-4"
 "$BIN" fit "$planted" $B -j 1 -q -o "$tmp/pl"
@@ -39,25 +37,7 @@ same_choice "$tmp/auto" "$tmp/auto2" "MPICH, planted -k auto, 2 processes"
 # process stops at the same block, rank 0 writes, all exit 130.
 C="-k 40 --seed 6 --starts 1 --past-plateau --max-sweeps 400 --epsilon 1e-4"
 "$MPIRUN" -np 2 "$MPIBIN" fit "$planted" $C -j 1 -o "$tmp/int" 2>"$tmp/int.err" &
-mp=$!
-st=255
-if ! wait_for_grep 'sweep [0-9]' "$tmp/int.err" 60 2; then
-	fail "MPICH interrupt: the fit shows progress before the signal"
-	stop_job "$mp"
-elif ! r1=$(rank_pid "$mp" 1); then
-	fail "MPICH interrupt: rank 1 found"
-	stop_job "$mp"
-else
-	kill -INT "$r1"
-	if wait_gone "$mp" 60; then
-		wait "$mp"
-		st=$?
-		pass "MPICH interrupt: every process ends after SIGINT to rank 1"
-	else
-		fail "MPICH interrupt: every process ends after SIGINT to rank 1"
-		stop_job "$mp"
-	fi
-fi
+signal_job "MPICH interrupt" $! "$tmp/int.err" 'sweep [0-9]' 2 rank1 INT
 check "MPICH interrupt: exit status 130 ($st)" [ "$st" -eq 130 ]
 check "MPICH interrupt: run.json says interrupted" grep -q '"status": "interrupted"' "$tmp/int/run.json"
 

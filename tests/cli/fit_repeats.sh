@@ -19,33 +19,7 @@
 eps=$(json_get "$tmp/g/simulate.json" mixing.epsilon)
 "$BIN" fit "$tmp/g/edges.tsv" -k 24 --epsilon "$eps" --repeats 5 -j 2 -q -o "$tmp/f"
 check "fit --repeats 5 writes a result" [ -s "$tmp/f/communities.tsv" ]
-"$PY" - "$tmp/f" "$tmp/g/truth.tsv" >"$tmp/planted.out" 2>&1 <<'PYEOF'
-import sys, csv, json
-folder, truth = sys.argv[1], sys.argv[2]
-def cover(path):
-    d = {}
-    with open(path) as f:
-        next(f)
-        for line in f:
-            p = line.rstrip('\n').split('\t')
-            d.setdefault(p[1], set()).add(p[0])
-    return d
-found, planted = cover(folder + '/memberships.tsv'), cover(truth)
-with open(folder + '/communities.tsv') as f:
-    rows = list(csv.DictReader(f, delimiter='\t'))
-assert list(rows[0].keys())[-1] == 'stability', rows[0].keys()
-stab = {r['community']: float(r['stability']) for r in rows if r['stability'] != 'NA'}
-assert all(0 <= s <= 1 for s in stab.values()), stab
-assert set(stab) == set(found), (set(stab), set(found))
-match, other = [], []
-for c, mem in found.items():
-    best = max(len(mem & s) / len(mem | s) for s in planted.values())
-    (match if best >= 0.5 else other).append(stab[c])
-mm, mo = sum(match) / len(match), sum(other) / len(other)
-print("# %d matching a planted community: mean stability %.3f; %d others: %.3f"
-      % (len(match), mm, len(other), mo))
-assert match and other and mm > mo, (mm, mo)
-PYEOF
+"$PY" "$cli_here/stability_planted.py" "$tmp/f" "$tmp/g/truth.tsv" 0 >"$tmp/planted.out" 2>&1
 check "planted: communities matching a planted one are more stable than the others" [ $? -eq 0 ]
 sed 's/^\([^#]\)/# \1/' "$tmp/planted.out"
 
