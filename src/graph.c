@@ -147,15 +147,10 @@ int graph_has_edge(const struct graph *g, uint32_t u, uint32_t v)
 		u = v;
 		v = t;
 	}
-	uint64_t lo = g->off[u], hi = g->off[u + 1];
-	while (lo < hi) {
-		uint64_t mid = lo + (hi - lo) / 2;
-		if (g->adj[mid] < v)
-			lo = mid + 1;
-		else
-			hi = mid;
-	}
-	return lo < g->off[u + 1] && g->adj[lo] == v;
+	const uint32_t *a = g->adj + g->off[u];
+	uint32_t deg = graph_degree(g, u);
+	size_t i = util_lower_bound_u32(a, deg, v);
+	return i < deg && a[i] == v;
 }
 
 /* Hash len words of width bytes (8 or 4) at a as little-endian bytes, so

@@ -310,15 +310,7 @@ static int plant_counts(const struct simulate_params *p, uint8_t *m, uint32_t *p
 /* Members of community c of cv below n1 (members are increasing). */
 static uint64_t first_kind_count(const struct cover *cv, uint32_t c, uint32_t n1)
 {
-	uint64_t lo = cv->off[c], hi = cv->off[c + 1];
-	while (lo < hi) {
-		uint64_t mid = lo + (hi - lo) / 2;
-		if (cv->mem[mid] < n1)
-			lo = mid + 1;
-		else
-			hi = mid;
-	}
-	return lo - cv->off[c];
+	return util_lower_bound_u32(cv->mem + cv->off[c], cv->off[c + 1] - cv->off[c], n1);
 }
 
 static int holds(const struct cover *cv, uint32_t c, uint32_t u)
