@@ -131,16 +131,26 @@ int agm_from_strengths_trimmed(struct agm *out, const struct graph *g, struct fc
 	if (g->nsend) /* the two-sided models read their covers by side */
 		return 0;
 	struct agm trimmed;
-	if (agm_trim(g, F, epsilon, delta, min_links) ||
-	    agm_from_strengths(&trimmed, g, F, epsilon, delta, min_links)) {
+	if (agm_trim(g, F, epsilon, delta, min_links)) {
+		agm_release(out);
+		return -1;
+	}
+	/* no column ends sooner (or none was read): the trimmed cover is this
+	 * one and its AGM the same bits, kept as an equal likelihood is below;
+	 * not built twice (the live snapshots of a fit's first sweeps) */
+	uint32_t sooner = 0;
+	for (uint32_t c = 0; F->thr && c < F->k; c++)
+		sooner += F->thr[c] > delta;
+	if (!sooner)
+		return 0;
+	if (agm_from_strengths(&trimmed, g, F, epsilon, delta, min_links)) {
 		agm_release(out);
 		return -1;
 	}
 	if (trimmed.loglik >= out->loglik) { /* the AGM's likelihood must not fall */
 		agm_release(out);
 		*out = trimmed;
-		for (uint32_t c = 0; c < F->k; c++)
-			out->ended_sooner += F->thr[c] > delta;
+		out->ended_sooner += sooner;
 	} else {
 		agm_release(&trimmed);
 		free(F->thr);
