@@ -8,11 +8,13 @@
 #include <string.h>
 #include <unistd.h>
 
+#include "coterie/checkpoint.h"
 #include "coterie/cover.h"
 #include "coterie/fit.h"
 #include "coterie/graph.h"
 #include "coterie/model.h"
 #include "coterie/objective.h"
+#include "coterie/result.h"
 #include "coterie/rng.h"
 #include "coterie/sweep.h"
 #include "coterie/util.h"
@@ -344,4 +346,19 @@ int test_check_row_gradient(struct model *m, const struct graph *g,
 	}
 	ops->work_free(w);
 	return checked;
+}
+
+void test_checkpoint_round_trip(const struct graph *g, const struct fit_params *p,
+				struct checkpoint *ck)
+{
+	struct snapshot *s = test_fit_to_end(g, p, NULL, NULL);
+	struct result_model rm;
+	result_model_of(&rm, s);
+	const char *dir = test_tmpdir();
+	char path[4096];
+	snprintf(path, sizeof path, "%s/ck.cot", dir);
+	assert_int_equal(checkpoint_write(path, g, p, &rm), 0);
+	assert_int_equal(checkpoint_read(path, ck), 0);
+	snapshot_release(s);
+	test_rmtree(dir);
 }

@@ -88,4 +88,11 @@ void test_make_cover(struct cover *c, uint32_t n, uint32_t k, const uint32_t *si
 struct snapshot *test_fit_to_end(const struct graph *g, const struct fit_params *p,
 				 const struct fit_origin *o, int *state);
 
+/* Fit g with p to its end (test_fit_to_end()), write the checkpoint
+ * (checkpoint_write()) in a temporary folder, removed after, and read it
+ * back into *ck: the caller releases it with checkpoint_release(). */
+struct checkpoint;
+void test_checkpoint_round_trip(const struct graph *g, const struct fit_params *p,
+				struct checkpoint *ck);
+
 #endif

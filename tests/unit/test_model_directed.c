@@ -230,22 +230,13 @@ static void test_checkpoint_keeps_the_sides(void **state)
 		p.model = two_mode ? MODEL_TWO_MODE : MODEL_DIRECTED;
 		p.starts = 1;
 		p.epsilon = 0.01;
-		struct snapshot *s = test_fit_to_end(g, &p, NULL, NULL);
-		struct result_model rm;
-		result_model_of(&rm, s);
-		const char *dir = test_tmpdir();
-		char path[4096];
-		snprintf(path, sizeof path, "%s/ck.cot", dir);
-		assert_int_equal(checkpoint_write(path, g, &p, &rm), 0);
 		struct checkpoint ck;
-		assert_int_equal(checkpoint_read(path, &ck), 0);
+		test_checkpoint_round_trip(g, &p, &ck);
 		assert_int_equal(ck.params.model, p.model);
 		assert_int_equal(ck.graph->nsend, g->nsend);
 		assert_int_equal(ck.graph->paired, !two_mode);
 		assert_true(graph_fingerprint(ck.graph) == graph_fingerprint(g));
 		checkpoint_release(&ck);
-		snapshot_release(s);
-		test_rmtree(dir);
 		graph_free(g);
 	}
 }
@@ -409,23 +400,14 @@ static void test_checkpoint_keeps_the_sides_and_the_weights(void **state)
 		p.model = two_mode ? MODEL_TWO_MODE_POISSON : MODEL_DIRECTED_POISSON;
 		p.starts = 1;
 		p.epsilon = 0.01;
-		struct snapshot *s = test_fit_to_end(g, &p, NULL, NULL);
-		struct result_model rm;
-		result_model_of(&rm, s);
-		const char *dir = test_tmpdir();
-		char path[4096];
-		snprintf(path, sizeof path, "%s/ck.cot", dir);
-		assert_int_equal(checkpoint_write(path, g, &p, &rm), 0);
 		struct checkpoint ck;
-		assert_int_equal(checkpoint_read(path, &ck), 0);
+		test_checkpoint_round_trip(g, &p, &ck);
 		assert_int_equal(ck.params.model, p.model);
 		assert_int_equal(ck.graph->nsend, g->nsend);
 		assert_int_equal(ck.graph->paired, !two_mode);
 		assert_non_null(ck.graph->wt);
 		assert_memory_equal(ck.graph->wt, g->wt, g->off[g->n] * sizeof *g->wt);
 		checkpoint_release(&ck);
-		snapshot_release(s);
-		test_rmtree(dir);
 		graph_free(g);
 	}
 }

@@ -283,22 +283,13 @@ static void test_checkpoint_keeps_the_model_and_the_weights(void **state)
 	p.k = 2;
 	p.model = MODEL_POISSON;
 	p.starts = 1;
-	struct snapshot *s = test_fit_to_end(g, &p, NULL, NULL);
-	struct result_model rm;
-	result_model_of(&rm, s);
-	const char *dir = test_tmpdir();
-	char path[4096];
-	snprintf(path, sizeof path, "%s/ck.cot", dir);
-	assert_int_equal(checkpoint_write(path, g, &p, &rm), 0);
 	struct checkpoint ck;
-	assert_int_equal(checkpoint_read(path, &ck), 0);
+	test_checkpoint_round_trip(g, &p, &ck);
 	assert_int_equal(ck.params.model, MODEL_POISSON);
 	assert_non_null(ck.graph->wt);
 	assert_graph_sane(ck.graph);
 	assert_true(graph_total_weight(ck.graph) == 7.0);
 	checkpoint_release(&ck);
-	snapshot_release(s);
-	test_rmtree(dir);
 	graph_free(g);
 }
 
