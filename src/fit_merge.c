@@ -41,7 +41,24 @@
  * community (columns sharing 80-95% of their members, measured in
  * DEVELOPERS.md), not pieces that meet edge to edge, so the pairs between
  * are counted as they are, |A \ B| |B \ A| (apart), where BigCLAM's
- * count keeps its measured |A| |B|. Two-mode models have no move yet.
+ * count keeps its measured |A| |B|.
+ *
+ * Two-mode models (rows of two kinds, no view): the move is chosen on the
+ * bipartite graph itself, and a block is a rectangle. A column A has
+ * first-kind members S_A and second-kind R_A; its pairs are S_A x R_A
+ * (NA = |S_A| |R_A|, not |A| (|A| - 1) / 2), the pairs between two
+ * columns those of A \ B and B \ A of two kinds,
+ *     NX = |S_A \ S_B| |R_B \ R_A| + |S_B \ S_A| |R_A \ R_B|,
+ * (every edge met between A \ B and B \ A joins two kinds, so eX is
+ * counted as before), and the background's pairs are the first kind
+ * times the second less the rectangles. The LR above is unchanged with
+ * these counts (derivation in DEVELOPERS.md). An ego-net of a graph of
+ * two kinds is a star, whose pairs are all links (its block says
+ * nothing); a host is the rectangle two steps out instead (two_hop():
+ * the centre's partners P against the nodes of its kind with two links
+ * or more into P), valued as above (block likelihood of its links among
+ * its |S| |P| pairs less the model's). Hosts on stars were measured and
+ * did worse (DEVELOPERS.md).
  *
  * The one thing a newcomer gets wrong: the counts are of the cover read
  * at delta, not of the strengths; they only choose the pairs. Whether the
@@ -52,6 +69,7 @@
 #include <string.h>
 
 #include "coterie/agm.h"
+#include "coterie/graph.h"
 #include "coterie/rng.h"
 #include "coterie/util.h"
 #include "fit-internal.h"
@@ -121,6 +139,26 @@ static int colcover_build(struct colcover *cc, const struct model *m)
 	return 0;
 }
 
+/* A two-mode model's column c (members in row order): its first-kind
+ * members in *s, second-kind in *r. A one-mode column: all in *s, *r 0. */
+static void col_sides(const struct model *m, const struct colcover *cc, uint32_t c, double *s,
+		      double *r)
+{
+	uint64_t size = cc->off[c + 1] - cc->off[c];
+	uint64_t first = m->nsend ? util_lower_bound_u32(cc->mem + cc->off[c], size, m->nsend)
+				  : size;
+	*s = (double)first;
+	*r = (double)(size - first);
+}
+
+/* The pairs of column c: C(|c|, 2), or |S_c| |R_c| for a two-mode model. */
+static double col_pairs(const struct model *m, const struct colcover *cc, uint32_t c)
+{
+	double s, r;
+	col_sides(m, cc, c, &s, &r);
+	return m->nsend ? s * r : s * (s - 1) / 2;
+}
+
 /* Edges inside each column (both ends members): ein[k]. */
 static void count_inside(const struct model *m, const struct graph *g,
 			 const struct colcover *cc, uint64_t *ein, uint8_t *mark)
@@ -165,23 +203,26 @@ static double cover_background(const struct model *m, const struct graph *g,
 			       const struct colcover *cc)
 {
 	double pin = 0.0, n = (double)m->n;
-	for (uint32_t c = 0; c < m->k; c++) {
-		double s = (double)(cc->off[c + 1] - cc->off[c]);
-		pin += s * (s - 1) / 2;
-	}
+	for (uint32_t c = 0; c < m->k; c++)
+		pin += col_pairs(m, cc, c);
+	/* two-mode: pairs of two kinds only */
+	double all = m->nsend ? (double)m->nsend * (n - m->nsend) : n * (n - 1) / 2;
 	uint64_t out = 0;
 	for (uint32_t u = 0; u < g->n; u++)
 		for (uint64_t j = g->off[u]; j < g->off[u + 1]; j++)
 			if (g->adj[j] > u && !share_column(m, u, g->adj[j]))
 				out++;
-	double bg = (double)out / (n * (n - 1) / 2 - pin);
+	double bg = (double)out / (all - pin);
 	return bg > 0.0 && bg < m->epsilon ? bg : m->epsilon;
 }
 
-/* Add (or, with add 0, clear) row u's memberships at delta into ov. */
+/* Add (or, with add 0, clear) row u's memberships at delta into ov (a
+ * two-mode model's second-kind rows into ov + k). */
 static void count_shared(const struct model *m, uint32_t u, uint64_t *ov, int add)
 {
 	const struct frow *r = &m->rows[u];
+	if (m->nsend && u >= m->nsend)
+		ov += m->k;
 	for (uint32_t t = 0; t < r->nnz; t++)
 		if (r->e[t].v >= m->delta)
 			ov[r->e[t].c] = add ? ov[r->e[t].c] + 1 : 0;
@@ -195,7 +236,8 @@ static int64_t find_joins(const struct model *m, const struct graph *g,
 {
 	uint32_t k = m->k;
 	uint64_t *cnt = util_calloc(k, sizeof *cnt);
-	uint64_t *ov = apart ? util_calloc(k, sizeof *ov) : NULL; /* |A n B| */
+	/* |A n B| (two-mode: of the first kind, then k of the second) */
+	uint64_t *ov = apart ? util_calloc(m->nsend ? 2 * (size_t)k : k, sizeof *ov) : NULL;
 	uint32_t *touched = util_malloc(k, sizeof *touched);
 	uint64_t njoin = 0, cap = 0;
 	struct join *joins = NULL;
@@ -227,9 +269,15 @@ static int64_t find_joins(const struct model *m, const struct graph *g,
 			uint32_t b = touched[t];
 			double na = (double)(cc->off[a + 1] - cc->off[a]);
 			double nb = (double)(cc->off[b + 1] - cc->off[b]);
-			double NA = na * (na - 1) / 2, NB = nb * (nb - 1) / 2, NX = na * nb;
-			if (apart) /* the pairs between A \ B and B \ A only */
+			double NA = col_pairs(m, cc, a), NB = col_pairs(m, cc, b), NX = na * nb;
+			if (m->nsend) { /* two kinds: A \ B's first x B \ A's second, both ways */
+				double sa, ra, sb, rb, os = (double)ov[b], orr = (double)ov[k + b];
+				col_sides(m, cc, a, &sa, &ra);
+				col_sides(m, cc, b, &sb, &rb);
+				NX = (sa - os) * (rb - orr) + (sb - os) * (ra - orr);
+			} else if (apart) { /* the pairs between A \ B and B \ A only */
 				NX = (na - (double)ov[b]) * (nb - (double)ov[b]);
+			}
 			double eA = (double)ein[a], eB = (double)ein[b], eX = (double)cnt[b];
 			/* the log-likelihood ratio of the edges between: at the
 			 * union's density against the background */
@@ -266,6 +314,30 @@ out:
 	return rc;
 }
 
+/* A two-mode host: the rectangle of u's partners P (the other kind) and
+ * the nodes of u's kind with two links or more into P (u among them), at
+ * most MERGE_MAX_EGO of them, in ego: P first (*np of them), then the
+ * others; the count. cnt: n zeros, left zeroed. */
+static uint32_t two_hop(const struct graph *g, uint32_t u, uint32_t *ego, uint32_t *np,
+			uint32_t *cnt)
+{
+	uint32_t d = 0;
+	for (uint64_t j = g->off[u]; j < g->off[u + 1]; j++)
+		ego[d++] = g->adj[j];
+	*np = d;
+	uint32_t o = d;
+	for (uint32_t i = 0; i < d; i++)
+		for (uint64_t j = g->off[ego[i]]; j < g->off[ego[i] + 1]; j++)
+			if (++cnt[g->adj[j]] == 2 && o < d + MERGE_MAX_EGO)
+				ego[o++] = g->adj[j];
+	for (uint32_t i = 0; i < d; i++)
+		for (uint64_t j = g->off[ego[i]]; j < g->off[ego[i] + 1]; j++)
+			cnt[g->adj[j]] = 0;
+	if (o == d) /* u alone links to them: the star */
+		ego[o++] = u;
+	return o;
+}
+
 /* What a new column on u's ego-net (u and its neighbours, d + 1 nodes)
  * would gain, about: the block likelihood of its E edges among its
  * N = (d + 1) d / 2 pairs at their own density, less what the model
@@ -280,6 +352,27 @@ static double ego_value(const struct model *m, const struct graph *g, uint32_t u
 	for (uint64_t j = g->off[u]; j < g->off[u + 1]; j++)
 		ego[d++] = g->adj[j];
 	double E = 0.0, now = 0.0;
+	if (m->nsend) { /* two-mode: the rectangle's pairs */
+		uint32_t np, t = two_hop(g, u, ego, &np, nbr);
+		for (uint32_t i = np; i < t; i++) {
+			const struct frow *rw = &m->rows[ego[i]];
+			for (uint64_t j = g->off[ego[i]]; j < g->off[ego[i] + 1]; j++)
+				nbr[g->adj[j]] = 1;
+			for (uint32_t a = 0; a < np; a++) {
+				const struct frow *rv = &m->rows[ego[a]];
+				double x = model_dot(rv->e, rv->nnz, rw->e, rw->nnz) + m->qeps;
+				if (nbr[ego[a]]) {
+					E += 1.0;
+					now += model_log1mexp(x);
+				} else {
+					now -= x;
+				}
+			}
+			for (uint64_t j = g->off[ego[i]]; j < g->off[ego[i] + 1]; j++)
+				nbr[g->adj[j]] = 0;
+		}
+		return agm_block_loglik(E, (double)np * (t - np)) - now;
+	}
 	for (uint32_t i = 0; i < d; i++) {
 		uint32_t v = ego[i];
 		const struct frow *rv = &m->rows[v];
@@ -328,7 +421,7 @@ static int64_t pick_centres(const struct model *m, const struct graph *g, struct
 {
 	uint32_t tries = g->n < MERGE_SAMPLE ? g->n : MERGE_SAMPLE;
 	struct centre *cand = util_malloc(tries ? tries : 1, sizeof *cand);
-	uint32_t *ego = util_malloc(MERGE_MAX_EGO + 1, sizeof *ego);
+	uint32_t *ego = util_malloc(2 * MERGE_MAX_EGO + 1, sizeof *ego);
 	uint32_t *nbr = util_calloc(g->n, sizeof *nbr);
 	if (!cand || !ego || !nbr) {
 		free(cand);
@@ -467,30 +560,51 @@ static int collapse_sides(const struct model *m, const struct graph *view, struc
 
 /* Column c planted at strength 1 on the ego-net of centre (in the graph
  * pg the move was chosen on): on both rows of each node of a directed
- * model (pg its undirected view), else on the node's row. 0 or -1. */
+ * model (both: pg its undirected view), else on the node's row (a
+ * two-mode model's star, whose rows are pg's). 0 or -1. */
 static int plant_ego(struct model *m, const struct graph *pg, uint32_t centre, uint32_t col,
-		     struct fentry *buf)
+		     int both, struct fentry *buf)
 {
+	if (m->nsend && !both) { /* two-mode: the rectangle of two_hop() */
+		uint32_t *ego = util_malloc(2 * MERGE_MAX_EGO + 1, sizeof *ego);
+		uint32_t *cnt = util_calloc(pg->n, sizeof *cnt);
+		int rc = ego && cnt ? 0 : -1;
+		uint32_t np, t = rc ? 0 : two_hop(pg, centre, ego, &np, cnt);
+		for (uint32_t i = 0; i < t && !rc; i++)
+			rc = put_entry(m, ego[i], col, 1.0, buf);
+		free(ego);
+		free(cnt);
+		return rc;
+	}
 	for (uint64_t j = pg->off[centre]; j <= pg->off[centre + 1]; j++) {
 		uint32_t u = j < pg->off[centre + 1] ? pg->adj[j] : centre;
 		if (put_entry(m, u, col, 1.0, buf) ||
-		    (m->nsend && put_entry(m, m->nsend + u, col, 1.0, buf)))
+		    (both && put_entry(m, m->nsend + u, col, 1.0, buf)))
 			return -1;
 	}
 	return 0;
+}
+
+/* Column c's strength summed over every row (both sides of a two-mode
+ * model's column sums). */
+static double col_mass(const struct model *m, uint32_t c)
+{
+	return m->colsum[c] + (m->nsend ? m->colsum[m->k + c] : 0.0);
 }
 
 int fit_merge_move(struct fit *f, struct rng *r, uint32_t limit, uint32_t *made)
 {
 	struct model *m = &f->m;
 	*made = 0;
-	/* a directed model is judged on its undirected view; two-mode not yet */
-	if (m->k < 2 || f->gw->n == 0 || limit == 0 || (m->nsend && !f->view))
+	/* a directed model is judged on its undirected view, a two-mode one
+	 * (two-sided rows, no view) on its own graph of two kinds */
+	if (m->k < 2 || f->gw->n == 0 || limit == 0)
 		return 0;
 	struct model one;
 	const struct model *pm = m;      /* the model the move is chosen on */
 	const struct graph *g = f->gw;   /* and its graph */
-	if (m->nsend) {
+	int directed = m->nsend && f->view;
+	if (directed) {
 		if (collapse_sides(m, f->view, &one))
 			return -1;
 		pm = &one;
@@ -530,7 +644,7 @@ int fit_merge_move(struct fit *f, struct rng *r, uint32_t limit, uint32_t *made)
 		if (taken[a] || taken[b])
 			continue;
 		taken[a] = taken[b] = 1;
-		uint32_t keep = pm->colsum[a] >= pm->colsum[b] ? a : b;
+		uint32_t keep = col_mass(pm, a) >= col_mass(pm, b) ? a : b;
 		uint32_t drop = keep == a ? b : a;
 		into[drop] = (int32_t)keep;
 		freed[nfreed++] = drop;
@@ -545,7 +659,7 @@ int fit_merge_move(struct fit *f, struct rng *r, uint32_t limit, uint32_t *made)
 		if (rewrite_row(m, u, into, buf))
 			goto out;
 	for (uint32_t i = 0; i < nfreed; i++)
-		if (plant_ego(m, g, cen[i].u, freed[i], buf))
+		if (plant_ego(m, g, cen[i].u, freed[i], directed, buf))
 			goto out;
 	model_recount(m);
 	rc = 1;

@@ -13,7 +13,10 @@
  * side, its kind's.
  *
  * communities.tsv's figures are model_directed_figures()'s (shared with
- * the explorer), its last column fit --repeats' stability by column.
+ * the explorer), then fit --repeats' stability by column, and for a
+ * weighted fit the observed and expected weight on the community's
+ * (sending, receiving) pairs (result_weight_sided_figures()), after it as
+ * in a one-mode file.
  *
  * The one thing a newcomer gets wrong: the names of a two-sided graph end
  * in a side tag (graph_directed.c); the files carry the name without it
@@ -29,8 +32,10 @@
 #include "coterie/atomicfile.h"
 #include "coterie/cover.h"
 #include "coterie/graph.h"
+#include "coterie/model.h"
 #include "coterie/model_directed.h"
 #include "coterie/result_commit.h"
+#include "coterie/result_weight.h"
 #include "coterie/stability.h"
 #include "coterie/util.h"
 
@@ -53,11 +58,13 @@ struct dcover {
 	uint64_t nlist;
 	const double *score; /* fit --repeats: F->k stabilities by column, or NULL */
 	struct model_directed_figures *fig; /* F->k: communities.tsv's figures */
+	double *wobs, *wexp; /* a weighted fit's weight figures by column (F->k
+				each, one allocation at wobs), else NULL */
 };
 
 static void dcover_release(struct dcover *d)
 {
-	UTIL_FREE_ALL(d->mo, d->mc, d->mv, d->list, d->fig);
+	UTIL_FREE_ALL(d->mo, d->mc, d->mv, d->list, d->fig, d->wobs);
 }
 
 static int dcover_has(const struct dcover *d, uint32_t u, uint32_t c, double *v)
@@ -165,7 +172,10 @@ static int fill_dcommunities(struct atomicfile *w, const void *arg)
 	const struct dcover *d = arg;
 	/* stability last, as in a one-mode communities.tsv */
 	atomicfile_str(w, "community\tsize\tsenders\treceivers\tboth\tarcs_inside\tdensity\t"
-			  "one_way\tstability\n");
+			  "one_way\tstability");
+	/* a weighted fit's two weight columns after it (an unweighted file
+	 * keeps its bytes) */
+	atomicfile_str(w, d->wobs ? "\tweight_inside\texpected_weight_inside\n" : "\n");
 	for (uint32_t c = 0; c < d->F->k && !atomicfile_failed(w); c++) {
 		const struct model_directed_figures *f = &d->fig[c];
 		if (!f->size)
@@ -175,11 +185,28 @@ static int fill_dcommunities(struct atomicfile *w, const void *arg)
 				  f->both, f->arcs, f->density, f->one_way_share);
 		double st = d->score ? d->score[c] : NAN;
 		if (isnan(st))
-			atomicfile_str(w, "NA\n");
+			atomicfile_str(w, "NA");
 		else
-			atomicfile_printf(w, "%.4f\n", st);
+			atomicfile_printf(w, "%.4f", st);
+		if (d->wobs)
+			atomicfile_printf(w, "\t%.9g\t%.9g", d->wobs[c], d->wexp[c]);
+		atomicfile_str(w, "\n");
 	}
 	return 0;
+}
+
+/* A weighted fit's weight figures into d (d->wobs stays NULL for an
+ * unweighted graph). Returns 0 or -1. */
+static int weight_figures(struct dcover *d, const struct cover *sided,
+			  const struct result_model *m)
+{
+	if (!d->g->wt)
+		return 0;
+	if (!(d->wobs = util_malloc(2 * (size_t)m->F->k + 1, sizeof *d->wobs)))
+		return -1;
+	d->wexp = d->wobs + m->F->k;
+	return result_weight_sided_figures(d->g, m->F, sided, model_qeps(m->epsilon), d->wobs,
+					   d->wexp);
 }
 
 int result_directed_stage(struct result_commit *c, const struct graph *g,
@@ -191,7 +218,7 @@ int result_directed_stage(struct result_commit *c, const struct graph *g,
 	struct cover sided;
 	if (rc == 0 && !(rc = model_directed_cover(g, m->F, m->delta, &sided))) {
 		if (!(d.fig = util_malloc((size_t)m->F->k + 1, sizeof *d.fig)) ||
-		    model_directed_figures(g, &sided, d.fig))
+		    model_directed_figures(g, &sided, d.fig) || weight_figures(&d, &sided, m))
 			rc = -1;
 		cover_release(&sided);
 	}

@@ -359,7 +359,8 @@ static enum fit_state reseed(struct fit *f)
 		if (model_export(&f->m, &saved))
 			return FIT_FAILED;
 		uint32_t made = 0;
-		int rc = f->p.model == MODEL_BIGCLAM || f->p.model == MODEL_DIRECTED
+		int rc = f->p.model == MODEL_BIGCLAM || f->p.model == MODEL_DIRECTED ||
+				 f->p.model == MODEL_TWO_MODE
 				 ? fit_merge_move(f, &r, merge_limit, &made)
 				 : 0;
 		if (rc == 0)

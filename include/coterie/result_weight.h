@@ -23,4 +23,18 @@ struct graph;
 int result_weight_figures(const struct graph *g, const struct fcsr *F, const struct cover *cv,
 			  double qeps, double *observed, double *expected);
 
+/* The same two figures for a two-sided weighted fit (directed or two-mode
+ * Poisson; model_directed.h): sided is the per-side cover of g's rows
+ * (model_directed_cover(): a directed node's sending row u and receiving
+ * row nsend + u are members apart), F the strengths of g's rows. For every
+ * community i: observed[i] = the sum of the weights of the arcs (two-mode:
+ * links) from a sending member to a receiving member, expected[i] = the
+ * sum over those (sending member u, receiving member v) pairs, a directed
+ * node's own pair left out, of F_u . H_v + qeps. observed and expected:
+ * sided->k values each (borrowed). Returns 0, or -1 (g not two-sided, rows
+ * and cover differ, out of memory) with a message. */
+int result_weight_sided_figures(const struct graph *g, const struct fcsr *F,
+				const struct cover *sided, double qeps, double *observed,
+				double *expected);
+
 #endif

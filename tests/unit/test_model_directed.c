@@ -27,6 +27,7 @@
 #include "coterie/model_poisson.h"
 #include "coterie/objective.h"
 #include "coterie/result.h"
+#include "coterie/result_weight.h"
 #include "coterie/rng.h"
 #include "coterie/sweep.h"
 #include "coterie/util.h"
@@ -412,6 +413,82 @@ static void test_checkpoint_keeps_the_sides_and_the_weights(void **state)
 	}
 }
 
+/*
+ * communities.tsv's weight figures of a two-sided weighted fit
+ * (result_weight_sided_figures()), by hand. Directed: arcs a->b 2, b->c 1,
+ * c->a 3, d->a 1 (ids 0-3, receiving rows 4-7), k = 2, qeps = 0.1,
+ *     F_a = (1, 0), F_b = (0.5, 1), F_c = (0, 1), F_d = 0;
+ *     H_a = (0, 1), H_b = (1, 0), H_c = (2, 0.5), H_d = 0.
+ * Community 0: senders {a, b}, receivers {b, c} (b on both sides, its own
+ * pair out). Pairs ab 1, ac 2, bc 0.5*2 + 1*0.5 = 1.5: 4.5, plus 0.1 x 3
+ * pairs = 4.8 (by the formula: R_S = (1.5, 1), R_H = (3, 0.5), R_S.R_H = 5,
+ * less F_b.H_b = 0.5: 4.5). Observed a->b 2 + b->c 1 = 3.
+ * Community 1: senders {b, c, d}, receivers {a, c} (c both). Pairs ba 1,
+ * bc 1.5, ca 1, da 0, dc 0: 3.5, plus 0.1 x (3 x 2 - 1) = 4.0 (R_S = (0.5, 2),
+ * R_H = (2, 1.5): 4, less F_c.H_c = 0.5). Observed b->c 1 + c->a 3 + d->a 1
+ * = 5 (a->b is not inside: b is no receiving member).
+ * Two-mode: links x-p 2, y-p 1, y-q 4 (first kind x, y = rows 0, 1; second
+ * p, q = rows 2, 3), k = 1, F_x = 1, F_y = 2, H_p = 1, H_q = 0.5, one
+ * community of all four: pairs xp 1, xq 0.5, yp 2, yq 1 = 4.5, plus 0.1 x 4
+ * = 4.9 (no own pairs); observed 2 + 1 + 4 = 7.
+ */
+static void test_sided_weight_figures_match_the_hand_example(void **state)
+{
+	(void)state;
+	struct graph *g = load_text_w("a\tb\t2\nb\tc\t1\nc\ta\t3\nd\ta\t1\n", 0, 1);
+	struct model m;
+	struct graph *sp, *view;
+	sided_model(&m, g, 2, -expm1(-0.1), &sp, &view);
+	struct fentry fa[] = { { 0, 1.0 } }, fb[] = { { 0, 0.5 }, { 1, 1.0 } }, fc[] = { { 1, 1.0 } },
+		      ha[] = { { 1, 1.0 } }, hb[] = { { 0, 1.0 } }, hc[] = { { 0, 2.0 }, { 1, 0.5 } };
+	assert_int_equal(model_set_row(&m, 0, fa, 1), 0);
+	assert_int_equal(model_set_row(&m, 1, fb, 2), 0);
+	assert_int_equal(model_set_row(&m, 2, fc, 1), 0);
+	assert_int_equal(model_set_row(&m, 4, ha, 1), 0);
+	assert_int_equal(model_set_row(&m, 5, hb, 1), 0);
+	assert_int_equal(model_set_row(&m, 6, hc, 2), 0);
+	struct fcsr F;
+	assert_int_equal(model_export(&m, &F), 0);
+	uint64_t off[] = { 0, 4, 9 };
+	uint32_t mem[] = { 0, 1, 5, 6, 1, 2, 3, 4, 6 };
+	struct cover cv = { .n = 8, .k = 2, .off = off, .mem = mem };
+	double obs[2], expw[2];
+	assert_int_equal(result_weight_sided_figures(g, &F, &cv, 0.1, obs, expw), 0);
+	assert_true(obs[0] == 3.0 && obs[1] == 5.0);
+	assert_true(fabs(expw[0] - 4.8) < 1e-12);
+	assert_true(fabs(expw[1] - 4.0) < 1e-12);
+	/* a one-mode graph is refused */
+	struct graph *one = graph_undirected_view(g);
+	assert_int_equal(result_weight_sided_figures(one, &F, &cv, 0.1, obs, expw), -1);
+	graph_free(one);
+	fcsr_release(&F);
+	model_release(&m);
+	graph_free(sp);
+	graph_free(view);
+	graph_free(g);
+
+	g = load_text_w("x\tp\t2\ny\tp\t1\ny\tq\t4\n", 1, 1);
+	assert_int_equal(g->nsend, 2);
+	sided_model(&m, g, 1, -expm1(-0.1), &sp, &view);
+	struct fentry one1 = { 0, 1.0 }, two = { 0, 2.0 }, half = { 0, 0.5 };
+	assert_int_equal(model_set_row(&m, 0, &one1, 1), 0); /* F_x */
+	assert_int_equal(model_set_row(&m, 1, &two, 1), 0);  /* F_y */
+	assert_int_equal(model_set_row(&m, 2, &one1, 1), 0); /* H_p */
+	assert_int_equal(model_set_row(&m, 3, &half, 1), 0); /* H_q */
+	assert_int_equal(model_export(&m, &F), 0);
+	uint64_t off2[] = { 0, 4 };
+	uint32_t mem2[] = { 0, 1, 2, 3 };
+	struct cover cv2 = { .n = 4, .k = 1, .off = off2, .mem = mem2 };
+	assert_int_equal(result_weight_sided_figures(g, &F, &cv2, 0.1, obs, expw), 0);
+	assert_true(obs[0] == 7.0);
+	assert_true(fabs(expw[0] - 4.9) < 1e-12);
+	fcsr_release(&F);
+	model_release(&m);
+	graph_free(sp);
+	graph_free(view);
+	graph_free(g);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -426,6 +503,7 @@ int main(void)
 		cmocka_unit_test(test_weighted_sweeps_sum_to_a_recompute_with_the_same_bits),
 		cmocka_unit_test(test_arc_weights_follow_their_arcs),
 		cmocka_unit_test(test_checkpoint_keeps_the_sides_and_the_weights),
+		cmocka_unit_test(test_sided_weight_figures_match_the_hand_example),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
