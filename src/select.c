@@ -2,7 +2,8 @@
  * select: choose k by held-out likelihood (see select.h).
  *
  * The search keeps up to `threads` single-threaded fits running, started
- * in grid order, and poll()s their wake-up pipes. A finished fit is scored
+ * in grid order (a batch of fewer fits than threads shares the threads
+ * among them), and poll()s their wake-up pipes. A finished fit is scored
  * at once; the scores are then taken in grid order (a point waits for all
  * those before it), which is where the best so far and the early stop are
  * decided, so the outcome is the same for any number of fits at once.
@@ -256,11 +257,12 @@ static void warm_of(const struct search *s, const struct want *w, const struct g
 }
 
 static int slot_launch(struct slot *sl, const struct search *s, const struct want *w,
-		       uint32_t task, struct fold_score *sc)
+		       uint32_t task, unsigned threads, struct fold_score *sc)
 {
 	uint32_t fold = task % s->folds;
 	struct fit_params q = s->p;
 	q.k = w->k;
+	q.threads = threads;
 	q.seed = fold_seed(s->p.seed, fold);
 	sl->task = task;
 	struct fcsr warm;
@@ -399,6 +401,11 @@ static int search_pass(struct search *s, const struct want *w, uint32_t nk, int 
 	uint32_t F = s->folds, ntask = nk * F;
 	uint32_t P = s->grp ? s->grp->size : 1, me = s->grp ? s->grp->rank : 0;
 	uint32_t nslots = s->nslots < ntask ? s->nslots : ntask;
+	/* fewer fits of this process than threads (the shape search's start,
+	 * walk and refinements: one fit a batch): the threads go into the
+	 * fits, which end the same for any number of threads (DESIGN.md) */
+	uint32_t mine = (ntask + P - 1 - me) / P;
+	unsigned threads = mine && mine < s->nslots ? s->nslots / mine : 1;
 	uint32_t span = P == 1 || !early ? ntask : P * nslots;
 	struct fold_score *sc = util_calloc(ntask, sizeof *sc);
 	unsigned char *done = util_calloc(ntask, 1);
@@ -412,7 +419,7 @@ static int search_pass(struct search *s, const struct want *w, uint32_t nk, int 
 		uint32_t active = 0;
 		for (uint32_t i = 0; i < nslots && rc == 0; i++) {
 			if (!sl[i].f && !halt && !stop && next < t1) {
-				rc = slot_launch(&sl[i], s, &w[next / F], next, &sc[next]);
+				rc = slot_launch(&sl[i], s, &w[next / F], next, threads, &sc[next]);
 				next += P;
 			}
 			active += sl[i].f != NULL;
