@@ -126,8 +126,18 @@ struct fit_savepoint *fit_savepoint_dup(const struct fit_savepoint *src);
  * one block than in the background) and plant the freed columns on the
  * ego-nets a new column would explain best; *made gets the joins made.
  * 1 made, 0 nothing to join, -1 error. The caller climbs and keeps it
- * only if l(F) rose. BigCLAM and directed models (chosen on the
- * undirected view); 0 for other models. */
+ * only if l(F) rose. BigCLAM, directed models (chosen on the
+ * undirected view) and two-mode models; 0 for other models. */
 int fit_merge_move(struct fit *f, struct rng *r, uint32_t limit, uint32_t *made);
+
+/* The AGM's block test of the merge move for two overlapping columns A
+ * and B: the log-likelihood of all the pairs of A u B as one block at
+ * its maximum-likelihood rate less that of two overlapping blocks (a pair
+ * of A n B linked with 1 - (1 - pA)(1 - pB)(1 - bg), pairs between A \ B
+ * and B \ A at bg), pA and pB at their maximum. eI, NI: edges and pairs
+ * inside A n B; eA, NA: A's other pairs; eB, NB: B's; eX, NX: between.
+ * Positive: one block explains them better. Exposed for the tests. */
+double fit_merge_block_gain(double eI, double NI, double eA, double NA, double eB, double NB,
+			    double eX, double NX, double bg);
 
 #endif

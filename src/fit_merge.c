@@ -21,7 +21,7 @@
  * And, where A and B overlap, are all the pairs of A u B better explained
  * by one AGM block than by two overlapping ones, each at its
  * maximum-likelihood rate, a pair in A n B linked with probability
- * 1 - (1 - pA)(1 - pB)(1 - bg) as the AGM has it (block_join_gain())?
+ * 1 - (1 - pA)(1 - pB)(1 - bg) as the AGM has it (fit_merge_block_gain())?
  * The gain of a join is the larger answer. Two pieces of one community
  * that meet edge to edge answer yes to the first; two overlapping halves
  * of one sparse community (the climb's other defect: on a 10^4-node
@@ -282,8 +282,8 @@ static double rate_root(double e1, double N1, double y1, double e2, double N2, d
  * eX, NX: between. The two-block likelihood is concave in the rates
  * qA = -ln(1 - pA), qB: coordinate ascent.
  */
-static double block_join_gain(double eI, double NI, double eA, double NA, double eB, double NB,
-			      double eX, double NX, double bg)
+double fit_merge_block_gain(double eI, double NI, double eA, double NA, double eB, double NB,
+			    double eX, double NX, double bg)
 {
 	double qe = -log1p(-bg);
 	double qa = NA > eA ? -log1p(-eA / NA) - qe : 1.0, qb = NB > eB ? -log1p(-eB / NB) - qe : 1.0;
@@ -304,7 +304,7 @@ static double block_join_gain(double eI, double NI, double eA, double NA, double
 /* Every pair (a < b) with edges between A \ B and B \ A, or sharing
  * edges inside A n B, and a gain above 0, best first, in *out (allocated);
  * with blocks, the gain is the larger of the LR of the edges between and
- * block_join_gain() where A and B share two members or more. The count,
+ * fit_merge_block_gain() where A and B share two members or more. The count,
  * or -1. */
 static int64_t find_joins(const struct model *m, const struct graph *g,
 			  const struct colcover *cc, const uint64_t *ein, double bg, int blocks,
@@ -376,8 +376,8 @@ static int64_t find_joins(const struct model *m, const struct graph *g,
 			if (blocks && ov[b] >= 2) { /* overlapping: the AGM's own test too */
 				double I = (double)ov[b], eI = (double)cii[b];
 				double NI = I * (I - 1) / 2;
-				double bgain = block_join_gain(eI, NI, eA - eI, NA - NI, eB - eI,
-							       NB - NI, eX, NX, bg);
+				double bgain = fit_merge_block_gain(eI, NI, eA - eI, NA - NI, eB - eI,
+								     NB - NI, eX, NX, bg);
 				gain = bgain > gain ? bgain : gain;
 			}
 			cnt[b] = 0;
