@@ -146,7 +146,13 @@ static int choose_k(const struct graph *g, struct fit_params *p, const char *out
 	uint32_t grid[SELECT_MAX_GRID];
 	uint32_t ng = select_grid(sp, grid);
 	unsigned at_once = p->threads * (grp ? grp->size : 1); /* fits at a time */
-	if (!quiet) {
+	if (!quiet && select_by_shape(g->m, sp) && sp->start) {
+		notice("choosing k by the likelihood of %.0f%% of the edges and as many "
+		       "non-edges, held out: first k %u (the %u distinct locally minimal "
+		       "ego-nets), then k on either side, walking on while the best is at an "
+		       "end (up to n/4), then halving the gaps around the best", 100.0 * sp->share,
+		       sp->start, minima);
+	} else if (!quiet) {
 		if (!have_grid)
 			notice("choosing k from %u to %u (three times the %u distinct locally "
 			       "minimal ego-nets, within 10 to 500 and at most n/4)", sp->kmin,

@@ -186,7 +186,10 @@ assert len(seen) < len(sel["grid"]), (len(seen), len(sel["grid"]))
 planted = sum(1 for _ in open(sys.argv[3])) - 1
 assert abs(best - planted) <= 0.3 * planted, (best, planted)
 PYEOF
-"$BIN" fit "$tmp/pl/edges.tsv" -k auto -j 1 -q -o "$tmp/sh1" 2>/dev/null
+"$BIN" fit "$tmp/pl/edges.tsv" -k auto -j 1 -o "$tmp/sh1" 2>"$tmp/sh1.err"
+check "shape search: the notice names the first k, not the grid's 500 cap" \
+	grep -q "first k $(json_get "$tmp/sh/run.json" k_selection.start) (the" "$tmp/sh1.err"
+check "shape search: no notice of a grid of values" sh -c "! grep -q 'values from' '$tmp/sh1.err'"
 cut -f1,2,6,10,11,12 "$tmp/sh/k-selection.tsv" >"$tmp/sh.sel"
 cut -f1,2,6,10,11,12 "$tmp/sh1/k-selection.tsv" >"$tmp/sh1.sel"
 check "shape search: the same points, order, scores and choice with -j 1" cmp -s "$tmp/sh.sel" "$tmp/sh1.sel"
