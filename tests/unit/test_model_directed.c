@@ -186,28 +186,32 @@ static void test_gradient_matches_finite_differences(void **state)
 	graph_free(g);
 }
 
-static double sweeps(const struct graph *g, unsigned threads, struct fcsr *out)
+typedef double (*pairs_fn)(const struct model *, const struct graph *);
+
+/* Sweeps of a model of the kind on g from its seeds, checked against
+ * the pair-by-pair recompute; the strengths in *out. */
+static double sweeps(const struct graph *g, enum model_kind kind, pairs_fn pairs,
+		     unsigned threads, struct fcsr *out)
 {
 	struct model m;
 	struct graph *sp, *view;
 	struct seed_report rep;
 	sided_model(&m, g, 20, 0.002, &sp, &view);
 	assert_int_equal(model_directed_seed(g, view, &m, 5, 0, &rep), 0);
-	double ll = test_sweeps_sum_exactly(&m, g, model_objective_of(MODEL_DIRECTED), threads,
-					    model_directed_loglik_pairs, 1e-10, out);
+	double ll = test_sweeps_sum_exactly(&m, g, model_objective_of(kind), threads, pairs, 1e-10,
+					    out);
 	graph_free(sp);
 	graph_free(view);
 	return ll;
 }
 
-static void test_sweeps_sum_to_a_recompute_with_the_same_bits_for_any_thread_count(void **state)
+/* One thread and two give the same log-likelihood and strengths, bit for
+ * bit; frees g. */
+static void assert_same_bits_for_any_thread_count(struct graph *g, enum model_kind kind,
+						  pairs_fn pairs)
 {
-	(void)state;
-	char *text = random_arcs(400, 0.25, 0.003, 9);
-	struct graph *g = load_text(text, 0);
-	free(text);
 	struct fcsr a, b;
-	double la = sweeps(g, 1, &a), lb = sweeps(g, 2, &b);
+	double la = sweeps(g, kind, pairs, 1, &a), lb = sweeps(g, kind, pairs, 2, &b);
 	assert_memory_equal(&la, &lb, sizeof la);
 	assert_int_equal(a.off[a.n], b.off[b.n]);
 	assert_memory_equal(a.e, b.e, a.off[a.n] * sizeof *a.e);
@@ -216,19 +220,28 @@ static void test_sweeps_sum_to_a_recompute_with_the_same_bits_for_any_thread_cou
 	graph_free(g);
 }
 
-/* The checkpoint keeps the model and the sides; the graph read back is
- * two-sided again. */
-static void test_checkpoint_keeps_the_sides(void **state)
+static void test_sweeps_sum_to_a_recompute_with_the_same_bits_for_any_thread_count(void **state)
 {
 	(void)state;
+	char *text = random_arcs(400, 0.25, 0.003, 9);
+	struct graph *g = load_text(text, 0);
+	free(text);
+	assert_same_bits_for_any_thread_count(g, MODEL_DIRECTED, model_directed_loglik_pairs);
+}
+
+/* A checkpoint of a fit of the kind (one for each side arrangement) keeps
+ * the model, the sides and, when weighted, the weights. */
+static void assert_checkpoint_keeps_the_sides(int weighted)
+{
 	for (int two_mode = 0; two_mode < 2; two_mode++) {
-		char *text = random_arcs(60, 0.3, 0.02, 5);
-		struct graph *g = load_text(text, two_mode);
+		char *text = random_arcs_w(60, 0.3, 0.02, 5, weighted);
+		struct graph *g = load_text_w(text, two_mode, weighted);
 		free(text);
 		struct fit_params p;
 		fit_params_default(&p);
 		p.k = 3;
-		p.model = two_mode ? MODEL_TWO_MODE : MODEL_DIRECTED;
+		p.model = two_mode ? (weighted ? MODEL_TWO_MODE_POISSON : MODEL_TWO_MODE)
+				   : (weighted ? MODEL_DIRECTED_POISSON : MODEL_DIRECTED);
 		p.starts = 1;
 		p.epsilon = 0.01;
 		struct checkpoint ck;
@@ -236,10 +249,23 @@ static void test_checkpoint_keeps_the_sides(void **state)
 		assert_int_equal(ck.params.model, p.model);
 		assert_int_equal(ck.graph->nsend, g->nsend);
 		assert_int_equal(ck.graph->paired, !two_mode);
-		assert_true(graph_fingerprint(ck.graph) == graph_fingerprint(g));
+		if (!weighted)
+			assert_true(graph_fingerprint(ck.graph) == graph_fingerprint(g));
+		if (weighted) {
+			assert_non_null(ck.graph->wt);
+			assert_memory_equal(ck.graph->wt, g->wt, g->off[g->n] * sizeof *g->wt);
+		}
 		checkpoint_release(&ck);
 		graph_free(g);
 	}
+}
+
+/* The checkpoint keeps the model and the sides; the graph read back is
+ * two-sided again. */
+static void test_checkpoint_keeps_the_sides(void **state)
+{
+	(void)state;
+	assert_checkpoint_keeps_the_sides(0);
 }
 
 /* ---- arc weights: the Poisson model on the two-sided graph ---- */
@@ -340,34 +366,13 @@ static void test_weighted_gradient_matches_finite_differences(void **state)
 	}
 }
 
-static double weighted_sweeps(const struct graph *g, unsigned threads, struct fcsr *out)
-{
-	struct model m;
-	struct graph *sp, *view;
-	struct seed_report rep;
-	sided_model(&m, g, 20, 0.002, &sp, &view);
-	assert_int_equal(model_directed_seed(g, view, &m, 5, 0, &rep), 0);
-	double ll = test_sweeps_sum_exactly(&m, g, model_objective_of(MODEL_DIRECTED_POISSON),
-					    threads, poisson_pairs, 1e-10, out);
-	graph_free(sp);
-	graph_free(view);
-	return ll;
-}
-
 static void test_weighted_sweeps_sum_to_a_recompute_with_the_same_bits(void **state)
 {
 	(void)state;
 	char *text = random_arcs_w(400, 0.25, 0.003, 9, 1);
 	struct graph *g = load_text_w(text, 0, 1);
 	free(text);
-	struct fcsr a, b;
-	double la = weighted_sweeps(g, 1, &a), lb = weighted_sweeps(g, 2, &b);
-	assert_memory_equal(&la, &lb, sizeof la);
-	assert_int_equal(a.off[a.n], b.off[b.n]);
-	assert_memory_equal(a.e, b.e, a.off[a.n] * sizeof *a.e);
-	fcsr_release(&a);
-	fcsr_release(&b);
-	graph_free(g);
+	assert_same_bits_for_any_thread_count(g, MODEL_DIRECTED_POISSON, poisson_pairs);
 }
 
 /* Arc weights go with their arcs into the two-sided graph: records of one
@@ -391,26 +396,7 @@ static void test_arc_weights_follow_their_arcs(void **state)
 static void test_checkpoint_keeps_the_sides_and_the_weights(void **state)
 {
 	(void)state;
-	for (int two_mode = 0; two_mode < 2; two_mode++) {
-		char *text = random_arcs_w(60, 0.3, 0.02, 5, 1);
-		struct graph *g = load_text_w(text, two_mode, 1);
-		free(text);
-		struct fit_params p;
-		fit_params_default(&p);
-		p.k = 3;
-		p.model = two_mode ? MODEL_TWO_MODE_POISSON : MODEL_DIRECTED_POISSON;
-		p.starts = 1;
-		p.epsilon = 0.01;
-		struct checkpoint ck;
-		test_checkpoint_round_trip(g, &p, &ck);
-		assert_int_equal(ck.params.model, p.model);
-		assert_int_equal(ck.graph->nsend, g->nsend);
-		assert_int_equal(ck.graph->paired, !two_mode);
-		assert_non_null(ck.graph->wt);
-		assert_memory_equal(ck.graph->wt, g->wt, g->off[g->n] * sizeof *g->wt);
-		checkpoint_release(&ck);
-		graph_free(g);
-	}
+	assert_checkpoint_keeps_the_sides(1);
 }
 
 /*
