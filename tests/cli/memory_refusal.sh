@@ -2,8 +2,8 @@
 # The memory refusal says what would fit (issue 18), and means it: under a
 # limit (COTERIE_MEMORY_LIMIT, "as if the machine had that much"), a fit
 # too large is refused with "k = K is the largest that would fit"; a fit
-# of a k a little below K passes the check and runs, one a quarter above
-# is refused. Under an address-space limit (ulimit -v), where every
+# of a k a little below K passes the check and runs, one twice K is
+# refused. Under an address-space limit (ulimit -v), where every
 # thread's stack counts, too many threads are refused with a pointer to
 # -j 1, and -j 1 runs.
 . "$(dirname "$0")/lib"
@@ -30,16 +30,17 @@ check "the refusal names the largest k that fits" [ -n "$K" ]
 if [ -n "$K" ]; then
 	check "that k is below the one asked for" [ "$K" -lt 2000 ]
 	# the resident size at the check moves from one process to the next (a
-	# run on a loaded CI machine refused K - K/8 once): half of K passes,
-	# a quarter above is refused
+	# run on a loaded CI machine refused K - K/8 once; on 2026-12-03 K came
+	# out 199 to 242 in runs of the same command, so K + K/4 + 8 passed in
+	# about half the runs): half of K passes, twice K is refused
 	COTERIE_MEMORY_LIMIT=$lim "$BIN" fit "$g" -k $((K / 2)) -j 1 --starts 1 \
 		--max-sweeps 1 -q -o "$tmp/k" 2>"$tmp/k.err"
 	st=$?
 	check "a fit of half that k passes the check and runs" [ $st -eq 0 ]
 	[ $st -eq 0 ] || sed 's/^/# /' "$tmp/k.err"
-	COTERIE_MEMORY_LIMIT=$lim "$BIN" fit "$g" -k $((K + K / 4 + 8)) -j 1 --starts 1 \
+	COTERIE_MEMORY_LIMIT=$lim "$BIN" fit "$g" -k $((2 * K)) -j 1 --starts 1 \
 		--max-sweeps 1 -q -o "$tmp/k1" 2>"$tmp/k1.err"
-	check "one of k a quarter larger is refused" [ $? -eq 1 ]
+	check "one of twice that k is refused" [ $? -eq 1 ]
 	check "with about the same largest k" grep -q "; k = [0-9]* is the largest" "$tmp/k1.err"
 fi
 COTERIE_MEMORY_LIMIT=1K "$BIN" fit "$g" -k 10 -j 1 -q -o "$tmp/none" 2>"$tmp/none.err"
