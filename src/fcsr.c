@@ -17,6 +17,19 @@ void fcsr_release(struct fcsr *f)
 	memset(f, 0, sizeof *f);
 }
 
+int fcsr_empty(struct fcsr *f)
+{
+	memset(f, 0, sizeof *f);
+	f->off = util_calloc(1, sizeof *f->off);
+	f->e = util_malloc(1, sizeof *f->e);
+	f->colsum = util_calloc(1, sizeof *f->colsum);
+	if (!f->off || !f->e || !f->colsum) {
+		fcsr_release(f);
+		return -1;
+	}
+	return 0;
+}
+
 int fcsr_copy(struct fcsr *dst, const struct fcsr *src)
 {
 	memset(dst, 0, sizeof *dst);

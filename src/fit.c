@@ -233,7 +233,13 @@ int fit_publish(struct fit *f, enum fit_state state)
 	if (f->ntrace)
 		memcpy(s->trace, f->trace, f->ntrace * sizeof *s->trace);
 	s->sweeps_per_sec = rate_of(f->trace, f->ntrace);
-	if (model_export_order(&f->m, f->inner, &s->F) || snapshot_agm(f, s, state))
+	/* a fitting snapshot that no live reader asked for and no checkpoint
+	 * needs carries no strengths: its copy of them was the peak of a
+	 * large fit (after the first sweep, rows hold several times their
+	 * final entries, and the copy lived on through the second sweep) */
+	int bare = state == FIT_FITTING && !f->live_agm && !s->savepoint;
+	if ((bare ? fcsr_empty(&s->F) : model_export_order(&f->m, f->inner, &s->F)) ||
+	    snapshot_agm(f, s, state))
 		goto fail;
 	f->stats.publish_seconds += util_now() - t_pub;
 	swap_in(f, s, state);

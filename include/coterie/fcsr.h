@@ -39,6 +39,10 @@ struct fcsr {
 /* Free the arrays of f and zero it; NULL is a no-op. */
 void fcsr_release(struct fcsr *f);
 
+/* f = no rows and no columns (n = k = 0, off[0] = 0): 0, or -1 when out
+ * of memory. Release with fcsr_release(). */
+int fcsr_empty(struct fcsr *f);
+
 /* A deep copy of src into dst (overwritten, not released): 0, or -1 when
  * out of memory (dst is then empty). Release the copy with fcsr_release(). */
 int fcsr_copy(struct fcsr *dst, const struct fcsr *src);

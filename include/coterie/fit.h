@@ -115,7 +115,8 @@ struct snapshot {
 	double epsilon, delta;
 	uint32_t ntrace;
 	struct trace_point *trace;
-	struct fcsr F;           /* a copy of the strengths */
+	struct fcsr F;           /* a copy of the strengths (none while fitting
+				  * unless fit_want_live_agm() or a savepoint) */
 	struct agm agm;          /* memberships and figures read from F as it
 				  * was after sweep agm_sweep: while fitting,
 				  * the AGM is rebuilt only as often as keeps
@@ -175,13 +176,15 @@ void fit_free(struct fit *f);
  * before fit_start(). */
 void fit_exclude(struct fit *f, const struct graph *excl);
 
-/* Ask that every snapshot published while fitting carry the AGM of a
- * recent model (rebuilt as often as keeps it under about a twentieth of
- * the fitting thread's time; snapshot.agm_sweep says which sweep), for a
- * reader that shows the communities as they form (the explorer). Without
- * it a fitting snapshot carries the last AGM built (on the model before
- * seeding, at a pause or at a plateau), which costs nothing and may be
- * empty: the batch command reads the AGM only of the final snapshot.
+/* Ask that every snapshot published while fitting carry the strengths
+ * and the AGM of a recent model (the AGM rebuilt as often as keeps it
+ * under about a twentieth of the fitting thread's time;
+ * snapshot.agm_sweep says which sweep), for a reader that shows the
+ * communities as they form (the explorer). Without it a fitting snapshot
+ * carries no strengths (F has n = k = 0; a savepoint's snapshot still
+ * carries them) and the last AGM built (on the model before seeding, at a
+ * pause or at a plateau), which costs nothing and may be empty: the batch
+ * command reads the strengths and the AGM only of the final snapshot.
  * Call before fit_start(). */
 void fit_want_live_agm(struct fit *f);
 

@@ -162,9 +162,10 @@ static int choose_k(const struct graph *g, struct fit_params *p, const char *out
 		       grid[ng - 1], 100.0 * sp->share, at_once < ng ? at_once : ng);
 	}
 	/* one fit of the largest k of the grid (the parallel fits of smaller k
-	 * are not added up) */
+	 * are not added up); a search by the curve's shape needs its first k
+	 * to fit and checks every k it walks to itself (select.c) */
 	struct fit_params big = *p;
-	big.k = grid[ng - 1];
+	big.k = select_by_shape(g->m, sp) && sp->start ? sp->start : grid[ng - 1];
 	big.threads = p->threads;
 	if (memory_check_fit(g, &big))
 		return -1;
