@@ -79,13 +79,13 @@ static void test_estimate_grows_with_k_and_threads(void **state)
 	graph_free(g);
 }
 
-/* On a dense graph (400 nodes, edge probability 0.5: about 50 edges a
- * node against 35.6 / 2.9 = 12.3 where the two phases meet) the end of
+/* On a dense graph (400 nodes, edge probability 0.5: about 100 edges a
+ * node, m / n, against 23.0 / 2.3 = 10 where the two phases meet) the end of
  * the fit is the larger peak: at one thread the estimate is
- * 1.1 x (1265838 + 80.4 n + 2.9 fill m), the formula of src/memory.c
+ * 1.1 x (1265838 + 80.4 n + 2.3 fill m), the formula of src/memory.c
  * worked here with the fill memory_fill() predicts; on a sparse one
  * (0.005, 5 edges a node) it is the sweeps' 1.1 x (1265838 + 80.4 n +
- * 35.6 fill n). */
+ * 23.0 fill n). */
 static void test_estimate_takes_the_larger_phase(void **state)
 {
 	(void)state;
@@ -97,12 +97,12 @@ static void test_estimate_takes_the_larger_phase(void **state)
 	p.k = 50;
 	struct graph *g = test_random_graph(&r, 400, 0.5);
 	double fill = memory_fill(g, p.k);
-	double end = 1.1 * (1265838.0 + 80.4 * 400 + 2.9 * fill * (double)g->m);
+	double end = 1.1 * (1265838.0 + 80.4 * 400 + 2.3 * fill * (double)g->m);
 	assert_true(fabs((double)memory_fit_estimate(g, &p) - end) <= 1.0);
 	graph_free(g);
 	g = test_random_graph(&r, 2000, 0.005);
 	fill = memory_fill(g, p.k);
-	double sweeps = 1.1 * (1265838.0 + 80.4 * 2000 + 35.6 * fill * 2000);
+	double sweeps = 1.1 * (1265838.0 + 80.4 * 2000 + 23.0 * fill * 2000);
 	assert_true(fabs((double)memory_fit_estimate(g, &p) - sweeps) <= 1.0);
 	graph_free(g);
 }
