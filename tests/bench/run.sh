@@ -36,7 +36,11 @@
 # BENCH_MODEL_SIZES (the nodes of the weighted and the directed planted
 # graphs whose time per sweep is set beside the undirected, unweighted fit
 # of the same lines; full: "1000000", quick: ""), BENCH_MODEL_SWEEPS (the
-# sweeps timed there, default 5).
+# sweeps timed there, default 5), BENCH_MPI_SIZES (the planted graphs,
+# from gen_planted, on which coterie-mpi is timed at BENCH_MPI_RANKS
+# processes, default "1 2 4", beside coterie fit -j 2; full: "1000000",
+# quick: ""; skipped without coterie-mpi or mpirun), BENCH_MPI_SWEEPS (the
+# sweeps timed there, default 3).
 set -u
 
 here=$(cd "$(dirname "$0")" && pwd)
@@ -71,12 +75,15 @@ trap 'rm -rf "$work"' EXIT
 trap 'exit 130' INT TERM HUP
 
 case $mode in
-quick) sizes=10000 sets= repeat=1 mixsizes=10000 mixes=0.2 kautosizes= modelsizes= ;;
+quick) sizes=10000 sets= repeat=1 mixsizes=10000 mixes=0.2 kautosizes= modelsizes= mpisizes= ;;
 *) sizes="10000 100000 1000000" sets="email-Enron cond-mat-2005" repeat=3
 	mixsizes="10000 100000 1000000" mixes="0.1 0.2 0.3" kautosizes="10000 100000 1000000"
-	modelsizes=1000000 ;;
+	modelsizes=1000000 mpisizes=1000000 ;;
 esac
 modelsizes=${BENCH_MODEL_SIZES-$modelsizes}
+mpisizes=${BENCH_MPI_SIZES-$mpisizes}
+mpiranks=${BENCH_MPI_RANKS:-"1 2 4"}
+mpisweeps=${BENCH_MPI_SWEEPS:-3}
 modelsweeps=${BENCH_MODEL_SWEEPS:-5}
 kautosizes=${BENCH_KAUTO_SIZES-$kautosizes}
 mixsizes=${BENCH_MIX_SIZES-$mixsizes}
@@ -329,6 +336,59 @@ for n in $modelsizes; do
 	done
 done
 
+# The fit across processes (issue 17): coterie-mpi at each rank count of
+# $mpiranks (one thread each, oversubscribed where the ranks outnumber the
+# cores) beside coterie fit -j 2, on a planted graph: $mpisweeps sweeps past
+# any plateau, no reseeding, one start; s/sweep from trace.tsv (sweeps 2
+# on), and what rank 0 reported with COTERIE_MPI_STATS (exchanges, bytes it
+# sent, bytes it gathered, seconds inside exchanges), per sweep.
+mpitable=$work/mpitable.md
+: >"$mpitable"
+mpibin=$(dirname "$BIN")/coterie-mpi
+mpiflags=
+if mpirun --version 2>&1 | grep -q "Open MPI"; then
+	mpiflags=--oversubscribe
+	[ "$(id -u)" -eq 0 ] && mpiflags="$mpiflags --allow-run-as-root"
+fi
+# persweep DIR: seconds a sweep over sweeps 1.. of DIR/trace.tsv
+persweep() { awk -F '\t' 'NR == 3 { t0 = $2 } NR > 3 { t = $2; n++ } END { if (n) printf "%.3f\n", (t - t0) / n; else print "-" }' "$1/trace.tsv" 2>/dev/null; }
+for n in $mpisizes; do
+	if [ ! -x "$mpibin" ] || ! command -v mpirun >/dev/null 2>&1; then
+		echo "bench: no coterie-mpi or mpirun, the MPI rows skipped" >&2
+		break
+	fi
+	d=$cache/planted-$n
+	[ -s "$d/edges.tsv" ] || continue
+	k=$((n * 12 / 1000)) # the planted count, as above
+	opts="-k $k --seed 1 --starts 1 --no-reseed --past-plateau --max-sweeps $mpisweeps -q --force"
+	echo "bench: planted-$n: coterie fit -j 2, $mpisweeps sweeps" >&2
+	# shellcheck disable=SC2086
+	/usr/bin/time -f '%e %M' -o "$work/mpi-t.time" "$BIN" fit "$d/edges.tsv" $opts -j 2 \
+		-o "$work/mpi-t" 2>/dev/null
+	printf '| planted-%s | coterie fit -j 2 | 1 | %s | %s | - | - | - | - | %s |\n' "$n" \
+		"$(persweep "$work/mpi-t")" "$(awk '{ print $1 }' "$work/mpi-t.time")" \
+		"$(awk '{ printf "%.0f\n", $2 / 1024 }' "$work/mpi-t.time")" >>"$mpitable"
+	rm -rf "$work/mpi-t"
+	for r in $mpiranks; do
+		echo "bench: planted-$n: coterie-mpi at $r processes, $mpisweeps sweeps" >&2
+		# shellcheck disable=SC2086
+		COTERIE_MPI_STATS=1 /usr/bin/time -f '%e %M' -o "$work/mpi-$r.time" \
+			mpirun $mpiflags -np "$r" "$mpibin" fit "$d/edges.tsv" $opts -j 1 \
+			-o "$work/mpi-$r" 2>"$work/mpi-$r.err" >/dev/null ||
+			{ echo "bench: coterie-mpi at $r processes failed:" >&2; tail -n 3 "$work/mpi-$r.err" >&2; }
+		st=$(sed -n 's/.*rank 0 of [0-9]*: \([0-9]*\) exchanges, \([0-9]*\) bytes sent, \([0-9]*\) bytes gathered, \([0-9.]*\) s in exchanges.*/\1 \2 \3 \4/p' "$work/mpi-$r.err")
+		sw=$(tail -n 1 "$work/mpi-$r/trace.tsv" 2>/dev/null | cut -f1)
+		# shellcheck disable=SC2086
+		set -- $st
+		printf '| planted-%s | coterie-mpi | %s | %s | %s | %s | %s | %s | %s | %s |\n' "$n" "$r" \
+			"$(persweep "$work/mpi-$r")" "$(awk '{ print $1 }' "$work/mpi-$r.time")" \
+			"$(div "${1:-}" "$sw" %.0f)" "$(div "${2:-}" "$sw" %.0f)" "$(div "${3:-}" "$sw" %.0f)" \
+			"$(div "${4:-}" "$sw" %.3f)" \
+			"$(awk '{ printf "%.0f\n", $2 / 1024 }' "$work/mpi-$r.time")" >>"$mpitable"
+		rm -rf "$work/mpi-$r"
+	done
+done
+
 {
 	echo "# coterie benchmark ($mode)"
 	echo
@@ -368,6 +428,16 @@ done
 		echo "| graph | fit | model | nodes | edges | s/sweep | undirected unweighted s/sweep | ratio | ns/visit |"
 		echo "|---|---|---|---|---|---|---|---|---|"
 		cat "$modeltable"
+	fi
+	if [ -s "$mpitable" ]; then
+		echo
+		echo "## The fit across processes (coterie-mpi) beside the threaded fit"
+		echo
+		echo "- planted graph of tests/bench/gen_planted, K its planted count (n x 12 / 1000); --seed 1 --starts 1 --no-reseed --past-plateau --max-sweeps $mpisweeps; coterie-mpi with -j 1 a process (mpirun $mpiflags -np P), coterie fit with -j 2; s/sweep over sweeps 2 on (trace.tsv); wall s of the whole run (loading included, every process loads the whole graph); per sweep, rank 0's exchanges, bytes it sent, bytes it gathered (every process's share) and seconds inside exchanges (COTERIE_MPI_STATS; loading's and the end's few exchanges included); peak MB (/usr/bin/time: the threaded fit's; under mpirun the largest process's)"
+		echo
+		echo "| graph | fit | processes | s/sweep | wall s | exchanges/sweep | bytes sent/sweep | bytes gathered/sweep | s in exchanges/sweep | peak MB |"
+		echo "|---|---|---|---|---|---|---|---|---|---|"
+		cat "$mpitable"
 	fi
 } | tee "$results"
 exit 0
