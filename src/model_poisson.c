@@ -59,12 +59,19 @@
 
 #define STEP_REACH 10.0 /* largest change of a strength in a first trial step */
 #define X_FLOOR 1e-12   /* smallest x + q used in a gradient weight */
+#define PF_FAR 8u  /* neighbours ahead whose row header is prefetched */
+#define PF_NEAR 4u /* neighbours ahead whose row entries are prefetched */
 
 struct poisson_work {
 	uint32_t k;
 	double *cur, *acc, *oth, *dir, *trial; /* dense over candidates (k each) */
 	uint32_t *stamp, *cand; /* stamp[c] = 1 for the candidates c, else 0 */
 	uint32_t ncand;
+	/* the live candidates, in candidate order: a nonzero strength or a
+	 * nonzero free direction (the others stay at zero in every trial and
+	 * add exactly zero to its sums, so the trials leave them out) */
+	uint32_t *live;
+	uint32_t nlive;
 	double *xv, *dv; /* per neighbour: x + q, dir . F_v */
 	size_t cap;
 	struct fentry *out;
@@ -84,7 +91,7 @@ static void *pw_work_new(const struct model *m)
 	size_t k = m->k;
 	w->k = m->k;
 	double *d = util_calloc(5 * k, sizeof *d);
-	uint32_t *ids = util_calloc(2 * k, sizeof *ids);
+	uint32_t *ids = util_calloc(3 * k, sizeof *ids);
 	w->out = util_calloc(k, sizeof *w->out);
 	if (!d || !ids || !w->out) {
 		UTIL_FREE_ALL(d, ids, w->out, w);
@@ -97,6 +104,7 @@ static void *pw_work_new(const struct model *m)
 	w->trial = d + 4 * k;
 	w->stamp = ids;
 	w->cand = ids + k;
+	w->live = ids + 2 * k;
 	return w;
 }
 
@@ -117,12 +125,10 @@ static inline void add_cand(struct poisson_work *w, uint32_t c)
 	}
 }
 
-/* The candidates (u's row, its neighbours' and held-out partners' rows),
- * u's row densely in cur, the held-out partners' sum in oth (for now). */
-static void gather(const struct model *m, const struct graph *g, uint32_t u,
-		   struct poisson_work *w)
+/* A new row: the last row's marks taken off through its candidate list,
+ * u's own entries made candidates and held densely in cur. */
+static void begin_row(const struct model *m, uint32_t u, struct poisson_work *w)
 {
-	/* the last row's marks are taken off through its candidate list */
 	while (w->ncand)
 		w->stamp[w->cand[--w->ncand]] = 0;
 	const struct frow *ru = &m->rows[u];
@@ -130,11 +136,11 @@ static void gather(const struct model *m, const struct graph *g, uint32_t u,
 		add_cand(w, ru->e[i].c);
 	for (uint32_t i = 0; i < ru->nnz; i++)
 		w->cur[ru->e[i].c] = ru->e[i].v;
-	for (uint64_t i = g->off[u]; i < g->off[u + 1]; i++) {
-		const struct frow *rv = &m->rows[g->adj[i]];
-		for (uint32_t j = 0; j < rv->nnz; j++)
-			add_cand(w, rv->e[j].c);
-	}
+}
+
+/* The held-out partners' rows: candidates, and their sum in oth (for now). */
+static void gather_excl(const struct model *m, uint32_t u, struct poisson_work *w)
+{
 	if (m->excl)
 		for (uint64_t i = m->excl->off[u]; i < m->excl->off[u + 1]; i++) {
 			const struct frow *rv = &m->rows[m->excl->adj[i]];
@@ -143,6 +149,20 @@ static void gather(const struct model *m, const struct graph *g, uint32_t u,
 				w->oth[rv->e[j].c] += rv->e[j].v;
 			}
 		}
+}
+
+/* The candidates (u's row, its neighbours' and held-out partners' rows),
+ * u's row densely in cur, the held-out partners' sum in oth (for now). */
+static void gather(const struct model *m, const struct graph *g, uint32_t u,
+		   struct poisson_work *w)
+{
+	begin_row(m, u, w);
+	for (uint64_t i = g->off[u]; i < g->off[u + 1]; i++) {
+		const struct frow *rv = &m->rows[g->adj[i]];
+		for (uint32_t j = 0; j < rv->nnz; j++)
+			add_cand(w, rv->e[j].c);
+	}
+	gather_excl(m, u, w);
 }
 
 static double dense_dot(const double *dense, const struct frow *rv)
@@ -178,17 +198,38 @@ static inline double others(const struct model *m, const double *oc, uint32_t c,
 	return m->nsend ? oc[c] - excl : oc[c] - cur - excl;
 }
 
-/* After gather(): the gradient into acc, the "others" S - F_u - X_u into
+/* The candidates (as gather()), the gradient into acc, the "others" S - F_u - X_u into
  * oth, the free direction, x_v + q into xv (when room), gmax; returns
  * f_u at the current row. */
-static double gradient(const struct model *m, const struct graph *g, uint32_t u,
-		       struct poisson_work *w, int keep)
+static double gather_gradient(const struct model *m, const struct graph *g, uint32_t u,
+			      struct poisson_work *w, int keep)
 {
 	double f = 0.0, q = m->qeps;
 	const double *oc = model_other_colsum(m, u);
+	begin_row(m, u, w);
+	/* one pass over the neighbour rows gathers the candidates and takes
+	 * the dot product (the sums in the order of dense_dot(), so the same
+	 * bits as gather() then a second pass), then scatters the gradient
+	 * from cache */
+	const uint32_t *adj = g->adj + g->off[u];
+	uint32_t deg = graph_degree(g, u);
+	/* the rows of later neighbours fetched ahead, as in model_row.c: the
+	 * row headers PF_FAR neighbours on, the entries PF_NEAR on */
+	for (uint32_t i = 0; i < deg && i < PF_FAR; i++)
+		__builtin_prefetch(&m->rows[adj[i]]);
 	for (uint64_t i = g->off[u]; i < g->off[u + 1]; i++) {
+		uint64_t r = i - g->off[u];
+		if (r + PF_FAR < deg)
+			__builtin_prefetch(&m->rows[adj[r + PF_FAR]]);
+		if (r + PF_NEAR < deg)
+			__builtin_prefetch(m->rows[adj[r + PF_NEAR]].e);
 		const struct frow *rv = &m->rows[g->adj[i]];
-		double x = dense_dot(w->cur, rv) + q;
+		double x = 0.0;
+		for (uint32_t j = 0; j < rv->nnz; j++) {
+			add_cand(w, rv->e[j].c);
+			x += w->cur[rv->e[j].c] * rv->e[j].v;
+		}
+		x += q;
 		double wt = graph_weight(g, i);
 		f += wt * log(x);
 		double a = wt / (x > X_FLOOR ? x : X_FLOOR);
@@ -199,7 +240,9 @@ static double gradient(const struct model *m, const struct graph *g, uint32_t u,
 			w->xv[i - g->off[u]] = x;
 	}
 	w->visits += graph_degree(g, u);
+	gather_excl(m, u, w);
 	w->gmax = 0.0;
+	w->nlive = 0;
 	for (uint32_t i = 0; i < w->ncand; i++) {
 		uint32_t c = w->cand[i];
 		double oth = others(m, oc, c, w->cur[c], w->oth[c]);
@@ -209,6 +252,8 @@ static double gradient(const struct model *m, const struct graph *g, uint32_t u,
 		w->dir[c] = w->cur[c] == 0.0 && w->acc[c] <= 0.0 ? 0.0 : w->acc[c];
 		if (fabs(w->acc[c]) > w->gmax)
 			w->gmax = fabs(w->acc[c]);
+		if (w->cur[c] != 0.0 || w->dir[c] != 0.0)
+			w->live[w->nlive++] = c;
 	}
 	return f;
 }
@@ -220,8 +265,8 @@ static double trial(const struct model *m, const struct graph *g, uint32_t u,
 {
 	double f = 0.0, s = 0.0;
 	int clipped = 0, mv = 0;
-	for (uint32_t i = 0; i < w->ncand; i++) {
-		uint32_t c = w->cand[i];
+	for (uint32_t i = 0; i < w->nlive; i++) {
+		uint32_t c = w->live[i];
 		double free_v = w->cur[c] + a * w->dir[c], v = free_v;
 		if (v < m->floor)
 			v = 0.0;
@@ -239,16 +284,24 @@ static double trial(const struct model *m, const struct graph *g, uint32_t u,
 		return 0.0;
 	w->trials++;
 	uint32_t deg = graph_degree(g, u);
+	int reread = !(lin && !clipped);
+	const uint32_t *adj = g->adj + g->off[u];
+	for (uint32_t i = 0; reread && i < deg && i < PF_FAR; i++)
+		__builtin_prefetch(&m->rows[adj[i]]);
 	for (uint32_t i = 0; i < deg; i++) {
 		uint64_t at = g->off[u] + i;
-		double x = lin && !clipped ? w->xv[i] + a * w->dv[i]
-					   : dense_dot(w->trial, &m->rows[g->adj[at]]) + m->qeps;
+		if (reread && i + PF_FAR < deg)
+			__builtin_prefetch(&m->rows[adj[i + PF_FAR]]);
+		if (reread && i + PF_NEAR < deg)
+			__builtin_prefetch(m->rows[adj[i + PF_NEAR]].e);
+		double x = !reread ? w->xv[i] + a * w->dv[i]
+				   : dense_dot(w->trial, &m->rows[g->adj[at]]) + m->qeps;
 		/* a step along dir may take x to 0 or below only by rounding
 		 * (x is a sum of products of nonnegative numbers): log of a
 		 * nonpositive x is -inf, and the trial fails */
 		f += graph_weight(g, at) * log(x);
 	}
-	if (!(lin && !clipped))
+	if (reread)
 		w->visits += deg;
 	return f;
 }
@@ -273,8 +326,7 @@ static int pw_update_row(const struct model *m, const struct graph *g, uint32_t 
 	struct poisson_work *w = vw;
 	uint32_t deg = graph_degree(g, u);
 	int lin = grow(w, deg) == 0;
-	gather(m, g, u, w);
-	double f0 = gradient(m, g, u, w, lin);
+	double f0 = gather_gradient(m, g, u, w, lin);
 	w->rows++;
 	if (w->ncand == 0)
 		return 0;
@@ -408,8 +460,7 @@ static void pw_row_gradient(const struct model *m, const struct graph *g, uint32
 			    double *grad)
 {
 	struct poisson_work *w = vw;
-	gather(m, g, u, w);
-	gradient(m, g, u, w, 0);
+	gather_gradient(m, g, u, w, 0);
 	const double *oc = model_other_colsum(m, u);
 	for (uint32_t c = 0; c < m->k; c++)
 		grad[c] = -oc[c]; /* outside the candidates F_u and X_u are 0 there */
