@@ -19,8 +19,13 @@ in_all()
 }
 lo=$(in_all 2)
 hi=$(in_all 2000)
+# by src/memory.c the two estimates differ by 1.1 x 23.0 B x (14.03 - 0.30)
+# x 9998 = 3.47 MB = 3.3 MiB (memory_fill() predicts 0.30 and 14.03 entries
+# a row here); the message rounds "in all" to whole MiB, and the resident
+# size at the check moves between the two runs, so the difference read
+# back can be a MiB less: at least 2 MiB
 check "the estimate grows from k = 2 ($lo KiB) to k = 2000 ($hi KiB)" \
-	[ "${hi:-0}" -gt $((${lo:-0} + 3072)) ]
+	[ "${hi:-0}" -gt $((${lo:-0} + 2048)) ]
 lim=$(((lo + hi) / 2))K
 COTERIE_MEMORY_LIMIT=$lim "$BIN" fit "$g" -k 2000 -j 1 --starts 1 \
 	--max-sweeps 1 -q -o "$tmp/big" 2>"$tmp/big.err"
