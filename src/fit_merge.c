@@ -343,10 +343,8 @@ static int nodecols_build(struct nodecols *nc, const struct model *m)
 /* Whether the sorted list l[0 .. n) holds c. */
 static int list_has(const uint32_t *l, uint64_t n, uint32_t c)
 {
-	for (uint64_t i = 0; i < n; i++)
-		if (l[i] >= c)
-			return l[i] == c;
-	return 0;
+	uint64_t i = util_lower_bound_u32(l, n, c);
+	return i < n && l[i] == c;
 }
 
 /* Every pair (a < b) with edges between A \ B and B \ A, or sharing

@@ -59,8 +59,6 @@
 
 #define STEP_REACH 10.0 /* largest change of a strength in a first trial step */
 #define X_FLOOR 1e-12   /* smallest x + q used in a gradient weight */
-#define PF_FAR 8u  /* neighbours ahead whose row header is prefetched */
-#define PF_NEAR 4u /* neighbours ahead whose row entries are prefetched */
 
 struct poisson_work {
 	uint32_t k;
@@ -213,16 +211,9 @@ static double gather_gradient(const struct model *m, const struct graph *g, uint
 	 * from cache */
 	const uint32_t *adj = g->adj + g->off[u];
 	uint32_t deg = graph_degree(g, u);
-	/* the rows of later neighbours fetched ahead, as in model_row.c: the
-	 * row headers PF_FAR neighbours on, the entries PF_NEAR on */
-	for (uint32_t i = 0; i < deg && i < PF_FAR; i++)
-		__builtin_prefetch(&m->rows[adj[i]]);
+	model_prefetch_first(m, adj, deg); /* the rows of later neighbours fetched ahead */
 	for (uint64_t i = g->off[u]; i < g->off[u + 1]; i++) {
-		uint64_t r = i - g->off[u];
-		if (r + PF_FAR < deg)
-			__builtin_prefetch(&m->rows[adj[r + PF_FAR]]);
-		if (r + PF_NEAR < deg)
-			__builtin_prefetch(m->rows[adj[r + PF_NEAR]].e);
+		model_prefetch_next(m, adj, deg, (uint32_t)(i - g->off[u]));
 		const struct frow *rv = &m->rows[g->adj[i]];
 		double x = 0.0;
 		for (uint32_t j = 0; j < rv->nnz; j++) {
@@ -286,14 +277,12 @@ static double trial(const struct model *m, const struct graph *g, uint32_t u,
 	uint32_t deg = graph_degree(g, u);
 	int reread = !(lin && !clipped);
 	const uint32_t *adj = g->adj + g->off[u];
-	for (uint32_t i = 0; reread && i < deg && i < PF_FAR; i++)
-		__builtin_prefetch(&m->rows[adj[i]]);
+	if (reread)
+		model_prefetch_first(m, adj, deg);
 	for (uint32_t i = 0; i < deg; i++) {
 		uint64_t at = g->off[u] + i;
-		if (reread && i + PF_FAR < deg)
-			__builtin_prefetch(&m->rows[adj[i + PF_FAR]]);
-		if (reread && i + PF_NEAR < deg)
-			__builtin_prefetch(m->rows[adj[i + PF_NEAR]].e);
+		if (reread)
+			model_prefetch_next(m, adj, deg, i);
 		double x = !reread ? w->xv[i] + a * w->dv[i]
 				   : dense_dot(w->trial, &m->rows[g->adj[at]]) + m->qeps;
 		/* a step along dir may take x to 0 or below only by rounding

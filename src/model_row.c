@@ -40,8 +40,6 @@
 #define X_FLOOR 1e-12 /* smallest x + qeps used in a gradient weight */
 #define PROD_CHUNK 8u  /* edge terms of the gradient pass multiplied before one log() */
 #define TRIAL_CHUNK 4u /* the same in a trial (its early exit is checked per chunk) */
-#define PF_FAR 8u  /* neighbours ahead whose row header is prefetched */
-#define PF_NEAR 4u /* neighbours ahead whose row entries are prefetched */
 
 struct model_work {
 	uint32_t k;
@@ -263,18 +261,12 @@ static double gather_gradient(const struct model *m, const struct graph *g, uint
 	const uint32_t *adj = g->adj + g->off[u];
 	uint32_t deg = graph_degree(g, u);
 	int keep = grow_scratch(w, deg);
-	/* the rows of later neighbours are fetched ahead: the row headers
-	 * PF_FAR neighbours on (the first ones all at once), the entries
-	 * PF_NEAR on (by then the header is in cache); without this every
-	 * neighbour costs two dependent cache misses, which the log() calls
-	 * between them keep the processor from overlapping */
-	for (uint32_t i = 0; i < deg && i < PF_FAR; i++)
-		__builtin_prefetch(&m->rows[adj[i]]);
+	/* the rows of later neighbours are fetched ahead (model.h); the
+	 * log() calls between the neighbours keep the processor from
+	 * overlapping the misses by itself */
+	model_prefetch_first(m, adj, deg);
 	for (uint32_t i = 0; i < deg; i++) {
-		if (i + PF_FAR < deg)
-			__builtin_prefetch(&m->rows[adj[i + PF_FAR]]);
-		if (i + PF_NEAR < deg)
-			__builtin_prefetch(m->rows[adj[i + PF_NEAR]].e);
+		model_prefetch_next(m, adj, deg, i);
 		const struct frow *rv = &m->rows[adj[i]];
 		const struct fentry *e = rv->e;
 		uint32_t nnz = rv->nnz;

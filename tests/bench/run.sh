@@ -162,10 +162,12 @@ bench()
 		"$(get "$f.j1" yard_entries_per_visit)" >>"$notes"
 }
 
+# planted_k N: the communities gen_planted plants in N nodes here
+planted_k() { echo $(($1 * 12 / 1000)); }
 largest=
 for n in $sizes; do
 	d=$cache/planted-$n
-	c=$((n * 12 / 1000))
+	c=$(planted_k "$n")
 	if [ ! -s "$d/edges.tsv" ] || [ ! -s "$d/truth.tsv" ]; then
 		mkdir -p "$d" && "$gen" "$n" "$c" 20 1 "$d" || { echo "bench: cannot write $d" >&2; continue; }
 	fi
@@ -359,7 +361,7 @@ for n in $mpisizes; do
 	fi
 	d=$cache/planted-$n
 	[ -s "$d/edges.tsv" ] || continue
-	k=$((n * 12 / 1000)) # the planted count, as above
+	k=$(planted_k "$n")
 	opts="-k $k --seed 1 --starts 1 --no-reseed --past-plateau --max-sweeps $mpisweeps -q --force"
 	echo "bench: planted-$n: coterie fit -j 2, $mpisweeps sweeps" >&2
 	# shellcheck disable=SC2086

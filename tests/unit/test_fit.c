@@ -22,6 +22,8 @@
 #include "coterie/fit.h"
 #include "coterie/graph.h"
 #include "coterie/rng.h"
+
+#include "../../src/fit-internal.h"
 #include "coterie/score.h"
 
 /* struct fentry has padding bytes: compare the fields */
@@ -140,6 +142,36 @@ static void test_likelihood_climbs_and_snapshot_is_consistent(void **state)
 	assert_fcsr_sane(&s->F);
 	assert_cover_sane(&s->agm.cover);
 	snapshot_release(s);
+	graph_free(g);
+}
+
+/* A snapshot published while fitting carries no strengths unless a live
+ * reader asked for them (fit_want_live_agm()); one that pauses or ends a
+ * fit always does (the batch command and checkpoints read those). */
+static void test_fitting_snapshots_carry_strengths_only_when_asked(void **state)
+{
+	(void)state;
+	struct graph *g = graph_load(test_data("football/edges.tsv"), GRAPH_FORMAT_AUTO);
+	assert_non_null(g);
+	struct fit_params p;
+	fit_params_default(&p);
+	p.k = 12;
+	for (int live = 0; live <= 1; live++) {
+		struct fit *f = fit_new(g, &p, NULL);
+		assert_non_null(f);
+		if (live)
+			fit_want_live_agm(f);
+		assert_int_equal(fit_publish(f, FIT_FITTING), 0);
+		struct snapshot *s = fit_snapshot(f);
+		assert_int_equal(s->F.n, live ? g->n : 0);
+		assert_int_equal(s->F.off[s->F.n], 0); /* before seeding: no entries either way */
+		snapshot_release(s);
+		assert_int_equal(fit_publish(f, FIT_PAUSED), 0);
+		s = fit_snapshot(f);
+		assert_int_equal(s->F.n, g->n);
+		snapshot_release(s);
+		fit_free(f);
+	}
 	graph_free(g);
 }
 
@@ -369,6 +401,7 @@ int main(void)
 		cmocka_unit_test(test_same_seed_gives_same_bytes_for_any_thread_count),
 		cmocka_unit_test(test_likelihood_climbs_and_snapshot_is_consistent),
 		cmocka_unit_test(test_stop_keeps_the_model_and_pause_holds),
+		cmocka_unit_test(test_fitting_snapshots_carry_strengths_only_when_asked),
 		cmocka_unit_test(test_resume_continues_from_the_saved_state),
 		cmocka_unit_test(test_extend_by_runs_n_sweeps_and_a_smaller_tol_runs_to_the_next_plateau),
 		cmocka_unit_test(test_football_fit_rivals_leiden_on_conferences),
