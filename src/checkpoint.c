@@ -343,6 +343,24 @@ static void put_model_section(struct atomicfile *w, const struct graph *g,
 					put_f64(w, g->wt[i]);
 }
 
+/* The optional AWAK section (format 3 on), written when the fit's last
+ * sweep left awake flags (sweep.h) for where a resume goes on: one bit a
+ * node, node u in bit u % 8 of byte u / 8, the bits past n zero. */
+static void put_awake_section(struct atomicfile *w, const struct graph *g, const uint8_t *awake)
+{
+	uint64_t len = ((uint64_t)g->n + 7) / 8;
+	put_section(w, "AWAK", len);
+	unsigned char byte = 0;
+	for (uint32_t u = 0; u < g->n; u++) {
+		if (awake[u])
+			byte |= (unsigned char)(1u << (u % 8));
+		if (u % 8 == 7 || u + 1 == g->n) {
+			atomicfile_write(w, &byte, 1);
+			byte = 0;
+		}
+	}
+}
+
 static int fill_checkpoint(struct atomicfile *w, const void *arg)
 {
 	const struct ck_args *a = arg;
@@ -406,6 +424,8 @@ static int fill_checkpoint(struct atomicfile *w, const void *arg)
 		put_resume_section(w, a->savepoint);
 	if (p->model != MODEL_BIGCLAM || g->wt)
 		put_model_section(w, g, p);
+	if (s->awake)
+		put_awake_section(w, g, s->awake);
 
 	put_u64(w, atomicfile_sum(w));
 	return 0;

@@ -462,6 +462,24 @@ static int read_resume(const char *path, struct rd *sec, struct checkpoint *ck)
 	return 0;
 }
 
+/* The optional AWAK section: n flags, one bit each (checkpoint.c). */
+static int read_awake(const char *path, struct rd *sec, struct checkpoint *ck)
+{
+	uint32_t n = ck->graph->n;
+	if (sec->left != ((size_t)n + 7) / 8)
+		return damaged(path, "the awake section holds %zu bytes for %" PRIu32 " nodes",
+			       sec->left, n);
+	if (n % 8 && (sec->p[sec->left - 1] >> (n % 8)))
+		return damaged(path, "the awake section sets bits past the last node");
+	if (!(ck->awake = util_malloc(n ? n : 1, 1)))
+		return -1;
+	for (uint32_t u = 0; u < n; u++)
+		ck->awake[u] = (sec->p[u / 8] >> (u % 8)) & 1u;
+	sec->p += sec->left;
+	sec->left = 0;
+	return rd_section_end(path, sec, "AWAK");
+}
+
 /* The optional MODL section: the model and, when flagged, the weights of
  * the graph's edges (in the GRPH section's order). Absent: BigCLAM on an
  * unweighted graph. */
@@ -590,6 +608,10 @@ static int read_body(const char *path, struct rd *body, uint32_t version,
 		if (rd_section(path, body, "MODL", &sec) || read_model(path, &sec, ck))
 			return -1;
 	}
+	if (version >= 3 && body->left >= CK_SECTION_HEAD && !memcmp(body->p, "AWAK", 4)) {
+		if (rd_section(path, body, "AWAK", &sec) || read_awake(path, &sec, ck))
+			return -1;
+	}
 	if (body->left != 0)
 		return damaged(path, "%zu unexpected bytes after the last section", body->left);
 	return 0;
@@ -643,6 +665,7 @@ void checkpoint_release(struct checkpoint *ck)
 	free(ck->trace);
 	fcsr_release(&ck->F);
 	fit_savepoint_free(ck->savepoint);
+	free(ck->awake);
 	memset(ck, 0, sizeof *ck);
 }
 
@@ -656,6 +679,7 @@ void checkpoint_origin(const struct checkpoint *ck, struct fit_origin *o)
 	o->seconds = ck->seconds;
 	o->plateau_sweep = ck->plateau_sweep;
 	o->savepoint = ck->savepoint;
+	o->awake = ck->awake;
 }
 
 int checkpoint_read_fingerprint(const char *path, uint64_t *fingerprint)

@@ -7,6 +7,10 @@
 #ifndef COTERIE_FIT_INTERNAL_H
 #define COTERIE_FIT_INTERNAL_H
 
+#define FIT_QUIET_EVERY 8u  /* every 8th sweep computes every row (fit.c, quiet_next()) */
+#define FIT_QUIET_WAKE 10.0 /* the gain that wakes a row's neighbours, in plateau gains per row */
+
+
 #include <pthread.h>
 #include <stdatomic.h>
 
@@ -63,6 +67,7 @@ struct fit {
 	uint32_t sweep;
 	uint32_t plateau_sweep;
 	unsigned streak;
+	int awake_ok;              /* the sweep engine's awake flags are the model's */
 	uint32_t goal_sweep;       /* fit_extend_by(n): run to this sweep, then hold (0: none) */
 	double seconds_base, t0;
 	struct seed_report seeds;
@@ -139,5 +144,13 @@ int fit_merge_move(struct fit *f, struct rng *r, uint32_t limit, uint32_t *made)
  * Positive: one block explains them better. Exposed for the tests. */
 double fit_merge_block_gain(double eI, double NI, double eA, double NA, double eB, double NB,
 			    double eX, double NX, double bg);
+
+/* The sweep engine's awake flags (sweep.h) in g's ids, a copy (g->n
+ * bytes, freed by the caller); NULL when they are not the model's
+ * (awake_ok 0) or out of memory. */
+uint8_t *fit_awake_copy(const struct fit *f);
+/* Set them from g->n flags in g's ids (the model must be the one they
+ * describe); awake_ok becomes 1. 0 or -1. */
+int fit_awake_set(struct fit *f, const uint8_t *awake);
 
 #endif

@@ -98,6 +98,7 @@ void snapshot_release(struct snapshot *s)
 	fcsr_release(&s->F);
 	agm_release(&s->agm);
 	fit_savepoint_free(s->savepoint);
+	free(s->awake);
 	free(s);
 }
 
@@ -109,6 +110,7 @@ struct snapshot *snapshot_copy(const struct snapshot *s)
 	*c = *s;
 	c->refs_ = 1;
 	c->savepoint = NULL;
+	c->awake = NULL;
 	c->trace = util_malloc(s->ntrace ? s->ntrace : 1, sizeof *c->trace);
 	memset(&c->F, 0, sizeof c->F);
 	memset(&c->agm, 0, sizeof c->agm);
@@ -241,6 +243,10 @@ int fit_publish(struct fit *f, enum fit_state state)
 	if ((bare ? fcsr_empty(&s->F) : model_export_order(&f->m, f->inner, &s->F)) ||
 	    snapshot_agm(f, s, state))
 		goto fail;
+	/* where a resume of an ended fit goes on (a savepoint has its own) */
+	if (fit_state_ended(state) && state != FIT_FAILED && !s->savepoint && f->awake_ok &&
+	    !(s->awake = fit_awake_copy(f)))
+		goto fail;
 	f->stats.publish_seconds += util_now() - t_pub;
 	swap_in(f, s, state);
 	return 0;
@@ -339,12 +345,64 @@ static uint64_t order_seed(const struct fit *f)
 	return f->p.seed * 0x9e3779b97f4a7c15ULL + f->sweep + (start << 32);
 }
 
+uint8_t *fit_awake_copy(const struct fit *f)
+{
+	if (!f->awake_ok)
+		return NULL;
+	uint32_t n = f->g->n;
+	uint8_t *a = util_malloc(n ? n : 1, 1);
+	if (!a)
+		return NULL;
+	const uint8_t *w = sweep_awake(f->sw);
+	for (uint32_t u = 0; u < n; u++)
+		a[u] = w[f->inner ? f->inner[u] : u];
+	return a;
+}
+
+int fit_awake_set(struct fit *f, const uint8_t *awake)
+{
+	uint32_t n = f->g->n;
+	if (!f->inner) {
+		sweep_set_awake(f->sw, awake);
+	} else {
+		uint8_t *w = util_malloc(n ? n : 1, 1);
+		if (!w)
+			return -1;
+		for (uint32_t u = 0; u < n; u++)
+			w[f->inner[u]] = awake[u] ? 1 : 0;
+		sweep_set_awake(f->sw, w);
+		free(w);
+	}
+	f->awake_ok = 1;
+	return 0;
+}
+
+/* Is the next sweep quiet (sweep.h)? Not when the engine's awake flags
+ * are not the model's (a start, a move, an import: awake_ok 0), not
+ * every FIT_QUIET_EVERY-th sweep, and not after a sweep that gained less
+ * than the fit's own tolerance (the plateau rule then counts full
+ * sweeps). The fit's own p.tol, not the one in force, so that the sweeps
+ * do not depend on fit_set_tol(). */
+static int quiet_next(const struct fit *f)
+{
+	if (f->p.full_sweeps || !f->awake_ok || f->sweep % FIT_QUIET_EVERY == 0 || f->ntrace < 2)
+		return 0;
+	double prev = f->trace[f->ntrace - 2].loglik, ll = f->trace[f->ntrace - 1].loglik;
+	return (ll - prev) / (fabs(prev) > 0 ? fabs(prev) : 1.0) >= f->p.tol;
+}
+
 /* One sweep with its timing; returns as sweep_run(). *ll goes from the
  * value before the sweep to the value after it. */
 static int one_sweep(struct fit *f, double *ll)
 {
 	double t = util_now(), c = thread_cpu(), dl = 0.0;
+	/* a row wakes its neighbours when its update gained FIT_QUIET_WAKE
+	 * times the gain per row that the plateau rule calls little */
+	sweep_set_quiet(f->sw, quiet_next(f),
+			FIT_QUIET_WAKE * f->p.tol * fabs(*ll) / (double)(f->gw->n ? f->gw->n : 1));
 	int rc = sweep_run(f->sw, order_seed(f), wait_while_paused, f, &dl);
+	f->awake_ok = rc == 0;
+	f->stats.rows_skipped = sweep_skipped(f->sw);
 	if (rc < 0)
 		return rc;
 	f->sweep++;
@@ -486,6 +544,12 @@ static int load_origin(struct fit *f, const struct fit_origin *origin)
 		if (!(f->res_in = fit_savepoint_dup(ri)))
 			return -1;
 		f->start = ri->start;
+		/* a checkpoint keeps a climbing start's flags beside it */
+		if (origin->awake && ri->phase == FIT_PHASE_CLIMB && !f->res_in->cur.awake) {
+			if (!(f->res_in->cur.awake = util_malloc(g->n, 1)))
+				return -1;
+			memcpy(f->res_in->cur.awake, origin->awake, g->n);
+		}
 		return 0;
 	}
 	if (origin->F->n != g->n || origin->F->k != k)
@@ -494,6 +558,8 @@ static int load_origin(struct fit *f, const struct fit_origin *origin)
 	if (model_import_order(&f->m, origin->F, f->inner))
 		return -1;
 	f->resumed = 1;
+	if (origin->awake && fit_awake_set(f, origin->awake))
+		return -1;
 	f->sweep = origin->sweep;
 	f->seconds_base = origin->seconds;
 	f->plateau_sweep = origin->plateau_sweep;

@@ -37,6 +37,7 @@
 #include "coterie/model.h"
 #include "coterie/result_commit.h"
 #include "coterie/result_weight.h"
+#include "coterie/savepoint.h"
 #include "coterie/select.h"
 #include "coterie/stability.h"
 #include "coterie/util.h"
@@ -57,6 +58,13 @@ void result_model_of(struct result_model *m, const struct snapshot *s)
 		.best_start = s->best_start,
 		.reseeds = s->reseeds,
 		.savepoint = s->savepoint,
+		/* a resume from the savepoint goes on with its start in
+		 * progress: a climbing one's flags; one whose moves ran makes
+		 * its moves again, and a move's first sweep visits every row */
+		.awake = s->savepoint ? (s->savepoint->phase == FIT_PHASE_CLIMB
+						 ? s->savepoint->cur.awake
+						 : NULL)
+				      : s->awake,
 	};
 }
 

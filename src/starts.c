@@ -60,6 +60,7 @@ void fit_part_release(struct fit_part *p)
 {
 	fcsr_release(&p->F);
 	free(p->trace);
+	free(p->awake);
 	memset(p, 0, sizeof *p);
 }
 
@@ -77,14 +78,25 @@ static int part_dup(struct fit_part *dst, const struct fit_part *src)
 {
 	*dst = *src;
 	memset(&dst->F, 0, sizeof dst->F);
+	dst->awake = NULL;
 	dst->trace = util_malloc(src->ntrace ? src->ntrace : 1, sizeof *dst->trace);
 	if (!dst->trace)
 		return -1;
+	if (src->awake) {
+		if (!(dst->awake = util_malloc(src->F.n ? src->F.n : 1, 1))) {
+			free(dst->trace);
+			dst->trace = NULL;
+			return -1;
+		}
+		memcpy(dst->awake, src->awake, src->F.n);
+	}
 	if (src->ntrace)
 		memcpy(dst->trace, src->trace, src->ntrace * sizeof *dst->trace);
 	if (fcsr_copy(&dst->F, &src->F)) {
 		free(dst->trace);
+		free(dst->awake);
 		dst->trace = NULL;
+		dst->awake = NULL;
 		return -1;
 	}
 	return 0;
@@ -106,12 +118,15 @@ struct fit_savepoint *fit_savepoint_dup(const struct fit_savepoint *src)
 	return r;
 }
 
-/* The fit's model and trace now, as a part. */
-static int part_of_model(struct fit *f, struct fit_part *p)
+/* The fit's model and trace now, as a part; with_awake: and the sweep
+ * engine's awake flags when they are the model's. */
+static int part_of_model(struct fit *f, struct fit_part *p, int with_awake)
 {
 	memset(p, 0, sizeof *p);
 	p->trace = util_malloc(f->ntrace ? f->ntrace : 1, sizeof *p->trace);
-	if (!p->trace || model_export(&f->m, &p->F)) {
+	if (!p->trace || model_export(&f->m, &p->F) ||
+	    (with_awake && f->awake_ok && !(p->awake = fit_awake_copy(f)))) {
+		fcsr_release(&p->F);
 		free(p->trace);
 		p->trace = NULL;
 		return -1;
@@ -129,6 +144,7 @@ static int part_load(struct fit *f, const struct fit_part *p)
 {
 	if (model_import(&f->m, &p->F))
 		return -1;
+	f->awake_ok = 0;
 	f->ntrace = 0;
 	for (uint32_t i = 0; i < p->ntrace; i++) {
 		if (fit_trace_add(f, 0))
@@ -153,7 +169,7 @@ struct fit_savepoint *fit_make_savepoint(struct fit *f)
 		return NULL;
 	r->start = f->start;
 	r->phase = f->climb ? FIT_PHASE_RESEED : FIT_PHASE_CLIMB;
-	int rc = f->climb ? part_dup(&r->cur, f->climb) : part_of_model(f, &r->cur);
+	int rc = f->climb ? part_dup(&r->cur, f->climb) : part_of_model(f, &r->cur, 1);
 	if (rc == 0 && f->best_start) {
 		r->best_start = f->best_start;
 		r->best_reseeds = f->best_reseeds;
@@ -189,7 +205,7 @@ static int keep_best(struct fit *f, enum fit_state st)
 	if (f->best_start && !(ll > f->best_loglik))
 		return 0;
 	fit_part_release(&f->best);
-	if (part_of_model(f, &f->best))
+	if (part_of_model(f, &f->best, 0))
 		return -1;
 	f->best_reseeds = f->reseeds;
 	f->best_state = st;
@@ -203,6 +219,7 @@ static int restore_best(struct fit *f)
 	const struct fit_part *b = &f->best;
 	if (model_import(&f->m, &b->F))
 		return -1;
+	f->awake_ok = 0;
 	memcpy(f->trace, b->trace, b->ntrace * sizeof *b->trace);
 	f->ntrace = b->ntrace;
 	f->sweep = b->sweep;
@@ -374,6 +391,7 @@ static enum fit_state reseed(struct fit *f)
 		}
 		f->ll_moved_value = fit_loglik(f);
 		f->ll_moved = 1;
+		f->awake_ok = 0;
 		f->streak = 0;
 		st = fit_run_start(f, 0);
 		spent += f->sweep - sweep;
@@ -388,6 +406,7 @@ static enum fit_state reseed(struct fit *f)
 				st = FIT_FAILED;
 				break;
 			}
+			f->awake_ok = 0;
 			f->ntrace = ntrace;
 			f->sweep = sweep;
 			f->plateau_sweep = plateau;
@@ -418,6 +437,7 @@ static int begin_start(struct fit *f, uint32_t r)
 		f->plateau_sweep = 0;
 	}
 	fit_set_state(f, FIT_SEEDING);
+	f->awake_ok = 0;
 	double t = util_now();
 	int seeded = f->m.nsend ? model_directed_seed(f->gw, f->view, &f->m, f->p.seed, r, &f->seeds)
 				: seed_model(f->gw, &f->m, f->p.seed, r, &f->seeds);
@@ -442,7 +462,7 @@ static enum fit_state climb_start(struct fit *f, uint32_t r, const struct fit_sa
 	}
 	/* an exact resume: the start where the interrupt left it */
 	f->reseeds = 0;
-	if (part_load(f, &ri->cur))
+	if (part_load(f, &ri->cur) || (ri->cur.awake && fit_awake_set(f, ri->cur.awake)))
 		return FIT_FAILED;
 	fit_publish(f, FIT_FITTING);
 	if (ri->phase == FIT_PHASE_CLIMB)
@@ -462,7 +482,7 @@ static enum fit_state one_start(struct fit *f, uint32_t r, const struct fit_save
 	if (st == FIT_LEVELLED && !f->p.no_reseed) {
 		/* kept for an interrupt during the moves (see keep_savepoint) */
 		if (copy == CLIMB_NONE) {
-			if (part_of_model(f, &climb))
+			if (part_of_model(f, &climb, 0))
 				return FIT_FAILED;
 			copy = CLIMB_OWNED;
 		}

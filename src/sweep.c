@@ -130,6 +130,12 @@ struct sweep {
 	uint32_t *ll_stamp;   /* k: ll_col[c] is live when == ll_epoch */
 	uint32_t ll_epoch;
 	uint32_t *ll_pos;     /* n (only with held-out pairs): 1 + index in the block */
+	/* quiet sweeps (sweep_set_quiet()) */
+	uint8_t *moved;       /* n: the row's gain in this sweep passed wake_gain */
+	uint8_t *awake;       /* n: visited by a quiet sweep */
+	double wake_gain;
+	int quiet;            /* this sweep computes awake rows only */
+	uint64_t skipped;     /* rows a quiet sweep left as they were */
 };
 
 struct sweep *sweep_new(struct model *m, const struct graph *g, const struct objective_ops *ops,
@@ -154,9 +160,11 @@ struct sweep *sweep_new(struct model *m, const struct graph *g, const struct obj
 	size_t llk = (m->nsend ? 2 : 1) * (size_t)m->k;
 	s->ll_col = util_calloc(llk, sizeof *s->ll_col);
 	s->ll_stamp = util_calloc(llk, sizeof *s->ll_stamp);
+	s->moved = util_calloc(2 * n + 1, 1);
 	if (!s->pool || !s->slots || !s->res || !s->perm || !s->blk || !s->parts || !s->ll_col ||
-	    !s->ll_stamp)
+	    !s->ll_stamp || !s->moved)
 		goto fail;
+	s->awake = s->moved + n;
 	s->mark = s->perm + n;
 	s->pend = s->blk + 2 * BLOCK_NODES;
 	for (unsigned t = 0; t < s->nslots; t++)
@@ -188,6 +196,7 @@ void sweep_free(struct sweep *s)
 	free(s->ll_col);
 	free(s->ll_stamp);
 	free(s->ll_pos);
+	free(s->moved);
 	free(s);
 }
 
@@ -260,6 +269,8 @@ static void rows_job(void *arg, unsigned tid)
 		uint32_t nnz;
 		struct rowres *r = &s->res[i];
 		r->changed = 0;
+		if (s->quiet && !s->awake[u])
+			continue;
 		struct slot *sl = &s->slots[tid];
 		if (s->ops->update_row(s->m, g, u, sl->work, &row, &nnz)) {
 			if (arena_push(&sl->arena, row, nnz, &r->at)) {
@@ -274,19 +285,44 @@ static void rows_job(void *arg, unsigned tid)
 	}
 }
 
+/* The next chunk of LL_CHUNK nodes [*u0, *u1), chunk *i, of a pool job
+ * over chunks; 0 when the job's chunks are taken. */
+static int next_chunk(struct sweep *s, uint32_t *i, uint32_t *u0, uint32_t *u1)
+{
+	*i = atomic_fetch_add(&s->next, 1);
+	if (*i >= s->job_end)
+		return 0;
+	*u0 = *i * LL_CHUNK;
+	*u1 = *u0 + LL_CHUNK < s->g->n ? *u0 + LL_CHUNK : s->g->n;
+	return 1;
+}
+
 /* Thread tid's share of the objective's parts (a pool job). */
 static void parts_job(void *arg, unsigned tid)
 {
 	(void)tid;
 	struct sweep *s = arg;
-	for (;;) {
-		uint32_t i = atomic_fetch_add(&s->next, 1);
-		if (i >= s->job_end)
-			break;
-		uint32_t u0 = i * LL_CHUNK;
-		uint32_t u1 = u0 + LL_CHUNK < s->g->n ? u0 + LL_CHUNK : s->g->n;
+	uint32_t i, u0, u1;
+	while (next_chunk(s, &i, &u0, &u1))
 		s->ops->part_range(s->m, s->g, u0, u1, s->parts + (size_t)i * s->ops->part_size);
-	}
+}
+
+/* Thread tid's share of the awake flags (a pool job): a row is awake
+ * for the next sweep when it or a neighbour moved in this one. Every
+ * process of a group computes all of them (each has every row's flag). */
+static void wake_job(void *arg, unsigned tid)
+{
+	(void)tid;
+	struct sweep *s = arg;
+	const struct graph *g = s->g;
+	uint32_t i, u0, u1;
+	while (next_chunk(s, &i, &u0, &u1))
+		for (uint32_t u = u0; u < u1; u++) {
+			uint8_t a = s->moved[u];
+			for (uint64_t e = g->off[u]; e < g->off[u + 1] && !a; e++)
+				a = s->moved[g->adj[e]];
+			s->awake[u] = a;
+		}
 }
 
 /* This process's share [*lo, *hi) of len items (all of them when alone). */
@@ -640,8 +676,11 @@ static int apply_block(struct sweep *s)
 {
 	for (uint32_t j = 0; j < s->block_len; j++) {
 		const struct rowres *rr = &s->res[j];
+		if (s->quiet && !s->awake[s->block[j]])
+			s->skipped++;
 		if (!rr->changed)
 			continue;
+		s->moved[s->block[j]] = rr->gain > s->wake_gain;
 		if (model_set_row(s->m, s->block[j], s->slots[rr->owner].arena.e + rr->at, rr->nnz))
 			return -1;
 	}
@@ -654,6 +693,7 @@ int sweep_run(struct sweep *s, uint64_t order_seed, sweep_between_fn *between, v
 	uint32_t n = s->g->n;
 	if (s->m->excl && !s->ll_pos && !(s->ll_pos = util_calloc(n, sizeof *s->ll_pos)))
 		return -1;
+	memset(s->moved, 0, n);
 	struct rng r;
 	rng_init(&r, order_seed);
 	for (uint32_t i = 0; i < n; i++)
@@ -696,5 +736,33 @@ int sweep_run(struct sweep *s, uint64_t order_seed, sweep_between_fn *between, v
 	 * fit resumed from a checkpoint, whose colsum is recounted on
 	 * import, goes on bit for bit as the uninterrupted fit would */
 	model_recount(s->m);
+	if (rc == 0) {
+		atomic_store(&s->next, 0);
+		s->job_end = s->nparts;
+		pool_begin(s->pool, wake_job, s, s->nparts < 2);
+		wake_job(s, 0);
+		pool_end(s->pool);
+	}
 	return rc;
+}
+
+void sweep_set_quiet(struct sweep *s, int quiet, double wake_gain)
+{
+	s->quiet = quiet;
+	s->wake_gain = wake_gain;
+}
+
+uint64_t sweep_skipped(const struct sweep *s)
+{
+	return s->skipped;
+}
+
+const uint8_t *sweep_awake(const struct sweep *s)
+{
+	return s->awake;
+}
+
+void sweep_set_awake(struct sweep *s, const uint8_t *awake)
+{
+	memcpy(s->awake, awake, s->g->n);
 }

@@ -17,7 +17,7 @@ struct result_commit;
 struct graph;
 struct result_model;
 
-#define CHECKPOINT_VERSION 2u
+#define CHECKPOINT_VERSION 3u
 
 /* Write the checkpoint of model m of a fit of g with parameters p to
  * path, atomically (atomicfile.h). All borrowed. Returns 0 or -1 with a
@@ -49,6 +49,8 @@ struct checkpoint {
 	struct fcsr F;               /* owned */
 	struct fit_savepoint *savepoint; /* owned; NULL unless the fit was
 				      * saved at the end of a sweep with one */
+	uint8_t *awake;              /* owned; graph->n flags or NULL (the
+				      * optional AWAK section; fit_origin) */
 };
 
 /* Read and validate a checkpoint (checksum, version, every size and

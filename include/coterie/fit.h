@@ -71,6 +71,10 @@ struct fit_params {
 			      * ids. Results are in the graph's ids either
 			      * way. Off by default (DEVELOPERS.md,
 			      * performance notes). */
+	int full_sweeps;     /* 1: every sweep computes every row (no quiet
+			      * sweeps, sweep.h; for measurements: the
+			      * commands leave it 0). Not stored in a
+			      * checkpoint. */
 };
 
 /* Defaults: k 10, 1 thread, seed 1, tol 1e-4, patience 3, 500 sweeps,
@@ -94,6 +98,7 @@ struct fit_stats {
 	double publish_seconds; /* building snapshots */
 	uint32_t sweeps;        /* sweeps run */
 	uint64_t rows;          /* row updates computed */
+	uint64_t rows_skipped;  /* rows quiet sweeps left as they were (sweep.h) */
 	uint64_t trials;        /* line-search trials evaluated */
 	uint64_t visits;        /* neighbour rows read (model_work_counts()) */
 	uint64_t entries;       /* their entries read in gradient passes (model_work_entries()) */
@@ -130,6 +135,10 @@ struct snapshot {
 				    * and in the one after
 				    * fit_want_savepoint(), else NULL */
 	struct fit_stats stats;  /* up to this snapshot (its own cost excluded) */
+	uint8_t *awake;          /* owned; in a snapshot that ends a fit whose
+				  * last sweep's awake flags describe F (g->n
+				  * bytes, sweep.h), so that a resume goes on
+				  * as the fit would have; else NULL */
 	/* private */
 	int refs_;
 };
@@ -159,6 +168,10 @@ struct fit_origin {
 	 * exactly where an interrupt left them (F and the fields above are
 	 * then not used; the parameters must be the saved ones). */
 	const struct fit_savepoint *savepoint;
+	/* g->n flags or NULL: the rows the first sweep visits if it is
+	 * quiet (F's, or the savepoint's start in progress when it was
+	 * climbing; sweep.h) */
+	const uint8_t *awake;
 };
 
 struct fit;

@@ -105,6 +105,8 @@ struct result_model {
 	double seconds, epsilon, delta;
 	uint32_t best_start, reseeds;      /* for run.json */
 	const struct fit_savepoint *savepoint; /* NULL: the checkpoint has none */
+	const uint8_t *awake;              /* NULL, or g->n flags: where a resume's
+					    * first sweep goes on (fit_origin) */
 };
 
 /* Point every field of m into snapshot s (borrowed: s must outlive m). */

@@ -22,6 +22,9 @@ struct fit_part {
 	struct trace_point *trace;
 	uint32_t ntrace;
 	uint32_t sweep, plateau_sweep;
+	uint8_t *awake; /* F.n flags (0 or 1) in the graph's ids: the rows the
+			 * next sweep visits if it is quiet (sweep.h); NULL:
+			 * the next sweep visits every row */
 };
 
 /*

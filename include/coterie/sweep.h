@@ -57,6 +57,23 @@ double sweep_objective(struct sweep *s);
 /* What the threads' work buffers have done so far, summed. */
 void sweep_counts(const struct sweep *s, struct objective_counts *c);
 
+/* Quiet sweeps. After each sweep the engine knows which rows are awake:
+ * those whose update in that sweep raised the objective by more than
+ * wake_gain, and every neighbour of one. A quiet sweep computes the awake
+ * rows only and leaves the others as they are (their neighbours hardly
+ * moved, so their updates would hardly move them); a full one computes
+ * every row. Which rows are awake depends only on the rows applied, so a
+ * quiet sweep keeps the determinism above (and across processes). The
+ * caller (fit.c) says which kind the next sweep is and the gain that
+ * wakes; awake flags describe the model only as the last sweep left it. */
+void sweep_set_quiet(struct sweep *s, int quiet, double wake_gain);
+/* Rows the quiet sweeps so far left as they were. */
+uint64_t sweep_skipped(const struct sweep *s);
+/* The awake flags (n bytes, 0 or 1) after the last sweep, borrowed; and
+ * setting them (n bytes, copied), for a savepoint taken back. */
+const uint8_t *sweep_awake(const struct sweep *s);
+void sweep_set_awake(struct sweep *s, const uint8_t *awake);
+
 /* Sweeps shared among processes that each hold the whole graph and model
  * (MPI: src/mpi_group.c, built into coterie-mpi only). Every process runs
  * the same sweeps on the same blocks; of a block of len rows, process

@@ -6,6 +6,7 @@
  *   benchtool fit GRAPH [-k K] [-j T] [--seed S] [--starts N] [--no-reseed]
  *                       [--max-sweeps N] [--past-plateau] [--truth FILE]
  *                       [--renumber] [--yardstick] [--weighted] [--directed]
+ *                       [--full-sweeps]
  *       load GRAPH (timed), fit it with the engine of `coterie fit`, print
  *       load time and MB/s, seeding time, seconds per sweep, sweeps, the
  *       split of the fitting thread's time, peak RSS, ns per neighbour
@@ -218,6 +219,8 @@ static int fit_args(int argc, char **argv, struct fit_params *pp, struct graph_l
 			p.past_plateau = 1;
 		else if (!strcmp(a, "--renumber"))
 			p.renumber = 1;
+		else if (!strcmp(a, "--full-sweeps"))
+			p.full_sweeps = 1; /* every row every sweep (sweep.h) */
 		else if (!strcmp(a, "--yardstick"))
 			yard = 1;
 		else if (!strcmp(a, "--weighted"))
@@ -309,6 +312,9 @@ static int cmd_fit(int argc, char **argv)
 					 x->publish_seconds);
 	double adj = 2.0 * (double)g->m * x->sweeps;
 	printf("trials_per_row\t%.3f\n", x->rows ? (double)x->trials / (double)x->rows : 0.0);
+	printf("rows_skipped\t%.4f\n", x->rows + x->rows_skipped
+					       ? (double)x->rows_skipped / (double)(x->rows + x->rows_skipped)
+					       : 0.0);
 	printf("reads_per_visit\t%.3f\n", adj > 0 ? (double)x->visits / adj : 0.0);
 	/* strength entries per neighbour row met by the fit, to set beside
 	 * the yardstick's (its rows are the final ones) */

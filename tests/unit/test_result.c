@@ -872,7 +872,7 @@ static void test_checkpoint_layout_matches_the_documentation(void **state)
 	unsigned char *buf = slurp(path, &size);
 	assert_true(size > 32);
 	assert_memory_equal(buf, "COTERIE\x1a", 8);
-	assert_int_equal(le(buf + 8, 4), 2);   /* version */
+	assert_int_equal(le(buf + 8, 4), 3);   /* version */
 	assert_int_equal(le(buf + 12, 4), 0);  /* reserved */
 	assert_true(le(buf + 16, 8) == graph_fingerprint(fx.g));
 	assert_true(le(buf + size - 8, 8) == fnv1a(buf, size - 8));
@@ -1200,7 +1200,7 @@ static void test_checkpoint_refuses_bad_contents_under_a_valid_checksum(void **s
 	REFUSED(&c, "trace point 4");
 
 	/* a format from the future, and bytes nobody described */
-	put_le(c.buf + 8, 3, 4);
+	put_le(c.buf + 8, CHECKPOINT_VERSION + 1, 4);
 	REFUSED(&c, "newer coterie");
 	put_le(c.buf + c.parm + 44, 0, 4); /* starts */
 	REFUSED(&c, "starts 0");
@@ -1334,7 +1334,7 @@ static void test_checkpoint_reads_format_1(void **state)
 /* The fixture's model as a part: trace and strengths up to sweep 4. */
 static struct fit_part fixture_part(void)
 {
-	struct fit_part pt = { fx.s.F, fx.trace, 5, 4, 3 };
+	struct fit_part pt = { fx.s.F, fx.trace, 5, 4, 3, NULL };
 	return pt;
 }
 
@@ -1432,6 +1432,55 @@ static void test_checkpoint_keeps_where_an_interrupt_left_the_starts(void **stat
 	assert_int_equal(checkpoint_read(path, &ck), 0);
 	assert_null(ck.savepoint);
 	assert_int_equal(ck.sweep, 4);
+	checkpoint_release(&ck);
+	test_rmtree(dir);
+}
+
+/* The AWAK section (coterie-files(5)): the awake flags of a fit's last
+ * sweep (sweep.h) come back as written, through checkpoint_origin(), and
+ * a section of the wrong length or with a bit set past the last node is
+ * refused. N = 7 nodes: one byte, bits 0..6. */
+static void test_checkpoint_keeps_the_awake_flags(void **state)
+{
+	(void)state;
+	char dir[4096];
+	snprintf(dir, sizeof dir, "%s", test_tmpdir());
+	char path[4200];
+	snprintf(path, sizeof path, "%s/checkpoint.cot", dir);
+	static const uint8_t flags[N] = { 1, 0, 0, 1, 1, 0, 1 };
+	struct result_model m = *model_of(&fx.s);
+	m.awake = flags;
+	assert_int_equal(checkpoint_write(path, fx.g, &fx.p, &m), 0);
+	struct checkpoint ck;
+	assert_int_equal(checkpoint_read(path, &ck), 0);
+	assert_non_null(ck.awake);
+	assert_memory_equal(ck.awake, flags, N);
+	struct fit_origin o;
+	checkpoint_origin(&ck, &o);
+	assert_ptr_equal(o.awake, ck.awake);
+	checkpoint_release(&ck);
+
+	struct crafted c;
+	craft_begin(&c, path);
+	size_t len;
+	size_t at = section(c.good, c.size, "AWAK", &len);
+	assert_int_equal(len, 1);
+	/* bits 0, 3, 4, 6: 0x59 */
+	assert_int_equal(c.good[at], 0x59);
+	c.buf[at] = 0x59 | 0x80; /* node 7 does not exist */
+	REFUSED(&c, "past the last node");
+	put_le(c.buf + at - 8, 2, 8); /* two bytes for seven nodes */
+	REFUSED(&c, "'AWAK' section claims");
+	put_le(c.buf + at - 8, 0, 8); /* none: the byte is then left over */
+	REFUSED(&c, "awake section holds 0 bytes");
+	free(c.good);
+	free(c.buf);
+
+	/* without flags there is no section and none comes back */
+	m.awake = NULL;
+	assert_int_equal(checkpoint_write(path, fx.g, &fx.p, &m), 0);
+	assert_int_equal(checkpoint_read(path, &ck), 0);
+	assert_null(ck.awake);
 	checkpoint_release(&ck);
 	test_rmtree(dir);
 }
@@ -1672,6 +1721,7 @@ int main(void)
 		cmocka_unit_test(test_prepare_dir_refuses_what_cannot_be_written),
 		cmocka_unit_test(test_failed_write_keeps_the_old_file_and_no_temporary),
 		cmocka_unit_test(test_resume_through_the_checkpoint_matches_the_uninterrupted_fit),
+		cmocka_unit_test(test_checkpoint_keeps_the_awake_flags),
 		cmocka_unit_test(test_checkpoint_release_is_safe_on_zeroed_struct),
 	};
 	return cmocka_run_group_tests(tests, setup, teardown);

@@ -104,6 +104,90 @@ static void test_one_and_two_threads_give_identical_bits(void **state)
 	graph_free(g);
 }
 
+/* Quiet sweeps (sweep.h) on the planted ring: after a sweep in which no
+ * row's gain passed wake_gain every row sleeps, and a quiet sweep then
+ * leaves the model as it was, bit for bit; with a realistic wake gain a
+ * schedule of quiet and full sweeps gives the same bits and the same
+ * skipped rows on one thread and two, skips some rows, and its summed
+ * l(F) still equals a recompute. */
+static double quiet_schedule(const struct graph *g, unsigned threads, struct fcsr *out,
+			     uint64_t *skipped)
+{
+	struct model m;
+	seeded(&m, g, 30);
+	struct sweep *s = sweep_new(&m, g, model_objective(), threads);
+	assert_non_null(s);
+	assert_int_equal(sweep_pool_start(s), 0);
+	double ll = sweep_objective(s);
+	for (uint64_t k = 0; k < 24; k++) {
+		/* the fit's rule: full every 8th sweep and the first; a row
+		 * wakes its neighbours past ten times 1e-4 of |l(F)| / n */
+		sweep_set_quiet(s, k % 8 != 0, 10 * 1e-4 * fabs(ll) / g->n);
+		assert_int_equal(sweep_run(s, 40 + k, NULL, NULL, &ll), 0);
+		double again = model_loglik(&m, g);
+		assert_true(fabs(ll - again) <= 1e-11 * fabs(again));
+		assert_model_sane(&m);
+	}
+	*skipped = sweep_skipped(s);
+	sweep_pool_stop(s);
+	sweep_free(s);
+	assert_int_equal(model_export(&m, out), 0);
+	model_release(&m);
+	return ll;
+}
+
+static void test_quiet_sweeps_skip_sleeping_rows_and_keep_the_bits(void **state)
+{
+	(void)state;
+	struct graph *g = ring();
+	struct model m;
+	seeded(&m, g, 30);
+	struct sweep *s = sweep_new(&m, g, model_objective(), 2);
+	assert_non_null(s);
+	assert_int_equal(sweep_pool_start(s), 0);
+	double dl = 0.0;
+	sweep_set_quiet(s, 0, HUGE_VAL); /* a full sweep in which nothing wakes */
+	assert_int_equal(sweep_run(s, 3, NULL, NULL, &dl), 0);
+	const uint8_t *awake = sweep_awake(s);
+	for (uint32_t u = 0; u < g->n; u++)
+		assert_int_equal(awake[u], 0);
+	struct fcsr before, after;
+	assert_int_equal(model_export(&m, &before), 0);
+	dl = 0.0;
+	sweep_set_quiet(s, 1, HUGE_VAL);
+	assert_int_equal(sweep_run(s, 4, NULL, NULL, &dl), 0);
+	assert_true(dl == 0.0);
+	assert_true(sweep_skipped(s) == g->n);
+	assert_int_equal(model_export(&m, &after), 0);
+	assert_memory_equal(before.off, after.off, ((size_t)g->n + 1) * sizeof *before.off);
+	assert_memory_equal(before.e, after.e, before.off[g->n] * sizeof *before.e);
+	/* a full sweep that wakes every row that changed: rows sleep only
+	 * where neither they nor a neighbour changed */
+	sweep_set_quiet(s, 0, -HUGE_VAL);
+	assert_int_equal(sweep_run(s, 5, NULL, NULL, &dl), 0);
+	uint32_t up = 0;
+	for (uint32_t u = 0; u < g->n; u++)
+		up += awake[u];
+	assert_true(up > g->n / 2);
+	fcsr_release(&before);
+	fcsr_release(&after);
+	sweep_pool_stop(s);
+	sweep_free(s);
+	model_release(&m);
+
+	struct fcsr a, b;
+	uint64_t sa, sb;
+	double la = quiet_schedule(g, 1, &a, &sa), lb = quiet_schedule(g, 2, &b, &sb);
+	assert_memory_equal(&la, &lb, sizeof la);
+	assert_true(sa == sb);
+	assert_true(sa > 0);
+	assert_memory_equal(a.off, b.off, ((size_t)a.n + 1) * sizeof *a.off);
+	assert_memory_equal(a.e, b.e, a.off[a.n] * sizeof *a.e);
+	fcsr_release(&a);
+	fcsr_release(&b);
+	graph_free(g);
+}
+
 static int stop_at_third(void *arg)
 {
 	int *calls = arg;
@@ -304,6 +388,7 @@ int main(void)
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_sweeps_raise_the_loglik_and_sum_to_a_recompute),
 		cmocka_unit_test(test_one_and_two_threads_give_identical_bits),
+		cmocka_unit_test(test_quiet_sweeps_skip_sleeping_rows_and_keep_the_bits),
 		cmocka_unit_test(test_between_blocks_can_end_a_sweep),
 		cmocka_unit_test(test_a_second_objective_plugs_into_the_engine),
 	};
