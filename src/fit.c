@@ -379,16 +379,24 @@ int fit_awake_set(struct fit *f, const uint8_t *awake)
 
 /* Is the next sweep quiet (sweep.h)? Not when the engine's awake flags
  * are not the model's (a start, a move, an import: awake_ok 0), not
- * every FIT_QUIET_EVERY-th sweep, and not after a sweep that gained less
- * than the fit's own tolerance (the plateau rule then counts full
- * sweeps). The fit's own p.tol, not the one in force, so that the sweeps
- * do not depend on fit_set_tol(). */
+ * every FIT_QUIET_EVERY-th sweep, and not when it could fire the plateau
+ * rule (the patience - 1 sweeps before it gained less than the fit's own
+ * tolerance): the rule fires on a full sweep. The fit's own p.tol, not
+ * the one in force, so that the sweeps do not depend on fit_set_tol(). */
 static int quiet_next(const struct fit *f)
 {
-	if (f->p.full_sweeps || !f->awake_ok || f->sweep % FIT_QUIET_EVERY == 0 || f->ntrace < 2)
+	if (f->p.full_sweeps || !f->awake_ok || f->sweep % FIT_QUIET_EVERY == 0)
 		return 0;
-	double prev = f->trace[f->ntrace - 2].loglik, ll = f->trace[f->ntrace - 1].loglik;
-	return (ll - prev) / (fabs(prev) > 0 ? fabs(prev) : 1.0) >= f->p.tol;
+	/* the sweeps that gained little, last first (at most patience - 1):
+	 * when the next one could fire the plateau rule, it is full */
+	unsigned low = 0;
+	for (uint32_t i = f->ntrace; i >= 2 && low + 1 < f->p.patience; i--) {
+		double prev = f->trace[i - 2].loglik, ll = f->trace[i - 1].loglik;
+		if ((ll - prev) / (fabs(prev) > 0 ? fabs(prev) : 1.0) >= f->p.tol)
+			break;
+		low++;
+	}
+	return low + 1 < f->p.patience;
 }
 
 /* One sweep with its timing; returns as sweep_run(). *ll goes from the
