@@ -553,11 +553,9 @@ static int load_origin(struct fit *f, const struct fit_origin *origin)
 			return -1;
 		f->start = ri->start;
 		/* a checkpoint keeps a climbing start's flags beside it */
-		if (origin->awake && ri->phase == FIT_PHASE_CLIMB && !f->res_in->cur.awake) {
-			if (!(f->res_in->cur.awake = util_malloc(g->n, 1)))
-				return -1;
-			memcpy(f->res_in->cur.awake, origin->awake, g->n);
-		}
+		if (origin->awake && ri->phase == FIT_PHASE_CLIMB && !f->res_in->cur.awake &&
+		    !(f->res_in->cur.awake = util_memdup(origin->awake, g->n)))
+			return -1;
 		return 0;
 	}
 	if (origin->F->n != g->n || origin->F->k != k)

@@ -82,13 +82,10 @@ static int part_dup(struct fit_part *dst, const struct fit_part *src)
 	dst->trace = util_malloc(src->ntrace ? src->ntrace : 1, sizeof *dst->trace);
 	if (!dst->trace)
 		return -1;
-	if (src->awake) {
-		if (!(dst->awake = util_malloc(src->F.n ? src->F.n : 1, 1))) {
-			free(dst->trace);
-			dst->trace = NULL;
-			return -1;
-		}
-		memcpy(dst->awake, src->awake, src->F.n);
+	if (src->awake && !(dst->awake = util_memdup(src->awake, src->F.n))) {
+		free(dst->trace);
+		dst->trace = NULL;
+		return -1;
 	}
 	if (src->ntrace)
 		memcpy(dst->trace, src->trace, src->ntrace * sizeof *dst->trace);

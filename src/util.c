@@ -160,6 +160,14 @@ char *util_strdup(const char *s)
 	return p;
 }
 
+void *util_memdup(const void *p, size_t n)
+{
+	void *q = util_malloc(n ? n : 1, 1);
+	if (q && n)
+		memcpy(q, p, n);
+	return q;
+}
+
 /* Length of the valid UTF-8 sequence at s (1..4) that is printable, or 0. */
 static size_t utf8_printable(const unsigned char *s)
 {

@@ -48,6 +48,8 @@ void *util_calloc(size_t n, size_t size);
 void *util_malloc(size_t n, size_t size);
 void *util_realloc(void *p, size_t n, size_t size);
 char *util_strdup(const char *s);
+/* A copy of n bytes of p (n may be 0: a 1-byte block), as util_malloc(). */
+void *util_memdup(const void *p, size_t n);
 
 /*
  * Make a string from an unvetted file safe for a terminal: printable UTF-8

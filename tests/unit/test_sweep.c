@@ -65,26 +65,40 @@ static void test_sweeps_raise_the_loglik_and_sum_to_a_recompute(void **state)
 	graph_free(g);
 }
 
+/* An engine of the given threads, its pool started, on a fresh seeded
+ * model m (30 columns) of g. */
+static struct sweep *engine(struct model *m, const struct graph *g, unsigned threads)
+{
+	seeded(m, g, 30);
+	struct sweep *s = sweep_new(m, g, model_objective(), threads);
+	assert_non_null(s);
+	assert_int_equal(sweep_pool_start(s), 0);
+	assert_int_equal(sweep_threads(s), threads);
+	return s;
+}
+
+/* Stop and free engine s; m's strengths into out, then m released. */
+static void engine_done(struct sweep *s, struct model *m, struct fcsr *out)
+{
+	sweep_pool_stop(s);
+	sweep_free(s);
+	assert_int_equal(model_export(m, out), 0);
+	model_release(m);
+}
+
 /* k sweeps of a fresh seeded model with the given threads: the strengths
  * and the summed change. */
 static double run_with_threads(const struct graph *g, unsigned threads, struct fcsr *out)
 {
 	struct model m;
-	seeded(&m, g, 30);
-	struct sweep *s = sweep_new(&m, g, model_objective(), threads);
-	assert_non_null(s);
-	assert_int_equal(sweep_pool_start(s), 0);
-	assert_int_equal(sweep_threads(s), threads);
+	struct sweep *s = engine(&m, g, threads);
 	double dl = 0.0;
 	for (uint64_t k = 0; k < 5; k++)
 		assert_int_equal(sweep_run(s, 7 + k, NULL, NULL, &dl), 0);
 	struct objective_counts c;
 	sweep_counts(s, &c);
 	assert_true(c.rows >= 5u * g->n); /* every node visited every sweep */
-	sweep_pool_stop(s);
-	sweep_free(s);
-	assert_int_equal(model_export(&m, out), 0);
-	model_release(&m);
+	engine_done(s, &m, out);
 	return dl;
 }
 
@@ -114,10 +128,7 @@ static double quiet_schedule(const struct graph *g, unsigned threads, struct fcs
 			     uint64_t *skipped)
 {
 	struct model m;
-	seeded(&m, g, 30);
-	struct sweep *s = sweep_new(&m, g, model_objective(), threads);
-	assert_non_null(s);
-	assert_int_equal(sweep_pool_start(s), 0);
+	struct sweep *s = engine(&m, g, threads);
 	double ll = sweep_objective(s);
 	for (uint64_t k = 0; k < 24; k++) {
 		/* the fit's rule: full every 8th sweep and the first; a row
@@ -129,10 +140,7 @@ static double quiet_schedule(const struct graph *g, unsigned threads, struct fcs
 		assert_model_sane(&m);
 	}
 	*skipped = sweep_skipped(s);
-	sweep_pool_stop(s);
-	sweep_free(s);
-	assert_int_equal(model_export(&m, out), 0);
-	model_release(&m);
+	engine_done(s, &m, out);
 	return ll;
 }
 
@@ -141,10 +149,7 @@ static void test_quiet_sweeps_skip_sleeping_rows_and_keep_the_bits(void **state)
 	(void)state;
 	struct graph *g = ring();
 	struct model m;
-	seeded(&m, g, 30);
-	struct sweep *s = sweep_new(&m, g, model_objective(), 2);
-	assert_non_null(s);
-	assert_int_equal(sweep_pool_start(s), 0);
+	struct sweep *s = engine(&m, g, 2);
 	double dl = 0.0;
 	sweep_set_quiet(s, 0, HUGE_VAL); /* a full sweep in which nothing wakes */
 	assert_int_equal(sweep_run(s, 3, NULL, NULL, &dl), 0);
