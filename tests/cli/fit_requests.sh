@@ -24,14 +24,16 @@ g=$tmp/planted
 "$BIN" simulate -n 3000 --sizes 20:80 --mean-degree 12 --mixing 0.2 --seed 4 -o "$g" 2>/dev/null
 need_file "$g/edges.tsv"
 args="-k 60 -j 1 --seed 9 --epsilon 1e-3 --starts 1 --no-reseed --past-plateau"
+# 3000 sweeps: about 13 s alone on the 2-core machine, so that the requests below
+# reach it while it runs (1000 sweeps, 4 s since quiet sweeps, ended first under make check)
 
 # the uninterrupted fit, to compare the resumed one with
-"$BIN" fit "$g/edges.tsv" $args --max-sweeps 1000 -q -o "$tmp/whole"
+"$BIN" fit "$g/edges.tsv" $args --max-sweeps 3000 -q -o "$tmp/whole"
 
 d=$tmp/run
 mkdir "$d"
 printf 'stop\n' >"$d/.coterie.request" # stale: from before this fit
-"$BIN" fit "$g/edges.tsv" $args --max-sweeps 1000 -o "$d" 2>"$tmp/err" &
+"$BIN" fit "$g/edges.tsv" $args --max-sweeps 3000 -o "$d" 2>"$tmp/err" &
 pid=$!
 check "the fit writes a progress file while it runs" \
 	wait_for_grep '^coterie progress 1$' "$d/.coterie.progress" 20
