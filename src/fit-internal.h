@@ -14,12 +14,28 @@
 #include <pthread.h>
 #include <stdatomic.h>
 
+#include "coterie/agm.h"
 #include "coterie/fit.h"
 #include "coterie/graph.h"
 #include "coterie/model.h"
 #include "coterie/rng.h"
 #include "coterie/savepoint.h"
 #include "coterie/sweep.h"
+
+/* Whether entry e of row u of m is a membership by the rule of the
+ * output (agm_is_member(): delta and two links' worth, read with the
+ * column sums row u's links see; g: the graph m is fitted on, or the
+ * view it is read on). The reseeding moves read the cover so: at delta
+ * alone, which shrinks like 1/sqrt(n), every stray link is a membership
+ * on a large graph, and the cover's background and joins with it (at
+ * 10^6 nodes the background read at delta came out at 1e-10, against
+ * 4e-6 planted; DEVELOPERS.md, "The merge move"). */
+static inline int fit_is_member(const struct model *m, const struct graph *g, uint32_t u,
+				struct fentry e)
+{
+	return agm_is_member(e.v, model_other_colsum(m, u)[e.c], m->delta, AGM_MIN_LINKS,
+			     graph_degree(g, u));
+}
 
 struct fit {
 	const struct graph *g;
@@ -134,6 +150,12 @@ struct fit_savepoint *fit_savepoint_dup(const struct fit_savepoint *src);
  * only if l(F) rose. BigCLAM, directed models (chosen on the
  * undirected view) and two-mode models; 0 for other models. */
 int fit_merge_move(struct fit *f, struct rng *r, uint32_t limit, uint32_t *made);
+
+/* The background the cover of m leaves on g (the merge move's bg): the
+ * edges whose ends share no column over the pairs in no column, the
+ * columns read by fit_is_member(); epsilon when that is 0 or above it;
+ * NaN when out of memory. */
+double fit_merge_background(const struct model *m, const struct graph *g);
 
 /* The AGM's block test of the merge move for two overlapping columns A
  * and B: the log-likelihood of all the pairs of A u B as one block at

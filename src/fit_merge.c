@@ -8,8 +8,9 @@
  * held by several columns that meet edge to edge, and the small ones
  * left without a column. No single-row step can join two columns, and
  * the split move (reseed a weak column inside the largest community)
- * cannot either. The merge move reads the cover at delta and, for two
- * columns A and B, counts the edges inside each, those inside A n B, and
+ * cannot either. The merge move reads the cover (the output's
+ * membership rule, fit_is_member(), without the communities ending
+ * sooner) and, for two columns A and B, counts the edges inside each, those inside A n B, and
  * those between A \ B and B \ A (eX among NX = |A \ B| |B \ A| pairs).
  * It estimates the background the cover leaves, bg (edges whose ends
  * share no column over the pairs in no column), and asks two questions.
@@ -37,8 +38,8 @@
  * strengths), and plants each freed column on the ego-net where a new
  * column would gain the most: the block likelihood of its edges at their
  * own density less what the model gives its pairs now, among
- * MERGE_SAMPLE random nodes, the ego-nets disjoint. There must be such a
- * host for every join made. The caller climbs again and keeps the move
+ * MERGE_SAMPLE_PER_JOIN x limit random nodes, the ego-nets disjoint.
+ * There must be such a host for every join made. The caller climbs again and keeps the move
  * only if l(F) rose, as for every move; after a failure it halves limit.
  *
  * Directed models (two-sided rows, model_directed.h): the move is chosen
@@ -69,8 +70,8 @@
  * did worse (DEVELOPERS.md).
  *
  * The one thing a newcomer gets wrong: the counts are of the cover read
- * at delta, not of the strengths; they only choose the pairs. Whether the
- * move is kept is the likelihood's decision alone.
+ * by the membership rule, not of the strengths; they only choose the
+ * pairs. Whether the move is kept is the likelihood's decision alone.
  */
 #include <math.h>
 #include <stdlib.h>
@@ -82,7 +83,14 @@
 #include "coterie/util.h"
 #include "fit-internal.h"
 
-#define MERGE_SAMPLE 4096u /* nodes whose ego-nets may host a freed column */
+/* Nodes whose ego-nets may host a freed column: 128 per join the move may
+ * make, at least 4096. The share of sampled centres a move takes is what
+ * matters, not the count: at 10^5 nodes (k 1142, 35 joins a move) 1,120
+ * samples scored ONMI 0.745 (seeds 1-3), 4,096 0.816, 16,384 0.803; at
+ * 10^6 (k 11765, 367 joins) a fixed 4,096 left small communities without
+ * a column (DEVELOPERS.md, "The merge move at scale"). */
+#define MERGE_SAMPLE 4096u
+#define MERGE_SAMPLE_PER_JOIN 128u
 #define MERGE_MAX_ROW 64u  /* memberships of a row counted */
 #define PF_OFF 8u /* neighbours ahead whose list offset find_joins() prefetches */
 #define PF_COL 4u /* and whose list */
@@ -107,20 +115,20 @@ static int join_cmp(const void *x, const void *y)
 /* The Bernoulli block log-likelihood of e edges among N pairs at its own
  * density. */
 
-/* The cover at delta, by column: members of c are mem[off[c] .. off[c+1]). */
+/* The cover (fit_is_member()), by column: members of c are mem[off[c] .. off[c+1]). */
 struct colcover {
 	uint64_t *off;
 	uint32_t *mem;
 };
 
-static int colcover_build(struct colcover *cc, const struct model *m)
+static int colcover_build(struct colcover *cc, const struct model *m, const struct graph *g)
 {
 	cc->off = util_calloc((size_t)m->k + 1, sizeof *cc->off);
 	if (!cc->off)
 		return -1;
 	for (uint32_t u = 0; u < m->n; u++)
 		for (uint32_t i = 0; i < m->rows[u].nnz; i++)
-			if (m->rows[u].e[i].v >= m->delta)
+			if (fit_is_member(m, g, u, m->rows[u].e[i]))
 				cc->off[m->rows[u].e[i].c + 1]++;
 	for (uint32_t c = 0; c < m->k; c++)
 		cc->off[c + 1] += cc->off[c];
@@ -133,7 +141,7 @@ static int colcover_build(struct colcover *cc, const struct model *m)
 	memcpy(fill, cc->off, ((size_t)m->k + 1) * sizeof *fill);
 	for (uint32_t u = 0; u < m->n; u++)
 		for (uint32_t i = 0; i < m->rows[u].nnz; i++)
-			if (m->rows[u].e[i].v >= m->delta)
+			if (fit_is_member(m, g, u, m->rows[u].e[i]))
 				cc->mem[fill[m->rows[u].e[i].c]++] = u;
 	free(fill);
 	return 0;
@@ -178,8 +186,8 @@ static void count_inside(const struct model *m, const struct graph *g,
 	}
 }
 
-/* Whether rows u and v share a column at delta or above (rows sorted). */
-static int share_column(const struct model *m, uint32_t u, uint32_t v)
+/* Whether rows u and v share a column as members (rows sorted). */
+static int share_column(const struct model *m, const struct graph *g, uint32_t u, uint32_t v)
 {
 	const struct frow *a = &m->rows[u], *b = &m->rows[v];
 	uint32_t i = 0, j = 0;
@@ -188,7 +196,7 @@ static int share_column(const struct model *m, uint32_t u, uint32_t v)
 			i++;
 		else if (a->e[i].c > b->e[j].c)
 			j++;
-		else if (a->e[i].v >= m->delta && b->e[j].v >= m->delta)
+		else if (fit_is_member(m, g, u, a->e[i]) && fit_is_member(m, g, v, b->e[j]))
 			return 1;
 		else
 			i++, j++;
@@ -210,21 +218,31 @@ static double cover_background(const struct model *m, const struct graph *g,
 	uint64_t out = 0;
 	for (uint32_t u = 0; u < g->n; u++)
 		for (uint64_t j = g->off[u]; j < g->off[u + 1]; j++)
-			if (g->adj[j] > u && !share_column(m, u, g->adj[j]))
+			if (g->adj[j] > u && !share_column(m, g, u, g->adj[j]))
 				out++;
 	double bg = (double)out / (all - pin);
 	return bg > 0.0 && bg < m->epsilon ? bg : m->epsilon;
 }
 
-/* Add (or, with add 0, clear) row u's memberships at delta into ov (a
+double fit_merge_background(const struct model *m, const struct graph *g)
+{
+	struct colcover cc = { 0 };
+	double bg = colcover_build(&cc, m, g) ? NAN : cover_background(m, g, &cc);
+	free(cc.off);
+	free(cc.mem);
+	return bg;
+}
+
+/* Add (or, with add 0, clear) row u's memberships into ov (a
  * two-mode model's second-kind rows into ov + k). */
-static void count_shared(const struct model *m, uint32_t u, uint64_t *ov, int add)
+static void count_shared(const struct model *m, const struct graph *g, uint32_t u, uint64_t *ov,
+			 int add)
 {
 	const struct frow *r = &m->rows[u];
 	if (m->nsend && u >= m->nsend)
 		ov += m->k;
 	for (uint32_t t = 0; t < r->nnz; t++)
-		if (r->e[t].v >= m->delta)
+		if (fit_is_member(m, g, u, r->e[t]))
 			ov[r->e[t].c] = add ? ov[r->e[t].c] + 1 : 0;
 }
 
@@ -293,7 +311,7 @@ double fit_merge_block_gain(double eI, double NI, double eA, double NA, double e
 	return one - two;
 }
 
-/* The columns of every node at delta, in row order: col[off[u] ..
+/* The columns of every node (its memberships), in row order: col[off[u] ..
  * off[u] + lim[u]) from the first MERGE_MAX_ROW entries of its row (the
  * ones find_joins() counts), the rest after them. Built once a move: the
  * loops of find_joins() read these small contiguous lists and a byte
@@ -311,12 +329,12 @@ static void nodecols_release(struct nodecols *nc)
 	UTIL_FREE_ALL(nc->off, nc->lim, nc->col);
 }
 
-static int nodecols_build(struct nodecols *nc, const struct model *m)
+static int nodecols_build(struct nodecols *nc, const struct model *m, const struct graph *g)
 {
 	uint64_t tot = 0;
 	for (uint32_t u = 0; u < m->n; u++)
 		for (uint32_t i = 0; i < m->rows[u].nnz; i++)
-			tot += m->rows[u].e[i].v >= m->delta;
+			tot += (uint64_t)fit_is_member(m, g, u, m->rows[u].e[i]);
 	nc->off = util_malloc((size_t)m->n + 1, sizeof *nc->off);
 	nc->lim = util_malloc(m->n ? m->n : 1, sizeof *nc->lim);
 	nc->col = util_malloc(tot ? tot : 1, sizeof *nc->col);
@@ -330,7 +348,7 @@ static int nodecols_build(struct nodecols *nc, const struct model *m)
 		for (uint32_t i = 0; i < r->nnz; i++) {
 			if (i == MERGE_MAX_ROW)
 				nc->lim[u] = (uint32_t)(o - nc->off[u]);
-			if (r->e[i].v >= m->delta)
+			if (fit_is_member(m, g, u, r->e[i]))
 				nc->col[o++] = r->e[i].c;
 		}
 		if (nc->lim[u] == UINT32_MAX)
@@ -362,7 +380,7 @@ static int64_t find_joins(const struct model *m, const struct graph *g,
 	/* |A n B| (two-mode: of the first kind, then k of the second) */
 	uint64_t *ov = util_calloc(m->nsend ? 2 * (size_t)k : k, sizeof *ov);
 	uint32_t *touched = util_malloc(k, sizeof *touched);
-	/* ustamp[c] == u + 1: u is in c (at delta), for the u at hand */
+	/* ustamp[c] == u + 1: u is in c, for the u at hand */
 	uint32_t *ustamp = util_calloc(k, sizeof *ustamp);
 	uint8_t *inA = util_calloc(m->n ? m->n : 1, 1); /* the members of the column at hand */
 	struct nodecols nc = { 0 };
@@ -370,12 +388,12 @@ static int64_t find_joins(const struct model *m, const struct graph *g,
 	struct join *joins = NULL;
 	double le = log(bg), l1e = log1p(-bg);
 	int64_t rc = -1;
-	if (!cnt || !cii || !touched || !ov || !ustamp || !inA || nodecols_build(&nc, m))
+	if (!cnt || !cii || !touched || !ov || !ustamp || !inA || nodecols_build(&nc, m, g))
 		goto out;
 	for (uint32_t a = 0; a < k; a++) {
 		uint32_t nt = 0;
 		for (uint64_t i = cc->off[a]; i < cc->off[a + 1]; i++) {
-			count_shared(m, cc->mem[i], ov, 1);
+			count_shared(m, g, cc->mem[i], ov, 1);
 			inA[cc->mem[i]] = 1;
 		}
 		for (uint64_t i = cc->off[a]; i < cc->off[a + 1]; i++) {
@@ -458,7 +476,7 @@ static int64_t find_joins(const struct model *m, const struct graph *g,
 			joins[njoin++] = (struct join){ gain, a, b };
 		}
 		for (uint64_t i = cc->off[a]; i < cc->off[a + 1]; i++)
-			count_shared(m, cc->mem[i], ov, 0);
+			count_shared(m, g, cc->mem[i], ov, 0);
 	}
 	if (njoin)
 		qsort(joins, njoin, sizeof *joins, join_cmp);
@@ -575,14 +593,18 @@ static int centre_cmp(const void *x, const void *y)
 }
 
 /* Centres of disjoint ego-nets the model explains badly, the best first,
- * in *out (allocated), at most MERGE_SAMPLE: an ego-net of d + 1 nodes
+ * in *out (allocated), sampled MERGE_SAMPLE_PER_JOIN to a join of the
+ * limit (at least MERGE_SAMPLE, at most every node): an ego-net of d + 1 nodes
  * with U of its edges left to the background is worth about the block
  * likelihood of U edges among its (d + 1) d / 2 pairs against the
  * background bg. The count, or -1. mark: n zeros, left zeroed. */
 static int64_t pick_centres(const struct model *m, const struct graph *g, struct rng *r,
-			    struct centre **out, uint8_t *mark)
+			    struct centre **out, uint8_t *mark, uint32_t limit)
 {
-	uint32_t tries = g->n < MERGE_SAMPLE ? g->n : MERGE_SAMPLE;
+	uint64_t want = (uint64_t)MERGE_SAMPLE_PER_JOIN * limit;
+	if (want < MERGE_SAMPLE)
+		want = MERGE_SAMPLE;
+	uint32_t tries = g->n < want ? g->n : (uint32_t)want;
 	struct centre *cand = util_malloc(tries ? tries : 1, sizeof *cand);
 	uint32_t *ego = util_malloc(2 * MERGE_MAX_EGO + 1, sizeof *ego);
 	uint32_t *nbr = util_calloc(g->n, sizeof *nbr);
@@ -782,11 +804,11 @@ int fit_merge_move(struct fit *f, struct rng *r, uint32_t limit, uint32_t *made)
 	struct join *joins = NULL;
 	struct centre *cen = NULL;
 	int rc = -1;
-	if (!ein || !mark || !into || !buf || !freed || colcover_build(&cc, pm))
+	if (!ein || !mark || !into || !buf || !freed || colcover_build(&cc, pm, g))
 		goto out;
 	count_inside(pm, g, &cc, ein, mark);
 	double bg = cover_background(pm, g, &cc);
-	int64_t ncen = pick_centres(pm, g, r, &cen, mark);
+	int64_t ncen = pick_centres(pm, g, r, &cen, mark, limit);
 	if (ncen < 0)
 		goto out;
 	if (ncen == 0) {

@@ -760,6 +760,48 @@ static void test_merge_block_gain_by_hand_and_by_grid(void **state)
 	assert_true(g > grid_gain - 1.0);
 }
 
+/* The background the merge move reads from the cover counts a column's
+ * members by the output's rule (fit_is_member(): delta and two links'
+ * worth), not by delta alone. Worked by hand: two 4-cliques {0..3} and
+ * {4..7} joined by the edge 3-4, epsilon 0.1, so delta =
+ * sqrt(-ln 0.9) = 0.3246; column 0 at 1 on 0..3, column 1 at 1 on 4..7,
+ * and node 4 (degree 4: it needs min(2, 4/2) = 2 links' worth) at s in
+ * column 0. s = 0.4: 0.4 >= delta but 0.4 x colsum 4.4 = 1.76 < 2, not a
+ * member; the cover is the two cliques (12 pairs inside, 28 - 12 = 16
+ * outside) and 3-4 is the one edge outside: bg = 1/16 = 0.0625. (At
+ * delta alone node 4 was a member, no edge was outside and bg fell to
+ * its floor, as it did for nearly every edge of a 10^6-node graph.)
+ * s = 0.5: 0.5 x 4.5 = 2.25 >= 2, a member; column 0 is {0..4} (10
+ * pairs), 16 inside, 12 outside, no edge outside: bg 0, read as
+ * epsilon (0.1). */
+static void test_merge_background_reads_the_membership_rule(void **state)
+{
+	(void)state;
+	static const uint32_t e[] = { 0, 1, 0, 2, 0, 3, 1, 2, 1, 3, 2, 3, 4, 5, 4, 6,
+				      4, 7, 5, 6, 5, 7, 6, 7, 3, 4 };
+	struct graph *g = make_graph(8, e, 13);
+	for (int pass = 0; pass < 2; pass++) {
+		double s = pass == 0 ? 0.4 : 0.5;
+		struct model m;
+		assert_int_equal(model_init(&m, 8, 2, 0.1), 0);
+		assert_true(fabs(m.delta - 0.32459) < 1e-4);
+		for (uint32_t u = 0; u < 8; u++) {
+			struct fentry row[2] = { { u < 4 ? 0 : 1, 1.0 }, { 1, 1.0 } };
+			uint32_t nnz = 1;
+			if (u == 4) {
+				row[0] = (struct fentry){ 0, s };
+				nnz = 2;
+			}
+			assert_int_equal(model_set_row(&m, u, row, nnz), 0);
+		}
+		model_recount(&m);
+		double bg = fit_merge_background(&m, g);
+		assert_true(fabs(bg - (pass == 0 ? 1.0 / 16 : 0.1)) < 1e-12);
+		model_release(&m);
+	}
+	graph_free(g);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -777,6 +819,7 @@ int main(void)
 		cmocka_unit_test(test_rejects_bad_input),
 		cmocka_unit_test(test_trim_ends_a_community_at_its_dense_core),
 		cmocka_unit_test(test_merge_block_gain_by_hand_and_by_grid),
+		cmocka_unit_test(test_merge_background_reads_the_membership_rule),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
