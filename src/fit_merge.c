@@ -10,8 +10,9 @@
  * the split move (reseed a weak column inside the largest community)
  * cannot either. The merge move reads the cover (the output's
  * membership rule, fit_is_member(), without the communities ending
- * sooner) and, for two columns A and B, counts the edges inside each, those inside A n B, and
- * those between A \ B and B \ A (eX among NX = |A \ B| |B \ A| pairs).
+ * sooner) and, for two columns A and B, counts the edges inside each,
+ * those inside A n B, and those between A \ B and B \ A (eX among
+ * NX = |A \ B| |B \ A| pairs).
  * It estimates the background the cover leaves, bg (edges whose ends
  * share no column over the pairs in no column), and asks two questions.
  * Are the edges between better explained as part of one block at the
@@ -39,8 +40,9 @@
  * column would gain the most: the block likelihood of its edges at their
  * own density less what the model gives its pairs now, among
  * MERGE_SAMPLE_PER_JOIN x limit random nodes, the ego-nets disjoint.
- * There must be such a host for every join made. The caller climbs again and keeps the move
- * only if l(F) rose, as for every move; after a failure it halves limit.
+ * There must be such a host for every join made. The caller climbs
+ * again and keeps the move only if l(F) rose, as for every move; after a
+ * failure it halves limit.
  *
  * Directed models (two-sided rows, model_directed.h): the move is chosen
  * on the undirected view, each node's row there holding the larger of its
