@@ -117,34 +117,81 @@ static int join_cmp(const void *x, const void *y)
 /* The Bernoulli block log-likelihood of e edges among N pairs at its own
  * density. */
 
-/* The cover (fit_is_member()), by column: members of c are mem[off[c] .. off[c+1]). */
+/* The columns of every node (its memberships), in row order: col[off[u] ..
+ * off[u] + lim[u]) from the first MERGE_MAX_ROW entries of its row (the
+ * ones find_joins() counts), the rest after them. Built once a move, the
+ * move's one reading of the membership rule (the cover by column, the
+ * background and the counts all come from it): the loops of
+ * find_joins() read these small contiguous lists and a byte mark per
+ * node instead of scanning the neighbours' rows, whose reads
+ * (a miss for the row header, one for its entries) were nearly all of a
+ * move's time (0.8 s a move at 10^5 nodes, about 20 s at 10^6). */
+struct nodecols {
+	uint64_t *off;
+	uint32_t *lim;
+	uint32_t *col;
+};
+
+static void nodecols_release(struct nodecols *nc)
+{
+	UTIL_FREE_ALL(nc->off, nc->lim, nc->col);
+}
+
+static int nodecols_build(struct nodecols *nc, const struct model *m, const struct graph *g)
+{
+	uint64_t tot = 0;
+	for (uint32_t u = 0; u < m->n; u++)
+		for (uint32_t i = 0; i < m->rows[u].nnz; i++)
+			tot += (uint64_t)fit_is_member(m, g, u, m->rows[u].e[i]);
+	nc->off = util_malloc((size_t)m->n + 1, sizeof *nc->off);
+	nc->lim = util_malloc(m->n ? m->n : 1, sizeof *nc->lim);
+	nc->col = util_malloc(tot ? tot : 1, sizeof *nc->col);
+	if (!nc->off || !nc->lim || !nc->col)
+		return -1;
+	uint64_t o = 0;
+	for (uint32_t u = 0; u < m->n; u++) {
+		const struct frow *r = &m->rows[u];
+		nc->off[u] = o;
+		nc->lim[u] = UINT32_MAX;
+		for (uint32_t i = 0; i < r->nnz; i++) {
+			if (i == MERGE_MAX_ROW)
+				nc->lim[u] = (uint32_t)(o - nc->off[u]);
+			if (fit_is_member(m, g, u, r->e[i]))
+				nc->col[o++] = r->e[i].c;
+		}
+		if (nc->lim[u] == UINT32_MAX)
+			nc->lim[u] = (uint32_t)(o - nc->off[u]);
+	}
+	nc->off[m->n] = o;
+	return 0;
+}
+
+/* The cover by column, the transpose of nc: members of c are
+ * mem[off[c] .. off[c+1]), in node order. */
 struct colcover {
 	uint64_t *off;
 	uint32_t *mem;
 };
 
-static int colcover_build(struct colcover *cc, const struct model *m, const struct graph *g)
+static int colcover_build(struct colcover *cc, uint32_t k, const struct nodecols *nc, uint32_t n)
 {
-	cc->off = util_calloc((size_t)m->k + 1, sizeof *cc->off);
+	cc->off = util_calloc((size_t)k + 1, sizeof *cc->off);
 	if (!cc->off)
 		return -1;
-	for (uint32_t u = 0; u < m->n; u++)
-		for (uint32_t i = 0; i < m->rows[u].nnz; i++)
-			if (fit_is_member(m, g, u, m->rows[u].e[i]))
-				cc->off[m->rows[u].e[i].c + 1]++;
-	for (uint32_t c = 0; c < m->k; c++)
+	for (uint64_t t = 0; t < nc->off[n]; t++)
+		cc->off[nc->col[t] + 1]++;
+	for (uint32_t c = 0; c < k; c++)
 		cc->off[c + 1] += cc->off[c];
-	cc->mem = util_malloc(cc->off[m->k] ? cc->off[m->k] : 1, sizeof *cc->mem);
-	uint64_t *fill = util_malloc((size_t)m->k + 1, sizeof *fill);
+	cc->mem = util_malloc(cc->off[k] ? cc->off[k] : 1, sizeof *cc->mem);
+	uint64_t *fill = util_malloc((size_t)k + 1, sizeof *fill);
 	if (!cc->mem || !fill) {
 		free(fill);
 		return -1;
 	}
-	memcpy(fill, cc->off, ((size_t)m->k + 1) * sizeof *fill);
-	for (uint32_t u = 0; u < m->n; u++)
-		for (uint32_t i = 0; i < m->rows[u].nnz; i++)
-			if (fit_is_member(m, g, u, m->rows[u].e[i]))
-				cc->mem[fill[m->rows[u].e[i].c]++] = u;
+	memcpy(fill, cc->off, ((size_t)k + 1) * sizeof *fill);
+	for (uint32_t u = 0; u < n; u++)
+		for (uint64_t t = nc->off[u]; t < nc->off[u + 1]; t++)
+			cc->mem[fill[nc->col[t]]++] = u;
 	free(fill);
 	return 0;
 }
@@ -188,20 +235,18 @@ static void count_inside(const struct model *m, const struct graph *g,
 	}
 }
 
-/* Whether rows u and v share a column as members (rows sorted). */
-static int share_column(const struct model *m, const struct graph *g, uint32_t u, uint32_t v)
+/* Whether u and v are members of a common column (nc's lists are in
+ * row order, so sorted). */
+static int share_column(const struct nodecols *nc, uint32_t u, uint32_t v)
 {
-	const struct frow *a = &m->rows[u], *b = &m->rows[v];
-	uint32_t i = 0, j = 0;
-	while (i < a->nnz && j < b->nnz) {
-		if (a->e[i].c < b->e[j].c)
+	uint64_t i = nc->off[u], ie = nc->off[u + 1], j = nc->off[v], je = nc->off[v + 1];
+	while (i < ie && j < je) {
+		if (nc->col[i] < nc->col[j])
 			i++;
-		else if (a->e[i].c > b->e[j].c)
+		else if (nc->col[i] > nc->col[j])
 			j++;
-		else if (fit_is_member(m, g, u, a->e[i]) && fit_is_member(m, g, v, b->e[j]))
-			return 1;
 		else
-			i++, j++;
+			return 1;
 	}
 	return 0;
 }
@@ -210,7 +255,7 @@ static int share_column(const struct model *m, const struct graph *g, uint32_t u
  * over the pairs inside no column (a pair in two columns is taken out
  * twice, so a little high), at most epsilon. */
 static double cover_background(const struct model *m, const struct graph *g,
-			       const struct colcover *cc)
+			       const struct colcover *cc, const struct nodecols *nc)
 {
 	double pin = 0.0, n = (double)m->n;
 	for (uint32_t c = 0; c < m->k; c++)
@@ -220,7 +265,7 @@ static double cover_background(const struct model *m, const struct graph *g,
 	uint64_t out = 0;
 	for (uint32_t u = 0; u < g->n; u++)
 		for (uint64_t j = g->off[u]; j < g->off[u + 1]; j++)
-			if (g->adj[j] > u && !share_column(m, g, u, g->adj[j]))
+			if (g->adj[j] > u && !share_column(nc, u, g->adj[j]))
 				out++;
 	double bg = (double)out / (all - pin);
 	return bg > 0.0 && bg < m->epsilon ? bg : m->epsilon;
@@ -228,24 +273,26 @@ static double cover_background(const struct model *m, const struct graph *g,
 
 double fit_merge_background(const struct model *m, const struct graph *g)
 {
+	struct nodecols nc = { 0 };
 	struct colcover cc = { 0 };
-	double bg = colcover_build(&cc, m, g) ? NAN : cover_background(m, g, &cc);
+	double bg = nodecols_build(&nc, m, g) || colcover_build(&cc, m->k, &nc, m->n)
+			    ? NAN
+			    : cover_background(m, g, &cc, &nc);
+	nodecols_release(&nc);
 	free(cc.off);
 	free(cc.mem);
 	return bg;
 }
 
-/* Add (or, with add 0, clear) row u's memberships into ov (a
- * two-mode model's second-kind rows into ov + k). */
-static void count_shared(const struct model *m, const struct graph *g, uint32_t u, uint64_t *ov,
-			 int add)
+/* Add (or, with add 0, clear) u's memberships into ov (a two-mode
+ * model's second-kind rows into ov + k). */
+static void count_shared(const struct model *m, const struct nodecols *nc, uint32_t u,
+			 uint64_t *ov, int add)
 {
-	const struct frow *r = &m->rows[u];
 	if (m->nsend && u >= m->nsend)
 		ov += m->k;
-	for (uint32_t t = 0; t < r->nnz; t++)
-		if (fit_is_member(m, g, u, r->e[t]))
-			ov[r->e[t].c] = add ? ov[r->e[t].c] + 1 : 0;
+	for (uint64_t t = nc->off[u]; t < nc->off[u + 1]; t++)
+		ov[nc->col[t]] = add ? ov[nc->col[t]] + 1 : 0;
 }
 
 
@@ -313,53 +360,6 @@ double fit_merge_block_gain(double eI, double NI, double eA, double NA, double e
 	return one - two;
 }
 
-/* The columns of every node (its memberships), in row order: col[off[u] ..
- * off[u] + lim[u]) from the first MERGE_MAX_ROW entries of its row (the
- * ones find_joins() counts), the rest after them. Built once a move: the
- * loops of find_joins() read these small contiguous lists and a byte
- * mark per node instead of scanning the neighbours' rows, whose reads
- * (a miss for the row header, one for its entries) were nearly all of a
- * move's time (0.8 s a move at 10^5 nodes, about 20 s at 10^6). */
-struct nodecols {
-	uint64_t *off;
-	uint32_t *lim;
-	uint32_t *col;
-};
-
-static void nodecols_release(struct nodecols *nc)
-{
-	UTIL_FREE_ALL(nc->off, nc->lim, nc->col);
-}
-
-static int nodecols_build(struct nodecols *nc, const struct model *m, const struct graph *g)
-{
-	uint64_t tot = 0;
-	for (uint32_t u = 0; u < m->n; u++)
-		for (uint32_t i = 0; i < m->rows[u].nnz; i++)
-			tot += (uint64_t)fit_is_member(m, g, u, m->rows[u].e[i]);
-	nc->off = util_malloc((size_t)m->n + 1, sizeof *nc->off);
-	nc->lim = util_malloc(m->n ? m->n : 1, sizeof *nc->lim);
-	nc->col = util_malloc(tot ? tot : 1, sizeof *nc->col);
-	if (!nc->off || !nc->lim || !nc->col)
-		return -1;
-	uint64_t o = 0;
-	for (uint32_t u = 0; u < m->n; u++) {
-		const struct frow *r = &m->rows[u];
-		nc->off[u] = o;
-		nc->lim[u] = UINT32_MAX;
-		for (uint32_t i = 0; i < r->nnz; i++) {
-			if (i == MERGE_MAX_ROW)
-				nc->lim[u] = (uint32_t)(o - nc->off[u]);
-			if (fit_is_member(m, g, u, r->e[i]))
-				nc->col[o++] = r->e[i].c;
-		}
-		if (nc->lim[u] == UINT32_MAX)
-			nc->lim[u] = (uint32_t)(o - nc->off[u]);
-	}
-	nc->off[m->n] = o;
-	return 0;
-}
-
 /* Whether the sorted list l[0 .. n) holds c. */
 static int list_has(const uint32_t *l, uint64_t n, uint32_t c)
 {
@@ -373,8 +373,8 @@ static int list_has(const uint32_t *l, uint64_t n, uint32_t c)
  * fit_merge_block_gain() where A and B share two members or more. The count,
  * or -1. */
 static int64_t find_joins(const struct model *m, const struct graph *g,
-			  const struct colcover *cc, const uint64_t *ein, double bg, int blocks,
-			  struct join **out)
+			  const struct nodecols *ncp, const struct colcover *cc, const uint64_t *ein,
+			  double bg, int blocks, struct join **out)
 {
 	uint32_t k = m->k;
 	uint64_t *cnt = util_calloc(k, sizeof *cnt);
@@ -385,17 +385,17 @@ static int64_t find_joins(const struct model *m, const struct graph *g,
 	/* ustamp[c] == u + 1: u is in c, for the u at hand */
 	uint32_t *ustamp = util_calloc(k, sizeof *ustamp);
 	uint8_t *inA = util_calloc(m->n ? m->n : 1, 1); /* the members of the column at hand */
-	struct nodecols nc = { 0 };
+	const struct nodecols nc = *ncp;
 	uint64_t njoin = 0, cap = 0;
 	struct join *joins = NULL;
 	double le = log(bg), l1e = log1p(-bg);
 	int64_t rc = -1;
-	if (!cnt || !cii || !touched || !ov || !ustamp || !inA || nodecols_build(&nc, m, g))
+	if (!cnt || !cii || !touched || !ov || !ustamp || !inA)
 		goto out;
 	for (uint32_t a = 0; a < k; a++) {
 		uint32_t nt = 0;
 		for (uint64_t i = cc->off[a]; i < cc->off[a + 1]; i++) {
-			count_shared(m, g, cc->mem[i], ov, 1);
+			count_shared(m, ncp, cc->mem[i], ov, 1);
 			inA[cc->mem[i]] = 1;
 		}
 		for (uint64_t i = cc->off[a]; i < cc->off[a + 1]; i++) {
@@ -478,7 +478,7 @@ static int64_t find_joins(const struct model *m, const struct graph *g,
 			joins[njoin++] = (struct join){ gain, a, b };
 		}
 		for (uint64_t i = cc->off[a]; i < cc->off[a + 1]; i++)
-			count_shared(m, g, cc->mem[i], ov, 0);
+			count_shared(m, ncp, cc->mem[i], ov, 0);
 	}
 	if (njoin)
 		qsort(joins, njoin, sizeof *joins, join_cmp);
@@ -492,7 +492,6 @@ out:
 	free(touched);
 	free(ustamp);
 	free(inA);
-	nodecols_release(&nc);
 	free(joins);
 	return rc;
 }
@@ -797,6 +796,7 @@ int fit_merge_move(struct fit *f, struct rng *r, uint32_t limit, uint32_t *made)
 		pm = &one;
 		g = f->view;
 	}
+	struct nodecols nc = { 0 };
 	struct colcover cc = { 0 };
 	uint64_t *ein = util_calloc(m->k, sizeof *ein);
 	uint8_t *mark = util_calloc(g->n > m->k ? g->n : m->k, 1);
@@ -806,10 +806,11 @@ int fit_merge_move(struct fit *f, struct rng *r, uint32_t limit, uint32_t *made)
 	struct join *joins = NULL;
 	struct centre *cen = NULL;
 	int rc = -1;
-	if (!ein || !mark || !into || !buf || !freed || colcover_build(&cc, pm, g))
+	if (!ein || !mark || !into || !buf || !freed || nodecols_build(&nc, pm, g) ||
+	    colcover_build(&cc, m->k, &nc, pm->n))
 		goto out;
 	count_inside(pm, g, &cc, ein, mark);
-	double bg = cover_background(pm, g, &cc);
+	double bg = cover_background(pm, g, &cc, &nc);
 	int64_t ncen = pick_centres(pm, g, r, &cen, mark, limit);
 	if (ncen < 0)
 		goto out;
@@ -817,7 +818,7 @@ int fit_merge_move(struct fit *f, struct rng *r, uint32_t limit, uint32_t *made)
 		rc = 0;
 		goto out;
 	}
-	int64_t nj = find_joins(pm, g, &cc, ein, bg, !m->nsend, &joins);
+	int64_t nj = find_joins(pm, g, &nc, &cc, ein, bg, !m->nsend, &joins);
 	if (nj < 0)
 		goto out;
 	/* the least costly joins with the most valuable centres, while the
@@ -853,6 +854,7 @@ int fit_merge_move(struct fit *f, struct rng *r, uint32_t limit, uint32_t *made)
 out:
 	if (pm != m)
 		model_release(&one);
+	nodecols_release(&nc);
 	free(cc.off);
 	free(cc.mem);
 	free(ein);
