@@ -44,7 +44,7 @@
 #define RESEED_MAX 12u
 #define RESEED_FAILS 3u
 #define RESEED_MIN_BUDGET 30u
-#define MERGE_BATCH_DIV 32u /* the first merge move joins at most k / 32 pairs */
+#define MERGE_BATCH_DIV 16u /* the first merge move joins at most k / 16 pairs */
 #define MERGE_BATCH_MIN 8u
 
 /* Where the climb of the current start is kept while its moves run. */
@@ -354,10 +354,11 @@ static enum fit_state reseed(struct fit *f)
 	/* a merge batch perturbs many columns at once: on a graph of 10^6
 	 * nodes (k 11765) an uncapped first batch failed, its climb cost a
 	 * start's and its fill raised the peak from 3.37 to 4.82 GB; the
-	 * batch is capped (at least 8) and halved on a failure; k / 32 rather
-	 * than k / 64 since joins are judged by the AGM block rule as well
-	 * (fit_merge.c): at 10^5 nodes (k 1142) ONMI 0.777 at k / 64, 0.811 at
-	 * k / 32, 0.814 at k / 16, 0.806 uncapped (DEVELOPERS.md) */
+	 * batch is capped (at least 8) and halved on a failure. k / 16 since
+	 * the move reads the cover by the membership rule (session 9): at 10^5
+	 * nodes (k 1142, seeds 1-3) ONMI 0.815 on average at k / 32, 0.850 at
+	 * k / 16, 0.842 at k / 8, in the same time (DEVELOPERS.md, "Larger
+	 * merge batches") */
 	uint32_t merge_limit = f->m.k / MERGE_BATCH_DIV > MERGE_BATCH_MIN ? f->m.k / MERGE_BATCH_DIV
 									  : MERGE_BATCH_MIN;
 	/* the moves may spend at most as many sweeps as the climb did (and at
