@@ -9,6 +9,7 @@
 
 #define FIT_QUIET_EVERY 8u  /* every 8th sweep computes every row (fit.c, quiet_next()) */
 #define FIT_QUIET_WAKE 10.0 /* the gain that wakes a row's neighbours, in plateau gains per row */
+#define FIT_MOVE_TOL 1e-3   /* a reseeding move's climb levels off at this tolerance, or a looser --tol (starts.c) */
 
 
 #include <pthread.h>
@@ -84,6 +85,7 @@ struct fit {
 	uint32_t plateau_sweep;
 	unsigned streak;
 	int awake_ok;              /* the sweep engine's awake flags are the model's */
+	int moving;                /* climbing after a reseeding move: the plateau at FIT_MOVE_TOL */
 	uint32_t goal_sweep;       /* fit_extend_by(n): run to this sweep, then hold (0: none) */
 	double seconds_base, t0;
 	struct seed_report seeds;

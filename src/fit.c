@@ -377,6 +377,14 @@ int fit_awake_set(struct fit *f, const uint8_t *awake)
 	return 0;
 }
 
+/* The plateau tolerance tol in force for the climb under way: a
+ * reseeding move's climb levels off at FIT_MOVE_TOL when tol is
+ * tighter (starts.c climbs to tol once the moves are over). */
+static double climb_tol(const struct fit *f, double tol)
+{
+	return f->moving && tol < FIT_MOVE_TOL ? FIT_MOVE_TOL : tol;
+}
+
 /* Is the next sweep quiet (sweep.h)? Not when the engine's awake flags
  * are not the model's (a start, a move, an import: awake_ok 0), not
  * every FIT_QUIET_EVERY-th sweep, and not when it could fire the plateau
@@ -392,7 +400,7 @@ static int quiet_next(const struct fit *f)
 	unsigned low = 0;
 	for (uint32_t i = f->ntrace; i >= 2 && low + 1 < f->p.patience; i--) {
 		double prev = f->trace[i - 2].loglik, ll = f->trace[i - 1].loglik;
-		if ((ll - prev) / (fabs(prev) > 0 ? fabs(prev) : 1.0) >= f->p.tol)
+		if ((ll - prev) / (fabs(prev) > 0 ? fabs(prev) : 1.0) >= climb_tol(f, f->p.tol))
 			break;
 		low++;
 	}
@@ -447,7 +455,7 @@ enum fit_state fit_run_start(struct fit *f, int extend)
 		if (rc == 1)
 			return FIT_STOPPED;
 		double gain = (ll - prev) / (fabs(prev) > 0 ? fabs(prev) : 1.0);
-		f->streak = gain < fit_tol(f) ? f->streak + 1 : 0;
+		f->streak = gain < climb_tol(f, fit_tol(f)) ? f->streak + 1 : 0;
 		int fired = f->streak >= f->p.patience;
 		if (fired && f->plateau_sweep == 0)
 			f->plateau_sweep = f->sweep;

@@ -16,9 +16,11 @@
  * there are pieces to join, else a split: take the weakest column
  * (smallest column sum), empty it, and seed it again inside the largest
  * community (the ego-net of one of its members, restricted to that
- * community). Either way the start then fits to a plateau again, and the
- * move is kept only if the log-likelihood rose; otherwise the model goes
- * back (a failed merge halves the joins the next one may make).
+ * community). Either way the start then fits to a plateau again, at the
+ * looser FIT_MOVE_TOL (1e-3, or --tol if looser), and the move is kept
+ * only if the log-likelihood rose; otherwise the model goes back (a
+ * failed merge halves the joins the next one may make). After the last
+ * move the start climbs to its own plateau (--tol).
  * Moves stop after RESEED_FAILS failures in a row, RESEED_MAX moves, or
  * when they have used as many sweeps as the climb to the first plateau.
  *
@@ -391,7 +393,9 @@ static enum fit_state reseed(struct fit *f)
 		f->ll_moved = 1;
 		f->awake_ok = 0;
 		f->streak = 0;
+		f->moving = 1;
 		st = fit_run_start(f, 0);
+		f->moving = 0;
 		spent += f->sweep - sweep;
 		if (st == FIT_FAILED)
 			break;
@@ -416,6 +420,12 @@ static enum fit_state reseed(struct fit *f)
 			break;
 	}
 	fcsr_release(&saved);
+	/* the moves' climbs levelled off at FIT_MOVE_TOL: the kept model
+	 * climbs on to the fit's own plateau */
+	if (st == FIT_LEVELLED && f->reseeds > 0) {
+		f->streak = 0;
+		st = fit_run_start(f, 0);
+	}
 	return st;
 }
 
