@@ -17,9 +17,10 @@
  * (smallest column sum), empty it, and seed it again inside the largest
  * community (the ego-net of one of its members, restricted to that
  * community). Either way the start then fits to a plateau again, at the
- * looser FIT_MOVE_TOL (1e-3, or --tol if looser), and the move is kept
- * only if the log-likelihood rose; otherwise the model goes back (a
- * failed merge halves the joins the next one may make). After the last
+ * looser FIT_MOVE_TOL (1e-3, or --tol if looser; a move that has not
+ * paid by then climbs on to --tol), and the move is kept only if the
+ * log-likelihood rose; otherwise the model goes back (a failed merge
+ * halves the joins the next one may make). After the last
  * move the start climbs to its own plateau (--tol).
  * Moves stop after RESEED_FAILS failures in a row, RESEED_MAX moves, or
  * when they have used as many sweeps as the climb to the first plateau.
@@ -396,6 +397,13 @@ static enum fit_state reseed(struct fit *f)
 		f->moving = 1;
 		st = fit_run_start(f, 0);
 		f->moving = 0;
+		/* a move that has not paid at FIT_MOVE_TOL climbs on to --tol
+		 * before it is refused: the short climb understates a move, and
+		 * on two-sided models it refused every move (DEVELOPERS.md) */
+		if (st == FIT_LEVELLED && !(f->trace[f->ntrace - 1].loglik > before)) {
+			f->streak = 0;
+			st = fit_run_start(f, 0);
+		}
 		spent += f->sweep - sweep;
 		if (st == FIT_FAILED)
 			break;
