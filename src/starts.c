@@ -344,6 +344,14 @@ static int reseed_column(struct fit *f, struct rng *r)
 	return rc;
 }
 
+/* Climb on from where a move's climb levelled off at FIT_MOVE_TOL to
+ * the fit's own plateau (--tol). */
+static enum fit_state climb_on(struct fit *f)
+{
+	f->streak = 0;
+	return fit_run_start(f, 0);
+}
+
 /* Reseed a levelled start; returns how the fit ended (LEVELLED when the
  * moves ran out, or STOPPED/FINISHED/FAILED when something else ended it). */
 static enum fit_state reseed(struct fit *f)
@@ -400,10 +408,8 @@ static enum fit_state reseed(struct fit *f)
 		/* a move that has not paid at FIT_MOVE_TOL climbs on to --tol
 		 * before it is refused: the short climb understates a move, and
 		 * on two-sided models it refused every move (DEVELOPERS.md) */
-		if (st == FIT_LEVELLED && !(f->trace[f->ntrace - 1].loglik > before)) {
-			f->streak = 0;
-			st = fit_run_start(f, 0);
-		}
+		if (st == FIT_LEVELLED && !(f->trace[f->ntrace - 1].loglik > before))
+			st = climb_on(f);
 		spent += f->sweep - sweep;
 		if (st == FIT_FAILED)
 			break;
@@ -430,10 +436,8 @@ static enum fit_state reseed(struct fit *f)
 	fcsr_release(&saved);
 	/* the moves' climbs levelled off at FIT_MOVE_TOL: the kept model
 	 * climbs on to the fit's own plateau */
-	if (st == FIT_LEVELLED && f->reseeds > 0) {
-		f->streak = 0;
-		st = fit_run_start(f, 0);
-	}
+	if (st == FIT_LEVELLED && f->reseeds > 0)
+		st = climb_on(f);
 	return st;
 }
 
