@@ -53,13 +53,15 @@ interrupt_run()
 	signal_job "$1" $! "$tmp/$1.err" 'sweep [0-9]' 2 "$2" "$3"
 }
 
-# (the planted graph: about 10 ms a sweep on one process, 400 sweeps)
-C="-k 40 --seed 6 --starts 1 --past-plateau --max-sweeps 400 --epsilon 1e-4"
+# (the planted graph: about 2 ms a sweep once it has levelled off, so 2000
+# sweeps, about 4 s: the signal must land while the fit runs; at 400
+# sweeps the whole fit took 0.7 s and a busy machine lost the race)
+C="-k 40 --seed 6 --starts 1 --past-plateau --max-sweeps 2000 --epsilon 1e-4"
 interrupt_run int0 rank0 INT "$planted" "$C"
 check "SIGINT to rank 0: exit status 130" [ "$st" -eq 130 ]
 check "SIGINT to rank 0: run.json says interrupted" grep -q '"status": "interrupted"' "$tmp/int0/run.json"
 sweeps=$(json_get "$tmp/int0/run.json" fit.sweeps 2>/dev/null)
-check "SIGINT to rank 0: stopped before the sweep limit ($sweeps of 400)" [ "${sweeps:-400}" -lt 400 ]
+check "SIGINT to rank 0: stopped before the sweep limit ($sweeps of 2000)" [ "${sweeps:-2000}" -lt 2000 ]
 mpi 3 fit --resume "$tmp/int0" -q
 check "resumed on 3 processes: exit 0" [ $? -eq 0 ]
 "$BIN" fit "$planted" $C -j 2 -q -o "$tmp/whole"

@@ -34,8 +34,10 @@ mpi 2 fit "$planted" $A -j 1 -q -o "$tmp/auto2"
 same_choice "$tmp/auto" "$tmp/auto2" "MPICH, planted -k auto, 2 processes"
 
 # SIGINT to rank 1 (a child of hydra's proxy) during the fit: every
-# process stops at the same block, rank 0 writes, all exit 130.
-C="-k 40 --seed 6 --starts 1 --past-plateau --max-sweeps 400 --epsilon 1e-4"
+# process stops at the same block, rank 0 writes, all exit 130. 2000
+# sweeps (about 4 s): at 400 the fit ended in 0.7 s, and on a busy machine
+# before the signal was sent.
+C="-k 40 --seed 6 --starts 1 --past-plateau --max-sweeps 2000 --epsilon 1e-4"
 "$MPIRUN" -np 2 "$MPIBIN" fit "$planted" $C -j 1 -o "$tmp/int" 2>"$tmp/int.err" &
 signal_job "MPICH interrupt" $! "$tmp/int.err" 'sweep [0-9]' 2 rank1 INT
 check "MPICH interrupt: exit status 130 ($st)" [ "$st" -eq 130 ]
