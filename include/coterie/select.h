@@ -43,7 +43,7 @@
  * gap a round, the gap
  * around the best on the side of the vertex of the parabola through the
  * three scores around it (in ln k) is halved in log k, until both gaps
- * around the best are within one grid step. Its first fit (k0) makes the
+ * around the best are within half a grid step (ratio sqrt(step)). Its first fit (k0) makes the
  * reseeding moves after its climb, as the final fit does (unless
  * base->no_reseed), the others skip them; a fit below a k already tried starts from the fit of the
  * nearest k above it (same split: there is only one) with its weakest
