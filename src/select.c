@@ -663,7 +663,8 @@ static uint32_t clamp_k(double k, uint32_t lo, uint32_t hi)
  * it by r, past the grid's edge up to n/4, MODEL_MAX_K and memory (down
  * to 2); then, one gap a round, the gap around the best on the side of the
  * parabola's vertex (toward()) is halved in log k until both gaps are
- * within half a grid step (ratio sqrt(step)). A fit below a k already tried starts from the
+ * within one grid step, or half of one (ratio sqrt(step)) on a split of
+ * SELECT_FINE_EDGES held-out edges or more. A fit below a k already tried starts from the
  * fit of the nearest k above it (the only split), its weakest columns
  * dropped (select_warm.c); one above every k tried starts from seeds.
  * Points go after
@@ -725,13 +726,11 @@ static int shape_search(struct search *s, const struct graph *g, const struct se
 			break;
 	}
 	res->bound = hi;
-	/* the refinement ends at half a grid step (1.118 for 1.25): the
-	 * curve's top is sharp where the fits are good, and at one grid step
-	 * (1.25) the search stopped 15% short of it (leaky planted graph,
-	 * 10^5 nodes, 1,142 planted: 975 chosen, ONMI 0.814; now 1090,
-	 * 0.885, one warm fit more; DEVELOPERS.md, "-k auto on large graphs",
-	 * session 10) */
-	double fine = sqrt(sp->step);
+	/* the refinement ends at half a grid step (1.118 for 1.25) on a
+	 * split of SELECT_FINE_EDGES held-out edges or more, else at one
+	 * (select.h): on large graphs the curve's top is sharp and one step
+	 * stopped 15% short of it */
+	double fine = s->h[0].nedges >= SELECT_FINE_EDGES ? sqrt(sp->step) : sp->step;
 	while (rc == 0) { /* the refinement: halve the wide gaps around the best */
 		around(pts, *np, b->k, &below, &above);
 		uint32_t n = 0, side[2] = { below, above };

@@ -43,7 +43,8 @@
  * gap a round, the gap
  * around the best on the side of the vertex of the parabola through the
  * three scores around it (in ln k) is halved in log k, until both gaps
- * around the best are within half a grid step (ratio sqrt(step)). Its first fit (k0) makes the
+ * around the best are within one grid step (half of one, ratio sqrt(step),
+ * when the split holds SELECT_FINE_EDGES held-out edges or more). Its first fit (k0) makes the
  * reseeding moves after its climb, as the final fit does (unless
  * base->no_reseed), the others skip them; a fit below a k already tried starts from the fit of the
  * nearest k above it (same split: there is only one) with its weakest
@@ -100,6 +101,19 @@ int select_by_shape(uint64_t m, const struct select_params *sp);
  * 20,000-edge graph: the search is never dearer than there.
  */
 #define SELECT_FOLD_EDGES 2000
+
+/*
+ * The search by the shape refines to half a grid step (ratio sqrt(step))
+ * when its split holds at least this many held-out edges (graphs of
+ * 200,000 edges or more at the default share), else to one grid step.
+ * Measured on leaky planted graphs (DEVELOPERS.md, "-k auto on large
+ * graphs", session 10): at 10^5 nodes (100,000 held-out edges) half a
+ * step found the top one step missed (1,142 planted: 975 -> 1090 chosen,
+ * ONMI 0.814 -> 0.885); at 3,000 nodes (2,100 held-out edges, seeds 1-7)
+ * the finer points chased the scores' noise (mean ONMI 0.864 -> 0.853,
+ * three seeds worse, one better).
+ */
+#define SELECT_FINE_EDGES 20000
 uint32_t select_folds(uint64_t m, double share);
 
 /*
