@@ -664,8 +664,8 @@ static uint32_t clamp_k(double k, uint32_t lo, uint32_t hi)
  * to 2); then, one gap a round, the gap around the best on the side of the
  * parabola's vertex (toward()) is halved in log k until both gaps are
  * within one grid step, or half of one (ratio sqrt(step)) on a split of
- * SELECT_FINE_EDGES held-out edges or more. A fit below a k already tried starts from the
- * fit of the nearest k above it (the only split), its weakest columns
+ * SELECT_FINE_EDGES held-out edges or more. A fit below a k already
+ * tried starts from the fit of the nearest k above it (the only split), its weakest columns
  * dropped (select_warm.c); one above every k tried starts from seeds.
  * Points go after
  * pts[0 .. *np). Sets res->start, extended, bound and edge.

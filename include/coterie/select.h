@@ -40,16 +40,16 @@
  * grid, not where the top is) from seeds, then k0 / r and k0 r (r =
  * step^2); while the best is the largest (smallest) k tried, a walk by
  * the factor r, past the grid's edge as an extension would go; then, one
- * gap a round, the gap
- * around the best on the side of the vertex of the parabola through the
- * three scores around it (in ln k) is halved in log k, until both gaps
- * around the best are within one grid step (half of one, ratio sqrt(step),
- * when the split holds SELECT_FINE_EDGES held-out edges or more). Its first fit (k0) makes the
- * reseeding moves after its climb, as the final fit does (unless
- * base->no_reseed), the others skip them; a fit below a k already tried starts from the fit of the
- * nearest k above it (same split: there is only one) with its weakest
- * columns dropped (select_warm.c), one above every k tried from seeds. Each point says why it was tried
- * (select_point.reason) and in which order (.order).
+ * gap a round, the gap around the best on the side of the vertex of the
+ * parabola through the three scores around it (in ln k) is halved in log
+ * k, until both gaps around the best are within one grid step (half of
+ * one, ratio sqrt(step), when the split holds SELECT_FINE_EDGES held-out
+ * edges or more). Its first fit (k0) makes the reseeding moves after its
+ * climb, as the final fit does (unless base->no_reseed), the others skip
+ * them; a fit below a k already tried starts from the fit of the nearest k
+ * above it (same split: there is only one) with its weakest columns
+ * dropped (select_warm.c), one above every k tried from seeds. Each point
+ * says why it was tried (select_point.reason) and in which order (.order).
  *
  * Parallel: up to base->threads fits run at once, each on one thread.
  * Every fit is deterministic and the early stop is decided in grid order,
