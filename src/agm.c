@@ -432,6 +432,26 @@ int agm_improve_p(const struct graph *g, const struct cover *c, double epsilon, 
 	return rc;
 }
 
+/* ln Gamma(x) for x > 0; lgamma_r: lgamma() writes the global signgam,
+ * a race between the threads of -k auto and --repeats */
+static double ln_gamma(double x)
+{
+	int sign;
+	return lgamma_r(x, &sign);
+}
+
+double agm_code_length(const struct agm *a, uint32_t n)
+{
+	/* ln C(n, s) from ln Gamma: relative error near 1e-15 at any size */
+	double nats = -a->loglik, ln_n = ln_gamma((double)n + 1.0);
+	for (uint32_t i = 0; i < a->cover.k; i++) {
+		double s = (double)a->comms[i].size;
+		if (s > 0 && s < n)
+			nats += ln_n - ln_gamma(s + 1.0) - ln_gamma((double)n - s + 1.0);
+	}
+	return nats;
+}
+
 double agm_loglik(const struct graph *g, const struct cover *c, const double *p, double epsilon)
 {
 	struct index ix;

@@ -95,7 +95,7 @@ struct fit {
 	struct fit_savepoint *res_out; /* owned until the next snapshot takes it */
 	uint32_t start, starts;
 	uint32_t reseeds;
-	/* the most likely start so far (best_start 0: none yet), as a
+	/* the best start so far (best_start 0: none yet), as a
 	 * savepoint holds it; in_starts while the starts run (savepoints
 	 * can be made), climb the start as it levelled off while its
 	 * reseeding moves run (else NULL) */
@@ -103,6 +103,10 @@ struct fit {
 	uint32_t best_start, best_reseeds;
 	enum fit_state best_state;
 	double best_loglik;
+	double best_score; /* what starts are compared by (starts.c); NAN: not yet scored */
+	/* each start's end as keep_best() judged it (starts entries; NAN for a
+	 * start not ended in this process, e.g. before a resume) */
+	double *start_loglik, *start_code;
 	int in_starts;
 	const struct fit_part *climb;
 	/* l(F) after a reseeding move, recomputed (ll_moved set) */

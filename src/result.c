@@ -57,6 +57,9 @@ void result_model_of(struct result_model *m, const struct snapshot *s)
 		.delta = s->delta,
 		.best_start = s->best_start,
 		.reseeds = s->reseeds,
+		.starts = s->starts,
+		.start_loglik = s->start_loglik,
+		.start_code = s->start_code,
 		.savepoint = s->savepoint,
 		/* a resume from the savepoint goes on with its start in
 		 * progress: a climbing one's flags; one whose moves ran makes

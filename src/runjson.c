@@ -214,6 +214,24 @@ static json_t *j_params(const struct fit_params *p, const struct result_model *m
 	return jp;
 }
 
+/* fit.starts_judged: one object a start (its final l(F) and the code
+ * length of its cover, null where not known), null for one start. */
+static json_t *j_starts(const struct result_model *m, int *bad)
+{
+	if (!m->start_loglik || m->starts < 2)
+		return json_null();
+	json_t *js = json_array();
+	for (uint32_t r = 0; js && r < m->starts; r++) {
+		json_t *jr = json_object();
+		double ll = m->start_loglik[r], code = m->start_code[r];
+		jsonout_set(jr, "start", jsonout_uint(r + 1), bad);
+		jsonout_set(jr, "loglik", isnan(ll) ? json_null() : jsonout_real(ll), bad);
+		jsonout_set(jr, "code_length", isnan(code) ? json_null() : jsonout_real(code), bad);
+		jsonout_append(js, jr, bad);
+	}
+	return js ? js : json_null();
+}
+
 static json_t *j_fit(const struct result_model *m, const struct result_meta *meta, int *bad)
 {
 	const struct agm *a = m->agm;
@@ -238,6 +256,7 @@ static json_t *j_fit(const struct result_model *m, const struct result_meta *met
 	jsonout_set(jf, "start_kept", m->best_start ? jsonout_uint(m->best_start) : json_null(),
 		    bad);
 	jsonout_set(jf, "reseeds_kept", jsonout_uint(m->reseeds), bad);
+	jsonout_set(jf, "starts_judged", j_starts(m, bad), bad);
 	jsonout_set(jf, "memberships_from",
 		    jsonout_str(meta && meta->refine ? "agm refinement" : "strengths"), bad);
 	return jf;
@@ -279,6 +298,8 @@ static json_t *j_stability(const struct graph *g, const struct result_model *m,
 		json_t *jr = json_object();
 		jsonout_set(jr, "seed", jsonout_uint(st->seed[r]), bad);
 		jsonout_set(jr, "loglik", jsonout_real(st->loglik[r]), bad);
+		jsonout_set(jr, "code_length", st->code ? jsonout_real(st->code[r]) : json_null(),
+			    bad);
 		jsonout_set(jr, "kept", json_boolean(r == st->kept), bad);
 		jsonout_append(runs, jr, bad);
 	}

@@ -216,7 +216,7 @@ void stability_release(struct stability *st)
 {
 	if (!st)
 		return;
-	UTIL_FREE_ALL(st->seed, st->loglik, st->score);
+	UTIL_FREE_ALL(st->seed, st->loglik, st->code, st->score);
 	stability_init(st);
 }
 

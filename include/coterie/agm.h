@@ -139,6 +139,14 @@ int agm_improve_p(const struct graph *g, const struct cover *c, double epsilon, 
  * community with p > 0); NAN (with error()) on bad input. */
 double agm_loglik(const struct graph *g, const struct cover *c, const double *p, double epsilon);
 
+/* The two-part code length, in nats, of a graph under the cover of a: the
+ * cover itself (each community names its s members among n nodes,
+ * ln C(n, s)) plus the graph given the cover (-a->loglik). Lower is a
+ * shorter description (minimum description length, Rissanen 1978). Unlike
+ * the log-likelihood alone it does not reward a cover for holding more
+ * memberships than its links pay for. +INFINITY when a->loglik is. */
+double agm_code_length(const struct agm *a, uint32_t n);
+
 /* A deep copy of src into dst (all owned by dst). Returns 0 or -1. */
 int agm_copy(struct agm *dst, const struct agm *src);
 

@@ -109,8 +109,14 @@ struct fit_stats {
 struct snapshot {
 	uint32_t sweep;          /* of the current start */
 	uint32_t start, starts;  /* which start this is (1-based), of how many */
-	uint32_t best_start;     /* the most likely start so far (0: none done) */
+	uint32_t best_start;     /* the best start so far (0: none done) */
 	double best_loglik;      /* its final log-likelihood */
+	int best_by_code;        /* starts are compared by the code length of
+				  * their covers (BigCLAM), else by l(F) */
+	double *start_loglik;    /* owned; starts entries: each start's final
+				  * l(F) and its cover's code length (NAN: not
+				  * ended, or not judged by code), or NULL */
+	double *start_code;
 	uint32_t reseeds;        /* reseeding moves kept in this start */
 	enum fit_state state;
 	int plateau;             /* the plateau rule has fired */

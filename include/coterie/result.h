@@ -104,6 +104,8 @@ struct result_model {
 	enum fit_state state;
 	double seconds, epsilon, delta;
 	uint32_t best_start, reseeds;      /* for run.json */
+	uint32_t starts;                   /* and each start's end: */
+	const double *start_loglik, *start_code; /* NULL, or starts values (NAN: unknown) */
 	const struct fit_savepoint *savepoint; /* NULL: the checkpoint has none */
 	const uint8_t *awake;              /* NULL, or g->n flags: where a resume's
 					    * first sweep goes on (fit_origin) */

@@ -72,6 +72,8 @@ struct stability {
 	uint32_t kept;      /* which (0-based) is the result */
 	uint64_t *seed;     /* runs seeds, in run order */
 	double *loglik;     /* runs final log-likelihoods l(F) */
+	double *code;       /* runs code lengths of their covers (agm_code_length(),
+			     * what chose the kept one), or NULL: by l(F) */
 	uint32_t k;         /* communities of the kept cover (its columns) */
 	double *score;      /* k stabilities, in the kept cover's order; NaN
 			     * for an empty community */

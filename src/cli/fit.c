@@ -14,6 +14,7 @@
  * (fit.h, struct fit_savepoint), so --resume ends with the bytes the
  * uninterrupted fit would have written.
  */
+#include <math.h>
 #include <getopt.h>
 #include <poll.h>
 #include <stdio.h>
@@ -67,8 +68,11 @@ static void fit_usage(FILE *out)
 		"  -j, --threads N       worker threads (default: every core)\n"
 		"      --seed N          random seed (default 1); same seed, same result\n"
 		"      --starts N        fit N times from different seeds and sweep orders and\n"
-		"                        keep the most likely (default 3 below 100000 edges,\n"
-		"                        else 1; the likelihood has local maxima)\n"
+		"                        keep the best: the cover of the shortest code length\n"
+		"                        (its AGM log-likelihood less the cost of naming its\n"
+		"                        members; the most likely start with --weighted,\n"
+		"                        --directed, --two-mode). Default 3 below 100000\n"
+		"                        edges, else 1 (the likelihood has local maxima)\n"
 		"      --repeats N       fit N times in all, from seeds S, S+1, ... (several\n"
 		"                        fits at once), keep the most likely and score each\n"
 		"                        of its communities by how well the other fits find\n"
@@ -78,7 +82,9 @@ static void fit_usage(FILE *out)
 		"                        re-seed the weakest one\n"
 		"                        after a plateau (faster, often less likely); each\n"
 		"                        climbs to a plateau of 1e-3 (then --tol if it has\n"
-		"                        not paid) and is kept if l(F) rose; they stop\n"
+		"                        not paid) and is kept if it shortened the code\n"
+		"                        length (as --starts; l(F) must rise with\n"
+		"                        --weighted, --directed, --two-mode); they stop\n"
 		"                        after 3 unkept in a row, 12 moves, or as many\n"
 		"                        sweeps as the climb took\n"
 		"      --tol X           plateau: relative gain per sweep below X ...\n"
@@ -518,8 +524,8 @@ static void on_run_ended(uint32_t run, uint64_t seed, double loglik, void *arg)
 
 /*
  * --repeats: fit runs 2 .. N from seeds S+1 .. S+N-1 (the fit just made
- * from S is run 1, its final snapshot main), keep the most likely (the
- * first of equals) and record the runs in r->stab. Returns the snapshot
+ * from S is run 1, its final snapshot main), keep the best as --starts
+ * does (the first of equals) and record the runs in r->stab. Returns the snapshot
  * to write (main, or one of r->runs: borrowed) and its state in *st. An
  * interrupt or a failure leaves main alone to be written, unscored.
  */
@@ -552,12 +558,22 @@ static const struct snapshot *repeat_fits(struct run *r, const struct snapshot *
 	if (!sb->seed || !sb->loglik)
 		return main;
 	sb->runs = n;
+	/* the best as --starts has it: the shortest code length of the
+	 * cover (BigCLAM, best_by_code), else the highest l(F) */
+	if (main->best_by_code && !(sb->code = util_calloc(n, sizeof *sb->code)))
+		return main;
+	double best = 0.0;
 	for (uint32_t i = 0; i < n; i++) {
 		const struct snapshot *x = r->runs[i];
 		sb->seed[i] = q.seed + i;
 		sb->loglik[i] = x->trace[x->ntrace - 1].loglik;
-		if (sb->loglik[i] > sb->loglik[sb->kept])
+		if (sb->code)
+			sb->code[i] = agm_code_length(&x->agm, x->agm.n);
+		double score = sb->code ? -sb->code[i] : sb->loglik[i];
+		if (i == 0 || score > best) {
+			best = score;
 			sb->kept = i;
+		}
 	}
 	if (sb->kept == 0)
 		return main;
@@ -596,9 +612,10 @@ static int score_stability(struct run *r, const struct agm *a)
 		return -1;
 	sb->k = k;
 	if (!r->quiet)
-		notice("kept repeat %u of %u (seed %llu), the most likely; mean stability of its "
+		notice("kept repeat %u of %u (seed %llu), %s; mean stability of its "
 		       "communities %.3f (the best-match Jaccard in the %u other fits)",
 		       sb->kept + 1, sb->runs, (unsigned long long)sb->seed[sb->kept],
+		       r->runs[sb->kept]->best_by_code ? "the shortest code" : "the most likely",
 		       stability_mean(sb), no);
 	return 0;
 }
@@ -611,8 +628,8 @@ static void say_written(const struct run *r, const struct snapshot *s, enum fit_
 			  r->interrupted ? "was interrupted" : "was stopped";
 	char best[64] = "";
 	if (s->starts > 1)
-		snprintf(best, sizeof best, " (start %u of %u, the most likely)", s->best_start,
-			 s->starts);
+		snprintf(best, sizeof best, " (start %u of %u, %s)", s->best_start, s->starts,
+			 s->best_by_code ? "the shortest code" : "the most likely");
 	uint32_t covered, overlapping, nodes;
 	if (agm_coverage_as_given(a, r->graph, &covered, &overlapping, &nodes))
 		return;

@@ -63,7 +63,8 @@ static size_t progress_join(char *line, size_t cap, char f[PF_N][64], const int 
  * (the speed, the gain, ...), then the start is said more briefly, and at
  * last the line is cut, so that it never wraps. The final line of a fit of
  * several starts names the start it kept (the model written), which is
- * not the last one run when an earlier start was more likely.
+ * not the last one run when an earlier start was better (shorter code
+ * length, or more likely: starts.c).
  */
 static void progress_format(const struct snapshot *s, int final, unsigned width, char *line,
 			    size_t cap)
@@ -78,8 +79,8 @@ static void progress_format(const struct snapshot *s, int final, unsigned width,
 	int kept = final && s->starts > 1 && s->best_start > 0;
 	f[PF_HEAD][0] = '\0';
 	if (kept) {
-		snprintf(f[PF_HEAD], sizeof f[0], "kept start %u of %u (the most likely):",
-			 s->best_start, s->starts);
+		snprintf(f[PF_HEAD], sizeof f[0], "kept start %u of %u (%s):", s->best_start,
+			 s->starts, s->best_by_code ? "the shortest code" : "the most likely");
 		snprintf(brief, sizeof brief, "kept start %u of %u:", s->best_start, s->starts);
 	} else if (s->starts > 1) {
 		snprintf(f[PF_HEAD], sizeof f[0], "start %u/%u", s->start, s->starts);

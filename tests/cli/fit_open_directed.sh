@@ -93,22 +93,29 @@ print('%.4f %.4f %.2f' % (a, s, s / shuffled if shuffled > 0 else 0.0))
 PYEOF
 }
 
-# ---- Serengeti. Measured (k 14, seeds 1-4): --directed 0.145, 0.155,
-# 0.148, 0.158; BigCLAM on the arcs read undirected 0.108, 0.121, 0.102,
-# 0.101; Leiden 0.219 (3 groups, modularity 0.370); the published groups
-# shuffled among the species 0.000-0.020 (chance).
-"$BIN" fit "$se/arcs.tsv" --directed -k 14 -j 2 -q -o "$tmp/sd" 2>/dev/null
-"$BIN" fit "$se/arcs.tsv" -k 14 -j 2 -q -o "$tmp/su" 2>/dev/null
+# ---- Serengeti. Measured (k 14, seeds 1-4; 2026-12-04): --directed 0.141,
+# 0.155, 0.148, 0.155 (mean 0.150); BigCLAM on the arcs read undirected
+# 0.145, 0.116, 0.121, 0.100 (mean 0.121; 0.108, 0.121, 0.102, 0.101 before
+# its starts were judged by code length, when seed 1 alone was compared);
+# Leiden 0.219 (3 groups, modularity 0.370); the published groups shuffled
+# among the species 0.000-0.020 (chance). One seed can go either way, so the
+# comparison is of the means over seeds 1-4 (each fit well under a second).
+sd=0 su=0
+for s in 1 2 3 4; do
+	"$BIN" fit "$se/arcs.tsv" --directed -k 14 -j 2 --seed $s -q -o "$tmp/sd$s" 2>/dev/null
+	"$BIN" fit "$se/arcs.tsv" -k 14 -j 2 --seed $s -q -o "$tmp/su$s" 2>/dev/null
+	sd=$("$PY" -c "print($sd + $(onmi "$se/groups.tsv" "$tmp/sd$s/memberships.tsv") / 4)")
+	su=$("$PY" -c "print($su + $(onmi "$se/groups.tsv" "$tmp/su$s/memberships.tsv") / 4)")
+done
 leiden "$se/arcs.tsv" "$tmp/sl.tsv" u >"$tmp/sl.out"
-d=$(onmi "$se/groups.tsv" "$tmp/sd/memberships.tsv")
-u=$(onmi "$se/groups.tsv" "$tmp/su/memberships.tsv")
+d=$(onmi "$se/groups.tsv" "$tmp/sd1/memberships.tsv")
 l=$(onmi "$se/groups.tsv" "$tmp/sl.tsv")
-echo "# Serengeti vs the 14 published groups (ONMI): --directed $d, undirected $u," \
-	"igraph Leiden $l ($(cat "$tmp/sl.out"))"
-check "Serengeti: --directed recovers the published groups above chance (ONMI >= 0.12)" \
+echo "# Serengeti vs the 14 published groups (ONMI, mean of seeds 1-4): --directed $sd," \
+	"undirected $su; igraph Leiden $l ($(cat "$tmp/sl.out"))"
+check "Serengeti: --directed recovers the published groups above chance (seed 1: ONMI $d >= 0.12)" \
 	"$PY" -c "import sys; sys.exit(not float('$d') >= 0.12)"
-check "Serengeti: the direction helps (ONMI above BigCLAM's on the arcs read undirected)" \
-	"$PY" -c "import sys; sys.exit(not float('$d') > float('$u'))"
+check "Serengeti: the direction helps (mean ONMI over seeds 1-4 above BigCLAM's on the arcs read undirected)" \
+	"$PY" -c "import sys; sys.exit(not float('$sd') > float('$su'))"
 
 # ---- C. elegans. Measured (k 6 = Leiden's group count, seeds 1-3):
 # synapses inside communities: --weighted 0.814, 0.819, 0.821 (1.24

@@ -43,7 +43,7 @@ for w in 60 80; do
 		sh -c 'case "$1" in *"sweep $2 "*) exit 0 ;; esac; exit 1' sh "$last" "$sweeps"
 done
 check "at 80 columns the kept start is said in full words" \
-	grep -q '^kept start [0-9] of 3 (the most likely): sweep ' "$tmp/lines80"
+	grep -q '^kept start [0-9] of 3 (the shortest code): sweep ' "$tmp/lines80"
 
 # Not a terminal: COLUMNS, else 80, and the "coterie: " prefix counts.
 COLUMNS=60 "$BIN" fit "$football" -k 12 -j 1 --seed 1 -o "$tmp/plain" 2>"$tmp/plain.err"

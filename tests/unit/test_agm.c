@@ -71,6 +71,31 @@ static void test_loglik_matches_hand_computed_example(void **state)
 }
 
 /*
+ * The code length of the worked example above: the graph given the cover
+ * (-loglik = 7.5058976771) plus the cover, each community's members named
+ * among n = 5 nodes: ln C(5, 4) = ln 5 = 1.6094379124 for A and
+ * ln C(5, 3) = ln 10 = 2.3025850930 for B. Sum: 11.4179206825.
+ * (Two-part code of minimum description length, Rissanen 1978.)
+ */
+static void test_code_length_matches_hand_computed_example(void **state)
+{
+	(void)state;
+	struct graph *g = make_graph(5, ex_edges, 6);
+	struct cover c;
+	make_cover(&c, 5, 2, ex_sizes, ex_members);
+	double p[2] = { 0.5, 0.4 };
+	struct agm a;
+	assert_int_equal(agm_from_cover_p(&a, g, &c, 0.1, p), 0);
+	assert_true(fabs(a.loglik - -7.5058976771) < 1e-9);
+	assert_true(fabs(agm_code_length(&a, 5) - 11.4179206825) < 1e-9); /* the sum above */
+	/* among 6 nodes (a sixth left out of both): ln C(6, 4) + ln C(6, 3) = ln 15 + ln 20 */
+	assert_true(fabs(agm_code_length(&a, 6) - (7.5058976771 + log(15.0) + log(20.0))) < 1e-9);
+	agm_release(&a);
+	cover_release(&c);
+	graph_free(g);
+}
+
+/*
  * Closed form without overlapping pairs. If every pair shares at most one
  * community, L splits into one function per community:
  *     L_c(q) = m_c log(1 - exp(-(q + qeps))) - (pairs_c - m_c)(q + qeps) + const.
@@ -806,6 +831,7 @@ int main(void)
 {
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_loglik_matches_hand_computed_example),
+		cmocka_unit_test(test_code_length_matches_hand_computed_example),
 		cmocka_unit_test(test_p_closed_form_without_background),
 		cmocka_unit_test(test_p_closed_form_with_background),
 		cmocka_unit_test(test_p_is_a_maximum_with_overlaps),
