@@ -85,6 +85,7 @@ struct fit {
 	uint32_t plateau_sweep;
 	unsigned streak;
 	int awake_ok;              /* the sweep engine's awake flags are the model's */
+	int warm_moves;            /* fit_origin.moves: a warm start makes the moves */
 	int moving;                /* climbing after a reseeding move: the plateau at FIT_MOVE_TOL */
 	uint32_t goal_sweep;       /* fit_extend_by(n): run to this sweep, then hold (0: none) */
 	double seconds_base, t0;
@@ -120,6 +121,10 @@ struct fit {
 	uint32_t agm_sweep;
 	int live_agm;     /* fit_want_live_agm(): fitting snapshots rebuild it */
 };
+
+/* starts.c: the reseeding moves of a fit that went on from a warm start
+ * (fit_origin.moves) once its climb levelled off; returns how it ended. */
+enum fit_state fit_run_moves(struct fit *f);
 
 /* fit.c */
 /* Build a snapshot of the current model and swap it in: 0 or -1. */

@@ -526,6 +526,8 @@ static void *fit_main(void *arg)
 		/* a fit continued as one start, without savepoints */
 		fit_publish(f, FIT_FITTING);
 		final = fit_run_start(f, 1);
+		if (final == FIT_LEVELLED && f->warm_moves && !f->p.no_reseed)
+			final = fit_run_moves(f); /* a warm start of -k auto's search */
 	} else {
 		final = fit_run_starts(f);
 		fit_part_release(&f->best);
@@ -588,6 +590,7 @@ static int load_origin(struct fit *f, const struct fit_origin *origin)
 	if (model_import_order(&f->m, origin->F, f->inner))
 		return -1;
 	f->resumed = 1;
+	f->warm_moves = origin->moves;
 	if (origin->awake && fit_awake_set(f, origin->awake))
 		return -1;
 	f->sweep = origin->sweep;

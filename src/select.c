@@ -217,6 +217,8 @@ struct search {
 					* spread over its processes */
 	int moves; /* the shape search's start may make the reseeding moves
 		    * (not asked off with --no-reseed) */
+	int all_moves; /* and every other fit, warm ones too (below
+			* SELECT_FINE_EDGES held-out edges) */
 };
 
 /* Release the kept fits except that of k (0: all). */
@@ -267,12 +269,12 @@ static int slot_launch(struct slot *sl, const struct search *s, const struct wan
 	q.k = w->k;
 	q.threads = threads;
 	q.seed = fold_seed(s->p.seed, fold);
-	if (w->moves && s->moves)
+	if (s->moves && (w->moves || s->all_moves))
 		q.no_reseed = 0;
 	sl->task = task;
 	struct fcsr warm;
 	warm_of(s, w, s->h[fold].train, &warm);
-	struct fit_origin o = { .F = &warm };
+	struct fit_origin o = { .F = &warm, .moves = s->all_moves };
 	sl->f = fit_new(s->h[fold].train, &q, warm.e ? &o : NULL);
 	sc->warm_from = warm.e ? w->from : 0;
 	fcsr_release(&warm);
@@ -693,7 +695,12 @@ static int shape_search(struct search *s, const struct graph *g, const struct se
 	 * whose pieces were joined, not on the climb's pieces (leaky planted
 	 * graphs: 2x10^4 nodes, 231 planted, 295 chosen without, 236 with;
 	 * 2x10^5, 2,374 planted, 1589 without, 2221 with; 10^6 8129 both
-	 * ways; DEVELOPERS.md, "-k auto on large graphs", session 9) */
+	 * ways; DEVELOPERS.md, "-k auto on large graphs", session 9). Below
+	 * SELECT_FINE_EDGES held-out edges every fit makes them, warm ones
+	 * too (all_moves): 10^4 nodes, 97 planted, 124 chosen (ONMI 0.65)
+	 * without, 88 (0.89-0.91) with; at 2x10^4 they cost 2.4x the search's
+	 * time for 211 instead of 236 and ONMI 0.820 against 0.815 (session
+	 * 11) */
 	w[0].moves = 1;
 	double r = sp->step * sp->step; /* two grid steps: one halving refines */
 	w[1] = want_of(clamp_k(k0 / r, kmin, top), 0, "bracket");
@@ -815,6 +822,7 @@ int select_k(const struct graph *g, const struct fit_params *base, const struct 
 		if (res->shape) {
 			s->keep = 1;
 			s->moves = !base->no_reseed;
+			s->all_moves = s->moves && s->h[0].nedges < SELECT_FINE_EDGES;
 			s->p.no_reseed = 1;
 			if (s->p.tol < SELECT_SHAPE_TOL)
 				s->p.tol = SELECT_SHAPE_TOL;

@@ -525,6 +525,11 @@ static enum fit_state reseed(struct fit *f)
 	return st;
 }
 
+enum fit_state fit_run_moves(struct fit *f)
+{
+	return reseed(f);
+}
+
 /* ---- the starts ---- */
 
 /* Start r (0-based) from a fresh seeding: 0 or -1. */

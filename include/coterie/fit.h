@@ -178,6 +178,10 @@ struct fit_origin {
 	 * quiet (F's, or the savepoint's start in progress when it was
 	 * climbing; sweep.h) */
 	const uint8_t *awake;
+	/* 0: go on as one start and stop at its plateau (a resume). 1: a
+	 * warm start (the fits of -k auto's search, select.c): after the
+	 * climb, the reseeding moves as after a start, unless p->no_reseed */
+	int moves;
 };
 
 struct fit;

@@ -45,8 +45,10 @@
  * k, until both gaps around the best are within one grid step (half of
  * one, ratio sqrt(step), when the split holds SELECT_FINE_EDGES held-out
  * edges or more). Its first fit (k0) makes the reseeding moves after its
- * climb, as the final fit does (unless base->no_reseed), the others skip
- * them; a fit below a k already tried starts from the fit of the nearest k
+ * climb, as the final fit does (unless base->no_reseed), and so does every
+ * other fit, warm ones too (fit_origin.moves), when the split holds fewer
+ * than SELECT_FINE_EDGES held-out edges; above, the others skip them (their
+ * cost); a fit below a k already tried starts from the fit of the nearest k
  * above it (same split: there is only one) with its weakest columns
  * dropped (select_warm.c), one above every k tried from seeds. Each point
  * says why it was tried (select_point.reason) and in which order (.order).
