@@ -105,9 +105,7 @@ struct fit {
 	enum fit_state best_state;
 	double best_loglik;
 	double best_score; /* what starts are compared by (starts.c); NAN: not yet scored */
-	/* each start's end as keep_best() judged it (starts entries; NAN for a
-	 * start not ended in this process, e.g. before a resume) */
-	double *start_loglik, *start_code;
+	struct start_end *start_ends; /* starts entries (keep_best()), or NULL for one start */
 	int in_starts;
 	const struct fit_part *climb;
 	/* l(F) after a reseeding move, recomputed (ll_moved set) */

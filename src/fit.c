@@ -99,8 +99,7 @@ void snapshot_release(struct snapshot *s)
 	agm_release(&s->agm);
 	fit_savepoint_free(s->savepoint);
 	free(s->awake);
-	free(s->start_loglik);
-	free(s->start_code);
+	free(s->start_ends);
 	free(s);
 }
 
@@ -113,7 +112,7 @@ struct snapshot *snapshot_copy(const struct snapshot *s)
 	c->refs_ = 1;
 	c->savepoint = NULL;
 	c->awake = NULL;
-	c->start_loglik = c->start_code = NULL; /* (run.json's record only) */
+	c->start_ends = NULL; /* (run.json's record only) */
 	c->trace = util_malloc(s->ntrace ? s->ntrace : 1, sizeof *c->trace);
 	memset(&c->F, 0, sizeof c->F);
 	memset(&c->agm, 0, sizeof c->agm);
@@ -158,18 +157,9 @@ static struct snapshot *snapshot_of_counters(struct fit *f, enum fit_state state
 		.seeds = f->seeds, .savepoint = f->res_out, .stats = f->stats,
 	};
 	f->res_out = NULL;
-	if (f->start_loglik) { /* run.json's record of the starts: left out without memory */
-		s->start_loglik = malloc(f->starts * sizeof *s->start_loglik);
-		s->start_code = malloc(f->starts * sizeof *s->start_code);
-		if (s->start_loglik && s->start_code) {
-			memcpy(s->start_loglik, f->start_loglik, f->starts * sizeof *s->start_loglik);
-			memcpy(s->start_code, f->start_code, f->starts * sizeof *s->start_code);
-		} else {
-			free(s->start_loglik);
-			free(s->start_code);
-			s->start_loglik = s->start_code = NULL;
-		}
-	}
+	/* run.json's record of the starts: left out without memory */
+	if (f->start_ends)
+		s->start_ends = util_memdup(f->start_ends, f->starts * sizeof *f->start_ends);
 	struct objective_counts c;
 	sweep_counts(f->sw, &c);
 	s->stats.rows = c.rows;
@@ -636,12 +626,10 @@ struct fit *fit_new(const struct graph *g, const struct fit_params *p,
 	f->starts = origin && !origin->savepoint ? 1 : f->p.starts;
 	f->start = 1;
 	if (f->starts > 1) {
-		f->start_loglik = util_malloc(f->starts, sizeof *f->start_loglik);
-		f->start_code = util_malloc(f->starts, sizeof *f->start_code);
-		if (!f->start_loglik || !f->start_code)
+		if (!(f->start_ends = util_malloc(f->starts, sizeof *f->start_ends)))
 			goto fail;
 		for (uint32_t r = 0; r < f->starts; r++)
-			f->start_loglik[r] = f->start_code[r] = NAN;
+			f->start_ends[r] = (struct start_end){ NAN, NAN };
 	}
 	fit_set_tol(f, f->p.tol);
 	atomic_init(&f->extend_by_req, -1);
@@ -874,8 +862,7 @@ void fit_free(struct fit *f)
 	fit_savepoint_free(f->res_in);
 	fit_savepoint_free(f->res_out);
 	fit_part_release(&f->best);
-	free(f->start_loglik);
-	free(f->start_code);
+	free(f->start_ends);
 	agm_release(&f->agm);
 	sweep_free(f->sw);
 	model_release(&f->m);

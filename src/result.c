@@ -58,8 +58,7 @@ void result_model_of(struct result_model *m, const struct snapshot *s)
 		.best_start = s->best_start,
 		.reseeds = s->reseeds,
 		.starts = s->starts,
-		.start_loglik = s->start_loglik,
-		.start_code = s->start_code,
+		.start_ends = s->start_ends,
 		.savepoint = s->savepoint,
 		/* a resume from the savepoint goes on with its start in
 		 * progress: a climbing one's flags; one whose moves ran makes

@@ -218,12 +218,12 @@ static json_t *j_params(const struct fit_params *p, const struct result_model *m
  * length of its cover, null where not known), null for one start. */
 static json_t *j_starts(const struct result_model *m, int *bad)
 {
-	if (!m->start_loglik || m->starts < 2)
+	if (!m->start_ends || m->starts < 2)
 		return json_null();
 	json_t *js = json_array();
 	for (uint32_t r = 0; js && r < m->starts; r++) {
 		json_t *jr = json_object();
-		double ll = m->start_loglik[r], code = m->start_code[r];
+		double ll = m->start_ends[r].loglik, code = m->start_ends[r].code;
 		jsonout_set(jr, "start", jsonout_uint(r + 1), bad);
 		jsonout_set(jr, "loglik", isnan(ll) ? json_null() : jsonout_real(ll), bad);
 		jsonout_set(jr, "code_length", isnan(code) ? json_null() : jsonout_real(code), bad);

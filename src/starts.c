@@ -211,40 +211,44 @@ static void keep_savepoint(struct fit *f)
 
 /* The score by which starts and moves are compared, higher better: for
  * BigCLAM minus the code length of the cover read from F as the output
- * reads it (agm_from_strengths_trimmed(), the graph the model is fitted
- * to), else ll, the model's l(F). F is not changed. 0, or -1 (no memory). */
-static int part_score(const struct fit *f, const struct fcsr *F, double ll, double *score)
+ * reads it (agm_from_strengths_trimmed(), which sets F's thresholds; the
+ * graph the model is fitted to), else ll, the model's l(F). 0, or -1
+ * (no memory). */
+static int cover_score(const struct fit *f, struct fcsr *F, double ll, double *score)
 {
 	if (f->p.model != MODEL_BIGCLAM) {
 		*score = ll;
 		return 0;
 	}
-	struct fcsr copy;
 	struct agm a;
 	memset(&a, 0, sizeof a);
-	if (fcsr_copy(&copy, F))
-		return -1;
-	int rc = agm_from_strengths_trimmed(&a, f->gw, &copy, f->m.epsilon, f->m.delta,
-					    AGM_MIN_LINKS);
-	fcsr_release(&copy);
-	if (rc)
+	if (agm_from_strengths_trimmed(&a, f->gw, F, f->m.epsilon, f->m.delta, AGM_MIN_LINKS))
 		return -1;
 	*score = -agm_code_length(&a, f->gw->n);
 	agm_release(&a);
 	return 0;
 }
 
-/* The score of the model as it stands: 0 or -1. */
+/* The score of the model as it stands (its strengths exported once; none
+ * for the models judged by l(F)), or of a saved part (copied: a savepoint's
+ * strengths are not changed): 0 or -1. */
 static int model_score(struct fit *f, double *score)
 {
 	double ll = f->trace[f->ntrace - 1].loglik;
-	if (f->p.model != MODEL_BIGCLAM) {
-		*score = ll;
-		return 0;
-	}
 	struct fcsr F;
 	memset(&F, 0, sizeof F);
-	int rc = model_export(&f->m, &F) || part_score(f, &F, ll, score) ? -1 : 0;
+	int rc = f->p.model == MODEL_BIGCLAM && model_export(&f->m, &F) ? -1
+		 : cover_score(f, &F, ll, score);
+	fcsr_release(&F);
+	return rc;
+}
+
+static int part_score(const struct fit *f, const struct fit_part *p, double ll, double *score)
+{
+	struct fcsr F;
+	memset(&F, 0, sizeof F);
+	int rc = f->p.model == MODEL_BIGCLAM && fcsr_copy(&F, &p->F) ? -1
+		 : cover_score(f, &F, ll, score);
 	fcsr_release(&F);
 	return rc;
 }
@@ -254,15 +258,14 @@ static int keep_best(struct fit *f, enum fit_state st)
 	double ll = f->trace[f->ntrace - 1].loglik, score = ll;
 	if (f->starts > 1) { /* one start is kept whatever its score */
 		if (f->best_start && isnan(f->best_score) &&
-		    part_score(f, &f->best.F, f->best_loglik, &f->best_score))
+		    part_score(f, &f->best, f->best_loglik, &f->best_score))
 			return -1; /* (the best start of a savepoint: scored once) */
 		if (model_score(f, &score))
 			return -1;
 	}
-	if (f->start_loglik) { /* run.json's record (fit_new(): several starts) */
-		f->start_loglik[f->start - 1] = ll;
-		f->start_code[f->start - 1] = f->p.model == MODEL_BIGCLAM ? -score : NAN;
-	}
+	if (f->start_ends) /* run.json's record (fit_new(): several starts) */
+		f->start_ends[f->start - 1] =
+			(struct start_end){ ll, f->p.model == MODEL_BIGCLAM ? -score : NAN };
 	if (f->best_start && !(score > f->best_score))
 		return 0;
 	fit_part_release(&f->best);

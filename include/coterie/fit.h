@@ -89,6 +89,13 @@ struct trace_point {
 
 /* Where the time went, for benchmarks (all starts and refinement moves
  * included; wall-clock seconds on the fitting thread). */
+/* How a start ended, as the starts were compared (run.json's record):
+ * its final l(F) and its cover's code length; NAN where unknown (a start
+ * not ended in this process, or a model not judged by code length). */
+struct start_end {
+	double loglik, code;
+};
+
 struct fit_stats {
 	double seed_seconds;    /* seeding */
 	double sweep_seconds;   /* sweeps: row updates, applying them, summing l(F) */
@@ -113,10 +120,7 @@ struct snapshot {
 	double best_loglik;      /* its final log-likelihood */
 	int best_by_code;        /* starts are compared by the code length of
 				  * their covers (BigCLAM), else by l(F) */
-	double *start_loglik;    /* owned; starts entries: each start's final
-				  * l(F) and its cover's code length (NAN: not
-				  * ended, or not judged by code), or NULL */
-	double *start_code;
+	struct start_end *start_ends; /* owned; starts entries (see below), or NULL */
 	uint32_t reseeds;        /* reseeding moves kept in this start */
 	enum fit_state state;
 	int plateau;             /* the plateau rule has fired */

@@ -105,7 +105,7 @@ struct result_model {
 	double seconds, epsilon, delta;
 	uint32_t best_start, reseeds;      /* for run.json */
 	uint32_t starts;                   /* and each start's end: */
-	const double *start_loglik, *start_code; /* NULL, or starts values (NAN: unknown) */
+	const struct start_end *start_ends; /* NULL, or starts entries */
 	const struct fit_savepoint *savepoint; /* NULL: the checkpoint has none */
 	const uint8_t *awake;              /* NULL, or g->n flags: where a resume's
 					    * first sweep goes on (fit_origin) */
