@@ -432,6 +432,100 @@ int agm_improve_p(const struct graph *g, const struct cover *c, double epsilon, 
 	return rc;
 }
 
+/* The background's coordinate of the joint maximum: qeps with q held.
+ * Every edge's Q holds qeps, every non-edge costs qeps, so
+ *     dL/dqeps = sum_edges w(Q_e) - (pairs - m),  w(Q) = 1/expm1(Q),
+ * a concave function of qeps; Newton steps with halvings that must rise.
+ * Q (ix->ne values) is kept in step. Returns the relative change. */
+static double newton_background(const struct index *ix, const struct cover *c, const double *q,
+				double nonedge, double *qeps, double *Q)
+{
+	double g = -nonedge, hs = 0.0, w, hterm;
+	if (ix->lonely) {
+		weights(*qeps, &w, &hterm);
+		g += (double)ix->lonely * w;
+		hs += (double)ix->lonely * hterm;
+	}
+	for (uint32_t i = 0; i < c->k; i++)
+		if (ix->solo[i]) {
+			weights(*qeps + q[i], &w, &hterm);
+			g += (double)ix->solo[i] * w;
+			hs += (double)ix->solo[i] * hterm;
+		}
+	for (uint64_t e = 0; e < ix->ne; e++) {
+		weights(Q[e], &w, &hterm);
+		g += w;
+		hs += hterm;
+	}
+	double target = hs > 0.0 && isfinite(hs) && isfinite(g) ? *qeps + g / hs :
+			g > 0.0 ? AGM_QMAX : AGM_QLO;
+	if (!(target >= AGM_QLO))
+		target = AGM_QLO;
+	if (target > AGM_QMAX)
+		target = AGM_QMAX;
+	double dq = target - *qeps;
+	for (int h = 0; h < AGM_HALVINGS && dq != 0.0; h++) {
+		/* the rise of L, each edge's term log(1 - e^{-Q}) moved by dq */
+		double rise = -dq * nonedge;
+		if (ix->lonely)
+			rise += (double)ix->lonely * (log1mexp(*qeps + dq) - log1mexp(*qeps));
+		for (uint32_t i = 0; i < c->k; i++)
+			if (ix->solo[i])
+				rise += (double)ix->solo[i] *
+					(log1mexp(*qeps + q[i] + dq) - log1mexp(*qeps + q[i]));
+		for (uint64_t e = 0; e < ix->ne; e++)
+			rise += log1mexp(Q[e] + dq) - log1mexp(Q[e]);
+		if (rise > 0.0) {
+			*qeps += dq;
+			for (uint64_t e = 0; e < ix->ne; e++)
+				Q[e] += dq;
+			return fabs(dq) / fmax(*qeps, AGM_QLO);
+		}
+		dq *= 0.5;
+	}
+	return 0.0;
+}
+
+int agm_fit_background(const struct graph *g, const struct cover *c, double *epsilon,
+		       double *loglik)
+{
+	struct index ix;
+	if (check_input(g, c, *epsilon) < 0 || index_build(&ix, g, c) < 0)
+		return -1;
+	double *q = util_malloc(c->k ? c->k : 1, sizeof *q);
+	double *Q = util_malloc(ix.ne ? (size_t)ix.ne : 1, sizeof *Q);
+	int rc = -1;
+	if (!q || !Q)
+		goto out;
+	uint64_t n = ix.n, n2 = n < 2 ? 0 : n * (n - 1) / 2;
+	double nonedge = (double)(n2 - g->m), qeps = model_qeps(*epsilon);
+	if (qeps < AGM_QLO)
+		qeps = AGM_QLO;
+	if (estimate_q(&ix, c, qeps, q, 0) < 0)
+		goto out;
+	for (int pass = 0; pass < AGM_PASSES; pass++) {
+		for (uint64_t e = 0; e < ix.ne; e++) {
+			double x = qeps;
+			for (uint64_t j = ix.eoff[e]; j < ix.eoff[e + 1]; j++)
+				x += q[ix.ecom[j]];
+			Q[e] = x;
+		}
+		double moved = newton_background(&ix, c, q, nonedge, &qeps, Q);
+		if (estimate_q(&ix, c, qeps, q, 1) < 0)
+			goto out;
+		if (moved < AGM_RELTOL)
+			break;
+	}
+	*epsilon = -expm1(-qeps);
+	*loglik = loglik_index(&ix, c, q, qeps, g->m);
+	rc = 0;
+out:
+	free(q);
+	free(Q);
+	index_release(&ix);
+	return rc;
+}
+
 /* ln Gamma(x) for x > 0; lgamma_r: lgamma() writes the global signgam,
  * a race between the threads of -k auto and --repeats */
 static double ln_gamma(double x)
@@ -442,10 +536,15 @@ static double ln_gamma(double x)
 
 double agm_code_length(const struct agm *a, uint32_t n)
 {
+	return agm_code_length_of(&a->cover, a->loglik, n);
+}
+
+double agm_code_length_of(const struct cover *c, double loglik, uint32_t n)
+{
 	/* ln C(n, s) from ln Gamma: relative error near 1e-15 at any size */
-	double nats = -a->loglik, ln_n = ln_gamma((double)n + 1.0);
-	for (uint32_t i = 0; i < a->cover.k; i++) {
-		double s = (double)a->comms[i].size;
+	double nats = -loglik, ln_n = ln_gamma((double)n + 1.0);
+	for (uint32_t i = 0; i < c->k; i++) {
+		double s = (double)cover_size(c, i);
 		if (s > 0 && s < n)
 			nats += ln_n - ln_gamma(s + 1.0) - ln_gamma((double)n - s + 1.0);
 	}

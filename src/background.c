@@ -1,14 +1,14 @@
 /*
- * background: the coverage guard that chooses epsilon on small graphs
- * (the rule and why it is not a likelihood: background.h).
+ * background: the search that chooses epsilon on small graphs (the two
+ * rules, the code length and the coverage guard: background.h).
  *
  * Each candidate is a whole fit (same k, seed, starts and threads as the
  * fit that follows, but stopped at the default plateau at the latest:
  * --tol 0 or --past-plateau are for the fit the user keeps, and would make
  * every trial run to --max-sweeps). Candidates go from the density
- * down and the search stops at the first that covers enough: on most
- * graphs that is the first. The share is of the nodes with a link, since
- * an isolated node is in no community whatever epsilon is.
+ * down; the coverage guard stops at the first that covers enough, the
+ * code length fits them all. The share is of the nodes with a link,
+ * since an isolated node is in no community whatever epsilon is.
  *
  * The one thing a newcomer gets wrong: the candidates are multiples of the
  * density, never absolute values; the density is the whole graph's, the
@@ -16,9 +16,11 @@
  */
 #include "coterie/background.h"
 
+#include <math.h>
 #include <string.h>
 #include <time.h>
 
+#include "coterie/agm.h"
 #include "coterie/fit.h"
 #include "coterie/graph.h"
 #include "coterie/model.h"
@@ -41,13 +43,16 @@ const char *background_rule_name(enum background_rule r)
 		return "density";
 	case BACKGROUND_COVERAGE:
 		return "coverage";
+	case BACKGROUND_CODE:
+		return "code";
 	}
 	return "?";
 }
 
-/* Fit at epsilon and fill in c. Returns 0, -1 (reported) or -2 (stopped). */
+/* Fit at epsilon and fill in c; with code, also the cover's own background
+ * and code length. Returns 0, -1 (reported) or -2 (stopped). */
 static int fit_candidate(const struct graph *g, const struct fit_params *p, double multiple,
-			 double density, int (*stop)(void *), void *arg,
+			 double density, int code, int (*stop)(void *), void *arg,
 			 struct background_candidate *c)
 {
 	struct fit_params q = *p;
@@ -94,8 +99,17 @@ static int fit_candidate(const struct graph *g, const struct fit_params *p, doub
 			.agm_loglik = s->agm.loglik,
 			.sweeps = s->sweep,
 			.seconds = s->seconds,
+			.background = NAN,
+			.code_length = NAN,
 		};
 		rc = 0;
+		double eps = q.epsilon, ll;
+		if (code && agm_fit_background(g, &s->agm.cover, &eps, &ll) == 0) {
+			c->background = eps;
+			c->code_length = agm_code_length_of(&s->agm.cover, ll, g->n);
+		} else if (code) {
+			rc = -1;
+		}
 	}
 	snapshot_release(s);
 	fit_free(f);
@@ -119,20 +133,41 @@ int background_choose(const struct graph *g, const struct fit_params *p, int (*s
 	out->epsilon = out->density;
 	if (g->m >= BACKGROUND_MAX_EDGES || out->linked == 0)
 		return 0;
-	out->rule = BACKGROUND_COVERAGE;
-	double need = BACKGROUND_COVER * out->linked;
+	double need = BACKGROUND_COVER * out->linked, enough = BACKGROUND_THIN * out->linked;
+	int code = p->model == MODEL_BIGCLAM; /* the other models have no code length */
+	out->rule = code ? BACKGROUND_CODE : BACKGROUND_COVERAGE;
 	uint32_t best = 0;
+	int admitted = 0; /* rule code: a candidate that is not thin was seen */
 	for (uint32_t i = 0; i < BACKGROUND_MAX_CAND; i++) {
 		if (stop && stop(arg))
 			return -2;
-		int rc = fit_candidate(g, p, multiples[i], out->density, stop, arg, &out->cand[i]);
+		int rc = fit_candidate(g, p, multiples[i], out->density, code, stop, arg,
+				       &out->cand[i]);
 		if (rc)
 			return rc;
 		out->ncand = i + 1;
-		if (out->cand[i].covered > out->cand[best].covered)
+		const struct background_candidate *c = &out->cand[i], *b = &out->cand[best];
+		if (code) {
+			/* the shortest code among the covers holding the share
+			 * wanted: half of the linked nodes, or BACKGROUND_COVER
+			 * when the density's cover is thin; while none does, the
+			 * one that covers most */
+			if (i == 0 && c->covered < enough)
+				enough = need;
+			if (c->covered >= enough) {
+				if (!admitted || c->code_length < b->code_length)
+					best = i;
+				admitted = 1;
+			} else if (!admitted && c->covered > b->covered) {
+				best = i;
+			}
+			continue;
+		}
+		if (i == 0 && c->covered >= enough)
+			break; /* not thin: the density */
+		if (c->covered > b->covered)
 			best = i;
-		if (out->cand[i].covered >= need ||
-		    (i == 0 && out->cand[0].covered >= BACKGROUND_THIN * out->linked)) {
+		if (c->covered >= need) {
 			best = i;
 			break;
 		}

@@ -115,7 +115,7 @@ static json_t *j_warnings(const struct graph *g, const struct result_model *m,
 }
 
 /* run.json's background: how epsilon was chosen, and the candidates the
- * coverage guard fitted (background.h). */
+ * search fitted (background.h). */
 static json_t *j_background(const struct background_choice *b)
 {
 	int bad = 0;
@@ -141,6 +141,8 @@ static json_t *j_background(const struct background_choice *b)
 		jsonout_set(e, "agm_loglik", jsonout_real(c->agm_loglik), &bad);
 		jsonout_set(e, "sweeps", jsonout_uint(c->sweeps), &bad);
 		jsonout_set(e, "seconds", jsonout_real(c->seconds), &bad);
+		jsonout_set(e, "cover_background", jsonout_real(c->background), &bad);
+		jsonout_set(e, "code_length", jsonout_real(c->code_length), &bad);
 		jsonout_append(a, e, &bad);
 	}
 	jsonout_set(o, "candidates", a, &bad);

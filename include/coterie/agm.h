@@ -146,6 +146,19 @@ double agm_loglik(const struct graph *g, const struct cover *c, const double *p,
  * the log-likelihood alone it does not reward a cover for holding more
  * memberships than its links pay for. +INFINITY when a->loglik is. */
 double agm_code_length(const struct agm *a, uint32_t n);
+/* The same code for cover c (cover_size() of each community) given the
+ * AGM log-likelihood loglik of the graph under it. */
+double agm_code_length_of(const struct cover *c, double loglik, uint32_t n);
+/* The AGM's background fitted with the cover: epsilon and every p_c at
+ * their joint maximum likelihood, memberships held (cyclic coordinate
+ * steps: Newton on qeps = -ln(1 - epsilon), whose derivative is
+ * sum_edges 1/expm1(Q_e) - (n(n-1)/2 - m), then p by agm_estimate_p's
+ * steps; L is concave in (qeps, q) and every step rises). *epsilon is the
+ * start on entry and the estimate on return; *loglik gets the maximum.
+ * Without overlaps it is the share of linked pairs among the pairs that
+ * share no community (the p_c absorb the rest). 0 or -1 (reported). */
+int agm_fit_background(const struct graph *g, const struct cover *c, double *epsilon,
+		       double *loglik);
 
 /* A deep copy of src into dst (all owned by dst). Returns 0 or -1. */
 int agm_copy(struct agm *dst, const struct agm *src);

@@ -2,29 +2,32 @@
  * background: choosing the background probability epsilon of a fit.
  *
  * The default epsilon is the graph's density, and the membership
- * threshold follows from it (delta = sqrt(-ln(1 - epsilon))). On a small
- * dense graph with hubs that leaves most nodes in no community: the
- * relaxed fit gives hubs large strengths and low-degree members fall
- * under delta (karate at the density: 8 of 34 nodes covered). No
- * likelihood measured picks a better epsilon there (DEVELOPERS.md, "The
- * background"): the relaxed likelihood always prefers a smaller one, the
- * AGM likelihood and the held-out pairs prefer covers of dense cores, and
- * they fail in opposite directions on karate and football.
+ * threshold follows from it (delta = sqrt(-ln(1 - epsilon))). On a graph
+ * below BACKGROUND_MAX_EDGES edges a search chooses it; a larger graph
+ * keeps the density (its own fit says when few nodes are covered), and
+ * --epsilon skips all of this. The search fits at the density first.
  *
- * So the choice is a rule of ours, a coverage guard, and it is said to be
- * one: on a graph below BACKGROUND_MAX_EDGES edges, fit at the density;
- * if that cover holds at least BACKGROUND_THIN of the nodes with a link,
- * keep the density. Otherwise (the answer is thin) fit at the density
- * times 0.7, 0.5, 0.3, 0.2, 0.1, 0.05, 0.03, 0.01 and 0.001 in turn and
- * keep the first (largest) epsilon whose cover has at least
- * BACKGROUND_COVER of the linked nodes; if none does, the one that covers
- * most (the larger on a tie). Why two thresholds: where the density
- * leaves most nodes out, the known groups of the graphs we measured cover
- * every node (karate, polbooks); where it covers most, the uncovered nodes
- * are often truly in no group (the town sample: 204 of 320 covered at the
- * density, 207 in a group; pushing to 90% drops its ONMI from 0.86 to
- * 0.54). A larger graph keeps the density without a search (its own fit
- * says when few nodes are covered). --epsilon skips all of this.
+ * When that cover holds at least BACKGROUND_THIN of the nodes with a link,
+ * the rule is the code length (BigCLAM): it also fits at the density
+ * times 0.7, 0.5, 0.3, 0.2, 0.1, 0.05, 0.03, 0.01 and 0.001, reads each
+ * fit's cover, fits the AGM's background to it (agm_fit_background():
+ * epsilon and the p_c at their joint maximum likelihood, memberships
+ * held) and keeps the epsilon whose cover has the shortest code length
+ * there (agm_code_length_of(): minimum description length, Rissanen
+ * 1978; the first on a tie). So the fits' epsilon is a search device and
+ * the covers are judged at their own maximum-likelihood background, not
+ * at the epsilon they were fitted with (at the density a cover explains
+ * its outside links badly, whatever the cover). The weighted and
+ * two-sided models, which have no code length, keep the density there.
+ *
+ * When the density's cover is thin (most nodes out: karate at the density
+ * covers 8 of 34), the rule is a coverage guard of ours, said to be one:
+ * the same multiples in turn, keeping the first (largest) epsilon whose
+ * cover has at least BACKGROUND_COVER of the linked nodes (if none does,
+ * the one that covers most, the larger on a tie). Not the code length
+ * there: measured on karate and polbooks, it prefers covers of their
+ * dense cores (karate: 10 of 34 nodes covered), and their known groups
+ * cover every node (DEVELOPERS.md, "The background").
  */
 #ifndef COTERIE_BACKGROUND_H
 #define COTERIE_BACKGROUND_H
@@ -42,7 +45,8 @@ struct fit_params;
 enum background_rule {
 	BACKGROUND_GIVEN = 0, /* --epsilon */
 	BACKGROUND_DENSITY,   /* the density, no search (a large graph, or a resume) */
-	BACKGROUND_COVERAGE,  /* the coverage guard chose it */
+	BACKGROUND_COVERAGE,  /* the coverage guard chose it (a thin cover at the density) */
+	BACKGROUND_CODE,      /* the shortest code length chose it */
 };
 
 struct background_candidate {
@@ -53,6 +57,8 @@ struct background_candidate {
 	double agm_loglik; /* the AGM log-likelihood of its cover */
 	uint32_t sweeps;
 	double seconds;
+	double background;  /* rule code: the cover's own maximum-likelihood epsilon */
+	double code_length; /* rule code: its code length there, nats (else NAN) */
 };
 
 struct background_choice {
@@ -61,11 +67,11 @@ struct background_choice {
 	double epsilon;   /* the choice */
 	uint32_t linked;  /* nodes with at least one link */
 	uint32_t ncand;
-	uint32_t chosen;  /* the candidate kept (rule coverage) */
+	uint32_t chosen;  /* the candidate kept (rules coverage and code) */
 	struct background_candidate cand[BACKGROUND_MAX_CAND];
 };
 
-/* The rule's name for run.json: "given", "density" or "coverage". */
+/* The rule's name for run.json: "given", "density", "coverage" or "code". */
 const char *background_rule_name(enum background_rule r);
 
 /*

@@ -97,8 +97,9 @@ static void fit_usage(FILE *out)
 		"                        (not with --weighted, --directed, --two-mode)\n"
 		"      --refine-rounds N at most N rounds of refinement (default 50)\n"
 		"      --epsilon X       background link probability (default: the density;\n"
-		"                        below 20000 edges, when it leaves most nodes out,\n"
-		"                        the largest multiple of it whose cover holds 90%%)\n"
+		"                        below 20000 edges, the multiple of it whose cover has\n"
+		"                        the shortest code length among those holding half\n"
+		"                        of the linked nodes, 90%% if the density's holds less)\n"
 		"      --format F        edges, gml, graphml or pajek (default: by extension)\n"
 		"      --skip-lines N    edge lists: skip the first N lines (then no header is guessed)\n"
 		"      --no-header       edge lists: the first line is an edge, never a header\n"
@@ -387,15 +388,16 @@ static int load_resume(struct run *r)
 }
 
 /* The background of a new fit (background.h): given, the density, or
- * chosen by the coverage guard on a small graph. Returns 0 or -1. */
+ * chosen by the search on a small graph. Returns 0 or -1. */
 static int choose_background(struct run *r)
 {
 	struct fit_params *p = &r->p;
 	int searches = !(p->epsilon > 0.0) && r->g->m < BACKGROUND_MAX_EDGES;
 	if (searches && !r->quiet)
-		notice("choosing the background epsilon: the density (%.4g) unless it leaves "
-		       "%.0f%% of the linked nodes out, then the largest multiple of it whose "
-		       "cover holds %.0f%% (see --epsilon)", model_default_epsilon(r->g),
+		notice("choosing the background epsilon: fits at the density (%.4g) and below it; "
+		       "the cover with the shortest code at its own background is kept, or, when "
+		       "the density leaves %.0f%% of the linked nodes out, the first that holds "
+		       "%.0f%% (see --epsilon)", model_default_epsilon(r->g),
 		       100.0 * (1.0 - BACKGROUND_THIN), 100.0 * BACKGROUND_COVER);
 	int rc = background_choose(r->g, p, stop_asked, &r->quiet, &r->bg);
 	if (rc == -2)
@@ -403,13 +405,14 @@ static int choose_background(struct run *r)
 	if (rc)
 		return -1;
 	r->have_bg = 1;
-	if (r->bg.rule == BACKGROUND_COVERAGE) {
+	if (r->bg.rule == BACKGROUND_COVERAGE || r->bg.rule == BACKGROUND_CODE) {
 		p->epsilon = r->bg.epsilon;
 		if (!r->quiet) {
 			const struct background_candidate *c = &r->bg.cand[r->bg.chosen];
-			notice("epsilon %.4g (%g x the density): %u of %u linked nodes covered "
+			notice("epsilon %.4g (%g x the density, %s): %u of %u linked nodes covered "
 			       "after %u trial fit%s; the trials are in run.json", c->epsilon,
-			       c->multiple, c->covered, r->bg.linked, r->bg.ncand,
+			       c->multiple, r->bg.rule == BACKGROUND_CODE ? "the shortest code" :
+			       "the coverage guard", c->covered, r->bg.linked, r->bg.ncand,
 			       r->bg.ncand == 1 ? "" : "s");
 		}
 	}

@@ -62,12 +62,12 @@ def main():
     run = json.load(open(out + "/run.json"))
 
     # DESIGN.md "Background and threshold": epsilon defaults to the density,
-    # or below 20000 edges to the multiple of it the coverage guard chose
+    # or below 20000 edges to the multiple of it the search chose (code length or coverage)
     # (man/coterie.1, --epsilon; run.json's background).
     density = 2.0 * m / (n * (n - 1))
     bg = run.get("background") or {"rule": "density"}
     eps = density
-    if bg["rule"] == "coverage":
+    if bg["rule"] in ("coverage", "code"):
         report(close(bg["density"], density, 1e-12),
                "run.json background.density %.10g is 2*%d/(%d*%d) = %.10g"
                % (bg["density"], m, n, n - 1, density))

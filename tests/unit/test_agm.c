@@ -96,6 +96,71 @@ static void test_code_length_matches_hand_computed_example(void **state)
 }
 
 /*
+ * The background fitted with the cover, worked by hand. n = 8,
+ * A = {0,1,2,3} with 4 of its 6 pairs linked (0-1 0-2 1-2 2-3),
+ * B = {4,5,6,7} with 3 of 6 (4-5 5-6 6-7), and 2 of the 16 pairs between
+ * them linked (0-4 3-7). No pair shares two communities, so the p_c absorb
+ * their pairs and the background is the share of linked pairs among the
+ * 28 - 6 - 6 = 16 pairs sharing nothing: epsilon = 2/16 = 1/8. Then
+ * 1 - (7/8)(1 - p_A) = 4/6 gives p_A = 13/21 and 1 - (7/8)(1 - p_B) = 3/6
+ * gives p_B = 3/7, and
+ *   L = 2 ln(1/8) + 14 ln(7/8)     (the 16 pairs between)
+ *     + 4 ln(2/3) + 2 ln(1/3)      (A's pairs at 4/6)
+ *     + 6 ln(1/2)                  (B's pairs at 3/6)
+ *     = -4.1588830834 - 1.8694394967 - 1.6218604324 - 2.1972245773
+ *       - 4.1588830834 = -14.0062906732;
+ * the code length adds ln C(8, 4) twice: 2 ln 70 = 8.4969904841, 22.5032811573.
+ */
+static void test_background_fitted_matches_hand_computed_example(void **state)
+{
+	(void)state;
+	static const uint32_t edges[] = { 0, 1, 0, 2, 1, 2, 2, 3, 4, 5, 5, 6, 6, 7, 0, 4, 3, 7 };
+	static const uint32_t sizes[] = { 4, 4 };
+	static const uint32_t members[] = { 0, 1, 2, 3, 4, 5, 6, 7 };
+	struct graph *g = make_graph(8, edges, 9);
+	struct cover c;
+	make_cover(&c, 8, 2, sizes, members);
+	double eps = 0.3, ll = 0.0; /* any start */
+	assert_int_equal(agm_fit_background(g, &c, &eps, &ll), 0);
+	assert_true(fabs(eps - 0.125) < 1e-9);
+	assert_true(fabs(ll - -14.0062906732) < 1e-8);
+	assert_true(fabs(agm_code_length_of(&c, ll, 8) - 22.5032811573) < 1e-8);
+	double p[2];
+	assert_int_equal(agm_estimate_p(g, &c, eps, p), 0);
+	assert_true(fabs(p[0] - 13.0 / 21.0) < 1e-8 && fabs(p[1] - 3.0 / 7.0) < 1e-8);
+	cover_release(&c);
+	graph_free(g);
+}
+
+/*
+ * With overlapping pairs there is no closed form; the answer must be the
+ * joint maximum: on the worked example above (A and B share 2-3), the
+ * profile log-likelihood (p re-estimated at a fixed epsilon) falls on both
+ * sides of the fitted epsilon, and equals the joint maximum there.
+ */
+static void test_background_fitted_is_the_profile_maximum(void **state)
+{
+	(void)state;
+	struct graph *g = make_graph(5, ex_edges, 6);
+	struct cover c;
+	make_cover(&c, 5, 2, ex_sizes, ex_members);
+	double eps = 0.01, ll = 0.0;
+	assert_int_equal(agm_fit_background(g, &c, &eps, &ll), 0);
+	assert_true(eps > 0.0 && eps < 1.0);
+	struct agm at, lo, hi;
+	assert_int_equal(agm_from_cover(&at, g, &c, eps), 0);
+	assert_int_equal(agm_from_cover(&lo, g, &c, eps * 0.98), 0);
+	assert_int_equal(agm_from_cover(&hi, g, &c, eps * 1.02), 0);
+	assert_true(fabs(at.loglik - ll) < 1e-7);
+	assert_true(lo.loglik < ll && hi.loglik < ll);
+	agm_release(&at);
+	agm_release(&lo);
+	agm_release(&hi);
+	cover_release(&c);
+	graph_free(g);
+}
+
+/*
  * Closed form without overlapping pairs. If every pair shares at most one
  * community, L splits into one function per community:
  *     L_c(q) = m_c log(1 - exp(-(q + qeps))) - (pairs_c - m_c)(q + qeps) + const.
@@ -832,6 +897,8 @@ int main(void)
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_loglik_matches_hand_computed_example),
 		cmocka_unit_test(test_code_length_matches_hand_computed_example),
+		cmocka_unit_test(test_background_fitted_matches_hand_computed_example),
+		cmocka_unit_test(test_background_fitted_is_the_profile_maximum),
 		cmocka_unit_test(test_p_closed_form_without_background),
 		cmocka_unit_test(test_p_closed_form_with_background),
 		cmocka_unit_test(test_p_is_a_maximum_with_overlaps),

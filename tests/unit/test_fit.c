@@ -249,7 +249,7 @@ static void test_resume_continues_from_the_saved_state(void **state)
 	struct snapshot *half = fit_snapshot(f);
 	fit_free(f);
 	struct fit_origin o = { &half->F, half->trace, half->ntrace, half->sweep, half->seconds, 0, NULL,
-				half->awake };
+				half->awake, 0 };
 	p.max_sweeps = 20;
 	f = fit_new(g, &p, &o);
 	assert_non_null(f);
