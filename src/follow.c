@@ -318,12 +318,30 @@ static int remove_in(const char *dir, const char *name)
 	return rc;
 }
 
+/* Whether the empty request file has been empty for REQUEST_EMPTY_GRACE
+ * seconds (by its modification time; 1 when it cannot be told). A shell's
+ * `echo stop > FILE` creates the file empty and writes it a moment later:
+ * taken in between, the request would be lost and the writer not told. */
+#define REQUEST_EMPTY_GRACE 5.0
+static int empty_for_long(const char *dir)
+{
+	char *path = atomicfile_path(dir, FOLLOW_REQUEST);
+	struct stat st;
+	int rc = !path || lstat(path, &st) != 0 ||
+		 wall_now() - ((double)st.st_mtim.tv_sec + 1e-9 * (double)st.st_mtim.tv_nsec) >=
+			 REQUEST_EMPTY_GRACE;
+	free(path);
+	return rc;
+}
+
 enum follow_request follow_request_take(const char *dir)
 {
 	char buf[FOLLOW_REQUEST_MAX + 1], esc[FOLLOW_REQUEST_MAX * 4 + 8];
 	long n = slurp(dir, FOLLOW_REQUEST, buf, sizeof buf);
 	if (n == -2)
 		return FOLLOW_NONE;
+	if (n == 0 && !empty_for_long(dir))
+		return FOLLOW_NONE; /* `echo stop > FILE` between its open and its write */
 	remove_in(dir, FOLLOW_REQUEST); /* taken, or not a request: either way gone */
 	if (n >= 0) {
 		/* one word, optionally with a line end (echo) and blanks */

@@ -51,7 +51,12 @@ static json_t *j_selection(const struct select_result *sel)
 	jsonout_set(o, "held_out_edges", jsonout_uint(sel->held_edges), &bad);
 	jsonout_set(o, "held_out_non_edges", jsonout_uint(sel->held_non_edges), &bad);
 	jsonout_set(o, "folds", jsonout_uint(sel->folds), &bad);
-	jsonout_set(o, "rule", json_string("the highest mean over the folds"), &bad);
+	jsonout_set(o, "rule", json_string(sel->folds > 1 ? "the smallest k within one standard "
+					   "error of the highest mean over the folds" :
+					   "the highest held-out score"), &bad);
+	jsonout_set(o, "highest_mean_k", jsonout_uint(sel->best_mean), &bad);
+	jsonout_set(o, "standard_error", sel->folds > 1 ? jsonout_real(sel->se) : json_null(),
+		    &bad);
 	jsonout_set(o, "extended", sel->extended ? json_string(sel->extended > 0 ? "up" : "down") :
 		    json_null(), &bad);
 	jsonout_set(o, "extension_bound", sel->extended > 0 ? jsonout_uint(sel->bound) :

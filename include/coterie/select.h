@@ -187,7 +187,13 @@ struct select_hooks {
 };
 
 struct select_result {
-	uint32_t best;                    /* the chosen k */
+	uint32_t best;                    /* the chosen k: with several folds
+					   * the smallest k within one standard
+					   * error of the highest mean (select.c,
+					   * one_se()), else the highest score */
+	uint32_t best_mean;               /* the k of the highest mean */
+	double se;                        /* with several folds: that point's
+					   * standard error, sd / sqrt(folds) */
 	uint32_t ngrid;                   /* the grid asked for */
 	uint32_t grid[SELECT_MAX_GRID];
 	struct select_point *pts;         /* npts points scored, increasing k

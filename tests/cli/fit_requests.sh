@@ -76,6 +76,14 @@ check "save: checkpoint.partial.cot appears" [ -s "$d/checkpoint.partial.cot" ]
 # any machine; a paused fit asked to stop ends the sweep it was in
 printf 'pause\n' >"$d/.coterie.request"
 check "pause again" wait_for_grep 'paused, as asked through' "$tmp/err" 20 2
+# a shell's `echo stop > FILE` creates the file empty and writes it a moment
+# later; an empty request younger than 5 s is left for the next check, not
+# taken (and lost) in between
+: >"$d/.coterie.request"
+sleep 1.5
+check "an empty request file, just made, is left alone" [ -e "$d/.coterie.request" ]
+check "... and not called a bad request" sh -c '! grep -q "is no request (stop" "$1" ||
+	[ "$(grep -c "is no request (stop" "$1")" -eq 1 ]' sh "$tmp/err"
 printf 'stop\n' >"$d/.coterie.request"
 wait $pid
 rc=$?

@@ -701,12 +701,12 @@ static void test_k_selection_and_link_check_are_recorded(void **state)
 	sel.held_edges = 7;
 	sel.held_non_edges = 7;
 	struct result_links links = { 0.2, 14, 13, -30.5, 0.875 };
-	/* a made-up coverage search of two trials (values chosen here) */
+	/* a made-up search of two trials (values chosen here) */
 	struct background_choice bg = {
-		.rule = BACKGROUND_COVERAGE, .density = 0.25, .epsilon = 0.175, .linked = 8,
+		.rule = BACKGROUND_CODE, .density = 0.25, .epsilon = 0.175, .linked = 8,
 		.ncand = 2,
-		.cand = { { 1.0, 0.25, 3, -50.5, -60.25, 12, 0.5 },
-			  { 0.7, 0.175, 8, -48.0, -61.0, 15, 0.75 } },
+		.cand = { { 1.0, 0.25, 3, -50.5, -60.25, 12, 0.5, 0.125, 70.5 },
+			  { 0.7, 0.175, 8, -48.0, -61.0, 15, 0.75, 0.0625, NAN } },
 	};
 	struct result_meta meta = fx.meta;
 	meta.k_auto = 1;
@@ -746,9 +746,10 @@ static void test_k_selection_and_link_check_are_recorded(void **state)
 	json_t *ks = get(root, "k_selection", NULL);
 	static const char *const kkeys[] = { "criterion", "chosen", "grid", "held_out_share",
 					     "held_out_edges", "held_out_non_edges", "folds", "rule",
+					     "highest_mean_k", "standard_error",
 					     "extended", "extension_bound", "chosen_at_edge",
 					     "search", "start", "scores" };
-	assert_keys(ks, kkeys, 14);
+	assert_keys(ks, kkeys, 16);
 	assert_int_equal(json_integer_value(get(root, "k_selection", "chosen")), 4);
 	json_t *grid = get(root, "k_selection", "grid");
 	assert_int_equal(json_array_size(grid), 4);
@@ -772,13 +773,17 @@ static void test_k_selection_and_link_check_are_recorded(void **state)
 	static const char *const bkeys[] = { "rule", "epsilon", "density", "linked_nodes",
 					     "thin_share", "cover_share_wanted", "candidates" };
 	assert_keys(get(root, "background", NULL), bkeys, 7);
-	assert_string_equal(json_string_value(get(root, "background", "rule")), "coverage");
+	assert_string_equal(json_string_value(get(root, "background", "rule")), "code");
 	assert_true(json_real_value(get(root, "background", "epsilon")) == 0.175);
 	json_t *cands = get(root, "background", "candidates");
 	assert_int_equal(json_array_size(cands), 2);
 	static const char *const ckeys[] = { "multiple", "epsilon", "covered", "loglik",
-					     "agm_loglik", "sweeps", "seconds" };
-	assert_keys(json_array_get(cands, 1), ckeys, 7);
+					     "agm_loglik", "sweeps", "seconds",
+					     "cover_background", "code_length" };
+	assert_keys(json_array_get(cands, 1), ckeys, 9);
+	assert_true(json_real_value(json_object_get(json_array_get(cands, 0), "code_length")) ==
+		    70.5);
+	assert_true(json_is_null(json_object_get(json_array_get(cands, 1), "code_length")));
 	assert_int_equal(json_integer_value(json_object_get(json_array_get(cands, 1), "covered")),
 			 8);
 	assert_true(json_real_value(get(root, "link_check", "heldout_auc")) == 0.875);
