@@ -3,9 +3,10 @@
  * rules, the code length and the coverage guard: background.h).
  *
  * Each candidate is a whole fit (same k, seed, starts and threads as the
- * fit that follows, but stopped at the default plateau at the latest:
- * --tol 0 or --past-plateau are for the fit the user keeps, and would make
- * every trial run to --max-sweeps). Candidates go from the density
+ * fit that follows, but stopped at the default plateau at the latest and
+ * at TRIAL_MAX_SWEEPS whatever --max-sweeps says: --tol 0 or
+ * --past-plateau are for the fit the user keeps, and would make every
+ * trial run to the limit). Candidates go from the density
  * down; the coverage guard stops at the first that covers enough, the
  * code length fits them all. The share is of the nodes with a link,
  * since an isolated node is in no community whatever epsilon is.
@@ -62,8 +63,10 @@ static int fit_candidate(const struct graph *g, const struct fit_params *p, doub
 	q.past_plateau = 0;
 	if (q.tol < TRIAL_TOL)
 		q.tol = TRIAL_TOL;
-	if (q.max_sweeps > TRIAL_MAX_SWEEPS)
-		q.max_sweeps = TRIAL_MAX_SWEEPS;
+	/* whatever --max-sweeps asks of the fit that follows: the choice must
+	 * not depend on how long that fit runs (a fit of 5 sweeps resumed to
+	 * 10 must equal a fit of 10) */
+	q.max_sweeps = TRIAL_MAX_SWEEPS;
 	struct fit *f = fit_new(g, &q, NULL);
 	if (!f)
 		return -1;

@@ -35,8 +35,22 @@ check "run.json k_selection.grid is 6 8 9 12 15 16" \
 	[ "$(json_get "$tmp/a/run.json" k_selection.grid)" = "[6, 8, 9, 12, 15, 16]" ]
 check "every AUC is a probability" \
 	awk -F'\t' 'NR > 1 && !($3 >= 0 && $3 <= 1) { bad = 1 } END { exit bad }' "$sel"
-check "the chosen k has the highest held-out log-likelihood" \
-	awk -F'\t' 'NR > 1 { if (best == "" || $2 > best) { best = $2; k = $1 } } END { exit !(k == '"${chosen:-0}"') }' "$sel"
+# the one-standard-error rule (Breiman, Friedman, Olshen & Stone 1984,
+# sec. 3.4.3), recomputed from the table: the smallest k whose mean is
+# within sd / sqrt(folds) of the highest mean, that of the best k
+check "the chosen k is the smallest within one standard error of the highest mean" \
+	"$PY" - "$sel" "${chosen:-0}" "$tmp/a/run.json" <<'PYEOF'
+import json, math, sys
+rows = [l.rstrip("\n").split("\t") for l in open(sys.argv[1])][1:]
+pts = [(int(r[0]), float(r[1]), float(r[7]), int(r[6])) for r in rows]
+best = max(pts, key=lambda p: p[1])
+se = best[2] / math.sqrt(best[3])
+want = min(p[0] for p in pts if p[1] >= best[1] - se)
+assert want == int(sys.argv[2]), (want, sys.argv[2], pts)
+ks = json.load(open(sys.argv[3]))["k_selection"]
+assert ks["highest_mean_k"] == best[0] and abs(ks["standard_error"] - se) < 1e-9 * abs(se) + 1e-12
+assert ks["rule"].startswith("the smallest k within one standard error"), ks["rule"]
+PYEOF
 check "run.json parameters.k is the chosen k" [ "$(json_get "$tmp/a/run.json" parameters.k)" = "$chosen" ]
 check "run.json k_selection.chosen is the chosen k" \
 	[ "$(json_get "$tmp/a/run.json" k_selection.chosen)" = "$chosen" ]
