@@ -73,11 +73,14 @@ struct index {
 	uint32_t *ecom;  /* shared communities of each such edge */
 	uint64_t *coff;  /* k + 1: community -> its edges sharing two or more */
 	uint64_t *cedge;
+	double *pairs;   /* k: the pairs of each community that are terms of L */
+	double allpairs; /* the pairs of the graph that are */
 };
 
 static void index_release(struct index *ix)
 {
-	UTIL_FREE_ALL(ix->noff, ix->ncom, ix->mc, ix->solo, ix->eoff, ix->ecom, ix->coff, ix->cedge);
+	UTIL_FREE_ALL(ix->noff, ix->ncom, ix->mc, ix->solo, ix->eoff, ix->ecom, ix->coff, ix->cedge,
+		      ix->pairs);
 	memset(ix, 0, sizeof *ix);
 }
 
@@ -111,6 +114,53 @@ static int index_nodes(struct index *ix, const struct cover *c)
 		for (uint64_t j = c->off[i]; j < c->off[i + 1]; j++)
 			ix->ncom[at[c->mem[j]]++] = i;
 	free(at);
+	return 0;
+}
+
+static double pairs_of(uint64_t size)
+{
+	return size < 2 ? 0.0 : (double)(size * (size - 1) / 2);
+}
+
+/*
+ * The pairs that are terms of the likelihood: of a one-mode graph every
+ * pair, n(n-1)/2, and s(s-1)/2 of a community of s members; of a
+ * two-sided graph (graph.h: senders [0, nsend), receivers after) only a
+ * sender with a receiver, nsend (n - nsend) and s_send s_recv, less
+ * every node's own pair (sender i, receiver nsend + i) when paired (a
+ * directed graph: no arc from a node to itself). 0 or -1.
+ */
+static int index_pairs(struct index *ix, const struct graph *g, const struct cover *c)
+{
+	ix->pairs = util_malloc(c->k ? c->k : 1, sizeof *ix->pairs);
+	if (!ix->pairs)
+		return -1;
+	uint64_t n = c->n;
+	if (!g->nsend) {
+		ix->allpairs = pairs_of(n);
+		for (uint32_t i = 0; i < c->k; i++)
+			ix->pairs[i] = pairs_of(cover_size(c, i));
+		return 0;
+	}
+	uint64_t ns = g->nsend;
+	ix->allpairs = (double)(ns * (n - ns)) - (g->paired ? (double)ns : 0.0);
+	uint32_t *seen = g->paired ? util_calloc(ns ? ns : 1, sizeof *seen) : NULL;
+	if (g->paired && !seen)
+		return -1;
+	for (uint32_t i = 0; i < c->k; i++) {
+		uint64_t send = 0, own = 0;
+		for (uint64_t j = c->off[i]; j < c->off[i + 1]; j++)
+			if (c->mem[j] < ns) {
+				send++;
+				if (seen)
+					seen[c->mem[j]] = i + 1;
+			}
+		for (uint64_t j = c->off[i]; seen && j < c->off[i + 1]; j++)
+			if (c->mem[j] >= ns && seen[c->mem[j] - ns] == i + 1)
+				own++; /* both copies of one node: that pair is no term */
+		ix->pairs[i] = (double)(send * (cover_size(c, i) - send)) - (double)own;
+	}
+	free(seen);
 	return 0;
 }
 
@@ -219,16 +269,11 @@ fail:
 static int index_build(struct index *ix, const struct graph *g, const struct cover *c)
 {
 	memset(ix, 0, sizeof *ix);
-	if (index_nodes(ix, c) < 0 || index_edges(ix, g) < 0) {
+	if (index_nodes(ix, c) < 0 || index_pairs(ix, g, c) < 0 || index_edges(ix, g) < 0) {
 		index_release(ix);
 		return -1;
 	}
 	return 0;
-}
-
-static double pairs_of(uint64_t size)
-{
-	return size < 2 ? 0.0 : (double)(size * (size - 1) / 2);
 }
 
 static double log1mexp(double x)
@@ -253,12 +298,10 @@ static double loglik_index(const struct index *ix, const struct cover *c, const 
 			sum += (double)ix->solo[i] * log1mexp(qeps + q[i]);
 	if (ix->lonely)
 		sum += (double)ix->lonely * log1mexp(qeps);
-	uint64_t n = ix->n;
-	uint64_t n2 = n < 2 ? 0 : n * (n - 1) / 2;
 	if (qeps > 0.0)
-		sum -= qeps * (double)(n2 - m);
+		sum -= qeps * (ix->allpairs - (double)m);
 	for (uint32_t i = 0; i < c->k; i++) {
-		double coef = pairs_of(cover_size(c, i)) - (double)ix->mc[i];
+		double coef = ix->pairs[i] - (double)ix->mc[i];
 		if (coef > 0.0)
 			sum -= q[i] * coef;
 	}
@@ -348,7 +391,7 @@ static double newton_community(const struct index *ix, uint32_t c, double nonedg
  * q holds a starting point on entry (else the closed form without
  * overlaps is used): every step rises, so the answer is at least as likely
  * as a warm start. */
-static int estimate_q(const struct index *ix, const struct cover *c, double qeps, double *q,
+static int estimate_q(const struct index *ix, double qeps, double *q,
 		      int warm)
 {
 	uint64_t most = 0;
@@ -363,7 +406,7 @@ static int estimate_q(const struct index *ix, const struct cover *c, double qeps
 		goto out;
 	uint32_t nact = 0;
 	for (uint32_t i = 0; i < ix->k; i++) {
-		double P = pairs_of(cover_size(c, i)), m = (double)ix->mc[i];
+		double P = ix->pairs[i], m = (double)ix->mc[i];
 		if (m == 0.0) {
 			q[i] = 0.0; /* no edges inside (or < 2 members): p = 0 */
 		} else if (m >= P) {
@@ -385,7 +428,7 @@ static int estimate_q(const struct index *ix, const struct cover *c, double qeps
 		double worst = 0.0;
 		for (uint32_t a = 0; a < nact; a++) {
 			uint32_t i = active[a];
-			double nonedge = pairs_of(cover_size(c, i)) - (double)ix->mc[i];
+			double nonedge = ix->pairs[i] - (double)ix->mc[i];
 			double r = newton_community(ix, i, nonedge, qeps, q, Q, w);
 			if (r > worst)
 				worst = r;
@@ -406,7 +449,7 @@ int agm_estimate_p(const struct graph *g, const struct cover *c, double epsilon,
 	struct index ix;
 	if (check_input(g, c, epsilon) < 0 || index_build(&ix, g, c) < 0)
 		return -1;
-	int rc = estimate_q(&ix, c, model_qeps(epsilon), p, 0);
+	int rc = estimate_q(&ix, model_qeps(epsilon), p, 0);
 	if (rc == 0)
 		for (uint32_t i = 0; i < c->k; i++)
 			p[i] = -expm1(-p[i]);
@@ -425,7 +468,7 @@ int agm_improve_p(const struct graph *g, const struct cover *c, double epsilon, 
 		return -1;
 	for (uint32_t i = 0; i < c->k; i++)
 		p[i] = -log1p(-p[i]); /* q; +inf for p = 1 is capped by estimate_q() */
-	int rc = estimate_q(&ix, c, model_qeps(epsilon), p, 1);
+	int rc = estimate_q(&ix, model_qeps(epsilon), p, 1);
 	for (uint32_t i = 0; i < c->k; i++)
 		p[i] = -expm1(-p[i]);
 	index_release(&ix);
@@ -497,11 +540,10 @@ int agm_fit_background(const struct graph *g, const struct cover *c, double *eps
 	int rc = -1;
 	if (!q || !Q)
 		goto out;
-	uint64_t n = ix.n, n2 = n < 2 ? 0 : n * (n - 1) / 2;
-	double nonedge = (double)(n2 - g->m), qeps = model_qeps(*epsilon);
+	double nonedge = ix.allpairs - (double)g->m, qeps = model_qeps(*epsilon);
 	if (qeps < AGM_QLO)
 		qeps = AGM_QLO;
-	if (estimate_q(&ix, c, qeps, q, 0) < 0)
+	if (estimate_q(&ix, qeps, q, 0) < 0)
 		goto out;
 	for (int pass = 0; pass < AGM_PASSES; pass++) {
 		for (uint64_t e = 0; e < ix.ne; e++) {
@@ -511,7 +553,7 @@ int agm_fit_background(const struct graph *g, const struct cover *c, double *eps
 			Q[e] = x;
 		}
 		double moved = newton_background(&ix, c, q, nonedge, &qeps, Q);
-		if (estimate_q(&ix, c, qeps, q, 1) < 0)
+		if (estimate_q(&ix, qeps, q, 1) < 0)
 			goto out;
 		if (moved < AGM_RELTOL)
 			break;
@@ -534,19 +576,33 @@ static double ln_gamma(double x)
 	return lgamma_r(x, &sign);
 }
 
-double agm_code_length(const struct agm *a, uint32_t n)
+/* ln C(n, s) from ln Gamma: relative error near 1e-15 at any size */
+static double ln_choose(double n, double s)
 {
-	return agm_code_length_of(&a->cover, a->loglik, n);
+	return s > 0 && s < n ? ln_gamma(n + 1.0) - ln_gamma(s + 1.0) - ln_gamma(n - s + 1.0) : 0.0;
 }
 
-double agm_code_length_of(const struct cover *c, double loglik, uint32_t n)
+double agm_code_length(const struct agm *a, uint32_t n)
 {
-	/* ln C(n, s) from ln Gamma: relative error near 1e-15 at any size */
-	double nats = -loglik, ln_n = ln_gamma((double)n + 1.0);
+	double nats = -a->loglik;
+	for (uint32_t i = 0; i < a->cover.k; i++)
+		nats += ln_choose((double)n, (double)cover_size(&a->cover, i));
+	return nats;
+}
+
+double agm_code_length_of(const struct cover *c, double loglik, const struct graph *g)
+{
+	double nats = -loglik, ns = (double)g->nsend, nr = (double)g->n - ns;
 	for (uint32_t i = 0; i < c->k; i++) {
-		double s = (double)cover_size(c, i);
-		if (s > 0 && s < n)
-			nats += ln_n - ln_gamma(s + 1.0) - ln_gamma((double)n - s + 1.0);
+		if (!g->nsend) {
+			nats += ln_choose((double)g->n, (double)cover_size(c, i));
+			continue;
+		}
+		uint64_t send = 0; /* senders among the senders, receivers among the receivers */
+		for (uint64_t j = c->off[i]; j < c->off[i + 1]; j++)
+			send += c->mem[j] < g->nsend;
+		nats += ln_choose(ns, (double)send) +
+			ln_choose(nr, (double)(cover_size(c, i) - send));
 	}
 	return nats;
 }
@@ -555,7 +611,8 @@ double agm_loglik(const struct graph *g, const struct cover *c, const double *p,
 {
 	struct index ix;
 	memset(&ix, 0, sizeof ix);
-	if (check_input(g, c, epsilon) < 0 || index_nodes(&ix, c) < 0) {
+	if (check_input(g, c, epsilon) < 0 || index_nodes(&ix, c) < 0 ||
+	    index_pairs(&ix, g, c) < 0) {
 		index_release(&ix);
 		return NAN;
 	}
@@ -664,7 +721,7 @@ static int finish(struct agm *out, const struct graph *g, const uint32_t *ids,
 	if (q && pgiven)
 		for (uint32_t i = 0; i < c->k; i++)
 			q[i] = -log1p(-pgiven[ids[i]]);
-	if (!q || !out->comms || (!pgiven && estimate_q(&ix, c, qeps, q, 0) < 0)) {
+	if (!q || !out->comms || (!pgiven && estimate_q(&ix, qeps, q, 0) < 0)) {
 		free(q);
 		index_release(&ix);
 		return -1;
@@ -677,7 +734,7 @@ static int finish(struct agm *out, const struct graph *g, const uint32_t *ids,
 		for (uint64_t j = c->off[i]; j < c->off[i + 1]; j++)
 			ac->volume += graph_degree(g, c->mem[j]);
 		ac->cut = ac->volume - 2 * ac->internal_edges;
-		double P = pairs_of(ac->size);
+		double P = ix.pairs[i];
 		ac->density = P > 0.0 ? (double)ac->internal_edges / P : 0.0;
 		uint64_t rest = 2 * g->m - ac->volume;
 		uint64_t den = ac->volume < rest ? ac->volume : rest;

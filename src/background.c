@@ -109,7 +109,7 @@ static int fit_candidate(const struct graph *g, const struct fit_params *p, doub
 		double eps = q.epsilon, ll;
 		if (code && agm_fit_background(g, &s->agm.cover, &eps, &ll) == 0) {
 			c->background = eps;
-			c->code_length = agm_code_length_of(&s->agm.cover, ll, g->n);
+			c->code_length = agm_code_length_of(&s->agm.cover, ll, g);
 		} else if (code) {
 			rc = -1;
 		}
@@ -137,7 +137,7 @@ int background_choose(const struct graph *g, const struct fit_params *p, int (*s
 	if (g->m >= BACKGROUND_MAX_EDGES || out->linked == 0)
 		return 0;
 	double need = BACKGROUND_COVER * out->linked, enough = BACKGROUND_THIN * out->linked;
-	int code = p->model == MODEL_BIGCLAM; /* the other models have no code length */
+	int code = p->model == MODEL_BIGCLAM; /* measured on BigCLAM only (background.h) */
 	out->rule = code ? BACKGROUND_CODE : BACKGROUND_COVERAGE;
 	uint32_t best = 0;
 	int admitted = 0; /* rule code: a candidate that is not thin was seen */

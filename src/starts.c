@@ -6,14 +6,16 @@
  * Starts. The likelihood has many local maxima; each start seeds afresh
  * (seed.h, with the start's own draws) and climbs with its own sweep
  * orders, and the best start is kept (fit->best, a struct fit_part as a
- * savepoint holds it). Ties keep the earlier start. Best, for BigCLAM, is
- * the shortest code length of the cover the output reads from the
- * strengths (agm_code_length(): the AGM log-likelihood less what it costs
- * to name every community's members), not the largest l(F): on planted
- * graphs of 10^4 nodes the starts of larger l(F) were those with more
- * memberships than the truth and lower scores, and the code length put
- * them in the order of their scores (DEVELOPERS.md, "Starts and moves
- * judged by code length"). The other models keep l(F).
+ * savepoint holds it). Ties keep the earlier start. Best, for BigCLAM and
+ * the directed and two-mode models (fit_judged_by_code()), is the
+ * shortest code length of the cover the output reads from the strengths
+ * (agm_code_length_of(): the AGM log-likelihood less what it costs to name
+ * every community's members; a two-sided cover read by side, as
+ * memberships.tsv has it), not the largest l(F): on planted graphs of
+ * 10^4 nodes the starts of larger l(F) were those with more memberships
+ * than the truth and lower scores, and the code length put them in the
+ * order of their scores (DEVELOPERS.md, "Starts and moves judged by code
+ * length"). The weighted models keep l(F).
  *
  * Reseeding moves. A start often levels off with one column spread over
  * two true communities and another wasted on a sliver of a third, or (where
@@ -27,7 +29,7 @@
  * looser FIT_MOVE_TOL (1e-3, or --tol if looser; a move that has not
  * paid by then climbs on to --tol), and the move is kept only if the
  * score that compares starts rose (the code length fell; l(F) rose, for
- * the models other than BigCLAM); otherwise the model goes back (a
+ * the weighted models); otherwise the model goes back (a
  * failed merge halves the joins the next one may make). After the last
  * move the start climbs to its own plateau (--tol).
  * Moves stop after RESEED_FAILS failures in a row, RESEED_MAX moves, or
@@ -209,22 +211,39 @@ static void keep_savepoint(struct fit *f)
 
 /* ---- the best start ---- */
 
-/* The score by which starts and moves are compared, higher better: for
- * BigCLAM minus the code length of the cover read from F as the output
- * reads it (agm_from_strengths_trimmed(), which sets F's thresholds; the
- * graph the model is fitted to), else ll, the model's l(F). 0, or -1
- * (no memory). */
+/* The score by which starts and moves are compared, higher better: minus
+ * the code length of the cover read from F as the output reads it
+ * (fit_judged_by_code(); one-mode: agm_from_strengths_trimmed(), which
+ * sets F's thresholds; two-sided: by side, model_directed_cover(), as
+ * memberships.tsv; on the graph the model is fitted to), else ll, the
+ * model's l(F). 0, or -1 (no memory). */
 static int cover_score(const struct fit *f, struct fcsr *F, double ll, double *score)
 {
-	if (f->p.model != MODEL_BIGCLAM) {
+	if (!fit_judged_by_code(f->p.model)) {
 		*score = ll;
 		return 0;
+	}
+	if (f->gw->nsend) { /* a cover without labels: p and L straight from it */
+		struct cover c;
+		double *p = NULL, ll_agm = NAN;
+		int rc = model_directed_cover(f->gw, F, f->m.delta, &c);
+		if (rc == 0 && !(p = util_malloc(c.k ? c.k : 1, sizeof *p)))
+			rc = -1;
+		if (rc == 0 && agm_estimate_p(f->gw, &c, f->m.epsilon, p) == 0)
+			ll_agm = agm_loglik(f->gw, &c, p, f->m.epsilon);
+		if (rc == 0 && isnan(ll_agm))
+			rc = -1;
+		if (rc == 0)
+			*score = -agm_code_length_of(&c, ll_agm, f->gw);
+		free(p);
+		cover_release(&c);
+		return rc;
 	}
 	struct agm a;
 	memset(&a, 0, sizeof a);
 	if (agm_from_strengths_trimmed(&a, f->gw, F, f->m.epsilon, f->m.delta, AGM_MIN_LINKS))
 		return -1;
-	*score = -agm_code_length(&a, f->gw->n);
+	*score = -agm_code_length_of(&a.cover, a.loglik, f->gw);
 	agm_release(&a);
 	return 0;
 }
@@ -237,7 +256,7 @@ static int model_score(struct fit *f, double *score)
 	double ll = f->trace[f->ntrace - 1].loglik;
 	struct fcsr F;
 	memset(&F, 0, sizeof F);
-	int rc = f->p.model == MODEL_BIGCLAM && model_export(&f->m, &F) ? -1
+	int rc = fit_judged_by_code(f->p.model) && model_export(&f->m, &F) ? -1
 		 : cover_score(f, &F, ll, score);
 	fcsr_release(&F);
 	return rc;
@@ -247,7 +266,7 @@ static int part_score(const struct fit *f, const struct fit_part *p, double ll, 
 {
 	struct fcsr F;
 	memset(&F, 0, sizeof F);
-	int rc = f->p.model == MODEL_BIGCLAM && fcsr_copy(&F, &p->F) ? -1
+	int rc = fit_judged_by_code(f->p.model) && fcsr_copy(&F, &p->F) ? -1
 		 : cover_score(f, &F, ll, score);
 	fcsr_release(&F);
 	return rc;
@@ -265,7 +284,7 @@ static int keep_best(struct fit *f, enum fit_state st)
 	}
 	if (f->start_ends) /* run.json's record (fit_new(): several starts) */
 		f->start_ends[f->start - 1] =
-			(struct start_end){ ll, f->p.model == MODEL_BIGCLAM ? -score : NAN };
+			(struct start_end){ ll, fit_judged_by_code(f->p.model) ? -score : NAN };
 	if (f->best_start && !(score > f->best_score))
 		return 0;
 	fit_part_release(&f->best);

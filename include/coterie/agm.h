@@ -10,6 +10,12 @@
  * is concave in q, so p has a unique maximum; agm_estimate_p() finds it by
  * cyclic one-dimensional Newton steps with safeguards.
  *
+ * The pairs are every pair of a one-mode graph. Of a two-sided graph
+ * (graph.h: the directed and two-mode models) they are a sender with a
+ * receiver only, less a directed node's own pair, so a community of
+ * s_send senders and s_recv receivers has s_send s_recv pairs (less the
+ * nodes that are both); the same formulas hold with those counts.
+ *
  * Community ids are the model's column numbers, so they stay the same from
  * sweep to sweep and across a resume; communities are listed largest first
  * (ties by id). Empty columns are not listed.
@@ -146,9 +152,11 @@ double agm_loglik(const struct graph *g, const struct cover *c, const double *p,
  * the log-likelihood alone it does not reward a cover for holding more
  * memberships than its links pay for. +INFINITY when a->loglik is. */
 double agm_code_length(const struct agm *a, uint32_t n);
-/* The same code for cover c (cover_size() of each community) given the
- * AGM log-likelihood loglik of the graph under it. */
-double agm_code_length_of(const struct cover *c, double loglik, uint32_t n);
+/* The same code for cover c of graph g given the AGM log-likelihood
+ * loglik of g under it. On a two-sided graph (graph.h) a community names
+ * its senders among the senders and its receivers among the receivers:
+ * ln C(nsend, s_send) + ln C(n - nsend, s_recv). */
+double agm_code_length_of(const struct cover *c, double loglik, const struct graph *g);
 /* The AGM's background fitted with the cover: epsilon and every p_c at
  * their joint maximum likelihood, memberships held (cyclic coordinate
  * steps: Newton on qeps = -ln(1 - epsilon), whose derivative is

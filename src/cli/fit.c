@@ -70,9 +70,9 @@ static void fit_usage(FILE *out)
 		"      --starts N        fit N times from different seeds and sweep orders and\n"
 		"                        keep the best: the cover of the shortest code length\n"
 		"                        (its AGM log-likelihood less the cost of naming its\n"
-		"                        members; the most likely start with --weighted,\n"
-		"                        --directed, --two-mode). Default 3 below 100000\n"
-		"                        edges, else 1 (the likelihood has local maxima)\n"
+		"                        members; the most likely start with --weighted).\n"
+		"                        Default 3 below 100000 edges, else 1 (the\n"
+		"                        likelihood has local maxima)\n"
 		"      --repeats N       fit N times in all, from seeds S, S+1, ... (several\n"
 		"                        fits at once), keep the most likely and score each\n"
 		"                        of its communities by how well the other fits find\n"
@@ -562,7 +562,7 @@ static const struct snapshot *repeat_fits(struct run *r, const struct snapshot *
 		return main;
 	sb->runs = n;
 	/* the best as --starts has it: the shortest code length of the
-	 * cover (BigCLAM, best_by_code), else the highest l(F) */
+	 * cover (best_by_code: fit_judged_by_code()), else the highest l(F) */
 	if (main->best_by_code && !(sb->code = util_calloc(n, sizeof *sb->code)))
 		return main;
 	double best = 0.0;

@@ -1,5 +1,5 @@
 #!/bin/sh
-# Starts judged by code length (starts.c, agm_code_length()): of several
+# Starts judged by code length (starts.c, agm_code_length_of()): of several
 # starts, fit keeps the one whose cover gives the shortest two-part code
 # (the cover's AGM log-likelihood, negated, plus ln C(n, s) for each
 # community of s members: minimum description length, Rissanen 1978), not
@@ -50,4 +50,30 @@ check "here the kept start ($kept) is not the most likely ($likeliest)" [ "$kept
 o=$($ONMI "$tmp/a/memberships.tsv" "$tmp/g/truth.tsv")
 check "ONMI against the planted cover $o >= 0.85 (0.760 when the most likely start was kept)" \
 	at_least "$o" 0.85
+
+# A two-mode fit is judged the same way, its cover read by side as
+# memberships.tsv has it and scored as a two-sided AGM (agm.h): only a
+# sender and a receiver make a pair, and a community names its senders among
+# the first column's nodes and its receivers among the second's. The kept
+# start's code length is recomputed from the files by tests/cli/agm_sided.py,
+# an independent transcription (its own maximum-likelihood p_c).
+"$BIN" simulate -n 1200 --two-mode 800 --sizes 20:200 --overlap 0.1 --mean-degree 12 \
+	--mixing 0.2 --seed 2 -q -o "$tmp/t"
+check "simulate --two-mode: exit 0" [ $? -eq 0 ]
+kt=$(($(wc -l <"$tmp/t/planted.tsv") - 1))
+"$BIN" fit "$tmp/t/edges.tsv" --two-mode -k "$kt" -j 2 --seed 1 -q -o "$tmp/tm"
+check "fit --two-mode: exit 0" [ $? -eq 0 ]
+eps=$(json_get "$tmp/tm/run.json" parameters.epsilon)
+set -- $("$PY" "$ROOT/tests/cli/agm_sided.py" "$tmp/t/edges.tsv" "$tmp/tm/memberships.tsv" "$eps")
+check "two-mode: three starts judged by code length, the kept one the shortest, its code recomputed ($2)" \
+	"$PY" - "$tmp/tm/run.json" "$2" <<'PYEOF'
+import json, sys
+f = json.load(open(sys.argv[1]))['fit']
+s = f['starts_judged']
+assert len(s) == 3 and all(x['code_length'] is not None for x in s), s
+best = min(range(3), key=lambda i: (s[i]['code_length'], i))
+assert f['start_kept'] == best + 1, (f['start_kept'], s)
+code = float(sys.argv[2])
+assert abs(code - s[best]['code_length']) <= 1e-7 * abs(code), (code, s[best])
+PYEOF
 finish

@@ -124,10 +124,79 @@ static void test_background_fitted_matches_hand_computed_example(void **state)
 	assert_int_equal(agm_fit_background(g, &c, &eps, &ll), 0);
 	assert_true(fabs(eps - 0.125) < 1e-9);
 	assert_true(fabs(ll - -14.0062906732) < 1e-8);
-	assert_true(fabs(agm_code_length_of(&c, ll, 8) - 22.5032811573) < 1e-8);
+	assert_true(fabs(agm_code_length_of(&c, ll, g) - 22.5032811573) < 1e-8);
 	double p[2];
 	assert_int_equal(agm_estimate_p(g, &c, eps, p), 0);
 	assert_true(fabs(p[0] - 13.0 / 21.0) < 1e-8 && fabs(p[1] - 3.0 / 7.0) < 1e-8);
+	cover_release(&c);
+	graph_free(g);
+}
+
+/*
+ * A two-mode graph, worked by hand: senders 0-2, receivers 3-5 (nsend 3);
+ * only a sender and a receiver make a pair, 3 x 3 = 9 of them. A holds
+ * senders 0, 1 and receivers 3, 4: 2 x 2 = 4 pairs, 3 linked (0-3 0-4
+ * 1-3). Of the 9 - 4 = 5 pairs sharing nothing 1 is linked (2-5), so the
+ * fitted background is 1/5 and 1 - (4/5)(1 - p_A) = 3/4 gives
+ * p_A = 11/16. L = ln(1/5) + 4 ln(4/5) + 3 ln(3/4) + ln(1/4)
+ *   = -1.6094379124 - 0.8925742053 - 0.8630462174 - 1.3862943611
+ *   = -4.7513526962;
+ * A names 2 of the 3 senders and 2 of the 3 receivers: ln 3 + ln 3 =
+ * 2.1972245773, a code of 6.9485772735 (one-mode counting would name 4
+ * of 6 nodes, ln 15, and count the same-side pairs as non-edges).
+ */
+static void test_two_sided_likelihood_and_code_by_hand(void **state)
+{
+	(void)state;
+	static const uint32_t edges[] = { 0, 3, 0, 4, 1, 3, 2, 5 };
+	static const uint32_t sizes[] = { 4 };
+	static const uint32_t members[] = { 0, 1, 3, 4 };
+	struct graph *g = make_graph(6, edges, 4);
+	g->nsend = 3;
+	struct cover c;
+	make_cover(&c, 6, 1, sizes, members);
+	double eps = 0.05, ll = 0.0;
+	assert_int_equal(agm_fit_background(g, &c, &eps, &ll), 0);
+	assert_true(fabs(eps - 0.2) < 1e-9);
+	assert_true(fabs(ll - -4.7513526962) < 1e-8);
+	assert_true(fabs(agm_code_length_of(&c, ll, g) - 6.9485772735) < 1e-8);
+	double p = 11.0 / 16.0;
+	assert_true(fabs(agm_loglik(g, &c, &p, 0.2) - -4.7513526962) < 1e-8);
+	struct agm a;
+	assert_int_equal(agm_from_cover(&a, g, &c, 0.2), 0);
+	assert_true(fabs(a.comms[0].p - 11.0 / 16.0) < 1e-8);
+	assert_true(fabs(a.comms[0].density - 0.75) < 1e-12); /* 3 of its 4 pairs */
+	agm_release(&a);
+	cover_release(&c);
+	graph_free(g);
+}
+
+/*
+ * A directed graph (paired: receiver 3 + i is node i): 3 x 3 - 3 = 6
+ * ordered pairs, a node's own pair being none. A holds senders 0, 1, 2
+ * and receivers 3, 4 (nodes 0 and 1): 3 x 2 - 2 own = 4 pairs (0->1,
+ * 1->0, 2->0, 2->1), 3 linked (0->1 is 0-4, 1->0 is 1-3, 2->0 is 2-3).
+ * Outside, 1 of the 2 pairs (0->2, 1->2) is linked (1->2 is 1-5): the
+ * background 1/2, and 1 - (1/2)(1 - p_A) = 3/4 gives p_A = 1/2.
+ * L = 2 ln(1/2) + 3 ln(3/4) + ln(1/4) = -3.6356349396; A names all 3
+ * senders (ln 1) and 2 of 3 receivers (ln 3): code 4.7342472283.
+ */
+static void test_directed_likelihood_and_code_by_hand(void **state)
+{
+	(void)state;
+	static const uint32_t edges[] = { 0, 4, 1, 3, 2, 3, 1, 5 };
+	static const uint32_t sizes[] = { 5 };
+	static const uint32_t members[] = { 0, 1, 2, 3, 4 };
+	struct graph *g = make_graph(6, edges, 4);
+	g->nsend = 3;
+	g->paired = 1;
+	struct cover c;
+	make_cover(&c, 6, 1, sizes, members);
+	double eps = 0.05, ll = 0.0;
+	assert_int_equal(agm_fit_background(g, &c, &eps, &ll), 0);
+	assert_true(fabs(eps - 0.5) < 1e-9);
+	assert_true(fabs(ll - -3.6356349396) < 1e-8);
+	assert_true(fabs(agm_code_length_of(&c, ll, g) - 4.7342472283) < 1e-8);
 	cover_release(&c);
 	graph_free(g);
 }
@@ -899,6 +968,8 @@ int main(void)
 		cmocka_unit_test(test_code_length_matches_hand_computed_example),
 		cmocka_unit_test(test_background_fitted_matches_hand_computed_example),
 		cmocka_unit_test(test_background_fitted_is_the_profile_maximum),
+		cmocka_unit_test(test_two_sided_likelihood_and_code_by_hand),
+		cmocka_unit_test(test_directed_likelihood_and_code_by_hand),
 		cmocka_unit_test(test_p_closed_form_without_background),
 		cmocka_unit_test(test_p_closed_form_with_background),
 		cmocka_unit_test(test_p_is_a_maximum_with_overlaps),
