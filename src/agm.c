@@ -50,6 +50,7 @@
 
 #include "coterie/graph.h"
 #include "coterie/model.h"
+#include "coterie/model_directed.h"
 #include "coterie/util.h"
 
 #define AGM_QLO 1e-12     /* lower bound of q for a community with edges */
@@ -763,13 +764,28 @@ static int agm_begin(struct agm *out, const struct graph *g, double epsilon)
 	return 0;
 }
 
+int agm_side_sums(const struct graph *g, struct fcsr *F)
+{
+	free(F->sidesum);
+	F->sidesum = NULL;
+	if (!g->nsend)
+		return 0;
+	if (!(F->sidesum = util_malloc(2 * (size_t)F->k + 1, sizeof *F->sidesum)))
+		return -1;
+	model_directed_side_sums(g, F, F->sidesum);
+	return 0;
+}
+
 int agm_member_at(const struct graph *g, const struct fcsr *F, uint32_t u, uint64_t j,
 		  double delta, double min_links)
 {
 	uint32_t c = F->e[j].c;
 	if (F->thr && F->thr[c] > delta)
 		delta = F->thr[c];
-	return agm_is_member(F->e[j].v, F->colsum[c], delta, min_links, graph_degree(g, u));
+	/* a two-sided row against the other side's sum (model_directed.h) */
+	double sum = g->nsend && F->sidesum ? F->sidesum[c + (graph_side_of(g, u) ? 0 : F->k)]
+					    : F->colsum[c];
+	return agm_is_member(F->e[j].v, sum, delta, min_links, graph_degree(g, u));
 }
 
 int agm_from_strengths(struct agm *out, const struct graph *g, const struct fcsr *F,

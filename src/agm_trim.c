@@ -126,9 +126,11 @@ int agm_from_strengths_trimmed(struct agm *out, const struct graph *g, struct fc
 {
 	free(F->thr);
 	F->thr = NULL;
+	if (agm_side_sums(g, F)) /* a two-sided fit's rows read by side */
+		return -1;
 	if (agm_from_strengths(out, g, F, epsilon, delta, min_links))
 		return -1;
-	if (g->nsend) /* the two-sided models read their covers by side */
+	if (g->nsend) /* by side (F->sidesum), never trimmed */
 		return 0;
 	struct agm trimmed;
 	if (agm_trim(g, F, epsilon, delta, min_links)) {

@@ -363,6 +363,7 @@ static int read_strengths(const char *path, struct rd *sec, struct fcsr *F)
 	F->e = util_malloc((size_t)nnz, sizeof *F->e);
 	F->colsum = util_calloc(k, sizeof *F->colsum);
 	F->thr = NULL;
+	F->sidesum = NULL;
 	if (!F->off || !F->e || !F->colsum)
 		return -1;
 	for (uint32_t u = 0; u <= n; u++)

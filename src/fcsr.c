@@ -13,7 +13,7 @@ void fcsr_release(struct fcsr *f)
 {
 	if (!f)
 		return;
-	UTIL_FREE_ALL(f->off, f->e, f->colsum, f->thr);
+	UTIL_FREE_ALL(f->off, f->e, f->colsum, f->thr, f->sidesum);
 	memset(f, 0, sizeof *f);
 }
 
@@ -53,6 +53,13 @@ int fcsr_copy(struct fcsr *dst, const struct fcsr *src)
 			return -1;
 		}
 		memcpy(dst->thr, src->thr, src->k * sizeof *dst->thr);
+	}
+	if (src->sidesum) {
+		if (!(dst->sidesum = util_malloc(2 * (size_t)src->k + 1, sizeof *dst->sidesum))) {
+			fcsr_release(dst);
+			return -1;
+		}
+		memcpy(dst->sidesum, src->sidesum, 2 * (size_t)src->k * sizeof *dst->sidesum);
 	}
 	return 0;
 }

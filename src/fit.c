@@ -198,8 +198,8 @@ static int snapshot_agm(struct fit *f, struct snapshot *s, enum fit_state state)
 		agm_release(&f->agm);
 		f->have_agm = agm_copy(&f->agm, &s->agm) == 0;
 		f->agm_sweep = f->sweep;
-	} else if (agm_copy(&s->agm, &f->agm)) {
-		return -1;
+	} else if (agm_copy(&s->agm, &f->agm) || agm_side_sums(f->g, &s->F)) {
+		return -1; /* (a stale AGM: the per-entry readers of s->F still read by side) */
 	}
 	s->agm_sweep = f->agm_sweep;
 	return 0;

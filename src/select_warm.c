@@ -34,6 +34,7 @@ static int alloc_fcsr(struct fcsr *o, uint32_t n, uint32_t k, uint64_t nnz)
 	o->e = util_malloc(nnz ? nnz : 1, sizeof *o->e);
 	o->colsum = util_calloc(k, sizeof *o->colsum);
 	o->thr = NULL;
+	o->sidesum = NULL;
 	if (o->off && o->e && o->colsum)
 		return 0;
 	fcsr_release(o);

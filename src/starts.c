@@ -213,31 +213,14 @@ static void keep_savepoint(struct fit *f)
 
 /* The score by which starts and moves are compared, higher better: minus
  * the code length of the cover read from F as the output reads it
- * (fit_judged_by_code(); one-mode: agm_from_strengths_trimmed(), which
- * sets F's thresholds; two-sided: by side, model_directed_cover(), as
- * memberships.tsv; on the graph the model is fitted to), else ll, the
- * model's l(F). 0, or -1 (no memory). */
+ * (fit_judged_by_code(); agm_from_strengths_trimmed(), which sets F's
+ * thresholds, or its side sums on a two-sided graph; on the graph the
+ * model is fitted to), else ll, the model's l(F). 0, or -1 (no memory). */
 static int cover_score(const struct fit *f, struct fcsr *F, double ll, double *score)
 {
 	if (!fit_judged_by_code(f->p.model)) {
 		*score = ll;
 		return 0;
-	}
-	if (f->gw->nsend) { /* a cover without labels: p and L straight from it */
-		struct cover c;
-		double *p = NULL, ll_agm = NAN;
-		int rc = model_directed_cover(f->gw, F, f->m.delta, &c);
-		if (rc == 0 && !(p = util_malloc(c.k ? c.k : 1, sizeof *p)))
-			rc = -1;
-		if (rc == 0 && agm_estimate_p(f->gw, &c, f->m.epsilon, p) == 0)
-			ll_agm = agm_loglik(f->gw, &c, p, f->m.epsilon);
-		if (rc == 0 && isnan(ll_agm))
-			rc = -1;
-		if (rc == 0)
-			*score = -agm_code_length_of(&c, ll_agm, f->gw);
-		free(p);
-		cover_release(&c);
-		return rc;
 	}
 	struct agm a;
 	memset(&a, 0, sizeof a);

@@ -85,9 +85,14 @@ static inline int agm_is_member(double strength, double colsum, double delta,
 }
 
 /* Is entry j of F (in node u's row) a membership? F->colsum must hold the
- * column sums and g be the graph F describes (for the degree). */
+ * column sums and g be the graph F describes (for the degree). On a
+ * two-sided g with F->sidesum set (agm_side_sums()), the row is read
+ * against the other side's sum, as model_directed_member_at() reads it. */
 int agm_member_at(const struct graph *g, const struct fcsr *F, uint32_t u, uint64_t j,
 		  double delta, double min_links);
+/* F->sidesum for a two-sided g (freed and NULL for a one-mode one):
+ * agm_from_strengths_trimmed() sets it, as it sets F->thr. 0 or -1. */
+int agm_side_sums(const struct graph *g, struct fcsr *F);
 
 /* The Bernoulli log-likelihood of e edges among N pairs at their own
  * density e / N (0 when e is 0 or N): the block term agm_trim() and the

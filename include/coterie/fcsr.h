@@ -34,6 +34,11 @@ struct fcsr {
 	 * community's members end); not stored in checkpoints: derived
 	 * again from the strengths and the graph */
 	double *thr;
+	/* NULL, or (a two-sided graph's rows) 2 k column sums by side, the
+	 * sending rows' then the receiving rows' (agm_side_sums()): the
+	 * membership rule of a two-sided fit reads a row against the other
+	 * side's sum (model_directed_member_at()); not stored either */
+	double *sidesum;
 };
 
 /* Free the arrays of f and zero it; NULL is a no-op. */

@@ -65,10 +65,13 @@ kt=$(($(wc -l <"$tmp/t/planted.tsv") - 1))
 check "fit --two-mode: exit 0" [ $? -eq 0 ]
 eps=$(json_get "$tmp/tm/run.json" parameters.epsilon)
 set -- $("$PY" "$ROOT/tests/cli/agm_sided.py" "$tmp/t/edges.tsv" "$tmp/tm/memberships.tsv" "$eps")
-check "two-mode: three starts judged by code length, the kept one the shortest, its code recomputed ($2)" \
-	"$PY" - "$tmp/tm/run.json" "$2" <<'PYEOF'
+check "two-mode: three starts judged by code length, the kept one the shortest, its code ($2) and run.json's AGM log-likelihood ($1) recomputed" \
+	"$PY" - "$tmp/tm/run.json" "$2" "$1" <<'PYEOF'
 import json, sys
 f = json.load(open(sys.argv[1]))['fit']
+# run.json's AGM log-likelihood is of the same cover, read by side
+ll = float(sys.argv[3])
+assert abs(ll - f['agm_loglik']) <= 1e-7 * abs(ll), (ll, f['agm_loglik'])
 s = f['starts_judged']
 assert len(s) == 3 and all(x['code_length'] is not None for x in s), s
 best = min(range(3), key=lambda i: (s[i]['code_length'], i))
