@@ -583,19 +583,21 @@ static int extend(struct search *s, const struct graph *g, const struct select_p
  * the highest mean (the best point's sd over its folds, / sqrt(folds)).
  * The folds' differences between neighbouring k are mostly noise on a
  * small graph (football: 12 and 15 differ by 1.7 where the error is 3.7),
- * and the smaller cover is the one the data do not refute. *se gets the
- * error; the best point is b.
+ * and the smaller cover is the one the data do not refute (select.h).
  */
-static uint32_t one_se(const struct select_point *pts, uint32_t np, const struct best *b,
-		       double *se)
+uint32_t select_one_se(const struct select_point *pts, uint32_t np, uint32_t best_k, double *se)
 {
 	*se = 0.0;
+	double top = 0.0;
 	for (uint32_t i = 0; i < np; i++)
-		if (pts[i].k == b->k && pts[i].folds > 1)
-			*se = pts[i].heldout_sd / sqrt((double)pts[i].folds);
-	uint32_t k = b->k;
+		if (pts[i].k == best_k) {
+			top = pts[i].heldout;
+			if (pts[i].folds > 1)
+				*se = pts[i].heldout_sd / sqrt((double)pts[i].folds);
+		}
+	uint32_t k = best_k;
 	for (uint32_t i = 0; i < np; i++)
-		if (pts[i].k < k && pts[i].heldout >= b->heldout - *se)
+		if (pts[i].k < k && pts[i].heldout >= top - *se)
 			k = pts[i].k;
 	return k;
 }
@@ -875,7 +877,7 @@ int select_k(const struct graph *g, const struct fit_params *base, const struct 
 	qsort(pts, np, sizeof *pts, cmp_point_k);
 	res->best = res->best_mean = b.k;
 	if (res->folds > 1) {
-		res->best = one_se(pts, np, &b, &res->se);
+		res->best = select_one_se(pts, np, b.k, &res->se);
 		if (res->best != b.k && res->edge > 0)
 			res->edge = 0; /* a smaller k than the largest scored */
 	}

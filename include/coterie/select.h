@@ -215,6 +215,13 @@ struct select_result {
 
 void select_result_release(struct select_result *r);
 
+/* The one-standard-error rule (select.c): of the np points, the smallest k
+ * whose held-out score is within one standard error (sd / sqrt(folds)) of
+ * the score of best_k, the k of the highest mean; *se gets that error (0
+ * with one fold, and then best_k is returned). The choice of select_k()
+ * with several folds, and of the explorer's k screen when the search ends. */
+uint32_t select_one_se(const struct select_point *pts, uint32_t np, uint32_t best_k, double *se);
+
 /*
  * Score the grid on g (borrowed) with fit parameters base (k ignored;
  * threads is how many fits run at once). On success returns 0 and fills

@@ -189,6 +189,14 @@ static void draw_all(const struct kstate *k)
 	while (pending < k->ngrid && point_at(k, pending))
 		pending++;
 	uint32_t folds = k->npts ? k->pts[0].folds : 0;
+	uint32_t top = best; /* the highest mean; once done, best is the choice */
+	if (k->done && best < k->ngrid && folds > 1) {
+		double se;
+		uint32_t chosen = select_one_se(k->pts, k->npts, k->grid[best], &se);
+		for (uint32_t i = 0; i < k->ngrid; i++)
+			if (k->grid[i] == chosen && point_at(k, i))
+				best = i;
+	}
 	draw_head(k, folds);
 
 	int rows = LINES - 4;      /* header 3, footer 1 */
@@ -259,7 +267,11 @@ static void draw_all(const struct kstate *k)
 		if (i == best)
 			attroff(A_BOLD);
 	}
-	if (k->done && best < k->ngrid)
+	if (k->done && best < k->ngrid && best != top)
+		snprintf(line, sizeof line, "chose k = %u (the smallest within one standard error "
+			 "of the highest mean, k %u); the final fit starts now (any key: at once; q "
+			 "quits)", k->grid[best], k->grid[top]);
+	else if (k->done && best < k->ngrid)
 		snprintf(line, sizeof line, "chose k = %u (the highest %sheld-out log-likelihood); "
 			 "the final fit starts now (any key: at once; q quits)", k->grid[best],
 			 folds > 1 ? "mean " : "");
