@@ -4,7 +4,8 @@
 # communities.tsv and the trace's log-likelihoods byte for byte, for any
 # number of processes and threads (DEVELOPERS.md "Determinism"); a resume
 # on another process count ends as the uninterrupted fit; an interrupt to
-# rank 0, to rank 1 or to mpirun ends every process with the folder saved.
+# rank 0, to rank 1 or to mpirun ends every process with the folder saved;
+# a rank that dies ends the job with an error and its last checkpoint intact.
 # Skipped (a "# SKIP" line) when coterie-mpi was not built or mpirun
 # cannot start it.
 . "$(dirname "$0")/lib"
@@ -83,5 +84,30 @@ same_fit "$tmp/whole" "$tmp/term1" "SIGTERM to rank 1, resumed on 1 process"
 interrupt_run intrun mpirun TERM "$football" "-k 12 --seed 6 --past-plateau --max-sweeps 10000000 --epsilon 0.05"
 check "SIGTERM to mpirun: run.json says interrupted" grep -q '"status": "interrupted"' "$tmp/intrun/run.json"
 check "SIGTERM to mpirun: memberships.tsv written" [ -s "$tmp/intrun/memberships.tsv" ]
+
+# A process that dies (SIGKILL to rank 1, as an out-of-memory killer or a
+# lost node would do it): the job ends with an error, not a result, and the
+# last periodic checkpoint (rank 0 writes it beside a temporary name and
+# renames it into place) is intact: a fit resumed from it on one process
+# ends as the uninterrupted fit. The fit would run for minutes; the
+# checkpoint comes after a second (--checkpoint-every 1), the kill right
+# after it, at a few hundred sweeps of the 3000 both fits are cut to.
+D="-k 40 --seed 6 --starts 1 --past-plateau --epsilon 1e-4"
+# shellcheck disable=SC2086
+"$MPIRUN" $MPIFLAGS -np 2 "$MPIBIN" fit "$planted" $D --max-sweeps 1000000 \
+	--checkpoint-every 1 -j 1 -o "$tmp/dead" 2>"$tmp/dead.err" &
+dead=$!
+i=0
+while [ ! -s "$tmp/dead/checkpoint.partial.cot" ] && [ $i -lt 600 ]; do sleep 0.1; i=$((i + 1)); done
+check "rank death: a periodic checkpoint is written while the fit runs" \
+	[ -s "$tmp/dead/checkpoint.partial.cot" ]
+signal_job "rank death" $dead "$tmp/dead.err" 'sweep [0-9]' 1 rank1 KILL
+check "rank death: the job ends with an error (mpirun exit $st)" \
+	[ "$st" -ne 0 ] && [ "$st" -ne 130 ] && [ "$st" -ne 255 ]
+check "rank death: no result is written as if the fit had ended" [ ! -e "$tmp/dead/run.json" ]
+"$BIN" fit --resume "$tmp/dead" --max-sweeps 3000 -q
+check "rank death: the checkpoint left resumes (exit 0)" [ $? -eq 0 ]
+"$BIN" fit "$planted" $D --max-sweeps 3000 -j 2 -q -o "$tmp/dead-whole"
+same_fit "$tmp/dead-whole" "$tmp/dead" "rank death, resumed from its last checkpoint"
 
 finish

@@ -23,6 +23,7 @@ static void make_fcsr(struct fcsr *F, uint32_t n, uint32_t k, const double (*t)[
 	F->e = malloc(nt * sizeof *F->e);
 	F->colsum = calloc(k, sizeof *F->colsum);
 	F->thr = NULL;
+	F->sidesum = NULL;
 	assert_non_null(F->off);
 	assert_non_null(F->e);
 	assert_non_null(F->colsum);
