@@ -268,9 +268,9 @@ static void draw_all(const struct kstate *k)
 			attroff(A_BOLD);
 	}
 	if (k->done && best < k->ngrid && best != top)
-		snprintf(line, sizeof line, "chose k = %u (the smallest within one standard error "
-			 "of the highest mean, k %u); the final fit starts now (any key: at once; q "
-			 "quits)", k->grid[best], k->grid[top]);
+		snprintf(line, sizeof line, "chose k = %u, within one standard error of k %u's "
+			 "mean; the final fit starts now (any key: at once; q quits)", k->grid[best],
+			 k->grid[top]);
 	else if (k->done && best < k->ngrid)
 		snprintf(line, sizeof line, "chose k = %u (the highest %sheld-out log-likelihood); "
 			 "the final fit starts now (any key: at once; q quits)", k->grid[best],
