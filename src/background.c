@@ -137,7 +137,7 @@ int background_choose(const struct graph *g, const struct fit_params *p, int (*s
 	if (g->m >= BACKGROUND_MAX_EDGES || out->linked == 0)
 		return 0;
 	double need = BACKGROUND_COVER * out->linked, enough = BACKGROUND_THIN * out->linked;
-	int code = p->model == MODEL_BIGCLAM; /* measured on BigCLAM only (background.h) */
+	int code = p->model == MODEL_BIGCLAM; /* BigCLAM only (background.h) */
 	out->rule = code ? BACKGROUND_CODE : BACKGROUND_COVERAGE;
 	uint32_t best = 0;
 	int admitted = 0; /* rule code: a candidate that is not thin was seen */

@@ -19,7 +19,8 @@
  * at the epsilon they were fitted with (at the density a cover explains
  * its outside links badly, whatever the cover). The weighted and
  * two-sided models keep the density there (the weighted have no code
- * length; the two-sided have one, but this rule was not measured there).
+ * length; on the two-sided ones the rule was measured worse: the
+ * Serengeti food web and a planted two-mode graph, DEVELOPERS.md).
  *
  * When the density's cover is thin (most nodes out: karate at the density
  * covers 8 of 34), the rule is a coverage guard of ours, said to be one:
