@@ -388,6 +388,18 @@ static double newton_community(const struct index *ix, uint32_t c, double nonedg
 	return worst;
 }
 
+/* Q of every edge sharing two or more communities: qeps + the q of the
+ * communities it shares. */
+static void edges_q(const struct index *ix, const double *q, double qeps, double *Q)
+{
+	for (uint64_t e = 0; e < ix->ne; e++) {
+		double x = qeps;
+		for (uint64_t j = ix->eoff[e]; j < ix->eoff[e + 1]; j++)
+			x += q[ix->ecom[j]];
+		Q[e] = x;
+	}
+}
+
 /* The maximum-likelihood q for the index; q has ix->k values. With warm,
  * q holds a starting point on entry (else the closed form without
  * overlaps is used): every step rises, so the answer is at least as likely
@@ -420,12 +432,7 @@ static int estimate_q(const struct index *ix, double qeps, double *q,
 		}
 	}
 	for (int pass = 0; pass < AGM_PASSES && nact; pass++) {
-		for (uint64_t e = 0; e < ix->ne; e++) { /* afresh: no drift */
-			double x = qeps;
-			for (uint64_t j = ix->eoff[e]; j < ix->eoff[e + 1]; j++)
-				x += q[ix->ecom[j]];
-			Q[e] = x;
-		}
+		edges_q(ix, q, qeps, Q); /* afresh: no drift */
 		double worst = 0.0;
 		for (uint32_t a = 0; a < nact; a++) {
 			uint32_t i = active[a];
@@ -547,12 +554,7 @@ int agm_fit_background(const struct graph *g, const struct cover *c, double *eps
 	if (estimate_q(&ix, qeps, q, 0) < 0)
 		goto out;
 	for (int pass = 0; pass < AGM_PASSES; pass++) {
-		for (uint64_t e = 0; e < ix.ne; e++) {
-			double x = qeps;
-			for (uint64_t j = ix.eoff[e]; j < ix.eoff[e + 1]; j++)
-				x += q[ix.ecom[j]];
-			Q[e] = x;
-		}
+		edges_q(&ix, q, qeps, Q);
 		double moved = newton_background(&ix, c, q, nonedge, &qeps, Q);
 		if (estimate_q(&ix, qeps, q, 1) < 0)
 			goto out;

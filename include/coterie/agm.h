@@ -157,6 +157,8 @@ double agm_loglik(const struct graph *g, const struct cover *c, const double *p,
  * the log-likelihood alone it does not reward a cover for holding more
  * memberships than its links pay for. +INFINITY when a->loglik is. */
 double agm_code_length(const struct agm *a, uint32_t n);
+/* (agm_code_length() names members among n nodes of one kind; the
+ * commands call agm_code_length_of() below, which also knows two sides.) */
 /* The same code for cover c of graph g given the AGM log-likelihood
  * loglik of g under it. On a two-sided graph (graph.h) a community names
  * its senders among the senders and its receivers among the receivers:

@@ -395,11 +395,16 @@ static int choose_background(struct run *r)
 {
 	struct fit_params *p = &r->p;
 	int searches = !(p->epsilon > 0.0) && r->g->m < BACKGROUND_MAX_EDGES;
-	if (searches && !r->quiet)
+	if (searches && !r->quiet && p->model == MODEL_BIGCLAM)
 		notice("choosing the background epsilon: fits at the density (%.4g) and below it; "
-		       "the cover with the shortest code at its own background is kept, or, when "
-		       "the density leaves %.0f%% of the linked nodes out, the first that holds "
-		       "%.0f%% (see --epsilon)", model_default_epsilon(r->g),
+		       "the cover of the shortest code at its own background is kept among those "
+		       "holding %.0f%% of the linked nodes (%.0f%% if the density's holds fewer; "
+		       "see --epsilon)", model_default_epsilon(r->g), 100.0 * BACKGROUND_THIN,
+		       100.0 * BACKGROUND_COVER);
+	else if (searches && !r->quiet)
+		notice("choosing the background epsilon: the density (%.4g) unless it leaves "
+		       "%.0f%% of the linked nodes out, then the largest multiple of it whose "
+		       "cover holds %.0f%% (see --epsilon)", model_default_epsilon(r->g),
 		       100.0 * (1.0 - BACKGROUND_THIN), 100.0 * BACKGROUND_COVER);
 	int rc = background_choose(r->g, p, stop_asked, &r->quiet, &r->bg);
 	if (rc == -2)
@@ -573,7 +578,7 @@ static const struct snapshot *repeat_fits(struct run *r, const struct snapshot *
 		sb->seed[i] = q.seed + i;
 		sb->loglik[i] = x->trace[x->ntrace - 1].loglik;
 		if (sb->code)
-			sb->code[i] = agm_code_length(&x->agm, x->agm.n);
+			sb->code[i] = agm_code_length_of(&x->agm.cover, x->agm.loglik, r->graph);
 		double score = sb->code ? -sb->code[i] : sb->loglik[i];
 		if (i == 0 || score > best) {
 			best = score;

@@ -73,6 +73,21 @@ check "two-mode: run.json has the three runs, seeds 1-3" \
 import json, sys
 st = json.load(open(sys.argv[1]))['stability']
 assert [r['seed'] for r in st['runs']] == [1, 2, 3], st['runs']" "$tmp/ft/run.json"
+# the run kept is the one of shortest code, as --starts judges a two-mode
+# fit; its code, two-sided (senders named among the first column's nodes,
+# receivers among the second's), recomputed from the files by
+# tests/cli/agm_sided.py, an independent transcription
+eps=$(json_get "$tmp/ft/run.json" parameters.epsilon)
+set -- $("$PY" "$ROOT/tests/cli/agm_sided.py" "$tmp/t/edges.tsv" "$tmp/ft/memberships.tsv" "$eps")
+check "two-mode: the run kept has the shortest code, its code ($2) recomputed by side" \
+	"$PY" - "$tmp/ft/run.json" "$2" <<'PYEOF'
+import json, sys
+st = json.load(open(sys.argv[1]))['stability']
+codes = [r['code_length'] for r in st['runs']]
+kept = st['run_kept'] - 1
+assert kept == min(range(len(codes)), key=lambda i: (codes[i], i)), codes
+assert abs(codes[kept] - float(sys.argv[2])) <= 1e-7 * abs(codes[kept]), (codes, sys.argv[2])
+PYEOF
 
 # ---- made once: NA, as in a one-mode result
 check "a directed fit made once says NA in the stability column" \
