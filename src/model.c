@@ -24,6 +24,9 @@
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
+#ifdef __GLIBC__
+#include <malloc.h>
+#endif
 
 #include "coterie/graph.h"
 #include "coterie/model_poisson.h"
@@ -99,13 +102,22 @@ static inline double *own_colsum(struct model *m, uint32_t u)
 	return m->nsend && u >= m->nsend ? m->colsum + m->k : m->colsum;
 }
 
+/* Whether row entries e sit in the slab (and must not be freed alone). */
+static inline int in_slab(const struct model *m, const struct fentry *e)
+{
+	uintptr_t p = (uintptr_t)e, lo = (uintptr_t)m->slab;
+	return m->slab && p >= lo && p < lo + m->slab_len * sizeof *m->slab;
+}
+
 void model_release(struct model *m)
 {
 	if (!m)
 		return;
 	if (m->rows)
 		for (uint32_t u = 0; u < m->n; u++)
-			free(m->rows[u].e);
+			if (!in_slab(m, m->rows[u].e))
+				free(m->rows[u].e);
+	free(m->slab);
 	free(m->rows);
 	free(m->colsum);
 	memset(m, 0, sizeof *m);
@@ -121,7 +133,9 @@ int model_set_row(struct model *m, uint32_t u, const struct fentry *e, uint32_t 
 		uint32_t cap = nnz < 4 ? 4 : nnz + nnz / 2;
 		if (cap > m->k)
 			cap = m->k;
-		struct fentry *ne = util_realloc(r->e, cap, sizeof *ne);
+		/* a row in the slab leaves it: its old room stays there */
+		struct fentry *ne = in_slab(m, r->e) ? util_malloc(cap, sizeof *ne)
+						     : util_realloc(r->e, cap, sizeof *ne);
 		if (!ne) {
 			for (uint32_t i = 0; i < r->nnz; i++)
 				colsum[r->e[i].c] += r->e[i].v;
@@ -129,7 +143,7 @@ int model_set_row(struct model *m, uint32_t u, const struct fentry *e, uint32_t 
 		}
 		r->e = ne;
 		r->cap = cap;
-	} else if (r->cap > 16 && nnz < r->cap / 4) {
+	} else if (r->cap > 16 && nnz < r->cap / 4 && !in_slab(m, r->e)) {
 		/* rows are densest in the first sweeps: give the room back */
 		uint32_t cap = nnz < 4 ? 4 : nnz + nnz / 2;
 		struct fentry *ne = realloc(r->e, cap * sizeof *ne);
@@ -152,6 +166,59 @@ int model_set_row(struct model *m, uint32_t u, const struct fentry *e, uint32_t 
 	}
 	r->nnz = o;
 	return 0;
+}
+
+#define PACK_MEAN_MAX 16u /* model_pack() packs rows of at most this many entries on average */
+#define TRIM_MIN_BYTES (1u << 20) /* ... and hands freed rows back when they held this much */
+
+/* The room a row of nnz entries gets in the slab. */
+static inline uint32_t slab_room(const struct model *m, uint32_t nnz)
+{
+	uint32_t room = nnz + 1 + nnz / 4;
+	return room < m->k ? room : m->k;
+}
+
+void model_pack(struct model *m)
+{
+	size_t len = 0, nnz = 0, loose = 0;
+	for (uint32_t u = 0; u < m->n; u++) {
+		const struct frow *r = &m->rows[u];
+		len += slab_room(m, r->nnz);
+		nnz += r->nnz;
+		if (!in_slab(m, r->e))
+			loose += r->cap;
+	}
+	/* rows as dense as in the first sweeps are left where they are: a
+	 * slab then would double their memory for a sweep or two, and they
+	 * thin out again (DEVELOPERS.md, "Sweeps in runs") */
+	if (nnz > (size_t)PACK_MEAN_MAX * m->n || len == 0)
+		return;
+	struct fentry *slab = util_malloc(len, sizeof *slab);
+	if (!slab)
+		return;
+	size_t at = 0;
+	for (uint32_t u = 0; u < m->n; u++) {
+		struct frow *r = &m->rows[u];
+		uint32_t room = slab_room(m, r->nnz);
+		if (r->nnz)
+			memcpy(slab + at, r->e, r->nnz * sizeof *slab);
+		if (!in_slab(m, r->e))
+			free(r->e);
+		r->e = slab + at;
+		r->cap = room;
+		at += room;
+	}
+	free(m->slab);
+	m->slab = slab;
+	m->slab_len = len;
+#ifdef __GLIBC__
+	/* the rows just freed lay among each other on the heap: give their
+	 * pages back when they were many (the first pack after the fill of
+	 * the first sweeps); later packs free only the rows that outgrew
+	 * their room, and trimming every sweep would cost more than it gives */
+	if (loose * sizeof *slab >= TRIM_MIN_BYTES && loose >= len / 4)
+		malloc_trim(0);
+#endif
 }
 
 void model_recount(struct model *m)

@@ -67,6 +67,8 @@
 #define PEND_MAX (4u * BLOCK_NODES) /* nodes waiting for a later block */
 #define LL_CHUNK 2048u    /* nodes per likelihood part */
 #define POOL_MIN_ROWS 32u /* smaller blocks run on the calling thread alone */
+#define RUN_IDS 32u          /* a sweep visits runs of this many consecutive ids ... */
+#define RUN_MIN_NODES 65536u /* ... on graphs of at least this many nodes (sweep_order()) */
 
 /* A row computed in a block: where its entries sit in a worker's arena. */
 struct rowres {
@@ -115,6 +117,7 @@ struct sweep {
 	struct rowres *res;   /* BLOCK_NODES */
 	/* cutting blocks */
 	uint32_t *perm;       /* n (one block with mark) */
+	uint32_t *runs;       /* n / RUN_IDS + 1: the order of the runs (sweep_order()) */
 	uint32_t *mark;       /* n: block membership and neighbourhood marks */
 	uint32_t epoch;
 	uint32_t *blk;        /* two buffers of BLOCK_NODES: this block and the next */
@@ -161,8 +164,9 @@ struct sweep *sweep_new(struct model *m, const struct graph *g, const struct obj
 	s->ll_col = util_calloc(llk, sizeof *s->ll_col);
 	s->ll_stamp = util_calloc(llk, sizeof *s->ll_stamp);
 	s->moved = util_calloc(2 * n + 1, 1);
+	s->runs = util_calloc(n / RUN_IDS + 1, sizeof *s->runs);
 	if (!s->pool || !s->slots || !s->res || !s->perm || !s->blk || !s->parts || !s->ll_col ||
-	    !s->ll_stamp || !s->moved)
+	    !s->ll_stamp || !s->moved || !s->runs)
 		goto fail;
 	s->awake = s->moved + n;
 	s->mark = s->perm + n;
@@ -197,6 +201,7 @@ void sweep_free(struct sweep *s)
 	free(s->ll_stamp);
 	free(s->ll_pos);
 	free(s->moved);
+	free(s->runs);
 	free(s);
 }
 
@@ -687,6 +692,37 @@ static int apply_block(struct sweep *s)
 	return 0;
 }
 
+/* The sweep's order into s->perm: a random permutation of runs of
+ * RUN_IDS consecutive ids on graphs of RUN_MIN_NODES nodes or more, of
+ * single ids below. The fit numbers nodes breadth-first (order.h), so
+ * the nodes of a run have many neighbours in common and near each
+ * other: their rows are read from cache while the run is computed,
+ * where a permutation of single ids fetches every neighbour's row from
+ * memory once the rows outgrow the cache (DEVELOPERS.md, "Sweeps in
+ * runs"). Small graphs keep the plain permutation: their rows are in
+ * cache anyway. */
+static void sweep_order(struct sweep *s, struct rng *r)
+{
+	uint32_t n = s->g->n;
+	if (n < RUN_MIN_NODES) {
+		for (uint32_t i = 0; i < n; i++)
+			s->perm[i] = i;
+		rng_shuffle_u32(r, s->perm, n);
+		return;
+	}
+	uint32_t nr = (n + RUN_IDS - 1) / RUN_IDS;
+	for (uint32_t i = 0; i < nr; i++)
+		s->runs[i] = i;
+	rng_shuffle_u32(r, s->runs, nr);
+	uint32_t o = 0;
+	for (uint32_t i = 0; i < nr; i++) {
+		uint32_t u0 = s->runs[i] * RUN_IDS;
+		uint32_t u1 = n - u0 > RUN_IDS ? u0 + RUN_IDS : n;
+		for (uint32_t u = u0; u < u1; u++)
+			s->perm[o++] = u;
+	}
+}
+
 int sweep_run(struct sweep *s, uint64_t order_seed, sweep_between_fn *between, void *arg,
 	      double *dl)
 {
@@ -696,9 +732,7 @@ int sweep_run(struct sweep *s, uint64_t order_seed, sweep_between_fn *between, v
 	memset(s->moved, 0, n);
 	struct rng r;
 	rng_init(&r, order_seed);
-	for (uint32_t i = 0; i < n; i++)
-		s->perm[i] = i;
-	rng_shuffle_u32(&r, s->perm, n);
+	sweep_order(s, &r);
 	uint32_t cap = n / BLOCK_SHARE;
 	if (cap < 1)
 		cap = 1;
@@ -736,6 +770,7 @@ int sweep_run(struct sweep *s, uint64_t order_seed, sweep_between_fn *between, v
 	 * fit resumed from a checkpoint, whose colsum is recounted on
 	 * import, goes on bit for bit as the uninterrupted fit would */
 	model_recount(s->m);
+	model_pack(s->m);
 	if (rc == 0) {
 		atomic_store(&s->next, 0);
 		s->job_end = s->nparts;

@@ -55,6 +55,12 @@ struct model {
 	 * likelihood altogether, neither edges nor non-edges. Must not share
 	 * a pair with the graph's edges. Used to choose k. */
 	const struct graph *excl;
+	/* The slab (model_pack()): every row's entries in row order, each
+	 * row with a little room to grow. A row that outgrows its room moves
+	 * to a block of its own until the next pack. NULL before the first
+	 * pack. */
+	struct fentry *slab;
+	size_t slab_len;
 };
 
 /* The default background: the graph's density 2m / (n (n - 1)), kept
@@ -107,6 +113,15 @@ static inline void model_prefetch_next(const struct model *m, const uint32_t *ad
 /* Replace row u by the nnz entries e (borrowed; sorted, positive, capped
  * on the way in) and keep colsum up to date. Returns 0 or -1. */
 int model_set_row(struct model *m, uint32_t u, const struct fentry *e, uint32_t nnz);
+
+/* Move every row's entries into one slab in row order (rows with nearby
+ * ids then have their entries on nearby cache lines: after the fit's
+ * breadth-first renumbering, a node's neighbours' entries), each with a
+ * quarter more room than it holds, plus one. Changes no value. Rows
+ * denser than 16 entries on average (the first sweeps' fill) are left
+ * where they are, and so are all rows when the slab cannot be had (it
+ * is only for speed). The sweep engine packs after every sweep. */
+void model_pack(struct model *m);
 
 /* Recompute colsum from the rows (after loading a checkpoint, say). */
 void model_recount(struct model *m);

@@ -239,6 +239,56 @@ static void test_export_import_round_trip(void **state)
 	graph_free(g);
 }
 
+/* model_pack(): the rows move into one slab in row order and keep every
+ * bit; a row that outgrows its room afterwards leaves the slab, one that
+ * shrinks stays in it, and both read back as written (the reference is
+ * the rows before packing, and model_set_row's own contract). */
+static void test_pack_keeps_rows_and_lets_them_grow(void **state)
+{
+	(void)state;
+	struct rng r;
+	rng_init(&r, 31);
+	struct graph *g = test_random_graph(&r, 40, 0.2);
+	struct model a, b;
+	random_model(&r, &a, 40, 12, 0.01, 0.3);
+	random_model(&r, &b, 40, 12, 0.01, 0.0); /* same shape, rows copied below */
+	for (uint32_t u = 0; u < 40; u++)
+		assert_int_equal(model_set_row(&b, u, a.rows[u].e, a.rows[u].nnz), 0);
+	double before = model_loglik(&a, g);
+	model_pack(&a);
+	assert_non_null(a.slab);
+	assert_model_sane(&a);
+	assert_true(model_loglik(&a, g) == before);
+	for (uint32_t u = 0; u < 40; u++) {
+		assert_int_equal(a.rows[u].nnz, b.rows[u].nnz);
+		assert_memory_equal(a.rows[u].e, b.rows[u].e, a.rows[u].nnz * sizeof *a.rows[u].e);
+		/* in row order, each row after the last one's room */
+		if (u > 0)
+			assert_ptr_equal(a.rows[u].e, a.rows[u - 1].e + a.rows[u - 1].cap);
+	}
+	/* row 3 grows to every community (beyond its room), row 5 empties */
+	struct fentry full[12];
+	for (uint32_t c = 0; c < 12; c++)
+		full[c] = (struct fentry){ c, 0.25 + 0.01 * c };
+	struct fentry *room5 = a.rows[5].e;
+	assert_int_equal(model_set_row(&a, 3, full, 12), 0);
+	assert_int_equal(model_set_row(&b, 3, full, 12), 0);
+	assert_int_equal(model_set_row(&a, 5, NULL, 0), 0);
+	assert_int_equal(model_set_row(&b, 5, NULL, 0), 0);
+	assert_ptr_equal(a.rows[5].e, room5);
+	assert_model_sane(&a);
+	assert_true(model_loglik(&a, g) == model_loglik(&b, g));
+	/* a second pack takes the grown row back in and frees the first slab */
+	model_pack(&a);
+	assert_model_sane(&a);
+	assert_int_equal(a.rows[3].nnz, 12);
+	assert_ptr_equal(a.rows[4].e, a.rows[3].e + a.rows[3].cap);
+	assert_true(model_loglik(&a, g) == model_loglik(&b, g));
+	model_release(&a);
+	model_release(&b);
+	graph_free(g);
+}
+
 static void test_model_refuses_bad_shapes(void **state)
 {
 	(void)state;
@@ -458,6 +508,7 @@ int main(void)
 		cmocka_unit_test(test_row_gradient_matches_finite_differences),
 		cmocka_unit_test(test_row_update_raises_row_objective_and_loglik),
 		cmocka_unit_test(test_export_import_round_trip),
+		cmocka_unit_test(test_pack_keeps_rows_and_lets_them_grow),
 		cmocka_unit_test(test_model_refuses_bad_shapes),
 		cmocka_unit_test(test_default_epsilon_is_density),
 		cmocka_unit_test(test_held_out_pairs_leave_the_likelihood),
