@@ -1,7 +1,9 @@
 /*
  * sweep: the parallel sweep engine. One sweep visits every node once, in
- * a permutation drawn from a seed, and replaces its row of strengths by
- * the objective's update (objective.h); a pool of threads (pool.h)
+ * a permutation drawn from a seed (of runs of 32 consecutive ids on
+ * graphs of 65,536 nodes or more, for the cache), and replaces its row of
+ * strengths by the objective's update (objective.h); after the sweep the
+ * rows are packed (model_pack()). A pool of threads (pool.h)
  * computes the rows. It knows nothing of starts, snapshots or the
  * fitting thread: fit.c drives it, and a test can drive it alone.
  *
