@@ -694,13 +694,16 @@ static int apply_block(struct sweep *s)
 
 /* The sweep's order into s->perm: a random permutation of runs of
  * RUN_IDS consecutive ids on graphs of RUN_MIN_NODES nodes or more, of
- * single ids below. The fit numbers nodes breadth-first (order.h), so
- * the nodes of a run have many neighbours in common and near each
- * other: their rows are read from cache while the run is computed,
- * where a permutation of single ids fetches every neighbour's row from
- * memory once the rows outgrow the cache (DEVELOPERS.md, "Sweeps in
- * runs"). Small graphs keep the plain permutation: their rows are in
- * cache anyway. */
+ * single ids below. A graph's ids come in order of first appearance in
+ * its file (graph.h), so a node's neighbours first named on its own
+ * lines get the ids after it (and the fit's optional breadth-first
+ * renumbering, order.h, does the same by design): the nodes of a run
+ * then share many neighbours, whose rows are read from cache while the
+ * run is computed, where a permutation of single ids fetches every
+ * neighbour's row from memory once the rows outgrow the cache
+ * (DEVELOPERS.md, "Sweeps in runs"). Where the ids carry no locality
+ * the runs cost nothing either. Small graphs keep the plain
+ * permutation: their rows are in cache anyway. */
 static void sweep_order(struct sweep *s, struct rng *r)
 {
 	uint32_t n = s->g->n;

@@ -115,8 +115,8 @@ static inline void model_prefetch_next(const struct model *m, const uint32_t *ad
 int model_set_row(struct model *m, uint32_t u, const struct fentry *e, uint32_t nnz);
 
 /* Move every row's entries into one slab in row order (rows with nearby
- * ids then have their entries on nearby cache lines: after the fit's
- * breadth-first renumbering, a node's neighbours' entries), each with a
+ * ids then have their entries on nearby cache lines: with ids in order
+ * of first appearance in the file, many of a node's neighbours'), each with a
  * quarter more room than it holds, plus one. Changes no value. Rows
  * denser than 16 entries on average (the first sweeps' fill) are left
  * where they are, and so are all rows when the slab cannot be had (it
