@@ -286,6 +286,16 @@ static void test_pack_keeps_rows_and_lets_them_grow(void **state)
 	assert_true(model_loglik(&a, g) == model_loglik(&b, g));
 	model_release(&a);
 	model_release(&b);
+	/* rows denser than 16 entries on average (about 24 of 40 here) are
+	 * not packed: they stay where they are, every bit as they were */
+	struct model d;
+	random_model(&r, &d, 40, 40, 0.01, 0.6);
+	double dense = model_loglik(&d, g);
+	model_pack(&d);
+	assert_null(d.slab);
+	assert_model_sane(&d);
+	assert_true(model_loglik(&d, g) == dense);
+	model_release(&d);
 	graph_free(g);
 }
 
