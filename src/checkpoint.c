@@ -81,6 +81,8 @@ const char *checkpoint_check_params(const struct fit_params *p, char *why, size_
 			 CK_MAX_STARTS);
 	else if (p->no_reseed != 0 && p->no_reseed != 1)
 		snprintf(why, cap, "no_reseed is %d, not 0 or 1", p->no_reseed);
+	else if ((unsigned)p->seeding >= SEED_KINDS)
+		snprintf(why, cap, "seeding %u is not one this coterie knows", (unsigned)p->seeding);
 	else if ((unsigned)p->model >= MODEL_KINDS)
 		snprintf(why, cap, "model %u is not one this coterie knows", (unsigned)p->model);
 	else
@@ -426,6 +428,10 @@ static int fill_checkpoint(struct atomicfile *w, const void *arg)
 		put_model_section(w, g, p);
 	if (s->awake)
 		put_awake_section(w, g, s->awake);
+	/* format 4 on: how the starts are seeded (a later start of a resumed
+	 * fit seeds as the first did) */
+	put_section(w, "SEED", 4);
+	put_u32(w, (uint32_t)p->seeding);
 
 	put_u64(w, atomicfile_sum(w));
 	return 0;

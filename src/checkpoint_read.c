@@ -613,6 +613,19 @@ static int read_body(const char *path, struct rd *body, uint32_t version,
 		if (rd_section(path, body, "AWAK", &sec) || read_awake(path, &sec, ck))
 			return -1;
 	}
+	/* format 4 on: the seeding; before it every fit seeded by ego-nets */
+	p->seeding = SEED_EGONETS;
+	if (version >= 4) {
+		if (rd_section(path, body, "SEED", &sec))
+			return -1;
+		if (sec.left != 4)
+			return damaged(path, "the seeding takes %zu bytes, not 4", sec.left);
+		uint32_t kind = rd_u32(&sec);
+		if (kind >= SEED_KINDS)
+			return damaged(path, "seeding %" PRIu32 " is not one this coterie knows",
+				       kind);
+		p->seeding = (enum seed_kind)kind;
+	}
 	if (body->left != 0)
 		return damaged(path, "%zu unexpected bytes after the last section", body->left);
 	return 0;

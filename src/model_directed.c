@@ -57,14 +57,15 @@ int model_directed_prepare(const struct graph *g, struct model *m, struct graph 
 }
 
 int model_directed_seed(const struct graph *g, const struct graph *view, struct model *m,
-			uint64_t seed, uint32_t variant, struct seed_report *rep)
+			enum seed_kind kind, uint64_t seed, uint32_t variant,
+			struct seed_report *rep)
 {
 	if (!view)
-		return seed_model(g, m, seed, variant, rep);
+		return seed_start(g, m, kind, seed, variant, rep);
 	struct model one;
 	if (model_init(&one, view->n, m->k, m->epsilon))
 		return -1;
-	int rc = seed_model(view, &one, seed, variant, rep);
+	int rc = seed_start(view, &one, kind, seed, variant, rep);
 	for (uint32_t u = 0; rc == 0 && u < view->n; u++)
 		if (model_set_row(m, u, one.rows[u].e, one.rows[u].nnz) ||
 		    model_set_row(m, g->nsend + u, one.rows[u].e, one.rows[u].nnz))

@@ -58,6 +58,7 @@ void result_model_of(struct result_model *m, const struct snapshot *s)
 		.best_start = s->best_start,
 		.reseeds = s->reseeds,
 		.starts = s->starts,
+		.seeds = &s->seeds,
 		.start_ends = s->start_ends,
 		.savepoint = s->savepoint,
 		/* a resume from the savepoint goes on with its start in

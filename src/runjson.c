@@ -216,9 +216,27 @@ static json_t *j_params(const struct fit_params *p, const struct result_model *m
 	jsonout_set(jp, "past_plateau", json_boolean(p->past_plateau), bad);
 	jsonout_set(jp, "starts", jsonout_uint(p->starts), bad);
 	jsonout_set(jp, "reseed", json_boolean(!p->no_reseed), bad);
+	jsonout_set(jp, "seeding", jsonout_str(seed_kind_name(p->seeding)), bad);
 	jsonout_set(jp, "k_chosen_by",
 		    jsonout_str(meta && meta->k_auto ? "held-out likelihood" : "given"), bad);
 	return jp;
+}
+
+/* fit.seeds: how the last start seeded in this process began; null when
+ * none was (a resume that went on with its start). */
+static json_t *j_seeds(const struct result_model *m, int *bad)
+{
+	const struct seed_report *r = m->seeds;
+	if (!r || (r->passes == 0 && r->used_minima + r->cover + r->random == 0))
+		return json_null();
+	json_t *js = json_object();
+	jsonout_set(js, "start", jsonout_uint(m->starts), bad);
+	jsonout_set(js, "propagation_passes", r->passes ? jsonout_uint(r->passes) : json_null(),
+		    bad);
+	jsonout_set(js, "clusters_found", r->passes ? jsonout_uint(r->clusters) : json_null(), bad);
+	jsonout_set(js, "from_clusters", jsonout_uint(r->used_clusters), bad);
+	jsonout_set(js, "from_ego_nets", jsonout_uint(r->used_minima + r->cover + r->random), bad);
+	return js ? js : json_null();
 }
 
 /* fit.starts_judged: one object a start (its final l(F) and the code
@@ -263,6 +281,7 @@ static json_t *j_fit(const struct result_model *m, const struct result_meta *met
 	jsonout_set(jf, "start_kept", m->best_start ? jsonout_uint(m->best_start) : json_null(),
 		    bad);
 	jsonout_set(jf, "reseeds_kept", jsonout_uint(m->reseeds), bad);
+	jsonout_set(jf, "seeds", j_seeds(m, bad), bad);
 	jsonout_set(jf, "starts_judged", j_starts(m, bad), bad);
 	jsonout_set(jf, "memberships_from",
 		    jsonout_str(meta && meta->refine ? "agm refinement" : "strengths"), bad);

@@ -178,7 +178,7 @@ int seed_count_minima(const struct graph *g, uint32_t *count)
 int seed_model(const struct graph *g, struct model *m, uint64_t seed, uint32_t variant,
 	       struct seed_report *rep)
 {
-	struct seed_report local = { 0, 0, 0, 0 };
+	struct seed_report local = { 0 };
 	uint32_t n = g->n, k = m->k;
 	int rc = -1;
 	double *phi = util_malloc(n ? n : 1, sizeof *phi);
@@ -290,4 +290,30 @@ out:
 	free(roff);
 	free(ent);
 	return rc;
+}
+
+const char *seed_kind_name(enum seed_kind k)
+{
+	switch (k) {
+	case SEED_CLUSTERS: return "clusters";
+	case SEED_EGONETS: return "ego-nets";
+	default: return "unknown";
+	}
+}
+
+int seed_kind_parse(const char *s, enum seed_kind *out)
+{
+	for (int k = 0; k < SEED_KINDS; k++)
+		if (!strcmp(s, seed_kind_name((enum seed_kind)k))) {
+			*out = (enum seed_kind)k;
+			return 0;
+		}
+	return error("--seeding takes clusters or ego-nets, not '%s'", s);
+}
+
+int seed_start(const struct graph *g, struct model *m, enum seed_kind kind, uint64_t seed,
+	       uint32_t variant, struct seed_report *rep)
+{
+	return kind == SEED_EGONETS ? seed_model(g, m, seed, variant, rep)
+				    : seed_from_clusters(g, m, seed, variant, rep);
 }

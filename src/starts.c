@@ -33,7 +33,8 @@
  * failed merge halves the joins the next one may make). After the last
  * move the start climbs to its own plateau (--tol).
  * Moves stop after RESEED_FAILS failures in a row, RESEED_MAX moves, or
- * when they have used as many sweeps as the climb to the first plateau.
+ * when they have used half as many sweeps as the climb to the first
+ * plateau (at least RESEED_MIN_BUDGET).
  *
  * Savepoints. An exact resume must replay the same draws, so a savepoint
  * holds the start in progress (as it stands after a whole sweep while it
@@ -58,7 +59,8 @@
 
 #define RESEED_MAX 12u
 #define RESEED_FAILS 3u
-#define RESEED_MIN_BUDGET 30u
+#define RESEED_MIN_BUDGET 10u
+#define RESEED_BUDGET_DIV 2u /* the moves' sweeps: the climb's over this */
 #define MERGE_BATCH_DIV 16u /* the first merge move joins at most k / 16 pairs */
 #define MERGE_BATCH_MIN 8u
 
@@ -440,9 +442,17 @@ static enum fit_state reseed(struct fit *f)
 	 * merge batches") */
 	uint32_t merge_limit = f->m.k / MERGE_BATCH_DIV > MERGE_BATCH_MIN ? f->m.k / MERGE_BATCH_DIV
 									  : MERGE_BATCH_MIN;
-	/* the moves may spend at most as many sweeps as the climb did (and at
-	 * least RESEED_MIN_BUDGET), so reseeding at most about doubles a fit */
-	uint32_t budget = f->sweep > RESEED_MIN_BUDGET ? f->sweep : RESEED_MIN_BUDGET;
+	/* the moves may spend at most half as many sweeps as the climb did
+	 * (and at least RESEED_MIN_BUDGET). A move's sweeps cost more than
+	 * the climb's last ones (a move wakes many rows), and from clusters
+	 * the moves kept came first: at 10^5 and 2x10^5 nodes (mixing 0.2)
+	 * the moves of a budget of a whole climb (30 sweeps at least) and
+	 * those of half of one (10 at least) kept the same model, in 12.5
+	 * and 27.0 s against 6.0 and 13.5 s (DEVELOPERS.md, "Seeds from
+	 * clusters") */
+	uint32_t budget = f->sweep / RESEED_BUDGET_DIV > RESEED_MIN_BUDGET
+				  ? f->sweep / RESEED_BUDGET_DIV
+				  : RESEED_MIN_BUDGET;
 	uint32_t spent = 0;
 	double now = 0.0;
 	int have_now = 0;
@@ -553,8 +563,9 @@ static int begin_start(struct fit *f, uint32_t r)
 	fit_set_state(f, FIT_SEEDING);
 	f->awake_ok = 0;
 	double t = util_now();
-	int seeded = f->m.nsend ? model_directed_seed(f->gw, f->view, &f->m, f->p.seed, r, &f->seeds)
-				: seed_model(f->gw, &f->m, f->p.seed, r, &f->seeds);
+	int seeded = f->m.nsend ? model_directed_seed(f->gw, f->view, &f->m, f->p.seeding,
+						      f->p.seed, r, &f->seeds)
+				: seed_start(f->gw, &f->m, f->p.seeding, f->p.seed, r, &f->seeds);
 	f->stats.seed_seconds += util_now() - t;
 	if (seeded || fit_trace_add(f, fit_loglik(f)))
 		return -1;

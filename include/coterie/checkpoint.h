@@ -17,7 +17,7 @@ struct result_commit;
 struct graph;
 struct result_model;
 
-#define CHECKPOINT_VERSION 3u
+#define CHECKPOINT_VERSION 4u
 
 /* Write the checkpoint of model m of a fit of g with parameters p to
  * path, atomically (atomicfile.h). All borrowed. Returns 0 or -1 with a

@@ -71,6 +71,8 @@ struct fit_params {
 			      * ids. Results are in the graph's ids either
 			      * way. Off by default (DEVELOPERS.md,
 			      * performance notes). */
+	enum seed_kind seeding; /* how each start is seeded (seed.h); 0,
+			      * SEED_CLUSTERS, by default */
 	int full_sweeps;     /* 1: every sweep computes every row (no quiet
 			      * sweeps, sweep.h; for measurements: the
 			      * commands leave it 0). Not stored in a

@@ -19,10 +19,10 @@
 #include <stdint.h>
 
 #include "fcsr.h"
+#include "seed.h"
 
 struct graph;
 struct model;
-struct seed_report;
 
 /* Make the all-zero model m of g's rows two-sided, and for a directed
  * graph (g->paired) make *self_pairs (the pairs to leave out) and *view
@@ -39,7 +39,8 @@ int model_directed_prepare(const struct graph *g, struct model *m, struct graph 
  * the bipartite graph itself (an ego-net is a node and its partners of
  * the other kind). view borrowed (NULL for two-mode). Returns 0 or -1. */
 int model_directed_seed(const struct graph *g, const struct graph *view, struct model *m,
-			uint64_t seed, uint32_t variant, struct seed_report *rep);
+			enum seed_kind kind, uint64_t seed, uint32_t variant,
+			struct seed_report *rep);
 
 /* The column sums of each side of F (g two-sided, F its rows): into
  * sums (2 F->k values, borrowed): the sending rows', then the receiving. */

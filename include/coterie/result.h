@@ -109,6 +109,8 @@ struct result_model {
 	const struct fit_savepoint *savepoint; /* NULL: the checkpoint has none */
 	const uint8_t *awake;              /* NULL, or g->n flags: where a resume's
 					    * first sweep goes on (fit_origin) */
+	const struct seed_report *seeds;   /* NULL, or how the last start seeded
+					    * in this process began (run.json) */
 };
 
 /* Point every field of m into snapshot s (borrowed: s must outlive m). */

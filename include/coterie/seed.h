@@ -21,7 +21,24 @@ struct seed_report {
 	uint32_t used_minima;  /* of those, used as seeds */
 	uint32_t cover;        /* ego-nets of uncovered nodes added next */
 	uint32_t random;       /* random ego-nets added to reach k */
+	/* seed_start() with SEED_CLUSTERS (the ego-net counts above are then
+	 * those of the columns the clusters left) */
+	uint32_t clusters;     /* clusters of 2 nodes or more found */
+	uint32_t used_clusters; /* of those, seeded as columns */
+	uint32_t passes;       /* label propagation's passes */
 };
+
+/* How the starting communities are drawn (fit_params.seeding). */
+enum seed_kind {
+	SEED_CLUSTERS = 0, /* label propagation's clusters, ego-nets for the rest */
+	SEED_EGONETS = 1,  /* locally minimal ego-nets only (seed_model()) */
+	SEED_KINDS
+};
+
+/* "clusters" or "ego-nets" ("unknown" out of range), static. */
+const char *seed_kind_name(enum seed_kind k);
+/* Parse a --seeding value. Returns 0, or -1 (with error()). */
+int seed_kind_parse(const char *s, enum seed_kind *out);
 
 /* Triangles through each node, in O(m^1.5) (forward algorithm on a
  * degree ordering). tri: n values, borrowed. Returns 0 or -1. */
@@ -44,6 +61,25 @@ int seed_conductance(const struct graph *g, double *phi);
  * Returns 0 or -1. */
 int seed_model(const struct graph *g, struct model *m, uint64_t seed, uint32_t variant,
 	       struct seed_report *rep);
+
+/* Seed an all-zero model of m->k columns by the given kind: seed_model()
+ * or seed_from_clusters(). */
+int seed_start(const struct graph *g, struct model *m, enum seed_kind kind, uint64_t seed,
+	       uint32_t variant, struct seed_report *rep);
+
+/* Label propagation (seed_clusters.c): label[u] for every node (n values,
+ * borrowed), drawn from (seed, variant); *passes (may be NULL) the passes
+ * made. Returns 0 or -1. */
+int seed_propagate(const struct graph *g, uint64_t seed, uint32_t variant, uint32_t *label,
+		   uint32_t *passes);
+
+/* Seed an all-zero model from label propagation's clusters: the k
+ * likeliest clusters as columns, each member at the strength its
+ * cluster's density asks, then ego-nets (seed_model(), drawn from the
+ * same seed and variant) for the columns left; the variant draws another
+ * propagation. rep may be NULL. Returns 0 or -1. */
+int seed_from_clusters(const struct graph *g, struct model *m, uint64_t seed, uint32_t variant,
+		       struct seed_report *rep);
 
 /* How many distinct locally minimal ego-nets seed_model() (variant 0)
  * would take with k unbounded: the minima in its order, a centre inside

@@ -71,6 +71,7 @@ enum {
 	CLI_OPT_WEIGHT_ATTR,
 	CLI_OPT_DIRECTED,
 	CLI_OPT_TWO_MODE,
+	CLI_OPT_SEEDING,
 	CLI_OPT_OWN,
 };
 
@@ -83,6 +84,7 @@ struct cli_fit_opts {
 	struct fit_params p;
 	enum graph_format fmt;
 	int have_k, have_tol, have_pat, have_max, have_eps, have_seed, have_starts;
+	int have_seeding;          /* --seeding was given */
 	int k_auto;                /* -k auto */
 	struct select_params sp;   /* --k-grid and --holdout for -k auto */
 	int have_grid;             /* --k-grid was given */
@@ -118,6 +120,7 @@ struct cli_fit_opts {
 	{ "weight-attr", required_argument, NULL, CLI_OPT_WEIGHT_ATTR }, \
 	{ "directed", no_argument, NULL, CLI_OPT_DIRECTED }, \
 	{ "two-mode", no_argument, NULL, CLI_OPT_TWO_MODE }, \
+	{ "seeding", required_argument, NULL, CLI_OPT_SEEDING }, \
 	{ "help", no_argument, NULL, 'h' }
 
 /* Defaults: fit_params_default() with one thread per core. */

@@ -180,6 +180,11 @@ int cli_fit_opts_take(struct cli_fit_opts *o, int c, const char *arg)
 		o->have_starts = 1;
 		return 1;
 	case CLI_OPT_NO_RESEED: p->no_reseed = 1; return 1;
+	case CLI_OPT_SEEDING:
+		if (seed_kind_parse(arg, &p->seeding))
+			exit(EXIT_USAGE); /* seed_kind_parse() said why */
+		o->have_seeding = 1;
+		return 1;
 	case CLI_OPT_SKIP_LINES:
 		o->skip_lines = cli_u64("--skip-lines", arg);
 		o->no_header = 1; /* the user said where the edges start */
@@ -248,6 +253,9 @@ void cli_fit_opts_resume(const struct cli_fit_opts *o, const struct fit_params *
 		    saved->k, o->p.k);
 	if (o->have_eps && o->p.epsilon != saved->epsilon)
 		die(EXIT_USAGE, "--epsilon cannot change %s", when);
+	if (o->have_seeding && o->p.seeding != saved->seeding)
+		die(EXIT_USAGE, "the saved fit seeds by %s; --seeding cannot change that %s",
+		    seed_kind_name(saved->seeding), when);
 	if (o->weighted && !model_kind_weighted(saved->model))
 		die(EXIT_USAGE, "the saved fit is of the %s model; --weighted cannot change that %s",
 		    model_kind_name(saved->model), when);

@@ -64,6 +64,7 @@ static void explore_usage(FILE *out)
 		"                        below 100000 edges, else 1)\n"
 		"      --no-reseed       skip the moves that join pieces of a community or\n"
 		"                        re-seed the weakest one\n"
+		"      --seeding S       clusters (the default) or ego-nets (see coterie fit)\n"
 		"      --tol X           plateau: relative gain per sweep below X ...\n"
 		"      --patience N      ... for N sweeps in a row (defaults 1e-4, 3)\n"
 		"      --max-sweeps N    stop after N sweeps in all (default 500)\n"

@@ -6,7 +6,7 @@
  *   benchtool fit GRAPH [-k K] [-j T] [--seed S] [--starts N] [--no-reseed]
  *                       [--max-sweeps N] [--past-plateau] [--truth FILE]
  *                       [--renumber] [--yardstick] [--weighted] [--directed]
- *                       [--full-sweeps]
+ *                       [--full-sweeps] [--seeding clusters|ego-nets]
  *       load GRAPH (timed), fit it with the engine of `coterie fit`, print
  *       load time and MB/s, seeding time, seconds per sweep, sweeps, the
  *       split of the fitting thread's time, peak RSS, ns per neighbour
@@ -215,6 +215,11 @@ static int fit_args(int argc, char **argv, struct fit_params *pp, struct graph_l
 			truth = v, i++;
 		else if (!strcmp(a, "--no-reseed"))
 			p.no_reseed = 1;
+		else if (!strcmp(a, "--seeding") && v) {
+			if (seed_kind_parse(v, &p.seeding))
+				return 2;
+			i++;
+		}
 		else if (!strcmp(a, "--past-plateau"))
 			p.past_plateau = 1;
 		else if (!strcmp(a, "--renumber"))
@@ -304,6 +309,8 @@ static int cmd_fit(int argc, char **argv)
 	printf("k\t%u\nthreads\t%u\nstate\t%s\n", p.k, p.threads, fit_state_name(st));
 	printf("fit_s\t%.3f\nfit_cpu_s\t%.3f\nseed_s\t%.3f\n", fit_s, cpu, x->seed_seconds);
 	printf("sweeps\t%u\nplateau_sweep\t%u\n", x->sweeps, s->plateau_sweep);
+	printf("seeding\t%s\nseed_clusters_found\t%u\nseed_from_clusters\t%u\n",
+	       seed_kind_name(p.seeding), s->seeds.clusters, s->seeds.used_clusters);
 	printf("sweep_s\t%.4f\n", x->sweeps ? x->sweep_seconds / x->sweeps : 0.0);
 	printf("sweeps_s_total\t%.3f\nloglik_s_total\t%.3f\npublish_s_total\t%.3f\n",
 	       x->sweep_seconds, x->loglik_seconds, x->publish_seconds);

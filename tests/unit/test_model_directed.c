@@ -197,7 +197,7 @@ static double sweeps(const struct graph *g, enum model_kind kind, pairs_fn pairs
 	struct graph *sp, *view;
 	struct seed_report rep;
 	sided_model(&m, g, 20, 0.002, &sp, &view);
-	assert_int_equal(model_directed_seed(g, view, &m, 5, 0, &rep), 0);
+	assert_int_equal(model_directed_seed(g, view, &m, SEED_CLUSTERS, 5, 0, &rep), 0);
 	double ll = test_sweeps_sum_exactly(&m, g, model_objective_of(kind), threads, pairs, 1e-10,
 					    out);
 	graph_free(sp);
