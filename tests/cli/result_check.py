@@ -193,10 +193,10 @@ def main():
 
     with open(out + "/checkpoint.cot", "rb") as f:
         ck = f.read()
-    # include/coterie/result.h: magic "COTERIE\x1a", u32 version 3, u32
+    # coterie-files(5): magic "COTERIE\x1a", u32 version 4, u32
     # reserved, u64 fingerprint, little-endian.
-    report(ck[:8] == b"COTERIE\x1a" and int.from_bytes(ck[8:12], "little") == 3,
-           "checkpoint.cot starts with the magic and version 3")
+    report(ck[:8] == b"COTERIE\x1a" and int.from_bytes(ck[8:12], "little") == 4,
+           "checkpoint.cot starts with the magic and version 4")
     fp = "%016x" % int.from_bytes(ck[16:24], "little")
     report(fp == run["graph"]["fingerprint"],
            "checkpoint fingerprint %s equals run.json graph.fingerprint" % fp)

@@ -12,7 +12,7 @@ football=$DATA/football/edges.tsv
 need_file "$football"
 
 # as tests/cli/fit_refine.sh: a rough fit, so the refinement has moves to make
-fitargs="-k 12 --seed 5 --starts 1 --max-sweeps 10 -j 2 -q"
+fitargs="-k 12 --seed 5 --starts 1 --max-sweeps 10 --seeding ego-nets -j 2 -q"
 "$BIN" fit "$football" $fitargs -o "$tmp/plain"
 "$BIN" fit "$football" $fitargs --refine -o "$tmp/ref"
 check "fit --refine: exit 0" [ $? -eq 0 ]

@@ -547,12 +547,12 @@ static void test_run_json_has_every_key_in_order_with_values(void **state)
 					     "isolated", "directed_input" };
 	static const char *const params[] = { "model", "k", "threads", "seed", "tol", "patience",
 					      "max_sweeps", "epsilon", "delta", "min_links", "past_plateau",
-					      "starts", "reseed", "k_chosen_by" };
+					      "starts", "reseed", "seeding", "k_chosen_by" };
 	static const char *const fit[] = { "status", "state", "sweeps", "plateau_sweep",
 					   "seconds", "loglik", "agm_loglik", "communities",
 					   "covered_nodes", "overlapping_nodes",
 					   "communities_ended_sooner", "start_kept", "reseeds_kept",
-					   "starts_judged", "memberships_from" };
+					   "seeds", "starts_judged", "memberships_from" };
 	static const char *const run[] = { "wall_seconds", "peak_rss_kb" };
 	assert_keys(root, top, 12);
 	/* k was given, no background choice recorded and no link check was
@@ -561,8 +561,8 @@ static void test_run_json_has_every_key_in_order_with_values(void **state)
 	assert_true(json_is_null(get(root, "background", NULL)));
 	assert_true(json_is_null(get(root, "link_check", NULL)));
 	assert_keys(get(root, "graph", NULL), graph, 11);
-	assert_keys(get(root, "parameters", NULL), params, 14);
-	assert_keys(get(root, "fit", NULL), fit, 15);
+	assert_keys(get(root, "parameters", NULL), params, 15);
+	assert_keys(get(root, "fit", NULL), fit, 16);
 	assert_keys(get(root, "run", NULL), run, 2);
 
 	assert_int_equal(json_integer_value(get(root, "coterie", "format")), 1);
@@ -588,6 +588,9 @@ static void test_run_json_has_every_key_in_order_with_values(void **state)
 	assert_true(json_real_value(get(root, "parameters", "delta")) == fx.s.delta);
 	assert_true(json_real_value(get(root, "parameters", "min_links")) == AGM_MIN_LINKS);
 	assert_true(json_is_false(get(root, "parameters", "past_plateau")));
+	assert_string_equal(json_string_value(get(root, "parameters", "seeding")), "clusters");
+	/* the fixture's snapshot seeded nothing in this process */
+	assert_true(json_is_null(get(root, "fit", "seeds")));
 
 	assert_string_equal(json_string_value(get(root, "fit", "status")), "levelled");
 	assert_string_equal(json_string_value(get(root, "fit", "state")), "levelled");
@@ -607,6 +610,34 @@ static void test_run_json_has_every_key_in_order_with_values(void **state)
 	assert_true(json_is_null(get(root, "run", "peak_rss_kb"))); /* 0 means unknown */
 	json_decref(root);
 	remove_folder(dir);
+}
+
+/* fit.seeds copies the last start's seed report (coterie-files(5)). */
+static void test_run_json_records_how_the_last_start_began(void **state)
+{
+	(void)state;
+	struct snapshot s = fx.s;
+	s.starts = 3;
+	s.seeds = (struct seed_report){ .local_minima = 9, .used_minima = 1, .cover = 0,
+					.random = 1, .clusters = 7, .used_clusters = 1, .passes = 4 };
+	const char *tmp = test_tmpdir();
+	char dir[4200];
+	snprintf(dir, sizeof dir, "%s/out", tmp);
+	assert_int_equal(result_write(dir, fx.g, &fx.p, model_of(&s), &fx.meta), 0);
+	json_error_t jerr;
+	json_t *root = json_load_file(path_in(dir, "run.json"), 0, &jerr);
+	assert_non_null(root);
+	json_t *js = get(root, "fit", "seeds");
+	static const char *const keys[] = { "start", "propagation_passes", "clusters_found",
+					    "from_clusters", "from_ego_nets" };
+	assert_keys(js, keys, 5);
+	assert_int_equal(json_integer_value(json_object_get(js, "start")), 3);
+	assert_int_equal(json_integer_value(json_object_get(js, "propagation_passes")), 4);
+	assert_int_equal(json_integer_value(json_object_get(js, "clusters_found")), 7);
+	assert_int_equal(json_integer_value(json_object_get(js, "from_clusters")), 1);
+	assert_int_equal(json_integer_value(json_object_get(js, "from_ego_nets")), 2);
+	json_decref(root);
+	test_rmtree(tmp);
 }
 
 static void test_run_json_records_the_agm_refinement(void **state)
@@ -877,15 +908,16 @@ static void test_checkpoint_layout_matches_the_documentation(void **state)
 	unsigned char *buf = slurp(path, &size);
 	assert_true(size > 32);
 	assert_memory_equal(buf, "COTERIE\x1a", 8);
-	assert_int_equal(le(buf + 8, 4), 3);   /* version */
+	assert_int_equal(le(buf + 8, 4), 4);   /* version */
 	assert_int_equal(le(buf + 12, 4), 0);  /* reserved */
 	assert_true(le(buf + 16, 8) == graph_fingerprint(fx.g));
 	assert_true(le(buf + size - 8, 8) == fnv1a(buf, size - 8));
 
-	/* the five sections in order, filling the space up to the checksum */
-	static const char *const tags[] = { "PARM", "STAT", "TRAC", "GRPH", "STRN" };
+	/* the five sections in order, then SEED (the fixture has no RSUM,
+	 * MODL or AWAK), filling the space up to the checksum */
+	static const char *const tags[] = { "PARM", "STAT", "TRAC", "GRPH", "STRN", "SEED" };
 	size_t o = 24;
-	for (int i = 0; i < 5; i++) {
+	for (int i = 0; i < 6; i++) {
 		assert_memory_equal(buf + o, tags[i], 4);
 		o += 12 + (size_t)le(buf + o + 4, 8);
 	}
@@ -922,6 +954,9 @@ static void test_checkpoint_layout_matches_the_documentation(void **state)
 	assert_int_equal(le(buf + s + 4, 4), K);
 	assert_int_equal(le(buf + s + 8, 8), 10);
 	assert_int_equal(len, 16 + (N + 1) * 8 + 10 * 12);
+	s = section(buf, size, "SEED", &len);
+	assert_int_equal(len, 4);
+	assert_int_equal(le(buf + s, 4), 0); /* clusters */
 	free(buf);
 	test_rmtree(dir);
 }
@@ -1308,9 +1343,11 @@ static void test_checkpoint_reads_format_1(void **state)
 	size_t parm = section(good, size, "PARM", &len);
 	unsigned char *old = malloc(size);
 	assert_non_null(old);
+	/* PARM's last 8 bytes and the SEED section (16 bytes, last before
+	 * the checksum) left out */
 	memcpy(old, good, parm + 44);
-	memcpy(old + parm + 44, good + parm + 52, size - parm - 52);
-	size_t osize = size - 8;
+	memcpy(old + parm + 44, good + parm + 52, size - 24 - parm - 52);
+	size_t osize = size - 8 - 16;
 	put_le(old + 8, 1, 4);
 	put_le(old + parm - 8, 44, 8);
 	reseal(old, osize);
@@ -1321,6 +1358,7 @@ static void test_checkpoint_reads_format_1(void **state)
 	assert_int_equal(ck.params.max_sweeps, 500);
 	assert_int_equal(ck.params.starts, 1);
 	assert_int_equal(ck.params.no_reseed, 1);
+	assert_int_equal(ck.params.seeding, SEED_EGONETS); /* the only seeding before format 4 */
 	assert_int_equal(ck.F.off[ck.F.n], 10);
 	checkpoint_release(&ck);
 	/* a format-1 file with format-2 parameters is refused */
@@ -1441,6 +1479,42 @@ static void test_checkpoint_keeps_where_an_interrupt_left_the_starts(void **stat
 	test_rmtree(dir);
 }
 
+/* The SEED section (coterie-files(5), format 4): the seeding comes back
+ * as written; a kind this coterie does not know, a section of the wrong
+ * length and a format-4 file without it are refused. */
+static void test_checkpoint_keeps_the_seeding(void **state)
+{
+	(void)state;
+	char dir[4096];
+	snprintf(dir, sizeof dir, "%s", test_tmpdir());
+	char path[4200];
+	snprintf(path, sizeof path, "%s/checkpoint.cot", dir);
+	struct fit_params p = fx.p;
+	p.seeding = SEED_EGONETS;
+	assert_int_equal(checkpoint_write(path, fx.g, &p, model_of(&fx.s)), 0);
+	struct checkpoint ck;
+	assert_int_equal(checkpoint_read(path, &ck), 0);
+	assert_int_equal(ck.params.seeding, SEED_EGONETS);
+	checkpoint_release(&ck);
+
+	struct crafted c;
+	craft_begin(&c, path);
+	size_t len;
+	size_t at = section(c.good, c.size, "SEED", &len);
+	assert_int_equal(len, 4);
+	assert_int_equal(le(c.good + at, 4), 1);
+	put_le(c.buf + at, 2, 4);
+	REFUSED(&c, "seeding 2 is not one this coterie knows");
+	put_le(c.buf + at - 8, 0, 8); /* an empty section; its 4 bytes left over */
+	REFUSED(&c, "the seeding takes 0 bytes, not 4");
+	/* the section cut off: the checksum follows STRN */
+	memcpy(c.buf + at - 12, c.good + c.size - 8, 8);
+	craft_refused(&c, c.size - 16, "the 'SEED' section is missing", __LINE__);
+	free(c.good);
+	free(c.buf);
+	test_rmtree(dir);
+}
+
 /* The AWAK section (coterie-files(5)): the awake flags of a fit's last
  * sweep (sweep.h) come back as written, through checkpoint_origin(), and
  * a section of the wrong length or with a bit set past the last node is
@@ -1475,7 +1549,9 @@ static void test_checkpoint_keeps_the_awake_flags(void **state)
 	c.buf[at] = 0x59 | 0x80; /* node 7 does not exist */
 	REFUSED(&c, "past the last node");
 	put_le(c.buf + at - 8, 2, 8); /* two bytes for seven nodes */
-	REFUSED(&c, "'AWAK' section claims");
+	REFUSED(&c, "awake section holds 2 bytes for 7 nodes");
+	put_le(c.buf + at - 8, 1000, 8); /* past the end of the file */
+	REFUSED(&c, "'AWAK' section claims 1000 bytes");
 	put_le(c.buf + at - 8, 0, 8); /* none: the byte is then left over */
 	REFUSED(&c, "awake section holds 0 bytes");
 	free(c.good);
@@ -1710,6 +1786,7 @@ int main(void)
 		cmocka_unit_test(test_communities_tsv_lists_figures_largest_first),
 		cmocka_unit_test(test_trace_tsv_round_trips_the_loglik_exactly),
 		cmocka_unit_test(test_run_json_has_every_key_in_order_with_values),
+		cmocka_unit_test(test_run_json_records_how_the_last_start_began),
 		cmocka_unit_test(test_run_json_records_the_agm_refinement),
 		cmocka_unit_test(test_run_json_writes_big_seed_as_string_and_infinity_as_null),
 		cmocka_unit_test(test_k_selection_and_link_check_are_recorded),
@@ -1727,6 +1804,7 @@ int main(void)
 		cmocka_unit_test(test_failed_write_keeps_the_old_file_and_no_temporary),
 		cmocka_unit_test(test_resume_through_the_checkpoint_matches_the_uninterrupted_fit),
 		cmocka_unit_test(test_checkpoint_keeps_the_awake_flags),
+		cmocka_unit_test(test_checkpoint_keeps_the_seeding),
 		cmocka_unit_test(test_checkpoint_release_is_safe_on_zeroed_struct),
 	};
 	return cmocka_run_group_tests(tests, setup, teardown);
