@@ -14,7 +14,7 @@ struct fit_params;
 /* The bytes a fit of g (borrowed, already loaded) with p will add to the
  * resident size at its peak: a fixed part, a part a node and each further
  * thread's scratch, plus the larger of a part an entry of the predicted
- * fill (memory_fill(); the first sweeps) and a part an edge and an entry
+ * fill (memory_fill_for(); the first sweeps) and a part an edge and an entry
  * of the fill (the end of the fit), fitted to measured peaks and scaled
  * by 1.1. An
  * estimate, not a bound. Thread stacks are not included (see
@@ -26,6 +26,11 @@ uint64_t memory_fit_estimate(const struct graph *g, const struct fit_params *p);
  * a node on average; from k, n / k and the mean degree times
  * memory_leak_share(). 0 for an empty graph or k = 0. */
 double memory_fill(const struct graph *g, uint32_t k);
+
+/* The fill a fit of g with p predicts: memory_fill(), capped when the
+ * starts are seeded from clusters (p->seeding), which fill rows less
+ * (src/memory.c says by how much it was measured). */
+double memory_fill_for(const struct graph *g, const struct fit_params *p);
 
 /* The share of g's edges (borrowed) that close no triangle, from a
  * sample of at most about 20,000 edges spread evenly over the edge list:

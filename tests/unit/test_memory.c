@@ -60,6 +60,7 @@ static void test_estimate_grows_with_k_and_threads(void **state)
 	struct fit_params p;
 	fit_params_default(&p);
 	p.threads = 1;
+	p.seeding = SEED_EGONETS;
 	uint64_t last = 0;
 	double last_fill = 0.0;
 	for (uint32_t k = 2; k <= 1024; k *= 2) {
@@ -95,6 +96,7 @@ static void test_estimate_takes_the_larger_phase(void **state)
 	fit_params_default(&p);
 	p.threads = 1;
 	p.k = 50;
+	p.seeding = SEED_EGONETS; /* memory_fill() as it is (no cap) */
 	struct graph *g = test_random_graph(&r, 400, 0.5);
 	double fill = memory_fill(g, p.k);
 	double end = 1.1 * (1265838.0 + 80.4 * 400 + 2.3 * fill * (double)g->m);
@@ -107,12 +109,51 @@ static void test_estimate_takes_the_larger_phase(void **state)
 	graph_free(g);
 }
 
+/* Seeds from clusters cap the fill at 1.5 x mean degree x leak share, at
+ * least 4 (src/memory.c): on G(2000, 0.005) (about 10 neighbours a node,
+ * nearly no triangle: leak share above 0.9) the cap is near 15, above
+ * memory_fill()'s fill at k 8 and below it at k 4096; on G(400, 0.5)
+ * (nearly every edge closes a triangle) the cap is its floor, 4. */
+static void test_clusters_cap_the_fill(void **state)
+{
+	(void)state;
+	struct rng r;
+	rng_init(&r, 7);
+	struct graph *g = test_random_graph(&r, 2000, 0.005);
+	struct fit_params p;
+	fit_params_default(&p);
+	assert_int_equal(p.seeding, SEED_CLUSTERS);
+	double cap = 1.5 * (double)g->off[g->n] / g->n * memory_leak_share(g);
+	assert_true(cap > 4.0);
+	for (uint32_t k = 8; k <= 4096; k *= 2) {
+		p.k = k;
+		double want = memory_fill(g, k) < cap ? memory_fill(g, k) : cap;
+		assert_true(fabs(memory_fill_for(g, &p) - want) <= 1e-9 * want);
+	}
+	/* memory_fill() passes the cap near k 2048 (14.6 against 14.5) */
+	p.k = 4096;
+	assert_true(memory_fill(g, 4096) > cap); /* the cap binds here */
+	assert_true(fabs(memory_fill_for(g, &p) - cap) <= 1e-9 * cap);
+	uint64_t clusters = memory_fit_estimate(g, &p);
+	p.seeding = SEED_EGONETS;
+	assert_true(memory_fit_estimate(g, &p) > clusters);
+	graph_free(g);
+	g = test_random_graph(&r, 400, 0.5);
+	p.seeding = SEED_CLUSTERS;
+	p.k = 50;
+	assert_true(1.5 * (double)g->off[g->n] / g->n * memory_leak_share(g) < 4.0);
+	double f = memory_fill(g, 50);
+	assert_true(fabs(memory_fill_for(g, &p) - (f < 4.0 ? f : 4.0)) <= 1e-12);
+	graph_free(g);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_leak_share_of_two_triangles_and_a_bridge),
 		cmocka_unit_test(test_leak_share_of_a_star_and_a_clique),
 		cmocka_unit_test(test_estimate_grows_with_k_and_threads),
+		cmocka_unit_test(test_clusters_cap_the_fill),
 		cmocka_unit_test(test_estimate_takes_the_larger_phase),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
