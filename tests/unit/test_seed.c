@@ -115,16 +115,24 @@ static int column_of(const struct model *m, uint32_t u)
 	return m->rows[u].nnz == 0 ? -1 : (int)m->rows[u].e[0].c;
 }
 
+/* g seeded from clusters into a fresh model of k columns (background
+ * eps, seed 7 unless given), checked sane; the report in *rep. */
+static void seeded(const struct graph *g, struct model *m, uint32_t k, double eps, uint64_t seed,
+		   struct seed_report *rep)
+{
+	assert_int_equal(model_init(m, g->n, k, eps), 0);
+	assert_int_equal(seed_from_clusters(g, m, seed, 0, rep), 0);
+	assert_model_sane(m);
+}
+
 static void test_cluster_columns_take_the_clusters_at_their_density(void **state)
 {
 	(void)state;
 	static const uint32_t sizes[] = { 5, 5 };
 	struct graph *g = cliques(sizes, 2, 1);
 	struct model m;
-	assert_int_equal(model_init(&m, g->n, 2, 0.01), 0);
 	struct seed_report rep;
-	assert_int_equal(seed_from_clusters(g, &m, 7, 0, &rep), 0);
-	assert_model_sane(&m);
+	seeded(g, &m, 2, 0.01, 7, &rep);
 	assert_int_equal(rep.used_clusters, 2);
 	/* Each clique is a cluster of 10 edges among 10 pairs, p = 1, taken
 	 * as CLUSTER_P_MAX = 0.9; qeps = -ln(1 - 0.01) = 0.0100503; so
@@ -152,10 +160,8 @@ static void test_more_clusters_than_k_keep_the_likeliest(void **state)
 	static const uint32_t sizes[] = { 4, 6, 5 };
 	struct graph *g = cliques(sizes, 3, 0);
 	struct model m;
-	assert_int_equal(model_init(&m, g->n, 2, 0.05), 0);
 	struct seed_report rep;
-	assert_int_equal(seed_from_clusters(g, &m, 1, 0, &rep), 0);
-	assert_model_sane(&m);
+	seeded(g, &m, 2, 0.05, 1, &rep);
 	assert_int_equal(rep.clusters, 3);
 	assert_int_equal(rep.used_clusters, 2);
 	for (uint32_t u = 0; u < 4; u++)
@@ -174,13 +180,11 @@ static void test_fewer_clusters_than_k_fill_with_ego_nets(void **state)
 	static const uint32_t sizes[] = { 5, 5 };
 	struct graph *g = cliques(sizes, 2, 1);
 	struct model m;
-	assert_int_equal(model_init(&m, g->n, 4, 0.01), 0);
 	struct seed_report rep;
-	assert_int_equal(seed_from_clusters(g, &m, 7, 0, &rep), 0);
-	assert_model_sane(&m);
+	seeded(g, &m, 4, 0.01, 7, &rep);
 	assert_int_equal(rep.used_clusters, 2);
 	/* the clusters take columns 0 and 1; the ego-nets the rest, at
-	 * strength 1 as seed_model_egonets() plants them */
+	 * strength 1 as seed_model() plants them */
 	assert_int_equal(rep.used_minima + rep.cover + rep.random, 2);
 	double mass[4] = { 0, 0, 0, 0 };
 	for (uint32_t u = 0; u < g->n; u++)
