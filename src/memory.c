@@ -151,12 +151,16 @@ double memory_leak_share(const struct graph *g)
 #define CLUSTER_FILL_PER_LEAK 1.5
 #define CLUSTER_FILL_MIN 4.0
 
-double memory_fill(const struct graph *g, uint32_t k)
+/* mean degree x leak share: the neighbours a node has outside triangles */
+static double leak_degree(const struct graph *g)
 {
-	if (!g->n || !k)
-		return 0.0;
-	double n = g->n, kk = k, mean_deg = (double)g->off[g->n] / n;
-	double x = mean_deg * memory_leak_share(g);
+	return (double)g->off[g->n] / g->n * memory_leak_share(g);
+}
+
+/* memory_fill() with leak_degree() given. */
+static double fill_at(const struct graph *g, uint32_t k, double x)
+{
+	double n = g->n, kk = k;
 	double lk = log(kk), lx = log(x > 0.05 ? x : 0.05), ln = log(n > kk ? n / kk : 1.0);
 	double fill = exp(F0 + F1 * lk + F2 * lx + F3 * lx * lk + F4 * ln + F5 * ln * lk);
 	if (fill > kk)
@@ -164,12 +168,19 @@ double memory_fill(const struct graph *g, uint32_t k)
 	return fill;
 }
 
+double memory_fill(const struct graph *g, uint32_t k)
+{
+	return g->n && k ? fill_at(g, k, leak_degree(g)) : 0.0;
+}
+
 double memory_fill_for(const struct graph *g, const struct fit_params *p)
 {
-	double fill = memory_fill(g, p->k ? p->k : 1);
-	if (p->seeding != SEED_CLUSTERS || !g->n)
+	if (!g->n)
+		return 0.0;
+	/* the leak share is sampled once for both */
+	double x = leak_degree(g), fill = fill_at(g, p->k ? p->k : 1, x);
+	if (p->seeding != SEED_CLUSTERS)
 		return fill;
-	double x = (double)g->off[g->n] / g->n * memory_leak_share(g);
 	double cap = CLUSTER_FILL_PER_LEAK * x;
 	if (cap < CLUSTER_FILL_MIN)
 		cap = CLUSTER_FILL_MIN;

@@ -108,7 +108,7 @@ out:
 
 struct cluster {
 	double gain, f;
-	uint32_t label, size;
+	uint32_t label;
 };
 
 static int cluster_cmp(const void *a, const void *b)
@@ -133,13 +133,11 @@ int seed_from_clusters(const struct graph *g, struct model *m, uint64_t seed, ui
 	uint32_t *label = util_malloc(n ? n : 1, sizeof *label);
 	uint32_t *size = util_calloc(n ? n : 1, sizeof *size);
 	uint64_t *inside = util_calloc(n ? n : 1, sizeof *inside);
-	int32_t *col = util_malloc(n ? n : 1, sizeof *col);
 	uint32_t *first = g->nsend ? util_calloc(n, sizeof *first) : NULL;
 	struct cluster *cl = NULL;
-	double *fcol = NULL;
 	struct model rest;
 	int have_rest = 0;
-	if (!label || !size || !inside || !col || (g->nsend && !first))
+	if (!label || !size || !inside || (g->nsend && !first))
 		goto out;
 	uint32_t passes;
 	if (seed_propagate(g, seed, variant, label, &passes))
@@ -176,24 +174,15 @@ int seed_from_clusters(const struct graph *g, struct model *m, uint64_t seed, ui
 		double pc = p < CLUSTER_P_MAX ? p : CLUSTER_P_MAX;
 		double f2 = -log1p(-pc) - m->qeps;
 		double f = f2 > 0.0 ? sqrt(f2) : 0.0;
-		cl[kept++] = (struct cluster){ gain, f > CLUSTER_F_MIN ? f : CLUSTER_F_MIN, l,
-					       size[l] };
+		cl[kept++] = (struct cluster){ gain, f > CLUSTER_F_MIN ? f : CLUSTER_F_MIN, l };
 	}
 	qsort(cl, kept, sizeof *cl, cluster_cmp);
 	uint32_t used = kept < k ? kept : k;
-	fcol = util_malloc(used ? used : 1, sizeof *fcol);
-	if (!fcol)
-		goto out;
-	for (uint32_t u = 0; u < n; u++)
-		col[u] = -1;
-	for (uint32_t c = 0; c < used; c++)
-		fcol[c] = cl[c].f;
 	/* size[] now maps a label to its column + 1 (0: none) */
-	memset(size, 0, (size_t)n * sizeof *size);
+	uint32_t *col1 = size;
+	memset(col1, 0, (size_t)n * sizeof *col1);
 	for (uint32_t c = 0; c < used; c++)
-		size[cl[c].label] = c + 1;
-	for (uint32_t u = 0; u < n; u++)
-		col[u] = (int32_t)size[label[u]] - 1;
+		col1[cl[c].label] = c + 1;
 	struct seed_report local = { 0 };
 	if (used < k) {
 		if (model_init(&rest, n, k - used, m->epsilon))
@@ -209,9 +198,9 @@ int seed_from_clusters(const struct graph *g, struct model *m, uint64_t seed, ui
 	if (!buf)
 		goto out;
 	for (uint32_t u = 0; u < n; u++) {
-		uint32_t nnz = 0;
-		if (col[u] >= 0)
-			buf[nnz++] = (struct fentry){ (uint32_t)col[u], fcol[col[u]] };
+		uint32_t nnz = 0, c1 = col1[label[u]];
+		if (c1)
+			buf[nnz++] = (struct fentry){ c1 - 1, cl[c1 - 1].f };
 		if (have_rest)
 			for (uint32_t i = 0; i < rest.rows[u].nnz; i++)
 				buf[nnz++] = (struct fentry){ used + rest.rows[u].e[i].c,
@@ -229,6 +218,6 @@ int seed_from_clusters(const struct graph *g, struct model *m, uint64_t seed, ui
 out:
 	if (have_rest)
 		model_release(&rest);
-	UTIL_FREE_ALL(label, size, inside, col, first, cl, fcol);
+	UTIL_FREE_ALL(label, size, inside, first, cl);
 	return rc;
 }
