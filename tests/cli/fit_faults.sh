@@ -23,21 +23,25 @@ planted()
 			}
 	}'
 }
+# 50 groups of 60: each start takes about half a second on 2 threads,
+# long enough for the signals below to land inside the start they are
+# sent at (from label propagation's clusters the 20 groups of 40 used
+# before were fitted in 0.1 s, and an interrupt could come after the end)
 g=$tmp/planted.tsv
-planted 20 40 0.3 0.005 4242 >"$g"
+planted 50 60 0.3 0.005 4242 >"$g"
 
 # --- an interrupt, then --resume: the bytes of the uninterrupted fit -----
 # Default starts (3) and refinement, so the resume must carry the best
 # earlier start, the start in progress and where its moves stood
 # (include/coterie/fit.h, struct fit_resume).
-"$BIN" fit "$g" -k 20 -j 2 --seed 3 -q -o "$tmp/whole"
+"$BIN" fit "$g" -k 50 -j 2 --seed 3 -q -o "$tmp/whole"
 check "the uninterrupted fit exits 0" [ $? -eq 0 ]
 
 # interrupt_at SIG PATTERN NAME: start the same fit, send SIG once stderr
 # matches PATTERN, and check the interrupted folder.
 interrupt_at()
 {
-	"$BIN" fit "$g" -k 20 -j 2 --seed 3 -o "$tmp/$3" 2>"$tmp/$3.err" &
+	"$BIN" fit "$g" -k 50 -j 2 --seed 3 -o "$tmp/$3" 2>"$tmp/$3.err" &
 	pid=$!
 	bg_pids="$bg_pids $pid"
 	if wait_for_grep "$2" "$tmp/$3.err" 60; then
@@ -79,7 +83,7 @@ resume_same twice
 
 # A second signal stops inside the sweep at once; the folder is still saved.
 # (--epsilon: the signals must reach the fit, not the background's trials)
-"$BIN" fit "$g" -k 20 -j 2 --seed 3 --tol 0 --max-sweeps 100000 --epsilon 0.02 -o "$tmp/hard" \
+"$BIN" fit "$g" -k 50 -j 2 --seed 3 --tol 0 --max-sweeps 100000 --epsilon 0.02 -o "$tmp/hard" \
 	2>"$tmp/hard.err" &
 pid=$!
 bg_pids="$bg_pids $pid"
@@ -96,7 +100,7 @@ check "two interrupts: run.json says interrupted" \
 # A periodic checkpoint is taken at the end of a sweep with a resume point
 # (include/coterie/fit.h, fit_want_resume_point), so the fit killed with
 # no chance to save goes on to the uninterrupted fit's bytes.
-"$BIN" fit "$g" -k 20 -j 2 --seed 3 --checkpoint-every 0.2 -q -o "$tmp/killed" &
+"$BIN" fit "$g" -k 50 -j 2 --seed 3 --checkpoint-every 0.2 -q -o "$tmp/killed" &
 pid=$!
 bg_pids="$bg_pids $pid"
 i=0
