@@ -8,6 +8,7 @@
 #include <stdint.h>
 
 #include "coterie/fcsr.h"
+#include "coterie/seed.h"
 
 struct graph;
 struct sweep_group;
@@ -20,15 +21,27 @@ struct fold_score {
 	struct fcsr F;      /* its strengths, when the search keeps them */
 };
 
+/* How the search's fits are seeded, for a warm start upward. */
+struct select_seeding {
+	enum seed_kind kind;
+	uint64_t seed;  /* the fold's seed (variant 0: the first start's) */
+	double epsilon; /* the search's background */
+};
+
 /*
  * A start for a fit of k columns on train (borrowed) from the strengths
- * from (borrowed) of a fit of k or more columns ON THE SAME training
- * graph: the weakest columns dropped. *out receives a new matrix
- * (fcsr_release() it). Returns 0, or -1 (out of memory, or k above
- * from->k: no message; the caller then seeds).
+ * from (borrowed) of a fit ON THE SAME training graph. Down (k below
+ * from->k): the weakest columns dropped. Up (k above from->k; sd not
+ * NULL, a one-sided graph): from's columns as they are, then the columns
+ * from->k .. k-1 of the seeding a fit of k would start from (sd; for
+ * clusters, the next clusters by likelihood, then ego-nets), so the new
+ * fit starts where a seeded one would, with its first columns already
+ * climbed. *out receives a new matrix (fcsr_release() it). Returns 0, or
+ * -1 (out of memory, or no warm start of that kind: no message; the
+ * caller then seeds).
  */
 int select_warm_start(const struct fcsr *from, const struct graph *train, uint32_t k,
-		      struct fcsr *out);
+		      const struct select_seeding *sd, struct fcsr *out);
 
 /*
  * The end of a round of a search shared among processes (select_share.c):

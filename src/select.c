@@ -256,8 +256,9 @@ static void warm_of(const struct search *s, const struct want *w, const struct g
 		    struct fcsr *F)
 {
 	memset(F, 0, sizeof *F);
+	struct select_seeding sd = { s->p.seeding, fold_seed(s->p.seed, 0), s->p.epsilon };
 	for (uint32_t i = 0; w->from && i < s->nkept; i++)
-		if (s->kept[i].k == w->from && select_warm_start(&s->kept[i], train, w->k, F))
+		if (s->kept[i].k == w->from && select_warm_start(&s->kept[i], train, w->k, &sd, F))
 			memset(F, 0, sizeof *F);
 }
 
@@ -670,9 +671,10 @@ static int shape_batch(struct search *s, struct want *w, uint32_t n, struct sele
 	}
 	if (o == 0 || *np + o > SELECT_MAX_GRID)
 		return 0;
-	for (uint32_t i = 0; i < o; i++) { /* warm: from the nearest k above */
-		uint32_t below;
-		around(pts, *np, w[i].k, &below, &w[i].from);
+	for (uint32_t i = 0; i < o; i++) { /* warm: from the nearest k above, */
+		uint32_t below, above; /* or below when none is */
+		around(pts, *np, w[i].k, &below, &above);
+		w[i].from = above ? above : below;
 	}
 	uint32_t got = 0;
 	int rc = search_pass(s, w, o, 0, pts + *np, &got, b);
@@ -687,17 +689,22 @@ static uint32_t clamp_k(double k, uint32_t lo, uint32_t hi)
 }
 
 /*
- * The search by the curve's shape (select.h): k0 from seeds, then k0 / r
- * and k0 r (r = step^2, two grid steps) warm-started from it; while the
- * best is the largest (smallest) k scored, a walk multiplying (dividing)
- * it by r, past the grid's edge up to n/4, MODEL_MAX_K and memory (down
+ * The search by the curve's shape (select.h): k0 from seeds, then k0 /
+ * step and k0 step (one grid step) warm-started from it; while the best
+ * is the largest (smallest) k scored, a walk multiplying (dividing) it by
+ * r (r = step^2, two grid steps), past the grid's edge up to n/4,
+ * MODEL_MAX_K and memory (down
  * to 2); then, one gap a round, the gap around the best on the side of the
  * parabola's vertex (toward()) is halved in log k until both gaps are
  * within one grid step, or half of one (ratio sqrt(step)) on a split of
  * SELECT_FINE_EDGES held-out edges or more. A fit below a k already
- * tried starts from the fit of the nearest k above it (the only split), its weakest columns
- * dropped (select_warm.c); one above every k tried starts from seeds.
- * Points go after
+ * tried starts from the fit of the nearest k above it (the only split),
+ * its weakest columns dropped; one above every k tried from the fit of
+ * the nearest k below, the columns its seeding adds added (select_warm.c).
+ * Why one grid step to bracket: the bracket's two fits then need one
+ * halving each to reach the fine step, 5 fits in all when the top is
+ * near k0 (7 with two steps); at 2x10^5 nodes 62.8 -> 47.8 s, the same
+ * choice (DEVELOPERS.md, "-k auto from clusters"). Points go after
  * pts[0 .. *np). Sets res->start, extended, bound and edge.
  */
 static int shape_search(struct search *s, const struct graph *g, const struct select_params *sp,
@@ -730,9 +737,9 @@ static int shape_search(struct search *s, const struct graph *g, const struct se
 	 * time for 211 instead of 236 and ONMI 0.820 against 0.815 (session
 	 * 11) */
 	w[0].moves = 1;
-	double r = sp->step * sp->step; /* two grid steps: one halving refines */
-	w[1] = want_of(clamp_k(k0 / r, kmin, top), 0, "bracket");
-	w[2] = want_of(clamp_k(k0 * r, kmin, top), 0, "bracket");
+	double r = sp->step * sp->step; /* the walk's factor: two grid steps */
+	w[1] = want_of(clamp_k(k0 / sp->step, kmin, top), 0, "bracket");
+	w[2] = want_of(clamp_k(k0 * sp->step, kmin, top), 0, "bracket");
 	for (int i = 0; i < 3; i++)
 		if ((w[i].added = w[i].k > kmax))
 			res->extended = 1;

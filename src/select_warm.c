@@ -1,15 +1,21 @@
 /*
- * select_warm: the start of a fit of k columns made from a fit of more
- * columns, for `-k auto`'s search by the curve's shape (select.c): the
- * weakest columns (smallest column sums) are dropped and the others keep
- * their order; the fit then climbs from there.
+ * select_warm: the start of a fit of k columns made from a fit of another
+ * number of columns, for `-k auto`'s search by the curve's shape
+ * (select.c). Down: the weakest columns (smallest column sums) are
+ * dropped and the others keep their order; the fit then climbs from
+ * there. Up: the fit's columns as they are, then the columns that the
+ * seeding of a fit of k adds after the first from->k (for clusters, the
+ * next clusters by likelihood, then ego-nets): the new fit starts where
+ * a seeded one would, its first columns already climbed.
  *
- * Why only downwards: splitting the strongest columns to go up (the
- * pivot, the strongest member not linked to the strongest one, taking its
- * neighbours in the column to a new one) was measured and dropped. On a
+ * Why up this way: splitting the strongest columns to go up (the pivot,
+ * the strongest member not linked to the strongest one, taking its
+ * neighbours in the column to a new one) was measured and dropped: on a
  * planted graph of 10^5 nodes the fits started that way scored far below
  * their seeded neighbours (k 975 from 780: -459,785, between -451,395 and
- * -452,720), which pulled the choice down to 780 of 1,142 planted.
+ * -452,720). Added seeds score as seeded fits do (2x10^5 nodes, k 3880:
+ * -930,590 against -930,119 from seeds) in about half the time (13.0 s
+ * against 25.3 s on one thread): DEVELOPERS.md, "-k auto from clusters".
  *
  * The one thing a newcomer gets wrong: the fit started from must have
  * been made on the SAME training graph, with the same held-out pairs left
@@ -24,6 +30,8 @@
 #include <string.h>
 
 #include "coterie/graph.h"
+#include "coterie/model.h"
+#include "coterie/seed.h"
 #include "coterie/util.h"
 
 static int alloc_fcsr(struct fcsr *o, uint32_t n, uint32_t k, uint64_t nnz)
@@ -97,11 +105,43 @@ static int drop(const struct fcsr *F, uint32_t k, struct fcsr *o)
 	return 0;
 }
 
+/* Up: from's rows, then the columns from->k .. k-1 of a seeding of k
+ * columns on train. */
+static int add(const struct fcsr *from, const struct graph *train, uint32_t k,
+	       const struct select_seeding *sd, struct fcsr *o)
+{
+	struct model m;
+	if (model_init(&m, train->n, k, sd->epsilon))
+		return -1;
+	int rc = seed_start(train, &m, sd->kind, sd->seed, 0, NULL);
+	uint64_t nnz = from->off[from->n];
+	for (uint32_t u = 0; rc == 0 && u < train->n; u++)
+		for (uint32_t i = 0; i < m.rows[u].nnz; i++)
+			nnz += m.rows[u].e[i].c >= from->k;
+	if (rc == 0)
+		rc = alloc_fcsr(o, from->n, k, nnz);
+	uint64_t w = 0;
+	for (uint32_t u = 0; rc == 0 && u < from->n; u++) {
+		for (uint64_t i = from->off[u]; i < from->off[u + 1]; i++)
+			o->e[w++] = from->e[i];
+		for (uint32_t i = 0; i < m.rows[u].nnz; i++)
+			if (m.rows[u].e[i].c >= from->k)
+				o->e[w++] = (struct fentry){ m.rows[u].e[i].c, m.rows[u].e[i].v };
+		o->off[u + 1] = w;
+	}
+	if (rc == 0)
+		sums(o);
+	model_release(&m);
+	return rc;
+}
+
 int select_warm_start(const struct fcsr *from, const struct graph *train, uint32_t k,
-		      struct fcsr *out)
+		      const struct select_seeding *sd, struct fcsr *out)
 {
 	memset(out, 0, sizeof *out);
-	if (k == 0 || from->n != train->n || k > from->k)
+	if (k == 0 || from->n != train->n)
 		return -1;
+	if (k > from->k) /* a two-sided graph's rows are seeded on a view */
+		return sd && !train->nsend && !train->paired ? add(from, train, k, sd, out) : -1;
 	return k == from->k ? fcsr_copy(out, from) : drop(from, k, out);
 }

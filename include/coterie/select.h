@@ -37,9 +37,9 @@
  * 20,000-node graph took more sweeps than one at k 200), so instead of the
  * grid: k0 (sp->start, the number L of locally minimal ego-nets of the
  * default grid, up to n/4: the grid's cap of 500 bounds the cost of a full
- * grid, not where the top is) from seeds, then k0 / r and k0 r (r =
- * step^2); while the best is the largest (smallest) k tried, a walk by
- * the factor r, past the grid's edge as an extension would go; then, one
+ * grid, not where the top is) from seeds, then k0 / step and k0 step;
+ * while the best is the largest (smallest) k tried, a walk by the factor
+ * r = step^2, past the grid's edge as an extension would go; then, one
  * gap a round, the gap around the best on the side of the vertex of the
  * parabola through the three scores around it (in ln k) is halved in log
  * k, until both gaps around the best are within one grid step (half of
@@ -50,7 +50,9 @@
  * than SELECT_FINE_EDGES held-out edges; above, the others skip them (their
  * cost); a fit below a k already tried starts from the fit of the nearest k
  * above it (same split: there is only one) with its weakest columns
- * dropped (select_warm.c), one above every k tried from seeds. Each point
+ * dropped, one above every k tried from the fit of the nearest k below
+ * with the columns its seeding adds (select_warm.c; on a two-sided graph
+ * from seeds). Each point
  * says why it was tried (select_point.reason) and in which order (.order).
  *
  * Parallel: up to base->threads fits run at once, each on one thread.

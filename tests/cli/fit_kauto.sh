@@ -184,10 +184,12 @@ for order, k, ll, why, warm in pts:
     elif why == "start":
         assert warm == 0 and order == 1
     else:
-        # from the nearest k above decided before, or seeds above them all
+        # from the nearest k above decided before; above them all, from
+        # the nearest below (its seeding's next columns added: select_warm.c)
         assert why in ("bracket", "walk up", "walk down", "extend past edge"), why
         above = [x for x in seen if x > k]
-        assert warm == (min(above) if above else 0), (k, warm, above)
+        below = [x for x in seen if x < k]
+        assert warm == (min(above) if above else max(below)), (k, warm, above, below)
     seen[k] = ll
 best = max(seen, key=lambda k: seen[k])
 assert best == sel["chosen"]
