@@ -772,8 +772,11 @@ int agm_side_sums(const struct graph *g, struct fcsr *F)
 	F->sidesum = NULL;
 	if (!g->nsend)
 		return 0;
-	if (!(F->sidesum = util_malloc(2 * (size_t)F->k + 1, sizeof *F->sidesum)))
+	if (!(F->sidesum = util_malloc(2 * (size_t)F->k + 1, sizeof *F->sidesum))) {
+		free(F->thr); /* thresholds by side go with the sums by side */
+		F->thr = NULL;
 		return -1;
+	}
 	model_directed_side_sums(g, F, F->sidesum);
 	return 0;
 }
@@ -782,11 +785,12 @@ int agm_member_at(const struct graph *g, const struct fcsr *F, uint32_t u, uint6
 		  double delta, double min_links)
 {
 	uint32_t c = F->e[j].c;
-	if (F->thr && F->thr[c] > delta)
-		delta = F->thr[c];
-	/* a two-sided row against the other side's sum (model_directed.h) */
-	double sum = g->nsend && F->sidesum ? F->sidesum[c + (graph_side_of(g, u) ? 0 : F->k)]
-					    : F->colsum[c];
+	/* a two-sided row against the other side's sum (model_directed.h),
+	 * at its own side's threshold */
+	int sided = g->nsend && F->sidesum, recv = sided && graph_side_of(g, u);
+	if (F->thr && F->thr[c + (recv ? F->k : 0)] > delta)
+		delta = F->thr[c + (recv ? F->k : 0)];
+	double sum = sided ? F->sidesum[c + (recv ? 0 : F->k)] : F->colsum[c];
 	return agm_is_member(F->e[j].v, sum, delta, min_links, graph_degree(g, u));
 }
 

@@ -34,7 +34,8 @@ double agm_block_loglik(double e, double N)
 }
 
 struct ranked {
-	double v;
+	double v; /* the order (descending) */
+	double w; /* the strength (two-sided: v is the expected links) */
 	uint32_t u;
 };
 
@@ -77,6 +78,61 @@ static double column_threshold(const struct graph *g, struct ranked *rows, uint3
 	return keep < s ? rows[keep - 1].v : 0.0;
 }
 
+/* The thresholds of one column of a two-sided graph: its members of both
+ * sides (rows[0 .. s), .v the expected links, strength times the other
+ * side's sum, .w the strength) in that order; the prefix whose links
+ * (senders to receivers: a x b pairs, less a directed graph's own pairs)
+ * beat the background most; into th[0] (sending) and th[1] (receiving)
+ * the strength of the side's last member kept, 0 when the side is kept
+ * whole, above every strength when none of it is. pos: n zeros, left
+ * zeroed. */
+static void column_thresholds_sided(const struct graph *g, struct ranked *rows, uint32_t s,
+				    double le, double l1e, uint32_t *pos, double *th)
+{
+	th[0] = th[1] = 0.0;
+	if (s < 3)
+		return;
+	qsort(rows, s, sizeof *rows, ranked_cmp);
+	double E = 0.0, best = -HUGE_VAL, a = 0.0, b = 0.0, own = 0.0;
+	uint32_t keep = s;
+	for (uint32_t i = 0; i < s; i++) {
+		uint32_t u = rows[i].u;
+		for (uint64_t j = g->off[u]; j < g->off[u + 1]; j++)
+			E += pos[g->adj[j]] != 0;
+		pos[u] = i + 1;
+		if (graph_side_of(g, u))
+			b += 1.0;
+		else
+			a += 1.0;
+		/* a directed graph's node is a sender and a receiver: that
+		 * pair is no pair of the graph */
+		if (g->paired && pos[u < g->nsend ? u + g->nsend : u - g->nsend])
+			own += 1.0;
+		double P = a * b - own;
+		double ll = agm_block_loglik(E, P) - (E * le + (P - E) * l1e);
+		if (P > 0.0 && ll > best) {
+			best = ll;
+			keep = i + 1;
+		}
+	}
+	double last[2] = { 0.0, 0.0 }, top[2] = { 0.0, 0.0 };
+	uint32_t kept[2] = { 0, 0 }, all[2] = { 0, 0 };
+	for (uint32_t i = 0; i < s; i++) {
+		int side = graph_side_of(g, rows[i].u);
+		pos[rows[i].u] = 0;
+		all[side]++;
+		if (rows[i].w > top[side])
+			top[side] = rows[i].w;
+		if (i < keep) {
+			kept[side]++;
+			last[side] = rows[i].w; /* the side's weakest kept */
+		}
+	}
+	for (int side = 0; side < 2; side++)
+		th[side] = kept[side] == all[side] ? 0.0
+			   : kept[side] ? last[side] : nextafter(top[side], HUGE_VAL);
+}
+
 int agm_trim(const struct graph *g, struct fcsr *F, double epsilon, double delta,
 	     double min_links)
 {
@@ -84,9 +140,13 @@ int agm_trim(const struct graph *g, struct fcsr *F, double epsilon, double delta
 	F->thr = NULL;
 	if (F->n != g->n || !(epsilon > 0.0 && epsilon < 1.0) || F->k == 0)
 		return F->n == g->n ? 0 : error("strengths and graph differ in size");
+	/* a two-sided graph's rows are read by side: 2 k thresholds */
+	int sided = g->nsend > 0;
+	if (sided && !F->sidesum && agm_side_sums(g, F))
+		return -1;
 	uint64_t *off = util_calloc((size_t)F->k + 1, sizeof *off);
 	uint32_t *pos = util_calloc(g->n, sizeof *pos);
-	double *thr = util_calloc(F->k, sizeof *thr);
+	double *thr = util_calloc((sided ? 2 : 1) * (size_t)F->k, sizeof *thr);
 	struct ranked *rows = NULL;
 	int rc = -1;
 	if (!off || !pos || !thr)
@@ -102,14 +162,29 @@ int agm_trim(const struct graph *g, struct fcsr *F, double epsilon, double delta
 	for (uint32_t u = 0; u < F->n; u++) /* column by column, through off[] as a cursor */
 		for (uint64_t j = F->off[u]; j < F->off[u + 1]; j++)
 			if (agm_member_at(g, F, u, j, delta, min_links))
-				rows[off[F->e[j].c]++] = (struct ranked){ F->e[j].v, u };
+			{
+				uint32_t c = F->e[j].c;
+				double v = F->e[j].v;
+				/* two-sided: by the links expected from the other side */
+				double x = sided ? v * F->sidesum[c + (graph_side_of(g, u) ? 0 : F->k)]
+						 : v;
+				rows[off[c]++] = (struct ranked){ x, v, u };
+			}
 	for (uint32_t c = F->k; c > 0; c--) /* the cursors moved each start one column on */
 		off[c] = off[c - 1];
 	off[0] = 0;
 	double le = log(epsilon), l1e = log1p(-epsilon);
-	for (uint32_t c = 0; c < F->k; c++)
-		thr[c] = column_threshold(g, rows + off[c], (uint32_t)(off[c + 1] - off[c]), le, l1e,
-					  pos);
+	for (uint32_t c = 0; c < F->k; c++) {
+		uint32_t s = (uint32_t)(off[c + 1] - off[c]);
+		if (sided) {
+			double th[2];
+			column_thresholds_sided(g, rows + off[c], s, le, l1e, pos, th);
+			thr[c] = th[0];
+			thr[F->k + c] = th[1];
+		} else {
+			thr[c] = column_threshold(g, rows + off[c], s, le, l1e, pos);
+		}
+	}
 	F->thr = thr;
 	thr = NULL;
 	rc = 0;
@@ -130,8 +205,6 @@ int agm_from_strengths_trimmed(struct agm *out, const struct graph *g, struct fc
 		return -1;
 	if (agm_from_strengths(out, g, F, epsilon, delta, min_links))
 		return -1;
-	if (g->nsend) /* by side (F->sidesum), never trimmed */
-		return 0;
 	struct agm trimmed;
 	if (agm_trim(g, F, epsilon, delta, min_links)) {
 		agm_release(out);
@@ -140,9 +213,9 @@ int agm_from_strengths_trimmed(struct agm *out, const struct graph *g, struct fc
 	/* no column ends sooner (or none was read): the trimmed cover is this
 	 * one and its AGM the same bits, kept as an equal likelihood is below;
 	 * not built twice (the live snapshots of a fit's first sweeps) */
-	uint32_t sooner = 0;
+	uint32_t sooner = 0; /* columns cut (two-sided: on either side) */
 	for (uint32_t c = 0; F->thr && c < F->k; c++)
-		sooner += F->thr[c] > delta;
+		sooner += F->thr[c] > delta || (g->nsend && F->thr[F->k + c] > delta);
 	if (!sooner)
 		return 0;
 	if (agm_from_strengths(&trimmed, g, F, epsilon, delta, min_links)) {

@@ -47,12 +47,13 @@ int fcsr_copy(struct fcsr *dst, const struct fcsr *src)
 	if (nnz)
 		memcpy(dst->e, src->e, nnz * sizeof *dst->e);
 	memcpy(dst->colsum, src->colsum, src->k * sizeof *dst->colsum);
-	if (src->thr) {
-		if (!(dst->thr = util_malloc(src->k ? src->k : 1, sizeof *dst->thr))) {
+	if (src->thr) { /* by side (2 k) when the rows are read by side */
+		size_t nt = (src->sidesum ? 2 : 1) * (size_t)src->k;
+		if (!(dst->thr = util_malloc(nt ? nt : 1, sizeof *dst->thr))) {
 			fcsr_release(dst);
 			return -1;
 		}
-		memcpy(dst->thr, src->thr, src->k * sizeof *dst->thr);
+		memcpy(dst->thr, src->thr, nt * sizeof *dst->thr);
 	}
 	if (src->sidesum) {
 		if (!(dst->sidesum = util_malloc(2 * (size_t)src->k + 1, sizeof *dst->sidesum))) {

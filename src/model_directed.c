@@ -87,9 +87,13 @@ void model_directed_side_sums(const struct graph *g, const struct fcsr *F, doubl
 int model_directed_member_at(const struct graph *g, const struct fcsr *F, const double *sums,
 			     uint32_t u, uint64_t j, double delta)
 {
-	const double *other = sums + (graph_side_of(g, u) ? 0 : F->k);
-	return agm_is_member(F->e[j].v, other[F->e[j].c], delta, AGM_MIN_LINKS,
-			     graph_degree(g, u));
+	int recv = graph_side_of(g, u);
+	const double *other = sums + (recv ? 0 : F->k);
+	uint32_t c = F->e[j].c;
+	/* the side's threshold from agm_trim() (2 k with sidesum) */
+	if (F->thr && F->sidesum && F->thr[c + (recv ? F->k : 0)] > delta)
+		delta = F->thr[c + (recv ? F->k : 0)];
+	return agm_is_member(F->e[j].v, other[c], delta, AGM_MIN_LINKS, graph_degree(g, u));
 }
 
 int model_directed_cover(const struct graph *g, const struct fcsr *F, double delta,

@@ -31,8 +31,9 @@ struct fcsr {
 	double *colsum;
 	/* NULL, or k thresholds of membership per column, each at least the
 	 * fit's delta (agm_trim(): the AGM's own choice of where a
-	 * community's members end); not stored in checkpoints: derived
-	 * again from the strengths and the graph */
+	 * community's members end); with sidesum (a two-sided graph's rows),
+	 * 2 k: the sending rows' then the receiving rows'; not stored in
+	 * checkpoints: derived again from the strengths and the graph */
 	double *thr;
 	/* NULL, or (a two-sided graph's rows) 2 k column sums by side, the
 	 * sending rows' then the receiving rows' (agm_side_sums()): the

@@ -599,6 +599,57 @@ static void test_trim_ends_a_community_at_its_dense_core(void **state)
 	graph_free(g);
 }
 
+/*
+ * agm_trim() on two sides, by hand (a two-mode graph: senders 0-2,
+ * receivers 3-6). Senders 0, 1, 2 link to every receiver 3, 4, 5 (9
+ * links); receiver 6 has one link, from 0. One column: strength 1.0 for
+ * 0-5, 0.3 for 6; by side the sums are 3 (sending) and 3.3 (receiving).
+ * epsilon 0.01, delta = sqrt(-ln 0.99) = 0.1003: every entry passes the
+ * rule (6: 0.3 x 3 = 0.9 >= min(2, 1/2)). In order of the links expected
+ * from the other side (strength x the other side's sum): 0, 1, 2 (3.3),
+ * then 3, 4, 5 (3.0), then 6 (0.9); pairs = senders x receivers; gain =
+ * E ln(E/P) + (P-E) ln(1-E/P) - [E ln 0.01 + (P-E) ln 0.99]:
+ *   {0,1,2,3}        E 3 P 3:                         3 x 4.60517 = 13.8155
+ *   {0,1,2,3,4}      E 6 P 6:                                      = 27.6310
+ *   {0,1,2,3,4,5}    E 9 P 9:                                      = 41.4465
+ *   {.., 6}          E 10 P 12: -1.82322 - 3.58352 + 46.05170 + 0.02010 = 40.6651
+ * (prefixes with no receiver have no pairs), so the column ends after 5:
+ * the senders are kept whole (threshold 0) and the receivers end at 1.0,
+ * which leaves 6 out.
+ */
+static void test_trim_on_two_sides(void **state)
+{
+	(void)state;
+	const uint32_t e[] = { 0, 3, 0, 4, 0, 5, 1, 3, 1, 4, 1, 5, 2, 3, 2, 4, 2, 5, 0, 6 };
+	struct graph *g = make_graph(7, e, 10);
+	g->nsend = 3;
+	struct fentry ent[] = { { 0, 1.0 }, { 0, 1.0 }, { 0, 1.0 }, { 0, 1.0 },
+				{ 0, 1.0 }, { 0, 1.0 }, { 0, 0.3 } };
+	uint64_t off[] = { 0, 1, 2, 3, 4, 5, 6, 7 };
+	double colsum[] = { 6.3 };
+	struct fcsr F = { .n = 7, .k = 1, .off = off, .e = ent, .colsum = colsum };
+	double delta = sqrt(-log1p(-0.01));
+	assert_int_equal(agm_side_sums(g, &F), 0);
+	assert_true(fabs(F.sidesum[0] - 3.0) < 1e-12 && fabs(F.sidesum[1] - 3.3) < 1e-12);
+	for (uint64_t j = 0; j < 7; j++)
+		assert_true(agm_member_at(g, &F, (uint32_t)j, j, delta, AGM_MIN_LINKS));
+	assert_int_equal(agm_trim(g, &F, 0.01, delta, AGM_MIN_LINKS), 0);
+	assert_non_null(F.thr);
+	assert_true(F.thr[0] == 0.0); /* sending: whole */
+	assert_true(F.thr[1] == 1.0); /* receiving: ends at 5 */
+	for (uint64_t j = 0; j < 7; j++)
+		assert_int_equal(agm_member_at(g, &F, (uint32_t)j, j, delta, AGM_MIN_LINKS), j < 6);
+	/* a copy keeps both sides' thresholds */
+	struct fcsr C;
+	assert_int_equal(fcsr_copy(&C, &F), 0);
+	assert_true(C.thr[0] == 0.0 && C.thr[1] == 1.0);
+	fcsr_release(&C);
+	free(F.thr);
+	free(F.sidesum);
+	g->nsend = 0;
+	graph_free(g);
+}
+
 /* The rule's edges, by hand: both tests are inclusive. */
 static void test_member_rule_boundaries(void **state)
 {
@@ -982,6 +1033,7 @@ int main(void)
 		cmocka_unit_test(test_improve_p_reaches_the_maximum_from_any_start),
 		cmocka_unit_test(test_rejects_bad_input),
 		cmocka_unit_test(test_trim_ends_a_community_at_its_dense_core),
+		cmocka_unit_test(test_trim_on_two_sides),
 		cmocka_unit_test(test_merge_block_gain_by_hand_and_by_grid),
 		cmocka_unit_test(test_merge_background_reads_the_membership_rule),
 	};
