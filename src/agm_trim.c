@@ -9,7 +9,11 @@
  * order of strength, are cut where the prefix's links are most likely as
  * one block at their own density against the background; the whole
  * cover so read is kept only if its AGM log-likelihood is not below the
- * cover at delta. The thresholds travel with the strengths (fcsr.thr) so
+ * cover at delta. A two-sided column (directed, two-mode) is read the
+ * same way by side: its members of both sides in order of the links
+ * expected from the other side, the block's pairs senders x receivers,
+ * one threshold a side (a stray arc from a cohesive community's member
+ * otherwise made a receiving-only member of its target). The thresholds travel with the strengths (fcsr.thr) so
  * that every reader of one entry (agm_member_at()) agrees with the cover.
  *
  * The one thing a newcomer gets wrong: thresholds are derived, never

@@ -104,7 +104,10 @@ double agm_block_loglik(double e, double N);
  * prefix whose edges are most likely as one block at their own density
  * against the background epsilon (each community alone); F->thr gets the
  * strength of the last member kept (0: the whole column), replacing any
- * earlier thresholds. 0 or -1 (reported). */
+ * earlier thresholds. On a two-sided graph the members of both sides in
+ * order of the links expected from the other side, the block's pairs
+ * senders x receivers, and a threshold per side (2 k; F->sidesum is set
+ * if it was not). 0 or -1 (reported). */
 int agm_trim(const struct graph *g, struct fcsr *F, double epsilon, double delta,
 	     double min_links);
 
@@ -112,7 +115,9 @@ int agm_trim(const struct graph *g, struct fcsr *F, double epsilon, double delta
  * AGM log-likelihood of that cover is not below the one at delta alone,
  * else at delta alone (F->thr is then NULL): the membership reading of
  * the commands. F's thresholds are set to match (so agm_member_at() on F
- * agrees with out). Two-sided graphs (g->nsend) are read at delta. 0 or
+ * agrees with out). Two-sided graphs (g->nsend) are trimmed by side:
+ * F->thr then holds 2 k thresholds, the sending rows' then the receiving
+ * rows', read with F->sidesum (agm_side_sums()). 0 or
  * -1; release with agm_release(). */
 int agm_from_strengths_trimmed(struct agm *out, const struct graph *g, struct fcsr *F,
 			       double epsilon, double delta, double min_links);
