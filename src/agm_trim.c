@@ -51,26 +51,37 @@ static int ranked_cmp(const void *x, const void *y)
 	return a->u < b->u ? -1 : a->u > b->u;
 }
 
-/* The threshold of one column: its members (rows[0 .. s), by the rule at
- * delta) in order of strength; the prefix whose block likelihood beats
- * the background most; the strength of its last member, or 0 when the
- * whole column is kept. pos: n zeros, left zeroed. */
-static double column_threshold(const struct graph *g, struct ranked *rows, uint32_t s,
-			       double le, double l1e, uint32_t *pos)
+/* The members of one column kept (rows[0 .. s) sorted in place, by .v):
+ * the prefix whose links are likeliest as one block at their own density
+ * against the background; s when the whole column is. Pairs: one-sided,
+ * those among the prefix; two-sided, its senders x its receivers, less a
+ * directed graph's own pairs (a node's sending and receiving copies: no
+ * pair of the graph). pos: n zeros, left zeroed. */
+static uint32_t column_kept(const struct graph *g, struct ranked *rows, uint32_t s, double le,
+			    double l1e, uint32_t *pos)
 {
 	if (s < 3)
-		return 0.0;
+		return s;
 	qsort(rows, s, sizeof *rows, ranked_cmp);
-	double E = 0.0, best = -HUGE_VAL;
+	int sided = g->nsend > 0;
+	double E = 0.0, best = -HUGE_VAL, a = 0.0, b = 0.0, own = 0.0;
 	uint32_t keep = s;
 	for (uint32_t i = 0; i < s; i++) {
 		uint32_t u = rows[i].u;
 		for (uint64_t j = g->off[u]; j < g->off[u + 1]; j++)
 			E += pos[g->adj[j]] != 0;
 		pos[u] = i + 1;
-		if (i == 0)
+		double P;
+		if (sided) {
+			*(graph_side_of(g, u) ? &b : &a) += 1.0;
+			if (g->paired && pos[u < g->nsend ? u + g->nsend : u - g->nsend])
+				own += 1.0;
+			P = a * b - own;
+		} else {
+			P = (double)(i + 1) * i / 2;
+		}
+		if (!(P > 0.0))
 			continue;
-		double P = (double)(i + 1) * i / 2;
 		double ll = agm_block_loglik(E, P) - (E * le + (P - E) * l1e);
 		if (ll > best) {
 			best = ll;
@@ -79,51 +90,32 @@ static double column_threshold(const struct graph *g, struct ranked *rows, uint3
 	}
 	for (uint32_t i = 0; i < s; i++)
 		pos[rows[i].u] = 0;
+	return keep;
+}
+
+/* The threshold of one column: its members (rows[0 .. s), by the rule at
+ * delta) in order of strength; the strength of the last member kept, or 0
+ * when the whole column is kept. */
+static double column_threshold(const struct graph *g, struct ranked *rows, uint32_t s,
+			       double le, double l1e, uint32_t *pos)
+{
+	uint32_t keep = column_kept(g, rows, s, le, l1e, pos);
 	return keep < s ? rows[keep - 1].v : 0.0;
 }
 
 /* The thresholds of one column of a two-sided graph: its members of both
  * sides (rows[0 .. s), .v the expected links, strength times the other
- * side's sum, .w the strength) in that order; the prefix whose links
- * (senders to receivers: a x b pairs, less a directed graph's own pairs)
- * beat the background most; into th[0] (sending) and th[1] (receiving)
- * the strength of the side's last member kept, 0 when the side is kept
- * whole, above every strength when none of it is. pos: n zeros, left
- * zeroed. */
+ * side's sum, .w the strength) in that order; into th[0] (sending) and
+ * th[1] (receiving) the strength of the side's last member kept, 0 when
+ * the side is kept whole, above every strength when none of it is. */
 static void column_thresholds_sided(const struct graph *g, struct ranked *rows, uint32_t s,
 				    double le, double l1e, uint32_t *pos, double *th)
 {
-	th[0] = th[1] = 0.0;
-	if (s < 3)
-		return;
-	qsort(rows, s, sizeof *rows, ranked_cmp);
-	double E = 0.0, best = -HUGE_VAL, a = 0.0, b = 0.0, own = 0.0;
-	uint32_t keep = s;
-	for (uint32_t i = 0; i < s; i++) {
-		uint32_t u = rows[i].u;
-		for (uint64_t j = g->off[u]; j < g->off[u + 1]; j++)
-			E += pos[g->adj[j]] != 0;
-		pos[u] = i + 1;
-		if (graph_side_of(g, u))
-			b += 1.0;
-		else
-			a += 1.0;
-		/* a directed graph's node is a sender and a receiver: that
-		 * pair is no pair of the graph */
-		if (g->paired && pos[u < g->nsend ? u + g->nsend : u - g->nsend])
-			own += 1.0;
-		double P = a * b - own;
-		double ll = agm_block_loglik(E, P) - (E * le + (P - E) * l1e);
-		if (P > 0.0 && ll > best) {
-			best = ll;
-			keep = i + 1;
-		}
-	}
+	uint32_t keep = column_kept(g, rows, s, le, l1e, pos);
 	double last[2] = { 0.0, 0.0 }, top[2] = { 0.0, 0.0 };
 	uint32_t kept[2] = { 0, 0 }, all[2] = { 0, 0 };
 	for (uint32_t i = 0; i < s; i++) {
 		int side = graph_side_of(g, rows[i].u);
-		pos[rows[i].u] = 0;
 		all[side]++;
 		if (rows[i].w > top[side])
 			top[side] = rows[i].w;
