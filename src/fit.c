@@ -151,7 +151,6 @@ static struct snapshot *snapshot_of_counters(struct fit *f, enum fit_state state
 		.refs_ = 1, .state = state, .sweep = f->sweep,
 		.start = f->start, .starts = f->starts, .reseeds = f->reseeds,
 		.best_start = f->best_start, .best_loglik = f->best_loglik,
-		.best_by_code = fit_judged_by_code(f->p.model),
 		.plateau = f->plateau_sweep > 0, .plateau_sweep = f->plateau_sweep,
 		.seconds = elapsed(f), .epsilon = f->m.epsilon, .delta = f->m.delta,
 		.seeds = f->seeds, .savepoint = f->res_out, .stats = f->stats,

@@ -61,7 +61,7 @@ struct fit_params {
 	double epsilon;      /* background; <= 0 picks model_default_epsilon() */
 	int past_plateau;    /* 1: do not stop at a plateau, only mark it */
 	unsigned starts;     /* fit this many times (sweep orders differ) and
-			      * keep the most likely; >= 1 */
+			      * keep the shortest code (starts.c); >= 1 */
 	int no_reseed;       /* 1: skip the reseeding moves after a plateau */
 	int hold_at_plateau; /* 1: at a plateau wait (state LEVELLED) for
 			      * fit_extend() or fit_stop() instead of ending */
@@ -91,14 +91,6 @@ struct trace_point {
 
 /* Where the time went, for benchmarks (all starts and refinement moves
  * included; wall-clock seconds on the fitting thread). */
-/* 1 for the models whose starts and reseeding moves are judged by the
- * code length of their covers (agm.h: BigCLAM, and the directed and
- * two-mode models of links read as two-sided AGMs); the Poisson models
- * of weights are judged by l(F). */
-static inline int fit_judged_by_code(enum model_kind kind)
-{
-	return kind == MODEL_BIGCLAM || kind == MODEL_DIRECTED || kind == MODEL_TWO_MODE;
-}
 /* How a start ended, as the starts were compared (run.json's record):
  * its final l(F) and its cover's code length; NAN where unknown (a start
  * not ended in this process, or a model not judged by code length). */
@@ -128,8 +120,6 @@ struct snapshot {
 	uint32_t start, starts;  /* which start this is (1-based), of how many */
 	uint32_t best_start;     /* the best start so far (0: none done) */
 	double best_loglik;      /* its final log-likelihood */
-	int best_by_code;        /* starts are compared by the code length of
-				  * their covers (fit_judged_by_code()), else by l(F) */
 	struct start_end *start_ends; /* owned; starts entries (see below), or NULL */
 	uint32_t reseeds;        /* reseeding moves kept in this start */
 	enum fit_state state;

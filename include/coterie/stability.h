@@ -73,7 +73,7 @@ struct stability {
 	uint64_t *seed;     /* runs seeds, in run order */
 	double *loglik;     /* runs final log-likelihoods l(F) */
 	double *code;       /* runs code lengths of their covers (agm_code_length(),
-			     * what chose the kept one), or NULL: by l(F) */
+			     * what chose the kept one) */
 	uint32_t k;         /* communities of the kept cover (its columns) */
 	double *score;      /* k stabilities, in the kept cover's order; NaN
 			     * for an empty community */

@@ -574,17 +574,16 @@ static const struct snapshot *repeat_fits(struct run *r, const struct snapshot *
 		return main;
 	sb->runs = n;
 	/* the best as --starts has it: the shortest code length of the
-	 * cover (best_by_code: fit_judged_by_code()), else the highest l(F) */
-	if (main->best_by_code && !(sb->code = util_calloc(n, sizeof *sb->code)))
+	 * cover */
+	if (!(sb->code = util_calloc(n, sizeof *sb->code)))
 		return main;
 	double best = 0.0;
 	for (uint32_t i = 0; i < n; i++) {
 		const struct snapshot *x = r->runs[i];
 		sb->seed[i] = q.seed + i;
 		sb->loglik[i] = x->trace[x->ntrace - 1].loglik;
-		if (sb->code)
-			sb->code[i] = agm_code_length_of(&x->agm.cover, x->agm.loglik, r->graph);
-		double score = sb->code ? -sb->code[i] : sb->loglik[i];
+		sb->code[i] = agm_code_length_of(&x->agm.cover, x->agm.loglik, r->graph);
+		double score = -sb->code[i];
 		if (i == 0 || score > best) {
 			best = score;
 			sb->kept = i;
@@ -630,7 +629,7 @@ static int score_stability(struct run *r, const struct agm *a)
 		notice("kept repeat %u of %u (seed %llu), %s; mean stability of its "
 		       "communities %.3f (the best-match Jaccard in the %u other fits)",
 		       sb->kept + 1, sb->runs, (unsigned long long)sb->seed[sb->kept],
-		       r->runs[sb->kept]->best_by_code ? "the shortest code" : "the most likely",
+		       "the shortest code",
 		       stability_mean(sb), no);
 	return 0;
 }
@@ -643,8 +642,8 @@ static void say_written(const struct run *r, const struct snapshot *s, enum fit_
 			  r->interrupted ? "was interrupted" : "was stopped";
 	char best[64] = "";
 	if (s->starts > 1)
-		snprintf(best, sizeof best, " (start %u of %u, %s)", s->best_start, s->starts,
-			 s->best_by_code ? "the shortest code" : "the most likely");
+		snprintf(best, sizeof best, " (start %u of %u, the shortest code)", s->best_start,
+			 s->starts);
 	uint32_t covered, overlapping, nodes;
 	if (agm_coverage_as_given(a, r->graph, &covered, &overlapping, &nodes))
 		return;

@@ -80,7 +80,7 @@ static void progress_format(const struct snapshot *s, int final, unsigned width,
 	f[PF_HEAD][0] = '\0';
 	if (kept) {
 		snprintf(f[PF_HEAD], sizeof f[0], "kept start %u of %u (%s):", s->best_start,
-			 s->starts, s->best_by_code ? "the shortest code" : "the most likely");
+			 s->starts, "the shortest code");
 		snprintf(brief, sizeof brief, "kept start %u of %u:", s->best_start, s->starts);
 	} else if (s->starts > 1) {
 		snprintf(f[PF_HEAD], sizeof f[0], "start %u/%u", s->start, s->starts);
