@@ -788,8 +788,7 @@ int agm_member_at(const struct graph *g, const struct fcsr *F, uint32_t u, uint6
 	/* a two-sided row against the other side's sum (model_directed.h),
 	 * at its own side's threshold */
 	int sided = g->nsend && F->sidesum, recv = sided && graph_side_of(g, u);
-	if (F->thr && F->thr[c + (recv ? F->k : 0)] > delta)
-		delta = F->thr[c + (recv ? F->k : 0)];
+	delta = fcsr_delta_at(F, c, recv, delta);
 	double sum = sided ? F->sidesum[c + (recv ? 0 : F->k)] : F->colsum[c];
 	return agm_is_member(F->e[j].v, sum, delta, min_links, graph_degree(g, u));
 }

@@ -90,9 +90,7 @@ int model_directed_member_at(const struct graph *g, const struct fcsr *F, const 
 	int recv = graph_side_of(g, u);
 	const double *other = sums + (recv ? 0 : F->k);
 	uint32_t c = F->e[j].c;
-	/* the side's threshold from agm_trim() (2 k with sidesum) */
-	if (F->thr && F->sidesum && F->thr[c + (recv ? F->k : 0)] > delta)
-		delta = F->thr[c + (recv ? F->k : 0)];
+	delta = fcsr_delta_at(F, c, recv, delta); /* the side's, from agm_trim() */
 	return agm_is_member(F->e[j].v, other[c], delta, AGM_MIN_LINKS, graph_degree(g, u));
 }
 

@@ -42,6 +42,17 @@ struct fcsr {
 	double *sidesum;
 };
 
+/* The threshold an entry of column c is read at: delta, or the column's
+ * own threshold (thr) when higher; recv: a receiving row of a two-sided
+ * fit read by side (sidesum set: thr then holds 2 k values). */
+static inline double fcsr_delta_at(const struct fcsr *F, uint32_t c, int recv, double delta)
+{
+	if (!F->thr)
+		return delta;
+	double t = F->thr[c + (recv && F->sidesum ? F->k : 0)];
+	return t > delta ? t : delta;
+}
+
 /* Free the arrays of f and zero it; NULL is a no-op. */
 void fcsr_release(struct fcsr *f);
 

@@ -72,7 +72,7 @@ static void fit_usage(FILE *out)
 		"      --starts N        fit N times from different seeds and sweep orders and\n"
 		"                        keep the best: the cover of the shortest code length\n"
 		"                        (its AGM log-likelihood less the cost of naming its\n"
-		"                        members; the most likely start with --weighted).\n"
+		"                        members; with --weighted too).\n"
 		"                        Default 3 below 100000 edges, else 1 (the\n"
 		"                        likelihood has local maxima)\n"
 		"      --repeats N       fit N times in all, from seeds S, S+1, ... (several\n"
