@@ -87,6 +87,7 @@ struct fit {
 	int awake_ok;              /* the sweep engine's awake flags are the model's */
 	int warm_moves;            /* fit_origin.moves: a warm start makes the moves */
 	int moving;                /* climbing after a reseeding move: the plateau at FIT_MOVE_TOL */
+	int local;                 /* a move's climb: quiet sweeps only, from the rows it woke (starts.c) */
 	uint32_t goal_sweep;       /* fit_extend_by(n): run to this sweep, then hold (0: none) */
 	double seconds_base, t0;
 	struct seed_report seeds;

@@ -395,10 +395,17 @@ static double climb_tol(const struct fit *f, double tol)
  * every FIT_QUIET_EVERY-th sweep, and not when it could fire the plateau
  * rule (the patience - 1 sweeps before it gained less than the fit's own
  * tolerance): the rule fires on a full sweep. The fit's own p.tol, not
- * the one in force, so that the sweeps do not depend on fit_set_tol(). */
+ * the one in force, so that the sweeps do not depend on fit_set_tol().
+ * A reseeding move's climb (f->local) is quiet throughout: only the rows
+ * the move changed, their neighbours, and the rows those wake (starts.c);
+ * the plateau after the moves is judged on full sweeps again. */
 static int quiet_next(const struct fit *f)
 {
-	if (f->p.full_sweeps || !f->awake_ok || f->sweep % FIT_QUIET_EVERY == 0)
+	if (f->p.full_sweeps || !f->awake_ok)
+		return 0;
+	if (f->local)
+		return 1;
+	if (f->sweep % FIT_QUIET_EVERY == 0)
 		return 0;
 	/* the sweeps that gained little, last first (at most patience - 1):
 	 * when the next one could fire the plateau rule, it is full */

@@ -32,10 +32,19 @@
  * community). Either way the start then fits to a plateau again, at the
  * looser FIT_MOVE_TOL (1e-3, or --tol if looser; a move that has not
  * paid by then climbs on to --tol), and the move is kept only if the
- * score that compares starts rose (the code length fell; l(F) rose, for
- * the weighted models); otherwise the model goes back (a
- * failed merge halves the joins the next one may make). After the last
- * move the start climbs to its own plateau (--tol).
+ * score that compares starts rose (the code length fell); otherwise the
+ * model goes back (a failed merge halves the joins the next one may
+ * make). After the last move the start climbs to its own plateau
+ * (--tol), on full sweeps.
+ * A move's climb is local (wake_moved()): quiet sweeps of the rows the
+ * move changed and their neighbours, and of the rows that those wake as
+ * they gain (sweep.h), never a full sweep, unless the move woke more
+ * than half of the rows (small graphs), where it is the plain climb. A
+ * move touches a few thousand rows of 2x10^5 and wakes a fifth of them;
+ * with a full sweep after each move and each unpaid one, the moves cost
+ * as much as the climb to the first plateau on the directed and two-mode
+ * graphs of 10^5 nodes, whose moves mostly fail (DEVELOPERS.md, "Local
+ * climbs after a move").
  * Moves stop after RESEED_FAILS failures in a row, RESEED_MAX moves, or
  * when they have used half as many sweeps as the climb to the first
  * plateau (at least RESEED_MIN_BUDGET).
@@ -67,6 +76,7 @@
 #define RESEED_BUDGET_DIV 2u /* the moves' sweeps: the climb's over this */
 #define MERGE_BATCH_DIV 16u /* the first merge move joins at most k / 16 pairs */
 #define MERGE_BATCH_MIN 8u
+#define LOCAL_MAX_SHARE 0.5 /* a move's climb is local when it wakes at most this share of the rows */
 
 /* Where the climb of the current start is kept while its moves run. */
 enum climb_copy {
@@ -411,6 +421,51 @@ static int reseed_column(struct fit *f, struct rng *r)
 	return rc;
 }
 
+/* Wake the rows a move changed (against saved, the model before it) and
+ * their neighbours, and no other row: the move's climb (f->local) sweeps
+ * those and the rows they wake in turn. Rows elsewhere see the same
+ * gradient as before the move but for the column sums of the columns the
+ * move rewrote, and every row holding one of those was changed. When
+ * more than LOCAL_MAX_SHARE of the rows would wake (small graphs: on
+ * the 297 neurons of C. elegans a move wakes 250), the climb is the
+ * plain one, a full sweep first, which costs no more there. 1 (local),
+ * 0 (plain: the engine's flags are not the model's) or -1. */
+static int wake_moved(struct fit *f, const struct fcsr *saved)
+{
+	f->awake_ok = 0;
+	const struct model *m = &f->m;
+	const struct graph *g = f->gw; /* the sweep engine's rows are the model's */
+	size_t n = m->n ? m->n : 1;
+	uint8_t *changed = util_calloc(n, 1), *awake = util_calloc(n, 1);
+	if (!changed || !awake) {
+		free(changed);
+		free(awake);
+		return -1;
+	}
+	for (uint32_t u = 0; u < m->n; u++) {
+		const struct frow *r = &m->rows[u];
+		uint64_t was = saved->off[u + 1] - saved->off[u];
+		changed[u] = r->nnz != was ||
+			     (was && memcmp(r->e, saved->e + saved->off[u], was * sizeof *r->e) != 0);
+	}
+	uint64_t woke = 0;
+	for (uint32_t u = 0; u < m->n; u++) {
+		uint8_t a = changed[u];
+		for (uint64_t i = g->off[u]; i < g->off[u + 1] && !a; i++)
+			a = changed[g->adj[i]];
+		awake[u] = a;
+		woke += a;
+	}
+	int local = (double)woke <= LOCAL_MAX_SHARE * m->n;
+	if (local) {
+		sweep_set_awake(f->sw, awake);
+		f->awake_ok = 1;
+	}
+	free(changed);
+	free(awake);
+	return local;
+}
+
 /* Climb on from where a move's climb levelled off at FIT_MOVE_TOL to
  * the fit's own plateau (--tol). */
 static enum fit_state climb_on(struct fit *f)
@@ -440,8 +495,8 @@ static enum fit_state reseed(struct fit *f)
 	uint32_t merge_limit = f->m.k / MERGE_BATCH_DIV > MERGE_BATCH_MIN ? f->m.k / MERGE_BATCH_DIV
 									  : MERGE_BATCH_MIN;
 	/* the moves may spend at most half as many sweeps as the climb did
-	 * (and at least RESEED_MIN_BUDGET). A move's sweeps cost more than
-	 * the climb's last ones (a move wakes many rows), and from clusters
+	 * (and at least RESEED_MIN_BUDGET), counted as sweeps whether
+	 * local or not. From clusters
 	 * the moves kept came first: at 10^5 and 2x10^5 nodes (mixing 0.2)
 	 * the moves of a budget of a whole climb (30 sweeps at least) and
 	 * those of half of one (10 at least) kept the same model, in 12.5
@@ -485,9 +540,14 @@ static enum fit_state reseed(struct fit *f)
 		}
 		f->ll_moved_value = fit_loglik(f);
 		f->ll_moved = 1;
-		f->awake_ok = 0;
+		int local = wake_moved(f, &saved);
+		if (local < 0) {
+			st = FIT_FAILED;
+			break;
+		}
 		f->streak = 0;
 		f->moving = 1;
+		f->local = local; /* until the move is judged, its climb_on() too */
 		st = fit_run_start(f, 0);
 		f->moving = 0;
 		/* a move that has not paid at FIT_MOVE_TOL climbs on to --tol
@@ -502,6 +562,7 @@ static enum fit_state reseed(struct fit *f)
 			if (!paid)
 				st = climb_on(f);
 		}
+		f->local = 0;
 		spent += f->sweep - sweep;
 		if (st == FIT_FAILED)
 			break;
