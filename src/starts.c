@@ -545,6 +545,10 @@ static enum fit_state reseed(struct fit *f)
 			st = FIT_FAILED;
 			break;
 		}
+		if (local)
+			f->stats.moves_local++;
+		else
+			f->stats.moves_plain++;
 		f->streak = 0;
 		f->moving = 1;
 		f->local = local; /* until the move is judged, its climb_on() too */

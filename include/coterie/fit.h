@@ -111,6 +111,8 @@ struct fit_stats {
 	uint64_t trials;        /* line-search trials evaluated */
 	uint64_t visits;        /* neighbour rows read (model_work_counts()) */
 	uint64_t entries;       /* their entries read in gradient passes (model_work_entries()) */
+	uint32_t moves_local;   /* reseeding moves whose climb was local (starts.c) */
+	uint32_t moves_plain;   /* and those that woke over half of the rows */
 };
 
 /* An immutable picture of the fit after a sweep. Take one with

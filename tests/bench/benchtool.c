@@ -323,6 +323,7 @@ static int cmd_fit(int argc, char **argv)
 					       ? (double)x->rows_skipped / (double)(x->rows + x->rows_skipped)
 					       : 0.0);
 	printf("reads_per_visit\t%.3f\n", adj > 0 ? (double)x->visits / adj : 0.0);
+	printf("moves_local\t%u\nmoves_plain\t%u\n", x->moves_local, x->moves_plain);
 	/* strength entries per neighbour row met by the fit, to set beside
 	 * the yardstick's (its rows are the final ones) */
 	printf("entries_per_visit\t%.3f\n", adj > 0 ? (double)x->entries / (adj) : 0.0);

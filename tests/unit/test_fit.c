@@ -25,6 +25,7 @@
 
 #include "../../src/fit-internal.h"
 #include "coterie/score.h"
+#include "coterie/simulate.h"
 
 /* struct fentry has padding bytes: compare the fields */
 static void assert_same_strengths(const struct fcsr *a, const struct fcsr *b)
@@ -400,6 +401,77 @@ static void test_planted_overlapping_cover_is_recovered(void **state)
 	graph_free(g);
 }
 
+/* A leaky planted graph of 3x10^4 nodes (simulate: sizes 20-1000, exponent
+ * 2, 10% of nodes in two communities, mean degree 10, even degrees,
+ * mixing 0.2, seed 4), loaded from the files simulate writes; *k gets the
+ * planted count (430). */
+static struct graph *leaky_30k(uint32_t *k)
+{
+	struct simulate_params p;
+	simulate_params_default(&p);
+	p.n = 30000;
+	p.size_min = 20;
+	p.size_max = 1000;
+	p.size_exponent = 2.0;
+	p.overlap = 0.1;
+	p.mean_degree = 10.0;
+	p.even_degrees = 1;
+	p.mixing = 0.2;
+	p.seed = 4;
+	p.threads = 2;
+	struct simulate sim;
+	assert_int_equal(simulate_run(&p, &sim), 0);
+	char d[4096], path[4200];
+	snprintf(d, sizeof d, "%s", test_tmpdir());
+	struct simulate_meta meta = { "test", "", 0.0 };
+	assert_int_equal(simulate_write(d, &sim, &p, &meta), 0);
+	snprintf(path, sizeof path, "%s/%s", d, SIMULATE_EDGES);
+	struct graph *g = graph_load(path, GRAPH_FORMAT_AUTO);
+	assert_non_null(g);
+	*k = sim.k;
+	simulate_release(&sim);
+	test_rmtree(d);
+	return g;
+}
+
+/* A reseeding move's climb is local where the move wakes at most half of
+ * the rows (starts.c, wake_moved()): on the leaky graph of 3x10^4 nodes
+ * its moves wake 25-36% of them (measured in session 16), on football
+ * (115 nodes) nearly all, so there the climb stays the plain one. The
+ * local climbs keep the fit's determinism: the same bytes at 1 and 2
+ * threads. */
+static void test_move_climbs_are_local_on_large_graphs_only(void **state)
+{
+	(void)state;
+	uint32_t k = 0;
+	struct graph *g = leaky_30k(&k);
+	unsigned starts = starts_for_run_fit;
+	starts_for_run_fit = 1; /* what fit chooses at 10^5 edges and more */
+	struct snapshot *a = run_fit(g, k, 2, 1, 500);
+	struct snapshot *b = run_fit(g, k, 1, 1, 500);
+	starts_for_run_fit = starts;
+	printf("leaky 3x10^4 nodes, k %u: %u moves with a local climb, %u plain\n", k,
+	       a->stats.moves_local, a->stats.moves_plain);
+	assert_true(a->stats.moves_local >= 1);
+	assert_int_equal(a->stats.moves_local, b->stats.moves_local);
+	assert_int_equal(a->sweep, b->sweep);
+	assert_same_strengths(&a->F, &b->F);
+	for (uint32_t t = 0; t < a->ntrace; t++)
+		assert_true(a->trace[t].loglik == b->trace[t].loglik);
+	snapshot_release(a);
+	snapshot_release(b);
+	graph_free(g);
+	g = graph_load(test_data("football/edges.tsv"), GRAPH_FORMAT_AUTO);
+	assert_non_null(g);
+	struct snapshot *c = run_fit(g, 12, 2, 1, 500);
+	printf("football, k 12: %u moves with a local climb, %u plain\n", c->stats.moves_local,
+	       c->stats.moves_plain);
+	assert_int_equal(c->stats.moves_local, 0);
+	assert_true(c->stats.moves_plain >= 1);
+	snapshot_release(c);
+	graph_free(g);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -411,6 +483,7 @@ int main(void)
 		cmocka_unit_test(test_extend_by_runs_n_sweeps_and_a_smaller_tol_runs_to_the_next_plateau),
 		cmocka_unit_test(test_football_fit_rivals_leiden_on_conferences),
 		cmocka_unit_test(test_planted_overlapping_cover_is_recovered),
+		cmocka_unit_test(test_move_climbs_are_local_on_large_graphs_only),
 	};
 	igraph_set_error_handler(igraph_error_handler_printignore);
 	return cmocka_run_group_tests(tests, NULL, NULL);
