@@ -432,14 +432,10 @@ static int reseed_column(struct fit *f, struct rng *r)
  * 0 (plain: the engine's flags are not the model's) or -1. */
 static int wake_moved(struct fit *f, const struct fcsr *saved)
 {
-	f->awake_ok = 0;
-	const struct model *m = &f->m;
-	const struct graph *g = f->gw; /* the sweep engine's rows are the model's */
-	size_t n = m->n ? m->n : 1;
-	uint8_t *changed = util_calloc(n, 1), *awake = util_calloc(n, 1);
-	if (!changed || !awake) {
-		free(changed);
-		free(awake);
+	const struct model *m = &f->m; /* the sweep engine's rows are the model's */
+	uint8_t *changed = util_calloc(m->n ? m->n : 1, 1);
+	if (!changed) {
+		f->awake_ok = 0;
 		return -1;
 	}
 	for (uint32_t u = 0; u < m->n; u++) {
@@ -448,21 +444,10 @@ static int wake_moved(struct fit *f, const struct fcsr *saved)
 		changed[u] = r->nnz != was ||
 			     (was && memcmp(r->e, saved->e + saved->off[u], was * sizeof *r->e) != 0);
 	}
-	uint64_t woke = 0;
-	for (uint32_t u = 0; u < m->n; u++) {
-		uint8_t a = changed[u];
-		for (uint64_t i = g->off[u]; i < g->off[u + 1] && !a; i++)
-			a = changed[g->adj[i]];
-		awake[u] = a;
-		woke += a;
-	}
-	int local = (double)woke <= LOCAL_MAX_SHARE * m->n;
-	if (local) {
-		sweep_set_awake(f->sw, awake);
-		f->awake_ok = 1;
-	}
+	/* (set either way: a plain climb's full first sweep ignores them) */
+	int local = (double)sweep_wake(f->sw, changed) <= LOCAL_MAX_SHARE * m->n;
+	f->awake_ok = local;
 	free(changed);
-	free(awake);
 	return local;
 }
 

@@ -330,6 +330,16 @@ static void wake_job(void *arg, unsigned tid)
 		}
 }
 
+/* The awake flags from s->moved, on the pool. */
+static void wake_all(struct sweep *s)
+{
+	atomic_store(&s->next, 0);
+	s->job_end = s->nparts;
+	pool_begin(s->pool, wake_job, s, s->nparts < 2);
+	wake_job(s, 0);
+	pool_end(s->pool);
+}
+
 /* This process's share [*lo, *hi) of len items (all of them when alone). */
 static void share_of(const struct sweep *s, uint32_t len, unsigned rank, uint32_t *lo,
 		     uint32_t *hi)
@@ -774,13 +784,8 @@ int sweep_run(struct sweep *s, uint64_t order_seed, sweep_between_fn *between, v
 	 * import, goes on bit for bit as the uninterrupted fit would */
 	model_recount(s->m);
 	model_pack(s->m);
-	if (rc == 0) {
-		atomic_store(&s->next, 0);
-		s->job_end = s->nparts;
-		pool_begin(s->pool, wake_job, s, s->nparts < 2);
-		wake_job(s, 0);
-		pool_end(s->pool);
-	}
+	if (rc == 0)
+		wake_all(s);
 	return rc;
 }
 
@@ -803,4 +808,15 @@ const uint8_t *sweep_awake(const struct sweep *s)
 void sweep_set_awake(struct sweep *s, const uint8_t *awake)
 {
 	memcpy(s->awake, awake, s->g->n);
+}
+
+uint64_t sweep_wake(struct sweep *s, const uint8_t *changed)
+{
+	uint32_t n = s->g->n;
+	memcpy(s->moved, changed, n);
+	wake_all(s);
+	uint64_t woke = 0;
+	for (uint32_t u = 0; u < n; u++)
+		woke += s->awake[u];
+	return woke;
 }

@@ -75,6 +75,10 @@ uint64_t sweep_skipped(const struct sweep *s);
  * setting them (n bytes, copied), for a savepoint taken back. */
 const uint8_t *sweep_awake(const struct sweep *s);
 void sweep_set_awake(struct sweep *s, const uint8_t *awake);
+/* The awake flags as after a sweep in which exactly the rows flagged in
+ * changed (n bytes) moved: those rows and their neighbours (a reseeding
+ * move's rows, starts.c). Returns how many rows are awake. */
+uint64_t sweep_wake(struct sweep *s, const uint8_t *changed);
 
 /* Sweeps shared among processes that each hold the whole graph and model
  * (MPI: src/mpi_group.c, built into coterie-mpi only). Every process runs
