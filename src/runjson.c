@@ -234,6 +234,7 @@ static json_t *j_seeds(const struct result_model *m, int *bad)
 	jsonout_set(js, "propagation_passes", r->passes ? jsonout_uint(r->passes) : json_null(),
 		    bad);
 	jsonout_set(js, "clusters_found", r->passes ? jsonout_uint(r->clusters) : json_null(), bad);
+	jsonout_set(js, "pieces_joined", r->passes ? jsonout_uint(r->joins) : json_null(), bad);
 	jsonout_set(js, "from_clusters", jsonout_uint(r->used_clusters), bad);
 	jsonout_set(js, "from_ego_nets", jsonout_uint(r->used_minima + r->cover + r->random), bad);
 	return js ? js : json_null();

@@ -72,6 +72,7 @@ int select_params_default(struct select_params *sp, const struct graph *g, uint3
 		top = sp->kmin;
 	sp->kmax = (uint32_t)top;
 	sp->start = L; /* kept within [kmin, kmax] by the search */
+	sp->start_clusters = 1;
 	return 0;
 }
 
@@ -682,6 +683,22 @@ static int shape_batch(struct search *s, struct want *w, uint32_t n, struct sele
 	return rc;
 }
 
+/* The clusters that the seeding of the search's fits finds on the
+ * (first) training split with k unbounded: where the search begins. On a
+ * directed graph they are counted on its undirected view, as the fits
+ * seed there. */
+static int count_clusters(const struct search *s, uint32_t *count)
+{
+	const struct graph *train = s->h[0].train;
+	struct graph *view = train->paired ? graph_undirected_view(train) : NULL;
+	if (train->paired && !view)
+		return -1;
+	int rc = seed_count_clusters(view ? view : train, fold_seed(s->p.seed, 0), 0, s->p.epsilon,
+				     count);
+	graph_free(view);
+	return rc;
+}
+
 static uint32_t clamp_k(double k, uint32_t lo, uint32_t hi)
 {
 	uint32_t r = k < 1.0 ? 1 : (uint32_t)llround(k);
@@ -721,6 +738,13 @@ static int shape_search(struct search *s, const struct graph *g, const struct se
 	while (sp->start && top < hi && fits_memory(s, top < hi / 2 ? 2 * top : hi, threads))
 		top = top < hi / 2 ? 2 * top : hi; /* memory checked in steps of 2 */
 	double mid = sp->start ? sp->start : sqrt((double)kmin * (double)kmax);
+	if (sp->start && sp->start_clusters && s->p.seeding == SEED_CLUSTERS) {
+		uint32_t c = 0;
+		if (count_clusters(s, &c))
+			return -1;
+		if (c >= 2)
+			mid = c;
+	}
 	uint32_t k0 = clamp_k(mid, kmin, top);
 	res->start = k0;
 	struct want w[3];
@@ -784,7 +808,11 @@ static int shape_search(struct search *s, const struct graph *g, const struct se
 		for (int j = 0; j < 2; j++) {
 			int i = j == 0 ? better : !better;
 			uint32_t nb = side[i];
-			if (!nb || !(ratio[i] > fine * (1.0 + 1e-9)))
+			/* a gap of one step between rounded k is up to 1 / k
+			 * wider than the step (94 and 118 = round(94 x
+			 * 1.25): 1.2553); halving it would only chase noise */
+			uint32_t lo_k = nb < b->k ? nb : b->k;
+			if (!nb || !(ratio[i] > fine * (1.0 + 1.0 / (double)lo_k)))
 				continue;
 			uint32_t m = (uint32_t)llround(sqrt((double)nb * (double)b->k));
 			if (m == nb || m == b->k)

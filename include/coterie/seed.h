@@ -26,6 +26,8 @@ struct seed_report {
 	uint32_t clusters;     /* clusters of 2 nodes or more found */
 	uint32_t used_clusters; /* of those, seeded as columns */
 	uint32_t passes;       /* label propagation's passes */
+	uint32_t joins;        /* joins of pieces of one community (the
+				* clusters above are counted after them) */
 };
 
 /* How the starting communities are drawn (fit_params.seeding). */
@@ -80,6 +82,18 @@ int seed_propagate(const struct graph *g, uint64_t seed, uint32_t variant, uint3
  * propagation. rep may be NULL. Returns 0 or -1. */
 int seed_from_clusters(const struct graph *g, struct model *m, uint64_t seed, uint32_t variant,
 		       struct seed_report *rep);
+
+/* Join the pieces of one community that label propagation left apart:
+ * label[] (n values, as seed_propagate() leaves it) rewritten so that
+ * the pieces of a join share one of their labels; *joins the joins made.
+ * The rounds and the test are in seed_clusters.c. Returns 0 or -1. */
+int seed_join_pieces(const struct graph *g, uint32_t *label, double epsilon, uint32_t *joins);
+
+/* How many clusters seed_from_clusters() would take with k unbounded
+ * (label propagation drawn from seed and variant, pieces joined, the
+ * clusters denser than epsilon). Returns 0 or -1. */
+int seed_count_clusters(const struct graph *g, uint64_t seed, uint32_t variant, double epsilon,
+			uint32_t *count);
 
 /* How many distinct locally minimal ego-nets seed_model() (variant 0)
  * would take with k unbounded: the minima in its order, a centre inside

@@ -85,6 +85,10 @@ struct select_params {
 			      * [kmin, kmax] */
 	int full;            /* 1: score the whole grid even on a graph of one
 			      * fold (no search by the shape) */
+	int start_clusters;  /* 1: a search by the shape with seeds from
+			      * clusters begins at the clusters that seeding
+			      * finds on the training split
+			      * (seed_count_clusters()), not at start */
 };
 
 /*

@@ -223,8 +223,10 @@ int cli_fit_opts_grid(struct cli_fit_opts *o, const struct graph *g, uint32_t *m
 		o->sp.step = dflt.step;
 		o->sp.nlist = 0;
 	}
-	if (!o->have_grid) /* where a search by the shape begins; else mid-grid */
+	if (!o->have_grid) { /* where a search by the shape begins; else mid-grid */
 		o->sp.start = dflt.start;
+		o->sp.start_clusters = dflt.start_clusters;
+	}
 	return 0;
 }
 

@@ -35,6 +35,7 @@
 #include "coterie/memory.h"
 #include "coterie/model.h"
 #include "coterie/outdir.h"
+#include "coterie/seed.h"
 #include "coterie/refine.h"
 #include "coterie/result.h"
 #include "coterie/savepoint.h"
@@ -163,7 +164,14 @@ static int choose_k(const struct graph *g, struct fit_params *p, const char *out
 	uint32_t grid[SELECT_MAX_GRID];
 	uint32_t ng = select_grid(sp, grid);
 	unsigned at_once = p->threads * (grp ? grp->size : 1); /* fits at a time */
-	if (!quiet && select_by_shape(g->m, sp) && sp->start) {
+	if (!quiet && select_by_shape(g->m, sp) && sp->start && sp->start_clusters &&
+	    p->seeding == SEED_CLUSTERS) {
+		notice("choosing k by the likelihood of %.0f%% of the edges and as many "
+		       "non-edges, held out: first k the clusters that label propagation finds "
+		       "on the other edges (pieces of one community joined), then k on either "
+		       "side, walking on while the best is at an end (up to n/4), then halving "
+		       "the gaps around the best", 100.0 * sp->share);
+	} else if (!quiet && select_by_shape(g->m, sp) && sp->start) {
 		notice("choosing k by the likelihood of %.0f%% of the edges and as many "
 		       "non-edges, held out: first k %u (the %u distinct locally minimal "
 		       "ego-nets), then k on either side, walking on while the best is at an "

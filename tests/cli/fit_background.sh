@@ -51,11 +51,18 @@ for case in karate:2:0.65 polbooks:3:0.40 football:12:0.83; do
 	check "$g: overlapping NMI $s >= $floor" at_least "$s" "$floor"
 done
 
-# The code length of football's kept cover, recomputed from its files: the
-# cover has no overlapping node, so the AGM's joint maximum has a closed
-# form (tests/unit/test_agm.c works one by hand): the background is the
-# share of linked pairs among the pairs sharing no community, and each
-# community's 1 - (1 - eps)(1 - p_c) is its own density; the code adds
+# The code length of football's kept cover, recomputed from its files. The
+# AGM's joint maximum (background and one p_c a community) is found here
+# one parameter at a time, on a_j = -ln(1 - p_j) (bisection on the
+# derivative), sweeping until nothing moves: a pair
+# sharing the set S of communities is linked with P_S = 1 - exp(-x_S),
+# x_S = a_eps + sum_{c in S} a_c, and the log-likelihood
+#   sum_S [linked_S ln(1 - exp(-x_S)) - (pairs_S - linked_S) x_S]
+# is concave in the a (ln(1 - e^-x) is concave, x_S linear), so the sweeps
+# reach the one maximum. Where no node overlaps, that maximum has a closed
+# form (each community at its own density, the background the share of
+# linked pairs among those sharing none; tests/unit/test_agm.c works one by
+# hand), which the sweeps are checked against first. The code adds
 # ln C(n, s) for each community of s members (Rissanen 1978).
 check "football: the kept cover's code length recomputed from the files" \
 	"$PY" - "$DATA/football/edges.tsv" "$tmp/football" <<'PY'
@@ -76,21 +83,70 @@ of = collections.defaultdict(set)
 for c, ms in memb.items():
     for u in ms:
         of[u].add(c)
-assert all(len(cs) == 1 for cs in of.values()), "an overlapping node: no closed form"
 pairs = collections.Counter(); linked = collections.Counter()
 for a, b in itertools.combinations(sorted(nodes), 2):
     s = frozenset(of[a] & of[b])
     pairs[s] += 1
     linked[s] += frozenset((a, b)) in edges
+
+def agm_max(pairs, linked):
+    """The AGM's maximum log-likelihood over the background and p_c, and
+    the background: one parameter a = -ln(1 - p) at a time, the root of
+    its derivative (decreasing in a: the function is concave) found by
+    bisection, sweeps until nothing moves."""
+    params = ["eps"] + sorted({c for s in pairs for c in s})
+    of_p = {j: [s for s in pairs if j == "eps" or j in s] for j in params}
+    a = {j: 0.01 for j in params}
+    x = lambda s: a["eps"] + sum(a[c] for c in s)
+    def slope(j, v):
+        rest = {s: x(s) - a[j] for s in of_p[j]}
+        g = 0.0
+        for s in of_p[j]:
+            xs = rest[s] + v
+            g += (linked[s] / math.expm1(xs) if linked[s] and xs < 700 else 0.0) - \
+                (pairs[s] - linked[s])
+        return g
+    for sweep in range(500):
+        moved = 0.0
+        for j in params:
+            lo, hi = 0.0, 1.0
+            if slope(j, 1e-300) <= 0:
+                new = 0.0
+            else:
+                while slope(j, hi) > 0 and hi < 1024:  # 1024: p = 1 to the last bit
+                    lo, hi = hi, 2 * hi
+                for _ in range(200):
+                    mid = 0.5 * (lo + hi)
+                    if slope(j, mid) > 0:
+                        lo = mid
+                    else:
+                        hi = mid
+                new = 0.5 * (lo + hi)
+            moved = max(moved, abs(new - a[j]))
+            a[j] = new
+        if moved < 1e-15:
+            break
+    L = 0.0
+    for s in pairs:
+        xs = x(s)
+        L += (linked[s] * math.log(-math.expm1(-xs)) if linked[s] else 0.0) - (pairs[s] - linked[s]) * xs
+    return L, -math.expm1(-a["eps"])
+
+# the sweeps against the closed form on the same pairs read as if no node
+# overlapped (each set of communities its own class)
 none = frozenset()
-eps = linked[none] / pairs[none]
-L = linked[none] * math.log(eps) + (pairs[none] - linked[none]) * math.log(1 - eps)
+closed = linked[none] * math.log(linked[none] / pairs[none]) + \
+    (pairs[none] - linked[none]) * math.log(1 - linked[none] / pairs[none])
 for s in pairs:
     if s != none:
         d = linked[s] / pairs[s]
-        assert d > eps  # else p_c would sit at 0 and the closed form differ
-        L += (linked[s] * math.log(d) if linked[s] else 0) + \
-             ((pairs[s] - linked[s]) * math.log(1 - d) if linked[s] < pairs[s] else 0)
+        closed += (linked[s] * math.log(d) if linked[s] else 0) + \
+                  ((pairs[s] - linked[s]) * math.log(1 - d) if linked[s] < pairs[s] else 0)
+as_classes = {frozenset([s]) if s else none: v for s, v in pairs.items()}
+as_linked = {frozenset([s]) if s else none: v for s, v in linked.items()}
+Lc, _ = agm_max(as_classes, collections.Counter(as_linked))
+assert abs(Lc - closed) < 1e-7 * abs(closed), (Lc, closed)
+L, eps = agm_max(pairs, linked)
 n = len(nodes)
 lnc = lambda n, k: math.lgamma(n + 1) - math.lgamma(k + 1) - math.lgamma(n - k + 1)
 code = -L + sum(lnc(n, len(ms)) for ms in memb.values())

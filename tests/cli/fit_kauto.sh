@@ -227,8 +227,11 @@ fine = 1.25 ** 0.5  # a gap of 1.118 rounds to k a little wider: 1 allowed
 assert ks[i + 1] <= best * fine + 1 and best <= ks[i - 1] * fine + 1, ks
 PYEOF
 "$BIN" fit "$tmp/pl/edges.tsv" -k auto -j 1 -o "$tmp/sh1" 2>"$tmp/sh1.err"
-check "shape search: the notice names the first k, not the grid's 500 cap" \
-	grep -q "first k $(json_get "$tmp/sh/run.json" k_selection.start) (the" "$tmp/sh1.err"
+check "shape search: the notice says the first k is the clusters of the seeding" \
+	grep -q "first k the clusters that label propagation finds" "$tmp/sh1.err"
+check "shape search: the first k scored is k_selection.start, not the grid's 500 cap" \
+	grep -q "choosing k: k $(json_get "$tmp/sh/run.json" k_selection.start) (start) scores" \
+	"$tmp/sh1.err"
 check "shape search: no notice of a grid of values" sh -c "! grep -q 'values from' '$tmp/sh1.err'"
 cut -f1,2,6,10,11,12 "$tmp/sh/k-selection.tsv" >"$tmp/sh.sel"
 cut -f1,2,6,10,11,12 "$tmp/sh1/k-selection.tsv" >"$tmp/sh1.sel"

@@ -619,7 +619,8 @@ static void test_run_json_records_how_the_last_start_began(void **state)
 	struct snapshot s = fx.s;
 	s.starts = 3;
 	s.seeds = (struct seed_report){ .local_minima = 9, .used_minima = 1, .cover = 0,
-					.random = 1, .clusters = 7, .used_clusters = 1, .passes = 4 };
+					.random = 1, .clusters = 7, .used_clusters = 1, .passes = 4,
+					.joins = 2 };
 	const char *tmp = test_tmpdir();
 	char dir[4200];
 	snprintf(dir, sizeof dir, "%s/out", tmp);
@@ -628,12 +629,14 @@ static void test_run_json_records_how_the_last_start_began(void **state)
 	json_t *root = json_load_file(path_in(dir, "run.json"), 0, &jerr);
 	assert_non_null(root);
 	json_t *js = get(root, "fit", "seeds");
-	static const char *const keys[] = { "start", "propagation_passes", "clusters_found",
+	static const char *const keys[] = { "start",	     "propagation_passes",
+					    "clusters_found", "pieces_joined",
 					    "from_clusters", "from_ego_nets" };
-	assert_keys(js, keys, 5);
+	assert_keys(js, keys, 6);
 	assert_int_equal(json_integer_value(json_object_get(js, "start")), 3);
 	assert_int_equal(json_integer_value(json_object_get(js, "propagation_passes")), 4);
 	assert_int_equal(json_integer_value(json_object_get(js, "clusters_found")), 7);
+	assert_int_equal(json_integer_value(json_object_get(js, "pieces_joined")), 2);
 	assert_int_equal(json_integer_value(json_object_get(js, "from_clusters")), 1);
 	assert_int_equal(json_integer_value(json_object_get(js, "from_ego_nets")), 2);
 	json_decref(root);
