@@ -706,9 +706,11 @@ static uint32_t clamp_k(double k, uint32_t lo, uint32_t hi)
 }
 
 /*
- * The search by the curve's shape (select.h): k0 from seeds, then k0 /
- * step and k0 step (one grid step) warm-started from it; while the best
- * is the largest (smallest) k scored, a walk multiplying (dividing) it by
+ * The search by the curve's shape (select.h): k0 from seeds (the clusters
+ * that seeding finds on the training split, count_clusters(); else
+ * sp->start), then k0 / fine and k0 fine warm-started from it, fine the
+ * refinement's last step (below); while the best is the largest
+ * (smallest) k scored, a walk multiplying (dividing) it by
  * r (r = step^2, two grid steps), past the grid's edge up to n/4,
  * MODEL_MAX_K and memory (down
  * to 2); then, one gap a round, the gap around the best on the side of the
@@ -718,10 +720,11 @@ static uint32_t clamp_k(double k, uint32_t lo, uint32_t hi)
  * tried starts from the fit of the nearest k above it (the only split),
  * its weakest columns dropped; one above every k tried from the fit of
  * the nearest k below, the columns its seeding adds added (select_warm.c).
- * Why one grid step to bracket: the bracket's two fits then need one
- * halving each to reach the fine step, 5 fits in all when the top is
- * near k0 (7 with two steps); at 2x10^5 nodes 62.8 -> 47.8 s, the same
- * choice (DEVELOPERS.md, "-k auto from clusters"). Points go after
+ * Why the bracket at the last step: from the clusters, k0 is near the
+ * top (2x10^5 nodes: 2366 of 2374 planted; 10^5: 1131 of 1142), and a
+ * bracket already at the last step needs no halving: 3 fits where a
+ * bracket of one grid step took 5, 35.8 -> 25.1 s at 2x10^5, the same
+ * choice (DEVELOPERS.md, "Pieces joined before seeding"). Points go after
  * pts[0 .. *np). Sets res->start, extended, bound and edge.
  */
 static int shape_search(struct search *s, const struct graph *g, const struct select_params *sp,
@@ -762,8 +765,13 @@ static int shape_search(struct search *s, const struct graph *g, const struct se
 	 * 11) */
 	w[0].moves = 1;
 	double r = sp->step * sp->step; /* the walk's factor: two grid steps */
-	w[1] = want_of(clamp_k(k0 / sp->step, kmin, top), 0, "bracket");
-	w[2] = want_of(clamp_k(k0 * sp->step, kmin, top), 0, "bracket");
+	/* the refinement ends at half a grid step (1.118 for 1.25) on a
+	 * split of SELECT_FINE_EDGES held-out edges or more, else at one
+	 * (select.h): on large graphs the curve's top is sharp and one step
+	 * stopped 15% short of it */
+	double fine = s->h[0].nedges >= SELECT_FINE_EDGES ? sqrt(sp->step) : sp->step;
+	w[1] = want_of(clamp_k(k0 / fine, kmin, top), 0, "bracket");
+	w[2] = want_of(clamp_k(k0 * fine, kmin, top), 0, "bracket");
 	for (int i = 0; i < 3; i++)
 		if ((w[i].added = w[i].k > kmax))
 			res->extended = 1;
@@ -792,11 +800,6 @@ static int shape_search(struct search *s, const struct graph *g, const struct se
 			break;
 	}
 	res->bound = hi;
-	/* the refinement ends at half a grid step (1.118 for 1.25) on a
-	 * split of SELECT_FINE_EDGES held-out edges or more, else at one
-	 * (select.h): on large graphs the curve's top is sharp and one step
-	 * stopped 15% short of it */
-	double fine = s->h[0].nedges >= SELECT_FINE_EDGES ? sqrt(sp->step) : sp->step;
 	while (rc == 0) { /* the refinement: halve the wide gaps around the best */
 		around(pts, *np, b->k, &below, &above);
 		uint32_t n = 0, side[2] = { below, above };

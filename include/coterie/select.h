@@ -35,9 +35,12 @@
  * curve rises with k, then falls or flattens, and on large graphs the
  * fits of small k are as dear as those near the top (a fit at k 15 of a
  * 20,000-node graph took more sweeps than one at k 200), so instead of the
- * grid: k0 (sp->start, the number L of locally minimal ego-nets of the
- * default grid, up to n/4: the grid's cap of 500 bounds the cost of a full
- * grid, not where the top is) from seeds, then k0 / step and k0 step;
+ * grid: k0 from seeds (with seeds from clusters, sp->start_clusters: the
+ * clusters that seeding finds on the training split, seed_count_clusters();
+ * else sp->start, the number L of locally minimal ego-nets of the default
+ * grid; up to n/4: the grid's cap of 500 bounds the cost of a full grid,
+ * not where the top is), then k0 / f and k0 f, f the refinement's last
+ * step (below);
  * while the best is the largest (smallest) k tried, a walk by the factor
  * r = step^2, past the grid's edge as an extension would go; then, one
  * gap a round, the gap around the best on the side of the vertex of the
