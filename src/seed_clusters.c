@@ -56,7 +56,7 @@
 #define LP_STILL 1000u    /* a pass changing fewer than n / LP_STILL nodes is the last */
 #define CLUSTER_P_MAX 0.9 /* densities above are taken as this (a single edge has p = 1) */
 #define CLUSTER_F_MIN 0.05 /* the least starting strength */
-#define JOIN_MAX_ROUNDS 64u
+#define JOIN_MAX_ROUNDS 64u /* rounds of joins at most (16 ended the 2x10^5-node graph) */
 
 int seed_propagate(const struct graph *g, uint64_t seed, uint32_t variant, uint32_t *label,
 		   uint32_t *passes)
