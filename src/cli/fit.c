@@ -207,9 +207,15 @@ static int choose_k(const struct graph *g, struct fit_params *p, const char *out
 		return -1;
 	if (writer && result_write_selection(out, res))
 		return -1;
-	if (!quiet)
-		notice("chose k = %u, the highest held-out log-likelihood; the scores are in "
-		       "'%s/%s'", res->best, out, RESULT_SELECTION);
+	if (!quiet && res->folds > 1 && res->best != res->best_mean)
+		notice("chose k = %u, the smallest k within one standard error (%.3g) of the "
+		       "highest mean held-out log-likelihood (k %u) over %u splits; the scores "
+		       "are in '%s/%s'", res->best, res->se, res->best_mean, res->folds, out,
+		       RESULT_SELECTION);
+	else if (!quiet)
+		notice("chose k = %u, the highest %sheld-out log-likelihood%s; the scores are in "
+		       "'%s/%s'", res->best, res->folds > 1 ? "mean " : "",
+		       res->folds > 1 ? " over the splits" : "", out, RESULT_SELECTION);
 	struct caveats cv; /* a thin choice: said now, before the long fit */
 	caveats_init(&cv);
 	caveats_of_selection(&cv, res, g->n);
