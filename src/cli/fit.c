@@ -169,9 +169,10 @@ static int choose_k(const struct graph *g, struct fit_params *p, const char *out
 	    p->seeding == SEED_CLUSTERS) {
 		notice("choosing k by the likelihood of %.0f%% of the edges and as many "
 		       "non-edges, held out: first k the clusters that label propagation finds "
-		       "on the other edges (pieces of one community joined), then k on either "
-		       "side, walking on while the best is at an end (up to n/4), then halving "
-		       "the gaps around the best", 100.0 * sp->share);
+		       "on the other edges (pieces of one community joined; the %u distinct "
+		       "locally minimal ego-nets where it finds fewer than half as many), then k on either side, walking on while the best is at an end "
+		       "(up to n/4), then halving the gaps around the best",
+		       100.0 * sp->share, minima);
 	} else if (!quiet && select_by_shape(g->m, sp) && sp->start) {
 		notice("choosing k by the likelihood of %.0f%% of the edges and as many "
 		       "non-edges, held out: first k %u (the %u distinct locally minimal "

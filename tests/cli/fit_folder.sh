@@ -35,7 +35,7 @@ check "a fit resumed in its folder keeps the k-selection.tsv that chose its k" \
 check "a second fit with a given k leaves no k-selection.tsv" [ ! -e "$b/k-selection.tsv" ]
 check "and its run.json has no k selection" [ "$(json_get "$b/run.json" k_selection)" = null ]
 check "and no temporary or stray file: the five files of a result and its manifest" \
-	[ "$(ls -A "$b" | wc -l)" -eq 6 ] && [ -f "$b/.coterie.manifest" ]
+	sh -c '[ "$(ls -A "$1" | wc -l)" -eq 6 ] && [ -f "$1/.coterie.manifest" ]' sh "$b"
 
 # A different graph: refused, the folder untouched; --force replaces it.
 cp "$a/run.json" "$tmp/a.run.json"

@@ -58,8 +58,9 @@ check "run.json says how k was chosen" \
 	[ "$(json_get "$tmp/a/run.json" parameters.k_chosen_by)" = "held-out likelihood" ]
 # 10% of football's 613 edges, rounded: 61, and as many non-edges
 check "run.json holds out 61 edges and 61 non-edges" \
-	[ "$(json_get "$tmp/a/run.json" k_selection.held_out_edges)" = 61 ] &&
-	[ "$(json_get "$tmp/a/run.json" k_selection.held_out_non_edges)" = 61 ]
+	sh -c '[ "$1" = 61 ] && [ "$2" = 61 ]' sh \
+	"$(json_get "$tmp/a/run.json" k_selection.held_out_edges)" \
+	"$(json_get "$tmp/a/run.json" k_selection.held_out_non_edges)"
 "$PY" - "$tmp/a/run.json" "$sel" <<'PYEOF' && pass "run.json scores equal k-selection.tsv" || fail "run.json scores equal k-selection.tsv"
 import json, sys
 run = json.load(open(sys.argv[1]))["k_selection"]["scores"]
@@ -159,8 +160,9 @@ check "--holdout above 0.5 is a usage error (exit 2)" [ $? -eq 2 ]
 	--even-degrees --mixing 0.2 --seed 1 -o "$tmp/pl" 2>/dev/null
 "$BIN" fit "$tmp/pl/edges.tsv" -k auto -j 2 -q -o "$tmp/sh" 2>/dev/null
 check "one fold: run.json search is shape, 1 fold" \
-	[ "$(json_get "$tmp/sh/run.json" k_selection.search)" = shape ] &&
-	[ "$(json_get "$tmp/sh/run.json" k_selection.folds)" = 1 ]
+	sh -c '[ "$1" = shape ] && [ "$2" = 1 ]' sh \
+	"$(json_get "$tmp/sh/run.json" k_selection.search)" \
+	"$(json_get "$tmp/sh/run.json" k_selection.folds)"
 "$PY" - "$tmp/sh/run.json" "$tmp/sh/k-selection.tsv" "$tmp/pl/planted.tsv" <<'PYEOF' && pass "shape search: reasons, order, warm starts, the gaps around the choice" || fail "shape search: reasons, order, warm starts, the gaps around the choice"
 import json, sys
 sel = json.load(open(sys.argv[1]))["k_selection"]
@@ -240,8 +242,27 @@ check "shape search: the final fit starts from seeds (trace.tsv begins at sweep 
 	[ "$(sed -n 2p "$tmp/sh/trace.tsv" | cut -f1)" = 0 ]
 "$BIN" fit "$tmp/pl/edges.tsv" -k auto --k-grid 10,20,40 -q -o "$tmp/shl" 2>/dev/null
 check "a list is scored in full even with one fold (search grid, 3 rows)" \
-	[ "$(json_get "$tmp/shl/run.json" k_selection.search)" = grid ] &&
-	[ "$(($(wc -l <"$tmp/shl/k-selection.tsv") - 1))" = 3 ]
+	sh -c '[ "$1" = grid ] && [ "$2" = 3 ]' sh \
+	"$(json_get "$tmp/shl/run.json" k_selection.search)" \
+	"$(($(wc -l <"$tmp/shl/k-selection.tsv") - 1))"
+
+# ---- where label propagation merges communities, the search starts at
+# the ego-nets' count L instead of the clusters' (select.c, shape_search():
+# fewer clusters than L / 2 say nothing). A planted graph of 5,000 nodes
+# with 30% of them in two communities (85 planted): at fit seeds 1-14 the
+# training split's propagation left 63-82 clusters, but at seed 7 two
+# halves of the graph, which would have started the search at k 2.
+"$BIN" simulate -n 5000 --sizes 20:500 --size-exponent 2 --overlap 0.3 --mean-degree 20 \
+	--even-degrees --mixing 0.2 --seed 1 -o "$tmp/ov" 2>/dev/null
+"$BIN" fit "$tmp/ov/edges.tsv" -k auto -j 2 --seed 7 -o "$tmp/ova" 2>"$tmp/ova.err"
+L=$(sed -n 's/.*the \([0-9]*\) distinct locally minimal.*/\1/p' "$tmp/ova.err")
+check "two clusters of half the graph: the search starts at L ($L), not at 2" \
+	sh -c '[ -n "$1" ] && [ "$1" -gt 10 ] && [ "$2" = "$1" ]' sh "$L" \
+	"$(json_get "$tmp/ova/run.json" k_selection.start)"
+"$BIN" fit "$tmp/ov/edges.tsv" -k auto -j 2 --seed 1 -o "$tmp/ovb" 2>/dev/null
+s1=$(json_get "$tmp/ovb/run.json" k_selection.start)
+check "... and at seed 1 at the clusters ($s1, not L)" \
+	sh -c '[ "$1" != "$2" ] && [ "$1" -ge "$2" ]' sh "$s1" "$L"
 
 # ---- every fit of the shape search makes the reseeding moves below
 # 20,000 held-out edges, warm ones too (select.c, all_moves). A leaky

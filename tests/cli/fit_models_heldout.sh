@@ -26,7 +26,7 @@ auto="-k auto --k-grid 6:96 --starts 1 -j 2 -q"
 "$BIN" simulate -n 400 --two-mode 200 --sizes 15:40 --mean-degree 12 --mixing 0.2 --seed 3 \
 	-o "$tmp/st" -q 2>/dev/null
 check "simulate wrote the three planted graphs" \
-	[ -f "$tmp/sw/edges.tsv" ] && [ -f "$tmp/sd/edges.tsv" ] && [ -f "$tmp/st/edges.tsv" ]
+	sh -c '[ -f "$1/sw/edges.tsv" ] && [ -f "$1/sd/edges.tsv" ] && [ -f "$1/st/edges.tsv" ]' sh "$tmp"
 
 planted()
 {

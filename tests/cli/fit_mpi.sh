@@ -103,7 +103,7 @@ check "rank death: a periodic checkpoint is written while the fit runs" \
 	[ -s "$tmp/dead/checkpoint.partial.cot" ]
 signal_job "rank death" $dead "$tmp/dead.err" 'sweep [0-9]' 1 rank1 KILL
 check "rank death: the job ends with an error (mpirun exit $st)" \
-	[ "$st" -ne 0 ] && [ "$st" -ne 130 ] && [ "$st" -ne 255 ]
+	sh -c '[ "$1" -ne 0 ] && [ "$1" -ne 130 ] && [ "$1" -ne 255 ]' sh "$st"
 check "rank death: no result is written as if the fit had ended" [ ! -e "$tmp/dead/run.json" ]
 "$BIN" fit --resume "$tmp/dead" --max-sweeps 3000 -q
 check "rank death: the checkpoint left resumes (exit 0)" [ $? -eq 0 ]

@@ -17,7 +17,7 @@ for f in memberships.tsv communities.tsv trace.tsv run.json checkpoint.cot; do
 	check "fit writes $f" [ -s "$out/$f" ]
 done
 check "no temporary files are left in the result folder (the five and .coterie.manifest)" \
-	[ "$(ls -A "$out" | wc -l)" -eq 6 ] && [ -f "$out/.coterie.manifest" ]
+	sh -c '[ "$(ls -A "$1" | wc -l)" -eq 6 ] && [ -f "$1/.coterie.manifest" ]' sh "$out"
 check "run.json parses as JSON (python3 -m json.tool)" \
 	"$PY" -m json.tool "$out/run.json" /dev/null
 # Zachary, J. Anthropological Research 33, 452-473 (1977): 34 members, 78 ties.

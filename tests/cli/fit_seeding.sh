@@ -20,7 +20,7 @@ passes=$(json_get "$tmp/c/run.json" fit.seeds.propagation_passes)
 ego=$(json_get "$tmp/c/run.json" fit.seeds.from_ego_nets)
 check "fit.seeds: $from from clusters + $ego from ego-nets = 12" [ $((from + ego)) -eq 12 ]
 check "fit.seeds: at least one community from clusters, no more than found ($found)" \
-	[ "$from" -ge 1 ] && [ "$from" -le "$found" ]
+	sh -c '[ "$1" -ge 1 ] && [ "$1" -le "$2" ]' sh "$from" "$found"
 check "fit.seeds: the propagation made a pass or more ($passes)" [ "$passes" -ge 1 ]
 
 "$BIN" fit "$football" -k 12 -j 2 --seeding ego-nets -q -o "$tmp/e"

@@ -24,7 +24,7 @@ check "the chosen k ($chosen) is marked in the table" wait_screen "▶ +$chosen 
 braille() { screen | LC_ALL=C grep -q "$(printf '\342[\240-\243]')"; }
 check "the curve is drawn in braille" braille
 check "the planted 6 groups: the chosen k ($chosen) is 5 to 8" \
-	[ "${chosen:-0}" -ge 5 ] && [ "${chosen:-0}" -le 8 ]
+	sh -c '[ "$1" -ge 5 ] && [ "$1" -le 8 ]' sh "${chosen:-0}"
 keys Enter
 check "a key opens the normal view" wait_screen '─ 1 Likelihood' 20
 check "the header gives the chosen k" wait_screen "edges, k $chosen "

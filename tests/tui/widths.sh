@@ -86,7 +86,8 @@ for size in 120x40 80x24 70x24 60x20 60x16; do
 	if [ -z "$total" ]; then
 		layout_ok "$cols" "$tmp/cap" "" 2>"$tmp/total" || failures=$((failures + 1))
 		total=$(sed -n 's/^TOTAL=//p' "$tmp/total")
-		check "the total of weak edges is read at 120 columns ($total)" [ -n "$total" ] && [ "$total" != None ]
+		check "the total of weak edges is read at 120 columns ($total)" \
+			sh -c '[ -n "$1" ] && [ "$1" != None ]' sh "$total"
 	else
 		layout_ok "$cols" "$tmp/cap" "$total" || failures=$((failures + 1))
 	fi
