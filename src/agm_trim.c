@@ -37,6 +37,11 @@ double agm_block_loglik(double e, double N)
 	return e * log(p) + (N - e) * log1p(-p);
 }
 
+double agm_join_lr(double eX, double NX, double pm, double lbg, double l1bg)
+{
+	return eX * (log(pm) - lbg) + (NX - eX) * (log1p(-pm) - l1bg);
+}
+
 struct ranked {
 	double v; /* the order (descending) */
 	double w; /* the strength (two-sided: v is the expected links) */

@@ -453,9 +453,7 @@ static int64_t find_joins(const struct model *m, const struct graph *g,
 			/* the log-likelihood ratio of the edges between: at the
 			 * union's density against the background */
 			double pm = (eA + eB + eX) / (NA + NB + NX);
-			double gain = pm > 0.0 && pm < 1.0
-					      ? eX * (log(pm) - le) + (NX - eX) * (log1p(-pm) - l1e)
-					      : -1.0;
+			double gain = pm > 0.0 && pm < 1.0 ? agm_join_lr(eX, NX, pm, le, l1e) : -1.0;
 			if (blocks && ov[b] >= 2) { /* overlapping: the AGM's own test too */
 				double I = (double)ov[b], eI = (double)cii[b];
 				double NI = I * (I - 1) / 2;

@@ -47,6 +47,7 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "coterie/agm.h"
 #include "coterie/graph.h"
 #include "coterie/model.h"
 #include "coterie/rng.h"
@@ -249,6 +250,7 @@ static int join_pieces(const struct graph *g, uint32_t *label, uint32_t *size, u
 		goto out;
 	for (uint32_t l = 0; l < n; l++)
 		parent[l] = l;
+	double le = log(eps), l1e = log1p(-eps);
 	for (unsigned round = 0; round < JOIN_MAX_ROUNDS && np; round++) {
 		uint64_t nj = 0;
 		for (uint64_t i = 0; i < np; i++) {
@@ -263,7 +265,7 @@ static int join_pieces(const struct graph *g, uint32_t *label, uint32_t *size, u
 			double pm = ((double)inside[a] + (double)inside[b] + ex) / nu;
 			if (!(pm > eps) || !(pm < 1.0))
 				continue;
-			double gain = wlog(ex, pm, eps) + wlog(nx - ex, 1.0 - pm, 1.0 - eps);
+			double gain = agm_join_lr(ex, nx, pm, le, l1e);
 			if (gain > 0.0)
 				jn[nj++] = (struct cjoin){ gain, a, b, pr[i].e };
 		}
@@ -377,10 +379,12 @@ static int clusters_find(const struct graph *g, uint64_t seed, uint32_t variant,
 	 * mean ONMI 0.407 -> 0.403, karate 0.707 -> 0.685; with the density,
 	 * both as without joins; DEVELOPERS.md) */
 	double pairs = g->nsend ? (double)g->nsend * (double)(n - g->nsend) : (double)n * (n - 1) / 2;
-	if (seed_propagate(g, seed, variant, label, &c->passes) ||
-	    seed_join_pieces(g, label, pairs > 0.0 ? (double)g->m / pairs : 0.0, &c->joins))
+	double density = pairs > 0.0 ? (double)g->m / pairs : 0.0;
+	if (seed_propagate(g, seed, variant, label, &c->passes))
 		return -1;
-	cluster_counts(g, label, size, inside, first);
+	cluster_counts(g, label, size, inside, first); /* the joins keep them up to date */
+	if (join_pieces(g, label, size, inside, first, density > 0.0 ? density : 1e-12, &c->joins))
+		return -1;
 	/* a graph of two kinds (two-mode: only pairs across are terms)
 	 * counts the first kind's members apart: pairs = a * (s - a) */
 	int sided = g->nsend > 0;

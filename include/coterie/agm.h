@@ -99,6 +99,13 @@ int agm_side_sums(const struct graph *g, struct fcsr *F);
  * merge move (fit_merge.c) compare against the background. */
 double agm_block_loglik(double e, double N);
 
+/* The log-likelihood ratio of eX edges among NX pairs at the rate pm (in
+ * (0, 1)) against the background bg, given as lbg = ln(bg) and l1bg =
+ * ln(1 - bg): whether two blocks are better joined, pm the density of
+ * their union (the merge move, fit_merge.c; the seeds' joins,
+ * seed_clusters.c). */
+double agm_join_lr(double eX, double NX, double pm, double lbg, double l1bg);
+
 /* Where each community of F ends, by the AGM's own likelihood: for each
  * column, its members by the rule at delta in order of strength, the
  * prefix whose edges are most likely as one block at their own density

@@ -165,20 +165,20 @@ static int choose_k(const struct graph *g, struct fit_params *p, const char *out
 	uint32_t grid[SELECT_MAX_GRID];
 	uint32_t ng = select_grid(sp, grid);
 	unsigned at_once = p->threads * (grp ? grp->size : 1); /* fits at a time */
-	if (!quiet && select_by_shape(g->m, sp) && sp->start && sp->start_clusters &&
-	    p->seeding == SEED_CLUSTERS) {
+	if (!quiet && select_by_shape(g->m, sp) && sp->start) {
+		char first[200];
+		if (sp->start_clusters && p->seeding == SEED_CLUSTERS)
+			snprintf(first, sizeof first,
+				 "the clusters that label propagation finds on the other edges "
+				 "(pieces of one community joined; the %u distinct locally minimal "
+				 "ego-nets where it finds fewer than half as many)", minima);
+		else
+			snprintf(first, sizeof first,
+				 "%u (the %u distinct locally minimal ego-nets)", sp->start, minima);
 		notice("choosing k by the likelihood of %.0f%% of the edges and as many "
-		       "non-edges, held out: first k the clusters that label propagation finds "
-		       "on the other edges (pieces of one community joined; the %u distinct "
-		       "locally minimal ego-nets where it finds fewer than half as many), then k on either side, walking on while the best is at an end "
-		       "(up to n/4), then halving the gaps around the best",
-		       100.0 * sp->share, minima);
-	} else if (!quiet && select_by_shape(g->m, sp) && sp->start) {
-		notice("choosing k by the likelihood of %.0f%% of the edges and as many "
-		       "non-edges, held out: first k %u (the %u distinct locally minimal "
-		       "ego-nets), then k on either side, walking on while the best is at an "
-		       "end (up to n/4), then halving the gaps around the best", 100.0 * sp->share,
-		       sp->start, minima);
+		       "non-edges, held out: first k %s, then k on either side, walking on while "
+		       "the best is at an end (up to n/4), then halving the gaps around the best",
+		       100.0 * sp->share, first);
 	} else if (!quiet) {
 		if (!have_grid)
 			notice("choosing k from %u to %u (three times the %u distinct locally "
