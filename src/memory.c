@@ -26,6 +26,7 @@
 #include <ctype.h>
 #include <errno.h>
 #include <inttypes.h>
+#include <malloc.h>
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -412,4 +413,15 @@ int memory_check_fit(const struct graph *g, const struct fit_params *p)
 		     "an estimate for %" PRIu32 " nodes, %" PRIu64 " edges, k = %u and %u "
 		     "thread%s), but %s is %s; %s",
 		     a, b, g->n, g->m, p->k, p->threads, p->threads == 1 ? "" : "s", what, c, alt);
+}
+
+void memory_limit_arenas(void)
+{
+#ifdef M_ARENA_MAX
+	struct rlimit r;
+	if (getrlimit(RLIMIT_AS, &r) || r.rlim_cur == RLIM_INFINITY)
+		return;
+	uint64_t arenas = (uint64_t)r.rlim_cur / (256ull << 20);
+	mallopt(M_ARENA_MAX, arenas < 1 ? 1 : arenas > 64 ? 64 : (int)arenas);
+#endif
 }

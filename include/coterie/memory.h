@@ -53,4 +53,12 @@ int memory_limit(uint64_t *bytes, const char **what, int *counts_virtual);
  * when the limit cannot be known. */
 int memory_check_fit(const struct graph *g, const struct fit_params *p);
 
+/* Under an address-space limit (ulimit -v), cap glibc's malloc arenas at
+ * one per 256 MiB of the limit: each arena past the first reserves 64 MiB
+ * of address space, which neither the estimate nor the process counts
+ * until a thread first allocates; at a limit of 117 MiB the fitting
+ * thread's first allocation failed where the estimate said the fit would
+ * fit. Call before any thread starts; nothing without a limit. */
+void memory_limit_arenas(void);
+
 #endif

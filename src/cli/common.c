@@ -15,6 +15,8 @@
 
 #include <igraph.h>
 
+#include "coterie/memory.h"
+
 void die(int status, const char *fmt, ...)
 {
 	char msg[2048];
@@ -292,6 +294,7 @@ void cli_model_can(const struct fit_params *p, int refine)
 int cli_main_begin(int argc, char **argv, const char *program, void (*usage)(FILE *out))
 {
 	setlocale(LC_ALL, "");
+	memory_limit_arenas();
 	igraph_set_error_handler(igraph_error_handler_printignore);
 	igraph_set_warning_handler(igraph_warning_handler_ignore);
 	proc_set_command_line(argc, argv);

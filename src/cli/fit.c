@@ -510,7 +510,9 @@ static void watch(struct run *r, struct fit_progress *pr)
 		}
 		enum fit_state st = fit_get_state(r->f);
 		struct snapshot *s = fit_snapshot(r->f);
-		int ended = fit_state_ended(st) && s->state == st;
+		/* a failed fit may have had no memory left to publish its end:
+		 * its last snapshot still says fitting */
+		int ended = fit_state_ended(st) && (s->state == st || st == FIT_FAILED);
 		if (!ended)
 			fit_progress_show(pr, s, 0);
 		snapshot_release(s);
