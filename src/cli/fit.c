@@ -15,6 +15,7 @@
  * uninterrupted fit would have written.
  */
 #include <math.h>
+#include <errno.h>
 #include <getopt.h>
 #include <poll.h>
 #include <stdio.h>
@@ -265,6 +266,7 @@ struct run {
 	struct fit_params p;
 	const char *resume, *gpath;
 	int quiet, refine, force;
+	int made_dir;                /* the folder did not exist before this run */
 	unsigned refine_rounds;
 	double check_links;
 	double t_begin;
@@ -767,6 +769,8 @@ int cli_fit_in_group(int argc, char **argv, const struct cli_group *grp)
 		return rc;
 	rc = 1;
 	util_set_quiet(r->quiet || !r->writer);
+	struct stat before;
+	r->made_dir = r->writer && stat(r->o.out, &before) != 0 && errno == ENOENT;
 	/* refuse early: a long fit whose result cannot be written is lost
 	 * work, and so is one a second writer of the folder would replace */
 	if (proc_signals_install() ||
@@ -831,5 +835,10 @@ out:
 	while (grp && r->agreed < 2)
 		agreed(r, 0); /* the others learn that this process failed */
 	run_release(r);
+	/* a folder this run made and left empty (the graph did not load, the
+	 * fit was refused) goes again, as if the command had not run; rmdir
+	 * leaves a folder holding anything */
+	if (rc && r->made_dir)
+		rmdir(r->o.out);
 	return rc;
 }

@@ -79,4 +79,12 @@ check "explore DIR -o OTHER of another graph is refused too" \
 check "explore --force accepts it (the next complaint is the missing terminal)" \
 	sh -c '! grep -q "holds the result" "$1" && grep -q "replacing the result" "$1"' sh \
 	"$tmp/explore3.err"
+# A fit that fails before it writes anything (here: a graph that is not
+# there) leaves no folder it made itself, and keeps one it found.
+"$BIN" fit "$tmp/no-such-graph.tsv" -k 2 -q -o "$tmp/new/made" 2>/dev/null
+check "a failed fit exits 1" [ $? -eq 1 ]
+check "the folder it made is gone again" [ ! -e "$tmp/new/made" ]
+mkdir "$tmp/found"
+"$BIN" fit "$tmp/no-such-graph.tsv" -k 2 -q -o "$tmp/found" 2>/dev/null
+check "a folder that was there stays" [ -d "$tmp/found" ]
 finish
