@@ -921,7 +921,7 @@ int agm_copy(struct agm *dst, const struct agm *src)
 {
 	*dst = (struct agm){ .n = src->n, .epsilon = src->epsilon, .loglik = src->loglik,
 			     .covered = src->covered, .overlapping = src->overlapping,
-			     .ended_sooner = src->ended_sooner };
+			     .ended_sooner = src->ended_sooner, .dropped = src->dropped };
 	uint32_t k = src->cover.k;
 	uint64_t total = src->cover.off ? src->cover.off[k] : 0;
 	struct cover *cv = &dst->cover;

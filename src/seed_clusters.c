@@ -419,12 +419,16 @@ static int clusters_find(const struct graph *g, uint64_t seed, uint32_t variant,
 }
 
 int seed_count_clusters(const struct graph *g, uint64_t seed, uint32_t variant, double epsilon,
-			uint32_t *count)
+			uint32_t *count, uint32_t *held)
 {
 	struct clusters c;
 	int rc = clusters_find(g, seed, variant, epsilon, 0.0, &c);
-	if (rc == 0)
+	if (rc == 0) {
 		*count = c.kept;
+		*held = 0;
+		for (uint32_t i = 0; i < c.kept; i++)
+			*held += c.size[c.cl[i].label];
+	}
 	clusters_release(&c);
 	return rc;
 }

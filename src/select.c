@@ -687,14 +687,16 @@ static int shape_batch(struct search *s, struct want *w, uint32_t n, struct sele
  * (first) training split with k unbounded: where the search begins. On a
  * directed graph they are counted on its undirected view, as the fits
  * seed there. */
-static int count_clusters(const struct search *s, uint32_t *count)
+static int count_clusters(const struct search *s, uint32_t *count, double *held_share)
 {
 	const struct graph *train = s->h[0].train;
 	struct graph *view = train->paired ? graph_undirected_view(train) : NULL;
 	if (train->paired && !view)
 		return -1;
+	uint32_t held = 0, n = (view ? view : train)->n;
 	int rc = seed_count_clusters(view ? view : train, fold_seed(s->p.seed, 0), 0, s->p.epsilon,
-				     count);
+				     count, &held);
+	*held_share = n ? (double)held / n : 0.0;
 	graph_free(view);
 	return rc;
 }
@@ -743,14 +745,21 @@ static int shape_search(struct search *s, const struct graph *g, const struct se
 	double mid = sp->start ? sp->start : sqrt((double)kmin * (double)kmax);
 	if (sp->start && sp->start_clusters && s->p.seeding == SEED_CLUSTERS) {
 		uint32_t c = 0;
-		if (count_clusters(s, &c))
+		double held = 0.0;
+		if (count_clusters(s, &c, &held))
 			return -1;
-		/* fewer than half of the ego-nets' L: propagation merged
-		 * communities (a planted graph of 5,000 nodes with 30% of them
-		 * in two communities: 63-82 clusters at most seeds, 2 halves
-		 * of the graph at two of fourteen), and the count says
-		 * nothing; the search starts at L as before */
-		if (c >= 2 && 2 * (uint64_t)c >= sp->start)
+		/* clusters that hold under half of the nodes: propagation
+		 * merged communities into blobs too sparse to keep (a planted
+		 * graph of 5,000 nodes with 30% of them in two communities:
+		 * 78-80 clusters holding every node at most seeds, but at two
+		 * of fourteen 2 clusters holding 34 nodes, the rest in halves
+		 * of the graph), and the count says nothing; the search
+		 * starts at the ego-nets' L as before. The rule was "fewer
+		 * than L / 2 clusters", which also sent sparse graphs to L,
+		 * where the ego-nets are many more than the communities (LFR,
+		 * mean degree 10, 109 communities: 118 clusters holding every
+		 * node, L 466; DEVELOPERS.md) */
+		if (c >= 2 && held >= 0.5)
 			mid = c;
 	}
 	uint32_t k0 = clamp_k(mid, kmin, top);

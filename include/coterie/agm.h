@@ -54,6 +54,9 @@ struct agm {
 	uint32_t overlapping;        /* nodes in two or more */
 	uint32_t ended_sooner;       /* agm_from_strengths_trimmed(): communities read
 					at their own threshold above delta */
+	uint32_t dropped;            /* agm_from_strengths_trimmed(): columns left
+					out because they did not pay for their
+					members' names (code length) */
 };
 
 /*

@@ -91,9 +91,10 @@ int seed_join_pieces(const struct graph *g, uint32_t *label, double epsilon, uin
 
 /* How many clusters seed_from_clusters() would take with k unbounded
  * (label propagation drawn from seed and variant, pieces joined, the
- * clusters denser than epsilon). Returns 0 or -1. */
+ * clusters denser than epsilon) into *count, and the nodes they hold into
+ * *held. Returns 0 or -1. */
 int seed_count_clusters(const struct graph *g, uint64_t seed, uint32_t variant, double epsilon,
-			uint32_t *count);
+			uint32_t *count, uint32_t *held);
 
 /* How many distinct locally minimal ego-nets seed_model() (variant 0)
  * would take with k unbounded: the minima in its order, a centre inside
