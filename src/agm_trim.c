@@ -430,6 +430,12 @@ out:
 	return rc;
 }
 
+int agm_from_strengths_every_column(struct agm *out, const struct graph *g, struct fcsr *F,
+				    double epsilon, double delta, double min_links)
+{
+	return read_trimmed(out, g, F, epsilon, delta, min_links);
+}
+
 int agm_from_strengths_trimmed(struct agm *out, const struct graph *g, struct fcsr *F,
 			       double epsilon, double delta, double min_links)
 {

@@ -279,6 +279,7 @@ static json_t *j_fit(const struct result_model *m, const struct result_meta *met
 	jsonout_set(jf, "covered_nodes", jsonout_uint(a->covered), bad);
 	jsonout_set(jf, "overlapping_nodes", jsonout_uint(a->overlapping), bad);
 	jsonout_set(jf, "communities_ended_sooner", jsonout_uint(a->ended_sooner), bad);
+	jsonout_set(jf, "communities_left_out", jsonout_uint(a->dropped), bad);
 	jsonout_set(jf, "start_kept", m->best_start ? jsonout_uint(m->best_start) : json_null(),
 		    bad);
 	jsonout_set(jf, "reseeds_kept", jsonout_uint(m->reseeds), bad);

@@ -228,15 +228,16 @@ static void keep_savepoint(struct fit *f)
 /* ---- the best start ---- */
 
 /* The score by which starts and moves are compared, higher better: minus
- * the code length of the cover read from F as the output reads it
- * (agm_from_strengths_trimmed(), which sets F's thresholds and, on a
- * two-sided graph, its side sums; on the graph the model is fitted to).
- * 0, or -1 (no memory). */
+ * the code length of the cover read from F as the output reads it, but
+ * with every column kept (agm_from_strengths_every_column(), which sets
+ * F's thresholds and, on a two-sided graph, its side sums; on the graph
+ * the model is fitted to). 0, or -1 (no memory). */
 static int cover_score(const struct fit *f, struct fcsr *F, double *score)
 {
 	struct agm a;
 	memset(&a, 0, sizeof a);
-	if (agm_from_strengths_trimmed(&a, f->gw, F, f->m.epsilon, f->m.delta, AGM_MIN_LINKS))
+	if (agm_from_strengths_every_column(&a, f->gw, F, f->m.epsilon, f->m.delta,
+					    AGM_MIN_LINKS))
 		return -1;
 	*score = -agm_code_length_of(&a.cover, a.loglik, f->gw);
 	agm_release(&a);

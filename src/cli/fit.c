@@ -668,9 +668,13 @@ static void say_written(const struct run *r, const struct snapshot *s, enum fit_
 	uint32_t covered, overlapping, nodes;
 	if (agm_coverage_as_given(a, r->graph, &covered, &overlapping, &nodes))
 		return;
-	notice("the fit %s after %u sweeps%s in %.1f s: %u communities, %u of %u nodes in at "
+	char out[96] = ""; /* the columns that did not pay for their names */
+	if (a->dropped)
+		snprintf(out, sizeof out, " (%u of the %u left out: too weak to pay for naming "
+			 "their members)", a->dropped, r->p.k);
+	notice("the fit %s after %u sweeps%s in %.1f s: %u communities%s, %u of %u nodes in at "
 	       "least one, %u in two or more; results in '%s'", how, s->sweep, best, s->seconds,
-	       a->cover.k, covered, nodes, overlapping, r->o.out);
+	       a->cover.k, out, covered, nodes, overlapping, r->o.out);
 }
 
 /* The end of the fit: --check-links, --refine, the folder. Returns the

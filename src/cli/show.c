@@ -287,6 +287,9 @@ static int show_summary(const struct show *s)
 	if (a->ended_sooner)
 		printf("             %u communities end sooner, at the AGM's own threshold\n",
 		       a->ended_sooner);
+	if (a->dropped)
+		printf("             %u left out: they did not pay for their members' names\n",
+		       a->dropped);
 	if (a->cover.k == 0) {
 		printf("\nno community has a member\n");
 		return 0;
