@@ -135,6 +135,9 @@ void pane_comms_draw(const struct view *v, WINDOW *w)
 		snprintf(note, sizeof note, "#%u stability %.2f, %u with members\n#%u stability "
 			 "%.2f\n%u", s->agm.comms[v->comm_index].id, sel, with,
 			 s->agm.comms[v->comm_index].id, sel, with);
+	else if (s && s->agm.dropped) /* columns too weak to pay for their names */
+		snprintf(note, sizeof note, "%u with members, %u left out\n%u with members\n%u",
+			 with, s->agm.dropped, with, with);
 	else if (s)
 		snprintf(note, sizeof note, "%u with members\n%u", with, with);
 	draw_title(v, w, PANE_COMMS, "Communities", note);
