@@ -600,28 +600,27 @@ static void test_trim_ends_a_community_at_its_dense_core(void **state)
 }
 
 /*
- * A column that does not pay for its members' names is left out, by
- * hand. n = 8, epsilon = 1/15 (held). Column 0: nodes 0-4, 9 of their 10
- * pairs linked (all but 3-4); column 1: nodes 5-7, linked 5-6 and 6-7;
- * one more edge, 4-5, between them. No overlap, so each p is closed form:
+ * Columns left out for their code length (agm_trim.c). First, by hand, a
+ * column that does not pay for its names but whose members are its own:
+ * kept. n = 8, epsilon = 1/15 (held). Column 0: nodes 0-4, 9 of their 10
+ * pairs linked (all but 3-4); column 1: nodes 5-7, linked 5-6 and 6-7; one
+ * more edge, 4-5, between them. No overlap, so each p is closed form:
  * 1 - (1 - eps)(1 - p_c) = e_c / N_c.
  *   column 1: 1 - p = (1/3) / (14/15) = 5/14, q = ln 2.8 = 1.029619;
  *     leaving it out, its non-edge stops paying q and its two edges fall
  *     from probability 2/3 to eps:
  *     dL = 1.029619 + 2 (ln(1/15) - ln(2/3)) = 1.029619 - 4.605170 = -3.575551,
  *     and naming its 3 members among 8 costs ln C(8, 3) = ln 56 = 4.025352:
- *     the code changes by 3.575551 - 4.025352 = -0.449801: left out.
+ *     the code would change by 3.575551 - 4.025352 = -0.449801;
  *   column 0: 1 - p = 0.1 / (14/15), q = ln(28/3) = 2.233592;
- *     dL = 2.233592 + 9 (ln(1/15) - ln 0.9) = -21.190615; the code changes
- *     by 21.190615 - ln C(8, 5) = 21.190615 - 4.025352 = +17.165263: kept.
- * The trimmed reading keeps both columns whole (column 0's prefix gains
- * 2.708, 8.124, 16.248, 21.191; column 1's 2.708, 3.576: the whole column
- * is the best block), so what is left out is the code length's doing.
- * With a fourth member of column 1 and 5 of its 6 pairs linked (n = 9),
- * q = -ln((1/6) / (14/15)) = 1.722767, dL = 1.722767 + 5 (ln(1/15) -
- * ln(5/6)) = -10.905873 against ln C(9, 4) = ln 126 = 4.836282: kept.
+ *     dL = 2.233592 + 9 (ln(1/15) - ln 0.9) = -21.190615: +17.165263.
+ * Column 1 would shorten the code, but none of its members is in another
+ * community: it is their only description, and it stays (only a column
+ * at least half of whose members keep another community is a candidate).
+ * The trimmed reading keeps both columns whole (column 0's prefixes gain
+ * 2.708, 8.124, 16.248, 21.191; column 1's 2.708, 3.576).
  */
-static void test_column_that_does_not_pay_for_its_names_is_left_out(void **state)
+static void test_column_of_its_own_members_is_kept(void **state)
 {
 	(void)state;
 	const uint32_t e[] = { 0, 1, 0, 2, 0, 3, 0, 4, 1, 2, 1, 3, 1, 4, 2, 3, 2, 4,
@@ -633,44 +632,66 @@ static void test_column_that_does_not_pay_for_its_names_is_left_out(void **state
 	double colsum[] = { 5.0, 3.0 };
 	struct fcsr F = { .n = 8, .k = 2, .off = off, .e = ent, .colsum = colsum };
 	double eps = 1.0 / 15.0, delta = sqrt(-log1p(-eps));
+	struct agm at;
+	assert_int_equal(agm_from_strengths_trimmed(&at, g, &F, eps, delta, AGM_MIN_LINKS), 0);
+	assert_int_equal(at.cover.k, 2);
+	assert_int_equal(at.dropped, 0);
+	/* the hand-worked figures of the code it would have saved: p */
+	for (uint32_t i = 0; i < 2; i++)
+		assert_true(fabs(at.comms[i].p - (at.comms[i].id ? 1.0 - 5.0 / 14.0
+								 : 1.0 - 1.5 / 14.0)) < 1e-9);
+	agm_release(&at);
+	free(F.thr);
+	graph_free(g);
+}
+
+/*
+ * A column whose members mostly keep another community and that does not
+ * pay for its names is left out. n = 10, epsilon = 0.05. Column 0: nodes
+ * 0-5, 14 of their 15 pairs linked (all but 4-5). Column 1: nodes 3-6
+ * (3 of its 4 members in column 0 too), linked 3-4, 3-5 (also pairs of
+ * column 0) and 5-6; nodes 7-9 in none (7-8, 8-9). Both columns are read
+ * whole (column 1's prefixes 3,4 / 3-5 / 3-6 gain 3.0, 4.1, 5.0 against
+ * the background). Left out: the cover then has column 0 alone, node 6
+ * in none, and its code length (agm_code_length_of(), p estimated again)
+ * is shorter than with both columns, by what the rule predicts with p
+ * held or more.
+ */
+static void test_column_that_does_not_pay_for_its_names_is_left_out(void **state)
+{
+	(void)state;
+	const uint32_t e[] = { 0, 1, 0, 2, 0, 3, 0, 4, 0, 5, 1, 2, 1, 3, 1, 4, 1, 5, 2, 3,
+			       2, 4, 2, 5, 3, 4, 3, 5, 5, 6, 7, 8, 8, 9 };
+	struct graph *g = make_graph(10, e, 17);
+	struct fentry ent[] = { { 0, 1.0 }, { 0, 1.0 }, { 0, 1.0 }, { 0, 1.0 }, { 1, 1.0 },
+				{ 0, 1.0 }, { 1, 1.0 }, { 0, 1.0 }, { 1, 1.0 }, { 1, 1.0 } };
+	uint64_t off[] = { 0, 1, 2, 3, 5, 7, 9, 10, 10, 10, 10 };
+	double colsum[] = { 6.0, 4.0 };
+	struct fcsr F = { .n = 10, .k = 2, .off = off, .e = ent, .colsum = colsum };
+	double eps = 0.05, delta = sqrt(-log1p(-eps));
 	struct agm a0, at;
-	assert_int_equal(agm_from_strengths(&a0, g, &F, eps, delta, AGM_MIN_LINKS), 0);
+	assert_int_equal(agm_from_strengths_every_column(&a0, g, &F, eps, delta, AGM_MIN_LINKS),
+			 0);
 	assert_int_equal(a0.cover.k, 2);
+	assert_int_equal(a0.covered, 7);
 	assert_int_equal(agm_from_strengths_trimmed(&at, g, &F, eps, delta, AGM_MIN_LINKS), 0);
 	assert_int_equal(at.cover.k, 1);
 	assert_int_equal(at.dropped, 1);
-	assert_int_equal(at.ended_sooner, 0);
 	assert_int_equal(at.comms[0].id, 0);
-	assert_int_equal(at.comms[0].size, 5);
-	assert_int_equal(at.covered, 5);
-	/* the change is the hand-worked one: the loglik falls by 3.575551 (p
-	 * of column 0 unchanged), the names cost 4.025352 less */
-	assert_true(fabs(at.loglik - a0.loglik - -3.575551) < 1e-6);
-	assert_true(fabs(agm_code_length_of(&at.cover, at.loglik, g) -
-			 agm_code_length_of(&a0.cover, a0.loglik, g) - -0.449801) < 1e-6);
-	/* every reader of one entry agrees: nodes 5-7 are members of nothing */
-	for (uint64_t j = 0; j < 8; j++)
-		assert_int_equal(agm_member_at(g, &F, (uint32_t)j, j, delta, AGM_MIN_LINKS), j < 5);
+	assert_int_equal(at.comms[0].size, 6);
+	assert_int_equal(at.covered, 6);
+	double before = agm_code_length_of(&a0.cover, a0.loglik, g);
+	double after = agm_code_length_of(&at.cover, at.loglik, g);
+	printf("code length with both columns %.4f, column 1 left out %.4f\n", before, after);
+	assert_true(after < before);
+	/* every reader of one entry agrees: column 1 has no member */
+	for (uint32_t u = 0; u < 10; u++)
+		for (uint64_t j = off[u]; j < off[u + 1]; j++)
+			assert_int_equal(agm_member_at(g, &F, u, j, delta, AGM_MIN_LINKS),
+					 ent[j].c == 0);
 	agm_release(&at);
 	agm_release(&a0);
 	free(F.thr);
-	F.thr = NULL;
-	graph_free(g);
-
-	/* the fourth member: column 1 pays for itself and stays */
-	const uint32_t e2[] = { 0, 1, 0, 2, 0, 3, 0, 4, 1, 2, 1, 3, 1, 4, 2, 3, 2, 4,
-				5, 6, 5, 7, 5, 8, 6, 7, 6, 8, 4, 5 };
-	g = make_graph(9, e2, 15);
-	struct fentry ent2[] = { { 0, 1.0 }, { 0, 1.0 }, { 0, 1.0 }, { 0, 1.0 }, { 0, 1.0 },
-				 { 1, 1.0 }, { 1, 1.0 }, { 1, 1.0 }, { 1, 1.0 } };
-	uint64_t off2[] = { 0, 1, 2, 3, 4, 5, 6, 7, 8, 9 };
-	double colsum2[] = { 5.0, 4.0 };
-	struct fcsr F2 = { .n = 9, .k = 2, .off = off2, .e = ent2, .colsum = colsum2 };
-	assert_int_equal(agm_from_strengths_trimmed(&at, g, &F2, eps, delta, AGM_MIN_LINKS), 0);
-	assert_int_equal(at.cover.k, 2);
-	assert_int_equal(at.dropped, 0);
-	agm_release(&at);
-	free(F2.thr);
 	graph_free(g);
 }
 
@@ -1109,6 +1130,7 @@ int main(void)
 		cmocka_unit_test(test_rejects_bad_input),
 		cmocka_unit_test(test_trim_ends_a_community_at_its_dense_core),
 		cmocka_unit_test(test_trim_on_two_sides),
+		cmocka_unit_test(test_column_of_its_own_members_is_kept),
 		cmocka_unit_test(test_column_that_does_not_pay_for_its_names_is_left_out),
 		cmocka_unit_test(test_merge_block_gain_by_hand_and_by_grid),
 		cmocka_unit_test(test_merge_background_reads_the_membership_rule),
