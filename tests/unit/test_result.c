@@ -551,7 +551,8 @@ static void test_run_json_has_every_key_in_order_with_values(void **state)
 	static const char *const fit[] = { "status", "state", "sweeps", "plateau_sweep",
 					   "seconds", "loglik", "agm_loglik", "communities",
 					   "covered_nodes", "overlapping_nodes",
-					   "communities_ended_sooner", "start_kept", "reseeds_kept",
+					   "communities_ended_sooner", "communities_left_out",
+					   "start_kept", "reseeds_kept",
 					   "seeds", "starts_judged", "memberships_from" };
 	static const char *const run[] = { "wall_seconds", "peak_rss_kb" };
 	assert_keys(root, top, 12);
@@ -562,7 +563,7 @@ static void test_run_json_has_every_key_in_order_with_values(void **state)
 	assert_true(json_is_null(get(root, "link_check", NULL)));
 	assert_keys(get(root, "graph", NULL), graph, 11);
 	assert_keys(get(root, "parameters", NULL), params, 15);
-	assert_keys(get(root, "fit", NULL), fit, 16);
+	assert_keys(get(root, "fit", NULL), fit, 17);
 	assert_keys(get(root, "run", NULL), run, 2);
 
 	assert_int_equal(json_integer_value(get(root, "coterie", "format")), 1);
