@@ -283,88 +283,107 @@ static double log1mexp_of(double x)
 	return x > 0.0 ? (x < 0.693 ? log(-expm1(-x)) : log1p(-exp(-x))) : -HUGE_VAL;
 }
 
+/* The cover's communities by node: node u's in list[off[u] .. off[u + 1]),
+ * ascending. 0 or -1. */
+static int node_lists(const struct cover *c, uint32_t n, uint64_t **off_out, uint32_t **list_out)
+{
+	uint64_t total = c->off[c->k];
+	uint64_t *off = util_calloc((size_t)n + 1, sizeof *off);
+	uint32_t *list = util_malloc(total ? total : 1, sizeof *list);
+	if (!off || !list) {
+		UTIL_FREE_ALL(off, list);
+		return -1;
+	}
+	for (uint64_t j = 0; j < total; j++)
+		off[c->mem[j] + 1]++;
+	for (uint32_t u = 0; u < n; u++)
+		off[u + 1] += off[u];
+	for (uint32_t i = 0; i < c->k; i++) /* through off[] as cursors */
+		for (uint64_t j = c->off[i]; j < c->off[i + 1]; j++)
+			list[off[c->mem[j]]++] = i;
+	for (uint32_t u = n; u > 0; u--)
+		off[u] = off[u - 1];
+	off[0] = 0;
+	*off_out = off;
+	*list_out = list;
+	return 0;
+}
+
+/* The pairs of cover community i and the nats its members' names cost:
+ * one-mode, s(s-1)/2 and ln C(n, s); two-sided, its senders x its
+ * receivers less a directed node's own pair, named by side (agm.c).
+ * seen: nsend zeros or NULL (not paired), marked with i + 1. */
+static void column_pairs(const struct cover *c, const struct graph *g, uint32_t i, uint32_t *seen,
+			 double *pairs, double *names)
+{
+	double s = (double)(c->off[i + 1] - c->off[i]);
+	uint32_t ns = g->nsend;
+	if (!ns) {
+		*pairs = s * (s - 1.0) / 2.0;
+		*names = ln_choose_n((double)g->n, s);
+		return;
+	}
+	double send = 0.0, own = 0.0;
+	for (uint64_t j = c->off[i]; j < c->off[i + 1]; j++)
+		if (c->mem[j] < ns) {
+			send += 1.0;
+			if (seen)
+				seen[c->mem[j]] = i + 1;
+		}
+	for (uint64_t j = c->off[i]; seen && j < c->off[i + 1]; j++)
+		own += c->mem[j] >= ns && seen[c->mem[j] - ns] == i + 1;
+	*pairs = send * (s - send) - own;
+	*names = ln_choose_n((double)ns, send) + ln_choose_n((double)(g->n - ns), s - send);
+}
+
 /* Into dcl[i] the change of the code length if cover community i of a
- * were left out (p held); a->cover's members sorted within a community.
- * nodeoff (n + 1) and nodecomm (memberships) are scratch. 0 or -1. */
+ * were left out with every p held, HUGE_VAL for a column that is no
+ * candidate (fewer than half of its members in another community); q
+ * gets each community's rate -ln(1 - p). 0 or -1. */
 static int drop_gains(const struct agm *a, const struct graph *g, double *dcl, double *q)
 {
 	const struct cover *c = &a->cover;
 	uint32_t n = g->n, k = c->k;
-	uint64_t total = c->off[k];
-	uint64_t *nodeoff = util_calloc((size_t)n + 1, sizeof *nodeoff);
-	uint32_t *nodecomm = util_malloc(total ? total : 1, sizeof *nodecomm);
-	if (!nodeoff || !nodecomm) {
-		free(nodeoff);
-		free(nodecomm);
+	uint64_t *off = NULL, most = 0;
+	uint32_t *list = NULL, *sh = NULL, *seen = NULL;
+	int rc = -1;
+	if (node_lists(c, n, &off, &list))
 		return -1;
-	}
-	for (uint64_t j = 0; j < total; j++)
-		nodeoff[c->mem[j] + 1]++;
 	for (uint32_t u = 0; u < n; u++)
-		nodeoff[u + 1] += nodeoff[u];
-	for (uint32_t i = 0; i < k; i++) /* communities ascending in each node's list */
-		for (uint64_t j = c->off[i]; j < c->off[i + 1]; j++)
-			nodecomm[nodeoff[c->mem[j]]++] = i;
-	for (uint32_t u = n; u > 0; u--)
-		nodeoff[u] = nodeoff[u - 1];
-	nodeoff[0] = 0;
-	double qeps = -log1p(-a->epsilon);
-	/* a two-sided graph's pairs are a sender with a receiver, less a
-	 * directed node's own pair, and its names are by side (agm.c) */
-	uint32_t ns = g->nsend;
-	uint32_t *seen = g->paired ? util_calloc(ns ? ns : 1, sizeof *seen) : NULL;
-	if (g->paired && !seen) {
-		free(nodeoff);
-		free(nodecomm);
-		return -1;
-	}
+		if (off[u + 1] - off[u] > most)
+			most = off[u + 1] - off[u];
+	if (!(sh = util_malloc(most ? most : 1, sizeof *sh)) ||
+	    (g->paired && !(seen = util_calloc(g->nsend ? g->nsend : 1, sizeof *seen))))
+		goto out;
 	for (uint32_t i = 0; i < k; i++) {
-		double p = a->comms[i].p;
+		double p = a->comms[i].p, pairs, names;
 		q[i] = p < 1.0 ? -log1p(-p) : AGM_QMAX;
 		if (q[i] > AGM_QMAX)
 			q[i] = AGM_QMAX;
-		double s = (double)(c->off[i + 1] - c->off[i]), pairs, names;
-		if (!ns) {
-			pairs = s * (s - 1.0) / 2.0;
-			names = ln_choose_n((double)n, s);
-		} else {
-			double send = 0.0, own = 0.0;
-			for (uint64_t j = c->off[i]; j < c->off[i + 1]; j++)
-				if (c->mem[j] < ns) {
-					send += 1.0;
-					if (seen)
-						seen[c->mem[j]] = i + 1;
-				}
-			for (uint64_t j = c->off[i]; seen && j < c->off[i + 1]; j++)
-				own += c->mem[j] >= ns && seen[c->mem[j] - ns] == i + 1;
-			pairs = send * (s - send) - own;
-			names = ln_choose_n((double)ns, send) + ln_choose_n((double)(n - ns), s - send);
-		}
+		column_pairs(c, g, i, seen, &pairs, &names);
 		dcl[i] = -(q[i] * (pairs - (double)a->comms[i].internal_edges)) - names;
-		/* only a column most of whose members keep another community
-		 * is a candidate (see above) */
-		uint64_t kept = 0;
+		uint64_t elsewhere = 0; /* members in another community too */
 		for (uint64_t j = c->off[i]; j < c->off[i + 1]; j++)
-			kept += nodeoff[c->mem[j] + 1] - nodeoff[c->mem[j]] > 1;
-		if (2.0 * (double)kept < s)
+			elsewhere += off[c->mem[j] + 1] - off[c->mem[j]] > 1;
+		if (2 * elsewhere < c->off[i + 1] - c->off[i])
 			dcl[i] = HUGE_VAL;
 	}
-	free(seen);
+	double qeps = -log1p(-a->epsilon);
 	for (uint32_t u = 0; u < n; u++) {
-		const uint32_t *cu = nodecomm + nodeoff[u];
-		uint64_t nu = nodeoff[u + 1] - nodeoff[u];
-		if (!nu)
-			continue;
-		for (uint64_t e = g->off[u]; e < g->off[u + 1]; e++) {
+		const uint32_t *cu = list + off[u];
+		uint64_t nu = off[u + 1] - off[u];
+		for (uint64_t e = g->off[u]; nu && e < g->off[u + 1]; e++) {
 			uint32_t v = g->adj[e];
 			if (v <= u)
 				continue;
-			const uint32_t *cv = nodecomm + nodeoff[v];
-			uint64_t nv = nodeoff[v + 1] - nodeoff[v], x = 0, y = 0;
+			const uint32_t *cv = list + off[v];
+			uint64_t nv = off[v + 1] - off[v], x = 0, y = 0;
+			uint32_t nsh = 0; /* the communities u and v share, and their rate */
 			double Q = qeps;
-			while (x < nu && y < nv) { /* the shared communities' rate */
+			while (x < nu && y < nv) {
 				if (cu[x] == cv[y]) {
 					Q += q[cu[x]];
+					sh[nsh++] = cu[x];
 					x++;
 					y++;
 				} else if (cu[x] < cv[y]) {
@@ -373,25 +392,15 @@ static int drop_gains(const struct agm *a, const struct graph *g, double *dcl, d
 					y++;
 				}
 			}
-			if (Q == qeps)
-				continue;
-			double now = log1mexp_of(Q);
-			for (x = 0, y = 0; x < nu && y < nv;) {
-				if (cu[x] == cv[y]) {
-					dcl[cu[x]] -= log1mexp_of(Q - q[cu[x]]) - now;
-					x++;
-					y++;
-				} else if (cu[x] < cv[y]) {
-					x++;
-				} else {
-					y++;
-				}
-			}
+			double now = nsh ? log1mexp_of(Q) : 0.0;
+			for (uint32_t t = 0; t < nsh; t++)
+				dcl[sh[t]] -= log1mexp_of(Q - q[sh[t]]) - now;
 		}
 	}
-	free(nodeoff);
-	free(nodecomm);
-	return 0;
+	rc = 0;
+out:
+	UTIL_FREE_ALL(off, list, sh, seen);
+	return rc;
 }
 
 struct drop_rank {
