@@ -65,7 +65,7 @@ kt=$(($(wc -l <"$tmp/t/planted.tsv") - 1))
 check "fit --two-mode: exit 0" [ $? -eq 0 ]
 eps=$(json_get "$tmp/tm/run.json" parameters.epsilon)
 set -- $("$PY" "$ROOT/tests/cli/agm_sided.py" "$tmp/t/edges.tsv" "$tmp/tm/memberships.tsv" "$eps")
-check "two-mode: three starts judged by code length, the kept one the shortest, its code ($2) and run.json's AGM log-likelihood ($1) recomputed" \
+check "two-mode: three starts judged by code length, the kept one the shortest, the cover's code ($2) and run.json's AGM log-likelihood ($1) recomputed" \
 	"$PY" - "$tmp/tm/run.json" "$2" "$1" <<'PYEOF'
 import json, sys
 f = json.load(open(sys.argv[1]))['fit']
@@ -77,7 +77,15 @@ assert len(s) == 3 and all(x['code_length'] is not None for x in s), s
 best = min(range(3), key=lambda i: (s[i]['code_length'], i))
 assert f['start_kept'] == best + 1, (f['start_kept'], s)
 code = float(sys.argv[2])
-assert abs(code - s[best]['code_length']) <= 1e-7 * abs(code), (code, s[best])
+# the starts are judged on their reading with every column kept; the
+# cover written leaves out the columns that do not pay for their names,
+# which only shortens its code (agm_trim.c): equal when none is left out
+if f['communities_left_out'] == 0:
+    assert abs(code - s[best]['code_length']) <= 1e-7 * abs(code), (code, s[best])
+else:
+    assert code < s[best]['code_length'], (code, f['communities_left_out'], s[best])
+print("# kept start's code %.6f, memberships.tsv's %.6f, %d columns left out"
+      % (s[best]['code_length'], code, f['communities_left_out']))
 PYEOF
 # The weighted model's starts and moves are judged by code length too
 # (session 15): the same recipe with Poisson weights (simulate --weighted).
