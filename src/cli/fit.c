@@ -172,7 +172,7 @@ static int choose_k(const struct graph *g, struct fit_params *p, const char *out
 			snprintf(first, sizeof first,
 				 "the clusters that label propagation finds on the other edges "
 				 "(pieces of one community joined; the %u distinct locally minimal "
-				 "ego-nets where it finds fewer than half as many)", minima);
+				 "ego-nets where they hold fewer than half of the nodes)", minima);
 		else
 			snprintf(first, sizeof first,
 				 "%u (the %u distinct locally minimal ego-nets)", sp->start, minima);
