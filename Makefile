@@ -187,7 +187,7 @@ clean:
 # seed corpus tests/fuzz/corpus/NAME plus what it found before, kept in
 # build/fuzz/corpus-NAME. A crash leaves its input in build/fuzz/.
 FUZZ_SECONDS ?= 60
-FUZZ_TARGETS := graph checkpoint
+FUZZ_TARGETS := graph checkpoint cover result
 FUZZ_CC ?= clang
 FUZZ_CFLAGS := -std=c11 -D_POSIX_C_SOURCE=200809L -D_DEFAULT_SOURCE -D_XOPEN_SOURCE=700 \
                -pthread -g -O1 -fsanitize=fuzzer,address,undefined -Iinclude $(PKG_CFLAGS)
