@@ -29,6 +29,7 @@
 
 #include <errno.h>
 #include <fcntl.h>
+#include <math.h>
 #include <signal.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -205,6 +206,16 @@ static long slurp(const char *dir, const char *name, char *buf, size_t cap)
 	return got;
 }
 
+/* Whether s is printable ASCII with no blank, as host_name() writes it:
+ * the host is shown on a screen as it is. */
+static int printable(const char *s)
+{
+	for (; *s; s++)
+		if (*s <= ' ' || *s > '~')
+			return 0;
+	return 1;
+}
+
 static enum fit_state state_named(const char *w, int *ok)
 {
 	for (int s = FIT_READY; s <= FIT_FAILED; s++)
@@ -265,7 +276,8 @@ int follow_progress_read(const char *dir, struct follow_progress *p)
 		if (in_trace && p->ntrace < want) {
 			struct trace_point *t = &p->trace[p->ntrace];
 			if (sscanf(line, "%u\t%lf\t%lf", &t->sweep, &t->seconds, &t->loglik) != 3 ||
-			    (p->ntrace && t->sweep <= t[-1].sweep))
+			    (p->ntrace && t->sweep <= t[-1].sweep) || !isfinite(t->seconds) ||
+			    !isfinite(t->loglik))
 				goto out;
 			p->ntrace++;
 		} else if (sscanf(line, "trace %u", &want) == 1) {
@@ -277,7 +289,8 @@ int follow_progress_read(const char *dir, struct follow_progress *p)
 		}
 	}
 	if (ended && p->ntrace == want && p->pid > 0 && p->host[0] && p->starts > 0 &&
-	    p->start <= p->starts)
+	    p->start <= p->starts && printable(p->host) && isfinite(p->written) &&
+	    isfinite(p->seconds) && isfinite(p->sweeps_per_sec))
 		rc = 1;
 out:
 	free(buf);

@@ -77,7 +77,9 @@ int follow_progress_write(const char *dir, const struct follow_progress *p);
 
 /* Read DIR/.coterie.progress into p. Returns 1 when read, 0 when there is
  * none, -1 when it is not a progress file (no message: a half-written or
- * foreign file is skipped, the next one read). */
+ * foreign file is skipped, the next one read). What reads keeps the rules
+ * of struct follow_progress: a host of printable ASCII, finite times,
+ * rates and log-likelihoods, trace sweeps increasing. */
 int follow_progress_read(const char *dir, struct follow_progress *p);
 
 /* 1 when the writer of p is surely gone: on this host, its pid is dead;
