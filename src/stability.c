@@ -28,6 +28,7 @@
 
 #include <jansson.h>
 
+#include "coterie/model.h"
 #include "coterie/model_directed.h"
 #include "coterie/names.h"
 #include "coterie/result_commit.h"
@@ -326,7 +327,10 @@ int stability_read_folders(const char *const *dirs, uint32_t n, struct names *no
 
 /* ---- reading a folder's stability back ---- */
 
-#define STABILITY_MAX_ID (1u << 24) /* far above any k a fit allows */
+/* An id is a column of the model, so below MODEL_MAX_K: a larger one in a
+ * run.json of a few bytes would cost the array a large allocation (2^24
+ * ids, 128 MiB, before fuzz_result found it). */
+#define STABILITY_MAX_ID MODEL_MAX_K
 
 int stability_read(const char *dir, double **score, uint32_t *nid, uint32_t *sweep)
 {

@@ -10,6 +10,7 @@
 #include <sys/stat.h>
 
 #include "coterie/cover.h"
+#include "coterie/model.h"
 #include "coterie/stability.h"
 
 static void pairs_cover(struct cover *c, uint32_t n, const uint32_t *node, const uint32_t *comm,
@@ -167,6 +168,33 @@ static void test_read_gives_scores_by_community_id(void **state)
 	test_rmtree(tmp);
 }
 
+/* fuzz_result: a run.json of a few bytes naming community 16777215 (2^24
+ * - 1) made the reader allocate an array of 2^24 scores (128 MiB). An id
+ * is a model column, below MODEL_MAX_K: one at or past it is not read. */
+static void test_read_ignores_ids_past_any_model_column(void **state)
+{
+	(void)state;
+	const char *tmp = test_tmpdir();
+	char a[512];
+	snprintf(a, sizeof a, "%s/a", tmp);
+	folder(a, "00000000000000aa", "{\"communities\": [{\"community\": 16777215, "
+	       "\"stability\": 0.5}, {\"community\": 1000000, \"stability\": 0.5}, "
+	       "{\"community\": 2, \"stability\": 0.25}]}");
+	double *s;
+	uint32_t n, sweep;
+	assert_int_equal(stability_read(a, &s, &n, &sweep), 0);
+	assert_int_equal(n, 3);
+	assert_true(s[2] == 0.25);
+	free(s);
+	folder(a, "00000000000000aa", "{\"communities\": [{\"community\": 999999, "
+	       "\"stability\": 0.5}]}");
+	assert_int_equal(stability_read(a, &s, &n, &sweep), 0);
+	assert_int_equal(n, MODEL_MAX_K); /* the largest column a fit allows */
+	assert_true(s[MODEL_MAX_K - 1] == 0.5);
+	free(s);
+	test_rmtree(tmp);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -176,6 +204,7 @@ int main(void)
 		cmocka_unit_test(test_empty_community_is_not_scored),
 		cmocka_unit_test(test_folders_of_other_graphs_are_refused),
 		cmocka_unit_test(test_read_gives_scores_by_community_id),
+		cmocka_unit_test(test_read_ignores_ids_past_any_model_column),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
