@@ -386,7 +386,11 @@ static int64_t find_comm(const struct show *s, uint32_t id)
 	if (i >= 0)
 		return i;
 	char buf[NAME_CAP];
-	if (id < s->ck.F.k)
+	if (id < s->ck.F.k && s->ck.F.thr && isinf(s->ck.F.thr[id]))
+		error("community %" PRIu32 " was left out of the cover in %s: it did not pay for "
+		      "its members' names (most of them are in other communities too; see "
+		      "coterie(1), DESCRIPTION)", id, esc(s, s->dir, buf));
+	else if (id < s->ck.F.k)
 		error("community %" PRIu32 " has no members in %s", id, esc(s, s->dir, buf));
 	else
 		error("no community %" PRIu32 " in %s (ids run from 0 to %" PRIu32 ")", id,

@@ -28,6 +28,23 @@ check "show lists as many communities as run.json" \
 # members of a left-out column are members of nothing in memberships.tsv
 n=$(tail -n +2 "$tmp/b/memberships.tsv" | cut -f2 | sort -u | wc -l)
 check "memberships.tsv holds the $kept communities kept ($n)" [ "$n" -eq "${kept:-0}" ]
+# show --community of a column left out says so, and exits 1; the columns
+# that say so are as many as run.json counts
+cut -f2 "$tmp/b/memberships.tsv" | tail -n +2 | sort -u >"$tmp/kept.ids"
+said=0
+id=0
+while [ $id -lt 81 ]; do
+	if ! grep -qx "$id" "$tmp/kept.ids"; then
+		"$BIN" show "$tmp/b" --community $id >/dev/null 2>"$tmp/one.err"
+		st=$?
+		if grep -q "community $id was left out of the cover" "$tmp/one.err"; then
+			said=$((said + 1))
+			check "show --community $id (left out): exit 1" [ $st -eq 1 ]
+		fi
+	fi
+	id=$((id + 1))
+done
+check "show says 'left out' of $said columns, run.json counts $out" [ "$said" -eq "${out:-0}" ]
 # overlapping NMI by tests/tools/onmi.py (our own transcription of the max
 # form of McDaid, Greene & Hurley 2011, apart from src/score_onmi.c): measured 0.990 at k 54 and 0.895
 # at k 81 (69 kept); before columns were left out, 0.823 at k 81
