@@ -11,7 +11,8 @@ sim() { [ -f "$W/$1/edges.tsv" ] || "$BIN" simulate "${@:2}" -o "$W/$1" -q; }
 sim leaky10k -n 10000 --sizes 20:2000 --size-exponent 2 --overlap 0.1 --mean-degree 20 --even-degrees --mixing 0.2 --seed 1
 sim clean10k -n 10000 --sizes 20:200 --overlap 0.1 --mean-degree 15 --epsilon 0.0001 --seed 3
 # LFR graphs (networkx 2.8, tests/bench/lfr.py): power-law degrees, a
-# partition; mean degree 15 and 8, mixing 0.2
+# partition; mean degree 15 and 8 asked (networkx draws about 18.9 and
+# 10.3), mixing 0.2
 lfr() { [ -f "$W/$1/edges.tsv" ] || "$PY" "$here/tests/bench/lfr.py" "${@:2}" "$W/$1" >/dev/null; }
 lfr lfr-d15 10000 0.2 15 1
 lfr lfr-d8 10000 0.2 8 1

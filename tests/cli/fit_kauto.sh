@@ -267,7 +267,7 @@ check "... and at seed 1 at the clusters ($s1, not L)" \
 
 # ---- a sparse graph whose clusters hold every node but are far fewer
 # than its ego-nets starts at the clusters: an LFR benchmark graph drawn by
-# networkx 2.8 (tests/bench/lfr.py: 10^4 nodes, mean degree 8, mixing
+# networkx 2.8 (tests/bench/lfr.py: 10^4 nodes, mean degree 8 asked (10.3 drawn), mixing
 # 0.2, 109 communities of 20-500 nodes, power-law degrees). Measured
 # (2026-12-05): 118 clusters on the training split, L 466; from 118 the
 # search chose 94 in 3 s (ONMI 0.897), from 466 (the rule of session 17,
