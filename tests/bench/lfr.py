@@ -6,7 +6,9 @@ Rev. E 78, 046110, 2008) as made by networkx's LFR_benchmark_graph
 usage: lfr.py N MU MEAN_DEGREE SEED DIR [TAU1]
 
 Degrees follow a power law of exponent TAU1 (default 2.5) up to 6x the
-mean, community sizes one of exponent 1.5 from 20 to N/20. networkx fails
+mean, community sizes one of exponent 1.5 from 20 to N/20. networkx 2.8
+draws more edges than the mean degree asks, about 1.25 times (asked 8:
+10.3 drawn; 15: 18.9); the line printed says how many. networkx fails
 to draw some seeds; the next seeds are tried (the one used is printed)."""
 import os
 import sys
