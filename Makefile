@@ -191,7 +191,7 @@ FUZZ_TARGETS := graph checkpoint cover result
 FUZZ_CC ?= clang
 FUZZ_CFLAGS := -std=c11 -D_POSIX_C_SOURCE=200809L -D_DEFAULT_SOURCE -D_XOPEN_SOURCE=700 \
                -pthread -g -O1 -fsanitize=fuzzer,address,undefined -Iinclude $(PKG_CFLAGS)
-build/fuzz/fuzz_%: tests/fuzz/fuzz_%.c $(CORE_SRC)
+build/fuzz/fuzz_%: tests/fuzz/fuzz_%.c tests/fuzz/fuzz_common.h $(CORE_SRC)
 	@mkdir -p build/fuzz
 	$(FUZZ_CC) $(FUZZ_CFLAGS) $< $(CORE_SRC) $(PKG_LIBS) -lm -o $@
 fuzz: $(FUZZ_TARGETS:%=build/fuzz/fuzz_%)

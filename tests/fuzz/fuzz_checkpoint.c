@@ -21,6 +21,7 @@
 #include <sys/mman.h>
 #include <unistd.h>
 
+#include "fuzz_common.h"
 #include "coterie/fit.h"
 #include "coterie/graph.h"
 #include "coterie/model.h"
@@ -30,14 +31,6 @@
 #include "coterie/util.h"
 
 int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size);
-
-static void quiet(int level, const char *msg)
-{
-	(void)level;
-	for (const unsigned char *p = (const unsigned char *)msg; *p; p++)
-		if (*p < 0x20 || *p == 0x7f)
-			__builtin_trap();
-}
 
 static void check_fcsr(const struct fcsr *F, uint32_t n, uint32_t k)
 {
@@ -100,15 +93,9 @@ static void check(const struct checkpoint *ck)
 
 int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
 {
-	static int fd = -1;
 	static unsigned char *buf;
 	static size_t cap;
-	util_set_sink(quiet);
-	if (fd < 0) {
-		fd = memfd_create("coterie-fuzz-checkpoint", 0);
-		if (fd < 0)
-			abort();
-	}
+	util_set_sink(fuzz_sink);
 	if (size > cap) {
 		free(buf);
 		cap = size;
@@ -123,10 +110,8 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
 		for (int i = 0; i < 8; i++)
 			buf[size - 8 + i] = (unsigned char)(sum >> (8 * i));
 	}
-	if (ftruncate(fd, 0) || (size && pwrite(fd, buf, size, 0) != (ssize_t)size))
-		abort();
 	char path[64];
-	snprintf(path, sizeof path, "/proc/self/fd/%d", fd);
+	fuzz_file(buf, size, path);
 	struct checkpoint ck;
 	if (checkpoint_read(path, &ck) == 0) {
 		check(&ck);

@@ -26,6 +26,7 @@
 #include <sys/mman.h>
 #include <unistd.h>
 
+#include "fuzz_common.h"
 #include "coterie/cover.h"
 #include "coterie/graph.h"
 #include "coterie/names.h"
@@ -33,15 +34,6 @@
 #include "coterie/util.h"
 
 int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size);
-
-static void quiet(int level, const char *msg)
-{
-	(void)level;
-	/* messages must never carry raw control bytes to a terminal */
-	for (const unsigned char *p = (const unsigned char *)msg; *p; p++)
-		if (*p < 0x20 || *p == 0x7f)
-			__builtin_trap();
-}
 
 static void check(const struct cover *c, uint32_t n)
 {
@@ -73,24 +65,17 @@ static struct graph *small_graph(void)
 
 int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
 {
-	static int fd = -1;
 	static struct graph *g;
-	util_set_sink(quiet);
-	if (fd < 0) {
-		fd = memfd_create("coterie-fuzz-cover", 0);
-		if (fd < 0)
-			abort();
+	util_set_sink(fuzz_sink);
+	if (!g)
 		g = small_graph();
-	}
 	if (size < 1)
 		return 0;
 	unsigned mode = data[0];
 	data++;
 	size--;
-	if (ftruncate(fd, 0) || (size && pwrite(fd, data, size, 0) != (ssize_t)size))
-		abort();
 	char path[64];
-	snprintf(path, sizeof path, "/proc/self/fd/%d", fd);
+	fuzz_file(data, size, path);
 	struct cover a, b;
 	if (mode & 1) {
 		if (cover_load(&a, path, g) == 0) {

@@ -13,6 +13,7 @@
  *   mkdir -p build/fuzz-corpus && ./build/fuzz_graph -max_total_time=60 build/fuzz-corpus
  * Temporary files go to $TMPDIR (default /tmp).
  */
+#define _GNU_SOURCE
 #include <stddef.h>
 #include <stdint.h>
 #include <stdio.h>
@@ -22,19 +23,11 @@
 
 #include <zlib.h>
 
+#include "fuzz_common.h"
 #include "coterie/graph.h"
 #include "coterie/util.h"
 
 int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size);
-
-static void quiet(int level, const char *msg)
-{
-	(void)level;
-	/* messages must never carry raw control bytes to a terminal */
-	for (const unsigned char *p = (const unsigned char *)msg; *p; p++)
-		if (*p < 0x20 || *p == 0x7f)
-			__builtin_trap();
-}
 
 static void check(const struct graph *g)
 {
@@ -72,7 +65,7 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
 	unsigned mode = data[0];
 	data++;
 	size--;
-	util_set_sink(quiet);
+	util_set_sink(fuzz_sink);
 	const char *dir = getenv("TMPDIR") ? getenv("TMPDIR") : "/tmp";
 	char path[512];
 	int gz = (mode >> 2) & 1;

@@ -35,6 +35,7 @@
 #include <string.h>
 #include <unistd.h>
 
+#include "fuzz_common.h"
 #include "coterie/agm.h"
 #include "coterie/checkpoint.h"
 #include "coterie/cover.h"
@@ -67,15 +68,6 @@ static char dir[256];
 static struct checkpoint ck;
 static char *orig[NKEPT];
 static size_t orig_len[NKEPT];
-
-static void quiet(int level, const char *msg)
-{
-	(void)level;
-	/* messages must never carry raw control bytes to a terminal */
-	for (const unsigned char *p = (const unsigned char *)msg; *p; p++)
-		if (*p < 0x20 || *p == 0x7f)
-			__builtin_trap();
-}
 
 static void put(const char *name, const void *buf, size_t len)
 {
@@ -285,7 +277,7 @@ static void read_commit(void)
 
 int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
 {
-	util_set_sink(quiet);
+	util_set_sink(fuzz_sink);
 	if (!dir[0])
 		setup();
 	if (size < 1)

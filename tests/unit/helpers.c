@@ -81,6 +81,16 @@ void assert_fcsr_sane(const struct fcsr *f)
 	}
 }
 
+void assert_same_strengths(const struct fcsr *a, const struct fcsr *b)
+{
+	assert_int_equal(a->n, b->n);
+	assert_memory_equal(a->off, b->off, ((size_t)a->n + 1) * sizeof *a->off);
+	for (uint64_t i = 0; i < a->off[a->n]; i++) {
+		assert_int_equal(a->e[i].c, b->e[i].c);
+		assert_true(a->e[i].v == b->e[i].v);
+	}
+}
+
 void assert_cover_sane(const struct cover *c)
 {
 	assert_int_equal(c->off[0], 0);

@@ -21,6 +21,9 @@ void assert_graph_sane(const struct graph *g);
 void assert_model_sane(const struct model *m);
 void assert_cover_sane(const struct cover *c);
 void assert_fcsr_sane(const struct fcsr *f);
+/* a and b hold the same rows, entry by entry (struct fentry has padding
+ * bytes, so the fields are compared, not the memory). */
+void assert_same_strengths(const struct fcsr *a, const struct fcsr *b);
 
 struct objective_ops;
 

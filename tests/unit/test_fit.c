@@ -27,17 +27,6 @@
 #include "coterie/score.h"
 #include "coterie/simulate.h"
 
-/* struct fentry has padding bytes: compare the fields */
-static void assert_same_strengths(const struct fcsr *a, const struct fcsr *b)
-{
-	assert_int_equal(a->n, b->n);
-	assert_memory_equal(a->off, b->off, ((size_t)a->n + 1) * sizeof *a->off);
-	for (uint64_t i = 0; i < a->off[a->n]; i++) {
-		assert_int_equal(a->e[i].c, b->e[i].c);
-		assert_true(a->e[i].v == b->e[i].v);
-	}
-}
-
 static unsigned starts_for_run_fit = 3; /* the default of fit_params_default() */
 
 static struct snapshot *run_fit(const struct graph *g, uint32_t k, unsigned threads,

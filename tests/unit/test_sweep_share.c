@@ -77,17 +77,6 @@ static int hub_gather(void *arg, const void *mine, size_t len, const unsigned ch
 	return 0;
 }
 
-/* struct fentry has padding bytes: compare the fields */
-static void assert_same_strengths(const struct fcsr *a, const struct fcsr *b)
-{
-	assert_int_equal(a->n, b->n);
-	assert_memory_equal(a->off, b->off, ((size_t)a->n + 1) * sizeof *a->off);
-	for (uint64_t i = 0; i < a->off[a->n]; i++) {
-		assert_int_equal(a->e[i].c, b->e[i].c);
-		assert_true(a->e[i].v == b->e[i].v);
-	}
-}
-
 static void assert_same_fit(const struct snapshot *a, const struct snapshot *b)
 {
 	assert_int_equal(a->state, b->state);
