@@ -579,8 +579,7 @@ static double ln_gamma(double x)
 	return lgamma_r(x, &sign);
 }
 
-/* ln C(n, s) from ln Gamma: relative error near 1e-15 at any size */
-static double ln_choose(double n, double s)
+double agm_ln_choose(double n, double s)
 {
 	return s > 0 && s < n ? ln_gamma(n + 1.0) - ln_gamma(s + 1.0) - ln_gamma(n - s + 1.0) : 0.0;
 }
@@ -589,7 +588,7 @@ double agm_code_length(const struct agm *a, uint32_t n)
 {
 	double nats = -a->loglik;
 	for (uint32_t i = 0; i < a->cover.k; i++)
-		nats += ln_choose((double)n, (double)cover_size(&a->cover, i));
+		nats += agm_ln_choose((double)n, (double)cover_size(&a->cover, i));
 	return nats;
 }
 
@@ -598,14 +597,14 @@ double agm_code_length_of(const struct cover *c, double loglik, const struct gra
 	double nats = -loglik, ns = (double)g->nsend, nr = (double)g->n - ns;
 	for (uint32_t i = 0; i < c->k; i++) {
 		if (!g->nsend) {
-			nats += ln_choose((double)g->n, (double)cover_size(c, i));
+			nats += agm_ln_choose((double)g->n, (double)cover_size(c, i));
 			continue;
 		}
 		uint64_t send = 0; /* senders among the senders, receivers among the receivers */
 		for (uint64_t j = c->off[i]; j < c->off[i + 1]; j++)
 			send += c->mem[j] < g->nsend;
-		nats += ln_choose(ns, (double)send) +
-			ln_choose(nr, (double)(cover_size(c, i) - send));
+		nats += agm_ln_choose(ns, (double)send) +
+			agm_ln_choose(nr, (double)(cover_size(c, i) - send));
 	}
 	return nats;
 }

@@ -27,6 +27,7 @@
 #include "coterie/agm.h"
 #include "coterie/fcsr.h"
 #include "coterie/graph.h"
+#include "coterie/model.h"
 #include "coterie/util.h"
 
 double agm_block_loglik(double e, double N)
@@ -269,20 +270,6 @@ static int read_trimmed(struct agm *out, const struct graph *g, struct fcsr *F, 
  * 0.536, fit_open_directed.sh). */
 #define DROP_ROUNDS 16
 
-static double ln_choose_n(double n, double s)
-{
-	int sign;
-	return s > 0 && s < n ? lgamma_r(n + 1.0, &sign) - lgamma_r(s + 1.0, &sign) -
-					lgamma_r(n - s + 1.0, &sign)
-			      : 0.0;
-}
-
-/* ln(1 - e^-x), -inf at x <= 0 */
-static double log1mexp_of(double x)
-{
-	return x > 0.0 ? (x < 0.693 ? log(-expm1(-x)) : log1p(-exp(-x))) : -HUGE_VAL;
-}
-
 /* The cover's communities by node: node u's in list[off[u] .. off[u + 1]),
  * ascending. 0 or -1. */
 static int node_lists(const struct cover *c, uint32_t n, uint64_t **off_out, uint32_t **list_out)
@@ -320,7 +307,7 @@ static void column_pairs(const struct cover *c, const struct graph *g, uint32_t 
 	uint32_t ns = g->nsend;
 	if (!ns) {
 		*pairs = s * (s - 1.0) / 2.0;
-		*names = ln_choose_n((double)g->n, s);
+		*names = agm_ln_choose((double)g->n, s);
 		return;
 	}
 	double send = 0.0, own = 0.0;
@@ -333,7 +320,7 @@ static void column_pairs(const struct cover *c, const struct graph *g, uint32_t 
 	for (uint64_t j = c->off[i]; seen && j < c->off[i + 1]; j++)
 		own += c->mem[j] >= ns && seen[c->mem[j] - ns] == i + 1;
 	*pairs = send * (s - send) - own;
-	*names = ln_choose_n((double)ns, send) + ln_choose_n((double)(g->n - ns), s - send);
+	*names = agm_ln_choose((double)ns, send) + agm_ln_choose((double)(g->n - ns), s - send);
 }
 
 /* Into dcl[i] the change of the code length if cover community i of a
@@ -392,9 +379,9 @@ static int drop_gains(const struct agm *a, const struct graph *g, double *dcl, d
 					y++;
 				}
 			}
-			double now = nsh ? log1mexp_of(Q) : 0.0;
+			double now = nsh ? model_log1mexp(Q) : 0.0;
 			for (uint32_t t = 0; t < nsh; t++)
-				dcl[sh[t]] -= log1mexp_of(Q - q[sh[t]]) - now;
+				dcl[sh[t]] -= model_log1mexp(Q - q[sh[t]]) - now;
 		}
 	}
 	rc = 0;

@@ -185,6 +185,9 @@ double agm_loglik(const struct graph *g, const struct cover *c, const double *p,
  * the log-likelihood alone it does not reward a cover for holding more
  * memberships than its links pay for. +INFINITY when a->loglik is. */
 double agm_code_length(const struct agm *a, uint32_t n);
+/* ln C(n, s), the nats of naming s members among n, from ln Gamma
+ * (relative error near 1e-15 at any size); 0 unless 0 < s < n. */
+double agm_ln_choose(double n, double s);
 /* (agm_code_length() names members among n nodes of one kind; the
  * commands call agm_code_length_of() below, which also knows two sides.) */
 /* The same code for cover c of graph g given the AGM log-likelihood
